@@ -51,7 +51,8 @@ Run from the repository root (about three to five minutes a draw on two shared c
         [--runs A,F] [--seed-offset 1]
 
 ``--variant`` switches planted parts off on the same random numbers (``VARIANTS``: ``nogaps``,
-``nonoise``, ``noloss``, ``notwilight``, ``nooutage``); ``--planted-ustar`` runs at the
+``nonoise``, ``noloss``, ``notwilight``, ``nooutage``, ``nodrought`` (no soil-water or
+VPD limit on uptake, no soil-water limit on respiration)); ``--planted-ustar`` runs at the
 planted threshold; ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -71,19 +72,20 @@ fluxpart's output):
   with a range shrinking under cloud (invented), about a seasonal cosine with a daily AR(1)
   anomaly (invented).
 - humidity: the day's vapour pressure at a dew point below the day's minimum; saturation
-  vapour pressure of Tetens as in FAO-56 0.6108 exp(17.27 T / (T + 237.3)) kPa (m).
+  vapour pressure of Buck (1981) 6.1121 exp((18.678 - T / 234.5) T / (257.14 + T)) hPa (m).
 - soil temperature at 5 cm: the heat-conduction solution for a periodic surface temperature
   (Carslaw and Jaeger (m)): the diurnal wave damped by exp(-z / D) and delayed by z / D
   radians, D = sqrt(2 k / omega) with k = 5e-7 m2 s-1 (a moist mineral soil (m)); the daily
   mean by a 3-day Newtonian lag (invented); under snow held near 0 deg C.
 - soil water: a bucket filled by rain and emptied by Makkink (1957) evaporation
   0.61 Delta / (Delta + gamma) Rs / lambda - 0.12 mm d-1 (m), reduced below half full
-  (FAO-56 p = 0.5 (m)).
+  (FAO-56 p = 0.5 (m)); the slope Delta of the FAO-56 saturation curve (m).
 - wind and u*: a daily gamma-distributed wind (shape 3, invented), stronger by day; u* by
   the neutral log law kappa U / ln((z - d) / z0) (kappa = 0.4 (m)) times a night stability
   factor 1 / (1 + 2 c (1 / U)) with c the day's clearness (calm clear nights; invented form).
-- photosynthesis: the non-rectangular hyperbola of Thornley and Johnson (theta = 0.7 (m)) of
-  PPFD = 2.11 Rg (McCree 1972 (m)); the Yan and Hunt (1999) temperature function (m); the
+- photosynthesis: Smith's (1936) light response alpha Q Pmax / sqrt(Pmax^2 + (alpha Q)^2)
+  (m) of PPFD = 2.11 Rg (McCree 1972 (m)); the TEM temperature function of Raich et al.
+  (1991) (T - Tmin)(T - Tmax) / ((T - Tmin)(T - Tmax) - (T - Topt)^2) (m); the
   Lasslop et al. (2010) VPD factor exp(-k (D - 10 hPa)) above 10 hPa (m); the FAO-56
   soil-water ramp; the canopy's state per day (invented forms per site).
 - respiration: Lloyd and Taylor (1994) R10 exp(E0 (1/56.02 - 1/(T + 46.02))) (m) or the
@@ -121,7 +123,7 @@ from trial_scoring import (  # noqa: E402
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
-VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nooutage")
+VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nooutage", "nodrought")
 KAPPA = 0.4               # von Karman constant (m)
 STEP_SHARE = 0.5          # measured share below the threshold, step form (invented)
 SOIL_DIFFUSIVITY = 5e-7   # m2 s-1, moist mineral soil (m)
@@ -161,7 +163,7 @@ class Site:
     r10_leaf: float      # added by the full canopy
     pmax: float          # umol m-2 s-1
     alpha: float         # umol umol-1
-    t_min: float         # deg C, Yan and Hunt
+    t_min: float         # deg C, TEM function
     t_opt: float
     t_max: float
     k_vpd: float         # hPa-1, Lasslop et al.
@@ -222,9 +224,9 @@ def ramp(x, lo, hi):
     return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
 
 
-def tetens(t):
-    """Saturation vapour pressure [hPa] at `t` [deg C] (Tetens, FAO-56 form (m))."""
-    return 6.108 * np.exp(17.27 * t / (t + 237.3))
+def buck(t):
+    """Saturation vapour pressure [hPa] over water at `t` [deg C] (Buck 1981 (m))."""
+    return 6.1121 * np.exp((18.678 - t / 234.5) * (t / (257.14 + t)))
 
 
 def sun_position(middle, site):
@@ -281,9 +283,9 @@ def weather(site, idx, rng, variant):
     tair = daily + diurnal + 0.3 * red_noise(rng, n, 0.9)
     dew = t_mean - span / 2 - np.maximum(site.dew_dep * (1 - 0.6 * wet)
                                          + rng.normal(0, 1.0, n_days), 0.3)
-    vapour = np.minimum(tetens(dew)[day], 0.97 * tetens(tair))
-    vpd = np.maximum(tetens(tair) - vapour, 0.0)
-    rh = 100 * vapour / tetens(tair)
+    vapour = np.minimum(buck(dew)[day], 0.97 * buck(tair))
+    vpd = np.maximum(buck(tair) - vapour, 0.0)
+    rh = 100 * vapour / buck(tair)
     snow = newton_lag(t_mean, 10.0) < -0.5 if site.key == "C" else np.zeros(n_days, bool)
     # soil at 5 cm: the diurnal wave damped and delayed (heat conduction), the mean lagged
     damping = np.sqrt(2 * SOIL_DIFFUSIVITY / (2 * np.pi / 86400))
@@ -295,7 +297,7 @@ def weather(site, idx, rng, variant):
         tsoil = np.where(snow[day], 0.1 + 0.05 * tsoil, tsoil)
     # bucket with Makkink evaporation (MJ m-2 d-1 of global radiation)
     rs = pd.Series(rg).groupby(day).mean().to_numpy() * 0.0864
-    slope = 4098 * tetens(t_mean) / 10 / (t_mean + 237.3) ** 2            # kPa K-1
+    slope = 4098 * 0.6108 * np.exp(17.27 * t_mean / (t_mean + 237.3)) / (t_mean + 237.3) ** 2
     makkink = np.maximum(0.61 * slope / (slope + 0.066) * rs / 2.45 - 0.12, 0.0)
     water, store = np.empty(n_days), 0.8
     for d in range(n_days):
@@ -364,20 +366,20 @@ def canopy_state(site, idx, met, rng):
     return state, events
 
 
-def fluxes(site, idx, met, rng):
+def fluxes(site, idx, met, rng, variant=frozenset()):
     """True GPP and Reco [umol m-2 s-1] per record and the event dates."""
     day = met["day"]
     state, events = canopy_state(site, idx, met, rng)
     ppfd = 2.11 * met["rg"]
-    a_q, theta = site.alpha * ppfd, 0.7
-    light = ((a_q + site.pmax - np.sqrt((a_q + site.pmax) ** 2 - 4 * theta * a_q * site.pmax))
-             / (2 * theta))
+    a_q = site.alpha * ppfd
+    light = a_q * site.pmax / np.sqrt(site.pmax ** 2 + a_q ** 2)            # Smith (1936)
     t = np.clip(met["tair"], site.t_min, site.t_max)
-    f_t = (((site.t_max - t) / (site.t_max - site.t_opt))
-           * ((t - site.t_min) / (site.t_opt - site.t_min))
-           ** ((site.t_opt - site.t_min) / (site.t_max - site.t_opt)))
+    cold, hot = t - site.t_min, t - site.t_max                            # TEM (Raich 1991)
+    f_t = cold * hot / (cold * hot - (t - site.t_opt) ** 2)
     f_d = np.exp(-site.k_vpd * np.maximum(met["vpd"] - 10.0, 0.0))
     f_w = ramp(met["water"][day], 0.0, 0.5)
+    if "nodrought" in variant:
+        f_d, f_w = np.ones_like(f_d), np.ones_like(f_w)
     gpp = state[day] * light * f_t * f_d * f_w
     temp = met[site.driver]
     r10 = site.r10_base + site.r10_leaf * newton_lag(state, 7.0)[day]
@@ -385,7 +387,7 @@ def fluxes(site, idx, met, rng):
         reco = r10 * np.exp(site.e0 * (1 / 56.02 - 1 / (np.maximum(temp, -30.0) + 46.02)))
     else:
         reco = r10 * site.q10 ** ((temp - 10) / 10)
-    if site.key == "F":
+    if site.key == "F" and "nodrought" not in variant:
         reco = reco * (0.3 + 0.7 * ramp(met["water"][day], 0.05, 0.4))
     if site.key == "E":        # water table above the surface in winter-spring (invented)
         flooded = ramp(met["water"][day], 0.6, 0.95) * ramp(-np.cos(
@@ -427,7 +429,7 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
     rng = {k: np.random.default_rng(root.integers(2 ** 32))
            for k in ("met", "eco", "noise", "gaps")}
     met = weather(site, idx, rng["met"], variant)
-    gpp, reco, events = fluxes(site, idx, met, rng["eco"])
+    gpp, reco, events = fluxes(site, idx, met, rng["eco"], variant)
     nee = reco - gpp
     night = met["sin_h"] < 0
     rel = met["ustar"] / site.thr
