@@ -111,12 +111,12 @@ from scipy.signal import lfilter
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     chosen_variant,
-    fill_errors,
     finish,
     fluxpart_cli,
     fmt,
-    print_scored_row,
+    print_rain_outage_row,
     processing_text,
+    rain_outage_fill_parts,
     score_budget_years,
     site_toml,
     trial_parser,
@@ -533,25 +533,6 @@ def write_network(out: Path, keys) -> Path:
 
 
 # ----------------------------------------------------------------------------- scoring
-def fill_parts(part, series, row):
-    """The NEE error [g C m-2] of the filled records by night and by day outside the rain
-    gaps and the outages of every sensor, in the rain gaps and in those outages."""
-    night = part.night.to_numpy().astype(bool)
-    out = part.outage.to_numpy().astype(bool)
-    rain = part.rain.to_numpy().astype(bool)
-    rest = ~out & ~rain
-    row.update(fill_errors(part, series, {"night": night & rest, "day": ~night & rest,
-                                          "rain": rain, "outage": out}))
-
-
-def print_row(row):
-    fills = ""
-    if "nee" in row:
-        fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
-                 f"rain {row['err_fill_rain']:+.1f}, power outage {row['err_fill_outage']:+.1f}")
-    print_scored_row(row, fills)
-
-
 def print_misses_z(rows):
     """Every flux outside its 95 % interval with z = error / (half-width / 1.96)."""
     print("\nmisses of the 95 % interval (z = error / (half-width / 1.96)):")
@@ -596,9 +577,9 @@ def main(argv=None):
             continue
         for row in score_budget_years(out, truths[key], key,
                                       SimpleNamespace(returncode=batch.returncode),
-                                      site.step * 60 * GC_PER_UMOL, fill_parts):
+                                      site.step * 60 * GC_PER_UMOL, rain_outage_fill_parts):
             row["warnings"] = []
-            print_row(row)
+            print_rain_outage_row(row)
             rows.append(row)
     code = finish(rows, options.out)
     print_misses_z(rows)
