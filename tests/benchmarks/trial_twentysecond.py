@@ -45,7 +45,8 @@ sun is up to 6 deg below the horizon); a night u* loss below the planted thresho
 hour); one or two analyser outages of 7-21 days a year; one outage of every sensor of 2-6
 days per site.
 
-Run from the repository root (about three to five minutes a draw on two shared cores)::
+Run from the repository root (about a minute a draw: one batch of eight sites on two shared
+cores)::
 
     nice -n 5 python tests/benchmarks/trial_twentysecond.py --out /tmp/fluxpart-trial22 \\
         [--runs A,F] [--seed-offset 1]
