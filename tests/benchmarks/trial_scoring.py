@@ -3,7 +3,8 @@
 
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
 loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
-``run_sites``, and the scoring of a run's budget years, ``score_budget_years``): each trial
+``run_sites``, and the scoring of a run's budget years, ``score_budget_years``; since ``trial_twentysecond.py`` the fill errors by rain gap and
+power outage, ``rain_outage_fill_parts``): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
@@ -408,3 +409,24 @@ def print_scored_row(row, fills):
         f"{f} {row[f + '_err_night']:+.1f}/{row[f + '_err_day']:+.1f}" for f in FLUXES[1:]))
     m = misses(row)
     print(f"   MISSES: {'; '.join(m) if m else 'none'}")
+
+
+def rain_outage_fill_parts(part, series, row):
+    """The NEE error [g C m-2] of the filled records by night and by day outside the rain
+    gaps and the outages of every sensor, in the rain gaps and in those outages (truth
+    columns ``night``, ``outage``, ``rain``; see :func:`fill_errors`); updates `row`."""
+    night = part.night.to_numpy().astype(bool)
+    out = part.outage.to_numpy().astype(bool)
+    rain = part.rain.to_numpy().astype(bool)
+    rest = ~out & ~rain
+    row.update(fill_errors(part, series, {"night": night & rest, "day": ~night & rest,
+                                          "rain": rain, "outage": out}))
+
+
+def print_rain_outage_row(row):
+    """:func:`print_scored_row` with the fill errors of :func:`rain_outage_fill_parts`."""
+    fills = ""
+    if "nee" in row:
+        fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
+                 f"rain {row['err_fill_rain']:+.1f}, power outage {row['err_fill_outage']:+.1f}")
+    print_scored_row(row, fills)

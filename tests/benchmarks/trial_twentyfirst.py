@@ -108,9 +108,9 @@ from scipy.signal import lfilter
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     chosen_variant,
-    fill_errors,
     fmt,
-    print_scored_row,
+    print_rain_outage_row,
+    rain_outage_fill_parts,
     run_sites,
     score_budget_years,
     site_toml,
@@ -564,30 +564,10 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", even
 
 
 # ----------------------------------------------------------------------------- scoring
-def fill_parts(part, series, row):
-    """The NEE error [g C m-2] of the filled records by night and by day outside the rain
-    gaps and the outages of every sensor, in the rain gaps and in those outages (see
-    ``fill_errors``)."""
-    night = part.night.to_numpy().astype(bool)
-    out = part.outage.to_numpy().astype(bool)
-    rain = part.rain.to_numpy().astype(bool)
-    rest = ~out & ~rain
-    row.update(fill_errors(part, series, {"night": night & rest, "day": ~night & rest,
-                                          "rain": rain, "outage": out}))
-
-
 def score(site: Site, truth: pd.DataFrame, out: Path, check):
     """Score every complete budget year of ``annual.parquet`` against the truth."""
     return score_budget_years(out, truth, site.key, check, site.step * 60 * GC_PER_UMOL,
-                              fill_parts)
-
-
-def print_row(row):
-    fills = ""
-    if "nee" in row:
-        fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
-                 f"rain {row['err_fill_rain']:+.1f}, power outage {row['err_fill_outage']:+.1f}")
-    print_scored_row(row, fills)
+                              rain_outage_fill_parts)
 
 
 def main(argv=None):
@@ -605,7 +585,7 @@ def main(argv=None):
     def write(site, data, folder, processing):
         return write_site(site, data, folder, processing, events.get(site.key, ()))
 
-    return run_sites(options, SITES, simulate_keep, write, score, print_row, variant)
+    return run_sites(options, SITES, simulate_keep, write, score, print_rain_outage_row, variant)
 
 
 if __name__ == "__main__":
