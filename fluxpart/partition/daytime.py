@@ -1342,7 +1342,11 @@ def _marquardt_step(theta, fixed, lower, upper, gradient, normal, cost, points, 
     steps = np.linalg.solve(systems.reshape(2 * count, 4, 4),
                             np.concatenate([descent, descent])[:, :, None])[:, :, 0]
     newton_step, step = steps[:count], steps[count:]
-    predicted = (newton_step * (-gradient * keep)).sum(axis=1)
+    # a window whose system is singular gives a non-finite step: its predicted decrease
+    # is NaN, read below as not negligible, and the damped step decides (round trial22
+    # saw NumPy's bare "invalid value" warning of this product reach a user's terminal)
+    with np.errstate(invalid="ignore", over="ignore"):
+        predicted = (newton_step * (-gradient * keep)).sum(axis=1)
     variance = 2.0 * cost / np.maximum(points - keep.sum(axis=1), 1)
     negligible = predicted <= (_SE_TOL**2) * variance
     trial = np.clip(theta + step, lower, upper)
