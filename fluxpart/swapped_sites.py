@@ -32,16 +32,9 @@ def daylength_swing(index, rg, latitude, longitude, utc_offset, interval_minutes
 
     Parameters
     ----------
-    index : pandas.DatetimeIndex
-        Interval starts, local standard time, regular.
-    rg : array_like
-        Measured global radiation [W m-2]; NaN where missing.
-    latitude, longitude : float
-        Position the sun is computed for [degrees north, east].
-    utc_offset : float
-        Offset of the stamps from UTC [hours].
-    interval_minutes : float
-        Record interval [min].
+    index, rg, latitude, longitude, utc_offset, interval_minutes
+        As for :func:`fluxpart.clock.monthly_shifts` (the latitude the sun is computed
+        for, which need not be the site's).
 
     Returns
     -------
