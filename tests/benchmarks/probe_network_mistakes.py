@@ -15,6 +15,7 @@ About 10 s per case on one core.
 from __future__ import annotations
 
 import argparse
+import json
 import os
 import re
 import shutil
@@ -181,7 +182,23 @@ def main(argv=None) -> int:
                   f"{worst[2]:+.1f} g C m-2 = {worst[0]:.1f} sigma")
             for line in new:
                 print(f"    {line[:300]}")
+        if not args.only or any("older" in word for word in args.only):
+            _older_release(clean_root)
     return 0
+
+
+def _older_release(root: Path) -> None:
+    """A result folder of an older release left in the output folder: its manifest's
+    release and code fingerprint edited, then the batch run again."""
+    manifest = root / "network-output" / "east_meadow" / "manifest.json"
+    recorded = json.loads(manifest.read_text(encoding="utf-8"))
+    recorded["versions"]["fluxpart"] = "0.30.0"
+    recorded["code"]["sha256"] = "0" * 64
+    manifest.write_text(json.dumps(recorded), encoding="utf-8")
+    code, output, _ = _batch(root)
+    reasons = [line for line in output.splitlines() if "east_meadow (" in line]
+    print(f"result folder of an older release: exit {code}; "
+          f"{reasons[0][:200] if reasons else 'SILENTLY REUSED'}")
 
 
 if __name__ == "__main__":
