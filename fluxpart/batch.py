@@ -59,6 +59,7 @@ from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
@@ -102,6 +103,7 @@ from .store import (
     unreadable,
     write_table,
 )
+from .swapped_sites import swapped_pairs
 from .worker_match import (
     client_environment,
     mismatch_error,
@@ -1572,6 +1574,7 @@ def _run_batch(sites_file, scheduler, workers, out, force, progress,
                                       + _same_records_warnings(record_pairs)
                                       + same_name_sites(outcomes, same_records)
                                       + different_settings_sites(outcomes)
+                                      + swapped_input_sites(outcomes)
                                       + unlisted_site_folders(out, [k for k, _ in network.sites])))
 
 
@@ -1844,6 +1847,50 @@ def different_settings_sites(outcomes) -> list[str]:
             "network tables put their budgets side by side as if computed alike: check that "
             "each difference is meant for that site (a setting tried at one tower and left "
             "in its config, or a config copied from an older template, computes it otherwise)"]
+
+
+def swapped_input_sites(outcomes) -> list[str]:
+    """One warning per pair of sites whose input files look swapped (round mistakes46).
+
+    Each site's Rg (``rg`` of its ``timeseries.parquet``) is compared with the day
+    lengths of its own ``[site]`` latitude and of the other's
+    (:func:`fluxpart.swapped_sites.swapped_pairs`): two towers less than 10° apart pass
+    each site's own latitude check with each other's records. Failed sites and folders
+    that cannot be read are left out.
+
+    References
+    ----------
+    Allen, R. G. et al. (1998). FAO Irrigation and Drainage Paper 56, eq. 34 (day
+    length from latitude and season).
+    """
+    records = {}
+    for outcome in outcomes:
+        if outcome.status == "failed":
+            continue
+        directory = Path(outcome.directory)
+        try:
+            site = read_manifest(directory).get("site") or {}
+            table = arrow_table(directory / "timeseries.parquet",
+                                columns=["time", "rg"]).to_pandas(use_threads=False)
+            index = pd.DatetimeIndex(table["time"])
+            steps = np.diff(index.to_numpy()) / np.timedelta64(1, "m")
+            interval = float(np.median(steps)) if steps.size else 0.0     # [min]
+            position = tuple(float(site[name]) for name in
+                             ("latitude", "longitude", "utc_offset"))
+        except (FluxpartError, OSError, ValueError, TypeError, KeyError, pa.ArrowException):
+            continue
+        if interval > 0:
+            records[outcome.key] = (index, table["rg"].to_numpy(dtype=float), *position,
+                                    interval)
+    return [f"sites {first!r} (latitude {records[first][2]:g}), {second!r} (latitude "
+            f"{records[second][2]:g}): the day lengths of each one's Rg fit the other's "
+            f"latitude (their mismatch with the sun swings {other_first:.0f} and "
+            f"{other_second:.0f} min through the year there, {own_first:.0f} and "
+            f"{own_second:.0f} min at their own): their input files look swapped, each "
+            "budget the other tower's under the wrong name; check [input] path in their "
+            "site configs"
+            for (first, second), own_first, other_first, own_second, other_second
+            in swapped_pairs(records)]
 
 
 def _years(outcome) -> set | None:
