@@ -713,10 +713,10 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
     report = directory / REPORT_FOLDER
-    if marker == MANIFEST_FILE and (report.is_file() or report.is_symlink()
-                                    and not report.is_dir()):
-        # a file (or a link to one) named like the report folder is none a writer made:
-        # a user's note named "report" was deleted by the next run without a word
+    if marker == MANIFEST_FILE and report.is_file() and not report.is_symlink():
+        # a plain file named like the report folder is none a writer made: a user's note
+        # named "report" was deleted by the next run without a word (a link goes, as a
+        # link to a folder did: what it leads to is kept)
         listed.discard(REPORT_FOLDER)
     found = [name for name in names if name not in listed and not _disposable(name)
              and not _report_leftover(directory / name)]

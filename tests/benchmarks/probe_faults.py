@@ -2124,18 +2124,27 @@ def f_config_link_retargeted():
 
 
 def f_batch_two_configs_one_folder():
-    """Two site configs in one batch whose results would share one folder name (two
-    copies of one site's folder)."""
+    """Two site configs of one batch whose results would share a folder name (two
+    copies of one site's folder: the stems clash), and one config matched twice (two
+    patterns naming it)."""
     make_net()
     shutil.copytree(NET / "a", NET / "a_copy")
     done = fp("batch", "sites.toml", "--quiet", cwd=NET)
-    folders = sorted(p.name for p in (NET / "out").iterdir() if p.is_dir()) \
-        if (NET / "out").exists() else []
-    record("two configs of one batch naming one result folder",
-           (one_line(done) or (done.returncode in (0, 1) and any(
-               "a_copy" in line or "same" in line for line in done.stderr.splitlines())))
-           and not leftovers(NET / "out") if (NET / "out").exists() else one_line(done),
-           f"exit {done.returncode}, {_stderr_tail(done, 160)}, folders {folders}")
+    folders = sorted(p.name for p in (NET / "out").iterdir() if (p / "manifest.json").is_file())
+    record("two configs of one batch whose stems clash", done.returncode == 0
+           and len(folders) == 5 and sites_verify(NET / "out") == [0] * 5
+           and not leftovers(NET / "out"), f"exit {done.returncode}, "
+           f"{_stderr_tail(done, 100)}, folders {folders}")
+    make_net()
+    (NET / "sites.toml").write_text('[batch]\nsites = ["*/site.toml", "a/site.toml"]\n'
+                                    'out = "out"\n')
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    folders = sorted(p.name for p in (NET / "out").iterdir() if (p / "manifest.json").is_file()) \
+        if (NET / "out").is_dir() else []
+    record("one config matched twice in one batch", (done.returncode == 0 and len(folders) == 4
+                                                    or one_line(done))
+           and not leftovers(NET / "out") if (NET / "out").is_dir() else one_line(done),
+           f"exit {done.returncode}, {_stderr_tail(done, 120)}, folders {folders}")
 
 
 def f_reader_leaves_verify_diff_report():
