@@ -2469,8 +2469,8 @@ def too_large_to_read(paths) -> str:
     return (f"ran out of memory reading input file {str(path)!r} ({size / 1e6:,.0f} MB"
             f"{counted}): a year of half-hourly records takes 17,520 lines (hourly 8,760), "
             "so a file of finer records (a logger's 1-minute or 10 Hz table) is to be "
-            "averaged to 30 or 60 minutes first; a table of tower records, whole: give "
-            "the process more memory")
+            "averaged to 30 or 60 minutes first; for a tower's own 30- or 60-minute "
+            "table, give the process more memory")
 
 
 def _case_hint(path: Path) -> str:

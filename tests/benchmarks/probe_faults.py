@@ -45,6 +45,15 @@ another run's under a valid manifest; diff of a folder of release 0.30.0 (605729
 unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
 unmounted lazily (umount -l) while run holds it open.
 
+Round faults39 (long and shared use): two sites at once into one new parent; ``cp -r``
+of a result while run replaces it (each kind of copy verified); a result on a noexec,
+nosuid tmpfs; a copy without times or rights (FAT-like); report/ deleted or a user's
+file; verify with --input twice; the config a link retargeted after run; clashing batch
+stems and one config matched twice; verify, diff and report into ``head -c 20``; a new
+--out on a read-only bind mount; hash seed and thread counts differing between run and
+verify --exact; two reports at once; ``--out .``; a CSV export into the result; ten
+years of 1-minute records, with memory to spare and under ulimit -v.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -2245,6 +2254,39 @@ def f_export_into_result():
            f"export {exp.returncode} {_stderr_tail(exp, 80)}, verify {ver.returncode} "
            f"{_stderr_tail(ver, 80)}, run {run.returncode} {_stderr_tail(run, 80)}")
 
+def f_ten_years_of_minutes():
+    """Ten years of 1-minute records (5.3 million lines, about 270 MB; invented, the
+    Quillmoor config): check with memory to spare (refused for its spacing; about 2.6 GB
+    and 80 s on the 2-core machine) and under ``ulimit -v`` 1.5 GB (the file named with
+    its size and lines, not "give the process more memory" alone)."""
+    import resource
+
+    import numpy as np
+    import pandas as pd
+    big = W / "minutes"
+    big.mkdir(exist_ok=True)
+    if not (big / "tower.csv").is_file():
+        t = pd.date_range("2011-01-01 00:01", "2021-01-01 00:00", freq="1min")
+        n, rng = len(t), np.random.default_rng(0)
+        hour = (t.hour + t.minute / 60).to_numpy()
+        rg = np.clip(800 * np.sin(np.pi * (hour - 6) / 12), 0, None)
+        ta = 8 + 10 * np.sin(2 * np.pi * (t.day_of_year.to_numpy() - 110) / 365)
+        pd.DataFrame({"stamp_end": t.strftime("%Y%m%d%H%M"),
+                      "co2_exchange": (2 * np.exp(0.07 * ta) - 0.02 * rg
+                                       + rng.normal(0, 1, n)).round(3),
+                      "solar_down": rg.round(1), "air_temp_c": ta.round(2),
+                      "vpd_kpa": 0.8, "friction_velocity": 0.3, "soil_temp_5cm": ta.round(1),
+                      "rel_humidity": 70.0, "qc_co2": 0}).to_csv(big / "tower.csv", index=False)
+        shutil.copy2(W / "b" / "site.toml", big / "site.toml")
+    spare = fp("check", "site.toml", cwd=big, timeout=900)
+    tight = limited({resource.RLIMIT_AS: 1500 << 20}, "check", "site.toml", cwd=big,
+                    timeout=900)
+    record("ten years of 1-minute records, memory to spare", one_line(spare)
+           and "1 minutes" in spare.stderr, f"exit {spare.returncode} {_stderr_tail(spare, 120)}")
+    record("ten years of 1-minute records under ulimit -v 1.5 GB", one_line(tight)
+           and "lines" in tight.stderr and "tower.csv" in tight.stderr,
+           f"exit {tight.returncode} {_stderr_tail(tight, 160)}")
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -2276,7 +2318,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_report_folder_gone_or_file, f_verify_inputs_moved_twice, f_config_link_retargeted,
           f_batch_two_configs_one_folder, f_reader_leaves_verify_diff_report,
           f_new_out_readonly_mount, f_env_differs_run_verify, f_two_reports_at_once,
-          f_out_is_current_folder, f_export_into_result]
+          f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
