@@ -52,7 +52,8 @@ file; verify with --input twice; the config a link retargeted after run; clashin
 stems and one config matched twice; verify, diff and report into ``head -c 20``; a new
 --out on a read-only bind mount; hash seed and thread counts differing between run and
 verify --exact; two reports at once; ``--out .``; a CSV export into the result; ten
-years of 1-minute records, with memory to spare and under ulimit -v.
+years of 1-minute records, with memory to spare and under ulimit -v; a batch rerun over
+a site left half-staged.
 
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
@@ -2286,6 +2287,25 @@ def f_ten_years_of_minutes():
            and "lines" in tight.stderr and "tower.csv" in tight.stderr,
            f"exit {tight.returncode} {_stderr_tail(tight, 160)}")
 
+def f_batch_resumed_half_staged():
+    """A batch killed while one site's folder was half-staged (a staging folder holding
+    half that site's tables, the site's folder not yet swapped in), then run again."""
+    make_net()
+    first = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+    out = NET / "out"
+    site = sorted(p for p in out.iterdir() if (p / "manifest.json").is_file())[0]
+    staging = out / f".{site.name}.staging-k1ll3d"
+    staging.mkdir()
+    for table in sorted(site.glob("*.parquet"))[:5]:
+        shutil.copy2(table, staging / table.name)
+    (staging / "daily.parquet").write_bytes(b"PAR1")          # a table cut mid-write
+    shutil.rmtree(site)
+    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    record("a batch killed with one site half-staged, then run again", first.returncode == 0
+           and rerun.returncode == 0 and site.is_dir() and not leftovers(out)
+           and sites_verify(out) == [0] * 4, f"exit {rerun.returncode} "
+           f"{_stderr_tail(rerun, 120)}, left {leftovers(out)}")
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -2317,7 +2337,8 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_report_folder_gone_or_file, f_verify_inputs_moved_twice, f_config_link_retargeted,
           f_batch_two_configs_one_folder, f_reader_leaves_verify_diff_report,
           f_new_out_readonly_mount, f_env_differs_run_verify, f_two_reports_at_once,
-          f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes]
+          f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes,
+          f_batch_resumed_half_staged]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
