@@ -28,6 +28,7 @@ from .errors import (
     ConfigError,
     FluxpartError,
     FluxpartWarning,
+    InputTooLarge,
     ResourceShortage,
 )
 from .manifest import CAUTION, shown_path
@@ -1113,14 +1114,18 @@ def main(argv=None) -> int:
         print(f"error: {error}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the "
               "process more memory", file=sys.stderr)
         return 2
-    except MemoryError:
+    except MemoryError as error:
         # a memory limit (ulimit -v, a container's or a batch job's) reached inside NumPy or
         # pandas: a traceback ending in _ArrayMemoryError; the write stages are undone on
         # any exception (resultdir.swapped_in), so the folder is as it was
-        print(f"error: ran out of memory (a memory limit of this process: ulimit -v or -d, a "
-              f"container's or a batch job's); "
-              f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
-              "memory", file=sys.stderr)
+        # an input file too large to read names itself (io.too_large_to_read)
+        said = (f"{error}; {_AFTER_STOP.get(args.command, _AFTER_STOP[''])}"
+                if isinstance(error, InputTooLarge) else
+                "ran out of memory (a memory limit of this process: ulimit -v or -d, a "
+                f"container's or a batch job's); "
+                f"{_AFTER_STOP.get(args.command, _AFTER_STOP[''])}: give the process more "
+                "memory")
+        print(f"error: {said}", file=sys.stderr)
         if argv is None:
             # the interpreter's clean-up under the same limit crashed after the line
             # (`check` under ulimit -d 60 MB: SIGSEGV, exit 139, faults38); the command's

@@ -51,6 +51,15 @@ class ResourceShortage(MemoryError):
     """
 
 
+class InputTooLarge(MemoryError):
+    """Memory ran out while an input file was read: its text names the file, its size
+    and line count beside what a tower's records take (``io.too_large_to_read``).
+
+    A :class:`MemoryError`, so the command ends as on any memory limit (``fluxpart.cli``:
+    one line, exit 2, the process ended without the interpreter's clean-up).
+    """
+
+
 class MissingColumnError(FluxpartError):
     """A required column is absent from the input."""
 

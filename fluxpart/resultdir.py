@@ -663,6 +663,26 @@ _MOUNT_POINT = ("is a mount point (a mounted drive, a network share or a contain
                 "fails: device busy); give a folder inside it, e.g. {inside!r}")
 
 
+def _wrong_kind(path: Path, folder: bool) -> str:
+    """Why the entry `path` of a result folder, named like a listed entry, is not it: what
+    it is (a file, a folder, a link and where it leads, another kind) beside what the
+    manifest lists there (a folder where `folder`, else a plain file)."""
+    wanted = "the folder a report is drawn into" if folder else "a plain file"
+    if path.is_symlink():
+        try:
+            target = os.readlink(path)
+        except OSError:
+            target = "?"
+        what = f"a symbolic link to {target!r}" + ("" if path.exists() else " (leading nowhere)")
+    elif path.is_dir():
+        what = "a folder"
+    elif path.is_file():
+        what = "a plain file"
+    else:
+        what = "neither a plain file nor a folder (a pipe, socket or device)"
+    return f"is {what}, where the result keeps {wanted}"
+
+
 def _unlisted_entries(directory: Path, marker: str) -> list[str]:
     """Entries of the folder `directory` that a writer of its kind did not write, sorted.
 
@@ -692,9 +712,14 @@ def _unlisted_entries(directory: Path, marker: str) -> list[str]:
             listed = {name for name in names if _run_writes(name)}
     else:
         listed = {marker} | {name for name in names if name.endswith(".png")}
+    report = directory / REPORT_FOLDER
+    if marker == MANIFEST_FILE and report.is_file() and not report.is_symlink():
+        # a plain file named like the report folder is none a writer made: a user's note
+        # named "report" was deleted by the next run without a word (a link goes, as a
+        # link to a folder did: what it leads to is kept)
+        listed.discard(REPORT_FOLDER)
     found = [name for name in names if name not in listed and not _disposable(name)
              and not _report_leftover(directory / name)]
-    report = directory / REPORT_FOLDER
     if marker == MANIFEST_FILE and REPORT_FOLDER in listed and report.is_dir() \
             and not report.is_symlink():
         # the report folder goes with the result folder it is in: a user's notes put
@@ -1118,8 +1143,8 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         if path.name in allowed_dirs and path.is_dir() and not path.is_symlink():
             continue
         if path.name in allowed_files or path.name in allowed_dirs:
-            problems.append(FolderProblem(path.name, "extra", "has the name of a listed entry "
-                                          "but is not a plain file or folder"))
+            problems.append(FolderProblem(path.name, "extra", _wrong_kind(
+                path, path.name in allowed_dirs)))
             continue
         if _report_leftover(path):
             # the report is not hashed (report/ may hold anything), so what a report killed

@@ -45,6 +45,16 @@ another run's under a valid manifest; diff of a folder of release 0.30.0 (605729
 unpacked with git archive under the scratch folder) and a new one; the input's tmpfs
 unmounted lazily (umount -l) while run holds it open.
 
+Round faults39 (long and shared use): two sites at once into one new parent; ``cp -r``
+of a result while run replaces it (each kind of copy verified); a result on a noexec,
+nosuid tmpfs; a copy without times or rights (FAT-like); report/ deleted or a user's
+file; verify with --input twice; the config a link retargeted after run; clashing batch
+stems and one config matched twice; verify, diff and report into ``head -c 20``; a new
+--out on a read-only bind mount; hash seed and thread counts differing between run and
+verify --exact; two reports at once; ``--out .``; a CSV export into the result; ten
+years of 1-minute records, with memory to spare and under ulimit -v; a batch rerun over
+a site left half-staged.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -1958,6 +1968,344 @@ def f_batch_scratch():
             subprocess.run(["umount", str(full)])
 
 
+# ------------------------------------------------------------------ round faults39
+def f_two_sites_new_parent():
+    """Two runs of two sites at once into one parent folder that neither finds (both
+    create it)."""
+    parent = W / "np_parent"
+    shutil.rmtree(parent, ignore_errors=True)
+    procs = [start("run", cfg, "--out", parent / "deep" / name, "--quiet")
+             for cfg, name in (("site.toml", "a"), ("seed1.toml", "b"))]
+    codes = [p.wait() for p in procs]
+    errs = [p.stderr.read().strip()[-120:] for p in procs]
+    same = (table_digests(parent / "deep" / "a") == table_digests(W / "r0")
+            and table_digests(parent / "deep" / "b") == table_digests(W / "r1"))
+    record("two sites run at once into one new parent folder", codes == [0, 0] and same
+           and not leftovers(parent / "deep"), f"exits {codes}, identical {same}, {errs}")
+
+
+def f_copy_during_swap():
+    """``cp -r`` of a result folder, again and again, while run replaces it: each copy
+    verifies only where it holds one whole result (the old or the new: its tables and
+    manifest), and verify names the others. One verify per kind of copy."""
+    folder = fresh("cpswap")
+    copies = W / "cpswap_copies"
+    shutil.rmtree(copies, ignore_errors=True)
+    copies.mkdir()
+
+    def kind(d):
+        files = dict(table_digests(d), manifest=hashlib.sha256(
+            (d / "manifest.json").read_bytes()).hexdigest()
+            if (d / "manifest.json").is_file() else None)
+        return tuple(sorted(files.items()))
+    old = kind(folder)
+    proc = start("run", "seed1.toml", "--out", folder, "--quiet")
+    n = 0
+    while proc.poll() is None and n < 400:
+        subprocess.run(["cp", "-r", str(folder), str(copies / f"c{n}")], capture_output=True)
+        n += 1
+    proc.wait()
+    whole = {old, kind(folder)}
+    kinds = {}
+    for copy in sorted(copies.iterdir()):
+        kinds.setdefault(kind(copy), []).append(copy)
+    wrong, seen = [], []
+    for key, members in kinds.items():
+        done = verify(members[0], "--input", W / "b" / "tower.csv")
+        seen.append((len(members), key in whole, done.returncode))
+        if (done.returncode == 0) != (key in whole) or (done.returncode != 0 and not
+                                                        done.stdout + done.stderr):
+            wrong.append((members[0].name, done.returncode, _stderr_tail(done, 80)))
+    record(f"cp -r of a result while run replaces it ({n} copies)", proc.returncode == 0
+           and not wrong, f"(copies, whole, verify exit) {seen}, wrong {wrong[:2]}")
+
+
+def f_noexec_tmpfs():
+    """A result on a file system that keeps no owners' rights to run code (tmpfs
+    noexec,nosuid,nodev): run, report, verify and a CSV export."""
+    parent = W / "noexec"
+    parent.mkdir(exist_ok=True)         # a fresh tmpfs over it: nothing of an earlier trial
+    if not _mounted(parent, "-t", "tmpfs", "-o", "size=50m,noexec,nosuid,nodev", "tmpfs"):
+        record("a result on a noexec tmpfs", False, "mount refused: not probed")
+        return
+    try:
+        codes = [fp("run", "site.toml", "--out", parent / "r", "--quiet").returncode,
+                 fp("report", "--quiet", parent / "r").returncode,
+                 verify(parent / "r").returncode,
+                 fp("export", "--csv", parent / "csv", parent / "r").returncode]
+        record("a result on a noexec,nosuid,nodev tmpfs: run, report, verify, export",
+               codes == [0] * 4 and table_digests(parent / "r") == table_digests(W / "r0"),
+               f"exits {codes}")
+    finally:
+        subprocess.run(["umount", str(parent)])
+
+
+def f_copy_without_times():
+    """A result copied as a file system that keeps no times or rights leaves it (a FAT
+    stick: ``cp -r`` without -p, every file dated 1980 and mode 0755, or 0444 and the
+    folder 0555), then verify and report."""
+    results_ = []
+    for mode in ("755", "444"):
+        copy = W / f"notimes_{mode}"
+        shutil.rmtree(copy, ignore_errors=True)
+        subprocess.run(["cp", "-r", str(W / "r0"), str(copy)], check=True)
+        for p in copy.rglob("*"):
+            os.utime(p, (315532800, 315532800))
+            if p.is_file():
+                os.chmod(p, int(mode, 8))
+        ver = verify(copy)
+        rep = fp("report", "--quiet", copy)
+        results_.append((mode, ver.returncode, rep.returncode, _stderr_tail(rep, 90)))
+        for p in copy.rglob("*"):
+            os.chmod(p, 0o755)
+    record("a result copied without times or rights (FAT-like), then verify and report",
+           all(r[1] == 0 and r[2] == 0 for r in results_), f"{results_}")
+
+
+def f_report_folder_gone_or_file():
+    """The result's report folder deleted, or replaced by a file of that name (a user's
+    note); then report, verify and run again."""
+    seen, ok = [], True
+    for how in ("deleted", "a file"):
+        folder = fresh("rgone")
+        assert fp("report", "--quiet", folder).returncode == 0
+        shutil.rmtree(folder / "report")
+        if how == "a file":
+            (folder / "report").write_text("my notes\n")
+        ver = verify(folder)
+        rep = fp("report", "--quiet", folder)
+        ver2 = verify(folder)
+        run = fp("run", "site.toml", "--out", folder, "--quiet")
+        note = (folder / "report").read_text() if (folder / "report").is_file() else None
+        if how == "deleted":
+            good = ver.returncode == 0 and rep.returncode == 0 and ver2.returncode == 0 \
+                and run.returncode == 0
+        else:           # the note is the user's: named by verify, kept by report and run
+            good = (ver.returncode == 1 and "report is a plain file" in ver.stdout
+                    and one_line(rep) and one_line(run) and note == "my notes\n")
+        ok &= good
+        seen.append(f"{how}: verify {ver.returncode} {_stderr_tail(ver, 70)}, report "
+                    f"{rep.returncode} {_stderr_tail(rep, 90)}, run {run.returncode} "
+                    f"{_stderr_tail(run, 70)}")
+    record("the result's report folder deleted or a file, then verify, report, run",
+           ok, "; ".join(seen))
+
+
+def f_verify_inputs_moved_twice():
+    """verify of a result whose input moved, ``--input`` given twice (the same file;
+    the file and another)."""
+    folder = fresh("vin")
+    moved = W / "vin_moved"
+    shutil.rmtree(moved, ignore_errors=True)
+    moved.mkdir()
+    shutil.copy2(W / "b" / "tower.csv", moved / "tower.csv")
+    shutil.copy2(W / "b" / "tower.csv", moved / "other.csv")
+    with open(moved / "other.csv", "a") as f:
+        f.write("\n")
+    twice = verify(folder, "--input", moved / "tower.csv", "--input", moved / "tower.csv")
+    other = verify(folder, "--input", moved / "tower.csv", "--input", moved / "other.csv")
+    record("verify with the input moved and --input given twice",
+           twice.returncode == 0 or one_line(twice), f"exit {twice.returncode} "
+           f"{_stderr_tail(twice, 140)}")
+    record("verify with --input given for the input and for another file",
+           one_line(other) or (other.returncode == 1 and "other.csv" in other.stdout + other.stderr),
+           f"exit {other.returncode} {_stderr_tail(other, 140)}")
+
+
+def f_config_link_retargeted():
+    """The site config a symbolic link, retargeted to another config after run (a
+    shared ``current.toml``): verify must not pass the result as reproduced from the
+    other config's settings without saying so."""
+    link = W / "b" / "current.toml"
+    link.unlink(missing_ok=True)
+    link.symlink_to("site.toml")
+    out = W / "cfglink"
+    shutil.rmtree(out, ignore_errors=True)
+    run = fp("run", "current.toml", "--out", out, "--quiet")
+    link.unlink()
+    link.symlink_to("seed1.toml")
+    ver = fp("verify", out)
+    link.unlink()
+    record("the config a link retargeted to another config after run, then verify",
+           run.returncode == 0 and (ver.returncode == 0 and "config" in ver.stdout.lower()
+                                    or ver.returncode != 0),
+           f"run {run.returncode}, verify {ver.returncode} {ver.stdout.strip()[-160:]!r}")
+
+
+def f_batch_two_configs_one_folder():
+    """Two site configs of one batch whose results would share a folder name (two
+    copies of one site's folder: the stems clash), and one config matched twice (two
+    patterns naming it)."""
+    make_net()
+    shutil.copytree(NET / "a", NET / "a_copy")
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    folders = sorted(p.name for p in (NET / "out").iterdir() if (p / "manifest.json").is_file())
+    record("two configs of one batch whose stems clash", done.returncode == 0
+           and len(folders) == 5 and sites_verify(NET / "out") == [0] * 5
+           and not leftovers(NET / "out"), f"exit {done.returncode}, "
+           f"{_stderr_tail(done, 100)}, folders {folders}")
+    make_net()
+    (NET / "sites.toml").write_text('[batch]\nsites = ["*/site.toml", "a/site.toml"]\n'
+                                    'out = "out"\n')
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    folders = sorted(p.name for p in (NET / "out").iterdir() if (p / "manifest.json").is_file()) \
+        if (NET / "out").is_dir() else []
+    record("one config matched twice in one batch", (done.returncode == 0 and len(folders) == 4
+                                                    or one_line(done))
+           and not leftovers(NET / "out") if (NET / "out").is_dir() else one_line(done),
+           f"exit {done.returncode}, {_stderr_tail(done, 120)}, folders {folders}")
+
+
+def f_reader_leaves_verify_diff_report():
+    """verify, diff and report (not quiet) into ``| head -1`` (SIGPIPE at the reader's
+    exit; Python ignores SIGPIPE, so EPIPE)."""
+    fresh("hp")
+    for label, cmd in (("verify", f"verify {W / 'hp'}"),
+                       ("diff", f"diff {W / 'r0'} {W / 'r1'}"),
+                       ("report", f"report {W / 'hp'}")):
+        done = _shell(f"{PY} -m fluxpart {cmd} | head -c 20 >/dev/null; "
+                      "echo ${PIPESTATUS[0]} >&2")
+        lines = done.stderr.strip().splitlines()
+        code = int(lines[-1]) if lines and lines[-1].isdigit() else None
+        tb = "Traceback" in done.stderr or "Exception ignored" in done.stderr
+        record(f"{label} | head -c 20 (the reader leaves)", not tb and code is not None
+               and code in (0, 1, 141) and not leftovers(W),
+               f"exit {code}, traceback {tb}, {lines[:-1][-1:]!r:.140}")
+
+
+def f_new_out_readonly_mount():
+    """``--out`` a new folder on a read-only bind mount, and ``report --out`` there."""
+    parent = W / "robind"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    if not (_mounted(parent, "--bind", str(parent))
+            and _mounted(parent, "-o", "remount,bind,ro")):
+        record("--out on a read-only bind mount", False, "mount refused: not probed")
+        return
+    try:
+        run = fp("run", "site.toml", "--out", parent / "new", "--quiet")
+        rep = fp("report", "--quiet", "--out", parent / "rep", W / "r0")
+        csv = fp("export", "--csv", parent / "csv", W / "r0")
+    finally:
+        subprocess.run(["umount", str(parent)])
+    for label, done in (("run --out", run), ("report --out", rep), ("export --csv", csv)):
+        record(f"{label} a new folder on a read-only bind mount", one_line(done)
+               and "read-only" in done.stderr.lower(), f"exit {done.returncode} "
+               f"{_stderr_tail(done, 140)}")
+
+
+def f_env_differs_run_verify():
+    """run under one hash seed and one thread count, verify --exact under another."""
+    cases = {"PYTHONHASHSEED 1 then 2": (dict(PYTHONHASHSEED="1"), dict(PYTHONHASHSEED="2")),
+             "threads 1 then 2": (dict(OMP_NUM_THREADS="1", OPENBLAS_NUM_THREADS="1"),
+                                  dict(OMP_NUM_THREADS="2", OPENBLAS_NUM_THREADS="2"))}
+    for label, (first, second) in cases.items():
+        out = W / ("envd_" + label.split()[0])
+        shutil.rmtree(out, ignore_errors=True)
+        run = fp("run", "site.toml", "--out", out, "--quiet", env=dict(ENV, **first))
+        ver = fp("verify", "--exact", out, env=dict(ENV, **second))
+        record(f"run, then verify --exact, {label}", run.returncode == 0
+               and ver.returncode == 0 and table_digests(out) == table_digests(W / "r0"),
+               f"run {run.returncode}, verify {ver.returncode} {ver.stdout.strip()[-100:]!r}")
+
+
+def f_two_reports_at_once():
+    """Two reports of one result at once, and verify while a report is written."""
+    folder = fresh("tr")
+    procs = [start("report", "--quiet", folder) for _ in range(2)]
+    ver = verify(folder)
+    codes = [p.wait() for p in procs]
+    errs = [p.stderr.read().strip()[-100:] for p in procs]
+    pages = sorted(p.name for p in (folder / "report").iterdir()) \
+        if (folder / "report").is_dir() else None
+    record("two reports of one result at once, verify meanwhile",
+           all(c == 0 or (c == 2 and e.startswith("error:")) for c, e in zip(codes, errs, strict=True))
+           and 0 in codes and ver.returncode == 0 and verify(folder).returncode == 0
+           and not leftovers(folder), f"exits {codes} {errs}, verify {ver.returncode}, "
+           f"report {pages and len(pages)} entries, left {leftovers(folder)}")
+
+
+def f_out_is_current_folder():
+    """``run --out .`` from an empty folder, and from the folder of the input."""
+    empty = W / "dot"
+    shutil.rmtree(empty, ignore_errors=True)
+    empty.mkdir()
+    cfg = W / "b" / "site.toml"
+    done = _shell(f"{PY} -m fluxpart run {cfg} --out . --quiet; echo $? >&2; "
+                  "ls -a >&2; pwd -P >&2", cwd=empty)
+    inb = fp("run", "site.toml", "--out", ".", "--quiet")
+    record("run --out . from an empty folder", "Traceback" not in done.stderr
+           and (table_digests(empty) == table_digests(W / "r0") or "error:" in done.stderr),
+           f"{done.stderr.strip()[-200:]!r}")
+    record("run --out . from the input's folder", one_line(inb)
+           and (W / "b" / "tower.csv").is_file(), f"exit {inb.returncode} "
+           f"{_stderr_tail(inb, 140)}")
+
+
+def f_export_into_result():
+    """``export --csv`` into a folder inside the result, then verify and run again."""
+    folder = fresh("exin")
+    exp = fp("export", "--csv", folder / "csv", folder)
+    ver = verify(folder)
+    run = fp("run", "site.toml", "--out", folder, "--quiet")
+    record("export --csv into the result's own folder, then verify and run",
+           (exp.returncode == 0 and ver.returncode == 0 or one_line(exp))
+           and (run.returncode == 0 or one_line(run)),
+           f"export {exp.returncode} {_stderr_tail(exp, 80)}, verify {ver.returncode} "
+           f"{_stderr_tail(ver, 80)}, run {run.returncode} {_stderr_tail(run, 80)}")
+
+def f_ten_years_of_minutes():
+    """Ten years of 1-minute records (5.3 million lines, about 270 MB; invented, the
+    Quillmoor config): check with memory to spare (refused for its spacing; about 2.6 GB
+    and 80 s on the 2-core machine) and under ``ulimit -v`` 1.5 GB (the file named with
+    its size and lines, not "give the process more memory" alone)."""
+    import resource
+
+    import numpy as np
+    import pandas as pd
+    big = W / "minutes"
+    big.mkdir(exist_ok=True)
+    if not (big / "tower.csv").is_file():
+        t = pd.date_range("2011-01-01 00:01", "2021-01-01 00:00", freq="1min")
+        n, rng = len(t), np.random.default_rng(0)
+        hour = (t.hour + t.minute / 60).to_numpy()
+        rg = np.clip(800 * np.sin(np.pi * (hour - 6) / 12), 0, None)
+        ta = 8 + 10 * np.sin(2 * np.pi * (t.day_of_year.to_numpy() - 110) / 365)
+        pd.DataFrame({"stamp_end": t.strftime("%Y%m%d%H%M"),
+                      "co2_exchange": (2 * np.exp(0.07 * ta) - 0.02 * rg
+                                       + rng.normal(0, 1, n)).round(3),
+                      "solar_down": rg.round(1), "air_temp_c": ta.round(2),
+                      "vpd_kpa": 0.8, "friction_velocity": 0.3, "soil_temp_5cm": ta.round(1),
+                      "rel_humidity": 70.0, "qc_co2": 0}).to_csv(big / "tower.csv", index=False)
+        shutil.copy2(W / "b" / "site.toml", big / "site.toml")
+    spare = fp("check", "site.toml", cwd=big, timeout=900)
+    tight = limited({resource.RLIMIT_AS: 1500 << 20}, "check", "site.toml", cwd=big,
+                    timeout=900)
+    record("ten years of 1-minute records, memory to spare", one_line(spare)
+           and "1 minutes" in spare.stderr, f"exit {spare.returncode} {_stderr_tail(spare, 120)}")
+    record("ten years of 1-minute records under ulimit -v 1.5 GB", one_line(tight)
+           and "lines" in tight.stderr and "tower.csv" in tight.stderr,
+           f"exit {tight.returncode} {_stderr_tail(tight, 160)}")
+
+def f_batch_resumed_half_staged():
+    """A batch killed while one site's folder was half-staged (a staging folder holding
+    half that site's tables, the site's folder not yet swapped in), then run again."""
+    make_net()
+    first = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+    out = NET / "out"
+    site = sorted(p for p in out.iterdir() if (p / "manifest.json").is_file())[0]
+    staging = out / f".{site.name}.staging-k1ll3d"
+    staging.mkdir()
+    for table in sorted(site.glob("*.parquet"))[:5]:
+        shutil.copy2(table, staging / table.name)
+    (staging / "daily.parquet").write_bytes(b"PAR1")          # a table cut mid-write
+    shutil.rmtree(site)
+    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    record("a batch killed with one site half-staged, then run again", first.returncode == 0
+           and rerun.returncode == 0 and site.is_dir() and not leftovers(out)
+           and sites_verify(out) == [0] * 4, f"exit {rerun.returncode} "
+           f"{_stderr_tail(rerun, 120)}, left {leftovers(out)}")
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -1983,7 +2331,14 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_logger_appending, f_input_replaced_after_check, f_clock_far, f_cpu_limit,
           f_open_files_readers, f_data_limit, f_signal_dispositions, f_sigquit,
           f_verify_saved_inside, f_deleted_cwd, f_two_csv_exports, f_no_locks,
-          f_blas_kernel, f_batch_scratch]
+          f_blas_kernel, f_batch_scratch,
+          # round faults39
+          f_two_sites_new_parent, f_copy_during_swap, f_noexec_tmpfs, f_copy_without_times,
+          f_report_folder_gone_or_file, f_verify_inputs_moved_twice, f_config_link_retargeted,
+          f_batch_two_configs_one_folder, f_reader_leaves_verify_diff_report,
+          f_new_out_readonly_mount, f_env_differs_run_verify, f_two_reports_at_once,
+          f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes,
+          f_batch_resumed_half_staged]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
