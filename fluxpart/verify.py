@@ -293,7 +293,8 @@ class VerifyReport:
         """True when every failure is a column's description worded otherwise (values
         equal; no unit, site or other metadata) and nothing else differs beyond rounding."""
         return bool(self.differences) and not self.replaced_manifest and all(
-            d.kind == "metadata" and _is_description(d.column) for d in self.differences)
+            d.kind == "metadata" and _metadata_item(d.column)[0] == "descriptions"
+            for d in self.differences)
 
     @property
     def version_warnings(self) -> tuple:
@@ -422,13 +423,6 @@ class VerifyReport:
         lines.append("Caution: reproduced numbers show the result follows from the recorded "
                      "input and settings; they do not certify the data or a credit. " + CAUTION)
         return "\n".join(lines)
-
-
-def _is_description(key: str) -> bool:
-    """A metadata key that holds a column's description: ``'nee description'`` (the
-    Parquet field), ``'fluxpart.columns.nee.description'``, ``'PANDAS_ATTRS.descriptions.nee'``."""
-    return (key.endswith(" description") or key.endswith(".description")
-            or key.startswith("PANDAS_ATTRS.descriptions."))
 
 
 #: Where a metadata key of :func:`metadata_differences` names a column: a field's own
