@@ -118,6 +118,7 @@ from . import (
     solar,
     spliced_records,
     tair_days,
+    ustar_pairing,
     ustar_prefilter,
     vpd_soil,
     vpd_zero,
@@ -1487,7 +1488,17 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     # a night stretch inside a gap of the whole record is named by that gap already
     findings += long_gaps or _long_night_gaps(index, nee, is_night)
     findings += _long_driver_gaps(index, frame, nee, interval_minutes, sources)
-    findings += _missing_ustar(index, night_measured, ustar)
+    missing_ustar = _missing_ustar(index, night_measured, ustar)
+    findings += missing_ustar
+    if not missing_ustar and "ustar" in frame.columns:
+        # NEE where u* is missing: a u* of another record joined (round mistakes47)
+        text = ustar_pairing.nee_without_ustar(frame["nee"].to_numpy(dtype=float),
+                                               frame["ustar"].to_numpy(dtype=float), index,
+                                               interval_minutes, sources, [
+                                                   frame[name].to_numpy(dtype=float)
+                                                   for name in ("rg", "tair")
+                                                   if name in frame.columns])
+        findings += [Finding(ustar_pairing.STAGE, text, False)] if text else []
     findings += ustar_findings
     if span_days < 365.0:
         findings.append(Finding("annual budget", (
