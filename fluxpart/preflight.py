@@ -117,6 +117,7 @@ from . import (
     rg_zeros,
     solar,
     spliced_records,
+    sunlit_uptake,
     tair_days,
     ustar_pairing,
     ustar_prefilter,
@@ -471,6 +472,14 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                 screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
             if text:
                 findings.append(Finding(day_sign.STAGE, text, False))
+            else:
+                # no uptake in a year's sunlight: another gas's flux (round mistakes47)
+                text = sunlit_uptake.no_sunlit_uptake(
+                    screened["nee"].to_numpy(dtype=float),
+                    screened["rg"].to_numpy(dtype=float),
+                    screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
+                if text:
+                    findings.append(Finding(sunlit_uptake.STAGE, text, False))
     if {"nee", "rg"} <= set(screened.columns) and not any(
             finding.stage.startswith("input (nee") for finding in findings):
         # NEE beside another record's weather: it answers none of it (round mistakes45)
