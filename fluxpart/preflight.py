@@ -117,7 +117,9 @@ from . import (
     rg_zeros,
     solar,
     spliced_records,
+    sunlit_uptake,
     tair_days,
+    ustar_pairing,
     ustar_prefilter,
     vpd_soil,
     vpd_zero,
@@ -470,6 +472,14 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                 screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
             if text:
                 findings.append(Finding(day_sign.STAGE, text, False))
+            else:
+                # no uptake in a year's sunlight: another gas's flux (round mistakes47)
+                text = sunlit_uptake.no_sunlit_uptake(
+                    screened["nee"].to_numpy(dtype=float),
+                    screened["rg"].to_numpy(dtype=float),
+                    screened["tair"].to_numpy(dtype=float), potential, screened.index, names)
+                if text:
+                    findings.append(Finding(sunlit_uptake.STAGE, text, False))
     if {"nee", "rg"} <= set(screened.columns) and not any(
             finding.stage.startswith("input (nee") for finding in findings):
         # NEE beside another record's weather: it answers none of it (round mistakes45)
@@ -1487,7 +1497,17 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     # a night stretch inside a gap of the whole record is named by that gap already
     findings += long_gaps or _long_night_gaps(index, nee, is_night)
     findings += _long_driver_gaps(index, frame, nee, interval_minutes, sources)
-    findings += _missing_ustar(index, night_measured, ustar)
+    missing_ustar = _missing_ustar(index, night_measured, ustar)
+    findings += missing_ustar
+    if not missing_ustar and "ustar" in frame.columns:
+        # NEE where u* is missing: a u* of another record joined (round mistakes47)
+        text = ustar_pairing.nee_without_ustar(frame["nee"].to_numpy(dtype=float),
+                                               frame["ustar"].to_numpy(dtype=float), index,
+                                               interval_minutes, sources, [
+                                                   frame[name].to_numpy(dtype=float)
+                                                   for name in ("rg", "tair")
+                                                   if name in frame.columns])
+        findings += [Finding(ustar_pairing.STAGE, text, False)] if text else []
     findings += ustar_findings
     if span_days < 365.0:
         findings.append(Finding("annual budget", (

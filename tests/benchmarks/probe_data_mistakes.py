@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (round mistakes44).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -249,12 +249,16 @@ def zero_for_missing(frame, text):
     return _with(frame, "co2_exchange", np.where(nee == MISSING, 0.0, nee)), text
 
 
+def _daily_mean(frame, column, decimals):
+    values = frame[column].replace(MISSING, np.nan)
+    day = (_stamps(frame) - pd.Timedelta(minutes=1)).dt.date
+    mean = values.groupby(day.to_numpy()).transform("mean").round(decimals).fillna(MISSING)
+    return _with(frame, column, mean.to_numpy())
+
+
 def daily_mean_tair(frame, text):
     """A climate station's daily mean air temperature written into each record."""
-    tair = frame["air_temp_c"].replace(MISSING, np.nan)
-    day = (_stamps(frame) - pd.Timedelta(minutes=1)).dt.date
-    mean = tair.groupby(day.to_numpy()).transform("mean").round(2).fillna(MISSING)
-    return _with(frame, "air_temp_c", mean.to_numpy()), text
+    return _daily_mean(frame, "air_temp_c", 2), text
 
 
 def hourly_rg_repeated(frame, text):
@@ -332,6 +336,238 @@ CASES = {
     "tair in tenths of °C": tair_tenths,
     "NEE spikes set to the day's median": nee_despiked_to_median,
 }
+
+
+# Round mistakes47: further mistakes, each checked against the cases above first.
+
+def _scaled(frame, column, factor, decimals=4):
+    values = frame[column].to_numpy()
+    return _with(frame, column, np.where(values == MISSING, MISSING,
+                                         np.round(values * factor, decimals)))
+
+
+def rg_kj_per_record(frame, text):
+    """Rg as the energy of each half-hour in kJ m-2 (W m-2 x 1800 s / 1000)."""
+    return _scaled(frame, "solar_down", 1.8, 1), text
+
+
+def nee_gc_per_record(frame, text):
+    """NEE as g C m-2 per half-hour (µmol m-2 s-1 x 1800 s x 12.011e-6), no unit written."""
+    return _scaled(frame, "co2_exchange", 1800 * 12.011e-6, 5), text
+
+
+def marks_start_declared(frame, text):
+    """End stamps declared as the start of each record (one record late)."""
+    return frame, text.replace('time_marks = "end"', 'time_marks = "start"')
+
+
+def stamps_mid_read_as_end(frame, text):
+    """Stamps at each record's middle (00:15, 00:45) read as its end: 15 min early."""
+    stamps = _stamps(frame) - pd.Timedelta(minutes=15)
+    return _with(frame, "stamp_end", stamps.dt.strftime("%Y%m%d%H%M").to_numpy()), text
+
+
+def wind_as_ustar(frame, text):
+    """The cup's wind speed mapped as u*: U / u* = ln(z / z0) / kappa, 3 m over
+    grass of z0 = 0.03 m, about 11.5 (log wind profile, Stull 1988 (m))."""
+    return _scaled(frame, "friction_velocity", np.log(3.0 / 0.03) / 0.4, 3), text
+
+
+def sheltered_wind_as_ustar(frame, text):
+    """The same at a sheltered mast (a median below 1.5 m s-1): U = 5 u*."""
+    return _scaled(frame, "friction_velocity", 5.0, 3), text
+
+
+def reflected_as_rg(frame, text):
+    """The downward-facing pyranometer (reflected shortwave, albedo 0.22) mapped as Rg."""
+    return _scaled(frame, "solar_down", 0.22, 1), text
+
+
+def daily_mean_rg(frame, text):
+    """A satellite product's daily mean Rg written into each record."""
+    return _daily_mean(frame, "solar_down", 1), text
+
+
+def methane_as_nee(frame, text):
+    """A CH4 flux in nmol m-2 s-1 mapped as NEE: always an emission, 20-60 by the
+    warmth of the soil (Q10 about 3, wetland emissions (m))."""
+    rng = np.random.default_rng(6)
+    soil = frame["soil_temp_5cm"].replace(MISSING, 10.0).to_numpy()
+    ch4 = 30.0 * 3.0 ** ((soil - 15.0) / 10.0) + rng.normal(0, 3.0, len(soil))
+    nee = frame["co2_exchange"].to_numpy()
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(ch4, 2))), text
+
+
+def hourly_nee_repeated(frame, text):
+    """Hourly NEE (the mean of each hour) repeated in both half-hours."""
+    nee = frame["co2_exchange"].replace(MISSING, np.nan).to_numpy()
+    pairs = nee.reshape(-1, 2)
+    counts = np.isfinite(pairs).sum(axis=1)
+    means = np.nansum(pairs, axis=1) / np.maximum(counts, 1)
+    out = np.repeat(np.where(counts > 0, means, np.nan), 2)
+    return _with(frame, "co2_exchange", np.where(np.isnan(out), MISSING,
+                                                 np.round(out, 3))), text
+
+
+def sonic_as_tair(frame, text):
+    """The sonic's temperature as tair: the virtual temperature, T (1 + 0.51 q), about
+    +1 K in summer, with 0.3 K of noise (Kaimal and Gaynor 1991 (m))."""
+    tair = frame["air_temp_c"].to_numpy()
+    rh = frame["rel_humidity"].to_numpy()
+    es = 6.112 * np.exp(17.62 * tair / (243.12 + tair))
+    q = 0.622 * es * rh / 100 / 1000.0
+    rng = np.random.default_rng(8)
+    sonic = (tair + 273.15) * (1 + 0.51 * q) - 273.15 + rng.normal(0, 0.3, len(tair))
+    return _with(frame, "air_temp_c", np.where((tair == MISSING) | (rh == MISSING), MISSING,
+                                               np.round(sonic, 2))), text
+
+
+def soil_water_as_tsoil(frame, text):
+    """Soil water content in % (wet in winter, dry in summer) mapped as tsoil."""
+    day = _stamps(frame).dt.day_of_year.to_numpy()
+    theta = 30.0 + 8.0 * np.cos(2 * np.pi * (day - 30) / 365.0)
+    rng = np.random.default_rng(9)
+    theta = theta + np.cumsum(rng.normal(0, 0.02, len(day)))
+    return _with(frame, "soil_temp_5cm", np.round(theta, 2)), text
+
+
+def uncorrected_open_path(frame, text):
+    """Open-path NEE without the density (WPL) term: an apparent uptake of about
+    -0.003 µmol m-2 s-1 per W m-2 of sensible heat (Webb et al. 1980 (m)), H about 0.3 Rg."""
+    rg = frame["solar_down"].replace(MISSING, 0.0).clip(lower=0).to_numpy()
+    nee = frame["co2_exchange"].to_numpy()
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(nee - 0.003 * 0.3 * rg, 3))), text
+
+
+def flag_of_next_record(frame, text):
+    """The flag column one row off against NEE (a spreadsheet row inserted)."""
+    flag = frame["qc_co2"].to_numpy()
+    return _with(frame, "qc_co2", np.r_[flag[1:], flag[-1:]]), text
+
+
+def lat_lon_exchanged(frame, text):
+    return frame, text.replace("latitude = 49.3", "latitude = 10.2").replace(
+        "longitude = 10.2", "longitude = 49.3", 1)
+
+
+def rh_fraction_as_percent_declared(frame, text):
+    """RH written as a fraction (0-1) where % is read."""
+    return _scaled(frame, "rel_humidity", 0.01, 4), text
+
+
+def _other_year(column_names):
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=5).with_suffix(".csv"))
+    return other[column_names].to_numpy()
+
+
+def start_stamps_neutral_name(frame, text):
+    """Start stamps under a neutral name, declared as ends (the example's default)."""
+    stamps = _stamps(frame) - pd.Timedelta(minutes=30)
+    out = frame.rename(columns={"stamp_end": "time"})
+    out["time"] = stamps.dt.strftime("%Y%m%d%H%M").to_numpy()
+    return out, text.replace('time_column = "stamp_end"', 'time_column = "time"')
+
+
+def ustar_of_another_year(frame, text):
+    """The u* column of another year's file joined by date."""
+    return _with(frame, "friction_velocity", _other_year(["friction_velocity"])[:, 0]), text
+
+
+def rg_of_another_station(frame, text):
+    """Rg of a station under other clouds (another year's Rg) joined by date."""
+    return _with(frame, "solar_down", _other_year(["solar_down"])[:, 0]), text
+
+
+def rg_gain_high(frame, text):
+    """A pyranometer's sensitivity entered 20 % low: every Rg 1.25 times too high."""
+    return _scaled(frame, "solar_down", 1.25, 1), text
+
+
+def rg_gain_low(frame, text):
+    """... entered 25 % high: every Rg 0.8 times its value."""
+    return _scaled(frame, "solar_down", 0.8, 1), text
+
+
+# The brief's list of round mistakes47, checked against the named cases (most named before).
+
+def net_radiation_as_rg(frame, text):
+    """Net radiation (about 0.7 Rg - 50 W m-2, negative at night) mapped as Rg."""
+    rg = frame["solar_down"].to_numpy()
+    return _with(frame, "solar_down", np.where(rg == MISSING, MISSING,
+                                               np.round(0.7 * rg - 50.0, 1))), text
+
+
+def rg_mj_per_record(frame, text):
+    """Rg as MJ m-2 per half-hour (W m-2 x 1800 s / 1e6)."""
+    return _scaled(frame, "solar_down", 1800 / 1e6, 5), text
+
+
+def tair_fahrenheit(frame, text):
+    tair = frame["air_temp_c"].to_numpy()
+    return _with(frame, "air_temp_c", np.where(tair == MISSING, MISSING,
+                                               np.round(tair * 1.8 + 32.0, 2))), text
+
+
+def tair_kelvin(frame, text):
+    tair = frame["air_temp_c"].to_numpy()
+    return _with(frame, "air_temp_c", np.where(tair == MISSING, MISSING,
+                                               np.round(tair + 273.15, 2))), text
+
+
+def summer_time_stamps(frame, text):
+    """Stamps in civil time with daylight saving (last Sunday of March to last of
+    October), read as standard time."""
+    stamps = _stamps(frame)
+    summer = (stamps > pd.Timestamp("2021-03-28 02:00")) & (stamps <= pd.Timestamp(
+        "2021-10-31 02:00"))
+    civil = stamps + pd.to_timedelta(np.where(summer, 60, 0), unit="min")
+    out = frame.assign(stamp_end=civil.dt.strftime("%Y%m%d%H%M").to_numpy())
+    return out.drop_duplicates("stamp_end", keep="last").reset_index(drop=True), text
+
+
+def nee_mg_co2(frame, text):
+    """NEE in mg CO2 m-2 s-1 (x 44.01e-3), no unit written."""
+    return _scaled(frame, "co2_exchange", 44.01e-3, 5), text
+
+
+def year_start_june(frame, text):
+    return frame, text.replace("[processing]\n", '[processing]\nyear_start = "06-01"\n', 1)
+
+
+CASES.update({
+    "Rg in kJ m-2 per record": rg_kj_per_record,
+    "NEE in g C m-2 per record, no unit": nee_gc_per_record,
+    "end stamps declared start": marks_start_declared,
+    "mid-interval stamps read as end": stamps_mid_read_as_end,
+    "wind speed as u*": wind_as_ustar,
+    "sheltered wind speed as u*": sheltered_wind_as_ustar,
+    "reflected shortwave as Rg": reflected_as_rg,
+    "daily-mean Rg in each record": daily_mean_rg,
+    "CH4 flux (nmol) as NEE": methane_as_nee,
+    "hourly NEE repeated per half-hour": hourly_nee_repeated,
+    "sonic temperature as tair": sonic_as_tair,
+    "soil water (%) as tsoil": soil_water_as_tsoil,
+    "open-path NEE without density term": uncorrected_open_path,
+    "flag one row off": flag_of_next_record,
+    "latitude and longitude exchanged": lat_lon_exchanged,
+    "RH as a fraction": rh_fraction_as_percent_declared,
+    "start stamps, neutral name, read as end": start_stamps_neutral_name,
+    "u* of another year joined": ustar_of_another_year,
+    "Rg of another station joined": rg_of_another_station,
+    "Rg sensitivity 20 % low (x1.25)": rg_gain_high,
+    "Rg sensitivity 25 % high (x0.8)": rg_gain_low,
+    "net radiation (negative at night) as Rg": net_radiation_as_rg,
+    "Rg in MJ m-2 per record": rg_mj_per_record,
+    "tair in °F": tair_fahrenheit,
+    "tair in K": tair_kelvin,
+    "summer time in half the year": summer_time_stamps,
+    "NEE in mg CO2 m-2 s-1, no unit": nee_mg_co2,
+    "year_start 06-01 (in the season)": year_start_june,
+})
 
 
 def run(frame: pd.DataFrame, text: str, folder: Path):
