@@ -3899,6 +3899,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
     if newest_first:
         # a portal's export sorted newest first (layouts38; refused before with "sort a
