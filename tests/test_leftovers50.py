@@ -45,3 +45,40 @@ def test_a_large_file_of_finer_records_is_refused_from_samples_before_it_is_pars
     with pytest.raises(SpacingError) as refused:
         _read(path)
     assert "refused before it is parsed whole" not in str(refused.value)
+
+
+def test_tables_that_differ_within_rounding_only_diff_as_equal_within_rounding(
+        pristine_bundle, tmp_path):
+    """Two folders whose only differences are table hashes from values within rounding
+    (as another CPU gives: ``numpy.nextafter`` moves a value to the adjacent double, IEEE
+    754) said "differ: 2 recorded item(s)", exit 1, where ``verify`` says "reproduced
+    within floating-point rounding", exit 0 (README's exit statuses). Now exit 0 with
+    "equal within rounding", the hashes still listed; a change beyond rounding differs."""
+    import shutil
+
+    import numpy as np
+    from test_verify import _set_value
+
+    from fluxpart.diff import diff_folders
+
+    first = pristine_bundle / "out"                 # the session's bundle, not edited
+    second = tmp_path / "b"
+    shutil.copytree(first, second)
+    _set_value(second, "daily", "nee", lambda v: float(np.nextafter(v, np.inf)))
+    _set_value(second, "monthly", "nee", lambda v: float(np.nextafter(v, -np.inf)))
+    report = diff_folders(first, second)
+    assert [(section, name.split()[0]) for section, name, _, _ in report.items] == [
+        ("table", "daily"), ("table", "monthly")]
+    assert report.exit_code == 0                  # command_diff's exit status
+    out = report.format()
+    assert "equal within rounding:" in out and "2 table(s) differ in bytes, their values only within rounding" in out
+    assert "daily values within rounding (largest relative difference" in out
+    assert "differ:" not in out
+    # the hashes are still listed, as before
+    hashes = [(a, b) for _, _, a, b in report.items]
+    assert all(len(a) == len(b) == 16 and a != b for a, b in hashes)
+    _set_value(second, "daily", "nee", lambda v: v * 1.001)     # beyond rounding
+    report = diff_folders(first, second)
+    assert report.exit_code == 1
+    assert "differ: 2 recorded item(s)" in report.format()
+    assert ("table", "daily values") in [(s, n) for s, n, _, _ in report.items]
