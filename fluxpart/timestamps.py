@@ -23,7 +23,7 @@ import pandas as pd
 
 from .config import setting_text
 from .counted_time import counted_form, counted_stamps, counts, day_system_mismatch, unit_mismatch
-from .decimal_time import decimal_stamps
+from .decimal_time import day_of_year_origin, decimal_stamps
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -1345,7 +1345,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     # a decimal hour beside a date, or a year and a decimal day of the year (layouts40;
     # refused before as "decimal fractions, which no time_format reads")
     as_written, format_written = text, time_format
-    text, time_format, decimal_fields = decimal_stamps(text, time_format)
+    # a decimal day of the year counted from 0 read a day early without a word (leftovers50)
+    first_day, origin = day_of_year_origin(
+        text, time_format, time_columns[-1] if len(time_columns) > 1 else None)
+    if origin:
+        notes.append(f"{_time_setting(time_columns)} of {source!r}, time_format = "
+                     f"{setting_text(time_format)}: the decimal day of the year {origin}")
+    text, time_format, decimal_fields = decimal_stamps(text, time_format, first_day)
     # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
     # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
     text, _ = zero_tails(text, time_format)

@@ -13,6 +13,7 @@ and day-of-year versions).
 import pandas as pd
 import pytest
 from test_robustness_layouts35 import _read, _records  # invented records of June 2021
+from test_robustness_layouts40 import _read as _read_as
 
 from fluxpart import io
 from fluxpart.errors import SpacingError
@@ -82,3 +83,59 @@ def test_tables_that_differ_within_rounding_only_diff_as_equal_within_rounding(
     assert report.exit_code == 1
     assert "differ: 2 recorded item(s)" in report.format()
     assert ("table", "daily values") in [(s, n) for s, n, _, _ in report.items]
+
+
+def _day_stamps(origin, start, end):
+    """Year and decimal day of the year (five decimals) of the half-hourly interval ends
+    from `start` to `end`, counted from `origin` (1: as %j; 0: 0.0 is 1 January 00:00),
+    each in the year its interval began; and the interval starts they state."""
+    ends = pd.date_range(start, end, freq="30min")
+    begins = ends - pd.Timedelta("30min")
+    new_year = pd.to_datetime(begins.year.astype(str) + "-01-01")
+    days = (ends - new_year) / pd.Timedelta(days=1) + origin
+    return pd.Series([f"{y} {d:.5f}" for y, d in zip(begins.year, days, strict=True)]), begins
+
+
+@pytest.mark.parametrize("origin, start, end, said", [
+    (0, "2021-01-01 00:30", "2021-01-03 00:00", "counts from 0"),   # day 0.02083: from 0
+    (0, "2024-12-30 00:30", "2025-01-02 00:00", "counts from 0"),   # across the new year
+    (1, "2021-12-30 00:30", "2022-01-01 00:00", None),               # 365.5 of 2021: from 1
+    (1, "2024-12-31 00:30", "2025-01-01 00:00", None),               # 366.5 of 2024: from 1
+])
+def test_a_decimal_day_of_the_year_is_read_from_the_count_its_values_show(
+        origin, start, end, said):
+    """A day below 1 only a count from 0 writes; a day past 365.0 of a common year (366.0
+    of a leap year), the midnight ending it, only a count from 1. Read so: a count from
+    0 read as %j put every record a day early without a word (or was refused at day 0)
+    before leftovers50."""
+    from test_robustness_layouts40 import _parse
+
+    text, begins = _day_stamps(origin, start, end)
+    parsed = _parse(text, "%Y %j", ("yr", "doy"))
+    assert (parsed.stamps - pd.Timedelta("30min")).equals(pd.DatetimeIndex(begins)
+                                                          .as_unit(parsed.stamps.unit))
+    assert [said in note for note in parsed.notes] == ([True] if said else [])
+
+
+def test_a_decimal_day_of_the_year_both_counts_fit_is_named_with_the_settings(tmp_path):
+    """March to November: no day below 1 and none past the year's last, so the values
+    fit a count from 1 and one from 0 alike. Read as %j counts (from 1) with one warning
+    naming the settings that decide it; "days since <year>-01-01" on the day column reads
+    a count from 0 (CF conventions' form of a time coordinate's units (m)), and "days
+    since <year before>-12-31" a count from 1, each silently."""
+    frame, _ = _records(48 * 3)
+    text, begins = _day_stamps(0, "2021-03-01 00:30", "2021-03-04 00:00")
+    frame = frame.drop(columns="stamp")
+    frame.insert(0, "doy", text.str.split().str[1])
+    frame.insert(0, "yr", 2021)
+    path = tmp_path / "t.csv"
+    frame.to_csv(path, index=False)
+    read, report = _read_as(path, time_column=["yr", "doy"], time_format="%Y %j")
+    said = [w for w in report.warnings if "day of the year" in w]
+    assert len(said) == 1 and "both write: read as counted from 1" in said[0]
+    assert "time_column = 'doy' and time_format = \"days since 2021-01-01\"" in said[0]
+    assert read.index[0] == begins[0] - pd.Timedelta(days=1)         # as %j: a day early
+    for setting, shift in (("days since 2021-01-01", 0), ("days since 2020-12-31", -1)):
+        read, report = _read_as(path, time_column="doy", time_format=setting)
+        assert read.index[0] == begins[0] + pd.Timedelta(days=shift)
+        assert not [w for w in report.warnings if "day of the year" in w]
