@@ -63,7 +63,7 @@ _MIN_JOINTS = 2
 #: (``tests/benchmarks/bench_spliced_records.py``, round leftovers50): the next
 #: site-year's April-August pasted named in 39 of 68 (0 at 92 days), July alone in 41
 #: of 68 as before; the generated sets and the demo records have no joint at all, and
-#: of 102 site configs of trials 6-22 three have a lone joint and two a pair, 356 and
+#: of 102 site configs of trials 6-22 four have a lone joint and two a pair, 356 and
 #: 659 days apart, none named.
 _MAX_STRETCH_DAYS = 200.0
 #: Fewest pairs of consecutive records with both temperatures present for the tail to
