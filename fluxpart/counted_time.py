@@ -238,16 +238,20 @@ def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
     str
         Where the file's name writes a year (1971-2099) that no stamp read under
         `time_format` falls in but one read in the other system does: the years of both
-        readings and the setting of the other; '' otherwise (no year named, or the
-        reading as set agrees with it).
+        readings, the setting of the other and how to silence it (a warning: the reader
+        reads the stamps as set); '' otherwise (no year named, or the reading as set
+        agrees with it).
 
     Notes
     -----
     Excel for Mac before 2011 counted days from 1904-01-01, so a sheet of that system
     read as days since 1899-12-30 lands 1462 days (4 years and a day) early, and the
     reverse as late (Microsoft, "Date systems in Excel" (m)); the counts alone cannot
-    tell the systems apart. A year in the file name is the evidence the reader has; a
-    file of other years named so is rare, and renaming it lets it be read as set.
+    tell the systems apart. A year in the file name is the evidence the reader has, and
+    it is weak: an export named by the year it was made (a 2021 export of 2017's
+    records) names a year four years after its data. ``time_format`` is a setting the
+    user writes, so a file name does not override it: the finding is a warning, never a
+    refusal (leftovers50; a refusal in leftovers49).
     """
     form = counted_form(time_format)
     if form is None or form[0] != 86400.0 or form[1] not in _DAY_SYSTEMS:
@@ -267,6 +271,7 @@ def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
         return ""
     return (f"the file name names {min(named & other_years)}, but as {time_format} the "
             f"stamps run from {first:%Y-%m-%d} to {last:%Y-%m-%d}; counted as days since "
-            f"{other} ({system}) they fall in {min(named & other_years)}: the sheet likely "
-            f"used that system (set [input] time_format = \"days since {other}\"); if the "
-            "records are of the years as read, rename the file so that it names them")
+            f"{other} ({system}) they fall in {min(named & other_years)}: if the sheet "
+            f"used that system, set [input] time_format = \"days since {other}\"; read as "
+            "set (the setting outweighs a file name), and where the records are of the "
+            "years as read, a name that names those years (or none) silences this")

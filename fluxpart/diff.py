@@ -15,7 +15,9 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 
 Exit statuses of the command: 0 when the two folders hold the same result from
 the same input, settings, code and platform (paths, the run log and report
-pages do not count), 1 when anything listed differs, 2 on error (a folder that
+pages do not count), also where the only differences are tables whose values are
+equal within floating-point rounding as ``verify`` judges it (their hashes listed;
+since leftovers50), 1 when anything else listed differs, 2 on error (a folder that
 is missing, not a result folder, or does not match its manifest).
 """
 
@@ -38,6 +40,9 @@ _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
 _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
                   ("respiration_form", ("exponential_weight", "share_applied")),
                   ("light_shape", ("profiled_curvature",)))
+#: How a table whose values differ within rounding only ends its label
+#: (:func:`table_difference`, :attr:`DiffReport.within_rounding`).
+_ROUNDING_SUFFIX = ", metadata equal"
 #: Longest label that sets the column the values start in [characters]; a longer one is
 #: wrapped on lines of its own (:func:`_item_lines`).
 LABEL_WIDTH = 40
@@ -88,9 +93,18 @@ class DiffReport:
         return not self.items and self.annual.empty
 
     @property
+    def within_rounding(self) -> bool:
+        """True when the only differences are tables whose values are equal within
+        rounding (:func:`table_difference`), and no annual value moves beyond it."""
+        return (bool(self.items) and self.annual.empty
+                and all(section == "table" and name.endswith(_ROUNDING_SUFFIX)
+                        for section, name, _, _ in self.items))
+
+    @property
     def exit_code(self) -> int:
-        """0 when the same, 1 when anything differs."""
-        return 0 if self.same else 1
+        """0 when the same or equal within rounding, 1 when anything else differs: the
+        verdict ``verify`` gives a rerun whose values differ within rounding (exit 0)."""
+        return 0 if self.same or self.within_rounding else 1
 
     def format(self) -> str:
         """The report as text for the command line."""
@@ -102,8 +116,18 @@ class DiffReport:
             if self.rounding_annual:
                 lines.append(_rounding_line(self.rounding_annual))
         else:
-            lines.append(f"differ: {len(self.items)} recorded item(s) and {len(self.annual)} "
-                         "annual value(s)")
+            if self.within_rounding:
+                from .verify import ROUNDING_TOLERANCE
+
+                # an auditor's rerun on another CPU: verify's exit 0, not "differ"
+                lines.append(
+                    f"equal within rounding: input, settings, site, versions, code and "
+                    f"platform are equal; {len(self.items)} table(s) differ in bytes, their "
+                    f"values only within rounding (relative difference at most "
+                    f"{ROUNDING_TOLERANCE:g}, as verify judges it; hashes below)")
+            else:
+                lines.append(f"differ: {len(self.items)} recorded item(s) and "
+                             f"{len(self.annual)} annual value(s)")
             names = [(a, b) for s, n, a, b in self.items if (s, n) == ("site", "name")]
             if names:
                 # two towers: the moves below are no rerun's, whatever their size
@@ -278,19 +302,33 @@ def table_difference(first: pd.DataFrame, second: pd.DataFrame) -> str:
     Returns
     -------
     str
-        ``"values"`` where a value, a column or the index differs; else ``"metadata
-        only (values equal): <key> of <columns>; ..."``; else ``"file only (values and
-        metadata equal)"`` (the Parquet writer's own bytes).
+        ``"values"`` where a value, a column or the index differs beyond rounding;
+        ``"values within rounding (largest relative difference X), metadata equal"``
+        where every differing value is a float within rounding as ``verify`` judges it
+        (:func:`fluxpart.verify.compare_tables`; leftovers50: "values" before, which
+        read as changed numbers), with the metadata that differ instead of "metadata
+        equal" where any do; else ``"metadata only (values equal): <key> of
+        <columns>; ..."``; else ``"file only (values and metadata equal)"`` (the
+        Parquet writer's own bytes).
 
     References
     ----------
     pandas documentation, ``DataFrame.equals`` (same shape, dtypes and elements, NaN in
     the same places equal) (m).
     """
-    if not (first.equals(second) and list(first.columns) == list(second.columns)
+    if not (list(first.columns) == list(second.columns)
             and first.index.names == second.index.names):
         return "values"
     parts = []
+    if not first.equals(second):
+        from .verify import compare_tables
+
+        found = compare_tables("table", first, second)
+        if not found or any(d.kind != "rounding" for d in found):
+            return "values"
+        parts.append(f"values within rounding (largest relative difference "
+                     f"{max(d.relative for d in found):.3g})")
+    values = len(parts)
     for key in sorted(set(first.attrs) | set(second.attrs), key=str):
         a, b = first.attrs.get(key), second.attrs.get(key)
         if a == b:
@@ -300,6 +338,10 @@ def table_difference(first: pd.DataFrame, second: pd.DataFrame) -> str:
             parts.append(f"{key} of {', '.join(map(str, columns))}")
         else:
             parts.append(str(key))
+    if values and len(parts) == 1:
+        return parts[0] + _ROUNDING_SUFFIX
+    if values:
+        return f"{parts[0]}, metadata: {'; '.join(parts[1:])}"
     if parts:
         return f"metadata only (values equal): {'; '.join(parts)}"
     return "file only (values and metadata equal)"

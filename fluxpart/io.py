@@ -82,6 +82,7 @@ from .errors import (
     InputTooLarge,
     MissingColumnError,
     NonMonotonicTimestampError,
+    SpacingError,
     TimestampError,
     UnitError,
     read_fault_remedy,
@@ -2442,6 +2443,103 @@ def _line_count(path: Path) -> int | None:
     return count
 
 
+#: What a file of records finer than a tower's is to become: said where memory ran out
+#: reading it and where its samples show such records (:func:`_refuse_finer_records`).
+_FINER_RECORDS = ("a year of half-hourly records takes 17,520 lines (hourly 8,760), so a "
+                  "file of finer records (a logger's 1-minute or 10 Hz table) is to be "
+                  "averaged to 30 or 60 minutes first")
+#: Lines past which a file is sampled for finer records before it is parsed whole: ten
+#: years of half-hourly records (175,200 lines). Past it a file of 1-minute records takes
+#: tens of seconds and gigabytes to parse (faults39: 5.3 million lines, 2.6 GB, 37-82 s),
+#: only to be refused for its spacing; below it the full parse names the spacing's lines.
+SAMPLED_LINES = 175_200
+#: Lines of each sample (the file's first, middle and last).
+_SAMPLE_LINES = 200
+
+
+def _sample_blocks(text: str, head_lines: int) -> tuple[str, list] | None:
+    """The header part of `text` (its first `head_lines` lines) and three blocks of
+    :data:`_SAMPLE_LINES` lines from its records: the first, the middle and the last."""
+    start = 0
+    for _ in range(head_lines):
+        start = text.find("\n", start) + 1
+        if not start:
+            return None
+    body = text[start:].rstrip("\n")
+
+    def lines_from(at: int) -> str:
+        end = at
+        for _ in range(_SAMPLE_LINES):
+            end = body.find("\n", end) + 1
+            if not end:
+                return body[at:]
+        return body[at:end]
+
+    middle = body.find("\n", len(body) // 2) + 1
+    last = len(body)
+    for _ in range(_SAMPLE_LINES):
+        last = body.rfind("\n", 0, last)
+        if last < 0:
+            break
+    return text[:start], [lines_from(0), lines_from(middle), body[last + 1:]]
+
+
+def _refuse_finer_records(path: Path, text: str, delimiter: str, rows_before_header: int,
+                          rows_after_header: int, time_columns, time_format: str,
+                          utc_offset, time_zone) -> None:
+    """Refuse a file of more than :data:`SAMPLED_LINES` lines whose first, middle and
+    last :data:`_SAMPLE_LINES` lines all step by a median under 30 minutes and whose
+    lines are more than twice what 30-minute records of its span take.
+
+    Raises
+    ------
+    SpacingError
+        Naming the file, its size and lines, the samples' spacing and the span, with
+        what a tower's records take (:data:`_FINER_RECORDS`).
+
+    Notes
+    -----
+    Three samples of one spacing and twice the lines 30-minute records of the span
+    allow leave no room for a file that is mostly 30- or 60-minute records. Any sample
+    that does not read (a note line, another layout the full reader handles) leaves
+    the file to the full parse, which names what it finds.
+    """
+    lines = text.count("\n")
+    if lines <= SAMPLED_LINES:
+        return
+    sampled = _sample_blocks(text, rows_before_header + 1 + rows_after_header)
+    if sampled is None:
+        return
+    head, blocks = sampled
+    spans, steps = [], []
+    try:
+        for block in blocks:
+            raw, rows, _, _ = _read_text(path, head + block, delimiter, rows_before_header,
+                                         rows_after_header, [])
+            stamps = parse_stamps(join_time_columns(raw, time_columns), time_format,
+                                  time_columns=time_columns, source=str(path), lines=rows,
+                                  utc_offset=utc_offset, time_zone=time_zone).stamps
+            minutes = np.abs(np.diff(stamps.to_numpy("datetime64[s]").astype(np.int64))) / 60
+            minutes = minutes[minutes > 0]
+            if minutes.size < _SAMPLE_LINES // 2:
+                return
+            steps.append(float(np.median(minutes)))
+            spans += [stamps.min(), stamps.max()]
+    except Exception:               # noqa: BLE001 - the full parse names what is wrong
+        return
+    first, last = min(spans), max(spans)
+    if max(steps) >= min(INTERVALS_MINUTES) or \
+            lines <= 2 * ((last - first) / pd.Timedelta(minutes=30) + 1):
+        return
+    size = path.stat().st_size
+    step = ", ".join(dict.fromkeys(f"{v:g}" for v in steps))
+    raise SpacingError(
+        f"input file {str(path)!r} ({size / 1e6:,.0f} MB, {lines:,} lines) holds records "
+        f"{step} minute(s) apart (a median of its first, middle and last {_SAMPLE_LINES} "
+        f"lines, from {first:%Y-%m-%d %H:%M} to {last:%Y-%m-%d %H:%M}), refused before "
+        f"it is parsed whole: {_FINER_RECORDS}")
+
+
 def too_large_to_read(paths) -> str:
     """Why memory ran out while the input files `paths` were read: the largest named with
     its size [MB] and lines beside the lines a tower's records take.
@@ -2467,10 +2565,8 @@ def too_large_to_read(paths) -> str:
     lines = _line_count(path)
     counted = f", {lines:,} lines" if lines is not None else ""
     return (f"ran out of memory reading input file {str(path)!r} ({size / 1e6:,.0f} MB"
-            f"{counted}): a year of half-hourly records takes 17,520 lines (hourly 8,760), "
-            "so a file of finer records (a logger's 1-minute or 10 Hz table) is to be "
-            "averaged to 30 or 60 minutes first; for a tower's own 30- or 60-minute "
-            "table, give the process more memory")
+            f"{counted}): {_FINER_RECORDS}; for a tower's own 30- or 60-minute table, "
+            "give the process more memory")
 
 
 def _case_hint(path: Path) -> str:
@@ -3807,6 +3903,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     `later_notes` (a dict of lists of files).
     """
     text, used_encoding = _decode(path, encoding, warnings)
+    if not column_widths:
+        # a large file of finer records refused from samples, not after a parse of
+        # minutes and gigabytes (leftovers50; faults39: 5.3 million lines, 37-82 s)
+        _refuse_finer_records(path, text, delimiter, rows_before_header, rows_after_header,
+                              time_columns, time_format, utc_offset, time_zone)
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
     refuse_overlong_value(path, text, delimiter, _WHITESPACE)
@@ -3899,6 +4000,7 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
+    warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
     if newest_first:
         # a portal's export sorted newest first (layouts38; refused before with "sort a

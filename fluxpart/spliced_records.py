@@ -53,11 +53,19 @@ _MIN_SOIL_STEP = 1.0
 #: a storm gives one.
 _MIN_JOINTS = 2
 #: Longest stretch between two joints that makes them one pasted stretch [days]. Our
-#: choice, a season: a stretch pasted to fill an outage is bounded by two joints days to
-#: weeks apart (a month pasted in was the case measured), while two lone steps a year
-#: apart are two unrelated events (a trial's subarctic soil stepped 8.1 K at the start of
-#: its snow model and 1.9 K 22 months later: named before round lead49).
-_MAX_STRETCH_DAYS = 92.0
+#: choice, half a year and a fortnight: a stretch pasted to fill an outage, or another
+#: year's growing season of up to six months (184 days), is bounded by two joints at
+#: most that far apart, while two lone steps a year or more apart are two unrelated
+#: events, a season's event recurring (a trial's subarctic soil stepped 8.1 K at the
+#: start of its snow model and 1.9 K 22 months later, 659 days: named before round
+#: lead49; another trial's soil steps 356 days apart). 92 days in rounds lead49 to
+#: leftovers49, which left a pasted season of 4-6 months unnamed. Measured
+#: (``tests/benchmarks/bench_spliced_records.py``, round leftovers50): the next
+#: site-year's April-August pasted named in 39 of 68 (0 at 92 days), July alone in 41
+#: of 68 as before; the generated sets and the demo records have no joint at all, and
+#: of 102 site configs of trials 6-22 four have a lone joint and two a pair, 356 and
+#: 659 days apart, none named.
+_MAX_STRETCH_DAYS = 200.0
 #: Fewest pairs of consecutive records with both temperatures present for the tail to
 #: be judged [1]: 30 days of half-hours (our choice).
 _MIN_PAIRS = 1440
@@ -78,7 +86,7 @@ def _bounding_a_stretch(joints, index, size) -> np.ndarray:
     Returns
     -------
     numpy.ndarray of int
-        The joints that, with a neighbour, bound a stretch of a season at most.
+        The joints that, with a neighbour, bound a stretch of half a year or so at most.
     """
     if joints.size < 2 or index is None or len(index) != size:
         return joints
@@ -113,9 +121,9 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
         :data:`SOIL_STEP_FACTOR` times the 99.9th percentile of its changes (and by more
         than 1 K) and the air temperature, at the same record, by its 99th percentile or
         more (two such records in a row, one record stepping out and back, count as
-        none; with `index`, only joints within 92 days of another count: the two ends
-        of one pasted stretch); or where fewer than 1440 pairs of consecutive records
-        hold both temperatures.
+        none; with `index`, only joints within 200 days of another count: the two ends
+        of one pasted stretch, a season at most); or where fewer than 1440 pairs of
+        consecutive records hold both temperatures.
 
     Notes
     -----

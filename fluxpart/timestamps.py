@@ -23,7 +23,7 @@ import pandas as pd
 
 from .config import setting_text
 from .counted_time import counted_form, counted_stamps, counts, day_system_mismatch, unit_mismatch
-from .decimal_time import decimal_stamps
+from .decimal_time import day_of_year_origin, decimal_stamps
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -169,6 +169,10 @@ class ParsedStamps:
     decimal_fields : int
         Stamps whose last field is a decimal hour or day of the year ("14.5" under a
         format ending %H, "64.60417" under %j), read as the clock it states.
+    notes : tuple of str
+        What the reader is to warn of: evidence against the setting too weak to refuse
+        it (a file name's year against spreadsheet day numbers' date system; a decimal
+        day of the year that may count from 0).
     """
 
     stamps: pd.DatetimeIndex
@@ -180,6 +184,7 @@ class ParsedStamps:
     date_only: int = 0
     whole_numbers: int = 0
     decimal_fields: int = 0
+    notes: tuple = ()
 
 
 def join_time_columns(raw: pd.DataFrame, time_columns: tuple) -> pd.Series:
@@ -1307,6 +1312,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     the repeated hour is read as daylight-saving time. The skipped spring hour
     holds no stamps, so it becomes a gap of inserted records.
     """
+    notes = []
     if counted_form(time_format) is not None:
         # counts of time since a reference ("days since 1899-12-30"): written as stamps
         # and read as such from here on (layouts38; refused before, naming the readings)
@@ -1317,11 +1323,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # as stamps beyond 3000 years, 12-hour clocks or 2-second records (review51)
             raise TimestampError(f"{_time_setting(time_columns)} of {source!r}, time_format "
                                  f"= {setting_text(written_format)}: {mismatch}")
-        # a sheet of the other day system lands 1462 days off without a word (leftovers49)
+        # a sheet of the other day system lands 1462 days off without a word (leftovers49);
+        # a file name's year is weaker evidence than the setting: warned, read as set
+        # (leftovers50: an export named by its year, 4 years after its data, was refused)
         other_system = day_system_mismatch(text, time_format, source)
         if other_system:
-            raise TimestampError(f"{_time_setting(time_columns)} of {source!r}, time_format "
-                                 f"= {setting_text(written_format)}: {other_system}")
+            notes.append(f"{_time_setting(time_columns)} of {source!r}, time_format = "
+                         f"{setting_text(written_format)}: {other_system}")
         text, time_format, no_count = counted_stamps(text, time_format)
         if no_count.any():
             first = int(np.flatnonzero(no_count)[0])
@@ -1337,7 +1345,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     # a decimal hour beside a date, or a year and a decimal day of the year (layouts40;
     # refused before as "decimal fractions, which no time_format reads")
     as_written, format_written = text, time_format
-    text, time_format, decimal_fields = decimal_stamps(text, time_format)
+    # a decimal day of the year counted from 0 read a day early without a word (leftovers50)
+    first_day, origin = day_of_year_origin(
+        text, time_format, time_columns[-1] if len(time_columns) > 1 else None)
+    if origin:
+        notes.append(f"{_time_setting(time_columns)} of {source!r}, time_format = "
+                     f"{setting_text(time_format)}: the decimal day of the year {origin}")
+    text, time_format, decimal_fields = decimal_stamps(text, time_format, first_day)
     # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
     # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
     text, _ = zero_tails(text, time_format)
@@ -1571,7 +1585,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                         offset_converted=offset_converted, daylight_saving=daylight,
                         utc_zone=from_utc,
                         rounded_to_minute=rounded, date_only=int(date_only.sum()),
-                        whole_numbers=whole_numbers, decimal_fields=decimal_fields)
+                        whole_numbers=whole_numbers, decimal_fields=decimal_fields,
+                        notes=tuple(notes))
 
 
 #: Years of the Buddhist Era as the Thai solar calendar counts them: the Gregorian year

@@ -10,6 +10,7 @@ UTC (POSIX.1 (m)); the expected stamps are computed with Python's datetime, a ge
 reference. pandas writes an integer column holding a missing value as float64 ("30.0")
 (pandas documentation (m)). Everything else is invented known truth: the records as written.
 """
+import re
 from datetime import datetime, timedelta
 
 import numpy as np
@@ -283,30 +284,40 @@ def test_words_without_a_blank_line_or_among_the_records_stay_refused(tmp_path):
         _read(path)
 
 
-def test_day_numbers_of_the_other_date_system_are_named_by_the_year_in_the_file_name(
+def test_day_numbers_of_the_other_date_system_are_warned_of_by_the_year_in_the_file_name(
         tmp_path):
     """Day numbers of Excel's 1904 date system read as days since 1899-12-30 landed 1462
     days (four years and a day) early without a word (leftovers49); a year in the file
-    name that only the other system's reading reaches names it. 1 January 1904 is day
-    1462 of the 1900 system (Microsoft, "Date systems in Excel" (m)); the stamps are
-    computed with Python's datetime."""
+    name that only the other system's reading reaches names it, as a warning: the
+    setting is the user's word and a file name weaker evidence (an export named by the
+    year it was made), so the stamps are read as set (leftovers50; refused before).
+    1 January 1904 is day 1462 of the 1900 system (Microsoft, "Date systems in Excel"
+    (m)); the stamps are computed with Python's datetime."""
     frame, ends = _records()                       # invented records of 1-10 June 2021
     days_1904 = [f"{(e.to_pydatetime() - datetime(1904, 1, 1)) / timedelta(days=1):.6f}"
                  for e in ends]
     path = _write(tmp_path, days_1904, frame)
     named = path.rename(tmp_path / "tower_2021_june.csv")
-    with pytest.raises(TimestampError, match=r"file name names 2021, but as days since "
-                       r"1899-12-30 the stamps run from 2017-05-3.*days since 1904-01-01 "
-                       r"\(Excel's 1904 date system\)"):
-        _read(named, time_format="days since 1899-12-30")
-    read, _ = _read(named, time_format="days since 1904-01-01")   # the right system: read
+    read, report = _read(named, time_format="days since 1899-12-30")
+    said = [w for w in report.warnings if "date system" in w]
+    assert len(said) == 1 and re.search(
+        r"file name names 2021, but as days since 1899-12-30 the stamps run from "
+        r"2017-05-3.*days since 1904-01-01 \(Excel's 1904 date system\).*silences this",
+        said[0]), report.warnings
+    # read as set: four years and a day early, as the setting says
+    assert read.index[0] == ends[0] - pd.Timedelta(days=1462) - pd.Timedelta(minutes=30)
+    read, report = _read(named, time_format="days since 1904-01-01")   # the right system
     _assert_all(read, frame, ends)
-    # 1900-system numbers set as 1904 would land four years late: named the same way
+    assert not [w for w in report.warnings if "date system" in w]
+    # 1900-system numbers set as 1904 would land four years late: warned the same way
     days_1900 = [f"{(e.to_pydatetime() - datetime(1899, 12, 30)) / timedelta(days=1):.6f}"
                  for e in ends]
     path = _write(tmp_path, days_1900, frame).rename(tmp_path / "site-2021.csv")
-    with pytest.raises(TimestampError, match="the 1900 date system"):
-        _read(path, time_format="days since 1904-01-01")
-    # no year in the name, or the year the stamps as set reach: read as set
-    read, _ = _read(path.rename(tmp_path / "tower.csv"), time_format="days since 1899-12-30")
-    _assert_all(read, frame, ends)
+    _, report = _read(path, time_format="days since 1904-01-01")
+    assert any("the 1900 date system" in w for w in report.warnings)
+    # no year in the name, or the year the stamps as set reach: read as set, silent
+    for name in ("tower.csv", "export-2021.csv"):
+        path = path.rename(tmp_path / name)
+        read, report = _read(path, time_format="days since 1899-12-30")
+        _assert_all(read, frame, ends)
+        assert not [w for w in report.warnings if "date system" in w]

@@ -22,7 +22,7 @@ from test_robustness_layouts35 import _records  # invented records of 1-10 June 
 from test_robustness_layouts36 import MAPPING, SITE, UNITS_LINE
 
 from fluxpart.decimal_time import decimal_stamps
-from fluxpart.errors import InputFileError, TimestampError
+from fluxpart.errors import InputFileError
 from fluxpart.io import read_table
 from fluxpart.timestamps import parse_stamps
 from fluxpart.zero_seconds import zero_tails
@@ -75,17 +75,17 @@ def test_a_decimal_hour_is_read_to_the_precision_it_states(cell, clock):
 def test_a_decimal_day_of_the_year_counts_from_one():
     """1.02083 is 30/1440 of 1 January (%j: 001 is 1 January); 366.00000 of 2021 (a day
     past its last, the midnight ending the year) is 2022-01-01 00:00. A day counted
-    from 0 is refused naming the stamp as written and the fix."""
+    from 0 (refused before leftovers50) is read as such where a day below 1 shows it."""
     parsed = _parse(["2021 1.02083", "2021 64.60417", "2021 365.97917", "2021 366.00000",
                      "2024 60.5"], "%Y %j", ("yr", "doy"))
     assert list(parsed.stamps) == [pd.Timestamp(s) for s in (
         "2021-01-01 00:30", "2021-03-05 14:30", "2021-12-31 23:30", "2022-01-01 00:00",
         "2024-02-29 12:00")]
     assert parsed.decimal_fields == 5
-    with pytest.raises(TimestampError, match=r"stamp '2021 0\.02083', which read as "
-                                             r"'2021 000 00:30:00'.*time_format = \"%Y %j\""
-                                             r".*day of year is 0.*add 1"):
-        _parse(["2021 0.02083", "2021 0.04167"], "%Y %j", ("yr", "doy"))
+    parsed = _parse(["2021 0.02083", "2021 0.04167"], "%Y %j", ("yr", "doy"))
+    assert list(parsed.stamps) == [pd.Timestamp("2021-01-01 00:30"),
+                                   pd.Timestamp("2021-01-01 01:00")]
+    assert len(parsed.notes) == 1 and "counts from 0" in parsed.notes[0]
 
 
 def test_decimal_fields_leave_other_formats_alone():

@@ -98,7 +98,8 @@ def test_one_record_of_both_sensors_off_and_back_is_no_splice():
 def test_two_lone_steps_a_year_apart_are_no_pasted_stretch():
     """Two joints bound a pasted stretch; two storms' steps 300 days apart are two events,
     not a stretch (round lead49: a trial's subarctic soil stepped at its snow model's start
-    and 22 months later and was named), while the same steps 30 days apart are named."""
+    and 22 months later and was named), while the same steps 30 or 150 days apart are
+    named."""
     index, air, soil = _site(days=365)
 
     def stepped(first, second):
@@ -108,5 +109,7 @@ def test_two_lone_steps_a_year_apart_are_no_pasted_stretch():
         return spliced_records(warm_air, warm_soil, index)
 
     assert stepped(2000, 2000 + 30 * 48) is not None
+    # a pasted season of five months is named (unnamed at 92 days; round leftovers50)
+    assert stepped(2000, 2000 + 150 * 48) is not None
     assert stepped(2000, 2000 + 300 * 48) is None
     assert spliced_records(air, soil, None) is None
