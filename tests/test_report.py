@@ -910,6 +910,27 @@ def test_night_respiration_curves_use_each_calendar_years_e0():
                                          temperature[inside])) == 1
 
 
+def test_night_respiration_caption_names_the_constant_q10_weight_the_reco_carries():
+    """The figure draws Lloyd–Taylor fits (Lloyd & Taylor 1994) only, while the central
+    nighttime Reco of respiration_form = "average" weighs them against a constant-Q10
+    refit by the night data's BIC weight (Bayesian model averaging, Burnham & Anderson
+    2002 (m)). A trial's southern woodland whose respiration follows Q10 = 2 got weight 1,
+    and the caption still said its Reco should follow the Lloyd–Taylor curves (review58)."""
+    def caption(share):
+        form = {"setting": "average", "share_applied": share}
+        return figures.night_respiration_caption(Written(
+            manifest={"provenance": {"respiration_form": form}}, tables={}))
+
+    plain = figures.night_respiration_caption(Written(manifest={}, tables={}))
+    assert plain.startswith("Night respiration should rise") and "Q10" not in plain
+    # a weight that prints as 0.00 (the demo grassland's 3e-11) adds nothing
+    assert caption(3.2e-11) == caption(0.0) == plain
+    assert "is not these curves" in caption(1.0) and "weight 1.00 against" in caption(1.0)
+    mixed = caption(0.25)
+    assert mixed.startswith(plain)
+    assert "weights these curves 0.75 and" in mixed and "constant Q10 (not drawn) 0.25" in mixed
+
+
 def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folder):
     """The legend lies below the plotting area, measured by matplotlib's own window
     extents, so it hides no curve: placed in the lower left it covered the second July-June
