@@ -1314,6 +1314,14 @@ def test_page_states_the_respiration_temperature_and_why(folder):
     assert f"respiration temperature</th><td>{html.escape(expected)}" in folder["text"]
     if driver.get("reason"):
         assert html.escape(driver["reason"]) in folder["text"]
+    # and the respiration form's weights, which the methods only pointed to (review58)
+    form = read_manifest(folder["directory"])["provenance"]["respiration_form"]
+    share = float(form["share_applied"])
+    row = re.search(r"respiration form</th><td>([^<]*)<", folder["text"]).group(1)
+    assert html.unescape(row).startswith(f"nighttime Reco: constant Q10 {share:.2f}, "
+                                         f"Lloyd–Taylor {1 - share:.2f} (respiration_form = ")
+    assert report.respiration_form_sentence(1.0, {}) == (
+        "nighttime Reco: constant Q10 1.00, Lloyd–Taylor 0.00; daytime Reco: Lloyd–Taylor")
 
 
 def _files(folder: Path) -> dict:
