@@ -1010,6 +1010,11 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
     return body, cited
 
 
+# In print (the README: "it prints to PDF") a table wider than the page was cut at its
+# edge: the u* table lost its draws_valid, reason and source columns and the monthly
+# coverage table its last (review58, Chromium's print to PDF). Printed, the detailed tables
+# take a smaller type and their header cells (column names without spaces) may break
+# anywhere, so each table fits the page width; a section heading stays with what follows.
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
        max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
@@ -1052,7 +1057,10 @@ summary { cursor: pointer; font-weight: 600; }
   details::details-content { content-visibility: visible; display: block; }
   details > * { display: block; }
   .scroll { overflow: visible; }
-  h2 { break-after: avoid; }
+  .scroll table { font-size: 7pt; }
+  .scroll th, .scroll td { padding: 0.1em 0.25em; }
+  .scroll th { overflow-wrap: anywhere; }
+  h2, h3 { break-after: avoid; }
 }
 """
 

@@ -1123,6 +1123,21 @@ def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
     assert text.index('id="settings"') > text.rindex("<details")
 
 
+def test_printed_detailed_tables_may_wrap_their_column_names_to_fit_the_page(folder):
+    """Printed to PDF (Chromium), a detailed table wider than the page was cut at its edge:
+    the u* table lost its draws_valid, reason and source columns (review58). In print the
+    tables are no longer scrolled, so their header cells, column names without a space,
+    must be free to break (CSS Text 3, overflow-wrap: anywhere counts towards the
+    min-content width a table lays out by (m)), and a heading stays with its table."""
+    css = re.search(r"@media print \{(.*?)\n\}", folder["text"], re.S).group(1)
+    rules = {selector.strip(): body for selector, body in
+             re.findall(r"([^{}]+?)\s*\{\s*([^}]*?)\s*\}", css)}
+    assert rules[".scroll"] == "overflow: visible;"
+    assert rules[".scroll th"] == "overflow-wrap: anywhere;"
+    assert float(re.fullmatch(r"font-size: ([\d.]+)pt;", rules[".scroll table"]).group(1)) < 10
+    assert rules["h2, h3"] == "break-after: avoid;"
+
+
 def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
