@@ -116,6 +116,10 @@ def _format_annual(annual) -> str:
 #: (verify's ``--quiet`` shortens its output; its help says so).
 QUIET_HELP = ("no progress display (the tables, warnings, the path written and the caution "
               "are still printed on standard output)")
+#: ``report`` prints no table and no warning, only the page written and the caution: its
+#: help promised "the tables, warnings" too (review58)
+REPORT_QUIET_HELP = ("no progress display (the path written and the caution are still "
+                     "printed on standard output)")
 
 
 def _progress_bar(config, quiet):
@@ -617,7 +621,7 @@ def _parser() -> argparse.ArgumentParser:
     report.add_argument("directory", type=_path,
                         help="result folder written by run, demo or batch")
     report.add_argument("--out", type=_path, help="where to write the page (default: DIR/report/)")
-    report.add_argument("--quiet", action="store_true", help=QUIET_HELP)
+    report.add_argument("--quiet", action="store_true", help=REPORT_QUIET_HELP)
     report.set_defaults(handler=_command_report)
 
     batch = commands.add_parser(

@@ -537,8 +537,10 @@ def _labels(index, pattern: str) -> np.ndarray:
 
 
 _PERIOD_TEXT = {"month": ("monthly", "calendar month of local standard time"),
-                "year": ("annual", "budget year (from [processing] year_start), local "
-                         "standard time")}
+                # "budget year (from ...), local standard time, UTC" read as if the
+                # middle were stated in two time scales at once (review58)
+                "year": ("annual", "budget year of local standard time (from [processing] "
+                         "year_start)")}
 
 
 def _coverage(table, interval, full_seconds) -> tuple:

@@ -46,6 +46,7 @@ import pandas as pd
 
 from .constants import KELVIN_OFFSET, LLOYD_TAYLOR_TREF_KELVIN
 from .errors import LOADER_MEMORY_WORDS, FluxpartError
+from .respiration_facts import respiration_facts
 from .responses import LASSLOP_VPD0_HPA, light_response, lloyd_taylor
 from .units import CARBON_UNIT, FLUX_UNIT, flux_to_carbon
 
@@ -1646,13 +1647,58 @@ def figure_night_respiration(drawing, written, interval) -> Figure:
         box = axes[-1].get_position()
         bar_axis = figure.add_axes((box.x1 + 0.15 / width, box.y0, 0.12 / width, box.height))
         figure.colorbar(scatter, cax=bar_axis).set_label("Day of year")
+    return Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
+                  "Lloyd–Taylor fits", night_respiration_caption(written))
+
+
+def night_respiration_caption(written) -> str:
+    """The caption of the night-respiration figure, naming the constant-Q10 form's weight.
+
+    The figure draws the Lloyd–Taylor fits alone, while the central nighttime Reco of a run
+    with ``respiration_form = "average"`` weights them against the method refitted on the
+    same night records with a constant Q10, by the night data's BIC weight
+    (``provenance.respiration_form``).
+    Where that weight is 1 (a generated southern woodland whose respiration follows a
+    constant Q10, review58) the caption said Reco "should rise along the Lloyd–Taylor
+    curves", a curve the run's Reco does not use at all.
+
+    Parameters
+    ----------
+    written : fluxpart.figures.Written
+        The result folder's manifest and tables.
+
+    Returns
+    -------
+    str
+        One or two sentences.
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). On the temperature dependence of soil respiration.
+    Functional Ecology 8(3):315-323.
+
+    Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
+    2nd ed. Springer (the weights of two models by their information criterion).
+    """
     caption = ("Night respiration should rise with temperature along the Lloyd–Taylor curves "
                "(Lloyd & Taylor 1994) fitted in short windows (solid, coloured by date) and "
                "with each calendar year's E0 (black, dashed; a budget year across two "
                "calendar years has a dotted second curve); a cloud far from the curves points "
                "to a poor fit or to advection at night.")
-    return Figure("night_respiration.png", drawing.png(figure), "Night respiration and the "
-                  "Lloyd–Taylor fits", caption)
+    share = respiration_facts(written.manifest.get("provenance")).get(
+        "respiration_form_share_constant_q10", 0.0)
+    if share >= 0.995:
+        caption += (" This run's nighttime Reco is not these curves: it is the method refitted "
+                    "on the same night records with a constant Q10 (not drawn), which the "
+                    f"night data weight {share:.2f} against Lloyd–Taylor (manifest: "
+                    "provenance.respiration_form); the curves show the form it was weighed "
+                    "against.")
+    elif share >= 0.005:
+        caption += (f" This run's nighttime Reco weights these curves {1 - share:.2f} and "
+                    "the method refitted on the same night records with a constant Q10 (not "
+                    f"drawn) {share:.2f}, as the night data weigh the two forms (manifest: "
+                    "provenance.respiration_form).")
+    return caption
 
 
 def ustar_class_means(series: pd.DataFrame, classes: int, periods: dict) -> dict:

@@ -60,6 +60,7 @@ from .figures import (
 )
 from .manifest import CAUTION, NEE_SCOPE, shown_name, shown_path
 from .measured_months import month_runs_text, unchecked_months
+from .respiration_facts import respiration_facts
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
     clean_leftovers,
@@ -1009,6 +1010,11 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
     return body, cited
 
 
+# In print (the README: "it prints to PDF") a table wider than the page was cut at its
+# edge: the u* table lost its draws_valid, reason and source columns and the monthly
+# coverage table its last (review58, Chromium's print to PDF). Printed, the detailed tables
+# take a smaller type and their header cells (column names without spaces) may break
+# anywhere, so each table fits the page width; a section heading stays with what follows.
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
        max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
@@ -1051,7 +1057,10 @@ summary { cursor: pointer; font-weight: 600; }
   details::details-content { content-visibility: visible; display: block; }
   details > * { display: block; }
   .scroll { overflow: visible; }
-  h2 { break-after: avoid; }
+  .scroll table { font-size: 7pt; }
+  .scroll th, .scroll td { padding: 0.1em 0.25em; }
+  .scroll th { overflow-wrap: anywhere; }
+  h2, h3 { break-after: avoid; }
 }
 """
 
@@ -1116,6 +1125,36 @@ def _windows_html(written: Written, metadata: dict) -> str:
             + _frame_table(frame.reset_index(drop=True), metadata, "daytime-windows", "window"))
 
 
+def respiration_form_sentence(share: float, record: dict) -> str:
+    """The weights of the two respiration forms in a run's nighttime Reco, as recorded.
+
+    Parameters
+    ----------
+    share : float
+        ``share_applied`` of ``provenance.respiration_form`` [1]: the weight of the
+        nighttime method refitted with a constant Q10 in its central Reco.
+    record : dict
+        ``provenance.respiration_form`` (its ``setting`` and ``criterion``).
+
+    Returns
+    -------
+    str
+        E.g. "nighttime Reco: constant Q10 1.00, Lloyd–Taylor 0.00 (respiration_form =
+        average; BIC weight ...); daytime Reco: Lloyd–Taylor".
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315-323.
+
+    Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
+    2nd ed. Springer (weights of models by an information criterion).
+    """
+    how = "; ".join(([f"respiration_form = {record['setting']}"] if record.get("setting")
+                     else []) + ([str(record["criterion"])] if record.get("criterion") else []))
+    return (f"nighttime Reco: constant Q10 {share:.2f}, Lloyd–Taylor {1 - share:.2f}"
+            + (f" ({how})" if how else "") + "; daytime Reco: Lloyd–Taylor")
+
+
 def _provenance(manifest: dict) -> str:
     parts = []
     provenance = manifest.get("provenance", {})
@@ -1141,6 +1180,12 @@ def _provenance(manifest: dict) -> str:
         why = f": {driver['reason']}" if driver.get("reason") else " (as set)"
         parts.append(f'<tr><th scope="row">respiration temperature</th><td>{_e(chosen)}'
                      f"{_e(why)}</td></tr>")
+    share = respiration_facts(provenance).get("respiration_form_share_constant_q10")
+    if share is not None:
+        # the methods named the weight's place alone; an auditor read no value (review58)
+        parts.append('<tr><th scope="row">respiration form</th><td>'
+                     + _e(respiration_form_sentence(share, provenance["respiration_form"]))
+                     + "</td></tr>")
     stated = provenance.get("uncertainty")
     if isinstance(stated, dict):
         left_out = "; ".join(str(item) for item in stated.get("not_quantified", []))

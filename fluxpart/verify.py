@@ -1813,6 +1813,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                 None if differences else stored_tables.get("timeseries"))
         except FluxpartError as error:
             if not differences:
+                # an intact folder without its input: the line asked for --input alone, and
+                # an auditor could not tell whether the folder had passed its own check
+                # (review58); the check needs no input, so its outcome is named
+                error.args = (f"{error} (the folder itself matches its manifest: seal and "
+                              "every table's SHA-256; nothing was recomputed)",)
                 raise
             # the folder fails its own manifest (seal, a table's SHA-256, a file missing
             # or extra): that verdict needs no input, so a result folder handed on without
@@ -1823,7 +1828,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
                                 environment=tuple(environment), code_changed=code_changed,
-                                exact=exact, notes=(*notes, f"not recomputed: {error}"),
+                                exact=exact, notes=(*notes, "not recomputed: "
+                                                     + str(error).removeprefix("verify: ")),
                                 replaced_manifest=replaced_manifest(differences, manifest,
                                                                     run_log=run_log))
         if result is None:

@@ -319,6 +319,20 @@ def test_readme_command_block_lists_every_option_of_every_command():
         assert not missing, (name, missing)
 
 
+def test_report_quiet_help_promises_only_what_report_prints():
+    """`report --quiet` said the tables and warnings are still printed; report prints the
+    page's path and the caution alone (review58; `command_report`'s two print lines)."""
+    import argparse
+
+    from fluxpart.cli import _parser
+
+    commands = next(a for a in _parser()._actions if isinstance(a, argparse._SubParsersAction))
+    quiet = {name: next(a.help for a in sub._actions if "--quiet" in a.option_strings)
+             for name, sub in commands.choices.items() if name in ("run", "report")}
+    assert "tables" in quiet["run"] and "tables" not in quiet["report"]
+    assert "the path written and the caution" in quiet["report"]
+
+
 @pytest.mark.parametrize("command", ["demo", "run", "check", "verify", "diff", "report",
                                      "batch", "export"])
 def test_every_command_help_states_its_exit_statuses(command, capsys):

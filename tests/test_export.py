@@ -2,6 +2,7 @@
 
 import errno
 import os
+import re
 from pathlib import Path
 
 import numpy as np
@@ -483,6 +484,10 @@ def test_months_and_years_carry_the_budget_tables_with_their_intervals(exported,
         middle = dataset[axis].values
         assert ((dataset[f"{axis}_bounds"].values[:, 0] < middle)
                 & (middle < dataset[f"{axis}_bounds"].values[:, 1])).all()
+        # the cell is of local standard time, its middle is stated in UTC (review58: the
+        # year's read "budget year (...), local standard time, UTC")
+        assert re.fullmatch(r"middle of the [a-z ]+ of local standard time[^,]*, UTC",
+                            dataset[axis].attrs["long_name"]), dataset[axis].attrs["long_name"]
 
 
 def test_month_and_year_variables_have_udunits_units_and_valid_cell_methods(exported):

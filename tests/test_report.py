@@ -910,6 +910,27 @@ def test_night_respiration_curves_use_each_calendar_years_e0():
                                          temperature[inside])) == 1
 
 
+def test_night_respiration_caption_names_the_constant_q10_weight_the_reco_carries():
+    """The figure draws Lloyd–Taylor fits (Lloyd & Taylor 1994) only, while the central
+    nighttime Reco of respiration_form = "average" weighs them against a constant-Q10
+    refit by the night data's BIC weight (Bayesian model averaging, Burnham & Anderson
+    2002 (m)). A trial's southern woodland whose respiration follows Q10 = 2 got weight 1,
+    and the caption still said its Reco should follow the Lloyd–Taylor curves (review58)."""
+    def caption(share):
+        form = {"setting": "average", "share_applied": share}
+        return figures.night_respiration_caption(Written(
+            manifest={"provenance": {"respiration_form": form}}, tables={}))
+
+    plain = figures.night_respiration_caption(Written(manifest={}, tables={}))
+    assert plain.startswith("Night respiration should rise") and "Q10" not in plain
+    # a weight that prints as 0.00 (the demo grassland's 3e-11) adds nothing
+    assert caption(3.2e-11) == caption(0.0) == plain
+    assert "is not these curves" in caption(1.0) and "weight 1.00 against" in caption(1.0)
+    mixed = caption(0.25)
+    assert mixed.startswith(plain)
+    assert "weights these curves 0.75 and" in mixed and "constant Q10 (not drawn) 0.25" in mixed
+
+
 def test_the_cumulative_legend_covers_no_curve_of_a_two_budget_year_record(folder):
     """The legend lies below the plotting area, measured by matplotlib's own window
     extents, so it hides no curve: placed in the lower left it covered the second July-June
@@ -1102,11 +1123,27 @@ def test_unchecked_values_are_marked_once_in_the_settings_table(folder):
     assert text.index('id="settings"') > text.rindex("<details")
 
 
+def test_printed_detailed_tables_may_wrap_their_column_names_to_fit_the_page(folder):
+    """Printed to PDF (Chromium), a detailed table wider than the page was cut at its edge:
+    the u* table lost its draws_valid, reason and source columns (review58). In print the
+    tables are no longer scrolled, so their header cells, column names without a space,
+    must be free to break (CSS Text 3, overflow-wrap: anywhere counts towards the
+    min-content width a table lays out by (m)), and a heading stays with its table."""
+    css = re.search(r"@media print \{(.*?)\n\}", folder["text"], re.S).group(1)
+    rules = {selector.strip(): body for selector, body in
+             re.findall(r"([^{}]+?)\s*\{\s*([^}]*?)\s*\}", css)}
+    assert rules[".scroll"] == "overflow: visible;"
+    assert rules[".scroll th"] == "overflow-wrap: anywhere;"
+    assert float(re.fullmatch(r"font-size: ([\d.]+)pt;", rules[".scroll table"]).group(1)) < 10
+    assert rules["h2, h3"] == "break-after: avoid;"
+
+
 def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
-               "measured_months", "install_hints", "ustar_range_note"}
+               "measured_months", "install_hints", "ustar_range_note",
+               "respiration_facts"}   # reads the manifest's provenance (review58)
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -1292,6 +1329,14 @@ def test_page_states_the_respiration_temperature_and_why(folder):
     assert f"respiration temperature</th><td>{html.escape(expected)}" in folder["text"]
     if driver.get("reason"):
         assert html.escape(driver["reason"]) in folder["text"]
+    # and the respiration form's weights, which the methods only pointed to (review58)
+    form = read_manifest(folder["directory"])["provenance"]["respiration_form"]
+    share = float(form["share_applied"])
+    row = re.search(r"respiration form</th><td>([^<]*)<", folder["text"]).group(1)
+    assert html.unescape(row).startswith(f"nighttime Reco: constant Q10 {share:.2f}, "
+                                         f"Lloyd–Taylor {1 - share:.2f} (respiration_form = ")
+    assert report.respiration_form_sentence(1.0, {}) == (
+        "nighttime Reco: constant Q10 1.00, Lloyd–Taylor 0.00; daytime Reco: Lloyd–Taylor")
 
 
 def _files(folder: Path) -> dict:

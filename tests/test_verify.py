@@ -124,7 +124,11 @@ def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp
     shutil.copy(bundle / "tower.csv", inbox / "renamed.csv")
     shutil.copy(bundle / "site.toml", inbox / "renamed.toml")
     assert main(["verify", str(alone)]) == 2
-    assert "--input" in capsys.readouterr().err
+    err = capsys.readouterr().err.splitlines()
+    # the one line also says the folder passed its own check, which needs no input (review58)
+    assert len(err) == 1 and "--input" in err[0]
+    assert err[0].endswith("(the folder itself matches its manifest: seal and every table's "
+                           "SHA-256; nothing was recomputed)")
     assert main(["verify", str(alone), "--input", str(inbox / "renamed.csv")]) == 0
     out = capsys.readouterr().out
     assert "recorded in the manifest" in out          # the config was rebuilt from its text
@@ -263,6 +267,8 @@ def test_tampered_result_moved_alone_is_found_tampered_without_its_input(bundle,
     out = capsys.readouterr().out
     assert out.startswith("NOT reproduced: 1 difference(s)") and "its manifest" in out
     assert "annual: file SHA-256" in out and "not recomputed" in out and "--input" in out
+    # the note quotes the error without its command's prefix ("not recomputed: verify: ...")
+    assert "note: not recomputed: the input file" in out
     (alone / "annual.parquet").unlink()                    # a missing table likewise
     assert main(["verify", str(alone), "--quiet"]) == 1
 
