@@ -53,7 +53,8 @@ Run from the repository root (about 20-60 s a site on a shared core)::
 without its soil-water, water-table and rain-pulse terms), ``nopulse`` (no rain pulse
 only), ``nocalm`` (calm nights as windy as the others), ``saturate`` (the C4 pasture's
 uptake saturating as a C3 canopy's: capacity 35, curvature 0.7), ``nosnow`` (no snow
-pack: the alpine soil follows the air)); ``--planted-ustar`` runs at the planted threshold;
+pack: the alpine soil follows the air), ``rect`` (uptake by the rectangular hyperbola
+with the same quantum yield and capacity)); ``--planted-ustar`` runs at the planted threshold;
 ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -133,7 +134,7 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 CO2_G_PER_MOL = 44.01     # g CO2 per mol (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nooutage", "nowater", "nopulse",
-            "nocalm", "saturate", "nosnow")
+            "nocalm", "saturate", "nosnow", "rect")
 KAPPA = 0.4               # von Karman constant (m)
 RAIN_TAIL_H = 1.5         # hours the open-path window stays wet after rain (invented)
 
@@ -394,6 +395,8 @@ def fluxes(site, met, variant):
         pmax, theta = 35.0, 0.7
     aq = alpha * q
     light = (aq + pmax - np.sqrt((aq + pmax) ** 2 - 4 * theta * aq * pmax)) / (2 * theta)
+    if "rect" in variant:      # diagnosis: the daytime method's own curve (curvature 0)
+        light = aq * pmax / (aq + pmax)
     f_t = yan_hunt(met["tair"], site.t_lo, site.t_opt, site.t_hi)
     f_d = 1 - 0.7 * ramp(met["vpd"], 12.0, 40.0)
     f_w = ramp(met["water"][day], 0.0, 0.5)
@@ -554,8 +557,27 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
 
 
 # ----------------------------------------------------------------------------- scoring
+def print_premises(site: Site, out: Path):
+    """What the run says about the methods' premises at this site: the respiration driver
+    it chose against the planted one, each year's E0 against the planted (Lloyd-Taylor) and
+    the windows that passed its test, and every warning of its manifest."""
+    import json
+
+    manifest = json.loads((Path(out) / "manifest.json").read_text())
+    chosen = manifest["provenance"]["respiration_driver"]["chosen"]
+    planted = f"E0 {site.e0:.0f} K" if site.e0 > 0 else f"Q10 {site.q10:.1f}"
+    print(f"   premises: driver chosen {chosen} (planted {site.driver}, {planted})")
+    e0 = pd.read_parquet(Path(out) / "parameters_nighttime_e0_annual.parquet")
+    for _, r in e0.iterrows():
+        print(f"     E0 {r['year']}: {r['e0']:.0f} +- {r['e0_se']:.0f} K, windows accepted "
+              f"{r['windows_accepted']} of {r['windows_tried']} ({r['source']})")
+    for w in manifest["warnings"]:
+        print(f"     warned: {w[:330]}")
+
+
 def score(site: Site, truth: pd.DataFrame, out: Path, check):
     """Score every complete budget year of ``annual.parquet`` against the truth."""
+    print_premises(site, out)
     return score_budget_years(out, truth, site.key, check, site.step * 60 * GC_PER_UMOL,
                               rain_outage_fill_parts)
 
