@@ -54,7 +54,8 @@ without its soil-water, water-table and rain-pulse terms), ``nopulse`` (no rain 
 only), ``nocalm`` (calm nights as windy as the others), ``saturate`` (the C4 pasture's
 uptake saturating as a C3 canopy's: capacity 35, curvature 0.7), ``nosnow`` (no snow
 pack: the alpine soil follows the air), ``rect`` (uptake by the rectangular hyperbola
-with the same quantum yield and capacity)); ``--planted-ustar`` runs at the planted threshold;
+with the same quantum yield and capacity), ``noheat`` (uptake without its temperature
+response)); ``--planted-ustar`` runs at the planted threshold;
 ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -134,7 +135,7 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 CO2_G_PER_MOL = 44.01     # g CO2 per mol (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nooutage", "nowater", "nopulse",
-            "nocalm", "saturate", "nosnow", "rect")
+            "nocalm", "saturate", "nosnow", "rect", "noheat")
 KAPPA = 0.4               # von Karman constant (m)
 RAIN_TAIL_H = 1.5         # hours the open-path window stays wet after rain (invented)
 
@@ -398,6 +399,8 @@ def fluxes(site, met, variant):
     if "rect" in variant:      # diagnosis: the daytime method's own curve (curvature 0)
         light = aq * pmax / (aq + pmax)
     f_t = yan_hunt(met["tair"], site.t_lo, site.t_opt, site.t_hi)
+    if "noheat" in variant:    # diagnosis: uptake without its temperature response
+        f_t = np.ones_like(f_t)
     f_d = 1 - 0.7 * ramp(met["vpd"], 12.0, 40.0)
     f_w = ramp(met["water"][day], 0.0, 0.5)
     gpp = c * light * f_t * f_d * f_w
