@@ -208,20 +208,25 @@ SITES = {
 
 # ----------------------------------------------------------------------------- helpers
 def ar1(rng, size, rho):
-    """A unit-variance AR(1) series of `size` steps with lag-one correlation `rho`."""
-    return lfilter([np.sqrt(1 - rho ** 2)], [1, -rho], rng.standard_normal(size))
+    """A unit-variance AR(1) series of `size` steps with lag-one correlation `rho`: an
+    exponentially weighted mean of scaled white noise, y[t] = rho y[t-1] + sqrt(1 - rho^2)
+    e[t], started at sqrt(1 - rho^2) e[0]."""
+    scale = np.sqrt(1 - rho ** 2)
+    e = rng.standard_normal(size) * scale / (1 - rho)
+    e[0] *= 1 - rho
+    return pd.Series(e).ewm(alpha=1 - rho, adjust=False).mean().to_numpy()
 
 
 def lag(x, tau):
-    """First-order lag of `x` with a time constant of `tau` steps, started at x[0]."""
-    a = 1.0 - np.exp(-1.0 / tau)
-    y, _ = lfilter([a], [1, a - 1], x, zi=[(1 - a) * x[0]])
-    return y
+    """First-order (Newtonian) lag of `x` with a time constant of `tau` steps, started at
+    x[0]: an exponentially weighted mean with weight 1 - exp(-1 / tau) on each new value."""
+    return pd.Series(np.asarray(x, float)).ewm(alpha=1.0 - np.exp(-1.0 / tau),
+                                                adjust=False).mean().to_numpy()
 
 
 def ramp(x, lo, hi):
-    """0 below `lo`, 1 above `hi`, linear between."""
-    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
+    """0 below `lo`, 1 above `hi`, linear between (piecewise-linear interpolation)."""
+    return np.interp(np.asarray(x, float), [lo, hi], [0.0, 1.0])
 
 
 def sat_vp(t):
@@ -431,73 +436,85 @@ def fluxes(site, met, variant):
 
 
 # ----------------------------------------------------------------------------- logger
+def runs_from(starts, lengths, n):
+    """A boolean mask of `n` records true from each start for its length (records)."""
+    edges = np.zeros(n + 1, int)
+    np.add.at(edges, starts, 1)
+    np.add.at(edges, np.minimum(starts + lengths, n), -1)
+    return np.cumsum(edges[:n]) > 0
+
+
 def gaps(site, met, night, rng, variant):
-    """Records without NEE, records without any sensor and records lost to rain only."""
+    """Records without NEE, records without any sensor and records lost to rain only.
+
+    Dropouts start at a record with probability 2.1 % by night and 0.7 % by day per 30
+    minutes and last 0.5-8 h; the open-path window stays wet 1.5 h after rain; one or two
+    analyser outages of 10-25 days a year (A: also iced 30-45 days from January to March);
+    one power outage of 2-7 days (all invented)."""
     n, per_day, step_h = len(night), met["per_day"], site.step / 60
-    start = rng.uniform(size=n) < np.where(night, 0.021, 0.007) * step_h * 2
-    length = np.ceil(rng.uniform(0.5, 8.0, n) / step_h).astype(int)
-    reach = np.where(start, np.arange(n) + length, -1)
-    lost = np.maximum.accumulate(reach) > np.arange(n)
-    tail = int(round(RAIN_TAIL_H / step_h))
-    wet_run = np.convolve(met["raining"].astype(int), np.ones(tail + 1, int))[:n] > 0
-    analyser = np.zeros(n, bool)
-    n_years = max(round(n / (365 * per_day)), 1)
-    for _ in range(int(rng.integers(n_years, 2 * n_years + 1))):
-        first = int(rng.integers(0, n - 26 * per_day))
-        analyser[first:first + int(rng.integers(10, 26)) * per_day] = True
-    if site.key == "A":                     # iced in winter: 30-45 days from January-March
-        first = int(rng.integers(0, 60)) * per_day
-        analyser[first:first + int(rng.integers(30, 46)) * per_day] = True
-    outage = np.zeros(n, bool)
-    first = int(rng.integers(0, n - 8 * per_day))
-    outage[first:first + int(rng.integers(2, 8)) * per_day] = True
-    if "nooutage" in variant:
-        analyser[:], outage[:] = False, False
+    start_p = np.where(night, 0.021, 0.007) * step_h * 2
+    begins = np.flatnonzero(rng.uniform(size=n) < start_p)
+    lengths = np.ceil(rng.uniform(0.5, 8.0, n) / step_h).astype(int)
+    dropout = runs_from(begins, lengths[begins], n)
+    wet_records = int(round(RAIN_TAIL_H / step_h)) + 1
+    wet = pd.Series(met["raining"].astype(float)).rolling(wet_records, min_periods=1).max()
+    wet = wet.to_numpy() > 0
+    years = max(round(n / (365 * per_day)), 1)
+    firsts, days = [], []
+    for _ in range(int(rng.integers(years, 2 * years + 1))):
+        firsts.append(int(rng.integers(0, n - 26 * per_day)))
+        days.append(int(rng.integers(10, 26)))
+    if site.key == "A":
+        firsts.append(int(rng.integers(0, 60)) * per_day)
+        days.append(int(rng.integers(30, 46)))
+    analyser = runs_from(np.array(firsts, int), np.array(days, int) * per_day, n)
+    power_first = int(rng.integers(0, n - 8 * per_day))
+    power = runs_from(np.array([power_first]), np.array([int(rng.integers(2, 8)) * per_day]), n)
+    if "nooutage" in variant or "nogaps" in variant:
+        analyser, power = np.zeros(n, bool), np.zeros(n, bool)
     if "nogaps" in variant:
-        lost[:], wet_run[:], analyser[:], outage[:] = False, False, False, False
-    return lost | wet_run | analyser | outage, outage, wet_run & ~lost & ~analyser & ~outage
+        dropout, wet = np.zeros(n, bool), np.zeros(n, bool)
+    no_nee = dropout | wet | analyser | power
+    return no_nee, power, wet & ~(dropout | analyser | power)
 
 
 def simulate(site: Site, variant=frozenset(), seed_offset=0):
     """The site's logger data and its truth, both indexed by record start (local standard
     time)."""
-    idx = pd.date_range(site.start, site.end, freq=f"{site.step}min", inclusive="left")
-    n = len(idx)
-    root = np.random.default_rng([24, ord(site.key), seed_offset])
-    rng = {k: np.random.default_rng(root.integers(2 ** 32))
-           for k in ("met", "noise", "gaps")}
-    met = weather(site, idx, rng["met"], variant)
+    stamps = pd.date_range(site.start, site.end, freq=f"{site.step}min", inclusive="left")
+    n = len(stamps)
+    seeds = np.random.default_rng([24, ord(site.key), seed_offset])
+    weather_rng, noise_rng, gap_rng = (np.random.default_rng(seeds.integers(2 ** 32))
+                                       for _ in range(3))
+    met = weather(site, stamps, weather_rng, variant)
     gpp, reco, table = fluxes(site, met, variant)
     nee = reco - gpp
     night = met["sin_h"] < 0
     ustar = met["ustar"]
-    share = np.where(night & (ustar < site.thr),
-                     np.clip(ustar / site.thr, 0, 1) ** site.loss_pow, 1.0)
-    if "noloss" in variant:
-        share = np.ones(n)
-    g = rng["noise"]
-    noise = (0.35 + 0.13 * np.abs(nee)) * g.standard_t(5, n) / np.sqrt(5 / 3)
-    if "nonoise" in variant:
-        noise = np.zeros(n)
-    measured = share * nee + noise
-    spike = g.uniform(size=n) < 0.0015
-    measured = measured + spike * g.choice([-1.0, 1.0], n) * g.uniform(4, 12, n)
-    lost, outage, rain_only = gaps(site, met, night, rng["gaps"], variant)
-    data = pd.DataFrame({"nee": np.where(lost, np.nan, measured), "rg": met["rg"],
-                         "tair": met["tair"], "vpd": met["vpd"], "rh": met["rh"],
-                         "ustar": ustar, "tsoil": met["tsoil"]}, index=idx)
-    data.loc[outage, ["rg", "tair", "vpd", "rh", "ustar", "tsoil"]] = np.nan
-    data.loc[(rng["gaps"].uniform(size=n) < 0.01) & ~outage, "ustar"] = np.nan
-    truth = pd.DataFrame({"nee": nee, "gpp": gpp, "reco": reco, "night": night,
-                          "thr": np.full(n, site.thr), "share": share, "lost": lost,
-                          "outage": outage, "rain": rain_only}, index=idx)
+    kept = np.ones(n) if "noloss" in variant else np.where(
+        night, np.minimum(ustar / site.thr, 1.0) ** site.loss_pow, 1.0)
+    sigma = 0.35 + 0.13 * np.abs(nee)
+    error = sigma * noise_rng.standard_t(5, n) / np.sqrt(5 / 3)      # unit variance t(5)
+    error = error * ("nonoise" not in variant)
+    is_spike = noise_rng.uniform(size=n) < 0.0015
+    spikes = is_spike * noise_rng.choice([-1.0, 1.0], n) * noise_rng.uniform(4, 12, n)
+    no_nee, power, rain_only = gaps(site, met, night, gap_rng, variant)
+    ustar_lost = (gap_rng.uniform(size=n) < 0.01) & ~power
+    logged = {"nee": np.where(no_nee, np.nan, kept * nee + error + spikes)}
+    for var in ("rg", "tair", "vpd", "rh", "ustar", "tsoil"):
+        lost = power | ustar_lost if var == "ustar" else power
+        logged[var] = np.where(lost, np.nan, met[var])
+    data = pd.DataFrame(logged, index=stamps)
+    truth = pd.DataFrame(dict(nee=nee, gpp=gpp, reco=reco, night=night, share=kept,
+                              thr=site.thr, lost=no_nee, outage=power, rain=rain_only),
+                         index=stamps)
     factor = site.step * 60 * GC_PER_UMOL
     dim = night & (met["rg"] > 0)
     n_years = n / (365.25 * met["per_day"])
     below = (ustar[night] < site.thr).mean()
-    note = (f"NEE lost {lost.mean():.0%} (night {lost[night].mean():.0%}, rain only "
+    note = (f"NEE lost {no_nee.mean():.0%} (night {no_nee[night].mean():.0%}, rain only "
             f"{rain_only.mean():.0%}); night records below thr {below:.0%}; u* loss share of "
-            f"night Reco {1 - (share * reco)[night].sum() / reco[night].sum():.0%}; twilight "
+            f"night Reco {1 - (kept * reco)[night].sum() / reco[night].sum():.0%}; twilight "
             f"GPP (sun below horizon) {gpp[dim].sum() * factor / n_years:.1f} g C m-2 a-1; NEE "
             f"{nee.sum() * factor / n_years:.0f}, GPP {gpp.sum() * factor / n_years:.0f}, "
             f"Reco {reco.sum() * factor / n_years:.0f} g C m-2 a-1; night air T range "
