@@ -125,15 +125,14 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
-    FLUXES,
     chosen_variant,
-    fmt,
+    print_misses_z,
     print_rain_outage_row,
     rain_outage_fill_parts,
     run_sites,
     score_budget_years,
-    site_toml,
     trial_parser,
+    write_logger_site,
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
@@ -274,16 +273,21 @@ def hottel_clear_sky(sin_h, ecc, altitude_m):
 
 
 # ----------------------------------------------------------------------------- weather
+def calendar(stamps, step):
+    """Each record's day number since the first (midnight) record, the records per day, the
+    number of days and each day's day of year."""
+    per_day = 1440 // step
+    day = np.asarray((stamps - stamps[0]).days)
+    doy = stamps.day_of_year.to_numpy()[::per_day].astype(float)
+    return day, per_day, len(doy), doy
+
+
 def weather(site, idx, rng, variant):
     """Drivers per record (and per day) of one site."""
     n = len(idx)
-    per_day = 1440 // site.step
-    day = np.arange(n) // per_day
-    n_days = int(day[-1]) + 1
-    middle = idx + pd.Timedelta(minutes=site.step / 2)
-    sin_h, solar_hour, ecc, _ = spencer(middle, site)
-    elev = np.degrees(np.arcsin(np.clip(sin_h, -1, 1)))
-    doy = idx[::per_day].day_of_year.to_numpy().astype(float)
+    day, per_day, n_days, doy = calendar(idx, site.step)
+    sin_h, solar_hour, ecc, _ = spencer(idx + pd.Timedelta(minutes=site.step / 2), site)
+    elev = np.rad2deg(np.arcsin(np.clip(sin_h, -1.0, 1.0)))
     season = np.cos(2 * np.pi * (doy - site.warm_doy) / 365.25)
     wet = ((1 + np.cos(2 * np.pi * (doy - site.wet_doy) / 365.25)) / 2) ** 2
     # clouds: a daily cover about the seasonal mean, a flicker within the day
@@ -552,7 +556,6 @@ LAYOUTS = {
           {"nee": "troca_liquida", "rg": "onda_curta", "tair": "temp_copa", "rh": "umid_rel",
            "ustar": "u_estrela", "tsoil": "temp_solo_5"}, {}),
 }
-DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
 TO_UNIT = {"kPa": (lambda v: v / 10, 1), "fraction": (lambda v: v / 100, 2),
            "mg CO2 m-2 s-1": (lambda v: v * CO2_G_PER_MOL * 1e-3, 2)}
 
@@ -560,24 +563,8 @@ TO_UNIT = {"kPa": (lambda v: v / 10, 1), "fraction": (lambda v: v / 100, 2),
 def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
     """Write the site's logger CSV (layout of ``LAYOUTS``) and TOML; return the TOML's file
     name."""
-    folder.mkdir(parents=True, exist_ok=True)
-    time_col, stamp, marks, code, names, units = LAYOUTS[site.key]
-    times = data.index + (pd.Timedelta(minutes=site.step) if marks == "end" else pd.Timedelta(0))
-    frame = pd.DataFrame({time_col: times.strftime(stamp)})
-    for var, col in names.items():
-        convert, extra = TO_UNIT[units[var]] if var in units else (lambda v: v, 0)
-        frame[col] = fmt(convert(data[var]), DECIMALS[var] + extra, code)
-    csv = f"{site.key.lower()}_logger.csv"
-    frame.to_csv(folder / csv, index=False)
-    config = site_toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
-                       f'time_format = "{stamp}"\ntime_marks = "{marks}"\n'
-                       f"missing = [{code}]\n",
-                       "".join(f'{var} = "{col}"\n' for var, col in names.items()),
-                       "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing,
-                       writer="trial_twentyfourth.py")
-    name = f"site_{site.key}.toml"
-    (folder / name).write_text(config)
-    return name
+    return write_logger_site(site, data, folder, LAYOUTS[site.key], TO_UNIT, processing,
+                             writer="trial_twentyfourth.py").name
 
 
 # ----------------------------------------------------------------------------- scoring
@@ -607,20 +594,12 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 
 
 def print_misses(out: Path):
-    """Each flux outside its stated 95 % interval with z = error / (half-width / 1.96)."""
+    """Each flux outside its stated 95 % interval of the complete site-years scored in
+    ``out/scores.csv``, with z."""
     path = Path(out) / "scores.csv"
-    if not path.exists():
-        return
-    rows = pd.read_csv(path)
-    rows = rows[rows["complete"]]
-    print("\nmisses outside the 95 % interval (z = error / (half-width / 1.96)):")
-    for _, r in rows.iterrows():
-        for f in FLUXES:
-            if not bool(r[f + "_in"]):
-                z = r[f + "_err"] / (r[f + "_halfwidth"] / 1.96)
-                print(f"  {r['site_year']:8s} {f:15s} err {r[f + '_err']:+8.1f} g C m-2 "
-                      f"({r[f + '_rel']:+6.1f} %) half-width {r[f + '_halfwidth']:6.1f} "
-                      f"z {z:+.2f}")
+    if path.exists():
+        rows = pd.read_csv(path)
+        print_misses_z(rows[rows["complete"]].to_dict("records"))
 
 
 def main(argv=None):
