@@ -90,3 +90,32 @@ def test_fill_errors_sum_the_filled_records_of_each_group():
     assert out["err_fill_night"] == pytest.approx(0.5 * factor, rel=1e-12)
     assert out["err_fill_day"] == pytest.approx(-1.0 * factor, rel=1e-12)
     assert out["gap_share"] == pytest.approx(0.75) and out["unfilled"] == 1
+
+
+def test_write_logger_site_writes_the_layout_and_declares_missing_codes(tmp_path):
+    """The CSV holds the stamps (the interval's end where the layout says so), each variable
+    converted and written with its decimals, missing values as the code; the TOML declares a
+    number code bare, a text code quoted, "" and "NaN" not at all, and the events."""
+    from types import SimpleNamespace
+
+    from trial_scoring import write_logger_site
+
+    site = SimpleNamespace(key="Q", name="Quillmere (FICTIONAL)", lat=50.0, lon=5.0,
+                           utc_offset=1.0, canopy="short", year_start="01-01")
+    index = pd.date_range("2021-01-01", periods=2, freq="30min")
+    data = pd.DataFrame({"nee": [1.23456, np.nan], "vpd": [12.0, 3.0]}, index=index)
+    to_unit = {"kPa": (lambda v: v / 10, 1)}
+    declared = {}
+    for code in ("-9999", "NA", "", "NaN"):
+        layout = ("t_end", "%Y-%m-%d %H:%M", "end", code, {"nee": "co2", "vpd": "d_kpa"},
+                  {"vpd": "kPa"})
+        path = write_logger_site(site, data, tmp_path / (code or "empty"), layout, to_unit,
+                                 "seed = 1\n", ["2021-05-01"], writer="test")
+        declared[code] = [ln for ln in path.read_text().splitlines()
+                          if ln.startswith(("missing", "events"))]
+    assert declared == {"-9999": ["missing = [-9999]", 'events = ["2021-05-01"]'],
+                        "NA": ['missing = ["NA"]', 'events = ["2021-05-01"]'],
+                        "": ['events = ["2021-05-01"]'], "NaN": ['events = ["2021-05-01"]']}
+    lines = (tmp_path / "NA" / "q_logger.csv").read_text().splitlines()
+    assert lines == ["t_end,co2,d_kpa", "2021-01-01 00:30,1.235,1.200",
+                     "2021-01-01 01:00,NA,0.300"]

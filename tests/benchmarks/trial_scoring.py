@@ -4,7 +4,9 @@
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
 loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
 ``run_sites``, and the scoring of a run's budget years, ``score_budget_years``; since ``trial_twentysecond.py`` the fill errors by rain gap and
-power outage, ``rain_outage_fill_parts``): each trial
+power outage, ``rain_outage_fill_parts``; since ``trial_twentyfourth.py`` the writer of a
+site's logger CSV and TOML, ``write_logger_site``, and the list of misses with z,
+``print_misses_z``): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
@@ -430,3 +432,60 @@ def print_rain_outage_row(row):
         fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
                  f"rain {row['err_fill_rain']:+.1f}, power outage {row['err_fill_outage']:+.1f}")
     print_scored_row(row, fills)
+
+
+#: Decimals a trial's logger writes per variable in fluxpart's units.
+LOGGER_DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
+
+
+def write_logger_site(site, data, folder, layout, to_unit, processing="", events=(), *,
+                      writer, csv_suffix="_logger.csv"):
+    """Write a trial site's logger CSV and TOML; return the TOML's path.
+
+    `layout`: (time column, stamp format, which end of the interval the stamp marks
+    ("start" | "end"), missing code, {variable: column}, {variable: unit}); `to_unit`:
+    {unit: (conversion from fluxpart's unit, decimals added to ``LOGGER_DECIMALS``)};
+    `data`: the logger's variables in fluxpart's units indexed by record start; `events`:
+    dates declared as ``events``. A missing code "" or "NaN" is not declared (the reader
+    knows both), a text code is declared as text (an undeclared "NA" is refused, exit 2),
+    a number as a number.
+    """
+    import pandas as pd
+
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    time_col, stamp, marks, code, names, units = layout
+    step = data.index[1] - data.index[0]
+    times = data.index + (step if marks == "end" else pd.Timedelta(0))
+    frame = pd.DataFrame({time_col: times.strftime(stamp)})
+    for var, col in names.items():
+        convert, extra = to_unit[units[var]] if var in units else (lambda v: v, 0)
+        frame[col] = fmt(convert(data[var]), LOGGER_DECIMALS[var] + extra, code)
+    if events:
+        processing = f"events = {list(events)!r}\n".replace("'", '"') + processing
+    csv = f"{site.key.lower()}{csv_suffix}"
+    frame.to_csv(folder / csv, index=False)
+    missing = "" if code in ("", "NaN") else f"missing = [{code}]\n"
+    if missing and not code.lstrip("-").replace(".", "", 1).isdigit():
+        missing = f'missing = ["{code}"]\n'
+    config = site_toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
+                       f'time_format = "{stamp}"\ntime_marks = "{marks}"\n{missing}',
+                       "".join(f'{var} = "{col}"\n' for var, col in names.items()),
+                       "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing,
+                       writer=writer)
+    path = folder / f"site_{site.key}.toml"
+    path.write_text(config)
+    return path
+
+
+def print_misses_z(rows):
+    """Every flux outside its 95 % interval with z = error / (half-width / 1.96)."""
+    print("\nmisses of the 95 % interval (z = error / (half-width / 1.96)):")
+    for r in rows:
+        if "nee" not in r:
+            continue
+        for f in FLUXES:
+            if not r[f + "_in"]:
+                z = r[f + "_err"] / max(r[f + "_halfwidth"] / 1.96, 1e-9)
+                print(f"  {r['site_year']:9s} {f:15s} err {r[f + '_err']:+8.1f} "
+                      f"({r[f + '_rel']:+6.1f} %) +-{r[f + '_halfwidth']:6.1f}  z {z:+5.2f}")

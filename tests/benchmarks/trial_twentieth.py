@@ -101,12 +101,11 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     chosen_variant,
     fill_errors,
-    fmt,
     print_scored_row,
     run_sites,
     score_budget_years,
-    site_toml,
     trial_parser,
+    write_logger_site,
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
@@ -425,10 +424,6 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
 
 
 # ----------------------------------------------------------------------------- files
-def toml(site, extra_input, columns, units="", processing=""):
-    return site_toml(site, extra_input, columns, units, processing, writer="trial_twentieth.py")
-
-
 # Each site's logger layout: its time column, stamp format, which end of the interval the
 # stamp marks, missing code, its own name for each variable and the units that differ from
 # fluxpart's (VPD of N written in kPa, Tair of H in kelvin).
@@ -452,33 +447,15 @@ LAYOUTS = {
           {"nee": "co2", "rg": "sw_in_pyr", "tair": "t_screen", "vpd": "vpd_hpa",
            "ustar": "ustar_sonic", "tsoil": "t_soil_8cm"}, {}),
 }
-DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
-TO_UNIT = {"kPa": lambda v: v / 10, "K": lambda v: v + 273.15}   # from hPa and deg C
+# from hPa and deg C, with the decimals added
+TO_UNIT = {"kPa": (lambda v: v / 10, 1), "K": (lambda v: v + 273.15, 0)}
 
 
 def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", harvests=()):
     """Write the site's logger CSV (layout of ``LAYOUTS``) and TOML; return the TOML's file
     name."""
-    folder.mkdir(parents=True, exist_ok=True)
-    time_col, stamp, marks, code, names, units = LAYOUTS[site.key]
-    times = data.index + (pd.Timedelta(minutes=site.step) if marks == "end" else pd.Timedelta(0))
-    frame = pd.DataFrame({time_col: times.strftime(stamp)})
-    for var, col in names.items():
-        values = TO_UNIT[units[var]](data[var]) if var in units else data[var]
-        decimals = DECIMALS[var] + (units.get(var) == "kPa")    # kPa: one more decimal
-        frame[col] = fmt(values, decimals, code)
-    if harvests:
-        processing = f"events = {list(harvests)!r}\n".replace("'", '"') + processing
-    csv = f"{site.key.lower()}_tower.csv"
-    frame.to_csv(folder / csv, index=False)
-    missing = f"missing = [{code}]\n" if code not in ("", "NaN") else ""
-    config = toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
-                  f'time_format = "{stamp}"\ntime_marks = "{marks}"\n{missing}',
-                  "".join(f'{var} = "{col}"\n' for var, col in names.items()),
-                  "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing)
-    name = f"site_{site.key}.toml"
-    (folder / name).write_text(config)
-    return name
+    return write_logger_site(site, data, folder, LAYOUTS[site.key], TO_UNIT, processing,
+                             harvests, writer="trial_twentieth.py", csv_suffix="_tower.csv").name
 
 
 # ----------------------------------------------------------------------------- scoring

@@ -108,13 +108,12 @@ from scipy.signal import lfilter
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     chosen_variant,
-    fmt,
     print_rain_outage_row,
     rain_outage_fill_parts,
     run_sites,
     score_budget_years,
-    site_toml,
     trial_parser,
+    write_logger_site,
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
@@ -530,37 +529,15 @@ LAYOUTS = {
           {"nee": "co2_eddy", "rg": "sw_down_pyr", "tair": "air_t_30m", "vpd": "vpd_30m",
            "ustar": "ust_30m", "tsoil": "soil_t_5"}, {}),
 }
-DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
-TO_UNIT = {"kPa": lambda v: v / 10, "K": lambda v: v + 273.15, "cm s-1": lambda v: 100 * v}
-EXTRA_DECIMALS = {"kPa": 1, "K": 0, "cm s-1": -2}
+TO_UNIT = {"kPa": (lambda v: v / 10, 1), "K": (lambda v: v + 273.15, 0),
+           "cm s-1": (lambda v: 100 * v, -2)}          # with the decimals added
 
 
 def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", events=()):
     """Write the site's logger CSV (layout of ``LAYOUTS``) and TOML; return the TOML's file
     name."""
-    folder.mkdir(parents=True, exist_ok=True)
-    time_col, stamp, marks, code, names, units = LAYOUTS[site.key]
-    times = data.index + (pd.Timedelta(minutes=site.step) if marks == "end" else pd.Timedelta(0))
-    frame = pd.DataFrame({time_col: times.strftime(stamp)})
-    for var, col in names.items():
-        values = TO_UNIT[units[var]](data[var]) if var in units else data[var]
-        decimals = max(DECIMALS[var] + EXTRA_DECIMALS.get(units.get(var), 0), 1)
-        frame[col] = fmt(values, decimals, code)
-    if events:
-        processing = f"events = {list(events)!r}\n".replace("'", '"') + processing
-    csv = f"{site.key.lower()}_logger.csv"
-    frame.to_csv(folder / csv, index=False)
-    # a text code is declared as text: the reader names an undeclared "NA" (exit 2)
-    missing = ("" if code == "" else f'missing = ["{code}"]\n' if code == "NA"
-               else f"missing = [{code}]\n")
-    config = site_toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
-                       f'time_format = "{stamp}"\ntime_marks = "{marks}"\n{missing}',
-                       "".join(f'{var} = "{col}"\n' for var, col in names.items()),
-                       "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing,
-                       writer="trial_twentyfirst.py")
-    name = f"site_{site.key}.toml"
-    (folder / name).write_text(config)
-    return name
+    return write_logger_site(site, data, folder, LAYOUTS[site.key], TO_UNIT, processing,
+                             events, writer="trial_twentyfirst.py").name
 
 
 # ----------------------------------------------------------------------------- scoring

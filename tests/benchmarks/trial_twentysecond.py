@@ -114,13 +114,13 @@ from trial_scoring import (  # noqa: E402
     chosen_variant,
     finish,
     fluxpart_cli,
-    fmt,
+    print_misses_z,
     print_rain_outage_row,
     processing_text,
     rain_outage_fill_parts,
     score_budget_years,
-    site_toml,
     trial_parser,
+    write_logger_site,
 )
 
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
@@ -495,33 +495,13 @@ LAYOUTS = {
           {"nee": "co2_austausch", "rg": "strahlung", "tair": "t_luft", "rh": "feuchte",
            "ustar": "u_stern", "tsoil": "t_boden"}, {}),
 }
-DECIMALS = {"nee": 3, "rg": 1, "tair": 2, "rh": 1, "vpd": 2, "ustar": 3, "tsoil": 2}
-TO_UNIT = {"kPa": lambda v: v / 10}
-EXTRA_DECIMALS = {"kPa": 1}
+TO_UNIT = {"kPa": (lambda v: v / 10, 1)}        # with the decimals added
 
 
 def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", events=()):
     """Write the tower's logger CSV and config; return the config's path."""
-    folder.mkdir(parents=True, exist_ok=True)
-    time_col, stamp, marks, code, names, units = LAYOUTS[site.key]
-    times = data.index + (pd.Timedelta(minutes=site.step) if marks == "end" else pd.Timedelta(0))
-    frame = pd.DataFrame({time_col: times.strftime(stamp)})
-    for var, col in names.items():
-        values = TO_UNIT[units[var]](data[var]) if var in units else data[var]
-        frame[col] = fmt(values, DECIMALS[var] + EXTRA_DECIMALS.get(units.get(var), 0), code)
-    if events:
-        processing = f"events = {list(events)!r}\n".replace("'", '"') + processing
-    csv = f"{site.key.lower()}_logger.csv"
-    frame.to_csv(folder / csv, index=False)
-    config = site_toml(site, f'path = "{csv}"\ntime_column = "{time_col}"\n'
-                       f'time_format = "{stamp}"\ntime_marks = "{marks}"\n'
-                       f"missing = [{code}]\n",
-                       "".join(f'{var} = "{col}"\n' for var, col in names.items()),
-                       "".join(f'{var} = "{u}"\n' for var, u in units.items()), processing,
-                       writer="trial_twentysecond.py")
-    path = folder / f"site_{site.key}.toml"
-    path.write_text(config)
-    return path
+    return write_logger_site(site, data, folder, LAYOUTS[site.key], TO_UNIT, processing,
+                             events, writer="trial_twentysecond.py")
 
 
 def write_network(out: Path, keys) -> Path:
@@ -534,19 +514,6 @@ def write_network(out: Path, keys) -> Path:
 
 
 # ----------------------------------------------------------------------------- scoring
-def print_misses_z(rows):
-    """Every flux outside its 95 % interval with z = error / (half-width / 1.96)."""
-    print("\nmisses of the 95 % interval (z = error / (half-width / 1.96)):")
-    for r in rows:
-        if "nee" not in r:
-            continue
-        for f in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
-            if not r[f + "_in"]:
-                z = r[f + "_err"] / max(r[f + "_halfwidth"] / 1.96, 1e-9)
-                print(f"  {r['site_year']:9s} {f:15s} err {r[f + '_err']:+8.1f} "
-                      f"({r[f + '_rel']:+6.1f} %) +-{r[f + '_halfwidth']:6.1f}  z {z:+5.2f}")
-
-
 def main(argv=None):
     parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial22", VARIANTS)
     options = parser.parse_args(argv)
