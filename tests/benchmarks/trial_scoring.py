@@ -4,7 +4,8 @@
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
 loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
 ``run_sites``, and the scoring of a run's budget years, ``score_budget_years``; since ``trial_twentysecond.py`` the fill errors by rain gap and
-power outage, ``rain_outage_fill_parts``): each trial
+power outage, ``rain_outage_fill_parts``; since ``trial_twentythird.py`` the misses with
+their z, ``print_misses_z``, first written for trial 22): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
@@ -430,3 +431,16 @@ def print_rain_outage_row(row):
         fills = (f"filled night {row['err_fill_night']:+.1f}, day {row['err_fill_day']:+.1f}, "
                  f"rain {row['err_fill_rain']:+.1f}, power outage {row['err_fill_outage']:+.1f}")
     print_scored_row(row, fills)
+
+
+def print_misses_z(rows):
+    """Every flux outside its 95 % interval with z = error / (half-width / 1.96)."""
+    print("\nmisses of the 95 % interval (z = error / (half-width / 1.96)):")
+    for r in rows:
+        if "nee" not in r:
+            continue
+        for f in FLUXES:
+            if not r[f + "_in"]:
+                z = r[f + "_err"] / max(r[f + "_halfwidth"] / 1.96, 1e-9)
+                print(f"  {r['site_year']:9s} {f:15s} err {r[f + '_err']:+8.1f} "
+                      f"({r[f + '_rel']:+6.1f} %) +-{r[f + '_halfwidth']:6.1f}  z {z:+5.2f}")

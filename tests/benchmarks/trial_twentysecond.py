@@ -115,6 +115,7 @@ from trial_scoring import (  # noqa: E402
     finish,
     fluxpart_cli,
     fmt,
+    print_misses_z,
     print_rain_outage_row,
     processing_text,
     rain_outage_fill_parts,
@@ -534,19 +535,6 @@ def write_network(out: Path, keys) -> Path:
 
 
 # ----------------------------------------------------------------------------- scoring
-def print_misses_z(rows):
-    """Every flux outside its 95 % interval with z = error / (half-width / 1.96)."""
-    print("\nmisses of the 95 % interval (z = error / (half-width / 1.96)):")
-    for r in rows:
-        if "nee" not in r:
-            continue
-        for f in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
-            if not r[f + "_in"]:
-                z = r[f + "_err"] / max(r[f + "_halfwidth"] / 1.96, 1e-9)
-                print(f"  {r['site_year']:9s} {f:15s} err {r[f + '_err']:+8.1f} "
-                      f"({r[f + '_rel']:+6.1f} %) +-{r[f + '_halfwidth']:6.1f}  z {z:+5.2f}")
-
-
 def main(argv=None):
     parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial22", VARIANTS)
     options = parser.parse_args(argv)
