@@ -304,17 +304,18 @@ def weather(site, idx, rng, change):
     wave = np.exp(-PROBE_DEPTH / depth) * np.roll(tair - smooth, delay)
     tsoil = np.interp(np.arange(n), np.arange(n_days) * per_day + per_day / 2,
                       lagged(t_mean, 4.0)) + 0.8 + wave
-    tsoil = np.where(snow[day], 0.2 + 0.08 * np.clip(tsoil, -15, 15), tsoil)
+    tsoil = np.where(snow[day], 0.2 + 1.2 * np.tanh(tsoil / 15), tsoil)
     # wind and u*
     log_z = np.full(n, site.log_z)
     if site.key == "D" and change:      # the plantation's roughness grows with it
         log_z = site.log_z - 0.6 * ramp(days_since(idx, site.start), 0, 4 * 365.25)
     wind_d = site.wind * rng.weibull(2.0, n_days) / 0.886
     up = sin_h > 0
-    speed = np.maximum(wind_d[day] * np.where(up, 1.25, 0.75)
-                       * np.exp(0.25 * ar1(rng, n, 0.85)), 0.2)
+    speed = np.hypot(wind_d[day] * np.where(up, 1.25, 0.75)
+                     * np.exp(0.25 * ar1(rng, n, 0.85)), 0.3)     # no flat calm floor
     stable = np.where(up, 1.0, 1 - 0.55 * trans[day] * np.exp(-speed / 3.0))
-    ustar = np.round(np.clip(KAPPA * speed / log_z * stable, 0.01, 2.5), 3)
+    # no flat floor either: the calmest records keep a small turbulence (invented)
+    ustar = np.round(np.hypot(KAPPA * speed / log_z * stable, 0.015), 3)
     return {"day": day, "days": days, "n_days": n_days, "doy": doy, "sin_h": sin_h,
             "rg": rg, "tair": tair, "t_mean": t_mean, "vpd": vpd, "rh": rh, "tsoil": tsoil,
             "water": water, "snow": snow, "ustar": ustar, "raining": raining}
@@ -462,8 +463,8 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
         near |= np.abs(days_since(idx, date)) <= 45
     if site.key == "A":                  # the drought's whole spell
         near |= (days_since(idx, dates[0]) >= -45) & (days_since(idx, dates[-1]) <= 45)
-    if site.key == "E":
-        near |= outage & (idx >= pd.Timestamp(OUTAGE_E[0]))
+    if site.key == "E" and change:       # the long outage itself
+        near |= (days_since(idx, OUTAGE_E[0]) >= 0) & (days_since(idx, OUTAGE_E[0]) < OUTAGE_E[1])
     truth = pd.DataFrame({"nee": nee, "gpp": gpp, "reco": reco, "night": night, "thr": thr,
                           "share": share, "outage": outage, "rain": rain_only, "near": near,
                           "offset": offset}, index=idx)
