@@ -37,7 +37,8 @@ random error; spikes; dropouts of 1-4 hours (three times as many starts by night
 (the rainy records and the next hour); one or two analyser outages of 5-20 days a year; a
 power outage of 2-5 days a year.
 
-Run from the repository root (about three minutes a draw on two shared cores)::
+Run from the repository root (a draw: five runs, 18 site-years, ~2 min on two free cores,
+~5 min at a load of 10)::
 
     nice -n 5 python tests/benchmarks/trial_twentythird.py --out /tmp/fluxpart-trial23 \\
         [--runs A,D] [--seed-offset 1]
