@@ -4,9 +4,9 @@
 Only the scoring is shared (and, since ``trial_eighteenth.py``, the command line and the
 loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the sites,
 ``run_sites``, and the scoring of a run's budget years, ``score_budget_years``; since ``trial_twentysecond.py`` the fill errors by rain gap and
-power outage, ``rain_outage_fill_parts``; since ``trial_twentyfourth.py`` the writer of a
-site's logger CSV and TOML, ``write_logger_site``, and the list of misses with z,
-``print_misses_z``): each trial
+power outage, ``rain_outage_fill_parts``; since ``trial_twentythird.py`` and
+``trial_twentyfourth.py`` the list of misses with z, ``print_misses_z`` (first written for
+trial 22), and the writer of a site's logger CSV and TOML, ``write_logger_site``): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
