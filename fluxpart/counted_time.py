@@ -212,6 +212,56 @@ def unit_mismatch(text: pd.Series, time_format: str) -> str:
     return f"{said}: check the unit of [input] time_format"
 
 
+#: A count written in scientific notation: its mantissa's digits after the point and
+#: its exponent ("1.609459E+12").
+_EXPONENT = re.compile(r"\s*[+-]?\d*(?:[.,](\d*))?[eE]([+-]?\d+)\s*")
+#: The largest error [s] a stamp may carry: the reader rounds stamps within 10 s of a
+#: whole minute to it (clock jitter), so a count rounded to more than twice that is
+#: read on another minute.
+_STAMP_TOLERANCE = 10.0
+
+
+def rounded_counts(text: pd.Series, time_format: str) -> str:
+    """Why counts written in scientific notation cannot place a record, or ''.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamp text per record.
+    time_format : str
+        A "<unit> since <reference>" format (:func:`counted_form`).
+
+    Returns
+    -------
+    str
+        Where a cell writes its count with an exponent and too few digits to place a
+        record within :data:`_STAMP_TOLERANCE` seconds (a spreadsheet's General
+        format shows a 13-digit count of Unix milliseconds as "1.609459E+12", seven
+        significant digits, 1000 s apart: saved as CSV so, the stamps are lost; layouts42:
+        refused as records 33.3 minutes apart), the cell, its resolution and the fix;
+        '' otherwise.
+
+    References
+    ----------
+    Scientific notation in spreadsheets' General number format, up to 11 characters
+    (Microsoft, "Available number formats in Excel" (m)).
+    """
+    seconds, _, _ = counted_form(time_format)
+    written = text.str.fullmatch(_EXPONENT).fillna(False).to_numpy(dtype=bool)
+    if not written.any():
+        return ""
+    first = int(np.flatnonzero(written)[0])
+    parts = _EXPONENT.fullmatch(text.iloc[first])
+    resolution = 10.0 ** (int(parts[2]) - len(parts[1] or "")) * seconds
+    if resolution <= 2 * _STAMP_TOLERANCE:
+        return ""
+    return (f"{int(written.sum())} count(s) are written in scientific notation "
+            f"({text.iloc[first].strip()!r}), whose last digit is {resolution:g} s: "
+            "rounded so, the stamps cannot place a record; write the counts as whole "
+            "numbers (in a spreadsheet, format the column as a number without exponent "
+            "before saving it as CSV)")
+
+
 #: The two day counts of spreadsheets: 1 January 1904 is day 1462 of the 1900 system
 #: (Microsoft, "Date systems in Excel": the 1904 system's dates are 1462 days later (m)).
 _DAY_SYSTEMS = {pd.Timestamp("1899-12-30"): ("1904-01-01", "Excel's 1904 date system"),

@@ -3265,6 +3265,17 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
             f"among the records, {same}, on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
+    cut = interleaved_lines.cut_records(lines, blocks, rows_before_header, delimiter)
+    if cut:
+        # a power cut stopped the logger mid-write, and it wrote its header again on
+        # restarting (layouts42): the record before is dropped as a file's last line cut
+        # short is (its last value may be cut mid-number)
+        warnings.append(
+            f"input file {str(path)!r}: {len(cut)} record(s) cut short right before the "
+            f"header written again ({_lines_word(cut)} {interleaved_lines.ranges(cut)}: "
+            f"{_shown_line(lines[cut[0]])!r}; a logger stopped mid-write and restarted?): "
+            "dropped")
+        skipped.update(cut)
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
     width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
              if rows_before_header < len(lines) else 0)
