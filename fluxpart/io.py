@@ -91,6 +91,7 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
+from .quoted_lines import wrapped_lines_message
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -2697,6 +2698,12 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     if markup:
         raise InputFileError(markup)
     _refuse_wide_header(path, text, delimiter, rows_before_header)
+    if text[:4096].count('"') >= 4:
+        wrapped = wrapped_lines_message(text[:65536].splitlines(), delimiter,
+                                        rows_before_header,
+                                        rows_before_header + rows_after_header + 1)
+        if wrapped:
+            raise InputFileError(f"input file {str(path)!r}: {wrapped}")
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}

@@ -137,3 +137,20 @@ def test_counts_in_scientific_notation_are_refused_where_they_cannot_place_a_rec
     assert rounded_counts(days, "days since 1899-12-30") == ""
     assert rounded_counts(pd.Series(["1622505600000"]),
                           "milliseconds since 1970-01-01 UTC") == ""
+
+
+def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_path):
+    """Before layouts42: "the header is one cell holding commas: set [input] delimiter =
+    ','", the delimiter already set. A field in quotes holds the delimiter (RFC 4180,
+    section 2 (m)): each such line is one field."""
+    frame, _ = _records(48)
+    lines = frame.to_csv(index=False).splitlines()
+    (tmp_path / "t.csv").write_text("\n".join(f'"{line}"' for line in lines) + "\n")
+    with pytest.raises(InputFileError) as caught:
+        _read(tmp_path / "t.csv")
+    assert "wrapped in one pair of double quotes" in str(caught.value)
+    assert "delimiter =" not in str(caught.value)
+    # quoted fields, as CSV writers quote them, are read
+    quoted = ['"' + '","'.join(line.split(",")) + '"' for line in lines]
+    (tmp_path / "q.csv").write_text("\n".join(quoted) + "\n")
+    assert len(_read(tmp_path / "q.csv")[0]) == 48

@@ -497,6 +497,62 @@ def daily_tree_with_resource_fork_files(folder):
                                                   + b"Mac OS X        " + b"\x00" * 60)
 
 
+@case
+def every_line_quoted_whole(folder):
+    p40.edited(folder, lambda text, raw: [f'"{line}"' for line in text])
+    return "refused"      # one field a line: a record's fields are no CSV fields
+
+
+def german_sheet(folder, **inputs):
+    """A German spreadsheet's CSV: semicolons, decimal commas, "#NV" for no value."""
+    raw, _ = table()
+    raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False)).replace("-9999", "#NV")
+    p41.saved(folder, raw, sep=";", decimal=",", **inputs)
+
+
+@case
+def german_sheet_no_value_error_declared(folder):
+    german_sheet(folder, missing=["#NV"])
+
+
+@case
+def german_sheet_no_value_error_undeclared(folder):
+    german_sheet(folder)
+    return "refused"
+
+
+@case
+def tab_file_decimal_comma_undeclared(folder):
+    raw, _ = table()
+    raw = raw.apply(lambda c: c.str.replace(".", ",", regex=False))
+    p41.saved(folder, raw, sep="\t", name="t.txt")
+    return "refused"      # "0,329" in a tab file: the decimal mark is the user's word
+
+
+@case
+def every_line_indented_by_two_blanks(folder):
+    p40.edited(folder, lambda text, raw: ["  " + line for line in text])
+
+
+@case
+def units_line_with_carets_and_slashes(folder):
+    with_header_lines(folder, [["", "umol m^-2 s^-1", "W/m^2", "deg C", "kPa", "m s^-1",
+                                "deg C", "%", ""]])
+
+
+@case
+def units_line_says_fahrenheit_config_silent_values_fahrenheit(folder):
+    def edit(text, raw):
+        raw["air_c"] = [c if c == "-9999" else f"{float(c) * 1.8 + 32:.2f}"
+                        for c in raw["air_c"]]
+        out = lines(raw)
+        out[1:1] = [",".join(UNITS[:3] + ["degF"] + UNITS[4:])]
+        return out
+
+    p40.edited(folder, edit, rows_after_header=1)
+    return "refused"
+
+
 def judge(name, folder, base_tables, cli):
     """The case's state as ``probe_layouts41.judge`` finds it (``probe_layouts40``'s
     where the case returns the records it leaves out)."""
