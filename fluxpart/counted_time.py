@@ -226,10 +226,9 @@ def rounded_counts(text: pd.Series, time_format: str) -> str:
 
     Parameters
     ----------
-    text : pandas.Series of str
-        The stamp text per record.
-    time_format : str
-        A "<unit> since <reference>" format (:func:`counted_form`).
+    text, time_format
+        The stamp text per record and the "<unit> since <reference>" format, as for
+        :func:`unit_mismatch`.
 
     Returns
     -------

@@ -78,6 +78,23 @@ def last_line_cut(folder, order, keep):
     return p41.LAST_DROPPED
 
 
+def converted(cells, form):
+    """`cells` (text) with each number v written `form(v)`, -9999 kept."""
+    return [c if c == "-9999" else form(float(c)) for c in cells]
+
+
+def in_other_unit(folder, column, form, unit):
+    """The example with `column` written `form(value)` and `unit` on a units line."""
+    def edit(text, raw):
+        raw[column] = converted(raw[column], form)
+        out = lines(raw)
+        at = list(raw.columns).index(column)
+        out[1:1] = [",".join(UNITS[:at] + [unit] + UNITS[at + 1:])]
+        return out
+
+    p40.edited(folder, edit, rows_after_header=1)
+
+
 def split_by_variable(folder, groups, pattern="{}.csv"):
     """One file a group of columns (name -> columns), each with the stamp."""
     raw, _ = table()
@@ -153,15 +170,20 @@ def iso_t_and_z_without_seconds(folder):
     p38.restamped(folder, "%Y-%m-%dT%H:%MZ", "ISO8601", shift="1h")
 
 
-@case
-def midnight_as_2400_in_one_column(folder):
+def closing_at_2400(form, closing):
+    """The end stamps written by `form`, midnight as the day before's `closing` form."""
     def written(ends):
         start = ends - pd.Timedelta("30min")
         midnight = (ends.dt.hour == 0) & (ends.dt.minute == 0)
-        return list(np.where(midnight, start.dt.strftime("%Y-%m-%d 24:00"),
-                             ends.dt.strftime("%Y-%m-%d %H:%M")))
+        return list(np.where(midnight, start.dt.strftime(closing), ends.dt.strftime(form)))
 
-    p38.restamped(folder, written, "%Y-%m-%d %H:%M")
+    return written
+
+
+@case
+def midnight_as_2400_in_one_column(folder):
+    p38.restamped(folder, closing_at_2400("%Y-%m-%d %H:%M", "%Y-%m-%d 24:00"),
+                  "%Y-%m-%d %H:%M")
 
 
 def period(ends):
@@ -278,44 +300,32 @@ def units_line_says_hpa_config_kpa_values_kpa(folder):
 
 @case
 def units_line_says_hpa_config_kpa_values_hpa(folder):
-    def edit(text, raw):
-        raw["dryness"] = [c if c == "-9999" else f"{float(c) * 10:.3f}" for c in raw["dryness"]]
-        out = lines(raw)
-        out[1:1] = [",".join(u.replace("kPa", "hPa") for u in UNITS)]
-        return out
-
-    p40.edited(folder, edit, rows_after_header=1)
+    in_other_unit(folder, "dryness", lambda v: f"{v * 10:.3f}", "hPa")
     return "refused"      # the config's kPa against a file of hPa: ten times too dry
 
 
 @case
 def units_line_says_kelvin_config_silent_values_kelvin(folder):
-    def edit(text, raw):
-        raw["air_c"] = [c if c == "-9999" else f"{float(c) + 273.15:.2f}" for c in raw["air_c"]]
-        out = lines(raw)
-        out[1:1] = [",".join(UNITS[:3] + ["K"] + UNITS[4:])]
-        return out
-
-    p40.edited(folder, edit, rows_after_header=1)
+    in_other_unit(folder, "air_c", lambda v: f"{v + 273.15:.2f}", "K")
     return "refused"
+
+
+def two_heights(folder, **inputs):
+    """The example's air temperature as "air_c_2m" beside an "air_c_12m" 0.4 K cooler."""
+    raw, _ = table()
+    raw = raw.rename(columns={"air_c": "air_c_2m"})
+    raw.insert(4, "air_c_12m", converted(raw["air_c_2m"], lambda v: f"{v - 0.4:.2f}"))
+    p41.saved(folder, raw, **inputs)
 
 
 @case
 def two_heights_of_air_temperature_one_mapped(folder):
-    raw, _ = table()
-    upper = [c if c == "-9999" else f"{float(c) - 0.4:.2f}" for c in raw["air_c"]]
-    raw = raw.rename(columns={"air_c": "air_c_2m"})
-    raw.insert(4, "air_c_12m", upper)
-    p41.saved(folder, raw, columns=MAP | {"tair": "air_c_2m"})
+    two_heights(folder, columns=MAP | {"tair": "air_c_2m"})
 
 
 @case
 def two_heights_of_air_temperature_base_name_mapped(folder):
-    raw, _ = table()
-    upper = [c if c == "-9999" else f"{float(c) - 0.4:.2f}" for c in raw["air_c"]]
-    raw = raw.rename(columns={"air_c": "air_c_2m"})
-    raw.insert(4, "air_c_12m", upper)
-    p41.saved(folder, raw)
+    two_heights(folder)
     return "refused"      # "air_c" is no column; which height? the user's word
 
 
@@ -421,13 +431,8 @@ def unix_milliseconds_in_scientific_notation(folder):
 
 @case
 def iso_2400_closing_each_day(folder):
-    def written(ends):
-        start = ends - pd.Timedelta("30min")
-        midnight = (ends.dt.hour == 0) & (ends.dt.minute == 0)
-        return list(np.where(midnight, start.dt.strftime("%Y-%m-%dT24:00:00"),
-                             ends.dt.strftime("%Y-%m-%dT%H:%M:%S")))
-
-    p38.restamped(folder, written, "ISO8601")
+    p38.restamped(folder, closing_at_2400("%Y-%m-%dT%H:%M:%S", "%Y-%m-%dT24:00:00"),
+                  "ISO8601")
 
 
 @case
@@ -542,14 +547,7 @@ def units_line_with_carets_and_slashes(folder):
 
 @case
 def units_line_says_fahrenheit_config_silent_values_fahrenheit(folder):
-    def edit(text, raw):
-        raw["air_c"] = [c if c == "-9999" else f"{float(c) * 1.8 + 32:.2f}"
-                        for c in raw["air_c"]]
-        out = lines(raw)
-        out[1:1] = [",".join(UNITS[:3] + ["degF"] + UNITS[4:])]
-        return out
-
-    p40.edited(folder, edit, rows_after_header=1)
+    in_other_unit(folder, "air_c", lambda v: f"{v * 1.8 + 32:.2f}", "degF")
     return "refused"
 
 
