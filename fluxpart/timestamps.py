@@ -1234,18 +1234,23 @@ def _period_stamps(failed: pd.Series) -> str:
     strptime reads one time of a field; which end is the record's stamp is the user's
     word (``time_marks``), and the date written beside a period is its start's (the
     period 23:30-00:00 ends on the next day), so the fix keeps the start (layouts42).
+    Every period must last as long, up to 3 hours (a record's length): a clock and its
+    UTC offset ("14:30:00-01:00") lasts no one length.
     """
-    found = failed.str.fullmatch(_PERIOD)
-    if not len(failed) or not found.all():
+    if not len(failed):
         return ""
-    start, end = _PERIOD.fullmatch(failed.iloc[0]).groups()
+    times = failed.str.extract(_PERIOD.pattern + "$")
+    if times.isna().any(axis=None):
+        return ""
 
-    def minutes(clock):
-        hours, minutes_ = clock.split(":")[:2]
-        return int(hours) * 60 + int(minutes_)
+    def minutes(clocks):
+        parts = clocks.str.split(":", expand=True)
+        return parts[0].astype(int) * 60 + parts[1].astype(int)
 
-    if not 0 < (minutes(end) - minutes(start)) % 1440 <= 180:
-        return ""          # no record's length ("14:30:00-01:00" is a UTC offset)
+    lengths = ((minutes(times[1]) - minutes(times[0])) % 1440).unique()
+    if len(lengths) != 1 or not 0 < lengths[0] <= 180:
+        return ""
+    start, end = times.iloc[0]
     return (f"the stamps write a period, its start and end ({start!r} to {end!r}), and "
             "time_format reads one time: in a copy of the file keep the date and the "
             "start time (cut the column at the dash) and set [input] time_marks = "

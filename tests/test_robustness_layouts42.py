@@ -105,8 +105,11 @@ def test_stamps_written_as_a_period_are_named_with_the_fix(tmp_path):
         _read(tmp_path / "t.csv", "%Y-%m-%d %H:%M")
     assert "write a period" in str(caught.value) and 'time_marks = "start"' \
         in str(caught.value)
-    # a clock and a UTC offset is no period (10.5 h is no record's length)
+    # a clock and a UTC offset is no period: 10.5 h is no record's length, and a
+    # column of them lasts no one length
     assert _period_stamps(pd.Series(["2021-06-01 14:30:00-01:00"])) == ""
+    assert _period_stamps(pd.Series(["2021-06-01T00:00:00-01:00",
+                                     "2021-06-01T00:30:00-01:00"])) == ""
     assert _period_stamps(pd.Series(["2021-06-01 23:30 to 00:00"])) != ""
 
 
