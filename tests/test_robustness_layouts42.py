@@ -129,17 +129,24 @@ def test_unix_time_under_percent_s_names_the_counted_form(tmp_path):
     assert seconds[0] == 1622505600 - 1800             # 00:30 at UTC+1 is 23:30 UTC
 
 
-def test_counts_in_scientific_notation_are_refused_where_they_cannot_place_a_record():
+def test_counts_too_coarse_for_a_record_are_refused_naming_their_digits():
     """A 13-digit count of milliseconds shown with seven significant digits (a
     spreadsheet's General format) is 1000 s coarse: refused before layouts42 as records
-    33.3 minutes apart; a spreadsheet day number with ten is 0.09 s fine: read."""
+    33.3 minutes apart; day numbers with three decimals (86.4 s: 1 day = 86 400 s) as a
+    logger stamping the moment it writes. Digits that divide the half hour (whole
+    minutes, hours to one decimal) or of 20 s or less (days to four decimals: 8.64 s)
+    place every record: read."""
     millis = pd.Series(["1.622505E+12", "1.622507E+12"])
     said = rounded_counts(millis, "milliseconds since 1970-01-01 UTC")
-    assert "1000 s" in said and "whole numbers" in said
-    days = pd.Series(["4.4348020833E+04"])
-    assert rounded_counts(days, "days since 1899-12-30") == ""
-    assert rounded_counts(pd.Series(["1622505600000"]),
-                          "milliseconds since 1970-01-01 UTC") == ""
+    assert "scientific notation to a last digit of 1000 s" in said and "more digits" in said
+    days = pd.Series(["44348.021", "44348.042", "44348.5"])   # 44348.5: zeros dropped
+    assert "last digit of 86.4 s" in rounded_counts(days, "days since 1899-12-30")
+    for cells, form in ((["4.4348020833E+04"], "days since 1899-12-30"),
+                        (["44348.0208", "44348.0417"], "days since 1899-12-30"),
+                        (["30", "60", "90"], "minutes since 2021-06-01"),
+                        (["0.5", "1", "1.5"], "hours since 2021-06-01"),
+                        (["1622505600000"], "milliseconds since 1970-01-01 UTC")):
+        assert rounded_counts(pd.Series(cells), form) == "", cells
 
 
 def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_path):

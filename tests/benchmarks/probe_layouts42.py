@@ -8,7 +8,7 @@ none of their cases is repeated.
 
 Each case rewrites the invented Quillmoor grassland year (``examples/quillmoor_grassland.csv``,
 a FICTIONAL site) as a station might: stamps with a UTC offset that changes in summer,
-Unix milliseconds, two-digit years, month names, ordinal dates, periods ("14:00-14:30"),
+Unix milliseconds (also in scientific notation), day numbers to three decimals, two-digit years, month names, ordinal dates, periods ("14:00-14:30"),
 midnight as 24:00 in one column; no-value codes of several kinds in one file; a last value
 cut mid-number, zero bytes in a gzip, a record cut by a restart; blank lines between
 records; header blocks of three lines and units lines the config contradicts; two heights
@@ -549,6 +549,35 @@ def units_line_with_carets_and_slashes(folder):
 def units_line_says_fahrenheit_config_silent_values_fahrenheit(folder):
     in_other_unit(folder, "air_c", lambda v: f"{v * 1.8 + 32:.2f}", "degF")
     return "refused"
+
+
+@case
+def spreadsheet_rows_of_delimiters_only_at_the_end(folder):
+    """A sheet's formatted but empty rows, saved as lines of commas alone."""
+    p40.edited(folder, lambda text, raw: text + [","  * 8] * 25, ending="\r\n")
+
+
+@case
+def rows_of_delimiters_only_among_the_records(folder):
+    def edit(text, raw):
+        for at in (9000, 4000, 200):
+            text[at:at] = ["," * 8]
+        return text
+
+    p40.edited(folder, edit)
+
+
+@case
+def placeholder_record_with_an_empty_quoted_stamp_at_the_end(folder):
+    p40.edited(folder, lambda text, raw: text + ['"",' + ",".join(['""'] * 8)])
+
+
+@case
+def spreadsheet_day_numbers_with_three_decimals(folder):
+    """Day numbers shown with three decimals (86.4 s) and saved so."""
+    p38.restamped(folder, lambda ends: [f"{v:.3f}" for v in (ends - pd.Timestamp("1899-12-30"))
+                                        / pd.Timedelta("1D")], "days since 1899-12-30")
+    return "refused"      # up to 43 s off: no stamp of the record's own
 
 
 def judge(name, folder, base_tables, cli):
