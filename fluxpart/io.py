@@ -5289,8 +5289,9 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         cell = cleaned.iloc[first]
         if decimal == "." and "," in cell and pd.notna(
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
-            hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
-                    "delimiter, e.g. delimiter = \";\")")
+            # a cell holds the comma whole, so the delimiter already read the fields
+            # (layouts42: "and the delimiter, e.g. ';'" was said of a tab file too)
+            hint = "; it looks like a decimal comma: set [input] decimal = \",\""
             if _DIGIT_GROUPING["."].fullmatch(cell):
                 hint += (", unless it is a thousands separator (1,034 for 1034): then write "
                          "the numbers without digit grouping in a copy of the file")

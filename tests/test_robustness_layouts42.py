@@ -164,3 +164,21 @@ def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_pat
     quoted = ['"' + '","'.join(line.split(",")) + '"' for line in lines]
     (tmp_path / "q.csv").write_text("\n".join(quoted) + "\n")
     assert len(_read(tmp_path / "q.csv")[0]) == 48
+
+
+def test_decimal_commas_of_a_tab_file_ask_for_the_decimal_setting_alone(tmp_path):
+    """The hint added "(and the delimiter, e.g. delimiter = ';')" before layouts42, to a
+    tab file whose delimiter was set and had split the fields."""
+    frame, _ = _records(48)
+    text = frame.to_csv(index=False, sep="\t").replace(".", ",")
+    (tmp_path / "t.txt").write_text(text)
+    with pytest.raises(InputFileError) as caught:
+        read_table(tmp_path / "t.txt", columns=MAPPING, units={"vpd": "kPa"}, site=SITE,
+                   time_column="stamp", time_format="%Y%m%d%H%M", time_marks="end",
+                   delimiter="\t")
+    assert 'it looks like a decimal comma: set [input] decimal = ","' in str(caught.value)
+    assert "delimiter" not in str(caught.value)
+    read = read_table(tmp_path / "t.txt", columns=MAPPING, units={"vpd": "kPa"},
+                      site=SITE, time_column="stamp", time_format="%Y%m%d%H%M",
+                      time_marks="end", delimiter="\t", decimal=",")[0]
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy())
