@@ -200,6 +200,12 @@ _BINARY_SIGNATURES = (
     (b"\x04\x22\x4d\x18", "LZ4-compressed", "decompress it (e.g. lz4 -d)"),
     (b"LZIP", "lzip-compressed", "decompress it (e.g. lzip -d)"),
     (b"\x1f\x9d", "compressed by Unix compress (.Z)", "decompress it (e.g. uncompress)"),
+    # files of data tools (layouts42: a Feather file was refused as "not utf-8 text"
+    # with the hint to set [input] encoding): Avro object containers open with "Obj"
+    # and 0x01 (Avro specification (m)), SQLite databases with their header string
+    # (SQLite file format, section 1.3.1 (m)); Arrow and Feather files in refuse_binary
+    (b"Obj\x01", "an Avro file", "export it as CSV"),
+    (b"SQLite format 3\x00", "an SQLite database", "export the table of records as CSV"),
 )
 
 
@@ -296,6 +302,12 @@ def refuse_binary(data: bytes, path) -> None:
     signatures = list(_BINARY_SIGNATURES)
     if data.startswith(b"PAR1") and data.endswith(b"PAR1"):
         signatures.append((b"PAR1", "a Parquet file", "export it as CSV"))
+    for magic, kind in ((b"ARROW1", "an Arrow (Feather) file"), (b"FEA1", "a Feather file")):
+        # the Arrow IPC file format, and Feather version 1 before it, open and close
+        # with these bytes (Apache Arrow columnar format, "IPC File Format" (m)); both
+        # ends, as for Parquet, so that a text table whose header opens so is read
+        if data.startswith(magic) and data.endswith(magic):
+            signatures.append((magic, kind, "export it as CSV"))
     if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
         signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
     if data.startswith(b"PK\x03\x04"):
@@ -324,6 +336,15 @@ def refuse_binary(data: bytes, path) -> None:
                                  f"{len(members)} file(s) ({shown}{more}), not a text table; "
                                  f"unpack it{inner} and point [input] path at the text "
                                  "file(s)")
+        if members is not None:
+            # a workbook's parts (layouts42: "unpack it" cannot help a workbook, whose
+            # unpacked parts are XML; no spreadsheet reader is a dependency)
+            kind = ("an OpenDocument spreadsheet (.ods)" if "mimetype" in members
+                    else "an Office Open XML workbook (.xlsx)")
+            raise InputFileError(f"[input] path: {str(path)!r} is {kind}, not a text "
+                                 "table; in the spreadsheet program save the sheet of "
+                                 "records as CSV (one header line of names, one line per "
+                                 "record) and point [input] path at the CSV file")
     for signature, kind, fix in signatures:
         if data.startswith(signature):
             raise InputFileError(f"[input] path: {str(path)!r} is {kind}, not a text table; "

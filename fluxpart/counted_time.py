@@ -212,6 +212,73 @@ def unit_mismatch(text: pd.Series, time_format: str) -> str:
     return f"{said}: check the unit of [input] time_format"
 
 
+#: A count as written: its digits after the decimal mark and its exponent, if any
+#: ("44197.021", "1.609459E+12").
+_WRITTEN_COUNT = re.compile(r"\s*[+-]?\d*(?:[.,](?P<decimals>\d*))?(?:[eE](?P<exponent>[+-]?\d+))?\s*")
+#: The largest error [s] a stamp may carry: the reader rounds stamps within 10 s of a
+#: whole minute to it (clock jitter), so a count rounded to more than twice that is
+#: read on another minute.
+_STAMP_TOLERANCE = 10.0
+#: The half hour [s]: every record stamp fluxpart reads (30- and 60-minute records)
+#: lies on its grid.
+_HALF_HOUR = 1800.0
+
+
+def rounded_counts(text: pd.Series, time_format: str) -> str:
+    """Why counts written with too few digits cannot place a record, or ''.
+
+    Parameters
+    ----------
+    text, time_format
+        The stamp text per record and the "<unit> since <reference>" format, as for
+        :func:`unit_mismatch`.
+
+    Returns
+    -------
+    str
+        Where the finest last digit any cell writes (its decimals, less its exponent)
+        is more than twice :data:`_STAMP_TOLERANCE` seconds and does not divide the
+        half hour, so that the records' stamps cannot be written (a spreadsheet's
+        General format shows a 13-digit count of Unix milliseconds as
+        "1.609459E+12", 1000 s; day numbers shown with three decimals are 86.4 s:
+        refused before as records 33.3 minutes apart, or as a logger stamping the
+        moment it writes; layouts42): a cell, the digit's size and the fix; ''
+        otherwise (whole minutes, hours to one decimal, days to four).
+
+    References
+    ----------
+    Scientific notation in spreadsheets' General number format, up to 11 characters
+    (Microsoft, "Available number formats in Excel" (m)).
+    """
+    seconds, _, _ = counted_form(time_format)
+    cells = text.str.strip()
+    numeric = np.isfinite(counts(text))
+    if not numeric.any():
+        return ""
+    # string methods, not a regular expression a cell: ten years of records in 0.1 s
+    point = np.maximum(cells.str.find(".").to_numpy(), cells.str.find(",").to_numpy())
+    decimals = np.where(point >= 0, cells.str.len().to_numpy() - point - 1, 0).astype(float)
+    exponent = np.zeros(len(cells))
+    written = cells.str.contains("e", case=False, regex=False).to_numpy(dtype=bool) & numeric
+    if written.any():
+        parts = cells[written].str.extract("^" + _WRITTEN_COUNT.pattern + "$")
+        decimals[written] = parts["decimals"].fillna("").str.len().to_numpy(dtype=float)
+        exponent[written] = pd.to_numeric(parts["exponent"], errors="coerce").fillna(0)
+    digit = 10.0 ** (exponent - decimals)[numeric] * seconds
+    finest = float(digit.min())
+    if finest <= 2 * _STAMP_TOLERANCE or abs(_HALF_HOUR / finest
+                                             - round(_HALF_HOUR / finest)) < 1e-9:
+        return ""
+    first = int(np.flatnonzero(numeric)[int(np.argmin(digit))])
+    shown = text.iloc[first].strip()
+    notation = "in scientific notation " if "e" in shown.lower() else ""
+    return (f"its counts are written {notation}to a last digit of {finest:g} s at the "
+            f"finest ({shown!r}), too coarse to write a record's stamp: rounded so, the "
+            "stamps cannot place the records; write the counts with more digits (in a "
+            "spreadsheet, format the column as a number with enough decimals and no "
+            "exponent before saving it as CSV)")
+
+
 #: The two day counts of spreadsheets: 1 January 1904 is day 1462 of the 1900 system
 #: (Microsoft, "Date systems in Excel": the 1904 system's dates are 1462 days later (m)).
 _DAY_SYSTEMS = {pd.Timestamp("1899-12-30"): ("1904-01-01", "Excel's 1904 date system"),

@@ -15,9 +15,11 @@ that cannot take a record for one:
   header that opens with no digit: a logger program's new version or signature), and
   with a
   record (a line of the header's fields) or the header's own block before it, blank and
-  note lines aside (the notes judged as below): a header
-  after a line of another width (a page number, a title the settings do not count, a
-  record cut short by the power cut) is left to the reader's refusal;
+  note lines aside (the notes judged as below), or a record cut short after a record
+  (fewer fields, its stamp as long as the record's before: the power cut that restarted the
+  logger; the reader drops it, as it drops a file's last line cut short; layouts42): a
+  header after another line (a page number, a title the settings do not count) is left
+  to the reader's refusal;
 - a note line starts with a comment mark that no record of the file starts with, every
   note among the records starting with the same mark (the file's own), and a record
   follows it (a block ending the file is a footer, judged by the reader); a line of the
@@ -123,15 +125,49 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
                            for own, line in zip(units, lines[index + 1:last + 1],
                                                 strict=True))):
             return []
-        before = first - 1
-        marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
-        while before >= 0 and (not lines[before].strip() or _mark(lines[before], marks)):
-            before -= 1              # blank lines and notes before it ("# power cut")
+        before = _before(lines, first, delimiter)   # blank lines and notes ("# power cut")
         after_block = blocks and before == blocks[-1][1]
-        if not after_block and field_count(lines[before], delimiter) != width:
+        if (not after_block and field_count(lines[before], delimiter) != width
+                and not _cut_record(lines, before, delimiter, width)):
             return []
         blocks.append((first, last))
     return blocks
+
+
+def _before(lines: list, index: int, delimiter: str) -> int:
+    """The index of the last line before `index` that is neither blank nor a note, or -1."""
+    marks = tuple(mark for mark in COMMENT_MARKS if not mark.startswith(delimiter))
+    index -= 1
+    while index >= 0 and (not lines[index].strip() or _mark(lines[index], marks)):
+        index -= 1
+    return index
+
+
+def _cut_record(lines: list, index: int, delimiter: str, width: int) -> bool:
+    """Whether line `index` is a record cut short by a power cut: more than one field
+    and fewer than the header's `width`, after a record of `width` fields whose first
+    field (the stamp) is as long as its own (a page number, "2", is no record)."""
+    line = lines[index].strip() if index >= 0 else ""
+    previous = _before(lines, index, delimiter) if line else -1
+    if previous < 0 or not 1 < field_count(line, delimiter) < width \
+            or field_count(lines[previous], delimiter) != width:
+        return False
+    return len(_split(lines[previous].strip(), delimiter)[0]) == len(_split(line, delimiter)[0])
+
+
+def cut_records(lines: list, blocks: list, rows_before_header: int, delimiter: str) -> list:
+    """Indices (0-based) of the records cut short right before the repeated header
+    `blocks` (``(first, last)`` of :func:`repeated_header_blocks`): a logger stopped
+    mid-write, restarted and wrote its header again (layouts42: refused before, as a
+    header after a line of another width). As the file's own last line cut short, such
+    a line is a record whose last value may be cut mid-number: the reader drops it."""
+    if not blocks:
+        return []
+    width = field_count(lines[rows_before_header], delimiter)
+    befores = [_before(lines, first, delimiter) for first, _ in blocks]
+    return [index for index in befores if index >= 0
+            and field_count(lines[index], delimiter) != width
+            and _cut_record(lines, index, delimiter, width)]
 
 
 def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_mark=None

@@ -92,6 +92,7 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
+from .quoted_lines import wrapped_lines_message
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -2793,6 +2794,12 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     if markup:
         raise InputFileError(markup)
     _refuse_wide_header(path, text, delimiter, rows_before_header)
+    if text[:4096].count('"') >= 4:
+        wrapped = wrapped_lines_message(text[:65536].splitlines(), delimiter,
+                                        rows_before_header,
+                                        rows_before_header + rows_after_header + 1)
+        if wrapped:
+            raise InputFileError(f"input file {str(path)!r}: {wrapped}")
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
@@ -3361,6 +3368,17 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
             f"among the records, {same}, on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
+    cut = interleaved_lines.cut_records(lines, blocks, rows_before_header, delimiter)
+    if cut:
+        # a power cut stopped the logger mid-write, and it wrote its header again on
+        # restarting (layouts42): the record before is dropped as a file's last line cut
+        # short is (its last value may be cut mid-number)
+        warnings.append(
+            f"input file {str(path)!r}: {len(cut)} record(s) cut short right before the "
+            f"header written again ({_lines_word(cut)} {interleaved_lines.ranges(cut)}: "
+            f"{_shown_line(lines[cut[0]])!r}; a logger stopped mid-write and restarted?): "
+            "dropped")
+        skipped.update(cut)
     kept = [("" if index in skipped else line) for index, line in enumerate(lines)]
     width = (interleaved_lines.field_count(lines[rows_before_header], delimiter)
              if rows_before_header < len(lines) else 0)
@@ -5373,8 +5391,9 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
         cell = cleaned.iloc[first]
         if decimal == "." and "," in cell and pd.notna(
                 pd.to_numeric(cell.replace(",", "."), errors="coerce")):
-            hint = ("; it looks like a decimal comma: set [input] decimal = \",\" (and the "
-                    "delimiter, e.g. delimiter = \";\")")
+            # a cell holds the comma whole, so the delimiter already read the fields
+            # (layouts42: "and the delimiter, e.g. ';'" was said of a tab file too)
+            hint = "; it looks like a decimal comma: set [input] decimal = \",\""
             if _DIGIT_GROUPING["."].fullmatch(cell):
                 hint += (", unless it is a thousands separator (1,034 for 1034): then write "
                          "the numbers without digit grouping in a copy of the file")

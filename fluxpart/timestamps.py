@@ -22,7 +22,14 @@ import numpy as np
 import pandas as pd
 
 from .config import setting_text
-from .counted_time import counted_form, counted_stamps, counts, day_system_mismatch, unit_mismatch
+from .counted_time import (
+    counted_form,
+    counted_stamps,
+    counts,
+    day_system_mismatch,
+    rounded_counts,
+    unit_mismatch,
+)
 from .decimal_time import day_of_year_origin, decimal_stamps
 from .errors import (
     ConfigError,
@@ -258,8 +265,11 @@ def _to_datetime(text: pd.Series, time_format: str, utc: bool) -> pd.Series:
                 f"{months}") from None
         hint = ""
         if "%s" in time_format:
-            hint = ("; %s (Unix time, seconds since 1970 UTC) is not read: write the column "
-                    "as dates and times in a copy of the file and set time_format to match")
+            # layouts42: the hint said to rewrite the column, where a count of time
+            # since a date (the CF conventions' form) reads Unix time as written
+            hint = ("; for Unix time (seconds since 1970-01-01 UTC) write time_format = "
+                    "\"seconds since 1970-01-01 UTC\" (\"milliseconds since ...\" for "
+                    "milliseconds)")
         raise TimestampError(f"[input] time_format = {setting_text(time_format)} cannot be used: "
                              f"{' '.join(str(error).split())}{hint}") from None
 
@@ -1216,6 +1226,43 @@ def _exchanged_spread(text: pd.Series, parsed: pd.Series, plain: np.ndarray,
             f"days of records: write time_format = {setting_text(swapped)}")
 
 
+#: A clock time of a period's start, a dash (hyphen or en dash) or "to", and its end
+#: ("14:00-14:30", "14:00 - 14:30", "14:00 to 14:30") closing a stamp.
+_PERIOD = re.compile(r".*?(\d{1,2}:\d{2}(?::\d{2})?)\s*(?:[-\u2013]|\bto\b)\s*"
+                     r"(\d{1,2}:\d{2}(?::\d{2})?)\s*")
+
+
+def _period_stamps(failed: pd.Series) -> str:
+    """The cause and fix where every stamp that fails writes a period, its start and
+    end times ("2021-03-05 14:00-14:30": some portals' and spreadsheets' layout), or "".
+
+    strptime reads one time of a field; which end is the record's stamp is the user's
+    word (``time_marks``), and the date written beside a period is its start's (the
+    period 23:30-00:00 ends on the next day), so the fix keeps the start (layouts42).
+    Every period must last as long, up to 3 hours (a record's length): a clock and its
+    UTC offset ("14:30:00-01:00") lasts no one length.
+    """
+    if not len(failed):
+        return ""
+    times = failed.str.extract(_PERIOD.pattern + "$")
+    if times.isna().any(axis=None):
+        return ""
+
+    def minutes(clocks):
+        parts = clocks.str.split(":", expand=True)
+        return parts[0].astype(int) * 60 + parts[1].astype(int)
+
+    lengths = ((minutes(times[1]) - minutes(times[0])) % 1440).unique()
+    if len(lengths) != 1 or not 0 < lengths[0] <= 180:
+        return ""
+    start, end = times.iloc[0]
+    return (f"the stamps write a period, its start and end ({start!r} to {end!r}), and "
+            "time_format reads one time: in a copy of the file keep the date and the "
+            "start time (cut the column at the dash) and set [input] time_marks = "
+            "\"start\" (the date beside a period is its start's: the end of 23:30-00:00 "
+            "falls on the next day)")
+
+
 def _fraction_hint(failed: pd.Series, time_format: str) -> str:
     """A hint where stamps that fail hold numbers with a decimal fraction (a decimal day
     of year or hour; integers saved from a table of floating-point numbers), else ''."""
@@ -1317,7 +1364,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # counts of time since a reference ("days since 1899-12-30"): written as stamps
         # and read as such from here on (layouts38; refused before, naming the readings)
         written_format = time_format
-        mismatch = unit_mismatch(text, time_format)
+        mismatch = rounded_counts(text, time_format) or unit_mismatch(text, time_format)
         if mismatch:
             # a count in another unit (milliseconds as seconds): named by its unit, not
             # as stamps beyond 3000 years, 12-hour clocks or 2-second records (review51)
@@ -1519,6 +1566,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "EST): write the "
                     "stamps with a numeric offset (+02:00, %z), or without the abbreviation "
                     "and with [input] time_zone = \"Area/City\"")
+        elif (found := _period_stamps(text[failed])):
+            hint = "; " + found
         elif (found := _numeric_clock(text)):
             hint = "; " + found
         elif (found := _serial_date_column(text, time_columns)):

@@ -238,10 +238,11 @@ def test_a_zip_holding_a_compressed_file_names_it(tmp_path):
     assert "holding 2 file(s) ('tower.csv.gz', 'notes.txt')" in message
     assert "workbook" not in message
     # a workbook's parts ([Content_Types].xml, ECMA-376 (m)) keep the workbook's words
+    # (since layouts42 the workbook's kind, without "unpack it")
     book = tmp_path / "b.xlsx"
     with zipfile.ZipFile(book, "w") as archive:
         archive.writestr("[Content_Types].xml", "<Types/>")
-    with pytest.raises(Exception, match="an .xlsx or .ods workbook"):
+    with pytest.raises(Exception, match=r"an Office Open XML workbook \(\.xlsx\)"):
         _read(book)
 
 

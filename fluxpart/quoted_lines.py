@@ -1,0 +1,47 @@
+"""Lines wrapped whole in one pair of double quotes.
+
+A program that writes each record as one string (a script printing ``repr`` of a line,
+an export of a one-column table, a spreadsheet that saved a pasted block as one cell a
+row) puts a quote at the start and end of every line: ``"stamp,co2,rg"``. CSV reads each
+such line as one field holding the delimiters (RFC 4180, section 2: a field in quotes
+may hold the delimiter (m)), so the header is one name and the reader's usual hint, to
+set ``[input] delimiter`` to the character the cell holds, names the delimiter already
+set. This module names the quotes instead (layouts42).
+"""
+
+from __future__ import annotations
+
+
+def wrapped_lines_message(lines: list, delimiter: str, header_at: int,
+                          first_record_at: int) -> str:
+    """Why a file's header and first record are one field each, or ''.
+
+    Parameters
+    ----------
+    lines : list of str
+        The file's lines, without line ends.
+    delimiter : str
+        ``[input] delimiter`` (one character; "whitespace" is never quoted so).
+    header_at, first_record_at : int
+        0-based indices of the header line and of the first line after the lines
+        ``rows_after_header`` counts.
+
+    Returns
+    -------
+    str
+        Where both lines, blanks around them aside, open and close with a double quote,
+        hold no other and hold `delimiter` inside: the cause and the fix (the quotes
+        removed at both ends of each line in a copy of the file); '' otherwise.
+    """
+    if len(delimiter) != 1 or first_record_at >= len(lines):
+        return ""
+    shown = []
+    for index in (header_at, first_record_at):
+        line = lines[index].strip()
+        if not (len(line) > 2 and line[0] == line[-1] == '"' and line.count('"') == 2
+                and delimiter in line):
+            return ""
+        shown.append(f"line {index + 1}: {line[:60]!r}")
+    return (f"every line is wrapped in one pair of double quotes ({'; '.join(shown)}), so "
+            f"each line is one field holding its {delimiter!r} delimiters: remove the quote "
+            "at the start and at the end of each line in a copy of the file")
