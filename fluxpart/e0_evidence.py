@@ -99,9 +99,10 @@ def thin_e0_notes(e0_annual: pd.DataFrame, e0_windows: pd.DataFrame,
     Notes
     -----
     Only years whose E0 is their own (``source`` ``joint`` or ``fitted``) are judged.
-    A year's windows are those centred in it (the candidates of ``annual_e0``). The
-    text gives the accepted and disjoint windows, the median temperature range of the
-    year's windows with enough records to be judged, the E0 and its standard error.
+    A year's windows are those centred in it, else those overlapping it (the candidates
+    of ``annual_e0``). The text gives the accepted and disjoint windows, the median
+    temperature range of the year's windows with enough records to be judged, the E0 and
+    its standard error.
 
     References
     ----------
@@ -116,6 +117,10 @@ def thin_e0_notes(e0_annual: pd.DataFrame, e0_windows: pd.DataFrame,
     notes = []
     for year, row in e0_annual[e0_annual["source"].isin(_OWN_SOURCES)].iterrows():
         candidates = e0_windows[e0_windows["year"] == int(year)]
+        if candidates.empty:        # no window centred in the year: those overlapping it
+            start, end = pd.Timestamp(int(year), 1, 1), pd.Timestamp(int(year) + 1, 1, 1)
+            candidates = e0_windows[(e0_windows["window_start"] < end)
+                                    & (e0_windows["window_end"] > start)]
         disjoint = disjoint_accepted(candidates)
         if disjoint >= e0_best_windows:
             continue
