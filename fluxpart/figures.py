@@ -2041,10 +2041,6 @@ def figure_light_response(drawing, written) -> Figure:
                  - light_response(grid, np.full_like(grid, vpd_typical), window["alpha"],
                                   window["beta0"], window["k"], curvature=bend))
         axis.plot(grid, model, color="#000000", linewidth=1.6)
-        # a plain text instead of a legend (a legend per panel costs more than the panel)
-        axis.text(0.02, 0.03, f"black line: fit at VPD {vpd_typical:.1f} hPa, "
-                  f"T {t_typical:.1f} °C", transform=axis.transAxes, ha="left",
-                  va="bottom", fontsize=7)
         start = pd.Timestamp(window["window_start"])
         end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
         state, why = states.loc[position, "state"], states.loc[position, "why"]
@@ -2064,7 +2060,10 @@ def figure_light_response(drawing, written) -> Figure:
                   + (f"\ncurvature = {bend:.2f}" if bend > 0 else ""), transform=axis.transAxes,
                   ha="right", va="top", fontsize=7.5,
                   bbox={"facecolor": "white", "edgecolor": "#bbbbbb", "alpha": 0.85})
-        axis.set_xlabel("Global radiation Rg [W m-2]", fontsize=8)
+        # what the line holds, in the axis label: a text inside the panel (a legend per
+        # panel costs more than the panel) lay over the points of a bright window
+        axis.set_xlabel(f"Global radiation Rg [W m-2]; black line: fit at VPD "
+                        f"{vpd_typical:.1f} hPa, T {t_typical:.1f} °C", fontsize=8)
         axis.set_ylabel(f"NEE [{_FLUX_UNIT}]", fontsize=8)
         drawing.few_ticks(axis, x=5, y=5)
     if scatter is not None:

@@ -1136,12 +1136,24 @@ def _rg_message(converted: dict, units: dict, columns: dict, interval_minutes: i
                         "minutes), which is not read: write it as W m-2 (divided by "
                         f"{seconds:.0f}) in a copy, or as MJ m-2 and set [input.units] rg = "
                         "\"MJ m-2\" (or list rg in [input] accept_units)")
-            return (f"{found}; the values look like PPFD in µmol m-2 s-1: map the column as "
-                    "ppfd in [input.columns] instead of rg; or like an energy summed over each "
-                    f"record in kJ m-2 ({seconds / 1000.0:.2g} times W m-2 at "
-                    f"{interval_minutes} minutes), which is not read: write it as W m-2 "
-                    f"(divided by {seconds / 1000.0:.4g}) in a copy (or list rg in [input] "
-                    "accept_units)")
+            # PPFD (2.1 x W m-2) and kJ m-2 per record (the interval's seconds / 1000 x
+            # W m-2: 1.8 at 30 minutes, 3.6 at 60) are told apart only by their scale: the
+            # likelier is named first, by how near the values' clear-sky ratio (their 90th
+            # percentile over the potential) comes to each one's times the clear-sky
+            # transmittance of about 0.75 (common practice), as for kW and MJ m-2 below
+            clear = float(np.percentile(ratio, 90))
+            ppfd = ("the values look like PPFD in µmol m-2 s-1: map the column as ppfd in "
+                    "[input.columns] instead of rg")
+            kilojoules = (f"an energy summed over each record in kJ m-2 ({seconds / 1000.0:.2g} "
+                          f"times W m-2 at {interval_minutes} minutes), which is not read: "
+                          f"write it as W m-2 (divided by {seconds / 1000.0:.4g}) in a copy")
+            if (abs(math.log(clear / (seconds / 1000.0 * 0.75)))
+                    < abs(math.log(clear / (PPFD_PER_RG * 0.75)))):
+                return (f"{found}; the values look most like {kilojoules}; or like PPFD in "
+                        "µmol m-2 s-1, which they fit less well: map the column as ppfd in "
+                        "[input.columns] instead of rg (or list rg in [input] accept_units)")
+            return (f"{found}; {ppfd}; or like {kilojoules}, which they fit less well (or "
+                    "list rg in [input] accept_units)")
     # With the sun well up (potential radiation above 400 W m-2) even a thick overcast
     # passes 10 % or more of it (common practice), so a W m-2 record shows tens to
     # hundreds; kW m-2 or MJ m-2 per interval show numbers below about 5.

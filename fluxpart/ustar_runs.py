@@ -23,6 +23,7 @@ import numpy as np
 import pandas as pd
 
 from . import (
+    e0_evidence,
     gapfill,
     method_failure,
     night_uptake,
@@ -375,6 +376,10 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 skip = tuple(errors)
                 borrowed = method_failure.borrowed_e0(outcome[3])
                 warnings.extend(nighttime.nearest_year_notes(outcome[3].e0_annual, temperature))
+                warnings.extend(e0_evidence.thin_e0_notes(
+                    outcome[3].e0_annual, outcome[3].e0_windows, temperature,
+                    e0_best_windows=config.e0_best_windows,
+                    e0_min_temperature_range=config.e0_min_temperature_range))
                 warnings.extend(method_failure.failure_warning(method, np.unique(year_keys),
                                                                error)
                                 for method, error in errors.items())

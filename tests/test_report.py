@@ -441,6 +441,22 @@ def _summary(text):
     return out
 
 
+def test_summary_gives_the_record_span_once_per_card(folder):
+    """The record's span is under the page's title and each card's heading gives its
+    period's: the summary's record line repeated it, reading as a budget year of its own
+    beside a one-year record's card (review58). It now gives the records' length and the
+    clock check alone."""
+    text = folder["text"]
+    summary = text[text.index('id="section-summary"'):text.index('id="section-warnings"')]
+    line = re.search(r'<p class="record-line">(.*?)</p>', summary).group(1)
+    assert line.startswith("30-minute records. <strong>Clock check:</strong>")
+    assert "2021" not in line
+    headings = re.findall(r'<div class="card"[^>]*><h3>(.*?)</h3>', summary)
+    assert len(headings) == summary.count("1 Jan 2021 – 31 Dec 2021") == 1
+    meta = text[text.index('<p class="meta">'):]
+    assert meta.startswith('<p class="meta">Eddy-covariance record 1 Jan 2021 – 31 Dec 2021;')
+
+
 def test_page_order_is_caution_summary_warnings_figures_details_settings(folder):
     """A reader meets the caution, the summary, the warnings, then figures, then tables."""
     text = folder["text"]
@@ -591,6 +607,13 @@ def test_light_response_window_parameters_show_their_units(folder):
         # Rref is the respiration at the Lloyd–Taylor reference temperature, 10 °C (Lloyd &
         # Taylor 1994, eq. 11 (m)), as the parameter table describes it (review54)
         assert lines["Rref at 10 °C"].endswith(" µmol m-2 s-1")
+    # what the black line holds is said under each example panel, not in a text inside
+    # it, where it lay over the points of a bright window (polish50)
+    panels = [axis for axis in made[0].axes if any("α =" in t.get_text() for t in axis.texts)]
+    assert all(re.fullmatch(r"Global radiation Rg \[W m-2\]; black line: fit at VPD "
+                            r"-?\d+\.\d hPa, T -?\d+\.\d °C", axis.get_xlabel())
+               for axis in panels)
+    assert not [t for axis in panels for t in axis.texts if "black line" in t.get_text()]
     assert "reference respiration at 10 °C" in describe("parameters_daytime", "rref")[1]
     _, axes = _painted(figures.figure_night_respiration, written, 30)
     legends = [t.get_text() for a in axes if a.get_legend() for t in a.get_legend().get_texts()]

@@ -237,8 +237,8 @@ def test_rg_summed_over_each_record_is_not_called_ppfd(tmp_path):
     1 W = 1 J s-1 (m)) and read as W m-2 was refused as "PPFD: map the column as ppfd",
     a fix that reads it 860 times too bright. PPFD reaches about 2.7 times the potential
     radiation (2.1 µmol J-1 x 1.3); a thousand times it is named as energy per record.
-    Rg in kJ m-2 per record (1.8 x W m-2) cannot be told from PPFD (2.1 x) by its values:
-    both are named, so the PPFD fix is not the only one offered."""
+    Rg in kJ m-2 per record (1.8 x W m-2) is hard to tell from PPFD (2.1 x) by its values:
+    both are named, the nearer scale first, so the PPFD fix is not the only one offered."""
     with pytest.raises(ImplausibleValueError) as joules:
         _example(tmp_path, edit=_scaled_rg(1800))
     message = str(joules.value)
@@ -249,9 +249,14 @@ def test_rg_summed_over_each_record_is_not_called_ppfd(tmp_path):
     message = str(kilojoules.value)
     assert "map the column as ppfd" in message
     assert "kJ m-2 (1.8 times W m-2 at 30 minutes)" in message
+    # ordered by the evidence (mistakes47): 1.8 x W m-2 is nearer kJ per record than
+    # PPFD's 2.1 x, so kJ comes first; PPFD's own values name PPFD first
+    assert message.index("kJ m-2") < message.index("map the column as ppfd")
     # PPFD itself keeps its fix: mapped as ppfd it reads as Rg within 1 % (2.10 µmol J-1)
-    with pytest.raises(ImplausibleValueError, match="map the column as ppfd"):
+    with pytest.raises(ImplausibleValueError, match="map the column as ppfd") as ppfd:
         _example(tmp_path, edit=_scaled_rg(2.1))
+    message = str(ppfd.value)
+    assert message.index("map the column as ppfd") < message.index("kJ m-2")
     frame, _ = _example(tmp_path, edit=_scaled_rg(2.1), toml_edit=lambda text: text.replace(
         'rg = "solar_down"', 'ppfd = "solar_down"'))
     plain, _ = _example(tmp_path)
