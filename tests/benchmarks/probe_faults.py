@@ -2306,6 +2306,113 @@ def f_batch_resumed_half_staged():
            and sites_verify(out) == [0] * 4, f"exit {rerun.returncode} "
            f"{_stderr_tail(rerun, 120)}, left {leftovers(out)}")
 
+
+# ------------------------------------------------------------------ round faults40
+#: Run the command line with a stop (a signal the process sends itself) at one named
+#: point of ``run``: argv[1] the point, argv[2] the signal's number, the rest the command.
+_STOP_AT = r"""
+import os, pathlib, signal, sys
+import fluxpart.cli as cli, fluxpart.io as fio, fluxpart.resultdir as rd, fluxpart.ustar_runs as ur
+point, signum = sys.argv[1], int(sys.argv[2])
+def stop():
+    os.kill(os.getpid(), signum)
+def before(owner, name, when=lambda *a, **k: True):
+    real = getattr(owner, name)
+    def patched(*args, **kwargs):
+        if when(*args, **kwargs):
+            stop()
+        return real(*args, **kwargs)
+    setattr(owner, name, patched)
+calls = {"n": 0}
+def nth(k):
+    def when(*args, **kwargs):
+        calls["n"] += 1
+        return calls["n"] == k
+    return when
+if point == "reading":
+    before(fio.SiteConfig, "read")
+elif point == "ustar runs":
+    before(ur, "runs_with_release")
+elif point.startswith("table "):
+    before(rd, "write_table", nth(int(point.split()[1])))
+elif point in ("run log", "manifest"):
+    before(rd, "atomic_write_bytes", lambda path, data: pathlib.Path(path).name ==
+           {"run log": "run-log.json", "manifest": "manifest.json"}[point])
+elif point == "swap":
+    before(rd, "_exchange")
+elif point == "after the exchange":
+    real_exchange = rd._exchange
+    def exchanged(first, second):
+        done = real_exchange(first, second)
+        stop()
+        return done
+    rd._exchange = exchanged
+elif point == "between two renames":
+    # a file system without RENAME_EXCHANGE (NFS, SMB, FUSE): the old result renamed
+    # aside, the stop before the new one is renamed in
+    rd._exchange = lambda first, second: False
+    before(pathlib.Path, "rename", lambda self, target: ".staging-" in self.name)
+sys.exit(cli.main(sys.argv[3:]))
+"""
+
+#: Points of ``run`` where :func:`f_stops_at_points` stops it (tables are written in
+#: the order of the result's dict: 1 is the record table, 9 the last).
+STOP_POINTS = ("reading", "ustar runs", "table 1", "table 5", "table 9", "run log",
+               "manifest", "swap", "after the exchange", "between two renames")
+
+
+def stopped_at(point, signum, *args):
+    return subprocess.run([PY, "-c", _STOP_AT, point, str(int(signum)), *map(str, args)],
+                          env=ENV, cwd=W / "b", capture_output=True, text=True, timeout=300)
+
+
+def f_stops_at_points():
+    """SIGTERM, SIGINT (Ctrl-C) and SIGKILL at ten points of ``run`` replacing a result
+    (seed 1's by seed 0's): reading, the u* runs, writing the first, a middle and the last
+    table, the run log, the manifest, just before the swap, just after the exchange (the
+    old result not yet removed), and between the two renames of a file system without
+    an atomic exchange. The folder holds the old result or the new one whole (never a
+    mix); a caught stop leaves nothing; after SIGKILL verify says a run was stopped, and
+    the next run removes what it left and writes the new result."""
+    old, new = table_digests(W / "r1"), table_digests(W / "r0")
+    for point in STOP_POINTS:
+        for signum in (signal.SIGTERM, signal.SIGINT, signal.SIGKILL):
+            folder = fresh("stp", "r1")
+            for stale in leftovers(W):
+                shutil.rmtree(W / stale, ignore_errors=True)
+            done = stopped_at(point, signum, "run", "site.toml", "--out", folder, "--quiet")
+            left = leftovers(W)
+            # verify first: it puts back a result a kill between two renames left aside
+            check = fp("verify", folder) if signum == signal.SIGKILL else verify(folder)
+            now = table_digests(folder) if folder.is_dir() else None
+            whole = now in (old, new)
+            told = (not left or "stopped" in check.stdout + check.stderr)
+            if signum == signal.SIGKILL:
+                stop_ok = done.returncode == -9
+            else:
+                stop_ok = one_line(done, 128 + signum) and not left
+            again = fp("run", "site.toml", "--out", folder, "--quiet")
+            recovered = (again.returncode == 0 and table_digests(folder) == new
+                         and not leftovers(W) and verify(folder).returncode == 0)
+            record(f"{signal.Signals(signum).name} at {point} of run", stop_ok and whole
+                   and check.returncode == 0 and told and recovered,
+                   f"exit {done.returncode} {_stderr_tail(done, 90)}, folder "
+                   f"{'old' if now == old else 'new' if now == new else 'MIXED/none'}, left "
+                   f"{left}, verify {check.returncode} told {told}, next run "
+                   f"{again.returncode} {_stderr_tail(again, 80)}")
+    folder = fresh("stp", "r1")
+    killed = stopped_at("between two renames", signal.SIGKILL, "run", "site.toml", "--out",
+                        folder, "--quiet")
+    began = time.time()
+    rep = fp("report", "--quiet", folder)
+    took = time.time() - began
+    record("report after a run killed between two renames (no folder, the old one aside)",
+           killed.returncode == -9 and rep.returncode == 0 and "was missing" in rep.stderr
+           and table_digests(folder) == old and not leftovers(W) and took < 20
+           and not (W / ".stp.lock").exists(), f"report {rep.returncode} in {took:.0f} s "
+           f"{_stderr_tail(rep, 120)}, left {leftovers(W)}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -2338,7 +2445,9 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_batch_two_configs_one_folder, f_reader_leaves_verify_diff_report,
           f_new_out_readonly_mount, f_env_differs_run_verify, f_two_reports_at_once,
           f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes,
-          f_batch_resumed_half_staged]
+          f_batch_resumed_half_staged,
+          # round faults40
+          f_stops_at_points]
 
 if __name__ == "__main__":
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
