@@ -55,3 +55,36 @@ def test_report_of_a_folder_a_killed_run_left_aside_does_not_wait_for_itself(
     assert main(["report", "--quiet", str(folder)]) == 0
     assert "was missing" in capsys.readouterr().err
     assert (folder / "manifest.json").is_file()
+
+
+def test_a_second_stop_during_the_staging_removal_leaves_nothing(tmp_path, monkeypatch):
+    """Ctrl-C pressed twice (or SIGTERM sent twice) during `run` or `report`: the first
+    stop unwinds the writer, the second came while its staging folder was being removed
+    and raised from inside the removal, leaving the folder with part of the tables beside
+    the result. Here the second stop is raised by the first call of the removal. Common
+    practice: clean-up finishes what it began (signal(7): a signal may arrive at any
+    point of a handler's work (m))."""
+    import fluxpart.resultdir as resultdir
+    from fluxpart.resultdir import make_staging, swapped_in
+
+    real, calls = shutil.rmtree, []
+
+    def interrupted_once(path, *args, **kwargs):
+        calls.append(path)
+        if len(calls) == 1:
+            raise KeyboardInterrupt         # the second Ctrl-C
+        return real(path, *args, **kwargs)
+
+    monkeypatch.setattr(resultdir.shutil, "rmtree", interrupted_once)
+    folder = tmp_path / "out"
+    folder.mkdir()
+    (folder / "kept.txt").write_text("earlier\n")
+    staging = make_staging(folder)
+    try:
+        with swapped_in(staging, folder):
+            (staging / "daily.parquet").write_bytes(b"PAR1 part")
+            raise KeyboardInterrupt             # the first Ctrl-C
+    except KeyboardInterrupt:
+        pass
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
+    assert (folder / "kept.txt").read_text() == "earlier\n"
