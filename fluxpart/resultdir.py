@@ -76,6 +76,7 @@ from .store import (
     folder_mode,
     full_disk_remedy,
     read_table,
+    remove_folder,
     require_owner_access,
     set_mode,
     special_kind,
@@ -446,33 +447,9 @@ def swapped_in(staging: Path, directory):
         _fsync_dir(staging)
         _swap_in(staging, _absolute(directory))
     except BaseException:
-        _removed_despite_stops(staging)
+        remove_folder(staging)
         raise
 
-
-#: How often a removal is begun again after a stop interrupted it (each stop a signal
-#: the user sent: a bound, not a count ever met)
-_REMOVAL_RESTARTS = 50
-
-
-def _removed_despite_stops(path: Path) -> None:
-    """Remove the folder `path`, begun again where a stop (a second Ctrl-C, SIGTERM sent
-    twice) interrupts the removal.
-
-    The first stop unwinds the writer, whose clean-up removes its staging folder; a second
-    stop during that removal raised from inside ``shutil.rmtree`` and left the staging
-    folder with part of its tables beside the result (round faults40: Ctrl-C twice during
-    ``run`` and ``report``). A signal mask cannot hold it back: a process-directed signal
-    is taken by any thread that does not block it, and the interpreter then raises in the
-    main thread all the same (signal(7), Python's ``signal`` module (m)). The stop that
-    interrupted is dropped: the caller is already unwinding for the first.
-    """
-    for _ in range(_REMOVAL_RESTARTS):
-        try:
-            shutil.rmtree(path, ignore_errors=True)
-            return
-        except BaseException:       # a repeated stop, already being obeyed
-            continue
 
 
 def recorded_site_name(directory) -> str | None:

@@ -2922,6 +2922,9 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_stop_while_waiting_for_lock, f_stopped_twice]
 
 if __name__ == "__main__":
+    # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
+    # and so would every command it starts (Ctrl-C faults then probe nothing)
+    signal.signal(signal.SIGINT, signal.default_int_handler)
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
     if not (W / "r1").exists():
         setup()
