@@ -55,6 +55,18 @@ verify --exact; two reports at once; ``--out .``; a CSV export into the result; 
 years of 1-minute records, with memory to spare and under ulimit -v; a batch rerun over
 a site left half-staged.
 
+Round faults40 (machine faults during run, batch, verify, report and export): SIGTERM,
+SIGINT and SIGKILL at ten named points of run (``_STOP_AT`` patches the function at the
+point to signal its own process: reading, the u* runs, tables 1, 5 and 9, the run log,
+the manifest, the swap, after the exchange, between two renames of a file system without
+an atomic exchange), and sent twice (during run, report and export --csv); a real full
+disk at each stage of run's writing, under report and export --netcdf; the wall clock
+stepped back mid-run; damaged Parquet footers; report while run replaces the folder; a
+read-only HOME; TMPDIR missing or read-only; printed numbers under de_DE; stdin closed
+under run and batch; Ctrl-C twice to a batch; the batch process killed alone; an external
+Dask scheduler killed; the result's parent renamed mid-run; a stop while waiting for a
+lock.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
