@@ -549,6 +549,19 @@ def batch_with_a_site_written():
     return proc
 
 
+def _after_batch_stop(proc, kids):
+    """What a stopped batch `proc` (its processes `kids`) left: processes still alive,
+    leftovers, each written site's verify, its standard error's lines but warnings, and
+    the rerun."""
+    out, err = proc.communicate(timeout=120)
+    time.sleep(3)
+    orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
+    left = leftovers(NET / "out") if (NET / "out").exists() else []
+    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+    lines = [line for line in err.splitlines() if not line.startswith("warning:")]
+    return orphans, left, codes, lines, fp("batch", "sites.toml", "--quiet", cwd=NET)
+
+
 def f_batch_group_signal():
     """A scheduler's signal to every process of the job (Slurm's time limit: SIGTERM to
     all; its --signal: SIGUSR1 to all), the Dask workers included."""
@@ -556,13 +569,7 @@ def f_batch_group_signal():
         proc = batch_with_a_site_written()
         kids = descendants(proc.pid)
         os.killpg(proc.pid, signum)
-        out, err = proc.communicate(timeout=120)
-        time.sleep(3)
-        orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
-        left = leftovers(NET / "out") if (NET / "out").exists() else []
-        codes = sites_verify(NET / "out") if (NET / "out").exists() else []
-        lines = [line for line in err.splitlines() if not line.startswith("warning:")]
-        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        orphans, left, codes, lines, rerun = _after_batch_stop(proc, kids)
         record(f"{signal.Signals(signum).name} to every process of a Dask batch (workers too)",
                proc.returncode == 128 + signum and len(lines) == 1 and not orphans
                and not left and all(c == 0 for c in codes) and rerun.returncode == 0,
@@ -1572,31 +1579,46 @@ def _full_tmpfs(name):
     return full, mounted
 
 
+def _four_commands(name, env):
+    """run into a new folder, report, verify and export --netcdf of a fresh copy of a
+    result, all under `env`: the copy and the four completed processes."""
+    folder = fresh(name)
+    out = W / f"{name}_run"
+    shutil.rmtree(out, ignore_errors=True)
+    (W / f"{name}.nc").unlink(missing_ok=True)
+    return folder, [fp("run", "site.toml", "--out", out, "--quiet", env=env),
+                    fp("report", "--quiet", folder, env=env),
+                    fp("verify", "--quiet", folder, env=env),
+                    fp("export", "--netcdf", W / f"{name}.nc", folder, env=env)]
+
+
+def _under_tmpdirs(cases, name, batch=False):
+    """For each ``(label, TMPDIR)`` (None: its mount was refused), :func:`_four_commands`
+    and, with `batch`, a Dask batch: each completes or stops with one line, nothing left."""
+    for label, tmp in cases:
+        if tmp is None:
+            record(f"TMPDIR {label}", False, "mount refused: not probed")
+            continue
+        env = dict(ENV, TMPDIR=str(tmp))
+        folder, steps = _four_commands(name, env)
+        if batch:
+            make_net()
+            steps.append(fp("batch", "sites.toml", "--quiet", cwd=NET, env=env))
+        fine = [s.returncode == 0 or one_line(s) for s in steps]
+        record(f"TMPDIR {label} under run, report, verify, export --netcdf"
+               f"{', batch' if batch else ''}", all(fine) and not leftovers(W)
+               and not leftovers(folder) and verify(folder).returncode == 0,
+               f"exits {[s.returncode for s in steps]}, "
+               f"{[e for s in steps for e in errlines(s)][:1]!r:.160}")
+
+
 def f_tmpdir_odd():
     """``TMPDIR`` a dangling link, and on a full 64 kB tmpfs, under run, report, verify,
     export --netcdf: each completes or stops with one line; nothing left."""
     full, mounted = _full_tmpfs("tmpfull")
     try:
-        for label, tmp in (("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
-                           ("a full 64 kB tmpfs", full)):
-            if tmp == full and not mounted:
-                record("TMPDIR on a full tmpfs", False, "mount refused: not probed")
-                continue
-            env = dict(ENV, TMPDIR=str(tmp))
-            folder = fresh("tmpd")
-            out = W / "tmpd_run"
-            shutil.rmtree(out, ignore_errors=True)
-            (W / "tmpd.nc").unlink(missing_ok=True)
-            steps = [fp("run", "site.toml", "--out", out, "--quiet", env=env),
-                     fp("report", "--quiet", folder, env=env),
-                     fp("verify", "--quiet", folder, env=env),
-                     fp("export", "--netcdf", W / "tmpd.nc", folder, env=env)]
-            fine = [s.returncode == 0 or one_line(s) for s in steps]
-            record(f"TMPDIR {label} under run, report, verify, export --netcdf",
-                   all(fine) and not leftovers(W) and not leftovers(folder)
-                   and verify(folder).returncode == 0,
-                   f"exits {[s.returncode for s in steps]}, "
-                   f"{[e for s in steps for e in errlines(s)][:1]!r:.160}")
+        _under_tmpdirs((("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
+                        ("a full 64 kB tmpfs", full if mounted else None)), "tmpd")
     finally:
         if mounted:
             subprocess.run(["umount", str(full)])
@@ -2681,27 +2703,8 @@ def f_tmpdir_missing_or_read_only():
     ro.mkdir(exist_ok=True)
     mounted = _mounted(ro, "--bind", str(ro)) and _mounted(ro, "-o", "remount,bind,ro")
     try:
-        for label, tmp in (("missing", W / "no_such_tmp"), ("read-only", ro)):
-            if tmp == ro and not mounted:
-                record("TMPDIR read-only", False, "mount refused: not probed")
-                continue
-            env = dict(ENV, TMPDIR=str(tmp))
-            folder = fresh("tmpm")
-            out = W / "tmpm_run"
-            shutil.rmtree(out, ignore_errors=True)
-            (W / "tmpm.nc").unlink(missing_ok=True)
-            steps = [fp("run", "site.toml", "--out", out, "--quiet", env=env),
-                     fp("report", "--quiet", folder, env=env),
-                     fp("verify", "--quiet", folder, env=env),
-                     fp("export", "--netcdf", W / "tmpm.nc", folder, env=env)]
-            make_net()
-            steps.append(fp("batch", "sites.toml", "--quiet", cwd=NET, env=env))
-            fine = [s.returncode == 0 or (one_line(s) and "TMPDIR" in s.stderr) for s in steps]
-            record(f"TMPDIR {label} under run, report, verify, export --netcdf, batch",
-                   all(fine) and not leftovers(W) and not leftovers(folder)
-                   and verify(folder).returncode == 0,
-                   f"exits {[s.returncode for s in steps]}, "
-                   f"{[e for s in steps for e in s.stderr.splitlines()][:2]!r:.300}")
+        _under_tmpdirs((("missing", W / "no_such_tmp"), ("read-only", ro if mounted else None)),
+                       "tmpm", batch=True)
     finally:
         if mounted:
             subprocess.run(["umount", str(ro)])
@@ -2759,13 +2762,7 @@ def f_batch_ctrl_c_twice():
     with_second = proc.poll() is None
     if with_second:
         os.killpg(proc.pid, signal.SIGINT)
-    out, err = proc.communicate(timeout=120)
-    time.sleep(3)
-    orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
-    left = leftovers(NET / "out") if (NET / "out").exists() else []
-    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
-    lines = [line for line in err.splitlines() if not line.startswith("warning:")]
-    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    orphans, left, codes, lines, rerun = _after_batch_stop(proc, kids)
     record("Ctrl-C twice to every process of a Dask batch", proc.returncode == 130
            and len(lines) == 1 and not orphans and not left and all(c == 0 for c in codes)
            and rerun.returncode == 0 and sites_verify(NET / "out") == [0] * 4,
