@@ -2378,6 +2378,9 @@ elif point == "report figure":
 elif point == "csv file":
     import fluxpart.export_csv as ec
     before(ec, "set_mode", nth(3))
+elif point.startswith("network table "):
+    import fluxpart.batch as fb
+    before(fb, "_replace_folder", nth(int(point.split()[2])))
 elif point == "swap":
     before(rd, "_exchange")
 elif point == "after the exchange":
@@ -2398,7 +2401,8 @@ if os.environ.get("STOP_TWICE"):
     real_rmtree, again = shutil.rmtree, {"sent": False}
     def rmtree(path, *args, **kwargs):
         name = os.path.basename(os.fsdecode(path))
-        if not again["sent"] and (".staging-" in name or name.endswith(".tmp")):
+        if not again["sent"] and (".staging-" in name or name.endswith(".tmp")
+                                  or name.startswith(".network_")):
             again["sent"] = True
             stop()
         return real_rmtree(path, *args, **kwargs)
@@ -2751,6 +2755,43 @@ def f_stdin_closed_run_batch():
                f"exit {code}, noise {noise[:2]!r:.200}, verified {good}")
 
 
+def f_batch_stopped_at_network_tables():
+    """SIGTERM (once, and again as its staging is removed) and SIGKILL to a Dask batch (two
+    local workers) as it replaces its second network table, every site already written: a
+    caught stop one line and nothing left;
+    after either, the network files are refused until the rerun, which completes and
+    leaves nothing."""
+    for signum, twice in ((signal.SIGTERM, False), (signal.SIGTERM, True),
+                          (signal.SIGKILL, False)):
+        env = dict(ENV, STOP_TWICE="1") if twice else ENV
+        make_net()
+        done = subprocess.run([PY, "-c", _STOP_AT, "network table 2", str(int(signum)),
+                               "batch", "sites.toml", "--quiet", "--workers", "2"], env=env,
+                              cwd=NET, capture_output=True, text=True, timeout=300)
+        out = NET / "out"
+        # a network table's staging is ``.NAME.`` + 8 characters: every hidden entry counts
+        left = sorted(p.name for p in out.iterdir() if p.name.startswith("."))
+        lines = [x for x in done.stderr.splitlines() if not x.startswith("warning:")]
+        stop_ok = (done.returncode == -9 if signum == signal.SIGKILL else
+                   done.returncode == 128 + signum and len(lines) == 1
+                   and left in ([], [".network.json.lock"]))
+        refused = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network;"
+                                  " read_network(sys.argv[1])", str(out)], env=env,
+                                 capture_output=True, text=True)
+        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        after = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network;"
+                                " read_network(sys.argv[1])", str(out)], env=env,
+                               capture_output=True, text=True)
+        record(f"{signal.Signals(signum).name}{' twice' if twice else ''} to a batch as it "
+               "replaces a network table",
+               stop_ok and refused.returncode != 0 and rerun.returncode == 0
+               and after.returncode == 0 and sites_verify(out) == [0] * 4
+               and not [p for p in out.iterdir() if p.name.startswith(".")],
+               f"exit {done.returncode} {lines[-1:]!r:.120}, left {left}, network read before "
+               f"the rerun {refused.returncode} {refused.stderr.strip()[-100:]!r}, rerun "
+               f"{rerun.returncode}, left after {[p.name for p in out.iterdir() if p.name[0] == '.']}")
+
+
 def f_batch_ctrl_c_twice():
     """Ctrl-C twice (SIGINT to every process of the job, 0.2 s apart: an impatient user)
     during a Dask batch with a site written: one line, no orphans, nothing half-written,
@@ -2942,7 +2983,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_home_read_only, f_tmpdir_missing_or_read_only, f_locale_printed_numbers,
           f_stdin_closed_run_batch, f_batch_ctrl_c_twice, f_batch_parent_killed,
           f_batch_external_scheduler_killed, f_parent_renamed_during_run,
-          f_stop_while_waiting_for_lock, f_stopped_twice]
+          f_stop_while_waiting_for_lock, f_stopped_twice, f_batch_stopped_at_network_tables]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
