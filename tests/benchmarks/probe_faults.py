@@ -65,7 +65,7 @@ stepped back mid-run; damaged Parquet footers; report while run replaces the fol
 read-only HOME; TMPDIR missing or read-only; printed numbers under de_DE; stdin closed
 under run and batch; Ctrl-C twice to a batch; the batch process killed alone; an external
 Dask scheduler killed; the result's parent renamed mid-run; a stop while waiting for a
-lock.
+lock; a batch stopped (once, twice, -9) as it replaces a network table.
 
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
