@@ -451,7 +451,6 @@ def swapped_in(staging: Path, directory):
         raise
 
 
-
 def recorded_site_name(directory) -> str | None:
     """The site name in the manifest of the result folder `directory`, or None.
 
