@@ -96,6 +96,7 @@ from .store import (
     folder_mode,
     read_table,
     reader_attrs,
+    remove_folder,
     remove_stale,
     require_owner_access,
     set_mode,
@@ -864,7 +865,7 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
                 files[folder][outcome.key] = hashlib.sha256(data).hexdigest()
             _replace_folder(staging, out / folder)
         except BaseException:
-            shutil.rmtree(staging, ignore_errors=True)
+            remove_folder(staging)      # also where a second Ctrl-C interrupts the removal
             raise
     sites = {o.key: {"folder": Path(os.path.relpath(o.directory, out)).as_posix(),
                      "seal": str(read_manifest(Path(o.directory)).get("seal"))} for o in done}

@@ -90,6 +90,7 @@ from .store import (
     file_mode,
     folder_mode,
     full_disk_remedy,
+    remove_folder,
     remove_stale,
     require_owner_access,
     set_mode,
@@ -545,9 +546,7 @@ def _staging_stem(name: str, parent: Path) -> str:
 
 
 def _remove(staging: Path) -> None:
-    import shutil
-
-    shutil.rmtree(staging, ignore_errors=True)
+    remove_folder(staging)      # also where a second Ctrl-C interrupts the removal
 
 
 def command_csv(directory, folder) -> Path:

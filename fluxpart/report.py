@@ -69,6 +69,7 @@ from .resultdir import (
     lock_file,
     make_staging,
     read_folder,
+    recover_missing,
     replace_refusal,
     swapped_in,
 )
@@ -1518,6 +1519,11 @@ def command_report(args) -> int:
         # (an --out outside the result folder is locked itself: its leftovers are cleaned
         # before staging; a lock file inside the result folder would make it fail its check)
         directory = Path(args.directory)
+        # a run stopped between the two renames of its swap (a file system without an
+        # atomic exchange) left no folder: the earlier result is put back before the lock
+        # below is taken (under it, read_folder's repair waited 30 s for this very process
+        # and then blamed a read-only place, round faults40)
+        recover_missing(directory.absolute())
         out = getattr(args, "out", None)
         inside = out is None or directory.absolute().resolve() in (
             Path(out).absolute().resolve(), *Path(out).absolute().resolve().parents)

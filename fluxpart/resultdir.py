@@ -76,6 +76,7 @@ from .store import (
     folder_mode,
     full_disk_remedy,
     read_table,
+    remove_folder,
     require_owner_access,
     set_mode,
     special_kind,
@@ -446,7 +447,7 @@ def swapped_in(staging: Path, directory):
         _fsync_dir(staging)
         _swap_in(staging, _absolute(directory))
     except BaseException:
-        shutil.rmtree(staging, ignore_errors=True)
+        remove_folder(staging)
         raise
 
 
@@ -1219,18 +1220,50 @@ def _shape_problems(path: Path, file: str, entry: dict) -> list[FolderProblem]:
     return problems
 
 
-def recover_missing(directory: Path) -> None:
-    """If `directory` is gone but a complete retired copy is beside it, move it back."""
+def recover_missing(directory: Path, notify=None) -> str | None:
+    """If `directory` is gone but a complete retired copy is beside it, move it back.
+
+    A writer on a file system without an atomic exchange (NFS, SMB, FUSE) replaces a
+    folder by two renames; stopped outright between them (``kill -9``, a power cut) it
+    leaves no folder, the earlier result in a retired copy and its own in its staging
+    folder. A reader (verify, report, export, diff) puts the earlier result back. Until
+    round faults40 it did so without a word and left its lock file beside the folder:
+    an auditor's verify then passed as if nothing had happened to the folder.
+
+    Parameters
+    ----------
+    directory : pathlib.Path
+        The result folder (absolute).
+    notify : callable, optional
+        Called with the note saying what was done (default: printed to standard error).
+
+    Returns
+    -------
+    str or None
+        The note, or None where nothing was missing.
+    """
     if directory.exists() or not _leftovers(directory, _RETIRED):
-        return
+        return None
     try:
-        with folder_lock(directory, timeout=30.0, notify=lambda text: None):
-            clean_leftovers(directory)
+        with folder_lock(directory, timeout=30.0, notify=lambda text: None, remove=True):
+            if directory.exists():          # another reader put it back while we waited
+                return None
+            done = clean_leftovers(directory)
     except OutputError:
         retired = ", ".join(p.name for p in _leftovers(directory, _RETIRED))
         raise InputFileError(f"{str(directory)!r} is missing and an interrupted write left the "
                              f"earlier result in {retired} beside it, which could not be moved "
                              "back (read-only place?); rename it to the folder's name") from None
+    restored = [line for line in done if line.startswith("restored")]
+    if not restored:
+        return None
+    note = (f"note: {str(directory)!r} was missing: a fluxpart run into it was stopped between "
+            f"moving the earlier result aside and moving its new one in; {restored[0]} (the "
+            "stopped run's unfinished copy removed), so the folder holds the earlier result")
+    say = notify if notify is not None else (
+        lambda text: print(text, file=sys.stderr, flush=True))
+    say(note)
+    return note
 
 
 def read_folder(directory) -> tuple[dict, dict]:

@@ -234,6 +234,43 @@ def unreadable(path, error: OSError) -> InputFileError:
                           f"{read_fault_remedy(error)}")
 
 
+#: How often a removal is begun again after a stop interrupted it (each stop a signal
+#: the user sent: a bound, not a count ever met)
+_REMOVAL_RESTARTS = 50
+
+
+def remove_folder(path) -> None:
+    """Remove the folder `path` (missing or not), begun again where a stop (a second
+    Ctrl-C, SIGTERM sent twice) interrupts the removal.
+
+    The first stop unwinds the writer, whose clean-up removes its staging folder; a second
+    stop during that removal raised from inside ``shutil.rmtree`` and left the staging
+    folder with part of its tables beside the result (round faults40: Ctrl-C twice during
+    ``run`` and ``report``; an export's and a batch's staging alike). A signal mask cannot
+    hold it back: a process-directed signal is taken by any thread that does not block it,
+    and the interpreter then raises in the main thread all the same.
+
+    Parameters
+    ----------
+    path : path-like
+        The folder.
+
+    References
+    ----------
+    Linux man-pages, signal(7) (a process-directed signal is delivered to any one thread
+    that does not block it) and Python's ``signal`` module documentation (handlers run in
+    the main thread) (m).
+    """
+    import shutil
+
+    for _ in range(_REMOVAL_RESTARTS):
+        try:
+            shutil.rmtree(path, ignore_errors=True)
+            return
+        except BaseException:       # a repeated stop, already being obeyed
+            continue
+
+
 def remove_stale(folder, pattern, *, keep=None) -> list[str]:
     """Remove the entries of `folder` a killed writer left: names matching `pattern`.
 

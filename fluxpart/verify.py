@@ -1754,8 +1754,11 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     from .resultdir import recover_missing
 
     directory = Path(directory).absolute()
-    recover_missing(directory)            # a write interrupted between its two renames
+    # a write interrupted between its two renames: the earlier result put back, and said
+    restored = recover_missing(directory, notify=lambda text: None)
     manifest, differences, folder_notes, stored_tables = _read_stored(directory)
+    if restored:
+        folder_notes = [restored.removeprefix("note: "), *folder_notes]
     run_log = _read_run_log(directory) if differences else None
     environment, code_changed = _environment(manifest)
     identity = result_identity(manifest)

@@ -55,6 +55,18 @@ verify --exact; two reports at once; ``--out .``; a CSV export into the result; 
 years of 1-minute records, with memory to spare and under ulimit -v; a batch rerun over
 a site left half-staged.
 
+Round faults40 (machine faults during run, batch, verify, report and export): SIGTERM,
+SIGINT and SIGKILL at ten named points of run (``_STOP_AT`` patches the function at the
+point to signal its own process: reading, the u* runs, tables 1, 5 and 9, the run log,
+the manifest, the swap, after the exchange, between two renames of a file system without
+an atomic exchange), and sent twice (during run, report and export --csv); a real full
+disk at each stage of run's writing, under report and export --netcdf; the wall clock
+stepped back mid-run; damaged Parquet footers; report while run replaces the folder; a
+read-only HOME; TMPDIR missing or read-only; printed numbers under de_DE; stdin closed
+under run and batch; Ctrl-C twice to a batch; the batch process killed alone; an external
+Dask scheduler killed; the result's parent renamed mid-run; a stop while waiting for a
+lock; a batch stopped (once, twice, -9) as it replaces a network table.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -235,8 +247,10 @@ def f_manifest_of_other_run():
     folder = fresh("m_other")
     shutil.copy2(W / "r1" / "manifest.json", folder / "manifest.json")
     done = verify(folder)
+    # --quiet prints the verdict only, which names the likely cause (not each table)
     record("the manifest of another run (seed 1) copied in", done.returncode == 1
-           and "annual" in done.stdout, f"exit {done.returncode}; {done.stdout.splitlines()[1][:150]}")
+           and ("annual" in done.stdout or "likely another run's" in done.stdout),
+           f"exit {done.returncode}; {done.stdout.splitlines()[0][-150:]}")
 
 
 def f_whole_other_run_with_own_log():
@@ -537,6 +551,19 @@ def batch_with_a_site_written():
     return proc
 
 
+def _after_batch_stop(proc, kids):
+    """What a stopped batch `proc` (its processes `kids`) left: processes still alive,
+    leftovers, each written site's verify, its standard error's lines but warnings, and
+    the rerun."""
+    out, err = proc.communicate(timeout=120)
+    time.sleep(3)
+    orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
+    left = leftovers(NET / "out") if (NET / "out").exists() else []
+    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+    lines = [line for line in err.splitlines() if not line.startswith("warning:")]
+    return orphans, left, codes, lines, fp("batch", "sites.toml", "--quiet", cwd=NET)
+
+
 def f_batch_group_signal():
     """A scheduler's signal to every process of the job (Slurm's time limit: SIGTERM to
     all; its --signal: SIGUSR1 to all), the Dask workers included."""
@@ -544,13 +571,7 @@ def f_batch_group_signal():
         proc = batch_with_a_site_written()
         kids = descendants(proc.pid)
         os.killpg(proc.pid, signum)
-        out, err = proc.communicate(timeout=120)
-        time.sleep(3)
-        orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
-        left = leftovers(NET / "out") if (NET / "out").exists() else []
-        codes = sites_verify(NET / "out") if (NET / "out").exists() else []
-        lines = [line for line in err.splitlines() if not line.startswith("warning:")]
-        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        orphans, left, codes, lines, rerun = _after_batch_stop(proc, kids)
         record(f"{signal.Signals(signum).name} to every process of a Dask batch (workers too)",
                proc.returncode == 128 + signum and len(lines) == 1 and not orphans
                and not left and all(c == 0 for c in codes) and rerun.returncode == 0,
@@ -1560,31 +1581,46 @@ def _full_tmpfs(name):
     return full, mounted
 
 
+def _four_commands(name, env):
+    """run into a new folder, report, verify and export --netcdf of a fresh copy of a
+    result, all under `env`: the copy and the four completed processes."""
+    folder = fresh(name)
+    out = W / f"{name}_run"
+    shutil.rmtree(out, ignore_errors=True)
+    (W / f"{name}.nc").unlink(missing_ok=True)
+    return folder, [fp("run", "site.toml", "--out", out, "--quiet", env=env),
+                    fp("report", "--quiet", folder, env=env),
+                    fp("verify", "--quiet", folder, env=env),
+                    fp("export", "--netcdf", W / f"{name}.nc", folder, env=env)]
+
+
+def _under_tmpdirs(cases, name, batch=False):
+    """For each ``(label, TMPDIR)`` (None: its mount was refused), :func:`_four_commands`
+    and, with `batch`, a Dask batch: each completes or stops with one line, nothing left."""
+    for label, tmp in cases:
+        if tmp is None:
+            record(f"TMPDIR {label}", False, "mount refused: not probed")
+            continue
+        env = dict(ENV, TMPDIR=str(tmp))
+        folder, steps = _four_commands(name, env)
+        if batch:
+            make_net()
+            steps.append(fp("batch", "sites.toml", "--quiet", cwd=NET, env=env))
+        fine = [s.returncode == 0 or one_line(s) for s in steps]
+        record(f"TMPDIR {label} under run, report, verify, export --netcdf"
+               f"{', batch' if batch else ''}", all(fine) and not leftovers(W)
+               and not leftovers(folder) and verify(folder).returncode == 0,
+               f"exits {[s.returncode for s in steps]}, "
+               f"{[e for s in steps for e in errlines(s)][:1]!r:.160}")
+
+
 def f_tmpdir_odd():
     """``TMPDIR`` a dangling link, and on a full 64 kB tmpfs, under run, report, verify,
     export --netcdf: each completes or stops with one line; nothing left."""
     full, mounted = _full_tmpfs("tmpfull")
     try:
-        for label, tmp in (("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
-                           ("a full 64 kB tmpfs", full)):
-            if tmp == full and not mounted:
-                record("TMPDIR on a full tmpfs", False, "mount refused: not probed")
-                continue
-            env = dict(ENV, TMPDIR=str(tmp))
-            folder = fresh("tmpd")
-            out = W / "tmpd_run"
-            shutil.rmtree(out, ignore_errors=True)
-            (W / "tmpd.nc").unlink(missing_ok=True)
-            steps = [fp("run", "site.toml", "--out", out, "--quiet", env=env),
-                     fp("report", "--quiet", folder, env=env),
-                     fp("verify", "--quiet", folder, env=env),
-                     fp("export", "--netcdf", W / "tmpd.nc", folder, env=env)]
-            fine = [s.returncode == 0 or one_line(s) for s in steps]
-            record(f"TMPDIR {label} under run, report, verify, export --netcdf",
-                   all(fine) and not leftovers(W) and not leftovers(folder)
-                   and verify(folder).returncode == 0,
-                   f"exits {[s.returncode for s in steps]}, "
-                   f"{[e for s in steps for e in errlines(s)][:1]!r:.160}")
+        _under_tmpdirs((("a dangling link", linked("tmpdangl", W / "tmp_nowhere")),
+                        ("a full 64 kB tmpfs", full if mounted else None)), "tmpd")
     finally:
         if mounted:
             subprocess.run(["umount", str(full)])
@@ -2306,6 +2342,610 @@ def f_batch_resumed_half_staged():
            and sites_verify(out) == [0] * 4, f"exit {rerun.returncode} "
            f"{_stderr_tail(rerun, 120)}, left {leftovers(out)}")
 
+
+# ------------------------------------------------------------------ round faults40
+#: Run the command line with a stop (a signal the process sends itself) at one named
+#: point of ``run``: argv[1] the point, argv[2] the signal's number, the rest the command.
+_STOP_AT = r"""
+import os, pathlib, signal, sys
+import fluxpart.cli as cli, fluxpart.io as fio, fluxpart.resultdir as rd, fluxpart.ustar_runs as ur
+point, signum = sys.argv[1], int(sys.argv[2])
+def stop():
+    os.kill(os.getpid(), signum)
+def before(owner, name, when=lambda *a, **k: True):
+    real = getattr(owner, name)
+    def patched(*args, **kwargs):
+        if when(*args, **kwargs):
+            stop()
+        return real(*args, **kwargs)
+    setattr(owner, name, patched)
+calls = {"n": 0}
+def nth(k):
+    def when(*args, **kwargs):
+        calls["n"] += 1
+        return calls["n"] == k
+    return when
+if point == "reading":
+    before(fio.SiteConfig, "read")
+elif point == "ustar runs":
+    before(ur, "runs_with_release")
+elif point.startswith("table "):
+    before(rd, "write_table", nth(int(point.split()[1])))
+elif point in ("run log", "manifest"):
+    before(rd, "atomic_write_bytes", lambda path, data: pathlib.Path(path).name ==
+           {"run log": "run-log.json", "manifest": "manifest.json"}[point])
+elif point == "report figure":
+    import fluxpart.report as rp
+    before(rp, "atomic_write_bytes")
+elif point == "csv file":
+    import fluxpart.export_csv as ec
+    before(ec, "set_mode", nth(3))
+elif point.startswith("network table "):
+    import fluxpart.batch as fb
+    before(fb, "_replace_folder", nth(int(point.split()[2])))
+elif point == "swap":
+    before(rd, "_exchange")
+elif point == "after the exchange":
+    real_exchange = rd._exchange
+    def exchanged(first, second):
+        done = real_exchange(first, second)
+        stop()
+        return done
+    rd._exchange = exchanged
+elif point == "between two renames":
+    # a file system without RENAME_EXCHANGE (NFS, SMB, FUSE): the old result renamed
+    # aside, the stop before the new one is renamed in
+    rd._exchange = lambda first, second: False
+    before(pathlib.Path, "rename", lambda self, target: ".staging-" in self.name)
+if os.environ.get("STOP_TWICE"):
+    # the stop sent again as the stopped command removes its staging (Ctrl-C pressed twice)
+    import shutil
+    real_rmtree, again = shutil.rmtree, {"sent": False}
+    def rmtree(path, *args, **kwargs):
+        name = os.path.basename(os.fsdecode(path))
+        if not again["sent"] and (".staging-" in name or name.endswith(".tmp")
+                                  or name.startswith(".network_")):
+            again["sent"] = True
+            stop()
+        return real_rmtree(path, *args, **kwargs)
+    shutil.rmtree = rmtree
+sys.exit(cli.main(sys.argv[3:]))
+"""
+
+#: Points of ``run`` where :func:`f_stops_at_points` stops it (tables are written in
+#: the order of the result's dict: 1 is the record table, 9 the last).
+STOP_POINTS = ("reading", "ustar runs", "table 1", "table 5", "table 9", "run log",
+               "manifest", "swap", "after the exchange", "between two renames")
+
+
+def stopped_at(point, signum, *args, env=None):
+    return subprocess.run([PY, "-c", _STOP_AT, point, str(int(signum)), *map(str, args)],
+                          env=env or ENV, cwd=W / "b", capture_output=True, text=True,
+                          timeout=300)
+
+
+def f_stopped_twice():
+    """Ctrl-C (SIGINT) and SIGTERM sent twice to run and report: the second while the
+    first's unwinding removes the staging folder (an impatient user; ``kill`` repeated).
+    One line, the old result (and page) whole, nothing left."""
+    env = dict(ENV, STOP_TWICE="1")
+    for signum in (signal.SIGINT, signal.SIGTERM):
+        folder = fresh("st2", "r1")
+        fp("report", "--quiet", folder)
+        page = (folder / "report" / "report.html").read_bytes()
+        before = table_digests(folder)
+        for stale in leftovers(W):
+            shutil.rmtree(W / stale, ignore_errors=True)
+        done = stopped_at("table 5", signum, "run", "site.toml", "--out", folder, "--quiet",
+                          env=env)
+        rep = stopped_at("report figure", signum, "report", "--quiet", folder, env=env)
+        shutil.rmtree(W / "st2_csv", ignore_errors=True)
+        exp = stopped_at("csv file", signum, "export", "--csv", W / "st2_csv", folder, env=env)
+        left = leftovers(W) + leftovers(folder)
+        record(f"{signal.Signals(signum).name} twice during run, report and export --csv",
+               one_line(done, 128 + signum) and one_line(rep, 128 + signum) and not left
+               and one_line(exp, 128 + signum) and not (W / "st2_csv").exists()
+               and table_digests(folder) == before and verify(folder).returncode == 0
+               and (folder / "report" / "report.html").read_bytes() == page,
+               f"run {done.returncode} {_stderr_tail(done, 100)}, report {rep.returncode} "
+               f"{_stderr_tail(rep, 100)}, export {exp.returncode}, left {left}")
+
+
+def f_stops_at_points():
+    """SIGTERM, SIGINT (Ctrl-C) and SIGKILL at ten points of ``run`` replacing a result
+    (seed 1's by seed 0's): reading, the u* runs, writing the first, a middle and the last
+    table, the run log, the manifest, just before the swap, just after the exchange (the
+    old result not yet removed), and between the two renames of a file system without
+    an atomic exchange. The folder holds the old result or the new one whole (never a
+    mix); a caught stop leaves nothing; after SIGKILL verify says a run was stopped, and
+    the next run removes what it left and writes the new result."""
+    old, new = table_digests(W / "r1"), table_digests(W / "r0")
+    for point in STOP_POINTS:
+        for signum in (signal.SIGTERM, signal.SIGINT, signal.SIGKILL):
+            folder = fresh("stp", "r1")
+            for stale in leftovers(W):
+                shutil.rmtree(W / stale, ignore_errors=True)
+            done = stopped_at(point, signum, "run", "site.toml", "--out", folder, "--quiet")
+            left = leftovers(W)
+            # verify first: it puts back a result a kill between two renames left aside
+            check = fp("verify", folder) if signum == signal.SIGKILL else verify(folder)
+            now = table_digests(folder) if folder.is_dir() else None
+            whole = now in (old, new)
+            told = (not left or "stopped" in check.stdout + check.stderr)
+            if signum == signal.SIGKILL:
+                stop_ok = done.returncode == -9
+            else:
+                stop_ok = one_line(done, 128 + signum) and not left
+            again = fp("run", "site.toml", "--out", folder, "--quiet")
+            recovered = (again.returncode == 0 and table_digests(folder) == new
+                         and not leftovers(W) and verify(folder).returncode == 0)
+            record(f"{signal.Signals(signum).name} at {point} of run", stop_ok and whole
+                   and check.returncode == 0 and told and recovered,
+                   f"exit {done.returncode} {_stderr_tail(done, 90)}, folder "
+                   f"{'old' if now == old else 'new' if now == new else 'MIXED/none'}, left "
+                   f"{left}, verify {check.returncode} told {told}, next run "
+                   f"{again.returncode} {_stderr_tail(again, 80)}")
+    folder = fresh("stp", "r1")
+    killed = stopped_at("between two renames", signal.SIGKILL, "run", "site.toml", "--out",
+                        folder, "--quiet")
+    began = time.time()
+    rep = fp("report", "--quiet", folder)
+    took = time.time() - began
+    record("report after a run killed between two renames (no folder, the old one aside)",
+           killed.returncode == -9 and rep.returncode == 0 and "was missing" in rep.stderr
+           and table_digests(folder) == old and not leftovers(W) and took < 20
+           and not (W / ".stp.lock").exists(), f"report {rep.returncode} in {took:.0f} s "
+           f"{_stderr_tail(rep, 120)}, left {leftovers(W)}")
+
+
+
+def _tmpfs(name, size):
+    """A fresh tmpfs of `size` (mount(8) size=, e.g. ``"300k"``) at `name` in the scratch
+    folder; its path, or None where the container refuses the mount."""
+    target = W / name
+    if target.is_mount():
+        subprocess.run(["umount", str(target)])
+    shutil.rmtree(target, ignore_errors=True)
+    target.mkdir()
+    return target if _mounted(target, "-t", "tmpfs", "-o", f"size={size}", "tmpfs") else None
+
+
+def f_full_disk_each_table():
+    """A real full disk (tmpfs) met at each stage of ``run``'s writing: room for about one
+    table, a third, half, most of the tables, and all but the manifest (sizes from the
+    result's own files, page-rounded): one line naming the disk, nothing left there."""
+    files = sorted((W / "r0").iterdir())
+    pages = [-(-f.stat().st_size // 4096) for f in files]
+    total = sum(pages)
+    for label, kib in (("the first tables", 40), ("a third of the tables", total * 4 // 3),
+                       ("half the tables", total * 4 // 2), ("most tables", total * 4 - 120),
+                       ("all but the manifest", total * 4 - 12)):
+        disk = _tmpfs("fulltab", f"{kib}k")
+        if disk is None:
+            record("a full disk at each table of run", False, "mount refused: not probed")
+            return
+        try:
+            done = fp("run", "site.toml", "--out", disk / "new", "--quiet")
+            inside = sorted(p.name for p in disk.iterdir())
+            held = (one_line(done) and "space" in done.stderr and inside == []) or (
+                done.returncode == 0 and table_digests(disk / "new") == table_digests(W / "r0"))
+            record(f"a full disk ({kib} kB tmpfs) at {label} of run", held,
+                   f"exit {done.returncode} {_stderr_tail(done, 150)}, left there {inside}")
+        finally:
+            subprocess.run(["umount", str(disk)])
+
+
+def f_full_disk_report_netcdf():
+    """A real full disk met by ``report`` (its figures and page, in the result folder on
+    a tmpfs with 60 kB free) and by ``export --netcdf`` (a file on a 200 kB tmpfs): one
+    line, the result whole and verified, no half-written page or NetCDF file."""
+    disk = _tmpfs("fullrep", "800k")
+    if disk is None:
+        record("a full disk under report and export --netcdf", False, "mount refused")
+        return
+    try:
+        folder = disk / "res"
+        shutil.copytree(W / "r0", folder)
+        free = shutil.disk_usage(disk).free
+        (disk / "filler").write_bytes(b"\0" * max(0, free - 60_000))
+        before = table_digests(folder)
+        rep = fp("report", "--quiet", folder)
+        record("a full disk (60 kB free) under report", one_line(rep) and "space" in rep.stderr
+               and not (folder / "report").exists() and not leftovers(folder)
+               and table_digests(folder) == before and verify(
+                   folder, "--input", W / "b" / "tower.csv").returncode == 0, f"exit {rep.returncode} {_stderr_tail(rep)}, "
+               f"left {leftovers(folder)}")
+    finally:
+        subprocess.run(["umount", str(disk)])
+    disk = _tmpfs("fullnc", "200k")
+    try:
+        done = fp("export", "--netcdf", disk / "site.nc", W / "r0")
+        inside = sorted(p.name for p in disk.iterdir())
+        record("a full disk (200 kB tmpfs) under export --netcdf", one_line(done)
+               and "space" in done.stderr and inside == [],
+               f"exit {done.returncode} {_stderr_tail(done)}, left there {inside}")
+    finally:
+        subprocess.run(["umount", str(disk)])
+
+
+_CLOCK_STEP = """
+import threading, time
+_offset = [0.0]
+_real, _real_ns = time.time, time.time_ns
+time.time = lambda: _real() + _offset[0]
+time.time_ns = lambda: _real_ns() + int(_offset[0] * 1e9)
+def _step():
+    _offset[0] = {step}
+_timer = threading.Timer({after}, _step)
+_timer.daemon = True
+_timer.start()
+"""
+
+
+def f_clock_steps_back():
+    """The wall clock stepped back an hour and a day while run, report and verify work
+    (NTP correcting a clock that ran ahead; ``time.time`` patched by a sitecustomize
+    that steps it after 0.5 s: faketime is not installed, and a TZ set mid-run cannot
+    reach a running process): tables byte-identical, the folder verified, nothing left."""
+    for label, step in (("an hour", -3600), ("a day", -86400)):
+        site = W / f"clockstep{-step}"
+        site.mkdir(exist_ok=True)
+        (site / "sitecustomize.py").write_text(_CLOCK_STEP.format(step=step, after=0.5))
+        env = dict(ENV, PYTHONPATH=f"{site}{os.pathsep}{TREE}")
+        folder = fresh("clks", "r1")
+        steps = [fp("run", "site.toml", "--out", folder, "--quiet", env=env),
+                 fp("report", "--quiet", folder, env=env), verify(folder, env=env)]
+        record(f"the clock stepped back {label} during run, report, verify",
+               all(s.returncode == 0 for s in steps) and table_digests(folder) ==
+               table_digests(W / "r0") and not leftovers(W) and not leftovers(folder),
+               f"exits {[s.returncode for s in steps]}, "
+               f"{[e for s in steps for e in errlines(s)][:1]!r:.150}")
+
+
+def f_parquet_footer_damaged():
+    """verify of a result whose table's Parquet footer (the metadata at its end, its
+    length and the closing magic kept) has bytes overwritten, and one whose footer
+    length is damaged: exit 1 naming the table, no traceback; report and export refuse
+    in one line."""
+    for label, how in (("metadata bytes overwritten", "meta"), ("footer length damaged",
+                                                               "length")):
+        folder = fresh(f"foot_{how}")
+        path = folder / "daily.parquet"
+        data = bytearray(path.read_bytes())
+        if how == "meta":
+            length = int.from_bytes(data[-8:-4], "little")
+            start = len(data) - 8 - length
+            data[start + length // 2: start + length // 2 + 16] = b"\xff" * 16
+        else:
+            data[-8:-4] = (len(data) * 3).to_bytes(4, "little")
+        path.write_bytes(bytes(data))
+        done = fp("verify", folder)
+        rep = fp("report", "--quiet", folder)
+        exp = fp("export", "--netcdf", W / "foot.nc", folder)
+        tb = any("Traceback" in d.stderr for d in (done, rep, exp))
+        record(f"a Parquet footer with its {label} under verify, report, export",
+               done.returncode == 1 and "daily" in done.stdout and not tb
+               and one_line(rep) and one_line(exp) and not (W / "foot.nc").exists(),
+               f"verify {done.returncode} {done.stdout.splitlines()[:1]!r:.120}, report "
+               f"{rep.returncode} {_stderr_tail(rep, 100)}, export {exp.returncode}")
+
+
+def f_report_while_run_swaps():
+    """report of a folder while run replaces it (seed 1 by seed 0), three times at
+    staggered offsets: each report completes or says one line; the folder ends as run's
+    new result, verified; a page left in it describes the tables beside it."""
+    seen = []
+    for delay in (0.0, 0.6, 1.2):
+        folder = fresh("rws", "r1")
+        proc = start("run", "site.toml", "--out", folder, "--quiet")
+        time.sleep(delay)
+        rep = fp("report", "--quiet", folder)
+        proc.communicate(timeout=120)
+        good = verify(folder).returncode
+        page = folder / "report" / "report.html"
+        matches = True
+        if page.is_file():
+            drawn = page.read_bytes()
+            fresh_copy = fresh("rws_check", "rws")
+            shutil.rmtree(fresh_copy / "report")
+            fp("report", "--quiet", fresh_copy)
+            matches = _same_report(folder, fresh_copy) or drawn == (
+                fresh_copy / "report" / "report.html").read_bytes()
+        seen.append((proc.returncode, rep.returncode, good, page.is_file(), matches))
+        ok = (proc.returncode == 0 and (rep.returncode == 0 or one_line(rep)) and good == 0
+              and matches and table_digests(folder) == table_digests(W / "r0")
+              and not leftovers(W) and not leftovers(folder))
+        record(f"report while run replaces the folder (report {delay} s after run began)",
+               ok, f"run {proc.returncode}, report {rep.returncode} {_stderr_tail(rep, 100)}, "
+               f"verify {good}, page kept {page.is_file()}, page matches {matches}")
+
+
+def f_home_read_only():
+    """``HOME`` on a read-only bind mount (a shared account, a container's read-only
+    home; XDG folders unset): matplotlib's and fontconfig's caches, Dask's configuration
+    and local directory. run, report, verify, export --netcdf and a batch complete with
+    no noise but ``warning:`` lines; tables byte-identical."""
+    home = W / "rohome"
+    if home.is_mount():
+        subprocess.run(["umount", str(home)])
+    shutil.rmtree(home, ignore_errors=True)
+    home.mkdir()
+    if not (_mounted(home, "--bind", str(home)) and _mounted(home, "-o", "remount,bind,ro")):
+        record("HOME read-only", False, "mount refused: not probed")
+        return
+    try:
+        env = {k: v for k, v in ENV.items() if not k.startswith(("XDG_", "MPLCONFIGDIR",
+                                                                   "DASK_"))}
+        env["HOME"] = str(home)
+        folder = fresh("roh")
+        out = W / "roh_run"
+        shutil.rmtree(out, ignore_errors=True)
+        (W / "roh.nc").unlink(missing_ok=True)
+        steps = {"run": fp("run", "site.toml", "--out", out, "--quiet", env=env),
+                 "report": fp("report", "--quiet", folder, env=env),
+                 "verify": verify(folder, env=env),
+                 "export": fp("export", "--netcdf", W / "roh.nc", folder, env=env)}
+        make_net()
+        steps["batch"] = fp("batch", "sites.toml", "--quiet", cwd=NET, env=env)
+        noise = {k: [x for x in d.stderr.splitlines() if x and not x.startswith("warning:")]
+                 for k, d in steps.items()}
+        record("HOME on a read-only mount under run, report, verify, export, batch",
+               all(d.returncode == 0 for d in steps.values()) and not any(noise.values())
+               and table_digests(out) == table_digests(W / "r0")
+               and sites_verify(NET / "out") == [0] * 4,
+               f"exits {[d.returncode for d in steps.values()]}, noise "
+               f"{ {k: v[:1] for k, v in noise.items() if v}!r:.300}")
+    finally:
+        subprocess.run(["umount", str(home)])
+
+
+def f_tmpdir_missing_or_read_only():
+    """``TMPDIR`` a folder that does not exist, and one on a read-only bind mount, under
+    run, report, verify, export --netcdf and a batch: each completes or stops with one
+    line naming TMPDIR; nothing left."""
+    ro = W / "rotmp"
+    if ro.is_mount():
+        subprocess.run(["umount", str(ro)])
+    ro.mkdir(exist_ok=True)
+    mounted = _mounted(ro, "--bind", str(ro)) and _mounted(ro, "-o", "remount,bind,ro")
+    try:
+        _under_tmpdirs((("missing", W / "no_such_tmp"), ("read-only", ro if mounted else None)),
+                       "tmpm", batch=True)
+    finally:
+        if mounted:
+            subprocess.run(["umount", str(ro)])
+
+
+def f_locale_printed_numbers():
+    """What run, verify and diff print (standard output) under LANG=C and under
+    LC_ALL=de_DE.UTF-8 (a decimal comma): the same text, numbers with a point."""
+    loc = _localedef("de_DE.UTF-8", "UTF-8", "de_DE")
+    outs = {}
+    for label, extra in (("C", dict(LANG="C", LC_ALL="C")),
+                         ("de_DE", dict(LANG="de_DE.UTF-8", LC_ALL="de_DE.UTF-8",
+                                        LOCPATH=str(loc)))):
+        env = dict(ENV, **extra)
+        out = W / "lpn"
+        shutil.rmtree(out, ignore_errors=True)
+        texts = [fp("run", "site.toml", "--out", out, env=env).stdout,
+                 fp("verify", out, env=env).stdout, fp("diff", W / "r1", out, env=env).stdout]
+        outs[label] = [t.replace(str(out), "OUT") for t in texts]
+    same = outs["C"] == outs["de_DE"]
+    first = [(a, b) for a, b in zip("\n".join(outs["C"]).splitlines(),
+                                    "\n".join(outs["de_DE"]).splitlines(), strict=False)
+             if a != b][:1]
+    record("run, verify, diff print the same under LANG=C and de_DE.UTF-8", same
+           and any(outs["C"]), f"same {same} {first!r:.200}")
+
+
+def f_stdin_closed_run_batch():
+    """run and a Dask batch with standard input closed (``<&-``: a cron job, a daemon):
+    the first file opened then takes descriptor 0."""
+    shutil.rmtree(W / "sc_run", ignore_errors=True)
+    make_net()
+    cases = [("run", f"{PY} -m fluxpart run site.toml --out {W / 'sc_run'} --quiet <&-; "
+              "echo $? >&2", W / "b"),
+             ("batch", f"{PY} -m fluxpart batch sites.toml --quiet <&-; echo $? >&2", NET)]
+    for label, command, cwd in cases:
+        done = _shell(command, cwd=cwd)
+        lines = done.stderr.strip().splitlines()
+        code = int(lines[-1]) if lines and lines[-1].isdigit() else None
+        noise = [x for x in lines[:-1] if not x.startswith("warning:")]
+        good = (verify(W / "sc_run").returncode == 0 if label == "run"
+                else sites_verify(NET / "out") == [0] * 4)
+        record(f"standard input closed under {label}", code == 0 and not noise and good,
+               f"exit {code}, noise {noise[:2]!r:.200}, verified {good}")
+
+
+def f_batch_stopped_at_network_tables():
+    """SIGTERM (once, and again as its staging is removed) and SIGKILL to a Dask batch (two
+    local workers) as it replaces its second network table, every site already written: a
+    caught stop one line and nothing left;
+    after either, the network files are refused until the rerun, which completes and
+    leaves nothing."""
+    for signum, twice in ((signal.SIGTERM, False), (signal.SIGTERM, True),
+                          (signal.SIGKILL, False)):
+        env = dict(ENV, STOP_TWICE="1") if twice else ENV
+        make_net()
+        done = subprocess.run([PY, "-c", _STOP_AT, "network table 2", str(int(signum)),
+                               "batch", "sites.toml", "--quiet", "--workers", "2"], env=env,
+                              cwd=NET, capture_output=True, text=True, timeout=300)
+        out = NET / "out"
+        # a network table's staging is ``.NAME.`` + 8 characters: every hidden entry counts
+        left = sorted(p.name for p in out.iterdir() if p.name.startswith("."))
+        lines = [x for x in done.stderr.splitlines() if not x.startswith("warning:")]
+        stop_ok = (done.returncode == -9 if signum == signal.SIGKILL else
+                   done.returncode == 128 + signum and len(lines) == 1
+                   and left in ([], [".network.json.lock"]))
+        refused = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network;"
+                                  " read_network(sys.argv[1])", str(out)], env=env,
+                                 capture_output=True, text=True)
+        rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        after = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network;"
+                                " read_network(sys.argv[1])", str(out)], env=env,
+                               capture_output=True, text=True)
+        record(f"{signal.Signals(signum).name}{' twice' if twice else ''} to a batch as it "
+               "replaces a network table",
+               stop_ok and refused.returncode != 0 and rerun.returncode == 0
+               and after.returncode == 0 and sites_verify(out) == [0] * 4
+               and not [p for p in out.iterdir() if p.name.startswith(".")],
+               f"exit {done.returncode} {lines[-1:]!r:.120}, left {left}, network read before "
+               f"the rerun {refused.returncode} {refused.stderr.strip()[-100:]!r}, rerun "
+               f"{rerun.returncode}, left after {[p.name for p in out.iterdir() if p.name[0] == '.']}")
+
+
+def f_batch_ctrl_c_twice():
+    """Ctrl-C twice (SIGINT to every process of the job, 0.2 s apart: an impatient user)
+    during a Dask batch with a site written: one line, no orphans, nothing half-written,
+    the rerun completes the rest."""
+    proc = batch_with_a_site_written()
+    kids = descendants(proc.pid)
+    os.killpg(proc.pid, signal.SIGINT)
+    time.sleep(0.2)
+    with_second = proc.poll() is None
+    if with_second:
+        os.killpg(proc.pid, signal.SIGINT)
+    orphans, left, codes, lines, rerun = _after_batch_stop(proc, kids)
+    record("Ctrl-C twice to every process of a Dask batch", proc.returncode == 130
+           and len(lines) == 1 and not orphans and not left and all(c == 0 for c in codes)
+           and rerun.returncode == 0 and sites_verify(NET / "out") == [0] * 4,
+           f"second sent {with_second}, exit {proc.returncode}, {len(lines)} stderr lines "
+           f"{lines[:3]!r:.300}, orphans {orphans}, left {left}, rerun {rerun.returncode}")
+
+
+def f_batch_parent_killed():
+    """kill -9 of the batch process alone (it runs the local Dask scheduler; its workers
+    are not signalled): the workers must not live on, the folder holds whole sites only,
+    and the rerun completes."""
+    proc = batch_with_a_site_written()
+    kids = descendants(proc.pid)
+    proc.kill()
+    proc.communicate(timeout=60)
+    deadline = time.time() + 30
+    while time.time() < deadline and any(Path(f"/proc/{k}").exists() for k in kids):
+        time.sleep(0.5)
+    orphans = [(k, _cmdline(k)[-60:]) for k in kids if Path(f"/proc/{k}").exists()]
+    for k, _ in orphans:
+        os.kill(k, signal.SIGKILL)
+    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    record("kill -9 of the batch process alone (its scheduler), workers not signalled",
+           not orphans and all(c == 0 for c in codes) and rerun.returncode == 0
+           and not leftovers(NET / "out") and sites_verify(NET / "out") == [0] * 4,
+           f"orphans after 30 s {orphans}, {len(codes)} sites whole, rerun {rerun.returncode} "
+           f"{_stderr_tail(rerun, 100)}")
+
+
+def f_batch_external_scheduler_killed():
+    """A batch on an existing Dask scheduler (``dask scheduler`` and two ``dask worker``
+    processes on 127.0.0.1) whose scheduler is killed (-9) once a site is written: one
+    line, exit 2 within a minute; the sites written whole; the rerun on a new scheduler
+    completes."""
+    dask = Path(PY).with_name("dask")
+    make_net()
+    port = 18786 + os.getpid() % 1000
+
+    def cluster():
+        sched = subprocess.Popen([str(dask), "scheduler", "--host", "127.0.0.1", "--port",
+                                  str(port), "--no-dashboard"], env=ENV, cwd=NET,
+                                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        time.sleep(3)
+        workers = [subprocess.Popen([str(dask), "worker", f"tcp://127.0.0.1:{port}",
+                                     "--nthreads", "1", "--no-dashboard"], env=ENV, cwd=NET,
+                                    stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+                   for _ in range(2)]
+        time.sleep(3)
+        return sched, workers
+    sched, workers = cluster()
+    try:
+        proc = start("batch", "sites.toml", "--quiet", "--scheduler", f"tcp://127.0.0.1:{port}",
+                     cwd=NET)
+        deadline = time.time() + 90
+        while time.time() < deadline and proc.poll() is None and not (
+                (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
+            time.sleep(0.05)
+        sched.kill()
+        began = time.time()
+        try:
+            out, err = proc.communicate(timeout=180)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+            out, err = proc.communicate()
+        took = time.time() - began
+    finally:
+        for p in [sched, *workers]:
+            p.kill()
+            p.wait()
+    time.sleep(1)
+    codes = sites_verify(NET / "out") if (NET / "out").exists() else []
+    lines = [line for line in err.splitlines() if not line.startswith("warning:")]
+    sched, workers = cluster()
+    try:
+        rerun = fp("batch", "sites.toml", "--quiet", "--scheduler", f"tcp://127.0.0.1:{port}",
+                   cwd=NET)
+    finally:
+        for p in [sched, *workers]:
+            p.kill()
+            p.wait()
+    # one line for each site whose outcome was lost (exit 1: those sites failed)
+    record("an existing Dask scheduler killed during a batch", proc.returncode in (1, 2)
+           and lines and all(line.startswith("error: site") and "scheduler" in line
+                             for line in lines) and took < 90
+           and all(c == 0 for c in codes) and rerun.returncode == 0
+           and sites_verify(NET / "out") == [0] * 4 and not leftovers(NET / "out"),
+           f"exit {proc.returncode} after {took:.0f} s, {len(lines)} lines {lines[:1]!r:.300}, "
+           f"{len(codes)} sites whole, rerun {rerun.returncode} {_stderr_tail(rerun, 100)}")
+
+
+def f_parent_renamed_during_run():
+    """The result's parent folder renamed while run computes (a user tidying a project
+    folder): the run writes nowhere half; one line or the result whole in one place."""
+    parent = W / "prn"
+    moved = W / "prn moved"
+    for p in (parent, moved):
+        shutil.rmtree(p, ignore_errors=True)
+    parent.mkdir()
+    shutil.copytree(W / "r1", parent / "res")
+    proc = start("run", "site.toml", "--out", parent / "res", "--quiet")
+    time.sleep(0.8)
+    parent.rename(moved)
+    out, err = proc.communicate(timeout=120)
+    done = subprocess.CompletedProcess([], proc.returncode, out, err)
+    # the run writes to the path it was given (made again, as for any new --out), or
+    # stops in one line; the moved folder keeps the earlier result whole
+    here = table_digests(moved / "res")
+    there = table_digests(parent / "res") if parent.exists() else None
+    record("the result's parent renamed while run computes", (one_line(done) or (
+           proc.returncode == 0 and there == table_digests(W / "r0")))
+           and here == table_digests(W / "r1") and not leftovers(moved)
+           and not (parent.exists() and leftovers(parent)),
+           f"exit {proc.returncode} {err.strip()[-150:]!r}, the path given made again "
+           f"{parent.exists()} holding the new result {there == table_digests(W / 'r0')}, "
+           f"left {leftovers(moved)}")
+
+
+def f_stop_while_waiting_for_lock():
+    """SIGTERM and Ctrl-C to a second run waiting for the first's lock on one folder:
+    one line, the first completes, no lock file or staging left."""
+    for signum in (signal.SIGTERM, signal.SIGINT):
+        folder = fresh("swl", "r1")
+        first = start("run", "site.toml", "--out", folder, "--quiet")
+        time.sleep(0.4)
+        second = start("run", "seed1.toml", "--out", folder)
+        time.sleep(1.0)
+        second.send_signal(signum)
+        out2, err2 = second.communicate(timeout=60)
+        first.communicate(timeout=120)
+        lines = [x for x in err2.splitlines() if not x.startswith(("warning:", "waiting"))
+                 and "waiting" not in x]
+        record(f"{signal.Signals(signum).name} to a run waiting for another's lock",
+               second.returncode == 128 + signum and len(lines) == 1 and first.returncode == 0
+               and table_digests(folder) == table_digests(W / "r0") and not leftovers(W)
+               and not (W / ".swl.lock").exists(),
+               f"second {second.returncode} {err2.strip()[-160:]!r}, first {first.returncode}, "
+               f"lock left {(W / '.swl.lock').exists()}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -2338,9 +2978,19 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_batch_two_configs_one_folder, f_reader_leaves_verify_diff_report,
           f_new_out_readonly_mount, f_env_differs_run_verify, f_two_reports_at_once,
           f_out_is_current_folder, f_export_into_result, f_ten_years_of_minutes,
-          f_batch_resumed_half_staged]
+          f_batch_resumed_half_staged,
+          # round faults40
+          f_stops_at_points, f_full_disk_each_table, f_full_disk_report_netcdf,
+          f_clock_steps_back, f_parquet_footer_damaged, f_report_while_run_swaps,
+          f_home_read_only, f_tmpdir_missing_or_read_only, f_locale_printed_numbers,
+          f_stdin_closed_run_batch, f_batch_ctrl_c_twice, f_batch_parent_killed,
+          f_batch_external_scheduler_killed, f_parent_renamed_during_run,
+          f_stop_while_waiting_for_lock, f_stopped_twice, f_batch_stopped_at_network_tables]
 
 if __name__ == "__main__":
+    # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
+    # and so would every command it starts (Ctrl-C faults then probe nothing)
+    signal.signal(signal.SIGINT, signal.default_int_handler)
     wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
     if not (W / "r1").exists():
         setup()
