@@ -576,7 +576,8 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
 
 
 def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
-                   months: pd.DataFrame | None = None) -> tuple[str, str, float]:
+                   months: pd.DataFrame | None = None, *,
+                   verdict_only: bool = False) -> tuple[str, str, float]:
     """Does the configured latitude give the day lengths measured Rg shows?
 
     Parameters
@@ -585,6 +586,11 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         As for :func:`monthly_shifts`.
     months : pandas.DataFrame, optional
         The output of :func:`monthly_shifts` for the configured latitude, if at hand.
+    verdict_only : bool, optional
+        Skip the scan where the configured latitude's swing alone decides
+        ``"consistent"`` (at most :data:`MIN_DAYLENGTH_SWING`: neither a mismatch nor a
+        one-sided shade can be called, whatever latitude fits best); `best` is then NaN.
+        :func:`check_clock` reads `best` only where the verdict is ``"cannot_judge"``.
 
     Returns
     -------
@@ -594,7 +600,7 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         One line saying why.
     best : float
         The latitude of the configured sign whose day lengths fit best [degrees];
-        NaN where not judged.
+        NaN where not judged (or not scanned, `verdict_only`).
 
     Notes
     -----
@@ -625,6 +631,11 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     if len(usable) < MIN_LATITUDE_MONTHS:
         return "cannot_judge", (f"latitude not judged: {len(usable)} month(s) of Rg with a "
                                 f"sunrise and a sunset ({MIN_LATITUDE_MONTHS} needed)"), np.nan
+    rg_width = usable["daylength_rg"].to_numpy()
+    configured = float(np.std(rg_width - usable["daylength_potential"].to_numpy()))
+    if verdict_only and not configured > MIN_DAYLENGTH_SWING:
+        # both calls below ask configured > MIN_DAYLENGTH_SWING: decided without the scan
+        return "consistent", _consistent_latitude(latitude, configured), np.nan
     index = pd.DatetimeIndex(index)
     rg_matrix, days = _day_slot_matrix(index, np.asarray(rg, dtype=float), interval)
     layout = _day_slot_layout(index, interval)
@@ -638,7 +649,6 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     rows = np.concatenate(month_days)
     starts = np.concatenate([[0], np.cumsum(sizes)[:-1]])
     filled = np.flatnonzero(sizes)                    # the months with good days
-    rg_width = usable["daylength_rg"].to_numpy()
 
     sun = interval_sun(index, longitude, utc_offset, interval)    # the same at every latitude
 
@@ -663,7 +673,6 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
             and np.isfinite(off).all() else np.inf
 
     sign = -1.0 if latitude < 0 else 1.0
-    configured = float(np.std(rg_width - usable["daylength_potential"].to_numpy()))
     coarse = {c: swing(sign * c) for c in np.arange(0.0, 86.0, 5.0)}
     centre = min(coarse, key=coarse.get)
     fine = {c: swing(sign * c) for c in np.arange(max(centre - 4.0, 0.0),
@@ -692,8 +701,12 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
             f"{best_swing:.0f} min through the year), not the configured {latitude:g} "
             f"({configured:.0f} min over {len(usable)} months): check [site] latitude, and "
             f"that [input] path names this site's file"), best
-    return "consistent", (f"day lengths of Rg consistent with latitude {latitude:g} "
-                          f"(swing {configured:.0f} min)"), best
+    return "consistent", _consistent_latitude(latitude, configured), best
+
+
+def _consistent_latitude(latitude: float, configured: float) -> str:
+    """:func:`check_latitude`'s detail where the day lengths fit the configured latitude."""
+    return f"day lengths of Rg consistent with latitude {latitude:g} (swing {configured:.0f} min)"
 
 
 def _unwrapped_shifts(used: pd.DataFrame) -> pd.DataFrame:
@@ -1080,7 +1093,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
         status = "hemisphere"
     if hemisphere != "mismatch":
         verdict, detail, best_latitude = check_latitude(index, rg, latitude, longitude, utc_offset,
-                                            interval, months)
+                                                        interval, months, verdict_only=True)
         if verdict == "mismatch":
             problems.append(f"site geometry: {detail}")
             status = "latitude" if status == "consistent" else status
