@@ -243,24 +243,30 @@ def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float
 
     ``potential_radiation(index - lag)`` for each lag [min]. It is computed record by
     record, so on a regular record a lag of minus j sub-steps gives the values of the
-    lag of 6 - j sub-steps one record later: those are taken from one extra record
-    computed at the end instead of computing them again (the stamps are checked to be
-    the same to the nanosecond, so the values are the same).
+    lag of 6 - j sub-steps one record later, and a lag of one whole record those of no
+    lag one record earlier: those are taken from one extra record computed at each end
+    instead of computing them again (the stamps are checked to be the same to the
+    nanosecond, so the values are the same).
     """
     interval = pd.Timedelta(minutes=interval_minutes)
     moved = {float(lag): pd.Timedelta(minutes=float(lag)) for lag in lags}
-    extended = index.append(pd.DatetimeIndex([index[-1] + interval]))
+    extended = pd.DatetimeIndex([index[0] - interval]).append(index).append(
+        pd.DatetimeIndex([index[-1] + interval]))
     regular = len(index) > 1 and bool(((extended[1:] - extended[:-1]) == interval).all())
     out, computed = {}, {}
     for lag in sorted(moved, key=lambda value: (value < 0, abs(value))):
-        partner = next((other for other, values in computed.items()
-                        if moved[other] - interval == moved[lag]), None)
-        if regular and partner is not None:
-            out[lag] = computed[partner][1:]
+        later = next((other for other in computed if moved[other] - interval == moved[lag]),
+                     None)
+        earlier = next((other for other in computed
+                        if moved[other] + interval == moved[lag]), None)
+        if regular and later is not None:
+            out[lag] = computed[later][2:]
+        elif regular and earlier is not None:
+            out[lag] = computed[earlier][:-2]
         elif regular:
             computed[lag] = potential_radiation(extended - moved[lag], *position,
                                                 interval_minutes)
-            out[lag] = computed[lag][:-1]
+            out[lag] = computed[lag][1:-1]
         else:
             out[lag] = potential_radiation(index - moved[lag], *position, interval_minutes)
     return out

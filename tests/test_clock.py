@@ -303,7 +303,8 @@ def test_a_run_shifted_as_much_as_the_rest_is_no_period_on_another_clock():
 
 @pytest.mark.parametrize("minutes", [10, 20, 30, 60])
 def test_lagged_potential_equals_the_direct_computation(minutes):
-    """The lags reused from one record later equal potential radiation computed at the
+    """The lags reused from one record later (and a whole record's lag from one record
+    earlier) equal potential radiation computed at the
     moved stamps, to the last bit; a record with gaps is computed directly."""
     from fluxpart.clock import _lagged_potential
     from fluxpart.solar import potential_radiation
