@@ -384,8 +384,11 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
     # the records' evenings once for the test and the regressor
     evening = _evening_days(index)
     tests = _dependence_table(_night_means(nee, is_night, light, temperatures, evening))
-    regressor = _passed_years_only(light, evening, tests)
-    if np.isnan(regressor).all():
+    # no year passed (most fills of a site without the effect): NaN everywhere, decided
+    # without the years of the records' evenings
+    regressor = (_passed_years_only(light, evening, tests)
+                 if tests["passed"].to_numpy(dtype=bool).any() else None)
+    if regressor is None or np.isnan(regressor).all():
         # the other columns by position: a quarter of the cost of `drop` (its label
         # lookups), paid on every fill of the artificial gaps (round speed49)
         kept = [position for position, name in enumerate(conditions.columns) if name != COLUMN]
