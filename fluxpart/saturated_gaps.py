@@ -65,18 +65,14 @@ _COLUMNS = ["day_gaps", "saturated_gaps", "gap_share", "measured_share", "strata
             "contrast", "contrast_se", "z", "potential_bias"]
 
 
-def _flat(totals: pd.DataFrame, variance: pd.Series, size: pd.Series, wet: bool
-          ) -> pd.DataFrame:
-    """One side's per-stratum sums of :func:`saturated_gap_contrast` under flat names, from
-    the grouping of both sides (its first level: wet or not)."""
-    side = "wet" if wet else "dry"
-    chosen = totals.index.get_level_values(0) == wet
-    return pd.DataFrame({f"{side}_n": size[chosen].droplevel(0),
-                         f"{side}_nee": totals["nee"][chosen].droplevel(0),
-                         f"{side}_var": variance[chosen].droplevel(0),
-                         f"{side}_rg": totals["rg"][chosen].droplevel(0),
-                         f"{side}_rg2": totals["rg2"][chosen].droplevel(0),
-                         f"{side}_rg_nee": totals["rg_nee"][chosen].droplevel(0)})
+def _flat(aggregated: pd.DataFrame, side: str) -> pd.DataFrame:
+    """The per-stratum sums of :func:`saturated_gap_contrast` under flat names."""
+    return pd.DataFrame({f"{side}_n": aggregated[("nee", "size")],
+                         f"{side}_nee": aggregated[("nee", "sum")],
+                         f"{side}_var": aggregated[("nee", "var")],
+                         f"{side}_rg": aggregated[("rg", "sum")],
+                         f"{side}_rg2": aggregated[("rg2", "sum")],
+                         f"{side}_rg_nee": aggregated[("rg_nee", "sum")]})
 
 
 def saturated_gap_contrast(timeseries: pd.DataFrame, year_keys, interval_minutes,
@@ -164,15 +160,14 @@ def saturated_gap_contrast(timeseries: pd.DataFrame, year_keys, interval_minutes
         return pd.DataFrame(columns=_COLUMNS, dtype=float)
     strata = ["year", "month", "light", "warmth"]
     columns = {"nee": nee, "rg": rg, "rg2": rg * rg, "rg_nee": rg * nee}
-    # both sides in one grouping, the side its first key: each stratum's sums, variance
-    # and count over the same records in the same order as a grouping of each side alone
-    is_wet = day & measured & saturated
-    rows = is_wet | (day & measured & drier)
-    grouped = pd.DataFrame({k: v[rows] for k, v in columns.items()}).groupby(
-        [is_wet[rows], *(keys[k].to_numpy()[rows] for k in strata)])
-    totals, variance, size = grouped.sum(), grouped["nee"].var(), grouped.size()
-    wet = _flat(totals, variance, size, True)
-    dry = _flat(totals, variance, size, False)
+
+    def sums(mask):
+        return pd.DataFrame({k: v[mask] for k, v in columns.items()}).groupby(
+            [keys[k].to_numpy()[mask] for k in strata]).agg(
+            {"nee": ["size", "sum", "var"], "rg": "sum", "rg2": "sum", "rg_nee": "sum"})
+
+    wet = _flat(sums(day & measured & saturated), "wet")
+    dry = _flat(sums(day & measured & drier), "dry")
     weight = pd.Series(1.0, index=pd.MultiIndex.from_frame(keys[sat_gaps])).groupby(
         level=[0, 1, 2, 3]).size().rename("weight")
     joined = pd.concat([weight, wet, dry], axis=1, join="inner")
