@@ -2469,18 +2469,24 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
         # it), so no morning is compared with an afternoon
         return None
     table = table.dropna()
-    table = table[(table["count"][False] >= _SHADE_MIN_RECORDS)
-                  & (table["count"][True] >= _SHADE_MIN_RECORDS)]
-    if table.empty:
+    # (measure, afternoon) -> its values, each column taken once
+    column = {key: table[key].to_numpy() for key in table.columns}
+    kept = ((column[("count", False)] >= _SHADE_MIN_RECORDS)
+            & (column[("count", True)] >= _SHADE_MIN_RECORDS))
+    if not kept.any():
         return None
+    strata = table.index[kept]
     shaded = {}
     for name, dim_half in (("morning", False), ("afternoon", True)):
+        clear, lower = (column[(measure, dim_half)][kept] for measure in ("clear", "lower"))
+        other_clear, other_lower = (column[(measure, not dim_half)][kept]
+                                    for measure in ("clear", "lower"))
         with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = table["clear"][dim_half] / table["clear"][not dim_half]
-            lower_ratio = table["lower"][dim_half] / table["lower"][not dim_half]
-        hit = ratio[(table["clear"][not dim_half] > 0.0) & (table["lower"][not dim_half] > 0.0)
-                    & (ratio <= _SHADE_RATIO) & (lower_ratio <= _SHADE_RATIO)]
-        shaded[name] = hit
+            ratio = clear / other_clear
+            lower_ratio = lower / other_lower
+            hit = ((other_clear > 0.0) & (other_lower > 0.0) & (ratio <= _SHADE_RATIO)
+                   & (lower_ratio <= _SHADE_RATIO))
+        shaded[name] = pd.Series(ratio[hit], index=strata[hit])
     def recurring(hit):
         """Months shaded at the distance from noon shaded in the most months."""
         return int(hit.groupby(level=1).size().max()) if hit.size else 0
