@@ -408,25 +408,22 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
     rg_matrix, days = _day_slot_matrix(index, rg, interval)
     layout = _day_slot_layout(index, interval)
 
-    def as_matrix(values):
-        """The same as ``_day_slot_matrix(index, values, interval)[0]``, reusing the layout."""
-        matrix = np.full(rg_matrix.shape, np.nan)
-        matrix[layout] = values
-        return matrix
-
     step = interval / 6.0
     fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
     shifted = _lagged_potential(index, position, interval, fine_lags)
-    potential = shifted[0.0]
-    potential_matrix = as_matrix(potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
     months = days.to_period("M")
 
-    fine = {lag: as_matrix(values) for lag, values in shifted.items() if lag != 0.0}
-    fine[0.0] = potential_matrix
-    flipped_matrix = as_matrix(potential_radiation(
-        index, -latitude, longitude, utc_offset, interval))
+    # every lag's course and the flipped latitude's as one (lag, day, slot) array, so that
+    # a month's composites are one reduction; each layer's sums over the days run in the
+    # same order as a matrix's own (the days' axis is not the innermost)
+    courses = np.full((len(fine_lags) + 1, *rg_matrix.shape), np.nan)
+    for layer, values in enumerate([*(shifted[float(lag)] for lag in fine_lags),
+                                    potential_radiation(index, -latitude, longitude,
+                                                        utc_offset, interval)]):
+        courses[layer][layout] = values
+    lag_layer = {float(lag): layer for layer, lag in enumerate(fine_lags)}
 
     rows = []
     for month in months.unique():
@@ -444,9 +441,9 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         block = np.where(present[in_month], rg_matrix[in_month], np.nan)
         envelope = nanquantile(block, ENVELOPE_QUANTILE, axis=0)
         mask = present[in_month]
-        composite = {lag: np.nanmean(np.where(mask, matrix[in_month], np.nan), axis=0)
-                     for lag, matrix in fine.items()}
-        flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
+        month_courses = np.nanmean(np.where(mask, courses[:, in_month], np.nan), axis=1)
+        composite = {lag: month_courses[layer] for lag, layer in lag_layer.items()}
+        flipped_composite = month_courses[-1]
         row["potential_daily"] = float(np.nanmean(composite[0.0]))
         row["flipped_daily"] = float(np.nanmean(flipped_composite))
         daily_rg = np.nanmean(block, axis=1)
