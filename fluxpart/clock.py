@@ -243,24 +243,30 @@ def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float
 
     ``potential_radiation(index - lag)`` for each lag [min]. It is computed record by
     record, so on a regular record a lag of minus j sub-steps gives the values of the
-    lag of 6 - j sub-steps one record later: those are taken from one extra record
-    computed at the end instead of computing them again (the stamps are checked to be
-    the same to the nanosecond, so the values are the same).
+    lag of 6 - j sub-steps one record later, and a lag of one whole record those of no
+    lag one record earlier: those are taken from one extra record computed at each end
+    instead of computing them again (the stamps are checked to be the same to the
+    nanosecond, so the values are the same).
     """
     interval = pd.Timedelta(minutes=interval_minutes)
     moved = {float(lag): pd.Timedelta(minutes=float(lag)) for lag in lags}
-    extended = index.append(pd.DatetimeIndex([index[-1] + interval]))
+    extended = pd.DatetimeIndex([index[0] - interval]).append(index).append(
+        pd.DatetimeIndex([index[-1] + interval]))
     regular = len(index) > 1 and bool(((extended[1:] - extended[:-1]) == interval).all())
     out, computed = {}, {}
     for lag in sorted(moved, key=lambda value: (value < 0, abs(value))):
-        partner = next((other for other, values in computed.items()
-                        if moved[other] - interval == moved[lag]), None)
-        if regular and partner is not None:
-            out[lag] = computed[partner][1:]
+        later = next((other for other in computed if moved[other] - interval == moved[lag]),
+                     None)
+        earlier = next((other for other in computed
+                        if moved[other] + interval == moved[lag]), None)
+        if regular and later is not None:
+            out[lag] = computed[later][2:]
+        elif regular and earlier is not None:
+            out[lag] = computed[earlier][:-2]
         elif regular:
             computed[lag] = potential_radiation(extended - moved[lag], *position,
                                                 interval_minutes)
-            out[lag] = computed[lag][:-1]
+            out[lag] = computed[lag][1:-1]
         else:
             out[lag] = potential_radiation(index - moved[lag], *position, interval_minutes)
     return out
@@ -402,25 +408,22 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
     rg_matrix, days = _day_slot_matrix(index, rg, interval)
     layout = _day_slot_layout(index, interval)
 
-    def as_matrix(values):
-        """The same as ``_day_slot_matrix(index, values, interval)[0]``, reusing the layout."""
-        matrix = np.full(rg_matrix.shape, np.nan)
-        matrix[layout] = values
-        return matrix
-
     step = interval / 6.0
     fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
     shifted = _lagged_potential(index, position, interval, fine_lags)
-    potential = shifted[0.0]
-    potential_matrix = as_matrix(potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
     months = days.to_period("M")
 
-    fine = {lag: as_matrix(values) for lag, values in shifted.items() if lag != 0.0}
-    fine[0.0] = potential_matrix
-    flipped_matrix = as_matrix(potential_radiation(
-        index, -latitude, longitude, utc_offset, interval))
+    # every lag's course and the flipped latitude's as one (lag, day, slot) array, so that
+    # a month's composites are one reduction; each layer's sums over the days run in the
+    # same order as a matrix's own (the days' axis is not the innermost)
+    courses = np.full((len(fine_lags) + 1, *rg_matrix.shape), np.nan)
+    for layer, values in enumerate([*(shifted[float(lag)] for lag in fine_lags),
+                                    potential_radiation(index, -latitude, longitude,
+                                                        utc_offset, interval)]):
+        courses[layer][layout] = values
+    lag_layer = {float(lag): layer for layer, lag in enumerate(fine_lags)}
 
     rows = []
     for month in months.unique():
@@ -438,9 +441,9 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         block = np.where(present[in_month], rg_matrix[in_month], np.nan)
         envelope = nanquantile(block, ENVELOPE_QUANTILE, axis=0)
         mask = present[in_month]
-        composite = {lag: np.nanmean(np.where(mask, matrix[in_month], np.nan), axis=0)
-                     for lag, matrix in fine.items()}
-        flipped_composite = np.nanmean(np.where(mask, flipped_matrix[in_month], np.nan), axis=0)
+        month_courses = np.nanmean(np.where(mask, courses[:, in_month], np.nan), axis=1)
+        composite = {lag: month_courses[layer] for lag, layer in lag_layer.items()}
+        flipped_composite = month_courses[-1]
         row["potential_daily"] = float(np.nanmean(composite[0.0]))
         row["flipped_daily"] = float(np.nanmean(flipped_composite))
         daily_rg = np.nanmean(block, axis=1)
@@ -576,7 +579,8 @@ def check_hemisphere(index, rg, latitude, longitude, utc_offset, interval_minute
 
 
 def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
-                   months: pd.DataFrame | None = None) -> tuple[str, str, float]:
+                   months: pd.DataFrame | None = None, *,
+                   verdict_only: bool = False) -> tuple[str, str, float]:
     """Does the configured latitude give the day lengths measured Rg shows?
 
     Parameters
@@ -585,6 +589,11 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         As for :func:`monthly_shifts`.
     months : pandas.DataFrame, optional
         The output of :func:`monthly_shifts` for the configured latitude, if at hand.
+    verdict_only : bool, optional
+        Skip the scan where the configured latitude's swing alone decides
+        ``"consistent"`` (at most :data:`MIN_DAYLENGTH_SWING`: neither a mismatch nor a
+        one-sided shade can be called, whatever latitude fits best); `best` is then NaN.
+        :func:`check_clock` reads `best` only where the verdict is ``"cannot_judge"``.
 
     Returns
     -------
@@ -594,7 +603,7 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         One line saying why.
     best : float
         The latitude of the configured sign whose day lengths fit best [degrees];
-        NaN where not judged.
+        NaN where not judged (or not scanned, `verdict_only`).
 
     Notes
     -----
@@ -625,6 +634,11 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     if len(usable) < MIN_LATITUDE_MONTHS:
         return "cannot_judge", (f"latitude not judged: {len(usable)} month(s) of Rg with a "
                                 f"sunrise and a sunset ({MIN_LATITUDE_MONTHS} needed)"), np.nan
+    rg_width = usable["daylength_rg"].to_numpy()
+    configured = float(np.std(rg_width - usable["daylength_potential"].to_numpy()))
+    if verdict_only and not configured > MIN_DAYLENGTH_SWING:
+        # both calls below ask configured > MIN_DAYLENGTH_SWING: decided without the scan
+        return "consistent", _consistent_latitude(latitude, configured), np.nan
     index = pd.DatetimeIndex(index)
     rg_matrix, days = _day_slot_matrix(index, np.asarray(rg, dtype=float), interval)
     layout = _day_slot_layout(index, interval)
@@ -638,7 +652,6 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     rows = np.concatenate(month_days)
     starts = np.concatenate([[0], np.cumsum(sizes)[:-1]])
     filled = np.flatnonzero(sizes)                    # the months with good days
-    rg_width = usable["daylength_rg"].to_numpy()
 
     sun = interval_sun(index, longitude, utc_offset, interval)    # the same at every latitude
 
@@ -663,7 +676,6 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
             and np.isfinite(off).all() else np.inf
 
     sign = -1.0 if latitude < 0 else 1.0
-    configured = float(np.std(rg_width - usable["daylength_potential"].to_numpy()))
     coarse = {c: swing(sign * c) for c in np.arange(0.0, 86.0, 5.0)}
     centre = min(coarse, key=coarse.get)
     fine = {c: swing(sign * c) for c in np.arange(max(centre - 4.0, 0.0),
@@ -692,8 +704,12 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
             f"{best_swing:.0f} min through the year), not the configured {latitude:g} "
             f"({configured:.0f} min over {len(usable)} months): check [site] latitude, and "
             f"that [input] path names this site's file"), best
-    return "consistent", (f"day lengths of Rg consistent with latitude {latitude:g} "
-                          f"(swing {configured:.0f} min)"), best
+    return "consistent", _consistent_latitude(latitude, configured), best
+
+
+def _consistent_latitude(latitude: float, configured: float) -> str:
+    """:func:`check_latitude`'s detail where the day lengths fit the configured latitude."""
+    return f"day lengths of Rg consistent with latitude {latitude:g} (swing {configured:.0f} min)"
 
 
 def _unwrapped_shifts(used: pd.DataFrame) -> pd.DataFrame:
@@ -1080,7 +1096,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
         status = "hemisphere"
     if hemisphere != "mismatch":
         verdict, detail, best_latitude = check_latitude(index, rg, latitude, longitude, utc_offset,
-                                            interval, months)
+                                                        interval, months, verdict_only=True)
         if verdict == "mismatch":
             problems.append(f"site geometry: {detail}")
             status = "latitude" if status == "consistent" else status

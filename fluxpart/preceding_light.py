@@ -213,6 +213,10 @@ def _passed_years_only(light, evening, tests) -> np.ndarray:
     return np.where(np.isin(years, passed), np.asarray(light, dtype=float), np.nan)
 
 
+_DAY_NS = 86_400 * 10**9
+_HALF_DAY_NS = _DAY_NS // 2
+
+
 def _evening_days(index) -> tuple:
     """The first record's evening date (``datetime64[D]``) and each record's evening as a
     day number from it (int64): the date of the record's night's evening on the stamps'
@@ -221,11 +225,12 @@ def _evening_days(index) -> tuple:
     if getattr(index, "tz", None) is not None:
         index = index.tz_localize(None)         # the local clock, as pandas' normalize
     stamps = np.asarray(index.to_numpy(), dtype="datetime64[ns]")
-    # a datetime64 cast to days floors, so a record before noon falls on the day before
-    evening = (stamps - np.timedelta64(12, "h")).astype("datetime64[D]")
-    if not evening.size:
+    if not stamps.size:
         return np.datetime64("NaT", "D"), np.zeros(0, dtype=np.int64)
-    return evening[0], (evening - evening[0]).astype(np.int64)
+    # days since 1970 floored, so a record before noon falls on the day before: the days
+    # of NumPy's datetime64[D] cast, in integers (a fifth of its cost, on every fill)
+    evening = (stamps.view(np.int64) - _HALF_DAY_NS) // _DAY_NS
+    return np.datetime64(int(evening[0]), "D"), evening - evening[0]
 
 
 def _calendar_year(dates) -> np.ndarray:
@@ -384,8 +389,11 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
     # the records' evenings once for the test and the regressor
     evening = _evening_days(index)
     tests = _dependence_table(_night_means(nee, is_night, light, temperatures, evening))
-    regressor = _passed_years_only(light, evening, tests)
-    if np.isnan(regressor).all():
+    # no year passed (most fills of a site without the effect): NaN everywhere, decided
+    # without the years of the records' evenings
+    regressor = (_passed_years_only(light, evening, tests)
+                 if tests["passed"].to_numpy(dtype=bool).any() else None)
+    if regressor is None or np.isnan(regressor).all():
         # the other columns by position: a quarter of the cost of `drop` (its label
         # lookups), paid on every fill of the artificial gaps (round speed49)
         kept = [position for position, name in enumerate(conditions.columns) if name != COLUMN]

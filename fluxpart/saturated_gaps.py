@@ -65,14 +65,17 @@ _COLUMNS = ["day_gaps", "saturated_gaps", "gap_share", "measured_share", "strata
             "contrast", "contrast_se", "z", "potential_bias"]
 
 
-def _flat(aggregated: pd.DataFrame, side: str) -> pd.DataFrame:
-    """The per-stratum sums of :func:`saturated_gap_contrast` under flat names."""
-    return pd.DataFrame({f"{side}_n": aggregated[("nee", "size")],
-                         f"{side}_nee": aggregated[("nee", "sum")],
-                         f"{side}_var": aggregated[("nee", "var")],
-                         f"{side}_rg": aggregated[("rg", "sum")],
-                         f"{side}_rg2": aggregated[("rg2", "sum")],
-                         f"{side}_rg_nee": aggregated[("rg_nee", "sum")]})
+def _side_sums(columns: dict, keys: list, side: str) -> pd.DataFrame:
+    """The per-stratum sums of :func:`saturated_gap_contrast` of one side under flat names:
+    each column's own group kernel on the side's own grouping, as an aggregation by a dict
+    of the columns takes them, without its table of labelled results."""
+    grouped = pd.DataFrame(columns).groupby(keys)
+    return pd.DataFrame({f"{side}_n": grouped["nee"].size(),
+                         f"{side}_nee": grouped["nee"].sum(),
+                         f"{side}_var": grouped["nee"].var(),
+                         f"{side}_rg": grouped["rg"].sum(),
+                         f"{side}_rg2": grouped["rg2"].sum(),
+                         f"{side}_rg_nee": grouped["rg_nee"].sum()})
 
 
 def saturated_gap_contrast(timeseries: pd.DataFrame, year_keys, interval_minutes,
@@ -161,13 +164,12 @@ def saturated_gap_contrast(timeseries: pd.DataFrame, year_keys, interval_minutes
     strata = ["year", "month", "light", "warmth"]
     columns = {"nee": nee, "rg": rg, "rg2": rg * rg, "rg_nee": rg * nee}
 
-    def sums(mask):
-        return pd.DataFrame({k: v[mask] for k, v in columns.items()}).groupby(
-            [keys[k].to_numpy()[mask] for k in strata]).agg(
-            {"nee": ["size", "sum", "var"], "rg": "sum", "rg2": "sum", "rg_nee": "sum"})
+    def sums(mask, side):
+        return _side_sums({k: v[mask] for k, v in columns.items()},
+                          [keys[k].to_numpy()[mask] for k in strata], side)
 
-    wet = _flat(sums(day & measured & saturated), "wet")
-    dry = _flat(sums(day & measured & drier), "dry")
+    wet = sums(day & measured & saturated, "wet")
+    dry = sums(day & measured & drier, "dry")
     weight = pd.Series(1.0, index=pd.MultiIndex.from_frame(keys[sat_gaps])).groupby(
         level=[0, 1, 2, 3]).size().rename("weight")
     joined = pd.concat([weight, wet, dry], axis=1, join="inner")

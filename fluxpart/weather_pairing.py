@@ -100,8 +100,13 @@ def _uptake_days(nee, rg, index):
     day = both & (rg_course > COURSE_DAY)
     courses = pd.DataFrame({"month": month, "rg": rg_course,
                             "nee": nee - nee_anomaly}).loc[day].drop_duplicates()
-    slopes = {m: np.polyfit(c["rg"], c["nee"], 1)[0]
-              for m, c in courses.groupby("month") if c["rg"].nunique() >= 4}
+    # month by month, each month's courses in their order (Rg finite: above COURSE_DAY)
+    course_month, course_rg, course_nee = (courses[name].to_numpy()
+                                           for name in ("month", "rg", "nee"))
+    order = np.argsort(course_month, kind="stable")
+    slopes = {course_month[rows[0]]: np.polyfit(course_rg[rows], course_nee[rows], 1)[0]
+              for rows in np.split(order, np.flatnonzero(np.diff(course_month[order])) + 1)
+              if np.unique(course_rg[rows]).size >= 4}
     slope = pd.Series(month).map(slopes).to_numpy(dtype=float)
     with np.errstate(invalid="ignore"):
         day &= slope < UPTAKE_SLOPE

@@ -303,7 +303,8 @@ def test_a_run_shifted_as_much_as_the_rest_is_no_period_on_another_clock():
 
 @pytest.mark.parametrize("minutes", [10, 20, 30, 60])
 def test_lagged_potential_equals_the_direct_computation(minutes):
-    """The lags reused from one record later equal potential radiation computed at the
+    """The lags reused from one record later (and a whole record's lag from one record
+    earlier) equal potential radiation computed at the
     moved stamps, to the last bit; a record with gaps is computed directly."""
     from fluxpart.clock import _lagged_potential
     from fluxpart.solar import potential_radiation
@@ -375,6 +376,23 @@ def test_latitude_check_passes_correct_sites(latitude, longitude, utc_offset, in
         verdict = check_latitude(rg.index, rg.to_numpy(), configured, longitude, utc_offset,
                                  interval)
         assert verdict[0] != "mismatch", verdict[1]
+
+
+def test_latitude_verdict_without_scan_where_the_swing_decides():
+    """`verdict_only` (what check_clock asks) skips the latitude scan where the configured
+    latitude's day-length swing is at most MIN_DAYLENGTH_SWING, which decides "consistent"
+    before any latitude is scanned: the same verdict and detail as the full scan, `best`
+    NaN; a latitude 19° off still scans and is called a mismatch (FAO-56 eq. 34: day
+    length against latitude and season)."""
+    rg = synthetic_rg(48.0, 11.0, 1.0, interval_minutes=30, seed=3)
+    months = monthly_shifts(rg.index, rg.to_numpy(), 48.0, 11.0, 1.0, 30)
+    full = check_latitude(rg.index, rg.to_numpy(), 48.0, 11.0, 1.0, 30, months)
+    quick = check_latitude(rg.index, rg.to_numpy(), 48.0, 11.0, 1.0, 30, months,
+                           verdict_only=True)
+    assert full[0] == quick[0] == "consistent" and full[1] == quick[1]
+    assert np.isfinite(full[2]) and np.isnan(quick[2])
+    wrong = check_latitude(rg.index, rg.to_numpy(), 29.0, 11.0, 1.0, 30, verdict_only=True)
+    assert wrong[0] == "mismatch" and abs(wrong[2] - 48.0) <= 3.0
 
 
 @pytest.mark.parametrize("latitude, longitude, utc_offset, interval", [

@@ -206,3 +206,18 @@ def test_evening_days_are_those_of_pandas(start, tz, unit):
     assert (preceding_light._calendar_year(dates) == want.year.to_numpy()).all()
     assert (preceding_light._day_of_year(dates) == want.day_of_year.to_numpy()).all()
     assert (day == (want - want[0]).days.to_numpy()).all()
+
+
+def test_evening_days_match_numpy_day_cast():
+    """The records' evenings in integer days equal NumPy's ``datetime64[D]`` cast of the
+    stamps less 12 h (which floors, before 1970 too): a record before noon belongs to the
+    night that began the evening before."""
+    rng = np.random.default_rng(11)
+    stamps = np.sort(rng.integers(-2 * 10**18, 3 * 10**18, 2000)).astype("datetime64[ns]")
+    for index in (pd.DatetimeIndex(stamps), pd.date_range("2021-01-01", periods=96,
+                                                          freq="30min")):
+        evening = (index.to_numpy() - np.timedelta64(12, "h")).astype("datetime64[D]")
+        first, day = preceding_light._evening_days(index)
+        assert first == evening[0] and first.dtype == evening.dtype
+        np.testing.assert_array_equal(day, (evening - evening[0]).astype(np.int64))
+        assert day.dtype == np.int64
