@@ -1013,8 +1013,10 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
 # In print (the README: "it prints to PDF") a table wider than the page was cut at its
 # edge: the u* table lost its draws_valid, reason and source columns and the monthly
 # coverage table its last (review58, Chromium's print to PDF). Printed, the detailed tables
-# take a smaller type and their header cells (column names without spaces) may break
+# take a smaller type and their column header cells (names without spaces) may break
 # anywhere, so each table fits the page width; a section heading stays with what follows.
+# Row headers keep their words: broken anywhere, the provenance table's names printed
+# three letters wide, "respiration temperature" in eight lines (review59).
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
        max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
@@ -1059,7 +1061,7 @@ summary { cursor: pointer; font-weight: 600; }
   .scroll { overflow: visible; }
   .scroll table { font-size: 7pt; }
   .scroll th, .scroll td { padding: 0.1em 0.25em; }
-  .scroll th { overflow-wrap: anywhere; }
+  .scroll thead th { overflow-wrap: anywhere; }
   h2, h3 { break-after: avoid; }
 }
 """
