@@ -1017,6 +1017,8 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
 # anywhere, so each table fits the page width; a section heading stays with what follows.
 # Row headers keep their words: broken anywhere, the provenance table's names printed
 # three letters wide, "respiration temperature" in eight lines (review59).
+# The summary card's table of GPP and Reco keeps the screen's type: at 7 pt the
+# report's headline numbers printed smaller than any text around them (review59).
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
        max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
@@ -1060,6 +1062,7 @@ summary { cursor: pointer; font-weight: 600; }
   details > * { display: block; }
   .scroll { overflow: visible; }
   .scroll table { font-size: 7pt; }
+  .scroll table.summary-fluxes { font-size: 0.85em; }
   .scroll th, .scroll td { padding: 0.1em 0.25em; }
   .scroll thead th { overflow-wrap: anywhere; }
   h2, h3 { break-after: avoid; }

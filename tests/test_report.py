@@ -1143,6 +1143,9 @@ def test_printed_detailed_tables_may_wrap_their_column_names_to_fit_the_page(fol
                    for selector, body in rules.items())
     assert float(re.fullmatch(r"font-size: ([\d.]+)pt;", rules[".scroll table"]).group(1)) < 10
     assert rules["h2, h3"] == "break-after: avoid;"
+    # the summary card's GPP and Reco are the headline numbers, not a detailed table:
+    # printed in the type of the page's tables, not at 7 pt (review59)
+    assert rules[".scroll table.summary-fluxes"] == "font-size: 0.85em;"
 
 
 def test_report_modules_import_no_pipeline_or_method_module():
