@@ -119,10 +119,13 @@ def nee_without_ustar(nee, ustar, index, interval_minutes=30.0, names=None,
         return None
     names = names or {}
     days = pd.DatetimeIndex(index)[runs & measured]
+    # the runs' length and the part of them with NEE apart: "5.1 days' worth" of a week
+    # removed read as the u* missing (review59)
     return (f"u* (column {names.get('ustar', 'ustar')!r}) is missing for a day or more at a "
-            f"time ({without / per_day:.1f} days' worth of records, {days[0]:%Y-%m-%d} .. "
-            f"{days[-1]:%Y-%m-%d}) in which NEE (column {names.get('nee', 'nee')!r}) and the "
-            f"weather are present in {100 * share_without:.0f} % of the records, against "
+            f"time in {int(runs.sum()) / per_day:.1f} days' worth of records, in which NEE "
+            f"(column {names.get('nee', 'nee')!r}) and the weather are present in "
+            f"{100 * share_without:.0f} % ({without / per_day:.1f} days' worth, "
+            f"{days[0]:%Y-%m-%d} .. {days[-1]:%Y-%m-%d}), against "
             f"{100 * share_with:.0f} % where u* is present: the flux and u* come from one "
             "sonic anemometer, so a sonic lost for a day loses both. Either the u* column is "
             "another record's (another year's file, another tower or station joined by "

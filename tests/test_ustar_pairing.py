@@ -72,5 +72,9 @@ def test_own_ustar_removed_alone_for_days_is_worded_as_either_cause():
     flagged[60 * 48:67 * 48] = np.nan               # a week of u* removed, NEE kept
     text = nee_without_ustar(nee, flagged, index, 30, drivers=[tair, rg])
     assert text is not None and "2021-05-31" in text
+    # the week is said as the runs' length, the records with NEE in them apart (a share of
+    # them, "5.1 days' worth", had read as the u* missing)
+    # (the runs: the tower's three-day sonic loss and the week, 3 + 7 days)
+    assert "in 10.0 days' worth of records, in which NEE" in text
     assert "another record's" in text and "removed there by a check that kept the flux" in text
     assert "rejected and filled as any without u*" in text
