@@ -608,8 +608,9 @@ def _parser() -> argparse.ArgumentParser:
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
         description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved. Exit 0: same; 1: they "
-        "differ; 2: error.")
+        "fingerprint, platform, and how each annual number moved. Exit 0: same, or the only "
+        "differences are tables whose values are equal within floating-point rounding (as "
+        "verify judges it); 1: anything else differs; 2: error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))

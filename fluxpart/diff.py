@@ -470,7 +470,8 @@ def diff_folders(first, second) -> DiffReport:
 
 
 def command_diff(args) -> int:
-    """``fluxpart diff A B``: 0 when the same, 1 when they differ (errors exit 2)."""
+    """``fluxpart diff A B``: 0 when the same or equal within rounding, 1 when anything else
+    differs (errors exit 2)."""
     report = diff_folders(args.first, args.second)
     print(report.format())
     return report.exit_code

@@ -86,6 +86,12 @@ VPD 0 in most sunlit, warm records of a   input (vpd zeros)                   no
 month (a rain gauge, a lost sensor)
 VPD and RH implying the soil temperature  input (vpd from tsoil)              no
 (VPD computed with it, not the air's)
+NEE below 0 in under 5 % of a year's      input (nee no uptake)               no
+warm, bright records, nights a release
+(another gas's flux, a bare site)
+u* missing for days where NEE and the     input (ustar of another record)     no
+weather were measured (another record's
+u*, or u* removed alone by a check)
 a gap of measured NEE longer than the     gap filling (quality C only)        no
 largest quality-A window (28 days)
 night records without measured NEE        gap filling (night, quality C)      no

@@ -1016,8 +1016,12 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
 # In print (the README: "it prints to PDF") a table wider than the page was cut at its
 # edge: the u* table lost its draws_valid, reason and source columns and the monthly
 # coverage table its last (review58, Chromium's print to PDF). Printed, the detailed tables
-# take a smaller type and their header cells (column names without spaces) may break
+# take a smaller type and their column header cells (names without spaces) may break
 # anywhere, so each table fits the page width; a section heading stays with what follows.
+# Row headers keep their words: broken anywhere, the provenance table's names printed
+# three letters wide, "respiration temperature" in eight lines (review59).
+# The summary card's table of GPP and Reco keeps the screen's type: at 7 pt the
+# report's headline numbers printed smaller than any text around them (review59).
 _CSS = """
 body { font-family: "DejaVu Sans", Verdana, Arial, sans-serif; color: #1a1a1a;
        max-width: 1100px; margin: 1.2em auto; padding: 0 1em; line-height: 1.45; }
@@ -1061,8 +1065,9 @@ summary { cursor: pointer; font-weight: 600; }
   details > * { display: block; }
   .scroll { overflow: visible; }
   .scroll table { font-size: 7pt; }
+  .scroll table.summary-fluxes { font-size: 0.85em; }
   .scroll th, .scroll td { padding: 0.1em 0.25em; }
-  .scroll th { overflow-wrap: anywhere; }
+  .scroll thead th { overflow-wrap: anywhere; }
   h2, h3 { break-after: avoid; }
 }
 """

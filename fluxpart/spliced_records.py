@@ -122,7 +122,7 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
         than 1 K) and the air temperature, at the same record, by its 99th percentile or
         more (two such records in a row, one record stepping out and back, count as
         none; with `index`, only joints within 200 days of another count: the two ends
-        of one pasted stretch, a season at most); or where fewer than 1440 pairs of
+        of one pasted stretch, half a year or so at most); or where fewer than 1440 pairs of
         consecutive records hold both temperatures.
 
     Notes

@@ -346,6 +346,10 @@ def test_every_command_help_states_its_exit_statuses(command, capsys):
     if command in ("check", "batch", "verify", "diff"):
         assert "1: " in text
     assert "half-hourly" not in text  # records may be hourly; export writes the record interval
+    if command == "diff":
+        # folders equal within rounding exit 0 since leftovers50; the help still said
+        # "Exit 0: same; 1: they differ" (review59)
+        assert "equal within floating-point rounding" in text
 
 
 def test_netcdf_export_docs_do_not_promise_half_hourly_records():

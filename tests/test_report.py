@@ -1151,14 +1151,24 @@ def test_printed_detailed_tables_may_wrap_their_column_names_to_fit_the_page(fol
     the u* table lost its draws_valid, reason and source columns (review58). In print the
     tables are no longer scrolled, so their header cells, column names without a space,
     must be free to break (CSS Text 3, overflow-wrap: anywhere counts towards the
-    min-content width a table lays out by (m)), and a heading stays with its table."""
+    min-content width a table lays out by (m)), and a heading stays with its table. The
+    column headers only: the row headers of the provenance and site tables broke to three
+    letters a line (review59)."""
     css = re.search(r"@media print \{(.*?)\n\}", folder["text"], re.S).group(1)
     rules = {selector.strip(): body for selector, body in
              re.findall(r"([^{}]+?)\s*\{\s*([^}]*?)\s*\}", css)}
     assert rules[".scroll"] == "overflow: visible;"
-    assert rules[".scroll th"] == "overflow-wrap: anywhere;"
+    assert rules[".scroll thead th"] == "overflow-wrap: anywhere;"
+    # the row headers keep their words: broken anywhere, the provenance table's column of
+    # names ("respiration temperature") printed three letters wide, a word in seven
+    # lines (review59, Chromium's print to PDF)
+    assert not any("th" in selector and "thead" not in selector and "anywhere" in body
+                   for selector, body in rules.items())
     assert float(re.fullmatch(r"font-size: ([\d.]+)pt;", rules[".scroll table"]).group(1)) < 10
     assert rules["h2, h3"] == "break-after: avoid;"
+    # the summary card's GPP and Reco are the headline numbers, not a detailed table:
+    # printed in the type of the page's tables, not at 7 pt (review59)
+    assert rules[".scroll table.summary-fluxes"] == "font-size: 0.85em;"
 
 
 def test_report_modules_import_no_pipeline_or_method_module():

@@ -61,3 +61,20 @@ def test_ustar_of_the_weather_logger_and_lone_losses_are_quiet():
     assert nee_without_ustar(nee, despiked, index, 30, drivers=[tair, rg]) is None
     # without the weather columns the station's run is taken as the sonic's and named
     assert nee_without_ustar(nee, station, index, 30) is not None
+
+
+def test_own_ustar_removed_alone_for_days_is_worded_as_either_cause():
+    """A sonic's flag applied to u* alone for a week (the flux kept by its own checks)
+    leaves the same trace as another record's u*: the values cannot tell them apart, so
+    the message names both and what follows where u* is the tower's own (review59)."""
+    index, nee, ustar, tair, rg = _tower()
+    flagged = ustar.copy()
+    flagged[60 * 48:67 * 48] = np.nan               # a week of u* removed, NEE kept
+    text = nee_without_ustar(nee, flagged, index, 30, drivers=[tair, rg])
+    assert text is not None and "2021-05-31" in text
+    # the week is said as the runs' length, the records with NEE in them apart (a share of
+    # them, "5.1 days' worth", had read as the u* missing)
+    # (the runs: the tower's three-day sonic loss and the week, 3 + 7 days)
+    assert "in 10.0 days' worth of records, in which NEE" in text
+    assert "another record's" in text and "removed there by a check that kept the flux" in text
+    assert "rejected and filled as any without u*" in text
