@@ -55,7 +55,8 @@ Run from the repository root (about a minute per site-year)::
 ``nonoise``, ``noloss``, ``notwilight`` (no skylight with the sun below the horizon),
 ``norain`` (no rain gaps), ``nooutage`` (no analyser or power outage), ``nodrought`` (no
 soil-water or VPD scalar on uptake, no moisture factor on respiration), ``nogrowth`` (no
-growth respiration following GPP)); ``--planted-ustar`` runs at the planted threshold;
+growth respiration following GPP), ``soilra`` (maintenance respiration on soil rather than air
+temperature: one driver for all of Reco but growth)); ``--planted-ustar`` runs at the planted threshold;
 ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -138,7 +139,7 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "norain", "nooutage", "nodrought",
-            "nogrowth")
+            "nogrowth", "soilra")
 
 
 @dataclass(frozen=True)
@@ -437,7 +438,7 @@ def fluxes(site, idx, met, rng, variant):
         f_m = 1.0
     tk = np.maximum(met["tsoil"], -20.0) + 273.15
     rh = site.rh15 * np.exp(site.ea / GAS_CONSTANT * (1 / 288.15 - 1 / tk)) * f_m
-    q10 = 2.0 ** ((met["tair"] - 15) / 10)
+    q10 = 2.0 ** ((met["tsoil" if "soilra" in variant else "tair"] - 15) / 10)
     maint = (site.rm_leaf * lai + site.rm_wood) * q10
     gpp_day = pd.Series(gpp).groupby(day).mean().to_numpy()
     growth = 0.0 if "nogrowth" in variant else 0.25 * lagged_mean(gpp_day, 3.0)[day]
