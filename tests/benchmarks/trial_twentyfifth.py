@@ -215,6 +215,7 @@ SITES = {
 ROTATION = {2022: ("maize", 125, 283, 5.0, 42.0, 0.06, 32.0, 14.0),
             2023: ("soybean", 140, 274, 4.5, 24.0, 0.05, 28.0, 13.0)}
 LOSS_EXPONENT = 2.0   # the night loss's power of u* / thr (invented)
+EVENTS: dict[str, list[str]] = {}   # each site's sowing and harvest dates of its last draw
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -513,7 +514,7 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
         f", Reco {reco.sum() * factor:.0f} g C m-2; twilight "
         f"(0 < Rg < 10) GPP {gpp[dim].sum() * factor:.1f} g C m-2"
         + (f"; events {', '.join(events)}" if events else ""))
-    truth.attrs["events"] = events
+    EVENTS[site.key] = events
     return data, truth
 
 
@@ -551,10 +552,11 @@ LAYOUTS = {
 UNIT_CONVERSIONS = {"kPa": (lambda v: v / 10, 1), "K": (lambda v: v + 273.15, 0)}
 
 
-def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", events=()):
-    """Write the site's logger CSV and TOML; return the TOML's file name."""
+def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
+    """Write the site's logger CSV and TOML (with the events of its last ``simulate``);
+    return the TOML's file name."""
     return write_logger_site(site, data, folder, LAYOUTS[site.key], UNIT_CONVERSIONS,
-                             processing, events, writer="trial_twentyfifth.py",
+                             processing, EVENTS.get(site.key, ()), writer="trial_twentyfifth.py",
                              csv_suffix="_flux.csv").name
 
 
@@ -567,19 +569,8 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 def main(argv=None):
     parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial25", VARIANTS)
     options = parser.parse_args(argv)
-    variant = chosen_variant(parser, options, VARIANTS)
-    events = {}
-
-    def simulate_keep(site, variant, seed_offset):
-        data, truth = simulate(site, variant, seed_offset)
-        events[site.key] = truth.attrs["events"]
-        return data, truth
-
-    def write(site, data, folder, processing):
-        return write_site(site, data, folder, processing, events.get(site.key, ()))
-
-    code = run_sites(options, SITES, simulate_keep, write, score, print_rain_outage_row,
-                     variant)
+    code = run_sites(options, SITES, simulate, write_site, score, print_rain_outage_row,
+                     chosen_variant(parser, options, VARIANTS))
     path = options.out / "scores.csv"
     if path.exists():
         rows = pd.read_csv(path)
