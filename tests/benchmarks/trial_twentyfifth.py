@@ -43,10 +43,10 @@ Everywhere: twilight photosynthesis (diffuse skylight while the sun is up to 6 d
 horizon, taken up by the same canopy model), a u*-dependent night loss below a planted
 threshold, Laplace random error, the gaps of a tower's QC (short dropouts three and a half
 times as likely to start by night, the records of rain and the hour after, spikes: four in
-five removed by the QC, the rest left in the file), two analyser outages of 4-15 days and one
-outage of every sensor of 3-7 days per site-year.
+five removed by the QC, the rest left in the file), two analyser outages of 4-15 days a year
+and one outage of every sensor of 3-7 days per site.
 
-Run from the repository root (about a minute per site-year)::
+Run from the repository root (about four minutes a draw on two shared cores)::
 
     python tests/benchmarks/trial_twentyfifth.py --out /tmp/fluxpart-trial25 [--runs B,R]
         [--seed-offset 1]
