@@ -110,3 +110,34 @@ def test_values_under_a_long_label_have_one_indentation(rerun):
               and "setting" not in line]
     assert indents(alone) == {VALUE_INDENT}
     assert {len(line) - len(line.lstrip()) for line in hashes} == {VALUE_INDENT}
+
+
+def test_sites_lost_with_the_scheduler_are_told_in_one_line():
+    """An external Dask scheduler killed printed the same error line once per lost site
+    (faults40: three lines for three sites). A client that loses its scheduler cancels
+    every future it holds (Dask.distributed documentation, "Futures" (m)), so every
+    pending site fails in the same words: one line with the count and each site named;
+    a site that failed otherwise keeps its own line, an internal error its traceback."""
+    from concurrent.futures import CancelledError
+
+    from fluxpart import batch
+
+    def common(key):
+        return {"key": key, "config": f"/net/{key}.toml", "directory": f"/res/{key}"}
+
+    lost = [batch._failure(common(key), batch.scheduler_lost_error(
+        "tcp://10.0.0.5:8786", CancelledError("scheduler-connection-lost")))
+        for key in ("alpha", "beta", "gamma")]
+    other = batch._failure(common("delta"), batch.InputFileError("tower.csv: no rows"))
+    internal = batch._failure(common("eps"), ZeroDivisionError("division by zero"))
+    written = batch.SiteOutcome(key="zeta", config="/net/zeta.toml", directory="/res/zeta",
+                                status="written")
+    lines = batch._failure_lines([lost[0], other, lost[1], written, internal, lost[2]])
+    assert lines[0].startswith("error: 3 sites failed alike, 'alpha' (/net/alpha.toml), "
+                               "'beta' (/net/beta.toml), 'gamma' (/net/gamma.toml): "
+                               "SchedulerLostError, each: the connection to the Dask "
+                               "scheduler at tcp://10.0.0.5:8786 was lost")
+    assert lines[1] == "error: site 'delta' (/net/delta.toml): InputFileError: tower.csv: no rows"
+    assert lines[2].startswith("error: site 'eps' (/net/eps.toml): ZeroDivisionError")
+    assert internal.traceback and lines[3] == internal.traceback and len(lines) == 4
+    assert batch._failure_lines(lost[:1])[0].startswith("error: site 'alpha' (")
