@@ -353,12 +353,14 @@ def _command_run(args) -> int:
     # the folder's lock is held from the start: a second run into the same --out waits
     # for this one (saying so on stderr) instead of computing alongside and overwriting it
     out.absolute().parent.mkdir(parents=True, exist_ok=True)
-    with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True):
+    with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True) as held:
         with bar:
             # the settings are read again with the site and recorded with the text they
             # came from (`config` above only sizes the progress bar)
             result = process_site_config(args.config, progress=advance)
-        result.write(out, lock_held=True)
+        # the lock itself: where --out's parent was renamed meanwhile, the write takes
+        # the lock again at the path given (round faults40)
+        result.write(out, lock_held=held)
     # the period read, as `demo` and `check` state it (review54: `run` named the site only)
     stamps = result.timeseries.index
     print(f"fluxpart run: {result.site.name}, {stamps[0]:%Y-%m-%d} to {stamps[-1]:%Y-%m-%d}, "

@@ -166,3 +166,38 @@ def test_every_stage_the_preflight_can_list_is_in_its_docstring():
             "whole record"} <= stages                     # the search finds them
     missing = sorted(stage for stage in stages if f"``{stage}``" not in text)
     assert not missing, missing
+
+
+def test_a_parent_renamed_while_a_run_computes_takes_the_lock_again(pristine_bundle, tmp_path):
+    """A run holds ``.out.lock`` in the folder it writes into from its start (a second
+    run waits). The folder was renamed while the run computed (faults40): the lock file
+    went along, the run made the folder again at the path given and wrote there without
+    its lock, so a second run into the remade path did not wait. The lock the run holds
+    is now taken again where it no longer guards the path: here a second writer holds the
+    remade path's lock, and the first one waits for it (refused at once with timeout 0)
+    instead of writing beside it; once it is free the write completes."""
+    from fluxpart.errors import OutputError
+    from fluxpart.resultdir import folder_lock, lock_file, read_folder, write_folder
+
+    manifest, tables = read_folder(pristine_bundle / "out")
+    parent = tmp_path / "results"
+    parent.mkdir()
+    out = parent / "site"
+
+    def write(held, timeout):
+        return write_folder(out, tables, site=manifest["site"], config=manifest["config"],
+                            seed=manifest["seed"], provenance={}, lock_timeout=timeout,
+                            lock_held=held)
+
+    with folder_lock(out, remove=True) as held:
+        assert held.guards(out)
+        parent.rename(tmp_path / "moved")                 # renamed while the run computes
+        assert not held.guards(out)
+        parent.mkdir()
+        with folder_lock(out, remove=True):                # a second run into the path
+            with pytest.raises(OutputError, match="being written by another fluxpart"):
+                write(held, 0)
+            assert not out.exists()
+        assert write(held, 0) == out                       # free: written at the path
+        assert (out / "manifest.json").is_file() and not lock_file(out).exists()
+    assert not (tmp_path / "moved" / "site").exists()
