@@ -2364,10 +2364,47 @@ def command_batch(args) -> int:
         if counter is not None:
             counter.close()
     print(_summary(report))
-    for outcome in report.outcomes:
-        if outcome.status == "failed":
-            print(f"error: site {outcome.key!r} ({outcome.config}): {outcome.error}: "
-                  f"{outcome.message}", file=sys.stderr)
-            if outcome.traceback:
-                print(outcome.traceback, file=sys.stderr)
+    for line in _failure_lines(report.outcomes):
+        print(line, file=sys.stderr)
     return report.exit_code
+
+
+def _failure_lines(outcomes) -> list[str]:
+    """The ``error:`` lines of the failed sites: one per site, or one for the sites that
+    failed alike.
+
+    Sites that failed with the same error and message and no traceback (a lost Dask
+    scheduler fails every pending site in the same words) are told in one line naming
+    their count and each site with its config, in the order of `outcomes`; a site with
+    a traceback (an internal error) keeps its own line and the traceback. An external
+    scheduler killed printed its line once per lost site (round faults40).
+
+    Parameters
+    ----------
+    outcomes : sequence of SiteOutcome
+        The batch's outcomes; only ``status == "failed"`` ones are told.
+
+    Returns
+    -------
+    list of str
+        The lines (a traceback is one entry of several lines).
+    """
+    failed = [o for o in outcomes if o.status == "failed"]
+    groups: dict = {}
+    for outcome in failed:
+        if not outcome.traceback:
+            groups.setdefault((outcome.error, outcome.message), []).append(outcome)
+    lines, told = [], set()
+    for outcome in failed:
+        group = groups.get((outcome.error, outcome.message), [outcome])
+        if outcome.traceback or len(group) == 1:
+            lines.append(f"error: site {outcome.key!r} ({outcome.config}): {outcome.error}: "
+                         f"{outcome.message}")
+            if outcome.traceback:
+                lines.append(outcome.traceback)
+        elif (outcome.error, outcome.message) not in told:
+            told.add((outcome.error, outcome.message))
+            named = ", ".join(f"{o.key!r} ({o.config})" for o in group)
+            lines.append(f"error: {len(group)} sites failed alike, {named}: {outcome.error}, "
+                         f"each: {outcome.message}")
+    return lines

@@ -353,12 +353,14 @@ def _command_run(args) -> int:
     # the folder's lock is held from the start: a second run into the same --out waits
     # for this one (saying so on stderr) instead of computing alongside and overwriting it
     out.absolute().parent.mkdir(parents=True, exist_ok=True)
-    with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True):
+    with folder_lock(out, DEFAULT_LOCK_TIMEOUT, remove=True) as held:
         with bar:
             # the settings are read again with the site and recorded with the text they
             # came from (`config` above only sizes the progress bar)
             result = process_site_config(args.config, progress=advance)
-        result.write(out, lock_held=True)
+        # the lock itself: where --out's parent was renamed meanwhile, the write takes
+        # the lock again at the path given (round faults40)
+        result.write(out, lock_held=held)
     # the period read, as `demo` and `check` state it (review54: `run` named the site only)
     stamps = result.timeseries.index
     print(f"fluxpart run: {result.site.name}, {stamps[0]:%Y-%m-%d} to {stamps[-1]:%Y-%m-%d}, "
@@ -608,9 +610,11 @@ def _parser() -> argparse.ArgumentParser:
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
         description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved. Exit 0: same, or the only "
-        "differences are tables whose values are equal within floating-point rounding (as "
-        "verify judges it); 1: anything else differs; 2: error.")
+        "fingerprint, platform, and how each annual number moved. Platform facts (CPU "
+        "features, BLAS) are facts of the run, listed apart. Exit 0: the same result, or the "
+        "only differences of the result are tables whose values are equal within "
+        "floating-point rounding (as verify judges it), whatever platform facts differ; 1: "
+        "anything else differs; 2: error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))

@@ -8,17 +8,21 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 - the SHA-256 of the input file(s) and of the site config;
 - each setting, the site, the seed, the reader's record and the warnings that differ;
 - the model choices the night data made (respiration temperature, delay, form weight);
-- each library version, the code fingerprint and the platform facts that differ;
+- each library version and the code fingerprint that differ;
+- the platform facts that differ (CPU features, BLAS, machine), listed apart: facts of
+  the run, not of the result, as ``verify`` treats them (leftovers51);
 - the tables whose bytes differ, and whether their values or only their metadata do;
 - how each annual number moved: both values, the change (second minus first)
   and the change relative to the first value's magnitude.
 
 Exit statuses of the command: 0 when the two folders hold the same result from
-the same input, settings, code and platform (paths, the run log and report
-pages do not count), also where the only differences are tables whose values are
+the same input, settings and code (paths, the run log and report pages do not
+count), also where the only differences of the result are tables whose values are
 equal within floating-point rounding as ``verify`` judges it (their hashes listed;
-since leftovers50), 1 when anything else listed differs, 2 on error (a folder that
-is missing, not a result folder, or does not match its manifest).
+since leftovers50), whatever platform facts differ (since leftovers51: verify's
+"reproduced within floating-point rounding; the platform differs"), 1 when
+anything else listed differs, 2 on error (a folder that is missing, not a result
+folder, or does not match its manifest).
 """
 
 from __future__ import annotations
@@ -40,12 +44,19 @@ _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
 _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
                   ("respiration_form", ("exponential_weight", "share_applied")),
                   ("light_shape", ("profiled_curvature",)))
+#: Sections of :attr:`DiffReport.items` that are facts of the run, not of the result:
+#: listed apart and no difference of the result by themselves (leftovers51), as
+#: ``verify`` lists them ("reproduced within floating-point rounding; the platform differs").
+RUN_FACTS = ("platform",)
 #: How a table whose values differ within rounding only ends its label
 #: (:func:`table_difference`, :attr:`DiffReport.within_rounding`).
 _ROUNDING_SUFFIX = ", metadata equal"
 #: Longest label that sets the column the values start in [characters]; a longer one is
 #: wrapped on lines of its own (:func:`_item_lines`).
 LABEL_WIDTH = 40
+#: Indent of the values listed on lines of their own under a long label [characters]:
+#: past the label's own continuation lines (4), the same whatever else is listed.
+VALUE_INDENT = 6
 #: Width the lines of a long label and its values are wrapped to [characters]: a
 #: terminal's common default (common practice).
 TERMINAL_COLUMNS = 80
@@ -89,45 +100,77 @@ class DiffReport:
 
     @property
     def same(self) -> bool:
-        """True when nothing differs."""
+        """True when nothing differs, the platform included."""
         return not self.items and self.annual.empty
 
     @property
+    def result_items(self) -> tuple:
+        """The differing items that are facts of the result: all but the platform's."""
+        return tuple(item for item in self.items if item[0] not in RUN_FACTS)
+
+    @property
+    def platform_facts(self) -> tuple:
+        """The platform facts that differ (CPU features, BLAS and its architecture,
+        machine): facts of the run, not of the result, as ``verify`` treats them."""
+        return tuple(name for section, name, _, _ in self.items if section in RUN_FACTS)
+
+    @property
+    def same_result(self) -> bool:
+        """True when nothing but platform facts differs: every table bit for bit equal."""
+        return not self.result_items and self.annual.empty
+
+    @property
     def within_rounding(self) -> bool:
-        """True when the only differences are tables whose values are equal within
-        rounding (:func:`table_difference`), and no annual value moves beyond it."""
-        return (bool(self.items) and self.annual.empty
+        """True when the only differences of the result are tables whose values are equal
+        within rounding (:func:`table_difference`), and no annual value moves beyond it
+        (platform facts may differ too: on another CPU that is the expected cause)."""
+        return (bool(self.result_items) and self.annual.empty
                 and all(section == "table" and name.endswith(_ROUNDING_SUFFIX)
-                        for section, name, _, _ in self.items))
+                        for section, name, _, _ in self.result_items))
 
     @property
     def exit_code(self) -> int:
-        """0 when the same or equal within rounding, 1 when anything else differs: the
-        verdict ``verify`` gives a rerun whose values differ within rounding (exit 0)."""
-        return 0 if self.same or self.within_rounding else 1
+        """0 when the result is the same or equal within rounding, whatever platform facts
+        differ; 1 when anything else differs: the verdicts ``verify`` gives a rerun on
+        another CPU ("reproduced within floating-point rounding; the platform differs",
+        exit 0; leftovers51: a platform fact made diff exit 1)."""
+        return 0 if self.same_result or self.within_rounding else 1
 
     def format(self) -> str:
         """The report as text for the command line."""
         lines = [f"fluxpart diff: {shown_path(self.first)} (first) vs "
                  f"{shown_path(self.second)} (second)"]
-        if self.same:
-            lines.append(f"same: input, settings, site, versions, code, platform and all "
-                         f"{self.same_annual} annual values are equal")
+        platform = self.platform_facts
+        if self.same_result:
+            if platform:
+                lines.append(f"same result: input, settings, site, versions, code, every "
+                             f"table (bit for bit) and all {self.same_annual} annual values "
+                             f"are equal; only the platform differs ({len(platform)} "
+                             "fact(s) of the run, listed below)")
+            else:
+                lines.append(f"same: input, settings, site, versions, code, platform and all "
+                             f"{self.same_annual} annual values are equal")
             if self.rounding_annual:
                 lines.append(_rounding_line(self.rounding_annual))
+            lines.extend(_platform_lines(platform))
         else:
+            items = self.result_items
             if self.within_rounding:
                 from .verify import ROUNDING_TOLERANCE
 
                 # an auditor's rerun on another CPU: verify's exit 0, not "differ"
+                where = ("; the platform differs (listed below)" if platform
+                         else " and platform are equal")
                 lines.append(
-                    f"equal within rounding: input, settings, site, versions, code and "
-                    f"platform are equal; {len(self.items)} table(s) differ in bytes, their "
+                    f"equal within rounding: input, settings, site, versions and code "
+                    f"are equal{where}; {len(items)} table(s) differ in bytes, their "
                     f"values only within rounding (relative difference at most "
                     f"{ROUNDING_TOLERANCE:g}, as verify judges it; hashes below)")
             else:
-                lines.append(f"differ: {len(self.items)} recorded item(s) and "
-                             f"{len(self.annual)} annual value(s)")
+                also = (f"; the platform differs in {len(platform)} fact(s) of the run, "
+                        "listed apart") if platform else ""
+                lines.append(f"differ: {len(items)} recorded item(s) and "
+                             f"{len(self.annual)} annual value(s){also}")
             names = [(a, b) for s, n, a, b in self.items if (s, n) == ("site", "name")]
             if names:
                 # two towers: the moves below are no rerun's, whatever their size
@@ -137,12 +180,13 @@ class DiffReport:
             # a field that is its own section (warnings, seed, caution, format) is named
             # once: "warnings warnings" read as a typo (review25)
             labels = [name if name == section else f"{section} {name}"
-                      for section, name, _, _ in self.items]
+                      for section, name, _, _ in items]
             # a long label (a table's metadata named) does not widen the others' column
             width = max((len(label) for label in labels if len(label) <= LABEL_WIDTH),
                         default=0)
-            for label, (_, _, a, b) in zip(labels, self.items, strict=True):
+            for label, (_, _, a, b) in zip(labels, items, strict=True):
                 lines.extend(_item_lines(label, a, b, width))
+            lines.extend(_platform_lines(platform))
             if not self.annual.empty:
                 other = _years_of_other_periods(self.annual)
                 if other:
@@ -166,6 +210,13 @@ class DiffReport:
         return "\n".join(lines)
 
 
+def _platform_lines(facts) -> list:
+    """The platform facts that differ, under a heading that says what they are."""
+    if not facts:
+        return []
+    return ["platform (facts of the run, not of the result):"] + [f"  {fact}" for fact in facts]
+
+
 def _rounding_line(cells) -> str:
     """The line naming the annual values equal within rounding: their count and cells."""
     from .verify import ROUNDING_TOLERANCE
@@ -181,23 +232,21 @@ def _item_lines(label: str, first: str, second: str, width: int) -> list:
 
     A label longer than `width` (over :data:`LABEL_WIDTH` characters: a table's
     metadata named) is wrapped on lines of its own and its values follow on the next
-    lines, starting in the column the other items' values start in, each wrapped to
+    lines, indented by :data:`VALUE_INDENT` whatever else is listed, each wrapped to
     :data:`TERMINAL_COLUMNS` (leftovers49: such a label pushed its values out of the
-    column). A word is never broken (polish49): a SHA-256 or a path split over two
+    column; leftovers51: they started in the other items' column, so a table's hashes
+    were indented by 4 or by 30 depending on what else differed). A word is never broken (polish49): a SHA-256 or a path split over two
     lines had to be joined by an auditor comparing or copying it; a word longer than
-    the width runs past it on a line of its own. A platform fact (both values empty)
-    names both values itself.
+    the width runs past it on a line of its own.
     """
     import textwrap
 
-    if first == second == "":
-        return [f"  {label}"]
     if len(label) <= width:
         return [f"  {label:<{width}}  first {first}  second {second}"]
     lines = textwrap.wrap(label, TERMINAL_COLUMNS, initial_indent="  ",
                           subsequent_indent="    ", break_on_hyphens=False,
                           break_long_words=False)
-    indent = " " * (width + 4)
+    indent = " " * VALUE_INDENT
     for name, value in (("first", first), ("second", second)):
         lines += textwrap.wrap(f"{name} {value}", TERMINAL_COLUMNS, initial_indent=indent,
                                subsequent_indent=indent + " " * (len(name) + 1),
@@ -470,8 +519,8 @@ def diff_folders(first, second) -> DiffReport:
 
 
 def command_diff(args) -> int:
-    """``fluxpart diff A B``: 0 when the same or equal within rounding, 1 when anything else
-    differs (errors exit 2)."""
+    """``fluxpart diff A B``: 0 when the same result or equal within rounding (platform
+    facts aside), 1 when anything else differs (errors exit 2)."""
     report = diff_folders(args.first, args.second)
     print(report.format())
     return report.exit_code

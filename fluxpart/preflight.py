@@ -12,96 +12,114 @@ finding says a stage cannot run, it cannot; when none is found, the fits can sti
 reject every window for reasons only the fit sees (a poor Lloyd–Taylor fit, say),
 and then the stage's own error names them.
 
-Conditions and the stage they affect:
+Findings by the stage each is listed under (as ``fluxpart check`` prints it; ``<column>``
+stands for the canonical name of the column concerned). docs/checks.md tells users what each
+check judges and what it moved on the invented example site; this list is the developers'
+map from a printed stage to its condition, and ``tests/test_leftovers51.py`` fails where a
+stage the package can list is missing here (leftovers51: a dozen were).
 
-========================================  ==================================  =========
-condition                                 stage                               fatal
-========================================  ==================================  =========
-a required variable constant              its stages (see ``_CONSTANT``)      NEE, Rg,
-                                                                              temperature,
-                                                                              u*
-u* with a year's median of a wind speed   u* filter                           yes
-record shorter than one E0 window, or no  nighttime partitioning (E0)         unless
-E0 window with enough night records                                           e0_fallback,
-spanning enough temperature                                                   or another
-                                                                              year has one
-no Rref window with enough night records  nighttime partitioning (Rref)       yes (1)
-no light-response window with enough      daytime partitioning                yes (1)
-measured daytime records
-no season with enough night records for   u* threshold (fixed fall-back)      no
-the u* detector
-record shorter than a year                annual budget (partial)             no
-many Rg records above potential           screening (clock evidence)          no
-radiation
-night_rg_threshold counting sunlit        night mask (``night_threshold``)    no
-records with photosynthesis as night
-night_rg_threshold reached by a tenth of  night mask (``night_threshold``)    no
-deep-night records (sensor noise as day)
-a variable repeating one value for days   input (stuck sensor)                no
-(Rg: with the sun up)
-a day or more of records repeating        input (repeated records)            no
-earlier ones in every variable
-soil temperature swinging more than the   input (tair, tsoil)                 no
-air (columns swapped)
-air and soil temperature equal, record    input (tair = tsoil)                no
-for record, for a day (one sensor twice)
-NEE changing with Rg whole records        input (nee)                         no
-earlier or later (column shifted)
-NEE changing with Rg whole days earlier   input (nee days)                    no
-or later (files of other dates joined)
-tair fitting VPD and RH whole records     input (tair)                        no
-earlier or later (column shifted)
-tair fitting VPD and RH whole days        input (tair days)                   no
-earlier or later (files of other dates)
-months whose NEE rises with light beside  input (nee sign)                    no
-months whose NEE falls with it (or weeks
-where no month does)
-NEE negated by day only: nights a        input (nee day sign)                no
-release, warm bright records a long
-release tail, no month falling with light
-NEE on straight lines over runs of        input (nee filled)                  no
-records (gaps filled by interpolation)
-night NEE changing as a running mean's    input (nee smoothed)                no
-(errors shared by neighbouring records)
-air or soil temperature dropping to       input (tair zeros, tsoil zeros)     no
-exactly 0 and back by jumps (a code)
-NEE present and accepted in every record  input (nee gapless)                 no
-for 60 days (filled or unscreened)
-tair fitting VPD and RH as the dew point  input (tair dew point)              no
-Rg of clear mornings and afternoons at    input (rg shaded)                   no
-the same sun height far apart (shaded)
-Rg too dim for any sky (99th percentile  input (rg dim)                      no
-below half the potential radiation) in
-60 days of whole months, not in the rest
-NEE of one sign only next to 0, by day    input (nee one sign)                no
-or at night (values of one sign removed)
-NEE ending abruptly 2 µmol m-2 s-1 or     input (nee cut)                     no
-more from 0 (values beyond a limit
-removed)
-a column repeating its value in every     input (tair twice, ...)             no
-other record (a coarser file joined)
-night NEE missing below one u* and        input (nee u* filtered)             no
-measured above it (filtered before read)
-VPD 0 in most sunlit, warm records of a   input (vpd zeros)                   no
-month (a rain gauge, a lost sensor)
-VPD and RH implying the soil temperature  input (vpd from tsoil)              no
-(VPD computed with it, not the air's)
-NEE below 0 in under 5 % of a year's      input (nee no uptake)               no
-warm, bright records, nights a release
-(another gas's flux, a bare site)
-u* missing for days where NEE and the     input (ustar of another record)     no
-weather were measured (another record's
-u*, or u* removed alone by a check)
-a gap of measured NEE longer than the     gap filling (quality C only)        no
-largest quality-A window (28 days)
-night records without measured NEE        gap filling (night, quality C)      no
-for more than 28 days
-u* missing at more than 10 % of the       u* filter (those nights rejected)   no
-night records with measured NEE
-Rg above the night threshold in most      night mask                          where the
-records with the sun down                                                     nighttime
-                                                                              stages fail
-========================================  ==================================  =========
+Fatal (the run stops before any fit):
+
+- ``gap filling and both partitionings``, ``night mask and daytime light response``,
+  ``nighttime partitioning (Lloyd–Taylor E0)``, ``u* filter``: NEE, Rg, the respiration
+  temperature or u* constant (``_CONSTANT``; a constant VPD is listed under
+  ``daytime VPD limitation and gap filling``, not fatal).
+- ``u* filter``: u* with a year's median of a wind speed (above 1.5 m s-1).
+- ``whole record``: no records.
+- ``respiration temperature``: the fixed ``respiration_driver``'s column without a value.
+- ``nighttime partitioning (E0)``: a record shorter than one E0 window, or no E0 window
+  with enough night records spanning enough temperature; not fatal with ``e0_fallback``
+  or where another year has one.
+- ``nighttime partitioning (Rref)``: no Rref window with enough night records (1).
+- ``daytime partitioning (light response)``: no light-response window with enough measured
+  daytime records (1).
+- ``night mask``: Rg above the night threshold in most records with the sun down; fatal
+  only where the nighttime stages fail with it.
+
+Warnings (the run goes on):
+
+- ``u* threshold``: no season with enough night records for the u* detector (a fall-back
+  threshold is used).
+- ``u* filter``: u* missing at more than 10 % of the night records with measured NEE (those
+  nights are rejected).
+- ``annual budget``: a record shorter than a year (partial sums), or a day absent at a
+  budget year's edge added as empty records.
+- ``gap filling``: a gap of measured NEE longer than the largest quality-A window (28 days;
+  filled with quality C), or an event (``events``) outside the record.
+- ``gap filling (night)``: night records without measured NEE for more than 28 days.
+- ``gap filling (drivers)``: a driver (tair, tsoil, VPD, Rg) missing for more than 28 days
+  while NEE was measured.
+- ``screening (Rg above potential radiation)``: many Rg records above the potential
+  radiation (clock evidence).
+- ``night mask``: ``night_rg_threshold`` counting sunlit records with photosynthesis as
+  night, or reached by a tenth of deep-night records (sensor noise as day).
+- ``nighttime partitioning (uptake in the dark)``: months whose dark records mostly take up
+  CO2 (CAM plants, a heated open-path analyser).
+- ``input (<column>)``: a variable repeating one value for days (a stuck sensor; Rg with the
+  sun up).
+- ``input (<column> flag)``: a column mapped as a measured variable holding a few whole-number
+  codes (a flag).
+- ``input (<column> twice)``: a column repeating its value in every other record (a coarser
+  file joined).
+- ``input (repeated records)``: a day or more of records repeating earlier ones in every
+  variable.
+- ``input (repeated NEE)``: measured NEE equal, value for value, to the NEE a whole number of
+  days (or any number of records) earlier (the flux column pasted over other days).
+- ``input (repeated <column>)``: u* or Rg equal to its own values a fixed number of records
+  earlier (the column pasted over other records).
+- ``input (tair, tsoil)``: soil temperature swinging more than the air (columns swapped).
+- ``input (tair = tsoil)``: air and soil temperature equal, record for record, for a day
+  (one sensor twice).
+- ``input (spliced records)``: two or more joints where soil and air temperature step
+  together far beyond the record's own changes (another file's records pasted in).
+- ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted).
+- ``input (nee days)``: NEE changing with Rg whole days earlier or later (files of other
+  dates joined).
+- ``input (nee sign)``: months whose NEE rises with light beside months whose NEE falls with
+  it (or weeks where no month does).
+- ``input (nee day sign)``: NEE negated by day only: nights a release, warm bright records a
+  long release tail, no month falling with light.
+- ``input (nee no uptake)``: NEE below 0 in under 5 % of a year's warm, bright records,
+  nights a release (another gas's flux, a bare site).
+- ``input (weather pairing)``: NEE answering none of the record's weather (another
+  record's weather beside it).
+- ``input (nee filled)``: NEE on straight lines over runs of records (gaps interpolated).
+- ``input (nee cut)``: NEE ending abruptly 2 µmol m-2 s-1 or more from 0 (values beyond a
+  limit removed).
+- ``input (nee one sign)``: NEE of one sign only next to 0, by day or at night (values of
+  one sign removed).
+- ``input (nee smoothed)``: night NEE changing as a running mean's (errors shared by
+  neighbouring records).
+- ``input (nee u* filtered)``: night NEE missing below one u* and measured above it
+  (filtered before it was read).
+- ``input (nee gapless)``: NEE present and accepted in every record for 60 days (filled or
+  unscreened).
+- ``input (ustar of another record)``: u* missing for days where NEE and the weather were
+  measured (another record's u*, or u* removed alone by a check).
+- ``input (rg shaded)``: Rg of clear mornings and afternoons at the same sun height far
+  apart (shaded).
+- ``input (rg dark)``: Rg missing in the dark but present by day.
+- ``input (rg zeros)``: Rg of 0 or less with the sun well up (a lost value written as 0).
+- ``input (rg dim)``: Rg too dim for any sky (99th percentile below half the potential
+  radiation) in 60 days of whole months, not in the rest.
+- ``input (tair flat)``: an air temperature without a diurnal course on clear days.
+- ``input (<column> filler)``: one value of tair or u* written into gap after gap.
+- ``input (<column> zeros)``: air or soil temperature dropping to exactly 0 and back by
+  jumps (a code).
+- ``input (tair)``: tair fitting VPD and RH whole records earlier or later (column shifted).
+- ``input (tair delayed)``: tair's daily course trailing the humidity's (a delayed column or
+  a slow sensor).
+- ``input (tair days)``: tair fitting VPD and RH whole days earlier or later (files of other
+  dates).
+- ``input (tair dew point)``: tair fitting VPD and RH as the dew point.
+- ``input (vpd vapour pressure)``: the VPD column holding the (saturation) vapour pressure.
+- ``input (vpd exchanged)``: another column holding the VPD in some months.
+- ``input (vpd from tsoil)``: VPD and RH implying the soil temperature (VPD computed with
+  it, not the air's).
+- ``input (tair sunlit)``: tair warmer in sunlight than VPD and RH imply (a thermometer
+  heated by the sun, or a VPD of another temperature).
+- ``input (vpd zeros)``: VPD 0 in most sunlit, warm records of a month (a rain gauge, a lost
+  sensor).
 
 (1) Where it is the only fatal finding, the run goes on with the other partitioning
 method alone (:mod:`fluxpart.method_failure`), and the finding is not fatal.

@@ -615,6 +615,11 @@ def _decimals(unit: str, column: str, dtype) -> int:
     return 3
 
 
+#: A cell's text that is a date: a month (``2021-02``), a day (``2021-02-14``) or a day
+#: and time (``2021-02-14 13:30``), as :func:`_frame_table` and the period labels write them.
+_DATE_PATTERN = re.compile(r"\d{4}-\d{2}(-\d{2}( \d{2}:\d{2})?)?")
+
+
 def _cell(value, decimals: int, attributes: dict) -> str:
     attrs = "".join(f' data-{key}="{_e(val)}"' for key, val in attributes.items())
     if isinstance(value, (bool, np.bool_)):
@@ -626,6 +631,10 @@ def _cell(value, decimals: int, attributes: dict) -> str:
     if isinstance(value, (float, np.floating)):
         return (f'<td{attrs} data-decimals="{decimals}" class="number">'
                 f"{float(value):.{decimals}f}</td>")
+    if isinstance(value, str) and _DATE_PATTERN.fullmatch(value):
+        # a month, day or time stamp is kept on one line: printed, "2021-02" broke at
+        # its hyphen into "2021-" and "02" (review59)
+        return f'<td{attrs} class="date">{_e(value)}</td>'
     return f"<td{attrs}>{_e(value)}</td>"
 
 
@@ -1019,7 +1028,9 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
 # take a smaller type and their column header cells (names without spaces) may break
 # anywhere, so each table fits the page width; a section heading stays with what follows.
 # Row headers keep their words: broken anywhere, the provenance table's names printed
-# three letters wide, "respiration temperature" in eight lines (review59).
+# three letters wide, "respiration temperature" in eight lines (review59). A cell that is
+# a date (class "date") is never wrapped: a month broke at its hyphen, "2021-" over "02"
+# (review59, Chromium's print to PDF; leftovers51).
 # The summary card's table of GPP and Reco keeps the screen's type: at 7 pt the
 # report's headline numbers printed smaller than any text around them (review59).
 _CSS = """
@@ -1035,6 +1046,7 @@ tbody th { text-align: left; font-weight: 600; }
 th, td { border: 1px solid #c8c8c8; padding: 0.2em 0.5em; vertical-align: top; }
 thead th { background: #e8edf5; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; }
+td.date { white-space: nowrap; }
 td.missing, span.missing { color: #777777; }
 td.unit, span.unit { color: #444444; white-space: nowrap; }
 td.description { color: #333333; max-width: 30em; }

@@ -157,13 +157,15 @@ class Result:
         return tables
 
     def write(self, directory, *, lock_timeout: float | None = None,
-              lock_held: bool = False) -> Path:
+              lock_held=False) -> Path:
         """Write the tables and ``manifest.json`` to `directory`, replacing it as a whole.
 
         See :func:`fluxpart.resultdir.write_folder`: the folder holds either the
         earlier result or this one, never a mix; a second writer of the same
         folder waits up to `lock_timeout` seconds (default 600); `lock_held`: the
-        caller holds the folder's lock already. Returns the folder.
+        caller holds the folder's lock already (True, or the
+        :class:`~fluxpart.resultdir.HeldLock` :func:`~fluxpart.resultdir.folder_lock`
+        yields, taken again where it no longer guards `directory`). Returns the folder.
 
         Raises :class:`~fluxpart.errors.OutputError` where a table was changed after the
         run (a sum converted in place, a column added): the folder would hold numbers

@@ -85,8 +85,8 @@ from .store import (
     write_table,
 )
 
-__all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "check_folder", "clean_leftovers",
-           "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
+__all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "HeldLock", "check_folder",
+           "clean_leftovers", "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
            "lock_file", "make_staging", "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
@@ -125,6 +125,36 @@ def _leftovers(directory: Path, kind: str) -> list[Path]:
         return []
 
 
+@dataclass(frozen=True)
+class HeldLock:
+    """A result folder's lock as :func:`folder_lock` holds it.
+
+    Attributes
+    ----------
+    path : pathlib.Path
+        The lock file as named when it was taken.
+    locked : os.stat_result or None
+        The locked file's identity (device, inode); None where it could not be told
+        (an older filelock, a file system without ``flock``).
+    """
+
+    path: Path
+    locked: os.stat_result | None
+
+    def guards(self, directory) -> bool:
+        """True while the lock file of `directory` is the file this lock holds.
+
+        False once the folder's parent was renamed or moved (the lock file went with it)
+        and the path given leads to another place: a run into it would not wait for the
+        holder (round faults40). Where the identity is unknown, True while a file of the
+        lock's name is there.
+        """
+        path = lock_file(_absolute(directory))
+        if self.locked is None:
+            return path.is_file()
+        return _names_locked_file(path, self.locked)
+
+
 @contextmanager
 def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *,
                 remove: bool = False):
@@ -142,6 +172,12 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
     remove : bool, optional
         Delete the lock file when the block ends, with or without an error
         (default False).
+
+    Yields
+    ------
+    HeldLock
+        The lock held; :meth:`HeldLock.guards` tells whether it still guards the path
+        given (a writer that computes under it passes it to :func:`write_folder`).
 
     Raises
     ------
@@ -209,7 +245,7 @@ def folder_lock(directory, timeout: float = DEFAULT_LOCK_TIMEOUT, notify=None, *
         raise OutputError(f"cannot {verb} the lock file {str(path)!r} beside the output folder: "
                           f"{error.strerror or error}; {remedy}") from None
     try:
-        yield path
+        yield HeldLock(path, locked[-1] if locked else None)
     finally:
         # also after an error or an interrupt (Ctrl-C, SIGTERM): the block's work is whole
         # or undone by then, and the file is deleted while the lock is still held
@@ -897,10 +933,14 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
         Seconds to wait for another writer of the same folder (0: refuse at once).
     notify : callable, optional
         Where the "waiting for another writer" line goes (default stderr).
-    lock_held : bool, optional
+    lock_held : bool or HeldLock, optional
         The caller holds the folder's :func:`folder_lock` already (``fluxpart run``
         takes it before computing, so a second run into the same folder waits for
         the first rather than computing alongside and replacing it); default False.
+        Given as the :class:`HeldLock` itself, the lock is taken again at the path
+        given where it no longer guards it: the folder's parent renamed or moved while
+        the caller computed took the lock file along, and the parent made again at the
+        path given had none, so a second run into it did not wait (round faults40).
 
     Returns
     -------
@@ -929,8 +969,9 @@ def write_folder(directory, tables: dict, *, site: dict, config: dict, seed, pro
     except OSError as error:
         raise OutputError(f"cannot create the output folder's parent {str(directory.parent)!r}: "
                           f"{error.strerror or error}") from None
-    with (nullcontext() if lock_held else folder_lock(directory, lock_timeout, notify,
-                                                      remove=True)):
+    guarded = lock_held.guards(directory) if isinstance(lock_held, HeldLock) else lock_held
+    with (nullcontext() if guarded else folder_lock(directory, lock_timeout, notify,
+                                                    remove=True)):
         clean_leftovers(directory)
         reason = replace_refusal(directory, site_name)
         if reason:

@@ -350,6 +350,8 @@ def test_every_command_help_states_its_exit_statuses(command, capsys):
         # folders equal within rounding exit 0 since leftovers50; the help still said
         # "Exit 0: same; 1: they differ" (review59)
         assert "equal within floating-point rounding" in text
+        # platform facts are facts of the run: no exit 1 by themselves (leftovers51)
+        assert "whatever platform facts differ" in text
 
 
 def test_netcdf_export_docs_do_not_promise_half_hourly_records():

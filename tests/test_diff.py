@@ -176,17 +176,19 @@ def test_a_model_choice_the_data_made_differently_is_named(folders):
     assert model["respiration_form exponential_weight"][1] == "0.25"
 
 
-def test_a_long_label_wraps_and_its_values_start_in_the_others_column():
+def test_a_long_label_wraps_and_its_values_follow_at_one_indentation():
     """A label over 40 characters (a table's metadata named) was printed on one line
     with its values, out of the column of the others (leftovers49): it now takes lines
     of its own, each at most 80 characters (a terminal's common width), and its values
-    follow starting in the same column as every other item's. A word is never broken
+    follow at VALUE_INDENT, whatever else is listed (leftovers51: they started in the
+    other items' column, so a table's hashes moved with the labels beside them); the
+    short labels' values keep their column. A word is never broken
     (polish49; leftovers49 split a 70-character value over two lines): a SHA-256 split
     in two must be joined by hand before it can be compared or copied, so a word longer
     than the width runs past it, whole, on a line of its own."""
     from pathlib import Path
 
-    from fluxpart.diff import DiffReport
+    from fluxpart.diff import VALUE_INDENT, DiffReport
 
     long = "parameters_nighttime_e0_annual.parquet metadata fluxpart_columns_and_units"
     sha = "9f" * 32                                  # a SHA-256 in hex: 64 characters
@@ -195,13 +197,18 @@ def test_a_long_label_wraps_and_its_values_start_in_the_others_column():
         ("setting", "events", "(absent)", '["2021-07-20"]')))
     lines = report.format().splitlines()[2:]
     column = lines[0].index("first ")
-    assert lines[3].index("first ") == column and lines[4].index("second") == column
+    assert lines[3].index("first ") == VALUE_INDENT == lines[4].index("second")
     after = next(line for line in lines if "events" in line)
     assert after.index("first ") == column         # the item after it is still aligned
-    over = [line for line in lines[:lines.index(after) + 1] if len(line) > 80]
-    assert [line.strip() for line in over] == [sha]  # only the unbreakable word runs over
+    assert all(len(line) <= 80 for line in lines[:lines.index(after) + 1])
     assert " ".join(line.strip() for line in lines[1:3]) == f"format {long}"
-    assert "x" * 30 in lines[3] and lines[4].strip() == "second" and lines[5].strip() == sha
+    assert "x" * 30 in lines[3] and lines[4].strip() == f"second {sha}"   # whole
+    path = "/" + "p" * 90                            # a word longer than the width
+    report = DiffReport(Path("a"), Path("b"), items=(("format", long, "x", path),))
+    lines = report.format().splitlines()[2:7]         # the item's five lines
+    over = [line for line in lines if len(line) > 80]
+    assert [line.strip() for line in over] == [path]  # only the unbreakable word runs over
+    assert lines[lines.index(over[0]) - 1].strip() == "second"
 
 
 def test_float_noise_reads_equal_within_rounding_not_as_a_move():

@@ -1171,6 +1171,19 @@ def test_printed_detailed_tables_may_wrap_their_column_names_to_fit_the_page(fol
     assert rules[".scroll table.summary-fluxes"] == "font-size: 0.85em;"
 
 
+def test_printed_months_are_kept_whole(folder):
+    """Printed to PDF (Chromium headless), the monthly coverage table broke each month at
+    its hyphen, "2021-" over "02" (review59): a hyphen is a line-break opportunity (CSS
+    Text 3 (m)). Each cell that is a month, day or time stamp carries the class "date",
+    which is not wrapped (white-space: nowrap; CSS Text 3 (m))."""
+    text = folder["text"]
+    assert re.search(r"td\.date \{ white-space: nowrap; \}", text)
+    table = re.search(r'<table id="monthly-coverage">.*?</table>', text, re.S).group(0)
+    months = re.findall(r'<td data-column="month"[^>]*>([^<]*)</td>', table)
+    assert len(months) >= 12 and all(re.fullmatch(r"\d{4}-\d{2}", m) for m in months)
+    assert len(re.findall(r'<td data-column="month"[^>]* class="date">', table)) == len(months)
+
+
 def test_report_modules_import_no_pipeline_or_method_module():
     """The report reads the folder only: its modules import no pipeline or method module."""
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
