@@ -149,6 +149,26 @@ def test_counts_too_coarse_for_a_record_are_refused_naming_their_digits():
         assert rounded_counts(pd.Series(cells), form) == "", cells
 
 
+def test_hourly_records_counted_in_whole_hours_are_read(tmp_path):
+    """Review60: 60-minute records written as whole hours since a date (a digit of
+    3600 s: 1 h = 3600 s) were refused by the check above as too coarse, read before
+    layouts42; half-hourly records rounded onto whole hours (a count repeated) are still
+    named."""
+    frame, ends = _records()
+    frame, ends = frame.iloc[1::2].reset_index(drop=True), ends[1::2]
+    start = datetime(2021, 6, 1)
+    frame["stamp"] = [f"{(end.to_pydatetime() - start).total_seconds() / 3600:g}"
+                      for end in ends]
+    assert frame["stamp"].str.fullmatch(r"\d+").all()
+    path = tmp_path / "t.csv"
+    frame.to_csv(path, index=False)
+    read, _ = _read(path, "hours since 2021-06-01 00:00")
+    assert len(read) == len(ends) and read.index[0] == pd.Timestamp("2021-06-01 00:00")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    collapsed = pd.Series(["1", "1", "2", "2", "3"])      # 30-minute records, whole hours
+    assert "last digit of 3600 s" in rounded_counts(collapsed, "hours since 2021-06-01")
+
+
 def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_path):
     """Before layouts42: "the header is one cell holding commas: set [input] delimiter =
     ','", the delimiter already set. A field in quotes holds the delimiter (RFC 4180,
