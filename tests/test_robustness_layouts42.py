@@ -64,6 +64,33 @@ def test_a_cut_record_without_a_header_after_it_and_a_page_number_stay_refused(t
         _read(tmp_path / "page.csv")
 
 
+def test_a_cut_first_record_and_quoted_delimiters_before_a_header_written_again(tmp_path):
+    """Review60. A record cut short as the first after the header, the header written
+    again after it (power cut on the logger's first write): its stamp is as long as that
+    of the record after the header; refused before as "line 3 repeats the header line".
+    A note column quoted where its text holds the delimiter ("ok, checked"; a quoted
+    field holds the delimiter: RFC 4180, section 2 (m)) before a header written again:
+    that record has the header's fields, as any CSV reader splits it; refused before."""
+    frame, ends = _records()
+    lines = frame.to_csv(index=False).splitlines()
+    lines[1] = lines[1][:16]                           # "202106010030,1.8"
+    lines[2:2] = [lines[0]]
+    (tmp_path / "first.csv").write_text("\n".join(lines) + "\n")
+    read, report = _read(tmp_path / "first.csv")
+    assert read.index[0] == ends[1] - pd.Timedelta(minutes=30) and len(read) == len(ends) - 1
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float)[1:])
+    said = [w for w in report.warnings if "cut short right before the header" in w]
+    assert len(said) == 1 and "line 2" in said[0]
+    noted = frame.assign(note=["ok, checked"] * len(frame))
+    lines = noted.to_csv(index=False).splitlines()
+    assert lines[1].endswith('"ok, checked"')
+    lines[151:151] = [lines[0]]
+    (tmp_path / "noted.csv").write_text("\n".join(lines) + "\n")
+    read, report = _read(tmp_path / "noted.csv")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    assert any("written again 1 time(s)" in w and "line 152" in w for w in report.warnings)
+
+
 def test_files_of_data_tools_and_workbooks_are_named(tmp_path):
     """A Feather file was "not utf-8 text; set [input] encoding", a workbook "a zip
     archive: unpack it" (its parts are XML, no table) before layouts42."""
