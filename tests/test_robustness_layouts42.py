@@ -194,6 +194,8 @@ def test_hourly_records_counted_in_whole_hours_are_read(tmp_path):
     np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
     collapsed = pd.Series(["1", "1", "2", "2", "3"])      # 30-minute records, whole hours
     assert "last digit of 3600 s" in rounded_counts(collapsed, "hours since 2021-06-01")
+    repeated = pd.Series([str(hour) for hour in [*range(1, 10), 9, *range(10, 20)]])
+    assert rounded_counts(repeated, "hours since 2021-06-01") == ""   # a duplicated record
 
 
 def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_path):
