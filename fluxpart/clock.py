@@ -602,8 +602,9 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     detail : str
         One line saying why.
     best : float
-        The latitude of the configured sign whose day lengths fit best [degrees];
-        NaN where not judged (or not scanned, `verdict_only`).
+        The latitude whose day lengths fit best [degrees]: of the configured sign, or
+        of the other where the configured sign's best lies near the equator (see
+        Notes); NaN where not judged (or not scanned, `verdict_only`).
 
     Notes
     -----
@@ -613,12 +614,20 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
     3-22 min on generated sites from 37° S to 67° N), while at a wrong latitude it
     swings with the seasons (day length against latitude and season: Allen et al.
     1998, FAO-56, eq. 34). Latitudes of the configured sign are scanned (5°, then
-    1° around the best); the latitude is a mismatch where the best lies
+    1° around the best), and those of the other sign too where that best lies within
+    :data:`MIN_LATITUDE_ERROR` of the equator (the other sign's best taken where it lies
+    that far from the equator and fits better); the latitude is a mismatch where the best
+    lies
     :data:`MIN_LATITUDE_ERROR` or more from the configured one and the swing at the
     configured latitude exceeds both :data:`MIN_DAYLENGTH_SWING` and twice the swing
     at the best. A site TOML pointing at another site's file, or a latitude typed
     wrongly, moves the night mask and the potential radiation the screening compares
-    Rg with. The sign is :func:`check_hemisphere`'s concern.
+    Rg with. The sign is otherwise :func:`check_hemisphere`'s concern; but near the
+    equator it cannot be judged there, and a site of the other hemisphere pulls the
+    configured sign's best to the equator, within :data:`MIN_LATITUDE_ERROR` of a
+    latitude configured as 0 (a template's value) or -2: such a site was called
+    consistent until review60 (a site at 49° S configured as 0, its day lengths
+    swinging 135 min against the sun's).
 
     References
     ----------
@@ -675,14 +684,25 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         return float(np.std(off)) if np.isfinite(off).sum() >= MIN_LATITUDE_MONTHS \
             and np.isfinite(off).all() else np.inf
 
+    def scan(sign: float) -> tuple[float, float]:
+        """The best latitude of one sign and its swing: 5° steps, then 1° around."""
+        coarse = {c: swing(sign * c) for c in np.arange(0.0, 86.0, 5.0)}
+        centre = min(coarse, key=coarse.get)
+        fine = {c: swing(sign * c) for c in np.arange(max(centre - 4.0, 0.0),
+                                                       min(centre + 4.0, 85.0) + 0.5, 1.0)}
+        scores = {**coarse, **fine}
+        best_abs = min(scores, key=scores.get)
+        return sign * float(best_abs), scores[best_abs]
+
     sign = -1.0 if latitude < 0 else 1.0
-    coarse = {c: swing(sign * c) for c in np.arange(0.0, 86.0, 5.0)}
-    centre = min(coarse, key=coarse.get)
-    fine = {c: swing(sign * c) for c in np.arange(max(centre - 4.0, 0.0),
-                                                   min(centre + 4.0, 85.0) + 0.5, 1.0)}
-    scores = {**coarse, **fine}
-    best_abs = min(scores, key=scores.get)
-    best, best_swing = sign * float(best_abs), scores[best_abs]
+    best, best_swing = scan(sign)
+    if abs(best) < MIN_LATITUDE_ERROR:
+        # pulled to the equator: the other hemisphere's latitudes too, where they lie
+        # away from it (near it the sign is not told apart; the configured sign kept on a
+        # tie)
+        other, other_swing = scan(-sign)
+        if abs(other) >= MIN_LATITUDE_ERROR and other_swing < best_swing:
+            best, best_swing = other, other_swing
     # A latitude sets the day length symmetrically about solar noon: sunrise and sunset
     # move by the same minutes in opposite directions, the midpoint of the Rg edges stays
     # put (FAO-56, eq. 34: the day length 24 ωs / π from the sunset hour angle ±ωs). An obstruction on one side only
@@ -702,8 +722,9 @@ def check_latitude(index, rg, latitude, longitude, utc_offset, interval_minutes,
         return "mismatch", (
             f"the day lengths of Rg fit latitude {best:g} (their mismatch with the sun swings "
             f"{best_swing:.0f} min through the year), not the configured {latitude:g} "
-            f"({configured:.0f} min over {len(usable)} months): check [site] latitude, and "
-            f"that [input] path names this site's file"), best
+            f"({configured:.0f} min over {len(usable)} months): check [site] latitude"
+            f"{' and its sign' if best * sign < 0 else ''}, and that [input] path names "
+            "this site's file"), best
     return "consistent", _consistent_latitude(latitude, configured), best
 
 

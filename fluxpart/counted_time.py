@@ -222,6 +222,8 @@ _STAMP_TOLERANCE = 10.0
 #: The half hour [s]: every record stamp fluxpart reads (30- and 60-minute records)
 #: lies on its grid.
 _HALF_HOUR = 1800.0
+#: The hour [s]: the stamps of 60-minute records lie on its grid.
+_HOUR = 3600.0
 
 
 def rounded_counts(text: pd.Series, time_format: str) -> str:
@@ -238,12 +240,14 @@ def rounded_counts(text: pd.Series, time_format: str) -> str:
     str
         Where the finest last digit any cell writes (its decimals, less its exponent)
         is more than twice :data:`_STAMP_TOLERANCE` seconds and does not divide the
-        half hour, so that the records' stamps cannot be written (a spreadsheet's
+        half hour (nor the hour where under a quarter of successive counts repeat:
+        60-minute records in whole hours, a duplicated record aside), so that the records' stamps cannot be written (a spreadsheet's
         General format shows a 13-digit count of Unix milliseconds as
         "1.609459E+12", 1000 s; day numbers shown with three decimals are 86.4 s:
         refused before as records 33.3 minutes apart, or as a logger stamping the
         moment it writes; layouts42): a cell, the digit's size and the fix; ''
-        otherwise (whole minutes, hours to one decimal, days to four).
+        otherwise (whole minutes, hours to one decimal, whole hours of 60-minute
+        records, days to four).
 
     References
     ----------
@@ -252,7 +256,8 @@ def rounded_counts(text: pd.Series, time_format: str) -> str:
     """
     seconds, _, _ = counted_form(time_format)
     cells = text.str.strip()
-    numeric = np.isfinite(counts(text))
+    values = counts(text)
+    numeric = np.isfinite(values)
     if not numeric.any():
         return ""
     # string methods, not a regular expression a cell: ten years of records in 0.1 s
@@ -266,8 +271,13 @@ def rounded_counts(text: pd.Series, time_format: str) -> str:
         exponent[written] = pd.to_numeric(parts["exponent"], errors="coerce").fillna(0)
     digit = 10.0 ** (exponent - decimals)[numeric] * seconds
     finest = float(digit.min())
-    if finest <= 2 * _STAMP_TOLERANCE or abs(_HALF_HOUR / finest
-                                             - round(_HALF_HOUR / finest)) < 1e-9:
+    if finest <= 2 * _STAMP_TOLERANCE or _divides(finest, _HALF_HOUR):
+        return ""
+    steps = np.diff(values[numeric])
+    if _divides(finest, _HOUR) and steps.size and np.count_nonzero(steps == 0.0) < 0.25 * steps.size:
+        # 60-minute records counted in whole hours (review60: refused since layouts42,
+        # read before): half-hourly records rounded so repeat every second count, a file's
+        # duplicated records (named by the reader as such) are few
         return ""
     first = int(np.flatnonzero(numeric)[int(np.argmin(digit))])
     shown = text.iloc[first].strip()
@@ -277,6 +287,11 @@ def rounded_counts(text: pd.Series, time_format: str) -> str:
             "stamps cannot place the records; write the counts with more digits (in a "
             "spreadsheet, format the column as a number with enough decimals and no "
             "exponent before saving it as CSV)")
+
+
+def _divides(digit: float, period: float) -> bool:
+    """Whether a whole number of `digit` [s] makes `period` [s]."""
+    return abs(period / digit - round(period / digit)) < 1e-9
 
 
 #: The two day counts of spreadsheets: 1 January 1904 is day 1462 of the 1900 system

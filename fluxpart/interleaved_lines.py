@@ -40,6 +40,7 @@ error values "#N/A", "#VALUE!", "#DIV/0!", "#REF!", "#NAME?", "#NUM!", "#NULL!"
 
 import re
 
+from . import comma_fields
 from .variables import same_notation
 
 #: Marks that open a comment line (as ``fluxpart.io``'s refusal names them).
@@ -58,8 +59,13 @@ def _split(line: str, delimiter: str) -> list:
 
 
 def field_count(line: str, delimiter: str) -> int:
-    """Fields of a line split at `delimiter` (quotes ignored: only compared to the
-    header's width, which a quoted delimiter changes alike in every record)."""
+    """Fields of a line split at `delimiter`, a delimiter inside quotes honoured as a CSV
+    reader honours it (:func:`fluxpart.comma_fields.field_count`, RFC 4180 (m)): a note
+    column quoted only where its text holds the delimiter ("ok, checked") made the record
+    before a repeated header one field wider than the header, and the header refused
+    (review60)."""
+    if '"' in line and delimiter != "whitespace":
+        return comma_fields.field_count(line, delimiter)
     return len(_split(line, delimiter))
 
 
@@ -128,7 +134,8 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
         before = _before(lines, first, delimiter)   # blank lines and notes ("# power cut")
         after_block = blocks and before == blocks[-1][1]
         if (not after_block and field_count(lines[before], delimiter) != width
-                and not _cut_record(lines, before, delimiter, width)):
+                and not _cut_record(lines, before, delimiter, width,
+                                    [(0, first_data - 1), *blocks], last + 1)):
             return []
         blocks.append((first, last))
     return blocks
@@ -143,19 +150,28 @@ def _before(lines: list, index: int, delimiter: str) -> int:
     return index
 
 
-def _cut_record(lines: list, index: int, delimiter: str, width: int) -> bool:
+def _cut_record(lines: list, index: int, delimiter: str, width: int, headers: list,
+                after: int) -> bool:
     """Whether line `index` is a record cut short by a power cut: more than one field
-    and fewer than the header's `width`, after a record of `width` fields whose first
-    field (the stamp) is as long as its own (a page number, "2", is no record)."""
+    and fewer than the header's `width`, its first field (the stamp) as long as that of a
+    record of `width` fields: the record before it, or where a header block stands before
+    it (the cut record the first after the file's header or a header written again,
+    review60) the line `after` (the first after the header written again after it).
+    `headers` holds the header blocks ``(first, last)`` before `index`, the file's own
+    first. A page number, "2", is no record."""
     line = lines[index].strip() if index >= 0 else ""
-    previous = _before(lines, index, delimiter) if line else -1
-    if previous < 0 or not 1 < field_count(line, delimiter) < width \
-            or field_count(lines[previous], delimiter) != width:
+    if not line or not 1 < field_count(line, delimiter) < width:
+        return False
+    previous = _before(lines, index, delimiter)
+    if any(first <= previous <= last for first, last in headers):
+        previous = after if after < len(lines) else -1
+    if previous < 0 or field_count(lines[previous], delimiter) != width:
         return False
     return len(_split(lines[previous].strip(), delimiter)[0]) == len(_split(line, delimiter)[0])
 
 
-def cut_records(lines: list, blocks: list, rows_before_header: int, delimiter: str) -> list:
+def cut_records(lines: list, blocks: list, rows_before_header: int, rows_after_header: int,
+                delimiter: str) -> list:
     """Indices (0-based) of the records cut short right before the repeated header
     `blocks` (``(first, last)`` of :func:`repeated_header_blocks`): a logger stopped
     mid-write, restarted and wrote its header again (layouts42: refused before, as a
@@ -164,10 +180,14 @@ def cut_records(lines: list, blocks: list, rows_before_header: int, delimiter: s
     if not blocks:
         return []
     width = field_count(lines[rows_before_header], delimiter)
-    befores = [_before(lines, first, delimiter) for first, _ in blocks]
-    return [index for index in befores if index >= 0
-            and field_count(lines[index], delimiter) != width
-            and _cut_record(lines, index, delimiter, width)]
+    headers = [(0, rows_before_header + rows_after_header), *blocks]
+    cut = []
+    for place, (first, last) in enumerate(blocks):
+        index = _before(lines, first, delimiter)
+        if (index >= 0 and field_count(lines[index], delimiter) != width
+                and _cut_record(lines, index, delimiter, width, headers[:place + 1], last + 1)):
+            cut.append(index)
+    return cut
 
 
 def note_lines(lines: list, first_data: int, delimiter: str, width: int, note_mark=None

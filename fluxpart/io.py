@@ -3368,7 +3368,8 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
             f"among the records, {same}, on "
             f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
-    cut = interleaved_lines.cut_records(lines, blocks, rows_before_header, delimiter)
+    cut = interleaved_lines.cut_records(lines, blocks, rows_before_header, rows_after_header,
+                                        delimiter)
     if cut:
         # a power cut stopped the logger mid-write, and it wrote its header again on
         # restarting (layouts42): the record before is dropped as a file's last line cut

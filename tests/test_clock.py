@@ -365,6 +365,27 @@ def test_latitude_far_off_the_file_is_named(true_latitude, configured, longitude
     assert "[site] latitude" in problem and "[input] path" in problem
 
 
+@pytest.mark.parametrize("true_latitude, configured", [
+    (-49.3, 0.0),       # a template's latitude left at 0 for a site at 49° S
+    (49.3, -2.0),       # a mistyped value of the other sign near the equator
+])
+def test_a_site_of_the_other_hemisphere_configured_near_the_equator_is_named(true_latitude,
+                                                                           configured):
+    """Near the equator the hemisphere is not judged (its seasons differ too little), and
+    a scan of the configured sign alone found its best at the equator, within 10° of the
+    configured value: the site was called consistent, its day lengths swinging 135 min
+    against the sun's (review60). Day length against latitude and season (FAO-56 eq. 34):
+    the other hemisphere's scan names the true latitude, within 3° (the scan's 1° step
+    plus cloud noise), and the sign."""
+    rg = synthetic_rg(true_latitude, 10.2, 1.0, interval_minutes=30, seed=2)
+    verdict = _check(rg, configured, 10.2, 1.0, 30)
+    assert verdict.status == "latitude"
+    problem = next(p for p in verdict.problems if "day lengths of Rg fit latitude" in p)
+    named = float(problem.split("fit latitude ")[1].split(" ")[0])
+    assert abs(named - true_latitude) <= 3.0
+    assert "check [site] latitude and its sign" in problem
+
+
 @pytest.mark.parametrize("latitude, longitude, utc_offset, interval, cloudiness, extra", CORRECT)
 def test_latitude_check_passes_correct_sites(latitude, longitude, utc_offset, interval,
                                              cloudiness, extra):

@@ -64,6 +64,33 @@ def test_a_cut_record_without_a_header_after_it_and_a_page_number_stay_refused(t
         _read(tmp_path / "page.csv")
 
 
+def test_a_cut_first_record_and_quoted_delimiters_before_a_header_written_again(tmp_path):
+    """Review60. A record cut short as the first after the header, the header written
+    again after it (power cut on the logger's first write): its stamp is as long as that
+    of the record after the header; refused before as "line 3 repeats the header line".
+    A note column quoted where its text holds the delimiter ("ok, checked"; a quoted
+    field holds the delimiter: RFC 4180, section 2 (m)) before a header written again:
+    that record has the header's fields, as any CSV reader splits it; refused before."""
+    frame, ends = _records()
+    lines = frame.to_csv(index=False).splitlines()
+    lines[1] = lines[1][:16]                           # "202106010030,1.8"
+    lines[2:2] = [lines[0]]
+    (tmp_path / "first.csv").write_text("\n".join(lines) + "\n")
+    read, report = _read(tmp_path / "first.csv")
+    assert read.index[0] == ends[1] - pd.Timedelta(minutes=30) and len(read) == len(ends) - 1
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float)[1:])
+    said = [w for w in report.warnings if "cut short right before the header" in w]
+    assert len(said) == 1 and "line 2" in said[0]
+    noted = frame.assign(note=["ok, checked"] * len(frame))
+    lines = noted.to_csv(index=False).splitlines()
+    assert lines[1].endswith('"ok, checked"')
+    lines[151:151] = [lines[0]]
+    (tmp_path / "noted.csv").write_text("\n".join(lines) + "\n")
+    read, report = _read(tmp_path / "noted.csv")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    assert any("written again 1 time(s)" in w and "line 152" in w for w in report.warnings)
+
+
 def test_files_of_data_tools_and_workbooks_are_named(tmp_path):
     """A Feather file was "not utf-8 text; set [input] encoding", a workbook "a zip
     archive: unpack it" (its parts are XML, no table) before layouts42."""
@@ -147,6 +174,28 @@ def test_counts_too_coarse_for_a_record_are_refused_naming_their_digits():
                         (["0.5", "1", "1.5"], "hours since 2021-06-01"),
                         (["1622505600000"], "milliseconds since 1970-01-01 UTC")):
         assert rounded_counts(pd.Series(cells), form) == "", cells
+
+
+def test_hourly_records_counted_in_whole_hours_are_read(tmp_path):
+    """Review60: 60-minute records written as whole hours since a date (a digit of
+    3600 s: 1 h = 3600 s) were refused by the check above as too coarse, read before
+    layouts42; half-hourly records rounded onto whole hours (a count repeated) are still
+    named."""
+    frame, ends = _records()
+    frame, ends = frame.iloc[1::2].reset_index(drop=True), ends[1::2]
+    start = datetime(2021, 6, 1)
+    frame["stamp"] = [f"{(end.to_pydatetime() - start).total_seconds() / 3600:g}"
+                      for end in ends]
+    assert frame["stamp"].str.fullmatch(r"\d+").all()
+    path = tmp_path / "t.csv"
+    frame.to_csv(path, index=False)
+    read, _ = _read(path, "hours since 2021-06-01 00:00")
+    assert len(read) == len(ends) and read.index[0] == pd.Timestamp("2021-06-01 00:00")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    collapsed = pd.Series(["1", "1", "2", "2", "3"])      # 30-minute records, whole hours
+    assert "last digit of 3600 s" in rounded_counts(collapsed, "hours since 2021-06-01")
+    repeated = pd.Series([str(hour) for hour in [*range(1, 10), 9, *range(10, 20)]])
+    assert rounded_counts(repeated, "hours since 2021-06-01") == ""   # a duplicated record
 
 
 def test_lines_wrapped_whole_in_quotes_are_named_not_a_delimiter_setting(tmp_path):
