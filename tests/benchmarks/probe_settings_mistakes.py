@@ -175,7 +175,8 @@ CASES = {
     "units: nee 'mg CO2 m-2 s-1' (values µmol)": lambda t: _set(t, "input.units", "nee",
                                                                 '"mg CO2 m-2 s-1"'),
     "units: rg 'kW m-2' (values W m-2)": lambda t: _set(t, "input.units", "rg", '"kW m-2"'),
-    "units: vpd declaration dropped (kPa read as hPa)": lambda t: _drop(t, "vpd"),
+    "units: vpd declaration dropped (kPa read as hPa)": lambda t: t.replace(
+        '[input.units]\nvpd = "kPa"\n', '[input.units]\n'),
     "flag_accept [1] (flag read inverted)": lambda t: _set(t, "input", "flag_accept", "[1]"),
     "canopy tall on the grassland": lambda t: _set(t, "site", "canopy", '"tall"'),
     "e0_fallback 100": lambda t: _set(t, "processing", "e0_fallback", "100"),
