@@ -5,7 +5,11 @@ it), runs ``process_site_config`` (what ``run`` calls) and prints whether it was
 (the error line), warned (new warnings against the clean run) or silent, and the moves
 of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
 
-    PYTHONPATH=$PWD python tests/benchmarks/probe_settings_mistakes.py [--only NAME ...]
+    PYTHONPATH=$PWD python tests/benchmarks/probe_settings_mistakes.py [--only NAME ...] [--use]
+
+Round mistakes48 added 35 cases (mappings, units, windows in records, percentages as
+shares, zones, the clock check off) and ``--use``: how far a user's own number moves
+where the result is used wrongly.
 """
 
 from __future__ import annotations
@@ -16,6 +20,8 @@ import sys
 import tempfile
 import warnings
 from pathlib import Path
+
+import numpy as np
 
 EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
 MAIZE = EXAMPLE.with_name("quillmoor_maize_logger.toml")
@@ -230,10 +236,29 @@ def print_outcome(name: str, outcome, clean_warnings, base) -> None:
     sys.stdout.flush()
 
 
+def print_use_mistakes(result) -> None:
+    """How wrong a user's own number is where the result is used wrongly (round
+    mistakes48): the daily sigmas added in quadrature for an annual one, and the time
+    series' ``nee`` (as read, with its gaps) summed for a budget."""
+    annual = result.annual.iloc[0]
+    for flux in SUMS:
+        days = float(np.sqrt((result.daily[f"{flux}_sigma"] ** 2).sum()))
+        total = annual[f"{flux}_uncertainty_total"]
+        print(f"use: {flux} daily sigmas in quadrature {days:.1f} against the annual "
+              f"{total:.1f} g C m-2 (x{total / days:.1f})")
+    series = result.timeseries
+    grams = float(series.index.to_series().diff().median().total_seconds()) * 12.011e-6
+    print(f"use: time series nee summed (gaps skipped) {series['nee'].sum() * grams:.1f}, "
+          f"its mean times the records {series['nee'].mean() * len(series) * grams:.1f}, "
+          f"against the annual {annual['nee']:.1f} g C m-2")
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--only", nargs="*", default=None)
     parser.add_argument("--maize", action="store_true", help="the maize logger example")
+    parser.add_argument("--use", action="store_true",
+                        help="also the use mistakes on the clean run (round mistakes48)")
     args = parser.parse_args(argv)
     example = MAIZE if args.maize else EXAMPLE
     cases = MAIZE_CASES if args.maize else CASES
@@ -246,6 +271,8 @@ def main(argv=None) -> int:
         base = clean.annual.iloc[0]
         print("clean:", ", ".join(f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})"
                                    for s in SUMS))
+        if args.use:
+            print_use_mistakes(clean)
         for name, edit in cases.items():
             if args.only and not any(o in name for o in args.only):
                 continue
