@@ -409,7 +409,8 @@ def _command_check(args) -> int:
     verdict, findings = check_record(frame, site_config.site, config,
                                      time_marks=report.time_marks,
                                      shift_applied_minutes=report.shift_minutes,
-                                     columns=report.columns)
+                                     columns=report.columns,
+                                     time_zone=report.stamp_conversions.get("time_zone"))
     refuse = config.clock_check == "refuse"
     problems = [f"{text}{' (run stops)' if refuse else ''}"
                 for text in (verdict.problems if verdict is not None else ())]

@@ -911,10 +911,35 @@ def _one_block(inside: set, outside: set) -> bool:
     return False
 
 
+def _zone_fix(hours: float, time_zone: str, utc_offset: float) -> str:
+    """What mends a clock `hours` off where the stamps were read in ``[input] time_zone``.
+
+    The reader converts the stamps from the zone to the site's standard time, so the
+    shift is the zone's error, whatever utc_offset says (it sets the output's clock
+    only): the stamps are in the zone's standard offset plus the shift.
+    """
+    from .timestamps import zone_standard_hours
+
+    zone_hours = zone_standard_hours(time_zone)
+    stamps = zone_hours + hours
+    stamps += 24.0 if stamps < -12.0 else -24.0 if stamps > 14.0 else 0.0   # known modulo a day
+    read = f"not UTC{zone_hours:+g} h as [input] time_zone = \"{time_zone}\" reads them"
+    if abs(stamps - utc_offset) < 1e-9:
+        return (f"remove [input] time_zone (the stamps are in the site's standard time "
+                f"UTC{utc_offset:+g} h, {read}; with a zone, utc_offset sets only the "
+                "output's clock and cannot move Rg against the sun)")
+    if stamps == 0.0:
+        return f"[input] time_zone = \"UTC\" (the stamps are in UTC, {read})"
+    return (f"the stamps' zone (they are in UTC{stamps:+g} h, {read}; convert them to the "
+            f"site's standard time UTC{utc_offset:+g} h in a copy of the file)")
+
+
 def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: str | None,
-         shift_applied: float, longitude: float, latitude: float | None = None
-         ) -> tuple[str, float | None]:
-    """What setting removes a shift of `shift` minutes, in words, and the utc_offset."""
+         shift_applied: float, longitude: float, latitude: float | None = None,
+         time_zone: str | None = None) -> tuple[str, float | None]:
+    """What setting removes a shift of `shift` minutes, in words, and the utc_offset
+    (None where `time_zone`, the reader's ``[input] time_zone``, converted the stamps:
+    utc_offset then cannot move them against the sun, round mistakes48)."""
     hours = shift / 60.0
     # the sun crosses the meridian 4 min later per degree west (Earth turns 360° per day);
     # a longitude of the wrong sign moves solar noon by 8 min per degree
@@ -934,7 +959,10 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
     whole_hours = abs(shift - round(hours) * 60.0) <= 15.0
     # only offsets in use are suggested for a shift that is not whole hours
     used_offset = float(offset).is_integer() or offset in FRACTIONAL_UTC_OFFSETS
-    if abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and used_offset:
+    if (time_zone is not None and abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0
+            and used_offset):
+        fixes.append(_zone_fix(offset - utc_offset, time_zone, utc_offset))
+    elif abs(offset - utc_offset) >= 0.5 and residual_offset <= 15.0 and used_offset:
         fixes.append(f"[site] utc_offset = {offset:g} (stamps in UTC{offset:+g} h rather than "
                      f"UTC{utc_offset:+g} h)")
         suggested = float(offset)
@@ -992,8 +1020,8 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
 
 
 def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
-                time_marks: str | None = None, shift_applied_minutes: float = 0.0
-                ) -> ClockVerdict:
+                time_marks: str | None = None, shift_applied_minutes: float = 0.0,
+                time_zone: str | None = None) -> ClockVerdict:
     """Judge the record's clock and the site's latitude sign from measured Rg.
 
     Parameters
@@ -1014,6 +1042,9 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     shift_applied_minutes : float, optional
         Minutes the reader subtracted from the file's stamps (0, half or one
         interval for ``time_marks`` start, middle, end).
+    time_zone : str, optional
+        The ``[input] time_zone`` the reader converted the stamps from: a whole-hour
+        shift is then named as that zone's, not as utc_offset's.
 
     Returns
     -------
@@ -1067,7 +1098,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 f"convert the stamps to local standard time")
         if abs(base) >= threshold:
             fix, suggested = _fix(base, utc_offset, interval, time_marks, shift_applied_minutes,
-                                  longitude, latitude)
+                                  longitude, latitude, time_zone)
             text += f"; outside daylight saving Rg is {base:+.0f} min off: set {fix}"
         problems.append(text)
         median = base
@@ -1084,7 +1115,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 and spread <= tolerance and edge_spread <= tolerance):
             status = "shifted"
             fix, suggested = _fix(median, utc_offset, interval, time_marks,
-                                  shift_applied_minutes, longitude, latitude)
+                                  shift_applied_minutes, longitude, latitude, time_zone)
             direction = "later" if median > 0 else "earlier"
             problems.append(
                 f"clock: measured Rg comes {abs(median):.0f} min {direction} than the sun at "

@@ -66,7 +66,7 @@ _LOG = logging.getLogger("fluxpart.pipeline")
 
 def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                  time_marks: str | None = None, shift_applied_minutes: float = 0.0,
-                 columns: dict | None = None):
+                 columns: dict | None = None, time_zone: str | None = None):
     """The clock verdict and every preflight finding of a record, as ``check`` lists them.
 
     Parameters
@@ -83,6 +83,9 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
         Minutes the reader subtracted from the file's stamps.
     columns : dict, optional
         Canonical name -> file column (``ReadReport.columns``), named in messages.
+    time_zone : str, optional
+        The ``[input] time_zone`` the reader converted the stamps from, for the clock
+        message.
 
     Returns
     -------
@@ -99,7 +102,8 @@ def check_record(frame: pd.DataFrame, site: Site, config: Config | None = None, 
                                                                          interval)
     verdict, findings = screening_stage.clock_and_preflight(
         frame, site, config, interval, geometry, is_night, screens,
-        {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns})
+        {"time_marks": time_marks, "shift_minutes": shift_applied_minutes, "columns": columns,
+         "stamp_conversions": {"time_zone": time_zone} if time_zone else {}})
     # events outside the record (a mistyped year) are named before a run, as `run` names them
     return verdict, findings + [preflight.Finding("annual budget", note, False)
                                 for note in edges] + [

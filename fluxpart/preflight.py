@@ -1266,6 +1266,23 @@ _GEOMETRY_WRONG = ("hemisphere", "latitude")
 _POTENTIAL_STAGES = ("input (rg zeros)", "input (rg dim)")
 
 
+#: The findings that read Rg against the sun the settings predict: with the clock check
+#: off nothing tells a clock or ``utc_offset`` off from what they name (round mistakes48:
+#: ``utc_offset = 0`` at a UTC+1 site with the check off was named a shaded sensor, daytime
+#: GPP moved by 2.6 sigma).
+_SUN_TIMED_STAGES = ("input (rg shaded)", "screening (Rg above potential radiation)")
+
+
+def _clock_off(finding: Finding) -> Finding:
+    """`finding`, where it reads Rg against the sun, saying the clock was not checked."""
+    if finding.stage not in _SUN_TIMED_STAGES:
+        return finding
+    message = finding.message.replace(" (see the clock check)", "")
+    return Finding(finding.stage, message + (
+        "; [processing] clock_check = \"off\": a clock or [site] utc_offset off by an hour "
+        "looks alike, so set clock_check = \"warn\" to have it judged"), finding.fatal)
+
+
 def defer_to_clock(findings: list, clock_status: str | None) -> list:
     """`findings` without those a clock shift explains, where the clock check found one.
 
@@ -1280,7 +1297,8 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
     Returns
     -------
     list of Finding
-        `findings` in their order, less the shaded-Rg finding where the clock check
+        `findings` in their order (with the check off, the findings that time Rg by the
+        sun saying so), less the shaded-Rg finding where the clock check
         found the stamps shifted against the sun (``"shifted"``, ``"daylight_saving"``),
         and less the Rg-zeros and dim-Rg findings where it found the latitude wrong
         (``"hemisphere"``, ``"latitude"``: they judge Rg by the sun's height at the
@@ -1303,6 +1321,8 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
     ----------
     Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press (m).
     """
+    if clock_status is None:
+        return [_clock_off(finding) for finding in findings]
     if clock_status in _GEOMETRY_WRONG:
         return [finding for finding in findings if finding.stage not in _POTENTIAL_STAGES]
     if clock_status not in _CLOCK_MOVES_NOON:

@@ -146,7 +146,8 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
         verdict = clock.check_clock(
             frame.index, frame["rg"].to_numpy(dtype=float), site.latitude, site.longitude,
             site.utc_offset, interval, time_marks=reader.get("time_marks"),
-            shift_applied_minutes=float(reader.get("shift_minutes") or 0.0))
+            shift_applied_minutes=float(reader.get("shift_minutes") or 0.0),
+            time_zone=(reader.get("stamp_conversions") or {}).get("time_zone"))
     solar.forget_courses()      # the last call that asks for the record's sun course again
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),

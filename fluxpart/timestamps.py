@@ -1673,6 +1673,37 @@ def _buddhist_era(index: pd.DatetimeIndex) -> str:
             "(format the column with the Gregorian calendar before saving)")
 
 
+def zone_standard_hours(zone, when=None) -> float:
+    """The standard (winter) offset of a time zone from UTC [hours].
+
+    Parameters
+    ----------
+    zone : zoneinfo.ZoneInfo or str
+        The zone, or its IANA name (known to the system's time-zone database).
+    when : datetime-like, optional
+        A moment in the year to read it for (default 2020-01-01).
+
+    Returns
+    -------
+    float
+        The smaller of the offsets without daylight saving on 1 January and 1 July.
+
+    References
+    ----------
+    IANA time zone database (tz), its ``dst`` field: the part of an offset that is
+    daylight saving (m).
+    """
+    from zoneinfo import ZoneInfo
+
+    zone = ZoneInfo(zone) if isinstance(zone, str) else zone
+    moment = pd.Timestamp(when if when is not None else "2020-01-01").to_pydatetime()
+    hours = set()
+    for month in (1, 7):
+        probe = moment.replace(month=month, day=1, hour=12, tzinfo=zone)
+        hours.add((probe.utcoffset() - probe.dst()) / timedelta(hours=1))
+    return min(hours)
+
+
 def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     """Check an ``[input] time_zone`` setting against ``[site] utc_offset``.
 
@@ -1708,12 +1739,7 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     except (ZoneInfoNotFoundError, ValueError, OSError):
         raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} is not a known time zone; use an "
                           "\"Area/City\" name such as \"Europe/Berlin\"") from None
-    moment = pd.Timestamp(when if when is not None else "2020-01-01").to_pydatetime()
-    hours = set()
-    for month in (1, 7):
-        probe = moment.replace(month=month, day=1, hour=12, tzinfo=zone)
-        hours.add((probe.utcoffset() - probe.dst()) / timedelta(hours=1))
-    standard = min(hours)
+    standard = zone_standard_hours(zone, when)
     names_offset = time_zone.split("/")[0] in _OFFSET_ZONE_PREFIXES
     if names_offset and standard == 0.0:
         # "UTC", "Etc/UTC": stamps kept in UTC (as many loggers are), converted to the

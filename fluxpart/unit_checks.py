@@ -1009,6 +1009,35 @@ def _tair_message(converted: dict, units: dict, columns: dict, interval_minutes:
     return f"{found}: set [input.units] tair = \"°F\" (or list tair in [input] accept_units)"
 
 
+#: Least median u* [m s-1] of a record of 30 days or more read in a declared unit other
+#: than m s-1 (round mistakes48): u* in m s-1 declared "cm s-1" reads a hundredth, a
+#: median of 0.002-0.007 m s-1 for towers' 0.2-0.7 (m; :data:`_LEAST_MEDIAN`), which the
+#: range [0, 5] lets through and the canopy's floor (0.01 short, 0.1 tall) then turns
+#: into a filter of every night (the run stopped with "no usable night record"). 0.02
+#: is our choice: a factor of 10 below the lowest typical median, 3 above the
+#: hundredth of it.
+_USTAR_LEAST_MEDIAN = 0.02
+
+
+def _ustar_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
+    """u* read a hundred times too small: a unit declared for values in m s-1."""
+    ustar = converted.get("ustar")
+    declared = units.get("ustar")
+    if ustar is None or reads_as_canonical("ustar", declared):
+        return None
+    present = ustar[np.isfinite(ustar) & (ustar > 0)]      # 0: a logger's code for missing
+    if not _enough_days(present.size, interval_minutes):
+        return None
+    median = float(np.median(present))
+    as_canonical = median / float(to_canonical(np.array([1.0]), "ustar", declared)[0])
+    if median >= _USTAR_LEAST_MEDIAN or not _LEAST_MEDIAN["ustar"] <= as_canonical <= 1.5:
+        return None
+    return (f"column {columns.get('ustar', 'ustar')!r} (ustar, read as {declared!r}): its "
+            f"median is {median:.4f} m s-1, where towers' friction velocity has a median of "
+            "0.2-0.7 m s-1 (below the canopy's u* floor, every night would be filtered); read as 'm s-1' the median is {as_canonical:.2f}: set [input.units] "
+            "ustar = \"m s-1\" (or list ustar in [input] accept_units)")
+
+
 def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes: int):
     """Soil temperature in °F or K read as °C, where few values leave the plausible range.
 
@@ -1340,6 +1369,9 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         refuse = _storage_sign_message(converted, columns, potential, stamps)
         if refuse:
             refusals["storage"] = refuse
+        refuse = _ustar_message(converted, units, columns, interval_minutes)
+        if refuse:
+            refusals["ustar"] = refuse
         refuse = _tair_message(converted, units, columns, interval_minutes)
         if refuse:
             refusals["tair"] = refuse

@@ -110,6 +110,26 @@ def test_logger_kept_on_utc_names_the_time_zone_setting_too():
     assert "time_zone" not in other.problems[0]
 
 
+def test_a_zone_the_stamps_are_not_in_is_named_not_a_utc_offset_that_cannot_mend_it():
+    """Stamps in the site's standard time UTC+10 read with [input] time_zone = "UTC": the
+    reader adds 10 h, Rg comes 600 min late. With a zone the conversion puts the stamps in
+    whatever utc_offset says, so another utc_offset cannot move Rg against the sun (the
+    arithmetic of UTC offsets, common practice); the zone is named (round mistakes48:
+    "utc_offset = 20" was offered). Sun and clear sky from pvlib as above."""
+    rg = synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=30, seed=2,
+                      clock_shift_minutes=600.0)
+    verdict = _check(rg, -35.3, 149.1, 10.0, 30, time_zone="UTC")
+    assert verdict.status == "shifted" and verdict.suggested_utc_offset is None
+    assert "remove [input] time_zone (the stamps are in the site's standard time UTC+10 h, "\
+        "not UTC+0 h" in verdict.problems[0]
+    assert "utc_offset = " not in verdict.problems[0].split("likely fix:")[1]
+    # stamps in UTC read as the site's zone: the zone "UTC" named
+    early = _check(synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=30, seed=2,
+                                clock_shift_minutes=-600.0), -35.3, 149.1, 10.0, 30,
+                   time_zone="Australia/Sydney")
+    assert '[input] time_zone = "UTC" (the stamps are in UTC, not UTC+10 h' in early.problems[0]
+
+
 def test_utc_offset_of_the_wrong_sign_near_twelve_hours_is_one_shift():
     """A site at 94.8° W in UTC-6 declared UTC+6: the stamps are 12 h off, so month by
     month the shift reads about +715 or -720 min (a day wraps at ±12 h). Unwrapped around

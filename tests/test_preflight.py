@@ -244,10 +244,29 @@ def test_a_clock_an_hour_off_is_not_also_called_a_shaded_sensor(demo_frame, hour
     assert verdict.status == "consistent" and "input (rg shaded)" in _stages(findings)
     # only a shift of the stamps moves the noon the check is symmetric about
     found = [Finding("input (rg shaded)", "shaded", False), Finding("x", "y", False)]
-    for status in (None, "consistent", "hemisphere", "latitude", "cannot_judge"):
+    for status in ("consistent", "hemisphere", "latitude", "cannot_judge"):
         assert defer_to_clock(found, status) == found
     for status in ("shifted", "daylight_saving"):
         assert defer_to_clock(found, status) == found[1:]
+
+
+def test_with_the_clock_check_off_a_shaded_sensor_is_not_named_alone(demo_frame):
+    """The same site an hour off with ``clock_check = "off"`` (round mistakes48): nothing
+    tells the shift from a shade, and the shading finding said only "shaded" (daytime GPP
+    moved by 2.6 sigma on the grassland example). It now says the clock was not judged
+    and how to have it judged; other findings are untouched. Sun heights as above (Iqbal
+    1983 (m))."""
+    from fluxpart.preflight import Finding, defer_to_clock
+
+    site = demo.site()
+    wrong = Site(site.name, site.latitude, site.longitude, site.utc_offset + 1.0)
+    verdict, findings = check_record(demo_frame, wrong, Config(clock_check="off"))
+    assert verdict is None
+    shaded = [f for f in findings if f.stage == "input (rg shaded)"]
+    assert shaded and 'clock_check = "off": a clock or [site] utc_offset off by an hour' \
+        in shaded[0].message
+    other = Finding("x", "y", False)
+    assert defer_to_clock([other], None) == [other]
 
 
 def test_process_refuses_a_shifted_clock_unless_told_to_warn(demo_frame):

@@ -729,3 +729,20 @@ def test_a_running_mean_of_a_productive_sites_mg_co2_record_is_still_refused():
                                             potential, (), frame.index)
         assert "nee" not in refusals
         assert not any("'nee' (nee): in " in w for w in warnings)
+
+
+def test_ustar_in_m_per_second_declared_in_cm_per_second_is_refused_naming_the_unit():
+    """u* in m s-1 declared "cm s-1" reads a hundredth (1 cm s-1 = 0.01 m s-1, SI): a
+    median of 0.003 m s-1 against towers' 0.2-0.7 m s-1 (m); the canopy's floor then
+    filtered every night and the run stopped as "no usable night record" (round
+    mistakes48). A record truly in cm s-1 declared so is read as it is."""
+    rng = np.random.default_rng(4)
+    metres = rng.lognormal(np.log(0.3), 0.6, 48 * 60)          # 60 days, median 0.3 m s-1
+    columns = {"ustar": "u_star"}
+    refusals, _ = mixup_messages({"ustar": to_canonical(metres, "ustar", "cm s-1")},
+                                 {"ustar": "cm s-1"}, columns, 30)
+    assert "read as 'cm s-1'" in refusals["ustar"]
+    assert 'set [input.units] ustar = "m s-1"' in refusals["ustar"]
+    right, _ = mixup_messages({"ustar": to_canonical(100.0 * metres, "ustar", "cm s-1")},
+                              {"ustar": "cm s-1"}, columns, 30)
+    assert "ustar" not in right

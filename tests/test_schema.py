@@ -221,8 +221,8 @@ def test_each_total_names_every_part_it_adds(written_demo):
     annual = written_demo[0].annual
     for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
         text = describe("annual", f"{flux}_uncertainty_total")[1]
-        assert describe("daily", f"{flux}_sigma")[1].split("(carbon; ")[1] == \
-            text.split("(carbon; ")[1]
+        assert describe("daily", f"{flux}_sigma")[1].split("(carbon; ")[1].split(
+            "; the errors of neighbouring periods")[0] == text.split("(carbon; ")[1]
         named = re.findall(r"\(((?:gpp|reco)\w*_uncertainty_\w+)\)", text)
         method = flux.split("_")[1]
         form = ("reco_uncertainty_respiration_form" if method == "nighttime"
@@ -248,3 +248,21 @@ def test_each_total_names_every_part_it_adds(written_demo):
     # the daytime parameter part is the windows' Rref only: no E0 claimed
     assert "E0's own error is not counted" in describe("annual",
                                                        "gpp_daytime_uncertainty_parameters")[1]
+
+
+def test_period_sigmas_say_they_do_not_add_in_quadrature_and_nee_as_read_is_no_budget(
+        written_demo):
+    """Use mistakes (round mistakes48): a modeller who adds the daily sigmas in quadrature
+    for an annual one, or sums the time series' ``nee`` (with its gaps). Errors shared
+    between periods add linearly, not in quadrature (GUM, JCGM 100:2008, 5.2 (m)); on the
+    demo year the days' root sum of squares falls short of the annual total for every
+    flux, and the descriptions now say so and name the column to take."""
+    result = written_demo[0]
+    for flux in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        quadrature = float(np.sqrt((result.daily[f"{flux}_sigma"] ** 2).sum()))
+        assert quadrature < result.annual[f"{flux}_uncertainty_total"].iloc[0]
+        text = describe("daily", f"{flux}_sigma")[1]
+        assert "root sum of squares of these sigmas understates a longer period's" in text
+        assert f"(annual: {flux}_uncertainty_total)" in text
+    assert "with its gaps: sums and means of it are not budgets (the gap-filled series is " \
+        "nee_filled)" in describe("timeseries", "nee")[1]

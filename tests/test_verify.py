@@ -787,6 +787,22 @@ def test_site_config_edited_after_the_run_names_the_changed_settings(copy, capsy
         in out
 
 
+def test_another_seed_given_with_config_is_named_with_both_values(copy, capsys):
+    """An auditor's copy of the site config with another seed, given with --config:
+    refused as before (the recorded SHA-256 decides), and the setting that differs named
+    with both values (round mistakes48: only "not the site config" before). Same input,
+    config and seed give the same tables: a seed differing is the cause to name (common
+    practice of reproducible runs)."""
+    other = copy / "auditor.toml"
+    text = (copy / "site.toml").read_text()
+    assert "\nseed = 0\n" in text
+    other.write_text(text.replace("\nseed = 0\n", "\nseed = 7\n"))
+    assert main(["verify", str(copy / "out"), "--config", str(other)]) == 1
+    out = capsys.readouterr().out
+    assert ("it is not the site config the result was computed from; changed since the "
+            "run: [processing] seed 0 -> 7, so nothing was recomputed") in out
+
+
 def test_one_flipped_byte_is_named_by_its_file_even_quiet(copy, capsys):
     """One byte of a Parquet file flipped (bit rot, a hand edit): exit 1, and the file is
     named by its name on disk, also in the one-line verdict of --quiet, which named no file

@@ -5,7 +5,11 @@ it), runs ``process_site_config`` (what ``run`` calls) and prints whether it was
 (the error line), warned (new warnings against the clean run) or silent, and the moves
 of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
 
-    PYTHONPATH=$PWD python tests/benchmarks/probe_settings_mistakes.py [--only NAME ...]
+    PYTHONPATH=$PWD python tests/benchmarks/probe_settings_mistakes.py [--only NAME ...] [--use]
+
+Round mistakes48 added 35 cases (mappings, units, windows in records, percentages as
+shares, zones, the clock check off) and ``--use``: how far a user's own number moves
+where the result is used wrongly.
 """
 
 from __future__ import annotations
@@ -16,6 +20,8 @@ import sys
 import tempfile
 import warnings
 from pathlib import Path
+
+import numpy as np
 
 EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "quillmoor_grassland.toml"
 MAIZE = EXAMPLE.with_name("quillmoor_maize_logger.toml")
@@ -126,6 +132,62 @@ CASES = {
     "daytime_curvature 1": lambda t: _set(t, "processing", "daytime_curvature", "1"),
     "ustar_plateau_reference 1": lambda t: _set(t, "processing", "ustar_plateau_reference",
                                                 "1"),
+    # round mistakes48
+    "tsoil mapped to the air column": lambda t: _set(t, "input.columns", "tsoil",
+                                                     '"air_temp_c"'),
+    "tair mapped to the soil column": lambda t: _set(t, "input.columns", "tair",
+                                                     '"soil_temp_5cm"'),
+    "units: a unit for nee_flag": lambda t: _set(t, "input.units", "nee_flag",
+                                                 '"umol m-2 s-1"'),
+    "units: ustar 'cm s-1' (values m s-1)": lambda t: _set(t, "input.units", "ustar",
+                                                            '"cm s-1"'),
+    "units: tair 'degC'": lambda t: _set(t, "input.units", "tair", '"degC"'),
+    "events 2021-06-05T14:00": lambda t: _set(t, "processing", "events",
+                                               '["2021-06-05T14:00"]'),
+    "events 2020-06-05 (last year's)": lambda t: _set(t, "processing", "events",
+                                                       '["2020-06-05"]'),
+    "year_start 2021-01-01 (with a year)": lambda t: _set(t, "processing", "year_start",
+                                                           '"2021-01-01"'),
+    "gapfill_max_window_days 1344 (records)": lambda t: _set(
+        t, "processing", "gapfill_max_window_days", "1344"),
+    "rref_window_days 192 (records)": lambda t: _set(t, "processing", "rref_window_days",
+                                                     "192"),
+    "daytime_window_days 192 (records)": lambda t: _set(t, "processing",
+                                                        "daytime_window_days", "192"),
+    "despike_block_days 624 (records)": lambda t: _set(t, "processing",
+                                                       "despike_block_days", "624"),
+    "e0_window_days 720 (records)": lambda t: _set(t, "processing", "e0_window_days", "720"),
+    "gapfill_interpolation_hours 4 (records)": lambda t: _set(
+        t, "processing", "gapfill_interpolation_hours", "4"),
+    "ustar_scenarios [2.5, 50, 97.5]": lambda t: _set(t, "processing", "ustar_scenarios",
+                                                      "[2.5, 50, 97.5]"),
+    "ustar_scenarios [5, 50, 95]": lambda t: _set(t, "processing", "ustar_scenarios",
+                                                  "[5, 50, 95]"),
+    "ustar_plateau_reference 25 (percent)": lambda t: _set(
+        t, "processing", "ustar_plateau_reference", "25"),
+    "rg_relative_margin 20 (percent)": lambda t: _set(t, "processing", "rg_relative_margin",
+                                                      "20"),
+    "ustar_correlation_limit 40 (percent)": lambda t: _set(
+        t, "processing", "ustar_correlation_limit", "40"),
+    "missing -9999 (not a list)": lambda t: _set(t, "input", "missing", "-9999"),
+    "flag_accept ['0'] (text)": lambda t: _set(t, "input", "flag_accept", '["0"]'),
+    "random_error_draws 10": lambda t: _set(t, "processing", "random_error_draws", "10"),
+    "utc_offset 1 and time_zone UTC": lambda t: _set(t, "input", "time_zone", '"UTC"'),
+    "agreement_margin 0.15": lambda t: _set(t, "processing", "agreement_margin", "0.15"),
+    "time_marks start (end stamps)": lambda t: _set(t, "input", "time_marks", '"start"'),
+    "time_marks middle (end stamps)": lambda t: _set(t, "input", "time_marks", '"middle"'),
+    "utc_offset 0 with clock_check off": lambda t: _set(_set(t, "site", "utc_offset", "0"),
+                                                        "processing", "clock_check", '"off"'),
+    "units: nee 'mg CO2 m-2 s-1' (values µmol)": lambda t: _set(t, "input.units", "nee",
+                                                                '"mg CO2 m-2 s-1"'),
+    "units: rg 'kW m-2' (values W m-2)": lambda t: _set(t, "input.units", "rg", '"kW m-2"'),
+    "units: vpd declaration dropped (kPa read as hPa)": lambda t: t.replace(
+        '[input.units]\nvpd = "kPa"\n', '[input.units]\n'),
+    "flag_accept [1] (flag read inverted)": lambda t: _set(t, "input", "flag_accept", "[1]"),
+    "canopy tall on the grassland": lambda t: _set(t, "site", "canopy", '"tall"'),
+    "e0_fallback 100": lambda t: _set(t, "processing", "e0_fallback", "100"),
+    "night_rg_threshold 20 (PPFD's compensation point)": lambda t: _set(
+        t, "processing", "night_rg_threshold", "20"),
 }
 
 #: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
@@ -174,10 +236,29 @@ def print_outcome(name: str, outcome, clean_warnings, base) -> None:
     sys.stdout.flush()
 
 
+def print_use_mistakes(result) -> None:
+    """How wrong a user's own number is where the result is used wrongly (round
+    mistakes48): the daily sigmas added in quadrature for an annual one, and the time
+    series' ``nee`` (as read, with its gaps) summed for a budget."""
+    annual = result.annual.iloc[0]
+    for flux in SUMS:
+        days = float(np.sqrt((result.daily[f"{flux}_sigma"] ** 2).sum()))
+        total = annual[f"{flux}_uncertainty_total"]
+        print(f"use: {flux} daily sigmas in quadrature {days:.1f} against the annual "
+              f"{total:.1f} g C m-2 (x{total / days:.1f})")
+    series = result.timeseries
+    grams = float(series.index.to_series().diff().median().total_seconds()) * 12.011e-6
+    print(f"use: time series nee summed (gaps skipped) {series['nee'].sum() * grams:.1f}, "
+          f"its mean times the records {series['nee'].mean() * len(series) * grams:.1f}, "
+          f"against the annual {annual['nee']:.1f} g C m-2")
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--only", nargs="*", default=None)
     parser.add_argument("--maize", action="store_true", help="the maize logger example")
+    parser.add_argument("--use", action="store_true",
+                        help="also the use mistakes on the clean run (round mistakes48)")
     args = parser.parse_args(argv)
     example = MAIZE if args.maize else EXAMPLE
     cases = MAIZE_CASES if args.maize else CASES
@@ -190,6 +271,8 @@ def main(argv=None) -> int:
         base = clean.annual.iloc[0]
         print("clean:", ", ".join(f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})"
                                    for s in SUMS))
+        if args.use:
+            print_use_mistakes(clean)
         for name, edit in cases.items():
             if args.only and not any(o in name for o in args.only):
                 continue
