@@ -313,7 +313,8 @@ for _flux in _FLUXES:
         f"{_TOTAL_PARTS[_flux]}); {_NOT_COVERED}")
     UNCERTAINTY_COLUMNS[f"{_flux}_sigma"] = (
         CARBON, f"1 sigma: total uncertainty of the {_flux} sum of the period (carbon; "
-        f"{_TOTAL_PARTS[_flux]}); {_NOT_COVERED}; "
+        f"combining the parts the annual table states per budget year ({_TOTAL_PARTS[_flux]}), "
+        f"which are not written per period); {_NOT_COVERED}; "
         + _SHARED_BETWEEN_PERIODS.format(flux=_flux))
     for _end, _sign, _word in (("low", "-", "lower"), ("high", "+", "upper")):
         UNCERTAINTY_COLUMNS[f"{_flux}_ci95_{_end}"] = (

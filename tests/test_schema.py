@@ -221,8 +221,14 @@ def test_each_total_names_every_part_it_adds(written_demo):
     annual = written_demo[0].annual
     for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
         text = describe("annual", f"{flux}_uncertainty_total")[1]
+        # the period's sigma names the same parts, as parts of the annual table (polish50)
+        total_after = text.split("(carbon; ")[1]
+        parts = schema._TOTAL_PARTS[flux]
+        assert total_after.startswith(parts + "); ")
         assert describe("daily", f"{flux}_sigma")[1].split("(carbon; ")[1].split(
-            "; the errors of neighbouring periods")[0] == text.split("(carbon; ")[1]
+            "; the errors of neighbouring periods")[0] == (
+            f"combining the parts the annual table states per budget year ({parts}), which "
+            f"are not written per period); {total_after[len(parts) + 3:]}")
         named = re.findall(r"\(((?:gpp|reco)\w*_uncertainty_\w+)\)", text)
         method = flux.split("_")[1]
         form = ("reco_uncertainty_respiration_form" if method == "nighttime"
