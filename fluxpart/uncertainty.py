@@ -1060,6 +1060,11 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
     ----------
     errors : pandas.DataFrame
         From :func:`artificial_gap_errors`.
+    records_per_day : int, optional
+        Records per day. Given, the long gaps' shared error is fitted per length
+        class and the short gaps' model from gaps of at most a day (Notes, "Length
+        classes"); None (default): one class of long gaps, the short gaps' model
+        from the rounds' gaps of every length (as before gaplength50).
 
     Returns
     -------
@@ -1067,9 +1072,10 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
         Indexed by ``record_class`` (``night``, ``day``): ``bias`` (mean fill
         error per record [µmol m-2 s-1]), ``bias_se`` (its standard error),
         ``independent_variance`` a, ``correlated_variance`` b,
-        ``correlated_variance_long`` b for gaps longer than one day and
-        ``neighbour_covariance`` c [(µmol m-2 s-1)²], ``gaps`` and ``records``
-        scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
+        ``correlated_variance_long``, ``_weeks``, ``_months`` b_long and
+        ``block_covariance_long``, ``_weeks``, ``_months`` d for gaps of 1-7,
+        7-28 and over 28 days, ``neighbour_covariance`` c [(µmol m-2 s-1)²],
+        ``gaps`` and ``records`` scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
         scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
         [1] (the same in both rows). A class without scores gets NaN.
 
@@ -1126,6 +1132,28 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
       other state, so its fills can understate the truth.
 
     Measured in the contributor guide (changelog 0.13.0).
+
+    *Length classes* (since gaplength50, with `records_per_day`). A block of a
+    gap of a few days is filled from donors days away, a block in the middle of
+    a gap of months from the mean diurnal course of other seasons, so its shared
+    error is larger (Richardson & Hollinger 2007: the error grows with the gap's
+    length). One b_long and d for every long gap let a site's longest outage set
+    them for all: a 100-day outage of every sensor on a known-truth tundra
+    record raised the day class's b_long from 0.08 to 1.23 (µmol m-2 s-1)² and
+    d from 0.04 to 0.49, and with them the NEE interval of a year after the
+    outage, with no long gap of its own, from ±6.4 to ±12.1 g C m-2 (trial 23).
+    The long gaps are therefore split by the length of the gap into days (1-7),
+    weeks (7-28) and months (over 28 days; ``_GAP_CLASS_DAYS``: the first donor
+    window and the widest window of quality A of the fill), each class's b_long
+    and d scored on the blocks of the artificial gaps of its own lengths
+    (:func:`_long_class_variances`); a real gap takes its class's. b_long is at
+    least the next shorter class's (the days class's at least b); a class
+    without blocks of its own takes the next shorter class's values, never a
+    longer one's. ρ_long stays one value over all long blocks. The rounds of
+    gaps of every length draw long gaps too (a 100-day gap in 8 of 12 rounds on
+    that record); a, b, c, ρ and the bias then come from their gaps of at most a
+    day, which are the gaps a and b are used for (that outage had raised the
+    day class's b from 0.06 to 0.98 and its bias's standard error tenfold).
 
     Night and day records of one gap (or 7-day block) share their errors with
     correlation ρ (short gaps) and ρ_long (the blocks of gaps longer than a day):
@@ -2308,7 +2336,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         site's own long lengths, which since 0.9.0 also lack the drivers their
         real gaps lacked), plus d per pair of records in different blocks of the
         gap, and in both each record counted by the size of its fill,
-        max(|fill| / r, 1) (since 0.13.0; :func:`gapfill_error_model`);
+        max(|fill| / r, 1) (since 0.13.0; :func:`gapfill_error_model`); b_long
+        and d of the gap's length class, 1-7, 7-28 or over 28 days (since
+        gaplength50);
       * the night and the day records of one gap or block share their errors
         with the correlation ρ the artificial gaps show (since 0.9.0; fully
         before): b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d;
