@@ -1150,7 +1150,7 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
     least the next shorter class's (the days class's at least b); a class
     without blocks of its own takes the next shorter class's values, never a
     longer one's. ρ_long stays one value over all long blocks. The rounds of
-    gaps of every length draw long gaps too (a 100-day gap in 8 of 12 rounds on
+    gaps of every length draw long gaps too (a 100-day gap in 7 of 12 rounds on
     that record); a, b, c, ρ and the bias then come from their gaps of at most a
     day, which are the gaps a and b are used for (that outage had raised the
     day class's b from 0.06 to 0.98 and its bias's standard error tenfold).
