@@ -1075,8 +1075,8 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
         ``correlated_variance_long``, ``_weeks``, ``_months`` b_long and
         ``block_covariance_long``, ``_weeks``, ``_months`` d for gaps of 1-7,
         7-28 and over 28 days, ``neighbour_covariance`` c [(µmol m-2 s-1)²],
-        ``gaps`` and ``records`` scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
-        scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
+        ``gaps`` and ``records`` scored, ``long_gap_blocks`` (7-day blocks of
+        the gaps longer than one day scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
         [1] (the same in both rows). A class without scores gets NaN.
 
     Notes
@@ -1139,8 +1139,9 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
     error is larger (Richardson & Hollinger 2007: the error grows with the gap's
     length). One b_long and d for every long gap let a site's longest outage set
     them for all: a 100-day outage of every sensor on a known-truth tundra
-    record raised the day class's b_long from 0.08 to 1.23 (µmol m-2 s-1)² and
-    d from 0.04 to 0.49, and with them the NEE interval of a year after the
+    record raised the day class's b_long from 0.075 to 0.81 (µmol m-2 s-1)² (the
+    blocks of its 100-day artificial gaps alone: 1.23) and d from 0.045 to 0.46,
+    and with them the NEE interval of a year after the
     outage, with no long gap of its own, from ±6.4 to ±12.1 g C m-2 (trial 23).
     The long gaps are therefore split by the length of the gap into days (1-7),
     weeks (7-28) and months (over 28 days; ``_GAP_CLASS_DAYS``: the first donor
