@@ -351,11 +351,20 @@ RANDOM_ERROR_MODEL_COLUMNS: dict[str, tuple[str, str]] = {
     "correlated_variance": ("umol2 m-4 s-2", "gap filling: error variance shared by every "
                             "record of a gap (b in a n + b n^2)"),
     "correlated_variance_long": ("umol2 m-4 s-2", "gap filling: error variance shared by "
-                                 "every record of a gap longer than one day (b for such gaps, "
-                                 "scored on artificial gaps of the site's own long gap lengths)"),
+                                 "every record of a 7-day block of a gap of 1 to 7 days (b for "
+                                 "such gaps, scored on artificial gaps of the site's own gap "
+                                 "lengths of 1 to 7 days)"),
     "block_covariance_long": ("umol2 m-4 s-2", "gap filling: error covariance of two filled "
                               "records of one class in different 7-day blocks of one gap "
-                              "longer than one day"),
+                              "of 1 to 7 days (0: such a gap is one block)"),
+    "correlated_variance_weeks": ("umol2 m-4 s-2", "gap filling: as correlated_variance_long, "
+                                  "for gaps of 7 to 28 days"),
+    "block_covariance_weeks": ("umol2 m-4 s-2", "gap filling: as block_covariance_long, for "
+                               "gaps of 7 to 28 days"),
+    "correlated_variance_months": ("umol2 m-4 s-2", "gap filling: as correlated_variance_long, "
+                                   "for gaps longer than 28 days"),
+    "block_covariance_months": ("umol2 m-4 s-2", "gap filling: as block_covariance_long, for "
+                                "gaps longer than 28 days"),
     "size_reference_long": (FLUX, "gap filling: the class's mean |NEE| over its measured records; "
                             "in a gap longer than one day a fill counts max(|fill| / this, 1) "
                             "in the shared error (CO2)"),

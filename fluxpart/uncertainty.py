@@ -162,6 +162,16 @@ _TIME_OF_DAY_BATCHES = 200
 #: gap-filling flow chart, workshop slides 2004), so fills that close draw on
 #: overlapping donors and conditions.
 _NEIGHBOUR_DAYS = 7.0
+#: Length classes of the gaps longer than a day [days]: up to 7 (days), up to 28 (weeks),
+#: longer (months); each class's shared fill error is scored on the artificial gaps of
+#: its own lengths (:func:`gapfill_error_model`, Notes). 7 days: the first donor window
+#: of marginal distribution sampling (``_NEIGHBOUR_DAYS``), a gap within it lies in one
+#: 7-day block; 28 days: the widest full window of quality A (Reichstein, gap-filling
+#: flow chart, workshop slides 2004; :data:`fluxpart.gapfill.QUALITY_A_WINDOW_DAYS`):
+#: the middle of a longer gap lies more than 14 days from any measured NEE and is filled
+#: from other weeks or seasons.
+_GAP_CLASS_DAYS = (7.0, 28.0)
+_LONG_CLASSES = ("long", "weeks", "months")   # column suffixes of the classes, shortest first
 #: Confidence level of the stated intervals (DESIGN.md §4.1).
 CONFIDENCE = 0.95
 #: How the stated intervals were checked, for the manifest and the report: measured by
@@ -1044,13 +1054,18 @@ def artificial_gap_seed(nee_measured) -> int:
     return int.from_bytes(digest[:8], "little")
 
 
-def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
+def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFrame:
     """Fit the error of gap-filled sums from artificial-gap scores.
 
     Parameters
     ----------
     errors : pandas.DataFrame
         From :func:`artificial_gap_errors`.
+    records_per_day : int, optional
+        Records per day. Given, the long gaps' shared error is fitted per length
+        class and the short gaps' model from gaps of at most a day (Notes, "Length
+        classes"); None (default): one class of long gaps, the short gaps' model
+        from the rounds' gaps of every length (as before gaplength50).
 
     Returns
     -------
@@ -1058,10 +1073,11 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
         Indexed by ``record_class`` (``night``, ``day``): ``bias`` (mean fill
         error per record [µmol m-2 s-1]), ``bias_se`` (its standard error),
         ``independent_variance`` a, ``correlated_variance`` b,
-        ``correlated_variance_long`` b for gaps longer than one day and
-        ``neighbour_covariance`` c [(µmol m-2 s-1)²], ``gaps`` and ``records``
-        scored, ``long_gap_blocks`` (7-day blocks of the gaps longer than one day
-        scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
+        ``correlated_variance_long``, ``_weeks``, ``_months`` b_long and
+        ``block_covariance_long``, ``_weeks``, ``_months`` d for gaps of 1-7,
+        7-28 and over 28 days, ``neighbour_covariance`` c [(µmol m-2 s-1)²],
+        ``gaps`` and ``records`` scored, ``long_gap_blocks`` (7-day blocks of
+        the gaps longer than one day scored), ``day_night_correlation`` and ``day_night_correlation_long`` ρ
         [1] (the same in both rows). A class without scores gets NaN.
 
     Notes
@@ -1118,6 +1134,29 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
 
     Measured in the contributor guide (changelog 0.13.0).
 
+    *Length classes* (since gaplength50, with `records_per_day`). A block of a
+    gap of a few days is filled from donors days away, a block in the middle of
+    a gap of months from the mean diurnal course of other seasons, so its shared
+    error is larger (Richardson & Hollinger 2007: the error grows with the gap's
+    length). One b_long and d for every long gap let a site's longest outage set
+    them for all: a 100-day outage of every sensor on a known-truth tundra
+    record raised the day class's b_long from 0.075 to 0.81 (µmol m-2 s-1)² (the
+    blocks of its 100-day artificial gaps alone: 1.23) and d from 0.045 to 0.46,
+    and with them the NEE interval of a year after the
+    outage, with no long gap of its own, from ±6.4 to ±12.1 g C m-2 (trial 23).
+    The long gaps are therefore split by the length of the gap into days (1-7),
+    weeks (7-28) and months (over 28 days; ``_GAP_CLASS_DAYS``: the first donor
+    window and the widest window of quality A of the fill), each class's b_long
+    and d scored on the blocks of the artificial gaps of its own lengths
+    (:func:`_long_class_variances`); a real gap takes its class's. b_long is at
+    least the next shorter class's (the days class's at least b); a class
+    without blocks of its own takes the next shorter class's values, never a
+    longer one's. ρ_long stays one value over all long blocks. The rounds of
+    gaps of every length draw long gaps too (a 100-day gap in 7 of 12 rounds on
+    that record); a, b, c, ρ and the bias then come from their gaps of at most a
+    day, which are the gaps a and b are used for (that outage had raised the
+    day class's b from 0.06 to 0.98 and its bias's standard error tenfold).
+
     Night and day records of one gap (or 7-day block) share their errors with
     correlation ρ (short gaps) and ρ_long (the blocks of gaps longer than a day):
     the shared variance of a gap with n_n night and n_d day records is
@@ -1157,54 +1196,95 @@ def gapfill_error_model(errors: pd.DataFrame) -> pd.DataFrame:
     if not needed <= set(errors.columns):
         raise MissingColumnError(f"gapfill_error_model: errors lack {sorted(needed - set(errors.columns))}; "
                                  "build them with artificial_gap_errors")
-    rows = {}
+    rows, pooled = {}, {}
     long = errors["long"].to_numpy(dtype=bool) if "long" in errors else np.zeros(len(errors), bool)
+    length_class = np.zeros(len(errors), dtype=int)
+    short = ~long
+    if records_per_day and "length" in errors:
+        days = errors["length"].to_numpy(dtype=float) / float(records_per_day)
+        length_class = np.searchsorted(_GAP_CLASS_DAYS, days, side="left")
+        if long.any():              # the rounds of long gaps model the gaps longer than a day
+            short = ~long & (days <= 1.0)
     for name in ("night", "day"):
         in_class = (errors["record_class"] == name).to_numpy()
-        part, long_part = errors[in_class & ~long], errors[in_class & long]
+        part, long_part = errors[in_class & short], errors[in_class & long]
         count = part["records"].to_numpy(dtype=float)
         total = part["error_sum"].to_numpy(dtype=float)
         if count.sum() < _GAP_MIN_RECORDS or len(part) < 3:
             rows[name] = {"bias": np.nan, "bias_se": np.nan, "independent_variance": np.nan,
-                          "correlated_variance": np.nan, "correlated_variance_long": np.nan,
-                          "block_covariance_long": np.nan, "size_reference_long": np.nan,
+                          "correlated_variance": np.nan,
+                          **{f"{kind}_{label}": np.nan for label in _LONG_CLASSES
+                             for kind in ("correlated_variance", "block_covariance")},
+                          "size_reference_long": np.nan,
                           "neighbour_covariance": np.nan, "gaps": len(part),
                           "records": int(count.sum()), "long_gap_blocks": len(long_part)}
+            pooled[name] = np.nan
             continue
         bias = total.sum() / count.sum()
         centred = total - bias * count
         # unknown noise (no random-error model) is not subtracted: a and b then hold it too
         excess = np.square(centred) - np.nan_to_num(part["noise_variance"].to_numpy(dtype=float))
         a, b = _nonnegative_line_fit(count, excess / count)
-        b_long, reference = b, np.nan
-        if len(long_part):
-            long_count = long_part["records"].to_numpy(dtype=float)
-            long_excess = np.square(long_part["error_sum"].to_numpy(dtype=float)
-                                    - bias * long_count) \
-                - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) \
-                - a * long_count
-            if "size_reference" in long_part:
-                reference = float(long_part["size_reference"].iloc[0])
-            b_long = max(float(long_excess.sum()
-                               / np.square(_size_records(long_part)).sum()), b)
-        between = _between_block_covariance(long_part, bias)
+        reference = float(long_part["size_reference"].iloc[0]) \
+            if len(long_part) and "size_reference" in long_part else np.nan
+        pooled[name] = _long_shared_variance(long_part, bias, a, b)
         rows[name] = {"bias": float(bias),
                       "bias_se": float(np.sqrt(np.square(centred).sum()) / count.sum()),
                       "independent_variance": float(a), "correlated_variance": float(b),
-                      "correlated_variance_long": b_long,
-                      "block_covariance_long": min(between, b_long),
+                      **_long_class_variances(long_part, length_class[in_class & long],
+                                              bias, a, b),
                       "size_reference_long": reference,
                       "neighbour_covariance": _neighbour_covariance(part, bias),
                       "gaps": len(part), "records": int(count.sum()),
                       "long_gap_blocks": len(long_part)}
     table = pd.DataFrame.from_dict(rows, orient="index")
     table.index.name = "record_class"
-    for is_long, variance, column in ((False, "correlated_variance", "day_night_correlation"),
-                                      (True, "correlated_variance_long",
-                                       "day_night_correlation_long")):
-        table[column] = _day_night_correlation(errors[long == is_long], table["bias"],
-                                               table[variance], sized=is_long)
+    # ρ_long of all long gaps together, scaled by their pooled shared variance
+    for is_long, variance, column in ((False, table["correlated_variance"],
+                                       "day_night_correlation"),
+                                      (True, pd.Series(pooled), "day_night_correlation_long")):
+        table[column] = _day_night_correlation(errors[long if is_long else short],
+                                               table["bias"], variance, sized=is_long)
     return table
+
+
+def _long_shared_variance(long_part: pd.DataFrame, bias: float, a: float, b: float) -> float:
+    """Shared variance b_long per (size-counted) record pair of a 7-day block of a long gap.
+
+    ``Σ((S − bias·m)² − Σσ² − a·m) / Σm²`` over the blocks (m counted by the size of
+    their fills, :func:`_size_records`), at least the short gaps' b; b without blocks.
+    See :func:`gapfill_error_model`, Notes.
+    """
+    if long_part.empty:
+        return float(b)
+    count = long_part["records"].to_numpy(dtype=float)
+    excess = np.square(long_part["error_sum"].to_numpy(dtype=float) - bias * count) \
+        - np.nan_to_num(long_part["noise_variance"].to_numpy(dtype=float)) - a * count
+    return max(float(excess.sum() / np.square(_size_records(long_part)).sum()), float(b))
+
+
+def _long_class_variances(long_part: pd.DataFrame, length_class, bias: float, a: float,
+                          b: float) -> dict:
+    """b_long and the between-block covariance d of each length class of the long gaps.
+
+    Columns ``correlated_variance_<class>`` and ``block_covariance_<class>`` for the
+    classes of ``_LONG_CLASSES`` (gaps of 1-7, 7-28 and over 28 days, ``_GAP_CLASS_DAYS``),
+    each from the blocks of the artificial gaps of its own lengths
+    (:func:`_long_shared_variance`, :func:`_between_block_covariance`, d within
+    [0, b_long]). b_long is at least the next shorter class's (the shortest's at least
+    the short gaps' b): a fill's error grows with its distance from the donors
+    (Richardson & Hollinger 2007). A class without its own blocks takes the next shorter
+    class's values, never a longer one's.
+    """
+    out, shared, between = {}, float(b), 0.0
+    for number, label in enumerate(_LONG_CLASSES):
+        own = long_part[np.asarray(length_class) == number]
+        if len(own):
+            shared = _long_shared_variance(own, bias, a, shared)
+            between = min(_between_block_covariance(own, bias), shared)
+        out[f"correlated_variance_{label}"] = shared
+        out[f"block_covariance_{label}"] = between
+    return out
 
 
 def _fill_size(fill, reference) -> np.ndarray:
@@ -2258,7 +2338,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         site's own long lengths, which since 0.9.0 also lack the drivers their
         real gaps lacked), plus d per pair of records in different blocks of the
         gap, and in both each record counted by the size of its fill,
-        max(|fill| / r, 1) (since 0.13.0; :func:`gapfill_error_model`);
+        max(|fill| / r, 1) (since 0.13.0; :func:`gapfill_error_model`); b_long
+        and d of the gap's length class, 1-7, 7-28 or over 28 days (since
+        gaplength50);
       * the night and the day records of one gap or block share their errors
         with the correlation ρ the artificial gaps show (since 0.9.0; fully
         before): b_n n_n² + b_d n_d² + 2ρ √(b_n b_d) n_n n_d;
@@ -2429,11 +2511,16 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
                                ("size_reference_long", np.nan)):  # before 0.13.0
             if column not in model:
                 model = model.assign(**{column: before})
+        for label in _LONG_CLASSES[1:]:    # model tables from before gaplength50: one long class
+            for kind in ("correlated_variance", "block_covariance"):
+                if f"{kind}_{label}" not in model:
+                    model = model.assign(**{f"{kind}_{label}": model[f"{kind}_long"]})
         night_day = model.reindex(["night", "day"])        # one row per class, night first
         by_class = {name: night_day[name].to_numpy(dtype=float)
                     for name in ("bias", "bias_se", "independent_variance", "correlated_variance",
-                                 "correlated_variance_long", "neighbour_covariance",
-                                 "block_covariance_long", "size_reference_long")}
+                                 "neighbour_covariance", "size_reference_long",
+                                 *(f"{kind}_{label}" for label in _LONG_CLASSES
+                                   for kind in ("correlated_variance", "block_covariance")))}
         pick = {name: np.where(night, values[0], values[1]) for name, values in by_class.items()}
         # a model table from before 0.9.0 has no correlations: fully shared, as then
         correlation, correlation_long = (
@@ -2442,7 +2529,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
 
         def fill_variance(records):
             independent = per_period(np.where(records, pick["independent_variance"], 0.0))
-            shared = np.where(long_gap, pick["correlated_variance_long"],
+            shared = np.where(long_gap, by_length("correlated_variance"),
                               pick["correlated_variance"])
             root = np.where(records, np.sqrt(shared) * size, 0.0)
             # per block, N = Σ night √b and D = Σ day √b share N² + D² + 2ρND
@@ -2457,7 +2544,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
             # classes mixed with the same ρ_long; Σ over the gap minus Σ over its blocks
             # leaves the pairs of different blocks
             spread = np.where(records & long_gap,
-                              np.sqrt(pick["block_covariance_long"]) * size, 0.0)
+                              np.sqrt(by_length("block_covariance")) * size, 0.0)
             mixed = spread * np.sqrt(1.0 - correlation_long)
 
             def pairs_within(groups):
@@ -2484,6 +2571,13 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         records_per_day = _MINUTES_PER_DAY // int(interval_minutes)
         gap_length = np.bincount(gap_id[filled], minlength=1)     # minlength: no filled record
         long_gap = filled & (gap_length[np.maximum(gap_id, 0)] > records_per_day)
+        # the length class of each record's gap (days, weeks, months; _GAP_CLASS_DAYS)
+        length_class = np.searchsorted(
+            _GAP_CLASS_DAYS, gap_length[np.maximum(gap_id, 0)] / records_per_day, side="left")
+
+        def by_length(kind):
+            return np.choose(length_class, [pick[f"{kind}_{label}"] for label in _LONG_CLASSES])
+
         # a gap of a day or less is one block; a longer one shares its error by 7-day blocks
         block_id = _block_ids(filled, int(_NEIGHBOUR_DAYS * records_per_day))
         donor_noise = _donor_noise(inputs, codes, filled, interval_minutes)

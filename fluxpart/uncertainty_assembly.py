@@ -153,7 +153,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
                                         values_only=True, sun_up=sun_up),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
         conditions_missing=conditions.isna().to_numpy())
-    gapfill_model = uncertainty.gapfill_error_model(gap_errors)
+    gapfill_model = uncertainty.gapfill_error_model(gap_errors, records_per_day=24 * 60 // interval)
     # each long gap filled from one side only: a change of the canopy within it
     sides = gap_sides.one_sided_fills(
         nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,

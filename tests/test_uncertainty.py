@@ -835,6 +835,46 @@ def test_long_gaps_get_their_own_shared_variance_by_week_blocks():
     assert alone["correlated_variance_long"] == alone["correlated_variance"]
 
 
+
+def test_long_gap_classes_get_their_own_shared_variance_never_a_longer_ones():
+    """Known truth (invented): 7-day blocks of artificial gaps of 3, 14 and 100 days with
+    S = sqrt(b_k) m Z1 + sqrt(a m) Z2 recover each length class's b_k (days, weeks,
+    months; a gap's error grows with its length, Richardson & Hollinger 2007); a class
+    without blocks takes the next shorter class's value; a 100-day gap drawn in a round
+    of gaps of every length (``long`` False) leaves the short gaps' b alone once the
+    records per day are known. Without them, one pooled long class, as before."""
+    rng = np.random.default_rng(5)
+    short = _neighbour_rows(rng, 30, covariance=0.0).assign(record_class="night")
+    outage = pd.DataFrame({"round": 0, "gap": [999], "record_class": "night",
+                           "records": [4000], "length": [4800], "long": False,
+                           "error_sum": [4000 * 2.0], "noise_variance": 0.0, "start_day": 1.0})
+    frames = []
+    for number, (days, planted) in enumerate(((3, 0.01), (14, 0.03), (100, 0.5))):
+        m = rng.integers(50, 145 if days == 3 else 336, size=1500)
+        frames.append(pd.DataFrame({"round": 12 + number, "gap": np.arange(m.size),
+                                    "record_class": "night", "records": m,
+                                    "length": days * 48, "long": True,
+                                    "error_sum": np.sqrt(planted) * m * rng.standard_normal(m.size)
+                                    + np.sqrt(m) * rng.standard_normal(m.size),
+                                    "noise_variance": 0.0, "start_day": np.nan}))
+    rows = pd.concat([short, outage, *frames], ignore_index=True)
+    model = gapfill_error_model(rows, records_per_day=48).loc["night"]
+    for column, planted in (("correlated_variance_long", 0.01),
+                            ("correlated_variance_weeks", 0.03),
+                            ("correlated_variance_months", 0.5)):
+        assert model[column] == pytest.approx(planted, rel=0.15), column
+    alone = gapfill_error_model(short, records_per_day=48).loc["night"]
+    assert model["correlated_variance"] == alone["correlated_variance"]
+    assert model["bias"] == alone["bias"]
+    no_months = gapfill_error_model(pd.concat([short, *frames[:2]], ignore_index=True),
+                                    records_per_day=48).loc["night"]
+    assert no_months["correlated_variance_months"] == no_months["correlated_variance_weeks"]
+    assert no_months["block_covariance_months"] == no_months["block_covariance_weeks"]
+    pooled = gapfill_error_model(rows).loc["night"]
+    assert pooled["correlated_variance_long"] == pooled["correlated_variance_months"] \
+        == pooled["correlated_variance_weeks"] > 0.1
+    assert pooled["correlated_variance"] > 10 * alone["correlated_variance"]
+
 def test_artificial_gap_seed_is_fixed_by_the_measured_values_and_their_gaps():
     """The placement seed is a function of the series alone: equal series give equal
     seeds (a copy, another NaN object), a changed value or a moved gap another one, and
@@ -1066,6 +1106,41 @@ def test_period_gapfill_part_adds_the_covariance_of_different_blocks_of_one_gap(
     assert period_uncertainty(_filled_inputs(index, short, model), np.zeros(n, int), 30)[
         "nee_uncertainty_gapfill"].iloc[0] == alone["nee_uncertainty_gapfill"].iloc[0]
 
+
+
+def test_period_gapfill_part_takes_the_length_class_of_each_gap():
+    """Var(Σ errors) = Σ_i Σ_j cov(i, j) (elementary statistics): a 10-day gap (a weeks
+    gap, 30-min records) shares the weeks class's b and d over its blocks of 336 and
+    144 records, a 3-day gap (one block of 144) the days class's b; a model without
+    the weeks and months columns (before gaplength50) gives every long gap its one
+    long class."""
+    from fluxpart.uncertainty import period_uncertainty
+
+    index = pd.date_range("2021-06-01", periods=40 * 48, freq="30min")
+    n = len(index)
+    grams = 1800 * 12.011e-6
+    model = _error_model(correlated_variance_long=[0.01, 0.01],
+                         block_covariance_long=[0.0, 0.0],
+                         correlated_variance_weeks=[0.04, 0.04],
+                         block_covariance_weeks=[0.02, 0.02],
+                         correlated_variance_months=[0.5, 0.5],
+                         block_covariance_months=[0.3, 0.3], neighbour_covariance=[0.0, 0.0])
+    weeks = np.ones(n, dtype=bool)
+    weeks[100:100 + 480] = False
+    days = np.ones(n, dtype=bool)
+    days[100:100 + 144] = False
+    blocks = np.array([336.0, 144.0])
+    expected = {
+        "weeks": 0.04 * np.sum(blocks**2) + 0.02 * (blocks.sum()**2 - np.sum(blocks**2)),
+        "days": 0.01 * 144.0**2}
+    for name, measured in (("weeks", weeks), ("days", days)):
+        out = period_uncertainty(_filled_inputs(index, measured, model), np.zeros(n, int), 30)
+        assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(
+            np.sqrt(expected[name]) * grams, rel=1e-12), name
+    old = model.drop(columns=[c for c in model if c.endswith(("_weeks", "_months"))])
+    out = period_uncertainty(_filled_inputs(index, weeks, old), np.zeros(n, int), 30)
+    assert out["nee_uncertainty_gapfill"].iloc[0] == pytest.approx(
+        np.sqrt(0.01 * np.sum(blocks**2)) * grams, rel=1e-12)
 
 def test_long_gap_shared_error_grows_with_the_size_of_its_fills_not_below_typical():
     """Var(c Σ e) = c² Var(Σ e) (elementary statistics): in a 5-day gap (one block of

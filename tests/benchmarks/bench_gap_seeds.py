@@ -91,8 +91,10 @@ def placements(seed: int, count: int, rounds: int | None, use_demo: bool = False
         settings = {**gap_kwargs, "seed": placement}
         if rounds is not None:
             settings["rounds"] = rounds
-        model = uncertainty.gapfill_error_model(uncertainty.artificial_gap_errors(*gap_args,
-                                                                                  **settings))
+        # as the pipeline: the length classes of the long gaps need the records per day
+        model = uncertainty.gapfill_error_model(
+            uncertainty.artificial_gap_errors(*gap_args, **settings),
+            records_per_day=settings.get("records_per_day"))
         parts = uncertainty.period_uncertainty(dataclasses.replace(inputs, gapfill_model=model),
                                                keys, interval, **period_kwargs).loc[year]
         gapfill, bias, bias_se = (float(parts[c]) for c in (
