@@ -1291,6 +1291,14 @@ def _check_cluster_options(scheduler, workers) -> None:
     if scheduler and workers is not None:
         raise ConfigError("--workers applies to the local cluster only; with --scheduler "
                           "the cluster's own workers are used")
+    if not scheduler:
+        # before the output folder is made: an unusable scratch folder left a new, empty
+        # --out behind its error line (round faults41)
+        import dask
+
+        scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
+        if scratch:
+            raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
 
 
 def local_workers(workers, sites: int) -> int:
@@ -1351,9 +1359,6 @@ def _client(scheduler, workers, sites: int | None = None):
     # (see _start_method): 2 workers started and one demo site each, 5.2-6.2 -> 4.4-4.9 s
     # CPU of all processes (the imports paid once, not per worker); the wall time gains
     # less on an idle machine, where spawned workers import side by side on two cores.
-    scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
-    if scratch:
-        raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
     method = _start_method()
     saved = dict(os.environ)
     try:
