@@ -149,6 +149,9 @@ _POLL_SECONDS = 1.0
 #: (common practice); a cluster that scales from zero (adaptive, a job queue) may take
 #: longer, so this is a note, not a failure.
 _NO_WORKER_NOTE_SECONDS = 60.0
+#: Worker states in which a Dask worker starts no task (``distributed.core.Status``).
+_IDLE_WORKER_STATES = frozenset({"paused", "closing", "closing_gracefully", "closed",
+                                 "failed"})
 _CONNECT_TIMEOUT_SECONDS = 10
 #: How long the client waits for the workers to say which sites they run [s]. A worker's
 #: event loop answers within milliseconds; Dask itself warns of an event loop unresponsive
@@ -433,6 +436,11 @@ def _expand_sites(patterns, base: Path, network: Path | None = None) -> list[Pat
         elif full.is_file():
             matches = [full]
         else:
+            # a named pipe, a dangling link or a folder was "no such file" (round faults41)
+            kind = odd_entry(full) or ("a folder" if full.is_dir() else "")
+            if kind:
+                raise ConfigError(f"{where}: {str(full)!r} is {kind}; expected a site "
+                                  "config file")
             raise ConfigError(f"{where}: no such file {str(full)!r}"
                               f"{other_system_path_hint(pattern) or unicode_form_hint(full)}")
         for match in matches:
@@ -1283,6 +1291,14 @@ def _check_cluster_options(scheduler, workers) -> None:
     if scheduler and workers is not None:
         raise ConfigError("--workers applies to the local cluster only; with --scheduler "
                           "the cluster's own workers are used")
+    if not scheduler:
+        # before the output folder is made: an unusable scratch folder left a new, empty
+        # --out behind its error line (round faults41)
+        import dask
+
+        scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
+        if scratch:
+            raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
 
 
 def local_workers(workers, sites: int) -> int:
@@ -1343,9 +1359,6 @@ def _client(scheduler, workers, sites: int | None = None):
     # (see _start_method): 2 workers started and one demo site each, 5.2-6.2 -> 4.4-4.9 s
     # CPU of all processes (the imports paid once, not per worker); the wall time gains
     # less on an idle machine, where spawned workers import side by side on two cores.
-    scratch = scratch_folder_problem(dask.config.get("temporary-directory", None))
-    if scratch:
-        raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
     method = _start_method()
     saved = dict(os.environ)
     try:
@@ -2063,11 +2076,34 @@ def _running_now(client, timeout: float = _ASK_WORKERS_SECONDS) -> set:
 
 
 def _worker_count(client) -> int | None:
-    """How many workers the cluster has now; None where the scheduler cannot be asked."""
+    """How many workers of the cluster can start a site now; None where the scheduler
+    cannot be asked.
+
+    A worker Dask has paused (its process above ``distributed.worker.memory.pause``, 80 %
+    of its memory limit, e.g. ``dask worker --memory-limit`` below what fluxpart's imports
+    take) starts no task until its memory falls, which an idle worker's never does: a
+    batch on such workers waited without a word and without end (round faults41), as on
+    a cluster without workers. Closing workers count as gone.
+
+    References
+    ----------
+    Dask.distributed documentation, "Worker Memory Management": the pause threshold (m).
+    """
     try:
-        return len(client.nthreads())
+        workers = client.scheduler_info(n_workers=-1)["workers"].values()
+    except TypeError:       # a Dask release before scheduler_info(n_workers=)
+        try:
+            workers = client.scheduler_info()["workers"].values()
+        except Exception:
+            return None
     except Exception:  # a lost scheduler: the tasks' own failure tells
         return None
+    return sum(1 for worker in workers if _worker_can_run(worker.get("status")))
+
+
+def _worker_can_run(status) -> bool:
+    """A worker of this status (``scheduler_info``'s, a string or None) starts tasks."""
+    return str(status or "running").rsplit(".", 1)[-1] not in _IDLE_WORKER_STATES
 
 
 def _no_worker_note(since: float | None, now: float, address: str) -> str | None:
@@ -2101,10 +2137,12 @@ def _no_worker_note(since: float | None, now: float, address: str) -> str | None
     """
     if since is None or now - since < _NO_WORKER_NOTE_SECONDS:
         return None
-    return (f"note: the Dask cluster at {address} has had no worker for "
-            f"{now - since:.0f} s (all lost, or not yet started); the sites still to do "
-            "wait on its scheduler until a worker joins: start workers on it, or stop the "
-            "batch (Ctrl-C) and run it again later (finished sites are kept and skipped)")
+    return (f"note: the Dask cluster at {address} has had no worker able to start a site "
+            f"for {now - since:.0f} s (all lost, not yet started, or paused by Dask at their "
+            "memory limit: give workers more memory, e.g. `dask worker --memory-limit`); the "
+            "sites still to do wait on its scheduler until a worker can take them: start "
+            "workers on it, or stop the batch (Ctrl-C) and run it again later (finished "
+            "sites are kept and skipped)")
 
 
 def _run_tasks(client, sites, out: Path, force: bool, progress,
@@ -2202,16 +2240,23 @@ def _lost_site(outcome: SiteOutcome, error: BaseException) -> SiteOutcome:
     Dask retries such a task on other workers (``distributed.scheduler.allowed-failures``,
     3 by default) and then fails it with ``KilledWorker``; its traceback is the client's
     and tells nothing of the site. Said in the trade's words instead, without the trace:
-    the usual causes are the kernel's out-of-memory killer and a crash of native code.
+    the usual causes are the kernel's out-of-memory killer, Dask's nanny restarting a
+    worker above 95 % of its memory limit (``distributed.worker.memory.terminate``; an
+    existing cluster's ``dask worker --memory-limit`` below a site's need: it named only
+    ``--workers``, which such a cluster has not, round faults41) and a crash of native code.
+    Peak memory of ``run`` from ``bench_commands.py`` (DEVELOPERS.md, release 0.32.0).
     """
     if type(error).__name__ != "KilledWorker":
         return outcome
     from dataclasses import replace
 
     message = ("the worker process computing this site died each time it was tried (killed: "
-               "out of memory and the kernel's OOM killer, a kill -9, a crash of native "
-               "code); its folder keeps what an earlier run left (nothing half-written). "
-               "Run the batch again; if memory ran out, with fewer --workers")
+               "out of memory and the kernel's OOM killer or Dask's nanny at the worker's "
+               "memory limit, a kill -9, a crash of native code); its folder keeps what an "
+               "earlier run left (nothing half-written). Run the batch again; if memory ran "
+               "out, with fewer --workers (a local cluster) or workers given more memory "
+               "(`dask worker --memory-limit`; `run` peaks near 0.2 GB for one site-year, "
+               "0.5 GB for ten)")
     return replace(outcome, error="WorkerLostError", message=message,
                    note=f"WorkerLostError: {message}", traceback="")
 

@@ -2946,6 +2946,294 @@ def f_stop_while_waiting_for_lock():
                f"lock left {(W / '.swl.lock').exists()}")
 
 
+# ------------------------------------------------------------------ round faults41
+def _parquets(folder):
+    """Every Parquet file below `folder` by its relative path, with its bytes' digest."""
+    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(Path(folder).rglob("*.parquet"))}
+
+
+def _net_sites(out):
+    try:
+        done = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network; "
+                               "print(read_network(sys.argv[1]).site.nunique())", str(out)],
+                              env=ENV, capture_output=True, text=True, timeout=120)
+        return int(done.stdout.strip())
+    except ValueError:
+        return None
+
+
+def _seeded_net(sites=4, out_name="out"):
+    """:func:`make_net` with each site's own seed (distinct tables), `sites` sites."""
+    shutil.rmtree(NET, ignore_errors=True)
+    for i in range(sites):
+        site = f"s{i:02d}"
+        (NET / site).mkdir(parents=True)
+        shutil.copy2(W / "b" / "tower.csv", NET / site / "tower.csv")
+        text = (W / "b" / "site.toml").read_text().replace("seed = 0", f"seed = {i}")
+        (NET / site / f"{site}.toml").write_text(
+            text.replace("Quillmoor grassland (fictional)", f"Quillmoor {site} (fictional)"))
+    (NET / "sites.toml").write_text(f'[batch]\nsites = ["*/s*.toml"]\nout = "{out_name}"\n')
+
+
+THREADS_BATCH = """
+import sys
+from dask.distributed import LocalCluster
+from fluxpart.batch import run_batch
+if __name__ == "__main__":
+    with LocalCluster(processes=False, n_workers=1, threads_per_worker=2,
+                      dashboard_address=None) as cluster:
+        report = run_batch("sites.toml", scheduler=cluster.scheduler_address, out=sys.argv[1])
+    sys.exit(report.exit_code)
+"""
+
+
+def f_batch_same_bytes_as_run():
+    """Each Parquet file of 3 sites from ``batch`` against the same site's ``run``, and
+    every Parquet file (network tables too) of 2 process workers against 1, and against
+    one process of 2 threads (``LocalCluster(processes=False)`` through ``run_batch``)."""
+    _seeded_net(3)
+    two = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET, timeout=600)
+    shutil.move(NET / "out", NET / "out2")
+    one = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET, timeout=600)
+    shutil.move(NET / "out", NET / "out1")
+    (NET / "threads.py").write_text(THREADS_BATCH)
+    threads = subprocess.run([PY, "threads.py", "out_t"], env=ENV, cwd=NET,
+                             capture_output=True, text=True, timeout=600)
+    runs = {site: fp("run", f"{site}.toml", "--out", NET / f"run_{site}", "--quiet",
+                     cwd=NET / site).returncode for site in ("s00", "s01", "s02")}
+    differ = [f"{site}/{name}" for site in runs
+              for name, digest in _parquets(NET / f"run_{site}").items()
+              if _parquets(NET / "out2" / site).get(name) != digest]
+    base = _parquets(NET / "out2")
+    record("batch's Parquet files of 3 sites byte for byte their run's; 1 vs 2 workers; "
+           "threads vs processes", two.returncode == one.returncode == threads.returncode == 0
+           and set(runs.values()) == {0} and not differ and len(base) > 40
+           and _parquets(NET / "out1") == base and _parquets(NET / "out_t") == base,
+           f"exits {two.returncode}/{one.returncode}/{threads.returncode}, runs {runs}, "
+           f"{len(base)} files, differ from run {differ[:3]}, 1 worker same "
+           f"{_parquets(NET / 'out1') == base}, threads same {_parquets(NET / 'out_t') == base}")
+
+
+HUNG_OPEN = """
+import builtins, time
+_open = builtins.open
+def _hung(file, *args, **kwargs):
+    if "/hung/" in str(file) and str(file).endswith(".csv"):
+        time.sleep(10 ** 6)      # read(2) on a hard NFS mount that stopped answering
+    return _open(file, *args, **kwargs)
+builtins.open = _hung
+"""
+
+
+def f_batch_hung_site():
+    """A site whose input lies on a share that stopped answering (every ``open`` of it
+    blocks: a sitecustomize in the workers), ``--site-time-limit 0.3``: that site fails
+    with one line, the others are written whole and the network tables hold them."""
+    _seeded_net(3)
+    shutil.move(NET / "s01", NET / "hung")
+    hook = W / "hung_hook"
+    hook.mkdir(exist_ok=True)
+    (hook / "sitecustomize.py").write_text(HUNG_OPEN)
+    env = dict(ENV, PYTHONPATH=f"{hook}:{ENV['PYTHONPATH']}")
+    began = time.time()
+    done = fp("batch", "sites.toml", "--quiet", "--site-time-limit", "0.3", cwd=NET, env=env,
+              timeout=240)
+    lines = errlines(done)
+    codes = sites_verify(NET / "out")
+    record("a site on a hung mount under --site-time-limit 0.3", done.returncode == 1
+           and len(lines) == 1 and "SiteTimeLimitError" in lines[0] and "hung" in lines[0]
+           and codes == [0, 0] and _net_sites(NET / "out") == 2,
+           f"exit {done.returncode} after {time.time() - began:.0f} s, {lines!r:.200}, "
+           f"verify {codes}")
+
+
+def _external_cluster(port, *worker_args):
+    """A Dask scheduler on 127.0.0.1:`port` and one worker (`worker_args`), each in a
+    session of its own; returns the two processes once the worker has registered."""
+    dask = str(Path(PY).parent / "dask")
+    scheduler = subprocess.Popen([dask, "scheduler", "--host", "127.0.0.1", "--port",
+                                  str(port), "--dashboard-address", "127.0.0.1:0"], env=ENV,
+                                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                                 start_new_session=True)
+    time.sleep(4)
+    worker = subprocess.Popen([dask, "worker", f"tcp://127.0.0.1:{port}", "--nthreads", "1",
+                               "--nworkers", "1", "--preload", "fluxpart.batch", *worker_args],
+                              env=ENV, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                              start_new_session=True)
+    time.sleep(8)
+    return scheduler, worker
+
+
+def f_batch_worker_memory_limit():
+    """An existing cluster whose one worker has a memory limit below a site's need
+    (``dask worker --memory-limit 150MB``; fluxpart's imports alone take ~136 MiB): Dask
+    pauses it (above 80 %) or its nanny kills and restarts it (above 95 %). Held where
+    each site fails with one line naming the memory limit, or the batch says within
+    ~60 s that no worker can start a site (then stopped by ``timeout``)."""
+    _seeded_net(2)
+    scheduler, worker = _external_cluster(8937, "--memory-limit", "150MB")
+    try:
+        done = subprocess.run(["timeout", "100", PY, "-m", "fluxpart", "batch", "sites.toml",
+                               "--scheduler", "tcp://127.0.0.1:8937"], env=ENV, cwd=NET,
+                              capture_output=True, text=True, timeout=200)
+    finally:
+        for proc in (worker, scheduler):
+            os.killpg(proc.pid, signal.SIGTERM)
+            proc.wait(timeout=60)
+    lines = [x for x in done.stderr.splitlines() if not x.startswith("warning:")]
+    failed = [x for x in lines if x.startswith("error: site")]
+    noted = [x for x in lines if x.startswith("note:") and "paused" in x]
+    record("a worker whose memory limit is below one site's need (dask worker "
+           "--memory-limit 150MB)", "Traceback" not in done.stderr and (
+               (done.returncode == 1 and len(failed) == 2
+                and all("--memory-limit" in x for x in failed))
+               or (done.returncode == 124 and len(noted) == 1)),
+           f"exit {done.returncode}, {lines!r:.300}")
+
+
+def f_batch_thirty_sites():
+    """30 sites on 2 workers, the first failing at once (a latitude of 200) and the last
+    late (its record cut to 14.6 days: the E0 fit refuses it): every other folder whole,
+    each failure named once, in failures.parquet once, the network tables hold 28."""
+    _seeded_net(30)
+    first, last = NET / "s00" / "s00.toml", NET / "s29" / "tower.csv"
+    first.write_text(first.read_text().replace("latitude = 49.3", "latitude = 200"))
+    last.write_text("".join(last.read_text().splitlines(keepends=True)[:701]))
+    done = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET, timeout=900)
+    lines = errlines(done)
+    codes = sites_verify(NET / "out")
+    failures = subprocess.run([PY, "-c", "import pandas as pd; print(*pd.read_parquet("
+                               "'out/failures.parquet').site)"], env=ENV, cwd=NET,
+                              capture_output=True, text=True).stdout.split()
+    record("30 sites on 2 workers, one failing early and one late", done.returncode == 1
+           and len(lines) == 2 and "s00" in lines[0] and "s29" in lines[1]
+           and codes == [0] * 28 and failures == ["s00", "s29"]
+           and _net_sites(NET / "out") == 28 and not leftovers(NET / "out"),
+           f"exit {done.returncode}, {[x[:90] for x in lines]}, {len(codes)} verify "
+           f"{set(codes)}, failures {failures}")
+
+
+def f_batch_sites_file_edited():
+    """The network file rewritten (2 sites, another out) while its batch of 6 runs: the
+    batch keeps what it read at its start."""
+    _seeded_net(6)
+    proc = start("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+    deadline = time.time() + 120
+    while time.time() < deadline and proc.poll() is None and not (
+            (NET / "out").exists() and list((NET / "out").glob("*/manifest.json"))):
+        time.sleep(0.05)
+    (NET / "sites.toml").write_text('[batch]\nsites = ["s00/s00.toml", "s01/s01.toml"]\n'
+                                    'out = "other"\n')
+    out, err = proc.communicate(timeout=600)
+    codes = sites_verify(NET / "out")
+    record("the network file edited while its batch runs", proc.returncode == 0
+           and codes == [0] * 6 and _net_sites(NET / "out") == 6
+           and not (NET / "other").exists(),
+           f"exit {proc.returncode}, verify {codes}, other made {(NET / 'other').exists()}")
+
+
+def f_batch_two_at_once():
+    """Two batches of one network file into one output folder at once (the second with
+    --force): both end 0, every site verifies, the network tables are readable and whole."""
+    _seeded_net(4)
+    first = start("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+    second = start("batch", "sites.toml", "--quiet", "--workers", "1", "--force", cwd=NET)
+    errs = [proc.communicate(timeout=600)[1] for proc in (first, second)]
+    codes = sites_verify(NET / "out")
+    record("two batches into one output folder at once", first.returncode == 0
+           and second.returncode == 0 and codes == [0] * 4 and _net_sites(NET / "out") == 4
+           and not leftovers(NET / "out") and not any("Traceback" in e for e in errs),
+           f"exits {first.returncode}/{second.returncode}, verify {codes}, "
+           f"left {leftovers(NET / 'out')}")
+
+
+def f_batch_odd_network_path():
+    """The network file, its sites and its output all below a path with spaces and
+    letters beyond ASCII (``Netz Türme ü 2021/ré seau``, out ``Ergebnis ø [1]``)."""
+    global NET
+    saved, NET = NET, W / "Netz Türme ü 2021" / "ré seau"
+    try:
+        _seeded_net(3, "Ergebnis ø [1]")
+        done = fp("batch", "sites.toml", "--quiet", cwd=NET)
+        out = NET / "Ergebnis ø [1]"
+        codes = sites_verify(out) if out.exists() else []
+        record("a network on a path with spaces and non-ASCII letters", done.returncode == 0
+               and codes == [0] * 3 and _net_sites(out) == 3,
+               f"exit {done.returncode}, verify {codes}")
+    finally:
+        NET = saved
+
+
+def f_batch_long_site_name():
+    """A site config whose stem is 249 bytes long (the longest a .toml name allows): its
+    key is cut with a digest, its folder and partition fit NAME_MAX."""
+    _seeded_net(2)
+    (NET / "s00" / "s00.toml").rename(NET / "s00" / f"s{'x' * 248}.toml")
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET)
+    codes = sites_verify(NET / "out")
+    record("a site config named with 249 bytes", done.returncode == 0 and codes == [0, 0]
+           and _net_sites(NET / "out") == 2,
+           f"exit {done.returncode}, {errlines(done)[:1]}, verify {codes}")
+
+
+def f_batch_listed_config_not_a_file():
+    """A site config listed by path that is a named pipe, a dangling link or a folder: one
+    line naming what it is (before: "no such file"), exit 2, nothing made."""
+    seen = []
+    for kind in ("pipe", "link", "folder"):
+        _seeded_net(1)
+        entry = NET / "odd.toml"
+        if kind == "pipe":
+            os.mkfifo(entry)
+        elif kind == "link":
+            entry.symlink_to("/nonexistent/share/odd.toml")
+        else:
+            entry.mkdir()
+        (NET / "sites.toml").write_text('[batch]\nsites = ["s00/s00.toml", "odd.toml"]\n'
+                                        'out = "out"\n')
+        done = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=60)
+        seen.append((kind, one_line(done) and "no such file" not in done.stderr
+                     and not (NET / "out").exists(), errlines(done)[:1]))
+    record("a listed site config that is a pipe, a dangling link or a folder",
+           all(ok for _, ok, _ in seen), f"{[(k, ok, str(x)[-70:]) for k, ok, x in seen]}")
+
+
+def f_batch_scratch_unusable():
+    """Dask's local directory not usable (``DASK_TEMPORARY_DIRECTORY`` below a file, and
+    missing): one line, exit 2, and no new --out (before: an empty one was left)."""
+    _seeded_net(2)
+    seen = []
+    for scratch in (NET / "s00" / "tower.csv" / "dask", W / "no-such-scratch"):
+        done = fp("batch", "sites.toml", "--quiet", cwd=NET,
+                  env=dict(ENV, DASK_TEMPORARY_DIRECTORY=str(scratch)))
+        seen.append((one_line(done), (NET / "out").exists()))
+    record("Dask's local directory not usable", all(ok and not made for ok, made in seen),
+           f"(one line, out made) {seen}")
+
+
+def f_batch_killed_then_input_changed():
+    """kill -9 of a whole batch with a site written, one site's input edited, the batch
+    run again: the edited site is processed again ("input changed"), every site verifies
+    and the network tables hold all four."""
+    proc = batch_with_a_site_written()
+    os.killpg(proc.pid, signal.SIGKILL)
+    proc.communicate(timeout=60)
+    time.sleep(1)
+    fp("batch", "sites.toml", "--quiet", cwd=NET)            # finish what was killed
+    tower = NET / "b" / "tower.csv"
+    rows = tower.read_text().splitlines(keepends=True)
+    rows[600] = rows[600].replace(",0.", ",1.", 1)
+    tower.write_text("".join(rows))
+    again = fp("batch", "sites.toml", cwd=NET)
+    codes = sites_verify(NET / "out")
+    record("kill -9 of a batch, one site's input changed, the batch run again",
+           again.returncode == 0 and "1 processed, 3 up to date" in again.stdout
+           and "b-site (input changed)" in again.stdout and codes == [0] * 4
+           and _net_sites(NET / "out") == 4,
+           f"exit {again.returncode}, {again.stdout.splitlines()[:2]}, verify {codes}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -2985,7 +3273,12 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_home_read_only, f_tmpdir_missing_or_read_only, f_locale_printed_numbers,
           f_stdin_closed_run_batch, f_batch_ctrl_c_twice, f_batch_parent_killed,
           f_batch_external_scheduler_killed, f_parent_renamed_during_run,
-          f_stop_while_waiting_for_lock, f_stopped_twice, f_batch_stopped_at_network_tables]
+          f_stop_while_waiting_for_lock, f_stopped_twice, f_batch_stopped_at_network_tables,
+          # round faults41
+          f_batch_same_bytes_as_run, f_batch_hung_site, f_batch_worker_memory_limit,
+          f_batch_thirty_sites, f_batch_sites_file_edited, f_batch_two_at_once,
+          f_batch_odd_network_path, f_batch_long_site_name, f_batch_listed_config_not_a_file,
+          f_batch_scratch_unusable, f_batch_killed_then_input_changed]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
