@@ -448,8 +448,11 @@ class VerifyReport:
                     "see below)" if edited else
                     "the product's code differs from the code that wrote the result (code "
                     "fingerprint changed; see below)"))
-            if self.code_changed and not edited and not self.replaced_manifest \
-                    and not self.descriptions_only and self.source != "none":
+            values_differ = any(d.kind in ("value", "rounding", "more", "rows", "columns",
+                                           "table") and d.table != "manifest"
+                                for d in failures + list(self.rounding))
+            if self.code_changed and values_differ and not edited \
+                    and not self.replaced_manifest and self.source != "none":
                 # a 0.32.0 folder under newer code: 31 differing σ, intervals and model
                 # parameters, and no word of what they mean or what to do (review61)
                 lines.append(

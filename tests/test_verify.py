@@ -396,12 +396,18 @@ def test_newer_code_that_states_other_intervals_says_the_central_values_hold(
                          "the running release computes these values otherwise"),
                         (Difference("daily", "metadata", column="nee_sigma unit"),
                          "the running release computes these values otherwise"),
-                        (Difference("daily", "hash", column="daily.parquet"), None)):
+                        (Difference("daily", "hash", column="daily.parquet"), None),
+                        (Difference("input", "input", column="input", row="x.csv"),
+                         "the running release computes these values otherwise")):
         text = VerifyReport(out_dir, "run", differences=(sigma, extra),
                             code_changed=True).format()
         assert "every central value" not in text
         assert (said in text) if said else ("what this means" not in text)
     assert "what this means" not in VerifyReport(out_dir, "run", differences=(sigma,)).format()
+    # another input file: nothing recomputed, no word on what the code computes
+    other_input = Difference("input", "input", column="input", row="x.csv")
+    assert "what this means" not in VerifyReport(out_dir, "run", differences=(other_input,),
+                                                 code_changed=True).format()
 
 
 def test_the_copies_of_a_reworded_description_are_one_item_per_column(monkeypatch, capsys):
