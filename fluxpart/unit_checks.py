@@ -1034,7 +1034,8 @@ def _ustar_message(converted: dict, units: dict, columns: dict, interval_minutes
         return None
     return (f"column {columns.get('ustar', 'ustar')!r} (ustar, read as {declared!r}): its "
             f"median is {median:.4f} m s-1, where towers' friction velocity has a median of "
-            "0.2-0.7 m s-1 (below the canopy's u* floor, every night would be filtered); read as 'm s-1' the median is {as_canonical:.2f}: set [input.units] "
+            "0.2-0.7 m s-1 (below the canopy's u* floor, every night would be filtered); "
+            f"read as 'm s-1' the median is {as_canonical:.2f}: set [input.units] "
             "ustar = \"m s-1\" (or list ustar in [input] accept_units)")
 
 

@@ -134,6 +134,14 @@ _NAME_FIELDS = ("provenance.reader.files", "provenance.input.sha256")
 #: describe the release, not the result's numbers, so a difference is a note (review33:
 #: restating it made every earlier result "NOT reproduced" on this field alone).
 _RELEASE_FIELDS = ("provenance.uncertainty.checked",)
+#: Tables that hold only error models, and the column names that state an uncertainty
+#: (a sigma, a part of one, an interval's bound): where newer code changed only these,
+#: the verdict says the central values are reproduced (review61: a 0.32.0 folder under
+#: the code of gaplength50 listed 31 differences of σ, intervals and the gap-filling
+#: error model and said only that the code differs).
+_UNCERTAINTY_TABLES = ("parameters_gapfill_error_model", "parameters_random_error_model",
+                       "parameters_random_error_bins")
+_UNCERTAINTY_COLUMN = re.compile(r".*(sigma|uncertainty|ci95).*")
 
 
 @dataclass(frozen=True)
@@ -297,6 +305,40 @@ class VerifyReport:
             for d in self.differences)
 
     @property
+    def uncertainty_only(self) -> bool:
+        """True when values differ and every one that does states an uncertainty.
+
+        An uncertainty: a column of an error-model table (``_UNCERTAINTY_TABLES``) or
+        one named for a sigma, an uncertainty or a 95 % bound (``_UNCERTAINTY_COLUMN``),
+        and the manifest's list of an error-model table's columns; reworded
+        descriptions beside them change no number. Anything else (a central value, a
+        unit, rows, a file) makes it False.
+        """
+        def uncertain(table, column) -> bool:
+            return table in _UNCERTAINTY_TABLES or bool(
+                _UNCERTAINTY_COLUMN.fullmatch(str(column)))
+
+        values = False
+        for d in list(self.differences) + list(self.rounding):
+            if d.kind in ("value", "rounding") and d.table != "manifest":
+                values = True
+                if not uncertain(d.table, d.column):
+                    return False
+            elif d.kind == "more" and d.table != "manifest":
+                if not all(uncertain(d.table, name) for name in d.stored.split(", ")):
+                    return False
+            elif d.kind == "columns":
+                if d.table not in _UNCERTAINTY_TABLES:
+                    return False
+            elif d.kind == "manifest":
+                if not any(str(d.column) == f"tables.{name}.columns"
+                           for name in _UNCERTAINTY_TABLES):
+                    return False
+            elif not (d.kind == "metadata" and _metadata_item(d.column)[0] == "descriptions"):
+                return False
+        return values and not self.replaced_manifest
+
+    @property
     def version_warnings(self) -> tuple:
         """The environment differences (kept under their earlier name)."""
         return self.environment
@@ -406,6 +448,24 @@ class VerifyReport:
                     "see below)" if edited else
                     "the product's code differs from the code that wrote the result (code "
                     "fingerprint changed; see below)"))
+            values_differ = any(d.kind in ("value", "rounding", "more", "rows", "columns",
+                                           "table") and d.table != "manifest"
+                                for d in failures + list(self.rounding))
+            if self.code_changed and values_differ and not edited \
+                    and not self.replaced_manifest and self.source != "none":
+                # a 0.32.0 folder under newer code: 31 differing σ, intervals and model
+                # parameters, and no word of what they mean or what to do (review61)
+                lines.append(
+                    "what this means: " + (
+                        "every central value (budgets, fluxes, fits) is reproduced; the "
+                        "values that differ are uncertainties (sigmas, intervals, error "
+                        "models), which the running release states otherwise"
+                        if self.uncertainty_only else
+                        "the running release computes these values otherwise")
+                    + " (its changelog says what changed and why). To reproduce the "
+                    "result, verify with the release that wrote it (result: below); to "
+                    "take this release's numbers, run the input again into a new folder "
+                    "and keep this one as it is")
             if self.descriptions_only:
                 # 0.31.0's folders under 0.32.0: 45 long lines of reworded descriptions and
                 # no word of what they mean for the numbers or what to do (review56)

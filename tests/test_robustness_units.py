@@ -743,6 +743,9 @@ def test_ustar_in_m_per_second_declared_in_cm_per_second_is_refused_naming_the_u
                                  {"ustar": "cm s-1"}, columns, 30)
     assert "read as 'cm s-1'" in refusals["ustar"]
     assert 'set [input.units] ustar = "m s-1"' in refusals["ustar"]
+    # the median as it would read in m s-1, a number (review61: the field's text was
+    # printed, "{as_canonical:.2f}")
+    assert f"read as 'm s-1' the median is {np.median(metres):.2f}:" in refusals["ustar"]
     right, _ = mixup_messages({"ustar": to_canonical(100.0 * metres, "ustar", "cm s-1")},
                               {"ustar": "cm s-1"}, columns, 30)
     assert "ustar" not in right

@@ -364,6 +364,52 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     assert "daily: metadata 'nee description' differs (values equal): stored 'worded " \
            "otherwise', recomputed" in out
 
+def test_newer_code_that_states_other_intervals_says_the_central_values_hold(
+        copy, monkeypatch, capsys):
+    """Newer code that changed only the uncertainty (as gaplength50 did a 0.32.0 folder's
+    σ, intervals and gap-filling error model, review61): the verdict says every central
+    value is reproduced, that the differing ones are uncertainties, and what to do (verify
+    with the writing release, or run again into a new folder). A changed central value
+    under the same code change is not called an uncertainty; nor is a file edited after
+    it was written (no code explains it). Fact of the audit contract (DESIGN.md §4.1)."""
+    import fluxpart.verify as module
+
+    real = module.code_fingerprint()
+    monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
+    out_dir = copy / "out"
+    _set_value(out_dir, "daily", "nee_sigma", lambda v: v * 1.3)
+    _set_value(out_dir, "annual", "nee_ci95_low", lambda v: v - 1.0)
+    assert main(["verify", str(out_dir)]) == 1
+    out = capsys.readouterr().out
+    assert ("what this means: every central value (budgets, fluxes, fits) is reproduced; "
+            "the values that differ are uncertainties") in out
+    assert "verify with the release that wrote it (result: below)" in out
+    assert "run the input again into a new folder" in out
+    # the same code change beside a changed central value, a unit, or a file edited
+    # after it was written (no code explains it): no claim for the central values
+    from fluxpart.verify import Difference, VerifyReport
+
+    sigma = Difference("daily", "value", column="nee_sigma", row="date=2021-01-01")
+    for extra, said in ((Difference("daily", "value", column="nee", row="date=2021-01-01"),
+                         "the running release computes these values otherwise"),
+                        (Difference("annual", "more", stored="nee_ci95_high, nee", count=2),
+                         "the running release computes these values otherwise"),
+                        (Difference("daily", "metadata", column="nee_sigma unit"),
+                         "the running release computes these values otherwise"),
+                        (Difference("daily", "hash", column="daily.parquet"), None),
+                        (Difference("input", "input", column="input", row="x.csv"),
+                         "the running release computes these values otherwise")):
+        text = VerifyReport(out_dir, "run", differences=(sigma, extra),
+                            code_changed=True).format()
+        assert "every central value" not in text
+        assert (said in text) if said else ("what this means" not in text)
+    assert "what this means" not in VerifyReport(out_dir, "run", differences=(sigma,)).format()
+    # another input file: nothing recomputed, no word on what the code computes
+    other_input = Difference("input", "input", column="input", row="x.csv")
+    assert "what this means" not in VerifyReport(out_dir, "run", differences=(other_input,),
+                                                 code_changed=True).format()
+
+
 def test_the_copies_of_a_reworded_description_are_one_item_per_column(monkeypatch, capsys):
     """A description is written three times per column (the Parquet field, the fluxpart
     table metadata, the pandas copy): verify printed each in full (review55: 18 lines of
