@@ -1210,6 +1210,10 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
     for name in ("night", "day"):
         in_class = (errors["record_class"] == name).to_numpy()
         part, long_part = errors[in_class & short], errors[in_class & long]
+        if part["records"].sum() < _GAP_MIN_RECORDS or len(part) < 3:
+            # too few gaps of at most a day (a record whose gaps all last longer): the
+            # rounds' gaps of every length, as before gaplength50, not an unknown part
+            part = errors[in_class & ~long]
         count = part["records"].to_numpy(dtype=float)
         total = part["error_sum"].to_numpy(dtype=float)
         if count.sum() < _GAP_MIN_RECORDS or len(part) < 3:

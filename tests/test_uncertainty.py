@@ -875,6 +875,27 @@ def test_long_gap_classes_get_their_own_shared_variance_never_a_longer_ones():
         == pooled["correlated_variance_weeks"] > 0.1
     assert pooled["correlated_variance"] > 10 * alone["correlated_variance"]
 
+def test_a_record_whose_gaps_all_last_longer_than_a_day_keeps_a_gap_filling_model():
+    """Known truth (invented): where the rounds of gaps of every length hold no gap of at
+    most a day (every real gap longer), a, b and the bias come from their gaps of every
+    length, as without the records per day, and are not left unknown (review61)."""
+    rng = np.random.default_rng(6)
+    short = _neighbour_rows(rng, 30, covariance=0.0).assign(record_class="night",
+                                                              length=480, long=False)
+    m = rng.integers(50, 336, size=300)
+    long_rows = pd.DataFrame({"round": 12, "gap": np.arange(m.size), "record_class": "night",
+                              "records": m, "length": 480, "long": True,
+                              "error_sum": np.sqrt(0.02) * m * rng.standard_normal(m.size)
+                              + np.sqrt(m) * rng.standard_normal(m.size),
+                              "noise_variance": 0.0, "start_day": np.nan})
+    rows = pd.concat([short, long_rows], ignore_index=True)
+    model = gapfill_error_model(rows, records_per_day=48).loc["night"]
+    pooled = gapfill_error_model(rows).loc["night"]
+    for column in ("bias", "bias_se", "independent_variance", "correlated_variance"):
+        assert np.isfinite(model[column]) and model[column] == pooled[column], column
+    assert model["correlated_variance_weeks"] == pytest.approx(0.02, rel=0.3)
+
+
 def test_artificial_gap_seed_is_fixed_by_the_measured_values_and_their_gaps():
     """The placement seed is a function of the series alone: equal series give equal
     seeds (a copy, another NaN object), a changed value or a moved gap another one, and
