@@ -1142,9 +1142,10 @@ def gapfill_error_model(errors: pd.DataFrame, records_per_day=None) -> pd.DataFr
     error is larger (Richardson & Hollinger 2007: the error grows with the gap's
     length). One b_long and d for every long gap let a site's longest outage set
     them for all: a 100-day outage of every sensor on a known-truth tundra
-    record raised the day class's b_long from 0.075 to 0.81 (µmol m-2 s-1)² (the
-    blocks of its 100-day artificial gaps alone: 1.23) and d from 0.045 to 0.46,
-    and with them the NEE interval of a year after the
+    record raised the day class's pooled b_long to 0.81 (µmol m-2 s-1)² (the blocks
+    of its 1-7-day artificial gaps alone: 0.041, of its 7-28-day ones 0.082, of its
+    100-day ones 1.23) and d to 0.46 (0.027 from the 7-28-day gaps alone; round
+    gaplength50's changelog), and with them the NEE interval of a year after the
     outage, with no long gap of its own, from ±6.4 to ±12.1 g C m-2 (trial 23).
     The long gaps are therefore split by the length of the gap into days (1-7),
     weeks (7-28) and months (over 28 days; ``_GAP_CLASS_DAYS``: the first donor
