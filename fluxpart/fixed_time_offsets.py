@@ -155,13 +155,14 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
     hits = pd.DataFrame(hits).sort_index()
     column = (columns or {}).get("nee", "nee")
     times = ", ".join(f"{time} ({row['median']:+.2f} µmol m-2 s-1, "
-                      f"{row['sign_share']:.0%} of {row['days']:.0f} days)" for time, row in hits.iterrows())
-    grams = float(hits["median"].mul(hits["days"]).sum()) * int(interval_minutes) * 60 \
-        * 12.011e-6
+                      f"{row['sign_share']:.0%} of {row['days']:.0f} days)"
+                      for time, row in hits.iterrows())
+    grams = (float(hits["median"].mul(hits["days"]).sum()) * int(interval_minutes) * 60
+             * 12.011e-6)
     return (f"NEE (column '{column}') departs from its neighbouring records by the same sign "
-            f"at fixed times of day (interval starts, local standard time): {times}, against a spread of {spread:.2f} over the other "
-            "times of day; a flux's random error changes sign from day to day, so these "
-            "records were likely written by something on the logger's clock (a daily "
-            "analyser calibration or a valve or pump cycle kept as data), about "
-            f"{grams:+.0f} g C m-2 in the records judged; remove those records (or mark them in "
-            "the flag column) if so")
+            "at fixed times of day (interval starts, local standard time): "
+            f"{times}, against a spread of {spread:.2f} over the other times of day; a "
+            "flux's random error changes sign from day to day, so these records were likely "
+            "written by something on the logger's clock (a daily analyser calibration or a "
+            f"valve or pump cycle kept as data), about {grams:+.0f} g C m-2 in the records "
+            "judged; remove those records (or mark them in the flag column) if so")

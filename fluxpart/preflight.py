@@ -1428,6 +1428,13 @@ _CLOCK_LIKE_MIN_SHIFT = 10.0
 #: of elevation on one side at least 0.45.
 _CLOCK_LIKE_AGREEMENT = 0.25
 
+#: Findings of NEE written in steps of two or more records (a coarser flux written twice,
+#: records repeated): on the day's ramps a step's first record departs from its
+#: neighbours with the ramp's sign at whole hours, which the fixed-time check would call
+#: a calibration; the finding named names the cause (round mistakes49).
+_NEE_STEPS = ("input (nee twice)", "input (repeated records)", "input (repeated NEE)")
+
+
 def _fixed_time_offsets(frame: pd.DataFrame, is_night, interval_minutes: float,
                         sources=None) -> list:
     """NEE departing from its neighbours at fixed times of day (:mod:`.fixed_time_offsets`).
@@ -1506,7 +1513,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night, frame.attrs.get("nee_written_limit"))
         findings += _gapless(frame, interval_minutes, sources)
-        findings += _fixed_time_offsets(frame, is_night, interval_minutes, sources)
+        if not any(finding.stage in _NEE_STEPS for finding in findings):
+            findings += _fixed_time_offsets(frame, is_night, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):
         # a fixed driver without a value: both methods fail on it (process refuses it)

@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47, 49).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -578,6 +578,7 @@ def _nee(frame):
 
 
 def _day_hours(frame):
+    """Hour of day of each record's start [h]."""
     stamps = _stamps(frame) - pd.Timedelta(minutes=15)
     return (stamps.dt.hour + stamps.dt.minute / 60.0).to_numpy()
 
@@ -699,13 +700,6 @@ def nee_sign_flipped_half(frame, text):
     return _with(frame, "co2_exchange", np.where(later, -nee, nee)), text
 
 
-def flux_60_labelled_30(frame, text):
-    """A 60-min flux labelled 30: each hour's value written on both records."""
-    nee = pd.Series(_nee(frame)).replace(MISSING, np.nan)
-    hourly = nee.groupby(np.arange(len(nee)) // 2).transform("mean")
-    return _with(frame, "co2_exchange", np.round(hourly.fillna(MISSING).to_numpy(), 4)), text
-
-
 CASES.update({
     "spectral correction twice (NEE x1.15)": spectral_twice,
     "time lag off (NEE x0.85)": time_lag_wrong,
@@ -720,7 +714,6 @@ CASES.update({
     "Rg dust drift -10 % over the year": rg_dust_drift,
     "tsoil probe dug out from May": soil_probe_dug_out,
     "NEE sign flipped from July": nee_sign_flipped_half,
-    "60-min flux on both half-hours": flux_60_labelled_30,
 })
 
 
