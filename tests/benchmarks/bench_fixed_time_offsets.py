@@ -26,7 +26,7 @@ import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from bench_pairing_uptake import _trial_frames  # noqa: E402
+from bench_pairing_uptake import _trial_frames, ten_year_frames  # noqa: E402
 from bench_prefilter_vpd_zero import site_years  # noqa: E402
 
 from fluxpart import fixed_time_offsets  # noqa: E402
@@ -69,19 +69,13 @@ def main(argv=None):
         hits += _called(frame, _planted(frame, args.offset)) is not None
     print(f"{count} generated site-years: false alarms {len(false_calls)} "
           f"{false_calls or ''}; a calibration of {args.offset:+g} named {hits} of {count}")
-    from fluxpart.demo import site_year
-    for variant in ("c3", "c4"):
-        for minutes in (30, 60):
-            frame = site_year(3, years=10, interval_minutes=minutes, variant=variant)[0]
-            print(f"demo ten years {variant} {minutes} min: "
-                  f"{'CALLED' if _called(frame) else 'quiet'}")
-    folders = [EXAMPLES, *args.trials]
-    called, judged = [], 0
-    for name, frame in _trial_frames(folders):
-        judged += 1
-        if _called(frame):
-            called.append(name)
-            print(f"  CALLED {name}")
+    for variant, minutes, frame in ten_year_frames():
+        print(f"demo ten years {variant} {minutes} min: "
+              f"{'CALLED' if _called(frame) else 'quiet'}")
+    files = list(_trial_frames([EXAMPLES, *args.trials]))
+    called = [name for name, frame in files if _called(frame)]
+    print("".join(f"  CALLED {name}\n" for name in called), end="")
+    judged = len(files)
     print(f"examples and trial site files: false alarms {len(called)} of {judged}")
 
 
