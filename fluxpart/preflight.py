@@ -90,6 +90,8 @@ Warnings (the run goes on):
   one sign removed).
 - ``input (nee smoothed)``: night NEE changing as a running mean's (errors shared by
   neighbouring records).
+- ``input (nee fixed time)``: NEE departing from its neighbours with one sign at fixed
+  times of day (a daily analyser calibration kept as data).
 - ``input (nee u* filtered)``: night NEE missing below one u* and measured above it
   (filtered before it was read).
 - ``input (nee gapless)``: NEE present and accepted in every record for 60 days (filled or
@@ -134,6 +136,7 @@ import pandas as pd
 
 from . import (
     day_sign,
+    fixed_time_offsets,
     nee_limits,
     nee_smoothing,
     night_uptake,
@@ -1425,6 +1428,32 @@ _CLOCK_LIKE_MIN_SHIFT = 10.0
 #: of elevation on one side at least 0.45.
 _CLOCK_LIKE_AGREEMENT = 0.25
 
+#: Findings of NEE written in steps of two or more records (a coarser flux written twice,
+#: records repeated): on the day's ramps a step's first record departs from its
+#: neighbours with the ramp's sign at whole hours, which the fixed-time check would call
+#: a calibration; the finding named names the cause (round mistakes49).
+_NEE_STEPS = ("input (nee twice)", "input (repeated records)", "input (repeated NEE)")
+
+
+def _fixed_time_offsets(frame: pd.DataFrame, is_night, interval_minutes: float,
+                        sources=None) -> list:
+    """NEE departing from its neighbours at fixed times of day (:mod:`.fixed_time_offsets`).
+
+    Judged on NEE as read with the site flag applied, before the despiking: the spike
+    test removes most records of a daily calibration but keeps those whose neighbours are
+    missing, which then stand alone (round mistakes49).
+    """
+    if "nee" not in frame.columns:
+        return []
+    nee = frame["nee"].to_numpy(dtype=float)
+    if "nee_flag" in frame.columns:
+        nee = np.where(site_flag(frame["nee_flag"]), np.nan, nee)
+    names = {"nee": "nee", **(sources or {})}
+    text = fixed_time_offsets.nee_offset_at_fixed_time(nee, frame.index, int(interval_minutes),
+                                                       is_night, names)
+    return [Finding(fixed_time_offsets.STAGE, text, False)] if text else []
+
+
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
               latitude: float, config, interval_minutes: float, sources=None, *,
               sun_elevation=None) -> list:
@@ -1484,6 +1513,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night, frame.attrs.get("nee_written_limit"))
         findings += _gapless(frame, interval_minutes, sources)
+        if not any(finding.stage in _NEE_STEPS for finding in findings):
+            findings += _fixed_time_offsets(frame, is_night, interval_minutes, sources)
     if (temperature_name in frame.columns
             and not np.isfinite(frame[temperature_name].to_numpy(dtype=float)).any()):
         # a fixed driver without a value: both methods fail on it (process refuses it)

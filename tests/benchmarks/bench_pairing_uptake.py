@@ -84,6 +84,15 @@ def _trial_frames(folders):
                 yield str(toml), frame
 
 
+def ten_year_frames():
+    """(variant, minutes, frame) of the invented demo's ten-year records (seed 3)."""
+    from fluxpart.demo import site_year
+    for variant in ("c3", "c4"):
+        for minutes in (30, 60):
+            yield variant, minutes, site_year(3, years=10, interval_minutes=minutes,
+                                              variant=variant)[0]
+
+
 def main(argv=None):
     parser = argparse.ArgumentParser()
     parser.add_argument("--trials", nargs="*", default=[])
@@ -112,13 +121,10 @@ def main(argv=None):
           f"holding NEE {min(shares):.2f}-{max(shares):.2f}")
     print(f"no sunlit uptake: false alarms {len(uptake_false)} {uptake_false or ''}; "
           f"a methane flux named {uptake_hits} of {count}")
-    from fluxpart.demo import site_year
-    for variant in ("c3", "c4"):
-        for minutes in (30, 60):
-            frame = site_year(3, years=10, interval_minutes=minutes, variant=variant)[0]
-            print(f"demo ten years {variant} {minutes} min: u* pairing "
-                  f"{'CALLED' if _called(frame) else 'quiet'}, no uptake "
-                  f"{'CALLED' if _no_uptake(frame) else 'quiet'}")
+    for variant, minutes, frame in ten_year_frames():
+        print(f"demo ten years {variant} {minutes} min: u* pairing "
+              f"{'CALLED' if _called(frame) else 'quiet'}, no uptake "
+              f"{'CALLED' if _no_uptake(frame) else 'quiet'}")
     if args.trials:
         called, judged = [], 0
         for name, frame in _trial_frames(args.trials):

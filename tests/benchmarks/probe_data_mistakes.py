@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47, 49).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -567,6 +567,153 @@ CASES.update({
     "summer time in half the year": summer_time_stamps,
     "NEE in mg CO2 m-2 s-1, no unit": nee_mg_co2,
     "year_start 06-01 (in the season)": year_start_june,
+})
+
+
+# Round mistakes49: a tower's own upstream processing gone wrong (the flux computation,
+# its corrections and the meteorological sensors' processing).
+
+def _nee(frame):
+    return frame["co2_exchange"].to_numpy()
+
+
+def _day_hours(frame):
+    """Hour of day of each record's start [h]."""
+    stamps = _stamps(frame) - pd.Timedelta(minutes=15)
+    return (stamps.dt.hour + stamps.dt.minute / 60.0).to_numpy()
+
+
+def spectral_twice(frame, text):
+    """The spectral (high-frequency loss) correction applied twice: NEE x1.15."""
+    return _scaled(frame, "co2_exchange", 1.15), text
+
+
+def time_lag_wrong(frame, text):
+    """The analyser's time lag a few seconds off: the covariance damped, NEE x0.85."""
+    return _scaled(frame, "co2_exchange", 0.85), text
+
+
+def tilt_missing(frame, text):
+    """No tilt correction: w takes a share of the horizontal wind, a bias that changes
+    with the wind direction (here a regime drawn per day), up to ±25 % of NEE."""
+    days = np.arange(len(frame)) // PER_DAY
+    direction = np.random.default_rng(49).uniform(0, 2 * np.pi, days.max() + 1)[days]
+    nee = _nee(frame)
+    return _with(frame, "co2_exchange", np.where(
+        nee == MISSING, MISSING, np.round(nee * (1 + 0.25 * np.cos(direction)), 4))), text
+
+
+def night_release_capped(frame, text):
+    """A despiking limit of 4 µmol m-2 s-1: every value above it removed (the warm
+    nights' release lost)."""
+    nee = _nee(frame)
+    return _with(frame, "co2_exchange", np.where(nee > 4.0, MISSING, nee)), text
+
+
+def night_release_clipped(frame, text):
+    """... the same limit as a clip: every value above 4 written 4."""
+    nee = _nee(frame)
+    return _with(frame, "co2_exchange", np.where(nee > 4.0, 4.0, nee)), text
+
+
+def calibration_hour_kept(frame, text):
+    """A daily zero/span calibration 03:00-04:00 kept as data: span gas through the
+    cell, NEE +15 µmol m-2 s-1 in the two records, flag 0."""
+    hours = _day_hours(frame)
+    nee = _nee(frame)
+    hour = (hours >= 3) & (hours < 4) & (nee != MISSING)
+    return _with(frame, "co2_exchange", np.where(hour, nee + 15.0, nee)), text
+
+
+def storage_left_out(frame, text):
+    """The storage term left out: on calm nights half the release stays below the sensor
+    (NEE x0.5 where u* < 0.15), flushed evenly over the first 3 h of daylight."""
+    nee, ustar, rg = _nee(frame), frame["friction_velocity"].to_numpy(), \
+        frame["solar_down"].to_numpy()
+    calm = (nee != MISSING) & (ustar != MISSING) & (ustar < 0.15) & (rg < 5)
+    dawn = np.flatnonzero(np.diff((rg >= 5).astype(int)) == 1) + 1
+    out, held, start = nee.copy(), 0.0, 0
+    for first in dawn:
+        held = 0.5 * nee[start:first][calm[start:first]].sum()
+        out[start:first][calm[start:first]] *= 0.5
+        morning = np.arange(first, min(first + 6, len(nee)))
+        morning = morning[nee[morning] != MISSING]
+        out[morning] += held / max(len(morning), 1)
+        start = first + 6
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(out, 4))), text
+
+
+def heated_sonic_winter(frame, text):
+    """A heated sonic in Dec-Feb: u* biased 0.1 m s-1 high (more calm nights kept)."""
+    ustar = frame["friction_velocity"].to_numpy()
+    winter = _months(frame, [12, 1, 2]) & (ustar != MISSING)
+    return _with(frame, "friction_velocity", np.where(winter, np.round(ustar + 0.1, 3),
+                                                      ustar)), text
+
+
+def logger_swap_other_site(frame, text):
+    """After a logger swap, Nov-Dec are another (fictional) site's records."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=11).with_suffix(".csv"),
+                            dtype={"stamp_end": str})
+    out = frame.copy()
+    rows = np.flatnonzero(_months(frame, [11, 12]))
+    columns = [c for c in frame.columns if c != "stamp_end"]
+    out.loc[rows, columns] = other.loc[rows, columns].to_numpy()
+    return out, text
+
+
+def vpd_from_kelvin(frame, text):
+    """VPD from the Magnus formula fed air temperature in K: es(T + 273.15) (1 - RH)."""
+    tair, rh = frame["air_temp_c"].to_numpy(), frame["rel_humidity"].to_numpy()
+    kelvin = tair + 273.15
+    es = 0.6108 * np.exp(17.27 * kelvin / (kelvin + 237.3))
+    bad = (tair == MISSING) | (rh == MISSING)
+    return _with(frame, "vpd_kpa", np.where(bad, MISSING, np.round(es * (1 - rh / 100), 4))), \
+        text
+
+
+def rg_dust_drift(frame, text):
+    """A pyranometer's dome dusting over: Rg falls linearly to -10 % over the year."""
+    rg = frame["solar_down"].to_numpy()
+    drift = 1 - 0.10 * np.arange(len(rg)) / len(rg)
+    return _with(frame, "solar_down", np.where(rg == MISSING, MISSING,
+                                               np.round(rg * drift, 1))), text
+
+
+def soil_probe_dug_out(frame, text):
+    """The soil probe dug out (a badger) in May: from then on it reads near-surface air,
+    the air's daily amplitude and more in sun."""
+    tsoil, tair = frame["soil_temp_5cm"].to_numpy(), frame["air_temp_c"].to_numpy()
+    rg = frame["solar_down"].to_numpy()
+    out_ = _months(frame, range(5, 13)) & (tair != MISSING)
+    exposed = np.round(tair + 3.0 * np.clip(rg, 0, None) / 800.0, 2)
+    return _with(frame, "soil_temp_5cm", np.where(out_, exposed, tsoil)), text
+
+
+def nee_sign_flipped_half(frame, text):
+    """A new processing version from July writes NEE with the opposite sign."""
+    nee = _nee(frame)
+    later = _months(frame, range(7, 13)) & (nee != MISSING)
+    return _with(frame, "co2_exchange", np.where(later, -nee, nee)), text
+
+
+CASES.update({
+    "spectral correction twice (NEE x1.15)": spectral_twice,
+    "time lag off (NEE x0.85)": time_lag_wrong,
+    "tilt correction missing (±25 % by day)": tilt_missing,
+    "night release above 4 removed (despiking)": night_release_capped,
+    "night release clipped at 4": night_release_clipped,
+    "calibration hour 03-04 kept": calibration_hour_kept,
+    "storage left out (calm nights to morning)": storage_left_out,
+    "heated sonic u* +0.1 in winter": heated_sonic_winter,
+    "Nov-Dec of another site (logger swap)": logger_swap_other_site,
+    "VPD from tair in K": vpd_from_kelvin,
+    "Rg dust drift -10 % over the year": rg_dust_drift,
+    "tsoil probe dug out from May": soil_probe_dug_out,
+    "NEE sign flipped from July": nee_sign_flipped_half,
 })
 
 
