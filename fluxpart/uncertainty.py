@@ -2042,12 +2042,9 @@ def driver_day_weight(weight: float, day_statistic, critical: float, prior: str)
     weight : float
         The weight of the night records' part (:func:`combined_driver_weight` with the
         mixture floor) [1].
-    day_statistic : float or None
-        :func:`fluxpart.partition.temperature_choice.daytime_evidence` (positive where
-        the temperature in use fits the daytime records better) [1]; None or NaN where
-        not computed.
-    critical : float
-        Its critical value [1] (1.96).
+    day_statistic, critical
+        The daytime evidence and its critical value, as in
+        :func:`combined_driver_weight`.
     prior : str
         ``"night"``: `weight` itself; ``"equal"``: at least 1/2 unless `day_statistic`
         exceeds `critical` (the daytime records favour the temperature in use).
