@@ -307,7 +307,11 @@ class Config:
         above 1.96). The two nighttime fits are fitted to the same nights and agree
         there, so the night data say little about how a respiration split between soil
         and canopy carries into the day (:func:`fluxpart.uncertainty.driver_day_weight`).
-        Changes the stated uncertainty only, never a central value.
+        Changes the stated uncertainty only, never a central value: on 168 generated
+        site-years with one respiration temperature it widened the partitioned fluxes'
+        intervals by 21–31 % on average (several-fold on some) without changing their
+        coverage; on a known-truth trial with soil and canopy parts it raised nighttime
+        Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, round resp2temp50).
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
