@@ -89,6 +89,7 @@ __all__ = [
     "carbon_accounting_units",
     "draw_random_errors",
     "combined_driver_weight",
+    "driver_day_weight",
     "driver_weight",
     "e0_sensitivity",
     "e0_sigma",
@@ -1863,6 +1864,9 @@ class UncertaintyInputs:
     driver_weight : float
         Probability that the other temperature is the better respiration driver
         (:func:`driver_weight`) [1].
+    driver_day_weight : float or None
+        The weight of the daytime records' part of `driver_delta`
+        (:func:`driver_day_weight`) [1]; None: `driver_weight`.
     night_interval, night_interpolation_sd, day_interval, day_interpolation_sd : numpy.ndarray or None
         Stretch between Rref window centres of each record and the relative
         standard deviation of its interpolated Rref (:func:`interpolation_error`);
@@ -1919,6 +1923,7 @@ class UncertaintyInputs:
     day_relative_se: np.ndarray
     driver_delta: np.ndarray | None = None
     driver_weight: float = 0.0
+    driver_day_weight: float | None = None
     night_interval: np.ndarray | None = None
     night_interpolation_sd: np.ndarray | None = None
     day_interval: np.ndarray | None = None
@@ -2034,6 +2039,51 @@ def combined_driver_weight(night_weight: float, day_statistic, critical: float) 
             or (night_weight > 0.5 and day_statistic > critical):
         return 0.5
     return night_weight
+
+
+def driver_day_weight(weight: float, day_statistic, critical: float, prior: str) -> float:
+    """The other respiration temperature's weight in the daytime records' part.
+
+    Parameters
+    ----------
+    weight : float
+        The weight of the night records' part (:func:`combined_driver_weight` with the
+        mixture floor) [1].
+    day_statistic, critical
+        The daytime evidence and its critical value, as in
+        :func:`combined_driver_weight`.
+    prior : str
+        ``"night"``: `weight` itself; ``"equal"``: at least 1/2 unless `day_statistic`
+        exceeds `critical` (the daytime records favour the temperature in use).
+
+    Returns
+    -------
+    float
+        The weight w_day [1]; the part is |√w Σ_night Δ + √w_day Σ_day Δ|.
+
+    Notes
+    -----
+    Both nighttime fits are fitted to the same night records, so they agree there
+    whichever temperature drives them: the difference Δ the other temperature makes is
+    almost all in daytime records, where air and soil temperature part most. The night
+    weight and the night mixture share measure how well each fit describes the nights,
+    not how a respiration split between the soil (on soil temperature) and the canopy
+    (on air temperature) carries into the day; nights with air close to soil
+    temperature cannot tell the split. Without daytime evidence for the temperature in
+    use, the choice for the day is open: the equal prior of model averaging (Burnham &
+    Anderson 2002, ch. 4 (m)), as :func:`combined_driver_weight` takes where night and
+    day disagree, so the day part is at least |Σ_day Δ| / √2.
+
+    References
+    ----------
+    Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
+    2nd ed. Springer.
+    """
+    if prior == "night":
+        return weight
+    if day_statistic is not None and np.isfinite(day_statistic) and day_statistic > critical:
+        return weight
+    return max(weight, 0.5)
 
 
 def effective_records(residuals, use) -> float:
@@ -2172,7 +2222,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   nee_measured=None, fill_window_days=None,
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
-                  fill_sides=None, daytime_result=None, light_shape=None) -> UncertaintyInputs:
+                  fill_sides=None, daytime_result=None, light_shape=None,
+                  driver_day_prior="night") -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2237,6 +2288,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     light_shape : fluxpart.partition.light_shape.ShapeAverage, optional
         The daytime light-response shapes' differences and spread
         (``daytime_curvature = "average"``); default None (not counted).
+    driver_day_prior : str, optional
+        ``"night"`` (default) or ``"equal"``: the weight of the daytime records' part
+        of the respiration-temperature difference (:func:`driver_day_weight`).
 
     Returns
     -------
@@ -2269,6 +2323,16 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         "shape_gpp_delta": light_shape.gpp_difference,
         "shape_reco_delta": light_shape.reco_difference,
         "shape_spread": light_shape.spread_factor}
+    weight = 0.0 if other_driver_reco is None else max(
+        combined_driver_weight(
+            driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
+                          other_driver_reco), day_driver_statistic, day_evidence_critical),
+        driver_mixture.mixture_share(nee_measured, is_night,
+                                     fluxes["reco_nighttime"].to_numpy(float),
+                                     other_driver_reco) ** 2)
+    day_weight = None if other_driver_reco is None or driver_day_prior == "night" else \
+        driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
+                          driver_day_prior)
     return UncertaintyInputs(
         **day_sides, **shape,
         measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
@@ -2288,13 +2352,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         fill_after=None if fill_sides is None else np.asarray(fill_sides[1], dtype=float),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
-        driver_weight=0.0 if other_driver_reco is None else max(
-            combined_driver_weight(
-                driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
-                              other_driver_reco), day_driver_statistic, day_evidence_critical),
-            driver_mixture.mixture_share(nee_measured, is_night,
-                                         fluxes["reco_nighttime"].to_numpy(float),
-                                         other_driver_reco) ** 2))
+        driver_weight=weight, driver_day_weight=day_weight)
 
 
 def _nan_to_zero(values) -> np.ndarray:
@@ -2430,7 +2488,9 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
     - respiration temperature (structural, where both air and soil temperature
       exist): √w · |Σ(Reco(other temperature) − Reco)| of the nighttime method,
       w the weight the night data give the other temperature
-      (:func:`driver_weight`). Both methods use the same temperature, so a wrong
+      (:func:`driver_weight`); with ``driver_day_prior = "equal"``
+      |√w Σ_night Δ + √w_day Σ_day Δ|, w_day at least 1/2 unless the daytime records
+      favour the temperature in use (:func:`driver_day_weight`). Both methods use the same temperature, so a wrong
       choice moves both alike and the method difference cannot reveal it; the
       part is added to all four partitioned fluxes (GPP moves with Reco, NEE
       being fixed by the data).
@@ -2700,7 +2760,11 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
         method[kind] = np.where(np.isnan(difference), np.nan,
                                 np.sqrt(np.maximum(excess, 0.0) / 2.0))
         out[f"{kind}_uncertainty_partitioning"] = method[kind]
-    if inputs.driver_delta is not None:
+    if inputs.driver_delta is not None and inputs.driver_day_weight is not None:
+        scale = np.where(inputs.is_night, np.sqrt(inputs.driver_weight),
+                         np.sqrt(inputs.driver_day_weight))
+        driver = np.abs(per_period(np.nan_to_num(inputs.driver_delta) * scale)) * factor
+    elif inputs.driver_delta is not None:
         driver = np.abs(per_period(np.nan_to_num(inputs.driver_delta))) * factor \
             * np.sqrt(inputs.driver_weight)
     else:

@@ -137,6 +137,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"seed": True}, r"seed = true is not allowed"),
     ({"respiration_driver": "soil"},
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
+    ({"driver_day_prior": "day"},
+     r'driver_day_prior = "day" is not allowed: expected one of "night" or "equal"'),
     ({"respiration_form": "q10"},
      r'respiration_form = "q10" is not allowed: expected one of "average" or "lloyd_taylor"'),
     ({"rg_tolerance": 0.0}, r"rg_tolerance = 0.0 is out of range.*above 0 and at most 200"),

@@ -149,3 +149,31 @@ def test_recorded_form_weight_is_the_laplace_bic_weight_and_says_so():
     record = average_forms(lloyd, exponential, weight).to_dict()
     assert record["exponential_weight"] == round(expected, 6)
     assert "under Laplace errors" in record["criterion"]
+
+
+def test_driver_day_prior_equal_gives_the_day_records_at_least_half_the_weight():
+    """Equal prior of model averaging (Burnham & Anderson 2002, ch. 4 (m)): with
+    ``driver_day_prior = "equal"`` the daytime records' part of the temperature
+    difference takes weight max(w, 1/2), so |Σ_day Δ| / √2 where the night data gave the
+    other temperature w = 0.04; the night records keep √w; daytime evidence for the
+    temperature in use (t > 1.96) keeps w; the default keeps √w |ΣΔ|."""
+    from fluxpart.uncertainty import driver_day_weight
+    assert driver_day_weight(0.04, None, 1.96, "equal") == 0.5
+    assert driver_day_weight(0.04, -3.0, 1.96, "equal") == 0.5
+    assert driver_day_weight(0.04, 2.5, 1.96, "equal") == 0.04
+    assert driver_day_weight(0.7, None, 1.96, "equal") == 0.7
+    assert driver_day_weight(0.04, None, 1.96, "night") == 0.04
+    n = 2 * 48
+    night = pd.date_range("2021-06-01", periods=n, freq="30min").hour < 6
+    delta = np.where(night, -0.2, 0.5)        # the fits nearly agree at night
+    to_carbon = 1800 * 12.011e-6
+    keys = np.zeros(n, dtype=int)
+    default = period_uncertainty(flat_inputs(driver_delta=delta, driver_weight=0.04),
+                                 keys, 30).iloc[0]
+    assert default["reco_uncertainty_temperature_driver"] == pytest.approx(
+        0.2 * abs(delta.sum()) * to_carbon)
+    equal = period_uncertainty(flat_inputs(driver_delta=delta, driver_weight=0.04,
+                                           driver_day_weight=0.5), keys, 30).iloc[0]
+    expected = abs(0.2 * delta[night].sum() + np.sqrt(0.5) * delta[~night].sum()) * to_carbon
+    assert equal["reco_uncertainty_temperature_driver"] == pytest.approx(expected)
+    assert equal["reco_nighttime_uncertainty_total"] > default["reco_nighttime_uncertainty_total"]
