@@ -12,7 +12,11 @@ rests on the same premise). The change between night and day is a corner, not a 
 course, and where the night's records are filtered the window holds the day's side only:
 records whose window holds both night and day are left out. Records of a time of day whose departures keep one sign on
 most days and whose median departure stands far above that of the other times of day
-were written by something that runs on the clock.
+were written by something that runs on the clock, or border or hold a real event of the
+ecosystem at a fixed hour (an irrigation on a timer; a morning release of stored CO2
+where sunrise hardly moves): the message names both causes (round review62: a 06:00
+irrigation pulse of the grassland example, its own records in windows across sunrise,
+named 07:30-08:30 with the opposite sign).
 
 References
 ----------
@@ -161,8 +165,14 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
              * 12.011e-6)
     return (f"NEE (column '{column}') departs from its neighbouring records by the same sign "
             "at fixed times of day (interval starts, local standard time): "
-            f"{times}, against a spread of {spread:.2f} over the other times of day; a "
-            "flux's random error changes sign from day to day, so these records were likely "
-            "written by something on the logger's clock (a daily analyser calibration or a "
-            f"valve or pump cycle kept as data), about {grams:+.0f} g C m-2 in the records "
-            "judged; remove those records (or mark them in the flag column) if so")
+            f"{times}, against a spread of {spread:.2f} over the other times of day, "
+            f"about {grams:+.0f} g C m-2 in the records judged; a flux's random error "
+            "changes sign from day to day, so something recurs at these times. Either "
+            "something on the logger's clock or a timer near the tower (a daily analyser "
+            "calibration or a valve or pump cycle kept as data, a generator's exhaust): "
+            "then remove those records (or mark them in the flag column). Or an event of "
+            "the ecosystem at a fixed hour (an irrigation on a timer, the morning release "
+            "of the night's stored CO2 where sunrise hardly moves): then they are flux to "
+            "keep, and a time named just after or before such an event with the opposite "
+            "sign holds good records beside it (the event moves the medians they are "
+            "compared with)")
