@@ -34,6 +34,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .units import flux_to_carbon
+
 __all__ = ["STAGE", "nee_offset_at_fixed_time", "time_of_day_departures"]
 
 STAGE = "input (nee fixed time)"
@@ -161,8 +163,8 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
     times = ", ".join(f"{time} ({row['median']:+.2f} µmol m-2 s-1, "
                       f"{row['sign_share']:.0%} of {row['days']:.0f} days)"
                       for time, row in hits.iterrows())
-    grams = (float(hits["median"].mul(hits["days"]).sum()) * int(interval_minutes) * 60
-             * 12.011e-6)
+    grams = float(flux_to_carbon(float(hits["median"].mul(hits["days"]).sum()),
+                                 int(interval_minutes)))
     return (f"NEE (column '{column}') departs from its neighbouring records by the same sign "
             "at fixed times of day (interval starts, local standard time): "
             f"{times}, against a spread of {spread:.2f} over the other times of day, "

@@ -27,6 +27,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .gap_sides import gap_runs, run_ids
+
 __all__ = ["MIN_RUN_DAYS", "PRESENT_RATIO", "STAGE", "nee_without_ustar"]
 
 #: The stage named in the preflight finding.
@@ -48,15 +50,10 @@ PRESENT_RATIO = 0.5
 def _long_runs(lost, min_records):
     """Label of each record's run of ``lost`` at least ``min_records`` long (1, 2, ...;
     0 outside such runs)."""
-    edges = np.diff(np.r_[0, lost.astype(np.int8), 0])
-    starts, ends = np.flatnonzero(edges == 1), np.flatnonzero(edges == -1)
-    keep = (ends - starts) >= min_records
-    marks = np.zeros(len(lost) + 1, dtype=np.int64)
-    np.add.at(marks, starts[keep], 1)
-    np.add.at(marks, ends[keep], -1)
-    inside = np.cumsum(marks[:-1]) > 0
-    first = inside & ~np.r_[False, inside[:-1]]
-    return np.where(inside, np.cumsum(first), 0)
+    # entry 0 stands for the records outside every run (run_ids -1)
+    long = np.r_[False, gap_runs(lost)[1] >= min_records]
+    place = run_ids(lost) + 1
+    return np.where(long[place], np.cumsum(long)[place], 0)
 
 
 def _judged(labels, measured, share_with, per_day):
