@@ -58,6 +58,7 @@ import numpy as np
 import pandas as pd
 
 from ._groups import group_positions
+from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
@@ -959,7 +960,7 @@ def _zero_bins(nee: np.ndarray, stamps) -> np.ndarray:
         if chosen is None or chosen.size < 2:
             continue
         values = steps[chosen]
-        sigma = 1.4826 * float(np.median(np.abs(values - np.median(values)))) / math.sqrt(2.0)
+        sigma = scaled_mad(values) / math.sqrt(2.0)
         scale = sigma / math.sqrt(2.0)                 # the Laplace scale b
         bins[records] = min(_CENSOR_BIN, _CENSOR_BIN / 0.2 * scale)
     return bins

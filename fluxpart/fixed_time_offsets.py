@@ -34,6 +34,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .robust_scale import scaled_mad
 from .units import flux_to_carbon
 
 __all__ = ["STAGE", "nee_offset_at_fixed_time", "time_of_day_departures"]
@@ -147,7 +148,7 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
             break
         medians = table["median"].to_numpy()
         if not hits:
-            spread = 1.4826 * float(np.median(np.abs(medians - np.median(medians))))
+            spread = scaled_mad(medians)
         sign_z = (table["sign_share"] - 0.5) * 2 * np.sqrt(table["days"])
         candidates = table[(sign_z >= MIN_SIGN_Z) & (table["median"].abs() >= max(
             MIN_OFFSET, MIN_SPREAD_RATIO * spread))]
