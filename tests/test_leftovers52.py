@@ -6,12 +6,11 @@ adjacent double (IEEE 754); ``scipy.stats.median_abs_deviation(..., scale="norma
 (SciPy, a general-purpose reference library) is the MAD scaled to a normal standard
 deviation. The result folders are the session's invented bundle.
 """
-import shutil
-
 import numpy as np
 import pytest
 from scipy import stats
-from test_verify import _edit_manifest, _set_value
+from test_leftovers51 import copied_rerun
+from test_verify import _set_value
 
 from fluxpart.cli import main
 from fluxpart.diff import diff_folders
@@ -26,11 +25,7 @@ def _other_release(manifest):
 @pytest.fixture
 def rerun(pristine_bundle, tmp_path):
     """The session bundle's folder and a copy whose manifest records other versions and code."""
-    first = pristine_bundle / "out"
-    second = tmp_path / "rerun"
-    shutil.copytree(first, second)
-    _edit_manifest(second, _other_release, reseal=True)
-    return first, second
+    return copied_rerun(pristine_bundle, tmp_path, _other_release)
 
 
 def test_versions_and_code_alone_are_no_difference_of_the_result(rerun, capsys):
