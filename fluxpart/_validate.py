@@ -64,6 +64,22 @@ def datetime_index(index) -> pd.DatetimeIndex:
     return index
 
 
+def float_copy(values, name: str) -> np.ndarray:
+    """Return `values` as a new float64 array, nullable pandas values (``pd.NA``) as NaN.
+
+    Raises
+    ------
+    FluxpartError
+        If the values are not numbers (the message names `name`).
+    """
+    try:
+        if isinstance(values, (pd.Series, pd.Index)):
+            return values.to_numpy(dtype=np.float64, na_value=np.nan, copy=True)
+        return np.array(values, dtype=np.float64)
+    except (TypeError, ValueError):
+        raise FluxpartError(f"{name}: expected numbers (NaN where missing)") from None
+
+
 def as_float(values, name: str, length: int) -> np.ndarray:
     """Return `values` as a new float64 vector of one value per record.
 
@@ -76,13 +92,7 @@ def as_float(values, name: str, length: int) -> np.ndarray:
     LengthMismatchError
         If they are not one-dimensional with `length` values.
     """
-    try:
-        if isinstance(values, (pd.Series, pd.Index)):
-            array = values.to_numpy(dtype=np.float64, na_value=np.nan, copy=True)
-        else:
-            array = np.array(values, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise FluxpartError(f"{name}: expected numbers (NaN where missing)") from None
+    array = float_copy(values, name)
     if array.shape != (length,):
         raise LengthMismatchError(f"{name}: expected one value per record ({length}), found "
                                   f"shape {array.shape}")

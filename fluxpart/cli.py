@@ -611,11 +611,12 @@ def _parser() -> argparse.ArgumentParser:
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
         description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved. Platform facts (CPU "
-        "features, BLAS) are facts of the run, listed apart. Exit 0: the same result, or the "
-        "only differences of the result are tables whose values are equal within "
-        "floating-point rounding (as verify judges it), whatever platform facts differ; 1: "
-        "anything else differs; 2: error.")
+        "fingerprint, platform, and how each annual number moved. Library versions, the code "
+        "fingerprint and platform facts (CPU features, BLAS) are facts of the run, listed "
+        "apart. Exit 0: the same result, or the only differences of the result are tables "
+        "whose values are equal within floating-point rounding (as verify judges it), "
+        "whatever platform facts, versions or code differ; 1: anything else differs; 2: "
+        "error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))

@@ -53,6 +53,7 @@ import numpy as np
 import pandas as pd
 
 from ._quantile import nanquantile
+from .robust_scale import scaled_mad
 from .site import FRACTIONAL_UTC_OFFSETS
 from .solar import interval_sun, potential_at_latitude, potential_radiation
 
@@ -889,7 +890,7 @@ def _short_shifted_run(used: pd.DataFrame, off: np.ndarray, peak: np.ndarray, mo
     rest = np.delete(peak, where)
     rest = rest[np.isfinite(rest)]
     centre = float(np.median(rest))
-    scatter = float(1.4826 * np.median(np.abs(rest - centre)))
+    scatter = scaled_mad(rest, centre)
     if abs(centre) >= threshold / 2.0:
         return None
     size = float(np.median(values))
@@ -1083,7 +1084,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     used = _unwrapped_shifts(used)
     shifts = used["shift_minutes"].to_numpy()
     median = float(np.median(shifts))
-    spread = float(1.4826 * np.median(np.abs(shifts - median)))
+    spread = scaled_mad(shifts, median)
     threshold = shift_threshold_minutes(interval)
     suggested = None
     status = "consistent"
@@ -1108,8 +1109,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
         agree = np.mean((np.sign(shifts) == np.sign(median))
                         & (np.abs(shifts) >= threshold / 2.0))
         tolerance = max(10.0, 0.3 * abs(median))
-        edge_spread = (float(1.4826 * np.median(np.abs(edges - edge_median)))
-                       if edges.size else np.nan)
+        edge_spread = scaled_mad(edges, edge_median) if edges.size else np.nan
         if (agree >= 2.0 / 3.0 and abs(edge_median) >= threshold
                 and abs(edge_median - median) <= tolerance
                 and spread <= tolerance and edge_spread <= tolerance):

@@ -58,6 +58,7 @@ import numpy as np
 import pandas as pd
 
 from ._groups import group_positions
+from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
@@ -408,6 +409,19 @@ def _sunlit_change_scores(nee, rg, potential, shifts: dict) -> dict:
     return scores
 
 
+def _light_arrays(nee, rg, potential, interval_minutes: float | None = None, stamps=None):
+    """NEE, Rg and potential radiation as float arrays for the checks of NEE against light,
+    or None where they hold fewer than 3 records, differ in length (from `stamps` too,
+    where given) or `interval_minutes` [min] is not positive."""
+    nee, rg, potential = (np.asarray(values, dtype=float) for values in (nee, rg, potential))
+    lengths = {nee.size, rg.size, potential.size} | ({len(stamps)} if stamps is not None
+                                                     else set())
+    if nee.size < 3 or len(lengths) > 1 or (interval_minutes is not None
+                                            and interval_minutes <= 0):
+        return None
+    return nee, rg, potential
+
+
 def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
     """A message where NEE follows Rg by whole records, or None.
 
@@ -452,11 +466,10 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
     """
-    nee = np.asarray(nee, dtype=float)
-    rg = np.asarray(rg, dtype=float)
-    potential = np.asarray(potential, dtype=float)
-    if nee.size < 3 or nee.size != rg.size or interval_minutes <= 0:
+    arrays = _light_arrays(nee, rg, potential, interval_minutes)
+    if arrays is None:
         return None
+    nee, rg, potential = arrays
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
     scores = _sunlit_change_scores(nee, rg, potential, {k: k for k in range(-most, most + 1)})
     found = _decide(scores)
@@ -530,11 +543,10 @@ def nee_hour_shift(nee, rg, potential, interval_minutes: float, columns=None) ->
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
     """
-    nee = np.asarray(nee, dtype=float)
-    rg = np.asarray(rg, dtype=float)
-    potential = np.asarray(potential, dtype=float)
-    if nee.size < 3 or not nee.size == rg.size == potential.size or interval_minutes <= 0:
+    arrays = _light_arrays(nee, rg, potential, interval_minutes)
+    if arrays is None:
         return None
+    nee, rg, potential = arrays
     near = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
     if int(_MAX_SHIFT_HOURS * 60 // interval_minutes) <= near:
         return None
@@ -691,12 +703,10 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
     """
-    nee = np.asarray(nee, dtype=float)
-    rg = np.asarray(rg, dtype=float)
-    potential = np.asarray(potential, dtype=float)
-    if (nee.size < 3 or not nee.size == rg.size == potential.size == len(stamps)
-            or interval_minutes <= 0):
+    arrays = _light_arrays(nee, rg, potential, interval_minutes, stamps)
+    if arrays is None:
         return None
+    nee, rg, potential = arrays
     stamps = pd.DatetimeIndex(stamps)
     # the calendar month of each stamp as one number (the same changes as its "YYYY-MM"
     # label, a tenth of the cost)
@@ -789,11 +799,10 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
     """
-    nee = np.asarray(nee, dtype=float)
-    rg = np.asarray(rg, dtype=float)
-    potential = np.asarray(potential, dtype=float)
-    if nee.size < 3 or not nee.size == rg.size == potential.size or interval_minutes <= 0:
+    arrays = _light_arrays(nee, rg, potential, interval_minutes)
+    if arrays is None:
         return None
+    nee, rg, potential = arrays
     per_day = int(round(1440.0 / interval_minutes))
     shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
               if abs(days * per_day) < nee.size - 1}
@@ -862,11 +871,10 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
     """
-    nee = np.asarray(nee, dtype=float)
-    rg = np.asarray(rg, dtype=float)
-    potential = np.asarray(potential, dtype=float)
-    if nee.size < 3 or not nee.size == rg.size == potential.size == len(stamps):
+    arrays = _light_arrays(nee, rg, potential, stamps=stamps)
+    if arrays is None:
         return None
+    nee, rg, potential = arrays
     d_nee, d_rg = np.diff(nee), np.diff(rg)
     usable = ((potential[1:] > 0) & (potential[:-1] > 0) & np.isfinite(d_nee)
               & np.isfinite(d_rg))
@@ -959,7 +967,7 @@ def _zero_bins(nee: np.ndarray, stamps) -> np.ndarray:
         if chosen is None or chosen.size < 2:
             continue
         values = steps[chosen]
-        sigma = 1.4826 * float(np.median(np.abs(values - np.median(values)))) / math.sqrt(2.0)
+        sigma = scaled_mad(values) / math.sqrt(2.0)
         scale = sigma / math.sqrt(2.0)                 # the Laplace scale b
         bins[records] = min(_CENSOR_BIN, _CENSOR_BIN / 0.2 * scale)
     return bins

@@ -8,9 +8,10 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 - the SHA-256 of the input file(s) and of the site config;
 - each setting, the site, the seed, the reader's record and the warnings that differ;
 - the model choices the night data made (respiration temperature, delay, form weight);
-- each library version and the code fingerprint that differ;
-- the platform facts that differ (CPU features, BLAS, machine), listed apart: facts of
-  the run, not of the result, as ``verify`` treats them (leftovers51);
+- each library version, the code fingerprint and the platform facts (CPU features,
+  BLAS, machine) that differ, listed apart: facts of the run, not of the result, as
+  ``verify`` treats them (platform since leftovers51, versions and code since
+  leftovers52);
 - the tables whose bytes differ, and whether their values or only their metadata do;
 - how each annual number moved: both values, the change (second minus first)
   and the change relative to the first value's magnitude.
@@ -19,9 +20,10 @@ Exit statuses of the command: 0 when the two folders hold the same result from
 the same input, settings and code (paths, the run log and report pages do not
 count), also where the only differences of the result are tables whose values are
 equal within floating-point rounding as ``verify`` judges it (their hashes listed;
-since leftovers50), whatever platform facts differ (since leftovers51: verify's
-"reproduced within floating-point rounding; the platform differs"), 1 when
-anything else listed differs, 2 on error (a folder that is missing, not a result
+since leftovers50), whatever facts of the run differ (library versions, code
+fingerprint, platform: verify lists them and fails none by itself; platform since
+leftovers51, versions and code since leftovers52), 1 when anything else listed
+differs, 2 on error (a folder that is missing, not a result
 folder, or does not match its manifest).
 """
 
@@ -45,9 +47,15 @@ _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
                   ("respiration_form", ("exponential_weight", "share_applied")),
                   ("light_shape", ("profiled_curvature",)))
 #: Sections of :attr:`DiffReport.items` that are facts of the run, not of the result:
-#: listed apart and no difference of the result by themselves (leftovers51), as
-#: ``verify`` lists them ("reproduced within floating-point rounding; the platform differs").
-RUN_FACTS = ("platform",)
+#: listed apart and no difference of the result by themselves, as ``verify`` lists them
+#: ("Differences of library versions, of the product's code ... and of the platform are
+#: listed and are not failures by themselves"): the platform since leftovers51, library
+#: versions and the code fingerprint since leftovers52 (tables byte-identical beside
+#: another numpy release made diff exit 1 where verify exits 0).
+RUN_FACTS = ("version", "code", "platform")
+#: How each section of :data:`RUN_FACTS` is named in a sentence.
+_RUN_FACT_NAMES = {"version": "library versions", "code": "the code",
+                   "platform": "the platform"}
 #: How a table whose values differ within rounding only ends its label
 #: (:func:`table_difference`, :attr:`DiffReport.within_rounding`).
 _ROUNDING_SUFFIX = ", metadata equal"
@@ -109,66 +117,75 @@ class DiffReport:
         return tuple(item for item in self.items if item[0] not in RUN_FACTS)
 
     @property
+    def run_facts(self) -> tuple:
+        """The differing items that are facts of the run, not of the result (library
+        versions, code fingerprint, platform: :data:`RUN_FACTS`), as ``verify`` treats
+        them."""
+        return tuple(item for item in self.items if item[0] in RUN_FACTS)
+
+    @property
     def platform_facts(self) -> tuple:
         """The platform facts that differ (CPU features, BLAS and its architecture,
-        machine): facts of the run, not of the result, as ``verify`` treats them."""
-        return tuple(name for section, name, _, _ in self.items if section in RUN_FACTS)
+        machine)."""
+        return tuple(name for section, name, _, _ in self.items if section == "platform")
 
     @property
     def same_result(self) -> bool:
-        """True when nothing but platform facts differs: every table bit for bit equal."""
+        """True when nothing but facts of the run differs: every table bit for bit equal."""
         return not self.result_items and self.annual.empty
 
     @property
     def within_rounding(self) -> bool:
         """True when the only differences of the result are tables whose values are equal
         within rounding (:func:`table_difference`), and no annual value moves beyond it
-        (platform facts may differ too: on another CPU that is the expected cause)."""
+        (facts of the run may differ too: another CPU or library release is the expected
+        cause)."""
         return (bool(self.result_items) and self.annual.empty
                 and all(section == "table" and name.endswith(_ROUNDING_SUFFIX)
                         for section, name, _, _ in self.result_items))
 
     @property
     def exit_code(self) -> int:
-        """0 when the result is the same or equal within rounding, whatever platform facts
-        differ; 1 when anything else differs: the verdicts ``verify`` gives a rerun on
-        another CPU ("reproduced within floating-point rounding; the platform differs",
-        exit 0; leftovers51: a platform fact made diff exit 1)."""
+        """0 when the result is the same or equal within rounding, whatever facts of the
+        run (versions, code, platform) differ; 1 when anything else differs: the verdicts
+        ``verify`` gives such a rerun (exit 0; leftovers51: a platform fact made diff exit
+        1, leftovers52: a library version or the code fingerprint did)."""
         return 0 if self.same_result or self.within_rounding else 1
 
     def format(self) -> str:
         """The report as text for the command line."""
         lines = [f"fluxpart diff: {shown_path(self.first)} (first) vs "
                  f"{shown_path(self.second)} (second)"]
-        platform = self.platform_facts
+        facts = self.run_facts
+        named, verb = _run_fact_subject(facts)
         if self.same_result:
-            if platform:
-                lines.append(f"same result: input, settings, site, versions, code, every "
-                             f"table (bit for bit) and all {self.same_annual} annual values "
-                             f"are equal; only the platform differs ({len(platform)} "
-                             "fact(s) of the run, listed below)")
+            if facts:
+                lines.append(f"same result: input, settings, site, every table (bit for bit) "
+                             f"and all {self.same_annual} annual values are equal; only "
+                             f"{named} {verb} ({len(facts)} fact(s) of the run, listed "
+                             "below)")
             else:
                 lines.append(f"same: input, settings, site, versions, code, platform and all "
                              f"{self.same_annual} annual values are equal")
             if self.rounding_annual:
                 lines.append(_rounding_line(self.rounding_annual))
-            lines.extend(_platform_lines(platform))
+            lines.extend(_run_fact_lines(facts))
         else:
             items = self.result_items
             if self.within_rounding:
                 from .verify import ROUNDING_TOLERANCE
 
-                # an auditor's rerun on another CPU: verify's exit 0, not "differ"
-                where = ("; the platform differs (listed below)" if platform
-                         else " and platform are equal")
+                # an auditor's rerun on another CPU or release: verify's exit 0, not "differ"
+                where = (f"; {named} {verb} (listed below)" if facts
+                         else "; versions, code and platform are equal")
                 lines.append(
-                    f"equal within rounding: input, settings, site, versions and code "
-                    f"are equal{where}; {len(items)} table(s) differ in bytes, their "
-                    f"values only within rounding (relative difference at most "
-                    f"{ROUNDING_TOLERANCE:g}, as verify judges it; hashes below)")
+                    f"equal within rounding: input, settings and site are equal{where}; "
+                    f"{len(items)} table(s) differ in bytes, their values only within "
+                    f"rounding (relative difference at most {ROUNDING_TOLERANCE:g}, as "
+                    "verify judges it; hashes below)")
             else:
-                also = (f"; the platform differs in {len(platform)} fact(s) of the run, "
-                        "listed apart") if platform else ""
+                also = (f"; {named} {verb} in {len(facts)} fact(s) of the run, listed apart"
+                        if facts else "")
                 lines.append(f"differ: {len(items)} recorded item(s) and "
                              f"{len(self.annual)} annual value(s){also}")
             names = [(a, b) for s, n, a, b in self.items if (s, n) == ("site", "name")]
@@ -186,7 +203,7 @@ class DiffReport:
                         default=0)
             for label, (_, _, a, b) in zip(labels, items, strict=True):
                 lines.extend(_item_lines(label, a, b, width))
-            lines.extend(_platform_lines(platform))
+            lines.extend(_run_fact_lines(facts))
             if not self.annual.empty:
                 other = _years_of_other_periods(self.annual)
                 if other:
@@ -210,11 +227,33 @@ class DiffReport:
         return "\n".join(lines)
 
 
-def _platform_lines(facts) -> list:
-    """The platform facts that differ, under a heading that says what they are."""
-    if not facts:
-        return []
-    return ["platform (facts of the run, not of the result):"] + [f"  {fact}" for fact in facts]
+def _run_fact_subject(facts) -> tuple:
+    """The facts of the run that differ named for a sentence, and its verb:
+    ``("the platform", "differs")``, ``("library versions and the code", "differ")``."""
+    names = [_RUN_FACT_NAMES[section] for section in RUN_FACTS
+             if any(item[0] == section for item in facts)]
+    if len(names) <= 1:
+        subject = names[0] if names else ""
+        return subject, "differ" if subject == "library versions" else "differs"
+    return f"{', '.join(names[:-1])} and {names[-1]}", "differ"
+
+
+def _run_fact_lines(facts) -> list:
+    """The facts of the run that differ, under headings that say what they are: library
+    versions and the code fingerprint with both values, the platform's by name."""
+    lines = []
+    recorded = [item for item in facts if item[0] != "platform"]
+    if recorded:
+        labels = [f"{section} {name}" for section, name, _, _ in recorded]
+        width = max((len(label) for label in labels if len(label) <= LABEL_WIDTH), default=0)
+        lines.append("versions and code (facts of the run, not of the result):")
+        for label, (_, _, a, b) in zip(labels, recorded, strict=True):
+            lines.extend(_item_lines(label, a, b, width))
+    platform = [name for section, name, _, _ in facts if section == "platform"]
+    if platform:
+        lines += (["platform (facts of the run, not of the result):"]
+                  + [f"  {fact}" for fact in platform])
+    return lines
 
 
 def _rounding_line(cells) -> str:
@@ -519,8 +558,8 @@ def diff_folders(first, second) -> DiffReport:
 
 
 def command_diff(args) -> int:
-    """``fluxpart diff A B``: 0 when the same result or equal within rounding (platform
-    facts aside), 1 when anything else differs (errors exit 2)."""
+    """``fluxpart diff A B``: 0 when the same result or equal within rounding (facts of
+    the run: versions, code, platform aside), 1 when anything else differs (errors exit 2)."""
     report = diff_folders(args.first, args.second)
     print(report.format())
     return report.exit_code

@@ -10,7 +10,12 @@ just after it follows that course, so a record's departure from it
 is random error, of either sign from day to day (the despiking of Papale et al. 2006
 rests on the same premise). The change between night and day is a corner, not a smooth
 course, and where the night's records are filtered the window holds the day's side only:
-records whose window holds both night and day are left out. Records of a time of day whose departures keep one sign on
+a record whose window holds both night and day departs by that corner, which follows the
+sun, not the clock. Such a record is judged against the median departure of the records
+at the same place beside sunrise or sunset in its quarter of the year (they were left
+out until round leftovers52, which missed an offset at 05:00-07:00 and named the records
+after a sunrise event with the opposite sign). A record equal to a neighbour (NEE
+written in steps) is not judged. Records of a time of day whose departures keep one sign on
 most days and whose median departure stands far above that of the other times of day
 were written by something that runs on the clock, or border or hold a real event of the
 ecosystem at a fixed hour (an irrigation on a timer; a morning release of stored CO2
@@ -34,6 +39,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .robust_scale import scaled_mad
 from .units import flux_to_carbon
 
 __all__ = ["STAGE", "nee_offset_at_fixed_time", "time_of_day_departures"]
@@ -76,7 +82,8 @@ def time_of_day_departures(nee, stamps, interval_minutes: int, is_night) -> pd.D
         Record length [min].
     is_night : array_like of bool
         Night records (the sun below the horizon): a record whose window holds both
-        night and day records is left out.
+        night and day records is judged against the records at the same place beside
+        sunrise or sunset (:func:`_sun_keys`).
 
     Returns
     -------
@@ -85,24 +92,104 @@ def time_of_day_departures(nee, stamps, interval_minutes: int, is_night) -> pd.D
         departure), ``median`` (median departure [µmol m-2 s-1]) and ``sign_share``
         (share of the departures with the median's sign).
     """
-    values = pd.Series(np.asarray(nee, dtype=float))
-    side = int(round(WINDOW_HOURS * 60 / int(interval_minutes) / 2))
-    window = 2 * side + 1
-    before = values.shift(1).rolling(side, min_periods=MIN_SIDE_RECORDS).median()
-    after = values[::-1].shift(1).rolling(side, min_periods=MIN_SIDE_RECORDS).median()[::-1]
-    neighbours = (before + after) / 2
-    night = pd.Series(np.asarray(is_night, dtype=float))
-    mixed = (night.rolling(window, center=True, min_periods=1).max()
-             != night.rolling(window, center=True, min_periods=1).min()).to_numpy()
-    departure = np.where(mixed, np.nan, (values - neighbours).to_numpy())
-    clock = pd.DatetimeIndex(stamps).strftime("%H:%M")
-    frame = pd.DataFrame({"time": clock, "departure": departure}).dropna()
-    grouped = frame.groupby("time")["departure"]
-    median = grouped.median()
-    sign = np.sign(median)
-    shares = frame.assign(same=np.sign(frame["departure"]) == sign.reindex(
-        frame["time"]).to_numpy()).groupby("time")["same"].mean()
-    return pd.DataFrame({"days": grouped.size(), "median": median, "sign_share": shares})
+    setting = _Setting.of(stamps, interval_minutes, is_night)
+    return setting.table(np.asarray(nee, dtype=float))
+
+
+#: Records of one place beside sunrise or sunset (:func:`_sun_keys`) in one quarter of the
+#: year needed for their median departure, the course of the day there, to be taken out
+#: (our choice: the median of 30 departures has a standard error of about a quarter of
+#: one record's, so it takes out the course, not a record's noise; fewer: not judged).
+MIN_KEY_RECORDS = 30
+
+
+def _sun_keys(night: np.ndarray, side: int, quarter: np.ndarray) -> np.ndarray:
+    """For each record whose window (`side` records each way) holds night and day: a code
+    of its class (night or day), the records since its class began and until it ends
+    (each up to `side` + 1), and its quarter of the year; -1 elsewhere.
+
+    A record beside sunrise or sunset departs from the mean of its two halves' medians by
+    the corner of the diurnal course there (the flat night against the day's ramp) and by
+    the night's missing records (u* filtering), which follow the sun, not the clock: the
+    median departure of the records at the same place beside the change, pooled over the
+    quarter's days (sunrise moves by one to three hours a quarter away from the
+    solstices), is that course, and what departs from it at a fixed clock time is the
+    clock's. Where sunrise hardly moves (the tropics, a solstice quarter) the two cannot
+    be told apart and the place's median takes the offset with it: missed, never named
+    falsely.
+    """
+    n = night.size
+    positions = np.arange(n)
+    change = np.flatnonzero(night[1:] != night[:-1]) + 1
+    began = np.full(n, -side - 2, dtype=np.int64)       # the record's ends: no change
+    began[change] = change
+    began = np.maximum.accumulate(began)
+    ends = np.full(n, n + side + 2, dtype=np.int64)
+    ends[change - 1] = change
+    ends = np.minimum.accumulate(ends[::-1])[::-1]
+    since = np.minimum(positions - began, side + 1)
+    until = np.minimum(ends - positions - 1, side + 1)
+    mixed = (since < side) | (until < side)
+    width = side + 2
+    code = ((quarter * 2 + night) * width + since) * width + until
+    return np.where(mixed, code, -1)
+
+
+class _Setting:
+    """What the departures of one record need beside NEE, computed once: the window's
+    half, the records' time of day (minutes) and their places beside sunrise or sunset."""
+
+    def __init__(self, side, minutes, keys):
+        self.side, self.minutes, self.keys = side, minutes, keys
+
+    @classmethod
+    def of(cls, stamps, interval_minutes, is_night):
+        stamps = pd.DatetimeIndex(stamps)
+        side = int(round(WINDOW_HOURS * 60 / int(interval_minutes) / 2))
+        night = np.asarray(is_night, dtype=bool)
+        quarter = ((stamps.month.to_numpy() - 1) // 3).astype(np.int64)
+        minutes = (stamps.hour * 60 + stamps.minute).to_numpy()
+        return cls(side, minutes, _sun_keys(night, side, quarter))
+
+    def departures(self, nee: np.ndarray) -> np.ndarray:
+        """Each record's departure from the mean of the medians of its window's halves
+        [µmol m-2 s-1]; beside sunrise or sunset less its place's median departure; NaN
+        where a half holds fewer than :data:`MIN_SIDE_RECORDS` records, where the record
+        equals a neighbour (NEE written in steps, a coarser flux on each record: its
+        step departs with the day's ramp) or where its place holds too few records."""
+        values = pd.Series(nee)
+        before = values.shift(1).rolling(self.side, min_periods=MIN_SIDE_RECORDS).median()
+        after = values[::-1].shift(1).rolling(self.side,
+                                              min_periods=MIN_SIDE_RECORDS).median()[::-1]
+        departure = (values - (before + after) / 2).to_numpy(copy=True)
+        stepped = np.zeros(nee.size, dtype=bool)
+        same = nee[1:] == nee[:-1]
+        stepped[1:] |= same
+        stepped[:-1] |= same
+        departure[stepped] = np.nan
+        beside = (self.keys >= 0) & np.isfinite(departure)
+        if beside.any():
+            frame = pd.DataFrame({"key": self.keys[beside], "departure": departure[beside]})
+            grouped = frame.groupby("key")["departure"]
+            course = grouped.transform("median").where(
+                grouped.transform("size") >= MIN_KEY_RECORDS)
+            departure[beside] = departure[beside] - course.to_numpy()
+        return departure
+
+    def table(self, nee: np.ndarray) -> pd.DataFrame:
+        """:func:`time_of_day_departures`' table of `nee`."""
+        departure = self.departures(nee)
+        kept = np.isfinite(departure)
+        frame = pd.DataFrame({"time": self.minutes[kept], "departure": departure[kept]})
+        grouped = frame.groupby("time")["departure"]
+        median = grouped.median()
+        sign = np.sign(median)
+        shares = frame.assign(same=np.sign(frame["departure"]) == sign.reindex(
+            frame["time"]).to_numpy()).groupby("time")["same"].mean()
+        table = pd.DataFrame({"days": grouped.size(), "median": median, "sign_share": shares})
+        table.index = pd.Index([f"{m // 60:02d}:{m % 60:02d}" for m in table.index],
+                               name="time")
+        return table
 
 
 def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
@@ -136,18 +223,18 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
     records) (m).
     """
     nee = np.asarray(nee, dtype=float)
-    clock = pd.DatetimeIndex(stamps).strftime("%H:%M")
+    setting = _Setting.of(stamps, interval_minutes, is_night)
     hits, spread = [], 0.0
     for _ in range(MAX_TIMES):
         # the strongest time of day first, its records then left out: they would lift
         # the medians beside them and make their neighbours' times depart the other way
-        table = time_of_day_departures(nee, stamps, interval_minutes, is_night)
+        table = setting.table(nee)
         table = table[table["days"] >= MIN_DAYS]
         if len(table) < 12:
             break
         medians = table["median"].to_numpy()
         if not hits:
-            spread = 1.4826 * float(np.median(np.abs(medians - np.median(medians))))
+            spread = scaled_mad(medians)
         sign_z = (table["sign_share"] - 0.5) * 2 * np.sqrt(table["days"])
         candidates = table[(sign_z >= MIN_SIGN_Z) & (table["median"].abs() >= max(
             MIN_OFFSET, MIN_SPREAD_RATIO * spread))]
@@ -155,7 +242,8 @@ def nee_offset_at_fixed_time(nee, stamps, interval_minutes: int, is_night,
             break
         strongest = candidates.loc[candidates["median"].abs().idxmax()]
         hits.append(strongest)
-        nee = np.where(clock == strongest.name, np.nan, nee)
+        hour, minute = (int(part) for part in strongest.name.split(":"))
+        nee = np.where(setting.minutes == hour * 60 + minute, np.nan, nee)
     if not hits:
         return None
     hits = pd.DataFrame(hits).sort_index()

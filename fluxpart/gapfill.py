@@ -127,6 +127,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from ._validate import float_copy
 from .constants import SECONDS_PER_DAY
 from .errors import (
     ConfigError,
@@ -314,13 +315,7 @@ def _records_per_day(index) -> tuple[int, int]:
 
 def _as_values(values, name: str, index) -> np.ndarray:
     """Return ``values`` as a new float64 vector, checked against ``index``."""
-    try:
-        if isinstance(values, (pd.Series, pd.Index)):
-            array = values.to_numpy(dtype=np.float64, na_value=np.nan, copy=True)
-        else:
-            array = np.array(values, dtype=np.float64)
-    except (TypeError, ValueError):
-        raise FluxpartError(f"{name}: expected numbers (NaN where missing)") from None
+    array = float_copy(values, name)
     if array.ndim != 1:
         raise FluxpartError(f"{name}: expected a 1-D series, found shape {array.shape}")
     if array.size != len(index):

@@ -5578,25 +5578,22 @@ def _potential(starts: pd.DatetimeIndex, site, interval_minutes: int):
                                interval_minutes=interval_minutes)
 
 
+#: What each count of :func:`_conversion_text` says of its stamps, in the order named.
+_CONVERSION_PHRASES = (
+    ("hour_24", "hour-24 stamp(s) read as next midnight"),
+    ("utc_offset", "stamp(s) with a UTC offset to local standard time"),
+    ("rounded_to_minute", "stamp(s) within seconds of a whole minute rounded to it"),
+    ("date_only", "stamp(s) written as the date alone read as midnight"),
+    ("whole_numbers", "stamp(s) with whole numbers written with a decimal point (2021.0) "
+                      "read without it"),
+    ("decimal_fields", "stamp(s) with a decimal hour or day of the year read as the clock "
+                       "it states"),
+)
+
+
 def _conversion_text(conversions: dict) -> str:
-    parts = []
-    if conversions.get("hour_24"):
-        parts.append(f"{conversions['hour_24']} hour-24 stamp(s) read as next midnight")
-    if conversions.get("utc_offset"):
-        parts.append(f"{conversions['utc_offset']} stamp(s) with a UTC offset to local "
-                     "standard time")
-    if conversions.get("rounded_to_minute"):
-        parts.append(f"{conversions['rounded_to_minute']} stamp(s) within seconds of a whole "
-                     "minute rounded to it")
-    if conversions.get("date_only"):
-        parts.append(f"{conversions['date_only']} stamp(s) written as the date alone read "
-                     "as midnight")
-    if conversions.get("whole_numbers"):
-        parts.append(f"{conversions['whole_numbers']} stamp(s) with whole numbers written "
-                     "with a decimal point (2021.0) read without it")
-    if conversions.get("decimal_fields"):
-        parts.append(f"{conversions['decimal_fields']} stamp(s) with a decimal hour or day of "
-                     "the year read as the clock it states")
+    parts = [f"{conversions[key]} {phrase}" for key, phrase in _CONVERSION_PHRASES
+             if conversions.get(key)]
     if conversions.get("utc_zone"):
         parts.append(f"{conversions['utc_zone']} stamp(s) in {conversions.get('time_zone')} "
                      "moved to local standard time")

@@ -33,6 +33,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from .robust_scale import scaled_mad
+
 __all__ = ["SMOOTHED_CORRELATION", "running_mean_length", "smoothed_nee"]
 
 #: Correlation of consecutive night changes of NEE at or above which the column is named
@@ -179,7 +181,7 @@ def _clipped_correlation(a, b, changes):
     """(correlation, pairs) of the pairs of changes (`a`, `b`), each clipped at five scaled
     median absolute deviations of the night changes `changes`; None where they have no
     spread (see :func:`_part_correlation`)."""
-    bound = 5.0 * 1.4826 * float(np.median(np.abs(changes)))
+    bound = scaled_mad(changes, centre=0.0, multiple=5.0)
     if not bound > 0.0:
         return None
     a, b = np.clip(a, -bound, bound), np.clip(b, -bound, bound)
@@ -282,7 +284,7 @@ def running_mean_length(nee, night) -> int | None:
     usable = night[1:] & night[:-1] & np.isfinite(change) & (change != 0.0)
     if not usable.any():
         return None
-    bound = 5.0 * 1.4826 * float(np.median(np.abs(change[usable])))
+    bound = scaled_mad(change[usable], centre=0.0, multiple=5.0)
     if not bound > 0.0:
         return None
     clipped = np.clip(np.where(usable, change, 0.0), -bound, bound)

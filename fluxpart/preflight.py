@@ -1428,11 +1428,14 @@ _CLOCK_LIKE_MIN_SHIFT = 10.0
 #: of elevation on one side at least 0.45.
 _CLOCK_LIKE_AGREEMENT = 0.25
 
-#: Findings of NEE written in steps of two or more records (a coarser flux written twice,
-#: records repeated): on the day's ramps a step's first record departs from its
-#: neighbours with the ramp's sign at whole hours, which the fixed-time check would call
-#: a calibration; the finding named names the cause (round mistakes49).
-_NEE_STEPS = ("input (nee twice)", "input (repeated records)", "input (repeated NEE)")
+#: Findings of NEE written in steps of two records (a coarser flux written twice): on the
+#: day's ramps a step's first record departs from its neighbours with the ramp's sign at
+#: whole hours, which the fixed-time check would call a calibration; the finding named
+#: names the cause (round mistakes49). Records repeating others a day or more away (or
+#: pasted over other records) are no steps: beside such a finding the check runs (it was
+#: skipped there, round leftovers52), and a record equal to a neighbour is never judged
+#: (:meth:`fluxpart.fixed_time_offsets._Setting.departures`).
+_NEE_STEPS = ("input (nee twice)",)
 
 
 def _fixed_time_offsets(frame: pd.DataFrame, is_night, interval_minutes: float,

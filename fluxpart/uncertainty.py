@@ -74,6 +74,7 @@ from .errors import (
 )
 from .gap_sides import gap_runs, run_ids
 from .partition import pieces
+from .robust_scale import scaled_mad
 from .schema import NOT_QUANTIFIED, RANDOM_ERROR_MODEL_COLUMNS, UNCERTAINTY_COLUMNS
 
 __all__ = [
@@ -2136,7 +2137,7 @@ def effective_records(residuals, use) -> float:
     if pairs.sum() < _MIN_NEIGHBOUR_PAIRS:
         return float(n)
     centre = float(np.median(values[used]))
-    scale = 1.4826 * float(np.median(np.abs(values[used] - centre)))
+    scale = scaled_mad(values[used], centre)
     anomaly = values - centre
     if scale > 0:
         anomaly = np.clip(anomaly, -3.0 * scale, 3.0 * scale)

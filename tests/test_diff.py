@@ -141,7 +141,8 @@ def test_versions_code_and_platform_are_named(folders, tmp_path):
     named = {(section, name.split(" ")[0]) for section, name, _, _ in report.items}
     assert {("version", "numpy"), ("code", "fingerprint"),
             ("platform", "numpy_cpu_features")} <= named
-    assert report.annual.empty and report.exit_code == 1
+    # facts of the run, not of the result: every table is byte-identical (leftovers52)
+    assert report.annual.empty and report.exit_code == 0 and not report.result_items
 
 
 def test_a_folder_that_does_not_match_its_manifest_is_an_error(folders, tmp_path, capsys):

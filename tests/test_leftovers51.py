@@ -30,14 +30,19 @@ def _other_cpu(manifest):
     platform["machine"] = "x86_64" if platform.get("machine") != "x86_64" else "amd64"
 
 
-@pytest.fixture
-def rerun(pristine_bundle, tmp_path):
-    """The session bundle's folder and a copy whose manifest records another CPU."""
+def copied_rerun(pristine_bundle, tmp_path, change):
+    """The session bundle's folder and a copy whose manifest `change` edits (resealed)."""
     first = pristine_bundle / "out"
     second = tmp_path / "rerun"
     shutil.copytree(first, second)
-    _edit_manifest(second, _other_cpu, reseal=True)
+    _edit_manifest(second, change, reseal=True)
     return first, second
+
+
+@pytest.fixture
+def rerun(pristine_bundle, tmp_path):
+    """The session bundle's folder and a copy whose manifest records another CPU."""
+    return copied_rerun(pristine_bundle, tmp_path, _other_cpu)
 
 
 def test_platform_facts_alone_are_no_difference_of_the_result(rerun, capsys):
