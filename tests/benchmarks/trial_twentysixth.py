@@ -87,7 +87,8 @@ fluxpart's output):
 - soil temperature at 10 cm: the daily mean lagged by an exponential filter of 4 days, the
   sub-daily part by one of 9 h (a first-order filter damping the diurnal wave to ~0.4 of the
   air's, the order of exp(-z / d) at 10 cm with a damping depth of ~0.1 m (m)), 1 K warmer
-  than the air on average (m); under snow held just below 0 deg C (invented).
+  than the air on average (m); under snow held just below 0 deg C with a small red noise
+  (invented).
 - snow: a degree-day pack, melt 4.5 mm K-1 d-1 (common range 2-6 (m)).
 - rain: wet days by a two-state Markov chain (Richardson 1981 (m); transition probabilities
   invented per site and season), exponential amounts; each wet day's rain in one spell of
@@ -97,7 +98,8 @@ fluxpart's output):
   kPa K-1, lambda 2.45 MJ kg-1), held back below REW 0.4 (Granier et al. 1999 (m)).
 - wind and u*: a daily Weibull (k = 2) wind speed with a record AR(1); u* = 0.4 U / ln(z /
   z0) (neutral log law, von Karman constant 0.4 (m)) times a stability factor larger in
-  strong sun and smaller on clear calm nights (invented).
+  strong sun and smaller on clear calm nights (invented); calm readings below 0.02 m s-1
+  scatter uniformly over 0.005-0.02 (a sonic does not stick at a floor; invented).
 - uptake: GPP = (a Q + P - sqrt((a Q + P)^2 - 4 theta a Q P)) / (2 theta) (non-rectangular
   hyperbola, Johnson and Thornley 1984 (m)); a and P scaled by the intercepted share
   1 - exp(-0.5 LAI) (Beer's law (m)); theta from theta_lo to theta_hi with the season
@@ -334,7 +336,8 @@ def weather(site, idx, rng, variant):
         rew[d] = store
     fast = tair - t_day[day]
     tsoil = exp_filter(t_day, 4.0)[day] + 1.0 + exp_filter(fast, 9 * 60 / site.step)
-    tsoil = np.where(snow[day], np.clip(0.1 * tsoil - 0.3, -2.0, 0.0), tsoil)
+    under_snow = np.clip(0.1 * tsoil - 0.3, -2.0, -0.05) + 0.03 * ar1(rng, n, 0.95)
+    tsoil = np.where(snow[day], under_snow, tsoil)
     rain_rec = np.zeros(n, bool)
     for d in np.flatnonzero(amount > 0.3):
         first = d * per_day + int(rng.integers(0, per_day))
@@ -347,7 +350,9 @@ def weather(site, idx, rng, variant):
                        * np.exp(0.2 * ar1(rng, n, 0.85)), 0.2)
     stab = np.where(up, 1.0 + 0.2 * ramp(rg, 100, 800),
                     np.clip(0.5 + 0.1 * speed - 0.25 * (kt_d[day] - 0.45), 0.25, 1.0))
-    ustar = np.round(np.clip(0.4 * speed / site.log_z * stab, 0.01, 2.0), 3)
+    ustar = np.minimum(0.4 * speed / site.log_z * stab, 2.0)
+    calm = ustar < 0.02               # a sonic's calm readings scatter, they do not stick
+    ustar = np.round(np.where(calm, rng.uniform(0.005, 0.02, n), ustar), 3)
     return {"day": day, "per_day": per_day, "n_days": n_days, "doy": doy, "sin_h": sin_h,
             "summer": summer, "rg": rg, "tair": tair, "t_day": t_day, "vpd": vpd, "rh": rh,
             "tsoil": tsoil, "rew": rew, "snow": snow, "rain": rain_rec, "ustar": ustar}
