@@ -63,7 +63,9 @@ Run from the repository root (about four minutes a draw on two shared cores)::
 ``nokok`` (foliage respiration not inhibited by light), ``nofoliage`` (no foliage part: all
 of Reco on soil temperature), ``nodrivergaps`` (the drivers complete), ``nolong`` (no
 analyser failure, 14-21-day gap or lost winter month), ``fixedtheta`` (the curvature held at
-its annual mean), ``nodrought`` (no soil-water or VPD factor)); ``--planted-ustar`` runs at
+its annual mean), ``nodrought`` (no soil-water or VPD factor), ``nolowlight`` (no uptake
+where Rg < 10 W m-2, twilight or low sun: the records a radiation-defined night holds, such as
+the midnight sun's)); ``--planted-ustar`` runs at
 the planted threshold; ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -145,7 +147,7 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "nokok", "nofoliage", "nodrivergaps",
-            "nolong", "fixedtheta", "nodrought")
+            "nolong", "fixedtheta", "nodrought", "nolowlight")
 KOK_INHIBITION = 0.25     # leaf respiration lower in light (Heskel et al. 2013 order (m))
 LOSS_BELOW = 0.4          # share of the night flux lost below 0.8 thr (invented)
 
@@ -433,6 +435,8 @@ def fluxes(site, idx, met, rng, variant):
         state = exp_filter(met["tair"], 5 * met["per_day"])
         cap = cap * ramp(state, -3.0, 8.0)
     gpp = nonrect_hyperbola(ppfd, site.alpha * cover, cap, theta)
+    if "nolowlight" in variant:                # no uptake in the records below 10 W m-2
+        gpp = np.where(met["rg"] < 10, 0.0, gpp)
     # respiration: soil (Lloyd-Taylor on 10 cm soil temperature, moisture) + foliage (Q10 on air)
     f_m = 1.0 if dry else 1.12 * rew / (rew + 0.12)
     soil = site.r10 * np.exp(site.e0 * (1 / 56.02 - 1 / (met["tsoil"] + 46.02))) * f_m
