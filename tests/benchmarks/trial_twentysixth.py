@@ -134,13 +134,10 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
-    chosen_variant,
     fill_errors,
-    print_misses_z,
     print_scored_row,
-    run_sites,
     score_budget_years,
-    trial_parser,
+    trial_main,
     write_logger_site,
 )
 
@@ -579,8 +576,8 @@ LAYOUTS = {
           {"nee": "eco_co2", "rg": "sun_in", "tair": "temp_screen", "rh": "hum_screen",
            "ustar": "friction_ms", "tsoil": "soil_probe_10"}, {}),
     "L": ("ende", "%Y%m%d%H%M", "end", "-9999",
-          {"nee": "co2_austausch", "rg": "globalstrahlung", "tair": "lufttemp_2m",
-           "rh": "luftfeuchte", "ustar": "schubspannung", "tsoil": "boden_10cm"}, {}),
+          {"nee": "netto_co2", "rg": "strahlung_kurz", "tair": "temp_luft",
+           "rh": "feuchte_rel", "ustar": "reibung_u", "tsoil": "temp_boden_10"}, {}),
     "G": ("record_start", "%Y/%m/%d %H:%M", "start", "-9999",
           {"nee": "tower_co2", "rg": "shortwave_incoming", "tair": "temp_46m",
            "rh": "rh_46m", "ustar": "friction_46m", "tsoil": "soil_t_10cm"}, {}),
@@ -627,15 +624,8 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 
 
 def main(argv=None):
-    parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial26", VARIANTS)
-    options = parser.parse_args(argv)
-    code = run_sites(options, SITES, simulate, write_site, score, print_row,
-                     chosen_variant(parser, options, VARIANTS))
-    path = options.out / "scores.csv"
-    if path.exists():
-        rows = pd.read_csv(path)
-        print_misses_z(rows[rows["complete"]].to_dict("records"))
-    return code
+    return trial_main(argv, __doc__, "/tmp/fluxpart-trial26", VARIANTS, SITES, simulate, write_site, score,
+                      print_row)
 
 
 if __name__ == "__main__":
