@@ -25,8 +25,9 @@ names and default settings, and writes the physics and the gaps in OTHER forms:
 - gaps CLUSTERED BY INSTRUMENT: a two-state (Gilbert-Elliott) dropout process, more often
   bad by night; rain on the open path (the wet records and the next hour); analyser failures
   of days (a Poisson number a year, log-normal lengths); a LOST WINTER MONTH at the tundra
-  (iced analyser); at the heavy-gap forest two or three gaps of 14-21 days (NEE not measured
-  40-55 %); and weather drivers with gaps of their OWN (Tair with VPD or RH missing for hours,
+  (iced analyser); at the heavy-gap forest two or three gaps of 14-21 days and more dropouts
+  (38-42 % of NEE lost to the instruments in draws 0-2, 57-59 % not measured once the run's
+  u* filter is applied); and weather drivers with gaps of their OWN (Tair with VPD or RH missing for hours,
   Rg missing for a week, u* and soil temperature missing for a while);
 - a u*-dependent night loss below the planted threshold that FADES LINEARLY over +-20 % of
   it (40 % of the flux lost below 0.8 thr, nothing above 1.2 thr);
@@ -51,9 +52,9 @@ helpers of ``trial_scoring.py`` are shared). Eight sites, one budget year each:
 - L  a cut grassland at 51.1 deg N, 30 min, 2024 (a LEAP year), two cuts declared as
      ``events``; threshold 0.10;
 - G  a mixed forest at 45.6 deg N, 30 min, 2021, HEAVY GAPS (two or three gaps of 14-21 days
-     and more dropouts: NEE not measured 40-55 %); threshold 0.28.
+     and more dropouts); threshold 0.28.
 
-Run from the repository root (about four minutes a draw on two shared cores)::
+Run from the repository root (about two minutes a draw on two shared cores)::
 
     python tests/benchmarks/trial_twentysixth.py --out /tmp/fluxpart-trial26 [--runs D,G]
         [--seed-offset 1]
