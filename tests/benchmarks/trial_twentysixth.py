@@ -118,7 +118,8 @@ fluxpart's output):
   K); foliage rleaf LAI Q10^((Tair - 20) / 10) times 1 - 0.25 min(1, PPFD / 60) (Kok effect,
   above).
 - u* loss: by night (sun below the horizon) the measured share of the flux 0.6 below 0.8 thr,
-  1 above 1.2 thr, linear between (the loss's size invented).
+  1 above 1.2 thr, linear between (the loss's size invented). The u* found is scored against
+  thr, the fade's middle (``ustar_rel``); the loss ENDS at 1.2 thr (+20 %).
 - random error: Student t with 5 degrees of freedom scaled to sigma = 0.5 + 0.12 |NEE| umol
   m-2 s-1 (heavy-tailed, heteroscedastic: Richardson et al. 2006 form (m); sizes invented);
   0.2 % spikes of 5-15 umol m-2 s-1, nine in ten removed by the QC.
