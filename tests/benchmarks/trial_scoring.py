@@ -489,3 +489,21 @@ def print_misses_z(rows):
                 z = r[f + "_err"] / max(r[f + "_halfwidth"] / 1.96, 1e-9)
                 print(f"  {r['site_year']:9s} {f:15s} err {r[f + '_err']:+8.1f} "
                       f"({r[f + '_rel']:+6.1f} %) +-{r[f + '_halfwidth']:6.1f}  z {z:+5.2f}")
+
+
+def trial_main(argv, doc, default_out, variants, sites, simulate, write_site, score,
+               print_row):
+    """A trial's whole command line (since ``trial_twentysixth.py``): parse it
+    (:func:`trial_parser`, the first line of `doc` as description), :func:`run_sites`, then
+    :func:`print_misses_z` of the complete site-years in ``scores.csv``; the exit code."""
+    import pandas as pd
+
+    parser = trial_parser(doc.splitlines()[0], default_out, variants)
+    options = parser.parse_args(argv)
+    code = run_sites(options, sites, simulate, write_site, score, print_row,
+                     chosen_variant(parser, options, variants))
+    path = options.out / "scores.csv"
+    if path.exists():
+        rows = pd.read_csv(path)
+        print_misses_z(rows[rows["complete"]].to_dict("records"))
+    return code

@@ -126,13 +126,10 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
-    chosen_variant,
-    print_misses_z,
     print_rain_outage_row,
     rain_outage_fill_parts,
-    run_sites,
     score_budget_years,
-    trial_parser,
+    trial_main,
     write_logger_site,
 )
 
@@ -567,15 +564,8 @@ def score(site: Site, truth: pd.DataFrame, out: Path, check):
 
 
 def main(argv=None):
-    parser = trial_parser(__doc__.splitlines()[0], "/tmp/fluxpart-trial25", VARIANTS)
-    options = parser.parse_args(argv)
-    code = run_sites(options, SITES, simulate, write_site, score, print_rain_outage_row,
-                     chosen_variant(parser, options, VARIANTS))
-    path = options.out / "scores.csv"
-    if path.exists():
-        rows = pd.read_csv(path)
-        print_misses_z(rows[rows["complete"]].to_dict("records"))
-    return code
+    return trial_main(argv, __doc__, "/tmp/fluxpart-trial25", VARIANTS, SITES, simulate, write_site, score,
+                      print_rain_outage_row)
 
 
 if __name__ == "__main__":
