@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47, 49).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-50).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -806,8 +806,8 @@ def flag_zero_bad(frame, text):
 def flag_zero_bad_all_kept(frame, text):
     """... with ``flag_accept = [0, 1]`` written to make the run pass."""
     out, _ = flag_zero_bad(frame, text)
-    return out, text.replace('nee_flag = "qc_co2"\n', 'nee_flag = "qc_co2"\n', 1).replace(
-        "missing = [-9999]\n", "missing = [-9999]\nflag_accept = [0, 1]\n", 1)
+    return out, text.replace("missing = [-9999]\n", "missing = [-9999]\nflag_accept = [0, 1]\n",
+                             1)
 
 
 def latitude_degrees_minutes(frame, text):
