@@ -35,11 +35,12 @@ Functional Ecology 8, 315-323.
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 from .column_faults import _daily_anomaly
 from .variables import saturation_temperature
 
-__all__ = ["DAMPED_RATIO", "STAGE", "damped_tair"]
+__all__ = ["DAMPED_RATIO", "STAGE", "damped_months", "damped_ratio", "damped_tair"]
 
 #: The stage named in the preflight finding.
 STAGE = "input (tair damped)"
@@ -56,8 +57,11 @@ _MIN_CORRELATION = 0.9
 #: VPD column's rounding moves the implied temperature by tenths of a K (the bound of
 #: :func:`fluxpart.column_faults.delayed_tair`).
 _MAX_RH = 90.0
-#: Fewest days' worth of records with both daily courses present to judge [days].
+#: Fewest days' worth of records with both daily courses present to judge [days] (half
+#: of each day's records, those of RH up to :data:`_MAX_RH` %, counted).
 _MIN_DAYS = 30
+#: The same for a calendar month judged alone [days] (our choice: a third of a month).
+_MIN_MONTH_DAYS = 10
 
 
 def damped_ratio(tair, rh, vpd, interval_minutes: float) -> tuple[float, float, int]:
@@ -97,20 +101,32 @@ def damped_ratio(tair, rh, vpd, interval_minutes: float) -> tuple[float, float, 
     Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
     Biophysics, 2nd ed. Springer, ch. 3 (m).
     """
+    a_tair, a_implied, per_day = _anomalies(tair, rh, vpd, interval_minutes)
+    return _ratio(a_tair, a_implied, _MIN_DAYS * per_day // 2)
+
+
+def _anomalies(tair, rh, vpd, interval_minutes: float):
+    """Daily anomalies of tair and of the temperature VPD and RH imply (NaN where not
+    judged), and the records per day; empty where the interval or lengths do not fit."""
     tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
     per_day = int(round(1440 / interval_minutes)) if interval_minutes > 0 else 0
     if per_day < 4 or not tair.size == rh.size == vpd.size:
-        return np.nan, np.nan, 0
+        return np.empty(0), np.empty(0), max(per_day, 1)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         usable = (np.isfinite(tair) & np.isfinite(rh) & np.isfinite(vpd) & (rh >= 1.0)
                   & (rh <= _MAX_RH) & (vpd > 0))
         implied = saturation_temperature(np.where(usable, vpd / (1.0 - rh / 100.0), np.nan))
     usable &= np.isfinite(implied) & (implied > -60) & (implied < 60)
-    a_tair = _daily_anomaly(np.where(usable, tair, np.nan), per_day)
-    a_implied = _daily_anomaly(np.where(usable, implied, np.nan), per_day)
+    return (_daily_anomaly(np.where(usable, tair, np.nan), per_day),
+            _daily_anomaly(np.where(usable, implied, np.nan), per_day), per_day)
+
+
+def _ratio(a_tair, a_implied, minimum: int) -> tuple[float, float, int]:
+    """var(a_tair) / cov(a_tair, a_implied), their correlation and the pairs counted
+    (NaN below `minimum` pairs or without a positive covariance)."""
     both = np.isfinite(a_tair) & np.isfinite(a_implied)
     count = int(both.sum())
-    if count < _MIN_DAYS * per_day // 2:
+    if count < max(minimum, 2):
         return np.nan, np.nan, count
     x = a_tair[both] - a_tair[both].mean()
     y = a_implied[both] - a_implied[both].mean()
@@ -121,7 +137,39 @@ def damped_ratio(tair, rh, vpd, interval_minutes: float) -> tuple[float, float, 
     return float(np.sum(x * x)) / covariance, covariance / np.sqrt(spread), count
 
 
-def damped_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
+def damped_months(tair, rh, vpd, index, interval_minutes: float) -> dict:
+    """:func:`damped_ratio` of each calendar month with :data:`_MIN_MONTH_DAYS` days'
+    worth of records judged (the anomalies taken over the whole record).
+
+    Parameters
+    ----------
+    tair, rh, vpd : array_like
+        Air temperature [degC], relative humidity [%], VPD [hPa] of each record.
+    index : pandas.DatetimeIndex
+        The records' stamps, same length (calendar months).
+    interval_minutes : float
+        Record interval [min].
+
+    Returns
+    -------
+    dict
+        ``"YYYY-MM"`` -> (ratio [1], correlation [1], records), months judged only.
+    """
+    a_tair, a_implied, per_day = _anomalies(tair, rh, vpd, interval_minutes)
+    if a_tair.size == 0 or len(index) != a_tair.size:
+        return {}
+    labels = np.asarray(pd.DatetimeIndex(index).strftime("%Y-%m"))
+    out = {}
+    for month in dict.fromkeys(labels):
+        rows = labels == month
+        ratio = _ratio(a_tair[rows], a_implied[rows], _MIN_MONTH_DAYS * per_day // 2)
+        if np.isfinite(ratio[0]):
+            out[month] = ratio
+    return out
+
+
+def damped_tair(tair, rh, vpd, interval_minutes: float, columns=None,
+                index=None) -> str | None:
     """A message where the tair column's daily course swings less than the air's, or None.
 
     Parameters
@@ -132,13 +180,17 @@ def damped_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | N
         Record interval [min].
     columns : dict, optional
         Canonical name -> file column, to name the columns in the message.
+    index : pandas.DatetimeIndex, optional
+        The records' stamps: where the whole record is not named, each calendar month
+        is judged alone (:func:`damped_months`).
 
     Returns
     -------
     str or None
         The warning text; None where the ratio of :func:`damped_ratio` is
         :data:`DAMPED_RATIO` or more, its correlation below :data:`_MIN_CORRELATION`, or
-        too few records judge (a VPD computed from the tair column gives a ratio of 1).
+        too few records judge (a VPD computed from the tair column gives a ratio of 1),
+        and, with `index`, no month is named by the same rule.
 
     References
     ----------
@@ -146,13 +198,27 @@ def damped_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | N
     Boundary-Layer Meteorology 56, 401-410 (m).
     """
     ratio, correlation, count = damped_ratio(tair, rh, vpd, interval_minutes)
-    if not (ratio < DAMPED_RATIO and correlation >= _MIN_CORRELATION):
-        return None
     names = columns or {}
+    where = f"{count} records"
+    if not (ratio < DAMPED_RATIO and correlation >= _MIN_CORRELATION):
+        if index is None:
+            return None
+        # a sonic's temperature pasted in for some months (a humidity probe's
+        # thermometer lost for a summer), diluted below the rule over the record
+        months = {month: values for month, values
+                  in damped_months(tair, rh, vpd, index, interval_minutes).items()
+                  if values[0] < DAMPED_RATIO and values[1] >= _MIN_CORRELATION}
+        if not months:
+            return None
+        ratio = float(np.median([values[0] for values in months.values()]))
+        correlation = float(np.median([values[1] for values in months.values()]))
+        where = (f"in {len(months)} month(s): "
+                 + ", ".join(f"{m} ({v[0]:.2f})" for m, v in list(months.items())[:6])
+                 + (" and more" if len(months) > 6 else ""))
     return (f"air temperature (column {names.get('tair', 'tair')!r}) swings {ratio:.2f} "
             f"times as far over the day as the air temperature that VPD "
             f"({names.get('vpd', 'vpd')!r}) and RH ({names.get('rh', 'rh')!r}) imply "
-            f"({count} records, correlation of the daily courses {correlation:.2f}), where "
+            f"({where}; correlation of the daily courses {correlation:.2f}), where "
             "two thermometers of one air agree within a few percent: a damped temperature "
             "(the sonic anemometer's, a sensor in the canopy's shade, a series averaged "
             "over hours) narrows the nights' temperature range and moves E0 and the "

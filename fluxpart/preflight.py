@@ -662,7 +662,7 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             text = damped_tair.damped_tair(screened["tair"].to_numpy(dtype=float),
                                            screened["rh"].to_numpy(dtype=float),
                                            screened["vpd"].to_numpy(dtype=float),
-                                           interval_minutes, names)
+                                           interval_minutes, names, screened.index)
             if text:
                 findings.append(Finding(damped_tair.STAGE, text, False))
     return findings

@@ -43,6 +43,13 @@ def test_a_damped_temperature_is_named_and_the_probes_own_and_an_offset_are_not(
     assert damped_tair.damped_tair(tair, rh, vpd, 30) is None
     assert damped_tair.damped_tair(tair + 2.0, rh, vpd, 30) is None   # an offset alone
     assert damped_tair.damped_tair(_sonic(tair, 0.95), rh, vpd, 30) is None
+    # a sonic's temperature for the second month only: named by that month
+    index = pd.date_range("2021-05-01", periods=tair.size, freq="30min")
+    later = index.month == 6
+    text = damped_tair.damped_tair(np.where(later, _sonic(tair, 0.6), tair), rh, vpd, 30,
+                                   index=index)
+    assert text is not None and "1 month(s): 2021-06" in text
+    assert damped_tair.damped_tair(tair, rh, vpd, 30, index=index) is None
     # too short a record to judge
     assert damped_tair.damped_tair(_sonic(tair, 0.5)[:PER_DAY * 10], rh[:PER_DAY * 10],
                                    vpd[:PER_DAY * 10], 30) is None

@@ -764,6 +764,15 @@ def sonic_damped_as_tair(frame, text):
     return _with(frame, "air_temp_c", sonic.round(2).fillna(MISSING).to_numpy()), text
 
 
+def sonic_as_tair_in_summer(frame, text):
+    """The same sonic temperature pasted into tair for June-August (the humidity probe's
+    own thermometer lost for a summer; its VPD and RH kept)."""
+    sonic, _ = sonic_damped_as_tair(frame, text)
+    summer = _months(frame, [6, 7, 8])
+    return _with(frame, "air_temp_c", np.where(summer, sonic["air_temp_c"],
+                                               frame["air_temp_c"])), text
+
+
 def hourly_start_read_as_end(frame, text):
     """60-min records (the means of each hour) stamped at their start, read as ends."""
     data = frame.replace(MISSING, np.nan)
@@ -847,6 +856,7 @@ CASES.update({
     "u* in cm s-1 from July": ustar_cm_from_july,
     "tsoil in °F from July": tsoil_fahrenheit_from_july,
     "sonic temperature as tair (+2 K, damped)": sonic_damped_as_tair,
+    "sonic temperature as tair in Jun-Aug": sonic_as_tair_in_summer,
     "60-min start stamps read as end": hourly_start_read_as_end,
     "two towers' files, overlap kept first": two_towers_first,
     "two towers' files, overlap kept last": two_towers_last,
