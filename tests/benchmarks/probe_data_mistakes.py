@@ -849,7 +849,21 @@ def year_start_southern(frame, text):
     return frame, _processing(text, 'year_start = "07-01"')
 
 
+def summer_time_clock_warn(frame, text):
+    """Daylight-saving stamps with the clock check's refusal turned into a warning."""
+    out, text = summer_time_stamps(frame, text)
+    return out, _processing(text, 'clock_check = "warn"')
+
+
+def summer_time_clock_off(frame, text):
+    """... and with the clock check off."""
+    out, text = summer_time_stamps(frame, text)
+    return out, _processing(text, 'clock_check = "off"')
+
+
 CASES.update({
+    "summer time in half the year, clock_check warn": summer_time_clock_warn,
+    "summer time in half the year, clock_check off": summer_time_clock_off,
     "NEE sign flipped Jan-Jun (fixed in July)": nee_sign_flipped_first_half,
     "NEE in mg CO2 from July": nee_mg_from_july,
     "VPD in hPa from July (declared kPa)": vpd_hpa_from_july,
