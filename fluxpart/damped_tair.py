@@ -47,8 +47,9 @@ STAGE = "input (tair damped)"
 
 #: Largest ratio of the tair column's daily swing to the implied temperature's that is
 #: named [1]. Our choice: two thermometers of one air agree within a few percent of a
-#: daily swing of several K; at 0.8 the example's nighttime GPP moved by 1.3 sigma (a
-#: ratio of 0.85 moves it by about 1 sigma).
+#: daily swing of several K. Measured on the example: damped to 0.85 its nighttime GPP
+#: moved by -0.5 sigma, to 0.8 by -1.3, to 2/3 by -2.5; the bound names a damping before
+#: it moves a sum beyond its 1 sigma.
 DAMPED_RATIO = 0.85
 #: Smallest correlation of the two daily courses [1]: below it the columns are not one
 #: air's temperature at all, a case of other checks (a soil's, a delayed one).
