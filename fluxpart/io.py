@@ -2172,9 +2172,15 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
     # the jump of the values at the change measures the unit's factor (round mistakes41:
     # g C m-2 per record, 46 times smaller, was named as mg CO2, 22.7)
     head = message.split("; ")[0]
-    jump = jump_factor(values, starts, found[0][0])
+    # the cut whose jump is largest: where several month starts split the record into
+    # parts that each pass, the first may lie months before the change (round
+    # mistakes50: VPD in hPa from July measured around March, 0.7, "fits no unit")
+    jumps = [(jump_factor(values, starts, cut), first) for cut, first, _ in found]
+    jumps = [(jump, first) for jump, first in jumps if jump is not None]
+    jump, first_unit = (max(jumps, key=lambda pair: abs(np.log(pair[0][0]))) if jumps
+                        else (None, None))
     if jump is not None:
-        measured = jump[0] if found[0][1] == declared else 1.0 / jump[0]
+        measured = jump[0] if first_unit == declared else 1.0 / jump[0]
         factors = _unit_factors(name, declared, interval_minutes)
         fitted = unit_of_factor(measured, factors)
         refound = splits(fitted) if fitted not in (None, other) else []

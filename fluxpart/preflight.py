@@ -120,6 +120,8 @@ Warnings (the run goes on):
   it, not the air's).
 - ``input (tair sunlit)``: tair warmer in sunlight than VPD and RH imply (a thermometer
   heated by the sun, or a VPD of another temperature).
+- ``input (tair damped)``: tair's daily course swinging clearly less than the one VPD and RH
+  imply (a sonic's temperature, a sensor in shade, hourly means; round mistakes50).
 - ``input (vpd zeros)``: VPD 0 in most sunlit, warm records of a month (a rain gauge, a lost
   sensor).
 
@@ -135,6 +137,7 @@ import numpy as np
 import pandas as pd
 
 from . import (
+    damped_tair,
     day_sign,
     fixed_time_offsets,
     nee_limits,
@@ -653,6 +656,15 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                    screened.index)
             if text:
                 findings.append(Finding("input (tair sunlit)", text, False))
+        if not exchanged and not soil and not any(
+                finding.stage.startswith("input (tair") for finding in findings):
+            # an air temperature damped against the humidity's: a sonic's (mistakes50)
+            text = damped_tair.damped_tair(screened["tair"].to_numpy(dtype=float),
+                                           screened["rh"].to_numpy(dtype=float),
+                                           screened["vpd"].to_numpy(dtype=float),
+                                           interval_minutes, names, screened.index)
+            if text:
+                findings.append(Finding(damped_tair.STAGE, text, False))
     return findings
 
 

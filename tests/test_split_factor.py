@@ -4,6 +4,9 @@ Unit factors: CO2 44.009 and C 12.011 g mol-1 (IUPAC standard atomic weights (m)
 CO2 m-2 s-1 is 1000 / 44.009 = 22.72 µmol m-2 s-1 and g C m-2 per 30-min record is
 1e6 / 12.011 / 1800 = 46.25 µmol m-2 s-1.
 """
+import re
+from pathlib import Path
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -48,3 +51,31 @@ def test_a_factor_between_the_units_names_neither():
     factors = _unit_factors("nee", None, 30)
     assert unit_of_factor(32.4, factors) is None      # the geometric midpoint
     assert unit_of_factor(float("nan"), factors) is None
+
+
+def test_the_jump_is_measured_at_the_change_not_at_the_first_split(tmp_path):
+    """VPD of the invented grassland example written in hPa from July under a kPa
+    declaration (10 times: 1 kPa = 10 hPa, SI): several month starts split the record
+    into parts that pass, and the jump had been measured at the first of them (1 May
+    here; early March on the full year, a factor 0.7 that fits no unit) rather than at
+    the change (round mistakes50)."""
+    from fluxpart.errors import FluxpartError
+    from fluxpart.io import read_config
+
+    example = Path(__file__).resolve().parents[1] / "examples" / "quillmoor_grassland.toml"
+    config = tmp_path / example.name
+    config.write_text(example.read_text())
+    data = tmp_path / "quillmoor_grassland.csv"
+    frame = pd.read_csv(example.with_suffix(".csv"), dtype={"stamp_end": str})
+    month = frame["stamp_end"].str[4:6].astype(int)
+    frame = frame[(month >= 2) & (month <= 9)].reset_index(drop=True)   # February-September
+    later = frame["stamp_end"].str[4:6].astype(int) >= 7
+    vpd = frame["vpd_kpa"].to_numpy()
+    frame["vpd_kpa"] = np.where(later & (vpd != -9999), np.round(vpd * 10, 3), vpd)
+    frame.to_csv(data, index=False)
+    with pytest.raises(FluxpartError) as raised:
+        read_config(config)
+    text = str(raised.value)
+    at = re.search(r"either side of (\d{4}-\d{2}-\d{2})", text)
+    assert at is not None, text
+    assert pd.Timestamp(at.group(1)) >= pd.Timestamp("2021-06-20"), text

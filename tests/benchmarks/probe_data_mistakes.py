@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44, 47, 49).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-50).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -714,6 +714,173 @@ CASES.update({
     "Rg dust drift -10 % over the year": rg_dust_drift,
     "tsoil probe dug out from May": soil_probe_dug_out,
     "NEE sign flipped from July": nee_sign_flipped_half,
+})
+
+
+# Round mistakes50: further mistakes of data, settings and use, each checked against the
+# cases above first (variants within the record, other towers' files, settings copied).
+
+def _from_july(frame, column, edit):
+    values = frame[column].to_numpy()
+    later = _months(frame, range(7, 13)) & (values != MISSING)
+    return _with(frame, column, np.where(later, edit(values), values))
+
+
+def nee_sign_flipped_first_half(frame, text):
+    """A logger program that wrote uptake positive until a change in July."""
+    nee = _nee(frame)
+    early = _months(frame, range(1, 7)) & (nee != MISSING)
+    return _with(frame, "co2_exchange", np.where(early, -nee, nee)), text
+
+
+def nee_mg_from_july(frame, text):
+    """A new logger program from July writes NEE in mg CO2 m-2 s-1 (x 44.01e-3)."""
+    return _from_july(frame, "co2_exchange", lambda v: np.round(v * 44.01e-3, 5)), text
+
+
+def vpd_hpa_from_july(frame, text):
+    """VPD in hPa from July (a humidity sensor's new program), declared kPa."""
+    return _from_july(frame, "vpd_kpa", lambda v: np.round(v * 10, 3)), text
+
+
+def ustar_cm_from_july(frame, text):
+    """u* in cm s-1 from July (a sonic's new output), read as m s-1."""
+    return _from_july(frame, "friction_velocity", lambda v: np.round(v * 100, 2)), text
+
+
+def tsoil_fahrenheit_from_july(frame, text):
+    """The soil temperature in °F from July (a logger program change)."""
+    return _from_july(frame, "soil_temp_5cm", lambda v: np.round(v * 1.8 + 32, 2)), text
+
+
+def sonic_damped_as_tair(frame, text):
+    """The sonic's temperature as tair: virtual temperature +2 K (moist air, a path
+    heated by its transducers (m)) with the daily cycle damped by a third around the
+    day's mean (a sonic mounted in the canopy's shade (m))."""
+    tair = frame["air_temp_c"].replace(MISSING, np.nan)
+    day = np.arange(len(frame)) // PER_DAY
+    mean = tair.groupby(day).transform("mean")
+    sonic = mean + (tair - mean) * (2.0 / 3.0) + 2.0
+    return _with(frame, "air_temp_c", sonic.round(2).fillna(MISSING).to_numpy()), text
+
+
+def sonic_as_tair_in_summer(frame, text):
+    """The same sonic temperature pasted into tair for June-August (the humidity probe's
+    own thermometer lost for a summer; its VPD and RH kept)."""
+    sonic, _ = sonic_damped_as_tair(frame, text)
+    summer = _months(frame, [6, 7, 8])
+    return _with(frame, "air_temp_c", np.where(summer, sonic["air_temp_c"],
+                                               frame["air_temp_c"])), text
+
+
+def hourly_start_read_as_end(frame, text):
+    """60-min records (the means of each hour) stamped at their start, read as ends."""
+    data = frame.replace(MISSING, np.nan)
+    data.index = _stamps(frame)
+    groups = data.drop(columns="stamp_end").resample("1h", closed="right", label="right")
+    hourly = groups.mean().assign(qc_co2=groups["qc_co2"].max())
+    stamps = hourly.index - pd.Timedelta(minutes=60)
+    hourly.insert(0, "stamp_end", stamps.strftime("%Y%m%d%H%M"))
+    return hourly.round(4).fillna(MISSING).reset_index(drop=True), text
+
+
+def _two_towers(frame, keep):
+    """This tower's file to August and another (fictional) tower's from June,
+    concatenated; the overlapping stamps' duplicates dropped, ``keep`` first or last."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=11).with_suffix(".csv"),
+                            dtype={"stamp_end": str})
+    ours = frame[_months(frame, range(1, 9))]
+    theirs = other[_months(other, range(6, 13))]
+    joined = pd.concat([ours, theirs], ignore_index=True)
+    joined = joined.drop_duplicates("stamp_end", keep=keep)
+    return joined.sort_values("stamp_end").reset_index(drop=True)
+
+
+def two_towers_first(frame, text):
+    return _two_towers(frame, "first"), text
+
+
+def two_towers_last(frame, text):
+    return _two_towers(frame, "last"), text
+
+
+def flag_zero_bad(frame, text):
+    """A flag of another scale, 1 good and 0 bad, mapped as the site flag (0 kept)."""
+    flag = frame["qc_co2"].to_numpy()
+    return _with(frame, "qc_co2", np.where(flag == 0, 1, 0)), text
+
+
+def flag_zero_bad_all_kept(frame, text):
+    """... with ``flag_accept = [0, 1]`` written to make the run pass."""
+    out, _ = flag_zero_bad(frame, text)
+    return out, text.replace("missing = [-9999]\n", "missing = [-9999]\nflag_accept = [0, 1]\n",
+                             1)
+
+
+def latitude_degrees_minutes(frame, text):
+    """49°18' written 49.18 (degrees and minutes) for 49.3."""
+    return frame, text.replace("latitude = 49.3", "latitude = 49.18")
+
+
+def _processing(text, line):
+    return text.replace("[processing]\n", f"[processing]\n{line}\n", 1)
+
+
+def ustar_fixed_low(frame, text):
+    """A fixed u* threshold of another (windier, shorter) site: 0.05 m s-1."""
+    return frame, _processing(text, 'ustar_method = "fixed"\nustar_threshold = 0.05')
+
+
+def ustar_fixed_forest(frame, text):
+    """A fixed u* threshold of a forest: 0.4 m s-1."""
+    return frame, _processing(text, 'ustar_method = "fixed"\nustar_threshold = 0.4')
+
+
+def soil_50cm_as_driver(frame, text):
+    """The 50-cm soil probe as tsoil, set as the respiration driver."""
+    out, _ = soil_at_50cm(frame, text)
+    return out, _processing(text, 'respiration_driver = "tsoil"')
+
+
+def year_start_southern(frame, text):
+    """A budget year from July, the habit of a southern site's team, at this northern site."""
+    return frame, _processing(text, 'year_start = "07-01"')
+
+
+def summer_time_clock_warn(frame, text):
+    """Daylight-saving stamps with the clock check's refusal turned into a warning."""
+    out, text = summer_time_stamps(frame, text)
+    return out, _processing(text, 'clock_check = "warn"')
+
+
+def summer_time_clock_off(frame, text):
+    """... and with the clock check off."""
+    out, text = summer_time_stamps(frame, text)
+    return out, _processing(text, 'clock_check = "off"')
+
+
+CASES.update({
+    "summer time in half the year, clock_check warn": summer_time_clock_warn,
+    "summer time in half the year, clock_check off": summer_time_clock_off,
+    "NEE sign flipped Jan-Jun (fixed in July)": nee_sign_flipped_first_half,
+    "NEE in mg CO2 from July": nee_mg_from_july,
+    "VPD in hPa from July (declared kPa)": vpd_hpa_from_july,
+    "u* in cm s-1 from July": ustar_cm_from_july,
+    "tsoil in °F from July": tsoil_fahrenheit_from_july,
+    "sonic temperature as tair (+2 K, damped)": sonic_damped_as_tair,
+    "sonic temperature as tair in Jun-Aug": sonic_as_tair_in_summer,
+    "60-min start stamps read as end": hourly_start_read_as_end,
+    "two towers' files, overlap kept first": two_towers_first,
+    "two towers' files, overlap kept last": two_towers_last,
+    "flag of another scale (1 good, 0 bad)": flag_zero_bad,
+    "flag of another scale, flag_accept [0, 1]": flag_zero_bad_all_kept,
+    "latitude in degrees-minutes (49.18)": latitude_degrees_minutes,
+    "u* fixed 0.05 (another site's)": ustar_fixed_low,
+    "u* fixed 0.4 (a forest's)": ustar_fixed_forest,
+    "soil at 50 cm as respiration driver": soil_50cm_as_driver,
+    "year_start 07-01 (a southern habit)": year_start_southern,
 })
 
 

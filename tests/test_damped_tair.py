@@ -1,0 +1,55 @@
+"""An air temperature damped against the humidity's (round mistakes50).
+
+The VPD of each invented record is computed in the test from the true air temperature
+with the Magnus form of Alduchov & Eskridge (1996, eq. 21: e_s = 6.1094 exp(17.625 T /
+(T + 243.04)) hPa) and VPD = e_s(T) (1 - RH / 100) (Campbell & Norman 1998, ch. 3 (m)):
+a humidity probe's VPD and RH imply its air temperature. A sonic's temperature lies
+0.5-2 K above the air's (the virtual temperature, Kaimal & Gaynor 1991 (m)); its daily
+course damped is our planted fault.
+"""
+import numpy as np
+import pandas as pd
+
+from fluxpart import damped_tair
+
+DAYS, PER_DAY = 60, 48
+
+
+def _air():
+    """Invented records: a 10 K daily swing on weather changing over days, RH anti-phased."""
+    rng = np.random.default_rng(50)
+    hours = np.arange(DAYS * PER_DAY) / 2.0
+    daily = 15.0 + 3.0 * np.sin(2 * np.pi * hours / (24.0 * 9.0))
+    tair = daily + 5.0 * np.sin(2 * np.pi * (hours - 9.0) / 24.0)
+    rh = np.clip(70.0 - 2.5 * (tair - daily) + rng.normal(0, 3, tair.size), 20, 100)
+    es = 6.1094 * np.exp(17.625 * tair / (tair + 243.04))
+    vpd = np.round(es * (1 - rh / 100.0), 2)       # hPa, two decimals as a logger writes
+    return tair, rh, vpd
+
+
+def _sonic(tair, damping):
+    day = np.arange(tair.size) // PER_DAY
+    mean = pd.Series(tair).groupby(day).transform("mean").to_numpy()
+    return mean + damping * (tair - mean) + 2.0
+
+
+def test_a_damped_temperature_is_named_and_the_probes_own_and_an_offset_are_not():
+    tair, rh, vpd = _air()
+    text = damped_tair.damped_tair(_sonic(tair, 2 / 3), rh, vpd, 30,
+                                   {"tair": "t_sonic", "vpd": "vpd", "rh": "rh"})
+    assert text is not None and "'t_sonic'" in text and "0.67 times" in text
+    ratio = damped_tair.damped_ratio(tair, rh, vpd, 30)[0]
+    assert abs(ratio - 1.0) < 0.01                 # one air: the same daily course
+    assert damped_tair.damped_tair(tair, rh, vpd, 30) is None
+    assert damped_tair.damped_tair(tair + 2.0, rh, vpd, 30) is None   # an offset alone
+    assert damped_tair.damped_tair(_sonic(tair, 0.95), rh, vpd, 30) is None
+    # a sonic's temperature for the second month only: named by that month
+    index = pd.date_range("2021-05-01", periods=tair.size, freq="30min")
+    later = index.month == 6
+    text = damped_tair.damped_tair(np.where(later, _sonic(tair, 0.6), tair), rh, vpd, 30,
+                                   index=index)
+    assert text is not None and "1 month(s): 2021-06" in text
+    assert damped_tair.damped_tair(tair, rh, vpd, 30, index=index) is None
+    # too short a record to judge
+    assert damped_tair.damped_tair(_sonic(tair, 0.5)[:PER_DAY * 10], rh[:PER_DAY * 10],
+                                   vpd[:PER_DAY * 10], 30) is None
