@@ -4,6 +4,8 @@ Each test fails on the code before the fix it names.
 """
 from __future__ import annotations
 
+import json
+
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
@@ -77,3 +79,29 @@ def test_a_stopped_runs_staging_folder_given_to_verify_names_the_result(copy, ca
     err = capsys.readouterr().err
     assert "not a fluxpart result folder" in err
     assert f"left while writing {str(copy / 'out')!r}, not a result" in err
+
+
+def test_verify_json_is_one_strict_json_object_an_auditors_script_reads(copy, capsys):
+    """``verify --json`` (new): an auditor's script parsed the text verdict. Its stdout is
+    one JSON object (RFC 8259, read by Python's ``json`` with NaN refused), with the
+    verdict, the exit status and each difference's fields; a table changed in a folder
+    whose input is not at hand is named with nothing recomputed, exit 1."""
+    folder = copy / "out"
+
+    def strict(text):
+        return json.loads(text, parse_constant=lambda name: pytest.fail(f"{name} in JSON"))
+    assert main(["verify", "--json", str(folder)]) == 0
+    passed = strict(capsys.readouterr().out)
+    assert (passed["verdict"], passed["exit_code"], passed["recomputed"]) == (
+        "bit-identical", 0, True)
+    assert passed["differences"] == [] and passed["caution"] in passed["text"][-1]
+    table = pq.read_table(folder / "annual.parquet")
+    pq.write_table(table, folder / "annual.parquet", compression="gzip")
+    (copy / "tower.csv").rename(copy / "elsewhere.csv")
+    assert main(["verify", "--json", str(folder)]) == 1
+    failed = strict(capsys.readouterr().out)
+    assert (failed["verdict"], failed["exit_code"], failed["recomputed"]) == (
+        "not reproduced", 1, False)
+    assert [(d["table"], d["kind"], d["relative"]) for d in failed["differences"]] == [
+        ("annual", "hash", None)]
+    assert failed["folder_changes"] == ["annual.parquet changed after it was written"]
