@@ -505,8 +505,10 @@ class VerifyReport:
         ``rounding`` (each a :class:`Difference`'s fields; ``relative`` null where not a
         number), ``largest_relative_difference``, ``folder_changes``, ``environment``,
         ``code_changed``, ``notes``, ``caution`` and ``text`` (the lines the command
-        prints without ``--json``). Strict JSON (RFC 8259: no NaN), UTF-8, keys sorted:
-        the same report gives the same bytes.
+        prints without ``--json``). Strict JSON (RFC 8259: no NaN), keys sorted, every
+        character beyond ASCII escaped (``\\u2013``): readable under any locale's
+        output encoding (a latin-1 or C locale's stream could not take the en dash of
+        "Lloyd–Taylor"); the same report gives the same bytes.
         """
         def entry(d: Difference) -> dict:
             fields = dataclasses.asdict(d)
@@ -525,7 +527,7 @@ class VerifyReport:
             "folder_changes": self.folder_changes, "environment": list(self.environment),
             "code_changed": bool(self.code_changed), "notes": list(self.notes),
             "caution": VERIFY_CAUTION, "text": self.format().splitlines(),
-        }, indent=2, sort_keys=True, ensure_ascii=False, allow_nan=False)
+        }, indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
 
 
 #: The layout of ``verify --json``'s object (:meth:`VerifyReport.as_json`); a changed

@@ -67,6 +67,17 @@ under run and batch; Ctrl-C twice to a batch; the batch process killed alone; an
 Dask scheduler killed; the result's parent renamed mid-run; a stop while waiting for a
 lock; a batch stopped (once, twice, -9) as it replaces a network table.
 
+Round faults42 (result safety and a portable verify, again): kill -9 at 20 seeded
+random moments of run into an earlier result (10 over its writing), and at random
+moments of report, export --netcdf and export --csv; a result zipped and unzipped
+(unzip, Python's zipfile); the input re-saved with CRLF and by a spreadsheet; a table
+rewritten with its values (pandas; pyarrow with gzip); a batch site's folder alone; two
+runs of other seeds at once into an existing result, verify looping; the input appended
+to while read; --out a link to a result on another disk, killed mid-run; the JSON files
+with CRLF (git autocrlf); manifest numbers edited and respelled; --netcdf a link to a
+shared file and a link into no folder; a stopped run's staging given as a result;
+verify --json read by an auditor's script under three locales.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -3640,6 +3651,41 @@ def f_staging_given_as_result():
            f"one line naming the result {named}, {_stderr_tail(done[0], 100)}")
 
 
+_AUDITOR_SCRIPT = """
+import json, subprocess, sys
+done = subprocess.run([sys.executable, "-m", "fluxpart", "verify", "--json", *sys.argv[1:]],
+                      capture_output=True)
+try:
+    report = json.loads(done.stdout, parse_constant=lambda name: 1 / 0)
+    print(done.returncode, report["verdict"], report["exit_code"], len(report["differences"]))
+except ValueError:
+    print(done.returncode, "unparsable" if done.stdout else "none", done.stderr[-60:])
+"""
+
+
+def f_verify_json():
+    """An auditor's script reading ``verify --json`` (its own process, Python's json with
+    NaN refused) of a genuine result, a tampered one, a missing folder, and a genuine one
+    under the Latin-1 and C locales (output encodings that lack the en dash)."""
+    tampered = fresh("vjson")
+    data = (tampered / "daily.parquet").read_bytes()
+    (tampered / "daily.parquet").write_bytes(data[:-9] + bytes([data[-9] ^ 1]) + data[-8:])
+    seen = {}
+    for label, folder, lang in (("genuine", W / "r0", None), ("tampered", tampered, None),
+                                ("missing", W / "nowhere", None),
+                                ("latin-1", W / "r0", "de_DE.ISO-8859-1"),
+                                ("C", W / "r0", "C")):
+        env = dict(ENV, LC_ALL=lang, PYTHONUTF8="0") if lang else ENV
+        done = subprocess.run([PY, "-c", _AUDITOR_SCRIPT, folder], env=env, cwd=W / "b",
+                              capture_output=True, text=True, timeout=300)
+        seen[label] = done.stdout.strip()
+    record("verify --json read by an auditor's script (genuine, tampered, missing, locales)",
+           seen["genuine"].startswith("0 bit-identical 0 0")
+           and seen["tampered"].startswith("1 not reproduced 1")
+           and seen["missing"].startswith("2 none")
+           and seen["latin-1"] == seen["C"] == seen["genuine"], f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -3690,7 +3736,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_input_resaved_by_spreadsheet, f_parquet_rewritten_same_values, f_batch_site_alone,
           f_two_runs_existing_other_configs, f_input_appended_during_read,
           f_out_symlink_other_disk, f_git_crlf_checkout, f_manifest_number_edited,
-          f_netcdf_through_link, f_staging_given_as_result]
+          f_netcdf_through_link, f_staging_given_as_result, f_verify_json]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
