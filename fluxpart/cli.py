@@ -606,6 +606,10 @@ def _parser() -> argparse.ArgumentParser:
                         help="print each differing metadata entry (a column's description or "
                         "unit, each copy) with both texts in full; by default a table's "
                         "metadata differences are one line naming the columns")
+    verify.add_argument("--json", action="store_true",
+                        help="print the report as one JSON object (verdict, exit_code, "
+                        "differences, notes, caution, the text lines) for a script; same "
+                        "exit status; an error (exit 2) is still one error: line on stderr")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(

@@ -863,7 +863,7 @@ def write_netcdf(result, path) -> Path:
         a full disk, the file-size limit). Nothing is written then and an existing
         file is unchanged.
     """
-    path = Path(path)
+    path = _through_link(Path(path))
     if path.is_dir():
         raise OutputError(f"--netcdf {str(path)!r} is a folder: give the path of the NetCDF "
                           "file to write, e.g. result.nc")
@@ -880,6 +880,30 @@ def write_netcdf(result, path) -> Path:
     engine = _engine()
     with ExitStack() as held:
         return _write_locked(dataset, path, engine, held)
+
+
+def _through_link(path: Path) -> Path:
+    """The file a symbolic link `path` leads to (every link resolved), or `path`.
+
+    The NetCDF file is renamed into place over its name: given a link (``latest.nc`` ->
+    a shared disk's file), the rename replaced the link by a file and left the file it led
+    to unchanged, under "wrote latest.nc" (round faults42). A link's file is written and
+    the link kept, as ``run --out`` writes through a link to a folder.
+
+    Raises
+    ------
+    OutputError
+        If the link leads into no folder (a share not mounted): the link is kept.
+    """
+    if not path.is_symlink():
+        return path
+    target = Path(os.path.realpath(path))
+    if not target.parent.is_dir():
+        raise OutputError(f"--netcdf {str(path)!r} is a symbolic link to {str(target)!r}, "
+                          f"whose folder {str(target.parent)!r} does not exist (a disk or "
+                          "share not mounted?); nothing was written: mount it, or give "
+                          "another file name")
+    return target
 
 
 def _write_locked(dataset, path: Path, engine: str, held: ExitStack) -> Path:
@@ -1063,8 +1087,11 @@ def command_export(args) -> int:
     CF NetCDF and/or its tables as CSV with CSVW metadata (:mod:`fluxpart.export_csv`)."""
     if getattr(args, "netcdf", None) is not None:
         path = write_netcdf(args.directory, args.netcdf)
-        print(f"wrote {shown_path(path)} (CF-1.10 NetCDF: records, days, months and years, "
-              "carbon fluxes in kg m-2 s-1 and sums in g m-2)")
+        given = Path(args.netcdf)
+        through = (f" through the link {shown_path(given)}"
+                   if given.is_symlink() and os.path.realpath(given) == str(path) else "")
+        print(f"wrote {shown_path(path)}{through} (CF-1.10 NetCDF: records, days, months and "
+              "years, carbon fluxes in kg m-2 s-1 and sums in g m-2)")
     if getattr(args, "csv", None) is not None:
         from .export_csv import command_csv
 

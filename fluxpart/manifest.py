@@ -35,6 +35,7 @@ import json
 import math
 import os
 import platform
+import re
 import unicodedata
 from pathlib import Path
 
@@ -457,6 +458,11 @@ def read_manifest(directory) -> dict:
         raise unreadable(error.filename or directory, error) from None
 
 
+#: The name of a writer's staging folder beside its output NAME (``.NAME.staging-`` and
+#: the 8 characters of :func:`tempfile.mkdtemp`: :func:`fluxpart.resultdir.make_staging`).
+_STAGING_NAME = re.compile(r"^\.(.+)\.staging-[a-z0-9_]{8}$")
+
+
 def _nearby_result(directory: Path) -> str:
     """A hint naming the result folder next to `directory`: the one whose report page
     folder it is (``out/report``), or the one folder it holds (a bundle of input, site
@@ -464,6 +470,13 @@ def _nearby_result(directory: Path) -> str:
     if (directory / "report.html").is_file() and (directory.parent / MANIFEST_FILE).is_file():
         return (f"; it is the report page folder of the result folder "
                 f"{str(directory.parent)!r}: give that folder")
+    staged = _STAGING_NAME.match(directory.name)
+    if staged:
+        # what a run or report stopped outright (kill -9, a power cut) left, seen with
+        # `ls -a`: "not a fluxpart result folder" did not say where the result is (faults42)
+        return (f"; it is the unfinished folder a stopped fluxpart command (run, report) left "
+                f"while writing {str(directory.parent / staged.group(1))!r}, not a result: "
+                "give that folder; the next command writing it removes this one")
     try:
         held = sorted(p for p in directory.iterdir() if (p / MANIFEST_FILE).is_file())
     except OSError:

@@ -97,7 +97,7 @@ from .manifest import (
 from .resultdir import interrupted_writes
 from .store import file_sha256, read_table, require_owner_access
 
-__all__ = ["NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
+__all__ = ["JSON_FORMAT", "NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
            "command_verify", "compare_tables", "field_differences", "verify", "within_rounding"]
 
 #: Largest relative difference of a float value still classed as floating-point rounding.
@@ -480,9 +480,62 @@ class VerifyReport:
             lines.append(f"result: {self.identity}")
         lines += [f"environment: {e}" for e in self.environment]
         lines += [f"note: {n}" for n in self.notes]
-        lines.append("Caution: reproduced numbers show the result follows from the recorded "
-                     "input and settings; they do not certify the data or a credit. " + CAUTION)
+        lines.append(f"Caution: {VERIFY_CAUTION}")
         return "\n".join(lines)
+
+    @property
+    def verdict(self) -> str:
+        """The verdict in a few words: ``"bit-identical"``, ``"reproduced within
+        rounding"``, ``"not bit-identical"`` (``--exact``, rounding only) or ``"not
+        reproduced"``."""
+        if self.identical:
+            return "bit-identical"
+        if self.reproduced:
+            return "reproduced within rounding"
+        return "not bit-identical" if self.exact and not self.differences else "not reproduced"
+
+    def as_json(self) -> str:
+        """Return the report as one JSON object (``fluxpart verify --json``), for an
+        auditor's script.
+
+        Keys: ``format`` (:data:`JSON_FORMAT`), ``verdict`` (:attr:`verdict`),
+        ``exit_code``, ``reproduced``, ``recomputed`` (false where nothing was rerun:
+        the folder fails its own manifest and no input was at hand), ``directory``,
+        ``result`` (which result the folder holds), ``tables``, ``differences`` and
+        ``rounding`` (each a :class:`Difference`'s fields; ``relative`` null where not a
+        number), ``largest_relative_difference``, ``folder_changes``, ``environment``,
+        ``code_changed``, ``notes``, ``caution`` and ``text`` (the lines the command
+        prints without ``--json``). Strict JSON (RFC 8259: no NaN), keys sorted, every
+        character beyond ASCII escaped (``\\u2013``): readable under any locale's
+        output encoding (a latin-1 or C locale's stream could not take the en dash of
+        "Lloyd–Taylor"); the same report gives the same bytes.
+        """
+        def entry(d: Difference) -> dict:
+            fields = dataclasses.asdict(d)
+            fields["count"] = int(d.count)
+            fields["relative"] = float(d.relative) if np.isfinite(d.relative) else None
+            return fields
+        largest = self.largest_relative_difference
+        return json.dumps({
+            "format": JSON_FORMAT, "verdict": self.verdict, "exit_code": self.exit_code,
+            "reproduced": self.reproduced, "recomputed": self.source != "none",
+            "directory": str(self.directory), "result": self.identity,
+            "tables": list(self.tables),
+            "differences": [entry(d) for d in self.differences],
+            "rounding": [entry(d) for d in self.rounding],
+            "largest_relative_difference": float(largest),
+            "folder_changes": self.folder_changes, "environment": list(self.environment),
+            "code_changed": bool(self.code_changed), "notes": list(self.notes),
+            "caution": VERIFY_CAUTION, "text": self.format().splitlines(),
+        }, indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
+
+
+#: The layout of ``verify --json``'s object (:meth:`VerifyReport.as_json`); a changed
+#: meaning of a key gets a new name here.
+JSON_FORMAT = "fluxpart-verify/1"
+#: What every verdict is followed by: reproduction is not certification.
+VERIFY_CAUTION = ("reproduced numbers show the result follows from the recorded input and "
+                  "settings; they do not certify the data or a credit. " + CAUTION)
 
 
 #: Where a metadata key of :func:`metadata_differences` names a column: a field's own
@@ -1642,6 +1695,12 @@ def remove_dead_scratch(root=None) -> list[str]:
     return removed
 
 
+def _file_changed(table: str, differences) -> bool:
+    """Whether the folder check found `table`'s file other than the recorded one (its
+    SHA-256)."""
+    return any(d.table == table and d.kind == "hash" for d in differences)
+
+
 def _rewritten_elsewhere(path: Path, index=None):
     """A stored table that is Parquet but lacks fluxpart's schema metadata, read as
     pandas reads it (its own metadata restores an index it wrote), or None; the
@@ -1777,8 +1836,8 @@ def _read_stored(directory: Path):
                 stored_tables[name].attrs["rewritten"] = True
                 differences.append(Difference(name, "file", stored=entry["file"], recomputed=(
                     "was rewritten by another program (e.g. pandas' to_parquet): fluxpart's "
-                    "metadata (units, descriptions, site) is gone; its values were compared "
-                    "with the rerun's (see the note)")))
+                    "metadata (units, descriptions, site) is gone; its values are compared "
+                    "with the rerun's where the result is recomputed (a note then says how)")))
         if folder_identity(directory) == before:
             break
     return manifest, differences, notes, stored_tables
@@ -1973,8 +2032,17 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             differences += [Difference(name, "metadata", column=key, stored=old,
                                        recomputed=new, cause=values)
                             for key, old, new in described]
-            if not found and (new_manifest["tables"][name]["sha256"]
-                              != manifest["tables"][name].get("sha256")):
+            if not found and not described and _file_changed(name, differences):
+                # a table re-compressed or rewritten by another Parquet writer with its
+                # values and metadata: "changed after it was written" alone left an auditor
+                # unable to tell whether a number had changed (round faults42)
+                notes.append(f"{name}: the changed file's values and metadata are "
+                             "bit-identical to the rerun's: only its bytes differ from the "
+                             "recorded ones (rewritten with another compression or Parquet "
+                             "writer?); the folder still fails, as its file is not the one "
+                             "written")
+            elif not found and (new_manifest["tables"][name]["sha256"]
+                                != manifest["tables"][name].get("sha256")):
                 if not described:
                     cause = ("written before tables carried the copy of their metadata that "
                              "pandas.read_parquet reads (PANDAS_ATTRS)"
@@ -1995,7 +2063,8 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
 
 
 def command_verify(args) -> int:
-    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact] [--quiet] [--detail]``.
+    """``fluxpart verify DIR [--input FILE] [--config FILE] [--exact] [--quiet] [--detail]
+    [--json]``.
 
     Returns
     -------
@@ -2009,6 +2078,10 @@ def command_verify(args) -> int:
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))
+    if getattr(args, "json", False):
+        # for an auditor's script: one JSON object, the same exit status
+        print(report.as_json())
+        return report.exit_code
     quiet = bool(getattr(args, "quiet", False))
     # --quiet wins over --detail: its head line spoke of "entries below" and none followed
     lines = report.format(detail=bool(getattr(args, "detail", False)) and not quiet

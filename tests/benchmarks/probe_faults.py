@@ -67,6 +67,17 @@ under run and batch; Ctrl-C twice to a batch; the batch process killed alone; an
 Dask scheduler killed; the result's parent renamed mid-run; a stop while waiting for a
 lock; a batch stopped (once, twice, -9) as it replaces a network table.
 
+Round faults42 (result safety and a portable verify, again): kill -9 at 20 seeded
+random moments of run into an earlier result (10 over its writing), and at random
+moments of report, export --netcdf and export --csv; a result zipped and unzipped
+(unzip, Python's zipfile); the input re-saved with CRLF and by a spreadsheet; a table
+rewritten with its values (pandas; pyarrow with gzip); a batch site's folder alone; two
+runs of other seeds at once into an existing result, verify looping; the input appended
+to while read; --out a link to a result on another disk, killed mid-run; the JSON files
+with CRLF (git autocrlf); manifest numbers edited and respelled; --netcdf a link to a
+shared file and a link into no folder; a stopped run's staging given as a result;
+verify --json read by an auditor's script under three locales.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -3234,6 +3245,447 @@ def f_batch_killed_then_input_changed():
            f"exit {again.returncode}, {again.stdout.splitlines()[:2]}, verify {codes}")
 
 
+# ------------------------------------------------------------------ round faults42
+def _whole_kind(folder, *sources):
+    """Which of `sources` (result folders) `folder` holds whole (its tables and manifest
+    byte for byte), "missing", or "mixed"."""
+    import json
+
+    def held(where):
+        # the manifest's tables and settings: its code fingerprint is this tree's, which
+        # may have changed since the sources were written
+        path = Path(where) / "manifest.json"
+        manifest = json.loads(path.read_text()) if path.is_file() else {}
+        return table_digests(where), manifest.get("tables"), manifest.get("config")
+    folder = Path(folder)
+    if not folder.exists():
+        return "missing"
+    mine = held(folder)
+    for source in sources:
+        if mine == held(source):
+            return Path(source).name
+    return "mixed"
+
+
+def _killed_at(offset, *args):
+    """Run `args`, kill -9 it `offset` seconds after its start (or never where it ends
+    first); the exit status."""
+    proc = start(*args)
+    try:
+        proc.wait(timeout=offset)
+    except subprocess.TimeoutExpired:
+        proc.kill()
+    proc.communicate(timeout=120)
+    return proc.returncode
+
+
+def _run_seconds(*args):
+    begun = time.monotonic()
+    assert fp(*args).returncode == 0
+    return time.monotonic() - begun
+
+
+def _writing_begins(parent, *args):
+    """Seconds from the start of `args` (a run into `parent`) to its staging folder's
+    appearance, and to its end."""
+    begun = time.monotonic()
+    proc, staged = start(*args), None
+    while proc.poll() is None:
+        if staged is None and any(".staging-" in p.name for p in Path(parent).iterdir()):
+            staged = time.monotonic() - begun
+        time.sleep(0.002)
+    proc.communicate()
+    assert proc.returncode == 0
+    return staged or 0.0, time.monotonic() - begun
+
+
+def f_kill9_random_moments_run():
+    """kill -9 at 20 moments (seeded) of ``run`` replacing an earlier result, 10 drawn
+    uniformly over its duration and 10 over its writing (from its staging folder's
+    appearance to its end, as measured once): after each, the folder holds the old result
+    or the new one whole, never a mix, and verifies; what a kill leaves in the parent is
+    swept by the next run."""
+    import random
+    parent = W / "k9run"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    shutil.copytree(W / "r0", parent / "r")
+    staged, span = _writing_begins(parent, "run", "seed1.toml", "--out", parent / "r",
+                                   "--quiet")
+    draw = random.Random(42)
+    moments = [draw.uniform(0, span) for _ in range(10)] + [
+        draw.uniform(staged, span) for _ in range(10)]
+    seen, wrong = {}, []
+    for trial, moment in enumerate(moments):
+        folder = parent / "r"
+        shutil.rmtree(folder, ignore_errors=True)
+        shutil.copytree(W / "r0", folder)
+        code = _killed_at(moment, "run", "seed1.toml", "--out", folder, "--quiet")
+        kind = _whole_kind(folder, W / "r0", W / "r1")
+        seen[kind] = seen.get(kind, 0) + 1
+        if kind in ("mixed", "missing") or code not in (0, -9):
+            wrong.append((trial, code, kind, leftovers(parent)))
+        elif trial % 5 == 0 and verify(folder, "--input", W / "b" / "tower.csv").returncode:
+            wrong.append((trial, code, kind, "verify failed"))
+    left = leftovers(parent)
+    again = fp("run", "seed1.toml", "--out", parent / "r", "--quiet")
+    record("kill -9 at 20 random moments of run into an earlier result",
+           not wrong and again.returncode == 0 and not leftovers(parent),
+           f"writing from {staged:.2f} of {span:.2f} s, (kind: count) {seen}, wrong "
+           f"{wrong[:3]}, left before the next run {left}, after it {leftovers(parent)}")
+
+
+def _report_files(folder):
+    report = Path(folder) / "report"
+    return sorted(p.name for p in report.iterdir()) if report.is_dir() else None
+
+
+def f_kill9_random_moments_report_export():
+    """kill -9 at 10 random moments each of ``report`` redrawing a result's page and of
+    ``export --netcdf`` replacing a NetCDF file and ``export --csv`` into a new folder:
+    the page is the old or the new whole, the NetCDF file the old one or a whole new
+    one, the CSV folder absent or whole; verify passes throughout."""
+    import random
+    folder = fresh("k9rep")
+    assert fp("report", "--quiet", folder).returncode == 0
+    page = _report_files(folder)
+    nc, csv = W / "k9.nc", W / "k9csv"
+    for p in (nc, csv):
+        shutil.rmtree(p, ignore_errors=True) if p.is_dir() else p.unlink(missing_ok=True)
+    assert fp("export", "--netcdf", nc, folder).returncode == 0
+    assert fp("export", "--csv", csv, folder).returncode == 0
+    nc_digest = hashlib.sha256(nc.read_bytes()).hexdigest()
+    csv_files = sorted(p.name for p in csv.iterdir())
+    shutil.rmtree(csv)
+    spans = {"report": _run_seconds("report", "--quiet", folder),
+             "netcdf": _run_seconds("export", "--netcdf", nc, folder),
+             "csv": _run_seconds("export", "--csv", csv, folder)}
+    shutil.rmtree(csv)
+    draw = random.Random(7)
+    wrong = []
+    for trial in range(10):
+        _killed_at(draw.uniform(0, spans["report"]), "report", "--quiet", folder)
+        if _report_files(folder) != page:
+            wrong.append(("report", trial, _report_files(folder)))
+        _killed_at(draw.uniform(0, spans["netcdf"]), "export", "--netcdf", nc, folder)
+        if hashlib.sha256(nc.read_bytes()).hexdigest() != nc_digest:
+            wrong.append(("netcdf", trial))
+        _killed_at(draw.uniform(0, spans["csv"]), "export", "--csv", csv, folder)
+        if csv.exists() and sorted(p.name for p in csv.iterdir()) != csv_files:
+            wrong.append(("csv", trial, sorted(p.name for p in csv.iterdir())))
+        shutil.rmtree(csv, ignore_errors=True)
+    checked = verify(folder)
+    hidden = sorted(p.name for p in W.iterdir() if p.name.startswith(".k9"))
+    again = [fp("report", "--quiet", folder).returncode,
+             fp("export", "--netcdf", nc, folder).returncode,
+             fp("export", "--csv", csv, folder).returncode]
+    swept = sorted(p.name for p in W.iterdir() if p.name.startswith(".k9"))
+    record("kill -9 at random moments of report and export (NetCDF, CSV)",
+           not wrong and checked.returncode == 0 and again == [0, 0, 0]
+           and not leftovers(folder) and not swept,
+           f"wrong {wrong[:3]}, verify {checked.returncode}, again {again}, left in the "
+           f"result {leftovers(folder)}, beside the exports {hidden} -> {swept}")
+
+
+def f_zip_round_trip():
+    """A result and its input zipped (zip -r, and Python's zipfile, which keeps no
+    rights) and unzipped elsewhere; verify of each copy."""
+    import zipfile
+    bundle = W / "zipped"
+    shutil.rmtree(bundle, ignore_errors=True)
+    (bundle / "src").mkdir(parents=True)
+    shutil.copytree(W / "r0", bundle / "src" / "r0")
+    shutil.copy2(W / "b" / "tower.csv", bundle / "src" / "tower.csv")
+    subprocess.run(["zip", "-qr", str(bundle / "a.zip"), "r0", "tower.csv"],
+                   cwd=bundle / "src", check=True)
+    subprocess.run(["unzip", "-q", str(bundle / "a.zip"), "-d", str(bundle / "u1")],
+                   check=True)
+    with zipfile.ZipFile(bundle / "a.zip") as archive:
+        archive.extractall(bundle / "u2")
+    codes = [verify(bundle / u / "r0", "--input", bundle / u / "tower.csv").returncode
+             for u in ("u1", "u2")]
+    record("a result zipped and unzipped elsewhere (unzip, Python zipfile)",
+           codes == [0, 0], f"verify exits {codes}")
+
+
+def f_input_resaved_by_spreadsheet():
+    """verify with the input re-saved: CRLF only (same text otherwise), and as a
+    spreadsheet writes it (CRLF, trailing zeros dropped, same values)."""
+    import csv as csv_module
+    where = W / "resaved"
+    shutil.rmtree(where, ignore_errors=True)
+    where.mkdir()
+    rows = list(csv_module.reader(open(W / "b" / "tower.csv", newline="")))
+    (where / "crlf.csv").write_bytes((W / "b" / "tower.csv").read_bytes().replace(b"\n",
+                                                                                   b"\r\n"))
+
+    def shown(value):
+        try:
+            return repr(float(value)).removesuffix(".0") if "." in value else value
+        except ValueError:
+            return value
+    with open(where / "sheet.csv", "w", newline="") as handle:
+        writer = csv_module.writer(handle, lineterminator="\r\n")
+        writer.writerow(rows[0])
+        writer.writerows([shown(v) for v in row] for row in rows[1:])
+    crlf = fp("verify", W / "r0", "--input", where / "crlf.csv")
+    sheet = fp("verify", W / "r0", "--input", where / "sheet.csv")
+    record("verify with the input re-saved with CRLF line ends",
+           crlf.returncode == 0 and "re-saved" in crlf.stdout,
+           f"exit {crlf.returncode}, {crlf.stdout.splitlines()[0][:70]!r}")
+    record("verify with the input re-saved by a spreadsheet (CRLF, 0.0200 -> 0.02)",
+           sheet.returncode == 1 and "every value equals" in sheet.stdout,
+           f"exit {sheet.returncode}, says the values equal {'every value equals' in sheet.stdout}")
+
+
+def f_parquet_rewritten_same_values():
+    """One table of a result rewritten with the same values: by pandas (fluxpart's
+    metadata lost) and by pyarrow with another compression (metadata kept); verify with
+    and without the input: exit 1, the table named, and whether its values are the
+    rerun's said only where a rerun compared them."""
+    cases = {}
+    for how, code in (("pandas", "import pandas as pd; d = pd.read_parquet(f); "
+                                 "d.to_parquet(f)"),
+                      ("gzip", "import pyarrow.parquet as pq; "
+                               "pq.write_table(pq.read_table(f), f, compression='gzip')")):
+        folder = fresh(f"pqre_{how}")
+        subprocess.run([PY, "-c", f"f = {str(folder / 'daily.parquet')!r}; {code}"],
+                       env=ENV, check=True)
+        alone = fp("verify", folder)
+        given = fp("verify", folder, "--input", W / "b" / "tower.csv")
+        cases[how] = (alone.returncode, given.returncode,
+                      "were compared with the rerun" in alone.stdout,
+                      "bit-identical to the rerun" in given.stdout
+                      or "values and metadata bit-identical" in given.stdout)
+    record("a table rewritten with the same values (pandas; pyarrow gzip), verify",
+           all(c == (1, 1, False, True) for c in cases.values()),
+           f"(exit alone, exit with input, claims a comparison alone, says values equal) "
+           f"{cases}")
+
+
+def f_batch_site_alone():
+    """verify of one site's folder of a batch output, copied out alone (the network
+    files left behind), its input given."""
+    make_net()
+    assert fp("batch", "sites.toml", "--quiet", cwd=NET).returncode == 0
+    site = next(p for p in sorted((NET / "out").iterdir()) if (p / "manifest.json").is_file())
+    alone = W / "site_alone"
+    shutil.rmtree(alone, ignore_errors=True)
+    shutil.copytree(site, alone / site.name)
+    found = verify(alone / site.name)
+    given = verify(alone / site.name, "--input", NET / "a" / "tower.csv")
+    record("verify of a batch site's folder copied out alone",
+           given.returncode == 0 and (found.returncode == 0 or one_line(found)),
+           f"exits {found.returncode} {_stderr_tail(found, 90)} / with --input "
+           f"{given.returncode}")
+
+
+def f_two_runs_existing_other_configs():
+    """Two runs at once with different configs (seeds 0 and 1) into an existing result
+    (of seed 1), a verify looping meanwhile: both end 0, the folder holds one whole run,
+    every verify passes or names a replaced folder (never a mix)."""
+    folder = fresh("two_existing", "r1")
+    procs = [start("run", "site.toml", "--out", folder, "--quiet"),
+             start("run", "seed1.toml", "--out", folder, "--quiet")]
+    checks = []
+    while any(p.poll() is None for p in procs):
+        checks.append(verify(folder).returncode)
+    codes = [p.wait() for p in procs]
+    kind = _whole_kind(folder, W / "r0", W / "r1")
+    record("two runs (seeds 0 and 1) at once into an existing result, verify meanwhile",
+           codes == [0, 0] and kind in ("r0", "r1") and set(checks) <= {0}
+           and verify(folder).returncode == 0 and not leftovers(W),
+           f"exits {codes}, holds {kind}, verifies meanwhile {checks}")
+
+
+_APPEND_DURING_READ = """
+import sys, pathlib
+import fluxpart.cli as cli
+import fluxpart.io as fio
+real = pathlib.Path.read_bytes
+done = {"n": 0}
+tail = pathlib.Path(sys.argv[1]).read_bytes()
+def read_bytes(self):
+    data = real(self)
+    if self.name == "tower.csv" and not done["n"]:
+        done["n"] = 1
+        with open(self, "ab") as handle:    # a logger appends right after the first read
+            handle.write(tail)
+    return data
+pathlib.Path.read_bytes = read_bytes
+sys.exit(cli.main(sys.argv[2:]))
+"""
+
+
+def f_input_appended_during_read():
+    """A logger appends records to the input while run reads it (after the first read of
+    its bytes): the manifest records the SHA-256 of the bytes parsed, so verify passes
+    with the file as it was read and names the appended file as another input."""
+    bundle = W / "append"
+    shutil.rmtree(bundle, ignore_errors=True)
+    shutil.copytree(W / "b", bundle)
+    before_bytes = (bundle / "tower.csv").read_bytes()
+    lines = before_bytes.decode().splitlines(keepends=True)
+    tail = bundle / "tail.csv"
+    # the next 2 hours, one day later than the file's end (a logger's next sync)
+    last = lines[-1].split(",")
+    stamp = int(last[0])
+    tail.write_text("".join(",".join([str(stamp + 100 * (k + 1))] + last[1:])
+                            for k in range(2)))
+    out = bundle / "r"
+    done = subprocess.run([PY, "-c", _APPEND_DURING_READ, tail, "run", "site.toml", "--out",
+                           out, "--quiet"], env=ENV, cwd=bundle, capture_output=True,
+                          text=True, timeout=300)
+    grown = (bundle / "tower.csv").read_bytes() != before_bytes
+    (bundle / "read.csv").write_bytes(before_bytes)
+    as_read = verify(out, "--input", bundle / "read.csv")
+    now = verify(out)
+    record("the input appended to while run reads it",
+           done.returncode in (0, 2) and grown and (done.returncode == 2 or (
+               as_read.returncode == 0 and now.returncode == 1)),
+           f"run exit {done.returncode} {_stderr_tail(done, 90)}, appended {grown}, verify "
+           f"as read {as_read.returncode}, as now {now.returncode}")
+
+
+def f_out_symlink_other_disk():
+    """--out a symbolic link to a folder on another file system (a tmpfs), holding an
+    earlier result: run replaces it (link kept), kill -9 mid-run leaves it whole, verify."""
+    disk = W / "otherdisk"
+    disk.mkdir(exist_ok=True)
+    if not _mounted(disk, "-t", "tmpfs", "-o", "size=50m", "tmpfs"):
+        record("--out a link to another disk", False, "mount refused: not probed")
+        return
+    try:
+        shutil.copytree(W / "r0", disk / "r")
+        link = linked("odlink", disk / "r")
+        span = _run_seconds("run", "site.toml", "--out", disk / "probe", "--quiet")
+        killed = [_killed_at(span * f, "run", "seed1.toml", "--out", link, "--quiet")
+                  for f in (0.5, 0.8, 0.95)]
+        kinds = [_whole_kind(link, W / "r0", W / "r1")]
+        done = fp("run", "seed1.toml", "--out", link, "--quiet")
+        kinds.append(_whole_kind(link, W / "r0", W / "r1"))
+        left = leftovers(disk) + leftovers(W)
+        record("run --out a link to a result on another disk, kill -9 mid-run, run again",
+               done.returncode == 0 and link.is_symlink() and kinds[-1] == "r1"
+               and kinds[0] in ("r0", "r1") and verify(link).returncode == 0 and not left,
+               f"killed {killed}, holds {kinds}, link kept {link.is_symlink()}, left {left}, "
+               f"{_stderr_tail(done)}")
+    finally:
+        subprocess.run(["umount", str(disk)])
+
+
+def f_git_crlf_checkout():
+    """A result kept in git and checked out with core.autocrlf (manifest.json and
+    run-log.json with CRLF line ends, the Parquet files binary): verify."""
+    folder = fresh("crlfres")
+    for name in ("manifest.json", "run-log.json"):
+        path = folder / name
+        path.write_bytes(path.read_bytes().replace(b"\n", b"\r\n"))
+    done = verify(folder)
+    record("verify of a result whose JSON files got CRLF line ends (git autocrlf)",
+           done.returncode == 0, f"exit {done.returncode} {done.stdout.splitlines()[0][:80]!r}")
+
+
+def f_manifest_number_edited():
+    """A number of the manifest edited by hand (a table's row count 30 -> 31; the
+    ustar_threshold 0.2 -> 0.25), and one rewritten in another spelling of the same
+    value (0.2 -> 0.20, 2e-1): the edits fail verify naming the seal; the same values pass."""
+    cases = {}
+    for label, old, new in (("rows", '"rows": 30,', '"rows": 31,'),
+                            ("threshold", '"ustar_threshold": 0.2,', '"ustar_threshold": 0.25,'),
+                            ("spelling", '"ustar_threshold": 0.2,', '"ustar_threshold": 2e-1,')):
+        folder = fresh(f"mnum_{label}")
+        text = (folder / "manifest.json").read_text()
+        assert old in text
+        (folder / "manifest.json").write_text(text.replace(old, new, 1))
+        done = verify(folder)
+        cases[label] = (done.returncode, "seal" in done.stdout + done.stderr)
+    record("a number of the manifest edited by hand, and respelled",
+           cases["rows"] == (1, True) and cases["threshold"] == (1, True)
+           and cases["spelling"][0] == 0, f"(exit, names the seal) {cases}")
+
+
+def f_netcdf_through_link():
+    """``export --netcdf`` given a symbolic link to the file on another folder (a shared
+    disk), and a link into a folder that does not exist (a share not mounted): the link
+    kept, the file it leads to replaced; the second one error line."""
+    where = W / "nclink"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "shared").mkdir(parents=True)
+    assert fp("export", "--netcdf", where / "shared" / "site.nc", W / "r0").returncode == 0
+    before = (where / "shared" / "site.nc").stat().st_ino
+    (where / "latest.nc").symlink_to(where / "shared" / "site.nc")
+    (where / "gone.nc").symlink_to(where / "share" / "site.nc")
+    done = fp("export", "--netcdf", where / "latest.nc", W / "r1")
+    gone = fp("export", "--netcdf", where / "gone.nc", W / "r1")
+    through = ((where / "latest.nc").is_symlink()
+               and (where / "shared" / "site.nc").stat().st_ino != before)
+    record("export --netcdf to a link to a shared file, and to a link into no folder",
+           done.returncode == 0 and through and one_line(gone)
+           and (where / "gone.nc").is_symlink() and not (where / "share").exists(),
+           f"exit {done.returncode}, link kept and its file replaced {through}; into no "
+           f"folder exit {gone.returncode} {_stderr_tail(gone, 80)}, link kept "
+           f"{(where / 'gone.nc').is_symlink()}")
+
+
+def f_staging_given_as_result():
+    """The unfinished folder a run killed -9 while writing its tables leaves beside the
+    result, given to verify, report and export --csv (an auditor's ``ls -a``): one line
+    each, naming the folder it was writing."""
+    parent = W / "stgres"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    shutil.copytree(W / "r0", parent / "r")
+    stopped_at("table 5", signal.SIGKILL, "run", "seed1.toml", "--out", parent / "r",
+               "--quiet")
+    staged = [p for p in parent.iterdir() if ".staging-" in p.name]
+    if not staged:
+        record("a stopped run's staging given as a result", False, "no staging left: not probed")
+        return
+    done = [verify(staged[0], "--input", W / "b" / "tower.csv"),
+            fp("report", "--quiet", staged[0]),
+            fp("export", "--csv", parent / "csv", staged[0])]
+    named = [one_line(d) and repr(str(parent / "r")) in d.stderr for d in done]
+    record("a stopped run's staging folder given to verify, report and export",
+           all(named) and _whole_kind(parent / "r", W / "r0", W / "r1") == "r0",
+           f"one line naming the result {named}, {_stderr_tail(done[0], 100)}")
+
+
+_AUDITOR_SCRIPT = """
+import json, subprocess, sys
+done = subprocess.run([sys.executable, "-m", "fluxpart", "verify", "--json", *sys.argv[1:]],
+                      capture_output=True)
+try:
+    report = json.loads(done.stdout, parse_constant=lambda name: 1 / 0)
+    print(done.returncode, report["verdict"], report["exit_code"], len(report["differences"]))
+except ValueError:
+    print(done.returncode, "unparsable" if done.stdout else "none", done.stderr[-60:])
+"""
+
+
+def f_verify_json():
+    """An auditor's script reading ``verify --json`` (its own process, Python's json with
+    NaN refused) of a genuine result, a tampered one, a missing folder, and a genuine one
+    under the Latin-1 and C locales (output encodings that lack the en dash)."""
+    tampered = fresh("vjson")
+    data = (tampered / "daily.parquet").read_bytes()
+    (tampered / "daily.parquet").write_bytes(data[:-9] + bytes([data[-9] ^ 1]) + data[-8:])
+    seen = {}
+    for label, folder, lang in (("genuine", W / "r0", None), ("tampered", tampered, None),
+                                ("missing", W / "nowhere", None),
+                                ("latin-1", W / "r0", "de_DE.ISO-8859-1"),
+                                ("C", W / "r0", "C")):
+        env = dict(ENV, LC_ALL=lang, PYTHONUTF8="0") if lang else ENV
+        done = subprocess.run([PY, "-c", _AUDITOR_SCRIPT, folder], env=env, cwd=W / "b",
+                              capture_output=True, text=True, timeout=300)
+        seen[label] = done.stdout.strip()
+    record("verify --json read by an auditor's script (genuine, tampered, missing, locales)",
+           seen["genuine"].startswith("0 bit-identical 0 0")
+           and seen["tampered"].startswith("1 not reproduced 1")
+           and seen["missing"].startswith("2 none")
+           and seen["latin-1"] == seen["C"] == seen["genuine"], f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -3278,7 +3730,13 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_batch_same_bytes_as_run, f_batch_hung_site, f_batch_worker_memory_limit,
           f_batch_thirty_sites, f_batch_sites_file_edited, f_batch_two_at_once,
           f_batch_odd_network_path, f_batch_long_site_name, f_batch_listed_config_not_a_file,
-          f_batch_scratch_unusable, f_batch_killed_then_input_changed]
+          f_batch_scratch_unusable, f_batch_killed_then_input_changed,
+          # round faults42
+          f_kill9_random_moments_run, f_kill9_random_moments_report_export, f_zip_round_trip,
+          f_input_resaved_by_spreadsheet, f_parquet_rewritten_same_values, f_batch_site_alone,
+          f_two_runs_existing_other_configs, f_input_appended_during_read,
+          f_out_symlink_other_disk, f_git_crlf_checkout, f_manifest_number_edited,
+          f_netcdf_through_link, f_staging_given_as_result, f_verify_json]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
