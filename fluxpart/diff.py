@@ -78,7 +78,9 @@ class DiffReport:
         respiration form's weight the night data chose; since 0.17.0), ``"version"``,
         ``"code"``, ``"platform"`` and ``"table"``.
     annual : pandas.DataFrame
-        One row per (year, column) of ``annual`` whose value differs: ``first``,
+        One row per (year, column) of ``annual`` whose value differs: ``unit`` (the
+        column's unit as people read it: ``g C m-2``, ``t CO2 ha-1``, ``m s-1``, ``1``
+        for a share or count, ``""`` for a date or label; since review63), ``first``,
         ``second``, ``change`` (second - first, in the column's unit) and
         ``relative`` (change / |first|; NaN when first is 0 or missing). Both are NaN
         for a year whose row covers another period in each folder (``period_start`` or
@@ -194,8 +196,9 @@ class DiffReport:
                                  "other periods in the two folders (period_start / "
                                  "period_end differ: another [processing] year_start): "
                                  "their values are listed, not differenced")
-                lines.append("How the annual numbers moved (units of each column; change = "
-                             "second - first; relative = change / |first|):")
+                lines.append("How the annual numbers moved (in each column's unit; change = "
+                             "second - first; relative = change / |first|, 0.01 = 1 %; "
+                             "NEE < 0 is net uptake):")
                 shown = self.annual.copy()
                 # a year one folder lacks is "-" in every column: pandas prints an absent
                 # date or flag as "None" or "NaT" (review54), a number as na_rep
@@ -271,7 +274,9 @@ def _short(value) -> str:
 
     if value is None:
         return "none"           # JSON's "null" and an empty list "[]" read as code (review46)
-    text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str)
+    # "±" and "°C" as written, not "\u00b1" (review63): verify shows them so too
+    text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str,
+                                                           ensure_ascii=False)
     return text if len(text) <= 120 else text[:117] + "..."
 
 
@@ -444,6 +449,11 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
 
 
 def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int, list]:
+    from .units import display_unit
+
+    # each move beside its unit: "-0.273" of nee (g C m-2) beside "0.0118" of the u*
+    # threshold (m s-1) and "-0.009" of a share (1) read as one scale (review63)
+    units = {**(second.attrs.get("units") or {}), **(first.attrs.get("units") or {})}
     rows, same = [], 0
     years = first.index.union(second.index)
     columns = list(first.columns) + [c for c in second.columns if c not in first.columns]
@@ -476,15 +486,17 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
                 change = fb - fa if year not in other else np.nan
                 relative = (change / abs(fa) if np.isfinite(fa) and fa != 0 and np.isfinite(change)
                             else np.nan)
-                rows.append({"year": year, "column": column, "first": fa, "second": fb,
-                             "change": change, "relative": relative})
+                rows.append({"year": year, "column": column,
+                             "unit": display_unit(units.get(column, "")), "first": fa,
+                             "second": fb, "change": change, "relative": relative})
             else:
                 if a is not None and b is not None and (a == b or (pd.isna(a) and pd.isna(b))):
                     same += 1
                     continue
-                rows.append({"year": year, "column": column, "first": a, "second": b,
-                             "change": np.nan, "relative": np.nan})
-    table = pd.DataFrame(rows, columns=["year", "column", "first", "second", "change",
+                rows.append({"year": year, "column": column,
+                             "unit": display_unit(units.get(column, "")), "first": a,
+                             "second": b, "change": np.nan, "relative": np.nan})
+    table = pd.DataFrame(rows, columns=["year", "column", "unit", "first", "second", "change",
                                         "relative"])
     return table.set_index(["year", "column"]), same, rounding
 

@@ -237,3 +237,25 @@ def test_float_noise_reads_equal_within_rounding_not_as_a_move():
                       same_annual=same, rounding_annual=tuple(rounding)).format()
     assert "gpp_daytime_ustar_spread" not in text.split("annual values equal in both")[0]
     assert "equal within rounding" in text and "1 (2023 gpp_daytime_ustar_spread)" in text
+
+
+def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsys):
+    """Behaviour check (review63, a modeller's diff of a changed setting): the moves table
+    put -0.27 of NEE (g C m-2), 0.012 of the u* threshold (m s-1) and -0.009 of a share
+    side by side with no unit ("units of each column" named none), and a warning's "±"
+    was shown as the JSON escape "\\u00b1". Each move now carries the column's unit as
+    people read it (the carbon and CO2 units with their substance), taken from the stored
+    table's own metadata, and text is shown as written."""
+    from fluxpart.diff import _short
+    from fluxpart.units import display_unit
+
+    _, first, second = folders
+    report = diff_folders(first, second)
+    stored = read_table(first / "annual.parquet").attrs["units"]
+    for (_, column), unit in report.annual["unit"].items():
+        assert unit == display_unit(stored[column])
+    assert report.annual.loc[(report.annual.index[0][0], "nee"), "unit"] == "g C m-2"
+    assert _short(["E0 267 ± 29 K at 15 °C"]) == '["E0 267 ± 29 K at 15 °C"]'
+    main(["diff", str(first), str(second)])
+    out = capsys.readouterr().out
+    assert "\\u00b1" not in out and " unit " in out.split("How the annual numbers moved")[1]
