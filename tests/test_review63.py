@@ -1,0 +1,33 @@
+"""Review63: release 0.33.0 met fresh as a tower scientist, an auditor and a modeller.
+
+Each test is a behaviour check of a message found misleading on an invented site-year
+(a fictional fen's logger file: its own column names, kelvin and kPa, 35 % gaps).
+"""
+
+import pytest
+
+from fluxpart.errors import ConfigError
+from fluxpart.io import _check_time_marks
+
+
+@pytest.mark.parametrize("slip, meant", [("Start", "start"), ("middel", "middle"),
+                                         ("END", "end"), ("endd", "end")])
+def test_a_slip_of_a_time_mark_is_named(slip, meant):
+    """A typo or another case of one of the three words gets that word as its hint."""
+    with pytest.raises(ConfigError, match=f'did you mean "{meant}"'):
+        _check_time_marks(slip)
+
+
+@pytest.mark.parametrize("word", ["stop", "begin", "centre", "center", "stamp_end"])
+def test_another_word_gets_the_meaning_not_the_opposite_mark(word):
+    """Behaviour check: "stop" was answered 'did you mean "start"?', "begin" and
+    "centre" 'did you mean "end"?' (difflib cutoff 0.4): a user who followed the hint
+    had every stamp moved by one record. Another word now gets no guess, only what each
+    choice means (fact of the trade: a record's stamp marks its averaging interval's
+    start, middle or end)."""
+    with pytest.raises(ConfigError) as caught:
+        _check_time_marks(word)
+    text = str(caught.value)
+    assert "did you mean" not in text
+    assert text.startswith(f'[input] time_marks = "{word}"')
+    assert "start, middle or end" in text
