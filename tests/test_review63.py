@@ -31,3 +31,17 @@ def test_another_word_gets_the_meaning_not_the_opposite_mark(word):
     assert "did you mean" not in text
     assert text.startswith(f'[input] time_marks = "{word}"')
     assert "start, middle or end" in text
+
+
+def test_percent_the_udunits_name_of_rh_units_is_read_as_percent():
+    """Behaviour check: `[input.units] rh = "percent"`, the UDUNITS-2 and CF name of %
+    that fluxpart's own NetCDF and CSVW metadata write, was refused as "not a known unit
+    for rh". It is read as % (UDUNITS-2 database: percent = 0.01 (m))."""
+    import numpy as np
+
+    from fluxpart.variables import to_canonical, unit_spelling, units_for
+
+    assert "percent" in units_for("rh")
+    values = np.array([35.5, 100.0])
+    assert np.array_equal(to_canonical(values, "rh", unit_spelling("rh", "percent")),
+                          to_canonical(values, "rh", "%"))
