@@ -27,6 +27,7 @@ folder, or does not match its manifest).
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -269,15 +270,45 @@ def _years_of_other_periods(annual: pd.DataFrame) -> list:
     return out
 
 
-def _short(value) -> str:
+#: Characters a differing value is shown in (a setting, a warnings list) [characters].
+SHOWN_CHARACTERS = 120
+#: Characters kept before the first differing one where a long common start is cut
+#: [characters].
+SHOWN_CONTEXT = 30
+
+
+def _text(value) -> str:
     import json
 
     if value is None:
         return "none"           # JSON's "null" and an empty list "[]" read as code (review46)
     # "±" and "°C" as written, not "\u00b1" (review63): verify shows them so too
-    text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str,
+    return value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str,
                                                            ensure_ascii=False)
-    return text if len(text) <= 120 else text[:117] + "..."
+
+
+def _short(value, start: int = 0) -> str:
+    """`value` as text of at most :data:`SHOWN_CHARACTERS`, from character `start`
+    (``"..."`` marks each cut end)."""
+    text = _text(value)
+    if start > 0:
+        text = "..." + text[start:]
+    return text if len(text) <= SHOWN_CHARACTERS else text[:SHOWN_CHARACTERS - 3] + "..."
+
+
+def _shown_pair(first, second) -> tuple[str, str]:
+    """Two differing values as text, each cut to :data:`SHOWN_CHARACTERS` so that their
+    difference shows.
+
+    Two long texts that differ only after their first 117 characters (a run's warnings
+    alike but for a count in the third) were shown as two equal cut texts under
+    "differ" (review63); where the common start would hide the difference, both are
+    shown from :data:`SHOWN_CONTEXT` characters before their first differing one.
+    """
+    a, b = _text(first), _text(second)
+    common = len(os.path.commonprefix([a, b]))
+    start = common - SHOWN_CONTEXT if common >= SHOWN_CHARACTERS - 3 - SHOWN_CONTEXT else 0
+    return _short(first, start), _short(second, start)
 
 
 def _entries(provenance: dict, key: str) -> list:
@@ -295,22 +326,22 @@ def _recorded_items(first: dict, second: dict) -> list:
         b = [e.get("sha256") for e in _entries(b_prov, key) if isinstance(e, dict)]
         if a != b:
             items.append(("input", f"{label} SHA-256",
-                          _short(a[0] if len(a) == 1 else a or None),
-                          _short(b[0] if len(b) == 1 else b or None)))
+                          *_shown_pair(a[0] if len(a) == 1 else a or None,
+                                       b[0] if len(b) == 1 else b or None)))
     if a_prov.get("demo") != b_prov.get("demo"):
-        items.append(("input", "demo record", _short(a_prov.get("demo")),
-                      _short(b_prov.get("demo"))))
+        items.append(("input", "demo record", *_shown_pair(a_prov.get("demo"),
+                                                           b_prov.get("demo"))))
     for key, section in _SECTIONS:
         if key == "seed" and all(isinstance(m.get("config"), dict)
                                  and m["config"].get("seed") == m.get("seed")
                                  for m in (first, second)):
             continue        # the same seed as the setting's, listed there once
         for name, a, b in field_differences(first.get(key), second.get(key), ""):
-            items.append((section, name or key, _short(a), _short(b)))
+            items.append((section, name or key, *_shown_pair(a, b)))
     for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):
-        items.append(("reader", name or "record", _short(a), _short(b)))
+        items.append(("reader", name or "record", *_shown_pair(a, b)))
     for name, a, b in field_differences(a_prov.get("screening"), b_prov.get("screening"), ""):
-        items.append(("reader", f"screening {name}".strip(), _short(a), _short(b)))
+        items.append(("reader", f"screening {name}".strip(), *_shown_pair(a, b)))
     # the model choices the data made: a rerun on other data (or other code) can choose
     # another respiration temperature, delay or form, which moves the partitioned sums
     for key, fields in _MODEL_CHOICES:
@@ -318,15 +349,15 @@ def _recorded_items(first: dict, second: dict) -> list:
         for name in fields:
             if isinstance(a_choice, dict) and isinstance(b_choice, dict) \
                     and a_choice.get(name) != b_choice.get(name):
-                items.append(("model", f"{key} {name}", _short(a_choice.get(name)),
-                              _short(b_choice.get(name))))
+                items.append(("model", f"{key} {name}",
+                              *_shown_pair(a_choice.get(name), b_choice.get(name))))
     for name, a, b in field_differences(first.get("versions"), second.get("versions"), ""):
-        items.append(("version", name, _short(a), _short(b)))
+        items.append(("version", name, *_shown_pair(a, b)))
     a_code, b_code = first.get("code") or {}, second.get("code") or {}
     for key in ("version", "sha256"):
         if a_code.get(key) != b_code.get(key):
             items.append(("code", "fingerprint" if key == "sha256" else "version",
-                          _short(a_code.get(key)), _short(b_code.get(key))))
+                          *_shown_pair(a_code.get(key), b_code.get(key))))
     for phrase in platform_differences(first.get("platform"), second.get("platform")):
         items.append(("platform", phrase, "", ""))
     a_tables, b_tables = first.get("tables") or {}, second.get("tables") or {}

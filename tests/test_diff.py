@@ -259,3 +259,21 @@ def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsy
     main(["diff", str(first), str(second)])
     out = capsys.readouterr().out
     assert "\\u00b1" not in out and " unit " in out.split("How the annual numbers moved")[1]
+
+
+def test_two_long_values_that_differ_late_show_where_they_differ():
+    """Behaviour check (review63): two runs' warnings alike for their first 117
+    characters were shown as two equal cut texts, "first [...] second [...]", under
+    "differ". Where the common start would hide the difference both are shown from a
+    little before their first differing character; short values are shown whole."""
+    from fluxpart.diff import SHOWN_CHARACTERS, _recorded_items
+
+    alike = "nighttime partitioning: the E0 of 2022 rests on few nights: " * 3
+    first = {"warnings": [alike + "0 of its 72 E0 windows were accepted"]}
+    second = {"warnings": [alike + "1 of its 72 E0 windows were accepted"]}
+    [(section, _, a, b)] = _recorded_items(first, second)
+    assert section == "warnings" and a != b
+    assert a.startswith("...") and "0 of its 72" in a and "1 of its 72" in b
+    assert len(a) <= SHOWN_CHARACTERS and len(b) <= SHOWN_CHARACTERS
+    [(_, _, a, b)] = _recorded_items({"warnings": ["short"]}, {"warnings": ["other"]})
+    assert (a, b) == ('["short"]', '["other"]')
