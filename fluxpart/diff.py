@@ -27,7 +27,6 @@ folder, or does not match its manifest).
 
 from __future__ import annotations
 
-import os
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -287,28 +286,15 @@ def _text(value) -> str:
                                                            ensure_ascii=False)
 
 
-def _short(value, start: int = 0) -> str:
-    """`value` as text of at most :data:`SHOWN_CHARACTERS`, from character `start`
-    (``"..."`` marks each cut end)."""
-    text = _text(value)
-    if start > 0:
-        text = "..." + text[start:]
-    return text if len(text) <= SHOWN_CHARACTERS else text[:SHOWN_CHARACTERS - 3] + "..."
-
-
 def _shown_pair(first, second) -> tuple[str, str]:
-    """Two differing values as text, each cut to :data:`SHOWN_CHARACTERS` so that their
-    difference shows.
+    """Two differing values as text, cut where they differ
+    (:func:`fluxpart.verify.cut_where_they_differ`): two long texts alike in their
+    first 117 characters (two runs' warnings differing in a later count) were shown as
+    two equal cut texts under "differ" (review63)."""
+    from .verify import cut_where_they_differ
 
-    Two long texts that differ only after their first 117 characters (a run's warnings
-    alike but for a count in the third) were shown as two equal cut texts under
-    "differ" (review63); where the common start would hide the difference, both are
-    shown from :data:`SHOWN_CONTEXT` characters before their first differing one.
-    """
-    a, b = _text(first), _text(second)
-    common = len(os.path.commonprefix([a, b]))
-    start = common - SHOWN_CONTEXT if common >= SHOWN_CHARACTERS - 3 - SHOWN_CONTEXT else 0
-    return _short(first, start), _short(second, start)
+    return cut_where_they_differ(_text(first), _text(second), width=SHOWN_CHARACTERS,
+                                 context=SHOWN_CONTEXT)
 
 
 def _entries(provenance: dict, key: str) -> list:

@@ -246,7 +246,7 @@ def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsy
     was shown as the JSON escape "\\u00b1". Each move now carries the column's unit as
     people read it (the carbon and CO2 units with their substance), taken from the stored
     table's own metadata, and text is shown as written."""
-    from fluxpart.diff import _short
+    from fluxpart.diff import _shown_pair
     from fluxpart.units import display_unit
 
     _, first, second = folders
@@ -255,7 +255,8 @@ def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsy
     for (_, column), unit in report.annual["unit"].items():
         assert unit == display_unit(stored[column])
     assert report.annual.loc[(report.annual.index[0][0], "nee"), "unit"] == "g C m-2"
-    assert _short(["E0 267 ± 29 K at 15 °C"]) == '["E0 267 ± 29 K at 15 °C"]'
+    assert _shown_pair(["E0 267 ± 29 K"], ["E0 265 ± 34 K"]) == ('["E0 267 ± 29 K"]',
+                                                                  '["E0 265 ± 34 K"]')
     main(["diff", str(first), str(second)])
     out = capsys.readouterr().out
     assert "\\u00b1" not in out and " unit " in out.split("How the annual numbers moved")[1]
