@@ -611,7 +611,7 @@ def _parser() -> argparse.ArgumentParser:
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
         description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved. Platform facts (CPU "
+        "fingerprint, platform, and how each annual number moved, in its unit. Platform facts (CPU "
         "features, BLAS) are facts of the run, listed apart. Exit 0: the same result, or the "
         "only differences of the result are tables whose values are equal within "
         "floating-point rounding (as verify judges it), whatever platform facts differ; 1: "

@@ -12,7 +12,7 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 - the platform facts that differ (CPU features, BLAS, machine), listed apart: facts of
   the run, not of the result, as ``verify`` treats them (leftovers51);
 - the tables whose bytes differ, and whether their values or only their metadata do;
-- how each annual number moved: both values, the change (second minus first)
+- how each annual number moved: its unit, both values, the change (second minus first)
   and the change relative to the first value's magnitude.
 
 Exit statuses of the command: 0 when the two folders hold the same result from
