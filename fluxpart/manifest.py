@@ -457,6 +457,29 @@ def read_manifest(directory) -> dict:
         raise unreadable(error.filename or directory, error) from None
 
 
+def recorded_inputs(manifest: dict) -> tuple:
+    """The input file(s) a manifest records, in order: ``(path, sha256)`` pairs, the path
+    as recorded (relative to the result folder); empty for a demo or ``Result.write``
+    folder, or a manifest without the record.
+
+    Parameters
+    ----------
+    manifest : dict
+        A parsed ``manifest.json`` (:func:`read_manifest`).
+
+    Returns
+    -------
+    tuple of (str, str)
+    """
+    recorded = ((manifest.get("provenance") or {}).get("input")
+                if isinstance(manifest, dict) else None)
+    if not isinstance(recorded, dict):
+        return ()
+    parts = recorded.get("files") if isinstance(recorded.get("files"), list) else [recorded]
+    return tuple((str(part.get("path")), str(part.get("sha256"))) for part in parts
+                 if isinstance(part, dict))
+
+
 def _nearby_result(directory: Path) -> str:
     """A hint naming the result folder next to `directory`: the one whose report page
     folder it is (``out/report``), or the one folder it holds (a bundle of input, site

@@ -45,3 +45,28 @@ def test_percent_the_udunits_name_of_rh_units_is_read_as_percent():
     values = np.array([35.5, 100.0])
     assert np.array_equal(to_canonical(values, "rh", unit_spelling("rh", "percent")),
                           to_canonical(values, "rh", "%"))
+
+
+def test_a_run_that_replaces_another_inputs_result_says_so(tmp_path):
+    """Behaviour check: `run` into the folder of an earlier result of the same [site] name
+    but another input (the 2022 config run into the folder that held 2024) replaced it, as
+    documented, without a word. A note now names the input the folder held, by the
+    SHA-256 its manifest recorded; the same input, a new folder or a folder without a
+    readable manifest give no note."""
+    import json
+
+    from fluxpart.cli import _inputs_held, replaced_note
+
+    out = tmp_path / "out"
+    out.mkdir()
+    assert _inputs_held(out) == ()
+    now = {"path": "../tower_2022.csv", "sha256": "a" * 64}
+    (out / "manifest.json").write_text(json.dumps({"provenance": {"input": now}}))
+    earlier = (("../tower_2024.csv", "b" * 64),)
+    note = replaced_note(out, earlier)
+    assert note.startswith("note: ") and "'tower_2024.csv' (sha256 bbbbbbbbbbbb...)" in note
+    assert "this run replaced it" in note
+    assert replaced_note(out, (("../tower_2022.csv", "a" * 64),)) == ""
+    assert replaced_note(out, ()) == ""
+    (out / "manifest.json").write_text("{not json")
+    assert _inputs_held(out) == () and replaced_note(out, earlier) == ""
