@@ -74,6 +74,7 @@ from .manifest import (
     MANIFEST_FORMAT,
     library_versions,
     read_manifest,
+    recorded_inputs,
     seal_intact,
     shown_name,
     shown_path,
@@ -1636,11 +1637,7 @@ def settled_outcome(outcome: SiteOutcome) -> SiteOutcome:
 
 def _input_hashes(directory: Path) -> tuple:
     """SHA-256 of the input file(s) a result folder records, in order (empty if none)."""
-    recorded = read_manifest(directory).get("provenance", {}).get("input")
-    if not isinstance(recorded, dict):
-        return ()
-    parts = recorded.get("files") if isinstance(recorded.get("files"), list) else [recorded]
-    return tuple(str(part.get("sha256")) for part in parts if isinstance(part, dict))
+    return tuple(sha for _, sha in recorded_inputs(read_manifest(directory)))
 
 
 def same_input_sites(outcomes) -> list[str]:

@@ -338,6 +338,44 @@ def _check_recordable_paths(site_config, config_path, out: Path) -> None:
         raise FluxpartError(undecodable_message(undecodable[0]))
 
 
+def _inputs_held(out: Path) -> tuple:
+    """The input files the result folder `out` records, ``(path, sha256)`` each; empty
+    where it holds no readable result (a new folder, a damaged manifest)."""
+    from .manifest import read_manifest, recorded_inputs
+
+    if not (out / "manifest.json").is_file():
+        return ()
+    try:
+        return recorded_inputs(read_manifest(out))
+    except (FluxpartError, OSError, ValueError):
+        return ()
+
+
+def replaced_note(out: Path, earlier: tuple) -> str:
+    """A note where `run` replaced a result of other input files (another year's config
+    into the same --out; allowed for the same [site] name), else ``""``.
+
+    The folder is replaced whole, as documented, but said nothing of what it held: an
+    operator rerunning 2022 into the folder that held 2024 lost that result without a
+    word (review63). Inputs are compared by their recorded SHA-256.
+
+    Parameters
+    ----------
+    out : pathlib.Path
+        The result folder just written.
+    earlier : tuple of (str, str)
+        ``(path, sha256)`` of the input files it recorded before the run
+        (:func:`_inputs_held`).
+    """
+    now = _inputs_held(out)
+    if not earlier or not now or {sha for _, sha in earlier} == {sha for _, sha in now}:
+        return ""
+    names = ", ".join(f"{Path(path).name!r} (sha256 {sha[:12]}...)" for path, sha in earlier[:3])
+    more = f" and {len(earlier) - 3} more" if len(earlier) > 3 else ""
+    return (f"note: {shown_path(f'{out}/')} held the result of another input, {names}{more}; "
+            "this run replaced it")
+
+
 def _command_run(args) -> int:
     from .config import Config
     from .io import read_site_config
@@ -350,6 +388,7 @@ def _command_run(args) -> int:
     _check_output_folder(out, lambda: read_site_config(args.config).site.name)
     _check_recordable_paths(read_site_config(args.config), args.config, out)
     bar, advance = _progress_bar(config, args.quiet)
+    earlier = _inputs_held(out)
     # the folder's lock is held from the start: a second run into the same --out waits
     # for this one (saying so on stderr) instead of computing alongside and overwriting it
     out.absolute().parent.mkdir(parents=True, exist_ok=True)
@@ -370,6 +409,9 @@ def _command_run(args) -> int:
     for warning in result.warnings:
         print(f"warning: {warning}")
     print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
+    replaced = replaced_note(out, earlier)
+    if replaced:
+        print(replaced)
     # `demo` draws its page; `run` leaves it to `report`, and says so (review54)
     import shlex
 
@@ -615,11 +657,11 @@ def _parser() -> argparse.ArgumentParser:
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
         description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved. Library versions, the code "
-        "fingerprint and platform facts (CPU features, BLAS) are facts of the run, listed "
-        "apart. Exit 0: the same result, or the only differences of the result are tables "
-        "whose values are equal within floating-point rounding (as verify judges it), "
-        "whatever platform facts, versions or code differ; 1: anything else differs; 2: "
+        "fingerprint, platform, and how each annual number moved, in its unit. Library "
+        "versions, the code fingerprint and platform facts (CPU features, BLAS) are facts of "
+        "the run, listed apart. Exit 0: the same result, or the only differences of the result "
+        "are tables whose values are equal within floating-point rounding (as verify judges "
+        "it), whatever platform facts, versions or code differ; 1: anything else differs; 2: "
         "error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")

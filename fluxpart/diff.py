@@ -13,7 +13,7 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
   ``verify`` treats them (platform since leftovers51, versions and code since
   leftovers52);
 - the tables whose bytes differ, and whether their values or only their metadata do;
-- how each annual number moved: both values, the change (second minus first)
+- how each annual number moved: its unit, both values, the change (second minus first)
   and the change relative to the first value's magnitude.
 
 Exit statuses of the command: 0 when the two folders hold the same result from
@@ -86,7 +86,9 @@ class DiffReport:
         respiration form's weight the night data chose; since 0.17.0), ``"version"``,
         ``"code"``, ``"platform"`` and ``"table"``.
     annual : pandas.DataFrame
-        One row per (year, column) of ``annual`` whose value differs: ``first``,
+        One row per (year, column) of ``annual`` whose value differs: ``unit`` (the
+        column's unit as people read it: ``g C m-2``, ``t CO2 ha-1``, ``m s-1``, ``1``
+        for a share or count, ``""`` for a date or label; since review63), ``first``,
         ``second``, ``change`` (second - first, in the column's unit) and
         ``relative`` (change / |first|; NaN when first is 0 or missing). Both are NaN
         for a year whose row covers another period in each folder (``period_start`` or
@@ -211,8 +213,9 @@ class DiffReport:
                                  "other periods in the two folders (period_start / "
                                  "period_end differ: another [processing] year_start): "
                                  "their values are listed, not differenced")
-                lines.append("How the annual numbers moved (units of each column; change = "
-                             "second - first; relative = change / |first|):")
+                lines.append("How the annual numbers moved (in each column's unit; change = "
+                             "second - first; relative = change / |first|, 0.01 = 1 %; "
+                             "NEE < 0 is net uptake):")
                 shown = self.annual.copy()
                 # a year one folder lacks is "-" in every column: pandas prints an absent
                 # date or flag as "None" or "NaT" (review54), a number as na_rep
@@ -305,13 +308,32 @@ def _years_of_other_periods(annual: pd.DataFrame) -> list:
     return out
 
 
-def _short(value) -> str:
+#: Characters a differing value is shown in (a setting, a warnings list) [characters].
+SHOWN_CHARACTERS = 120
+#: Characters kept before the first differing one where a long common start is cut
+#: [characters].
+SHOWN_CONTEXT = 30
+
+
+def _text(value) -> str:
     import json
 
     if value is None:
         return "none"           # JSON's "null" and an empty list "[]" read as code (review46)
-    text = value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str)
-    return text if len(text) <= 120 else text[:117] + "..."
+    # "±" and "°C" as written, not "\u00b1" (review63): verify shows them so too
+    return value if isinstance(value, str) else json.dumps(value, sort_keys=True, default=str,
+                                                           ensure_ascii=False)
+
+
+def _shown_pair(first, second) -> tuple[str, str]:
+    """Two differing values as text, cut where they differ
+    (:func:`fluxpart.verify.cut_where_they_differ`): two long texts alike in their
+    first 117 characters (two runs' warnings differing in a later count) were shown as
+    two equal cut texts under "differ" (review63)."""
+    from .verify import cut_where_they_differ
+
+    return cut_where_they_differ(_text(first), _text(second), width=SHOWN_CHARACTERS,
+                                 context=SHOWN_CONTEXT)
 
 
 def _entries(provenance: dict, key: str) -> list:
@@ -329,22 +351,22 @@ def _recorded_items(first: dict, second: dict) -> list:
         b = [e.get("sha256") for e in _entries(b_prov, key) if isinstance(e, dict)]
         if a != b:
             items.append(("input", f"{label} SHA-256",
-                          _short(a[0] if len(a) == 1 else a or None),
-                          _short(b[0] if len(b) == 1 else b or None)))
+                          *_shown_pair(a[0] if len(a) == 1 else a or None,
+                                       b[0] if len(b) == 1 else b or None)))
     if a_prov.get("demo") != b_prov.get("demo"):
-        items.append(("input", "demo record", _short(a_prov.get("demo")),
-                      _short(b_prov.get("demo"))))
+        items.append(("input", "demo record", *_shown_pair(a_prov.get("demo"),
+                                                           b_prov.get("demo"))))
     for key, section in _SECTIONS:
         if key == "seed" and all(isinstance(m.get("config"), dict)
                                  and m["config"].get("seed") == m.get("seed")
                                  for m in (first, second)):
             continue        # the same seed as the setting's, listed there once
         for name, a, b in field_differences(first.get(key), second.get(key), ""):
-            items.append((section, name or key, _short(a), _short(b)))
+            items.append((section, name or key, *_shown_pair(a, b)))
     for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):
-        items.append(("reader", name or "record", _short(a), _short(b)))
+        items.append(("reader", name or "record", *_shown_pair(a, b)))
     for name, a, b in field_differences(a_prov.get("screening"), b_prov.get("screening"), ""):
-        items.append(("reader", f"screening {name}".strip(), _short(a), _short(b)))
+        items.append(("reader", f"screening {name}".strip(), *_shown_pair(a, b)))
     # the model choices the data made: a rerun on other data (or other code) can choose
     # another respiration temperature, delay or form, which moves the partitioned sums
     for key, fields in _MODEL_CHOICES:
@@ -352,15 +374,15 @@ def _recorded_items(first: dict, second: dict) -> list:
         for name in fields:
             if isinstance(a_choice, dict) and isinstance(b_choice, dict) \
                     and a_choice.get(name) != b_choice.get(name):
-                items.append(("model", f"{key} {name}", _short(a_choice.get(name)),
-                              _short(b_choice.get(name))))
+                items.append(("model", f"{key} {name}",
+                              *_shown_pair(a_choice.get(name), b_choice.get(name))))
     for name, a, b in field_differences(first.get("versions"), second.get("versions"), ""):
-        items.append(("version", name, _short(a), _short(b)))
+        items.append(("version", name, *_shown_pair(a, b)))
     a_code, b_code = first.get("code") or {}, second.get("code") or {}
     for key in ("version", "sha256"):
         if a_code.get(key) != b_code.get(key):
             items.append(("code", "fingerprint" if key == "sha256" else "version",
-                          _short(a_code.get(key)), _short(b_code.get(key))))
+                          *_shown_pair(a_code.get(key), b_code.get(key))))
     for phrase in platform_differences(first.get("platform"), second.get("platform")):
         items.append(("platform", phrase, "", ""))
     a_tables, b_tables = first.get("tables") or {}, second.get("tables") or {}
@@ -483,6 +505,11 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
 
 
 def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFrame, int, list]:
+    from .units import display_unit
+
+    # each move beside its unit: "-0.273" of nee (g C m-2) beside "0.0118" of the u*
+    # threshold (m s-1) and "-0.009" of a share (1) read as one scale (review63)
+    units = {**(second.attrs.get("units") or {}), **(first.attrs.get("units") or {})}
     rows, same = [], 0
     years = first.index.union(second.index)
     columns = list(first.columns) + [c for c in second.columns if c not in first.columns]
@@ -515,15 +542,17 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
                 change = fb - fa if year not in other else np.nan
                 relative = (change / abs(fa) if np.isfinite(fa) and fa != 0 and np.isfinite(change)
                             else np.nan)
-                rows.append({"year": year, "column": column, "first": fa, "second": fb,
-                             "change": change, "relative": relative})
+                rows.append({"year": year, "column": column,
+                             "unit": display_unit(units.get(column, "")), "first": fa,
+                             "second": fb, "change": change, "relative": relative})
             else:
                 if a is not None and b is not None and (a == b or (pd.isna(a) and pd.isna(b))):
                     same += 1
                     continue
-                rows.append({"year": year, "column": column, "first": a, "second": b,
-                             "change": np.nan, "relative": np.nan})
-    table = pd.DataFrame(rows, columns=["year", "column", "first", "second", "change",
+                rows.append({"year": year, "column": column,
+                             "unit": display_unit(units.get(column, "")), "first": a,
+                             "second": b, "change": np.nan, "relative": np.nan})
+    table = pd.DataFrame(rows, columns=["year", "column", "unit", "first", "second", "change",
                                         "relative"])
     return table.set_index(["year", "column"]), same, rounding
 

@@ -128,15 +128,25 @@ def thin_e0_notes(e0_annual: pd.DataFrame, e0_windows: pd.DataFrame,
                                 .str.startswith("too few night records"), "temperature_range"]
         spread = (f"; the median range of its windows is "
                   f"{float(np.nanmedian(judged)):.1f} K" if judged.notna().any() else "")
+        accepted = int(row["windows_accepted"])
+        # "0 of them without overlap" after "0 ... were accepted" said nothing (review63)
+        apart = f", {disjoint} of them without overlap" if accepted else ""
+        # "0 accepted" beside an E0 with its error and "windows_used 25" in the report's
+        # table read as a contradiction (review63): say what the joint E0 rests on
+        used = row.get("windows_used")
+        joint = (f"; its E0 is one fit to the night records of {int(used)} consecutive "
+                 "windows together, each with its own Rref (source joint), not a mean of "
+                 "windows accepted on their own"
+                 if row["source"] == "joint" and used is not None and pd.notna(used) else "")
         notes.append(
             f"nighttime partitioning: the E0 of {year} ({float(row['e0']):.0f} ± "
             f"{float(row['e0_se']):.0f} K, on {respiration_driver}) rests on few nights: "
-            f"{int(row['windows_accepted'])} of its {int(row['windows_tried'])} E0 windows "
+            f"{accepted} of its {int(row['windows_tried'])} E0 windows "
             f"were accepted (a night temperature range of at least "
-            f"{e0_min_temperature_range:g} K and an acceptable fit), {disjoint} of them "
-            f"without overlap, fewer than the {e0_best_windows} independent windows the "
-            f"window method averages (Reichstein et al. 2005){spread}. Over so narrow a "
-            "range E0 is poorly determined and its standard error may understate that: "
+            f"{e0_min_temperature_range:g} K and an acceptable fit){apart}, fewer than the "
+            f"{e0_best_windows} independent windows the "
+            f"window method averages (Reichstein et al. 2005){spread}{joint}. Over so narrow "
+            "a range E0 is poorly determined and its standard error may understate that: "
             "treat the year's nighttime Reco and GPP with caution (the nighttime E0 window "
             "table holds every window)")
     return notes

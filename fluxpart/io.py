@@ -1698,10 +1698,31 @@ def _unit_spellings(units: dict) -> dict:
     return {name: unit_spelling(name, unit) for name, unit in units.items()}
 
 
+#: Likeness (difflib ratio, 0..1) above which a time_marks value is taken for a slip of
+#: one of its three words (a typo, another case). A looser match named the opposite mark:
+#: "stop" -> "start", "begin" and "centre" -> "end" (cutoff 0.4; review63), a hint that
+#: shifts every stamp by one interval. 0.6 is difflib's own default (m).
+TIME_MARKS_LIKENESS = 0.6
+
+
 def _check_time_marks(value) -> str:
+    """Return `value`, a valid ``[input] time_marks``, or raise naming the three choices.
+
+    A hint is given only for a slip of one word (``"Start"``, ``"middel"``, ``"endd"``);
+    another word (``"begin"``, ``"stop"``, ``"centre"``) gets the meaning of each choice
+    instead, since a hint to the wrong end moves every stamp by one record.
+
+    References
+    ----------
+    Python documentation, ``difflib.get_close_matches`` (m).
+    """
     if value not in TIME_MARKS:
-        close = difflib.get_close_matches(str(value), TIME_MARKS, n=1, cutoff=0.4)
-        hint = f"; did you mean {setting_text(close[0])}?" if close else ""
+        close = difflib.get_close_matches(str(value).strip().lower(), TIME_MARKS, n=1,
+                                          cutoff=TIME_MARKS_LIKENESS)
+        hint = (f"; did you mean {setting_text(close[0])}?" if close else
+                " (the place in its averaging interval each stamp of the time column marks: "
+                "its start, middle or end; a stamp of 00:30 on the first half-hour of a day "
+                "marks its end)")
         raise ConfigError(f"[input] time_marks = {setting_text(value)}: expected one of "
                           f"{', '.join(setting_text(m) for m in TIME_MARKS)}{hint}")
     return value

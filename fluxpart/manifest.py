@@ -458,6 +458,29 @@ def read_manifest(directory) -> dict:
         raise unreadable(error.filename or directory, error) from None
 
 
+def recorded_inputs(manifest: dict) -> tuple:
+    """The input file(s) a manifest records, in order: ``(path, sha256)`` pairs, the path
+    as recorded (relative to the result folder); empty for a demo or ``Result.write``
+    folder, or a manifest without the record.
+
+    Parameters
+    ----------
+    manifest : dict
+        A parsed ``manifest.json`` (:func:`read_manifest`).
+
+    Returns
+    -------
+    tuple of (str, str)
+    """
+    recorded = ((manifest.get("provenance") or {}).get("input")
+                if isinstance(manifest, dict) else None)
+    if not isinstance(recorded, dict):
+        return ()
+    parts = recorded.get("files") if isinstance(recorded.get("files"), list) else [recorded]
+    return tuple((str(part.get("path")), str(part.get("sha256"))) for part in parts
+                 if isinstance(part, dict))
+
+
 #: The name of a writer's staging folder beside its output NAME (``.NAME.staging-`` and
 #: the 8 characters of :func:`tempfile.mkdtemp`: :func:`fluxpart.resultdir.make_staging`).
 _STAGING_NAME = re.compile(r"^\.(.+)\.staging-[a-z0-9_]{8}$")

@@ -1146,8 +1146,29 @@ def _e0(days, index, usable, temperature, config) -> list:
                if fallback else "the E0 of the nearest year with one would be used (set "
                "[processing] e0_fallback for a fixed E0 in K instead)" if nearest
                else "set [processing] e0_fallback (a fixed E0 in K) or supply a "
-               "longer record with measured night NEE")), not (fallback or nearest)))
+               "longer record with measured night NEE")
+            + _joint_first(config, fallback or nearest)), not (fallback or nearest)))
     return findings
+
+
+def _joint_first(config, goes_on: bool) -> str:
+    """The clause a year's E0 finding needs under ``e0_method = "joint"``.
+
+    The joint fit (one E0 over all of a year's night records, a free Rref per window)
+    needs no window spanning ``e0_min_temperature_range`` and is tried before any
+    fall-back: on an invented fen whose soil nights spanned 2.7 K (3.4 K at most) the
+    finding said "the fall-back e0_fallback = 200 K would be used" and the run took the
+    joint fit's 267 ± 29 K instead (review63). Where the finding stops the run the
+    joint fit is not reached; with ``e0_fallback`` set it is tried first.
+    """
+    if config.e0_method != "joint":
+        return ""
+    if goes_on:
+        return (" where the year's joint fit (e0_method = \"joint\") finds no E0; it is "
+                "tried first, and an E0 it finds on so narrow a range is poorly determined "
+                "(a warning then names the year)")
+    return (" (with e0_fallback set, the year's joint fit, e0_method = \"joint\", is tried "
+            "first and the fixed E0 used only where it finds none)")
 
 
 #: Stage of a fatal finding that stops one partitioning method only -> the method. Where

@@ -147,7 +147,10 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     # centimetres per second: some sonic programs and older records write u* so
     # (1 cm s-1 = 0.01 m s-1, SI; layouts34: refused with no unit to declare)
     "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0), "cm s-1": (0.01, 0.0)},
-    "rh": {"%": (1.0, 0.0), "fraction": (100.0, 0.0), "1": (100.0, 0.0),
+    # "percent": the UDUNITS-2 and CF name of %, which fluxpart's own NetCDF and CSVW
+    # metadata write (review63: refused as "not a known unit for rh")
+    "rh": {"%": (1.0, 0.0), "percent": (1.0, 0.0), "fraction": (100.0, 0.0),
+           "1": (100.0, 0.0),
            "0.1 %": (0.1, 0.0)},          # tenths of a percent as whole numbers (layouts32)
     "nee_flag": {"1": (1.0, 0.0)},
     "storage": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),

@@ -893,14 +893,40 @@ def _texts(stored, recomputed) -> tuple[str, str]:
     if "(absent)" in (stored, recomputed):
         return _text(stored), _text(recomputed)
     full = [json.dumps(v, sort_keys=True, ensure_ascii=False) for v in (stored, recomputed)]
-    if all(len(t) <= 200 for t in full):
-        return full[0], full[1]
-    same = len(os.path.commonprefix(full))
-    start = same - 40 if same > 80 else 0
+    return cut_where_they_differ(full[0], full[1], width=200, context=40)
+
+
+def cut_where_they_differ(first: str, second: str, *, width: int,
+                          context: int) -> tuple[str, str]:
+    """Two differing texts, each cut to `width` characters so that their difference shows.
+
+    Where either is longer than `width` and their common beginning is longer than twice
+    `context`, both begin `context` characters before their first differing character,
+    marked ``"..."``; a text still too long ends in ``"..."``. Used by ``verify`` (200,
+    40) and ``diff`` (120, 30; round review63: two runs' warnings alike in their first
+    117 characters were shown there as two equal cut texts).
+
+    Parameters
+    ----------
+    first, second : str
+        The two texts.
+    width : int
+        Most characters shown of each [characters].
+    context : int
+        Characters kept before the first difference [characters].
+
+    Returns
+    -------
+    tuple of str
+    """
+    if len(first) <= width and len(second) <= width:
+        return first, second
+    same = len(os.path.commonprefix([first, second]))
+    start = same - context if same > 2 * context else 0
     shown = []
-    for text in full:
+    for text in (first, second):
         text = ("..." if start else "") + text[start:]
-        shown.append(text if len(text) <= 200 else text[:197] + "...")
+        shown.append(text if len(text) <= width else text[:width - 3] + "...")
     return shown[0], shown[1]
 
 

@@ -238,3 +238,44 @@ def test_float_noise_reads_equal_within_rounding_not_as_a_move():
                       same_annual=same, rounding_annual=tuple(rounding)).format()
     assert "gpp_daytime_ustar_spread" not in text.split("annual values equal in both")[0]
     assert "equal within rounding" in text and "1 (2023 gpp_daytime_ustar_spread)" in text
+
+
+def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsys):
+    """Behaviour check (review63, a modeller's diff of a changed setting): the moves table
+    put -0.27 of NEE (g C m-2), 0.012 of the u* threshold (m s-1) and -0.009 of a share
+    side by side with no unit ("units of each column" named none), and a warning's "±"
+    was shown as the JSON escape "\\u00b1". Each move now carries the column's unit as
+    people read it (the carbon and CO2 units with their substance), taken from the stored
+    table's own metadata, and text is shown as written."""
+    from fluxpart.diff import _shown_pair
+    from fluxpart.units import display_unit
+
+    _, first, second = folders
+    report = diff_folders(first, second)
+    stored = read_table(first / "annual.parquet").attrs["units"]
+    for (_, column), unit in report.annual["unit"].items():
+        assert unit == display_unit(stored[column])
+    assert report.annual.loc[(report.annual.index[0][0], "nee"), "unit"] == "g C m-2"
+    assert _shown_pair(["E0 267 ± 29 K"], ["E0 265 ± 34 K"]) == ('["E0 267 ± 29 K"]',
+                                                                  '["E0 265 ± 34 K"]')
+    main(["diff", str(first), str(second)])
+    out = capsys.readouterr().out
+    assert "\\u00b1" not in out and " unit " in out.split("How the annual numbers moved")[1]
+
+
+def test_two_long_values_that_differ_late_show_where_they_differ():
+    """Behaviour check (review63): two runs' warnings alike for their first 117
+    characters were shown as two equal cut texts, "first [...] second [...]", under
+    "differ". Where the common start would hide the difference both are shown from a
+    little before their first differing character; short values are shown whole."""
+    from fluxpart.diff import SHOWN_CHARACTERS, _recorded_items
+
+    alike = "nighttime partitioning: the E0 of 2022 rests on few nights: " * 3
+    first = {"warnings": [alike + "0 of its 72 E0 windows were accepted"]}
+    second = {"warnings": [alike + "1 of its 72 E0 windows were accepted"]}
+    [(section, _, a, b)] = _recorded_items(first, second)
+    assert section == "warnings" and a != b
+    assert a.startswith("...") and "0 of its 72" in a and "1 of its 72" in b
+    assert len(a) <= SHOWN_CHARACTERS and len(b) <= SHOWN_CHARACTERS
+    [(_, _, a, b)] = _recorded_items({"warnings": ["short"]}, {"warnings": ["other"]})
+    assert (a, b) == ('["short"]', '["other"]')

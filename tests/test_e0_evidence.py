@@ -48,6 +48,9 @@ def test_a_year_of_narrow_nights_is_named_and_a_seasonal_year_is_not(rng):
     annual, [note] = _notes(*_night_year(rng, seasonal_k=0.5, diurnal_k=0.8))
     assert annual.loc[2022, "source"] == "joint"
     assert "E0 of 2022" in note and "tair" in note and "of its 72 E0 windows" in note
+    # review63: the joint E0's basis is named with the table's own windows_used
+    used = int(annual.loc[2022, "windows_used"])
+    assert f"one fit to the night records of {used} consecutive windows together" in note
     assert "at least 5 K" in note and "fewer than the 3 independent windows" in note
     annual, notes = _notes(*_night_year(rng, seasonal_k=8.0, diurnal_k=2.0, mean_c=10.0))
     assert notes == [] and annual.loc[2022, "windows_accepted"] >= 20
@@ -103,7 +106,11 @@ def test_borrowed_and_fallback_years_are_left_to_their_own_warnings():
     assert e0_evidence.thin_e0_notes(annual, windows, "tsoil") == []
     annual["source"] = ["fitted", "fallback"]
     [note] = e0_evidence.thin_e0_notes(annual, windows, "tsoil")
-    assert "E0 of 2022" in note and "0 of them without overlap" in note and "2.0 K" in note
+    assert "E0 of 2022" in note and "2.0 K" in note
+    # review63: "0 of them without overlap" after "0 of its 1 E0 windows were accepted"
+    # added nothing; a fitted year names no joint fit
+    assert "0 of its 1 E0 windows were accepted" in note and "without overlap" not in note
+    assert "source joint" not in note
 
 
 def test_the_demo_site_year_is_not_named(demo_default_run):

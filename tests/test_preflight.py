@@ -489,3 +489,28 @@ def test_the_run_defers_a_shade_that_half_an_hour_of_clock_explains(demo_frame):
         verdict, findings = check_record(frame, site, Config(clock_check="warn"))
         assert verdict.status == "consistent"
         assert ("input (rg shaded)" in _stages(findings)) is named
+
+
+def test_a_narrow_night_range_names_the_joint_fit_that_comes_first(demo_frame):
+    """Behaviour check (review63): with no 15-day window of night temperatures over 5 K
+    (Reichstein et al. 2005 (m)) and e0_fallback set, the finding said "the fall-back
+    e0_fallback = ... K would be used", while under the default e0_method = "joint" the
+    run took the joint fit's E0 (an invented fen: 267 ± 29 K, not the fall-back's 200).
+    The finding now says the joint fit is tried first; without e0_fallback it still stops
+    the run, and says what setting e0_fallback would do; best_windows has no joint fit."""
+    hours = demo_frame.index.hour + demo_frame.index.minute / 60.0
+    # soil-like nights: a 2 K daily swing and no seasonal cycle (no window reaches 5 K)
+    frame = demo_frame.assign(tair=10.0 + np.sin(2 * np.pi * hours / 24.0))
+
+    def e0_finding(config):
+        _, findings = check_record(frame, demo.site(), config)
+        [finding] = [f for f in findings if f.stage == "nighttime partitioning (E0)"]
+        return finding
+
+    found = e0_finding(Config(e0_fallback=150.0))
+    assert not found.fatal and "150 K would be used where the year's joint fit" in found.message
+    assert "tried first" in found.message
+    found = e0_finding(Config())
+    assert found.fatal and "with e0_fallback set, the year's joint fit" in found.message
+    found = e0_finding(Config(e0_method="best_windows", e0_fallback=150.0))
+    assert "joint" not in found.message and "150 K would be used" in found.message
