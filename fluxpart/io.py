@@ -55,11 +55,13 @@ from . import (
     digit_grouping,
     flux_rate_labels,
     footers,
+    header_marks,
     interleaved_lines,
     later_files,
     unicode_names,
 )
 from ._validate import (
+    is_tar,
     markup_message,
     odd_entry,
     other_system_path_hint,
@@ -67,7 +69,9 @@ from ._validate import (
     printable_line,
     read_site_config_toml,
     refuse_binary,
+    single_tar_member,
     single_zip_member,
+    tar_files,
     unicode_form_hint,
 )
 from .civil_splits import second_pass_head
@@ -2599,16 +2603,20 @@ def _decompressed(data: bytes, path: Path) -> bytes:
 
     A compressed text table is the table: read it as the file it holds (by its leading
     bytes, whatever its name), its hash still the compressed file's; so is a zip
-    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
-    archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
-    of several files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
+    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36), and
+    since layouts43 a tar archive of one (``.tar``, ``.tar.gz``: :func:`_tar_table`). A
+    tar archive of several files is refused naming them, as are zip archives of several
+    files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
     file already gzipped, or of a zip of one table) is the table too: up to
     :data:`_COMPRESSION_LAYERS` layers are taken off (layouts41; refused before as
     "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)").
     """
+    name = ""
     for _ in range(_COMPRESSION_LAYERS):
         if data.startswith(b"PK\x03\x04"):
             data = single_zip_member(data) or data
+        if is_tar(data):
+            data = _tar_table(data, path, name)
         layer = next(((name, module) for magic, name, module in _COMPRESSED
                       if data.startswith(magic)
                       and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)
@@ -2621,12 +2629,27 @@ def _decompressed(data: bytes, path: Path) -> bytes:
             raise InputFileError(
                 f"input file {str(path)!r} is {name}-compressed but cannot be "
                 f"decompressed ({error}): a copy cut short? Copy it again") from None
-        if data[257:262] == b"ustar":
-            raise InputFileError(
-                f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
-                "packed together), not a text table; unpack it and point [input] path "
-                "at the text files")
-    return data
+    return _tar_table(data, path, name) if is_tar(data) else data
+
+
+def _tar_table(data: bytes, path: Path, compressed: str) -> bytes:
+    """The one table of the tar archive `data` (:func:`fluxpart._validate.single_tar_member`;
+    `compressed` names the compressor it came out of, "" for none), else an InputFileError
+    naming the files it holds (layouts43: a plain tar was refused for the zero bytes of
+    its headers, a compressed one as an archive of files without naming them)."""
+    table = single_tar_member(data)
+    if table is not None:
+        return table
+    kind = f"a {compressed}-compressed tar archive" if compressed else "a tar archive"
+    files = tar_files(data)
+    if files is None:
+        raise InputFileError(f"[input] path: {str(path)!r} is {kind} that cannot be read "
+                             "to its end: a copy cut short? Copy it again")
+    shown = ", ".join(repr(member.name) for member in files[:3])
+    more = f" and {len(files) - 3} more" if len(files) > 3 else ""
+    raise InputFileError(f"[input] path: {str(path)!r} is {kind} holding {len(files)} "
+                         f"file(s) ({shown}{more}), not a text table; unpack it and point "
+                         "[input] path at the text file(s)")
 
 
 def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
@@ -3963,6 +3986,16 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     if respelled:
         raw = raw.rename(columns=respelled)
         header = [respelled.get(name, name) for name in header]
+    unmarked = header_marks.unmarked_first_name(list(raw.columns), [
+        *columns.values(), *time_columns, *flag_columns,
+        *(name for names in (other_names or {}).values() for name in names)])
+    if unmarked:
+        (marked, name), = unmarked.items()
+        raw = raw.rename(columns=unmarked)
+        header = [unmarked.get(cell, cell) for cell in header]
+        warnings.append(f"input file {str(path)!r}: the header line opens with a comment "
+                        f"mark ({marked!r}, as programs that write the header as a comment "
+                        f"do): its first column read as {name!r}")
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
