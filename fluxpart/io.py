@@ -55,7 +55,7 @@ from . import (
     digit_grouping,
     flux_rate_labels,
     footers,
-    header_marks,
+    header_cells,
     interleaved_lines,
     later_files,
     unicode_names,
@@ -2914,7 +2914,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                         "mid-write): dropped")
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
-    first_line = rows_before_header + rows_after_header + 2
+    first_line = rows_before_header + rows_after_header + 2 + _header_breaks(
+        text, rows_before_header, delimiter)
     raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
         text, rows_before_header, first_line, delimiter))
     blank = _blank_rows(raw)
@@ -3258,6 +3259,19 @@ def _header_and_first(text: str, rows_before_header: int, first_line: int,
     lines = text.splitlines()[:first_line]
     return (lines[rows_before_header] if len(lines) > rows_before_header else "",
             lines[first_line - 1] if len(lines) >= first_line else "")
+
+
+def _header_breaks(text: str, rows_before_header: int, delimiter: str) -> int:
+    """The line breaks inside the header's quoted names (a spreadsheet's wrapped header
+    cells, :mod:`fluxpart.header_cells`): the lines the header takes beyond its first,
+    by which every record's line number moves (layouts43)."""
+    head = text[:65536].splitlines()[rows_before_header:]
+    if not head or '"' not in head[0] or delimiter == _WHITESPACE:
+        return 0
+    reader = csv.reader(iter(head), delimiter=delimiter)
+    if next(reader, None) is None or reader.line_num >= len(head):
+        return 0                              # no record after it: no quote closed
+    return reader.line_num - 1
 
 
 def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
@@ -3986,16 +4000,22 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     if respelled:
         raw = raw.rename(columns=respelled)
         header = [respelled.get(name, name) for name in header]
-    unmarked = header_marks.unmarked_first_name(list(raw.columns), [
-        *columns.values(), *time_columns, *flag_columns,
-        *(name for names in (other_names or {}).values() for name in names)])
-    if unmarked:
-        (marked, name), = unmarked.items()
-        raw = raw.rename(columns=unmarked)
-        header = [unmarked.get(cell, cell) for cell in header]
+    wanted = [*columns.values(), *time_columns, *flag_columns,
+              *(name for names in (other_names or {}).values() for name in names)]
+    unmarked = header_cells.unmarked_first_name(list(raw.columns), wanted)
+    unwrapped = header_cells.unwrapped_names(list(raw.columns), wanted)
+    if unmarked or unwrapped:
+        raw = raw.rename(columns=unmarked | unwrapped)
+        header = [(unmarked | unwrapped).get(cell, cell) for cell in header]
+    for marked, name in unmarked.items():
         warnings.append(f"input file {str(path)!r}: the header line opens with a comment "
                         f"mark ({marked!r}, as programs that write the header as a comment "
                         f"do): its first column read as {name!r}")
+    if unwrapped:
+        shown = ", ".join(repr(name) for name in list(unwrapped.values())[:3])
+        warnings.append(f"input file {str(path)!r}: {len(unwrapped)} header name(s) hold a "
+                        "line break (a spreadsheet's wrapped header cells), read as a blank: "
+                        f"{shown}")
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:

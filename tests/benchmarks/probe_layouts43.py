@@ -434,6 +434,85 @@ def xlsx_workbook_saved_under_a_csv_name(folder):
     return "refused"
 
 
+def tarred(folder, members, name="t.tar.gz", mode="w:gz"):
+    """A tar archive (gzip-compressed for "w:gz") of `members` (name, bytes)."""
+    buffer = io.BytesIO()
+    with tarfile.open(fileobj=buffer, mode=mode, format=tarfile.USTAR_FORMAT) as archive:
+        for member, data in members:
+            info = tarfile.TarInfo(member)
+            info.size, info.mtime = len(data), 0
+            archive.addfile(info, io.BytesIO(data))
+    (folder / name).write_bytes(buffer.getvalue())
+    toml(folder, name)
+
+
+@case
+def tar_made_on_a_mac_with_resource_forks(folder):
+    """macOS tar writes "._name" (AppleDouble, magic 00 05 16 07 (m)) beside each file."""
+    tarred(folder, [("./._quillmoor_2021.csv", b"\x00\x05\x16\x07" + bytes(60)),
+                    ("./quillmoor_2021.csv", p40.plain_bytes())])
+
+
+@case
+def tar_of_two_half_year_files(folder):
+    raw, ends = table()
+    half = (ends - pd.Timedelta("30min")).dt.month.to_numpy() <= 6
+    tarred(folder, [("h1.csv", p40.plain_bytes(raw[half])),
+                    ("h2.csv", p40.plain_bytes(raw[~half]))])
+    return "refused"      # two tables: list them in path once unpacked
+
+
+@case
+def header_opened_by_a_percent_mark_with_units_line(folder):
+    p40.edited(folder, lambda text, raw: ["%" + text[0], "%" + ",".join(UNITS)] + text[1:],
+               rows_after_header=1)
+
+
+@case
+def compact_date_and_hhmm_columns(folder):
+    p41.stamp_split(folder, lambda ends: {"ymd": stamps(ends, "%Y%m%d"),
+                                          "hhmm": stamps(ends, "%H%M")}, "%Y%m%d %H%M")
+
+
+@case
+def iso_stamps_with_microseconds_and_offset(folder):
+    p38.restamped(folder, lambda ends: [s + ".000000+01:00" for s in
+                                        stamps(ends, "%Y-%m-%dT%H:%M:%S")], "ISO8601")
+
+
+@case
+def record_with_an_extra_value_mid_file(folder):
+    def edit(text, raw):
+        text[6001] += ",0.5"
+        return text
+
+    p40.edited(folder, edit)
+    return "refused"      # which value is out of place? the user's word
+
+
+@case
+def lone_dash_for_no_value_undeclared(folder):
+    p40.missing_words(folder, ["-"])
+    return "refused"
+
+
+@case
+def lone_dash_for_no_value_declared(folder):
+    p40.missing_words(folder, ["-"], missing=[-9999, "-"])
+
+
+@case
+def header_cells_holding_a_line_break_before_the_unit(folder):
+    """A sheet whose header cells wrap the unit onto a second line, saved as CSV: the
+    name and unit quoted, a line break inside (RFC 4180 allows it)."""
+    raw, _ = table()
+    cells = [f'"{n}\n[{u}]"' if u != "-" else n for n, u in zip(raw.columns, UNITS, strict=True)]
+    text = lines(raw)
+    text[0] = ",".join(cells)
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv")       # mapped by the names alone, as "co2_net [unit]" is read
+
+
 def judge(name, folder, base_tables, cli):
     """The case's state as ``probe_layouts39.judge`` finds it (a DataFrame returned is the
     truth, a folder the canonical reading)."""
