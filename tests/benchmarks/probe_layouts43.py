@@ -513,6 +513,61 @@ def header_cells_holding_a_line_break_before_the_unit(folder):
     toml(folder, "t.csv")       # mapped by the names alone, as "co2_net [unit]" is read
 
 
+@case
+def byte_order_mark_then_a_sep_line_semicolons(folder):
+    raw, _ = table()
+    write(folder / "t.csv", ["sep=;"] + lines(raw, sep=";"), ending="\r\n",
+          encoding="utf-8-sig")
+    toml(folder, "t.csv", delimiter=";")
+
+
+@case
+def seconds_with_a_decimal_comma_in_stamps(folder):
+    """ISO 8601 allows a comma as the decimal sign of seconds: "01.06.2021 00:30:00,000"."""
+    raw, ends = table()
+    raw["stamp"] = [s + ",000" for s in stamps(ends, "%d.%m.%Y %H:%M:%S")]
+    p41.saved(folder, raw, sep=";", time_format="%d.%m.%Y %H:%M:%S")
+
+
+@case
+def footer_line_of_equal_signs(folder):
+    p40.edited(folder, lambda text, raw: text + ["=" * 40])
+
+
+def month_files(folder, month_written):
+    """Month files, month m written by ``month_written(m, records)`` (text lines, encoding,
+    delimiter) or plainly."""
+    raw, ends = table()
+    month = p39.month_of(ends)
+    for m in range(1, 13):
+        text, encoding = month_written(m, raw[month == m]) or (lines(raw[month == m]), "utf-8")
+        write(folder / f"q_{m:02d}.csv", text, encoding=encoding)
+    toml(folder, "q_*.csv")
+
+
+@case
+def one_month_file_in_another_delimiter(folder):
+    month_files(folder, lambda m, part: (lines(part, sep="\t"), "utf-8") if m == 7 else None)
+    return "refused"      # one delimiter setting: the July file's fields are no commas
+
+
+@case
+def one_month_file_with_decimal_commas_and_semicolons(folder):
+    def written(m, part):
+        if m != 7:
+            return None
+        part = part.apply(lambda c: c.str.replace(".", ",", regex=False))
+        return lines(part, sep=";"), "utf-8"
+
+    month_files(folder, written)
+    return "refused"
+
+
+@case
+def one_month_file_in_utf16_among_utf8(folder):
+    month_files(folder, lambda m, part: (lines(part), "utf-16") if m == 7 else None)
+
+
 def judge(name, folder, base_tables, cli):
     """The case's state as ``probe_layouts39.judge`` finds it (a DataFrame returned is the
     truth, a folder the canonical reading)."""
