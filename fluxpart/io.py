@@ -3805,19 +3805,27 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
 
 
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
-                       rows_before_header: int, path: Path) -> None:
-    """Raise with the right ``rows_before_header`` when the header is on another line.
+                       rows_before_header: int, path: Path) -> int:
+    """Raise with the right ``rows_before_header`` when the header is on another line;
+    return the blank lines that stand between the lines set above the header and the
+    header (0 for the usual file), which are read past.
 
     Run on the text before the parser, whose complaints about a title line read as the
     header (too few names for the data lines) would hide the setting that fixes them.
+    Blank lines above the header hold nothing to count or skip (an export that opens
+    with empty lines, or leaves one under its title): read past since layouts43,
+    refused before with the setting counting them.
     """
     separator = None if delimiter == _WHITESPACE else delimiter
     lines = text.splitlines()[:50]
     if rows_before_header < len(lines) and time_columns[0] in [
             cell.strip().strip('"') for cell in lines[rows_before_header].split(separator)]:
-        return
+        return 0
     for number, line in enumerate(lines):
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
+        if number > rows_before_header and time_columns[0] in cells and not any(
+                above.strip() for above in lines[rows_before_header:number]):
+            return number - rows_before_header
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
                 f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
@@ -3971,7 +3979,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,
         later_notes, time_columns)
-    _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    if blank_above:
+        rows_before_header += blank_above
+        warnings.append(f"input file {str(path)!r}: {blank_above} blank line(s) above the "
+                        f"header (line {rows_before_header + 1}) read past")
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
     if delimiter == _WHITESPACE:

@@ -138,3 +138,18 @@ def test_records_appended_late_that_fill_a_gap_are_named_with_the_sort_fix(tmp_p
     (tmp_path / "reset.csv").write_text("\n".join(lines[:97] + lines[146:] + late) + "\n")
     with pytest.raises(NonMonotonicTimestampError, match="sorting would misplace them"):
         _read(tmp_path / "reset.csv")
+
+
+def test_blank_lines_above_the_header_are_read_past(tmp_path):
+    """Refused before with "set [input] rows_before_header = 2"; blank lines hold
+    nothing. A line of text among them still needs the setting."""
+    frame, _ = _records()
+    text = frame.to_csv(index=False)
+    (tmp_path / "blank.csv").write_text("\n \n" + text)
+    read, report = _read(tmp_path / "blank.csv")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    assert any("2 blank line(s) above the header (line 3) read past" in w
+               for w in report.warnings)
+    (tmp_path / "title.csv").write_text("Quillmoor export\n\n" + text)
+    with pytest.raises(MissingColumnError, match="set \\[input\\] rows_before_header = 2"):
+        _read(tmp_path / "title.csv")
