@@ -2150,6 +2150,18 @@ def check_isolated_stretch(stamps: pd.DatetimeIndex, describe=None) -> None:
             "rows (or that file) in a copy, or read the periods as separate sites")
 
 
+#: Said where records are shorter than 30 minutes (layouts43: a 10-minute file was told
+#: only to average "the file", fluxes included): the mean of a flux's shorter-period
+#: covariances lacks the covariance of eddies longer than those periods, so the flux
+#: of 30 minutes is best computed again from the high-frequency data. References:
+#: Finnigan, J. J. et al. (2003), A re-evaluation of long-term flux measurement
+#: techniques, part I: averaging and coordinate rotation, Boundary-Layer Meteorology
+#: 107, 1-48 (m).
+_SHORT_FLUX_NOTE = ("; the weather by its means, while the CO2 flux is best computed again "
+                    "over 30 minutes from the high-frequency data (a mean of shorter "
+                    "periods' fluxes misses the longer eddies' share, Finnigan et al. 2003)")
+
+
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:
     """Return the record interval [minutes] of sorted, unique `stamps`.
 
@@ -2186,7 +2198,8 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
                                f"({100 * share:.0f} % of "
                                f"steps{_spacing_where(steps, typical, describe)}); "
                                "fluxpart needs 30- or 60-minute records: average "
-                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
+                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first"
+                               f"{_SHORT_FLUX_NOTE if typical < 30 else ''}")
         declared = int(typical)
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:

@@ -21,7 +21,12 @@ import pytest
 from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
 from test_robustness_layouts36 import MAPPING, SITE
 
-from fluxpart.errors import InputFileError, MissingColumnError, NonMonotonicTimestampError
+from fluxpart.errors import (
+    InputFileError,
+    MissingColumnError,
+    NonMonotonicTimestampError,
+    SpacingError,
+)
 from fluxpart.io import read_table
 
 
@@ -153,3 +158,16 @@ def test_blank_lines_above_the_header_are_read_past(tmp_path):
     (tmp_path / "title.csv").write_text("Quillmoor export\n\n" + text)
     with pytest.raises(MissingColumnError, match="set \\[input\\] rows_before_header = 2"):
         _read(tmp_path / "title.csv")
+
+
+def test_ten_minute_records_are_refused_naming_the_flux_averaging_caution(tmp_path):
+    """A mean of three 10-minute covariances lacks the longer eddies' covariance
+    (Finnigan et al. 2003, Boundary-Layer Meteorology 107 (m)): the refusal said only
+    "average the file"; hourly and half-hourly messages are unchanged."""
+    frame, ends = _records()
+    frame["stamp"] = (ends[0] + (ends - ends[0]) / 3).strftime("%Y%m%d%H%M")
+    (tmp_path / "t.csv").write_text(frame.to_csv(index=False))
+    with pytest.raises(SpacingError, match=r"spacing between stamps is 10 minutes.*average the "
+                       r"file to 30 or 60 minutes first; the weather by its means, while the "
+                       r"CO2 flux is best computed again over 30 minutes"):
+        _read(tmp_path / "t.csv")
