@@ -1985,19 +1985,8 @@ def _block_filling_a_gap(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str
     every record in its place, and no stamp repeats. A clock reset writes on from its
     new time into records the file holds (a stamp repeats) or to a time the other
     records leave no gap for; its rows sorting would misplace, as the message said of
-    both before layouts43.
-
-    Parameters
-    ----------
-    stamps : pandas.DatetimeIndex
-        The file's stamps in file order (no repeats).
-    backwards : numpy.ndarray of int
-        Positions of the steps that go back in time.
-
-    Returns
-    -------
-    str
-        The hint naming the block, the gap it fills and the fix, or "".
+    both before layouts43. Parameters as :func:`_runs_in_reverse_order`'s; the hint
+    returned names the block, the gap it fills and the fix, or is "".
     """
     if backwards.size != 1 or len(stamps) < 4:
         return ""

@@ -377,28 +377,26 @@ def one_day_of_fifteen_minute_records(folder):
 
 
 # --------------------------------------------------------------------------- containers
+def tarred(folder, members, name="t.tar.gz", mode="w:gz"):
+    """A tar archive (gzip-compressed for "w:gz") of `members` (name, bytes)."""
+    buffer = io.BytesIO()
+    with tarfile.open(fileobj=buffer, mode=mode, format=tarfile.USTAR_FORMAT) as archive:
+        for member, data in members:
+            info = tarfile.TarInfo(member)
+            info.size, info.mtime = len(data), 0
+            archive.addfile(info, io.BytesIO(data))
+    (folder / name).write_bytes(buffer.getvalue())
+    toml(folder, name)
+
+
 @case
 def tar_gz_of_one_csv(folder):
-    buffer = io.BytesIO()
-    data = p40.plain_bytes()
-    with tarfile.open(fileobj=buffer, mode="w:gz") as archive:
-        info = tarfile.TarInfo("quillmoor_2021.csv")
-        info.size, info.mtime = len(data), 0
-        archive.addfile(info, io.BytesIO(data))
-    (folder / "t.tar.gz").write_bytes(buffer.getvalue())
-    toml(folder, "t.tar.gz")
+    tarred(folder, [("quillmoor_2021.csv", p40.plain_bytes())])
 
 
 @case
 def plain_tar_of_one_csv(folder):
-    buffer = io.BytesIO()
-    data = p40.plain_bytes()
-    with tarfile.open(fileobj=buffer, mode="w", format=tarfile.USTAR_FORMAT) as archive:
-        info = tarfile.TarInfo("quillmoor_2021.csv")
-        info.size, info.mtime = len(data), 0
-        archive.addfile(info, io.BytesIO(data))
-    (folder / "t.tar").write_bytes(buffer.getvalue())
-    toml(folder, "t.tar")
+    tarred(folder, [("quillmoor_2021.csv", p40.plain_bytes())], "t.tar", "w")
 
 
 @case
@@ -432,18 +430,6 @@ def xlsx_workbook_saved_under_a_csv_name(folder):
     (folder / "t.csv").write_bytes(p42.workbook_bytes())
     toml(folder, "t.csv")
     return "refused"
-
-
-def tarred(folder, members, name="t.tar.gz", mode="w:gz"):
-    """A tar archive (gzip-compressed for "w:gz") of `members` (name, bytes)."""
-    buffer = io.BytesIO()
-    with tarfile.open(fileobj=buffer, mode=mode, format=tarfile.USTAR_FORMAT) as archive:
-        for member, data in members:
-            info = tarfile.TarInfo(member)
-            info.size, info.mtime = len(data), 0
-            archive.addfile(info, io.BytesIO(data))
-    (folder / name).write_bytes(buffer.getvalue())
-    toml(folder, name)
 
 
 @case
