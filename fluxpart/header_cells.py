@@ -21,39 +21,51 @@ from __future__ import annotations
 HEADER_MARKS = ("#", "%", "//", "!")
 
 
-def unmarked_first_name(file_names: list, wanted) -> dict:
-    """``{marked: name}`` for a first column named a setting's name after a comment mark.
+def unmarked_header(text: str, rows_before_header: int, delimiter: str, wanted) -> tuple:
+    """The text with the comment mark that opens its header line taken off, and the mark.
 
     Parameters
     ----------
-    file_names : list of str
-        The file's column names as read, the first the header line's first cell.
+    text : str
+        The decoded file.
+    rows_before_header : int
+        Lines above the header line.
+    delimiter : str
+        ``[input] delimiter``; ``"whitespace"`` for fields split at blanks, where the mark
+        stands as a field of its own (``# stamp co2_net``, NumPy's ``savetxt`` default).
     wanted : iterable of str
         Every name the settings give (mapped, time and flag columns, other names).
 
     Returns
     -------
-    dict
-        One entry where the first name is a mark of :data:`HEADER_MARKS`, blanks and a
-        name of `wanted` that the file lacks, and the marked name itself is no setting's;
-        else empty (the usual file).
+    tuple of (str, str)
+        The text and the mark (one of :data:`HEADER_MARKS`), where the header line opens
+        with the mark, blanks and a name of `wanted`, and the line's first cell as
+        written is no setting's name; else `text` unchanged and "" (the usual file).
 
     References
     ----------
     NumPy documentation, ``numpy.savetxt``: ``header`` is written after ``comments``,
     default ``"# "`` (m).
     """
-    if not file_names or not isinstance(file_names[0], str):
-        return {}
-    first = file_names[0]
-    mark = next((mark for mark in HEADER_MARKS if first.startswith(mark)), None)
+    if not text.lstrip("\ufeff").startswith(HEADER_MARKS) and rows_before_header == 0:
+        return text, ""
+    head = text.split("\n", rows_before_header + 1)
+    if len(head) <= rows_before_header:
+        return text, ""
+    line = head[rows_before_header]
+    mark = next((mark for mark in HEADER_MARKS if line.startswith(mark)), "")
+    if not mark:
+        return text, ""
+    rest = line[len(mark):].lstrip(" \t")
+    split = rest[:4096].split() if delimiter == "whitespace" else rest[:4096].split(delimiter)
+    written = line[:4096].split() if delimiter == "whitespace" else line[:4096].split(delimiter)
     wanted = {name for name in wanted if isinstance(name, str)}
-    if mark is None or first in wanted:
-        return {}
-    name = first[len(mark):].strip()
-    if not name or name not in wanted or name in file_names:
-        return {}
-    return {first: name}
+    first = split[0].strip().strip('"') if split else ""
+    if not first or first not in wanted or written[0].strip().strip('"') in wanted:
+        return text, ""
+    head[rows_before_header] = rest
+    return "\n".join(head), mark
 
 
 def unwrapped_names(file_names: list, wanted) -> dict:

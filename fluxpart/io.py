@@ -3979,6 +3979,13 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,
         later_notes, time_columns)
+    wanted = [*columns.values(), *time_columns, *flag_columns,
+              *(name for names in (other_names or {}).values() for name in names)]
+    text, mark = header_cells.unmarked_header(text, rows_before_header, delimiter, wanted)
+    if mark:
+        warnings.append(f"input file {str(path)!r}: the header line opens with the comment "
+                        f"mark {mark!r} (as programs that write the header as a comment do), "
+                        "read without it")
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
@@ -4012,18 +4019,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     if respelled:
         raw = raw.rename(columns=respelled)
         header = [respelled.get(name, name) for name in header]
-    wanted = [*columns.values(), *time_columns, *flag_columns,
-              *(name for names in (other_names or {}).values() for name in names)]
-    unmarked = header_cells.unmarked_first_name(list(raw.columns), wanted)
     unwrapped = header_cells.unwrapped_names(list(raw.columns), wanted)
-    if unmarked or unwrapped:
-        raw = raw.rename(columns=unmarked | unwrapped)
-        header = [(unmarked | unwrapped).get(cell, cell) for cell in header]
-    for marked, name in unmarked.items():
-        warnings.append(f"input file {str(path)!r}: the header line opens with a comment "
-                        f"mark ({marked!r}, as programs that write the header as a comment "
-                        f"do): its first column read as {name!r}")
     if unwrapped:
+        raw = raw.rename(columns=unwrapped)
+        header = [unwrapped.get(cell, cell) for cell in header]
         shown = ", ".join(repr(name) for name in list(unwrapped.values())[:3])
         warnings.append(f"input file {str(path)!r}: {len(unwrapped)} header name(s) hold a "
                         "line break (a spreadsheet's wrapped header cells), read as a blank: "

@@ -161,6 +161,13 @@ def header_opened_by_a_comment_mark(folder):
 
 
 @case
+def header_opened_by_a_comment_mark_blank_separated(folder):
+    """numpy.savetxt's default: blanks between fields, the header after "# "."""
+    p40.edited(folder, lambda text, raw: ["# " + text[0].replace(",", " ")]
+               + [line.replace(",", " ") for line in text[1:]], delimiter="whitespace")
+
+
+@case
 def blank_lines_above_the_header_undeclared(folder):
     p40.edited(folder, lambda text, raw: ["", ""] + text)
 
@@ -547,6 +554,15 @@ def one_month_file_with_decimal_commas_and_semicolons(folder):
 
     month_files(folder, written)
     return "refused"
+
+
+@case
+def month_files_each_with_a_header_opened_by_a_comment_mark(folder):
+    def written(m, part):
+        text = lines(part)
+        return (["# " + text[0]] + text[1:]) if m > 1 else text, "utf-8"
+
+    month_files(folder, written)
 
 
 @case
