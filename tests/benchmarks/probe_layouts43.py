@@ -168,6 +168,13 @@ def header_opened_by_a_comment_mark_blank_separated(folder):
 
 
 @case
+def stamp_column_without_a_name_as_pandas_writes_an_index(folder):
+    """``DataFrame.to_csv()`` of a frame indexed by time: the index column unnamed."""
+    p40.edited(folder, lambda text, raw: ["," + text[0].split(",", 1)[1]] + text[1:])
+    return "refused"      # no name to map: name the column in a copy (the fix is due)
+
+
+@case
 def blank_lines_above_the_header_undeclared(folder):
     p40.edited(folder, lambda text, raw: ["", ""] + text)
 
