@@ -214,6 +214,12 @@ _BINARY_SIGNATURES = (
     # with the hint to set [input] encoding): Avro object containers open with "Obj"
     # and 0x01 (Avro specification (m)), SQLite databases with their header string
     # (SQLite file format, section 1.3.1 (m)); Arrow and Feather files in refuse_binary
+    # archives of several formats the standard library cannot open (layouts43: a 7z
+    # archive was refused as "not utf-8 text" with the hint to set [input] encoding):
+    # 7z ("7z" BC AF 27 1C, 7-Zip's 7z format description (m)) and RAR ("Rar!" 1A 07,
+    # RAR 4 and 5 archive format descriptions (m))
+    (b"7z\xbc\xaf\x27\x1c", "a 7z archive", "unpack it"),
+    (b"Rar!\x1a\x07", "a RAR archive", "unpack it"),
     (b"Obj\x01", "an Avro file", "export it as CSV"),
     (b"SQLite format 3\x00", "an SQLite database", "export the table of records as CSV"),
 )
@@ -286,21 +292,75 @@ def single_zip_member(data: bytes) -> bytes | None:
 
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
-            files = _user_files(archive)
-            tables = [info for info in files if not _document(info.filename)]
-            if len(tables) == 1:
-                files = tables
-            elif files and all(_document(info.filename, surely=True) for info in files):
-                # documents only (a portal's read-me without its table): no table to read,
-                # refused by refuse_binary (review55: the read-me was read as the table)
-                return None
-            if len(files) != 1 or files[0].filename in ("[Content_Types].xml", "mimetype") \
-                    or files[0].filename.lower().endswith((".zip", ".7z", ".tar", ".tgz")):
-                return None
-            return archive.read(files[0])
+            table = _one_table(_user_files(archive), lambda info: info.filename)
+            return None if table is None else archive.read(table)
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
             NotImplementedError):
         return None
+
+
+def _one_table(files: list, name_of):
+    """The one member of an archive's `files` (the user's, named by ``name_of(member)``)
+    that is a table, or None: documents beside one other file are not counted, and a
+    workbook's part, an archive inside, several tables or documents only are none."""
+    tables = [member for member in files if not _document(name_of(member))]
+    if len(tables) == 1:
+        files = tables
+    elif files and all(_document(name_of(member), surely=True) for member in files):
+        # documents only (a portal's read-me without its table): no table to read,
+        # refused by refuse_binary (review55: the read-me was read as the table)
+        return None
+    if len(files) != 1 or name_of(files[0]) in ("[Content_Types].xml", "mimetype") \
+            or name_of(files[0]).lower().endswith((".zip", ".7z", ".tar", ".tgz")):
+        return None
+    return files[0]
+
+
+def is_tar(data: bytes) -> bool:
+    """True where `data` is a tar archive: "ustar" at byte 257 of its first header
+    (POSIX.1-1988 ustar and GNU tar headers alike; POSIX.1-2001 pax, "pax Interchange
+    Format" (m))."""
+    return data[257:262] == b"ustar"
+
+
+def tar_files(data: bytes) -> list | None:
+    """The files of the user's a tar archive holds (folders, macOS "._" forks and
+    desktop files left out), as :class:`tarfile.TarInfo`, or None where it cannot be
+    read (cut short)."""
+    import io
+    import tarfile
+
+    try:
+        with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
+            return [member for member in archive.getmembers() if member.isfile()
+                    and not member.name.rsplit("/", 1)[-1].startswith("._")
+                    and member.name.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
+    except (tarfile.TarError, OSError, ValueError, EOFError):
+        return None
+
+
+def single_tar_member(data: bytes) -> bytes | None:
+    """The bytes of the one table a tar archive holds (as :func:`single_zip_member`
+    counts them; macOS tar's "._" resource forks, written beside each file, not
+    counted), or None where it holds another number or cannot be read.
+
+    A tar archive of one text table (``.tar``, ``.tar.gz``, ``.tgz``), as a portal packs
+    a download, is the table, as a zip of one file is (layouts43; refused before, a plain
+    tar as "zero bytes ... a write cut short by a power failure", its header's padding).
+
+    References
+    ----------
+    IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m).
+    """
+    import io
+    import tarfile
+
+    files = tar_files(data)
+    table = None if files is None else _one_table(files, lambda member: member.name)
+    if table is None:
+        return None
+    with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
+        return archive.extractfile(table.name).read()
 
 
 def refuse_binary(data: bytes, path) -> None:

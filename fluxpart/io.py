@@ -55,11 +55,13 @@ from . import (
     digit_grouping,
     flux_rate_labels,
     footers,
+    header_cells,
     interleaved_lines,
     later_files,
     unicode_names,
 )
 from ._validate import (
+    is_tar,
     markup_message,
     odd_entry,
     other_system_path_hint,
@@ -67,7 +69,9 @@ from ._validate import (
     printable_line,
     read_site_config_toml,
     refuse_binary,
+    single_tar_member,
     single_zip_member,
+    tar_files,
     unicode_form_hint,
 )
 from .civil_splits import second_pass_head
@@ -2626,16 +2630,20 @@ def _decompressed(data: bytes, path: Path) -> bytes:
 
     A compressed text table is the table: read it as the file it holds (by its leading
     bytes, whatever its name), its hash still the compressed file's; so is a zip
-    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36). A tar
-    archive inside (``.tar.gz``: several files) is refused by name, as are zip archives
-    of several files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
+    archive of one file (:func:`fluxpart._validate.single_zip_member`, layouts36), and
+    since layouts43 a tar archive of one (``.tar``, ``.tar.gz``: :func:`_tar_table`). A
+    tar archive of several files is refused naming them, as are zip archives of several
+    files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
     file already gzipped, or of a zip of one table) is the table too: up to
     :data:`_COMPRESSION_LAYERS` layers are taken off (layouts41; refused before as
     "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)").
     """
+    name = ""
     for _ in range(_COMPRESSION_LAYERS):
         if data.startswith(b"PK\x03\x04"):
             data = single_zip_member(data) or data
+        if is_tar(data):
+            data = _tar_table(data, path, name)
         layer = next(((name, module) for magic, name, module in _COMPRESSED
                       if data.startswith(magic)
                       and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)
@@ -2648,12 +2656,27 @@ def _decompressed(data: bytes, path: Path) -> bytes:
             raise InputFileError(
                 f"input file {str(path)!r} is {name}-compressed but cannot be "
                 f"decompressed ({error}): a copy cut short? Copy it again") from None
-        if data[257:262] == b"ustar":
-            raise InputFileError(
-                f"[input] path: {str(path)!r} is a {name}-compressed tar archive (files "
-                "packed together), not a text table; unpack it and point [input] path "
-                "at the text files")
-    return data
+    return _tar_table(data, path, name) if is_tar(data) else data
+
+
+def _tar_table(data: bytes, path: Path, compressed: str) -> bytes:
+    """The one table of the tar archive `data` (:func:`fluxpart._validate.single_tar_member`;
+    `compressed` names the compressor it came out of, "" for none), else an InputFileError
+    naming the files it holds (layouts43: a plain tar was refused for the zero bytes of
+    its headers, a compressed one as an archive of files without naming them)."""
+    table = single_tar_member(data)
+    if table is not None:
+        return table
+    kind = f"a {compressed}-compressed tar archive" if compressed else "a tar archive"
+    files = tar_files(data)
+    if files is None:
+        raise InputFileError(f"[input] path: {str(path)!r} is {kind} that cannot be read "
+                             "to its end: a copy cut short? Copy it again")
+    shown = ", ".join(repr(member.name) for member in files[:3])
+    more = f" and {len(files) - 3} more" if len(files) > 3 else ""
+    raise InputFileError(f"[input] path: {str(path)!r} is {kind} holding {len(files)} "
+                         f"file(s) ({shown}{more}), not a text table; unpack it and point "
+                         "[input] path at the text file(s)")
 
 
 def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
@@ -2918,7 +2941,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                         "mid-write): dropped")
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
-    first_line = rows_before_header + rows_after_header + 2
+    first_line = rows_before_header + rows_after_header + 2 + _header_breaks(
+        text, rows_before_header, delimiter)
     raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
         text, rows_before_header, first_line, delimiter))
     blank = _blank_rows(raw)
@@ -3262,6 +3286,19 @@ def _header_and_first(text: str, rows_before_header: int, first_line: int,
     lines = text.splitlines()[:first_line]
     return (lines[rows_before_header] if len(lines) > rows_before_header else "",
             lines[first_line - 1] if len(lines) >= first_line else "")
+
+
+def _header_breaks(text: str, rows_before_header: int, delimiter: str) -> int:
+    """The line breaks inside the header's quoted names (a spreadsheet's wrapped header
+    cells, :mod:`fluxpart.header_cells`): the lines the header takes beyond its first,
+    by which every record's line number moves (layouts43)."""
+    head = text[:65536].splitlines()[rows_before_header:]
+    if not head or '"' not in head[0] or delimiter == _WHITESPACE:
+        return 0
+    reader = csv.reader(iter(head), delimiter=delimiter)
+    if next(reader, None) is None or reader.line_num >= len(head):
+        return 0                              # no record after it: no quote closed
+    return reader.line_num - 1
 
 
 def _record_lines(text: str, first_line: int, count: int, delimiter: str) -> np.ndarray:
@@ -3795,19 +3832,27 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
 
 
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
-                       rows_before_header: int, path: Path) -> None:
-    """Raise with the right ``rows_before_header`` when the header is on another line.
+                       rows_before_header: int, path: Path) -> int:
+    """Raise with the right ``rows_before_header`` when the header is on another line;
+    return the blank lines that stand between the lines set above the header and the
+    header (0 for the usual file), which are read past.
 
     Run on the text before the parser, whose complaints about a title line read as the
     header (too few names for the data lines) would hide the setting that fixes them.
+    Blank lines above the header hold nothing to count or skip (an export that opens
+    with empty lines, or leaves one under its title): read past since layouts43,
+    refused before with the setting counting them.
     """
     separator = None if delimiter == _WHITESPACE else delimiter
     lines = text.splitlines()[:50]
     if rows_before_header < len(lines) and time_columns[0] in [
             cell.strip().strip('"') for cell in lines[rows_before_header].split(separator)]:
-        return
+        return 0
     for number, line in enumerate(lines):
         cells = [cell.strip().strip('"') for cell in line.split(separator)]
+        if number > rows_before_header and time_columns[0] in cells and not any(
+                above.strip() for above in lines[rows_before_header:number]):
+            return number - rows_before_header
         if number != rows_before_header and time_columns[0] in cells:
             raise MissingColumnError(
                 f"[input] time_column = {setting_text(time_columns[0])} is not in the header read from "
@@ -3961,7 +4006,18 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     text, rows_before_header, rows_after_header, borrowed = _later_file_layout(
         path, text, first_header, delimiter, rows_before_header, rows_after_header,
         later_notes, time_columns)
-    _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    wanted = [*columns.values(), *time_columns, *flag_columns,
+              *(name for names in (other_names or {}).values() for name in names)]
+    text, mark = header_cells.unmarked_header(text, rows_before_header, delimiter, wanted)
+    if mark:
+        warnings.append(f"input file {str(path)!r}: the header line opens with the comment "
+                        f"mark {mark!r} (as programs that write the header as a comment do), "
+                        "read without it")
+    blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
+    if blank_above:
+        rows_before_header += blank_above
+        warnings.append(f"input file {str(path)!r}: {blank_above} blank line(s) above the "
+                        f"header (line {rows_before_header + 1}) read past")
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
     if delimiter == _WHITESPACE:
@@ -3990,6 +4046,14 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     if respelled:
         raw = raw.rename(columns=respelled)
         header = [respelled.get(name, name) for name in header]
+    unwrapped = header_cells.unwrapped_names(list(raw.columns), wanted)
+    if unwrapped:
+        raw = raw.rename(columns=unwrapped)
+        header = [unwrapped.get(cell, cell) for cell in header]
+        shown = ", ".join(repr(name) for name in list(unwrapped.values())[:3])
+        warnings.append(f"input file {str(path)!r}: {len(unwrapped)} header name(s) hold a "
+                        "line break (a spreadsheet's wrapped header cells), read as a blank: "
+                        f"{shown}")
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:

@@ -1877,7 +1877,8 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     if backwards.size:
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
-        swapped = _runs_in_reverse_order(stamps, backwards)
+        swapped = (_runs_in_reverse_order(stamps, backwards)
+                   or _block_filling_a_gap(stamps, backwards))
         if swapped:
             hint = swapped
         elif _day_month_mixed(stamps):
@@ -1972,6 +1973,39 @@ def _runs_in_reverse_order(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> s
             f"({first[0]:%Y-%m-%d %H:%M} .. {first[-1]:%Y-%m-%d %H:%M}) begins: a logger's "
             "ring memory read out from the start of its memory, or two files joined in the "
             "wrong order; sort a copy of the file by time (no stamp repeats)")
+
+
+def _block_filling_a_gap(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:
+    """The fix where the records after the one step back in time are a block that fills
+    a gap of the others exactly, one record interval after the record before the gap
+    to one before the record after it; else "".
+
+    A day read late from a logger's memory card and appended at the end of the file (or
+    pasted after the records of the day it was read) is such a block: sorting puts
+    every record in its place, and no stamp repeats. A clock reset writes on from its
+    new time into records the file holds (a stamp repeats) or to a time the other
+    records leave no gap for; its rows sorting would misplace, as the message said of
+    both before layouts43. Parameters as :func:`_runs_in_reverse_order`'s; the hint
+    returned names the block, the gap it fills and the fix, or is "".
+    """
+    if backwards.size != 1 or len(stamps) < 4:
+        return ""
+    cut = int(backwards[0]) + 1
+    after = np.flatnonzero(np.asarray(stamps[cut:] > stamps[cut - 1]))
+    end = cut + int(after[0]) if after.size else len(stamps)
+    block = stamps[cut:end]
+    others = stamps[:cut].append(stamps[end:])
+    at = int(others.searchsorted(block[0]))
+    if at == 0 or at == len(others) or block[-1] >= others[at] or len(block) < 2:
+        return ""
+    step = pd.Series(block).diff().median()
+    if others[at - 1] + step != block[0] or block[-1] + step != others[at]:
+        return ""
+    return (f"the {len(block)} records from there ({block[0]:%Y-%m-%d %H:%M} .. "
+            f"{block[-1]:%Y-%m-%d %H:%M}) fill the gap between {others[at - 1]:%Y-%m-%d %H:%M} "
+            f"and {others[at]:%Y-%m-%d %H:%M} of the others exactly (records read late from "
+            "the logger's memory and appended?); sort a copy of the file by time (no stamp "
+            "repeats)")
 
 
 def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
@@ -2105,6 +2139,18 @@ def check_isolated_stretch(stamps: pd.DatetimeIndex, describe=None) -> None:
             "rows (or that file) in a copy, or read the periods as separate sites")
 
 
+#: Said where records are shorter than 30 minutes (layouts43: a 10-minute file was told
+#: only to average "the file", fluxes included): the mean of a flux's shorter-period
+#: covariances lacks the covariance of eddies longer than those periods, so the flux
+#: of 30 minutes is best computed again from the high-frequency data. References:
+#: Finnigan, J. J. et al. (2003), A re-evaluation of long-term flux measurement
+#: techniques, part I: averaging and coordinate rotation, Boundary-Layer Meteorology
+#: 107, 1-48 (m).
+_SHORT_FLUX_NOTE = ("; the weather by its means, while the CO2 flux is best computed again "
+                    "over 30 minutes from the high-frequency data (a mean of shorter "
+                    "periods' fluxes misses the longer eddies' share, Finnigan et al. 2003)")
+
+
 def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> int:
     """Return the record interval [minutes] of sorted, unique `stamps`.
 
@@ -2141,7 +2187,8 @@ def infer_interval(stamps: pd.DatetimeIndex, declared=None, describe=None) -> in
                                f"({100 * share:.0f} % of "
                                f"steps{_spacing_where(steps, typical, describe)}); "
                                "fluxpart needs 30- or 60-minute records: average "
-                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first")
+                               f"{_spacing_what(steps, typical)} to 30 or 60 minutes first"
+                               f"{_SHORT_FLUX_NOTE if typical < 30 else ''}")
         declared = int(typical)
     irregular = np.flatnonzero(np.abs(steps / declared - np.round(steps / declared)) > 1e-9)
     if irregular.size:
