@@ -137,8 +137,7 @@ class RunOutcome(NamedTuple):
 
 def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                        temperature, config, curvature, night_fit=None, central_fill=None,
-                       delay=0, skip=(), nearest_year=False, sun_up=None,
-                       donor_margin=None):
+                       delay=0, skip=(), nearest_year=False, sun_up=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     The central run lets one method that cannot fit be NaN and tries the nearest
@@ -184,36 +183,20 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
     Reichstein, M. et al. (2005), see the module (nighttime, marginal distribution sampling).
     Lasslop, G. et al. (2010), see the module (daytime).
     """
-    ustar = screened["ustar"].to_numpy()
-    too_calm = screening.low_ustar(ustar, is_night, threshold)
+    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
-    missing = np.isnan(nee_measured)
-    donors = nee_measured
-    if donor_margin is not None:
-        # night records within the threshold's own spread above it stay measured but
-        # give no night gap their NEE
-        near = screening.low_ustar(ustar, is_night, threshold + donor_margin) & ~too_calm
-        donors = np.where(near, np.nan, nee_measured)
     if central_fill is not None and config.gapfill_donors in ("separate_day_night",
                                                               "dark_first"):
         # the u* filter removes night records only, and day gaps take day donors only:
         # the day records of every u* scenario are those of the central fill
-        night_fill = fill_nee(donors, conditions, frame.index, is_night, config,
-                              gaps=is_night & missing, sun_up=sun_up)
+        night_fill = fill_nee(nee_measured, conditions, frame.index, is_night, config,
+                              gaps=is_night, sun_up=sun_up)
         filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
                                                 central_fill[column].to_numpy())
                                for column in night_fill.columns}, index=night_fill.index)
     else:
-        filled = fill_nee(donors, conditions, frame.index, is_night, config,
-                          gaps=missing, sun_up=sun_up)
-    if donor_margin is not None:
-        kept = ~missing & np.isnan(donors)
-        filled = filled.copy()
-        for column, measured_value in (("value", nee_measured), ("method", 0),
-                                       ("window_days", 0.0), ("count", 0),
-                                       ("std", np.nan), ("quality", 0)):
-            filled[column] = np.where(kept, measured_value,
-                                      filled[column].to_numpy()).astype(filled[column].dtype)
+        filled = fill_nee(nee_measured, conditions, frame.index, is_night, config,
+                          sun_up=sun_up)
     temperature_filled = respiration_temperature(filled_drivers, temperature, delay, True)
 
     def fit_nighttime(borrow):
@@ -381,14 +364,13 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     # the central run (fluxpart.central_run.averaged_shape)
     curvature = light_shape.central_curvature(config.daytime_curvature)
     skip, borrowed = (), False
-    margin = night_donor_margin(runs)
     for name, threshold in runs.items():
         try:
             *outcome, errors = fill_and_partition(
                 *arguments[:5], threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
                 None if name == "central" else outcomes["central"][2], delay, skip, borrowed,
-                sun_up=arguments.sun_up, donor_margin=margin)
+                sun_up=arguments.sun_up)
             outcomes[name] = RunOutcome(*outcome)
             if name == "central":
                 skip = tuple(errors)
@@ -416,40 +398,6 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
         if name not in ("ustar_seasonal", "ustar_year"):     # runs stage_count cannot foresee
             step(_step_label(name))
     return outcomes
-
-
-def night_donor_margin(runs) -> np.ndarray | None:
-    """One standard deviation of the u* threshold per record, from its bootstrap percentiles.
-
-    Parameters
-    ----------
-    runs : dict of str to numpy.ndarray
-        Each run's u* threshold per record [m s-1]; the scenarios ``ustar_pXX``.
-
-    Returns
-    -------
-    numpy.ndarray or None
-        ``(t_max − t_min) / (z_max − z_min)`` [m s-1] over the scenario percentiles
-        (z their standard-normal quantiles): half the 16–84 range for the default
-        16/50/84; None with fewer than two scenario percentiles.
-
-    References
-    ----------
-    Papale, D. et al. (2006). Biogeosciences 3, 571-583 (the threshold's bootstrap).
-    """
-    from statistics import NormalDist
-    percentiles = {name: int(name[len("ustar_p"):]) for name in runs
-                   if name.startswith("ustar_p") and name[len("ustar_p"):].isdigit()}
-    if len(percentiles) < 2:
-        return None
-    low = min(percentiles, key=percentiles.get)
-    high = max(percentiles, key=percentiles.get)
-    span = NormalDist().inv_cdf(percentiles[high] / 100) - NormalDist().inv_cdf(
-        percentiles[low] / 100)
-    if span <= 0:
-        return None
-    spread = np.abs(np.asarray(runs[high], dtype=float) - np.asarray(runs[low], dtype=float))
-    return np.nan_to_num(spread / span)
 
 
 def _step_label(name: str) -> str:
