@@ -508,6 +508,7 @@ class _RankTables:
         self._tables = {}
         self._span = span
         self._taken = {}
+        self._stacked = {}
 
     def taken(self, array):
         """``array[usable]`` of a record array of the step (the target, a driver), taken
@@ -516,6 +517,15 @@ class _RankTables:
         if key not in self._taken:     # the array is kept, so its id stays its own
             self._taken[key] = (array, array[self.usable])
         return self._taken[key][1]
+
+    def stacked(self, arrays):
+        """The :meth:`taken` values of `arrays` as the rows of one array (arrays ×
+        usable records), stacked once per step and set of arrays instead of once per
+        pass (the same values)."""
+        key = tuple(id(array) for array in arrays)
+        if key not in self._stacked:    # the arrays are kept by `taken`, their ids their own
+            self._stacked[key] = np.stack([self.taken(array) for array in arrays])
+        return self._stacked[key]
 
     def table_key(self, p, q):
         """Key of the table that ranks the window of usable positions [p, q): ``"span"``
@@ -604,7 +614,7 @@ def _similar_conditions_pass(values, usable, gaps, half_width, conditions, table
     usable_values = tables.taken(values)
     slope_drivers = [*conditions, *regressors] if local_linear else []
     # the slope drivers at the usable records, one row each
-    usable_drivers = (np.stack([tables.taken(driver) for driver, _ in slope_drivers])
+    usable_drivers = (tables.stacked([driver for driver, _ in slope_drivers])
                       if slope_drivers else None)
     lowers = [driver[gaps] - _at(tolerance, gaps) for driver, tolerance in conditions]
     uppers = [driver[gaps] + _at(tolerance, gaps) for driver, tolerance in conditions]
@@ -734,10 +744,13 @@ def _run_means(x, run_starts, counts=None):
 
 def _similar_runs(keys, n_rows, width):
     """Columns of the records within every (key, low, high) bound of each row, row by row,
-    and each row's count: ``low[i] <= key[j] < high[i]`` for all keys."""
-    similar = np.ones((n_rows, width), dtype=bool)
-    scratch = np.empty_like(similar)
-    for key, low, high in keys:
+    and each row's count: ``low[i] <= key[j] < high[i]`` for all keys (one at least)."""
+    # the first key written straight into the matrix: no pass over a matrix of ones
+    (key, low, high), *others = keys
+    similar = np.greater_equal(key[None, :], low[:, None])
+    scratch = np.less(key[None, :], high[:, None])
+    similar &= scratch
+    for key, low, high in others:
         similar &= np.greater_equal(key[None, :], low[:, None], out=scratch)
         similar &= np.less(key[None, :], high[:, None], out=scratch)
     # Similar pairs in row-major order: each row's records are one run.

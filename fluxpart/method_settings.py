@@ -96,8 +96,8 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     """
     fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
     # the preceding day's light, in the years whose own measured nights show it
-    conditions, light_tests = preceding_light.gated_conditions(conditions, nee_measured,
-                                                               is_night, index)
+    conditions, light_tests = preceding_light.gated_conditions(
+        conditions, nee_measured, is_night, index, with_table=not values_only)
     dark_first = config.gapfill_donors == DARK_FIRST
     filled = fill(
         nee_measured, conditions, index, is_night=is_night,

@@ -163,12 +163,30 @@ def light_dependence(nee, is_night, light, temperatures, index) -> pd.DataFrame:
 
 def _dependence_table(nights) -> pd.DataFrame:
     """:func:`light_dependence`'s table of the nights of :func:`_night_means`."""
+    return _table_of_tests(_year_tests(nights))
+
+
+def _year_tests(nights) -> dict:
+    """Per tested year of the nights of :func:`_night_means`, :func:`_year_test`'s
+    (nights, slope, t, p), in the order of the years."""
     rows = {}
     for year in np.unique(nights["year"]):
         inside = nights["year"] == year
         tested = _year_test({name: values[inside] for name, values in nights.items()})
         if tested is not None:
             rows[int(year)] = tested
+    return rows
+
+
+def _passed_years(rows) -> np.ndarray:
+    """The years of :func:`_year_tests`' `rows` whose p lies below :data:`TEST_LEVEL`
+    (int64): the table's ``passed`` years, without the table."""
+    return np.array([year for year, (_, _, _, p) in rows.items() if p < TEST_LEVEL],
+                    dtype=np.int64)
+
+
+def _table_of_tests(rows) -> pd.DataFrame:
+    """:func:`light_dependence`'s table of :func:`_year_tests`' `rows`."""
     if not rows:    # no year tested: the empty frame, its dtypes, as ever
         table = pd.DataFrame.from_dict(rows, orient="index",
                                        columns=["nights", "slope", "t", "p"])
@@ -201,12 +219,13 @@ def tested_regressor(light, index, tests) -> np.ndarray:
     numpy.ndarray
         `light` in the passed years (of the night's evening, as tested), NaN elsewhere.
     """
-    return _passed_years_only(light, _evening_days(index), tests)
-
-
-def _passed_years_only(light, evening, tests) -> np.ndarray:
-    """:func:`tested_regressor` of the records' evenings (:func:`_evening_days`)."""
     passed = tests.index[tests["passed"].to_numpy(dtype=bool)].to_numpy()
+    return _passed_years_only(light, _evening_days(index), passed)
+
+
+def _passed_years_only(light, evening, passed) -> np.ndarray:
+    """:func:`tested_regressor` of the records' evenings (:func:`_evening_days`) and the
+    years whose test passed (`passed`)."""
     first, day = evening
     # the year of each evening day, then of each record
     years = _calendar_year(first + np.arange(int(day.max()) + 1 if day.size else 0))[day]
@@ -324,10 +343,9 @@ def _year_test(nights):
         inside = block == b
         columns = local[inside]
         columns[:, 1:] -= columns[:, 1:].mean(axis=0)
-        fitted, _, block_rank, _ = np.linalg.lstsq(
-            columns, np.column_stack([y[inside], anomaly[inside]]), rcond=None)
-        y_left[inside], x_left[inside] = (np.column_stack([y[inside], anomaly[inside]])
-                                          - columns @ fitted).T
+        both = np.column_stack([y[inside], anomaly[inside]])
+        fitted, _, block_rank, _ = np.linalg.lstsq(columns, both, rcond=None)
+        y_left[inside], x_left[inside] = (both - columns @ fitted).T
         rank += block_rank
     spread = float(x_left @ x_left)
     dof = y.size - rank - 1
@@ -358,7 +376,7 @@ def _lag_one(x) -> float:
     return float(x[1:] @ x[:-1]) / denominator if denominator > 0 else 0.0
 
 
-def gated_conditions(conditions, nee, is_night, index) -> tuple:
+def gated_conditions(conditions, nee, is_night, index, with_table=True) -> tuple:
     """The NEE fill's conditions with the preceding day's light kept only where tested.
 
     Parameters
@@ -372,6 +390,9 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
         The night mask.
     index : pandas.DatetimeIndex
         Record starts (local standard time).
+    with_table : bool, optional
+        Build the tests' table (default); False: None in its place (the same
+        conditions, without the table's construction).
 
     Returns
     -------
@@ -379,7 +400,8 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
         The conditions: `conditions` as given where it has no :data:`COLUMN`; else with
         :data:`COLUMN` NaN outside the years whose test passed, and without the column
         where no year passed (the fill is then exactly that without the regressor). And
-        the tests: :func:`light_dependence`'s table, or None without :data:`COLUMN`.
+        the tests: :func:`light_dependence`'s table, or None without :data:`COLUMN` or
+        with `with_table` False.
     """
     if COLUMN not in conditions.columns:
         return conditions, None
@@ -388,11 +410,14 @@ def gated_conditions(conditions, nee, is_night, index) -> tuple:
     light = conditions[COLUMN].to_numpy(dtype=float)
     # the records' evenings once for the test and the regressor
     evening = _evening_days(index)
-    tests = _dependence_table(_night_means(nee, is_night, light, temperatures, evening))
+    rows = _year_tests(_night_means(nee, is_night, light, temperatures, evening))
+    # the table only for a caller that reads it (a fill scored on artificial gaps does not,
+    # on each of its rounds)
+    tests = _table_of_tests(rows) if with_table else None
+    passed = _passed_years(rows)
     # no year passed (most fills of a site without the effect): NaN everywhere, decided
     # without the years of the records' evenings
-    regressor = (_passed_years_only(light, evening, tests)
-                 if tests["passed"].to_numpy(dtype=bool).any() else None)
+    regressor = _passed_years_only(light, evening, passed) if passed.size else None
     if regressor is None or np.isnan(regressor).all():
         # the other columns by position: a quarter of the cost of `drop` (its label
         # lookups), paid on every fill of the artificial gaps (round speed49)

@@ -130,6 +130,11 @@ def test_gated_conditions_drop_the_column_where_no_year_passes(rng):
     np.testing.assert_array_equal(gated[preceding_light.COLUMN].to_numpy(), light)
     (record,) = preceding_light.test_records(tests)
     assert record["year"] == 2021 and record["passed"] is True and record["p"] < 0.01
+    # without the table (the artificial gaps' fills): the same conditions, no table
+    untabled, none = preceding_light.gated_conditions(conditions, nee, is_night, index,
+                                                      with_table=False)
+    assert none is None
+    pd.testing.assert_frame_equal(untabled, gated, check_exact=True)
     assert gapfill.NIGHT_LIGHT_COLUMN == preceding_light.COLUMN
     # off (no column): the conditions as given, nothing tested
     plain = conditions.drop(columns=preceding_light.COLUMN)
