@@ -14,8 +14,14 @@ a record whose window holds both night and day departs by that corner, which fol
 sun, not the clock. Such a record is judged against the median departure of the records
 at the same place beside sunrise or sunset in its quarter of the year (they were left
 out until round leftovers52, which missed an offset at 05:00-07:00 and named the records
-after a sunrise event with the opposite sign). A record equal to a neighbour (NEE
-written in steps) is not judged. Records of a time of day whose departures keep one sign on
+after a sunrise event with the opposite sign). The day's course between sunrise and
+sunset follows the sun too (uptake follows light: the turn from the morning ramp to the
+saturated plateau, or from it to the evening's fall, bends the course the same way on
+every day at a clock time that moves with the season): a day record is judged against
+the median departure of the day records at the same place after sunrise or before sunset
+in its quarter (round fixedtime51; judged by the clock, a forest's afternoon turn was
+named as a calibration). A record equal to a neighbour (NEE written in steps) is not
+judged. Records of a time of day whose departures keep one sign on
 most days and whose median departure stands far above that of the other times of day
 were written by something that runs on the clock, or border or hold a real event of the
 ecosystem at a fixed hour (an irrigation on a timer; a morning release of stored CO2
@@ -83,7 +89,8 @@ def time_of_day_departures(nee, stamps, interval_minutes: int, is_night) -> pd.D
     is_night : array_like of bool
         Night records (the sun below the horizon): a record whose window holds both
         night and day records is judged against the records at the same place beside
-        sunrise or sunset (:func:`_sun_keys`).
+        sunrise or sunset, a day record against the day records at the same place after
+        sunrise or before sunset (:func:`_sun_keys`).
 
     Returns
     -------
@@ -106,7 +113,10 @@ MIN_KEY_RECORDS = 30
 def _sun_keys(night: np.ndarray, side: int, quarter: np.ndarray) -> np.ndarray:
     """For each record whose window (`side` records each way) holds night and day: a code
     of its class (night or day), the records since its class began and until it ends
-    (each up to `side` + 1), and its quarter of the year; -1 elsewhere.
+    (each up to `side` + 1), and its quarter of the year; for a day record whose window
+    holds day alone: a code of its records since sunrise (before solar noon) or until
+    sunset (after it) and its quarter; -1 elsewhere (night records whose window holds
+    night alone, and records before the first or after the last change).
 
     A record beside sunrise or sunset departs from the mean of its two halves' medians by
     the corner of the diurnal course there (the flat night against the day's ramp) and by
@@ -117,6 +127,19 @@ def _sun_keys(night: np.ndarray, side: int, quarter: np.ndarray) -> np.ndarray:
     clock's. Where sunrise hardly moves (the tropics, a solstice quarter) the two cannot
     be told apart and the place's median takes the offset with it: missed, never named
     falsely.
+
+    The day's course between the edges follows the sun as well: uptake follows light, and
+    the turn from the midday plateau to the evening (or from the morning ramp to it)
+    bends the course the same way on every day, by a departure that grows with the day's
+    amplitude (round fixedtime51: a forest's true NEE departed by -0.3 to -0.5 µmol m-2
+    s-1 with one sign on 70-99 % of days at 14:30-16:30, and a larger amplitude crosses
+    the limits). A day record is therefore judged against the records at the same place
+    after sunrise or before sunset. The night's course, respiration following a slowly
+    falling temperature, is nearly straight over a window of a few hours, and a night
+    record away from the edges keeps its clock (a daily calibration is mostly run at
+    night, where sunrise's move would spread it over several places). Under the midnight
+    sun (no sunset for weeks) a day record's place is held by no other record: not
+    judged.
     """
     n = night.size
     positions = np.arange(n)
@@ -127,12 +150,20 @@ def _sun_keys(night: np.ndarray, side: int, quarter: np.ndarray) -> np.ndarray:
     ends = np.full(n, n + side + 2, dtype=np.int64)
     ends[change - 1] = change
     ends = np.minimum.accumulate(ends[::-1])[::-1]
-    since = np.minimum(positions - began, side + 1)
-    until = np.minimum(ends - positions - 1, side + 1)
+    since_all, until_all = positions - began, ends - positions - 1
+    since = np.minimum(since_all, side + 1)
+    until = np.minimum(until_all, side + 1)
     mixed = (since < side) | (until < side)
     width = side + 2
     code = ((quarter * 2 + night) * width + since) * width + until
-    return np.where(mixed, code, -1)
+    # day records between the edges: the place after sunrise or before sunset, after
+    # the codes of the mixed windows (8 * width**2 of them)
+    known = (began >= 0) & (ends <= n)
+    day_alone = ~night & ~mixed & known
+    afternoon = until_all < since_all
+    place = np.where(afternoon, until_all, since_all)
+    day_code = 8 * width ** 2 + (quarter * 2 + afternoon) * (n + 1) + place
+    return np.where(mixed, code, np.where(day_alone, day_code, -1))
 
 
 class _Setting:
@@ -153,7 +184,8 @@ class _Setting:
 
     def departures(self, nee: np.ndarray) -> np.ndarray:
         """Each record's departure from the mean of the medians of its window's halves
-        [µmol m-2 s-1]; beside sunrise or sunset less its place's median departure; NaN
+        [µmol m-2 s-1]; beside sunrise or sunset, and by day, less its place's median
+        departure (:func:`_sun_keys`); NaN
         where a half holds fewer than :data:`MIN_SIDE_RECORDS` records, where the record
         equals a neighbour (NEE written in steps, a coarser flux on each record: its
         step departs with the day's ramp) or where its place holds too few records."""

@@ -1,11 +1,12 @@
 """NEE departing from its neighbours at fixed times of day: a daily calibration kept as
 data (round mistakes49)."""
+import functools
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 
-from fluxpart.fixed_time_offsets import STAGE, nee_offset_at_fixed_time
+from fluxpart.fixed_time_offsets import STAGE, nee_offset_at_fixed_time, time_of_day_departures
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "quillmoor_grassland.csv"
 
@@ -112,3 +113,60 @@ def test_a_calibration_is_named_beside_repeated_records():
         _, findings = check_record(frame, site_config.site, columns=report.columns)
     stages = {finding.stage for finding in findings}
     assert "input (repeated records)" in stages and STAGE in stages
+
+
+@functools.lru_cache(maxsize=1)
+def _sharp_turn_year():
+    """A clean year of NEE at an invented evergreen site (45° N) whose diurnal course turns
+    sharply: uptake rises with light until the canopy saturates and stays flat until the
+    light falls again, Blackman's limiting form min(alpha Q, Pmax) (Blackman 1905; alpha
+    0.05 mol mol-1, Pmax 30 µmol m-2 s-1, plausible for a productive canopy (m)); Q = 2.0
+    µmol J-1 of global radiation (common practice (m)) under the top-of-atmosphere course
+    (`fluxpart.solar.potential_radiation`) times a daily clearness of 0.7-1; respiration by
+    Lloyd & Taylor (1994), E0 = 309 K, T0 = 227.13 K, 2 µmol m-2 s-1 at 10 °C, on an air
+    temperature with a seasonal and a diurnal course. Measured: a random error scaling with
+    the flux, 0.5 + 0.12 |NEE| (Richardson et al. 2006's scaling (m)), Laplace-distributed
+    (ibid. (m)), 60 % of the night's records and 20 % of the day's lost (u* filtering and
+    dropouts). Returns (true NEE, measured NEE, starts, night)."""
+    from fluxpart.solar import potential_radiation
+
+    rng = np.random.default_rng(20261205)
+    starts = pd.date_range("2025-01-01", "2026-01-01", freq="30min", inclusive="left")
+    day = starts.day_of_year.to_numpy() - 1
+    hour = (starts.hour + starts.minute / 60).to_numpy()
+    rg = potential_radiation(starts, 45.0, 10.0, 1.0, 30) * rng.uniform(0.7, 1.0, 365)[day]
+    tair = 10 - 12 * np.cos(2 * np.pi * (day - 15) / 365) + 5 * np.sin(2 * np.pi * (hour - 9) / 24)
+    reco = 2.0 * np.exp(309.0 * (1 / (283.15 - 227.13) - 1 / (tair + 273.15 - 227.13)))
+    nee = reco - np.minimum(0.05 * 2.0 * rg, 30.0)
+    noise = (0.5 + 0.12 * np.abs(nee)) * rng.laplace(size=nee.size) / np.sqrt(2)
+    night = rg < 10.0
+    lost = rng.uniform(size=nee.size) < np.where(night, 0.6, 0.2)
+    return nee, np.where(lost, np.nan, nee + noise), starts, night
+
+
+def test_a_clean_course_with_a_sharp_turn_is_not_named():
+    """The turn from the light ramp to the saturated plateau bends the course the same way
+    on every day, at a clock time that follows sunrise and sunset through the year. Judged
+    by the clock it was named as a calibration (the true NEE: 07:00-08:00, -1.2 to -2.4
+    µmol m-2 s-1 on 67-84 % of 365 days, round fixedtime51; a forest's afternoon turn in a
+    trial likewise); judged against the day records at the same place after sunrise or
+    before sunset it is not, with or without the measurement's error and gaps."""
+    nee, measured, starts, night = _sharp_turn_year()
+    assert nee_offset_at_fixed_time(nee, starts, 30, night) is None
+    assert nee_offset_at_fixed_time(measured, starts, 30, night) is None
+    table = time_of_day_departures(nee, starts, 30, night)
+    assert table.loc[["07:00", "07:30", "08:00"], "median"].abs().max() < 0.5
+
+
+def test_a_fixed_hour_offset_beside_the_sharp_turn_is_named():
+    """The same year with an offset at fixed clock times (+3 µmol m-2 s-1, invented): a
+    night calibration at 03:30-04:00, and one at 10:00 among the day records, whose place
+    after sunrise moves by hours through the year while the offset stays at its clock time.
+    Each is named, and nothing else."""
+    _, measured, starts, night = _sharp_turn_year()
+    clock = starts.strftime("%H:%M")
+    for times in (["03:30", "04:00"], ["10:00"]):
+        planted = np.where(np.isin(clock, times), measured + 3.0, measured)
+        text = nee_offset_at_fixed_time(planted, starts, 30, night)
+        assert text is not None and any(f"{time} (+" in text for time in times), times
+        assert text.count(" days)") <= len(times), text
