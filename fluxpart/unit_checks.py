@@ -26,7 +26,6 @@ from __future__ import annotations
 
 import math
 import re
-
 import warnings
 
 import numpy as np
