@@ -28,8 +28,10 @@ Fatal (the run stops before any fit):
 - ``whole record``: no records.
 - ``respiration temperature``: the fixed ``respiration_driver``'s column without a value.
 - ``nighttime partitioning (E0)``: a record shorter than one E0 window, or no E0 window
-  with enough night records spanning enough temperature; not fatal with ``e0_fallback``
-  or where another year has one.
+  with enough night records spanning enough temperature; not fatal with ``e0_fallback``,
+  where another year has one, or where the year's joint E0 fit (``e0_method = "joint"``,
+  the one fit this module runs: :func:`fluxpart.partition.nighttime.fit_e0_joint` on the
+  counted night records) is accepted, as the run takes it (leftovers53).
 - ``nighttime partitioning (Rref)``: no Rref window with enough night records (1).
 - ``daytime partitioning (light response)``: no light-response window with enough measured
   daytime records (1).
@@ -182,8 +184,9 @@ from .column_faults import (
     vapour_pressure_as_vpd,
     zero_coded_temperature,
 )
-from .gapfill import QUALITY_A_WINDOW_DAYS
+from .gapfill import QUALITY_A_WINDOW_DAYS, event_breaks
 from .night_threshold import dark_as_day, twilight_as_night
+from .partition.nighttime import fit_e0_joint
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
@@ -1111,7 +1114,7 @@ def _dark_rg(frame: pd.DataFrame, potential, config) -> list:
         False)]
 
 
-def _e0(days, index, usable, temperature, config) -> list:
+def _e0(days, index, usable, temperature, config, nee) -> list:
     counts, starts, first, last = _window_counts(days, usable, config.e0_window_days,
                                                  config.e0_window_step_days)
     spans = np.zeros(len(starts))
@@ -1138,17 +1141,77 @@ def _e0(days, index, usable, temperature, config) -> list:
         # since 0.19.0 a year without an E0 of its own takes the nearest year's where
         # another year of the record has one (nighttime.annual_e0, nearest_year)
         nearest = not fallback and bool(good[~mine].any())
+        facts = (f"{year}: no {config.e0_window_days:g}-day window has {config.e0_min_points} "
+                 f"measured night records spanning {config.e0_min_temperature_range:g} K (at "
+                 f"most {most} records, widest temperature span {widest:.2f} K); ")
+        joint = (None if fallback or nearest or config.e0_method != "joint"
+                 else _joint_e0(index, usable, temperature, config, nee, year))
+        if joint is not None and joint["accepted"]:
+            findings.append(Finding("nighttime partitioning (E0)", facts + _joint_found(joint),
+                                    False))
+            continue
         findings.append(Finding("nighttime partitioning (E0)", (
-            f"{year}: no {config.e0_window_days:g}-day window has {config.e0_min_points} "
-            f"measured night records spanning {config.e0_min_temperature_range:g} K (at most "
-            f"{most} records, widest temperature span {widest:.2f} K); "
+            facts
             + (f"the fall-back e0_fallback = {config.e0_fallback:g} K would be used"
                if fallback else "the E0 of the nearest year with one would be used (set "
                "[processing] e0_fallback for a fixed E0 in K instead)" if nearest
                else "set [processing] e0_fallback (a fixed E0 in K) or supply a "
                "longer record with measured night NEE")
-            + _joint_first(config, fallback or nearest)), not (fallback or nearest)))
+            + (_joint_first(config, fallback or nearest) if joint is None
+               else f" (the year's joint fit, e0_method = \"joint\", finds none either: "
+               f"{joint['reason'] or 'no window'}; with e0_fallback set, the fixed E0 is "
+               "used)")), not (fallback or nearest)))
     return findings
+
+
+def _joint_e0(index, usable, temperature, config, nee, year) -> dict:
+    """The year's joint E0 fit on the counted night records, as the run fits it.
+
+    The stopping rule of no window spanning ``e0_min_temperature_range`` guards the
+    windows' E0 only: the joint fit (one E0, a free Rref per window) needs no such span.
+    With ``respiration_driver = "auto"`` the run chose soil temperature on an invented
+    fen (nights within 3.4 K a fortnight) and completed on the joint fit; the same
+    driver set by hand was refused here before any fit (leftovers53). Fitting the joint
+    E0 here stops a run only where the run would stop too. The records are those the
+    preflight counts (before the u* filter where its threshold is not yet known), so the
+    run, on fewer records, can still reject the fit and then says so itself.
+
+    Returns
+    -------
+    dict
+        ``e0``, ``e0_se`` [K], ``windows``, ``accepted`` and ``reason`` of the year's row
+        of :func:`fluxpart.partition.nighttime.fit_e0_joint`.
+
+    References
+    ----------
+    Lloyd, J. & Taylor, J. A. (1994). Functional Ecology 8:315-323.
+
+    Reichstein, M. et al. (2005). Global Change Biology 11:1424-1439 (the 15-day windows
+    and the 5 K span of the windows' E0) (m).
+    """
+    mine = np.asarray(index.year == year)
+    cut = event_breaks(index[mine], config.events)
+    table = fit_e0_joint(index[mine], np.where(usable, nee, np.nan)[mine], temperature[mine],
+                         usable[mine], e0_window_days=config.e0_window_days,
+                         e0_min_points=config.e0_min_points, e0_bounds=config.e0_bounds,
+                         e0_max_relative_error=config.e0_max_relative_error,
+                         breaks=cut if len(cut) else None)
+    return table.loc[year].to_dict() if year in table.index else {"accepted": False,
+                                                                  "reason": "no window"}
+
+
+def _joint_found(joint: dict) -> str:
+    """The clause of a year whose joint E0 fit is accepted though no window spans.
+
+    No value is named: the preflight's records are counted before the u* filter where
+    its threshold is not yet known, so its E0 (310 ± 33 K on the invented fen) would
+    stand beside the run's own (312 ± 20 K) as two answers.
+    """
+    return (f"the year's joint fit (e0_method = \"joint\": one E0 over the night records "
+            f"of {int(joint['windows'])} consecutive windows, each with its own Rref) finds "
+            "an E0 on these nights, which the run tries first and takes where it accepts it "
+            "on the records left after the u* filter: an E0 found on so narrow a range is "
+            "poorly determined (a warning of the run names the year and its value)")
 
 
 def _joint_first(config, goes_on: bool) -> str:
@@ -1591,7 +1654,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                if fallback else "supply a longer record or set [processing] e0_fallback")),
             not fallback))
     else:
-        findings += _e0(days, index, usable_night, temperature, config)
+        findings += _e0(days, index, usable_night, temperature, config, nee)
     findings += _rref(days, usable_night, config, without_ustar)
     if sun_elevation is not None:
         uptake = night_uptake.uptake_note(

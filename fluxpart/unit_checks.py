@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import math
 import re
+import warnings
 
 import numpy as np
 
@@ -1057,6 +1058,15 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
     soil, air = float(np.median(tsoil[both])), float(np.median(tair[both]))
     if soil - air <= _SOIL_ABOVE_AIR or soil <= _SOIL_FAHRENHEIT_MEDIAN:
         return None
+    water = _water_content_like(tsoil, tair, interval_minutes)
+    if water:
+        return (f"column {columns['tsoil']!r} (tsoil, read as °C): its median is {soil:.1f} "
+                f"°C, {soil - air:.1f} K above the air temperature's ({air:.1f} °C) over the "
+                "same records, where a soil near the surface stays within a few K of the air; "
+                f"{water}: the values look like a volumetric soil water content in percent "
+                "(0-60; as a fraction, m3 m-3, 0-0.6), a neighbouring column of a soil station, "
+                "not a temperature in any unit: map the soil temperature's column as tsoil "
+                "in [input.columns], or leave tsoil out")
     # the unit named is the one that brings the soil's median nearest the air's: kelvin
     # (soil - 273.15) puts a soil read as 280 °C at 7 °C, °F would put it at 138 °C
     candidates = {"°F": (soil - 32.0) * 5.0 / 9.0, "K": soil - 273.15}
@@ -1066,6 +1076,72 @@ def _tsoil_message(converted: dict, units: dict, columns: dict, interval_minutes
             "records, where a soil near the surface stays within a few K of the air; the "
             f"values look like {unit} ({candidates[unit]:.1f} °C): set [input.units] "
             f"tsoil = \"{unit}\" (or list tsoil in [input] accept_units)")
+
+
+#: Largest ratio of a column's median half-day change to its median whole-day change
+#: read as no daily course (leftovers53). A daily course of amplitude A adds about 2A to
+#: the half-day changes and nothing to the whole-day ones; a slow drift or random walk
+#: gives ratios at or below 1 (sqrt(1/2) for a random walk). Our choice of 1.2: the
+#: invented grassland's soil at 5 cm gives 1.78, its air 3.26, a soil water content
+#: with a random walk 0.73.
+_NO_DAILY_COURSE = 1.2
+#: Least correlation of a soil temperature's daily means with the air's that any unit of
+#: temperature keeps (an increasing linear function of °C; the soil follows the air's
+#: seasons, r near 0.9 and more at 5 cm (m)). Our choice of 0.5; a soil water content,
+#: wet in winter and dry in summer, runs against the air (leftovers53: r = -0.9).
+_SEASON_FOLLOWS_AIR = 0.5
+
+
+def _water_content_like(tsoil, tair, interval_minutes: int) -> str | None:
+    """The evidence that a column mapped as tsoil holds no temperature, or None.
+
+    All present values within 0-60 (a volumetric water content in percent; as a fraction,
+    0-0.6, it would not be far above the air), no daily course (:data:`_NO_DAILY_COURSE`)
+    and daily means that do not follow the air's (:data:`_SEASON_FOLLOWS_AIR`): in °F or
+    K a soil temperature would keep both its daily course at 5 cm and its seasons
+    (round mistakes50: soil water in % as tsoil was refused as a unit "changed within
+    the record", °F before May and °C after).
+
+    Parameters
+    ----------
+    tsoil, tair : numpy.ndarray
+        The column mapped as tsoil and the air temperature [°C], record by record.
+    interval_minutes : int
+        Record interval [min].
+
+    Returns
+    -------
+    str or None
+        A clause naming the three facts, or None where any fails.
+
+    References
+    ----------
+    Hillel, D. (1998). Environmental Soil Physics. Academic Press (the daily temperature
+    wave damped with depth, the volumetric water contents of soils up to about 0.6) (m).
+    """
+    present = tsoil[np.isfinite(tsoil)]
+    if present.size == 0 or present.min() < 0.0 or present.max() > 60.0:
+        return None
+    half, day = max(1, 720 // interval_minutes), max(1, 1440 // interval_minutes)
+    if tsoil.size <= 2 * day:
+        return None
+    ratio = float(np.nanmedian(np.abs(tsoil[half:] - tsoil[:-half]))
+                  / max(np.nanmedian(np.abs(tsoil[day:] - tsoil[:-day])), 1e-9))
+    days = tsoil.size // day
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)       # a day without a value
+        means = [np.nanmean(values[:days * day].reshape(days, day), axis=1)
+                 for values in (tsoil, tair)]
+    both = np.isfinite(means[0]) & np.isfinite(means[1])
+    if both.sum() < 30 or ratio > _NO_DAILY_COURSE:
+        return None
+    season = float(np.corrcoef(means[0][both], means[1][both])[0, 1])
+    if not season < _SEASON_FOLLOWS_AIR:
+        return None
+    return (f"all its values lie within {present.min():.1f}-{present.max():.1f}, with no "
+            f"daily course (half-day changes {ratio:.2f} times the whole-day ones, where a "
+            "soil near the surface warms by day) and daily means that do not follow the "
+            f"air's (correlation {season:.2f})")
 
 
 def _declared_fahrenheit(name: str, converted: dict, columns: dict, interval_minutes: int,

@@ -148,25 +148,33 @@ def test_sites_lost_with_the_scheduler_are_told_in_one_line():
     assert batch._failure_lines(lost[:1])[0].startswith("error: site 'alpha' (")
 
 
-def test_every_stage_the_preflight_can_list_is_in_its_docstring():
-    """The preflight docstring's list of conditions lacked a dozen findings added by later
-    rounds (rg dark, rg zeros, tair flat, weather pairing, spliced records, ...: review59).
-    Every stage label the package can give a finding (a literal in ``Finding(...)``, a
-    module's ``STAGE``, the constant-variable stages, a label with a column's name as
-    ``<column>``) must be named there."""
+def listable_stages() -> set:
+    """Every stage label the package can give a finding: a literal in ``Finding(...)``, a
+    module's ``STAGE``, the constant-variable stages; a column's name as ``<column>``."""
     import re
     from pathlib import Path
 
     import fluxpart
     from fluxpart import preflight
 
-    text = " ".join(preflight.__doc__.split())
     stages = set(stage for stage, _ in preflight._CONSTANT.values())
     for path in Path(fluxpart.__file__).parent.glob("*.py"):
         source = path.read_text(encoding="utf-8")
         stages |= set(re.findall(r'Finding\(\s*f?"([^"]+)"', source))
         stages |= set(re.findall(r'^STAGE = "([^"]+)"', source, re.M))
-    stages = {re.sub(r"\{name\}", "<column>", stage) for stage in stages}
+    return {re.sub(r"\{name\}", "<column>", stage) for stage in stages}
+
+
+def test_every_stage_the_preflight_can_list_is_in_its_docstring():
+    """The preflight docstring's list of conditions lacked a dozen findings added by later
+    rounds (rg dark, rg zeros, tair flat, weather pairing, spliced records, ...: review59).
+    Every stage label the package can give a finding (a literal in ``Finding(...)``, a
+    module's ``STAGE``, the constant-variable stages, a label with a column's name as
+    ``<column>``) must be named there."""
+    from fluxpart import preflight
+
+    text = " ".join(preflight.__doc__.split())
+    stages = listable_stages()
     assert {"input (rg dark)", "input (spliced records)", "input (<column> flag)",
             "whole record"} <= stages                     # the search finds them
     missing = sorted(stage for stage in stages if f"``{stage}``" not in text)

@@ -79,3 +79,34 @@ def test_the_jump_is_measured_at_the_change_not_at_the_first_split(tmp_path):
     at = re.search(r"either side of (\d{4}-\d{2}-\d{2})", text)
     assert at is not None, text
     assert pd.Timestamp(at.group(1)) >= pd.Timestamp("2021-06-20"), text
+
+
+def test_soil_water_as_tsoil_is_named_not_a_unit_changed_within(tmp_path):
+    """Soil water content in % (invented: 30 ± 8, wet in winter, dry in summer, a slow
+    random walk, no daily course) mapped as tsoil in the invented grassland example. It
+    was refused as "a unit that changed within the record", °F before May and °C after
+    (a split search over parts that each pass). A soil temperature in any unit (an
+    increasing linear function of °C) keeps its daily course at 5 cm and follows the
+    air's seasons (Hillel 1998 (m)); the refusal now names a water content instead, and
+    the example's own soil temperature in °F is still named °F (mistakes50)."""
+    from fluxpart.errors import FluxpartError
+    from fluxpart.io import read_config
+
+    example = Path(__file__).resolve().parents[1] / "examples" / "quillmoor_grassland.toml"
+    config = tmp_path / example.name
+    data = tmp_path / "quillmoor_grassland.csv"
+    frame = pd.read_csv(example.with_suffix(".csv"), dtype={"stamp_end": str})
+    day = pd.to_datetime(frame["stamp_end"], format="%Y%m%d%H%M").dt.day_of_year.to_numpy()
+    theta = 30.0 + 8.0 * np.cos(2 * np.pi * (day - 30) / 365.0)
+    theta += np.cumsum(np.random.default_rng(9).normal(0.0, 0.02, len(day)))
+    soil = frame["soil_temp_5cm"].to_numpy()
+    for column, named, absent in (
+            (np.round(theta, 2), "soil water content in percent", "changed within"),
+            (np.where(soil == -9999, soil, np.round(soil * 1.8 + 32.0, 2)), '"°F"',
+             "water content")):
+        config.write_text(example.read_text())
+        frame.assign(soil_temp_5cm=column).to_csv(data, index=False)
+        with pytest.raises(FluxpartError) as raised:
+            read_config(config)
+        text = str(raised.value)
+        assert "soil_temp_5cm" in text and named in text and absent not in text, text

@@ -401,6 +401,9 @@ def test_conflict_note_names_each_line_of_evidence_by_the_statistic_sign():
     assert "better with tair" in reverse and "tair in use" in reverse
     usual = conflict_note("tair", "tsoil", -3.0)
     assert "night records favour tair" in usual and "better with tsoil" in usual
+    # leftovers53: the daytime fit favoured the planted driver in 4 of 14 known-truth
+    # site-years where the note fired (bench_driver_conflict.py): it is not advice to set it
+    assert "alone is no reason to set respiration_driver" in usual
 
 
 @pytest.mark.parametrize("planted", ["tsoil", "tair"])
