@@ -62,7 +62,7 @@ def test_a_vpd_and_rh_of_two_hygrometers_or_a_vpd_over_ice_are_not_named():
     hygrometers' specifications (m)): the implied temperature departs with RH's daily
     course, which read as a damped tair (ratio 0.84 and 0.75 on the grassland example,
     named before review64). A VPD a logger takes over ice below 0 degC (the Magnus form
-    over ice of Alduchov & Eskridge 1996, eq. 23: 6.1121 exp(22.587 T / (T + 273.86))
+    over ice of Alduchov & Eskridge 1996, eq. 23 (m): 6.1121 exp(22.587 T / (T + 273.86))
     hPa) beside an RH over water (the meteorological convention, WMO (m)). A damped
     tair is still named beside both."""
     tair, rh, vpd = _air()
