@@ -324,7 +324,7 @@ def is_tar(data: bytes) -> bool:
 
 
 def tar_files(data: bytes) -> list | None:
-    """The files of the user's a tar archive holds (folders, macOS "._" forks and
+    """The user's files a tar archive holds (folders, macOS "._" forks and
     desktop files left out), as :class:`tarfile.TarInfo`, or None where it cannot be
     read (cut short)."""
     import io

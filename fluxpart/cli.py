@@ -650,7 +650,9 @@ def _parser() -> argparse.ArgumentParser:
                         "metadata differences are one line naming the columns")
     verify.add_argument("--json", action="store_true",
                         help="print the report as one JSON object (verdict, exit_code, "
-                        "differences, notes, caution, the text lines) for a script; same "
+                        "differences, notes, caution, the text lines, and the recorded seed, "
+                        "release and whole SHA-256 of each input and the site config) for a "
+                        "script; same "
                         "exit status; an error (exit 2) is still one error: line on stderr")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 

@@ -19,7 +19,10 @@ swings more than the air (heated by the sun) gives the same pattern, so the mess
 names that cause too.
 
 A VPD computed from the tair column itself implies tair exactly (ratio 1): such a file
-can say nothing, and is never named.
+can say nothing, and is never named. Nor is a VPD and an RH of two hygrometers that
+differ by a few percent (the implied temperature then departs with RH's daily course,
+which the fit takes out: :func:`damped_ratio`), nor the records below freezing, where a
+VPD may be taken over ice.
 
 References
 ----------
@@ -38,7 +41,7 @@ import numpy as np
 import pandas as pd
 
 from .column_faults import _daily_anomaly
-from .variables import saturation_temperature
+from .variables import saturation_temperature, saturation_vapour_pressure
 
 __all__ = ["DAMPED_RATIO", "STAGE", "damped_months", "damped_ratio", "damped_tair"]
 
@@ -58,6 +61,11 @@ _MIN_CORRELATION = 0.9
 #: VPD column's rounding moves the implied temperature by tenths of a K (the bound of
 #: :func:`fluxpart.column_faults.delayed_tair`).
 _MAX_RH = 90.0
+#: Lowest air temperature [degC] of a record judged: below freezing a logger's VPD may be
+#: taken over ice while RH is over water (the meteorological convention, WMO (m)), and
+#: the implied temperature then lies up to 2 K below the air's on cold nights (review64:
+#: the example's January and February read 0.62 and 0.69, named, with tair right).
+_MIN_TAIR = 0.0
 #: Fewest days' worth of records with both daily courses present to judge [days] (half
 #: of each day's records, those of RH up to :data:`_MAX_RH` %, counted).
 _MIN_DAYS = 30
@@ -82,60 +90,86 @@ def damped_ratio(tair, rh, vpd, interval_minutes: float) -> tuple[float, float, 
     Returns
     -------
     tuple of (float, float, int)
-        The ratio ``var(a_tair) / cov(a_tair, a_implied)`` [1] (the inverse of the slope of
-        the implied temperature's daily anomaly on the tair column's: 1 for one air,
-        below 1 for a damped tair), the correlation of the two anomalies [1] and the
+        The ratio [1]: the inverse of the slope of the implied temperature's daily
+        anomaly on the tair column's, fitted with the humidity term beside it (1 for one
+        air, below 1 for a damped tair); the correlation of the two anomalies [1] and the
         number of records judged; NaN where fewer than :data:`_MIN_DAYS` days' worth of
         records judge.
 
     Notes
     -----
-    Both series keep only the records with RH of 1 to :data:`_MAX_RH` %, VPD above 0 and
-    tair present; each less its centred 24-h running mean over those records (a day's
-    warmth and the season left out). The slope is fitted with the tair column as the
-    regressor: the noise of the VPD column's rounding in the implied temperature does not
-    bias it, and the tair column's own noise only raises the ratio (a damped column is
-    then named less often, never more).
+    The series keep only the records with RH of 1 to :data:`_MAX_RH` %, VPD above 0 and
+    tair of :data:`_MIN_TAIR` degC or more; each less its centred 24-h running mean over
+    those records (a day's warmth and the season left out). The slope is fitted with the
+    tair column as a regressor: the noise of the VPD column's rounding in the implied
+    temperature does not bias it, and the tair column's own noise only raises the ratio
+    (a damped column is then named less often, never more).
+
+    The second regressor is the humidity term h / (1 - h) / (d ln e_s / dT), h = RH /
+    100 [K]. Where VPD and RH come from two hygrometers whose vapour pressures differ by
+    a factor k (VPD from the gas analyser's water vapour and tair, RH from the probe),
+    e_s(T_implied) = e_s(T) (1 - (k - 1) h / (1 - h)), so the implied temperature departs
+    from the air's by about -(k - 1) times that term: a departure that follows RH's daily
+    course, anti-phased with the temperature's, which the plain slope read as a damped
+    tair (on the example, k = 1.03, within two hygrometers' specifications: ratio 0.84,
+    named; k = 1.05: 0.75). With the term beside it the slope is 1.00 and 1.01 there,
+    while a damping of 2/3 or 0.8 reads 0.68 and 0.80 (review64).
 
     References
     ----------
     Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
     Biophysics, 2nd ed. Springer, ch. 3 (m).
     """
-    a_tair, a_implied, per_day = _anomalies(tair, rh, vpd, interval_minutes)
-    return _ratio(a_tair, a_implied, _MIN_DAYS * per_day // 2)
+    a_tair, a_implied, a_humidity, per_day = _anomalies(tair, rh, vpd, interval_minutes)
+    return _ratio(a_tair, a_implied, a_humidity, _MIN_DAYS * per_day // 2)
 
 
 def _anomalies(tair, rh, vpd, interval_minutes: float):
-    """Daily anomalies of tair and of the temperature VPD and RH imply (NaN where not
-    judged), and the records per day; empty where the interval or lengths do not fit."""
+    """Daily anomalies of tair, of the temperature VPD and RH imply and of the humidity
+    term (NaN where not judged), and the records per day; empty where the interval or
+    lengths do not fit."""
     tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
     per_day = int(round(1440 / interval_minutes)) if interval_minutes > 0 else 0
     if per_day < 4 or not tair.size == rh.size == vpd.size:
-        return np.empty(0), np.empty(0), max(per_day, 1)
+        return np.empty(0), np.empty(0), np.empty(0), max(per_day, 1)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         usable = (np.isfinite(tair) & np.isfinite(rh) & np.isfinite(vpd) & (rh >= 1.0)
-                  & (rh <= _MAX_RH) & (vpd > 0))
+                  & (rh <= _MAX_RH) & (vpd > 0) & (tair >= _MIN_TAIR))
         implied = saturation_temperature(np.where(usable, vpd / (1.0 - rh / 100.0), np.nan))
-    usable &= np.isfinite(implied) & (implied > -60) & (implied < 60)
+        humidity = (rh / (100.0 - rh)) / _log_slope(tair)
+    usable &= np.isfinite(implied) & (implied > -60) & (implied < 60) & np.isfinite(humidity)
     return (_daily_anomaly(np.where(usable, tair, np.nan), per_day),
-            _daily_anomaly(np.where(usable, implied, np.nan), per_day), per_day)
+            _daily_anomaly(np.where(usable, implied, np.nan), per_day),
+            _daily_anomaly(np.where(usable, humidity, np.nan), per_day), per_day)
 
 
-def _ratio(a_tair, a_implied, minimum: int) -> tuple[float, float, int]:
-    """var(a_tair) / cov(a_tair, a_implied), their correlation and the pairs counted
-    (NaN below `minimum` pairs or without a positive covariance)."""
-    both = np.isfinite(a_tair) & np.isfinite(a_implied)
+def _log_slope(tair):
+    """d ln e_s / dT of :func:`~fluxpart.variables.saturation_vapour_pressure` [1/K]
+    (a centred difference over 1 K)."""
+    return (np.log(saturation_vapour_pressure(tair + 0.5))
+            - np.log(saturation_vapour_pressure(tair - 0.5)))
+
+
+def _ratio(a_tair, a_implied, a_humidity, minimum: int) -> tuple[float, float, int]:
+    """1 / (the implied temperature's slope on tair with the humidity term beside it),
+    the correlation of tair and the implied temperature and the records counted (NaN
+    below `minimum` records or without a positive slope)."""
+    both = np.isfinite(a_tair) & np.isfinite(a_implied) & np.isfinite(a_humidity)
     count = int(both.sum())
     if count < max(minimum, 2):
         return np.nan, np.nan, count
-    x = a_tair[both] - a_tair[both].mean()
-    y = a_implied[both] - a_implied[both].mean()
-    covariance = float(np.sum(x * y))
-    spread = float(np.sum(x * x)) * float(np.sum(y * y))
-    if covariance <= 0 or spread <= 0:
+    x, y, z = (v[both] - v[both].mean() for v in (a_tair, a_implied, a_humidity))
+    sxx, syy, szz = float(np.sum(x * x)), float(np.sum(y * y)), float(np.sum(z * z))
+    sxy, sxz, szy = float(np.sum(x * y)), float(np.sum(x * z)), float(np.sum(z * y))
+    determinant = sxx * szz - sxz * sxz
+    if sxy <= 0 or sxx * syy <= 0:
         return np.nan, np.nan, count
-    return float(np.sum(x * x)) / covariance, covariance / np.sqrt(spread), count
+    # a humidity term without a spread of its own (RH constant) leaves the plain slope
+    slope = ((sxy * szz - szy * sxz) / determinant if determinant > 1e-9 * sxx * szz
+             else sxy / sxx)
+    if slope <= 0:
+        return np.nan, np.nan, count
+    return 1.0 / slope, sxy / np.sqrt(sxx * syy), count
 
 
 def damped_months(tair, rh, vpd, index, interval_minutes: float) -> dict:
@@ -156,14 +190,15 @@ def damped_months(tair, rh, vpd, index, interval_minutes: float) -> dict:
     dict
         ``"YYYY-MM"`` -> (ratio [1], correlation [1], records), months judged only.
     """
-    a_tair, a_implied, per_day = _anomalies(tair, rh, vpd, interval_minutes)
+    a_tair, a_implied, a_humidity, per_day = _anomalies(tair, rh, vpd, interval_minutes)
     if a_tair.size == 0 or len(index) != a_tair.size:
         return {}
     labels = np.asarray(pd.DatetimeIndex(index).strftime("%Y-%m"))
     out = {}
     for month in dict.fromkeys(labels):
         rows = labels == month
-        ratio = _ratio(a_tair[rows], a_implied[rows], _MIN_MONTH_DAYS * per_day // 2)
+        ratio = _ratio(a_tair[rows], a_implied[rows], a_humidity[rows],
+                       _MIN_MONTH_DAYS * per_day // 2)
         if np.isfinite(ratio[0]):
             out[month] = ratio
     return out

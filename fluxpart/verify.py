@@ -272,6 +272,9 @@ class VerifyReport:
         Where every table differs from the SHA-256 its manifest records: the evidence
         that the manifest and the tables come from different runs
         (:func:`replaced_manifest`); empty otherwise.
+    recorded : dict
+        The same facts as fields with the whole SHA-256 of each file
+        (:func:`recorded_facts`), for ``--json``.
     """
 
     directory: Path
@@ -285,6 +288,7 @@ class VerifyReport:
     notes: tuple = field(default=())
     identity: str = ""
     replaced_manifest: str = ""
+    recorded: dict = field(default_factory=dict)
 
     @property
     def identical(self) -> bool:
@@ -504,8 +508,12 @@ class VerifyReport:
         ``result`` (which result the folder holds), ``tables``, ``differences`` and
         ``rounding`` (each a :class:`Difference`'s fields; ``relative`` null where not a
         number), ``largest_relative_difference``, ``folder_changes``, ``environment``,
-        ``code_changed``, ``notes``, ``caution`` and ``text`` (the lines the command
-        prints without ``--json``). Strict JSON (RFC 8259: no NaN), keys sorted, every
+        ``code_changed``, ``notes``, ``caution``, ``text`` (the lines the command
+        prints without ``--json``) and ``recorded`` (:func:`recorded_facts`: seed, each
+        input file's and the site config's path and whole SHA-256, the release and code
+        fingerprint that wrote the result, as its manifest records them; review64: the
+        ``result`` line gives 12 characters of a hash, which an auditor's script cannot
+        match against the SHA-256 of the file it holds). Strict JSON (RFC 8259: no NaN), keys sorted, every
         character beyond ASCII escaped (``\\u2013``): readable under any locale's
         output encoding (a latin-1 or C locale's stream could not take the en dash of
         "Lloyd–Taylor"); the same report gives the same bytes.
@@ -527,6 +535,7 @@ class VerifyReport:
             "folder_changes": self.folder_changes, "environment": list(self.environment),
             "code_changed": bool(self.code_changed), "notes": list(self.notes),
             "caution": VERIFY_CAUTION, "text": self.format().splitlines(),
+            "recorded": self.recorded,
         }, indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
 
 
@@ -1230,6 +1239,48 @@ def result_identity(manifest: dict) -> str:
     return printable_line("; ".join(parts))
 
 
+def recorded_facts(manifest: dict) -> dict:
+    """What :func:`result_identity` names, as fields with whole hashes (``verify --json``).
+
+    Parameters
+    ----------
+    manifest : dict
+        The manifest :func:`result_identity` reads.
+
+    Returns
+    -------
+    dict
+        ``seed``; ``input`` and ``site_config``, each ``{"path", "sha256"}`` as recorded
+        (the path relative to the folder; an input of several files adds ``files``,
+        each ``{"path", "sha256"}``, its ``sha256`` then being of their names and
+        hashes); ``fluxpart`` (the release that wrote the result) and ``code_sha256``
+        (its code fingerprint); a demo result adds ``demo``. Parts not recorded are
+        left out, and so is a part of another type than the manifest writes (an edited
+        manifest: the folder check names it).
+    """
+    facts = {}
+    if isinstance(manifest.get("seed"), int):
+        facts["seed"] = manifest["seed"]
+    provenance = manifest.get("provenance") if isinstance(manifest.get("provenance"), dict) \
+        else {}
+    if isinstance(provenance.get("demo"), dict):
+        facts["demo"] = provenance["demo"]
+    for key in ("input", "site_config"):
+        entry = provenance.get(key)
+        if isinstance(entry, dict) and isinstance(entry.get("sha256"), str):
+            facts[key] = {"path": str(entry.get("path", "")), "sha256": entry["sha256"]}
+            files = entry.get("files")
+            if key == "input" and isinstance(files, list):
+                facts[key]["files"] = [{"path": str(f.get("path", "")),
+                                        "sha256": str(f.get("sha256", ""))}
+                                       for f in files if isinstance(f, dict)]
+    code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
+    for key, name in (("version", "fluxpart"), ("sha256", "code_sha256")):
+        if isinstance(code.get(key), str):
+            facts[name] = code[key]
+    return facts
+
+
 # --------------------------------------------------------------------------- inputs
 
 def _matching(path: Path | None, sha: str | None) -> bool:
@@ -1640,7 +1691,7 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
             if located:
                 changed = dataclasses.replace(
                     changed, cause="it is not the input file the result was computed "
-                                   f"from; {located}")
+                                   f"from; {located}{_packed_note(recorded_input, changed.row)}")
         return "run", None, [changed]
     if provenance.get("settings") == "site config":
         # the settings came from the site config's [processing] table: rerun from it,
@@ -1719,6 +1770,27 @@ def remove_dead_scratch(root=None) -> list[str]:
         if not entry.exists():
             removed.append(entry.name)
     return removed
+
+
+#: Endings of a recorded input that the run unpacked (a tar, zip or compressed file of
+#: one table, :func:`fluxpart.io._decompressed`).
+_PACKED = (".tar", ".tgz", ".tar.gz", ".tar.bz2", ".tar.xz", ".zip", ".gz", ".bz2", ".xz")
+
+
+def _packed_note(recorded_input: dict, given) -> str:
+    """The clause naming the archive the run read where the file given is another.
+
+    A result run from ``tower.tar.gz`` verified with the table unpacked from it gave
+    "every value equals the input the result holds: the change lies outside the values
+    read (another column, a comment, spaces or the layout)" and nothing of the archive
+    (review64): the run's input is the archive's bytes, which the table alone cannot
+    give back.
+    """
+    name = Path(str(recorded_input.get("path", ""))).name
+    if not name.lower().endswith(_PACKED) or Path(str(given)).name == name:
+        return ""
+    return (f"; the run read {name!r} (an archive or compressed file whose table this may "
+            "be: the recorded SHA-256 is of its packed bytes; give it with --input)")
 
 
 def _file_changed(table: str, differences) -> bool:
@@ -1913,13 +1985,14 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     run_log = _read_run_log(directory) if differences else None
     environment, code_changed = _environment(manifest)
     identity = result_identity(manifest)
+    recorded = recorded_facts(manifest)
     provenance = manifest["provenance"]
     if "demo" not in provenance and not (isinstance(provenance.get("input"), dict)
                                          and isinstance(provenance.get("site_config"), dict)):
         # written from Python (Result.write) without an input file: only the folder's
         # integrity can be checked, and a tampered folder is still a failed verification
         if differences:
-            return VerifyReport(directory=directory, identity=identity, source="none",
+            return VerifyReport(directory=directory, identity=identity, recorded=recorded, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences), environment=tuple(environment),
                                 code_changed=code_changed, exact=exact,
@@ -1978,7 +2051,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             # its input is still found tampered (exit 1), not only asked for --input; nor
             # a manifest whose edited setting the rerun cannot take (despike_z = 50 was a
             # ConfigError, exit 2, naming "[processing]", review round thirteen)
-            return VerifyReport(directory=directory, identity=identity, source="none",
+            return VerifyReport(directory=directory, identity=identity, recorded=recorded, source="none",
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
                                 environment=tuple(environment), code_changed=code_changed,
@@ -1987,7 +2060,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 replaced_manifest=replaced_manifest(differences, manifest,
                                                                     run_log=run_log))
         if result is None:
-            return VerifyReport(directory=directory, identity=identity, source=source,
+            return VerifyReport(directory=directory, identity=identity, recorded=recorded, source=source,
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(input_differences + differences),
                                 environment=tuple(environment), code_changed=code_changed,
@@ -2080,7 +2153,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     # one note per cause, naming its tables (a result of 0.22.0 gave 14 such lines)
     notes += [f"{', '.join(tables)}: values and metadata bit-identical, file bytes differ from "
               f"the recorded ones ({cause})" for cause, tables in same_values.items()]
-    return VerifyReport(directory=directory, identity=identity, source=source, tables=tuple(names),
+    return VerifyReport(directory=directory, identity=identity, recorded=recorded, source=source, tables=tuple(names),
                         differences=tuple(differences), rounding=tuple(rounding),
                         environment=tuple(environment), code_changed=code_changed,
                         exact=exact, notes=tuple(notes),

@@ -4,6 +4,7 @@ Each test fails on the code before the fix it names.
 """
 from __future__ import annotations
 
+import hashlib
 import json
 
 import pandas as pd
@@ -40,6 +41,17 @@ def test_a_table_recompressed_with_its_values_says_they_are_the_reruns(copy, cap
     assert any(note.startswith("daily: the changed file's values and metadata are "
                                "bit-identical to the rerun's") for note in report["notes"])
     assert report["caution"] in report["text"][-1]
+    _assert_recorded(report, copy / "tower.csv")
+
+
+def _assert_recorded(report, input_file):
+    """``recorded`` holds the input's whole SHA-256 (the ``result`` line shows 12
+    characters: review64), as FIPS 180-4 SHA-256 of the file's bytes (hashlib)."""
+    recorded = report["recorded"]
+    assert recorded["input"]["sha256"] == hashlib.sha256(input_file.read_bytes()).hexdigest()
+    assert recorded["input"]["sha256"][:12] in report["result"]
+    assert len(recorded["site_config"]["sha256"]) == 64
+    assert isinstance(recorded["seed"], int) and recorded["fluxpart"] in report["result"]
 
 
 def test_a_pandas_rewritten_table_not_recomputed_claims_no_comparison(copy, capsys):
@@ -106,3 +118,4 @@ def test_verify_json_of_a_folder_not_recomputed_says_so(copy, capsys):
     assert (failed["verdict"], failed["exit_code"], failed["recomputed"]) == (
         "not reproduced", 1, False)
     assert [(d["table"], d["kind"]) for d in failed["differences"]] == [("annual", "hash")]
+    _assert_recorded(failed, copy / "elsewhere.csv")

@@ -5,7 +5,8 @@ the VPD and RH columns imply (a sonic's temperature, a sensor in the canopy's sh
 series averaged over hours). Run on each generated site-year as it is (a call is a false
 alarm) and with its tair damped around each day's mean to ``--damping`` (2/3 and 0.8 by
 default) plus 2 K, over the record or in June-August only (a call is a hit), and with a
-second shielded thermometer's tair (which should not be named), on the invented demo's ten-year records (seed 3, c3
+second shielded thermometer's tair, and with a VPD of two hygrometers 3 % and 5 % apart or
+taken over ice below freezing (review64; none of which should be named), on the invented demo's ten-year records (seed 3, c3
 and c4, 30 and 60 min), the examples and trial site files (``--trials DIR ...``: folders
 of a trial's ``--out``, every site TOML read as ``run`` reads it) as they are; the
 smallest ratio seen (of the record or a month) is printed beside the counts.
@@ -30,6 +31,7 @@ from bench_pairing_uptake import _trial_frames, ten_year_frames  # noqa: E402
 from bench_prefilter_vpd_zero import site_years  # noqa: E402
 
 from fluxpart import damped_tair  # noqa: E402
+from fluxpart.variables import saturation_vapour_pressure  # noqa: E402
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "examples"
 
@@ -72,6 +74,33 @@ def _second_thermometer(frame, rng) -> np.ndarray:
     return _damped(frame, 0.93) - 1.7 + rng.normal(0, 0.2, len(frame))
 
 
+def _two_hygrometers(frame, scale) -> np.ndarray:
+    """VPD [as the frame's] from a gas analyser's water vapour `scale` times the humidity
+    probe's and the air thermometer, beside the probe's RH (review64: a pair within a few
+    percent RH of each other, which should not be named)."""
+    tair, rh = frame["tair"].to_numpy(float), frame["rh"].to_numpy(float)
+    saturation = saturation_vapour_pressure(tair)
+    return (saturation - scale * rh / 100.0 * saturation) * _hpa_per_unit(frame)
+
+
+def _over_ice(frame) -> np.ndarray:
+    """VPD [as the frame's] a logger takes over ice below 0 degC (Alduchov & Eskridge 1996,
+    eq. 23 (m)), RH over water; review64."""
+    tair, rh = frame["tair"].to_numpy(float), frame["rh"].to_numpy(float)
+    water = saturation_vapour_pressure(tair)
+    ice = 6.1121 * np.exp(22.587 * tair / (tair + 273.86))
+    return (np.where(tair < 0, ice, water) - rh / 100.0 * water) * _hpa_per_unit(frame)
+
+
+def _hpa_per_unit(frame) -> float:
+    """The frame's VPD unit against hPa (the generators write hPa; 1 where they agree)."""
+    tair, rh = frame["tair"].to_numpy(float), frame["rh"].to_numpy(float)
+    computed = saturation_vapour_pressure(tair) * (1 - rh / 100.0)
+    vpd = frame["vpd"].to_numpy(float)
+    both = np.isfinite(computed) & np.isfinite(vpd) & (computed > 1)
+    return float(np.median(vpd[both] / computed[both])) if both.any() else 1.0
+
+
 def main(argv=None):
     parser = argparse.ArgumentParser()
     parser.add_argument("--trials", nargs="*", default=[])
@@ -79,6 +108,7 @@ def main(argv=None):
     args = parser.parse_args(argv)
     ratios, false_calls, hits = [], [], {d: 0 for d in args.damping}
     pair_calls, pair_ratios, summer_hits, rng = [], [], 0, np.random.default_rng(50)
+    hygrometer_calls, ice_calls = {1.03: 0, 1.05: 0}, 0
     for name, site_year in site_years():
         frame = site_year.frame
         ratios.append(_ratio(frame))
@@ -92,6 +122,9 @@ def main(argv=None):
         pair_ratios.append(_ratio(frame, pair))
         if _called(frame, pair):
             pair_calls.append(name)
+        for scale in hygrometer_calls:
+            hygrometer_calls[scale] += _called(frame.assign(vpd=_two_hygrometers(frame, scale)))
+        ice_calls += _called(frame.assign(vpd=_over_ice(frame)))
     count = len(ratios)
     print(f"{count} generated site-years: false alarms {len(false_calls)} "
           f"{false_calls or ''}; smallest ratio {np.nanmin(ratios):.3f}, "
@@ -100,6 +133,10 @@ def main(argv=None):
     print(f"damped to 2/3 in June-August only: named {summer_hits} of {count}")
     print(f"a second shielded thermometer as tair: named {len(pair_calls)} of {count} "
           f"{pair_calls or ''}; smallest ratio (record or month) {np.nanmin(pair_ratios):.3f}")
+    print("VPD from an analyser's water vapour beside the probe's RH: "
+          + ", ".join(f"{scale:.2f} times the probe's named {calls} of {count}"
+                      for scale, calls in hygrometer_calls.items())
+          + f"; VPD over ice below 0 degC named {ice_calls} of {count}")
     for variant, minutes, frame in ten_year_frames():
         print(f"demo ten years {variant} {minutes} min: ratio {_ratio(frame):.3f} "
               f"{'CALLED' if _called(frame) else 'quiet'}")
