@@ -38,6 +38,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
+from .month_words import english_months
 from .stamp_places import (
     column_utc_offset,
     date_only_repeats_hint,
@@ -444,9 +445,17 @@ def _hour_only_offsets(text: pd.Series) -> pd.Series:
     database exports write it (``2021-06-01 13:30:00+02``); pandas' ``%z`` reads it
     after seconds but not after minutes or a space, so such a file was refused or read
     by its format's accident. A stamp under a format ending in ``%z`` ends in its offset,
-    so the two digits after the sign are hours.
+    so the two digits after the sign are hours. An offset written after "UTC" or "GMT"
+    ("UTC+1", "GMT-05:00", as some loggers and system clocks label their zone) is that
+    offset (layouts44).
     """
+    text = text.str.replace(_NAMED_OFFSET, lambda m: (
+        f"{m.group(1)}{int(m.group(2)):02d}{m.group(3) or '00'}"), regex=True)
     return text.str.replace(r"([+-]\d{2})$", r"\g<1>00", regex=True)
+
+
+#: an offset after the letters of UTC or GMT at a stamp's end ("UTC+1", "GMT-05:00")
+_NAMED_OFFSET = re.compile(r"(?:UTC|GMT)\s?([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
 def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
@@ -1402,6 +1411,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
     # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
     text, _ = zero_tails(text, time_format)
+    # German, French and Spanish month words under %b/%B ("05-Mär-2023", "05-déc.-2023"),
+    # read as the English names (layouts44; refused before, naming months as numbers)
+    text, _ = english_months(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(
@@ -1552,6 +1564,10 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "(%m) in a copy of the file")
         elif (found := _swapped_day_month(text[failed], time_format, text[~failed])):
             hint = "; " + found
+        elif _NAMED_OFFSET.search(text.iloc[first]) and "%z" not in time_format:
+            found = _NAMED_OFFSET.search(text.iloc[first]).group(0)
+            hint = (f"; the stamp ends in {found!r}, a UTC offset: write %z for it in "
+                    f"time_format (e.g. \"{time_format.rstrip()} %z\")")
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
                 and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
