@@ -202,8 +202,6 @@ _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
                    ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
 #: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
 #: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
-#: A number written by Fortran's double-precision format (D as the exponent letter).
-_FORTRAN_EXPONENT = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+")
 #: A header cell that is a number (point or comma decimal): the line is a record, not names.
 _NUMBER_NAME = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
@@ -5564,10 +5562,6 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = (f"; it begins with the dash U+{ord(cell[0]):04X}, not a minus sign (a "
                     "word processor's autocorrect?): replace it with \"-\" in a copy of the "
                     "file")
-        elif _FORTRAN_EXPONENT.fullmatch(cell):
-            # listed as a missing code it would blank the whole column
-            hint = ("; it is a number with a Fortran double-precision exponent (D for E: "
-                    "1.5D+02 is 150), which is not read: write E for D in a copy of the file")
         elif _ACCOUNTING_NEGATIVE.fullmatch(cell) and pd.notna(pd.to_numeric(
                 cell.strip("()-").replace(",", "." if decimal == "," else ","),
                 errors="coerce")):
