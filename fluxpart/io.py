@@ -964,6 +964,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             if layout is not None and layout.group(1) == "rows_before_header":
                 _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
                                             rows_before_header)
+            if layout is not None and layout.group(1) == "delimiter" and not parts:
+                _refuse_delimiters_differ(paths, encoding, delimiter, time_columns)
             if layout is None and isinstance(error, MissingColumnError):
                 _refuse_time_column_spelled_otherwise(error, path_, paths, parts, encoding,
                                                       delimiter, time_columns)
@@ -3873,6 +3875,34 @@ def _header_line_number(text: str, delimiter: str, time_column: str) -> int | No
         if time_column in [cell.strip().strip('"') for cell in line.split(separator)]:
             return number
     return None
+
+
+def _refuse_delimiters_differ(paths: list, encoding, delimiter: str,
+                              time_columns: tuple) -> None:
+    """Raise where the input files write their header with different delimiters.
+
+    A flux file of commas beside a drivers file of semicolons: the first file's refusal
+    named the delimiter that reads it ("set [input] delimiter = ','"), which then refuses
+    the other (layouts44). Names each delimiter found with its files. Files that cannot
+    be decoded or hold no header line in any of them are left to the per-file checks.
+    """
+    found: dict[str, list] = {}
+    for path in paths:
+        try:
+            text, _ = _decode(path, encoding)
+        except (InputFileError, UnicodeError, OSError):
+            continue
+        for candidate in dict.fromkeys((delimiter, ",", ";", "\t", "|")):
+            if _header_line_number(text, candidate, time_columns[0]) is not None:
+                found.setdefault(candidate, []).append(str(path))
+                break
+    if len(found) < 2:
+        return
+    listing = "; ".join(f"{setting_text(d)} in {_file_list(found[d])}" for d in found)
+    raise InputFileError(
+        f"[input] delimiter = {setting_text(delimiter)}: the input files write their fields "
+        f"with different delimiters ({listing}); one delimiter reads every file, so write "
+        "them all with one in copies")
 
 
 def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,

@@ -19,7 +19,7 @@ import pytest
 from test_robustness_layouts35 import _records  # invented records of 1-10 June 2021
 from test_robustness_layouts36 import MAPPING, SITE
 
-from fluxpart.errors import ConfigError, MissingColumnError, TimestampError
+from fluxpart.errors import ConfigError, InputFileError, MissingColumnError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.month_words import _ENGLISH, _MONTH_WORDS, MONTHS, english_months
 from fluxpart.timestamps import parse_stamps
@@ -114,3 +114,17 @@ def test_several_files_with_marked_headers_get_one_note(tmp_path):
     assert len(read) == 480
     marked = [w for w in report.warnings if "comment mark" in w]
     assert len(marked) == 1 and marked[0].startswith("10 input files")
+
+
+def test_files_of_different_delimiters_are_named_as_such(tmp_path):
+    """A comma flux file beside a semicolon drivers file: "set delimiter = ','" before,
+    which then refused the other file."""
+    frame, _ = _records(48)
+    frame[["stamp", "co2", "us"]].to_csv(tmp_path / "flux.csv", index=False)
+    frame[["stamp", "sw", "t_air", "vpd"]].to_csv(tmp_path / "drivers.csv", index=False,
+                                                  sep=";")
+    with pytest.raises(InputFileError, match=r'different delimiters \("," in .*flux.csv'
+                                             r"'; \";\" in .*drivers.csv'\)"):
+        read_table([tmp_path / "flux.csv", tmp_path / "drivers.csv"], columns=MAPPING,
+                   units={"vpd": "kPa"}, site=SITE, time_column="stamp",
+                   time_format="%Y%m%d%H%M", time_marks="end", delimiter=";")
