@@ -3877,6 +3877,16 @@ def _header_line_number(text: str, delimiter: str, time_column: str) -> int | No
     return None
 
 
+def _decoded_files(paths: list, encoding):
+    """(path, text) of each of `paths` that decodes; the others are left to the per-file
+    checks."""
+    for path in paths:
+        try:
+            yield path, _decode(path, encoding)[0]
+        except (InputFileError, UnicodeError, OSError):
+            continue
+
+
 def _refuse_delimiters_differ(paths: list, encoding, delimiter: str,
                               time_columns: tuple) -> None:
     """Raise where the input files write their header with different delimiters.
@@ -3887,11 +3897,7 @@ def _refuse_delimiters_differ(paths: list, encoding, delimiter: str,
     be decoded or hold no header line in any of them are left to the per-file checks.
     """
     found: dict[str, list] = {}
-    for path in paths:
-        try:
-            text, _ = _decode(path, encoding)
-        except (InputFileError, UnicodeError, OSError):
-            continue
+    for path, text in _decoded_files(paths, encoding):
         for candidate in dict.fromkeys((delimiter, ",", ";", "\t", "|")):
             if _header_line_number(text, candidate, time_columns[0]) is not None:
                 found.setdefault(candidate, []).append(str(path))
@@ -3952,11 +3958,7 @@ def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_colu
     decoded or hold no such line are left to the per-file checks.
     """
     found: dict[int, list] = {}
-    for path in paths:
-        try:
-            text, _ = _decode(path, encoding)
-        except (InputFileError, UnicodeError, OSError):
-            continue
+    for path, text in _decoded_files(paths, encoding):
         number = _header_line_number(text, delimiter, time_columns[0])
         if number is not None:
             found.setdefault(number, []).append(str(path))

@@ -139,23 +139,23 @@ def line_of_dashes_under_the_header(folder):
     return "refused"      # named: a line under the header, rows_after_header = 1
 
 
+def unnamed_stamp_column(folder, time_column):
+    """The example with its stamp column's header cell empty, read as `time_column`."""
+    raw, _ = table()
+    write(folder / "t.csv", lines(raw.rename(columns={"stamp": ""})))
+    toml(folder, "t.csv", time_column=time_column)
+    return "refused"
+
+
 @case
 def time_column_set_empty_for_an_unnamed_stamp_column(folder):
-    raw, _ = table()
-    raw = raw.rename(columns={"stamp": ""})
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_column="")
-    return "refused"      # the message names the unnamed first column and the fix
+    return unnamed_stamp_column(folder, "")   # named: the empty header cell and the fix
 
 
 @case
 def time_column_named_by_a_readers_internal_name(folder):
     """A stamp column without a name, mapped as "Unnamed: 0", pandas' name for it."""
-    raw, _ = table()
-    raw = raw.rename(columns={"stamp": ""})
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", time_column="Unnamed: 0")
-    return "refused"
+    return unnamed_stamp_column(folder, "Unnamed: 0")
 
 
 # --------------------------------------------------------------------------- numbers
