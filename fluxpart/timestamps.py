@@ -14,6 +14,7 @@ local standard time (UTC + ``utc_offset``, no daylight saving).
 from __future__ import annotations
 
 import re
+import unicodedata
 import warnings
 from dataclasses import dataclass
 from datetime import datetime, timedelta
@@ -38,7 +39,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
-from .month_words import english_months
+from .month_words import MONTHS, english_months
 from .stamp_places import (
     column_utc_offset,
     date_only_repeats_hint,
@@ -1170,10 +1171,12 @@ _ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep"
 
 
 def _foreign_month(stamp: str) -> str:
-    """A word of letters in `stamp` that starts no English month name, or ''."""
+    """A word of letters in `stamp` that starts no English month name and is no month
+    word :mod:`fluxpart.month_words` reads, or ''."""
     for word in re.findall(r"[^\W\d_]{3,}", stamp):
         if word[:3].lower() not in _ENGLISH_MONTHS and word.upper() not in (
-                "AM", "PM", "UTC", "GMT"):
+                "AM", "PM", "UTC", "GMT") and unicodedata.normalize(
+                    "NFC", word.lower()) not in MONTHS:     # those are read (layouts44)
             return word
     return ""
 
@@ -1558,10 +1561,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "
                     "counting from 000 puts every record a day early: add 1 to the day "
                     "of year in a copy of the file")
-        elif "%b" in time_format and _foreign_month(text.iloc[first]):
-            hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
-                    "abbreviation, the only names %b reads: write the months as numbers "
-                    "(%m) in a copy of the file")
+        elif "%b" in time_format and (word := next(filter(None, map(
+                _foreign_month, text[failed].drop_duplicates().head(400))), "")):
+            # the first word no table reads, in any failed stamp ("Gen" after "Dic")
+            hint = (f"; {word!r} is no English month "
+                    "abbreviation, nor one of German, French or Spanish, the names %b reads: "
+                    "write the months as numbers (%m) in a copy of the file")
         elif (found := _swapped_day_month(text[failed], time_format, text[~failed])):
             hint = "; " + found
         elif _NAMED_OFFSET.search(text.iloc[first]) and "%z" not in time_format:

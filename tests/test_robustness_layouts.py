@@ -413,7 +413,7 @@ def test_month_names_of_another_language_are_named():
     :mod:`fluxpart.month_words` ('Gen' is no month of its tables) is named with the
     numeric fix (German 'Mär' is read since layouts44)."""
     text = ["31.Dic.2020 23:30", "01.Gen.2021 00:00"]
-    with pytest.raises(TimestampError, match=r"'Dic' is no English month abbreviation.*%m"):
+    with pytest.raises(TimestampError, match=r"'Gen' is no English month abbreviation.*%m"):
         _parse(text, "%d.%b.%Y %H:%M")
 
 
