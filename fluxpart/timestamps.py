@@ -1569,13 +1569,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                     "write the months as numbers (%m) in a copy of the file")
         elif (found := _swapped_day_month(text[failed], time_format, text[~failed])):
             hint = "; " + found
+        elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
+                and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
+            hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif _NAMED_OFFSET.search(text.iloc[first]) and "%z" not in time_format:
             found = _NAMED_OFFSET.search(text.iloc[first]).group(0)
             hint = (f"; the stamp ends in {found!r}, a UTC offset: write %z for it in "
                     f"time_format (e.g. \"{time_format.rstrip()} %z\")")
-        elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
-                and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
-            hint = "; the stamp ends in a UTC offset: add %z to time_format"
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
             # %Z reads UTC, GMT, the European labels (CET, CEST, ...) and zone names of
             # the time-zone database (EST), not other summer-time abbreviations (BST,
