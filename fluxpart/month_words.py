@@ -42,26 +42,24 @@ _MONTH_WORDS = {
 }
 
 
-def _month_tables() -> tuple[dict[str, int], dict[str, set]]:
-    """Word (lower case, NFC) -> month 1..12, and -> the languages writing it; a word
-    naming two months raises at import."""
-    month_of, languages_of = {}, {}
-    for language, months in _MONTH_WORDS.items():
+def _month_table() -> dict[str, int]:
+    """Word (lower case, NFC) -> month 1..12; a word naming two months raises at import."""
+    month_of = {}
+    for months in _MONTH_WORDS.values():
         for month, words in enumerate(months, 1):
             for word in words:
                 if month_of.setdefault(word, month) != month:
                     raise ValueError(f"month word {word!r} names months {month_of[word]} "
                                      f"and {month}")
-                languages_of.setdefault(word, set()).add(language)
-    return month_of, languages_of
+    return month_of
 
 
-MONTHS, _LANGUAGES = _month_tables()
+MONTHS = _month_table()
 _ENGLISH = {w.lower(): n % 12 + 1 for n, w in enumerate(_ENGLISH_ABBREVIATIONS + _ENGLISH_NAMES)}
 _WORD = re.compile(r"[^\W\d_]+\.?")
 
 
-def english_months(text: pd.Series, time_format: str) -> tuple[pd.Series, str]:
+def english_months(text: pd.Series, time_format: str) -> pd.Series:
     """Stamps with month words of German, French or Spanish written in English.
 
     Parameters
@@ -73,13 +71,11 @@ def english_months(text: pd.Series, time_format: str) -> tuple[pd.Series, str]:
 
     Returns
     -------
-    text : pandas.Series of str
+    pandas.Series of str
         The stamps with each month word (its abbreviation point too, unless the format
         writes a point after the month) as ``%b`` or ``%B`` reads it where one is foreign; `text`
         itself where the format reads no month name or a word of letters is neither an
         English month nor one of the tables.
-    languages : str
-        The languages whose words were read ("German", "French and Spanish"), or "".
 
     References
     ----------
@@ -89,25 +85,21 @@ def english_months(text: pd.Series, time_format: str) -> tuple[pd.Series, str]:
     """
     by_name = re.search(r"%([bB])(\.?)", time_format)
     if by_name is None or text.empty:
-        return text, ""
+        return text
     names = _ENGLISH_NAMES if by_name.group(1) == "B" else _ENGLISH_ABBREVIATIONS
     point = by_name.group(2)
     words = pd.Series(text.str.findall(_WORD).explode().dropna().unique())
     if words.empty:
-        return text, ""
+        return text
     keys = words.map(lambda w: unicodedata.normalize("NFC", w.rstrip(".").lower()))
     foreign = ~keys.isin(set(_ENGLISH)) & keys.isin(set(MONTHS))
     known = keys.isin(set(_ENGLISH)) | foreign
     if not foreign.any() or (~known & ~keys.isin({"am", "pm", "t", "z", "utc", "gmt"})).any():
-        return text, ""
+        return text
     # every month word, English ones too ("oct." of a French file under %b), as %b or %B
     # reads it
     english = {w: names[(_ENGLISH.get(k) or MONTHS[k]) - 1] + (point if w.endswith(".") else "")
                for w, k in zip(words[known], keys[known], strict=True)}
     pattern = re.compile(r"(?<![^\W\d_])(?:" + "|".join(
         re.escape(w) for w in sorted(english, key=len, reverse=True)) + r")(?![^\W\d_])")
-    sets = [_LANGUAGES[k] for k in keys[foreign]]
-    languages = sorted(set.intersection(*sets) or set.union(*sets))
-    return (text.str.replace(pattern, lambda m: english[m.group(0)], regex=True),
-            " and ".join(languages) if len(languages) < 3 else
-            ", ".join(languages[:-1]) + " and " + languages[-1])
+    return text.str.replace(pattern, lambda m: english[m.group(0)], regex=True)

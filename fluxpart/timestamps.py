@@ -1416,7 +1416,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     text, _ = zero_tails(text, time_format)
     # German, French and Spanish month words under %b/%B ("05-Mär-2023", "05-déc.-2023"),
     # read as the English names (layouts44; refused before, naming months as numbers)
-    text, _ = english_months(text, time_format)
+    text = english_months(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(
