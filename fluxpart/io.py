@@ -55,6 +55,7 @@ from . import (
     digit_grouping,
     flux_rate_labels,
     footers,
+    fortran_numbers,
     header_cells,
     interleaved_lines,
     later_files,
@@ -201,8 +202,6 @@ _DIGIT_GROUPING = {",": re.compile(r"[+-]?[1-9]\d{0,2}(?:\.\d{3})+(?:,\d*)?"),
                    ".": re.compile(r"[+-]?[1-9]\d{0,2}(?:,\d{3})+(?:\.\d*)?")}
 #: Digit grouping by a character that is never a decimal mark: an apostrophe (Swiss
 #: spreadsheets), a right single quote, or a space (plain, no-break, narrow no-break, thin).
-#: A number written by Fortran's double-precision format (D as the exponent letter).
-_FORTRAN_EXPONENT = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+")
 #: A header cell that is a number (point or comma decimal): the line is a record, not names.
 _NUMBER_NAME = re.compile(r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?")
 _OTHER_GROUPING = re.compile(r"[+-]?[1-9]\d{0,2}(?:['\u2019 \u00a0\u202f\u2009]\d{3})+(?:[.,]\d*)?")
@@ -965,6 +964,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             if layout is not None and layout.group(1) == "rows_before_header":
                 _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
                                             rows_before_header)
+            if layout is not None and layout.group(1) == "delimiter" and not parts:
+                _refuse_delimiters_differ(paths, encoding, delimiter, time_columns)
             if layout is None and isinstance(error, MissingColumnError):
                 _refuse_time_column_spelled_otherwise(error, path_, paths, parts, encoding,
                                                       delimiter, time_columns)
@@ -1623,6 +1624,13 @@ def _as_paths(path) -> list:
 
 def _check_time_column(value) -> tuple:
     items = value if isinstance(value, (list, tuple)) else [value]
+    if isinstance(value, str) and not value.strip():
+        # an empty name: the stamp column of a table saved with its row index has none
+        raise ConfigError(f"[input] time_column = {setting_text(value)}: a column is named by "
+                          "the name its header cell writes, and an empty header cell names "
+                          "no column (a table saved with its row index writes its stamps "
+                          "under one): write a name into that cell in a copy of the file, "
+                          "e.g. \"stamp\", and set time_column to it")
     if not items or any(not isinstance(item, str) or not item for item in items):
         raise ConfigError(f"[input] time_column = {setting_text(value)}: expected a column name, or a "
                           "list of columns joined with one space (e.g. [\"date\", \"time\"])")
@@ -3869,6 +3877,40 @@ def _header_line_number(text: str, delimiter: str, time_column: str) -> int | No
     return None
 
 
+def _decoded_files(paths: list, encoding):
+    """(path, text) of each of `paths` that decodes; the others are left to the per-file
+    checks."""
+    for path in paths:
+        try:
+            yield path, _decode(path, encoding)[0]
+        except (InputFileError, UnicodeError, OSError):
+            continue
+
+
+def _refuse_delimiters_differ(paths: list, encoding, delimiter: str,
+                              time_columns: tuple) -> None:
+    """Raise where the input files write their header with different delimiters.
+
+    A flux file of commas beside a drivers file of semicolons: the first file's refusal
+    named the delimiter that reads it ("set [input] delimiter = ','"), which then refuses
+    the other (layouts44). Names each delimiter found with its files. Files that cannot
+    be decoded or hold no header line in any of them are left to the per-file checks.
+    """
+    found: dict[str, list] = {}
+    for path, text in _decoded_files(paths, encoding):
+        for candidate in dict.fromkeys((delimiter, ",", ";", "\t", "|")):
+            if _header_line_number(text, candidate, time_columns[0]) is not None:
+                found.setdefault(candidate, []).append(str(path))
+                break
+    if len(found) < 2:
+        return
+    listing = "; ".join(f"{setting_text(d)} in {_file_list(found[d])}" for d in found)
+    raise InputFileError(
+        f"[input] delimiter = {setting_text(delimiter)}: the input files write their fields "
+        f"with different delimiters ({listing}); one delimiter reads every file, so write "
+        "them all with one in copies")
+
+
 def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,
                                           paths: list, parts: list, encoding,
                                           delimiter: str, time_columns: tuple) -> None:
@@ -3916,11 +3958,7 @@ def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_colu
     decoded or hold no such line are left to the per-file checks.
     """
     found: dict[int, list] = {}
-    for path in paths:
-        try:
-            text, _ = _decode(path, encoding)
-        except (InputFileError, UnicodeError, OSError):
-            continue
+    for path, text in _decoded_files(paths, encoding):
         number = _header_line_number(text, delimiter, time_columns[0])
         if number is not None:
             found.setdefault(number, []).append(str(path))
@@ -4009,10 +4047,11 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     wanted = [*columns.values(), *time_columns, *flag_columns,
               *(name for names in (other_names or {}).values() for name in names)]
     text, mark = header_cells.unmarked_header(text, rows_before_header, delimiter, wanted)
-    if mark:
-        warnings.append(f"input file {str(path)!r}: the header line opens with the comment "
-                        f"mark {mark!r} (as programs that write the header as a comment do), "
-                        "read without it")
+    if mark and may_lack and later_notes is not None:
+        # several files: one note naming them all (layouts44: one a file before)
+        later_notes.setdefault("marked", []).append((str(path), mark))
+    elif mark:
+        warnings.append(_marked_header_warning([(str(path), mark)]))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
@@ -4151,6 +4190,13 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                 "thousands separators where they cannot be a decimal mark (first "
                 f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
                 "of its file): read without them")
+        cells = raw[column]
+        raw[column], fortran, first_fortran = fortran_numbers.e_exponents(cells)
+        if fortran:
+            warnings.append(
+                f"column {column!r} ({name.split(':')[0]}): {fortran} cell(s) written with "
+                f"Fortran's exponent letter D (first {cells.iloc[first_fortran].strip()!r} "
+                f"on line {int(lines[first_fortran])} of its file): read as E")
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
         codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
@@ -4249,6 +4295,17 @@ def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
     return header + (end.group() if end else "\n") + text, 0, 0, 1
 
 
+def _marked_header_warning(marked: list) -> str:
+    """The note for the files whose header line opened with a comment mark, read without
+    it: `marked` holds (file, mark) pairs."""
+    marks = " or ".join(repr(m) for m in dict.fromkeys(m for _, m in marked))
+    where = (f"input file {marked[0][0]!r}: the header line opens" if len(marked) == 1 else
+             f"{len(marked)} input files ({_file_list([f for f, _ in marked])}): the header "
+             "line of each opens")
+    return (f"{where} with the comment mark {marks} (as programs that write the header as a "
+            "comment do), read without it")
+
+
 def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
                           delimiter: str) -> list:
     """One warning for the later files read from their own header line and one for those
@@ -4276,6 +4333,8 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
             f"{first['source']!r} names (a header written into the first file only?): read "
             "under that header, with no title or units lines; their line numbers as "
             "written")
+    if notes.get("marked"):
+        found.append(_marked_header_warning(notes["marked"]))
     return found
 
 
@@ -5182,6 +5241,33 @@ def _combine(parts: list) -> dict:
     }
 
 
+def _check_no_reader_names(columns: dict, time_columns: tuple, flag_columns: tuple,
+                           file_columns: list, header: list, path: Path) -> None:
+    """Refuse a setting naming a column by the name the parser makes for it, not one the
+    header writes: "Unnamed: 0" for an empty header cell, "x.1" for the second "x"
+    (layouts44: both were read, by a name a reader of the file cannot see in it)."""
+    written = set(header)
+    settings = ([("[input] time_column", c) for c in time_columns]
+                + [(f"[input.columns] {k}", c) for k, c in columns.items()]
+                + [("[input.columns] nee_flag", c) for c in flag_columns])
+    for setting, column in settings:
+        if column in written or column not in file_columns:
+            continue
+        place = file_columns.index(column) + 1
+        if re.fullmatch(r"Unnamed: \d+", column):
+            raise MissingColumnError(
+                f"{setting} = {setting_text(column)}: no column of {str(path)!r} is named so; "
+                f"column {place} has no name in the header (a table saved with its row "
+                "index?): name it in the header of a copy of the file and set that name")
+        copy = re.fullmatch(r"(.+)\.(\d+)", column)
+        if copy and header.count(copy.group(1)) > int(copy.group(2)):
+            raise MissingColumnError(
+                f"{setting} = {setting_text(column)}: no column of {str(path)!r} is named so; "
+                f"{copy.group(1)!r} is written {header.count(copy.group(1))} times in the "
+                f"header and column {place} is its copy number {int(copy.group(2)) + 1}: "
+                "rename the copies in the header of a copy of the file and set the new name")
+
+
 def _resolve_columns(columns: dict, units: dict, file_columns: list, header: list,
                      time_columns: tuple, flag_columns: tuple, path: Path,
                      may_lack: bool = False) -> tuple[dict, tuple, tuple]:
@@ -5198,6 +5284,7 @@ def _resolve_columns(columns: dict, units: dict, file_columns: list, header: lis
     written = set(header)
     shown = [c for c in file_columns if c in written] if len(written) < len(header) \
         else file_columns
+    _check_no_reader_names(columns, time_columns, flag_columns, file_columns, header, path)
     for time_column in time_columns:
         if time_column not in file_columns:
             raise MissingColumnError(f"[input] time_column = {setting_text(time_column)}: no such column in "
@@ -5380,7 +5467,11 @@ def _columns_listing(file_columns: list, header: list = ()) -> str:
             if candidate in str(file_columns[0]):
                 return (f"the file's header is one cell holding {name}: set [input] "
                         f"delimiter = {toml}")
-    listing = f"the file has columns: {', '.join(repr(c) for c in file_columns)}"
+    # an empty header cell shown as such, not by the parser's "Unnamed: 0" (layouts44)
+    written = set(header)
+    shown = ["(no name)" if header and c not in written and re.fullmatch(r"Unnamed: \d+", str(c))
+             else repr(c) for c in file_columns]
+    listing = f"the file has columns: {', '.join(shown)}"
     repeated = [c for c in dict.fromkeys(header) if list(header).count(c) > 1]
     if repeated:
         listing += (f"; {', '.join(repr(c) for c in repeated)} "
@@ -5503,10 +5594,6 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
             hint = (f"; it begins with the dash U+{ord(cell[0]):04X}, not a minus sign (a "
                     "word processor's autocorrect?): replace it with \"-\" in a copy of the "
                     "file")
-        elif _FORTRAN_EXPONENT.fullmatch(cell):
-            # listed as a missing code it would blank the whole column
-            hint = ("; it is a number with a Fortran double-precision exponent (D for E: "
-                    "1.5D+02 is 150), which is not read: write E for D in a copy of the file")
         elif _ACCOUNTING_NEGATIVE.fullmatch(cell) and pd.notna(pd.to_numeric(
                 cell.strip("()-").replace(",", "." if decimal == "," else ","),
                 errors="coerce")):

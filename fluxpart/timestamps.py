@@ -14,6 +14,7 @@ local standard time (UTC + ``utc_offset``, no daylight saving).
 from __future__ import annotations
 
 import re
+import unicodedata
 import warnings
 from dataclasses import dataclass
 from datetime import datetime, timedelta
@@ -38,6 +39,7 @@ from .errors import (
     SpacingError,
     TimestampError,
 )
+from .month_words import MONTHS, english_months
 from .stamp_places import (
     column_utc_offset,
     date_only_repeats_hint,
@@ -444,9 +446,17 @@ def _hour_only_offsets(text: pd.Series) -> pd.Series:
     database exports write it (``2021-06-01 13:30:00+02``); pandas' ``%z`` reads it
     after seconds but not after minutes or a space, so such a file was refused or read
     by its format's accident. A stamp under a format ending in ``%z`` ends in its offset,
-    so the two digits after the sign are hours.
+    so the two digits after the sign are hours. An offset written after "UTC" or "GMT"
+    ("UTC+1", "GMT-05:00", as some loggers and system clocks label their zone) is that
+    offset (layouts44).
     """
+    text = text.str.replace(_NAMED_OFFSET, lambda m: (
+        f"{m.group(1)}{int(m.group(2)):02d}{m.group(3) or '00'}"), regex=True)
     return text.str.replace(r"([+-]\d{2})$", r"\g<1>00", regex=True)
+
+
+#: an offset after the letters of UTC or GMT at a stamp's end ("UTC+1", "GMT-05:00")
+_NAMED_OFFSET = re.compile(r"(?:UTC|GMT)\s?([+-])(\d{1,2})(?::?(\d{2}))?$")
 
 
 def _pad_clock_fields(text: pd.Series, time_format: str) -> pd.Series:
@@ -1161,10 +1171,12 @@ _ENGLISH_MONTHS = ("jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep"
 
 
 def _foreign_month(stamp: str) -> str:
-    """A word of letters in `stamp` that starts no English month name, or ''."""
+    """A word of letters in `stamp` that starts no English month name and is no month
+    word :mod:`fluxpart.month_words` reads, or ''."""
     for word in re.findall(r"[^\W\d_]{3,}", stamp):
         if word[:3].lower() not in _ENGLISH_MONTHS and word.upper() not in (
-                "AM", "PM", "UTC", "GMT"):
+                "AM", "PM", "UTC", "GMT") and unicodedata.normalize(
+                    "NFC", word.lower()) not in MONTHS:     # those are read (layouts44)
             return word
     return ""
 
@@ -1402,6 +1414,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
     # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
     text, _ = zero_tails(text, time_format)
+    # German, French and Spanish month words under %b/%B ("05-Mär-2023", "05-déc.-2023"),
+    # read as the English names (layouts44; refused before, naming months as numbers)
+    text = english_months(text, time_format)
     if "%p" in time_format and "%H" in time_format and "%I" not in time_format:
         # strptime applies AM/PM to %I only: under %H "01:00 PM" is read as 01:00
         raise TimestampError(
@@ -1546,15 +1561,21 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = ("; its day of year is 0: %j counts from 001 (1 January); a logger "
                     "counting from 000 puts every record a day early: add 1 to the day "
                     "of year in a copy of the file")
-        elif "%b" in time_format and _foreign_month(text.iloc[first]):
-            hint = (f"; {_foreign_month(text.iloc[first])!r} is no English month "
-                    "abbreviation, the only names %b reads: write the months as numbers "
-                    "(%m) in a copy of the file")
+        elif "%b" in time_format and (word := next(filter(None, map(
+                _foreign_month, text[failed].drop_duplicates().head(400))), "")):
+            # the first word no table reads, in any failed stamp ("Gen" after "Dic")
+            hint = (f"; {word!r} is no English month "
+                    "abbreviation, nor one of German, French or Spanish, the names %b reads: "
+                    "write the months as numbers (%m) in a copy of the file")
         elif (found := _swapped_day_month(text[failed], time_format, text[~failed])):
             hint = "; " + found
         elif _OFFSET_AT_END.search(text.iloc[first]) and "%z" not in time_format \
                 and _offsets_of_a_clock(text[failed], _OFFSET_AT_END_GROUP):
             hint = "; the stamp ends in a UTC offset: add %z to time_format"
+        elif _NAMED_OFFSET.search(text.iloc[first]) and "%z" not in time_format:
+            found = _NAMED_OFFSET.search(text.iloc[first]).group(0)
+            hint = (f"; the stamp ends in {found!r}, a UTC offset: write %z for it in "
+                    f"time_format (e.g. \"{time_format.rstrip()} %z\")")
         elif "%Z" in time_format and re.search(r"\s[A-Za-z]{2,6}$", text.iloc[first]):
             # %Z reads UTC, GMT, the European labels (CET, CEST, ...) and zone names of
             # the time-zone database (EST), not other summer-time abbreviations (BST,

@@ -594,11 +594,12 @@ def test_file_without_header_line_is_named_as_such(example, tmp_path, capsys):
     assert "names are numbers" not in _one_error(capsys)
 
 
-def test_fortran_double_precision_exponent_is_named(example, tmp_path, capsys):
+def test_fortran_double_precision_exponent_is_read(example, tmp_path):
     """NEE written by a Fortran program's double-precision format ('-3.292000D-01'; the D
-    edit descriptor writes D as the exponent letter, Fortran standard (m)) is named as
-    such, not met with 'add it to [input] missing', which would blank the column (review
-    round twelve)."""
+    edit descriptor writes D as the exponent letter, Fortran standard (m)) is read as the
+    E it stands for, and noted (layouts44; named and refused since review round twelve)."""
+    from fluxpart.io import read_site_config
+
     lines = example.with_suffix(".csv").read_text().splitlines()
     column = lines[0].split(",").index("co2_exchange")
     rows = [lines[0]]
@@ -608,10 +609,10 @@ def test_fortran_double_precision_exponent_is_named(example, tmp_path, capsys):
             cells[column] = f"{float(cells[column]):.6E}".replace("E", "D")
         rows.append(",".join(cells))
     config = _with_records(example, tmp_path, "fortran.csv", "\n".join(rows) + "\n")
-    assert main(["check", str(config)]) == 2
-    line = _one_error(capsys)
-    assert "'co2_exchange' (nee)" in line and "Fortran" in line and "write E for D" in line
-    assert "add it to [input] missing" not in line
+    frame, report = read_site_config(config).read()
+    pd.testing.assert_frame_equal(frame, read_site_config(example).read()[0])
+    assert any("'co2_exchange' (nee)" in w and "exponent letter D" in w
+               for w in report.warnings)
 
 
 @pytest.mark.parametrize("declared", ["latin-1", "cp1252"])

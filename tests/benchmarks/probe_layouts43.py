@@ -124,7 +124,7 @@ GERMAN_MONTHS = ["Jan", "Feb", "Mär", "Apr", "Mai", "Jun", "Jul", "Aug", "Sep",
 def month_abbreviations_in_german(folder):
     p38.restamped(folder, lambda ends: [f"{s.day:02d}-{GERMAN_MONTHS[s.month - 1]}-{s:%Y %H:%M}"
                                         for s in ends], "%d-%b-%Y %H:%M")
-    return "refused"      # %b reads the C locale's names: "Mär" is no month to it
+    # refused in round layouts43 (%b reads the C locale's names); read since layouts44
 
 
 # --------------------------------------------------------------------------- headers again

@@ -1,0 +1,44 @@
+"""Numbers written with Fortran's double-precision exponent letter ("1.5D-03").
+
+A Fortran program writing REAL(8) values with a ``D`` edit descriptor (and list-directed
+output of some compilers) puts ``D`` where C and every table reader put ``E``: "1.5D-03"
+is 0.0015. The letter stands between a number's digits and a signed or unsigned
+exponent's, so the cell can mean nothing else; it is read with ``E``.
+"""
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+#: a whole cell that is a number with D (either case) as its exponent letter
+_D_NUMBER = r"\s*[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+\s*"
+
+
+def e_exponents(written: pd.Series) -> tuple[pd.Series, int, int]:
+    """The cells of `written` with a D exponent written with E.
+
+    Parameters
+    ----------
+    written : pandas.Series of str
+        One column's cells as written.
+
+    Returns
+    -------
+    cells : pandas.Series of str
+        `written` with each D-exponent number's letter as E (`written` itself where none).
+    count : int
+        Cells rewritten.
+    first : int
+        Position of the first rewritten cell (-1 where none).
+
+    References
+    ----------
+    ISO/IEC 1539-1:2018 (Fortran 2018), section 13.7.2.3.3: the D edit descriptor writes
+    the exponent letter D (m).
+    """
+    found = written.str.fullmatch(_D_NUMBER).fillna(False).to_numpy(dtype=bool)
+    if not found.any():
+        return written, 0, -1
+    cells = written.copy()
+    cells[found] = written[found].str.replace(r"[dD]", "E", regex=True)
+    return cells, int(found.sum()), int(np.flatnonzero(found)[0])
