@@ -381,6 +381,17 @@ class Config:
         canopy photosynthesis rises linearly with light at low light (common
         practice), and at high latitude the low sun of the night hours gives such
         records every day. See :func:`fluxpart.partition.nighttime.fit_rref_windows`.
+    night_fit_records : str
+        Which night records the nighttime method's E0 and Rref fits use:
+        ``"all_night"`` (default), every record with Rg below ``night_rg_threshold``;
+        ``"sun_down"``, those with the sun below the horizon for the whole interval, in
+        each 4-day Rref window with ``rref_min_points`` such measured records, and every
+        night record in the other windows (weeks of midnight sun). Below 10 W m-2 with
+        the sun up, diffuse skylight holds up to ~20 µmol m-2 s-1 of PPFD (m), above the
+        light compensation point of many canopies, so such records can hold uptake;
+        with the sun down the sky gives below ~8 µmol m-2 s-1 (about 400 lx at sunset
+        (m)). Gap filling's night class and the u* filter keep the Rg mask. See
+        :mod:`fluxpart.partition.dark_nights`.
     daytime_window_days : float
         Light-response fitting window [days]; 4, Lasslop et al. (2010).
     daytime_window_step_days : float
@@ -593,6 +604,7 @@ class Config:
     rref_window_days: float = 4.0
     rref_min_points: int = 6
     rref_low_light_rg: float = 100.0
+    night_fit_records: str = "all_night"
     daytime_window_days: float = 4.0
     daytime_window_step_days: float = 2.0
     daytime_min_points: int = 10
@@ -768,6 +780,7 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
+            "night_fit_records": ("all_night", "sun_down"),
             "gapfill_donors": ("separate_day_night", "dark_first", "similar_conditions_only"),
             "storage_release": ("exclude", "warn"),
             "gapfill_rg_window": ("centred", "fixed"),
