@@ -887,3 +887,14 @@ def test_sun_down_mask_falls_back_to_every_night_record_where_dark_ones_are_too_
     assert np.array_equal(mask[4 * 24:], night[4 * 24:])
     fewer = fit_mask(seconds, usable, night, sun_up, window_days=4.0, min_points=count + 1)
     assert np.array_equal(fewer, night)
+
+
+def test_only_sun_down_passes_the_sun_to_the_nighttime_fits():
+    """The default run calls the method exactly as before (no ``sun_up``)."""
+    from fluxpart.method_settings import nighttime_settings
+
+    index = pd.date_range("2021-06-01", periods=48, freq="30min")
+    rg, sun_up = np.zeros(48), np.zeros(48, dtype=bool)
+    assert "sun_up" not in nighttime_settings(Config(), rg, index, sun_up=sun_up)
+    chosen = nighttime_settings(Config(night_fit_records="sun_down"), rg, index, sun_up=sun_up)
+    assert chosen["sun_up"] is sun_up
