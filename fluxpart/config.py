@@ -393,7 +393,8 @@ class Config:
         (m)). Gap filling's night class and the u* filter keep the Rg mask. See
         :mod:`fluxpart.partition.dark_nights`. Not the default, measured (round
         darkfit51): on trial 26 (draw 0) nighttime GPP / Reco median |error| 1.4 / 2.0
-        → 0.4 / 0.5 %, covered 8 / 6 → 8 / 7 of 8; on the generated sets median signed
+        → 0.4 / 0.5 %, covered 8 / 6 → 8 / 7 of 8; trials 6–19 (163 site-years) covered
+        143 / 134 → 146 / 142, NEE unchanged; on the generated sets median signed
         nighttime error nearer zero (e.g. Reco other physics −0.74 → −0.44 %) but median
         |error| larger on the calibration set (GPP / Reco 4.5 / 8.1 → 6.9 / 10.3 g C m-2,
         worst 39.6 / 37.7 → 51.6 / 49.7: fewer, colder records), and one polar site-year
