@@ -35,7 +35,8 @@ from .partition import light_shape, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
-def averaged_form(frame, filled_drivers, central, is_night, temperature, config, delay=0):
+def averaged_form(frame, filled_drivers, central, is_night, temperature, config, delay=0,
+                  sun_up=None):
     """Both respiration forms' nighttime Reco on the central run, averaged as configured.
 
     Parameters
@@ -54,6 +55,8 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
         Settings (``respiration_form``).
     delay : int, optional
         Records by which the respiration temperature is delayed.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in each record (``night_fit_records = "sun_down"``).
 
     Returns
     -------
@@ -74,7 +77,7 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
             respiration_temperature(filled_drivers, temperature, delay, True), is_night,
             respiration_driver=temperature,
             **nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
-                                 method_failure.borrowed_e0(night)))
+                                 method_failure.borrowed_e0(night), sun_up))
     except FluxpartError:
         exponential = None
     weight = 0.0 if exponential is None else uncertainty.driver_weight(
@@ -290,7 +293,7 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     # the nighttime method's central Reco averaged over the two respiration forms; the
     # same per-record shift in every u* run keeps their spread the threshold's alone
     form = averaged_form(frame, filled_drivers, outcomes["central"], is_night, temperature,
-                         config, delay)
+                         config, delay, inputs.sun_up)
     outcomes = {name: outcome._replace(night=shifted(outcome.night, form.shift))
                 for name, outcome in outcomes.items()}
     # the daytime method's two light-response shapes, profiled once on the central run;

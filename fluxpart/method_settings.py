@@ -19,6 +19,9 @@ from .partition import temperature_choice
 #: ``sun_up``).
 DARK_FIRST = "dark_first"
 
+#: ``Config.night_fit_records`` value: the nighttime fits use records with the sun down.
+SUN_DOWN = "sun_down"
+
 #: The respiration temperature a run does not use, of the one it uses.
 OTHER_TEMPERATURE = {"tair": "tsoil", "tsoil": "tair"}
 
@@ -115,7 +118,7 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     return filled
 
 
-def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
+def nighttime_settings(config, rg, index, nearest_year=False, sun_up=None) -> dict:
     """Keyword settings of :func:`fluxpart.partition.nighttime.partition_nighttime`.
 
     Parameters
@@ -128,6 +131,10 @@ def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
         The record's stamps (the events' pieces, only where events are declared).
     nearest_year : bool, optional
         A year without an E0 of its own takes the nearest year's.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in each record: passed on where ``night_fit_records =
+        "sun_down"`` (the fits then use night records with the sun down,
+        :mod:`fluxpart.partition.dark_nights`); ignored otherwise.
 
     Returns
     -------
@@ -142,6 +149,8 @@ def nighttime_settings(config, rg, index, nearest_year=False) -> dict:
     """
     extra = {"e0_nearest_year": True} if nearest_year else {}
     extra.update(event_cut(index, config))
+    if config.night_fit_records == SUN_DOWN and sun_up is not None:
+        extra["sun_up"] = sun_up
     return {**extra, "e0_window_days": config.e0_window_days,
             "e0_window_step_days": config.e0_window_step_days,
             "e0_min_points": config.e0_min_points,

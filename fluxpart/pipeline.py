@@ -231,7 +231,8 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     warnings.extend(thresholds.warnings)
     # the respiration temperature, chosen on the central run's night NEE
     driver = respiration_driver.resolve(record.temperature, frame, inputs.screened,
-                                        inputs.is_night, thresholds.runs["central"], config)
+                                        inputs.is_night, thresholds.runs["central"], config,
+                                        inputs.sun_up)
     warnings.extend(driver.warnings)
     year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
     # 4-6. gap filling and both partitionings at each u* run's thresholds (storage checked)

@@ -18,7 +18,7 @@ from .method_settings import nighttime_settings
 from .partition import temperature_choice
 
 
-def chosen_temperature(driver, index, screened, is_night, threshold, config):
+def chosen_temperature(driver, index, screened, is_night, threshold, config, sun_up=None):
     """Resolve ``respiration_driver = "auto"`` on the u*-filtered night NEE (else as set).
 
     Parameters
@@ -36,6 +36,8 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config):
         The central run's u* threshold of each record [m s-1].
     config : Config
         Settings of the nighttime method.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in each record (``night_fit_records = "sun_down"``).
 
     Returns
     -------
@@ -65,7 +67,7 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config):
                 screened["tair"].to_numpy(),
                 screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
                 is_night, **nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
-                                               index, nearest_year)))
+                                               index, nearest_year, sun_up)))
     except InsufficientDataError as error:
         # the nighttime method cannot fit on air temperature: the run's own fit says why
         # (and the run goes on with the daytime method where that one fits)
@@ -75,12 +77,13 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config):
     return choice.driver, choice
 
 
-def forced_temperature_note(driver, index, screened, is_night, threshold, config):
+def forced_temperature_note(driver, index, screened, is_night, threshold, config,
+                            sun_up=None):
     """The warning of a set respiration temperature the night data reject, or None.
 
     Parameters
     ----------
-    driver, index, screened, is_night, threshold, config
+    driver, index, screened, is_night, threshold, config, sun_up
         As for :func:`chosen_temperature`.
 
     Returns
@@ -98,7 +101,8 @@ def forced_temperature_note(driver, index, screened, is_night, threshold, config
     if driver == "auto" or "tsoil" not in screened.columns:
         return None
     try:
-        _, choice = chosen_temperature("auto", index, screened, is_night, threshold, config)
+        _, choice = chosen_temperature("auto", index, screened, is_night, threshold, config,
+                                       sun_up)
     except FluxpartError:
         return None
     return temperature_choice.forced_driver_note(driver, choice)
@@ -129,7 +133,8 @@ class DriverDecision(NamedTuple):
     warnings: list
 
 
-def resolve(driver, frame, screened, is_night, threshold, config) -> DriverDecision:
+def resolve(driver, frame, screened, is_night, threshold, config,
+            sun_up=None) -> DriverDecision:
     """The run's respiration temperature (``"auto"`` chosen on the night NEE) and its fits.
 
     Parameters
@@ -146,6 +151,8 @@ def resolve(driver, frame, screened, is_night, threshold, config) -> DriverDecis
         The central run's u* threshold per record [m s-1].
     config : Config
         Settings.
+    sun_up : numpy.ndarray of bool, optional
+        The sun above the horizon in each record (``night_fit_records = "sun_down"``).
 
     Returns
     -------
@@ -157,10 +164,11 @@ def resolve(driver, frame, screened, is_night, threshold, config) -> DriverDecis
     respiration. Functional Ecology 8, 315-323.
     """
     warnings = []
-    forced = forced_temperature_note(driver, frame.index, screened, is_night, threshold, config)
+    forced = forced_temperature_note(driver, frame.index, screened, is_night, threshold, config,
+                                     sun_up)
     warnings.extend([forced] if forced else [])
     temperature, choice = chosen_temperature(driver, frame.index, screened, is_night,
-                                             threshold, config)
+                                             threshold, config, sun_up)
     if (choice is not None and not np.isfinite(choice.tsoil_weight) and "tsoil" in frame.columns
             and np.isfinite(frame["tsoil"].to_numpy(dtype=float)).any()):
         # soil temperature is in the record but could not be weighed against air temperature

@@ -166,7 +166,7 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
             for name, (_, _, filled, n, d) in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
     settings = nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
-                                  method_failure.borrowed_e0(night))
+                                  method_failure.borrowed_e0(night), sun_up)
 
     def refit(fit, driver):
         """Reco of `fit` (partition_nighttime's arguments) on `driver`; None if it fails."""

@@ -169,7 +169,9 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         The nighttime E0 of a year without one from the nearest year (the central
         run's choice), for a u* scenario.
     sun_up : numpy.ndarray of bool, optional
-        :attr:`RunInputs.sun_up` (dark donors for night gaps in darkness first).
+        :attr:`RunInputs.sun_up` (dark donors for night gaps in darkness first; the
+        nighttime fits' records with the sun down where ``night_fit_records =
+        "sun_down"``).
 
     Returns
     -------
@@ -207,7 +209,7 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
             respiration_temperature(screened, temperature, delay), temperature_filled,
             is_night, respiration_driver=temperature,
             **nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
-                                 borrow))
+                                 borrow, sun_up))
 
     central = central_fill is None
     night, day, errors = method_failure.partition_both(

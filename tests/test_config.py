@@ -141,6 +141,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
      r'driver_day_prior = "day" is not allowed: expected one of "night" or "equal"'),
     ({"respiration_form": "q10"},
      r'respiration_form = "q10" is not allowed: expected one of "average" or "lloyd_taylor"'),
+    ({"night_fit_records": "dark"},
+     r'night_fit_records = "dark" is not allowed: expected one of "all_night" or "sun_down"'),
     ({"rg_tolerance": 0.0}, r"rg_tolerance = 0.0 is out of range.*above 0 and at most 200"),
     ({"tair_tolerance": "2.5"}, r'tair_tolerance = "2.5" is text: .*written without quotes'),
     ({"ustar_threshold": -0.1}, r"ustar_threshold = -0.1 is out of range.*from 0 to 2 m s-1"),

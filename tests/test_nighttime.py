@@ -23,6 +23,7 @@ from fluxpart.errors import (
     ImplausibleValueError,
     InsufficientDataError,
 )
+from fluxpart.partition.dark_nights import fit_mask
 from fluxpart.partition.nighttime import (
     NighttimeResult,
     annual_e0,
@@ -839,3 +840,61 @@ def test_rref_window_of_nights_too_cold_to_resolve_it_is_dropped():
     rref = nighttime.rref_per_record(index, windows)
     assert np.abs(rref / 1.5 - 1.0).max() < 0.25
 
+
+
+# --------------------------------------------------------------------------- #
+# Fits on records with the sun down (Config.night_fit_records = "sun_down")
+# --------------------------------------------------------------------------- #
+def test_sun_down_fit_recovers_reco_where_twilight_holds_uptake(rng):
+    """Known truth: twilight records (sun up, Rg below the night threshold) that hold
+    uptake bias the all-night fit low; the fit on records with the sun down is the fit
+    the same record without that uptake gives, and recovers the planted annual Reco.
+    Uptake wherever light is above the leaves' compensation point is a fact of leaf
+    physiology (common practice)."""
+    index, nee, filled, temperature, night, reco = _synthetic(rng, noise=0.2, freq="60min")
+    hour = index.hour.to_numpy()
+    twilight = night & (((hour >= 4) & (hour < 6)) | ((hour >= 19) & (hour < 21)))
+    uptake = np.where(twilight, nee - 0.25 * reco, nee)   # a quarter of Reco (invented)
+    sun_up = ~night | twilight
+    settings = _config_settings()
+
+    def annual(measured, **extra):
+        return partition_nighttime(index, measured, filled, temperature, temperature, night,
+                                   **settings, **extra).reco
+
+    dark = annual(uptake, sun_up=sun_up)
+    assert annual(uptake).sum() / reco.sum() - 1 < -0.05     # the uptake pulls the fit low
+    assert np.array_equal(dark, annual(nee, sun_up=sun_up))   # twilight records left out
+    assert abs(dark.sum() / reco.sum() - 1) < 0.02
+    # with the sun down everywhere the fit is the all-night one
+    assert np.array_equal(annual(uptake, sun_up=np.zeros_like(night)), annual(uptake))
+
+
+def test_sun_down_mask_falls_back_to_every_night_record_where_dark_ones_are_too_few():
+    """A 4-day window with at least `min_points` usable records with the sun down keeps
+    those alone; one with fewer (midnight sun) keeps every night record, as before."""
+    seconds = np.arange(8 * 24) * 3600.0             # 8 days of hours from the anchor (noon)
+    hour = (12 + np.arange(8 * 24)) % 24
+    night = (hour < 6) | (hour >= 20)
+    sun_up = (hour >= 4) & (hour < 22)
+    sun_up[4 * 24:] = True                           # the second window: the sun never sets
+    usable = night & (np.arange(8 * 24) % 5 != 0)    # some night records not measured
+    dark = night & ~sun_up
+    first = slice(0, 4 * 24)
+    count = int(np.sum(usable[first] & dark[first]))
+    mask = fit_mask(seconds, usable, night, sun_up, window_days=4.0, min_points=count)
+    assert np.array_equal(mask[first], dark[first])
+    assert np.array_equal(mask[4 * 24:], night[4 * 24:])
+    fewer = fit_mask(seconds, usable, night, sun_up, window_days=4.0, min_points=count + 1)
+    assert np.array_equal(fewer, night)
+
+
+def test_only_sun_down_passes_the_sun_to_the_nighttime_fits():
+    """The default run calls the method exactly as before (no ``sun_up``)."""
+    from fluxpart.method_settings import nighttime_settings
+
+    index = pd.date_range("2021-06-01", periods=48, freq="30min")
+    rg, sun_up = np.zeros(48), np.zeros(48, dtype=bool)
+    assert "sun_up" not in nighttime_settings(Config(), rg, index, sun_up=sun_up)
+    chosen = nighttime_settings(Config(night_fit_records="sun_down"), rg, index, sun_up=sun_up)
+    assert chosen["sun_up"] is sun_up

@@ -52,7 +52,7 @@ from ..errors import (
 )
 from ..responses import lloyd_taylor, lloyd_taylor_derivatives
 from ..variables import VARIABLES
-from . import pieces
+from . import dark_nights, pieces
 
 __all__ = [
     "LOW_LIGHT_MIN_RUN_DAYS",
@@ -1397,7 +1397,7 @@ def partition_nighttime(index, nee_measured, nee_filled, temperature_measured,
                         rref_window_days=4.0, rref_min_points=6,
                         respiration_driver="tair", e0_method="joint", rg=None,
                         rref_low_light_rg=0.0, e0_nearest_year=False,
-                        breaks=None) -> NighttimeResult:
+                        breaks=None, sun_up=None) -> NighttimeResult:
     """Partition NEE into Reco and GPP by the nighttime method of Reichstein et al. (2005).
 
     Parameters
@@ -1446,6 +1446,12 @@ e0_bounds, e0_max_relative_error
         an event, and a record's Rref comes from the windows of its own piece only
         (:func:`fit_e0_windows`, :func:`fit_e0_joint`, :func:`fit_rref_windows`,
         :func:`rref_per_record`). E0 stays one per calendar year. Default None.
+    sun_up : array_like of bool, optional
+        The sun above the horizon for part of each record (potential radiation above
+        0). Given, the E0 and Rref fits use night records with the sun down, in each
+        Rref window that has `rref_min_points` usable ones, and every night record
+        elsewhere (:func:`fluxpart.partition.dark_nights.fit_mask`): twilight records
+        under Rg < 10 W m-2 can hold uptake. Default None: every night record.
 
     Returns
     -------
@@ -1499,6 +1505,11 @@ e0_bounds, e0_max_relative_error
                                            length)
     temperature_filled = _as_temperature("temperature_filled", temperature_filled, length)
     is_night = _as_night("is_night", is_night, length)
+    if sun_up is not None:
+        is_night = dark_nights.fit_mask(
+            _seconds_since(index, _window_anchor(index)), _usable(nee_measured, temperature_measured, is_night), is_night,
+            _as_night("sun_up", sun_up, length), window_days=rref_window_days,
+            min_points=rref_min_points)
     # without events the window functions are called exactly as before
     cut = {} if breaks is None or not len(breaks) else {"breaks": breaks}
 
