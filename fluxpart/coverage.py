@@ -97,7 +97,8 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
     str
         Site, period, interval, records, stamps inserted, columns read, the coverage
         table as aligned text (with a line saying what the ``nee_flag`` row counts, where
-        it is present) and every problem found, ending with a newline.
+        it is present), every problem found and the reader's notes (how it understood the
+        layout, no problem), ending with a newline.
     """
     lines = [
         f"site              {site.name} (latitude {site.latitude:g}, longitude "
@@ -118,6 +119,10 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         lines.extend(f"  - {warning}" for warning in listed)
     else:
         lines.append("problems found: none")
+    if report.notes:
+        # how the layout was understood: no problem, no exit 1 (review64)
+        lines.append(f"notes (the file was read as it means) ({len(report.notes)})")
+        lines.extend(f"  - {note}" for note in report.notes)
     return "\n".join(lines) + "\n"
 
 

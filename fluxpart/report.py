@@ -14,7 +14,7 @@ The page is ordered for a reader who has five minutes:
    its 95 % interval in g C m-2 and t CO2 ha-1, GPP and Reco by both methods,
    the share gap-filled, the u* threshold, the clock check and whether the two
    partitioning methods agree;
-3. the warnings of the run;
+3. the warnings of the run (the reader's notes apart, where it wrote some);
 4. the figures, each with a one-sentence caption saying what to look for
    (drawn by :mod:`fluxpart.figures`);
 5. the detailed tables, folded in ``<details>``; the methods and references;
@@ -1266,6 +1266,13 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     warnings = manifest.get("warnings", [])
     warning_html = ("".join(f'<p class="warning">{_e(w)}</p>' for w in warnings) if warnings
                     else "<p>No warnings were recorded for this run.</p>")
+    # the reader's notes (a layout understood, every value read as the file means it),
+    # apart from the warnings: an auditor sees how the file was read, and no note reads
+    # as a fault (review64); only where the manifest records some
+    reader_notes = manifest.get("provenance", {}).get("reader", {}).get("notes", [])
+    warning_html += ('<h3>Notes on reading the input (the file was read as it means)</h3>'
+                     + "".join(f'<p class="note">{_e(n)}</p>' for n in reader_notes)
+                     if reader_notes else "")
     figure_html = "".join(
         f'<figure id="figure-{_e(f.name.removesuffix(".png"))}"><h3>{_e(f.title)}</h3>'
         f'<img src="data:image/png;base64,{base64.b64encode(f.png).decode("ascii")}" '
