@@ -1063,6 +1063,7 @@ code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; 
 .notes { font-size: 0.85em; color: #333333; }
 .warning { border-left: 5px solid #b04a00; background: #fbf0e4; padding: 0.4em 0.8em;
            margin: 0.4em 0; }
+.reader-note { border-left: 5px solid #999999; padding: 0.4em 0.8em; margin: 0.4em 0; }
 figure { margin: 1.2em 0; break-inside: avoid; }
 figure img { max-width: 100%; height: auto; border: 1px solid #dddddd; }
 figcaption { font-size: 0.92em; color: #222222; margin-top: 0.3em; }
@@ -1271,7 +1272,7 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     # as a fault (review64); only where the manifest records some
     reader_notes = manifest.get("provenance", {}).get("reader", {}).get("notes", [])
     warning_html += ('<h3>Notes on reading the input (the file was read as it means)</h3>'
-                     + "".join(f'<p class="note">{_e(n)}</p>' for n in reader_notes)
+                     + "".join(f'<p class="reader-note">{_e(n)}</p>' for n in reader_notes)
                      if reader_notes else "")
     figure_html = "".join(
         f'<figure id="figure-{_e(f.name.removesuffix(".png"))}"><h3>{_e(f.title)}</h3>'
