@@ -488,7 +488,8 @@ def _command_check(args) -> int:
     from .settings_notes import ignored_settings
 
     problems += ignored_settings(config)
-    text = format_check(site_config.site, report, table, problems=problems)
+    text = format_check(site_config.site, report, table, problems=problems,
+                        notes=report.notes)
     if report.unit_refusals and len(problems) + len(report.warnings) > len(report.unit_refusals):
         # a temperature read in the wrong unit is out of range everywhere, so every stage
         # finds no night records and the list went on to advise e0_fallback (review49)

@@ -78,7 +78,7 @@ def coverage_table(frame: pd.DataFrame, interval_minutes: int) -> pd.DataFrame:
     return table
 
 
-def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
+def format_check(site, report, table: pd.DataFrame, problems=(), notes=()) -> str:
     """The plain text printed by ``fluxpart check``.
 
     Parameters
@@ -91,6 +91,9 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         From :func:`coverage_table`.
     problems : sequence of str, optional
         Problems found beyond the reader's (clock, preflight), listed after them.
+    notes : sequence of str, optional
+        The reader's notes (``report.notes``: a layout understood, every value read as the
+        file means it), listed apart from the problems.
 
     Returns
     -------
@@ -119,10 +122,10 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         lines.extend(f"  - {warning}" for warning in listed)
     else:
         lines.append("problems found: none")
-    if report.notes:
+    if notes:
         # how the layout was understood: no problem, no exit 1 (review64)
-        lines.append(f"notes (the file was read as it means) ({len(report.notes)})")
-        lines.extend(f"  - {note}" for note in report.notes)
+        lines.append(f"notes (the file was read as it means) ({len(notes)})")
+        lines.extend(f"  - {note}" for note in notes)
     return "\n".join(lines) + "\n"
 
 

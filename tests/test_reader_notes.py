@@ -38,7 +38,8 @@ def test_lines_that_hold_no_value_are_notes_not_warnings(tmp_path):
     record = json.loads(json.dumps(report.to_dict()))
     assert record["notes"] == list(report.notes) and record["warnings"] == []
     site = Site(name="Hollow Fen", latitude=-41.3, longitude=172.8, utc_offset=12.0)
-    text = format_check(site, report, coverage_table(frame, report.interval_minutes))
+    text = format_check(site, report, coverage_table(frame, report.interval_minutes),
+                        notes=report.notes)
     assert "problems found: none\nnotes (the file was read as it means) (2)\n" in text
 
 
