@@ -12,6 +12,7 @@ import json
 from test_io import _read, _records, _write
 
 from fluxpart.coverage import coverage_table, format_check
+from fluxpart.reader_notes import notes_moved
 from fluxpart.site import Site
 
 
@@ -69,3 +70,23 @@ def test_note_lines_are_notes_only_where_the_setting_names_their_mark(tmp_path):
     assert "as no record does" in inferred.warnings[0]
     assert named.warnings == () and len(named.notes) == 1
     assert "[input] note_mark (line 41" in named.notes[0]
+
+
+def test_verify_names_notes_moved_out_of_an_earlier_results_warnings():
+    """A result written before readernotes51 holds the reader's notes among its warnings
+    (run and reader record); its rerun records them apart. That move alone is named as a
+    note by `verify` (a 0.33.0 folder with blank lines above its header: verified, the
+    tables bit-identical); a warning edited or dropped in the stored manifest stays a
+    difference, and a result written with notes compares them as any field."""
+    note = "input file 't.csv': 2 blank line(s) above the header (line 3) read past"
+    stored = {"warnings": [f"input: {note}", "budget year: 2021 starts in June"],
+              "provenance": {"reader": {"warnings": [note, "nee: 3 value(s) outside"]}}}
+    recomputed = {"warnings": ["budget year: 2021 starts in June"],
+                  "provenance": {"reader": {"warnings": ["nee: 3 value(s) outside"],
+                                            "notes": [note]}}}
+    assert notes_moved(stored, recomputed)
+    assert not notes_moved({**stored, "warnings": stored["warnings"][:1]}, recomputed)
+    assert not notes_moved({**stored, "provenance": {"reader": {"warnings": [note]}}},
+                           recomputed)
+    assert not notes_moved(recomputed, recomputed)
+    assert not notes_moved(stored, {**stored, "provenance": {"reader": {"warnings": []}}})
