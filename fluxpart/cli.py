@@ -408,6 +408,9 @@ def _command_run(args) -> int:
     print(_format_annual(result.annual))
     for warning in result.warnings:
         print(f"warning: {warning}")
+    # how the reader understood the file's layout, every value read as the file means it
+    for note in result.provenance.get("reader", {}).get("notes", ()):
+        print(f"note: input: {note}")
     print(f"\nWrote {shown_path(f'{out}/')} (Parquet tables and manifest.json)")
     replaced = replaced_note(out, earlier)
     if replaced:
@@ -438,7 +441,8 @@ def _format_clock(verdict) -> str:
 
 
 def _command_check(args) -> int:
-    """List every problem ``run`` would trip on; exit 0 clean, 1 problems, 2 error."""
+    """List every problem ``run`` would trip on; exit 0 clean, 1 problems, 2 error (the
+    reader's notes, a layout understood, are listed apart and leave exit 0)."""
     from .config import Config
     from .coverage import coverage_table, format_check
     from .io import read_site_config
@@ -484,7 +488,8 @@ def _command_check(args) -> int:
     from .settings_notes import ignored_settings
 
     problems += ignored_settings(config)
-    text = format_check(site_config.site, report, table, problems=problems)
+    text = format_check(site_config.site, report, table, problems=problems,
+                        notes=report.notes)
     if report.unit_refusals and len(problems) + len(report.warnings) > len(report.unit_refusals):
         # a temperature read in the wrong unit is out of range everywhere, so every stage
         # finds no night records and the list went on to advise e0_fallback (review49)

@@ -78,7 +78,7 @@ def coverage_table(frame: pd.DataFrame, interval_minutes: int) -> pd.DataFrame:
     return table
 
 
-def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
+def format_check(site, report, table: pd.DataFrame, problems=(), notes=()) -> str:
     """The plain text printed by ``fluxpart check``.
 
     Parameters
@@ -91,13 +91,17 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         From :func:`coverage_table`.
     problems : sequence of str, optional
         Problems found beyond the reader's (clock, preflight), listed after them.
+    notes : sequence of str, optional
+        The reader's notes (``report.notes``: a layout understood, every value read as the
+        file means it), listed apart from the problems.
 
     Returns
     -------
     str
         Site, period, interval, records, stamps inserted, columns read, the coverage
         table as aligned text (with a line saying what the ``nee_flag`` row counts, where
-        it is present) and every problem found, ending with a newline.
+        it is present), every problem found and the reader's notes (how it understood the
+        layout, no problem), ending with a newline.
     """
     lines = [
         f"site              {site.name} (latitude {site.latitude:g}, longitude "
@@ -118,6 +122,10 @@ def format_check(site, report, table: pd.DataFrame, problems=()) -> str:
         lines.extend(f"  - {warning}" for warning in listed)
     else:
         lines.append("problems found: none")
+    if notes:
+        # how the layout was understood: no problem, no exit 1 (review64)
+        lines.append(f"notes (the file was read as it means) ({len(notes)})")
+        lines.extend(f"  - {note}" for note in notes)
     return "\n".join(lines) + "\n"
 
 

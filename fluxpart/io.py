@@ -98,6 +98,7 @@ from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
 from .quoted_lines import wrapped_lines_message
+from .reader_notes import ReaderNote, notes_of, warnings_of
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -315,6 +316,11 @@ class ReadReport:
     renamed_columns : dict
         Other name -> ``(mapped name, files)``: a column read under its mapped name in
         that many files that write it by another name of ``[input.other_names]``.
+    notes : tuple of str
+        How the layout was understood where every value is read as the file means it
+        (blank lines above the header read past, a footer dropped; not in `warnings`, and
+        no problem for ``fluxpart check``; :mod:`fluxpart.reader_notes`). In the
+        manifest's reader record only where there are some.
     """
 
     source: str
@@ -350,6 +356,7 @@ class ReadReport:
     header_trailing_delimiter: int = 0
     absent_columns: dict = field(default_factory=dict)
     renamed_columns: dict = field(default_factory=dict)
+    notes: tuple = ()
 
     def __str__(self) -> str:
         files = self.files or (self.source,)
@@ -456,6 +463,7 @@ class ReadReport:
             **({"absent_column_records": {name: records for name, (_, _, records)
                                           in self.absent_columns.items()}}
                if self.absent_columns else {}),
+            **({"notes": list(self.notes)} if self.notes else {}),
         }
 
 
@@ -993,11 +1001,11 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         warnings.append(header_rows)
     newest = [part["source"] for part in parts if part["newest_first"]]
     if newest:
-        warnings.append(
+        warnings.append(ReaderNote(
             (f"input file {newest[0]!r} is" if len(parts) == 1 else
              f"{len(newest)} of {len(parts)} input files ({_file_list(newest)}) are")
             + " written newest first (the stamps go back in time from line to line): read "
-            "oldest first")
+            "oldest first"))
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     if time_zone is not None:
@@ -1281,7 +1289,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         derived=tuple(derived),
         missing_cells={name: combined["missing_cells"][name] for name in mapping},
         outside_range=outside,
-        warnings=tuple(warnings),
+        warnings=warnings_of(warnings),
+        notes=notes_of(warnings),
         files=tuple(str(p) for p in paths),
         encodings=tuple(part["encoding"] for part in parts),
         duplicate_rows=combined["duplicate_rows"],
@@ -2917,8 +2926,8 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                 # program that added a column")
                 if warnings is None:
                     raise InputFileError(closed) from None
-                warnings.append(closed.replace("; delete it in a copy of the file",
-                                               ": read as no column"))
+                warnings.append(ReaderNote(closed.replace("; delete it in a copy of the file",
+                                                          ": read as no column")))
                 lines = text.splitlines(keepends=True)
                 start = int(found.group(2)) - 1
                 cut = [re.sub(re.escape(delimiter) + r"(\r\n|\r|\n)?$", r"\1", line)
@@ -3007,10 +3016,10 @@ def _bracketed_unit_names(path: Path, text: str, rows_before_header: int,
         # whole names, four at most (review55: cut at 160 characters, a name was cut too)
         joined = [name for name in names if " " in name]
         more = f" and {len(joined) - 4} more" if len(joined) > 4 else ""
-        warnings.append(
+        warnings.append(ReaderNote(
             f"input file {str(path)!r}: the header (line {at + 1}) read as {len(names)} "
             "names split at the blanks outside their bracketed units ("
-            + ", ".join(repr(name) for name in joined[:4]) + f"{more}), one a field")
+            + ", ".join(repr(name) for name in joined[:4]) + f"{more}), one a field"))
     ending = text_lines[at][len(text_lines[at].rstrip("\r\n")):]
     text_lines[at] = bracket_names.placeholder_line(names) + ending
     return "".join(text_lines)
@@ -3436,10 +3445,10 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
                 f"{'title' if own < rows_before_header else 'units'} line {own + 1} "
                 f"{lines[own].strip()[:80]!r} written {lines[again].strip()[:80]!r} on "
                 f"line {again + 1}" for own, again in otherwise[:3]))
-        warnings.append(
+        warnings.append((str if otherwise else ReaderNote)(
             f"input file {str(path)!r}: the {what} written again {len(blocks)} time(s) "
             f"among the records, {same}, on "
-            f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped")
+            f"{_lines_word(skipped)} {interleaved_lines.ranges(sorted(skipped))}: skipped"))
     cut = interleaved_lines.cut_records(lines, blocks, rows_before_header, rows_after_header,
                                         delimiter)
     if cut:
@@ -3459,11 +3468,11 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
                                                + 1, delimiter, width, note_mark)
     if notes:
         why = "[input] note_mark" if note_mark else "as no record does"
-        warnings.append(
+        warnings.append((ReaderNote if note_mark else str)(
             f"input file {str(path)!r}: {len(notes)} note line(s) among the records start "
             f"with {mark!r}, {why} ({_lines_word(notes)} "
             f"{interleaved_lines.ranges(notes)}: "
-            f"{_shown_line(lines[notes[0]])!r}, ...): skipped")
+            f"{_shown_line(lines[notes[0]])!r}, ...): skipped"))
         skipped.update(notes)
     return _emptied_lines(text, skipped)
 
@@ -3635,10 +3644,10 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 f"input file {str(path)!r}: lines {first} to {int(lines[last])} are comment "
                 f"lines ending the file ({_shown_line(text_lines[first - 1])!r}, ...), a "
                 "footer; delete them in a copy of the file")
-        warnings.append(
+        warnings.append(ReaderNote(
             f"input file {str(path)!r}: its last {len(footer)} lines ({first} to "
             f"{int(lines[last])}: {_shown_line(text_lines[first - 1])!r}, ...) are comment "
-            "lines ending the file, a footer: dropped")
+            "lines ending the file, a footer: dropped"))
         return raw.iloc[:footer[0]].reset_index(drop=True), lines[:footer[0]]
     words = footers.word_footer(text_lines, lines, short, last) if inner else []
     if inner and words and inner[0] >= words[0]:
@@ -3652,10 +3661,10 @@ def _drop_cut_last_line(path: Path, text: str, raw: pd.DataFrame, lines: np.ndar
                 f"input file {str(path)!r}: lines {first} to {int(lines[last])} ('{shown}'"
                 f"{more}) open with words after a blank line, a footer; delete them in a "
                 "copy of the file")
-        warnings.append(
+        warnings.append(ReaderNote(
             f"input file {str(path)!r}: its last {len(words)} lines ({first} to "
             f"{int(lines[last])}: '{shown}'{more}) open with words after a blank line, "
-            "a footer about the file: dropped")
+            "a footer about the file: dropped"))
         return raw.iloc[:words[0]].reset_index(drop=True), lines[:words[0]]
     if inner:
         row = inner[0]
@@ -4055,8 +4064,8 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
-        warnings.append(f"input file {str(path)!r}: {blank_above} blank line(s) above the "
-                        f"header (line {rows_before_header + 1}) read past")
+        warnings.append(ReaderNote(f"input file {str(path)!r}: {blank_above} blank line(s) "
+                                   f"above the header (line {rows_before_header + 1}) read past"))
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
                                    rows_after_header, warnings, note_mark)
     if delimiter == _WHITESPACE:
@@ -4090,9 +4099,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
         raw = raw.rename(columns=unwrapped)
         header = [unwrapped.get(cell, cell) for cell in header]
         shown = ", ".join(repr(name) for name in list(unwrapped.values())[:3])
-        warnings.append(f"input file {str(path)!r}: {len(unwrapped)} header name(s) hold a "
-                        "line break (a spreadsheet's wrapped header cells), read as a blank: "
-                        f"{shown}")
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: {len(unwrapped)} header name(s) hold a "
+            "line break (a spreadsheet's wrapped header cells), read as a blank: "
+            f"{shown}"))
     if other_names:
         raw, header = _own_names(path, raw, header, columns, other_names, renamed_in)
     try:
@@ -4140,9 +4150,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                                                                .str.strip()))
         where = (f"last line ({int(lines[-1])}" if summary == 1 else
                  f"last {summary} lines ({int(lines[kept])} to {int(lines[-1])}")
-        warnings.append(f"input file {source!r}: its {where}: {shown}) "
-                        f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
-                        "footer, or a spreadsheet's statistics under the records): dropped")
+        warnings.append(ReaderNote(
+            f"input file {source!r}: its {where}: {shown}) "
+            f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
+            "footer, or a spreadsheet's statistics under the records): dropped"))
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
         lines = lines[:kept]
@@ -4295,15 +4306,15 @@ def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
     return header + (end.group() if end else "\n") + text, 0, 0, 1
 
 
-def _marked_header_warning(marked: list) -> str:
+def _marked_header_warning(marked: list) -> ReaderNote:
     """The note for the files whose header line opened with a comment mark, read without
     it: `marked` holds (file, mark) pairs."""
     marks = " or ".join(repr(m) for m in dict.fromkeys(m for _, m in marked))
     where = (f"input file {marked[0][0]!r}: the header line opens" if len(marked) == 1 else
              f"{len(marked)} input files ({_file_list([f for f, _ in marked])}): the header "
              "line of each opens")
-    return (f"{where} with the comment mark {marks} (as programs that write the header as a "
-            "comment do), read without it")
+    return ReaderNote(f"{where} with the comment mark {marks} (as programs that write the "
+                      "header as a comment do), read without it")
 
 
 def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
@@ -4312,12 +4323,12 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
     read under the first file's header (:func:`_later_file_layout`)."""
     found = []
     if notes.get("titles"):
-        found.append(
+        found.append(ReaderNote(
             f"{len(notes['titles'])} input file(s) ({_file_list(notes['titles'])}) have the "
             f"header line of {first['source']!r}, character for character, with fewer lines "
             f"above it than [input] rows_before_header = {rows_before_header} (title lines "
             "written into the first file only?): read from their header line (and without "
-            "units lines where none stands under it)")
+            "units lines where none stands under it)"))
     if notes.get("units"):
         found.append(
             f"{len(notes['units'])} input file(s) ({_file_list(notes['units'])}) have other "

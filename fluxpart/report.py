@@ -14,7 +14,7 @@ The page is ordered for a reader who has five minutes:
    its 95 % interval in g C m-2 and t CO2 ha-1, GPP and Reco by both methods,
    the share gap-filled, the u* threshold, the clock check and whether the two
    partitioning methods agree;
-3. the warnings of the run;
+3. the warnings of the run (the reader's notes apart, where it wrote some);
 4. the figures, each with a one-sentence caption saying what to look for
    (drawn by :mod:`fluxpart.figures`);
 5. the detailed tables, folded in ``<details>``; the methods and references;
@@ -1063,6 +1063,7 @@ code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; 
 .notes { font-size: 0.85em; color: #333333; }
 .warning { border-left: 5px solid #b04a00; background: #fbf0e4; padding: 0.4em 0.8em;
            margin: 0.4em 0; }
+.reader-note { border-left: 5px solid #999999; padding: 0.4em 0.8em; margin: 0.4em 0; }
 figure { margin: 1.2em 0; break-inside: avoid; }
 figure img { max-width: 100%; height: auto; border: 1px solid #dddddd; }
 figcaption { font-size: 0.92em; color: #222222; margin-top: 0.3em; }
@@ -1266,6 +1267,13 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
     warnings = manifest.get("warnings", [])
     warning_html = ("".join(f'<p class="warning">{_e(w)}</p>' for w in warnings) if warnings
                     else "<p>No warnings were recorded for this run.</p>")
+    # the reader's notes (a layout understood, every value read as the file means it),
+    # apart from the warnings: an auditor sees how the file was read, and no note reads
+    # as a fault (review64); only where the manifest records some
+    reader_notes = manifest.get("provenance", {}).get("reader", {}).get("notes", [])
+    warning_html += ('<h3>Notes on reading the input (the file was read as it means)</h3>'
+                     + "".join(f'<p class="reader-note">{_e(n)}</p>' for n in reader_notes)
+                     if reader_notes else "")
     figure_html = "".join(
         f'<figure id="figure-{_e(f.name.removesuffix(".png"))}"><h3>{_e(f.title)}</h3>'
         f'<img src="data:image/png;base64,{base64.b64encode(f.png).decode("ascii")}" '

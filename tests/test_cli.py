@@ -25,7 +25,13 @@ def example(tmp_path):
 
 
 def test_check_prints_the_coverage_table(example, capsys):
-    """`fluxpart check` on the example prints a per-variable coverage table and exits 0."""
+    """`fluxpart check` on the example prints a per-variable coverage table and exits 0.
+
+    Two blank lines above the header (readernotes51; review64: listed under "problems
+    found", exit 1, for a file read right): the reader's note is listed under a heading of
+    its own and leaves exit 0, as the README's exit-status table says."""
+    csv = example.with_suffix(".csv")
+    csv.write_text("\n\n" + csv.read_text(encoding="utf-8"), encoding="utf-8")
     assert main(["check", str(example)]) == 0
     out = capsys.readouterr().out
     assert "coverage" in out and "longest gap" in out
@@ -33,19 +39,33 @@ def test_check_prints_the_coverage_table(example, capsys):
         assert f"\n{name} " in out
     # issue 5: the screening counts and the u* threshold estimate
     assert "spike" in out and "u* threshold" in out and "detected" in out
-
-
-def test_check_names_the_months_of_each_u_star_season(example, capsys):
-    """Behaviour check (review round eighteen): the u* table of `check` named seasons
-    ("winter") without their months, which differ between the hemispheres; the result's
-    table and the report carry them. Each season row now shows its months: at the
-    northern example, meteorological winter is December to February (common practice)."""
-    assert main(["check", str(example)]) == 0
-    out = capsys.readouterr().out
+    assert "problems found: none" in out
+    notes = out.split("notes (the file was read as it means) (1)\n", 1)[1].splitlines()
+    assert notes[0].endswith("2 blank line(s) above the header (line 3) read past")
+    # Behaviour check (review round eighteen): the u* table of `check` named seasons
+    # ("winter") without their months, which differ between the hemispheres; each season
+    # row now shows its months: at the northern example, meteorological winter is
+    # December to February (common practice)
     table = out[out.index("u* threshold [m s-1]"):].splitlines()
     assert "months" in table[1].split()
     winter = [line.split() for line in table if " winter " in f" {line} "]
     assert winter and all(row[1:3] == ["winter", "DJF"] for row in winter)
+
+
+def test_check_exits_1_on_a_reader_warning_alone(example, capsys):
+    """readernotes51: a reader warning (a value dropped: the last line cut short, a logger
+    stopped mid-write) is a problem and still gives exit 1, listed under "problems found"
+    with no notes heading; only notes leave exit 0 (the test above)."""
+    csv = example.with_suffix(".csv")
+    # a record after the year's last, cut after its third field: dropping it loses no
+    # interval of the budget year (the file's last record ends 2021 on its last stamp)
+    csv.write_text(csv.read_text(encoding="utf-8") + "202201010030,-9999,0.9\n",
+                   encoding="utf-8")
+    assert main(["check", str(example)]) == 1
+    out = capsys.readouterr().out
+    listed = out.split("problems found (1)\n", 1)[1].splitlines()
+    assert "a record cut short" in listed[0] and listed[0].endswith("dropped")
+    assert "notes (the file was read as it means)" not in out
 
 
 def test_check_lists_a_u_star_floor_far_above_the_detected_threshold(example, capsys):

@@ -1277,7 +1277,7 @@ def test_footer_after_the_records_is_dropped_quoted_or_refused(tmp_path):
     frame, report = _read(padded)
     pd.testing.assert_frame_equal(frame, _read(path)[0])
     assert any("its last line (202: 'END OF FILE') has a word for a stamp" in w
-               for w in report.warnings)
+               for w in report.notes)
 
 
 def test_header_closed_by_a_delimiter_the_data_lines_lack(tmp_path):

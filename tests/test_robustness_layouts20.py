@@ -47,7 +47,7 @@ def test_summary_lines_under_the_records_are_named(tmp_path, words):
     (tmp_path / "sheet.csv").write_text(text)
     table, report = _read(tmp_path / "sheet.csv")
     pd.testing.assert_frame_equal(table, expected)
-    message = next(w for w in report.warnings if "statistics under the records" in w)
+    message = next(w for w in report.notes if "statistics under the records" in w)
     assert (f"its last {len(words)} lines ({len(records) + 2} to" if len(words) > 1 else
             f"its last line ({len(records) + 2}: ") in message
     assert all(repr(word) in message for word in words)

@@ -141,7 +141,7 @@ def test_a_block_of_comment_lines_ending_the_file_is_dropped_as_a_footer(tmp_pat
     table, report = _read(footed, mapping)
     pd.testing.assert_frame_equal(table, expected)
     assert any("its last 3 lines (962 to 964: '# end of file', ...) are comment lines "
-               "ending the file, a footer: dropped" in w for w in report.warnings)
+               "ending the file, a footer: dropped" in w for w in report.notes)
 
 
 def test_comment_lines_among_the_records_are_skipped_and_named(tmp_path):
@@ -225,7 +225,7 @@ def test_a_delimiter_closing_every_line_from_mid_file_on_is_read_as_no_column(tm
     table, report = _read(closed, mapping)
     pd.testing.assert_frame_equal(table, expected)
     assert any("every line from line 501 on (461 lines) ends with the delimiter ','" in w
-               and "read as no column" in w for w in report.warnings)
+               and "read as no column" in w for w in report.notes)
     added = tmp_path / "added.csv"
     added.write_text("\n".join(lines[:500] + [line + ",7.5" for line in lines[500:]]) + "\n",
                      encoding="utf-8")
@@ -249,7 +249,7 @@ def test_a_file_written_newest_first_is_read_oldest_first(tmp_path):
     table, report = _read(path, mapping)
     pd.testing.assert_frame_equal(table, expected)
     assert any("is written newest first (the stamps go back in time from line to line): "
-               "read oldest first" in w for w in report.warnings)
+               "read oldest first" in w for w in report.notes)
     # one record out of place is not named so
     lines = _write(tmp_path / "plain.csv", names).read_text(encoding="utf-8").splitlines()
     lines[10], lines[11] = lines[11], lines[10]

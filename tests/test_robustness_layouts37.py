@@ -69,7 +69,7 @@ def test_a_header_written_again_after_a_restart_is_skipped(tmp_path, before, aft
     read, report = _read(path, **options)
     _assert_all(read, frame, ends)
     assert any("written again 1 time(s) among the records" in w and skipped in w
-               for w in report.warnings)
+               for w in report.notes)
 
 
 def test_a_header_again_under_a_line_no_setting_counts_stays_refused(tmp_path):
@@ -171,7 +171,7 @@ def test_later_files_without_the_title_lines_are_read(tmp_path, first_above, lat
     read, report = _read(paths, **options)
     _assert_all(read, frame, ends)
     assert any("2 input file(s)" in w and "title lines written into the first file only" in w
-               for w in report.warnings)
+               for w in report.notes)
     assert later_above in ([], [UNITS_LINE])
 
 
@@ -241,7 +241,7 @@ def test_a_note_mark_setting_reads_notes_the_file_alone_cannot_tell(tmp_path, no
     read, report = _read(path, delimiter=delimiter, note_mark=mark)
     _assert_all(read, frame, ends)
     assert any(f"2 note line(s) among the records start with {mark!r}, [input] note_mark "
-               "(lines 102, 483" in w for w in report.warnings)
+               "(lines 102, 483" in w for w in report.notes)
 
 
 def test_a_note_mark_that_opens_records_is_refused(tmp_path):

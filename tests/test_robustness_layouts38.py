@@ -132,7 +132,7 @@ def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path
     path.write_text("\n".join(lines[:1] + lines[:0:-1]) + "\n")
     read, report = _read(path, time_format="%Y-%m-%d %H:%M", time_zone="Europe/Berlin")
     _assert_all(read, frame, ends)
-    assert any("is written newest first" in w for w in report.warnings)
+    assert any("is written newest first" in w for w in report.notes)
     parts = [tmp_path / "a.csv", tmp_path / "b.csv"]
     for part, rows in zip(parts, (lines[1:100], lines[100:]), strict=True):
         part.write_text("\n".join(lines[:1] + rows[::-1]) + "\n")
@@ -140,7 +140,7 @@ def test_a_file_newest_first_in_civil_time_is_read_in_the_loggers_order(tmp_path
                          time_zone="Europe/Berlin")
     _assert_all(read, frame, ends)
     assert any("2 of 2 input files ('" in w and "are written newest first" in w
-               for w in report.warnings)
+               for w in report.notes)
 
 
 def test_a_pair_out_of_place_in_a_newest_first_file_is_named_in_the_order_read(tmp_path):
@@ -242,7 +242,7 @@ def test_a_footer_of_words_or_statistics_is_dropped_and_named(tmp_path, footer, 
     path.write_text(text)
     read, report = _read(path)
     _assert_all(read, frame, ends)
-    assert any(dropped in w for w in report.warnings), report.warnings
+    assert any(dropped in w for w in report.notes), report.notes
 
 
 def test_records_opening_with_a_site_name_are_no_footer(tmp_path):

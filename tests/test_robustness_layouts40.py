@@ -185,9 +185,9 @@ def test_whitespace_names_with_bracketed_units_are_one_name_a_field(tmp_path):
     np.testing.assert_array_equal(read["tair"].to_numpy(), frame["t_air"].to_numpy())
     assert len(read) == len(ends)
     assert any("'co2 [umol m-2 s-1]'" in w and "outside their bracketed units" in w
-               for w in report.warnings)
+               for w in report.notes)
     # whole names, four at most (review55: cut at 160 characters, mid-name)
-    said = next(w for w in report.warnings if "outside their bracketed units" in w)
+    said = next(w for w in report.notes if "outside their bracketed units" in w)
     shown = said.split("bracketed units (", 1)[1]
     assert re.findall(r"'([^']*)'", shown) == [name for name in names if " " in name][:4]
     assert said.endswith(" and 1 more), one a field")

@@ -88,7 +88,7 @@ def test_a_cut_first_record_and_quoted_delimiters_before_a_header_written_again(
     (tmp_path / "noted.csv").write_text("\n".join(lines) + "\n")
     read, report = _read(tmp_path / "noted.csv")
     np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
-    assert any("written again 1 time(s)" in w and "line 152" in w for w in report.warnings)
+    assert any("written again 1 time(s)" in w and "line 152" in w for w in report.notes)
 
 
 def test_files_of_data_tools_and_workbooks_are_named(tmp_path):

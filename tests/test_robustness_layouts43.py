@@ -87,7 +87,7 @@ def test_a_header_written_as_a_comment_by_numpy_savetxt_is_read(tmp_path):
     read, report = _read(tmp_path / "t.csv")
     np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
     assert any("opens with the comment mark '#'" in w and "read without it" in w
-               for w in report.warnings)
+               for w in report.notes)
     # numpy.savetxt's default delimiter, a blank: the mark a field of its own
     np.savetxt(tmp_path / "blank.txt", frame.to_numpy(), fmt="%s", header=" ".join(frame.columns))
     read, _ = read_table(tmp_path / "blank.txt", columns=MAPPING, units={"vpd": "kPa"},
@@ -130,7 +130,7 @@ def test_header_names_wrapped_over_two_lines_are_read_with_a_blank(tmp_path):
     read, report = _read(tmp_path / "t.csv", columns)
     assert read["nee"].iloc[100] == 1.5 and len(read) == len(frame)
     np.testing.assert_array_equal(read["rg"].to_numpy(), frame["sw"].to_numpy(float))
-    assert any("5 header name(s) hold a line break" in w for w in report.warnings)
+    assert any("5 header name(s) hold a line break" in w for w in report.notes)
 
 
 def test_records_appended_late_that_fill_a_gap_are_named_with_the_sort_fix(tmp_path):
@@ -160,7 +160,7 @@ def test_blank_lines_above_the_header_are_read_past(tmp_path):
     read, report = _read(tmp_path / "blank.csv")
     np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
     assert any("2 blank line(s) above the header (line 3) read past" in w
-               for w in report.warnings)
+               for w in report.notes)
     (tmp_path / "title.csv").write_text("Quillmoor export\n\n" + text)
     with pytest.raises(MissingColumnError, match="set \\[input\\] rows_before_header = 2"):
         _read(tmp_path / "title.csv")
