@@ -116,8 +116,8 @@ def stepped_months(values, starts: pd.DatetimeIndex, months: list, factor: float
     of such months lies at the run's start or before with the values after it smaller, or
     at the run's end or after with the values after it larger. A run of months without such a step, where the jumps
     could be measured, is small by nature: the ecosystem's dormant season (round
-    falsealarm51: a snow-covered tundra's May, 0.84 µmol m-2 s-1 at the 99th percentile,
-    joins its June by a factor 0.75 and was named, even refused, as mg CO2 m-2 s-1).
+    falsealarm51: a snow-covered tundra's May, 0.83 µmol m-2 s-1 at the 99th percentile,
+    joins its June by a factor 0.80 and was named, even refused, as mg CO2 m-2 s-1).
 
     Parameters
     ----------

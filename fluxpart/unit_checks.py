@@ -471,8 +471,8 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     # their night changes are not as large as a µmol record's: a polar desert, a desert
     # or a month under snow has |NEE| below 1 µmol m-2 s-1 in 99 % of its records by
     # nature, with the noise of any flux in µmol (round falsealarm51: an Antarctic moss
-    # bank, p99 0.92 and a median night change of 0.21, was refused as mg CO2; 21 of 44
-    # clean site-years had a month named so, each with night changes of 0.20-0.25).
+    # bank, p99 0.92 and a median night change of 0.21, was refused as mg CO2; 11 of 44
+    # clean site-years had months named so, each with night changes of 0.20-0.25).
     quiet = noise < 0.1 and p99 < 4.0
     noisy = noise >= _NIGHT_NOISE_OF_UMOL      # NaN (no night pairs): not known
     if not quiet and (p99 >= 1.0 or noisy):

@@ -44,10 +44,11 @@ Textbook forms, written fresh with numpy and pandas (nothing of ``fluxpart.scena
   open path, dropouts, analyser failures of days, a logger outage hitting all variables, met
   gaps of their own; a flag column with a kept lower class at some sites.
 
-Run from the repository root (about 20 s a site on two shared cores)::
+Run from the repository root (about 15 min for the 44 sites with ``--jobs 2`` on two shared
+cores, 3 min with ``--no-run``)::
 
-    python tests/benchmarks/probe_clean_sites.py --out /tmp/fluxpart-clean [--sites a01,b07]
-        [--no-run] [--seed 0]
+    PYTHONPATH=$PWD python tests/benchmarks/probe_clean_sites.py --out /tmp/fluxpart-clean
+        [--sites a01,a42] [--no-run] [--seed 0] [--jobs 2]
 
 It writes each site's CSV and config under --out, runs ``fluxpart check`` and ``fluxpart
 run`` on each (default settings) and prints every problem and warning per site, then the
