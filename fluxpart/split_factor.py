@@ -121,10 +121,8 @@ def stepped_months(values, starts: pd.DatetimeIndex, months: list, factor: float
 
     Parameters
     ----------
-    values : array_like
-        The column as read (NaN = missing), one value per record.
-    starts : pandas.DatetimeIndex
-        Interval start of each record, increasing.
+    values, starts
+        As for :func:`jump_factor` (the column as read).
     months : list of str
         Calendar months ("YYYY-MM") whose values alone look like the other unit.
     factor : float
