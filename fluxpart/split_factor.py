@@ -9,6 +9,12 @@ the jump of the values at the change measures it. The two weeks either side of t
 share a season, so the ratio of their largest magnitudes is the factor of the unit,
 within the change of weather from one fortnight to the next.
 
+The same jump tells a unit changed for some months from months that are small by nature
+(:func:`stepped_months`): a unit is a factor on every value, so where it changes the
+values step by that factor from one fortnight to the next, while a dormant season (a
+snow-covered tundra's spring, a leafless forest's winter) grows out of and back into
+the seasons beside it.
+
 References
 ----------
 The molar masses of C (12.011) and CO2 (44.009 g mol-1) are IUPAC standard atomic
@@ -23,7 +29,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["FORTNIGHT_DAYS", "UNIT_FIT", "jump_factor", "unit_of_factor"]
+__all__ = ["FORTNIGHT_DAYS", "UNIT_FIT", "jump_factor", "stepped_months", "unit_of_factor"]
 
 #: Days either side of a candidate change whose magnitudes are compared.
 FORTNIGHT_DAYS = 14
@@ -99,3 +105,69 @@ def unit_of_factor(factor: float, factors: dict) -> str | None:
         return None
     unit = min(factors, key=lambda u: abs(np.log(factor / factors[u])))
     return unit if abs(np.log(factor / factors[unit])) <= np.log(UNIT_FIT) else None
+
+
+def stepped_months(values, starts: pd.DatetimeIndex, months: list, factor: float) -> list:
+    """The months of `months` that a step of the values by a unit's factor sets apart.
+
+    A month whose values alone look like another unit (a flux `factor` times too small)
+    was written in that unit only where the values step by about that factor between it
+    and the months that are read right: the first step of that size outward from its run
+    of such months lies at the run's start or before with the values after it smaller, or
+    at the run's end or after with the values after it larger. A run of months without such a step, where the jumps
+    could be measured, is small by nature: the ecosystem's dormant season (round
+    falsealarm51: a snow-covered tundra's May, 0.83 µmol m-2 s-1 at the 99th percentile,
+    joins its June by a factor 0.80 and was named, even refused, as mg CO2 m-2 s-1).
+
+    Parameters
+    ----------
+    values, starts
+        As for :func:`jump_factor` (the column as read).
+    months : list of str
+        Calendar months ("YYYY-MM") whose values alone look like the other unit.
+    factor : float
+        The smallest factor of the other units against the declared one [-] (22.7 for
+        mg CO2 m-2 s-1 against µmol m-2 s-1); a step counts where it reaches `factor`
+        / :data:`UNIT_FIT`.
+
+    Returns
+    -------
+    list of str
+        The months of `months` kept, in their order: those of a run with a step, and
+        those of a run beside which no jump could be measured (fewer than 48 values in
+        a fortnight: nothing tells them apart).
+    """
+    if not months:
+        return []
+    starts = pd.DatetimeIndex(starts)
+    record_months = np.asarray(starts.strftime("%Y-%m"))
+    cuts = np.flatnonzero(record_months[1:] != record_months[:-1]) + 1
+    order = [str(m) for m in record_months[np.r_[0, cuts]]]
+    jumps = {}
+
+    def jump_at(position: int):
+        # the cut starting the month order[position] (the change may lie within the month
+        # before it): the ratio of the fortnights before over after, or None
+        if position not in jumps:
+            jumps[position] = (jump_factor(values, starts, int(cuts[position - 1]))
+                               if 0 < position < len(order) else None)
+        return jumps[position]
+
+    least = factor / UNIT_FIT
+    flagged = [order.index(m) for m in months if m in order]
+    runs = np.split(np.asarray(flagged, dtype=int),
+                    np.flatnonzero(np.diff(flagged) != 1) + 1) if flagged else []
+    kept = []
+    for run in runs:
+        first, last = int(run[0]), int(run[-1])
+        before = [jump_at(p) for p in range(first, 0, -1)]
+        after = [jump_at(p) for p in range(last + 1, len(order))]
+        measured = [j for j in before + after if j is not None]
+        # outward from the run, the first step of a unit's size: down into the run (a
+        # step back up first means the run lies beyond another run of the other unit)
+        into = [j[0] for j in before if j is not None and abs(np.log(j[0])) >= np.log(least)]
+        out = [j[0] for j in after if j is not None and abs(np.log(j[0])) >= np.log(least)]
+        stepped = (into and into[0] > 1.0) or (out and out[0] < 1.0)
+        if stepped or not measured:
+            kept += [order[p] for p in run]
+    return [m for m in months if m in kept]

@@ -1920,7 +1920,7 @@ def test_flag_rejecting_most_records_warns(tmp_path):
     records["qc"] = np.arange(96) % 3
     _, report = _read(_write(tmp_path / "t.csv", records), columns=MAPPING | {"nee_flag": "qc"},
                       flag_accept=[2])
-    assert any(w.startswith("nee_flag: 64 of 96 records (67 %)") and "flag_accept = [2]" in w
+    assert any(w.startswith("nee_flag: 64 of 96 records with an NEE value (67 %)") and "flag_accept = [2]" in w
                for w in report.warnings)
 
 

@@ -192,7 +192,7 @@ def test_a_flag_of_the_other_scale_is_refused_naming_both_readings(tmp_path):
     records["qc"] = np.where(np.arange(len(records)) % 10 == 0, 0, 2)
     records.to_csv(tmp_path / "b.csv", index=False)
     _, report = _read(tmp_path / "b.csv", columns=columns)
-    assert any(w.startswith("nee_flag: 864 of 960 records (90 %)") for w in report.warnings)
+    assert any(w.startswith("nee_flag: 864 of 960 records with an NEE value (90 %)") for w in report.warnings)
 
 
 # ------------------------------------- a record left empty at the join of two files

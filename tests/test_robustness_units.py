@@ -32,6 +32,26 @@ def test_too_small_nee_hint_names_both_units():
     assert 'nee = "g C m-2"' in refusals["nee"] and "46.3 times smaller" in refusals["nee"]
 
 
+def test_a_small_flux_with_a_micromole_noise_is_no_mg_co2():
+    """A polar desert's flux, below 1 µmol m-2 s-1 in 99 % of its records by nature, keeps
+    the random error of a µmol record (a median night change near 0.2; Richardson et al.
+    2006's floor of 0.3-1 µmol m-2 s-1 (m)): not refused as mg CO2 m-2 s-1 (round
+    falsealarm51: an Antarctic moss bank was). The same values 22.7 times smaller (mg CO2:
+    1000 / 44.009, IUPAC molar mass) change by 0.01 a night record: refused. Invented
+    data, known truth."""
+    rng = np.random.default_rng(3)
+    hours = np.arange(48 * 60) % 48 / 2.0
+    sun = np.clip(np.sin((hours - 6) / 12 * np.pi), 0, None)
+    umol = 0.15 - 0.4 * sun + rng.laplace(0.0, 0.14, hours.size)
+    assert np.percentile(np.abs(umol), 99) < 1.0
+    base = {"rg": 900 * sun, "tair": 4.0 + 6.0 * sun}
+    columns = {"nee": "co2", "rg": "rg", "tair": "t"}
+    refusals, warnings = mixup_messages(base | {"nee": umol}, {}, columns, 30)
+    assert "nee" not in refusals and not any("too small" in w for w in warnings)
+    refusals, _ = mixup_messages(base | {"nee": umol * 44.009 / 1000}, {}, columns, 30)
+    assert 'nee = "mg CO2 m-2 s-1"' in refusals["nee"]
+
+
 @pytest.fixture(scope="module")
 def fen_year():
     from fluxpart import scenarios

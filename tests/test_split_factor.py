@@ -12,7 +12,7 @@ import pandas as pd
 import pytest
 
 from fluxpart.io import _unit_factors
-from fluxpart.split_factor import jump_factor, unit_of_factor
+from fluxpart.split_factor import jump_factor, stepped_months, unit_of_factor
 
 
 def _flux(days=120, seed=0):
@@ -110,3 +110,37 @@ def test_soil_water_as_tsoil_is_named_not_a_unit_changed_within(tmp_path):
             read_config(config)
         text = str(raised.value)
         assert "soil_temp_5cm" in text and named in text and absent not in text, text
+
+
+def _seasonal_flux(seed=0):
+    """A half-hourly year whose flux grows out of a dormant winter [µmol m-2 s-1]: a
+    night release and a daytime uptake scaled by a canopy 0.02 in winter, 1 in July, with
+    a random error of 0.1 + 0.1 |flux| (Richardson et al. 2006's form (m); invented data,
+    known truth)."""
+    starts = pd.date_range("2022-01-01", periods=365 * 48, freq="30min")
+    hour = np.asarray(starts.hour + starts.minute / 60.0)
+    day = np.clip(np.sin((hour - 6.0) / 12.0 * np.pi), 0.0, None)
+    canopy = 0.02 + 0.98 * np.exp(-0.5 * ((np.asarray(starts.day_of_year) - 196) / 45.0) ** 2)
+    flux = canopy * (3.0 - 20.0 * day) + 0.3
+    rng = np.random.default_rng(seed)
+    return starts, flux + rng.laplace(0.0, (0.1 + 0.1 * np.abs(flux)) / np.sqrt(2.0))
+
+
+def test_dormant_months_are_no_unit_but_a_unit_steps():
+    """Winter months small by nature join the months beside them without a step of 22.7
+    (mg CO2 m-2 s-1 against µmol m-2 s-1): not named; the same months written in mg CO2
+    step by 22.7 at their end and are kept, as is a summer month in mg CO2 (steps at
+    both ends)."""
+    starts, flux = _seasonal_flux()
+    factor = 1000.0 / 44.009
+    winter = ["2022-01", "2022-02", "2022-12"]
+    assert stepped_months(flux, starts, winter, factor) == []
+    written = flux.copy()
+    early = np.asarray(starts < pd.Timestamp("2022-03-01"))
+    written[early] /= factor
+    assert stepped_months(written, starts, winter, factor) == ["2022-01", "2022-02"]
+    written = flux.copy()
+    august = np.asarray(starts.strftime("%Y-%m") == "2022-08")
+    written[august] /= factor
+    assert stepped_months(written, starts, ["2022-08", "2022-12"], factor) == ["2022-08"]
+    assert stepped_months(written, starts, [], factor) == []
