@@ -21,7 +21,7 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import budget, gap_sides, gapfill, method_failure, uncertainty
+from . import budget, gap_sides, gapfill, method_failure, night_donors, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import (
     OTHER_TEMPERATURE,
@@ -144,11 +144,15 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     nee_measured = timeseries["nee_measured"].to_numpy(dtype=float)
     measured = np.isfinite(nee_measured)
     noise = np.where(measured, sigma, 0.0)
+    # the central run's night records that fill no gap (night_donors) fill no artificial
+    # gap or long gap's one-sided fill either: the errors scored are those of the fill used
+    withheld = outcomes["central"].withheld
     # only the held-out records are scored, so only they are filled (the same fills);
     # each artificial gap hides the drivers its real gap lacked
     gap_errors = uncertainty.artificial_gap_errors(
         nee_measured, noise, is_night,
-        lambda values, hidden: fill_nee(values, with_hidden(conditions, hidden), index,
+        lambda values, hidden: fill_nee(night_donors.donor_values(values, withheld),
+                                        with_hidden(conditions, hidden), index,
                                         is_night, config, gaps=measured & np.isnan(values),
                                         values_only=True, sun_up=sun_up),
         seed=uncertainty.artificial_gap_seed(nee_measured), records_per_day=24 * 60 // interval,
@@ -158,12 +162,13 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     sides = gap_sides.one_sided_fills(
         nee_measured, *gap_sides.long_gaps(~measured, 24 * 60 // interval,
                                            breaks=gapfill.event_breaks(index, config.events)),
-        lambda values, gaps: fill_nee(values, conditions, index, is_night, config,
-                                      gaps=gaps, values_only=True, sun_up=sun_up))
+        lambda values, gaps: fill_nee(night_donors.donor_values(values, withheld), conditions,
+                                      index, is_night, config, gaps=gaps, values_only=True,
+                                      sun_up=sun_up))
     runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
                                 "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
                                 "reco_daytime": d.reco}, index=index)
-            for name, (_, _, filled, n, d) in outcomes.items()}
+            for name, (_, _, filled, n, d, _) in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
     settings = nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
                                   method_failure.borrowed_e0(night), sun_up)
@@ -299,7 +304,7 @@ def scenario_spread(annual, outcomes, index, interval, year_keys) -> pd.DataFram
     if len(outcomes) == 1:
         return annual
     sums = {}
-    for name, (_, _, filled, night, day) in outcomes.items():
+    for name, (_, _, filled, night, day, _) in outcomes.items():
         per_record = pd.DataFrame({"nee": filled["value"].to_numpy(),
                                    "gpp_nighttime": night.gpp, "reco_nighttime": night.reco,
                                    "gpp_daytime": day.gpp, "reco_daytime": day.reco},

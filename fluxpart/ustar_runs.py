@@ -26,6 +26,7 @@ from . import (
     e0_evidence,
     gapfill,
     method_failure,
+    night_donors,
     night_uptake,
     preceding_light,
     screening,
@@ -126,6 +127,9 @@ class RunOutcome(NamedTuple):
         The nighttime method's result (NaN where it could not fit).
     day : fluxpart.partition.daytime.DaytimeResult
         The daytime method's result (NaN where it could not fit).
+    withheld : numpy.ndarray of bool or None
+        Night records measured but no donor for a night gap
+        (:func:`fluxpart.night_donors.withheld_donors`); None: none withheld.
     """
 
     too_calm: np.ndarray
@@ -133,11 +137,12 @@ class RunOutcome(NamedTuple):
     filled: pd.DataFrame
     night: object
     day: object
+    withheld: np.ndarray | None = None
 
 
 def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                        temperature, config, curvature, night_fit=None, central_fill=None,
-                       delay=0, skip=(), nearest_year=False, sun_up=None):
+                       delay=0, skip=(), nearest_year=False, sun_up=None, donor_margin=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     The central run lets one method that cannot fit be NaN and tries the nearest
@@ -172,10 +177,15 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         :attr:`RunInputs.sun_up` (dark donors for night gaps in darkness first; the
         nighttime fits' records with the sun down where ``night_fit_records =
         "sun_down"``).
+    donor_margin : numpy.ndarray, optional
+        The u* threshold's 1-sigma per record [m s-1]
+        (:func:`fluxpart.night_donors.threshold_spread`): the night records kept
+        between `threshold` and `threshold` + this stay measured but fill no night gap.
+        None: every kept record is a donor.
 
     Returns
     -------
-    too_calm, nee_measured, filled, night, day
+    too_calm, nee_measured, filled, night, day, withheld
         The fields of a :class:`RunOutcome`.
     errors : dict of str to Exception
         The methods that could not fit and why.
@@ -184,21 +194,30 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
     ----------
     Reichstein, M. et al. (2005), see the module (nighttime, marginal distribution sampling).
     Lasslop, G. et al. (2010), see the module (daytime).
+    Papale, D. et al. (2006). Biogeosciences 3, 571-583 (the threshold's bootstrap, the
+    donors' margin: :mod:`fluxpart.night_donors`).
     """
-    too_calm = screening.low_ustar(screened["ustar"].to_numpy(), is_night, threshold)
+    ustar = screened["ustar"].to_numpy()
+    too_calm = screening.low_ustar(ustar, is_night, threshold)
     nee_measured = np.where(too_calm, np.nan, screened["nee"].to_numpy())
+    # night records just above the threshold stay measured but fill no gap (night_donors)
+    withheld = night_donors.withheld_donors(nee_measured, ustar, is_night, threshold,
+                                           donor_margin)
+    donors = night_donors.donor_values(nee_measured, withheld)
+    missing = np.isnan(nee_measured)
     if central_fill is not None and config.gapfill_donors in ("separate_day_night",
                                                               "dark_first"):
         # the u* filter removes night records only, and day gaps take day donors only:
         # the day records of every u* scenario are those of the central fill
-        night_fill = fill_nee(nee_measured, conditions, frame.index, is_night, config,
-                              gaps=is_night, sun_up=sun_up)
+        night_fill = fill_nee(donors, conditions, frame.index, is_night, config,
+                              gaps=is_night & missing, sun_up=sun_up)
         filled = pd.DataFrame({column: np.where(is_night, night_fill[column].to_numpy(),
                                                 central_fill[column].to_numpy())
                                for column in night_fill.columns}, index=night_fill.index)
     else:
-        filled = fill_nee(nee_measured, conditions, frame.index, is_night, config,
-                          sun_up=sun_up)
+        filled = fill_nee(donors, conditions, frame.index, is_night, config,
+                          gaps=missing, sun_up=sun_up)
+    filled = night_donors.as_measured(filled, nee_measured, withheld)
     temperature_filled = respiration_temperature(filled_drivers, temperature, delay, True)
 
     def fit_nighttime(borrow):
@@ -218,7 +237,7 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         lambda night: fit_daytime(frame, nee_measured, screened, filled_drivers,
                                   temperature_filled, is_night, config, curvature, night),
         len(frame), temperature, skip=skip, degrade=central)
-    return too_calm, nee_measured, filled, night, day, errors
+    return too_calm, nee_measured, filled, night, day, withheld, errors
 
 
 def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
@@ -366,13 +385,15 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     # the central run (fluxpart.central_run.averaged_shape)
     curvature = light_shape.central_curvature(config.daytime_curvature)
     skip, borrowed = (), False
+    # one margin for every run: the threshold's own spread (night_donors)
+    margin = night_donors.threshold_spread(runs, config.night_donor_margin)
     for name, threshold in runs.items():
         try:
             *outcome, errors = fill_and_partition(
                 *arguments[:5], threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
                 None if name == "central" else outcomes["central"][2], delay, skip, borrowed,
-                sun_up=arguments.sun_up)
+                sun_up=arguments.sun_up, donor_margin=margin)
             outcomes[name] = RunOutcome(*outcome)
             if name == "central":
                 skip = tuple(errors)

@@ -11,7 +11,8 @@ import fluxpart
 ROOT = Path(fluxpart.__file__).parent
 #: modules that compute a method or stage; a writer of results needs none of them
 METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "column_faults",
-                  "driver_mixture", "gap_sides", "gapfill", "method_failure", "partition",
+                  "driver_mixture", "gap_sides", "gapfill", "method_failure", "night_donors",
+                  "partition",
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
                   "saturated_gaps", "scenarios", "screening", "shared_records", "solar",
                   "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_prefilter",

@@ -427,28 +427,39 @@ def test_a_different_seed_changes_only_the_random_draw_columns(demo_run):
     """Another seed changes only Monte Carlo and bootstrap-derived columns (issue 6).
 
     The seed drives the u* bootstrap (hence the scenario thresholds and their sums)
-    and the Monte Carlo of the random error; the central threshold, the filled series
-    and the central budget come from the data alone.
+    and the Monte Carlo of the random error; the central threshold and the measured
+    records come from the data alone. Since round donormargin51 the bootstrap's spread
+    also sets which night records just above the threshold fill no night gap
+    (``night_donor_margin``), so the seed moves the night fills, nighttime GPP (Reco −
+    NEE) and the NEE sums a little, and the gap-filling error scored with the same
+    donors: on the demo year by 0.024 g C m-2 (NEE), a 300th of its stated 1σ. The
+    bound here is a hundredth of the 1σ: a seed must not choose a central value.
     """
     frame, _, result = demo_run
     other = process(frame, demo.site(), Config(seed=7))
-    pd.testing.assert_frame_equal(other.timeseries, result.timeseries)
+    before, after = result.timeseries, other.timeseries
+    night_fill = {"nee_filled", "nee_fill_method", "nee_fill_window_days", "nee_fill_count",
+                  "nee_fill_std", "nee_fill_quality", "gpp_nighttime", "nee_random_error"}
+    moved = {c for c in before.columns if not before[c].equals(after[c])}
+    assert moved <= night_fill, moved - night_fill
+    measured = before["nee_measured"].notna() | ~before["is_night"]
+    pd.testing.assert_frame_equal(after.loc[measured, sorted(night_fill)],
+                                  before.loc[measured, sorted(night_fill)])
     changed = [c for c in result.annual.columns
                if not result.annual[c].equals(other.annual[c])]
     assert changed, "a new seed must change the Monte Carlo columns"
     random_draw = ("_ustar_p", "_ustar_spread", "_uncertainty", "_ci95_",
                    "net_uptake_t_co2_per_ha_")
-    assert all(any(part in c for part in random_draw) for c in changed), changed
-    for column in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime",
-                   "ustar_threshold", "net_uptake_t_co2_per_ha"):
+    for column in ("reco_nighttime", "gpp_daytime", "reco_daytime", "ustar_threshold"):
         assert column not in changed
-    # the artificial gaps are placed by a seed drawn from the data (since 0.13.0): the
-    # gap-filling part and its error model cannot be chosen by the seed
-    for column in ("nee_uncertainty_gapfill", "nee_uncertainty_gapfill_bias",
-                   "nee_uncertainty_gapfill_bias_se", "nee_uncertainty_random_analytic"):
-        assert column not in changed
-    pd.testing.assert_frame_equal(other.parameters["gapfill_error_model"],
-                                  result.parameters["gapfill_error_model"])
+    for flux in ("nee", "gpp_nighttime"):
+        shift = abs(other.annual[flux].iloc[0] - result.annual[flux].iloc[0])
+        assert shift < 0.01 * result.annual[f"{flux}_uncertainty_total"].iloc[0], (flux, shift)
+    central = {"nee", "gpp_nighttime", "net_uptake_t_co2_per_ha", "nee_share_from_filled",
+               "gpp_nighttime_share_from_filled", "gpp_method_difference",
+               "gpp_relative_difference"}
+    assert not [c for c in changed
+                if c not in central and not any(part in c for part in random_draw)]
 
 
 def test_clearness_option_changes_only_gaps_with_radiation(demo_run):
