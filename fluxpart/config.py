@@ -19,7 +19,8 @@ from typing import NamedTuple
 from ._validate import read_site_config_toml
 from .errors import ConfigError
 
-__all__ = ["Config", "UnknownSettingError", "keyword_checked", "setting_text", "suggest_key"]
+__all__ = ["ADDED_SETTINGS", "AddedSetting", "Config", "UnknownSettingError",
+           "absent_added_settings", "keyword_checked", "setting_text", "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -737,6 +738,44 @@ class Config:
         if not self.events:
             del out["events"]
         return out
+
+
+class AddedSetting(NamedTuple):
+    """A setting added after a release, and the value that behaves as before it.
+
+    Attributes
+    ----------
+    name : str
+        The :class:`Config` field.
+    release : str
+        The release that added it.
+    earlier : object
+        The value with which this code computes what the releases before `release`
+        did (byte-identical tables).
+    """
+
+    name: str
+    release: str
+    earlier: object
+
+
+#: Settings added after a release, whose absence from a result's recorded settings
+#: means the writing release's behaviour: ``fluxpart verify`` reruns such a result
+#: with `earlier` (a rerun with the new default recomputes another result). A new
+#: setting whose default changes numbers, or what a manifest records, is added here.
+ADDED_SETTINGS = (
+    AddedSetting("night_donor_margin", "0.34.0", "none"),
+    AddedSetting("night_fit_records", "0.34.0", "all_night"),
+)
+
+
+def absent_added_settings(recorded) -> tuple[AddedSetting, ...]:
+    """The :data:`ADDED_SETTINGS` that the recorded settings `recorded` (a manifest's
+    ``config`` mapping) do not name: those a release before them wrote. Empty where
+    `recorded` is no mapping (nothing is known of its release)."""
+    if not isinstance(recorded, dict):
+        return ()
+    return tuple(added for added in ADDED_SETTINGS if added.name not in recorded)
 
 
 class UnknownSettingError(ConfigError, TypeError):

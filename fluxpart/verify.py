@@ -15,7 +15,9 @@
 3. **The rerun** with the recorded settings and seed (those of the site config's
    ``[processing]`` table when the manifest says the settings came from it, else
    the manifest's ``config``), written by the same writer to a scratch folder
-   and read back.
+   and read back. A setting added after the writing release
+   (:data:`fluxpart.config.ADDED_SETTINGS`), which its recorded settings do not
+   name, takes the value that behaves as that release did, and is said so.
 4. **Comparison.** Every manifest field of the rerun (site, settings, seed,
    warnings, caution, reader record, screening thresholds, input hashes, table
    list) must equal the stored one; each that differs is named. Every table is
@@ -78,7 +80,7 @@ import numpy as np
 import pandas as pd
 
 from ._validate import printable_line
-from .config import Config
+from .config import Config, absent_added_settings
 from .errors import FluxpartError, InputFileError, OutputError
 from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .io import broken_link
@@ -1650,6 +1652,7 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
         config = recorded_config()
         from . import demo
 
+        config = _as_written(config, manifest, set(), notes)
         recorded = provenance["demo"]
         variant = recorded.get("variant", "c3")
         frame, _ = demo.site_year(seed=recorded.get("seed", 0), variant=variant)
@@ -1711,19 +1714,48 @@ def _recompute(directory: Path, manifest: dict, input_path, config_path, scratch
                          f"with the threshold the result recorded, {threshold:g} m s-1 "
                          f"(write ustar_threshold = {threshold:g} in the site config to run "
                          "it again)")
-    else:
-        config = recorded_config()
+        as_read = config
+        config = _as_written(config, manifest, set(_processing_table(site_config)), notes)
+        result = process_site_config(site_config, config, input_path=data_path)
+        if config != as_read:
+            # the site config's settings as the writing release read them: the rerun
+            # records them as the site config's, as that release did (not as the
+            # caller's, which only a setting the file does not name made them)
+            result = dataclasses.replace(
+                result, provenance={**result.provenance, "settings": "site config"},
+                _computed=None)
+        return "run", result, []
+    config = _as_written(recorded_config(), manifest, set(), notes)
     return "run", process_site_config(site_config, config, input_path=data_path), []
+
+
+def _processing_table(site_config) -> dict:
+    """The site config's ``[processing]`` table ({} where it has none)."""
+    from ._validate import read_toml
+
+    processing = read_toml(site_config, "site config").get("processing", {})
+    return processing if isinstance(processing, dict) else {}
+
+
+def _as_written(config: Config, manifest: dict, named: set, notes: list) -> Config:
+    """`config` with each setting added after the writing release
+    (:func:`fluxpart.config.absent_added_settings` of the manifest's ``config``) at
+    the value of the releases before it, unless the site config names it (`named`);
+    one line in `notes` per setting so taken."""
+    earlier = [added for added in absent_added_settings(manifest.get("config"))
+               if added.name not in named]
+    for added in earlier:
+        notes.append(f"{added.name} is absent from the recorded settings (added in "
+                     f"{added.release}): rerun with {json.dumps(added.earlier)}, the "
+                     "behaviour of the release that wrote the folder")
+    return dataclasses.replace(config, **{added.name: added.earlier for added in earlier})
 
 
 def _fixed_without_threshold(site_config) -> bool:
     """True where the site config's ``[processing]`` sets ``ustar_method = "fixed"``
     without ``ustar_threshold`` (refused for runs since 0.24.0)."""
-    from ._validate import read_toml
-
-    processing = read_toml(site_config, "site config").get("processing", {})
-    return isinstance(processing, dict) and processing.get("ustar_method") == "fixed" \
-        and "ustar_threshold" not in processing
+    processing = _processing_table(site_config)
+    return processing.get("ustar_method") == "fixed" and "ustar_threshold" not in processing
 
 
 # --------------------------------------------------------------------------- public
@@ -2090,8 +2122,13 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                          "told its notes (a layout understood, every value read as the file "
                          "means it) from its warnings; its warnings hold the notes this code "
                          "records apart, and differ by nothing else")
+        # a setting added after the writing release, rerun at its earlier value (a note)
+        as_written = {f"config.{added.name}": _text(added.earlier)
+                      for added in absent_added_settings(manifest.get("config"))}
         for found in _compare_manifests(manifest, new_manifest):
             if moved and found.column in MOVED_FIELDS:
+                continue
+            if found.stored == "(absent)" and as_written.get(found.column) == found.recomputed:
                 continue
             if found.column in _NAME_FIELDS:
                 # a renamed copy of the input: its content is checked by SHA-256

@@ -6,6 +6,7 @@ adjacent representable value, a "last-bit" change, relative size about 1.1e-16 t
 contract (DESIGN.md §4.1): exit 0 bit-identical or within rounding, 1 otherwise, 2 on error.
 """
 
+import dataclasses
 import json
 import os
 import shutil
@@ -1378,3 +1379,85 @@ def test_another_release_statement_of_the_checked_coverage_is_a_note(bundle, mon
     out = capsys.readouterr().out
     assert out.startswith("bit-identical")
     assert "note: provenance.uncertainty.checked" in out and "9.9.9" not in out
+
+
+@pytest.fixture(scope="module")
+def earlier_and_current(tmp_path_factory):
+    """Two folders of one short bundle with a bootstrapped u* threshold (45 days, 10
+    draws; a fixed threshold has no spread, so ``night_donor_margin`` would change
+    nothing): `earlier`, written with ``night_donor_margin = "none"`` and its manifest
+    then made as a release before 0.34.0 wrote it (the settings from the site config,
+    which names neither added setting; the recorded settings lacking both; resealed with
+    the project's own seal), and `current`, written by this code from the site config
+    (the new default). Returns (earlier, current)."""
+    import warnings
+
+    from fluxpart import FluxpartWarning
+    from fluxpart.config import ADDED_SETTINGS
+
+    root = tmp_path_factory.mktemp("added_settings")
+    path = make_bundle(root, records=24 * 2 * 45)
+    path.write_text(path.read_text().replace('ustar_method = "fixed"\nustar_threshold = 0.2\n',
+                                             "ustar_bootstrap_draws = 10\n"))
+    config = Config.from_toml(path)
+    assert config.night_donor_margin == "threshold_spread"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", FluxpartWarning)    # a partial year
+        process_site_config(path, dataclasses.replace(config, night_donor_margin="none")
+                            ).write(root / "earlier")
+        process_site_config(path).write(root / "current")
+
+    def as_earlier_release(manifest):
+        for added in ADDED_SETTINGS:
+            del manifest["config"][added.name]
+        manifest["provenance"]["settings"] = "site config"
+
+    _edit_manifest(root / "earlier", as_earlier_release, reseal=True)
+    return root / "earlier", root / "current"
+
+
+def test_a_setting_added_since_the_writing_release_reruns_at_its_earlier_value(
+        earlier_and_current, capsys):
+    """A folder whose recorded settings lack ``night_donor_margin`` (a 0.33.0 folder) is
+    rerun with "none", 0.33.0's fills: bit-identical, exit 0, one note per added setting
+    and no manifest difference; with the new default its NEE tables would differ (they
+    differ from `current`'s). Audit contract (DESIGN.md §4.1): the stored config is the
+    result's record, and a setting it does not name had the writing release's behaviour."""
+    earlier, current = earlier_and_current
+    assert any(not read_table(earlier / f"{name}.parquet").equals(
+        read_table(current / f"{name}.parquet")) for name in ("annual", "daily"))
+    assert main(["verify", str(earlier)]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    assert ('note: night_donor_margin is absent from the recorded settings (added in 0.34.0): '
+            'rerun with "none", the behaviour of the release that wrote the folder') in out
+    assert "night_fit_records is absent" in out and "manifest field" not in out
+
+
+def test_a_folder_naming_the_added_setting_verifies_as_before(earlier_and_current, capsys):
+    """A folder that records ``night_donor_margin = "threshold_spread"`` (written by this
+    code) is rerun with it, not with the earlier value: bit-identical without the note
+    (its tables differ from those of "none", the earlier folder's)."""
+    _, current = earlier_and_current
+    assert json.loads((current / "manifest.json").read_text())["config"][
+        "night_donor_margin"] == "threshold_spread"
+    assert main(["verify", str(current)]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and "absent from the recorded settings" not in out
+
+
+def test_each_added_setting_names_a_setting_and_an_accepted_earlier_value():
+    """The registry of settings added after a release: each is a setting, its earlier
+    value one ``Config`` accepts, its release a version number."""
+    from dataclasses import fields
+
+    from fluxpart.config import ADDED_SETTINGS, absent_added_settings
+
+    names = {f.name for f in fields(Config)}
+    for added in ADDED_SETTINGS:
+        assert added.name in names
+        assert getattr(Config(**{added.name: added.earlier}), added.name) == added.earlier
+        assert all(part.isdigit() for part in added.release.split("."))
+    assert absent_added_settings(Config().to_dict()) == ()
+    assert absent_added_settings({}) == ADDED_SETTINGS
+    assert absent_added_settings(None) == ()
