@@ -728,7 +728,11 @@ class Config:
         ``events`` (new in 0.22.0) is written only where some are declared: without
         them a run is that of 0.21.0, so the settings of a result written before stay
         the settings of its rerun (``fluxpart verify``, and ``batch``'s test of a site
-        result being current, compare them key by key).
+        result being current, compare them key by key). So is each setting of
+        :data:`_WRITTEN_AWAY_FROM_DEFAULT` only where it is not at the default that runs
+        as the releases before it did (review65: ``night_fit_records``, new after 0.33.0,
+        made every 0.33.0 result "NOT reproduced" and every batch site "settings
+        changed" on its key alone).
         """
         out = asdict(self)
         out["e0_bounds"] = list(self.e0_bounds)
@@ -737,6 +741,10 @@ class Config:
         out["events"] = list(self.events)
         if not self.events:
             del out["events"]
+        defaults = {item.name: item.default for item in fields(self)}
+        for name in _WRITTEN_AWAY_FROM_DEFAULT:
+            if out[name] == defaults[name]:
+                del out[name]
         return out
 
 
@@ -762,10 +770,11 @@ class AddedSetting(NamedTuple):
 #: Settings added after a release, whose absence from a result's recorded settings
 #: means the writing release's behaviour: ``fluxpart verify`` reruns such a result
 #: with `earlier` (a rerun with the new default recomputes another result). A new
-#: setting whose default changes numbers, or what a manifest records, is added here.
+#: setting whose default changes numbers is added here; one whose default keeps the
+#: earlier behaviour is written into the manifest only when it is not the default
+#: (``night_fit_records``, as ``events``: :meth:`Config.to_dict`) and needs no entry.
 ADDED_SETTINGS = (
     AddedSetting("night_donor_margin", "0.34.0", "none"),
-    AddedSetting("night_fit_records", "0.34.0", "all_night"),
 )
 
 
@@ -843,6 +852,10 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
         return f"; did you mean {close[0]!r}?" + (" (names are case-sensitive)" if same else "")
     return f"; valid {what}: {', '.join(sorted(valid))}"
 
+
+#: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
+#: only away from their default, with which a run is that of the release before them.
+_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records",)
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal"),

@@ -5,9 +5,10 @@ blank line ("Records written,17520", "End of data"), and a table saved from a
 spreadsheet may keep the statistics of each column under the records ("mean,...",
 "max,..."). Neither is a record (a footer line may name a date, "Written 2021-06-11",
 but it opens with a word and holds no time of day; a statistics row has a word where
-the records have their stamp). They are dropped with a warning quoting them
-(layouts38; refused before, naming them); a block that may be records is refused as
-before.
+the records have their stamp). They are dropped with a reader note quoting them
+(layouts38; refused before, naming them), with a warning where values stand under a
+stamp word that names no statistic (:func:`dropped_rows_hold_no_record`); a block that
+may be records is refused as before.
 """
 from __future__ import annotations
 
@@ -93,3 +94,42 @@ def summary_rows(stamp_text: pd.Series, time_columns) -> int:
     if words.all() or not words[-1:].any():
         return 0
     return int(len(words) - 1 - np.flatnonzero(~words)[-1])
+
+
+#: Words a spreadsheet or a statistics export writes for the statistics of a column
+#: (English, German, French, Spanish; spreadsheet function names AVERAGE, STDEV, ...),
+#: lower case with only their letters ("Std. dev." -> "stddev"); common practice (m).
+STATISTICS_WORDS = frozenset({
+    "mean", "average", "avg", "median", "mode", "max", "maximum", "min", "minimum", "sum",
+    "total", "totals", "count", "n", "std", "stdev", "stddev", "sd", "standarddeviation",
+    "var", "variance", "range", "se", "sem", "stderr", "standarderror",
+    "mittelwert", "mittel", "durchschnitt", "summe", "anzahl", "standardabweichung",
+    "moyenne", "somme", "médiane", "mediane", "nombre", "écarttype", "ecarttype",
+    "promedio", "media", "suma", "mediana", "máximo", "maximo", "mínimo", "minimo",
+    "cuenta", "desviaciónestándar", "desviacionestandar",
+})
+
+
+def dropped_rows_hold_no_record(stamp_words: pd.Series, cells: pd.DataFrame) -> bool:
+    """Whether rows whose stamp is a word (:func:`summary_rows`) surely hold no record.
+
+    They do where every stamp word names a statistic (:data:`STATISTICS_WORDS`: "mean",
+    "Std. dev.") or where no other cell of theirs holds a value ("END OF FILE,,,,"). A
+    row of values under another word ("Invalid Date", "ERROR") may be a record whose
+    stamp was lost, which the reader cannot tell from a summary.
+
+    Parameters
+    ----------
+    stamp_words : pandas.Series of str
+        The rows' stamp text.
+    cells : pandas.DataFrame
+        The rows' other cells, as written.
+
+    Returns
+    -------
+    bool
+    """
+    letters = stamp_words.astype(str).str.casefold().str.replace(r"[\W\d_]+", "", regex=True)
+    if letters.isin(STATISTICS_WORDS).all():
+        return True
+    return bool(cells.astype(str).apply(lambda column: column.str.strip() == "").all().all())

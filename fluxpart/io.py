@@ -4155,10 +4155,20 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
                                                                .str.strip()))
         where = (f"last line ({int(lines[-1])}" if summary == 1 else
                  f"last {summary} lines ({int(lines[kept])} to {int(lines[-1])}")
-        warnings.append(ReaderNote(
-            f"input file {source!r}: its {where}: {shown}) "
-            f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
-            "footer, or a spreadsheet's statistics under the records): dropped"))
+        others = raw.iloc[kept:].drop(columns=[c for c in time_columns if c in raw.columns])
+        if footers.dropped_rows_hold_no_record(stamp_text.iloc[kept:], others):
+            warnings.append(ReaderNote(
+                f"input file {source!r}: its {where}: {shown}) "
+                f"{'has' if summary == 1 else 'have'} a word for a stamp, no record (a "
+                "footer, or a spreadsheet's statistics under the records): dropped"))
+        else:
+            # values under a word that names no statistic: maybe records whose stamp was
+            # lost, so a warning (review65: a note said "no record")
+            warnings.append(
+                f"input file {source!r}: its {where}: {shown}) "
+                f"{'has' if summary == 1 else 'have'} a word for a stamp and values in other "
+                "columns (records whose stamp was lost, or statistics under the records?): "
+                "dropped, as no stamp places them")
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
         lines = lines[:kept]

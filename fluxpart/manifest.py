@@ -43,7 +43,7 @@ from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
            "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
-           "newer_format_reason",
+           "newer_format_reason", "path_entries",
            "name_in_other_case",
            "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
@@ -182,12 +182,12 @@ def portable_provenance(provenance: dict, directory) -> dict:
     """
     directory = Path(os.path.abspath(directory))
     out = _jsonable(provenance)
-    for entry in _path_entries(out):
+    for entry in path_entries(out):
         entry["path"] = _relative(entry["path"], directory)
     return out
 
 
-def _path_entries(provenance: dict) -> list[dict]:
+def path_entries(provenance: dict) -> list[dict]:
     """The dicts with a ``path`` among the input and site config records (files of several too)."""
     found = []
     for key in ("input", "site_config"):
@@ -248,7 +248,7 @@ def undecodable_paths(provenance: dict, directory) -> list[str]:
     count: a parent folder of both the result and the input does not appear in them.
     """
     found = []
-    for entry in _path_entries(portable_provenance(provenance, directory)):
+    for entry in path_entries(portable_provenance(provenance, directory)):
         path = entry.get("path")
         if isinstance(path, str) and path != shown_name(path):
             found.append(shown_name(path))
@@ -260,7 +260,7 @@ def escaped_paths(provenance: dict) -> dict:
     ``\\xNN`` (:func:`shown_name`): for a scratch copy of a result whose paths are never
     compared (verify's rerun from an input given in such a folder)."""
     out = _jsonable(provenance)
-    for entry in _path_entries(out):
+    for entry in path_entries(out):
         if isinstance(entry.get("path"), str):
             entry["path"] = shown_name(entry["path"])
     return out
@@ -278,7 +278,7 @@ def undecodable_message(shown: str) -> str:
 def without_paths(provenance: dict) -> dict:
     """A copy of `provenance` without the recorded paths (which differ between places)."""
     out = _jsonable(provenance)
-    for entry in _path_entries(out):
+    for entry in path_entries(out):
         entry.pop("path")
     return out
 
@@ -326,7 +326,7 @@ def recorded_paths(provenance: dict, directory) -> list[Path]:
     list of pathlib.Path
         Absolute paths, the input file(s) first; entries without a path are left out.
     """
-    found = (recorded_path(directory, entry) for entry in _path_entries(provenance))
+    found = (recorded_path(directory, entry) for entry in path_entries(provenance))
     return [path for path in found if path is not None]
 
 

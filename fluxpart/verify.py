@@ -90,6 +90,7 @@ from .manifest import (
     escaped_paths,
     library_versions,
     newer_format_reason,
+    path_entries,
     read_manifest,
     recorded_path,
     shown_name,
@@ -101,7 +102,8 @@ from .resultdir import interrupted_writes
 from .store import file_sha256, read_table, require_owner_access
 
 __all__ = ["JSON_FORMAT", "NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
-           "command_verify", "compare_tables", "field_differences", "verify", "within_rounding"]
+           "command_verify", "compare_tables", "field_differences", "respelled_inputs", "verify",
+           "within_rounding"]
 
 #: Largest relative difference of a float value still classed as floating-point rounding.
 ROUNDING_TOLERANCE = 1e-6
@@ -1028,6 +1030,73 @@ def replaced_manifest(differences, manifest: dict, recomputed: dict | None = Non
                  "records, so the manifest is its own run's record and the tables are "
                  "another result's")
     return text
+
+
+#: A quoted text in a message (:func:`repr` quotes with ' or, where the text holds one, ").
+_QUOTED = re.compile(r"'([^']*)'|\"([^\"]*)\"")
+
+
+def _messages(manifest: dict) -> list:
+    """The message lists of a manifest that name input files: the run's warnings and the
+    reader's warnings and notes (each a list, or absent)."""
+    reader = (manifest.get("provenance") or {}).get("reader")
+    reader = reader if isinstance(reader, dict) else {}
+    found = [manifest.get("warnings"), reader.get("warnings"), reader.get("notes")]
+    return [texts for texts in found if isinstance(texts, list)]
+
+
+def _input_spellings(manifest: dict, names: set) -> dict:
+    """File name -> the first quoted path in the manifest's messages ending in it."""
+    spelled = {}
+    for texts in _messages(manifest):
+        for text in texts:
+            for match in _QUOTED.finditer(str(text)):
+                quoted = match.group(1) if match.group(1) is not None else match.group(2)
+                name = re.split(r"[\\/]", quoted)[-1]
+                if name in names:
+                    spelled.setdefault(name, quoted)
+    return spelled
+
+
+def respelled_inputs(stored: dict, recomputed: dict) -> tuple[dict, list]:
+    """`recomputed` with each input file its messages name by another path than the
+    `stored` messages do written as they do, and the (recomputed, stored) paths changed.
+
+    A run given ``site.toml`` in the input's folder names ``'flux.csv'`` in its
+    warnings; `verify` reruns it on the whole path (``'/data/site/flux.csv'``). Only a
+    quoted path whose file name is that of a recorded input or site config is changed,
+    and only where the stored messages name it by another path; the files' content is
+    checked by SHA-256 before the rerun.
+
+    Parameters
+    ----------
+    stored, recomputed : dict
+        A result's manifest as its folder holds it, and its rerun's.
+
+    Returns
+    -------
+    (dict, list of (str, str))
+        The recomputed manifest (a copy where changed) and the paths changed.
+    """
+    names = {Path(str(entry["path"])).name for entry in path_entries(
+        stored.get("provenance") or {}) if isinstance(entry.get("path"), str)}
+    wanted, found = _input_spellings(stored, names), _input_spellings(recomputed, names)
+    pairs = [(found[name], wanted[name]) for name in sorted(wanted)
+             if name in found and found[name] != wanted[name]]
+    if not pairs:
+        return recomputed, []
+
+    def respelled(text):
+        if not isinstance(text, str):
+            return text
+        for path, spelling in pairs:
+            text = text.replace(repr(path), repr(spelling)).replace(f'"{path}"', f'"{spelling}"')
+        return text
+
+    out = json.loads(json.dumps(recomputed))
+    for texts in _messages(out):
+        texts[:] = [respelled(text) for text in texts]
+    return out, pairs
 
 
 def _compare_manifests(stored: dict, recomputed: dict) -> list:
@@ -2116,6 +2185,16 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                               "TMPDIR at another), or raise the file-size limit (ulimit -f)"
                               ) from None
         new_manifest = read_manifest(again)
+        # messages name an input file as the run was given it (relative to the folder it
+        # ran in), the rerun by its whole path (review65: a 0.33.0 result of a run in the
+        # input's folder was "NOT reproduced" on every warning naming its file)
+        new_manifest, respelled = respelled_inputs(manifest, new_manifest)
+        if respelled:
+            notes.append("warnings: the messages name the input file(s) as the run was "
+                         "given them, the rerun by another path ("
+                         + "; ".join(f"{shown_name(again_)!r} read as {shown_name(stored_)!r}"
+                                     for again_, stored_ in respelled)
+                         + "); compared so (each file's content is checked by its SHA-256)")
         moved = notes_moved(manifest, new_manifest)
         if moved:
             notes.append("provenance.reader.notes: the result was written before the reader "

@@ -195,11 +195,22 @@ def test_to_dict_round_trips_through_json():
     config = Config(seed=3, e0_fallback=150.0)
     again = Config.from_mapping(json.loads(json.dumps(config.to_dict())))
     assert again == config
-    # events (0.22.0) only where declared, so a 0.21.0 result's settings stay its rerun's
-    assert set(config.to_dict()) == set(Config.field_names()) - {"events"}
-    declared = Config(events=("2021-07-20",))
+    # events (0.22.0) only where declared, so a 0.21.0 result's settings stay its rerun's;
+    # night_fit_records (after 0.33.0) only away from its default, likewise for 0.33.0
+    assert set(config.to_dict()) == set(Config.field_names()) - {"events", "night_fit_records"}
+    declared = Config(events=("2021-07-20",), night_fit_records="sun_down")
     assert set(declared.to_dict()) == set(Config.field_names())
     assert Config.from_mapping(json.loads(json.dumps(declared.to_dict()))) == declared
+
+
+def test_a_setting_added_after_a_release_is_written_only_away_from_its_default():
+    """A result written at night_fit_records' default holds the settings a 0.33.0 result
+    holds, so `verify` of a 0.33.0 folder and `batch`'s test of a site result being current
+    find no setting changed (review65: "NOT reproduced: config.night_fit_records differs:
+    stored (absent), recomputed "all_night"" on both examples' 0.33.0 folders)."""
+    assert "night_fit_records" not in Config(night_fit_records="all_night").to_dict()
+    assert Config.from_mapping(Config().to_dict()).night_fit_records == "all_night"
+    assert Config(night_fit_records="sun_down").to_dict()["night_fit_records"] == "sun_down"
 
 
 def test_site_accepts_southern_and_western_hemispheres():

@@ -90,3 +90,22 @@ def test_verify_names_notes_moved_out_of_an_earlier_results_warnings():
                            recomputed)
     assert not notes_moved(recomputed, recomputed)
     assert not notes_moved(stored, {**stored, "provenance": {"reader": {"warnings": []}}})
+
+
+def test_values_under_a_stamp_word_that_names_no_statistic_stay_a_warning(tmp_path):
+    """Rows ending the file with a word for a stamp are dropped. Under a statistic's name
+    ("mean", "Std. dev.") or holding no value ("END OF FILE,,,,") they hold no record: a
+    note. Values under another word ("Invalid Date": a stamp a program failed to write)
+    may be records whose stamp was lost: a warning (review65: a note said "no record")."""
+    path = _tower_file(tmp_path)
+    width = path.read_text(encoding="utf-8").splitlines()[0].count(",")
+    values = "," + ",".join(["1.5"] * width) + "\n"
+    for after, note in (("mean" + values + "Std. dev." + values, True),
+                        ("END OF FILE" + "," * width + "\n", True),
+                        ("Invalid Date" + values, False)):
+        path = _tower_file(tmp_path, after=after)
+        frame, report = _read(path)
+        assert report.records_read == 96
+        said = report.notes if note else report.warnings
+        assert len(said) == 1 and "a word for a stamp" in said[0], (after, report)
+        assert (report.warnings if note else report.notes) == ()

@@ -22,9 +22,6 @@ from __future__ import annotations
 
 import numpy as np
 
-#: ``Config.night_fit_records`` values: every night record, or the dark ones first.
-NIGHT_FIT_CHOICES = ("all_night", "sun_down")
-
 _SECONDS_PER_DAY = 86400.0
 
 
