@@ -6,7 +6,7 @@ claim; a credited budget needs the applicable crediting methodology and accredit
 verification.
 
 An independent generator, made unlike ``probe_clean_sites.py`` (whose output format helpers
-alone it shares) so that a check tuned to one generator's habits shows on the other: 32
+alone it shares) so that a check tuned to one generator's habits shows on the other: 34
 ordinary site-years, latitudes 0-70 deg in both hemispheres, 30 and 60 min records, local
 standard time, no mistake planted. Textbook forms, written fresh with numpy and pandas:
 
@@ -37,7 +37,7 @@ standard time, no mistake planted. Textbook forms, written fresh with numpy and 
   logger that browns out in long dark cloudy spells, fortnightly calibration hours, a failed
   analyser for days.
 
-Run from the repository root (about 12 min on two shared cores, 2 min with ``--no-run``)::
+Run from the repository root (about 6 min on two shared cores, 2 min with ``--no-run``)::
 
     PYTHONPATH=$PWD python tests/benchmarks/probe_clean_sites_weather.py --out /tmp/fluxpart-weather
         [--sites w01,w20] [--no-run] [--seed 0] [--jobs 2]
