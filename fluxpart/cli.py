@@ -485,6 +485,7 @@ def _command_check(args) -> int:
             problems.append(f"u* threshold: {unused}")
         # each note names its stage itself ("u* threshold: ...", as run warns it)
         problems += list(thresholds.attrs.get("setting_notes", ()))
+        problems += [f"{text} (run stops)" for text in thresholds.attrs.get("e0_stops", ())]
     from .settings_notes import ignored_settings
 
     problems += ignored_settings(config)

@@ -53,6 +53,7 @@ can swing twice the air (m), and on the example site the swap moved annual NEE b
 from __future__ import annotations
 
 import math
+from statistics import NormalDist
 
 import numpy as np
 import pandas as pd
@@ -854,7 +855,8 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
     active vegetation the changes of NEE from record to record correlate negatively with
     those of Rg (a cloud passing: less light, less uptake, NEE up). A month whose
     correlation is clearly positive (above 0.2 and 3 standard errors of Fisher's z,
-    sqrt(1 / (n - 3)), above 0) in a record holding clearly negative months as well has
+    sqrt(1 / (n - 3)), above 0, raised for the number of periods judged by Bonferroni's
+    bound (:func:`_family_bound`): 3.7 for 12 months, 4.0 for 52 weeks) in a record holding clearly negative months as well has
     NEE of the opposite sign there: a sign convention that changed within the record
     (a new logger program, a second processing's file). The whole record of the
     opposite sign is the reader's refusal (:mod:`fluxpart.unit_checks`). Where no month
@@ -907,21 +909,41 @@ def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | 
             f"those {'months' if what == 'month(s)' else 'days'} in a copy of the file")
 
 
+def _family_bound(periods: int) -> float:
+    """Standard errors of Fisher's z a period's correlation must pass when `periods` are
+    judged: the Bonferroni bound that keeps the chance of any period of no light
+    response passing at that of one test at :data:`_LAG_STANDARD_ERRORS` (falsealarm52).
+
+    Each period judged is one more draw of the noise: 52 dormant weeks tested at 3
+    standard errors (two-sided 0.27 % each) pass one by chance in 13 % of the years
+    (1 - 0.9973^52). Bonferroni (Dunn 1961, J. Am. Stat. Assoc. 56: 52-64 (m)); 12
+    months need 3.7 standard errors, 52 weeks 4.0. A flipped sign of an active canopy
+    gives correlations of 0.4 or more over a week's 100-300 sunlit pairs (6-10 standard
+    errors), far beyond either.
+    """
+    single = 2 * NormalDist().cdf(-_LAG_STANDARD_ERRORS)
+    return max(_LAG_STANDARD_ERRORS, NormalDist().inv_cdf(1 - single / (2 * max(periods, 1))))
+
+
 def _clear_responses(d_nee, d_rg, usable, codes) -> tuple[list, list]:
     """The periods (`codes`) whose sunlit NEE changes correlate clearly positively and
-    clearly negatively with those of Rg: lists of (code, correlation)."""
-    rising, falling = [], []
+    clearly negatively with those of Rg: lists of (code, correlation), each past the
+    family bound of the periods judged (:func:`_family_bound`)."""
+    judged = []
     # each period's pairs in time order by one sort, not one pass per period (_groups)
     for code, chosen in group_positions(codes, usable).items():
         count = int(chosen.size)
         if count < _MONTH_PAIRS:
             continue
         r, _ = _correlation(d_nee[chosen], d_rg[chosen], _MONTH_PAIRS)
-        if not math.isfinite(r) or abs(r) < _CLEAR_RESPONSE:
+        if math.isfinite(r):
+            judged.append((int(code), r, count))
+    bound = _family_bound(len(judged))
+    rising, falling = [], []
+    for code, r, count in judged:
+        if abs(r) < _CLEAR_RESPONSE or abs(math.atanh(r)) * math.sqrt(count - 3) <= bound:
             continue
-        if abs(math.atanh(r)) * math.sqrt(count - 3) <= _LAG_STANDARD_ERRORS:
-            continue
-        (rising if r > 0 else falling).append((int(code), r))
+        (rising if r > 0 else falling).append((code, r))
     return rising, falling
 
 

@@ -40,6 +40,7 @@ from . import (
     budget_warnings,
     canonical_frame,
     central_run,
+    e0_foresight,
     gapfill,
     preflight,
     respiration_driver,
@@ -134,15 +135,17 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
         without the two that follow the u* threshold (``low_ustar``, ``morning_release``).
     thresholds : pandas.DataFrame
         The u* table of :attr:`Result.ustar`; ``attrs["setting_notes"]`` holds the warnings
-        about a set threshold or floor (:func:`fluxpart.ustar_stage.threshold_setting_notes`).
+        about a set threshold or floor (:func:`fluxpart.ustar_stage.threshold_setting_notes`),
+        ``attrs["e0_stops"]`` the run's stop at the nighttime E0 where no year has one
+        (:func:`fluxpart.e0_foresight.e0_stops`).
     """
     config = canonical_frame.checked_config(config)
     frame, _ = canonical_frame.prepare(frame, site)
     interval = canonical_frame.validate(frame)
     frame, _ = canonical_frame.budget_record(frame, config, interval)
     _, is_night, screens = screening_stage.geometry_and_screening(frame, site, config, interval)
-    table, _, _, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night, site,
-                                                  config)
+    table, _, central, _ = ustar_stage.ustar_thresholds(frame, screens.screened, is_night,
+                                                        site, config)
     # a set threshold or floor the night records disagree with, as `run` warns it
     # (review52: check exited 0 on a floor that moved NEE by 4 sigma). Kept in the
     # table's attrs, not a third return value (leftovers49, read and left): the public
@@ -152,6 +155,9 @@ def screening_summary(frame: pd.DataFrame, site: Site, config: Config | None = N
     # (a table from elsewhere) lists none (`attrs.get`)
     table.attrs["setting_notes"] = tuple(ustar_stage.threshold_setting_notes(
         frame, screens.screened, is_night, site, config))
+    # the run's stop at the E0 fit, now that its night records are known (falsealarm52)
+    table.attrs["e0_stops"] = tuple(e0_foresight.e0_stops(screens.screened, is_night, central,
+                                                          config))
     # the reasons decided after the u* threshold (low u*, mornings after calm nights) are
     # not known here: a count of 0 would read as none
     return screens.counts.drop(labels=["low_ustar", "morning_release"], errors="ignore"), table

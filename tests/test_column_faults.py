@@ -451,6 +451,28 @@ def test_a_dormant_week_beside_active_ones_is_quiet():
     assert months_rising_with_light(dormant, rg, potential, stamps) is None
 
 
+def test_a_dormant_week_at_chance_correlation_is_quiet():
+    # falsealarm52: a snow-covered week of an alpine site whose NEE noise happened to
+    # correlate with the light at 3.3 standard errors was named "of the opposite sign";
+    # one test per week is 52 chances a year, so each week must pass the family's
+    # Bonferroni bound (4.0 for 52 weeks, 3.7 for 12 months; Dunn 1961 (m))
+    nee, rg, potential, stamps = stamped_light_record()
+    rng = np.random.default_rng(7)
+    week = (stamps >= "2021-05-10") & (stamps < "2021-05-17")
+    noise = rng.normal(0, 1.0, nee.size)
+    sunlit = week[1:] & (potential[1:] > 0) & (potential[:-1] > 0)
+    d_rg, d_noise = np.diff(rg)[sunlit], np.diff(noise)[sunlit]
+    target = 3.3 / np.sqrt(sunlit.sum() - 3)            # Fisher z of 3.3 standard errors
+    slope = np.tanh(target) * d_noise.std() / (d_rg.std() * np.sqrt(1 - np.tanh(target) ** 2))
+    dormant = np.where(week, 1.0 + slope * rg + noise, nee)
+    r = np.corrcoef(np.diff(dormant)[sunlit], d_rg)[0, 1]
+    assert 3.0 < np.arctanh(r) * np.sqrt(sunlit.sum() - 3) < 4.0 and r > 0.2
+    assert months_rising_with_light(dormant, rg, potential, stamps) is None
+    # a flipped week of the same record is still named (6 standard errors and more)
+    flipped = np.where(week, -nee, nee)
+    assert "2021-05-10 .. 2021-05-16" in months_rising_with_light(flipped, rg, potential, stamps)
+
+
 def sign_record(seed=0, days=365):
     """Invented half-hourly NEE of a year crossing zero, with a measured flux's noise.
 

@@ -556,9 +556,11 @@ def check_name(problem: str) -> str:
     return re.sub(r"\d[\d.,]*", "#", head).strip()
 
 
-def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--out", default="/tmp/fluxpart-clean")
+def run_probe(argv, sites, write, default_out: str, description: str) -> int:
+    """Write each chosen site with ``write(spec, seed, folder)``, run `check` (and `run`)
+    on it and print every problem and warning per site and the counts per check."""
+    parser = argparse.ArgumentParser(description=description)
+    parser.add_argument("--out", default=default_out)
     parser.add_argument("--sites", default="")
     parser.add_argument("--seed", type=int, default=0)
     parser.add_argument("--no-run", action="store_true")
@@ -566,13 +568,13 @@ def main(argv=None) -> int:
     args = parser.parse_args(argv)
     folder = Path(args.out)
     folder.mkdir(parents=True, exist_ok=True)
-    chosen = [s for s in SITES if not args.sites or s[0] in args.sites.split(",")]
+    chosen = [s for s in sites if not args.sites or s[0] in args.sites.split(",")]
     counts = {"check": Counter(), "run": Counter()}
     flagged = {"check": 0, "run": 0}
     commands = ("check",) if args.no_run else ("check", "run")
 
     def one_site(spec):
-        config = write_site(spec, args.seed, folder)
+        config = write(spec, args.seed, folder)
         found = {}
         for command in commands:
             extra = ["--out", str(folder / f"{spec[0]}_out")] if command == "run" else []
@@ -601,6 +603,10 @@ def main(argv=None) -> int:
         for key, value in counter.most_common():
             print(f"  {value:3d}  {key}")
     return 0
+
+
+def main(argv=None) -> int:
+    return run_probe(argv, SITES, write_site, "/tmp/fluxpart-clean", __doc__.splitlines()[0])
 
 
 if __name__ == "__main__":
