@@ -1447,6 +1447,21 @@ def test_a_folder_naming_the_added_setting_verifies_as_before(earlier_and_curren
     assert out.startswith("bit-identical") and "absent from the recorded settings" not in out
 
 
+def test_a_loaded_folder_of_an_earlier_release_says_what_computed_it(earlier_and_current):
+    """``fluxpart.load`` of a folder whose recorded settings lack ``night_donor_margin``
+    (a 0.33.0 folder) gives "none", the value that computed its tables, not this
+    release's default (leftovers54); a folder that records the setting keeps it. A
+    loaded result written again records the setting it was computed with."""
+    import fluxpart
+
+    earlier, current = earlier_and_current
+    assert "night_donor_margin" not in json.loads((earlier / "manifest.json").read_text())[
+        "config"]
+    assert fluxpart.load(earlier).config.night_donor_margin == "none"
+    assert fluxpart.load(current).config.night_donor_margin == "threshold_spread"
+    assert Config().night_donor_margin == "threshold_spread"
+
+
 def test_each_added_setting_names_a_setting_and_an_accepted_earlier_value():
     """The registry of settings added after a release: each is a setting, its earlier
     value one ``Config`` accepts, its release a version number."""
