@@ -46,7 +46,8 @@ __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_
            "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
            "newer_format_reason", "path_entries",
            "name_in_other_case",
-           "portable_messages", "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
+           "QUOTED_TEXT", "portable_messages", "portable_provenance", "read_manifest",
+           "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
            "without_paths"]
 
@@ -192,8 +193,9 @@ def portable_provenance(provenance: dict, directory) -> dict:
     return out
 
 
-#: A quoted part of a message: ``'...'`` (as ``repr`` quotes a path) or ``"..."``.
-_QUOTED = re.compile(r"'([^']*)'|\"([^\"]*)\"")
+#: A quoted part of a message: ``'...'`` or ``"..."`` (as :func:`repr` quotes a path,
+#: with " where the text holds a ').
+QUOTED_TEXT = re.compile(r"'([^']*)'|\"([^\"]*)\"")
 
 
 def portable_messages(texts, provenance: dict, directory) -> list:
@@ -243,7 +245,7 @@ def portable_messages(texts, provenance: dict, directory) -> list:
             return match.group(0)
         return repr(relative) if match.group(1) is not None else f'"{relative}"'
 
-    return [_QUOTED.sub(portable, text) if isinstance(text, str) else text for text in texts]
+    return [QUOTED_TEXT.sub(portable, text) if isinstance(text, str) else text for text in texts]
 
 
 def path_entries(provenance: dict) -> list[dict]:

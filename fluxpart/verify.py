@@ -86,6 +86,7 @@ from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .io import broken_link
 from .manifest import (
     CAUTION,
+    QUOTED_TEXT,
     RUN_LOG,
     escaped_paths,
     library_versions,
@@ -1033,10 +1034,6 @@ def replaced_manifest(differences, manifest: dict, recomputed: dict | None = Non
     return text
 
 
-#: A quoted text in a message (:func:`repr` quotes with ' or, where the text holds one, ").
-_QUOTED = re.compile(r"'([^']*)'|\"([^\"]*)\"")
-
-
 def _messages(manifest: dict) -> list:
     """The message lists of a manifest that name input files: the run's warnings and the
     reader's warnings and notes (each a list, or absent)."""
@@ -1051,7 +1048,7 @@ def _input_spellings(manifest: dict, names: set) -> dict:
     spelled = {}
     for texts in _messages(manifest):
         for text in texts:
-            for match in _QUOTED.finditer(str(text)):
+            for match in QUOTED_TEXT.finditer(str(text)):
                 quoted = match.group(1) if match.group(1) is not None else match.group(2)
                 name = re.split(r"[\\/]", quoted)[-1]
                 if name in names:
