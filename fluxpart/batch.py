@@ -65,7 +65,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 
 from ._validate import odd_entry, other_system_path_hint, read_toml, unicode_form_hint
-from .config import Config, suggest_key
+from .config import Config, absent_added_settings, suggest_key
 from .errors import ConfigError, FluxpartError, FluxpartWarning, InputFileError, OutputError
 from .fingerprint import code_fingerprint
 from .manifest import (
@@ -561,7 +561,7 @@ def _stale_reason(config, directory) -> str | None:
     if (provenance.get("input") or {}).get("sha256") != input_sha:
         return "input changed"
     if manifest.get("config") != settings:
-        return "settings changed"
+        return _settings_reason(manifest.get("config"), settings)
     if manifest.get("versions") != library_versions():
         return "library versions changed"
     if (manifest.get("code") or {}).get("sha256") != code_fingerprint()["sha256"]:
@@ -574,6 +574,28 @@ def _stale_reason(config, directory) -> str | None:
             return f"table {problem.file!r} {'changed' if problem.kind == 'hash' else 'missing'}"
         return f"folder does not match its manifest ({problem.describe()})"
     return None
+
+
+def _settings_reason(recorded, settings: dict) -> str:
+    """Why the recorded settings `recorded` (a manifest's ``config``) are not `settings`
+    (the site config's now): a setting added after the folder's release
+    (:data:`fluxpart.config.ADDED_SETTINGS`) is named with the value that computed the
+    folder and the value now; "settings changed" where a setting the folder records
+    differs too, or where no added setting explains it.
+
+    A folder of an earlier release reruns for a new result; "settings changed" alone
+    read as an edit of the site config nobody made (leftovers54)."""
+    added = [item for item in absent_added_settings(recorded) if item.name in settings]
+    if not added:
+        return "settings changed"
+    named = ", ".join(f"{item.name} (added in {item.release}: the folder computed as "
+                      f"{json.dumps(item.earlier)}, now {json.dumps(settings[item.name])})"
+                      for item in added)
+    rest = {key: value for key, value in settings.items()
+            if key not in {item.name for item in added}}
+    what = "a setting" if len(added) == 1 else "settings"
+    return (f"{what} added since the folder's release: {named}" if rest == recorded
+            else f"settings changed, and {what} added since the folder's release: {named}")
 
 
 def is_up_to_date(config, directory) -> bool:

@@ -435,8 +435,10 @@ class ReadReport:
     def to_dict(self) -> dict:
         """The report as plain JSON-ready values (for the manifest's provenance)."""
         return {
-            # no file names or paths: provenance.input records them, and a rerun from a
-            # moved or renamed copy must give the same reader record
+            # no file names or paths in the counts: provenance.input records them, and a
+            # rerun from a moved copy must give the same reader record; the manifest
+            # writes a path its warnings and notes quote relative to the result folder
+            # (manifest.portable_messages)
             "files": len(self.files or (self.source,)),
             "encodings": list(self.encodings),
             "records_read": self.records_read, "records": self.records,

@@ -7,7 +7,8 @@
   their paths *relative to the result folder* (so a bundle of result, input and
   config can move as a whole), the site config's full text (its ``[input]``
   table says how the input was read), the reader's record and the screening
-  thresholds;
+  thresholds; a message (warning, reader note) names such a file by that relative
+  path too, not by the path the run was given;
 - ``versions`` of Python and the libraries that shape the numbers, ``code`` (a
   fingerprint of the package's own source, :func:`fluxpart.fingerprint.code_fingerprint`)
   and ``platform`` (CPU features and BLAS, :func:`fluxpart.fingerprint.platform_record`);
@@ -45,7 +46,8 @@ __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_
            "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
            "newer_format_reason", "path_entries",
            "name_in_other_case",
-           "portable_provenance", "read_manifest", "recorded_path", "recorded_paths",
+           "QUOTED_TEXT", "portable_messages", "portable_provenance", "read_manifest",
+           "recorded_path", "recorded_paths",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
            "without_paths"]
 
@@ -182,9 +184,68 @@ def portable_provenance(provenance: dict, directory) -> dict:
     """
     directory = Path(os.path.abspath(directory))
     out = _jsonable(provenance)
+    reader = out.get("reader")
+    for key in ("warnings", "notes"):
+        if isinstance(reader, dict) and isinstance(reader.get(key), list):
+            reader[key] = portable_messages(reader[key], provenance, directory)
     for entry in path_entries(out):
         entry["path"] = _relative(entry["path"], directory)
     return out
+
+
+#: A quoted part of a message: ``'...'`` or ``"..."`` (as :func:`repr` quotes a path,
+#: with " where the text holds a ').
+QUOTED_TEXT = re.compile(r"'([^']*)'|\"([^\"]*)\"")
+
+
+def portable_messages(texts, provenance: dict, directory) -> list:
+    """`texts` (a run's messages) with each quoted path that names a recorded input file
+    or site config written as the manifest records that file: relative to `directory`.
+
+    A message names the input by the path the run was given (``'site/flux.csv'`` from
+    the folder it ran in, or a whole path), which says where the run was started, not
+    where the file lies beside the result; the manifest records paths relative to the
+    result folder, so a bundle moved as a whole keeps its record. A quoted part is
+    changed only where it leads to the file a recorded path names (the same real path,
+    resolved from the current folder as the run resolved it); any other text is kept.
+
+    Parameters
+    ----------
+    texts : sequence of str
+        Messages (warnings, reader notes); an item that is no string is kept.
+    provenance : dict
+        As carried by a result, the recorded paths absolute
+        (:func:`fluxpart.process_site_config`).
+    directory : path-like
+        The result folder's final place.
+
+    Returns
+    -------
+    list
+        The messages, paths naming a recorded file relative to `directory` (POSIX
+        separators).
+    """
+    directory = Path(os.path.abspath(directory))
+    places = {}
+    for entry in path_entries(_jsonable(provenance)):
+        recorded = entry["path"]
+        if isinstance(recorded, str) and recorded and Path(recorded).is_absolute():
+            places[os.path.realpath(recorded)] = _relative(recorded, directory)
+    names = {Path(place).name for place in places}
+
+    def portable(match):
+        quoted = match.group(1) if match.group(1) is not None else match.group(2)
+        if not quoted or re.split(r"[\\/]", quoted)[-1] not in names:
+            return match.group(0)
+        try:
+            relative = places.get(os.path.realpath(quoted))
+        except (OSError, ValueError):     # a NUL character: no path
+            return match.group(0)
+        if relative is None or relative == quoted:
+            return match.group(0)
+        return repr(relative) if match.group(1) is not None else f'"{relative}"'
+
+    return [QUOTED_TEXT.sub(portable, text) if isinstance(text, str) else text for text in texts]
 
 
 def path_entries(provenance: dict) -> list[dict]:
@@ -347,7 +408,8 @@ def build_manifest(tables: dict, *, site: dict, config: dict, seed, provenance: 
         Input and site config records, reader record, screening thresholds;
         paths are made relative to `directory` (:func:`portable_provenance`).
     warnings : sequence of str
-        Warnings of the run.
+        Warnings of the run; a quoted path naming a recorded file is made relative to
+        `directory` (:func:`portable_messages`), as in the reader's warnings and notes.
     versions, code, platform_facts : dict
         :func:`library_versions`, :func:`fluxpart.fingerprint.code_fingerprint`,
         :func:`fluxpart.fingerprint.platform_record`.
@@ -369,7 +431,7 @@ def build_manifest(tables: dict, *, site: dict, config: dict, seed, provenance: 
         "versions": dict(versions),
         "code": dict(code),
         "platform": _jsonable(platform_facts),
-        "warnings": list(warnings),
+        "warnings": portable_messages(list(warnings), provenance, directory),
         "tables": _jsonable(tables),
         "unhashed": dict(_UNHASHED),
     }

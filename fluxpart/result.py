@@ -13,7 +13,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from .config import Config
+from .config import Config, absent_added_settings
 from .site import Site
 
 __all__ = ["TABLES", "Result", "load"]
@@ -210,7 +210,11 @@ def load(directory) -> Result:
     Returns
     -------
     Result
-        The same tables, site and settings that were written.
+        The same tables, site and settings that were written. A setting added after
+        the release that wrote the folder (:data:`fluxpart.config.ADDED_SETTINGS`),
+        absent from its recorded settings, takes the value that behaves as that
+        release did, not this release's default: the settings say what computed the
+        tables (as ``fluxpart verify`` reruns such a folder).
 
     Raises
     ------
@@ -232,7 +236,9 @@ def load(directory) -> Result:
     manifest, tables = read_folder(directory)
     parameters = {name[len("parameters_"):]: table for name, table in tables.items()
                   if name.startswith("parameters_")}
-    config = Config.from_mapping(manifest["config"], where="manifest config:")
+    recorded = manifest["config"]
+    as_written = {added.name: added.earlier for added in absent_added_settings(recorded)}
+    config = Config.from_mapping({**as_written, **recorded}, where="manifest config:")
     return Result(site=Site(**manifest["site"]), config=config,
                   **{name: tables[name] for name in TABLES},
                   parameters=parameters, screening_counts=tables["screening"]["records"],

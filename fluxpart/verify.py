@@ -86,11 +86,13 @@ from .fingerprint import code_fingerprint, platform_differences, platform_record
 from .io import broken_link
 from .manifest import (
     CAUTION,
+    QUOTED_TEXT,
     RUN_LOG,
     escaped_paths,
     library_versions,
     newer_format_reason,
     path_entries,
+    portable_messages,
     read_manifest,
     recorded_path,
     shown_name,
@@ -1032,10 +1034,6 @@ def replaced_manifest(differences, manifest: dict, recomputed: dict | None = Non
     return text
 
 
-#: A quoted text in a message (:func:`repr` quotes with ' or, where the text holds one, ").
-_QUOTED = re.compile(r"'([^']*)'|\"([^\"]*)\"")
-
-
 def _messages(manifest: dict) -> list:
     """The message lists of a manifest that name input files: the run's warnings and the
     reader's warnings and notes (each a list, or absent)."""
@@ -1050,12 +1048,28 @@ def _input_spellings(manifest: dict, names: set) -> dict:
     spelled = {}
     for texts in _messages(manifest):
         for text in texts:
-            for match in _QUOTED.finditer(str(text)):
+            for match in QUOTED_TEXT.finditer(str(text)):
                 quoted = match.group(1) if match.group(1) is not None else match.group(2)
                 name = re.split(r"[\\/]", quoted)[-1]
                 if name in names:
                     spelled.setdefault(name, quoted)
     return spelled
+
+
+def _messages_beside(recomputed: dict, result, directory) -> dict:
+    """The rerun's manifest `recomputed` with its messages naming a recorded file
+    relative to the verified folder `directory`, as that folder's writer recorded them
+    (:func:`fluxpart.manifest.portable_messages`), not relative to the scratch folder
+    the rerun was written to; `result` is the rerun (its warnings and provenance)."""
+    out = json.loads(json.dumps(recomputed))
+    provenance = escaped_paths(result.provenance)
+    if isinstance(out.get("warnings"), list):
+        out["warnings"] = portable_messages(list(result.warnings), provenance, directory)
+    reader, again = (out.get("provenance") or {}).get("reader"), provenance.get("reader")
+    for key in ("warnings", "notes"):
+        if isinstance(reader, dict) and isinstance(again, dict) and key in reader and key in again:
+            reader[key] = portable_messages(again[key], provenance, directory)
+    return out
 
 
 def respelled_inputs(stored: dict, recomputed: dict) -> tuple[dict, list]:
@@ -2184,7 +2198,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                               "unchanged and not judged: free space in the temporary folder (or point "
                               "TMPDIR at another), or raise the file-size limit (ulimit -f)"
                               ) from None
-        new_manifest = read_manifest(again)
+        new_manifest = _messages_beside(read_manifest(again), result, directory)
         # messages name an input file as the run was given it (relative to the folder it
         # ran in), the rerun by its whole path (review65: a 0.33.0 result of a run in the
         # input's folder was "NOT reproduced" on every warning naming its file)

@@ -270,6 +270,23 @@ def test_is_up_to_date_checks_hashes_settings_and_versions(towers, tmp_path, mon
     daily.write_bytes(original)
     assert batch.is_up_to_date(config, folder)
 
+    # a folder of the release before night_donor_margin (leftovers54): the line names
+    # the added setting, its value then and now, not just "settings changed"
+    manifest_path = folder / "manifest.json"
+    written = manifest_path.read_text(encoding="utf-8")
+    manifest = json.loads(written)
+    del manifest["config"]["night_donor_margin"]
+    manifest_path.write_text(json.dumps(manifest), encoding="utf-8")
+    assert batch._stale_reason(config, folder) == (
+        "a setting added since the folder's release: night_donor_margin (added in 0.34.0: "
+        'the folder computed as "none", now "threshold_spread")')
+    manifest["config"]["year_start"] = "07-01"    # and a setting the folder names differs
+    manifest_path.write_text(json.dumps(manifest), encoding="utf-8")
+    assert batch._stale_reason(config, folder).startswith(
+        "settings changed, and a setting added since the folder's release: night_donor_margin")
+    manifest_path.write_text(written, encoding="utf-8")
+    assert batch.is_up_to_date(config, folder)
+
 
 def test_progress_line_counts_done_failed_and_remaining():
     """The terminal line shows sites ended of total, failed and remaining."""

@@ -1447,6 +1447,21 @@ def test_a_folder_naming_the_added_setting_verifies_as_before(earlier_and_curren
     assert out.startswith("bit-identical") and "absent from the recorded settings" not in out
 
 
+def test_a_loaded_folder_of_an_earlier_release_says_what_computed_it(earlier_and_current):
+    """``fluxpart.load`` of a folder whose recorded settings lack ``night_donor_margin``
+    (a 0.33.0 folder) gives "none", the value that computed its tables, not this
+    release's default (leftovers54); a folder that records the setting keeps it. A
+    loaded result written again records the setting it was computed with."""
+    import fluxpart
+
+    earlier, current = earlier_and_current
+    assert "night_donor_margin" not in json.loads((earlier / "manifest.json").read_text())[
+        "config"]
+    assert fluxpart.load(earlier).config.night_donor_margin == "none"
+    assert fluxpart.load(current).config.night_donor_margin == "threshold_spread"
+    assert Config().night_donor_margin == "threshold_spread"
+
+
 def test_each_added_setting_names_a_setting_and_an_accepted_earlier_value():
     """The registry of settings added after a release: each is a setting, its earlier
     value one ``Config`` accepts, its release a version number."""
@@ -1462,6 +1477,56 @@ def test_each_added_setting_names_a_setting_and_an_accepted_earlier_value():
     assert absent_added_settings(Config().to_dict()) == ()
     assert absent_added_settings({}) == ADDED_SETTINGS
     assert absent_added_settings(None) == ()
+
+
+def test_a_message_names_a_recorded_file_relative_to_the_result_folder(tmp_path, monkeypatch):
+    """The manifest records an input's path relative to the result folder, and its
+    messages named the file by the path the run was given (``'site/g.csv'`` from the
+    folder it ran in, or a whole path: leftovers54). Both spellings are written relative
+    to the folder; a quoted name that leads to no recorded file, or to another file of
+    that name, is kept."""
+    from fluxpart.manifest import portable_messages
+
+    data = tmp_path / "site" / "g.csv"
+    data.parent.mkdir()
+    data.write_text("stamp,nee\n")
+    (tmp_path / "other").mkdir()
+    (tmp_path / "other" / "g.csv").write_text("stamp,nee\n")
+    provenance = {"input": {"path": str(data), "sha256": "0"},
+                  "site_config": {"path": str(tmp_path / "site" / "g.toml"), "sha256": "1"}}
+    monkeypatch.chdir(tmp_path)
+    texts = ["input file 'site/g.csv': 2 blank line(s) above the header (line 3) read past",
+             f"input: input file {str(data)!r}: 3 value(s) outside",
+             "input file 'other/g.csv' is another file", "column 'nee' read", 7]
+    assert portable_messages(texts, provenance, tmp_path / "out") == [
+        "input file '../site/g.csv': 2 blank line(s) above the header (line 3) read past",
+        "input: input file '../site/g.csv': 3 value(s) outside",
+        "input file 'other/g.csv' is another file", "column 'nee' read", 7]
+
+
+def test_a_run_names_its_input_relative_to_its_folder_and_verifies_without_a_note(
+        tmp_path, monkeypatch, capsys):
+    """A run started in the input's folder and one given the whole path record the same
+    reader note, naming the input as the manifest's input record does; moved as a
+    whole, the bundle verifies bit-identical without a note on the spelling."""
+    config = make_bundle(tmp_path / "bundle" / "site")
+    data = config.parent / "tower.csv"
+    data.write_text("\n\n" + data.read_text())
+    monkeypatch.chdir(config.parent)
+    assert main(["run", "site.toml", "--out", "../out", "--quiet"]) == 0
+    assert main(["run", str(config), "--out", str(tmp_path / "bundle" / "whole"),
+                 "--quiet"]) == 0
+    capsys.readouterr()
+    for name in ("out", "whole"):
+        manifest = json.loads((tmp_path / "bundle" / name / "manifest.json").read_text())
+        assert manifest["provenance"]["input"]["path"] == "../site/tower.csv"
+        assert manifest["provenance"]["reader"]["notes"] == [
+            "input file '../site/tower.csv': 2 blank line(s) above the header (line 3) read past"]
+    shutil.move(tmp_path / "bundle", tmp_path / "moved")
+    monkeypatch.chdir(tmp_path)
+    assert main(["verify", "moved/out"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical") and "note: warnings" not in out
 
 
 def test_messages_naming_the_input_by_its_path_as_given_are_compared_so():
