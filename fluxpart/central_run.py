@@ -67,7 +67,7 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
     ----------
     Lloyd, J. and Taylor, J. A. (1994), see the module.
     """
-    _, nee_measured, filled, night, _ = central[:5]
+    nee_measured, filled, night = central.nee_measured, central.filled, central.night
     try:
         if method_failure.failed(night):
             raise InsufficientDataError("the nighttime method could not fit")
@@ -114,7 +114,7 @@ def averaged_shape(frame, screened, filled_drivers, central, is_night, temperatu
     ----------
     Lasslop, G. et al. (2010), see the module.
     """
-    _, nee_measured, _, night, day = central[:5]
+    nee_measured, night, day = central.nee_measured, central.night, central.day
     if (config.daytime_curvature != light_shape.AVERAGE or method_failure.failed(day)
             or method_failure.failed(night)):
         return None, ""
@@ -182,7 +182,7 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     ----------
     Lasslop, G. et al. (2010), see the module.
     """
-    _, nee_measured, _, night, day = central[:5]
+    nee_measured, night, day = central.nee_measured, central.night, central.day
     if method_failure.failed(day) or method_failure.failed(night):
         return None
     other = "tair" if delay else OTHER_TEMPERATURE[temperature]
@@ -305,7 +305,8 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
         outcomes = {name: outcome._replace(day=shape.shifted(outcome.day))
                     if not method_failure.failed(outcome.day) else outcome
                     for name, outcome in outcomes.items()}
-    _, _, filled, night, day, _ = outcomes["central"]
+    filled, night, day = (outcomes["central"].filled, outcomes["central"].night,
+                          outcomes["central"].day)
     warnings = list(gapfill.crossed_event_notes(frame.index, config.events,
                                                 filled.attrs.pop("events_crossed", [])))
     if shape_note:

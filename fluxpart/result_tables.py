@@ -83,7 +83,8 @@ def timeseries_table(inputs, geometry, screens, central, released, threshold):
         Rejection-reason code per record (:data:`fluxpart.screening.REASON_CODES`).
     """
     frame, _, filled_drivers, _, is_night = inputs[:5]
-    too_calm, nee_measured, filled, night, day = central[:5]
+    too_calm, nee_measured, filled = central.too_calm, central.nee_measured, central.filled
+    night, day = central.night, central.day
     flags = screens.flags.assign(nee_low_ustar=too_calm, nee_morning_release=released)
     reason = screens.reason.to_numpy().copy()
     reason[(reason == 0) & too_calm] = REASON_LOW_USTAR

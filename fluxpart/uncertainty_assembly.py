@@ -165,10 +165,11 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         lambda values, gaps: fill_nee(night_donors.donor_values(values, withheld), conditions,
                                       index, is_night, config, gaps=gaps, values_only=True,
                                       sun_up=sun_up))
-    runs = {name: pd.DataFrame({"nee": filled["value"].to_numpy(), "gpp_nighttime": n.gpp,
-                                "reco_nighttime": n.reco, "gpp_daytime": d.gpp,
-                                "reco_daytime": d.reco}, index=index)
-            for name, (_, _, filled, n, d, _) in outcomes.items()}
+    runs = {name: pd.DataFrame({"nee": run.filled["value"].to_numpy(),
+                                "gpp_nighttime": run.night.gpp, "reco_nighttime": run.night.reco,
+                                "gpp_daytime": run.day.gpp, "reco_daytime": run.day.reco},
+                               index=index)
+            for name, run in outcomes.items()}
     nee_filled = timeseries["nee_filled"].to_numpy(dtype=float)
     settings = nighttime_settings(config, timeseries["rg"].to_numpy(dtype=float), index,
                                   method_failure.borrowed_e0(night), sun_up)

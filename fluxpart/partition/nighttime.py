@@ -1507,7 +1507,8 @@ e0_bounds, e0_max_relative_error
     is_night = _as_night("is_night", is_night, length)
     if sun_up is not None:
         is_night = dark_nights.fit_mask(
-            _seconds_since(index, _window_anchor(index)), _usable(nee_measured, temperature_measured, is_night), is_night,
+            _seconds_since(index, _window_anchor(index)),
+            _usable(nee_measured, temperature_measured, is_night), is_night,
             _as_night("sun_up", sun_up, length), window_days=rref_window_days,
             min_points=rref_min_points)
     # without events the window functions are called exactly as before
