@@ -16,6 +16,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from . import ustar_stage
 from .errors import InsufficientDataError
 from .gapfill import event_breaks
 from .partition.nighttime import _no_e0_message, fit_e0_joint, fit_e0_windows
@@ -91,7 +92,7 @@ def e0_stops(screened: pd.DataFrame, is_night, thresholds: pd.Series, config) ->
     names = [name for name in names if name in screened.columns]
     if not names or "ustar" not in screened.columns:
         return []
-    per_record = thresholds.reindex(index.year).to_numpy(dtype=float)
+    per_record = ustar_stage.per_record(index, thresholds)
     nee = screened["nee"].to_numpy(dtype=float)
     calm = low_ustar(screened["ustar"].to_numpy(dtype=float), is_night, per_record)
     night = np.asarray(is_night, dtype=bool) & np.isfinite(nee) & ~calm
