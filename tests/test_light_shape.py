@@ -122,6 +122,7 @@ def test_average_that_cannot_profile_says_so(monkeypatch):
     from fluxpart import central_run
     from fluxpart.errors import InsufficientDataError
     from fluxpart.method_failure import nan_nighttime
+    from fluxpart.ustar_runs import RunOutcome
 
     def no_profile(*args, **kwargs):
         raise InsufficientDataError("no light-response window with a profiled curvature")
@@ -129,7 +130,7 @@ def test_average_that_cannot_profile_says_so(monkeypatch):
     monkeypatch.setattr(central_run, "fit_daytime", no_profile)
     monkeypatch.setattr(central_run, "respiration_temperature", lambda *args: None)
     night = dataclasses.replace(nan_nighttime(2, "tair"), e0_annual=pd.DataFrame({"e0": [200.0]}))
-    central = (None, np.zeros(2), None, night, _day([1.0, 2.0], [1.0, 1.0]))
+    central = RunOutcome(None, np.zeros(2), None, night, _day([1.0, 2.0], [1.0, 1.0]), None)
     arguments = (None, None, None, central, np.zeros(2, dtype=bool), "tair", 0)
     shape, note = central_run.averaged_shape(*arguments, Config(daytime_curvature=AVERAGE))
     assert shape is None
