@@ -193,10 +193,18 @@ def damped_months(tair, rh, vpd, index, interval_minutes: float) -> dict:
     a_tair, a_implied, a_humidity, per_day = _anomalies(tair, rh, vpd, interval_minutes)
     if a_tair.size == 0 or len(index) != a_tair.size:
         return {}
-    labels = np.asarray(pd.DatetimeIndex(index).strftime("%Y-%m"))
+    stamps = pd.DatetimeIndex(index)
+    # each record's calendar month as a number (-1 at NaT), numbered in order of first
+    # appearance; a stable sort gathers each month's records in their own order, so
+    # one pass over the record, not a string comparison of every record per month
+    codes, _ = pd.factorize(np.asarray(stamps.year, dtype=float) * 12
+                            + np.asarray(stamps.month, dtype=float))
+    order = np.argsort(codes, kind="stable")
+    starts = np.searchsorted(codes[order], np.arange(codes.max() + 2))
+    labels = stamps[order[starts[:-1]]].strftime("%Y-%m")
     out = {}
-    for month in dict.fromkeys(labels):
-        rows = labels == month
+    for month, start, stop in zip(labels, starts[:-1], starts[1:], strict=True):
+        rows = order[start:stop]
         ratio = _ratio(a_tair[rows], a_implied[rows], a_humidity[rows],
                        _MIN_MONTH_DAYS * per_day // 2)
         if np.isfinite(ratio[0]):

@@ -36,7 +36,14 @@ def e_exponents(written: pd.Series) -> tuple[pd.Series, int, int]:
     ISO/IEC 1539-1:2018 (Fortran 2018), section 13.7.2.3.3: the D edit descriptor writes
     the exponent letter D (m).
     """
-    found = written.str.fullmatch(_D_NUMBER).fillna(False).to_numpy(dtype=bool)
+    # only a cell holding the letter can match: the per-cell regex (Python's, as the
+    # pattern's \s and \d keep pandas off pyarrow's) runs on those alone, none in most files
+    lettered = written.str.contains("[dD]", regex=True, na=False).to_numpy(dtype=bool)
+    if not lettered.any():
+        return written, 0, -1
+    found = np.zeros(len(written), dtype=bool)
+    found[lettered] = written[lettered].str.fullmatch(_D_NUMBER).fillna(False).to_numpy(
+        dtype=bool)
     if not found.any():
         return written, 0, -1
     cells = written.copy()

@@ -79,3 +79,31 @@ def test_a_vpd_and_rh_of_two_hygrometers_or_a_vpd_over_ice_are_not_named():
     es_ice = 6.1121 * np.exp(22.587 * cold / (cold + 273.86))
     ice_vpd = np.round(np.where(cold < 0, es_ice, es_cold) - rh / 100.0 * es_cold, 2)
     assert damped_tair.damped_tair(cold, rh, ice_vpd, 30) is None
+
+
+def test_each_month_is_judged_on_its_own_records_in_the_order_first_met():
+    """`damped_months` gathers a month's records by its number (round speed52): the same
+    months, in the order of their first record, the same records in their own order and
+    the same figures to the bit as a mask of the stamps' "YYYY-MM" labels, on stamps out
+    of order (June first, split in two runs) and with a missing stamp (NaT, no month)."""
+    tair, rh, vpd = _air()
+    tair = np.where(np.arange(tair.size) >= tair.size // 2, _sonic(tair, 0.6), tair)
+    index = pd.date_range("2021-05-01", periods=tair.size, freq="30min")
+    order = np.r_[np.arange(1500, tair.size), np.arange(1500)]      # June first and split
+    stamps = index[order].to_numpy().copy()
+    stamps[7] = np.datetime64("NaT")
+    stamps = pd.DatetimeIndex(stamps)
+    args = tair[order], rh[order], vpd[order]
+    months = damped_tair.damped_months(*args, stamps, 30)
+    a_tair, a_implied, a_humidity, per_day = damped_tair._anomalies(*args, 30)
+    labels = np.asarray(stamps.strftime("%Y-%m"), dtype=object)
+    expected = {}
+    for month in dict.fromkeys(label for label in labels if isinstance(label, str)):
+        rows = labels == month
+        figures = damped_tair._ratio(a_tair[rows], a_implied[rows], a_humidity[rows],
+                                     damped_tair._MIN_MONTH_DAYS * per_day // 2)
+        if np.isfinite(figures[0]):
+            expected[month] = figures
+    assert list(months) == list(expected) == ["2021-06", "2021-05"]
+    assert months == expected
+    assert months["2021-06"][0] < 0.7 < months["2021-05"][0]
