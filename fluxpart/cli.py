@@ -664,13 +664,15 @@ def _parser() -> argparse.ArgumentParser:
 
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
-        description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved, in its unit. Library "
-        "versions, the code fingerprint and platform facts (CPU features, BLAS) are facts of "
-        "the run, listed apart. Exit 0: the same result, or the only differences of the result "
-        "are tables whose values are equal within floating-point rounding (as verify judges "
-        "it), whatever platform facts, versions or code differ; 1: anything else differs; 2: "
-        "error.")
+        description="Compare two result folders: input hashes, settings, site, reader's "
+        "record, versions, code fingerprint, platform, and how each annual number moved, in "
+        "its unit. The inputs' SHA-256 (a tar archive and the table unpacked from it hold the "
+        "same records), the reader's notes, library versions, the code fingerprint and "
+        "platform facts (CPU features, BLAS) are facts of the run, listed apart. Exit 0: the "
+        "same result, or the only differences of the result are tables whose values are "
+        "equal within floating-point rounding (as verify judges it), whatever platform facts, "
+        "versions or code, input hashes or reader's notes differ; 1: anything else differs; "
+        "2: error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))

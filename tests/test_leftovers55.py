@@ -11,8 +11,12 @@ import ast
 from pathlib import Path
 
 import numpy as np
+from test_leftovers51 import copied_rerun
+from test_verify import _edit_manifest, _set_value
 
+from fluxpart.cli import main
 from fluxpart.daily_anomaly import daily_anomaly
+from fluxpart.diff import diff_folders
 
 
 def test_the_daily_anomaly_keeps_a_daily_sine_and_removes_a_level():
@@ -39,3 +43,72 @@ def test_the_daily_anomaly_keeps_a_daily_sine_and_removes_a_level():
                if any(isinstance(node, ast.FunctionDef) and node.name.endswith("daily_anomaly")
                       for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))))]
     assert defined == ["daily_anomaly.py"]
+
+
+def _packed_input(manifest):
+    """The manifest as a run of the same records from a tar archive records it: the
+    input's and the site config's SHA-256 differ, nothing else (measured: the bundle run
+    from ``tower.tar`` made with ``tar -cf`` and from ``tower.csv``)."""
+    manifest["provenance"]["input"].update(path="../tower.tar", sha256="5" * 64)
+    manifest["provenance"]["site_config"]["sha256"] = "c" * 64
+
+
+_NOTE = "input file 'tower.csv': 2 blank line(s) above the header (line 3) read past"
+
+
+def _notes_among_warnings(manifest):
+    """The manifest as a release before notes were told apart wrote a note."""
+    manifest["warnings"].insert(0, f"input: {_NOTE}")
+    manifest["provenance"]["reader"]["warnings"].insert(0, _NOTE)
+
+
+def _notes_apart(manifest):
+    manifest["provenance"]["reader"]["notes"] = [_NOTE]
+
+
+def test_inputs_whose_bytes_differ_beside_identical_tables_are_the_same_result(
+        pristine_bundle, tmp_path, capsys):
+    """A result of a tar archive against one of the table unpacked from it, every table
+    byte-identical: exit 1 "differ: 2 recorded item(s)" on the input's and the site
+    config's SHA-256 before; now "same result", exit 0, both hashes listed apart as facts
+    of the run (as versions and the code fingerprint, leftovers52). Beside a table that
+    differs, still exit 1 with the hashes listed."""
+    first, second = copied_rerun(pristine_bundle, tmp_path, _packed_input)
+    report = diff_folders(first, second)
+    assert not report.result_items and [i[0] for i in report.run_facts] == ["input"] * 2
+    assert main(["diff", str(first), str(second)]) == 0
+    out = capsys.readouterr().out
+    assert "same result: settings, site, every table (bit for bit)" in out
+    assert "only the inputs' bytes differ" in out
+    assert "inputs (facts of the run, not of the result" in out
+    assert "5" * 64 in out and "c" * 64 in out
+    _set_value(second, "annual", "nee", lambda v: v * 1.001)
+    assert main(["diff", str(first), str(second)]) == 1
+    out = capsys.readouterr().out
+    assert "differ: 1 recorded item(s)" in out and "5" * 64 in out
+
+
+def test_a_reader_note_moved_out_of_the_warnings_is_no_difference(pristine_bundle, tmp_path,
+                                                                 capsys):
+    """A folder written before the reader told notes apart (the note among the run's and
+    the reader's warnings) against one written after (the note apart): exit 1 on three
+    fields before (warnings, reader warnings, reader notes), although the tables are
+    byte-identical; now one fact of reading, exit 0, either folder first. A note whose
+    text differs is a fact of reading too; a warning that differs is still a difference."""
+    old = tmp_path / "old"
+    new = copied_rerun(pristine_bundle, tmp_path, _notes_apart)[1]
+    older = copied_rerun(pristine_bundle, old, _notes_among_warnings)[1]
+    for first, second, shown in ((older, new, "first 1 among the warnings"),
+                                 (new, older, "second 1 among the warnings")):
+        report = diff_folders(first, second)
+        assert not report.result_items
+        assert report.run_facts[0][:2] == ("reading", "notes moved")
+        assert main(["diff", str(first), str(second)]) == 0
+        out = capsys.readouterr().out
+        assert "only the reader's notes differ" in out and shown in out
+    _edit_manifest(new, lambda m: m["provenance"]["reader"].update(notes=["other"]),
+                   reseal=True)
+    report = diff_folders(pristine_bundle / "out", new)
+    assert not report.result_items and report.run_facts[0][:2] == ("reading", "notes")
+    _edit_manifest(new, lambda m: m["warnings"].append("another"), reseal=True)
+    assert diff_folders(older, new).exit_code == 1
