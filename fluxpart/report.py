@@ -42,7 +42,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .config import Config
+from .config import Config, implied_settings
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, SOLAR_CONSTANT
 from .errors import InputFileError, OutputError
 from .figures import (
@@ -579,14 +579,25 @@ def _source_check(note: str) -> str:
 
 
 def _settings_table(config: dict) -> str:
+    """The result's settings, each with its meaning and source; a setting its record
+    does not name (:func:`fluxpart.config.implied_settings`: added after the folder's
+    release, or written only away from its default) with the value that computed the
+    result, marked implied (leftovers55: a 0.33.0 folder's table lacked
+    ``night_donor_margin``, which ``load`` and ``verify`` take as "none")."""
     notes = _config_notes()
+    implied = implied_settings(config)
     rows = []
-    for key, value in sorted(config.items()):
+    for key, value in sorted({**config, **{k: v for k, (v, _) in implied.items()}}.items()):
         note = notes.get(key, "")
         check = _source_check(note)
         css = ' class="unchecked"' if check.startswith("recalled") else ""
+        value_html = _e(_setting_value(value))
+        if key in implied:
+            value_html += ' <span class="implied">(implied, not recorded)</span>'
+            note = f"{implied[key][1][0].upper()}{implied[key][1][1:]}. {note}".strip()
         rows.append(f'<tr><th scope="row"><code>{_e(key)}</code></th>'
-                    f'<td data-setting="{_e(key)}">{_e(_setting_value(value))}</td>'
+                    f'<td data-setting="{_e(key)}"'
+                    f'{" data-implied" if key in implied else ""}>{value_html}</td>'
                     f'<td class="description">{_e(_RECALLED.sub("", note))}</td>'
                     f'<td{css} data-check="{_e(key)}">{_e(check)}</td></tr>')
     return ('<table id="settings"><thead><tr><th scope="col">Setting</th><th scope="col">Value'
@@ -1051,6 +1062,7 @@ td.missing, span.missing { color: #777777; }
 td.unit, span.unit { color: #444444; white-space: nowrap; }
 td.description { color: #333333; max-width: 30em; }
 td.unchecked { background: #fff1d6; }
+span.implied { color: #555; font-style: italic; }
 code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; }
 .caution { border: 2px solid #8a4b00; background: #fff4e0; padding: 0.6em 1em; margin: 0.8em 0; }
 .card { border: 1px solid #2c4a7a; border-left: 6px solid #2c4a7a; background: #f5f8fc;
@@ -1352,7 +1364,10 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
 </section>
 <section id="section-settings"><h2>Settings and their sources</h2>
 <p>Every setting of this run with its value, its meaning and its source. The last column says
-which values were recalled from memory and are not yet checked against the original paper.</p>
+which values were recalled from memory and are not yet checked against the original paper.
+A setting the folder's record does not name (added after the release that wrote it, or
+recorded only away from its default) shows the value that computed the result, marked
+implied.</p>
 {_settings_table(config)}
 </section>
 </main>

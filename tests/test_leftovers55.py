@@ -7,7 +7,7 @@ period is zero (trigonometry), so a centred running mean over one day leaves a s
 one day's period unchanged; ``tarfile`` (Python's standard library) writes a POSIX tar
 archive. The result folders are the session's invented bundle.
 """
-import ast
+import re
 from pathlib import Path
 
 import numpy as np
@@ -40,8 +40,8 @@ def test_the_daily_anomaly_keeps_a_daily_sine_and_removes_a_level():
     assert np.isnan(daily_anomaly(sparse, per_day)).all()
     root = Path(__file__).resolve().parent.parent / "fluxpart"
     defined = [path.name for path in sorted(root.rglob("*.py"))
-               if any(isinstance(node, ast.FunctionDef) and node.name.endswith("daily_anomaly")
-                      for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))))]
+               if re.search(r"^def _?daily_anomaly\(", path.read_text(encoding="utf-8"),
+                            re.MULTILINE)]
     assert defined == ["daily_anomaly.py"]
 
 
@@ -112,3 +112,29 @@ def test_a_reader_note_moved_out_of_the_warnings_is_no_difference(pristine_bundl
     assert not report.result_items and report.run_facts[0][:2] == ("reading", "notes")
     _edit_manifest(new, lambda m: m["warnings"].append("another"), reseal=True)
     assert diff_folders(older, new).exit_code == 1
+
+
+def _as_written_by_0_33_0(manifest):
+    """The manifest as release 0.33.0 wrote it: no ``night_donor_margin`` (verifyold51's
+    means: the key removed from the recorded settings, resealed)."""
+    del manifest["config"]["night_donor_margin"]
+
+
+def test_the_report_of_an_earlier_release_shows_the_setting_that_computed_it(
+        pristine_bundle, tmp_path):
+    """A 0.33.0 folder's settings table lacked ``night_donor_margin``; it now shows
+    "none", the value that computed its tables (``config.ADDED_SETTINGS``, as ``load``
+    and ``verify`` take it), marked implied by the release, and ``night_fit_records``
+    (recorded only away from its default) at its default. A recorded setting is shown
+    as recorded, not marked."""
+    from fluxpart.report import _settings_table, read_written
+
+    folder = copied_rerun(pristine_bundle, tmp_path, _as_written_by_0_33_0)[1]
+    # the page's settings section is this table (test_report: a default run's page)
+    settings = _settings_table(read_written(folder).config)
+    margin = re.search(r'data-setting="night_donor_margin" data-implied>([^<]*)<span', settings)
+    assert margin and margin.group(1).strip() == "none"
+    assert "added in 0.34.0; the release that wrote the folder computed as &quot;none&quot;" \
+        in settings
+    assert re.search(r'data-setting="night_fit_records" data-implied>all_night ', settings)
+    assert re.search(r'data-setting="gapfill_estimate">local_linear<', settings)
