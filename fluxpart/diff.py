@@ -38,6 +38,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from .config import implied_settings
 from .fingerprint import platform_differences
 from .manifest import CAUTION, shown_path
 from .reader_notes import notes_moved
@@ -364,6 +365,19 @@ def _shown_pair(first, second) -> tuple[str, str]:
                                  context=SHOWN_CONTEXT)
 
 
+#: What follows a setting's value that its folder's record does not name.
+_IMPLIED = " (implied, not recorded)"
+
+
+def _with_implied(config) -> tuple:
+    """A recorded ``config`` mapping with each setting it does not name at the value that
+    computed its result (:func:`fluxpart.config.implied_settings`), and those names."""
+    implied = implied_settings(config)
+    if not implied:
+        return config, {}
+    return {**config, **{name: value for name, (value, _) in implied.items()}}, implied
+
+
 def _entries(provenance: dict, key: str) -> list:
     entries = provenance.get(key)
     return entries if isinstance(entries, list) else [entries] if entries else []
@@ -389,8 +403,19 @@ def _recorded_items(first: dict, second: dict) -> list:
                                  and m["config"].get("seed") == m.get("seed")
                                  for m in (first, second)):
             continue        # the same seed as the setting's, listed there once
-        for name, a, b in field_differences(first.get(key), second.get(key), ""):
-            items.append((section, name or key, *_shown_pair(a, b)))
+        a_value, b_value = first.get(key), second.get(key)
+        a_implied = b_implied = {}
+        if key == "config":
+            # a setting a folder's record does not name, at the value that computed it
+            # (added after its release, or recorded only away from its default;
+            # leftovers55: "(absent)" against "none" for a 0.33.0 folder's
+            # night_donor_margin, which computed as "none")
+            a_value, a_implied = _with_implied(a_value)
+            b_value, b_implied = _with_implied(b_value)
+        for name, a, b in field_differences(a_value, b_value, ""):
+            a_text, b_text = _shown_pair(a, b)
+            items.append((section, name or key, a_text + _IMPLIED * (name in a_implied),
+                          b_text + _IMPLIED * (name in b_implied)))
     for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):
         # a note tells how a layout was read, every value as the file means it: a fact
         # of reading (leftovers55), compared as the warnings are otherwise
@@ -632,9 +657,16 @@ def diff_folders(first, second) -> DiffReport:
     first, second = Path(first), Path(second)
     a_manifest, a_tables = read_folder(first)
     b_manifest, b_tables = read_folder(second)
-    items = _named_table_differences(
-        _notes_apart(_recorded_items(a_manifest, b_manifest), a_manifest, b_manifest),
-        a_tables, b_tables)
+    from .verify import respelled_inputs
+
+    # a message naming an input by another path (0.33.0 wrote it as the run was given
+    # it, 0.34.0 relative to the result folder: leftovers54) is compared as the first
+    # folder spells it, as verify does (review65); the spellings are a fact of reading
+    b_compared, respelled = respelled_inputs(a_manifest, b_manifest)
+    items = _notes_apart(_recorded_items(a_manifest, b_compared), a_manifest, b_compared)
+    items += [("reading", "input named in messages", shown_path(stored), shown_path(path))
+              for path, stored in respelled]
+    items = _named_table_differences(items, a_tables, b_tables)
     annual, same, rounding = _annual_moves(a_tables["annual"], b_tables["annual"])
     return DiffReport(first=first, second=second, items=tuple(items), annual=annual,
                       same_annual=same, rounding_annual=tuple(rounding))

@@ -63,7 +63,9 @@ def _notes_among_warnings(manifest):
 
 
 def _notes_apart(manifest):
-    manifest["provenance"]["reader"]["notes"] = [_NOTE]
+    """The manifest as this release writes the note: apart, and naming the input relative
+    to the result folder (leftovers54), where 0.33.0 named it as the run was given it."""
+    manifest["provenance"]["reader"]["notes"] = [_NOTE.replace("'tower.csv'", "'../tower.csv'")]
 
 
 def test_inputs_whose_bytes_differ_beside_identical_tables_are_the_same_result(
@@ -93,7 +95,8 @@ def test_a_reader_note_moved_out_of_the_warnings_is_no_difference(pristine_bundl
     """A folder written before the reader told notes apart (the note among the run's and
     the reader's warnings) against one written after (the note apart): exit 1 on three
     fields before (warnings, reader warnings, reader notes), although the tables are
-    byte-identical; now one fact of reading, exit 0, either folder first. A note whose
+    byte-identical; now one fact of reading, exit 0, either folder first, the input's
+    path in the messages compared as the first folder spells it (as verify does). A note whose
     text differs is a fact of reading too; a warning that differs is still a difference."""
     old = tmp_path / "old"
     new = copied_rerun(pristine_bundle, tmp_path, _notes_apart)[1]
@@ -106,6 +109,7 @@ def test_a_reader_note_moved_out_of_the_warnings_is_no_difference(pristine_bundl
         assert main(["diff", str(first), str(second)]) == 0
         out = capsys.readouterr().out
         assert "only the reader's notes differ" in out and shown in out
+        assert ("reading", "input named in messages") in [i[:2] for i in report.run_facts]
     _edit_manifest(new, lambda m: m["provenance"]["reader"].update(notes=["other"]),
                    reseal=True)
     report = diff_folders(pristine_bundle / "out", new)
@@ -138,3 +142,18 @@ def test_the_report_of_an_earlier_release_shows_the_setting_that_computed_it(
         in settings
     assert re.search(r'data-setting="night_fit_records" data-implied>all_night ', settings)
     assert re.search(r'data-setting="gapfill_estimate">local_linear<', settings)
+
+
+def test_diff_names_the_setting_an_earlier_release_computed_with(pristine_bundle, tmp_path):
+    """``diff`` of a 0.33.0-like folder (no ``night_donor_margin`` recorded) showed
+    "(absent)" against the other's value; it now shows "none" marked implied, and a
+    folder that records "none" against it differs by no setting (measured: the
+    grassland example with footer rows, run by 0.33.0 and by this code with "none",
+    every table byte-identical: exit 1 on five items before, 0 now)."""
+    older = copied_rerun(pristine_bundle, tmp_path / "a", _as_written_by_0_33_0)[1]
+    report = diff_folders(older, pristine_bundle / "out")
+    assert [item for item in report.items if item[0] == "setting"] == [
+        ("setting", "night_donor_margin", "none (implied, not recorded)", "threshold_spread")]
+    explicit = copied_rerun(pristine_bundle, tmp_path / "b",
+                            lambda m: m["config"].update(night_donor_margin="none"))[1]
+    assert not [item for item in diff_folders(older, explicit).items if item[0] == "setting"]
