@@ -845,6 +845,26 @@ def _soil_regressor(written: Written) -> bool:
     return "tsoil_filled" in written.timeseries.columns and release >= (0, 22)
 
 
+def _night_donors(config: dict) -> str:
+    """The night donors the u* threshold's spread withheld, as the result's config says
+    (leftovers55: the methods did not say it; a folder that does not record the setting,
+    written before it, computed without it)."""
+    if config.get("night_donor_margin") != "threshold_spread":
+        return ""
+    return (" Night records kept by the u* filter but within the threshold's own 1-sigma "
+            "above it (half its bootstrap's 16–84 range; a fixed threshold has none) stayed "
+            "measured but filled no night gap (night_donor_margin = \"threshold_spread\").")
+
+
+def _night_fit_records(config: dict) -> str:
+    """Which night records the nighttime fits took, where not every one (leftovers55)."""
+    if config.get("night_fit_records") != "sun_down":
+        return ""
+    return (" Its fits took the night records with the sun below the horizon for the whole "
+            "interval, and every night record in an Rref window with too few of them "
+            "(night_fit_records = \"sun_down\", not the default).")
+
+
 def _fill_events(config: dict, windows_cut: bool = False) -> str:
     """The declared events no fill crosses, as the result's config says (none in a result
     written before 0.22.0); `windows_cut`: the partitionings' windows were cut at them too
@@ -1000,12 +1020,12 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
         f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil, light_tests)}"
-        f"{_fill_donors(config)}{_fill_events(config, windows_cut)}",
+        f"{_fill_donors(config)}{_night_donors(config)}{_fill_events(config, windows_cut)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
         f"{_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et al. "
-        f"2005); GPP = Reco − NEE.{respiration}",
+        f"2005); GPP = Reco − NEE.{_night_fit_records(config)}{respiration}",
         f"Daytime partitioning: {shape} with VPD limitation of the "
         f"saturated assimilation, fitted in {_setting_value(config.get('daytime_window_days'))}"
         "-day windows (Lasslop et al. 2010), with its own E0: each window's estimate from the "

@@ -157,3 +157,35 @@ def test_diff_names_the_setting_an_earlier_release_computed_with(pristine_bundle
     explicit = copied_rerun(pristine_bundle, tmp_path / "b",
                             lambda m: m["config"].update(night_donor_margin="none"))[1]
     assert not [item for item in diff_folders(older, explicit).items if item[0] == "setting"]
+
+
+def test_a_sun_down_result_round_trips_through_load_verify_and_report(pristine_bundle,
+                                                                      tmp_path, capsys):
+    """A folder of this release written with ``night_fit_records = "sun_down"`` (recorded,
+    as every setting away from its default): ``load`` gives it, ``verify`` reruns it
+    bit-identical (its tables differ from the default's, so the rerun took it), and the
+    report's settings table and methods state it."""
+    import warnings
+
+    from bundles import make_bundle
+
+    import fluxpart
+    from fluxpart.pipeline import process_site_config
+    from fluxpart.report import _night_fit_records, _settings_table, read_written
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        process_site_config(make_bundle(tmp_path, records=24 * 2 * 20,
+                                        extra='night_fit_records = "sun_down"\n')
+                            ).write(tmp_path / "out")
+    loaded = fluxpart.load(tmp_path / "out")
+    assert loaded.config.night_fit_records == "sun_down"
+    default = fluxpart.load(pristine_bundle / "out")
+    assert default.config.night_fit_records == "all_night"
+    assert not loaded.annual["gpp_nighttime"].equals(default.annual["gpp_nighttime"])
+    assert main(["verify", str(tmp_path / "out")]) == 0
+    assert capsys.readouterr().out.startswith("bit-identical: all 15 tables")
+    config = read_written(tmp_path / "out").config
+    assert 'data-setting="night_fit_records">sun_down<' in _settings_table(config)
+    assert 'night_fit_records = "sun_down", not the default' in _night_fit_records(config)
+    assert _night_fit_records(default.config.to_dict()) == ""
