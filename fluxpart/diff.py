@@ -375,7 +375,9 @@ def _with_implied(config) -> tuple:
     implied = implied_settings(config)
     if not implied:
         return config, {}
-    return {**config, **{name: value for name, (value, _) in implied.items()}}, implied
+    # no events is shown "none", not "[]" (read as code, review46)
+    return {**config, **{name: None if value == () else value
+                         for name, (value, _) in implied.items()}}, implied
 
 
 def _entries(provenance: dict, key: str) -> list:
