@@ -629,8 +629,9 @@ def _parser() -> argparse.ArgumentParser:
         "check", help="validate the input only: coverage, gaps, problems",
         description="Read and validate the input without fitting: coverage per variable, gaps, "
         "ranges and units, the clock check, every stage's preflight, screening counts and the "
-        "u* threshold. Exit 0: nothing found; 1: problems listed (the reader's warnings among "
-        "them); 2: an input or usage error.")
+        "u* threshold. Exit 0: nothing found, or notes alone (the reader's notes: a layout "
+        "understood, every value read as the file means it); 1: problems listed (the reader's "
+        "warnings among them); 2: an input or usage error.")
     check.add_argument("config", type=_path, help="site config (TOML)")
     check.set_defaults(handler=_command_check)
 
@@ -657,20 +658,22 @@ def _parser() -> argparse.ArgumentParser:
     verify.add_argument("--json", action="store_true",
                         help="print the report as one JSON object (verdict, exit_code, "
                         "differences, notes, caution, the text lines, and the recorded seed, "
-                        "release and whole SHA-256 of each input and the site config) for a "
-                        "script; same "
-                        "exit status; an error (exit 2) is still one error: line on stderr")
+                        "release, code fingerprint and whole SHA-256 of each input and the "
+                        "site config) for a script; same exit status; an error (exit 2) is "
+                        "still one error: line on stderr")
     verify.set_defaults(handler=_lazy("verify", "command_verify"))
 
     diff = commands.add_parser(
         "diff", help="what differs between two result folders",
-        description="Compare two result folders: input hashes, settings, site, versions, code "
-        "fingerprint, platform, and how each annual number moved, in its unit. Library "
-        "versions, the code fingerprint and platform facts (CPU features, BLAS) are facts of "
-        "the run, listed apart. Exit 0: the same result, or the only differences of the result "
-        "are tables whose values are equal within floating-point rounding (as verify judges "
-        "it), whatever platform facts, versions or code differ; 1: anything else differs; 2: "
-        "error.")
+        description="Compare two result folders: input hashes, settings, site, reader's "
+        "record, versions, code fingerprint, platform, and how each annual number moved, in "
+        "its unit. The inputs' SHA-256 (a tar archive and the table unpacked from it hold the "
+        "same records), the reader's notes, library versions, the code fingerprint and "
+        "platform facts (CPU features, BLAS) are facts of the run, listed apart. Exit 0: the "
+        "same result, or the only differences of the result are tables whose values are "
+        "equal within floating-point rounding (as verify judges it), whatever platform facts, "
+        "versions or code, input hashes or reader's notes differ; 1: anything else differs; "
+        "2: error.")
     diff.add_argument("first", type=_path, help="a result folder")
     diff.add_argument("second", type=_path, help="another result folder")
     diff.set_defaults(handler=_lazy("diff", "command_diff"))

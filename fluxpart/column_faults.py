@@ -59,6 +59,7 @@ import numpy as np
 import pandas as pd
 
 from ._groups import group_positions
+from .daily_anomaly import daily_anomaly
 from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
@@ -1715,13 +1716,6 @@ _DELAY_MIN_GAIN = 0.05
 _DELAY_MAX_RH = 90.0
 
 
-def _daily_anomaly(values: np.ndarray, per_day: int) -> np.ndarray:
-    """Values less their centred 24-h running mean (NaN where half the day is missing)."""
-    mean = (pd.Series(values).rolling(per_day, center=True, min_periods=per_day // 2)
-            .mean().to_numpy())
-    return values - mean
-
-
 def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None:
     """A message where the tair column's daily course trails the humidity's, or None.
 
@@ -1780,8 +1774,8 @@ def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | 
         saturation = np.where(usable, vpd / (1.0 - rh / 100.0), np.nan)
         implied = saturation_temperature(saturation)
     implied[~np.isfinite(implied) | (implied < -60) | (implied > 60)] = np.nan
-    a_implied = _daily_anomaly(implied, per_day)
-    a_tair = _daily_anomaly(tair, per_day)
+    a_implied = daily_anomaly(implied, per_day)
+    a_tair = daily_anomaly(tair, per_day)
     most = int(_DELAY_MAX_MINUTES // interval_minutes)
     scores = {}
     for k in range(0, most + 1):

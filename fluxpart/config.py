@@ -20,7 +20,8 @@ from ._validate import read_site_config_toml
 from .errors import ConfigError
 
 __all__ = ["ADDED_SETTINGS", "AddedSetting", "Config", "UnknownSettingError",
-           "absent_added_settings", "keyword_checked", "setting_text", "suggest_key"]
+           "absent_added_settings", "implied_settings", "keyword_checked", "setting_text",
+           "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -785,6 +786,38 @@ def absent_added_settings(recorded) -> tuple[AddedSetting, ...]:
     if not isinstance(recorded, dict):
         return ()
     return tuple(added for added in ADDED_SETTINGS if added.name not in recorded)
+
+
+def implied_settings(recorded) -> dict[str, tuple[object, str]]:
+    """The settings a result's recorded settings `recorded` (a manifest's ``config``
+    mapping) do not name, with the value that computed the result and why it is implied.
+
+    A setting of :data:`ADDED_SETTINGS` that a release before it wrote no record of
+    computed as its ``earlier`` value; ``events`` and each setting of
+    :data:`_WRITTEN_AWAY_FROM_DEFAULT` are written only away from their default
+    (:meth:`Config.to_dict`), which their absence therefore means. The ``report`` shows
+    them so (leftovers55: a 0.33.0 folder's settings table lacked
+    ``night_donor_margin``, and every default run's ``night_fit_records``), as
+    :func:`fluxpart.load` and ``verify`` take them.
+
+    Returns
+    -------
+    dict
+        Setting name -> (value, reason); empty where `recorded` is no mapping (nothing
+        is known of its release).
+    """
+    if not isinstance(recorded, dict):
+        return {}
+    implied = {added.name: (added.earlier, f"not in the folder's recorded settings: added "
+                            f"in {added.release}; the release that wrote the folder computed "
+                            f"as {setting_text(added.earlier)}")
+               for added in absent_added_settings(recorded)}
+    defaults = {item.name: item.default for item in fields(Config)}
+    for name in ("events", *_WRITTEN_AWAY_FROM_DEFAULT):
+        if name not in recorded:
+            implied[name] = (defaults[name], "not in the folder's recorded settings: "
+                             "written only away from its default, which computed the result")
+    return implied
 
 
 class UnknownSettingError(ConfigError, TypeError):

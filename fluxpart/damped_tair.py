@@ -40,7 +40,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .column_faults import _daily_anomaly
+from .daily_anomaly import daily_anomaly
 from .variables import saturation_temperature, saturation_vapour_pressure
 
 __all__ = ["DAMPED_RATIO", "STAGE", "damped_months", "damped_ratio", "damped_tair"]
@@ -138,9 +138,9 @@ def _anomalies(tair, rh, vpd, interval_minutes: float):
         implied = saturation_temperature(np.where(usable, vpd / (1.0 - rh / 100.0), np.nan))
         humidity = (rh / (100.0 - rh)) / _log_slope(tair)
     usable &= np.isfinite(implied) & (implied > -60) & (implied < 60) & np.isfinite(humidity)
-    return (_daily_anomaly(np.where(usable, tair, np.nan), per_day),
-            _daily_anomaly(np.where(usable, implied, np.nan), per_day),
-            _daily_anomaly(np.where(usable, humidity, np.nan), per_day), per_day)
+    return (daily_anomaly(np.where(usable, tair, np.nan), per_day),
+            daily_anomaly(np.where(usable, implied, np.nan), per_day),
+            daily_anomaly(np.where(usable, humidity, np.nan), per_day), per_day)
 
 
 def _log_slope(tair):

@@ -11,18 +11,21 @@ own manifest, see :func:`fluxpart.resultdir.read_folder`) and lists
 - each library version, the code fingerprint and the platform facts (CPU features,
   BLAS, machine) that differ, listed apart: facts of the run, not of the result, as
   ``verify`` treats them (platform since leftovers51, versions and code since
-  leftovers52);
+  leftovers52); so are the inputs' SHA-256 (the bytes handed over: a tar archive and
+  the table unpacked from it hold the same records) and the reader's notes (how a
+  layout was understood; notes recorded apart from the warnings by a later release),
+  since leftovers55;
 - the tables whose bytes differ, and whether their values or only their metadata do;
 - how each annual number moved: its unit, both values, the change (second minus first)
   and the change relative to the first value's magnitude.
 
-Exit statuses of the command: 0 when the two folders hold the same result from
-the same input, settings and code (paths, the run log and report pages do not
-count), also where the only differences of the result are tables whose values are
+Exit statuses of the command: 0 when the two folders hold the same result under
+the same settings (paths, the run log and report pages do not count), also where the only differences of the result are tables whose values are
 equal within floating-point rounding as ``verify`` judges it (their hashes listed;
-since leftovers50), whatever facts of the run differ (library versions, code
-fingerprint, platform: verify lists them and fails none by itself; platform since
-leftovers51, versions and code since leftovers52), 1 when anything else listed
+since leftovers50), whatever facts of the run differ (the inputs' SHA-256, the reader's notes, library
+versions, code fingerprint, platform: verify lists them and fails none by itself;
+platform since leftovers51, versions and code since leftovers52, inputs and notes
+since leftovers55: the tables are the verdict), 1 when anything else listed
 differs, 2 on error (a folder that is missing, not a result
 folder, or does not match its manifest).
 """
@@ -35,8 +38,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from .config import implied_settings
 from .fingerprint import platform_differences
 from .manifest import CAUTION, shown_path
+from .reader_notes import notes_moved
 
 __all__ = ["DiffReport", "command_diff", "diff_folders", "table_difference"]
 
@@ -52,10 +57,25 @@ _MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
 #: listed and are not failures by themselves"): the platform since leftovers51, library
 #: versions and the code fingerprint since leftovers52 (tables byte-identical beside
 #: another numpy release made diff exit 1 where verify exits 0).
-RUN_FACTS = ("version", "code", "platform")
+#: The inputs' SHA-256 and the reader's notes since leftovers55: a result run from a tar
+#: archive and one from the table unpacked from it, every table byte-identical, made
+#: diff exit 1 on the input's hash, and a note that a later release records apart from
+#: the warnings (readernotes51) on three fields: the bytes handed over and how their
+#: layout was read are facts of the run; the tables hold its result.
+RUN_FACTS = ("input", "reading", "version", "code", "platform")
 #: How each section of :data:`RUN_FACTS` is named in a sentence.
-_RUN_FACT_NAMES = {"version": "library versions", "code": "the code",
+_RUN_FACT_NAMES = {"input": "the inputs' bytes", "reading": "the reader's notes",
+                   "version": "library versions", "code": "the code",
                    "platform": "the platform"}
+#: The heading each section of :data:`RUN_FACTS` but the platform is listed under.
+_RUN_FACT_HEADINGS = (
+    (("input",), "inputs (facts of the run, not of the result: the tables compare what "
+                 "was read):"),
+    (("reading",), "reading (facts of the run, not of the result):"),
+    (("version", "code"), "versions and code (facts of the run, not of the result):"))
+#: Items of a reader's note recorded among the warnings by a release before
+#: readernotes51 and apart by a later one (:func:`fluxpart.reader_notes.notes_moved`).
+_MOVED_ITEMS = (("warnings", "warnings"), ("reader", "warnings"), ("reading", "notes"))
 #: How a table whose values differ within rounding only ends its label
 #: (:func:`table_difference`, :attr:`DiffReport.within_rounding`).
 _ROUNDING_SUFFIX = ", metadata equal"
@@ -83,8 +103,9 @@ class DiffReport:
         apart from the annual numbers; sections are ``"input"``, ``"setting"``,
         ``"site"``, ``"seed"``, ``"reader"``, ``"warnings"``, ``"caution"``,
         ``"format"``, ``"model"`` (the respiration temperature, its delay and the
-        respiration form's weight the night data chose; since 0.17.0), ``"version"``,
-        ``"code"``, ``"platform"`` and ``"table"``.
+        respiration form's weight the night data chose; since 0.17.0), ``"reading"``
+        (the reader's notes; since leftovers55), ``"version"``, ``"code"``,
+        ``"platform"`` and ``"table"``.
     annual : pandas.DataFrame
         One row per (year, column) of ``annual`` whose value differs: ``unit`` (the
         column's unit as people read it: ``g C m-2``, ``t CO2 ha-1``, ``m s-1``, ``1``
@@ -115,14 +136,14 @@ class DiffReport:
 
     @property
     def result_items(self) -> tuple:
-        """The differing items that are facts of the result: all but the platform's."""
+        """The differing items that are facts of the result: all but :data:`RUN_FACTS`'."""
         return tuple(item for item in self.items if item[0] not in RUN_FACTS)
 
     @property
     def run_facts(self) -> tuple:
-        """The differing items that are facts of the run, not of the result (library
-        versions, code fingerprint, platform: :data:`RUN_FACTS`), as ``verify`` treats
-        them."""
+        """The differing items that are facts of the run, not of the result (the inputs'
+        SHA-256, the reader's notes, library versions, code fingerprint, platform:
+        :data:`RUN_FACTS`), as ``verify`` treats them."""
         return tuple(item for item in self.items if item[0] in RUN_FACTS)
 
     @property
@@ -149,9 +170,10 @@ class DiffReport:
     @property
     def exit_code(self) -> int:
         """0 when the result is the same or equal within rounding, whatever facts of the
-        run (versions, code, platform) differ; 1 when anything else differs: the verdicts
-        ``verify`` gives such a rerun (exit 0; leftovers51: a platform fact made diff exit
-        1, leftovers52: a library version or the code fingerprint did)."""
+        run (inputs' bytes, reader's notes, versions, code, platform) differ; 1 when
+        anything else differs: the verdicts ``verify`` gives such a rerun (exit 0;
+        leftovers51: a platform fact made diff exit 1, leftovers52: a library version or
+        the code fingerprint did, leftovers55: an input's SHA-256 or a moved note did)."""
         return 0 if self.same_result or self.within_rounding else 1
 
     def format(self) -> str:
@@ -160,9 +182,11 @@ class DiffReport:
                  f"{shown_path(self.second)} (second)"]
         facts = self.run_facts
         named, verb = _run_fact_subject(facts)
+        equal = "settings, site" if any(item[0] == "input" for item in facts) \
+            else "input, settings, site"
         if self.same_result:
             if facts:
-                lines.append(f"same result: input, settings, site, every table (bit for bit) "
+                lines.append(f"same result: {equal}, every table (bit for bit) "
                              f"and all {self.same_annual} annual values are equal; only "
                              f"{named} {verb} ({len(facts)} fact(s) of the run, listed "
                              "below)")
@@ -181,7 +205,8 @@ class DiffReport:
                 where = (f"; {named} {verb} (listed below)" if facts
                          else "; versions, code and platform are equal")
                 lines.append(
-                    f"equal within rounding: input, settings and site are equal{where}; "
+                    f"equal within rounding: {equal.replace(', site', ' and site')} are "
+                    f"equal{where}; "
                     f"{len(items)} table(s) differ in bytes, their values only within "
                     f"rounding (relative difference at most {ROUNDING_TOLERANCE:g}, as "
                     "verify judges it; hashes below)")
@@ -237,19 +262,23 @@ def _run_fact_subject(facts) -> tuple:
              if any(item[0] == section for item in facts)]
     if len(names) <= 1:
         subject = names[0] if names else ""
-        return subject, "differ" if subject == "library versions" else "differs"
+        return subject, "differs" if subject in ("the code", "the platform") else "differ"
     return f"{', '.join(names[:-1])} and {names[-1]}", "differ"
 
 
 def _run_fact_lines(facts) -> list:
-    """The facts of the run that differ, under headings that say what they are: library
-    versions and the code fingerprint with both values, the platform's by name."""
+    """The facts of the run that differ, under headings that say what they are: the
+    inputs' SHA-256, the reader's notes, library versions and the code fingerprint with
+    both values, the platform's by name."""
     lines = []
-    recorded = [item for item in facts if item[0] != "platform"]
-    if recorded:
-        labels = [f"{section} {name}" for section, name, _, _ in recorded]
+    for sections, heading in _RUN_FACT_HEADINGS:
+        recorded = [item for item in facts if item[0] in sections]
+        if not recorded:
+            continue
+        labels = [name if section in ("input", "reading") else f"{section} {name}"
+                  for section, name, _, _ in recorded]
         width = max((len(label) for label in labels if len(label) <= LABEL_WIDTH), default=0)
-        lines.append("versions and code (facts of the run, not of the result):")
+        lines.append(heading)
         for label, (_, _, a, b) in zip(labels, recorded, strict=True):
             lines.extend(_item_lines(label, a, b, width))
     platform = [name for section, name, _, _ in facts if section == "platform"]
@@ -336,6 +365,21 @@ def _shown_pair(first, second) -> tuple[str, str]:
                                  context=SHOWN_CONTEXT)
 
 
+#: What follows a setting's value that its folder's record does not name.
+_IMPLIED = " (implied, not recorded)"
+
+
+def _with_implied(config) -> tuple:
+    """A recorded ``config`` mapping with each setting it does not name at the value that
+    computed its result (:func:`fluxpart.config.implied_settings`), and those names."""
+    implied = implied_settings(config)
+    if not implied:
+        return config, {}
+    # no events is shown "none", not "[]" (read as code, review46)
+    return {**config, **{name: None if value == () else value
+                         for name, (value, _) in implied.items()}}, implied
+
+
 def _entries(provenance: dict, key: str) -> list:
     entries = provenance.get(key)
     return entries if isinstance(entries, list) else [entries] if entries else []
@@ -361,10 +405,24 @@ def _recorded_items(first: dict, second: dict) -> list:
                                  and m["config"].get("seed") == m.get("seed")
                                  for m in (first, second)):
             continue        # the same seed as the setting's, listed there once
-        for name, a, b in field_differences(first.get(key), second.get(key), ""):
-            items.append((section, name or key, *_shown_pair(a, b)))
+        a_value, b_value = first.get(key), second.get(key)
+        a_implied = b_implied = {}
+        if key == "config":
+            # a setting a folder's record does not name, at the value that computed it
+            # (added after its release, or recorded only away from its default;
+            # leftovers55: "(absent)" against "none" for a 0.33.0 folder's
+            # night_donor_margin, which computed as "none")
+            a_value, a_implied = _with_implied(a_value)
+            b_value, b_implied = _with_implied(b_value)
+        for name, a, b in field_differences(a_value, b_value, ""):
+            a_text, b_text = _shown_pair(a, b)
+            items.append((section, name or key, a_text + _IMPLIED * (name in a_implied),
+                          b_text + _IMPLIED * (name in b_implied)))
     for name, a, b in field_differences(a_prov.get("reader"), b_prov.get("reader"), ""):
-        items.append(("reader", name or "record", *_shown_pair(a, b)))
+        # a note tells how a layout was read, every value as the file means it: a fact
+        # of reading (leftovers55), compared as the warnings are otherwise
+        items.append(("reading" if name == "notes" else "reader", name or "record",
+                      *_shown_pair(a, b)))
     for name, a, b in field_differences(a_prov.get("screening"), b_prov.get("screening"), ""):
         items.append(("reader", f"screening {name}".strip(), *_shown_pair(a, b)))
     # the model choices the data made: a rerun on other data (or other code) can choose
@@ -557,6 +615,28 @@ def _annual_moves(first: pd.DataFrame, second: pd.DataFrame) -> tuple[pd.DataFra
     return table.set_index(["year", "column"]), same, rounding
 
 
+def _notes_apart(items: list, first: dict, second: dict) -> list:
+    """`items` with the differences of a reader's note moved out of the warnings by a
+    later release (:func:`fluxpart.reader_notes.notes_moved`, either folder the earlier)
+    as one fact of reading, as ``verify`` names such a move in a note.
+
+    A result written before readernotes51 holds a note ("2 blank line(s) above the
+    header read past") among its run's and reader's warnings; a later one records it
+    apart. That is no other result: the note is how the file's layout was read, and
+    every value was read as the file means it.
+    """
+    older = ("first" if notes_moved(first, second)
+             else "second" if notes_moved(second, first) else None)
+    if older is None:
+        return items
+    notes = (second if older == "first" else first)["provenance"]["reader"]["notes"]
+    told = f"{len(notes)} apart from the warnings"
+    among = f"{len(notes)} among the warnings (written before notes were told apart)"
+    kept = [item for item in items if item[:2] not in _MOVED_ITEMS]
+    return [*kept, ("reading", "notes moved", *((among, told) if older == "first"
+                                                 else (told, among)))]
+
+
 def diff_folders(first, second) -> DiffReport:
     """Compare two result folders.
 
@@ -579,8 +659,16 @@ def diff_folders(first, second) -> DiffReport:
     first, second = Path(first), Path(second)
     a_manifest, a_tables = read_folder(first)
     b_manifest, b_tables = read_folder(second)
-    items = _named_table_differences(_recorded_items(a_manifest, b_manifest), a_tables,
-                                     b_tables)
+    from .verify import respelled_inputs
+
+    # a message naming an input by another path (0.33.0 wrote it as the run was given
+    # it, 0.34.0 relative to the result folder: leftovers54) is compared as the first
+    # folder spells it, as verify does (review65); the spellings are a fact of reading
+    b_compared, respelled = respelled_inputs(a_manifest, b_manifest)
+    items = _notes_apart(_recorded_items(a_manifest, b_compared), a_manifest, b_compared)
+    items += [("reading", "input named in messages", shown_path(stored), shown_path(path))
+              for path, stored in respelled]
+    items = _named_table_differences(items, a_tables, b_tables)
     annual, same, rounding = _annual_moves(a_tables["annual"], b_tables["annual"])
     return DiffReport(first=first, second=second, items=tuple(items), annual=annual,
                       same_annual=same, rounding_annual=tuple(rounding))
@@ -588,7 +676,8 @@ def diff_folders(first, second) -> DiffReport:
 
 def command_diff(args) -> int:
     """``fluxpart diff A B``: 0 when the same result or equal within rounding (facts of
-    the run: versions, code, platform aside), 1 when anything else differs (errors exit 2)."""
+    the run: inputs' bytes, reader's notes, versions, code, platform aside), 1 when
+    anything else differs (errors exit 2)."""
     report = diff_folders(args.first, args.second)
     print(report.format())
     return report.exit_code

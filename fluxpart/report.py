@@ -42,7 +42,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .config import Config
+from .config import Config, implied_settings
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS, SOLAR_CONSTANT
 from .errors import InputFileError, OutputError
 from .figures import (
@@ -579,14 +579,25 @@ def _source_check(note: str) -> str:
 
 
 def _settings_table(config: dict) -> str:
+    """The result's settings, each with its meaning and source; a setting its record
+    does not name (:func:`fluxpart.config.implied_settings`: added after the folder's
+    release, or written only away from its default) with the value that computed the
+    result, marked implied (leftovers55: a 0.33.0 folder's table lacked
+    ``night_donor_margin``, which ``load`` and ``verify`` take as "none")."""
     notes = _config_notes()
+    implied = implied_settings(config)
     rows = []
-    for key, value in sorted(config.items()):
+    for key, value in sorted({**config, **{k: v for k, (v, _) in implied.items()}}.items()):
         note = notes.get(key, "")
         check = _source_check(note)
         css = ' class="unchecked"' if check.startswith("recalled") else ""
+        value_html = _e(_setting_value(value))
+        if key in implied:
+            value_html += ' <span class="implied">(implied, not recorded)</span>'
+            note = f"{implied[key][1][0].upper()}{implied[key][1][1:]}. {note}".strip()
         rows.append(f'<tr><th scope="row"><code>{_e(key)}</code></th>'
-                    f'<td data-setting="{_e(key)}">{_e(_setting_value(value))}</td>'
+                    f'<td data-setting="{_e(key)}"'
+                    f'{" data-implied" if key in implied else ""}>{value_html}</td>'
                     f'<td class="description">{_e(_RECALLED.sub("", note))}</td>'
                     f'<td{css} data-check="{_e(key)}">{_e(check)}</td></tr>')
     return ('<table id="settings"><thead><tr><th scope="col">Setting</th><th scope="col">Value'
@@ -834,6 +845,26 @@ def _soil_regressor(written: Written) -> bool:
     return "tsoil_filled" in written.timeseries.columns and release >= (0, 22)
 
 
+def _night_donors(config: dict) -> str:
+    """The night donors the u* threshold's spread withheld, as the result's config says
+    (leftovers55: the methods did not say it; a folder that does not record the setting,
+    written before it, computed without it)."""
+    if config.get("night_donor_margin") != "threshold_spread":
+        return ""
+    return (" Night records kept by the u* filter but within the threshold's own 1-sigma "
+            "above it (half its bootstrap's 16–84 range; a fixed threshold has none) stayed "
+            "measured but filled no night gap (night_donor_margin = \"threshold_spread\").")
+
+
+def _night_fit_records(config: dict) -> str:
+    """Which night records the nighttime fits took, where not every one (leftovers55)."""
+    if config.get("night_fit_records") != "sun_down":
+        return ""
+    return (" Its fits took the night records with the sun below the horizon for the whole "
+            "interval, and every night record in an Rref window with too few of them "
+            "(night_fit_records = \"sun_down\", not the default).")
+
+
 def _fill_events(config: dict, windows_cut: bool = False) -> str:
     """The declared events no fill crosses, as the result's config says (none in a result
     written before 0.22.0); `windows_cut`: the partitionings' windows were cut at them too
@@ -989,12 +1020,12 @@ def _methods(config: dict, has_random: bool, soil: bool = False,
         "Gap filling of NEE and the drivers by marginal distribution sampling (Reichstein et "
         "al. 2005, appendix): similar Rg, Tair and VPD within widening time windows, then the "
         f"mean diurnal course; fill quality classes A, B, C. {_fill_estimate(config, soil, light_tests)}"
-        f"{_fill_donors(config)}{_fill_events(config, windows_cut)}",
+        f"{_fill_donors(config)}{_night_donors(config)}{_fill_events(config, windows_cut)}",
         "Nighttime partitioning: Lloyd–Taylor respiration (Lloyd & Taylor 1994); E0 per year "
         f"from the night data with a free Rref in each {_setting_value(config.get('e0_window_days'))}"
         f"-day window (e0_method = {_setting_value(config.get('e0_method'))}), Rref in "
         f"{_setting_value(config.get('rref_window_days'))}-day windows (Reichstein et al. "
-        f"2005); GPP = Reco − NEE.{respiration}",
+        f"2005); GPP = Reco − NEE.{_night_fit_records(config)}{respiration}",
         f"Daytime partitioning: {shape} with VPD limitation of the "
         f"saturated assimilation, fitted in {_setting_value(config.get('daytime_window_days'))}"
         "-day windows (Lasslop et al. 2010), with its own E0: each window's estimate from the "
@@ -1051,6 +1082,7 @@ td.missing, span.missing { color: #777777; }
 td.unit, span.unit { color: #444444; white-space: nowrap; }
 td.description { color: #333333; max-width: 30em; }
 td.unchecked { background: #fff1d6; }
+span.implied { color: #555; font-style: italic; }
 code { font-family: "DejaVu Sans Mono", Consolas, monospace; font-size: 0.95em; }
 .caution { border: 2px solid #8a4b00; background: #fff4e0; padding: 0.6em 1em; margin: 0.8em 0; }
 .card { border: 1px solid #2c4a7a; border-left: 6px solid #2c4a7a; background: #f5f8fc;
@@ -1352,7 +1384,10 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
 </section>
 <section id="section-settings"><h2>Settings and their sources</h2>
 <p>Every setting of this run with its value, its meaning and its source. The last column says
-which values were recalled from memory and are not yet checked against the original paper.</p>
+which values were recalled from memory and are not yet checked against the original paper.
+A setting the folder's record does not name (added after the release that wrote it, or
+recorded only away from its default) shows the value that computed the result, marked
+implied.</p>
 {_settings_table(config)}
 </section>
 </main>

@@ -376,7 +376,9 @@ def test_every_command_help_states_its_exit_statuses(command, capsys, monkeypatc
         # platform facts are facts of the run: no exit 1 by themselves (leftovers51)
         assert "whatever platform facts" in text
         # so are library versions and the code fingerprint, as verify lists them (leftovers52)
-        assert "whatever platform facts, versions or code differ" in text
+        assert "whatever platform facts, versions or code" in text
+        # and the inputs' bytes and the reader's notes: the tables are the verdict (leftovers55)
+        assert "input hashes or reader's notes differ" in text
 
 
 def test_netcdf_export_docs_do_not_promise_half_hourly_records():

@@ -324,6 +324,11 @@ def test_page_carries_the_site_caution_and_settings(folder):
         assert shown, key
         if isinstance(value, (int, float)) and not isinstance(value, bool):
             assert float(shown.group(1)) == pytest.approx(value), key
+    # written only away from their default, so absent from a default run's record: shown
+    # at the default that computed it, marked implied (leftovers55)
+    assert "night_fit_records" not in manifest["config"]
+    assert re.search(r'data-setting="night_fit_records" data-implied>all_night <span '
+                     r'class="implied">\(implied, not recorded\)', text)
     for paper in ("Global Change Biology 11:1424–1439", "Functional Ecology 8:315–323",
                   "Global Change Biology 16:187–208", "Biogeosciences 3:571–583"):
         assert paper in text
