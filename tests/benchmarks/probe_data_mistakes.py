@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-50).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-51).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
