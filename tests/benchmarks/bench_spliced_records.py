@@ -60,27 +60,26 @@ def file_named(frame) -> bool:
                                       frame.index) is not None
 
 
-def joined(frame, other, month):
-    """``frame`` to the end of ``month - 1``, ``other``'s records from ``month`` on."""
-    later = np.flatnonzero(frame.index >= pd.Timestamp(frame.index[0].year, month, 1))
-    later = later[later < len(other)]
+def _taken(frame, other, positions):
+    """``frame`` with the records at `positions` taken from ``other``."""
+    positions = positions[positions < len(other)]
     out = frame.copy()
     columns = [c for c in frame.columns if c in other.columns]
-    out.iloc[later, [frame.columns.get_loc(c) for c in columns]] = (
-        other[columns].iloc[later].to_numpy())
+    out.iloc[positions, [frame.columns.get_loc(c) for c in columns]] = (
+        other[columns].iloc[positions].to_numpy())
     return out
+
+
+def joined(frame, other, month):
+    """``frame`` to the end of ``month - 1``, ``other``'s records from ``month`` on."""
+    start = pd.Timestamp(frame.index[0].year, month, 1)
+    return _taken(frame, other, np.flatnonzero(frame.index >= start))
 
 
 def pasted(frame, other, months=(7,)):
     """``frame`` with the records of its `months` (the 7th by default) taken from ``other``
     at the same positions."""
-    month = np.flatnonzero(np.isin(frame.index.month, months))
-    month = month[month < len(other)]
-    out = frame.copy()
-    columns = [c for c in frame.columns if c in other.columns]
-    out.iloc[month, [frame.columns.get_loc(c) for c in columns]] = (
-        other[columns].iloc[month].to_numpy())
-    return out
+    return _taken(frame, other, np.flatnonzero(np.isin(frame.index.month, months)))
 
 
 def main(argv=None):
