@@ -1277,6 +1277,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             VARIABLES["nee"].maximum, column=source_of["nee"],
                             unit=VARIABLES["nee"].unit)
         warnings.extend([text] if text else [])
+    if interval_change and "nee" in frame:
+        # NEE summed over the longer records (round mistakes51)
+        from .summed_records import summed_stretch
+        text = summed_stretch(frame["nee"].to_numpy(), frame.index, starts, interval_minutes,
+                              source_of["nee"])
+        warnings.extend([text] if text else [])
     report = ReadReport(
         source=", ".join(str(p) for p in paths),
         interval_minutes=interval_minutes,

@@ -470,6 +470,12 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                                index, names)
         if text:
             findings.append(Finding(spliced_records.STAGE, text, False))
+        else:
+            # a lone joint where two files meet (round mistakes51)
+            text = spliced_records.file_joint(screened["tsoil"].to_numpy(dtype=float),
+                                              index, names)
+            if text:
+                findings.append(Finding(spliced_records.FILE_STAGE, text, False))
     if {"nee", "rg"} <= set(screened.columns):
         # a shift of hours first (round mistakes23): where one beyond two hours is clearly
         # best, nee_lag would name only the widest of its own (two hours)

@@ -22,10 +22,14 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["STAGE", "SOIL_STEP_FACTOR", "spliced_records"]
+__all__ = ["STAGE", "FILE_STAGE", "SOIL_STEP_FACTOR", "FILE_STEP_FACTOR", "file_joint",
+           "spliced_records"]
 
 #: The stage named in the preflight finding.
 STAGE = "input (spliced records)"
+
+#: The stage named where a lone joint falls on a file boundary (round mistakes51).
+FILE_STAGE = "input (joined files)"
 
 #: Quantile of the soil temperature's record-to-record changes taken as its own largest
 #: change [1]: the 99.9th percentile, beyond the few records of storms of a year.
@@ -45,6 +49,23 @@ _AIR_TAIL = 99.0
 #: 8.4 times (named at 3 times in 3 of its site configs); the next site-year's July pasted
 #: is named in 41 of 68 (49 at 3 times; the rest with a joint in a gap or the air alike).
 SOIL_STEP_FACTOR = 10.0
+#: Factor by which a soil temperature's step at the first record of a calendar month
+#: exceeds the record's own largest changes (its :data:`_TAIL` percentile) to name a lone
+#: joint there [1] (round mistakes51). Our choice, half of :data:`SOIL_STEP_FACTOR`: the
+#: place is fixed in advance, midnight before a month's first day, where monthly or yearly
+#: files meet (24 of the 17520 pairs of a half-hourly year, a month's first record by its start or by its end), so a storm or a probe's
+#: service would have to fall on that one record by chance, while a lone joint anywhere
+#: else is left to storms. Measured (``tests/benchmarks/bench_spliced_records.py``): the
+#: largest step of the generated site-years anywhere is 1.1-1.3 times the tail (a margin
+#: of four); another tower's file joined at 1 September (its overlap dropped) steps the
+#: grassland example's soil 7.4 times.
+FILE_STEP_FACTOR = 5.0
+#: Factor by which a file joint's soil step exceeds the largest step at the same clock
+#: time on any other day [1] (round mistakes51). Our choice: a joint is the one step of
+#: its size at its time of day, while a record whose soil steps at that time on other days
+#: by half as much or more shows its clock (trial soils of daily means stepped 4-6 K at
+#: many midnights, one on 1 April, and 2.8 K beside a 4.6 K step at a new year).
+_CLOCK_FACTOR = 2.0
 #: Smallest soil step at a joint [K]. Our choice: a deep probe's changes are a few
 #: hundredths of a K, so a reading's noise of a few tenths would stand 10 times beyond them;
 #: another site's or year's soil differs from this one's by K.
@@ -180,3 +201,94 @@ def spliced_records(tair, tsoil, index=None, names=None) -> str | None:
             "record there, and their fluxes would enter as this site's (a storm's rain on "
             "a hot, bare soil steps both too, once: check those dates' weather); check the "
             "file between these stamps and mark pasted records missing in a copy")
+
+
+def _month_midnight(stamps: pd.DatetimeIndex) -> np.ndarray:
+    """Whether each stamp is midnight before a month's first day."""
+    return np.asarray((stamps == stamps.normalize()) & (stamps.day == 1))
+
+
+def _alone_at_its_clock(step, stamps, joint) -> bool:
+    """Whether the soil's step into record `joint` exceeds :data:`_CLOCK_FACTOR` times its
+    largest step into a record of the same clock time on any other day.
+
+    A soil that steps at that time on other days too (daily values written into each
+    record, a model's or a logger's day boundary, a freezing soil's steps to and from 0)
+    shows the clock's pattern, not a joint of files.
+    """
+    clock = stamps[1:].hour * 60 + stamps[1:].minute
+    same = np.isfinite(step) & (clock == clock[joint - 1])
+    same[joint - 1] = False
+    if not same.any():
+        return False
+    return bool(step[joint - 1] > _CLOCK_FACTOR * step[same].max())
+
+
+def file_joint(tsoil, index, names=None) -> str | None:
+    """A message naming a lone soil step where two files meet, or None (round mistakes51).
+
+    Two towers' (or two years') files joined with their overlap of stamps dropped leave
+    one joint, at the first record of the later file: its soil temperature, which heat
+    conduction keeps from changing fast, steps there from one tower's to the other's.
+    Files are split by month or year, so the joint falls at a record that starts or ends
+    at midnight before a month's first day (files cut by the stamps' date, stamps marking
+    either end of the interval). A soil step there of more than :data:`FILE_STEP_FACTOR`
+    times the record's own largest changes (the 99.9th percentile), more than 1 K and more
+    than twice its largest step at the same clock time on any other day names it; the air need not step (another tower's air at the same hour is often alike).
+
+    Parameters
+    ----------
+    tsoil : array_like
+        Soil temperature of each record [degC], NaN where missing, consecutive records.
+    index : pandas.DatetimeIndex
+        Interval starts of the records, evenly spaced.
+    names : dict, optional
+        Canonical name -> file column, to name the column.
+
+    Returns
+    -------
+    str or None
+        The warning text; None where no month's first record steps so (a step taken
+        back by half or more at the next record, a logger's glitch, is none), where the index does
+        not match, or where fewer than 1440 pairs of consecutive records hold the soil
+        temperature.
+
+    References
+    ----------
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 8 (m).
+    """
+    soil = np.asarray(tsoil, dtype=float)
+    if soil.size < 3 or index is None or len(index) != soil.size:
+        return None
+    stamps = pd.DatetimeIndex(index)
+    change = np.diff(soil)
+    step = np.abs(change)
+    with np.errstate(invalid="ignore"):
+        pairs = np.isfinite(step) & (soil[1:] != 0) & (soil[:-1] != 0)
+    if pairs.sum() < _MIN_PAIRS:
+        return None
+    tail = np.percentile(step[pairs], _TAIL)
+    # a file's first record as cut by the date of its stamp: its start or its end at
+    # midnight before a month's first day (stamps marking either)
+    interval = (stamps[1:] - stamps[:-1]).median()
+    month_start = _month_midnight(stamps[1:]) | _month_midnight(stamps[1:] + interval)
+    # a step taken back by half or more at the next record is a logger's glitch
+    back = -np.r_[change[1:], np.nan] / np.where(change == 0, np.nan, change)
+    with np.errstate(invalid="ignore"):
+        big = pairs & (step > max(FILE_STEP_FACTOR * tail, _MIN_SOIL_STEP))
+        joints = np.flatnonzero(month_start & big & ~(back >= 0.5)) + 1
+    joints = np.array([j for j in joints if _alone_at_its_clock(step, stamps, j)],
+                      dtype=int)
+    if joints.size == 0:
+        return None
+    name = (names or {}).get("tsoil", "tsoil")
+    where = ", ".join(f"the record {stamps[j]:%Y-%m-%d %H:%M}-{stamps[j] + interval:%H:%M}, "
+                      f"{soil[j - 1]:.1f} -> {soil[j]:.1f} degC" for j in joints[:4])
+    return (f"soil temperature (column {name!r}) steps at the first record of a month "
+            f"({where}) by more than {FILE_STEP_FACTOR:g} times its largest changes "
+            f"elsewhere ({tail:.2f} K, the 99.9th percentile), where files split by month "
+            "or year meet: heat conduction lets no soil jump so, so the records from there "
+            "on likely come from another file (another tower's, or another year's, joined "
+            "with its overlap of stamps dropped), and their fluxes would enter as this "
+            "site's; compare the stamps and the site of the files you joined")

@@ -3,7 +3,7 @@ import numpy as np
 import pandas as pd
 
 from fluxpart.preflight import _column_faults
-from fluxpart.spliced_records import STAGE, spliced_records
+from fluxpart.spliced_records import FILE_STAGE, STAGE, file_joint, spliced_records
 
 #: Thermal diffusivity of a moist mineral soil [m2 s-1], about 0.5e-6 (Campbell & Norman
 #: 1998, table 8.2 (m)); the daily damping depth d = sqrt(2 kappa / omega) follows.
@@ -113,3 +113,29 @@ def test_two_lone_steps_a_year_apart_are_no_pasted_stretch():
     assert stepped(2000, 2000 + 150 * 48) is not None
     assert stepped(2000, 2000 + 300 * 48) is None
     assert spliced_records(air, soil, None) is None
+
+
+def test_another_towers_file_from_a_month_on_is_named_and_a_storm_is_not():
+    """Known-truth recovery (round mistakes51): another invented tower's records (its own
+    weather, a soil 4 K warmer, a drier field nearby) from 1 July 00:00 on, its overlap of stamps
+    dropped, step the 5-cm soil at that record alone, which heat conduction cannot (Campbell
+    & Norman 1998, ch. 8 (m)): named by the record's start or, with end stamps cut by
+    their date, by its end, through the preflight too. The same step at 14:00 on 1 July (a
+    storm) and a one-record glitch at the month's first record are not."""
+    index, air, soil = _site()
+    _, other_air, other_soil = _site(mean=16.0, seed=1)
+    assert file_joint(soil, index) is None
+    first = int(np.flatnonzero(index == pd.Timestamp("2021-07-01 00:00"))[0])
+    for start in (first, first - 1):       # the record starting or ending at midnight
+        joined = np.r_[soil[:start], other_soil[start:]]
+        text = file_joint(joined, index)
+        assert text is not None and f"{index[start]:%Y-%m-%d %H:%M}" in text
+    storm = np.r_[soil[:first + 28], other_soil[first + 28:]]
+    assert file_joint(storm, index) is None
+    glitch = soil.copy()
+    glitch[first] += 3.0
+    assert file_joint(glitch, index) is None
+    joined = np.r_[soil[:first], other_soil[first:]]
+    screened = pd.DataFrame({"tair": air, "tsoil": joined}, index=index)
+    stages = [finding.stage for finding in _column_faults(screened, None, 30)]
+    assert FILE_STAGE in stages and STAGE not in stages

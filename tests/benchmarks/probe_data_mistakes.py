@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-50).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-51).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
@@ -798,6 +798,20 @@ def _two_towers(frame, keep):
     return joined.sort_values("stamp_end").reset_index(drop=True)
 
 
+def _two_towers_kept(frame, minutes):
+    """Both towers' records of the overlap (June-August) kept, the other tower's logger
+    clock ``minutes`` ahead (0: the same stamps)."""
+    from fluxpart.demo import write_example
+    with tempfile.TemporaryDirectory() as tmp:
+        other = pd.read_csv(write_example(tmp, seed=11).with_suffix(".csv"),
+                            dtype={"stamp_end": str})
+    theirs = other[_months(other, range(6, 13))].copy()
+    theirs["stamp_end"] = (_stamps(theirs) + pd.Timedelta(minutes=minutes)).dt.strftime(
+        "%Y%m%d%H%M")
+    joined = pd.concat([frame[_months(frame, range(1, 9))], theirs], ignore_index=True)
+    return joined.sort_values("stamp_end", kind="stable").reset_index(drop=True)
+
+
 def two_towers_first(frame, text):
     return _two_towers(frame, "first"), text
 
@@ -881,6 +895,113 @@ CASES.update({
     "u* fixed 0.4 (a forest's)": ustar_fixed_forest,
     "soil at 50 cm as respiration driver": soil_50cm_as_driver,
     "year_start 07-01 (a southern habit)": year_start_southern,
+})
+
+
+# round mistakes51: ten more a tower scientist makes, each checked against the cases above
+def ustar_km_per_hour(frame, text):
+    """u* in km h-1 (m s-1 x 3.6), a handheld anemometer's habit."""
+    return _scaled(frame, "friction_velocity", 3.6, 3), text
+
+
+def june_pasted_into_july(frame, text):
+    """June's 30 days of records (every column) copied over July 1-30 (a spreadsheet's
+    paste one sheet off)."""
+    out = frame.copy()
+    stamps = _stamps(frame)
+    june = np.flatnonzero(stamps.dt.month.eq(6).to_numpy())
+    july = np.flatnonzero(stamps.dt.month.eq(7).to_numpy())[:len(june)]
+    columns = [c for c in frame.columns if c != "stamp_end"]
+    out.loc[july, columns] = frame.loc[june, columns].to_numpy()
+    return out, text
+
+
+def tsoil_kelvin(frame, text):
+    """Soil temperature in K beside the air's in °C (two loggers' programs)."""
+    soil = frame["soil_temp_5cm"].to_numpy()
+    return _with(frame, "soil_temp_5cm", np.where(soil == MISSING, MISSING,
+                                                  np.round(soil + 273.15, 2))), text
+
+
+def stamps_day_late_from_march(frame, text):
+    """A program that counts a 29 February in 2021: every stamp from 1 March one day late
+    (1 March empty, the year's last day's records dropped)."""
+    stamps = _stamps(frame)
+    late = stamps > pd.Timestamp("2021-03-01 00:00")
+    moved = stamps.where(~late, stamps + pd.Timedelta(days=1))
+    out = frame.assign(stamp_end=moved.dt.strftime("%Y%m%d%H%M"))
+    return out[moved <= pd.Timestamp("2022-01-01 00:00")].reset_index(drop=True), text
+
+
+def year_stamped_a_year_early(frame, text):
+    """The whole file stamped a year early (2021 written 2020, a leap year): every date
+    from March a day off against the sun, the budget labelled 2020."""
+    stamps = _stamps(frame) - pd.DateOffset(years=1)
+    return frame.assign(stamp_end=stamps.dt.strftime("%Y%m%d%H%M")), text
+
+
+def nee_and_flag_swapped(frame, text):
+    """The NEE and its flag columns exchanged in [input.columns]."""
+    return frame, text.replace('nee = "co2_exchange"', 'nee = "qc_co2"').replace(
+        'nee_flag = "qc_co2"', 'nee_flag = "co2_exchange"')
+
+
+def tair_tsoil_swapped(frame, text):
+    """tair and tsoil exchanged in [input.columns]."""
+    return frame, text.replace('tair = "air_temp_c"', 'tair = "soil_temp_5cm"').replace(
+        'tsoil = "soil_temp_5cm"', 'tsoil = "air_temp_c"')
+
+
+def utc_offset_sign_flipped(frame, text):
+    """utc_offset -1 for +1 (east of Greenwich written as west)."""
+    return frame, text.replace("utc_offset = 1.0", "utc_offset = -1.0")
+
+
+def local_time_8h_declared_utc(frame, text):
+    """A site 8 hours east of Greenwich (longitude 115.2, where the example's stamps are
+    its local time) with utc_offset 0 written: local stamps read as UTC."""
+    return frame, text.replace("longitude = 10.2", "longitude = 115.2").replace(
+        "utc_offset = 1.0", "utc_offset = 0.0")
+
+
+def local_time_8h_time_zone_utc(frame, text):
+    """... the same site, utc_offset 8 but time_zone "UTC" declared for the stamps."""
+    return frame, text.replace("longitude = 10.2", "longitude = 115.2").replace(
+        "utc_offset = 1.0", "utc_offset = 8.0").replace(
+        'time_marks = "end"\n', 'time_marks = "end"\ntime_zone = "UTC"\n')
+
+
+def latitude_sign_flipped(frame, text):
+    """Latitude -49.3 for 49.3 (a southern site's config copied)."""
+    return frame, text.replace("latitude = 49.3", "latitude = -49.3")
+
+
+def nee_hourly_sum_from_july(frame, text):
+    """The logger reprogrammed in July to 60-min records whose NEE is the sum of the
+    two half-hours (the other columns means)."""
+    out, _ = hourly_by_sum(frame, text, nee_only=True)
+    early = frame[_stamps(frame) <= pd.Timestamp("2021-07-01 00:00")]
+    late = out[pd.to_datetime(out["stamp_end"], format="%Y%m%d%H%M") > pd.Timestamp(
+        "2021-07-01 00:00")]
+    return pd.concat([early, late], ignore_index=True), text
+
+
+CASES.update({
+    "u* in km h-1": ustar_km_per_hour,
+    "June pasted into July": june_pasted_into_july,
+    "tsoil in K (tair in °C)": tsoil_kelvin,
+    "stamps a day late from 1 March (a 29 Feb counted)": stamps_day_late_from_march,
+    "file stamped a year early (2020)": year_stamped_a_year_early,
+    "NEE and flag columns swapped": nee_and_flag_swapped,
+    "tair and tsoil columns swapped": tair_tsoil_swapped,
+    "utc_offset sign flipped (-1)": utc_offset_sign_flipped,
+    "local time UTC+8 read as UTC (utc_offset 0)": local_time_8h_declared_utc,
+    "local time UTC+8, time_zone UTC": local_time_8h_time_zone_utc,
+    "latitude sign flipped (-49.3)": latitude_sign_flipped,
+    "hourly NEE sums from July": nee_hourly_sum_from_july,
+    "two towers' files, overlap both kept": lambda f, t: (_two_towers_kept(f, 0), t),
+    "two towers' files, overlap both kept, clocks 1 min apart": lambda f, t: (
+        _two_towers_kept(f, 1), t),
 })
 
 

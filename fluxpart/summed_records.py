@@ -1,0 +1,93 @@
+"""NEE summed, not averaged, where a record turns to longer intervals (round mistakes51).
+
+A logger reprogrammed from 30- to 60-minute records, or a file resampled to hours in part,
+writes a stretch of stamps two intervals apart (named by
+``timestamps.interval_change_warning``). NEE is a rate [µmol m-2 s-1]: the hour's value is
+the mean of its two half-hours. A spreadsheet's or a script's sum adds the rates and doubles
+every value of the stretch, and with it every sum drawn from it (on the invented grassland
+example, NEE summed from July moved GPP by +743 g C m-2, 50 sigma), while the stamps alone
+tell only that the interval changed. The fluxes either side of the change give it away: the
+largest values a fortnight after it twice those of the fortnight before, where a season
+changes them by a few tens of percent at most over a month (1.16 at 1 July on the example).
+
+References
+----------
+Aubinet, M., Vesala, T., & Papale, D. (Eds.) (2012). Eddy Covariance: A Practical Guide to
+Measurement and Data Analysis. Springer, ch. 1 (the flux as the covariance's mean over the
+averaging period, a rate per unit area and time) (m)
+"""
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from .split_factor import UNIT_FIT, jump_factor
+
+__all__ = ["SUM_FACTOR", "summed_stretch"]
+
+#: Factor of a sum of two records' rates against their mean [1]: 2, by definition.
+SUM_FACTOR = 2.0
+#: Fewest steps of twice the interval in a row that make a stretch of longer records [1]
+#: per day: one day of the longer records, as ``timestamps.interval_change_warning``.
+_MIN_DAYS = 1
+
+
+def _first_long_stretch(starts: pd.DatetimeIndex, interval_minutes: int) -> int | None:
+    """Position in `starts` of the first record of the first day-long run of steps of twice
+    the interval, or None."""
+    steps = np.asarray((starts[1:] - starts[:-1]) / pd.Timedelta(minutes=1), dtype=float)
+    double = np.concatenate([[False], steps == 2 * interval_minutes, [False]])
+    edges = np.flatnonzero(np.diff(double.astype(np.int8)))
+    first, last = edges[0::2], edges[1::2]
+    long = (last - first) >= _MIN_DAYS * 24 * 60 // (2 * interval_minutes)
+    return int(first[long][0]) + 1 if long.any() else None
+
+
+def summed_stretch(nee, index: pd.DatetimeIndex, starts: pd.DatetimeIndex,
+                   interval_minutes: int, column: str = "nee") -> str | None:
+    """A warning where NEE doubles at the record's change to intervals twice as long.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record of the regular record [µmol m-2 s-1], NaN where missing.
+    index : pandas.DatetimeIndex
+        Interval starts of the regular record (the file's and the inserted ones).
+    starts : pandas.DatetimeIndex
+        Interval starts as in the file, sorted and unique.
+    interval_minutes : int
+        The record interval [minutes].
+    column : str
+        The file's column of NEE, to name it.
+
+    Returns
+    -------
+    str or None
+        The warning; None where the file has no day of stamps two intervals apart in a row,
+        or where the 99th percentile of |NEE| in the fortnight after the change (searched
+        from a day before it to a day after) is not :data:`SUM_FACTOR` times that of the
+        fortnight before within ``split_factor.UNIT_FIT`` (1.4), or either fortnight holds
+        fewer than 48 values.
+
+    References
+    ----------
+    Aubinet, M., Vesala, T., & Papale, D. (Eds.) (2012). Eddy Covariance. Springer, ch. 1
+    (m).
+    """
+    first = _first_long_stretch(pd.DatetimeIndex(starts), interval_minutes)
+    if first is None:
+        return None
+    index = pd.DatetimeIndex(index)
+    cut = int(index.searchsorted(starts[first]))
+    found = jump_factor(nee, index, cut, search_days=1)
+    if found is None:
+        return None
+    ratio = 1.0 / found[0]               # later over earlier
+    if not SUM_FACTOR / UNIT_FIT <= ratio <= SUM_FACTOR * UNIT_FIT:
+        return None
+    return (f"NEE (column {column!r}) grows {ratio:.2f} times where the stamps turn "
+            f"{2 * interval_minutes} minutes apart ({starts[first]:%Y-%m-%d %H:%M}; the 99th "
+            "percentile of |NEE| in the fortnight after it against the fortnight before): "
+            "NEE is a rate, and an hour's value is the mean of its half-hours; their sum "
+            "reads twice the flux, and every sum drawn from it doubles: average, do not "
+            "add, the half-hours in a copy of the file")

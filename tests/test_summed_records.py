@@ -1,0 +1,37 @@
+"""NEE summed, not averaged, where the record turns to hourly intervals (round mistakes51)."""
+import numpy as np
+import pandas as pd
+
+from fluxpart.summed_records import summed_stretch
+
+
+def _record(hourly):
+    """Invented half-hourly NEE of 60 days [µmol m-2 s-1] (a diurnal course of uptake by
+    day, release by night, noise), the last 30 days written hourly by `hourly`; returns the
+    regular record's NEE, its starts and the file's starts."""
+    rng = np.random.default_rng(3)
+    index = pd.date_range("2021-06-01", periods=60 * 48, freq="30min")
+    hours = (index.hour + index.minute / 60).to_numpy()
+    nee = 3.0 - 12.0 * np.clip(np.sin(np.pi * (hours - 6) / 12), 0, None) \
+        + rng.normal(0, 1.0, len(index))
+    later = index >= pd.Timestamp("2021-07-01")
+    pairs = nee[later].reshape(-1, 2)
+    written = pd.Series(np.nan, index=index)
+    written[~later] = nee[~later]
+    written[index[later][1::2]] = hourly(pairs, axis=1)
+    starts = index[~later].append(index[later][1::2])
+    return written.to_numpy(), index, starts
+
+
+def test_an_hour_summed_is_named_and_an_hour_averaged_is_not():
+    """NEE is a rate (Aubinet et al. 2012, ch. 1 (m)): an hour's value is the mean of its
+    two half-hours; their sum is twice it. Known-truth recovery on invented data: the sum
+    from 1 July is named with its factor, the mean is not, nor a record without a change."""
+    nee, index, starts = _record(np.sum)
+    text = summed_stretch(nee, index, starts, 30, "co2")
+    assert text is not None and "'co2'" in text
+    assert 1.8 < float(text.split("grows ")[1].split()[0]) < 2.2
+    assert "2021-07-01" in text
+    nee, index, starts = _record(np.mean)
+    assert summed_stretch(nee, index, starts, 30) is None
+    assert summed_stretch(nee, index, index, 30) is None
