@@ -1,0 +1,120 @@
+"""Layouts of the layouts45 round: refusals that named a wrong cause.
+
+A time field of minutes since midnight was called hours and minutes written as one number
+(HHMM); rows a spreadsheet sorted by their quality flag were called a logger clock reset
+that sorting would misplace; summary lines at a fixed spacing among the records (a day's
+means after its 48 half-hours) were refused with no cause.
+
+Outside facts, each named beside its check: a day holds 1,440 minutes, so 90 minutes
+after midnight is 01:30 and "90" is no hhmm clock (its minutes would be 90) (SI; common
+practice); a stable sort keeps the earlier order among equal keys, so rows sorted by a
+flag stay in time order within each flag value (Knuth, TAOCP vol. 3, section 5 (m));
+half-hourly records make 48 a day (common practice). Everything else is invented known
+truth: the records as written.
+"""
+
+import re
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from fluxpart.errors import NonMonotonicTimestampError, TimestampError
+from fluxpart.io import read_table
+from fluxpart.site import Site
+
+SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
+MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
+NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
+
+
+def _records(count=96 * 4):
+    """Invented half-hourly records ending at 00:30 on 1 June, and a flag of 0 or 1."""
+    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
+    hour = ends.hour + ends.minute / 60
+    rg = np.clip(800 * np.sin((hour - 6) / 12 * np.pi), 0, None).round(1)
+    noise = np.random.default_rng(45).normal(0.0, 0.4, count)
+    fc = (2.0 - rg / 100 + noise).round(3)
+    ta = (15 + 5 * np.sin((hour - 9) / 12 * np.pi)).round(2)
+    vpd = (5 + ta / 3).round(2)
+    us = (0.2 + 0.1 * np.cos(np.arange(count) / 7)).round(3)
+    flag = (np.random.default_rng(46).random(count) < 0.3).astype(int)
+    return ends, np.column_stack([fc, us, rg, ta, vpd]), flag
+
+
+def _lines(stamps, values, head="stamp"):
+    return [",".join([head] + NAMES)] + [
+        ",".join(list(stamp) + [f"{v:g}" for v in row])
+        for stamp, row in zip(stamps, values, strict=True)]
+
+
+def _read(path, **options):
+    settings = {"columns": MAPPING, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
+                "time_marks": "end", "units": {"vpd": "hPa"}, "site": SITE} | options
+    return read_table(path, **settings)
+
+
+def test_minutes_since_midnight_are_named_as_such_not_as_hhmm(tmp_path):
+    """ "2021-06-01" beside "90" (01:30, the start of the record): the refusal named
+    HHMM, whose fix ("%H%M") reads "90" as no clock at all; the count it names now
+    converts to the clock it gives."""
+    ends, values, _ = _records()
+    starts = ends - pd.Timedelta("30min")
+    minutes = starts.hour * 60 + starts.minute
+    path = tmp_path / "minutes.csv"
+    lines = _lines(zip(starts.strftime("%Y-%m-%d"), minutes.astype(str), strict=True),
+                   values, head="day,minute")
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(TimestampError) as caught:
+        _read(path, time_column=["day", "minute"], time_marks="start")
+    message = str(caught.value)
+    named = re.search(r"counts the minutes of the day \('(\d+)' is (\d\d):(\d\d)\)", message)
+    assert named, message
+    count, hours, minutes = map(int, named.groups())
+    assert count == 60 * hours + minutes and count % 100 >= 60     # no hhmm clock reads it
+    assert "HHMM" not in message and "%H%M" not in message
+
+
+def test_rows_sorted_by_their_flag_are_not_called_a_clock_reset(tmp_path):
+    ends, values, flag = _records()
+    order = np.argsort(flag, kind="stable")
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    path = tmp_path / "by_flag.csv"
+    path.write_text("\n".join(_lines(zip(stamps[order], strict=True), values[order])) + "\n")
+    with pytest.raises(NonMonotonicTimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "2 runs of records in time order that interleave" in message
+    assert "sorted by another column" in message and "sort a copy of the file by time" in message
+    assert "clock reset" not in message and "misplace" not in message
+
+
+def test_a_clock_reset_is_still_named_beside_the_sorted_rows_test(tmp_path):
+    """Rows stamped 2000-01-01 after a power loss, then the record going on: the records
+    pass between the two runs twice, no interleaving; the reset keeps its line."""
+    ends, values, _ = _records()
+    stamps = list(ends.strftime("%Y-%m-%d %H:%M"))
+    stamps[200:204] = [f"2000-01-01 0{k}:00" for k in range(4)]
+    path = tmp_path / "reset.csv"
+    path.write_text("\n".join(_lines(zip(stamps, strict=True), values)) + "\n")
+    with pytest.raises(NonMonotonicTimestampError, match="clock reset") as caught:
+        _read(path)
+    assert "interleave" not in str(caught.value)
+
+
+def test_a_daily_summary_line_after_every_48_records_is_named(tmp_path):
+    ends, values, _ = _records()
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    lines = [",".join(["stamp"] + NAMES)]
+    for day in range(4):
+        rows = slice(48 * day, 48 * (day + 1))
+        lines += _lines(zip(stamps[rows], strict=True), values[rows])[1:]
+        lines.append(",".join(["daily mean"] + [f"{v:.3f}" for v in values[rows].mean(0)]))
+    path = tmp_path / "daily.csv"
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(TimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "line 50 " in message
+    assert "stamps that fail come one after every 48 records" in message
+    assert "summary lines" in message and "remove them in a copy of the file" in message
