@@ -18,28 +18,14 @@ import re
 import numpy as np
 import pandas as pd
 import pytest
+from test_robustness_layouts26 import NAMES, _read, _records  # invented records, 1-8 June 2021
 
 from fluxpart.errors import NonMonotonicTimestampError, TimestampError
-from fluxpart.io import read_table
-from fluxpart.site import Site
-
-SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
-MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
-NAMES = ["co2_flux", "us", "sw", "t_air", "vpd"]
 
 
-def _records(count=96 * 4):
-    """Invented half-hourly records ending at 00:30 on 1 June, and a flag of 0 or 1."""
-    ends = pd.date_range("2021-06-01 00:30", periods=count, freq="30min")
-    hour = ends.hour + ends.minute / 60
-    rg = np.clip(800 * np.sin((hour - 6) / 12 * np.pi), 0, None).round(1)
-    noise = np.random.default_rng(45).normal(0.0, 0.4, count)
-    fc = (2.0 - rg / 100 + noise).round(3)
-    ta = (15 + 5 * np.sin((hour - 9) / 12 * np.pi)).round(2)
-    vpd = (5 + ta / 3).round(2)
-    us = (0.2 + 0.1 * np.cos(np.arange(count) / 7)).round(3)
-    flag = (np.random.default_rng(46).random(count) < 0.3).astype(int)
-    return ends, np.column_stack([fc, us, rg, ta, vpd]), flag
+def _flags(count):
+    """An invented quality flag of 0 or 1 for each record."""
+    return (np.random.default_rng(46).random(count) < 0.3).astype(int)
 
 
 def _lines(stamps, values, head="stamp"):
@@ -48,17 +34,11 @@ def _lines(stamps, values, head="stamp"):
         for stamp, row in zip(stamps, values, strict=True)]
 
 
-def _read(path, **options):
-    settings = {"columns": MAPPING, "time_column": "stamp", "time_format": "%Y-%m-%d %H:%M",
-                "time_marks": "end", "units": {"vpd": "hPa"}, "site": SITE} | options
-    return read_table(path, **settings)
-
-
 def test_minutes_since_midnight_are_named_as_such_not_as_hhmm(tmp_path):
     """ "2021-06-01" beside "90" (01:30, the start of the record): the refusal named
     HHMM, whose fix ("%H%M") reads "90" as no clock at all; the count it names now
     converts to the clock it gives."""
-    ends, values, _ = _records()
+    ends, values = _records()
     starts = ends - pd.Timedelta("30min")
     minutes = starts.hour * 60 + starts.minute
     path = tmp_path / "minutes.csv"
@@ -76,7 +56,8 @@ def test_minutes_since_midnight_are_named_as_such_not_as_hhmm(tmp_path):
 
 
 def test_rows_sorted_by_their_flag_are_not_called_a_clock_reset(tmp_path):
-    ends, values, flag = _records()
+    ends, values = _records()
+    flag = _flags(len(ends))
     order = np.argsort(flag, kind="stable")
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     path = tmp_path / "by_flag.csv"
@@ -92,7 +73,7 @@ def test_rows_sorted_by_their_flag_are_not_called_a_clock_reset(tmp_path):
 def test_a_clock_reset_is_still_named_beside_the_sorted_rows_test(tmp_path):
     """Rows stamped 2000-01-01 after a power loss, then the record going on: the records
     pass between the two runs twice, no interleaving; the reset keeps its line."""
-    ends, values, _ = _records()
+    ends, values = _records()
     stamps = list(ends.strftime("%Y-%m-%d %H:%M"))
     stamps[200:204] = [f"2000-01-01 0{k}:00" for k in range(4)]
     path = tmp_path / "reset.csv"
@@ -103,7 +84,7 @@ def test_a_clock_reset_is_still_named_beside_the_sorted_rows_test(tmp_path):
 
 
 def test_a_daily_summary_line_after_every_48_records_is_named(tmp_path):
-    ends, values, _ = _records()
+    ends, values = _records()
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     lines = [",".join(["stamp"] + NAMES)]
     for day in range(4):

@@ -154,36 +154,38 @@ def spreadsheet_day_first_file_read_month_first(folder):
     return "refused"
 
 
+def counted(folder, unit, since, digits, time_format):
+    """The example's stamps written as the count of `unit` since `since`, to `digits`
+    decimals ("g": as short as exact), read as `time_format`."""
+    def written(ends):
+        return [format(v, f".{digits}f" if digits != "g" else "g")
+                for v in (ends - pd.Timestamp(since)) / pd.Timedelta(unit)]
+
+    p38.restamped(folder, written, time_format)
+
+
 @case
 def spreadsheet_serial_days_with_four_decimals(folder):
     """ "44197.0208" (the 1900 date system, four decimals: 8.6 s)."""
-    p38.restamped(folder, lambda ends: [f"{v:.4f}" for v in
-                                        (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")],
-                  "days since 1899-12-30")
+    counted(folder, "1D", "1899-12-30", 4, "days since 1899-12-30")
 
 
 # --------------------------------------------------------------------------- counted time
 @case
 def days_since_2020_as_a_netcdf_dump_writes_them(folder):
     """A "time" column of float days since 2020-01-01, eleven decimals."""
-    p38.restamped(folder, lambda ends: [f"{v:.11f}" for v in
-                                        (ends - pd.Timestamp("2020-01-01")) / pd.Timedelta("1D")],
-                  "days since 2020-01-01 00:00:00")
+    counted(folder, "1D", "2020-01-01", 11, "days since 2020-01-01 00:00:00")
 
 
 @case
 def days_since_2020_with_five_decimals(folder):
     """Days since 2020-01-01 rounded to five decimals (0.86 s)."""
-    p38.restamped(folder, lambda ends: [f"{v:.5f}" for v in
-                                        (ends - pd.Timestamp("2020-01-01")) / pd.Timedelta("1D")],
-                  "days since 2020-01-01")
+    counted(folder, "1D", "2020-01-01", 5, "days since 2020-01-01")
 
 
 @case
 def hours_since_2021_start(folder):
-    p38.restamped(folder, lambda ends: [f"{v:g}" for v in
-                                        (ends - pd.Timestamp("2021-01-01")) / pd.Timedelta("1h")],
-                  "hours since 2021-01-01 00:00")
+    counted(folder, "1h", "2021-01-01", "g", "hours since 2021-01-01 00:00")
 
 
 @case
@@ -301,19 +303,25 @@ def group_line_names_and_bracket_units_declared(folder):
 
 
 # --------------------------------------------------------------------------- summary rows
-@case
-def daily_mean_row_after_every_day_stamped_with_the_date(folder):
-    """After each day's 48 records a line "2021-01-01,<daily means>" (no clock)."""
+def with_daily_lines(folder, label, stamp_format="%Y%m%d%H%M"):
+    """The example, its stamps written as `stamp_format`, with a line after each day's 48
+    records: ``label(day)`` in the stamp column, then the day's means."""
     raw, ends = table()
+    raw["stamp"] = stamps(ends, stamp_format)
     values = numbers(raw).replace(-9999, np.nan)
     day = (ends - pd.Timedelta("30min")).dt.date
     text = [",".join(raw.columns)]
     for d, rows in raw.groupby(day.to_numpy(), sort=True).groups.items():
         text += lines(raw.loc[rows], header=False)
-        means = values.loc[rows].mean()
-        text.append(f"{d:%Y-%m-%d}," + ",".join(f"{v:.3f}" for v in means))
+        text.append(label(d) + "," + ",".join(f"{v:.3f}" for v in values.loc[rows].mean()))
     write(folder / "t.csv", text)
-    toml(folder, "t.csv", time_format="%Y%m%d%H%M")
+    toml(folder, "t.csv", time_format=stamp_format)
+
+
+@case
+def daily_mean_row_after_every_day_stamped_with_the_date(folder):
+    """After each day's 48 records a line "2021-01-01,<daily means>" (no clock)."""
+    with_daily_lines(folder, lambda d: f"{d:%Y-%m-%d}")
     return "refused"
 
 
@@ -321,31 +329,14 @@ def daily_mean_row_after_every_day_stamped_with_the_date(folder):
 def daily_mean_row_stamped_with_the_date_in_an_iso_file(folder):
     """ "2021-01-01 00:30" records and a "2021-01-01" line of daily means after each day
     (a date alone also writes midnight in some exports)."""
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
-    values = numbers(raw).replace(-9999, np.nan)
-    day = (ends - pd.Timedelta("30min")).dt.date
-    text = [",".join(raw.columns)]
-    for d, rows in raw.groupby(day.to_numpy(), sort=True).groups.items():
-        text += lines(raw.loc[rows], header=False)
-        text.append(f"{d:%Y-%m-%d}," + ",".join(f"{v:.3f}" for v in values.loc[rows].mean()))
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    with_daily_lines(folder, lambda d: f"{d:%Y-%m-%d}", "%Y-%m-%d %H:%M")
     return "refused"
 
 
 @case
 def daily_total_row_after_every_day_labelled(folder):
-    """After each day's records a line "daily total,<sums>"."""
-    raw, ends = table()
-    values = numbers(raw).replace(-9999, np.nan)
-    day = (ends - pd.Timedelta("30min")).dt.date
-    text = [",".join(raw.columns)]
-    for _, rows in raw.groupby(day.to_numpy(), sort=True).groups.items():
-        text += lines(raw.loc[rows], header=False)
-        text.append("daily total," + ",".join(f"{v:.3f}" for v in values.loc[rows].sum()))
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv")
+    """After each day's records a line "daily total,<values>"."""
+    with_daily_lines(folder, lambda d: "daily total")
     return "refused"
 
 
@@ -416,6 +407,73 @@ def units_row_in_brackets_declared_tab_file(folder):
     text = lines(raw, sep="\t")
     write(folder / "t.txt", text[:1] + ["\t".join(units)] + text[1:])
     toml(folder, "t.txt", delimiter="\t", rows_after_header=1)
+
+
+# --------------------------------------------------------------------------- spreadsheet losses
+@case
+def spreadsheet_scientific_format_on_every_number_missing_code_too(folder):
+    """Every value "3.290000E-01", the missing code "-9.999000E+03"."""
+    raw, _ = table()
+    for column in VALUE_COLUMNS:
+        raw[column] = [f"{float(c):.6E}" for c in raw[column]]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
+@case
+def spreadsheet_general_format_shortens_twelve_digit_stamps(folder):
+    """A spreadsheet's "General" format shows 202101010030 as "2.02101E+11" and saves
+    that: the stamps are lost."""
+    raw, ends = table()
+    raw["stamp"] = [f"{float(v):.5E}" for v in raw["stamp"]]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+    return "refused"
+
+
+@case
+def flag_column_written_as_decimals(folder):
+    """The quality flag "0.0", "1.0", "2.0" (a spreadsheet or a script's float column)."""
+    raw, _ = table()
+    raw["co2_grade"] = [f"{float(v):.1f}" for v in raw["co2_grade"]]
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
+@case
+def month_files_overlapping_one_day_values_in_another_precision(folder):
+    """Each month file repeats the next month's first day, its values with trailing
+    zeros ("0.500" for "0.5"): equal values, other text."""
+    raw, ends = table()
+    month = (ends - pd.Timedelta("30min")).dt.month.to_numpy()
+    for m in range(1, 13):
+        part = raw[month == m]
+        if m < 12:
+            extra = raw[month == m + 1].iloc[:48].copy()
+            for column in VALUE_COLUMNS:
+                extra[column] = [c if c == "-9999" else f"{float(c):.4f}" for c in extra[column]]
+            part = pd.concat([part, extra])
+        write(folder / f"q_{m:02d}.csv", lines(part))
+    toml(folder, "q_*.csv")
+
+
+@case
+def twelve_hour_clock_with_spanish_p_m(folder):
+    """ "01/06/2021 12:30 p. m." as a Spanish-locale spreadsheet writes it."""
+    def written(ends):
+        return [s.replace("AM", "a. m.").replace("PM", "p. m.")
+                for s in stamps(ends, "%d/%m/%Y %I:%M %p")]
+
+    p38.restamped(folder, written, "%d/%m/%Y %I:%M %p")
+
+
+@case
+def cp1252_en_dash_for_no_value_declared(folder):
+    """ "–" (an en dash, byte 0x96 in Windows-1252) for no value, encoding and code given."""
+    raw, _ = table()
+    raw = raw.replace("-9999", "\u2013")
+    write(folder / "t.csv", lines(raw), encoding="cp1252")
+    toml(folder, "t.csv", encoding="cp1252", missing=["\u2013"])
 
 
 def main():
