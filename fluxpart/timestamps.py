@@ -42,6 +42,7 @@ from .errors import (
 from .month_words import MONTHS, english_months
 from .stamp_places import (
     column_utc_offset,
+    date_only_backwards_hint,
     date_only_repeats_hint,
     ends_in_utc_z,
     repeated_stamp_hint,
@@ -1902,7 +1903,8 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     if backwards.size:
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
-        swapped = (_runs_in_reverse_order(stamps, backwards)
+        swapped = (date_only_backwards_hint(pd.DatetimeIndex(stamps), text, backwards)
+                   or _runs_in_reverse_order(stamps, backwards)
                    or _block_filling_a_gap(stamps, backwards))
         if swapped:
             hint = swapped

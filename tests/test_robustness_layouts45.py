@@ -5,6 +5,9 @@ A time field of minutes since midnight was called hours and minutes written as o
 that sorting would misplace; summary lines at a fixed spacing among the records (a day's
 means after its 48 half-hours) were refused with no cause.
 
+A day file closed by a line stamped with the date alone was called a ring memory read from
+its start, whose fix (sorting) reads that line as a midnight record.
+
 Outside facts, each named beside its check: a day holds 1,440 minutes, so 90 minutes
 after midnight is 01:30 and "90" is no hhmm clock (its minutes would be 90) (SI; common
 practice); a stable sort keeps the earlier order among equal keys, so rows sorted by a
@@ -99,3 +102,21 @@ def test_a_daily_summary_line_after_every_48_records_is_named(tmp_path):
     assert "line 50 " in message
     assert "stamps that fail come one after every 48 records" in message
     assert "summary lines" in message and "remove them in a copy of the file" in message
+
+
+def test_a_day_file_closed_by_a_line_of_the_date_alone_is_not_sorted(tmp_path):
+    """A day's records, then "2021-06-01,<means>": the date alone is a midnight that
+    goes back in time; named a ring memory read from its start before, whose fix
+    (sort) reads the summary as a record at 00:00."""
+    ends, values = _records()
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    lines = _lines(zip(stamps[:48], strict=True), values[:48])
+    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[:48].mean(0)]))
+    path = tmp_path / "day.csv"
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(NonMonotonicTimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert "line 50 " in message and "a date alone ('2021-06-01', read as 00:00)" in message
+    assert "Remove such lines in a copy of the file" in message
+    assert "two runs" not in message and "sort a copy" not in message

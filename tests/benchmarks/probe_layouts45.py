@@ -334,6 +334,36 @@ def daily_mean_row_stamped_with_the_date_in_an_iso_file(folder):
 
 
 @case
+def daily_files_each_closed_by_a_mean_line_dated_with_the_date(folder):
+    """Daily files of "2021-01-01 00:30" .. "2021-01-02 00:00" records, each closed by a
+    line "2021-01-01,<daily means>" (the date alone is also a midnight)."""
+    raw, ends = table()
+    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
+    values = numbers(raw).replace(-9999, np.nan)
+    day = (ends - pd.Timedelta("30min")).dt.date
+    for d, rows in raw.groupby(day.to_numpy(), sort=True).groups.items():
+        text = lines(raw.loc[rows]) + [f"{d:%Y-%m-%d}," + ",".join(
+            f"{v:.3f}" for v in values.loc[rows].mean())]
+        write(folder / f"d_{d:%Y%m%d}.csv", text)
+    toml(folder, "d_*.csv", time_format="%Y-%m-%d %H:%M")
+    return "refused"
+
+
+@case
+def one_day_file_closed_by_a_mean_line_dated_with_the_date(folder):
+    """A day's 48 records from 04:30, closed by "2021-01-05,<means>"."""
+    raw, ends = table()
+    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
+    values = numbers(raw).replace(-9999, np.nan)
+    rows = raw.index[200:248]
+    text = lines(raw.loc[rows]) + [f"{ends[200] - pd.Timedelta('30min'):%Y-%m-%d}," + ",".join(
+        f"{v:.3f}" for v in values.loc[rows].mean())]
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    return "refused"      # the date alone is also a midnight: the user removes the line
+
+
+@case
 def daily_total_row_after_every_day_labelled(folder):
     """After each day's records a line "daily total,<values>"."""
     with_daily_lines(folder, lambda d: "daily total")
