@@ -1397,8 +1397,10 @@ def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | N
     -------
     str or None
         Where every repeated stamp is midnight and has one row written shorter than the
-        file's usual stamp (the date alone, "2021-06-02", read as 00:00), and there are
-        several such: daily summary lines among the records; else None.
+        file's usual stamp (the date alone, "2021-06-02", read as 00:00): daily summary
+        lines among the records, one day's too (a day file of start stamps closed by
+        its summary; layouts45: two days at least before, one was told "keep one of
+        them"); else None.
 
     References
     ----------
@@ -1406,7 +1408,7 @@ def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | N
     table, stamped with the date alone.
     """
     duplicated = np.asarray(stamps.duplicated(keep=False))
-    if duplicated.sum() < 4:
+    if duplicated.sum() < 2:
         return None
     repeated = stamps[duplicated]
     if (repeated != repeated.normalize()).any():

@@ -2040,7 +2040,8 @@ def _block_filling_a_gap(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str
 def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
     """Name stamps that fail at a fixed spacing among stamps that parse (a daily summary
     line after every 48 half-hourly records: "2021-06-01" or "daily total" in the stamp
-    column), or "".
+    column), or a last line stamped with the start of the records' dates ("2021-01" after
+    "2021-01-31 23:30": a month's summary), or "".
 
     The test: three or more failed stamps, most of the steps between them the same
     (two records or more), and most stamps parsed. Such lines are refused rather than
@@ -2053,6 +2054,16 @@ def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
     practice).
     """
     at = np.flatnonzero(failed)
+    if at.size == 1 and at[0] == len(text) - 1 and len(text) > 2:
+        # the last line's stamp the start of most records' dates ("2021-01" under
+        # "2021-01-31 23:30"): a summary of the month or the day closing the file
+        last = str(text.iloc[-1]).strip()
+        others = text.iloc[:-1].astype(str).str.strip()
+        if len(last) >= 4 and (others.str.startswith(last)
+                               & (others.str.len() > len(last))).mean() > 0.5:
+            return (f"the last line's stamp {last!r} is the start of the records' dates: a "
+                    "summary line of the period (its means or totals?) closing the file; "
+                    "remove it in a copy of the file")
     if at.size < 3 or at.size > 0.2 * len(text):
         return ""
     steps = np.diff(at)

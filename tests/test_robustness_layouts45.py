@@ -23,7 +23,7 @@ import pandas as pd
 import pytest
 from test_robustness_layouts26 import NAMES, _read, _records  # invented records, 1-8 June 2021
 
-from fluxpart.errors import NonMonotonicTimestampError, TimestampError
+from fluxpart.errors import DuplicateTimestampError, NonMonotonicTimestampError, TimestampError
 
 
 def _flags(count):
@@ -120,3 +120,33 @@ def test_a_day_file_closed_by_a_line_of_the_date_alone_is_not_sorted(tmp_path):
     assert "line 50 " in message and "a date alone ('2021-06-01', read as 00:00)" in message
     assert "Remove such lines in a copy of the file" in message
     assert "two runs" not in message and "sort a copy" not in message
+
+
+def test_a_day_file_of_start_stamps_closed_by_its_date_names_the_summary(tmp_path):
+    """Start stamps 00:00 .. 23:30, then "2021-06-01,<means>": the date alone repeats
+    the first record's stamp; one day was told "keep one of them" (either)."""
+    ends, values = _records()
+    stamps = (ends - pd.Timedelta("30min")).strftime("%Y-%m-%d %H:%M")
+    lines = _lines(zip(stamps[:48], strict=True), values[:48])
+    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[:48].mean(0)]))
+    path = tmp_path / "day.csv"
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(DuplicateTimestampError) as caught:
+        _read(path, time_marks="start")
+    message = str(caught.value)
+    assert "once as the date alone ('2021-06-01'), 1 day(s): daily summary lines" in message
+    assert "keep one of them" not in message
+
+
+def test_a_month_file_closed_by_a_line_of_its_month_names_the_summary(tmp_path):
+    ends, values = _records()
+    stamps = ends.strftime("%Y-%m-%d %H:%M")
+    lines = _lines(zip(stamps, strict=True), values)
+    lines.append(",".join(["2021-06"] + [f"{v:.3f}" for v in values.mean(0)]))
+    path = tmp_path / "month.csv"
+    path.write_text("\n".join(lines) + "\n")
+    with pytest.raises(TimestampError) as caught:
+        _read(path)
+    message = str(caught.value)
+    assert f"line {len(lines)} " in message
+    assert "'2021-06' is the start of the records' dates: a summary line" in message

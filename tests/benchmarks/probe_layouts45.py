@@ -364,6 +364,38 @@ def one_day_file_closed_by_a_mean_line_dated_with_the_date(folder):
 
 
 @case
+def one_day_file_of_start_stamps_closed_by_a_mean_line_dated_with_the_date(folder):
+    """Start stamps "2021-01-05 00:00" .. "23:30", closed by "2021-01-05,<means>" (the
+    first record's stamp again, as the date alone)."""
+    raw, ends = table()
+    starts = ends - pd.Timedelta("30min")
+    raw["stamp"] = stamps(starts, "%Y-%m-%d %H:%M")
+    values = numbers(raw).replace(-9999, np.nan)
+    rows = raw.index[192:240]
+    text = lines(raw.loc[rows]) + [f"{starts[192]:%Y-%m-%d}," + ",".join(
+        f"{v:.3f}" for v in values.loc[rows].mean())]
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M", time_marks="start")
+    return "refused"
+
+
+@case
+def month_files_each_closed_by_a_mean_line_dated_with_the_month(folder):
+    """Month files closed by "2021-01,<monthly means>"."""
+    raw, ends = table()
+    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
+    values = numbers(raw).replace(-9999, np.nan)
+    month = (ends - pd.Timedelta("30min")).dt.month.to_numpy()
+    for m in range(1, 13):
+        part = raw[month == m]
+        means = values[month == m].mean()
+        write(folder / f"q_{m:02d}.csv", lines(part) + [f"2021-{m:02d}," + ",".join(
+            f"{v:.3f}" for v in means)])
+    toml(folder, "q_*.csv", time_format="%Y-%m-%d %H:%M")
+    return "refused"
+
+
+@case
 def daily_total_row_after_every_day_labelled(folder):
     """After each day's records a line "daily total,<values>"."""
     with_daily_lines(folder, lambda d: "daily total")
