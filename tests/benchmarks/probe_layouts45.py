@@ -12,7 +12,8 @@ object a record), a Parquet file with the stamps as its index, a spreadsheet's C
 exponents and unpadded hours, day counts since an epoch in a netCDF-like dump, a date and
 minutes since midnight, a constant "+01:00" on every stamp, records sorted by their quality
 flag, eight spellings of no value in one file ("1.#QNAN" and "\\N" among them), a group line
-above the names, a units row in brackets, a daily summary row after every day, an unnamed
+above the names, a units row in brackets, a daily summary row after every day (and day or
+month files closed by a line of the date alone or the month), an unnamed
 index column beside a named stamp, month files overlapping by a whole month, Latin-1 names,
 a database's row-count footer, "NULL" for no value. Its truth is the example's frame, or
 ``"refused"`` where no reading is right without the user's word (one ``error:`` line is
