@@ -350,17 +350,24 @@ def daily_files_each_closed_by_a_mean_line_dated_with_the_date(folder):
     return "refused"
 
 
+def one_day_file_closed_by_its_date(folder, first, marks):
+    """48 records from record `first`, stamped at their `marks` ("end" or "start") as
+    "%Y-%m-%d %H:%M", then a line of their first stamp's date alone and their means."""
+    raw, ends = table()
+    placed = ends - pd.Timedelta("30min" if marks == "start" else "0min")
+    raw["stamp"] = stamps(placed, "%Y-%m-%d %H:%M")
+    values = numbers(raw).replace(-9999, np.nan)
+    rows = raw.index[first:first + 48]
+    text = lines(raw.loc[rows]) + [f"{ends[first] - pd.Timedelta('30min'):%Y-%m-%d}," + ",".join(
+        f"{v:.3f}" for v in values.loc[rows].mean())]
+    write(folder / "t.csv", text)
+    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M", time_marks=marks)
+
+
 @case
 def one_day_file_closed_by_a_mean_line_dated_with_the_date(folder):
     """A day's 48 records from 04:30, closed by "2021-01-05,<means>"."""
-    raw, ends = table()
-    raw["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
-    values = numbers(raw).replace(-9999, np.nan)
-    rows = raw.index[200:248]
-    text = lines(raw.loc[rows]) + [f"{ends[200] - pd.Timedelta('30min'):%Y-%m-%d}," + ",".join(
-        f"{v:.3f}" for v in values.loc[rows].mean())]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M")
+    one_day_file_closed_by_its_date(folder, 200, "end")
     return "refused"      # the date alone is also a midnight: the user removes the line
 
 
@@ -368,15 +375,7 @@ def one_day_file_closed_by_a_mean_line_dated_with_the_date(folder):
 def one_day_file_of_start_stamps_closed_by_a_mean_line_dated_with_the_date(folder):
     """Start stamps "2021-01-05 00:00" .. "23:30", closed by "2021-01-05,<means>" (the
     first record's stamp again, as the date alone)."""
-    raw, ends = table()
-    starts = ends - pd.Timedelta("30min")
-    raw["stamp"] = stamps(starts, "%Y-%m-%d %H:%M")
-    values = numbers(raw).replace(-9999, np.nan)
-    rows = raw.index[192:240]
-    text = lines(raw.loc[rows]) + [f"{starts[192]:%Y-%m-%d}," + ",".join(
-        f"{v:.3f}" for v in values.loc[rows].mean())]
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv", time_format="%Y-%m-%d %H:%M", time_marks="start")
+    one_day_file_closed_by_its_date(folder, 192, "start")
     return "refused"
 
 
