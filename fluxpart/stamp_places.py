@@ -1397,8 +1397,10 @@ def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | N
     -------
     str or None
         Where every repeated stamp is midnight and has one row written shorter than the
-        file's usual stamp (the date alone, "2021-06-02", read as 00:00), and there are
-        several such: daily summary lines among the records; else None.
+        file's usual stamp (the date alone, "2021-06-02", read as 00:00): daily summary
+        lines among the records, one day's too (a day file of start stamps closed by
+        its summary; layouts45: two days at least before, one was told "keep one of
+        them"); else None.
 
     References
     ----------
@@ -1406,7 +1408,7 @@ def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | N
     table, stamped with the date alone.
     """
     duplicated = np.asarray(stamps.duplicated(keep=False))
-    if duplicated.sum() < 4:
+    if duplicated.sum() < 2:
         return None
     repeated = stamps[duplicated]
     if (repeated != repeated.normalize()).any():
@@ -1422,6 +1424,55 @@ def date_only_repeats_hint(stamps: pd.DatetimeIndex, text: pd.Series) -> str | N
             f"date alone ({str(text.iloc[first]).strip()!r}), {len(days)} day(s): daily "
             "summary lines among the records (a logger's day table written into the same "
             "file)? Remove those lines in a copy of the file")
+
+
+def date_only_backwards_hint(stamps: pd.DatetimeIndex, text: pd.Series,
+                             backwards: np.ndarray) -> str | None:
+    """The cause where each stamp that goes back in time is a date alone after records
+    with a clock.
+
+    Parameters
+    ----------
+    stamps : pandas.DatetimeIndex
+        One file's stamps in file order (no repeats).
+    text : pandas.Series of str
+        The stamps as written, row by row.
+    backwards : numpy.ndarray of int
+        Positions of the steps that go back in time.
+
+    Returns
+    -------
+    str or None
+        Where every stamp after a step back is midnight, written shorter than the file's
+        usual stamp (the date alone, "2021-06-01", read as 00:00), and followed by a
+        later stamp or by none: summary lines of the day (a daily file closed by its
+        means); else None. Such a line read as a record, as sorting would, is a false
+        midnight record (layouts45: named a ring memory read from its start before, whose
+        fix, sorting, reads it so).
+
+    References
+    ----------
+    Common practice: a logger writes its daily table into the file of its 30-minute
+    table, stamped with the date alone.
+    """
+    rows = np.asarray(backwards) + 1
+    if rows.size == 0:
+        return None
+    at = pd.DatetimeIndex(stamps[rows])
+    if (at != at.normalize()).any():
+        return None
+    lengths = text.astype(str).str.strip().str.len().to_numpy()
+    if not (lengths[rows] < float(np.median(lengths)) - 2).all():
+        return None
+    following = rows[rows + 1 < len(stamps)]
+    if (stamps[following + 1] <= stamps[following]).any():
+        return None
+    which = ("the stamp there is" if rows.size == 1
+             else f"the {rows.size} stamps that go back are each")
+    return (f"{which} a date alone ({str(text.iloc[rows[0]]).strip()!r}, read as 00:00) after the "
+            "records of that day: a summary line of the day (a logger's day table written "
+            "into the same file, its means or totals)? Remove such lines in a copy of the "
+            "file (sorting would read them as midnight records)")
 
 
 def repeated_stamp_hint(stamps: pd.DatetimeIndex) -> str | None:

@@ -42,6 +42,7 @@ from .errors import (
 from .month_words import MONTHS, english_months
 from .stamp_places import (
     column_utc_offset,
+    date_only_backwards_hint,
     date_only_repeats_hint,
     ends_in_utc_z,
     repeated_stamp_hint,
@@ -1551,9 +1552,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             hint = "; " + found
         elif (not isinstance(time_columns, str) and len(time_columns) > 1
               and "%H:%M" in time_format
-              and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()):
+              and text[failed].str.strip().str.fullmatch(r".*\s\d{1,4}").all()
+              and not _seconds_of_day(text, time_format)):
             # hours and minutes as one integer (0, 30, 100, ..., 2330): a logger's or a
-            # spreadsheet's time column of HHMM numbers
+            # spreadsheet's time column of HHMM numbers; minutes of the day (0, 30, 60,
+            # 90, ..., 1410) are named below (layouts45: called HHMM before)
             hint = ("; the time field holds hours and minutes as one number (HHMM: 30 for "
                     "00:30, 1330 for 13:30): write %H%M for %H:%M in time_format")
         elif "%j" in time_format and text[failed].str.contains(
@@ -1606,6 +1609,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif (found := _text_around_stamps(text, failed, time_format)):
             hint = "; " + found
         elif (found := _marked_stamps(text, failed, time_format)):
+            hint = "; " + found
+        elif (found := _summary_lines(text, failed)):
             hint = "; " + found
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
@@ -1898,7 +1903,8 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
     if backwards.size:
         row = int(backwards[0]) + 1
         back_days = -float(steps[row - 1]) / 86400.0
-        swapped = (_runs_in_reverse_order(stamps, backwards)
+        swapped = (date_only_backwards_hint(pd.DatetimeIndex(stamps), text, backwards)
+                   or _runs_in_reverse_order(stamps, backwards)
                    or _block_filling_a_gap(stamps, backwards))
         if swapped:
             hint = swapped
@@ -1907,6 +1913,8 @@ def check_order(stamps: pd.DatetimeIndex, text: pd.Series, source: str, lines: n
                     "or less fall in order with the others: day and month are written in "
                     "two orders (a spreadsheet that read day-first stamps month-first where "
                     "the day allowed?); write every stamp in one order in a copy of the file")
+        elif back_days > 1.0 and (found := _sorted_by_another_column(stamps, backwards)):
+            hint = found
         elif back_days > 1.0:
             # records merely out of order are a few records apart; a jump back by days
             # or years is a logger clock reset, which sorting would turn into a false
@@ -2027,6 +2035,84 @@ def _block_filling_a_gap(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str
             f"and {others[at]:%Y-%m-%d %H:%M} of the others exactly (records read late from "
             "the logger's memory and appended?); sort a copy of the file by time (no stamp "
             "repeats)")
+
+
+def _summary_lines(text: pd.Series, failed: np.ndarray) -> str:
+    """Name stamps that fail at a fixed spacing among stamps that parse (a daily summary
+    line after every 48 half-hourly records: "2021-06-01" or "daily total" in the stamp
+    column), or a last line stamped with the start of the records' dates ("2021-01" after
+    "2021-01-31 23:30": a month's summary), or "".
+
+    The test: three or more failed stamps, most of the steps between them the same
+    (two records or more), and most stamps parsed. Such lines are refused rather than
+    dropped (layouts45: refused before with no cause): a stamp of a date alone may be
+    a record's, and the lines' count and spacing are the user's to confirm.
+
+    References
+    ----------
+    Loggers and spreadsheets write a day's means or totals under its records (common
+    practice).
+    """
+    at = np.flatnonzero(failed)
+    if at.size == 1 and at[0] == len(text) - 1 and len(text) > 2:
+        # the last line's stamp the start of most records' dates ("2021-01" under
+        # "2021-01-31 23:30"): a summary of the month or the day closing the file
+        last = str(text.iloc[-1]).strip()
+        others = text.iloc[:-1].astype(str).str.strip()
+        if len(last) >= 4 and (others.str.startswith(last)
+                               & (others.str.len() > len(last))).mean() > 0.5:
+            return (f"the last line's stamp {last!r} is the start of the records' dates: a "
+                    "summary line of the period (its means or totals?) closing the file; "
+                    "remove it in a copy of the file")
+    if at.size < 3 or at.size > 0.2 * len(text):
+        return ""
+    steps = np.diff(at)
+    values, counts = np.unique(steps, return_counts=True)
+    step = int(values[np.argmax(counts)])
+    if step < 3 or counts.max() < 0.9 * steps.size:
+        return ""
+    shown = ", ".join(repr(v) for v in text.iloc[at[:2]])
+    return (f"the {at.size} stamps that fail come one after every {step - 1} records "
+            f"({shown}, ...): summary lines (a day's means or totals?) among the records; "
+            "remove them in a copy of the file")
+
+
+def _sorted_by_another_column(stamps: pd.DatetimeIndex, backwards: np.ndarray) -> str:
+    """The fix where the file's runs of records in time order interleave (in time order
+    the records pass from one run to another more than twice a run) and no stamp
+    repeats; else "". Asked where the stamps jump back by more than a day: a midnight
+    dated a day early and a civil time's autumn hour sorted by stamp have their own
+    hints.
+
+    A table sorted by another column (a quality flag, a value) in a spreadsheet or a
+    database query is such a file: with a stable sort, each of the column's values
+    keeps its records in time order, and the runs interleave. A clock reset writes its
+    later records over a period the file holds (a stamp repeats, refused before this
+    test) or into another period (the records pass between runs twice); the message
+    named a clock reset and "sorting would misplace them" for a file sorted by its flag
+    before layouts45. Parameters as :func:`_runs_in_reverse_order`'s; the hint returned
+    names the runs and the fix, or is "".
+
+    References
+    ----------
+    Spreadsheets and SQL's ORDER BY sort rows by any column, stably or not (common
+    practice).
+    """
+    if len(stamps) < 4 or not stamps.is_unique:
+        return ""
+    run = np.zeros(len(stamps), dtype=np.int64)
+    run[backwards + 1] = 1
+    run = np.cumsum(run)
+    # in time order, the records pass from one run to another more than twice a run: a
+    # clock reset's rows (or a block out of place) pass twice at most
+    passes = int((np.diff(run[np.argsort(np.asarray(stamps), kind="stable")]) != 0).sum())
+    if passes <= 2 * (int(run[-1]) + 1):
+        return ""
+    return (f"the file holds {int(run[-1]) + 1} runs of records in time order that interleave "
+            f"over the same period ({stamps.min():%Y-%m-%d %H:%M} .. "
+            f"{stamps.max():%Y-%m-%d %H:%M}), and no stamp repeats: rows sorted by another "
+            "column (a quality flag or a value, in a spreadsheet or a query?); sort a copy "
+            "of the file by time")
 
 
 def _scattered_seconds(stamps: pd.DatetimeIndex, steps: np.ndarray, describe,
