@@ -315,3 +315,47 @@ def test_a_result_that_records_no_respiration_choice_names_none(written_demo):
                      "respiration_form_share_constant_q10": 0.25}
     assert "tsoil (soil temperature), delayed 0 h" in respiration_comment(facts)
     assert "weight 0.25 of the constant-Q10 form" in respiration_comment(facts)
+
+
+def _modeller_blocks():
+    """The Python blocks of README's "For modellers" section, in order."""
+    from pathlib import Path
+
+    readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    section = readme[readme.index("## For modellers"):readme.index("## Audit workflow")]
+    return [block.split("```", 1)[0] for block in section.split("```python\n")[1:]]
+
+
+def test_the_readmes_first_modeller_blocks_run_as_written_on_a_result_folder(
+        written_demo, tmp_path, monkeypatch):
+    """Round modeller52 ran every Python block of "For modellers" in a fresh interpreter:
+    the reading blocks (fluxpart.load, plain pandas, Polars) are run here as written, in a
+    folder whose `out/` is a result folder, and give what their comments say. The signs
+    the section states for every table are those of the identity NEE = Reco - GPP (the
+    nighttime method's definition, common practice): a day's NEE is its nighttime Reco
+    minus its nighttime GPP, and net uptake is negative NEE."""
+    pytest.importorskip("polars")
+    _, folder = written_demo
+    (tmp_path / "out").symlink_to(folder, target_is_directory=True)
+    monkeypatch.chdir(tmp_path)
+    blocks = _modeller_blocks()
+    assert "fluxpart.load" in blocks[0] and "polars" in blocks[1]
+    namespace = {}
+    for block in blocks[:2]:
+        exec(compile(block, "README.md", "exec"), namespace)
+    assert namespace["result"].timeseries.attrs["units"]["gpp_daytime"] == "umol m-2 s-1"
+    daily = namespace["daily"]
+    assert daily.attrs["units"]["gpp_daytime"] == "g m-2"
+    assert daily.attrs["descriptions"]["gpp_daytime_sigma"].startswith("1 sigma: total")
+    assert namespace["meta"]["columns"]["nee_filled"]["unit"] == "umol m-2 s-1"
+    series = namespace["series"]
+    assert str(series.index.tz) == "UTC"
+    offset = pd.Timedelta(hours=series.attrs["site"]["utc_offset"])
+    assert series.index[0] == pd.Timestamp("2021-01-01", tz="UTC") - offset
+    assert namespace["dataset"].attrs["Conventions"] == "CF-1.10"
+    # the signs the section states
+    np.testing.assert_allclose(daily["nee"], daily["reco_nighttime"] - daily["gpp_nighttime"],
+                               rtol=0, atol=1e-12)
+    assert (daily["gpp_daytime"] >= 0).all() and (daily["reco_daytime"] >= 0).all()
+    assert "< 0 is net uptake" in daily.attrs["descriptions"]["nee"]
+    assert "positive = uptake" in series.attrs["descriptions"]["gpp_daytime"]

@@ -112,6 +112,11 @@ def test_two_site_years_merge_record_by_record_with_the_readmes_recipe(merged):
     assert list(years["local_month"].to_numpy()) == list(monthly["month"].dt.strftime("%Y-%m"))
     annual = pd.concat([pd.read_parquet(f / "annual.parquet") for f in folders])
     assert list(years["budget_year"].to_numpy()) == [2020, 2021] == list(annual["year"])
+    # README "For modellers": a budget year holding 29 February has 366 days (17,568 records
+    # expected at 30 min) and the annual sum is over all of them (round modeller52)
+    assert list(annual["records_expected"]) == [366 * 48, 365 * 48] == list(annual["records"])
+    readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
+    assert "has 366 days (`records_expected` 17,568 at 30 min)" in " ".join(readme.split())
     np.testing.assert_array_equal(years["nee_annual_sum"].to_numpy(), annual["nee"].to_numpy())
     # one site, one release: what both files say is kept
     assert years.attrs["site_name"] == "Quillmoor grassland (fictional)"
