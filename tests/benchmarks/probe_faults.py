@@ -3686,6 +3686,229 @@ def f_verify_json():
            and seen["latin-1"] == seen["C"] == seen["genuine"], f"{seen}")
 
 
+# ------------------------------------------------------------------ round faults43
+def f_out_holds_input():
+    """--out an existing result into which the user put the input; --out the folder
+    that holds the input's folder; --out the input's own folder given from elsewhere."""
+    folder = fresh("inres")
+    shutil.copy2(W / "b" / "tower.csv", folder / "tower.csv")
+    text = (W / "b" / "site.toml").read_text()
+    (W / "b" / "inres.toml").write_text(text.replace('path = "tower.csv"',
+                                                     'path = "../inres/tower.csv"'))
+    before = table_digests(W / "b")
+    cases = [fp("run", "inres.toml", "--out", folder, "--quiet"),
+             fp("run", "site.toml", "--out", "..", "--quiet"),
+             fp("run", W / "b" / "site.toml", "--out", W / "b", "--quiet", cwd=W)]
+    kept = ((folder / "tower.csv").is_file() and _whole_kind(folder, W / "r0") == "r0"
+            and (W / "b" / "tower.csv").is_file() and table_digests(W / "b") == before)
+    record("--out a result holding the input, the input folder's parent, the input folder",
+           all(one_line(c) for c in cases) and kept and not leftovers(W),
+           f"exits {[c.returncode for c in cases]}, inputs kept {kept}, "
+           f"{[c.stderr.strip()[:60] for c in cases]}")
+
+
+def f_relative_input_moved_up():
+    """A result of an input given by a relative path (``run data/site.toml --out res``)
+    moved up one level (``mv res ..``), and copied into a deeper folder, the input left
+    where it was: verify finds the input where the run read it (its SHA-256 decides)."""
+    where = W / "up"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "site" / "data").mkdir(parents=True)
+    for name in ("tower.csv", "site.toml"):
+        shutil.copy2(W / "b" / name, where / "site" / "data" / name)
+    assert fp("run", "data/site.toml", "--out", "res", "--quiet",
+              cwd=where / "site").returncode == 0
+    (where / "site" / "res").rename(where / "res")
+    shutil.copytree(where / "res", where / "archive" / "2021" / "res")
+    moved = fp("verify", "res", cwd=where)
+    deeper = fp("verify", W / "up" / "archive" / "2021" / "res")
+    given = fp("verify", "res", "--input", "site/data/tower.csv", cwd=where)
+    record("verify of a result moved up one level and copied deeper, its input left",
+           moved.returncode == 0 and deeper.returncode == 0 and given.returncode == 0
+           and "where the run read it" in moved.stdout,
+           f"moved exit {moved.returncode} {_stderr_tail(moved, 90)}, copied deeper "
+           f"{deeper.returncode}, given {given.returncode}")
+
+
+def f_package_elsewhere():
+    """verify by the same code installed at another path (a venv elsewhere: a folder
+    with a space and a non-ASCII letter, stray non-Python files and a pycache beside it):
+    the code fingerprint covers the code, not its place."""
+    site = W / "other venv ü"
+    shutil.rmtree(site, ignore_errors=True)
+    site.mkdir()
+    shutil.copytree(TREE / "fluxpart", site / "fluxpart",
+                    ignore=shutil.ignore_patterns("__pycache__"))
+    (site / "fluxpart" / "notes.txt").write_text("a user's notes\n")
+    done = fp("verify", W / "r0", env=dict(ENV, PYTHONPATH=str(site)))
+    record("verify by the same code installed at another path",
+           done.returncode == 0 and "code" not in done.stdout.split("Caution")[0].lower(),
+           f"exit {done.returncode}, {done.stdout.splitlines()[:1]}")
+
+
+_OTHER_VERSIONS = """
+import importlib.metadata as md, sys
+real = md.version
+md.version = lambda name: {"pandas": "3.0.4", "pyarrow": "25.0.0"}.get(name, real(name))
+import fluxpart.cli as cli
+sys.exit(cli.main(sys.argv[1:]))
+"""
+
+
+def f_verify_other_library_versions():
+    """verify where the installed pandas and pyarrow report other minor versions than
+    the run's (the version facts only, the code the same): the tables are bit-identical,
+    and the environment lines must not say the numbers may differ as though they had."""
+    done = subprocess.run([PY, "-c", _OTHER_VERSIONS, "verify", W / "r0"], env=ENV,
+                          cwd=W / "b", capture_output=True, text=True, timeout=300)
+    lines = [line for line in done.stdout.splitlines() if line.startswith("environment:")]
+    record("verify under other pandas and pyarrow versions (the version facts)",
+           done.returncode == 0 and len(lines) == 2
+           and not any("may differ" in line for line in lines),
+           f"exit {done.returncode}, {lines}")
+
+
+def f_table_cut_and_padded():
+    """One table cut to half and padded with zeros to its size, its times restored (a
+    copy tool that checks only size and date): verify, report and export fail it."""
+    folder = fresh("cutpad")
+    path = folder / "daily.parquet"
+    data, times = path.read_bytes(), path.stat()
+    path.write_bytes(data[:len(data) // 2] + bytes(len(data) - len(data) // 2))
+    os.utime(path, ns=(times.st_atime_ns, times.st_mtime_ns))
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "cutpad_csv", folder)]
+    record("a table cut and padded to its size, its times kept",
+           [d.returncode for d in done] == [1, 2, 2] and "daily.parquet" in done[0].stdout
+           and one_line(done[1]) and one_line(done[2]) and not (W / "cutpad_csv").exists(),
+           f"exits {[d.returncode for d in done]}")
+
+
+def f_result_renamed_odd():
+    """A result folder renamed to hold spaces, a non-ASCII letter and CJK, and then to
+    the decomposed (NFD) form of its name: verify and report by either spelling."""
+    import unicodedata
+    name = "Ergebnis ü 結果 2021"
+    folder = W / name
+    shutil.rmtree(folder, ignore_errors=True)
+    shutil.copytree(W / "r0", folder)
+    first = [verify(folder).returncode, fp("report", "--quiet", folder).returncode,
+             verify(folder).returncode]
+    decomposed = W / unicodedata.normalize("NFD", name)
+    folder.rename(decomposed)
+    as_typed = verify(folder)
+    shutil.rmtree(decomposed, ignore_errors=True)
+    record("a result renamed with spaces and non-ASCII letters, and to their NFD form",
+           first == [0, 0, 0] and one_line(as_typed) and "NFD" in as_typed.stderr,
+           f"exits {first}, NFD {as_typed.returncode} {_stderr_tail(as_typed, 80)}")
+
+
+def f_export_into_occupied():
+    """export --csv into a folder holding the user's files (and a hidden one), into an
+    earlier CSV export, and --netcdf given a folder: refused in one line, nothing lost."""
+    where = W / "occupied"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "user" / "sub").mkdir(parents=True)
+    (where / "user" / "notes.txt").write_text("mine\n")
+    (where / "user" / ".hidden").write_text("")
+    assert fp("export", "--csv", where / "earlier", W / "r0").returncode == 0
+    before = sorted(p.name for p in (where / "earlier").iterdir())
+    done = [fp("export", "--csv", where / "user", W / "r0"),
+            fp("export", "--csv", where / "earlier", W / "r1"),
+            fp("export", "--netcdf", where / "user", W / "r0")]
+    kept = (sorted(p.name for p in (where / "user").iterdir()) == [".hidden", "notes.txt",
+                                                                  "sub"]
+            and sorted(p.name for p in (where / "earlier").iterdir()) == before)
+    record("export into a folder of the user's files, an earlier export, --netcdf a folder",
+           all(one_line(d) for d in done) and kept and not leftovers(where),
+           f"exits {[d.returncode for d in done]}, kept {kept}")
+
+
+_LOAD_LOOP = """
+import sys, time
+import fluxpart
+seen = {}
+stop = time.time() + float(sys.argv[2])
+while time.time() < stop:
+    try:
+        result = fluxpart.load(sys.argv[1])
+        key = result.timeseries.shape
+    except Exception as error:
+        key = type(error).__name__
+    seen[str(key)] = seen.get(str(key), 0) + 1
+print(seen)
+"""
+
+
+def f_load_while_runs_write():
+    """``fluxpart.load`` in a loop while runs of two seeds replace the folder in turn:
+    every load a whole result (or one clear error), never a traceback of a mix."""
+    folder = fresh("loadw")
+    loop = subprocess.Popen([PY, "-c", _LOAD_LOOP, folder, "40"], env=ENV, cwd=W / "b",
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    codes = [fp("run", config, "--out", folder, "--quiet").returncode
+             for config in ("seed1.toml", "site.toml") * 3]
+    out, err = loop.communicate(timeout=120)
+    record("fluxpart.load looped while runs replace the folder", codes == [0] * 6
+           and "Error" not in out and "Traceback" not in err and "(1440" in out,
+           f"runs {codes}, loads {out.strip()[:120]} {err.strip()[-80:]!r}")
+
+
+def f_batch_kill9_moments():
+    """kill -9 of a whole batch (2 local workers) at seeded random moments while it
+    replaces a network's results (every site's seed changed): each site folder holds the
+    old result whole or the new one, never a mix; the network tables read or say to run
+    the batch again; the next batch completes."""
+    import random
+    _seeded_net(4)
+    assert fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET).returncode == 0
+    old = W / "net_old"
+    shutil.rmtree(old, ignore_errors=True)
+    shutil.copytree(NET / "out", old)
+    for config in NET.glob("s*/s*.toml"):
+        text = config.read_text()
+        config.write_text(text.replace("seed = ", "seed = 1"))
+    begun = time.monotonic()
+    assert fp("batch", "sites.toml", "--quiet", "--workers", "2", "--out", "probe_span",
+              cwd=NET).returncode == 0
+    span = time.monotonic() - begun
+    shutil.rmtree(NET / "probe_span")
+    snaps = []
+    for offset in sorted(random.Random(43).uniform(0.3, 1.0) * span for _ in range(4)):
+        proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                                 "--workers", "2"], env=ENV, cwd=NET,
+                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                                start_new_session=True)
+        try:
+            proc.wait(timeout=offset)
+        except subprocess.TimeoutExpired:
+            os.killpg(proc.pid, signal.SIGKILL)
+            proc.wait()
+        time.sleep(1)
+        sites = sorted(p.name for p in old.iterdir() if (p / "manifest.json").is_file())
+        snaps.append(([_old_or_whole(NET / "out" / s, old / s) for s in sites],
+                      _net_sites(NET / "out")))
+    rerun = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET)
+    codes = sites_verify(NET / "out")
+    mixed = [s for snap, _ in snaps for s in snap if s == "mixed"]
+    record("kill -9 of a 2-worker batch at seeded moments while it replaces results",
+           not mixed and rerun.returncode == 0 and codes == [0] * 4
+           and _net_sites(NET / "out") == 4 and not leftovers(NET / "out"),
+           f"span {span:.0f} s, each kill's sites and network {snaps}, rerun "
+           f"{rerun.returncode}, verify {codes}")
+
+
+def _old_or_whole(folder, old):
+    """"old" where `folder` holds the result `old` whole, "new" where it is another
+    result matching its own manifest, else "mixed" (or "missing")."""
+    kind = _whole_kind(folder, old)
+    if kind != "mixed":
+        return "old" if kind == Path(old).name else kind
+    done = subprocess.run([PY, "-c", "import sys; from fluxpart.resultdir import read_folder; "
+                                     "read_folder(sys.argv[1])", str(folder)],
+                          env=ENV, capture_output=True, text=True, timeout=120)
+    return "new" if done.returncode == 0 else "mixed"
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -3736,7 +3959,11 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_input_resaved_by_spreadsheet, f_parquet_rewritten_same_values, f_batch_site_alone,
           f_two_runs_existing_other_configs, f_input_appended_during_read,
           f_out_symlink_other_disk, f_git_crlf_checkout, f_manifest_number_edited,
-          f_netcdf_through_link, f_staging_given_as_result, f_verify_json]
+          f_netcdf_through_link, f_staging_given_as_result, f_verify_json,
+          # round faults43
+          f_out_holds_input, f_relative_input_moved_up, f_package_elsewhere,
+          f_verify_other_library_versions, f_table_cut_and_padded, f_result_renamed_odd,
+          f_export_into_occupied, f_load_while_runs_write, f_batch_kill9_moments]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
