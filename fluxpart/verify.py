@@ -1597,7 +1597,7 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
     if given:
         given = _in_recorded_order(wanted, [Path(p) for p in given], config_sha)
     at_run = [] if given else _places_at_run(directory, wanted)
-    found, first = [], None
+    found, first, moved = [], None, []
     for number, entry in enumerate(wanted):
         sha = entry.get("sha256")
         if given:
@@ -1612,10 +1612,7 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                 # a result moved or copied elsewhere on the machine that wrote it, its
                 # input left in place, had been "does not exist; give --input" (round
                 # faults43); the recorded SHA-256 decides, as for any file found
-                notes.append(f"input file: not at {str(path)!r}, its recorded place beside "
-                             "the result folder (the folder was moved or copied since the "
-                             f"run); found at {str(at_run[number])!r}, where the run read it "
-                             f"({RUN_LOG}), with the recorded SHA-256")
+                moved.append((path, at_run[number]))
                 path = at_run[number]
             if path is None or not path.is_file():
                 broken = "" if path is None else broken_link(path)
@@ -1656,7 +1653,21 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                          "rerun")
             path = restored
         found.append(path)
+    if moved:
+        notes.append(_found_where_run_read(moved))
     return (found if parts else found[0]), first
+
+
+def _found_where_run_read(moved: list) -> str:
+    """The note for input files found where the run read them, not beside the result:
+    `moved` holds (recorded place now, place at the run) of each; one note for all."""
+    (recorded, read), count = moved[0], len(moved)
+    files = f"{count} input files" if count > 1 else "input file"
+    example = " (the first)" if count > 1 else ""
+    return (f"{files}: not at the recorded place beside the result folder, "
+            f"{str(recorded)!r}{example} (the folder was moved or copied since the run); "
+            f"found where the run read {'them' if count > 1 else 'it'} ({RUN_LOG}), "
+            f"{str(read)!r}{example}, with the recorded SHA-256")
 
 
 def _places_at_run(directory: Path, wanted: list) -> list:

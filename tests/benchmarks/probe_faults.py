@@ -78,6 +78,16 @@ with CRLF (git autocrlf); manifest numbers edited and respelled; --netcdf a link
 shared file and a link into no folder; a stopped run's staging given as a result;
 verify --json read by an auditor's script under three locales.
 
+Round faults43 (result safety and a portable verify, again): --out a result holding the
+input, the input folder's parent or the input's folder; a result moved up one level and
+copied deeper, its input left in place; the package at another path; other pandas and
+pyarrow versions reported; a table cut and padded to its size (times kept, and under a
+resealed manifest); a result renamed with spaces, non-ASCII letters and to NFD; export
+into a folder of the user's files or an earlier export, --netcdf a folder or into the
+result; fluxpart.load looped while runs replace the folder; kill -9 of a 2-worker batch at
+seeded moments while it replaces a network; Ctrl-C to ``run | tee``; a moved result's run
+log pointing beside another file of the input's name.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -3761,7 +3771,8 @@ def f_verify_other_library_versions():
     and the environment lines must not say the numbers may differ as though they had."""
     done = subprocess.run([PY, "-c", _OTHER_VERSIONS, "verify", W / "r0"], env=ENV,
                           cwd=W / "b", capture_output=True, text=True, timeout=300)
-    lines = [line for line in done.stdout.splitlines() if line.startswith("environment:")]
+    lines = [line for line in done.stdout.splitlines()
+             if line.startswith("environment:") and " is installed, " in line]
     record("verify under other pandas and pyarrow versions (the version facts)",
            done.returncode == 0 and len(lines) == 2
            and not any("may differ" in line for line in lines),
@@ -3855,47 +3866,57 @@ def f_load_while_runs_write():
 
 
 def f_batch_kill9_moments():
-    """kill -9 of a whole batch (2 local workers) at seeded random moments while it
-    replaces a network's results (every site's seed changed): each site folder holds the
-    old result whole or the new one, never a mix; the network tables read or say to run
-    the batch again; the next batch completes."""
+    """kill -9 of a whole batch (2 local workers) at seeded moments while it replaces a
+    network's results (every site's seed changed), each moment drawn within 3 s of the
+    first site's staging folder appearing: each site folder holds the old result whole or
+    the new one, never a mix; the network tables read or say to run the batch again; the
+    next batch completes."""
     import random
     _seeded_net(4)
     assert fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET).returncode == 0
     old = W / "net_old"
     shutil.rmtree(old, ignore_errors=True)
     shutil.copytree(NET / "out", old)
+    sites = sorted(p.name for p in old.iterdir() if (p / "manifest.json").is_file())
     for config in NET.glob("s*/s*.toml"):
-        text = config.read_text()
-        config.write_text(text.replace("seed = ", "seed = 1"))
-    begun = time.monotonic()
-    assert fp("batch", "sites.toml", "--quiet", "--workers", "2", "--out", "probe_span",
-              cwd=NET).returncode == 0
-    span = time.monotonic() - begun
-    shutil.rmtree(NET / "probe_span")
-    snaps = []
-    for offset in sorted(random.Random(43).uniform(0.3, 1.0) * span for _ in range(4)):
+        config.write_text(config.read_text().replace("seed = ", "seed = 1"))
+    draw, snaps = random.Random(43), []
+    for _ in range(6):
+        stale = set(leftovers(NET / "out"))          # a killed batch's, swept at the start
         proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
                                  "--workers", "2"], env=ENV, cwd=NET,
                                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
                                 start_new_session=True)
+        deadline = time.time() + 300
+        while time.time() < deadline and proc.poll() is None and not any(
+                ".staging-" in name for name in set(leftovers(NET / "out")) - stale):
+            time.sleep(0.005)
         try:
-            proc.wait(timeout=offset)
+            proc.wait(timeout=draw.uniform(0, 3))
         except subprocess.TimeoutExpired:
             os.killpg(proc.pid, signal.SIGKILL)
             proc.wait()
         time.sleep(1)
-        sites = sorted(p.name for p in old.iterdir() if (p / "manifest.json").is_file())
         snaps.append(([_old_or_whole(NET / "out" / s, old / s) for s in sites],
-                      _net_sites(NET / "out")))
+                      _network_read(NET / "out")))
     rerun = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET)
     codes = sites_verify(NET / "out")
-    mixed = [s for snap, _ in snaps for s in snap if s == "mixed"]
+    mixed = [s for snap, net in snaps for s in snap + [net] if s == "mixed"]
     record("kill -9 of a 2-worker batch at seeded moments while it replaces results",
            not mixed and rerun.returncode == 0 and codes == [0] * 4
            and _net_sites(NET / "out") == 4 and not leftovers(NET / "out"),
-           f"span {span:.0f} s, each kill's sites and network {snaps}, rerun "
-           f"{rerun.returncode}, verify {codes}")
+           f"each kill's sites and network {snaps}, rerun {rerun.returncode}, verify {codes}")
+
+
+def _network_read(out):
+    """The sites the network tables of `out` hold, "again" where reading them says to
+    run the batch again (a batch killed while writing them), else "mixed"."""
+    done = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network; "
+                                     "print(read_network(sys.argv[1]).site.nunique())",
+                           str(out)], env=ENV, capture_output=True, text=True, timeout=120)
+    if done.returncode == 0:
+        return int(done.stdout)
+    return "again" if "InputFileError" in done.stderr and "again" in done.stderr else "mixed"
 
 
 def _old_or_whole(folder, old):
@@ -3908,6 +3929,85 @@ def _old_or_whole(folder, old):
                                      "read_folder(sys.argv[1])", str(folder)],
                           env=ENV, capture_output=True, text=True, timeout=120)
     return "new" if done.returncode == 0 else "mixed"
+
+def f_table_cut_resealed():
+    """A table cut and zero-padded to its size, and the manifest's SHA-256 of it and
+    seal recomputed (a forger's tool): the folder matches its manifest, so the damage
+    must be found when the table is read: verify exit 1 naming it, report, export and
+    fluxpart.load one line (or an InputFileError), nothing written."""
+    folder = fresh("cutseal")
+    path = folder / "daily.parquet"
+    data = path.read_bytes()
+    path.write_bytes(data[:len(data) // 2] + bytes(len(data) - len(data) // 2))
+    subprocess.run([PY, "-c", RESEAL, str(folder), "pass"], env=ENV, check=True)
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "cutseal_csv", folder)]
+    loaded = subprocess.run([PY, "-c", "import sys, fluxpart; fluxpart.load(sys.argv[1])",
+                             folder], env=ENV, capture_output=True, text=True, timeout=120)
+    record("a table cut and padded under a resealed manifest",
+           done[0].returncode == 1 and "daily.parquet is unreadable" in done[0].stdout
+           and one_line(done[1]) and one_line(done[2]) and not (W / "cutseal_csv").exists()
+           and "InputFileError" in loaded.stderr and not (folder / "report").exists(),
+           f"exits {[d.returncode for d in done]}, load {loaded.stderr.strip()[-70:]!r}")
+
+
+def f_ctrl_c_pipeline():
+    """Ctrl-C to ``run ... | tee log`` replacing a result (SIGINT to the terminal's whole
+    process group, tee ended too, as its staging folder appears): one line, exit 130, the
+    old result whole, nothing left."""
+    folder = fresh("pipe_r")
+    for name in ("pipe_err", "pipe_rc"):
+        (W / name).unlink(missing_ok=True)
+    command = (f"{PY} -m fluxpart run seed1.toml --out {folder} 2>{W / 'pipe_err'} "
+               f"| tee {W / 'pipe_log'} >/dev/null; echo ${{PIPESTATUS[0]}} > {W / 'pipe_rc'}")
+    proc = subprocess.Popen(["bash", "-c", command], cwd=W / "b", env=ENV,
+                            start_new_session=True)
+    deadline = time.time() + 120
+    while time.time() < deadline and proc.poll() is None and not _entries(W, ".pipe_r.staging-"):
+        time.sleep(0.005)
+    os.killpg(proc.pid, signal.SIGINT)
+    proc.wait(timeout=120)
+    err = (W / "pipe_err").read_text()
+    code = (W / "pipe_rc").read_text().strip() if (W / "pipe_rc").exists() else None
+    kind = _whole_kind(folder, W / "r0", W / "r1")
+    record("Ctrl-C to run | tee replacing a result", code == "130"
+           and len([x for x in err.splitlines() if not x.startswith("warning:")]) == 1
+           and kind in ("pipe_r", "r0", "r1") and not leftovers(W) and verify(folder).returncode == 0,
+           f"exit {code}, {err.strip()[-90:]!r}, holds {kind}, left {leftovers(W)}")
+
+
+def f_run_log_points_elsewhere():
+    """A moved result whose run log (never hashed) was edited or copied from another run
+    to point at a folder beside another file of the input's name: verify must not take
+    that file (its SHA-256 is not the recorded one): one line asking for --input."""
+    import json
+    where = W / "logpoint"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "b").mkdir(parents=True)
+    lines = (W / "b" / "tower.csv").read_text().splitlines(keepends=True)
+    (where / "b" / "tower.csv").write_text("".join(lines[:1000]))
+    shutil.copytree(W / "r0", where / "x" / "y" / "r0")
+    log_path = where / "x" / "y" / "r0" / "run-log.json"
+    log = json.loads(log_path.read_text())
+    log["result_folder"] = str(where / "r0")
+    log_path.write_text(json.dumps(log))
+    done = verify(where / "x" / "y" / "r0")
+    record("a moved result whose run log points beside another file of the input's name",
+           one_line(done) and "--input" in done.stderr, f"exit {done.returncode} "
+           f"{_stderr_tail(done, 80)}")
+
+
+def f_netcdf_into_result():
+    """``export --netcdf`` into the result folder itself: refused in one line (a file
+    there would fail verify), verify then passes and a rerun replaces the folder."""
+    folder = fresh("ncin")
+    done = fp("export", "--netcdf", folder / "site.nc", folder)
+    after = [verify(folder).returncode,
+             fp("run", "site.toml", "--out", folder, "--quiet").returncode]
+    record("export --netcdf into the result folder", one_line(done) and after == [0, 0]
+           and not (folder / "site.nc").exists(),
+           f"exit {done.returncode} {_stderr_tail(done, 80)}, verify and rerun {after}")
+
 
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
@@ -3963,7 +4063,9 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           # round faults43
           f_out_holds_input, f_relative_input_moved_up, f_package_elsewhere,
           f_verify_other_library_versions, f_table_cut_and_padded, f_result_renamed_odd,
-          f_export_into_occupied, f_load_while_runs_write, f_batch_kill9_moments]
+          f_export_into_occupied, f_load_while_runs_write, f_batch_kill9_moments,
+          f_table_cut_resealed, f_ctrl_c_pipeline, f_run_log_points_elsewhere,
+          f_netcdf_into_result]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
