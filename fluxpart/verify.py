@@ -1671,8 +1671,9 @@ def _found_where_run_read(moved: list) -> str:
 
 
 def _places_at_run(directory: Path, wanted: list) -> list:
-    """Where the run read each recorded input file (None where not known): its recorded
-    path, relative to the result folder, taken from the folder's place at the run.
+    """Where the run read each recorded input file that is not at its recorded place
+    (None where something is there, or not known): its recorded path, relative to the
+    result folder, taken from the folder's place at the run.
 
     The run log (never hashed) records the folder and the working folder of the run;
     a file found there is used only with its recorded SHA-256, so an edited log can
@@ -1689,7 +1690,11 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     for entry in wanted:
         text = entry.get("path") if isinstance(entry, dict) else None
         relative = isinstance(text, str) and text and not Path(text).is_absolute()
-        places.append(Path(os.path.abspath(then / text)) if relative else None)
+        here = recorded_path(directory, entry) if relative else None
+        # only where nothing is at the recorded place: a file edited there, a link or a
+        # folder is what the auditor gave and is reported as before
+        gone = here is not None and not os.path.lexists(here)
+        places.append(Path(os.path.abspath(then / text)) if gone else None)
     return places
 
 
