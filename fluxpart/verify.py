@@ -1681,7 +1681,8 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     """
     log = _read_run_log(directory) or {}
     folder, working = log.get("result_folder"), log.get("working_directory")
-    if not isinstance(folder, str) or not isinstance(working, str):
+    if not isinstance(folder, str) or not isinstance(working, str) \
+            or not os.path.isabs(os.path.join(working, folder)):   # "unknown" working folder
         return [None] * len(wanted)
     then = Path(os.path.abspath(os.path.join(working, folder)))
     if then == Path(os.path.abspath(directory)):
