@@ -116,15 +116,15 @@ def test_moved_bundle_verifies_without_options(bundle, tmp_path):
     assert report.identical and report.exit_code == 0
 
 
-def test_result_moved_alone_needs_input_and_uses_the_recorded_config(bundle, tmp_path, capsys):
+def test_result_moved_alone_needs_input_and_uses_the_recorded_config(copy, tmp_path, capsys):
     """Only the result travelled: exit 2 naming --input; with --input, or a config pointing
     at the moved input, exit 0; a config with another setting is another config, exit 1."""
     alone = tmp_path / "received" / "out"
-    shutil.copytree(bundle / "out", alone)
+    shutil.copytree(copy / "out", alone)
     inbox = tmp_path / "inbox"
     inbox.mkdir()
-    shutil.copy(bundle / "tower.csv", inbox / "renamed.csv")
-    shutil.copy(bundle / "site.toml", inbox / "renamed.toml")
+    shutil.move(copy / "tower.csv", inbox / "renamed.csv")    # not where the run read it
+    shutil.copy(copy / "site.toml", inbox / "renamed.toml")
     assert main(["verify", str(alone)]) == 2
     err = capsys.readouterr().err.splitlines()
     # the one line also says the folder passed its own check, which needs no input (review58)
@@ -257,13 +257,14 @@ def test_extra_and_missing_files_are_named(copy, capsys):
     assert "does not match its manifest: audit.parquet" in err and "1 more problem" in err
 
 
-def test_tampered_result_moved_alone_is_found_tampered_without_its_input(bundle, tmp_path,
+def test_tampered_result_moved_alone_is_found_tampered_without_its_input(copy, tmp_path,
                                                                         capsys):
     """A result folder handed on without its input, one table edited after writing: the
     folder's own check needs no input, so verify says NOT reproduced (exit 1) naming the
     table and that nothing was recomputed; it stopped at 'give --input' (exit 2)."""
     alone = tmp_path / "received" / "out"
-    shutil.copytree(bundle / "out", alone)
+    shutil.copytree(copy / "out", alone)
+    (copy / "tower.csv").unlink()              # another machine: not where the run read it
     _set_value(alone, "annual", "nee", lambda v: v + 1.0, reseal=False)
     assert main(["verify", str(alone)]) == 1
     out = capsys.readouterr().out

@@ -78,6 +78,16 @@ with CRLF (git autocrlf); manifest numbers edited and respelled; --netcdf a link
 shared file and a link into no folder; a stopped run's staging given as a result;
 verify --json read by an auditor's script under three locales.
 
+Round faults43 (result safety and a portable verify, again): --out a result holding the
+input, the input folder's parent or the input's folder; a result moved up one level and
+copied deeper, its input left in place; the package at another path; other pandas and
+pyarrow versions reported; a table cut and padded to its size (times kept, and under a
+resealed manifest); a result renamed with spaces, non-ASCII letters and to NFD; export
+into a folder of the user's files or an earlier export, --netcdf a folder or into the
+result; fluxpart.load looped while runs replace the folder; kill -9 of a 2-worker batch at
+seeded moments while it replaces a network; Ctrl-C to ``run | tee``; a moved result's run
+log pointing beside another file of the input's name.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -3686,6 +3696,319 @@ def f_verify_json():
            and seen["latin-1"] == seen["C"] == seen["genuine"], f"{seen}")
 
 
+# ------------------------------------------------------------------ round faults43
+def f_out_holds_input():
+    """--out an existing result into which the user put the input; --out the folder
+    that holds the input's folder; --out the input's own folder given from elsewhere."""
+    folder = fresh("inres")
+    shutil.copy2(W / "b" / "tower.csv", folder / "tower.csv")
+    text = (W / "b" / "site.toml").read_text()
+    (W / "b" / "inres.toml").write_text(text.replace('path = "tower.csv"',
+                                                     'path = "../inres/tower.csv"'))
+    before = table_digests(W / "b")
+    cases = [fp("run", "inres.toml", "--out", folder, "--quiet"),
+             fp("run", "site.toml", "--out", "..", "--quiet"),
+             fp("run", W / "b" / "site.toml", "--out", W / "b", "--quiet", cwd=W)]
+    kept = ((folder / "tower.csv").is_file() and _whole_kind(folder, W / "r0") == "r0"
+            and (W / "b" / "tower.csv").is_file() and table_digests(W / "b") == before)
+    record("--out a result holding the input, the input folder's parent, the input folder",
+           all(one_line(c) for c in cases) and kept and not leftovers(W),
+           f"exits {[c.returncode for c in cases]}, inputs kept {kept}, "
+           f"{[c.stderr.strip()[:60] for c in cases]}")
+
+
+def f_relative_input_moved_up():
+    """A result of an input given by a relative path (``run data/site.toml --out res``)
+    moved up one level (``mv res ..``), and copied into a deeper folder, the input left
+    where it was: verify finds the input where the run read it (its SHA-256 decides)."""
+    where = W / "up"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "site" / "data").mkdir(parents=True)
+    for name in ("tower.csv", "site.toml"):
+        shutil.copy2(W / "b" / name, where / "site" / "data" / name)
+    assert fp("run", "data/site.toml", "--out", "res", "--quiet",
+              cwd=where / "site").returncode == 0
+    (where / "site" / "res").rename(where / "res")
+    shutil.copytree(where / "res", where / "archive" / "2021" / "res")
+    moved = fp("verify", "res", cwd=where)
+    deeper = fp("verify", W / "up" / "archive" / "2021" / "res")
+    given = fp("verify", "res", "--input", "site/data/tower.csv", cwd=where)
+    record("verify of a result moved up one level and copied deeper, its input left",
+           moved.returncode == 0 and deeper.returncode == 0 and given.returncode == 0
+           and "where the run read it" in moved.stdout,
+           f"moved exit {moved.returncode} {_stderr_tail(moved, 90)}, copied deeper "
+           f"{deeper.returncode}, given {given.returncode}")
+
+
+def f_package_elsewhere():
+    """verify by the same code installed at another path (a venv elsewhere: a folder
+    with a space and a non-ASCII letter, stray non-Python files and a pycache beside it):
+    the code fingerprint covers the code, not its place."""
+    site = W / "other venv ü"
+    shutil.rmtree(site, ignore_errors=True)
+    site.mkdir()
+    shutil.copytree(TREE / "fluxpart", site / "fluxpart",
+                    ignore=shutil.ignore_patterns("__pycache__"))
+    (site / "fluxpart" / "notes.txt").write_text("a user's notes\n")
+    done = fp("verify", W / "r0", env=dict(ENV, PYTHONPATH=str(site)))
+    record("verify by the same code installed at another path",
+           done.returncode == 0 and "code" not in done.stdout.split("Caution")[0].lower(),
+           f"exit {done.returncode}, {done.stdout.splitlines()[:1]}")
+
+
+_OTHER_VERSIONS = """
+import importlib.metadata as md, sys
+real = md.version
+md.version = lambda name: {"pandas": "3.0.4", "pyarrow": "25.0.0"}.get(name, real(name))
+import fluxpart.cli as cli
+sys.exit(cli.main(sys.argv[1:]))
+"""
+
+
+def f_verify_other_library_versions():
+    """verify where the installed pandas and pyarrow report other minor versions than
+    the run's (the version facts only, the code the same): the tables are bit-identical,
+    and the environment lines must not say the numbers may differ as though they had."""
+    done = subprocess.run([PY, "-c", _OTHER_VERSIONS, "verify", W / "r0"], env=ENV,
+                          cwd=W / "b", capture_output=True, text=True, timeout=300)
+    lines = [line for line in done.stdout.splitlines()
+             if line.startswith("environment:") and " is installed, " in line]
+    record("verify under other pandas and pyarrow versions (the version facts)",
+           done.returncode == 0 and len(lines) == 2
+           and not any("may differ" in line for line in lines),
+           f"exit {done.returncode}, {lines}")
+
+
+def f_table_cut_and_padded():
+    """One table cut to half and padded with zeros to its size, its times restored (a
+    copy tool that checks only size and date): verify, report and export fail it."""
+    folder = fresh("cutpad")
+    path = folder / "daily.parquet"
+    data, times = path.read_bytes(), path.stat()
+    path.write_bytes(data[:len(data) // 2] + bytes(len(data) - len(data) // 2))
+    os.utime(path, ns=(times.st_atime_ns, times.st_mtime_ns))
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "cutpad_csv", folder)]
+    record("a table cut and padded to its size, its times kept",
+           [d.returncode for d in done] == [1, 2, 2] and "daily.parquet" in done[0].stdout
+           and one_line(done[1]) and one_line(done[2]) and not (W / "cutpad_csv").exists(),
+           f"exits {[d.returncode for d in done]}")
+
+
+def f_result_renamed_odd():
+    """A result folder renamed to hold spaces, a non-ASCII letter and CJK, and then to
+    the decomposed (NFD) form of its name: verify and report by either spelling."""
+    import unicodedata
+    name = "Ergebnis ü 結果 2021"
+    folder = W / name
+    shutil.rmtree(folder, ignore_errors=True)
+    shutil.copytree(W / "r0", folder)
+    first = [verify(folder).returncode, fp("report", "--quiet", folder).returncode,
+             verify(folder).returncode]
+    decomposed = W / unicodedata.normalize("NFD", name)
+    folder.rename(decomposed)
+    as_typed = verify(folder)
+    shutil.rmtree(decomposed, ignore_errors=True)
+    record("a result renamed with spaces and non-ASCII letters, and to their NFD form",
+           first == [0, 0, 0] and one_line(as_typed) and "NFD" in as_typed.stderr,
+           f"exits {first}, NFD {as_typed.returncode} {_stderr_tail(as_typed, 80)}")
+
+
+def f_export_into_occupied():
+    """export --csv into a folder holding the user's files (and a hidden one), into an
+    earlier CSV export, and --netcdf given a folder: refused in one line, nothing lost."""
+    where = W / "occupied"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "user" / "sub").mkdir(parents=True)
+    (where / "user" / "notes.txt").write_text("mine\n")
+    (where / "user" / ".hidden").write_text("")
+    assert fp("export", "--csv", where / "earlier", W / "r0").returncode == 0
+    before = sorted(p.name for p in (where / "earlier").iterdir())
+    done = [fp("export", "--csv", where / "user", W / "r0"),
+            fp("export", "--csv", where / "earlier", W / "r1"),
+            fp("export", "--netcdf", where / "user", W / "r0")]
+    kept = (sorted(p.name for p in (where / "user").iterdir()) == [".hidden", "notes.txt",
+                                                                  "sub"]
+            and sorted(p.name for p in (where / "earlier").iterdir()) == before)
+    record("export into a folder of the user's files, an earlier export, --netcdf a folder",
+           all(one_line(d) for d in done) and kept and not leftovers(where),
+           f"exits {[d.returncode for d in done]}, kept {kept}")
+
+
+_LOAD_LOOP = """
+import sys, time
+import fluxpart
+seen = {}
+stop = time.time() + float(sys.argv[2])
+while time.time() < stop:
+    try:
+        result = fluxpart.load(sys.argv[1])
+        key = result.timeseries.shape
+    except Exception as error:
+        key = type(error).__name__
+    seen[str(key)] = seen.get(str(key), 0) + 1
+print(seen)
+"""
+
+
+def f_load_while_runs_write():
+    """``fluxpart.load`` in a loop while runs of two seeds replace the folder in turn:
+    every load a whole result (or one clear error), never a traceback of a mix."""
+    folder = fresh("loadw")
+    loop = subprocess.Popen([PY, "-c", _LOAD_LOOP, folder, "40"], env=ENV, cwd=W / "b",
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    codes = [fp("run", config, "--out", folder, "--quiet").returncode
+             for config in ("seed1.toml", "site.toml") * 3]
+    out, err = loop.communicate(timeout=120)
+    record("fluxpart.load looped while runs replace the folder", codes == [0] * 6
+           and "Error" not in out and "Traceback" not in err and "(1440" in out,
+           f"runs {codes}, loads {out.strip()[:120]} {err.strip()[-80:]!r}")
+
+
+def f_batch_kill9_moments():
+    """kill -9 of a whole batch (2 local workers) at seeded moments while it replaces a
+    network's results (every site's seed changed), each moment drawn within 3 s of the
+    first site's staging folder appearing: each site folder holds the old result whole or
+    the new one, never a mix; the network tables read or say to run the batch again; the
+    next batch completes."""
+    import random
+    _seeded_net(4)
+    assert fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET).returncode == 0
+    old = W / "net_old"
+    shutil.rmtree(old, ignore_errors=True)
+    shutil.copytree(NET / "out", old)
+    sites = sorted(p.name for p in old.iterdir() if (p / "manifest.json").is_file())
+    for config in NET.glob("s*/s*.toml"):
+        config.write_text(config.read_text().replace("seed = ", "seed = 1"))
+    draw, snaps = random.Random(43), []
+    for _ in range(6):
+        stale = set(leftovers(NET / "out"))          # a killed batch's, swept at the start
+        proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                                 "--workers", "2"], env=ENV, cwd=NET,
+                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                                start_new_session=True)
+        deadline = time.time() + 300
+        while time.time() < deadline and proc.poll() is None and not any(
+                ".staging-" in name for name in set(leftovers(NET / "out")) - stale):
+            time.sleep(0.005)
+        try:
+            proc.wait(timeout=draw.uniform(0, 3))
+        except subprocess.TimeoutExpired:
+            os.killpg(proc.pid, signal.SIGKILL)
+            proc.wait()
+        time.sleep(1)
+        snaps.append(([_old_or_whole(NET / "out" / s, old / s) for s in sites],
+                      _network_read(NET / "out")))
+    rerun = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET)
+    codes = sites_verify(NET / "out")
+    mixed = [s for snap, net in snaps for s in snap + [net] if s == "mixed"]
+    record("kill -9 of a 2-worker batch at seeded moments while it replaces results",
+           not mixed and rerun.returncode == 0 and codes == [0] * 4
+           and _net_sites(NET / "out") == 4 and not leftovers(NET / "out"),
+           f"each kill's sites and network {snaps}, rerun {rerun.returncode}, verify {codes}")
+
+
+def _network_read(out):
+    """The sites the network tables of `out` hold, "again" where reading them says to
+    run the batch again (a batch killed while writing them), else "mixed"."""
+    done = subprocess.run([PY, "-c", "import sys; from fluxpart.batch import read_network; "
+                                     "print(read_network(sys.argv[1]).site.nunique())",
+                           str(out)], env=ENV, capture_output=True, text=True, timeout=120)
+    if done.returncode == 0:
+        return int(done.stdout)
+    return "again" if "InputFileError" in done.stderr and "again" in done.stderr else "mixed"
+
+
+def _old_or_whole(folder, old):
+    """"old" where `folder` holds the result `old` whole, "new" where it is another
+    result matching its own manifest, else "mixed" (or "missing")."""
+    kind = _whole_kind(folder, old)
+    if kind != "mixed":
+        return "old" if kind == Path(old).name else kind
+    done = subprocess.run([PY, "-c", "import sys; from fluxpart.resultdir import read_folder; "
+                                     "read_folder(sys.argv[1])", str(folder)],
+                          env=ENV, capture_output=True, text=True, timeout=120)
+    return "new" if done.returncode == 0 else "mixed"
+
+def f_table_cut_resealed():
+    """A table cut and zero-padded to its size, and the manifest's SHA-256 of it and
+    seal recomputed (a forger's tool): the folder matches its manifest, so the damage
+    must be found when the table is read: verify exit 1 naming it, report, export and
+    fluxpart.load one line (or an InputFileError), nothing written."""
+    folder = fresh("cutseal")
+    path = folder / "daily.parquet"
+    data = path.read_bytes()
+    path.write_bytes(data[:len(data) // 2] + bytes(len(data) - len(data) // 2))
+    subprocess.run([PY, "-c", RESEAL, str(folder), "pass"], env=ENV, check=True)
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "cutseal_csv", folder)]
+    loaded = subprocess.run([PY, "-c", "import sys, fluxpart; fluxpart.load(sys.argv[1])",
+                             folder], env=ENV, capture_output=True, text=True, timeout=120)
+    record("a table cut and padded under a resealed manifest",
+           done[0].returncode == 1 and "daily.parquet is unreadable" in done[0].stdout
+           and one_line(done[1]) and one_line(done[2]) and not (W / "cutseal_csv").exists()
+           and "InputFileError" in loaded.stderr and not (folder / "report").exists(),
+           f"exits {[d.returncode for d in done]}, load {loaded.stderr.strip()[-70:]!r}")
+
+
+def f_ctrl_c_pipeline():
+    """Ctrl-C to ``run ... | tee log`` replacing a result (SIGINT to the terminal's whole
+    process group, tee ended too, as its staging folder appears): one line, exit 130, the
+    old result whole, nothing left."""
+    folder = fresh("pipe_r")
+    for name in ("pipe_err", "pipe_rc"):
+        (W / name).unlink(missing_ok=True)
+    command = (f"{PY} -m fluxpart run seed1.toml --out {folder} 2>{W / 'pipe_err'} "
+               f"| tee {W / 'pipe_log'} >/dev/null; echo ${{PIPESTATUS[0]}} > {W / 'pipe_rc'}")
+    proc = subprocess.Popen(["bash", "-c", command], cwd=W / "b", env=ENV,
+                            start_new_session=True)
+    deadline = time.time() + 120
+    while time.time() < deadline and proc.poll() is None and not _entries(W, ".pipe_r.staging-"):
+        time.sleep(0.005)
+    os.killpg(proc.pid, signal.SIGINT)
+    proc.wait(timeout=120)
+    err = (W / "pipe_err").read_text()
+    code = (W / "pipe_rc").read_text().strip() if (W / "pipe_rc").exists() else None
+    kind = _whole_kind(folder, W / "r0", W / "r1")
+    record("Ctrl-C to run | tee replacing a result", code == "130"
+           and len([x for x in err.splitlines() if not x.startswith("warning:")]) == 1
+           and kind in ("pipe_r", "r0", "r1") and not leftovers(W) and verify(folder).returncode == 0,
+           f"exit {code}, {err.strip()[-90:]!r}, holds {kind}, left {leftovers(W)}")
+
+
+def f_run_log_points_elsewhere():
+    """A moved result whose run log (never hashed) was edited or copied from another run
+    to point at a folder beside another file of the input's name: verify must not take
+    that file (its SHA-256 is not the recorded one): one line asking for --input."""
+    import json
+    where = W / "logpoint"
+    shutil.rmtree(where, ignore_errors=True)
+    (where / "b").mkdir(parents=True)
+    lines = (W / "b" / "tower.csv").read_text().splitlines(keepends=True)
+    (where / "b" / "tower.csv").write_text("".join(lines[:1000]))
+    shutil.copytree(W / "r0", where / "x" / "y" / "r0")
+    log_path = where / "x" / "y" / "r0" / "run-log.json"
+    log = json.loads(log_path.read_text())
+    log["result_folder"] = str(where / "r0")
+    log_path.write_text(json.dumps(log))
+    done = verify(where / "x" / "y" / "r0")
+    record("a moved result whose run log points beside another file of the input's name",
+           one_line(done) and "--input" in done.stderr, f"exit {done.returncode} "
+           f"{_stderr_tail(done, 80)}")
+
+
+def f_netcdf_into_result():
+    """``export --netcdf`` into the result folder itself: refused in one line (a file
+    there would fail verify), verify then passes and a rerun replaces the folder."""
+    folder = fresh("ncin")
+    done = fp("export", "--netcdf", folder / "site.nc", folder)
+    after = [verify(folder).returncode,
+             fp("run", "site.toml", "--out", folder, "--quiet").returncode]
+    record("export --netcdf into the result folder", one_line(done) and after == [0, 0]
+           and not (folder / "site.nc").exists(),
+           f"exit {done.returncode} {_stderr_tail(done, 80)}, verify and rerun {after}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -3736,7 +4059,13 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_input_resaved_by_spreadsheet, f_parquet_rewritten_same_values, f_batch_site_alone,
           f_two_runs_existing_other_configs, f_input_appended_during_read,
           f_out_symlink_other_disk, f_git_crlf_checkout, f_manifest_number_edited,
-          f_netcdf_through_link, f_staging_given_as_result, f_verify_json]
+          f_netcdf_through_link, f_staging_given_as_result, f_verify_json,
+          # round faults43
+          f_out_holds_input, f_relative_input_moved_up, f_package_elsewhere,
+          f_verify_other_library_versions, f_table_cut_and_padded, f_result_renamed_odd,
+          f_export_into_occupied, f_load_while_runs_write, f_batch_kill9_moments,
+          f_table_cut_resealed, f_ctrl_c_pipeline, f_run_log_points_elsewhere,
+          f_netcdf_into_result]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
