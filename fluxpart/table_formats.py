@@ -163,15 +163,18 @@ def record_wording(message: str) -> str:
     """`message` with the line numbers of the written text as record places.
 
     The written text's header is line 1, so its line ``n`` is record ``n - 1``: "line
-    5" becomes "record 4", "lines 3 to 7" "records 2 to 6", "data line" "record".
+    5" becomes "record 4", "lines 3 to 7" "records 2 to 6", "data line" "record", "that
+    line" "that record".
     """
     def place(match):
         numbers = re.sub(r"\d+", lambda n: str(int(n.group()) - 1), match.group("numbers"))
         word = "records" if match.group("plural") else "record"
         return f"{word} {numbers}"
 
-    return re.sub(r"\b(?:data )?line(?P<plural>s)? (?P<numbers>\d+(?:(?:, | to | and |-)\d+)*)",
-                  place, message)
+    numbered = re.sub(
+        r"\b(?:data )?line(?P<plural>s)? (?P<numbers>\d+(?:(?:, | to | and |-)\d+)*)",
+        place, message)
+    return re.sub(r"\b(that|this|the|each|every) line(s?)\b", r"\1 record\2", numbered)
 
 
 # --------------------------------------------------------------------------- Arrow
