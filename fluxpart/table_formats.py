@@ -282,10 +282,17 @@ def _stamp_cells(column: pa.Array, name: str, source: str, clock) -> tuple:
     fraction = bool(pc.any(pc.not_equal(whole.cast(column.type), column)).as_py())
     seconds = STAMP_FORMAT + (".%f" if fraction else "")
     shown = column.cast(pa.timestamp("us", column.type.tz)) if fraction else whole
+    mapped = clock is not None and name in clock["time_columns"]
     if column.type.tz is None:
+        if mapped and "%z" in clock["time_format"]:
+            raise TimestampError(
+                f"input file {source!r}: [input] time_format = {clock['time_format']!r} "
+                f"reads an offset from each stamp, but the stamps {name!r} are timestamps "
+                "without a time zone; take %z out of time_format (they are then read in "
+                "the config's clock), or store them with their time zone")
         return pc.strftime(shown, STAMP_FORMAT), seconds
-    own_offsets = clock is None or name not in clock["time_columns"] or \
-        "%z" in clock["time_format"] or clock["time_format"].upper() == "ISO8601"
+    own_offsets = not mapped or "%z" in clock["time_format"] or \
+        clock["time_format"].upper() == "ISO8601"
     if own_offsets:
         return pc.strftime(shown, _OFFSET_FORMAT), seconds + "%z"
     _refuse_other_clock(column, name, source, clock)

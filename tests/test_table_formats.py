@@ -134,6 +134,10 @@ def test_a_time_zone_other_than_the_sites_clock_is_refused_naming_both(tmp_path,
     assert len(message.splitlines()) == 1
     assert "UTC+00:00 at record 1" in message and "[site] utc_offset = 1" in message
     assert "UTC+01:00" in message and "%z" in message
+    indexed = _typed(frame).set_index("stamp")                  # no time zone, but %z
+    indexed.to_parquet(tmp_path / "naive.parquet")
+    with pytest.raises(TimestampError, match="without a time zone; take %z out"):
+        _read(tmp_path / "naive.parquet", time_format="%Y-%m-%d %H:%M%z")
 
 
 @pytest.mark.parametrize("kind", ["feather", "jsonl", "jsonl.gz", "ndjson", "json array"])
