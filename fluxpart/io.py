@@ -4086,7 +4086,11 @@ def _read_file(path: Path, **settings) -> dict:
     except _EmptyFileError:
         raise
     except FluxpartError as error:
-        raise type(error)(table_formats.record_wording(str(error))) from None
+        unnamed = (f" (the file's unnamed pandas index is the column "
+                   f"{' and '.join(repr(name) for name in text.index_names)})"
+                   if isinstance(error, MissingColumnError) and text.index_names
+                   and "time_column" in str(error) else "")
+        raise type(error)(table_formats.record_wording(str(error)) + unnamed) from None
     warnings[start:] = [type(warning)(table_formats.record_wording(warning))
                         for warning in warnings[start:]]
     part["lines"] = part["lines"] - 1          # record places, 1-based

@@ -75,11 +75,15 @@ class TableText(str):
     time_format : str or None
         The format the mapped time column(s) are read under where they were typed
         stamps, else None (``[input] time_format`` applies).
+    index_names : tuple of str
+        The columns an unnamed pandas index was given ("index"), named where a mapped
+        column is not found.
     """
 
-    def __new__(cls, text: str, kind: str, time_format: str | None = None):
+    def __new__(cls, text: str, kind: str, time_format: str | None = None,
+                index_names: tuple = ()):
         made = super().__new__(cls, text)
-        made.kind, made.time_format = kind, time_format
+        made.kind, made.time_format, made.index_names = kind, time_format, index_names
         return made
 
 
@@ -145,10 +149,11 @@ def table_text(data: bytes | str, path, kind: str, *, wanted=(), clock=None) -> 
     source = str(path)
     if kind.startswith("JSON") or kind == "a JSON array":
         columns = _json_columns(data, source, kind, wanted)
-        stamp_formats = {}
+        stamp_formats, index_names = {}, ()
     else:
         table = _arrow_table(data, source, kind)
         columns, stamp_formats = _arrow_columns(table, source, wanted, clock)
+        index_names = tuple(_index_names(table).values())
     time_format = None
     if clock is not None and clock["time_columns"] and all(
             name in stamp_formats for name in clock["time_columns"]):
@@ -156,7 +161,7 @@ def table_text(data: bytes | str, path, kind: str, *, wanted=(), clock=None) -> 
     frame = pd.DataFrame(columns)
     buffer = io.StringIO()
     frame.to_csv(buffer, index=False, na_rep="", lineterminator="\n")
-    return TableText(buffer.getvalue(), kind, time_format)
+    return TableText(buffer.getvalue(), kind, time_format, index_names)
 
 
 def record_wording(message: str) -> str:

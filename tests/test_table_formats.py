@@ -201,6 +201,9 @@ def test_wrong_mappings_and_faults_are_named_with_records(tmp_path, text_reading
     typed.rename(columns={"t_air": "t_air_c"}).to_parquet(tmp_path / "t.parquet")
     with pytest.raises(MissingColumnError, match="t_air_c"):
         _read(tmp_path / "t.parquet")
+    typed.rename_axis(None).to_parquet(tmp_path / "unnamed.parquet")
+    with pytest.raises(MissingColumnError, match="unnamed pandas index is the column 'index'"):
+        _read(tmp_path / "unnamed.parquet")
     nested = typed.assign(t_air=[[t, t] for t in typed["t_air"]])
     nested.to_parquet(tmp_path / "nested.parquet")
     with pytest.raises(InputFileError, match=r"column 't_air' holds list<.*not one number"):
