@@ -88,7 +88,23 @@ class TableText(str):
 
 
 def binary_kind(data: bytes) -> str:
-    """The typed binary format `data` is in ("a Parquet file", ...), or ""."""
+    """The typed binary format `data` is in, or "".
+
+    Parameters
+    ----------
+    data : bytes
+        The file's bytes, decompressed.
+
+    Returns
+    -------
+    str
+        "a Parquet file", "an Arrow (Feather) file", "a Feather (version 1) file" or "".
+
+    References
+    ----------
+    Apache Parquet, "File Format": "PAR1" at the start and the end (m); Apache Arrow,
+    "IPC File Format": "ARROW1" at both ends; Feather version 1: "FEA1" (m).
+    """
     if data.startswith(b"PAR1") and data.endswith(b"PAR1"):
         return "a Parquet file"
     # the Arrow IPC file format, and Feather version 1 before it, open and close with
@@ -106,6 +122,20 @@ def json_kind(text: str) -> str:
     JSON Lines: the first two non-blank lines are JSON objects. An array: the text opens
     with ``[`` and an object (``[{``, blanks aside). A title line of JSON above a
     delimited table (its next line no object) is neither.
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+
+    Returns
+    -------
+    str
+        "JSON Lines", "a JSON array" or "".
+
+    References
+    ----------
+    JSON Lines, jsonlines.org (m); RFC 8259, section 2 (an array, an object) (m).
     """
     head = text.lstrip()
     if head.startswith("["):
@@ -170,6 +200,16 @@ def record_wording(message: str) -> str:
     The written text's header is line 1, so its line ``n`` is record ``n - 1``: "line
     5" becomes "record 4", "lines 3 to 7" "records 2 to 6", "data line" "record", "that
     line" "that record".
+
+    Parameters
+    ----------
+    message : str
+        A message of the text reader about the written text.
+
+    Returns
+    -------
+    str
+        The message counting records.
     """
     def place(match):
         numbers = re.sub(r"\d+", lambda n: str(int(n.group()) - 1), match.group("numbers"))
