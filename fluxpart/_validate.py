@@ -370,14 +370,6 @@ def refuse_binary(data: bytes, path) -> None:
     with a hint to change ``[input] encoding``, which cannot help.
     """
     signatures = list(_BINARY_SIGNATURES)
-    if data.startswith(b"PAR1") and data.endswith(b"PAR1"):
-        signatures.append((b"PAR1", "a Parquet file", "export it as CSV"))
-    for magic, kind in ((b"ARROW1", "an Arrow (Feather) file"), (b"FEA1", "a Feather file")):
-        # the Arrow IPC file format, and Feather version 1 before it, open and close
-        # with these bytes (Apache Arrow columnar format, "IPC File Format" (m)); both
-        # ends, as for Parquet, so that a text table whose header opens so is read
-        if data.startswith(magic) and data.endswith(magic):
-            signatures.append((magic, kind, "export it as CSV"))
     if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
         signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
     if data.startswith(b"PK\x03\x04"):

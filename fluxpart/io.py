@@ -59,6 +59,7 @@ from . import (
     header_cells,
     interleaved_lines,
     later_files,
+    table_formats,
     unicode_names,
 )
 from ._validate import (
@@ -82,6 +83,7 @@ from .config import Config, setting_text, suggest_key
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
+    FluxpartError,
     ImplausibleValueError,
     InputFileError,
     InputTooLarge,
@@ -2709,8 +2711,12 @@ def _tar_table(data: bytes, path: Path, compressed: str) -> bytes:
                          "[input] path at the text file(s)")
 
 
-def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
+def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None).
+
+    A typed table (Parquet, Arrow, JSON Lines, a JSON array of records) is returned as
+    the :class:`fluxpart.table_formats.TableText` of its records, made under `typed`
+    (``wanted`` and ``clock`` of :func:`fluxpart.table_formats.table_text`).
 
     A block of zero bytes that ends the file (a logger's preallocated file, or a file
     whose length was written before its data when the power failed) is dropped with a
@@ -2727,6 +2733,10 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
     if owner:
         raise InputFileError(owner)
     data = _decompressed(data, path)
+    typed = typed or {}
+    kind = table_formats.binary_kind(data)
+    if kind:
+        return table_formats.table_text(data, path, kind, **typed), "utf-8"
     refuse_binary(data, path)
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
     # one among files of a declared single-byte encoding (read as such, its header would
@@ -2784,6 +2794,9 @@ def _decode(path: Path, encoding, warnings=None) -> tuple[str, str]:
             f"bytes (NUL; {text.count(chr(0))} in the file), which no text table has: a write "
             "cut short by a power failure or a damaged memory card leaves them; delete them, "
             "and the record they damaged, in a copy of the file")
+    kind = table_formats.json_kind(text)
+    if kind:
+        text = table_formats.table_text(text, path, kind, **typed)
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
 
 
@@ -4038,22 +4051,60 @@ def _flag_key(column: str) -> str:
 _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 
 
-def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_format, missing,
-               delimiter, decimal, encoding, rows_before_header, rows_after_header, time_zone,
-               utc_offset, warnings, may_lack=False, flag_missing=None,
-               time_marks=None, site=None, missing_by_variable=None,
-               code_cells=None, column_widths=(), other_names=None,
-               renamed_in=None, first_header=None, later_notes=None,
-               note_mark=None) -> dict:
+def _read_file(path: Path, **settings) -> dict:
     """Read one file: its stamps in local standard time and the numbers of each column.
 
+    `settings` are those of :func:`_read_records` (the keyword arguments of
+    :func:`read_table` as checked there, and the file's place among several).
     `may_lack`: mapped columns the file lacks are listed in ``"lacking"`` (and not read)
     instead of refused (one of several files). `first_header`: the header line and the
     lines under it of the first file read (a later file of several), for a file that
     lacks its title lines or its header (:mod:`fluxpart.later_files`), named in
-    `later_notes` (a dict of lists of files).
+    `later_notes` (a dict of lists of files). A typed table
+    (:mod:`fluxpart.table_formats`) is read from its text, its messages counting
+    records where a text file's count lines.
     """
-    text, used_encoding = _decode(path, encoding, warnings)
+    columns, time_columns = settings["columns"], settings["time_columns"]
+    flag_columns, other_names = settings["flag_columns"], settings.get("other_names")
+    time_format, warnings = settings["time_format"], settings["warnings"]
+    wanted = (*columns.values(), *time_columns, *flag_columns,
+              *(name for names in (other_names or {}).values() for name in names))
+    clock = {"time_columns": time_columns, "time_format": time_format,
+             "utc_offset": settings["utc_offset"], "time_zone": settings["time_zone"]}
+    text, used_encoding = _decode(path, settings["encoding"], warnings,
+                                  typed={"wanted": wanted, "clock": clock})
+    if not isinstance(text, table_formats.TableText):
+        return _read_records(path, text, used_encoding, **settings)
+    # a typed table's text: written as one comma-separated header line and records,
+    # whatever the layout settings say, which are a text file's (table_formats)
+    settings |= {"time_format": text.time_format or time_format, "delimiter": ",",
+                 "decimal": ".", "rows_before_header": 0, "rows_after_header": 0,
+                 "column_widths": (), "note_mark": None}
+    start = len(warnings)
+    try:
+        part = _read_records(path, text, used_encoding, **settings)
+    except _EmptyFileError:
+        raise
+    except FluxpartError as error:
+        unnamed = (f" (the file's unnamed pandas index is the column "
+                   f"{' and '.join(repr(name) for name in text.index_names)})"
+                   if isinstance(error, MissingColumnError) and text.index_names
+                   and "time_column" in str(error) else "")
+        raise type(error)(table_formats.record_wording(str(error)) + unnamed) from None
+    warnings[start:] = [type(warning)(table_formats.record_wording(warning))
+                        for warning in warnings[start:]]
+    part["lines"] = part["lines"] - 1          # record places, 1-based
+    return part
+
+
+def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
+                  flag_columns, time_columns, time_format, missing, delimiter, decimal,
+                  encoding, rows_before_header, rows_after_header, time_zone, utc_offset,
+                  warnings, may_lack=False, flag_missing=None, time_marks=None, site=None,
+                  missing_by_variable=None, code_cells=None, column_widths=(),
+                  other_names=None, renamed_in=None, first_header=None, later_notes=None,
+                  note_mark=None) -> dict:
+    """:func:`_read_file` of the file's decoded `text`."""
     if not column_widths:
         # a large file of finer records refused from samples, not after a parse of
         # minutes and gigabytes (leftovers50; faults39: 5.3 million lines, 37-82 s)

@@ -94,8 +94,8 @@ def _notations(ends, values):
     }
 
 
-@pytest.mark.parametrize("kind", ["JSON Lines", "JSON", "JSON,", "XML", "XML,", "HTML",
-                                  "HTML,", "Excel 2003 XML"])
+# JSON Lines and a JSON array of records are read since layouts46 (test_table_formats.py)
+@pytest.mark.parametrize("kind", ["XML", "XML,", "HTML", "HTML,", "Excel 2003 XML"])
 def test_records_in_another_notation_are_named(tmp_path, kind):
     """Read as a table, each was refused for a cause it does not have (a changed header,
     a header without records, "set delimiter = whitespace", a tag as the only column);
