@@ -1194,7 +1194,8 @@ def test_report_modules_import_no_pipeline_or_method_module():
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
                "measured_months", "install_hints", "ustar_range_note",
-               "respiration_facts"}   # reads the manifest's provenance (review58)
+               "respiration_facts",   # reads the manifest's provenance (review58)
+               "absent_tables"}       # a figure's sentence where its table is absent
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -1864,3 +1865,46 @@ def test_the_card_says_which_months_hold_no_measured_nee():
     assert 'data-value="8"' in card(np.where(measured, 0, 3))
     assert "unmeasured_months" not in card(pd.Categorical(np.full(index.size, "measured")))
     assert "No NEE was measured in this period" in card(pd.Categorical(np.full(index.size, "C")))
+
+
+def test_a_folder_without_an_optional_table_gets_one_sentence_per_figure(folder):
+    """A result folder needs only its time series and annual table to be reported; a
+    figure drawn from another table the folder lacks was empty axes under a caption
+    describing curves that were not there (report52: no monthly table gave a blank plot
+    on a 1970 time axis and a matplotlib warning on the terminal; no daily table three
+    empty panels captioned "the run wrote no daily 1-sigma columns"). Such a figure is now
+    one sentence naming the table, and a figure drawn in part from an absent table says
+    what it leaves out; no warning is raised and the page is built."""
+    import warnings
+
+    from fluxpart.absent_tables import MAIN_TABLES, PART_TABLES
+
+    written = read_written(folder["directory"])
+    absent = {"daily", "monthly", "parameters_daytime", "parameters_nighttime_e0_annual"}
+    assert absent <= set(written.tables)
+    lacking = dataclasses.replace(
+        written, tables={k: v for k, v in written.tables.items() if k not in absent})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        drawn = {f.name: f for f in figures.draw_figures(lacking)}
+        page = report._page(lacking, folder["directory"], list(drawn.values()), 30)
+    assert list(drawn) == list(FIGURES)
+    for name, (table, title, _) in MAIN_TABLES.items():
+        caption = drawn[name].caption
+        if table in absent:
+            assert drawn[name].title == title
+            assert caption.startswith(f"This result folder has no {table} table, so ")
+            assert caption.count(".") == 1, caption           # one sentence, nothing else
+            assert html.escape(caption) in page
+            assert len(drawn[name].png) < 20000               # a line of text, no axes
+        else:
+            assert "This result folder has no" not in caption
+    night = drawn["night_respiration.png"].caption
+    assert night.endswith("This result folder has no parameters_nighttime_e0_annual table, "
+                          "so the figure shows no curve of each calendar year's E0.")
+    assert "parameters_nighttime_rref" not in night
+    # every table a figure names is one the writer writes
+    listed = set(read_manifest(folder["directory"])["tables"])
+    named = {table for table, _, _ in MAIN_TABLES.values()} | {
+        table for parts in PART_TABLES.values() for table, _ in parts}
+    assert named <= listed, named - listed
