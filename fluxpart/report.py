@@ -509,8 +509,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
-            # + 0.0 turns a difference rounded to -0.0 into 0.0 (no sign without a digit)
-            relative = [f"{name} {round(100 * float(row[f'{flux}_relative_difference']), 1) + 0.0:+.1f} %"
+            relative = [f"{name} {_signed(100 * float(row[f'{flux}_relative_difference']))} %"
                         + _absolute_difference(row.get(f"{flux}_method_difference"))
                         for name, flux in (("GPP", "gpp"), ("Reco", "reco"))
                         if _finite(row.get(f"{flux}_relative_difference"))]
@@ -558,7 +557,15 @@ def _absolute_difference(difference) -> str:
     holds no such column."""
     if not _finite(difference):
         return ""
-    return f" ({round(float(difference), 1) + 0.0:+.1f} g C m-2)"
+    return f" ({_signed(float(difference))} g C m-2)"
+
+
+def _signed(value: float) -> str:
+    """`value` at one decimal with its sign, and "0.0" without one where it rounds to zero:
+    IEEE 754 keeps the sign of a negative number rounded to zero ("-0.0", review21), and a
+    forced "+0.0 %" beside "(-0.2 g C m-2)" gave one difference two signs (report52)."""
+    rounded = round(value, 1)
+    return "0.0" if rounded == 0 else f"{rounded:+.1f}"
 
 
 def _reading_notes(combined_used: bool, light_shape: bool = False) -> str:

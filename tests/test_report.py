@@ -1719,7 +1719,14 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
                            "reco_relative_difference": [-0.0123]},
                           index=pd.Index([2021], name="year"))
     line = _agreement_line(index, annual)
-    assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+    assert "GPP 0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+    # a difference rounding to zero carries no sign, so it cannot contradict the grams
+    # beside it (report52: "Reco +0.0 % (-0.2 g C m-2)" on the maize example)
+    annual["gpp_method_difference"] = [-0.2]
+    annual["reco_method_difference"] = [-0.04]
+    line = _agreement_line(index, annual)
+    assert "GPP 0.0 % (-0.2 g C m-2)" in line and "Reco -1.2 % (0.0 g C m-2)" in line
+    assert "+0.0" not in line
 
 
 def test_method_agreement_gives_the_difference_in_grams_beside_the_percentage():
