@@ -12,6 +12,7 @@ nothing else:
   declared events that cut the record;
 * :func:`interval_sentence`: what the 95 % interval of NEE means and what makes it wide,
   each part named in words with the interval it would give alone;
+* :func:`partition_sentence`: why GPP's and Reco's intervals are wider, in the same words;
 * :func:`warnings_sentence`: how many warnings the run recorded and where they are;
 * :data:`ROUNDING_NOTE`: how the page rounds the tables' numbers.
 
@@ -32,8 +33,8 @@ import html
 import numpy as np
 import pandas as pd
 
-__all__ = ["PLAIN_PARTS", "ROUNDING_NOTE", "interval_sentence", "records_sentence",
-           "warnings_sentence"]
+__all__ = ["PLAIN_PARTS", "ROUNDING_NOTE", "interval_sentence", "partition_sentence",
+           "records_sentence", "warnings_sentence"]
 
 #: Coverage factor of a 95 % interval of a normal distribution (GUM §G.3 (m)); the one the
 #: run's ``X_ci95_low`` / ``_high`` columns use (sum ± 1.96 × total).
@@ -171,6 +172,31 @@ def interval_sentence(parts: pd.Series, total: float, low: float, high: float) -
              "measurement itself that repeat in every record (see the note below the cards) "
              "are not in it.")
     return html.escape(text, quote=False)
+
+
+def partition_sentence(largest) -> str:
+    """Why GPP's and Reco's intervals differ from NEE's, in words (HTML-escaped).
+
+    Parameters
+    ----------
+    largest : sequence of str
+        The largest part (keys of :data:`PLAIN_PARTS`) of each partitioned flux's
+        uncertainty as written, in any order; repeats are said once.
+
+    Returns
+    -------
+    str
+        One sentence; "" where `largest` is empty.
+    """
+    names = list(dict.fromkeys(largest))
+    if not names:
+        return ""
+    words = "; and ".join(PLAIN_PARTS.get(name, name) for name in names)
+    verb = "sources here are" if len(names) > 1 else "source here is"
+    return html.escape(
+        "GPP and Reco are not measured: they are modelled from NEE, so their intervals also "
+        f"carry the models' uncertainty; the largest {verb} {words} (each flux's largest "
+        "part is named in the next line).", quote=False)
 
 
 def warnings_sentence(count: int) -> str:

@@ -60,7 +60,13 @@ from .figures import (
 )
 from .manifest import CAUTION, NEE_SCOPE, shown_name, shown_path
 from .measured_months import month_runs_text, unchecked_months
-from .plain_account import ROUNDING_NOTE, interval_sentence, records_sentence, warnings_sentence
+from .plain_account import (
+    ROUNDING_NOTE,
+    interval_sentence,
+    partition_sentence,
+    records_sentence,
+    warnings_sentence,
+)
 from .respiration_facts import respiration_facts
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
@@ -363,7 +369,15 @@ def _interval_fact(parts: pd.DataFrame | None, label, kind, low, high) -> str:
         return ""
     row = parts.loc[(label, "nee")]
     names = [name for name in PART_LABELS if name in row.index]
-    return interval_sentence(row[names], float(row["total"]), low, high)
+    largest = []
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        if (label, flux) in parts.index:
+            values = parts.loc[(label, flux), names].astype(float).dropna()
+            values = values[values > 0]
+            if len(values):
+                largest.append(values.sort_values(ascending=False, kind="stable").index[0])
+    nee = interval_sentence(row[names], float(row["total"]), low, high)
+    return f"{nee} {partition_sentence(largest)}".strip() if nee else ""
 
 
 def _unmeasured_note(written: Written, label, mask) -> str:

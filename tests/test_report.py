@@ -2064,3 +2064,30 @@ def test_every_number_on_the_summary_cards_comes_from_the_folder_at_its_printed_
         decimals = len(number.split(".")[1]) if "." in number else 0
         close = np.abs(candidates - value) <= 0.5 * 10.0 ** -decimals + 1e-9
         assert close.any(), f"{number} on the summary card is no written value at its digits"
+
+
+def test_the_card_says_in_words_why_gpp_and_reco_are_less_certain(folder):
+    """GPP and Reco are modelled from NEE; the card now says so and names, in the same
+    plain words, the largest part of each partitioned flux's uncertainty as written
+    (annual.parquet read with pyarrow; repeats said once, in the flux order of the line
+    that follows)."""
+    from fluxpart.plain_account import PLAIN_PARTS, partition_sentence
+
+    annual = pq.read_table(folder["directory"] / "annual.parquet").to_pandas().set_index("year")
+    row = annual.loc[2021]
+    columns = {"random": "{flux}_uncertainty_random", "gap filling": "{flux}_uncertainty_gapfill",
+               "ustar": "{flux}_uncertainty_ustar", "parameters": "{flux}_uncertainty_parameters",
+               "partitioning": "{kind}_uncertainty_partitioning",
+               "temperature": "reco_uncertainty_temperature_driver"}
+    largest = []
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        sizes = {name: row.get(pattern.format(flux=flux, kind=flux.split("_")[0]), np.nan)
+                 for name, pattern in columns.items()}
+        sizes = {name: value for name, value in sizes.items() if np.isfinite(value) and value > 0}
+        largest.append(max(sizes, key=sizes.get))
+    text = _card_text(folder["text"])
+    sentence = re.search(r"GPP and Reco are not measured: (.*?)\(each flux", text).group(1)
+    for name in dict.fromkeys(largest):
+        assert PLAIN_PARTS[name] in sentence, name
+    assert partition_sentence([]) == ""
+    assert "source here is whether air" in partition_sentence(["temperature"] * 4)
