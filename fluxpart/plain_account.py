@@ -81,7 +81,16 @@ ROUNDING_NOTE = (
 
 
 def _count(number: int, total: int) -> str:
-    return f"{number} ({100 * number / total:.1f} %)"
+    """A count with its share of `total`; a share that rounds to 0.0 % is "< 0.1 %" and one
+    that rounds to 100.0 % without being all is "> 99.9 %" (3 records rejected read "3
+    (0.0 %)", report52)."""
+    share = 100 * number / total
+    shown = f"{share:.1f}"
+    if number and shown == "0.0":
+        shown = "< 0.1"
+    elif number < total and shown == "100.0":
+        shown = "> 99.9"
+    return f"{number} ({shown} %)"
 
 
 def records_sentence(reasons, interval: int, events=()) -> str:

@@ -1959,6 +1959,10 @@ def test_records_sentence_names_the_declared_events_and_a_record_without_rejecti
     assert cut.endswith("The record was cut at the declared event (2021-07-20: a harvest, cut, "
                         "fire or the like): gaps were filled and curves fitted on each side "
                         "separately.")
+    # a share that rounds to zero is not printed as 0.0 % beside a count of records
+    rare = html.unescape(records_sentence(["kept"] * 4999 + ["out_of_range"], 30))
+    assert "4999 (> 99.9 %) hold" in rare and "1 (< 0.1 %) lay outside the plausible" in rare
+    assert "(0.0 %)" not in rare and "(100.0 %)" not in rare
     whole = records_sentence(["kept"] * 3, 30)
     assert "filled" not in whole and "event" not in whole
     assert records_sentence([], 30) == ""
@@ -2054,7 +2058,7 @@ def test_every_number_on_the_summary_cards_comes_from_the_folder_at_its_printed_
 
     text = _card_text(folder["text"])
     fixed = (r"\d{1,2} [A-Z][a-z]{2} \d{4}", r"\b20\d\d\b", r"95 %", r"19 of 20",
-             r"5–95 %", r"1 sigma", r"1\.96")
+             r"5–95 %", r"1 sigma", r"1\.96", r"< 0\.1 %", r"> 99\.9 %")
     for pattern in fixed:
         text = re.sub(pattern, " ", text)
     printed = re.findall(r"(?<![\w.])[-+±]?\d+(?:\.\d+)?", text)
