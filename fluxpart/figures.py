@@ -44,6 +44,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from .absent_tables import absent_main, absent_parts
 from .constants import KELVIN_OFFSET, LLOYD_TAYLOR_TREF_KELVIN
 from .errors import LOADER_MEMORY_WORDS, FluxpartError
 from .respiration_facts import respiration_facts
@@ -1559,13 +1560,33 @@ def unfitted_methods(written) -> list[str]:
     return out
 
 
-def _unfitted_figure(drawing, name, title, method) -> Figure:
-    """A figure of one method that could not fit: the statement instead of empty axes."""
+def _statement_figure(drawing, name, title, text) -> Figure:
+    """A figure with nothing to draw: its one sentence instead of empty axes."""
     figure = drawing.figure(8.0, 2.0, left=0.02, right=0.98, top=0.9, bottom=0.1)
-    text = (f"The {method} partitioning method could not fit this record: its GPP and Reco "
-            "are not given (the run's warnings name the reason).")
     _no_data(figure.add_subplot(1, 1, 1), text)
     return Figure(name, drawing.png(figure), title, text)
+
+
+def _unfitted_figure(drawing, name, title, method) -> Figure:
+    """A figure of one method that could not fit: the statement instead of empty axes."""
+    return _statement_figure(drawing, name, title,
+                             f"The {method} partitioning method could not fit this record: "
+                             "its GPP and Reco are not given (the run's warnings name the "
+                             "reason).")
+
+
+def _with_tables(drawing, written, name, paint) -> Figure:
+    """Figure `name` drawn by `paint()`, or its sentence where the result folder lacks
+    the table it draws; a caption clause where it lacks a table drawn in part
+    (:mod:`fluxpart.absent_tables`)."""
+    absent = absent_main(name, written.tables)
+    if absent is not None:
+        return _statement_figure(drawing, name, *absent)
+    figure = paint()
+    clause = absent_parts(name, written.tables)
+    if not clause:
+        return figure
+    return Figure(figure.name, figure.png, figure.title, f"{figure.caption} {clause}")
 
 
 def _without(figure: Figure, unfitted) -> Figure:
@@ -2105,6 +2126,8 @@ def draw_figures(written: Written, progress=None) -> list[Figure]:
         lambda: figure_ustar(drawing, written),
         lambda: figure_light_response(drawing, written),
     )
+    painters = tuple(lambda name=name, paint=paint: _with_tables(drawing, written, name, paint)
+                     for name, paint in zip(FIGURES, painters, strict=True))
     figures = []
     # The cyclic garbage collector pauses while the figures are drawn: matplotlib makes
     # some 10^5 short-lived objects per figure, and the collector's full passes over

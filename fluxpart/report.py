@@ -60,6 +60,13 @@ from .figures import (
 )
 from .manifest import CAUTION, NEE_SCOPE, shown_name, shown_path
 from .measured_months import month_runs_text, unchecked_months
+from .plain_account import (
+    ROUNDING_NOTE,
+    interval_sentence,
+    partition_sentence,
+    records_sentence,
+    warnings_sentence,
+)
 from .respiration_facts import respiration_facts
 from .resultdir import (
     DEFAULT_LOCK_TIMEOUT,
@@ -340,6 +347,39 @@ def _uncertainty_fact(parts: pd.DataFrame | None, label) -> str:
     return _e(" ".join(sentences))
 
 
+def _records_fact(written: Written, mask, first, last) -> str:
+    """The card's account of what became of the period's records, in plain words
+    (:func:`fluxpart.plain_account.records_sentence`), or "" where the time series holds
+    no screening outcome (older folders)."""
+    series = written.timeseries
+    if "rejection_reason" not in series.columns or not np.any(mask):
+        return ""
+    events = [str(event) for event in written.setting("events", None) or []]
+    moments = pd.to_datetime(pd.Series(events, dtype=object), errors="coerce")
+    inside = [event for event, moment in zip(events, moments, strict=True)
+              if pd.notna(moment) and first <= moment <= last]
+    return records_sentence(series["rejection_reason"].to_numpy()[mask],
+                            interval_minutes(series.index), inside)
+
+
+def _interval_fact(parts: pd.DataFrame | None, label, kind, low, high) -> str:
+    """The card's plain words on NEE's 95 % interval, or "" without one
+    (:func:`fluxpart.plain_account.interval_sentence`)."""
+    if kind != "ci95" or parts is None or (label, "nee") not in parts.index:
+        return ""
+    row = parts.loc[(label, "nee")]
+    names = [name for name in PART_LABELS if name in row.index]
+    largest = []
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        if (label, flux) in parts.index:
+            values = parts.loc[(label, flux), names].astype(float).dropna()
+            values = values[values > 0]
+            if len(values):
+                largest.append(values.sort_values(ascending=False, kind="stable").index[0])
+    nee = interval_sentence(row[names], float(row["total"]), low, high)
+    return f"{nee} {partition_sentence(largest)}".strip() if nee else ""
+
+
 def _unmeasured_note(written: Written, label, mask) -> str:
     """The card's caution where months of the period hold no measured NEE record.
 
@@ -453,6 +493,9 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                       '<th scope="col">Daytime method</th></tr></thead>'
                       f"<tbody>{''.join(flux_rows)}</tbody></table>")
         facts = []
+        done = _records_fact(written, periods[label][3], first, last)
+        if done:
+            facts.append(f"<li><strong>What was done:</strong> {done}</li>")
         if _finite(row.get("share_measured")):
             unfilled = float(row["share_unfilled"]) if _finite(row.get("share_unfilled")) else 0.0
             filled = 1.0 - float(row["share_measured"]) - unfilled
@@ -468,6 +511,9 @@ def _summary_card(written: Written) -> tuple[str, bool]:
                          + (f"; {100 * float(row['nee_share_from_filled']):.0f} % of the sum of "
                             "|NEE| comes from filled records"
                             if _finite(row.get("nee_share_from_filled")) else "") + ".</li>")
+        meaning = _interval_fact(uncertainty_table, label, kind, low, high)
+        if meaning:
+            facts.append(f"<li><strong>What the interval means:</strong> {meaning}</li>")
         drivers = _uncertainty_fact(uncertainty_table, label)
         if drivers:
             facts.append(f"<li><strong>What the uncertainty comes from:</strong> {drivers}</li>")
@@ -477,8 +523,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
         if "methods_agree" in row.index and pd.notna(row["methods_agree"]):
             agree = bool(row["methods_agree"])
             margin = written.setting("agreement_margin")
-            # + 0.0 turns a difference rounded to -0.0 into 0.0 (no sign without a digit)
-            relative = [f"{name} {round(100 * float(row[f'{flux}_relative_difference']), 1) + 0.0:+.1f} %"
+            relative = [f"{name} {_signed(100 * float(row[f'{flux}_relative_difference']))} %"
                         + _absolute_difference(row.get(f"{flux}_method_difference"))
                         for name, flux in (("GPP", "gpp"), ("Reco", "reco"))
                         if _finite(row.get(f"{flux}_relative_difference"))]
@@ -526,7 +571,15 @@ def _absolute_difference(difference) -> str:
     holds no such column."""
     if not _finite(difference):
         return ""
-    return f" ({round(float(difference), 1) + 0.0:+.1f} g C m-2)"
+    return f" ({_signed(float(difference))} g C m-2)"
+
+
+def _signed(value: float) -> str:
+    """`value` at one decimal with its sign, and "0.0" without one where it rounds to zero:
+    IEEE 754 keeps the sign of a negative number rounded to zero ("-0.0", review21), and a
+    forced "+0.0 %" beside "(-0.2 g C m-2)" gave one difference two signs (report52)."""
+    rounded = round(value, 1)
+    return "0.0" if rounded == 0 else f"{rounded:+.1f}"
 
 
 def _reading_notes(combined_used: bool, light_shape: bool = False) -> str:
@@ -550,6 +603,7 @@ def _reading_notes(combined_used: bool, light_shape: bool = False) -> str:
         f"{shape}, as far as each applies to the flux); systematic errors of the measurement itself (energy-balance closure, "
         "advection, storage, footprint) are not included (the manifest lists every part "
         "left out).",
+        html.escape(ROUNDING_NOTE, quote=False),
     ]
     if combined_used:
         notes.append('<span id="note-combined">* Combined uncertainty: the root sum of squares '
@@ -1371,6 +1425,7 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
 <main>
 <section id="section-summary"><h2>Summary</h2>
 {summary}
+<p class="warning-count" data-summary="warnings" data-value="{len(warnings)}">{warnings_sentence(len(warnings))}</p>
 {_reading_notes(combined_used, "gpp_daytime_uncertainty_light_shape" in annual.columns)}
 </section>
 <section id="section-warnings"><h2>Warnings</h2>{warning_html}</section>

@@ -1194,7 +1194,9 @@ def test_report_modules_import_no_pipeline_or_method_module():
     allowed = {"config", "constants", "errors", "figures", "manifest", "store", "units",
                "responses", "progress", "resultdir", "fingerprint", "uncertainty_parts",
                "measured_months", "install_hints", "ustar_range_note",
-               "respiration_facts"}   # reads the manifest's provenance (review58)
+               "respiration_facts",   # reads the manifest's provenance (review58)
+               "absent_tables",       # a figure's sentence where its table is absent
+               "plain_account"}       # the summary's plain words (report52)
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
@@ -1717,7 +1719,14 @@ def test_a_method_difference_rounded_to_zero_shows_no_minus_sign():
                            "reco_relative_difference": [-0.0123]},
                           index=pd.Index([2021], name="year"))
     line = _agreement_line(index, annual)
-    assert "GPP +0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+    assert "GPP 0.0 %" in line and "Reco -1.2 %" in line and "-0.0" not in line
+    # a difference rounding to zero carries no sign, so it cannot contradict the grams
+    # beside it (report52: "Reco +0.0 % (-0.2 g C m-2)" on the maize example)
+    annual["gpp_method_difference"] = [-0.2]
+    annual["reco_method_difference"] = [-0.04]
+    line = _agreement_line(index, annual)
+    assert "GPP 0.0 % (-0.2 g C m-2)" in line and "Reco -1.2 % (0.0 g C m-2)" in line
+    assert "+0.0" not in line
 
 
 def test_method_agreement_gives_the_difference_in_grams_beside_the_percentage():
@@ -1864,3 +1873,225 @@ def test_the_card_says_which_months_hold_no_measured_nee():
     assert 'data-value="8"' in card(np.where(measured, 0, 3))
     assert "unmeasured_months" not in card(pd.Categorical(np.full(index.size, "measured")))
     assert "No NEE was measured in this period" in card(pd.Categorical(np.full(index.size, "C")))
+
+
+def test_a_folder_without_an_optional_table_gets_one_sentence_per_figure(folder):
+    """A result folder needs only its time series and annual table to be reported; a
+    figure drawn from another table the folder lacks was empty axes under a caption
+    describing curves that were not there (report52: no monthly table gave a blank plot
+    on a 1970 time axis and a matplotlib warning on the terminal; no daily table three
+    empty panels captioned "the run wrote no daily 1-sigma columns"). Such a figure is now
+    one sentence naming the table, and a figure drawn in part from an absent table says
+    what it leaves out; no warning is raised and the page is built."""
+    import warnings
+
+    from fluxpart.absent_tables import MAIN_TABLES, PART_TABLES
+
+    written = read_written(folder["directory"])
+    absent = {"daily", "monthly", "parameters_daytime", "parameters_nighttime_e0_annual"}
+    assert absent <= set(written.tables)
+    lacking = dataclasses.replace(
+        written, tables={k: v for k, v in written.tables.items() if k not in absent})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        drawn = {f.name: f for f in figures.draw_figures(lacking)}
+        page = report._page(lacking, folder["directory"], list(drawn.values()), 30)
+    assert list(drawn) == list(FIGURES)
+    for name, (table, title, _) in MAIN_TABLES.items():
+        caption = drawn[name].caption
+        if table in absent:
+            assert drawn[name].title == title
+            assert caption.startswith(f"This result folder has no {table} table, so ")
+            assert caption.count(".") == 1, caption           # one sentence, nothing else
+            assert html.escape(caption) in page
+            assert len(drawn[name].png) < 20000               # a line of text, no axes
+        else:
+            assert "This result folder has no" not in caption
+    night = drawn["night_respiration.png"].caption
+    assert night.endswith("This result folder has no parameters_nighttime_e0_annual table, "
+                          "so the figure shows no curve of each calendar year's E0.")
+    assert "parameters_nighttime_rref" not in night
+    # every table a figure names is one the writer writes
+    listed = set(read_manifest(folder["directory"])["tables"])
+    named = {table for table, _, _ in MAIN_TABLES.values()} | {
+        table for parts in PART_TABLES.values() for table, _ in parts}
+    assert named <= listed, named - listed
+
+
+def _card_text(text: str) -> str:
+    """The summary's cards and record line as plain text (tags dropped, entities read)."""
+    summary = text[text.index('id="section-summary"'):text.index('class="warning-count"')]
+    plain = html.unescape(re.sub(r"<[^>]+>", " ", summary)).replace("−", "-")
+    return re.sub(r"\s+", " ", plain)
+
+
+def test_the_card_says_what_became_of_the_records_in_plain_words(folder):
+    """An auditor could not tell from the card what had been done to the records
+    (report52). The card now says how many records kept their measurement and why the
+    others were rejected, each count and share equal to the written rejection_reason
+    (reference: pyarrow and collections.Counter, not fluxpart), largest first, that they
+    were filled and how NEE was split."""
+    from collections import Counter
+
+    reasons = Counter(pq.read_table(folder["directory"] / "timeseries.parquet",
+                                    columns=["rejection_reason"]).column(0).to_pylist())
+    total = sum(reasons.values())
+    text = _card_text(folder["text"])
+    done = re.search(r"What was done: (.*?)(?=Gap-filled:)", text).group(1)
+    assert done.startswith(f"Of the period's {total} 30-minute records, {reasons['kept']} "
+                           f"({100 * reasons['kept'] / total:.1f} %) hold an NEE measurement")
+    listed = [(int(n), share) for n, share in re.findall(r"(\d+) \(([0-9.]+) %\)", done)][1:]
+    expected = sorted(((n, f"{100 * n / total:.1f}") for r, n in reasons.items()
+                       if r != "kept" and n), key=lambda item: -item[0])
+    assert listed == expected
+    assert "were taken on calm nights (u* below the threshold)" in done
+    assert "Those were filled, then NEE was split into uptake (GPP) and respiration" in done
+
+
+def test_records_sentence_names_the_declared_events_and_a_record_without_rejections():
+    """Events cut the record (gaps filled, curves fitted per side): the card says so with
+    their dates; a period whose every record was kept says nothing of filling."""
+    from fluxpart.plain_account import records_sentence
+
+    cut = records_sentence(["kept", "missing", "kept", "spike"], 60, ["2021-07-20"])
+    assert cut.startswith("Of the period's 4 60-minute records, 2 (50.0 %) hold an NEE")
+    assert "1 (25.0 %) had no NEE value in the file; 1 (25.0 %) were spikes." in cut
+    assert cut.endswith("The record was cut at the declared event (2021-07-20: a harvest, cut, "
+                        "fire or the like): gaps were filled and curves fitted on each side "
+                        "separately.")
+    # a share that rounds to zero is not printed as 0.0 % beside a count of records
+    rare = html.unescape(records_sentence(["kept"] * 4999 + ["out_of_range"], 30))
+    assert "4999 (> 99.9 %) hold" in rare and "1 (< 0.1 %) lay outside the plausible" in rare
+    assert "(0.0 %)" not in rare and "(100.0 %)" not in rare
+    whole = records_sentence(["kept"] * 3, 30)
+    assert "filled" not in whole and "event" not in whole
+    assert records_sentence([], 30) == ""
+
+
+def test_the_card_explains_the_interval_from_its_written_parts(folder):
+    """The card named NEE's parts as "gap filling 6.2, random error 2.6 (1 sigma)", which
+    a non-specialist cannot turn into the interval (report52). It now says what the 95 %
+    interval means and names each part in words with the interval it would give alone,
+    1.96 × its annual.parquet column (read with pyarrow), largest first; those combine in
+    quadrature to the interval's half-width (GUM, JCGM 100:2008 §5.1 (m))."""
+    annual = pq.read_table(folder["directory"] / "annual.parquet").to_pandas().set_index("year")
+    row = annual.loc[2021]
+    text = _card_text(folder["text"])
+    meaning = re.search(r"What the interval means: (.*?)(?=What the uncertainty)", text).group(1)
+    half = 0.5 * (row["nee_ci95_high"] - row["nee_ci95_low"])
+    assert f"(±{half:.1f} g C m-2 about the central value)" in meaning
+    alone = [float(v) for v in re.findall(r"\(alone ±([0-9.]+) g C m-2\)", meaning)]
+    columns = ["nee_uncertainty_gapfill", "nee_uncertainty_random", "nee_uncertainty_ustar"]
+    expected = sorted((1.96 * row[c] for c in columns if row[c] > 0), reverse=True)
+    assert alone == [round(v, 1) for v in expected]
+    assert np.sqrt(np.sum(np.square(expected))) == pytest.approx(half, rel=1e-4)
+    assert "estimating the records without an accepted measurement" in meaning
+    assert "not in it" in meaning                     # the systematic errors left out
+
+
+def test_the_summary_points_to_the_warnings_and_states_its_rounding(folder):
+    """The card gave the answer with no word that the run had warned (report52): the
+    summary now says how many warnings the manifest records (read with json) and to read
+    them first; the reading notes state how the page rounds the tables' numbers."""
+    import json
+
+    warnings = json.loads((folder["directory"] / "manifest.json").read_text())["warnings"]
+    text = folder["text"]
+    pointer = re.search(r'<p class="warning-count" data-summary="warnings" '
+                        r'data-value="(\d+)">(.*?)</p>', text)
+    assert int(pointer.group(1)) == len(warnings) > 0
+    assert pointer.group(2).startswith(f"The run recorded {len(warnings)} warning")
+    assert (text.index('id="section-summary"') < pointer.start()
+            < text.index('id="section-warnings"'))
+    assert "Rounding: every number on this page comes from the result folder" in text
+    from fluxpart.plain_account import warnings_sentence
+
+    assert warnings_sentence(0) == "The run recorded no warnings."
+
+
+def _numbers_of(value, depth=0):
+    """Every finite number in a parsed JSON value (dicts and lists walked)."""
+    if isinstance(value, bool) or value is None:
+        return []
+    if isinstance(value, (int, float)):
+        return [float(value)] if np.isfinite(value) else []
+    if isinstance(value, dict):
+        return [n for item in value.values() for n in _numbers_of(item, depth + 1)]
+    if isinstance(value, list):
+        return [n for item in value for n in _numbers_of(item, depth + 1)]
+    return []
+
+
+def test_every_number_on_the_summary_cards_comes_from_the_folder_at_its_printed_digits(folder):
+    """Each number the summary prints (record line and cards) is a value the folder wrote,
+    or one stated conversion of it, rounded to the digits printed (report52: cross-check
+    each printed number against the table it came from). References read without
+    fluxpart: annual.parquet, ustar.parquet and the time series' rejection_reason with
+    pyarrow, manifest.json with json; the conversions are those the page states (× 100
+    for percentages, × 44.009/12.011 × 0.01 for t CO2 ha-1 (IUPAC atomic weights (m)),
+    × 1.96 for a part alone, half the interval's width). Dates, years and the fixed
+    words' numbers (95 %, 19 of 20, 5–95 %, 1 sigma) are set aside first."""
+    import json
+    from collections import Counter
+
+    directory = folder["directory"]
+    annual = pq.read_table(directory / "annual.parquet").to_pandas().set_index("year")
+    row = annual.loc[2021]
+    values = [float(v) for v in row.to_numpy() if isinstance(v, (int, float, np.number))
+              and not isinstance(v, (bool, np.bool_)) and np.isfinite(v)]
+    ustar = pq.read_table(directory / "ustar.parquet").to_pandas()
+    values += [float(v) for v in ustar.select_dtypes("number").to_numpy().ravel()
+               if np.isfinite(v)]
+    reasons = Counter(pq.read_table(directory / "timeseries.parquet",
+                                    columns=["rejection_reason"]).column(0).to_pylist())
+    total = sum(reasons.values())
+    values += [float(n) for n in reasons.values()] + [float(total), 30.0]
+    values += [100.0 * n / total for n in reasons.values()]
+    manifest = json.loads((directory / "manifest.json").read_text())
+    values += _numbers_of(manifest["provenance"].get("clock", {}))
+    values += [100.0 * manifest["config"]["agreement_margin"]]
+    values += [0.5 * (row["nee_ci95_high"] - row["nee_ci95_low"]),
+               100.0 * (1 - row["share_measured"] - row["share_unfilled"])]
+    to_tonnes = 44.009 / 12.011 * 0.01
+    candidates = np.array([c for v in values
+                           for c in (v, -v, 100.0 * v, 1.96 * v, v * to_tonnes, -v * to_tonnes)])
+
+    text = _card_text(folder["text"])
+    fixed = (r"\d{1,2} [A-Z][a-z]{2} \d{4}", r"\b20\d\d\b", r"95 %", r"19 of 20",
+             r"5–95 %", r"1 sigma", r"1\.96", r"< 0\.1 %", r"> 99\.9 %")
+    for pattern in fixed:
+        text = re.sub(pattern, " ", text)
+    printed = re.findall(r"(?<![\w.])[-+±]?\d+(?:\.\d+)?", text)
+    assert len(printed) > 60, printed
+    for number in printed:
+        value = float(number.lstrip("±+"))
+        decimals = len(number.split(".")[1]) if "." in number else 0
+        close = np.abs(candidates - value) <= 0.5 * 10.0 ** -decimals + 1e-9
+        assert close.any(), f"{number} on the summary card is no written value at its digits"
+
+
+def test_the_card_says_in_words_why_gpp_and_reco_are_less_certain(folder):
+    """GPP and Reco are modelled from NEE; the card now says so and names, in the same
+    plain words, the largest part of each partitioned flux's uncertainty as written
+    (annual.parquet read with pyarrow; repeats said once, in the flux order of the line
+    that follows)."""
+    from fluxpart.plain_account import PLAIN_PARTS, partition_sentence
+
+    annual = pq.read_table(folder["directory"] / "annual.parquet").to_pandas().set_index("year")
+    row = annual.loc[2021]
+    columns = {"random": "{flux}_uncertainty_random", "gap filling": "{flux}_uncertainty_gapfill",
+               "ustar": "{flux}_uncertainty_ustar", "parameters": "{flux}_uncertainty_parameters",
+               "partitioning": "{kind}_uncertainty_partitioning",
+               "temperature": "reco_uncertainty_temperature_driver"}
+    largest = []
+    for flux in ("gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime"):
+        sizes = {name: row.get(pattern.format(flux=flux, kind=flux.split("_")[0]), np.nan)
+                 for name, pattern in columns.items()}
+        sizes = {name: value for name, value in sizes.items() if np.isfinite(value) and value > 0}
+        largest.append(max(sizes, key=sizes.get))
+    text = _card_text(folder["text"])
+    sentence = re.search(r"GPP and Reco are not measured: (.*?)\(each flux", text).group(1)
+    for name in dict.fromkeys(largest):
+        assert PLAIN_PARTS[name] in sentence, name
+    assert partition_sentence([]) == ""
+    assert "source here is whether air" in partition_sentence(["temperature"] * 4)
