@@ -173,7 +173,9 @@ def interval_sentence(parts: pd.Series, total: float, low: float, high: float) -
     rest = [part(name, value) for name, value in values.iloc[1:].items()]
     text = (f"The true NEE should lie inside the 95 % interval (±{half:.1f} g C m-2 about "
             "the central value) in about 19 of 20 such site-years, as far as the sources "
-            f"named here go. The largest source of its width is {first}")
+            "named here go; on independent test site-years it held the truth less often "
+            "(the measured shares: \"Checked\" under the run's provenance, below). "
+            f"The largest source of its width is {first}")
     if rest:
         text += f"; the others: {'; '.join(rest)}"
     text += (". Independent sources do not add up: they combine as the square root of the "
