@@ -242,11 +242,12 @@ UNCERTAINTY_COLUMNS: dict[str, tuple[str, str]] = {
                                           "the filled records outside the night, grams of "
                                           "carbon (night gaps are filled from the night "
                                           "records Reco is fitted to)"),
-    "gpp_uncertainty_partitioning": (CARBON, "1 sigma: structural error of GPP (carbon): "
-                                     "the part of d = daytime - nighttime the methods' "
-                                     "parameter parts do not explain, sqrt(max(d^2 - "
-                                     "p_day^2 - p_night^2, 0) / 2); in the totals of both "
-                                     "methods"),
+    "gpp_uncertainty_partitioning": (CARBON, "1 sigma: structural error of the "
+                                     "partitioned fluxes (carbon): E = d^2 - p_day^2 - "
+                                     "p_night^2 of d = daytime - nighttime of GPP and of "
+                                     "Reco less the methods' own parts, s = sqrt(max(E_gpp "
+                                     "+ E_reco, 0) / 4), one s for GPP and Reco (nighttime "
+                                     "GPP = Reco - NEE); in the totals of both methods"),
     "reco_uncertainty_temperature_driver": (CARBON, "1 sigma: structural error of Reco and GPP "
                                             "(carbon) from the choice of respiration "
                                             "temperature: |nighttime Reco with the other "
@@ -278,11 +279,12 @@ for _flux in ("gpp_daytime", "reco_daytime"):
         "rectangular hyperbola| x 1/2, the two shapes' spread about their equal-weight "
         "average; in the daytime totals; written with daytime_curvature = average only")
 UNCERTAINTY_COLUMNS |= {
-    "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of Reco (carbon): "
-                                      "the part of d = daytime - nighttime the methods' "
-                                      "parameter parts do not explain, sqrt(max(d^2 - "
-                                      "p_day^2 - p_night^2, 0) / 2); in the totals of both "
-                                      "methods"),
+    "reco_uncertainty_partitioning": (CARBON, "1 sigma: structural error of the "
+                                      "partitioned fluxes (carbon): E = d^2 - p_day^2 - "
+                                      "p_night^2 of d = daytime - nighttime of GPP and of "
+                                      "Reco less the methods' own parts, s = sqrt(max(E_gpp "
+                                      "+ E_reco, 0) / 4), one s for GPP and Reco (nighttime "
+                                      "GPP = Reco - NEE); in the totals of both methods"),
     "uncertainty_parts_missing": ("", "parts of the budget that could not be estimated this "
                                   "year (left out of the totals and intervals)"),
     "net_uptake_t_co2_per_ha": (METADATA_TONNES_PER_HECTARE, "net CO2 uptake in the year in "

@@ -575,9 +575,11 @@ def test_window_at_zero_takes_the_typical_relative_error_not_se_over_value():
 
 def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_explain():
     """For independent errors, Var(d) of d = daytime − nighttime is the sum of the
-    methods' variances (elementary statistics): with specific parts p_day, p_night and
-    a common structural s, E[d²] = p_day² + p_night² + 2 s². The structural part is
-    s = sqrt(max(d² − p_day² − p_night², 0) / 2), and 0 when the parts explain d."""
+    methods' variances (Bienaymé's formula, GUM §5.1.2 (m)): with specific parts p_day,
+    p_night and a common structural s, E[d²] = p_day² + p_night² + 2 s² for GPP and
+    for Reco. Both estimate the one s (nighttime GPP = Reco − NEE, NEE has no
+    structural error): s = sqrt(max(E_gpp + E_reco, 0) / 4), E = d² − p_day² −
+    p_night², the same part in all four partitioned totals."""
     from fluxpart.uncertainty import UncertaintyInputs, period_uncertainty
 
     index = pd.date_range("2021-06-01", periods=10 * 48, freq="30min")
@@ -598,10 +600,36 @@ def test_structural_part_is_the_method_difference_the_parameter_parts_do_not_exp
     p_night, p_day = 0.02 * reco_night.sum() * grams, 0.05 * reco_day.sum() * grams
     assert out["reco_nighttime_uncertainty_parameters"] == pytest.approx(p_night)
     assert out["reco_daytime_uncertainty_parameters"] == pytest.approx(p_day)
-    expected = np.sqrt(max(difference**2 - p_night**2 - p_day**2, 0.0) / 2.0)
-    assert expected > 0
+    gpp_difference = (fluxes["gpp_daytime"].sum() - fluxes["gpp_nighttime"].sum()) * grams
+    gpp_parts = [out[f"gpp_{method}_uncertainty_parameters"] for method in ("daytime",
+                                                                             "nighttime")]
+    assert min(gpp_parts) > 0
+    excess = (difference**2 - p_night**2 - p_day**2,
+              gpp_difference**2 - gpp_parts[0]**2 - gpp_parts[1]**2)
+    expected = np.sqrt(max(sum(excess), 0.0) / 4.0)
+    assert expected > 0 and excess[0] != pytest.approx(excess[1])    # pooling matters
     assert out["reco_uncertainty_partitioning"] == pytest.approx(expected)
+    assert out["gpp_uncertainty_partitioning"] == pytest.approx(expected)
     assert out["reco_nighttime_uncertainty_total"] == pytest.approx(np.hypot(p_night, expected))
+    assert out["gpp_nighttime_uncertainty_total"] == pytest.approx(np.hypot(gpp_parts[1],
+                                                                            expected))
+
+
+def test_structural_sigma_pools_both_fluxes_and_skips_a_missing_one():
+    """Nighttime GPP = Reco − NEE record by record (Reichstein et al. 2005), so the
+    nighttime method's structural error is one error of both fluxes: the part pools the
+    two excesses before the positive part is taken; a flux without sums leaves the
+    other's alone (s² = max(E, 0) / 2); none: NaN."""
+    from fluxpart.uncertainty import structural_sigma
+
+    gpp = np.array([0.0, -50.0, 40.0, np.nan, np.nan])
+    reco = np.array([128.0, 30.0, np.nan, 18.0, np.nan])
+    s = structural_sigma(gpp, reco)
+    assert s[0] == pytest.approx(np.sqrt(128.0 / 4.0))     # GPP methods agree, Reco's not
+    assert s[1] == 0.0                                      # the excesses sum below zero
+    assert s[2] == pytest.approx(np.sqrt(40.0 / 2.0))
+    assert s[3] == pytest.approx(3.0)
+    assert np.isnan(s[4])
 
 
 def _one_period_with_fills(model):
