@@ -12,7 +12,7 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import settings_notes, ustar, ustar_fixed, ustar_seasonal
+from . import settings_notes, ustar, ustar_fixed, ustar_seasonal, ustar_trend
 from .config import Config
 
 
@@ -185,7 +185,17 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
     Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
     """
     table, draws, central, scenarios = ustar_thresholds(frame, screened, is_night, site, config)
+    raises = {}
+    if config.ustar_kept_trend == "raise" and config.ustar_method != "fixed":
+        # night NEE still rising with u* above the threshold: raised (round nightbias52)
+        raises = ustar_trend.yearly_factors(
+            frame.index, screened["nee"].to_numpy(dtype=float),
+            screened["ustar"].to_numpy(dtype=float), screened["tair"].to_numpy(dtype=float),
+            np.asarray(is_night, dtype=bool), central, config.ustar_temperature_classes,
+            config.ustar_classes)
+        table, central, scenarios = ustar_trend.raised(table, central, scenarios, raises)
     warnings = list(ustar.source_notes(table, config.ustar_threshold))
+    warnings.extend(ustar_trend.raise_notes(raises))
     unused = ustar.unused_threshold_note(table, config.ustar_threshold,
                                          config.ustar_method, Config().ustar_threshold)
     warnings.extend([unused] if unused else [])
