@@ -157,8 +157,9 @@ class Config:
     ustar_kept_trend : str
         ``"off"`` (default): the detected u* threshold is used as found. ``"raise"`` (an
         option, round nightbias52): each year's kept night records are tested for the
-        u* filter's premise, that night NEE no longer rises with u* above the threshold
-        once temperature is held (Goulden et al. 1996; Papale et al. 2006), by a
+        u* filter's premise (in darkness: twilight uptake left out), that night NEE no
+        longer rises with u* above the threshold once temperature is held (Goulden et
+        al. 1996; Papale et al. 2006), by a
         one-sided stratified Kendall test over u* class means within temperature classes
         (Hirsch et al. 1982; 5 %); where it rejects, the year's thresholds (central,
         seasons, bootstrap percentiles) are raised past the lowest u* class until it no

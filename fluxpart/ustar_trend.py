@@ -5,7 +5,7 @@ depends on u* once temperature is held (Goulden et al. 1996; the plateau of Papa
 2006). Where the flux loss of calm nights fades gradually, the detector's plateau test can
 pass at a u* whose kept nights still carry loss, and the gap filling copies that loss into
 every night gap they fill. With ``ustar_kept_trend = "raise"`` each year's kept night
-records are tested for the premise with the site's own data: the records with u* at or
+records in darkness (twilight uptake would confound the test) are tested for the premise with the site's own data: the records with u* at or
 above the year's threshold t are sorted into temperature classes, within each into u*
 classes, and a stratified Kendall test (one-sided, the class means as its units) asks
 whether night NEE still rises with u* (:func:`rising_trend`). Where it does, the threshold
