@@ -155,6 +155,19 @@ class Config:
         97.1 / 92.9 / 97.6 → 98.6 / 92.9 / 95.2 % (161 of 168 either way); on known-truth
         trials 6–19 NEE covered 129 → 134 of 163 site-years, the partitioned fluxes as before.
         The night fills' low bias from the loss is reduced, not removed.
+    ustar_kept_trend : str
+        ``"off"`` (default): the detected u* threshold is used as found. ``"raise"`` (an
+        option, round nightbias52): each year's kept night records are tested for the
+        u* filter's premise (in darkness: twilight uptake left out), that night NEE no
+        longer rises with u* above the threshold once temperature is held (Goulden et
+        al. 1996; Papale et al. 2006), by a
+        one-sided stratified Kendall test over u* class means within temperature classes
+        (Hirsch et al. 1982; 5 %); where it rejects, the year's thresholds (central,
+        seasons, bootstrap percentiles) are raised past the lowest u* class until it no
+        longer rejects or half the kept night records would be filtered
+        (:mod:`fluxpart.ustar_trend`). ``threshold_detected`` keeps the detector's value,
+        the year's ``reason`` names the raise. Measured, not the default
+        (DEVELOPERS.md, round nightbias52).
     storage_release : str
         What to do where the morning release of CO2 stored on calm nights is seen in
         the measured NEE (:func:`fluxpart.storage_check.morning_release`: the
@@ -608,6 +621,7 @@ class Config:
     ustar_bootstrap_draws: int = 100
     ustar_scenarios: tuple[int, ...] = (16, 50, 84)
     night_donor_margin: str = "threshold_spread"
+    ustar_kept_trend: str = "off"
     storage_release: str = "exclude"
     gapfill_donors: str = "separate_day_night"
     gapfill_rg_window: str = "centred"
@@ -888,7 +902,7 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 
 #: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
 #: only away from their default, with which a run is that of the release before them.
-_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records",)
+_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal"),
@@ -898,6 +912,7 @@ _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "gapfill_donors": ("separate_day_night", "dark_first", "similar_conditions_only"),
             "storage_release": ("exclude", "warn"),
             "night_donor_margin": ("threshold_spread", "none"),
+            "ustar_kept_trend": ("off", "raise"),
             "gapfill_rg_window": ("centred", "fixed"),
             "gapfill_estimate": ("local_linear", "donor_mean"),
             "gapfill_night_light": ("tested", "off"),

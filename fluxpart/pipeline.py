@@ -228,7 +228,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
     step("screened")
     # 3. the u* threshold per year, its bootstrap and scenarios; each run's per record
     found = ustar_stage.threshold_stage(frame, checked.screens.screened, checked.is_night, site,
-                                        config)
+                                        config, checked.geometry["potential_radiation"])
     step("u* threshold")
     warnings.extend(found.warnings)
     inputs = ustar_runs.run_inputs(frame, checked.screens.screened, checked.is_night,

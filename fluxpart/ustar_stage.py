@@ -12,7 +12,7 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import settings_notes, ustar, ustar_fixed, ustar_seasonal
+from . import settings_notes, ustar, ustar_fixed, ustar_seasonal, ustar_trend
 from .config import Config
 
 
@@ -159,7 +159,8 @@ class UstarStage(NamedTuple):
     warnings: list
 
 
-def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
+def threshold_stage(frame, screened, is_night, site, config,
+                    potential_radiation=None) -> UstarStage:
     """The u* thresholds (:func:`ustar_thresholds`) and the warnings about them.
 
     Parameters
@@ -174,6 +175,10 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
         The tower (latitude, canopy).
     config : Config
         Settings.
+    potential_radiation : numpy.ndarray, optional
+        Potential radiation [W m-2]: with ``ustar_kept_trend = "raise"`` the trend test
+        reads the night records in darkness only (the sun below the horizon), so that
+        twilight uptake does not enter it; all night records where None.
 
     Returns
     -------
@@ -185,7 +190,20 @@ def threshold_stage(frame, screened, is_night, site, config) -> UstarStage:
     Exchange measured with eddy covariance technique. Biogeosciences 3, 571-583.
     """
     table, draws, central, scenarios = ustar_thresholds(frame, screened, is_night, site, config)
+    raises = {}
+    if config.ustar_kept_trend == "raise" and config.ustar_method != "fixed":
+        # night NEE still rising with u* above the threshold: raised (round nightbias52)
+        dark = np.asarray(is_night, dtype=bool)
+        if potential_radiation is not None:
+            # twilight records with some uptake left out, as run_inputs' sun_up
+            dark = dark & ~(np.asarray(potential_radiation, dtype=float) > 1e-6)
+        raises = ustar_trend.yearly_factors(
+            frame.index, screened["nee"].to_numpy(dtype=float),
+            screened["ustar"].to_numpy(dtype=float), screened["tair"].to_numpy(dtype=float),
+            dark, central, config.ustar_temperature_classes, config.ustar_classes)
+        table, central, scenarios = ustar_trend.raised(table, central, scenarios, raises)
     warnings = list(ustar.source_notes(table, config.ustar_threshold))
+    warnings.extend(ustar_trend.raise_notes(raises))
     unused = ustar.unused_threshold_note(table, config.ustar_threshold,
                                          config.ustar_method, Config().ustar_threshold)
     warnings.extend([unused] if unused else [])

@@ -196,9 +196,12 @@ def test_to_dict_round_trips_through_json():
     again = Config.from_mapping(json.loads(json.dumps(config.to_dict())))
     assert again == config
     # events (0.22.0) only where declared, so a 0.21.0 result's settings stay its rerun's;
-    # night_fit_records (after 0.33.0) only away from its default, likewise for 0.33.0
-    assert set(config.to_dict()) == set(Config.field_names()) - {"events", "night_fit_records"}
-    declared = Config(events=("2021-07-20",), night_fit_records="sun_down")
+    # night_fit_records (after 0.33.0) and ustar_kept_trend (after 0.34.0) only away from
+    # their defaults, likewise for those releases
+    assert set(config.to_dict()) == set(Config.field_names()) - {
+        "events", "night_fit_records", "ustar_kept_trend"}
+    declared = Config(events=("2021-07-20",), night_fit_records="sun_down",
+                      ustar_kept_trend="raise")
     assert set(declared.to_dict()) == set(Config.field_names())
     assert Config.from_mapping(json.loads(json.dumps(declared.to_dict()))) == declared
 
