@@ -1638,6 +1638,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
             if restored is None:
                 changed = Difference("input", "input", column="input file", row=str(path),
                                      stored=str(sha), recomputed=actual)
+                other = None if given else _recorded_one_where_run_read(
+                    directory, entry, number, wanted, path)
+                notes.extend([other] if other else [])
                 if not parts:
                     return None, changed
                 # several files: the others are looked for too, so that the whole input
@@ -1679,6 +1682,20 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     a file found there is used only with its recorded SHA-256, so an edited log can
     point at no other input than the one the manifest records.
     """
+    places = []
+    for entry, then in zip(wanted, _read_at_run(directory, wanted), strict=True):
+        here = recorded_path(directory, entry) if then is not None else None
+        # only where nothing is at the recorded place: a file edited there, a link or a
+        # folder is what the auditor gave and is reported as before
+        gone = here is not None and not os.path.lexists(here)
+        places.append(then if gone else None)
+    return places
+
+
+def _read_at_run(directory: Path, wanted: list) -> list:
+    """Where the run read each recorded input file given by a relative path (None where
+    not known, or where the result folder is where the run wrote it), from the run log's
+    result folder and working folder."""
     log = _read_run_log(directory) or {}
     folder, working = log.get("result_folder"), log.get("working_directory")
     if not isinstance(folder, str) or not isinstance(working, str) \
@@ -1691,12 +1708,22 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     for entry in wanted:
         text = entry.get("path") if isinstance(entry, dict) else None
         relative = isinstance(text, str) and text and not Path(text).is_absolute()
-        here = recorded_path(directory, entry) if relative else None
-        # only where nothing is at the recorded place: a file edited there, a link or a
-        # folder is what the auditor gave and is reported as before
-        gone = here is not None and not os.path.lexists(here)
-        places.append(Path(os.path.abspath(then / text)) if gone else None)
+        places.append(Path(os.path.abspath(then / text)) if relative else None)
     return places
+
+
+def _recorded_one_where_run_read(directory: Path, entry: dict, number: int, wanted: list,
+                                 path: Path) -> str | None:
+    """The note where the input file at the recorded place is another file of its name
+    and the one with the recorded SHA-256 is still where the run read it (review66: two
+    files of one name, the verdict said only that this one is not the input)."""
+    then = _read_at_run(directory, wanted)[number]
+    if then is None or then == Path(os.path.abspath(path)) \
+            or not _matching(then, entry.get("sha256")):
+        return None
+    return (f"input file: {str(path)!r} is another file of that name; the one with the "
+            f"recorded SHA-256 is where the run read it ({RUN_LOG}), {str(then)!r}: to "
+            "verify the result against it, give it with --input")
 
 
 def _findable(directory: Path, entry: dict, beside_config: list) -> bool:

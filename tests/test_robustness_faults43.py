@@ -25,6 +25,16 @@ def test_a_result_moved_on_its_machine_finds_its_input_where_the_run_read_it(cop
     assert report["verdict"] == "bit-identical"
     [note] = [n for n in report["notes"] if "where the run read it" in n]
     assert repr(str(copy / "tower.csv")) in note and repr(str(moved.parent / "tower.csv")) in note
+    # another file of the input's name at the recorded place (review66): not reproduced,
+    # as before, and the one with the recorded SHA-256 where the run read it is named
+    other = moved.parent / "tower.csv"
+    lines = (copy / "tower.csv").read_text().splitlines(keepends=True)
+    lines[10] = lines[10].replace(".", ".9", 1)
+    other.write_text("".join(lines))
+    assert main(["verify", str(moved)]) == 1
+    text = capsys.readouterr().out
+    assert f"is where the run read it (run-log.json), {str(copy / 'tower.csv')!r}" in text
+    other.unlink()
     with open(copy / "tower.csv", "a") as handle:           # the input changed since
         handle.write("\n")
     assert main(["verify", str(moved)]) == 2
