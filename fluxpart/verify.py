@@ -1663,14 +1663,25 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
 
 def _found_where_run_read(moved: list) -> str:
     """The note for input files found where the run read them, not beside the result:
-    `moved` holds (recorded place now, place at the run) of each; one note for all."""
-    (recorded, read), count = moved[0], len(moved)
-    files = f"{count} input files" if count > 1 else "input file"
-    example = " (the first)" if count > 1 else ""
-    return (f"{files}: not at the recorded place beside the result folder, "
-            f"{str(recorded)!r}{example} (the folder was moved or copied since the run); "
-            f"found where the run read {'them' if count > 1 else 'it'} ({RUN_LOG}), "
-            f"{str(read)!r}{example}, with the recorded SHA-256")
+    `moved` holds (recorded place now, place at the run) of each; one note for all,
+    naming each file and every folder (review66: several files named the first alone)."""
+    if len(moved) == 1:
+        (recorded, read), = moved
+        return (f"input file: not at the recorded place beside the result folder, "
+                f"{str(recorded)!r} (the folder was moved or copied since the run); found "
+                f"where the run read it ({RUN_LOG}), {str(read)!r}, with the recorded SHA-256")
+
+    def folders(paths) -> str:
+        shown = list(dict.fromkeys(str(Path(p).parent) for p in paths))
+        return ", ".join(repr(f) for f in shown[:3]) + (
+            f" and {len(shown) - 3} more" if len(shown) > 3 else "")
+
+    names = [Path(read).name for _, read in moved]
+    named = ", ".join(names[:3]) + (f" and {len(names) - 3} more" if len(names) > 3 else "")
+    return (f"{len(moved)} input files ({named}): not at their recorded places beside the "
+            f"result folder, in {folders(r for r, _ in moved)} (the folder was moved or "
+            f"copied since the run); found where the run read them ({RUN_LOG}), in "
+            f"{folders(r for _, r in moved)}, each with its recorded SHA-256")
 
 
 def _places_at_run(directory: Path, wanted: list) -> list:

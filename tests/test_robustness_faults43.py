@@ -59,3 +59,17 @@ def test_other_library_versions_beside_a_bit_identical_verdict_say_so():
                      "3.1.1; every table is bit-identical all the same"]
     assert json.loads(identical.as_json())["environment"] == [shown[0][len("environment: "):]]
     assert f"environment: {line}" in rounded.format().splitlines()
+
+
+def test_several_inputs_found_where_the_run_read_them_are_each_named():
+    """A result of two logger files moved on its machine: the note named the first file
+    alone, "(the first) (the folder was moved ...)", so an auditor could not tell where
+    the second was found (review66). Now every file and each folder is named."""
+    from fluxpart.verify import _found_where_run_read
+
+    moved = [(Path("/a/arch/logs/m_1.dat"), Path("/a/logs/m_1.dat")),
+             (Path("/a/arch/logs/m_2.dat"), Path("/a/more/m_2.dat"))]
+    note = _found_where_run_read(moved)
+    assert note.startswith("2 input files (m_1.dat, m_2.dat): ")
+    assert "in '/a/arch/logs' (the folder was moved" in note
+    assert "(run-log.json), in '/a/logs', '/a/more', each with its recorded SHA-256" in note
