@@ -88,7 +88,7 @@ def summed_stretch(nee, index: pd.DatetimeIndex, starts: pd.DatetimeIndex,
     # (leaf-out the day's uptake several times in a fortnight, the night's release hardly),
     # so the smaller growth is the sum's evidence. On trial 27's ten site-years, a change to
     # hourly records tried every 4 days (820 in all): hourly means named on 48 with |NEE|
-    # taken whole, 3 so; hourly sums named on 583, 585 so (review66)
+    # taken whole, 3 so; hourly sums named on 611, 601 so (review66)
     for sign, part in (("release", np.where(nee > 0, nee, np.nan)),
                        ("uptake", np.where(nee < 0, nee, np.nan))):
         found = jump_factor(part, index, cut, search_days=1)
