@@ -28,8 +28,9 @@ __all__ = ["STAGE", "FILE_STAGE", "SOIL_STEP_FACTOR", "FILE_STEP_FACTOR", "file_
 #: The stage named in the preflight finding.
 STAGE = "input (spliced records)"
 
-#: The stage named where a lone joint falls on a file boundary (round mistakes51).
-FILE_STAGE = "input (joined files)"
+#: The stage named where a lone joint falls on a file boundary (round mistakes51): what is
+#: seen and where, not its cause (another tower's file, or the probe replaced there; review66).
+FILE_STAGE = "input (soil step where files meet)"
 
 #: Quantile of the soil temperature's record-to-record changes taken as its own largest
 #: change [1]: the 99.9th percentile, beyond the few records of storms of a year.
@@ -235,6 +236,8 @@ def file_joint(tsoil, index, names=None) -> str | None:
     either end of the interval). A soil step there of more than :data:`FILE_STEP_FACTOR`
     times the record's own largest changes (the 99.9th percentile), more than 1 K and more
     than twice its largest step at the same clock time on any other day names it; the air need not step (another tower's air at the same hour is often alike).
+    A soil probe replaced or recalibrated at that record steps the same way and is named
+    too, as the other cause to rule out (the record cannot tell the two apart).
 
     Parameters
     ----------
@@ -291,4 +294,7 @@ def file_joint(tsoil, index, names=None) -> str | None:
             "or year meet: heat conduction lets no soil jump so, so the records from there "
             "on likely come from another file (another tower's, or another year's, joined "
             "with its overlap of stamps dropped), and their fluxes would enter as this "
-            "site's; compare the stamps and the site of the files you joined")
+            "site's; compare the stamps and the site of the files you joined. If the site's "
+            "log shows the soil probe replaced or recalibrated there, the fluxes are this "
+            "site's and the soil temperature alone steps: correct or mark it missing on one "
+            "side in a copy")

@@ -1638,6 +1638,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
             if restored is None:
                 changed = Difference("input", "input", column="input file", row=str(path),
                                      stored=str(sha), recomputed=actual)
+                other = None if given else _recorded_one_where_run_read(
+                    directory, entry, number, wanted, path)
+                notes.extend([other] if other else [])
                 if not parts:
                     return None, changed
                 # several files: the others are looked for too, so that the whole input
@@ -1660,14 +1663,25 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
 
 def _found_where_run_read(moved: list) -> str:
     """The note for input files found where the run read them, not beside the result:
-    `moved` holds (recorded place now, place at the run) of each; one note for all."""
-    (recorded, read), count = moved[0], len(moved)
-    files = f"{count} input files" if count > 1 else "input file"
-    example = " (the first)" if count > 1 else ""
-    return (f"{files}: not at the recorded place beside the result folder, "
-            f"{str(recorded)!r}{example} (the folder was moved or copied since the run); "
-            f"found where the run read {'them' if count > 1 else 'it'} ({RUN_LOG}), "
-            f"{str(read)!r}{example}, with the recorded SHA-256")
+    `moved` holds (recorded place now, place at the run) of each; one note for all,
+    naming each file and every folder (review66: several files named the first alone)."""
+    if len(moved) == 1:
+        (recorded, read), = moved
+        return (f"input file: not at the recorded place beside the result folder, "
+                f"{str(recorded)!r} (the folder was moved or copied since the run); found "
+                f"where the run read it ({RUN_LOG}), {str(read)!r}, with the recorded SHA-256")
+
+    def folders(paths) -> str:
+        shown = list(dict.fromkeys(str(Path(p).parent) for p in paths))
+        return ", ".join(repr(f) for f in shown[:3]) + (
+            f" and {len(shown) - 3} more" if len(shown) > 3 else "")
+
+    names = [Path(read).name for _, read in moved]
+    named = ", ".join(names[:3]) + (f" and {len(names) - 3} more" if len(names) > 3 else "")
+    return (f"{len(moved)} input files ({named}): not at their recorded places beside the "
+            f"result folder, in {folders(r for r, _ in moved)} (the folder was moved or "
+            f"copied since the run); found where the run read them ({RUN_LOG}), in "
+            f"{folders(r for _, r in moved)}, each with its recorded SHA-256")
 
 
 def _places_at_run(directory: Path, wanted: list) -> list:
@@ -1679,6 +1693,20 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     a file found there is used only with its recorded SHA-256, so an edited log can
     point at no other input than the one the manifest records.
     """
+    places = []
+    for entry, then in zip(wanted, _read_at_run(directory, wanted), strict=True):
+        here = recorded_path(directory, entry) if then is not None else None
+        # only where nothing is at the recorded place: a file edited there, a link or a
+        # folder is what the auditor gave and is reported as before
+        gone = here is not None and not os.path.lexists(here)
+        places.append(then if gone else None)
+    return places
+
+
+def _read_at_run(directory: Path, wanted: list) -> list:
+    """Where the run read each recorded input file given by a relative path (None where
+    not known, or where the result folder is where the run wrote it), from the run log's
+    result folder and working folder."""
     log = _read_run_log(directory) or {}
     folder, working = log.get("result_folder"), log.get("working_directory")
     if not isinstance(folder, str) or not isinstance(working, str) \
@@ -1691,12 +1719,22 @@ def _places_at_run(directory: Path, wanted: list) -> list:
     for entry in wanted:
         text = entry.get("path") if isinstance(entry, dict) else None
         relative = isinstance(text, str) and text and not Path(text).is_absolute()
-        here = recorded_path(directory, entry) if relative else None
-        # only where nothing is at the recorded place: a file edited there, a link or a
-        # folder is what the auditor gave and is reported as before
-        gone = here is not None and not os.path.lexists(here)
-        places.append(Path(os.path.abspath(then / text)) if gone else None)
+        places.append(Path(os.path.abspath(then / text)) if relative else None)
     return places
+
+
+def _recorded_one_where_run_read(directory: Path, entry: dict, number: int, wanted: list,
+                                 path: Path) -> str | None:
+    """The note where the input file at the recorded place is another file of its name
+    and the one with the recorded SHA-256 is still where the run read it (review66: two
+    files of one name, the verdict said only that this one is not the input)."""
+    then = _read_at_run(directory, wanted)[number]
+    if then is None or then == Path(os.path.abspath(path)) \
+            or not _matching(then, entry.get("sha256")):
+        return None
+    return (f"input file: {str(path)!r} is another file of that name; the one with the "
+            f"recorded SHA-256 is where the run read it ({RUN_LOG}), {str(then)!r}: to "
+            "verify the result against it, give it with --input")
 
 
 def _findable(directory: Path, entry: dict, beside_config: list) -> bool:

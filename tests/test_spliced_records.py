@@ -130,6 +130,7 @@ def test_another_towers_file_from_a_month_on_is_named_and_a_storm_is_not():
         joined = np.r_[soil[:start], other_soil[start:]]
         text = file_joint(joined, index)
         assert text is not None and f"{index[start]:%Y-%m-%d %H:%M}" in text
+        assert "probe replaced" in text         # the other cause, named (review66)
     storm = np.r_[soil[:first + 28], other_soil[first + 28:]]
     assert file_joint(storm, index) is None
     glitch = soil.copy()
