@@ -68,8 +68,9 @@ CALENDAR_YEAR_START = "01-01"
 def _budget_year_text(year_start: str | None) -> str:
     """What a budget year's label means under `year_start` ("MM-DD"; None: each site's own)."""
     if year_start is None:
-        return ("a budget year runs from its site's [processing] year_start to the day "
-                "before the next and is labelled by the calendar year in which it starts")
+        return ("a budget year holds the intervals that start from its site's [processing] "
+                "year_start to before the next one, labelled by the calendar year in which "
+                "it starts")
     return (f"budget year Y ([processing] year_start = {year_start}) holds the intervals "
             f"that start from Y-{year_start} to before (Y+1)-{year_start}, labelled by the "
             "calendar year in which it starts")

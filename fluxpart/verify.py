@@ -1284,8 +1284,15 @@ def earlier_wording_notes(worded: dict, manifest: dict) -> list[str]:
     writer = f"release {code['version']}" if code.get("version") else "an earlier release"
     notes = []
     for release, tables in sorted(worded.items()):
-        listed = "; ".join(f"{table}: {', '.join(sorted(set(columns)))}"
-                           for table, columns in sorted(tables.items()))
+        columns = {table: sorted(set(named) - {"time_convention"})
+                   for table, named in sorted(tables.items())}
+        listed = [f"{table}: {', '.join(named)}" for table, named in columns.items() if named]
+        # the time convention is every table's: named once, not in 15 lines (10-01 runs)
+        timed = [table for table, named in tables.items() if "time_convention" in named]
+        if timed:
+            listed.append(f"the time_convention of {len(timed)} table(s)" if len(timed) > 3
+                          else f"the time_convention of {', '.join(sorted(timed))}")
+        listed = "; ".join(listed)
         notes.append(f"descriptions worded as {writer} wrote them, before {release} reworded "
                      f"them (fluxpart.schema.REWORDED_DESCRIPTIONS): {listed}; every value and "
                      "every other description equals the recomputation, so the file bytes "
