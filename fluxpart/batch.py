@@ -86,7 +86,7 @@ from .network_layout import (  # noqa: F401 - also this module's names
     enclosing_network_dataset,
 )
 from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
-from .schema import TIME_CONVENTION, units_for_table
+from .schema import CALENDAR_YEAR_START, time_convention, units_for_table
 from .shared_records import day_keys, shared_days
 from .store import (
     PANDAS_ATTRS_KEY,
@@ -184,6 +184,9 @@ _FAILURE_COLUMNS = {
              "written (full disk, permissions); 'internal': a fault of fluxpart or of the "
              "cluster"),
 }
+#: The network datasets' partition column (``site=<key>`` folders).
+_NETWORK_SITE_DESCRIPTION = ("site key (the result folder's name); the partition key of the "
+                             "dataset, from its site=<key> folder, not a column of the files")
 #: The batch summary's columns: NEE with its stated 95 % interval (review33: the sites'
 #: budgets were printed side by side without any, while `run` prints each site's).
 _SUMMARY_COLUMNS = ("site", "year", "nee", "nee_ci95_low", "nee_ci95_high", "gpp_nighttime",
@@ -809,10 +812,25 @@ def _arrow_site(outcome: SiteOutcome, table: str = "annual") -> pa.Table:
     return pa.Table.from_pandas(flat, preserve_index=False).replace_schema_metadata(None)
 
 
-def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
-    """Give every site's table the union of columns (nulls where a site lacks one)."""
+def _year_start(outcome: SiteOutcome) -> str | None:
+    """The site's [processing] year_start as its manifest records it (None: unreadable)."""
+    try:
+        config = read_manifest(Path(outcome.directory)).get("config") or {}
+    except FluxpartError:
+        return None
+    return config.get("year_start", CALENDAR_YEAR_START) if isinstance(config, dict) else None
+
+
+def _unify(tables: list[pa.Table], name: str = "annual",
+           year_start: str | None = None) -> list[pa.Table]:
+    """Give every site's table the union of columns (nulls where a site lacks one).
+
+    `year_start` ("MM-DD"): the sites' common first day of the budget year, which the
+    annual ``year`` and the time convention state; None where the sites differ (each
+    its own, said so).
+    """
     schema = pa.unify_schemas([table.schema for table in tables], promote_options="permissive")
-    units = units_for_table(name, schema.names)
+    units = units_for_table(name, schema.names, year_start)
     units.update(_SITE_COLUMNS)
     fields = [pa.field(f.name, f.type, metadata={b"unit": units[f.name][0].encode(),
                                                  b"description": units[f.name][1].encode()})
@@ -821,8 +839,12 @@ def _unify(tables: list[pa.Table], name: str = "annual") -> list[pa.Table]:
     # tables: DuckDB's parquet_kv_metadata and Polars' read_parquet_metadata see only these
     columns = {f.name: {"unit": units[f.name][0], "description": units[f.name][1]}
                for f in schema}
+    # the partition column, which a Hive reader adds from the folder name: described like
+    # the file's own (modeller52: it had no unit or description entry)
+    columns["site"] = {"unit": _FAILURE_COLUMNS["site"][0],
+                       "description": _NETWORK_SITE_DESCRIPTION}
     info = {"table": NETWORK_DATASETS[name], "partitioning": "site",
-            "time_convention": TIME_CONVENTION, "columns": columns}
+            "time_convention": time_convention(year_start), "columns": columns}
     # and as the DataFrame.attrs pandas.read_parquet restores (the PANDAS_ATTRS key), as in
     # a site's own tables (round modeller23)
     meta = {b"fluxpart": json.dumps(info, sort_keys=True, ensure_ascii=False).encode(),
@@ -883,13 +905,16 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({"format": _NETWORK_FORMAT,
                                                          "complete": False}))
     failures = _write_failures(outcomes, out)
+    starts = {_year_start(o) for o in done}
+    year_start = starts.pop() if len(starts) == 1 else None
     files = {}
     for name, folder in NETWORK_DATASETS.items():
         staging = Path(tempfile.mkdtemp(prefix=f".{folder}.", dir=out))
         files[folder] = {}
         try:
             set_mode(staging, folder_mode())  # mkdtemp makes it private (0700)
-            tables = _unify([_arrow_site(o, name) for o in done], name) if done else []
+            tables = _unify([_arrow_site(o, name) for o in done], name,
+                            year_start) if done else []
             for outcome, table in zip(done, tables, strict=True):
                 data = _parquet_bytes(table)
                 atomic_write_bytes(staging / f"site={outcome.key}" / "part-0.parquet", data)
@@ -1094,7 +1119,7 @@ def _network_attrs(path: Path) -> dict:
         return {}
     attrs = reader_attrs(info)
     attrs["units"] = {"site": "", **attrs["units"]}
-    attrs["descriptions"] = {"site": _FAILURE_COLUMNS["site"][1], **attrs["descriptions"]}
+    attrs["descriptions"] = {"site": _NETWORK_SITE_DESCRIPTION, **attrs["descriptions"]}
     return attrs
 
 

@@ -21,7 +21,7 @@ The CSV files (RFC 4180 shape):
 - a missing value (NaN, NaT, no label) is an empty field;
 - time stamps as ISO 8601 with the UTC offset of the site's local standard time stated,
   ``2021-01-01T00:30:00+01:00``: the start of the interval in local standard time (no
-  daylight saving), as in every table of fluxpart (:data:`fluxpart.schema.TIME_CONVENTION`).
+  daylight saving), as in every table of fluxpart (:func:`fluxpart.schema.time_convention`).
 
 ``csv-metadata.json`` (JSON-LD context ``http://www.w3.org/ns/csvw``; the file name is the
 one the CSVW standard's site-wide discovery looks for beside the CSV files):
@@ -84,7 +84,7 @@ import pandas as pd
 from .errors import OutputError
 from .manifest import shown_path
 from .respiration_facts import FACT_UNITS, respiration_facts
-from .schema import TIME_CONVENTION, units_for_table
+from .schema import time_convention, units_for_table
 from .store import (
     _stored_index,
     file_mode,
@@ -227,14 +227,16 @@ def _table_csv(frame: pd.DataFrame, offset: str) -> tuple[bytes, list[str], list
     return buffer.getvalue().encode("utf-8"), names, types
 
 
-def _as_stored(name: str, frame: pd.DataFrame, stored: bool) -> tuple[pd.DataFrame, dict]:
+def _as_stored(name: str, frame: pd.DataFrame, stored: bool,
+               year_start: str) -> tuple[pd.DataFrame, dict]:
     """`frame` as a result folder stores it, and column -> (unit, description).
 
     `stored`: the table was read from a result folder (:func:`fluxpart.store.read_table`),
     whose ``attrs`` hold the unit and description of every stored column as the file
     has them: those are used, so an older result keeps its own. Otherwise (a result in
     memory) the table gets the index name and the units a result folder would store
-    (:func:`fluxpart.resultdir._write_tables`), so both routes give the same bytes.
+    (:func:`fluxpart.resultdir._write_tables`), so both routes give the same bytes;
+    `year_start` ("MM-DD") words the budget year's label as the folder's writer does.
     """
     if stored:
         units = frame.attrs.get("units") or {}
@@ -244,7 +246,7 @@ def _as_stored(name: str, frame: pd.DataFrame, stored: bool) -> tuple[pd.DataFra
 
     frame = frame if frame.index.name is not None else frame.rename_axis("row")
     columns = [frame.index.name, *map(str, frame.columns)]
-    return frame, units_for_table(_unit_table(name), columns)
+    return frame, units_for_table(_unit_table(name), columns, year_start)
 
 
 def _table_metadata(name: str, frame: pd.DataFrame, names: list[str], types: list,
@@ -303,7 +305,7 @@ def csv_tables(result, source: str | None = None, *, stored: bool = False) -> di
     files, described = {}, []
     interval = None
     for name in _ordered(tables):
-        frame, units = _as_stored(name, tables[name], stored)
+        frame, units = _as_stored(name, tables[name], stored, result.config.year_start)
         data, names, types = _table_csv(frame, offset)
         files[f"{name}.csv"] = data
         described.append(_table_metadata(name, frame, names, types, units))
@@ -312,7 +314,8 @@ def csv_tables(result, source: str | None = None, *, stored: bool = False) -> di
         steps = np.diff(result.timeseries.index.to_numpy().astype("datetime64[s]")
                         .astype(np.int64))
         interval = int(np.median(steps) // 60)
-    convention = result.timeseries.attrs.get("time_convention") or TIME_CONVENTION
+    convention = (result.timeseries.attrs.get("time_convention")
+                  or time_convention(result.config.year_start))
 
     def fact(name, value, unit=None):
         item = {"@type": "schema:PropertyValue", "schema:name": name, "schema:value": value}
@@ -381,6 +384,12 @@ def check_target(target: Path) -> None:
         except OSError as error:
             raise OutputError(f"--csv {str(target)!r} cannot be read ({error.strerror or error})"
                               "; choose another folder") from None
+        if not empty and (target / METADATA_NAME).is_file():
+            # its own earlier export was refused as any folder (faults43): say what it
+            # holds; an export never replaces a folder, as it cannot tell whose files are
+            raise OutputError(f"--csv {str(target)!r} holds an earlier CSV export (its "
+                              f"{METADATA_NAME}); an export does not replace a folder: "
+                              "delete that folder to export there again, or give a new one")
         if not empty:
             raise OutputError(f"--csv {str(target)!r} is a folder that is not empty; it is "
                               "not replaced: give a new or empty folder, or delete it first")

@@ -245,17 +245,22 @@ def result(site, config, interval, tables, parameters, warnings, provenance) -> 
     -------
     Result
     """
-    facts = schema.file_metadata(site, interval)
+    # the budget year's label and the time convention are worded by year_start
+    facts = schema.file_metadata(site, interval, config.year_start)
+
+    def described(frame, table):
+        return schema.with_metadata(frame, table, facts, config.year_start)
+
     return Result(
         site=site, config=config,
-        timeseries=schema.with_metadata(labelled(tables["timeseries"]), "timeseries", facts),
-        daily=schema.with_metadata(tables["daily"], "daily", facts),
-        monthly=schema.with_metadata(tables["monthly"], "monthly", facts),
-        annual=schema.with_metadata(tables["annual"], "annual", facts),
-        ustar=schema.with_metadata(tables["ustar"], "ustar", facts),
-        audit=schema.with_metadata(tables["audit"], "audit", facts),
-        parameters={name: schema.with_metadata(table, f"parameters_{name}", facts)
+        timeseries=described(labelled(tables["timeseries"]), "timeseries"),
+        daily=described(tables["daily"], "daily"),
+        monthly=described(tables["monthly"], "monthly"),
+        annual=described(tables["annual"], "annual"),
+        ustar=described(tables["ustar"], "ustar"),
+        audit=described(tables["audit"], "audit"),
+        parameters={name: described(table, f"parameters_{name}")
                     for name, table in parameters.items()},
-        screening_counts=schema.with_metadata(tables["screening_counts"], "screening", facts),
+        screening_counts=described(tables["screening_counts"], "screening"),
         warnings=tuple(warnings),
         provenance=provenance)

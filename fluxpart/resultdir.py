@@ -1047,15 +1047,17 @@ def _name_unremoved(old: Path, notify=None) -> None:
 def _write_tables(staging: Path, directory: Path, tables: dict, *, site, config, seed,
                   provenance, warnings) -> None:
     """Write the tables, the run log and, last, the manifest into `staging`."""
-    from .schema import units_for_table
+    from .schema import CALENDAR_YEAR_START, units_for_table
 
     entries = {}
+    # the budget year's label is worded by the year_start the settings record
+    year_start = config.get("year_start", CALENDAR_YEAR_START)
     for name, table in tables.items():
         frame = table if table.index.name is not None else table.rename_axis("row")
         columns = [frame.index.name or "index", *frame.columns]
         file = f"{name}.parquet"
-        sha = write_table(frame, staging / file, units_for_table(_unit_table(name), columns),
-                          name)
+        sha = write_table(frame, staging / file,
+                          units_for_table(_unit_table(name), columns, year_start), name)
         entries[name] = {"file": file, "sha256": sha, "rows": len(frame),
                          "columns": [str(c) for c in columns]}
     manifest = build_manifest(

@@ -24,6 +24,7 @@ convention and each column's unit and description.
 from __future__ import annotations
 
 import re
+from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
@@ -39,6 +40,8 @@ __all__ = [
     "NOT_QUANTIFIED",
     "RANDOM_ERROR_MODEL_COLUMNS",
     "REASON_LABELS",
+    "REWORDED_DESCRIPTIONS",
+    "RewordedDescription",
     "TIME_CONVENTION",
     "QUALITY_LABELS",
     "NOT_QUANTIFIED",
@@ -47,14 +50,54 @@ __all__ = [
     "as_labels",
     "describe",
     "file_metadata",
+    "reworded",
+    "time_convention",
     "units_for_table",
     "with_metadata",
 ]
 
-#: How every time stamp of every table is meant.
+#: How every time stamp of every table is meant, with budget years of calendar years
+#: (``year_start = "01-01"``; :func:`time_convention` for any other).
 TIME_CONVENTION = ("each stamp marks the start of its averaging interval, in local standard "
                    "time (UTC + site utc_offset, no daylight saving); a day, month or year is "
                    "the set of intervals that start in it")
+#: The default first day of a budget year ([processing] year_start, "MM-DD").
+CALENDAR_YEAR_START = "01-01"
+
+
+def _budget_year_text(year_start: str | None) -> str:
+    """What a budget year's label means under `year_start` ("MM-DD"; None: each site's own)."""
+    if year_start is None:
+        return ("a budget year holds the intervals that start from its site's [processing] "
+                "year_start to before the next one, labelled by the calendar year in which "
+                "it starts")
+    return (f"budget year Y ([processing] year_start = {year_start}) holds the intervals "
+            f"that start from Y-{year_start} to before (Y+1)-{year_start}, labelled by the "
+            "calendar year in which it starts")
+
+
+def time_convention(year_start: str | None = CALENDAR_YEAR_START) -> str:
+    """How every time stamp of a table is meant, and which records a period holds.
+
+    Parameters
+    ----------
+    year_start : str or None
+        First day of the budget year, "MM-DD" ([processing] year_start); None for a
+        table of several sites, each with its own.
+
+    Returns
+    -------
+    str
+        :data:`TIME_CONVENTION` for calendar budget years; otherwise days and months as
+        the intervals that start in them and the budget year spelt out (under
+        ``"10-01"`` budget year 2018 holds no record of 2018 before October, and one
+        of 2019 up to September: "the intervals that start in it" was wrong for it).
+    """
+    if year_start == CALENDAR_YEAR_START:
+        return TIME_CONVENTION
+    return ("each stamp marks the start of its averaging interval, in local standard time "
+            "(UTC + site utc_offset, no daylight saving); a day or month is the set of "
+            f"intervals that start in it; {_budget_year_text(year_start)}")
 
 _NAMES = {"gpp": "GPP", "reco": "Reco", "nee": "NEE"}
 _FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
@@ -126,10 +169,17 @@ _TIMESERIES = {
                          "also the random error of its nighttime GPP (GPP = Reco - NEE)"),
 }
 
+#: The annual table's ``year`` with calendar budget years (``year_start = "01-01"``);
+#: :func:`describe` spells out any other year_start.
+_ANNUAL_YEAR = "calendar year of the interval starts (the year the budget year starts in)"
+#: The audit table's ``year`` with calendar budget years.
+_AUDIT_YEAR = ("budget year of the interval starts: the calendar year in which it starts "
+               "([processing] year_start)")
+
 _BUDGET = {
     "date": ("", "calendar day (local standard time)"),
     "month": ("", "first day of the calendar month (local standard time)"),
-    "year": ("", "calendar year of the interval starts (the year the budget year starts in)"),
+    "year": ("", _ANNUAL_YEAR),
     "period_start": ("", "first day of the budget year, from [processing] year_start (local "
                      "standard time)"),
     "period_end": ("", "first day after the budget year (the next one's period_start; the "
@@ -391,8 +441,7 @@ _CARBON_ABS = f"{_CARBON_SUM} (CO2 flux converted to carbon)"
 
 #: Unit and description of every column of the audit table (:mod:`fluxpart.audit`).
 AUDIT_COLUMNS: dict[str, tuple[str, str]] = {
-    "year": ("", "budget year of the interval starts: the calendar year in which it starts "
-             "([processing] year_start)"),
+    "year": ("", _AUDIT_YEAR),
     "records_present": ("1", "records (rows) of the year in the timeseries"),
     **{_reason_column(code, name): ("1", "records whose NEE passed screening and the u* filter"
                                     if code == 0 else
@@ -465,13 +514,18 @@ _BUDGET_PATTERNS = [
     (rf"({_FLUX_PATTERN}|gpp|reco)_uncertainty_(\w+)",
      lambda m: (CARBON, f"1 sigma: the {m[2].replace('_', ' ')} part of the uncertainty of "
                 f"{m[1]} ({_CARBON_SUM})")),
+    # the sign as README's one convention says it (GPP and Reco positive magnitudes;
+    # modeller52: the sums said ">= 0" but not which way is uptake)
     (r"gpp_nighttime", lambda m: (CARBON, f"GPP summed over the period, nighttime method "
-                                  f"({_CARBON_SUM}); can be slightly negative in dormant "
-                                  "periods (see the timeseries column)")),
+                                  f"({_CARBON_SUM}); positive = uptake by photosynthesis; "
+                                  "can be slightly negative in dormant periods (see the "
+                                  "timeseries column)")),
     (r"gpp_daytime", lambda m: (CARBON, f"GPP summed over the period, daytime method "
-                                f"({_CARBON_SUM}), >= 0")),
+                                f"({_CARBON_SUM}); positive = uptake by photosynthesis, "
+                                ">= 0")),
     (r"reco_(nighttime|daytime)", lambda m: (CARBON, f"Reco summed over the period, {m[1]} "
-                                             f"method ({_CARBON_SUM}), >= 0")),
+                                             f"method ({_CARBON_SUM}); positive = release "
+                                             "to the atmosphere, >= 0")),
     (r"(gpp|reco)_method_difference", lambda m: (CARBON, f"{_NAMES[m[1]]} daytime minus "
                                                  f"nighttime ({_CARBON_SUM})")),
     (r"(gpp|reco)_relative_difference", lambda m: ("1", f"{_NAMES[m[1]]} (daytime - nighttime) "
@@ -542,7 +596,8 @@ _PARAMETERS = {
 }
 
 
-def describe(table: str, column: str) -> tuple[str, str]:
+def describe(table: str, column: str,
+             year_start: str | None = CALENDAR_YEAR_START) -> tuple[str, str]:
     """Return ``(unit, description)`` of `column` in output table `table`.
 
     Parameters
@@ -553,6 +608,10 @@ def describe(table: str, column: str) -> tuple[str, str]:
         (``"parameters_daytime"``, ...).
     column : str
         Column name.
+    year_start : str or None
+        First day of the budget year, "MM-DD" ([processing] year_start), which the
+        ``year`` of the annual and audit tables is labelled by; None for a table of
+        several sites, each with its own.
 
     Returns
     -------
@@ -560,6 +619,11 @@ def describe(table: str, column: str) -> tuple[str, str]:
         A UDUNITS-2 unit (``"1"`` for counts, flags and shares; ``""`` where none
         applies or the column is unknown) and a one-line description.
     """
+    if column == "year" and table in ("annual", "audit") \
+            and year_start != CALENDAR_YEAR_START:
+        what = "label of the budget year" if table == "annual" else \
+            "budget year of the interval starts"
+        return "", f"{what}: {_budget_year_text(year_start)} (local standard time)"
     if table == "timeseries":
         if column in VARIABLES:
             variable = VARIABLES[column]
@@ -593,9 +657,85 @@ def describe(table: str, column: str) -> tuple[str, str]:
     return "", ""
 
 
-def units_for_table(table: str, columns) -> dict[str, tuple[str, str]]:
-    """Return column -> (unit, description) for every column of a table."""
-    return {column: describe(table, column) for column in columns}
+def units_for_table(table: str, columns,
+                    year_start: str | None = CALENDAR_YEAR_START) -> dict[str, tuple[str, str]]:
+    """Return column -> (unit, description) for every column of a table (`year_start`
+    as :func:`describe` takes it)."""
+    return {column: describe(table, column, year_start) for column in columns}
+
+
+class RewordedDescription(NamedTuple):
+    """A description a release reworded, and the exact text the releases before it wrote.
+
+    Attributes
+    ----------
+    release : str
+        The release whose code first writes the new wording.
+    tables : tuple of str or None
+        The tables whose column it describes; None: every table of a result folder.
+    column : str or None
+        The column; None: the tables' ``time_convention`` (the file metadata's fact).
+    earlier : str
+        The text, character for character, that the releases before `release` wrote.
+    """
+
+    release: str
+    tables: tuple[str, ...] | None
+    column: str | None
+    earlier: str
+
+
+_BUDGET_TABLES = ("daily", "monthly", "annual")
+#: Descriptions reworded since a release, with the text the releases before wrote:
+#: ``fluxpart verify`` takes a folder's description that reads exactly as its entry's
+#: `earlier` as the writing release's wording of the same column (a note), where any
+#: other description that differs from this code's is a difference (an edited folder).
+#: Alongside :data:`fluxpart.config.ADDED_SETTINGS`: a release that rewords a
+#: description adds its entry here in the same commit.
+REWORDED_DESCRIPTIONS = (
+    # budget years under another year_start (metadata52): "the calendar year of the
+    # interval starts" and "a year is the set of intervals that start in it" are wrong
+    # where budget year 2018 of a 10-01 run holds the records of 2018-10 to 2019-09
+    RewordedDescription("0.35.0", ("annual",), "year", _ANNUAL_YEAR),
+    RewordedDescription("0.35.0", ("audit",), "year", _AUDIT_YEAR),
+    RewordedDescription("0.35.0", None, None, TIME_CONVENTION),
+    # the sign of the budget tables' GPP and Reco sums (metadata52)
+    RewordedDescription("0.35.0", _BUDGET_TABLES, "gpp_nighttime",
+                        f"GPP summed over the period, nighttime method ({_CARBON_SUM}); can "
+                        "be slightly negative in dormant periods (see the timeseries column)"),
+    RewordedDescription("0.35.0", _BUDGET_TABLES, "gpp_daytime",
+                        f"GPP summed over the period, daytime method ({_CARBON_SUM}), >= 0"),
+    *(RewordedDescription("0.35.0", _BUDGET_TABLES, f"reco_{method}",
+                          f"Reco summed over the period, {method} method ({_CARBON_SUM}), "
+                          ">= 0")
+      for method in ("nighttime", "daytime")),
+)
+
+
+def reworded(table: str, column: str | None, stored: str) -> RewordedDescription | None:
+    """The entry of :data:`REWORDED_DESCRIPTIONS` whose earlier text `stored` is.
+
+    Parameters
+    ----------
+    table : str
+        The table (a result folder's table name, e.g. ``"annual"``,
+        ``"parameters_daytime"``).
+    column : str or None
+        The column described; None for the table's ``time_convention``.
+    stored : str
+        The text the folder's file holds.
+
+    Returns
+    -------
+    RewordedDescription or None
+        The entry naming the release that reworded it; None where `stored` is no
+        earlier release's wording of that column (an edit, or this code's own text).
+    """
+    for entry in REWORDED_DESCRIPTIONS:
+        if entry.column == column and entry.earlier == stored \
+                and (entry.tables is None or table in entry.tables):
+            return entry
+    return None
 
 
 def as_labels(codes, labels: dict[int, str]) -> pd.Categorical:
@@ -663,7 +803,8 @@ def as_codes(values, labels: dict[int, str]) -> np.ndarray:
                      for v in series.astype(object)], dtype=float)
 
 
-def file_metadata(site, interval_minutes: int | None) -> dict:
+def file_metadata(site, interval_minutes: int | None,
+                  year_start: str | None = CALENDAR_YEAR_START) -> dict:
     """Return the site and time facts every Parquet table of a result carries.
 
     Parameters
@@ -673,6 +814,9 @@ def file_metadata(site, interval_minutes: int | None) -> dict:
         utc_offset [h] of the local standard time.
     interval_minutes : int or None
         Record length [min] (30 or 60); None if unknown.
+    year_start : str or None
+        First day of the budget year, "MM-DD" ([processing] year_start), which the
+        time convention states (:func:`time_convention`).
 
     Returns
     -------
@@ -685,22 +829,23 @@ def file_metadata(site, interval_minutes: int | None) -> dict:
         "site": {key: record.get(key) for key in ("name", "latitude", "longitude",
                                                   "utc_offset")},
         "interval_minutes": None if interval_minutes is None else int(interval_minutes),
-        "time_convention": TIME_CONVENTION,
+        "time_convention": time_convention(year_start),
     }
 
 
-def with_metadata(frame, table: str, facts: dict):
+def with_metadata(frame, table: str, facts: dict,
+                  year_start: str | None = CALENDAR_YEAR_START):
     """Return a shallow copy of `frame` (a DataFrame or Series) whose ``attrs`` describe it.
 
     ``attrs`` gets `facts` (from :func:`file_metadata`), the table name, and
     ``units`` and ``descriptions`` of every column and of the index, as
     :func:`fluxpart.store.read_table` gives them for a loaded table; the Parquet
-    writer stores the same facts in the file.
+    writer stores the same facts in the file. `year_start` as :func:`describe` takes it.
     """
     out = frame.copy(deep=False)
     names = frame.columns if isinstance(frame, pd.DataFrame) else [frame.name]
     columns = [*([frame.index.name] if frame.index.name else []), *map(str, names)]
-    described = units_for_table(table, columns)
+    described = units_for_table(table, columns, year_start)
     out.attrs.update({**facts, "table": table,
                       "units": {c: unit for c, (unit, _) in described.items()},
                       "descriptions": {c: text for c, (_, text) in described.items()}})

@@ -101,6 +101,7 @@ from .manifest import (
 )
 from .reader_notes import MOVED_FIELDS, notes_moved
 from .resultdir import interrupted_writes
+from .schema import reworded
 from .store import file_sha256, read_table, require_owner_access
 
 __all__ = ["JSON_FORMAT", "NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference", "VerifyReport",
@@ -1226,6 +1227,79 @@ def metadata_differences(stored: Path, recomputed: Path) -> list[tuple[str, str,
     return [(key, text(old), text(new)) for key, old, new in found]
 
 
+#: The table metadata key of the time convention, in the fluxpart JSON and the pandas
+#: copy (:func:`metadata_differences`).
+_TIME_CONVENTION_KEYS = ("fluxpart.time_convention", "PANDAS_ATTRS.time_convention")
+
+
+def earlier_wordings(table: str, found: list) -> tuple[list, list]:
+    """Split a table's metadata differences into an earlier release's wording and the rest.
+
+    Parameters
+    ----------
+    table : str
+        The table's name in the manifest.
+    found : list of (key, stored, recomputed)
+        :func:`metadata_differences` of its stored file and its rerun.
+
+    Returns
+    -------
+    known : list of (release, column)
+        One per differing copy of a description (or the ``time_convention``) whose
+        stored text is exactly the wording the releases before `release` wrote
+        (:data:`fluxpart.schema.REWORDED_DESCRIPTIONS`).
+    rest : list of (key, stored, recomputed)
+        Everything else: a unit, a site fact, a description no release wrote (an
+        edited folder), each still a difference.
+    """
+    known, rest = [], []
+    for key, stored, recomputed in found:
+        what, column = _metadata_item(key)
+        entry = (reworded(table, column, stored) if what == "descriptions" else
+                 reworded(table, None, stored) if key in _TIME_CONVENTION_KEYS else None)
+        if entry is None:
+            rest.append((key, stored, recomputed))
+        else:
+            known.append((entry.release, column or "time_convention"))
+    return known, rest
+
+
+def earlier_wording_notes(worded: dict, manifest: dict) -> list[str]:
+    """The notes of :func:`verify` on descriptions worded as an earlier release wrote them.
+
+    Parameters
+    ----------
+    worded : dict
+        Release that reworded them -> table -> columns (with repeats: a description is
+        stored three times per column), from :func:`earlier_wordings`.
+    manifest : dict
+        The folder's manifest (its writing release is named where recorded).
+
+    Returns
+    -------
+    list of str
+        One note per rewording release, naming the tables and columns.
+    """
+    code = manifest.get("code") if isinstance(manifest.get("code"), dict) else {}
+    writer = f"release {code['version']}" if code.get("version") else "an earlier release"
+    notes = []
+    for release, tables in sorted(worded.items()):
+        columns = {table: sorted(set(named) - {"time_convention"})
+                   for table, named in sorted(tables.items())}
+        listed = [f"{table}: {', '.join(named)}" for table, named in columns.items() if named]
+        # the time convention is every table's: named once, not in 15 lines (10-01 runs)
+        timed = [table for table, named in tables.items() if "time_convention" in named]
+        if timed:
+            listed.append(f"the time_convention of {len(timed)} table(s)" if len(timed) > 3
+                          else f"the time_convention of {', '.join(sorted(timed))}")
+        listed = "; ".join(listed)
+        notes.append(f"descriptions worded as {writer} wrote them, before {release} reworded "
+                     f"them (fluxpart.schema.REWORDED_DESCRIPTIONS): {listed}; every value and "
+                     "every other description equals the recomputation, so the file bytes "
+                     "differ from the rerun's by these words only")
+    return notes
+
+
 def _lacks_pandas_copy(path: Path) -> bool:
     """Whether a stored table lacks the ``PANDAS_ATTRS`` metadata key (a table written
     before 0.23.0; :data:`fluxpart.store.PANDAS_ATTRS_KEY`)."""
@@ -2250,6 +2324,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                           ) from None
     remove_dead_scratch()
     same_values: dict = {}      # cause -> tables whose values and metadata equal the rerun's
+    worded: dict = {}           # release -> table -> columns worded as before it
     with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as scratch:
         scratch = Path(scratch)
         try:
@@ -2369,11 +2444,18 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
             described = [] if any(d.kind in ("columns", "dtype") for d in found) else \
                 metadata_differences(directory / manifest["tables"][name]["file"],
                                      again / new_manifest["tables"][name]["file"])
+            # a description as an earlier release worded it (schema.REWORDED_DESCRIPTIONS)
+            # is a note: 0.34.0's folders were NOT reproduced over reworded words alone
+            known, described = earlier_wordings(name, described)
+            for release, column in known:
+                worded.setdefault(release, {}).setdefault(name, []).append(column)
             values = ("" if not found else "values within rounding"
                       if all(d.kind == "rounding" for d in found) else "values differ too")
             differences += [Difference(name, "metadata", column=key, stored=old,
                                        recomputed=new, cause=values)
                             for key, old, new in described]
+            if known:
+                continue
             if not found and not described and _file_changed(name, differences):
                 # a table re-compressed or rewritten by another Parquet writer with its
                 # values and metadata: "changed after it was written" alone left an auditor
@@ -2393,6 +2475,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              "the recorded library versions and platform match; a compression "
                              "library outside the record may differ")
                     same_values.setdefault(cause, []).append(name)
+    notes += earlier_wording_notes(worded, manifest)
     # one note per cause, naming its tables (a result of 0.22.0 gave 14 such lines)
     notes += [f"{', '.join(tables)}: values and metadata bit-identical, file bytes differ from "
               f"the recorded ones ({cause})" for cause, tables in same_values.items()]

@@ -473,6 +473,9 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
         assert meta["columns"]["latitude"]["unit"] == "degree_north"
         assert "grams of carbon" in meta["columns"]["nee"]["description"]
         assert meta["time_convention"].startswith("each stamp marks the start")
+        # the partition column a Hive reader adds is described too (modeller52: no entry)
+        assert meta["columns"]["site"] == {"unit": "", "description": batch.
+                                           _NETWORK_SITE_DESCRIPTION}
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)
@@ -483,6 +486,7 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
         assert attrs["units"]["nee"] == "g m-2" and attrs["units"]["latitude"] == "degree_north"
         assert "grams of carbon" in attrs["descriptions"]["nee"]
         assert attrs["time_convention"].startswith("each stamp marks the start")
+        assert attrs["descriptions"]["site"].startswith("site key (the result folder's name)")
     assert set(report.network.attrs["units"]) == set(report.network.columns)
     monthly = batch.read_network(report.out, "monthly")
     assert set(monthly.attrs["units"]) == set(monthly.columns)

@@ -6,8 +6,11 @@ budget year are the reference for the annual sums (a sum over a period is the su
 its days' sums).
 """
 
+import json
+
 import numpy as np
 import pandas as pd
+import pyarrow.parquet as pq
 import pytest
 from conftest import load_reference
 
@@ -130,7 +133,7 @@ def test_audit_and_random_error_follow_the_keys(two_years):
     assert list(calendar.index) == [2019, 2020, 2021]
 
 
-def test_pipeline_budget_year_from_july():
+def test_pipeline_budget_year_from_july(tmp_path):
     """A demo calendar year with year_start "07-01": two partial budget years whose sums,
     uncertainty and audit rows follow the July–June split."""
     frame, _ = demo.site_year(seed=0)
@@ -150,6 +153,28 @@ def test_pipeline_budget_year_from_july():
     assert list(result.audit.index) == list(annual.index)
     assert result.audit["records_present"].tolist() == annual["records"].tolist()
     assert any("budget year" in text and "partial" in text for text in result.warnings)
+    # the tables' own words say which records a budget year holds, and the records agree
+    # (modeller52: "calendar year of the interval starts" and "a year is the set of
+    # intervals that start in it" were wrong here); the intervals counted with pandas
+    stamps = result.timeseries.index
+    for year, row in annual.iterrows():
+        held = (stamps >= pd.Timestamp(f"{year}-07-01")) & (stamps < pd.Timestamp(
+            f"{year + 1}-07-01"))
+        assert row["records"] == held.sum()
+    said = "from Y-07-01 to before (Y+1)-07-01, labelled by the calendar year in which it starts"
+    for table in (annual, result.audit):
+        assert said in table.attrs["descriptions"]["year"]
+        assert said in table.attrs["time_convention"]
+        assert "a day or month is the set of intervals that start in it" in \
+            table.attrs["time_convention"]
+        assert "calendar year of the interval starts" not in table.attrs["descriptions"]["year"]
+    # and the folder's writer words them so from the settings it records
+    result.write(tmp_path / "out")
+    written = pq.read_schema(tmp_path / "out" / "annual.parquet")
+    assert written.field("year").metadata[b"description"].decode() == \
+        annual.attrs["descriptions"]["year"]
+    assert json.loads(written.metadata[b"fluxpart"])["time_convention"] == \
+        annual.attrs["time_convention"]
 
 
 def test_pipeline_budgets_a_year_cut_by_end_stamp_dates_whole():

@@ -251,12 +251,21 @@ def test_a_non_empty_target_is_refused_and_left_alone(written_demo, tmp_path, ca
     assert file.read_text() == "x"
 
 
-def test_an_empty_target_folder_is_filled(written_demo, tmp_path):
+def test_an_empty_target_folder_is_filled(written_demo, tmp_path, capsys):
+    """An empty folder is filled; exported into again, it is refused as holding an earlier
+    export (faults43: refused as any non-empty folder) and left as it was."""
     _, folder = written_demo
     target = tmp_path / "empty"
     target.mkdir()
     assert main(["export", str(folder), "--csv", str(target)]) == 0
     assert (target / METADATA_NAME).is_file() and (target / "annual.csv").is_file()
+    before = {p.name: p.read_bytes() for p in target.iterdir()}
+    capsys.readouterr()
+    assert main(["export", str(folder), "--csv", str(target)]) == 2
+    line = _one_error_line(capsys)
+    assert "holds an earlier CSV export (its csv-metadata.json)" in line
+    assert "delete that folder to export there again, or give a new one" in line
+    assert {p.name: p.read_bytes() for p in target.iterdir()} == before
 
 
 def test_a_target_inside_the_result_folder_is_refused(written_demo, capsys):

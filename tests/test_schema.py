@@ -127,6 +127,27 @@ def test_nighttime_gpp_description_warns_of_negative_values():
     assert ">= 0" in describe("timeseries", "gpp_daytime")[1]
 
 
+def test_every_budget_flux_states_the_one_sign_convention(written_demo):
+    """Every NEE, GPP and Reco sum of the written daily, monthly and annual tables states
+    README's one convention (modeller52: GPP said ">= 0" but not which way is uptake), and
+    the numbers follow it: NEE = Reco - GPP (the trade's definition of the two components,
+    with GPP and Reco as positive magnitudes), so the nighttime pair rebuilds each day's
+    NEE, and a growing season's GPP is positive."""
+    _, folder = written_demo
+    signs = {"nee": "< 0 is net uptake", "gpp": "positive = uptake by photosynthesis",
+             "reco": "positive = release to the atmosphere"}
+    for table in ("daily", "monthly", "annual"):
+        arrow = pq.read_table(Path(folder) / f"{table}.parquet")
+        for column in ("nee", "gpp_nighttime", "gpp_daytime", "reco_nighttime",
+                       "reco_daytime"):
+            text = arrow.schema.field(column).metadata[b"description"].decode()
+            assert signs[column.split("_")[0]] in text, (table, column)
+        frame = arrow.to_pandas()
+        rebuilt = frame["reco_nighttime"] - frame["gpp_nighttime"]
+        np.testing.assert_allclose(rebuilt, frame["nee"], rtol=1e-9, atol=1e-9)
+        assert (frame["gpp_daytime"].sum() > 0) and (frame["reco_daytime"] >= 0).all()
+
+
 def test_daytime_gpp_description_says_where_it_is_zero(written_demo):
     """The description of `gpp_daytime` holds on the written records (round modeller27).
 

@@ -21,7 +21,7 @@ import pyarrow.parquet as pq
 import pytest
 from bundles import SHORT_RECORDS, make_bundle
 
-from fluxpart import demo
+from fluxpart import __version__, demo, schema
 from fluxpart.cli import main
 from fluxpart.config import Config
 from fluxpart.errors import InputFileError
@@ -328,6 +328,57 @@ def test_resealed_unit_or_site_metadata_edit_is_not_reproduced(copy, capsys):
     assert "column descriptions" not in out and "what this means" not in out
 
 
+def _reword(folder, table, texts):
+    """Give columns of `table` other descriptions in all three copies the writer stores
+    (field, fluxpart JSON, pandas copy), and reseal its hash as a writer would."""
+    path = folder / f"{table}.parquet"
+    arrow = pq.read_table(path)
+    meta = dict(arrow.schema.metadata)
+    info, attrs = json.loads(meta[b"fluxpart"]), json.loads(meta[b"PANDAS_ATTRS"])
+    for column, text in texts.items():
+        info["columns"][column]["description"] = text
+        attrs["descriptions"][column] = text
+    meta[b"fluxpart"], meta[b"PANDAS_ATTRS"] = json.dumps(info).encode(), json.dumps(attrs).encode()
+    fields = [item.with_metadata({**item.metadata, b"description": texts[item.name].encode()})
+              if item.name in texts else item for item in arrow.schema]
+    pq.write_table(arrow.cast(pa.schema(fields, metadata=meta)), path)
+    _edit_manifest(folder, lambda m: m["tables"][table].update(sha256=file_sha256(path)),
+                   reseal=True)
+
+
+def test_descriptions_as_an_earlier_release_wrote_them_verify_with_a_note(copy, capsys):
+    """A folder of a release before a rewording (0.34.0's budget GPP and Reco without their
+    sign, metadata52) holds each reworded description exactly as the registry's earlier
+    text: verify exits 0, bit-identical, and names the columns worded so. The other
+    direction (any other wording fails) is in the next test. Fact of the audit contract
+    (DESIGN.md §4.1): the numbers decide, an edit is no rewording."""
+    from fluxpart.schema import reworded
+
+    earlier = {table: {column: next(e.earlier for e in schema.REWORDED_DESCRIPTIONS
+                                    if e.column == column and table in e.tables)
+                       for column in columns}
+               for table, columns in (("annual", ("gpp_nighttime", "reco_daytime")),
+                                      ("daily", ("gpp_daytime",)))}
+    for table, texts in earlier.items():
+        _reword(copy / "out", table, texts)
+    assert main(["verify", str(copy / "out")]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("bit-identical")
+    note = next(line for line in out.splitlines() if "descriptions worded as" in line)
+    assert "before 0.35.0 reworded them (fluxpart.schema.REWORDED_DESCRIPTIONS): annual: " \
+           "gpp_nighttime, reco_daytime; daily: gpp_daytime; every value" in note
+    assert "file bytes differ from the rerun's by these words only" in note
+    assert "values and metadata bit-identical" not in out     # the words do differ
+    # the registry's entries: each names its release, and this code writes other words
+    for entry in schema.REWORDED_DESCRIPTIONS:
+        table = (entry.tables or ("ustar",))[0]
+        assert entry.release == "0.35.0" and reworded(table, entry.column, entry.earlier) \
+            == entry and reworded(table, entry.column, entry.earlier + " ") is None
+        now = (schema.time_convention("10-01") if entry.column is None else
+               schema.describe(table, entry.column, "10-01")[1])
+        assert now != entry.earlier, entry
+
+
 def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
         copy, monkeypatch, capsys):
     """An auditor's newer install rewords a column's description (values equal, as the
@@ -346,15 +397,26 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     pq.write_table(arrow.cast(pa.schema(fields, metadata=arrow.schema.metadata)), path)
     _edit_manifest(copy / "out", lambda m: m["tables"]["daily"].update(sha256=file_sha256(path)),
                    reseal=True)
+    # beside it, an earlier release's wording (schema.REWORDED_DESCRIPTIONS, metadata52) of
+    # one column, and that wording one character off in another: only the exact earlier
+    # text is a note, the near one fails as an edit would
+    gpp = next(e.earlier for e in schema.REWORDED_DESCRIPTIONS if e.column == "gpp_daytime")
+    reco = next(e.earlier for e in schema.REWORDED_DESCRIPTIONS if e.column == "reco_daytime")
+    _reword(copy / "out", "monthly", {"gpp_daytime": gpp, "reco_daytime": reco + "."})
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
+    assert "monthly: metadata only (values equal): descriptions of reco_daytime (the texts: " \
+           "verify --detail)" in out
+    assert f"descriptions worded as release {__version__} wrote them, before 0.35.0 " \
+           "reworded them (fluxpart.schema.REWORDED_DESCRIPTIONS): monthly: gpp_daytime; " \
+           "every" in out
     assert "daily: metadata only (values equal): descriptions of nee (the texts: verify " \
            "--detail)" in out
     assert "likely cause: the product's code differs" in out
     # and says at the head and after the list that only descriptions differ, what that
     # means for the numbers and what to do (0.31.0's folders under 0.32.0: 45 such lines
     # and no summary, review56)
-    assert out.startswith("NOT reproduced: 1 difference(s)")
+    assert out.startswith("NOT reproduced: 2 difference(s)")
     assert ("all of them in the tables' column descriptions; every value equals its "
             "recomputation:") in out.splitlines()[0]
     assert ("what this means: the numbers are reproduced; only the words describing columns "
