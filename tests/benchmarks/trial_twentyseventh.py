@@ -73,7 +73,12 @@ light with the sun below the horizon), ``nosubstrate`` (roots without the GPP su
 ``noicing``, ``nopower``, ``nolong`` (no analyser failure or 14-21-day gap), ``nodrought``
 (no VPD or soil-water factor), ``onesoil`` (every pool on the 10 cm soil temperature the
 run is given), ``woodsoil`` (the wood on the 10 cm soil temperature, not the air), ``nodiffuse`` (the
-canopy's diffuse share held at 0.35 with the sun up, whatever the clouds));
+canopy's diffuse share held at 0.35 with the sun up, whatever the clouds), ``notemp`` (leaf
+capacity without the Johnson-Eyring-Williams temperature curve: its 25 deg C value),
+``bigleaf`` (the canopy as ONE big leaf: a rectangular hyperbola of the PPFD absorbed with
+extinction 0.6, quantum efficiency 0.85 a, capacity 0.6 LAI x the leaf's; the form the daytime
+method fits), ``nolowlight`` (no uptake in records with Rg below 10 W m-2, the run's night
+class, whatever the sun); the last three added by round trace52);
 ``--planted-ustar`` runs at the planted threshold (the night median);
 ``--processing`` adds lines to every site's ``[processing]``.
 
@@ -167,7 +172,7 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "onethr", "notwilight", "nosubstrate",
             "nolitterwet", "noacclim", "noicing", "nopower", "nolong", "nodrought", "onesoil",
-            "woodsoil", "nodiffuse")
+            "woodsoil", "nodiffuse", "notemp", "bigleaf", "nolowlight")
 DAMPING_DEPTH = 0.12      # m, diurnal damping depth of a moist soil (m)
 GAUSS_X, GAUSS_W = np.polynomial.legendre.leggauss(3)
 
@@ -512,10 +517,19 @@ def fluxes(site, met, rng, variant):
     f_d = 1.0 if dry else 1 / (1 + site.b_vpd * met["vpd"] / 10)
     f_w = 1.0 if dry else np.minimum(1.0, met["rew"] / 0.4)[day] ** 0.7
     c4 = site.kind == "sorghum"
-    amax = site.amax * jew(met["tair"], site.ds, 70e3 if c4 else 60e3) * f_d * f_w
+    f_t = 1.0 if "notemp" in variant else jew(met["tair"], site.ds, 70e3 if c4 else 60e3)
+    amax = site.amax * f_t * f_d * f_w
     amax = amax * capacity[day]
     diffuse = np.where(met["elev"] > 0, 0.35, 1.0) if "nodiffuse" in variant else met["diffuse"]
-    gpp = canopy_uptake(ppfd, diffuse, met["elev"], lai, 0.064 if c4 else 0.050, amax)
+    alpha = 0.064 if c4 else 0.050
+    gpp = canopy_uptake(ppfd, diffuse, met["elev"], lai, alpha, amax)
+    if "bigleaf" in variant:                     # one big leaf, rectangular hyperbola
+        absorbed = ppfd * (1 - np.exp(-0.6 * lai))
+        plateau = 0.6 * lai * amax
+        gpp = 0.85 * alpha * absorbed * plateau / np.maximum(0.85 * alpha * absorbed + plateau,
+                                                             1e-9)
+    if "nolowlight" in variant:
+        gpp = np.where(met["rg"] < 10, 0.0, gpp)
     soil = met["soil"]
     t2, t20 = (soil[0.10], soil[0.10]) if "onesoil" in variant else (soil[0.02], soil[0.20])
     weekly = lagged(gpp, 7 * met["per_day"])
