@@ -433,6 +433,44 @@ _SHEET_FIX = "open it in a spreadsheet and save the sheet as CSV"
 _TAGS_ONLY = re.compile(r"(?:<[^<>]*>\s*)+")
 
 
+_LINE_END = re.compile(r"\r\n|\r|\n")
+
+
+def universal_head(text: str, lines: int) -> str:
+    """The start of `text` that holds its first `lines` lines, read with universal newlines.
+
+    ``io.StringIO(universal_head(text, n), newline=None)`` yields the same first `n`
+    lines as ``io.StringIO(text, newline=None)``: the cut falls right after the n-th line
+    end (CR LF, CR or LF, a CR LF taken whole), or the whole text where it has fewer.
+    The reader's checks of a few head lines read this start only: a StringIO of a whole
+    ten-year file (10 MB, its buffer above the C library's largest reused block) took
+    18 ms per check, one of a year's 0.06 ms (round speed53).
+
+    Parameters
+    ----------
+    text : str
+        Decoded text.
+    lines : int
+        Lines wanted (>= 0).
+
+    Returns
+    -------
+    str
+        A prefix of `text`.
+
+    References
+    ----------
+    Python Software Foundation. io.StringIO, ``newline=None``: universal newlines mode,
+    "\\n", "\\r" and "\\r\\n" each end a line (m).
+    """
+    if lines <= 0:
+        return ""
+    for number, end in enumerate(_LINE_END.finditer(text), start=1):
+        if number == lines:
+            return text[:end.end()]
+    return text
+
+
 def markup_message(text: str, path, header_at: int = 0) -> str:
     """Name a file whose records are XML, HTML or JSON rather than a delimited table, or "".
 
@@ -471,7 +509,8 @@ def markup_message(text: str, path, header_at: int = 0) -> str:
     import json
 
     # the first lines only (universal newlines: CR-only and CRLF files alike)
-    lines = list(itertools.islice(io.StringIO(text, newline=None), header_at, header_at + 20))
+    lines = list(itertools.islice(io.StringIO(universal_head(text, header_at + 20),
+                                              newline=None), header_at, header_at + 20))
     nonblank = [line.strip() for line in lines if line.strip()]
     shown = nonblank[0] if nonblank else ""
     # a line of JSON or of tags above the lines of a table is a preamble (a JSON comment,

@@ -74,6 +74,7 @@ from ._validate import (
     single_zip_member,
     tar_files,
     unicode_form_hint,
+    universal_head,
 )
 from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
@@ -3059,8 +3060,9 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
     for a year of half-hours, 157,690 fields). Delimiters inside quotes are counted
     too, which only overcounts a header that is far too wide already.
     """
-    # universal newlines: CR-only and CRLF files alike (a CR-only file is no one line)
-    lines = _io.StringIO(text, newline=None)
+    # universal newlines: CR-only and CRLF files alike (a CR-only file is no one line);
+    # the lines up to the header only, the whole text where it is refused
+    lines = _io.StringIO(universal_head(text, rows_before_header + 1), newline=None)
     for _ in range(rows_before_header):
         lines.readline()
     line = lines.readline().rstrip("\n")
@@ -3069,6 +3071,9 @@ def _refuse_wide_header(path: Path, text: str, delimiter: str, rows_before_heade
     fields = len(line.split()) if delimiter == _WHITESPACE else line.count(delimiter) + 1
     if fields <= _MAX_HEADER_FIELDS:
         return
+    lines = _io.StringIO(text, newline=None)
+    for _ in range(rows_before_header + 1):
+        lines.readline()
     rest = sum(1 for later in lines if later.strip())
     _refuse_unicode_line_ends(path, text)
     raise InputFileError(
