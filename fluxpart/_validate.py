@@ -471,6 +471,42 @@ def universal_head(text: str, lines: int) -> str:
     return text
 
 
+#: The line boundaries of :meth:`str.splitlines` (CR LF taken whole).
+_SPLITLINES_END = re.compile("\r\n|[\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def leading_lines(text: str, lines: int) -> list:
+    """``text.splitlines()[:lines]``, split from the start of `text` that holds them only.
+
+    The reader takes its header line and the few lines around it from files of up to
+    millions of lines: a whole ``splitlines`` of a ten-year file took 15 ms, of a year
+    1 ms (round speed53). The cut falls right after the `lines`-th boundary that
+    :meth:`str.splitlines` splits at (a CR LF taken whole), so the lines are the same.
+
+    Parameters
+    ----------
+    text : str
+        Decoded text.
+    lines : int
+        Lines wanted (>= 0).
+
+    Returns
+    -------
+    list of str
+        The first `lines` lines, without their line ends.
+
+    References
+    ----------
+    Python Software Foundation. str.splitlines: the line boundaries (m).
+    """
+    if lines <= 0:
+        return []
+    for number, end in enumerate(_SPLITLINES_END.finditer(text), start=1):
+        if number == lines:
+            return text[:end.end()].splitlines()
+    return text.splitlines()
+
+
 def markup_message(text: str, path, header_at: int = 0) -> str:
     """Name a file whose records are XML, HTML or JSON rather than a delimited table, or "".
 

@@ -63,6 +63,7 @@ from . import (
 )
 from ._validate import (
     is_tar,
+    leading_lines,
     markup_message,
     odd_entry,
     other_system_path_hint,
@@ -2885,7 +2886,7 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             f"input file {str(path)!r}: the header (line {rows_before_header + 1}) separates "
             "its names by runs of spaces, which [input] delimiter = \" \" reads as empty "
             "columns: set [input] delimiter = \"whitespace\"")
-    following = text.splitlines()[rows_before_header:rows_before_header + 2]
+    following = leading_lines(text, rows_before_header + 2)[rows_before_header:]
     reader = csv.reader(iter(following), delimiter=delimiter if delimiter != _WHITESPACE
                         else " ")
     next(reader, None)
@@ -3873,7 +3874,7 @@ def _check_header_line(text: str, delimiter: str, time_columns: tuple,
     refused before with the setting counting them.
     """
     separator = None if delimiter == _WHITESPACE else delimiter
-    lines = text.splitlines()[:50]
+    lines = leading_lines(text, 50)
     if rows_before_header < len(lines) and time_columns[0] in [
             cell.strip().strip('"') for cell in lines[rows_before_header].split(separator)]:
         return 0
@@ -4267,9 +4268,10 @@ def _read_file(path: Path, *, columns, units, flag_columns, time_columns, time_f
             f"input file {source!r} is written newest first, so it is read from its last "
             f"line up, and in that order {error}") from None
     return {
-        "header_line": next(iter(text.splitlines()[rows_before_header:]), "").strip(),
-        "under_header": [line.strip() for line in text.splitlines()[
-            rows_before_header + 1:rows_before_header + 1 + rows_after_header]],
+        "header_line": next(iter(leading_lines(text, rows_before_header + 1)[
+            rows_before_header:]), "").strip(),
+        "under_header": [line.strip() for line in leading_lines(
+            text, rows_before_header + 1 + rows_after_header)[rows_before_header + 1:]],
         "header_rows": _header_rows(text, header, read, delimiter, rows_before_header,
                                     rows_after_header),
         "source": source, "encoding": used_encoding, "mapping": mapping,
