@@ -433,46 +433,40 @@ _SHEET_FIX = "open it in a spreadsheet and save the sheet as CSV"
 _TAGS_ONLY = re.compile(r"(?:<[^<>]*>\s*)+")
 
 
+#: Line ends in universal newlines mode (CR LF taken whole).
 _LINE_END = re.compile(r"\r\n|\r|\n")
+#: The line boundaries of :meth:`str.splitlines` (CR LF taken whole).
+_SPLITLINES_END = re.compile("\r\n|[\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _through_line(text: str, lines: int, line_end: re.Pattern) -> str:
+    """`text` up to and with the `lines`-th match of `line_end`; all of it where it holds
+    fewer; "" for no lines."""
+    if lines <= 0:
+        return ""
+    for number, end in enumerate(line_end.finditer(text), start=1):
+        if number == lines:
+            return text[:end.end()]
+    return text
 
 
 def universal_head(text: str, lines: int) -> str:
-    """The start of `text` that holds its first `lines` lines, read with universal newlines.
+    """The start of `text` that holds its first `lines` lines (universal newlines).
 
     ``io.StringIO(universal_head(text, n), newline=None)`` yields the same first `n`
     lines as ``io.StringIO(text, newline=None)``: the cut falls right after the n-th line
     end (CR LF, CR or LF, a CR LF taken whole), or the whole text where it has fewer.
     The reader's checks of a few head lines read this start only: a StringIO of a whole
     ten-year file (10 MB, its buffer above the C library's largest reused block) took
-    18 ms per check, one of a year's 0.06 ms (round speed53).
-
-    Parameters
-    ----------
-    text : str
-        Decoded text.
-    lines : int
-        Lines wanted (>= 0).
-
-    Returns
-    -------
-    str
-        A prefix of `text`.
+    18 ms per check, one of a year's 0.06 ms (round speed53). `text` is decoded text,
+    `lines` >= 0; returns a prefix of `text`.
 
     References
     ----------
     Python Software Foundation. io.StringIO, ``newline=None``: universal newlines mode,
     "\\n", "\\r" and "\\r\\n" each end a line (m).
     """
-    if lines <= 0:
-        return ""
-    for number, end in enumerate(_LINE_END.finditer(text), start=1):
-        if number == lines:
-            return text[:end.end()]
-    return text
-
-
-#: The line boundaries of :meth:`str.splitlines` (CR LF taken whole).
-_SPLITLINES_END = re.compile("\r\n|[\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029]")
+    return _through_line(text, lines, _LINE_END)
 
 
 def leading_lines(text: str, lines: int) -> list:
@@ -483,28 +477,11 @@ def leading_lines(text: str, lines: int) -> list:
     1 ms (round speed53). The cut falls right after the `lines`-th boundary that
     :meth:`str.splitlines` splits at (a CR LF taken whole), so the lines are the same.
 
-    Parameters
-    ----------
-    text : str
-        Decoded text.
-    lines : int
-        Lines wanted (>= 0).
-
-    Returns
-    -------
-    list of str
-        The first `lines` lines, without their line ends.
-
     References
     ----------
     Python Software Foundation. str.splitlines: the line boundaries (m).
     """
-    if lines <= 0:
-        return []
-    for number, end in enumerate(_SPLITLINES_END.finditer(text), start=1):
-        if number == lines:
-            return text[:end.end()].splitlines()
-    return text.splitlines()
+    return _through_line(text, lines, _SPLITLINES_END).splitlines()
 
 
 def markup_message(text: str, path, header_at: int = 0) -> str:
