@@ -457,9 +457,8 @@ def universal_head(text: str, lines: int) -> str:
     lines as ``io.StringIO(text, newline=None)``: the cut falls right after the n-th line
     end (CR LF, CR or LF, a CR LF taken whole), or the whole text where it has fewer.
     The reader's checks of a few head lines read this start only: a StringIO of a whole
-    ten-year file (10 MB, its buffer above the C library's largest reused block) took
-    18 ms per check, one of a year's 0.06 ms (round speed53). `text` is decoded text,
-    `lines` >= 0; returns a prefix of `text`.
+    ten-year file (10 MB) took 18 ms per check, one of a year's 0.06 ms (round speed53).
+    `text` is decoded text, `lines` >= 0; returns a prefix of `text`.
 
     References
     ----------
