@@ -425,6 +425,56 @@ _SHEET_FIX = "open it in a spreadsheet and save the sheet as CSV"
 _TAGS_ONLY = re.compile(r"(?:<[^<>]*>\s*)+")
 
 
+#: Line ends in universal newlines mode (CR LF taken whole).
+_LINE_END = re.compile(r"\r\n|\r|\n")
+#: The line boundaries of :meth:`str.splitlines` (CR LF taken whole).
+_SPLITLINES_END = re.compile("\r\n|[\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _through_line(text: str, lines: int, line_end: re.Pattern) -> str:
+    """`text` up to and with the `lines`-th match of `line_end`; all of it where it holds
+    fewer; "" for no lines."""
+    if lines <= 0:
+        return ""
+    for number, end in enumerate(line_end.finditer(text), start=1):
+        if number == lines:
+            return text[:end.end()]
+    return text
+
+
+def universal_head(text: str, lines: int) -> str:
+    """The start of `text` that holds its first `lines` lines (universal newlines).
+
+    ``io.StringIO(universal_head(text, n), newline=None)`` yields the same first `n`
+    lines as ``io.StringIO(text, newline=None)``: the cut falls right after the n-th line
+    end (CR LF, CR or LF, a CR LF taken whole), or the whole text where it has fewer.
+    The reader's checks of a few head lines read this start only: a StringIO of a whole
+    ten-year file (10 MB) took 18 ms per check, one of a year's 0.06 ms (round speed53).
+    `text` is decoded text, `lines` >= 0; returns a prefix of `text`.
+
+    References
+    ----------
+    Python Software Foundation. io.StringIO, ``newline=None``: universal newlines mode,
+    "\\n", "\\r" and "\\r\\n" each end a line (m).
+    """
+    return _through_line(text, lines, _LINE_END)
+
+
+def leading_lines(text: str, lines: int) -> list:
+    """``text.splitlines()[:lines]``, split from the start of `text` that holds them only.
+
+    The reader takes its header line and the few lines around it from files of up to
+    millions of lines: a whole ``splitlines`` of a ten-year file took 15 ms, of a year
+    1 ms (round speed53). The cut falls right after the `lines`-th boundary that
+    :meth:`str.splitlines` splits at (a CR LF taken whole), so the lines are the same.
+
+    References
+    ----------
+    Python Software Foundation. str.splitlines: the line boundaries (m).
+    """
+    return _through_line(text, lines, _SPLITLINES_END).splitlines()
+
+
 def markup_message(text: str, path, header_at: int = 0) -> str:
     """Name a file whose records are XML, HTML or JSON rather than a delimited table, or "".
 
@@ -463,7 +513,8 @@ def markup_message(text: str, path, header_at: int = 0) -> str:
     import json
 
     # the first lines only (universal newlines: CR-only and CRLF files alike)
-    lines = list(itertools.islice(io.StringIO(text, newline=None), header_at, header_at + 20))
+    lines = list(itertools.islice(io.StringIO(universal_head(text, header_at + 20),
+                                              newline=None), header_at, header_at + 20))
     nonblank = [line.strip() for line in lines if line.strip()]
     shown = nonblank[0] if nonblank else ""
     # a line of JSON or of tags above the lines of a table is a preamble (a JSON comment,

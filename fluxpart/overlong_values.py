@@ -12,8 +12,28 @@ characters, so the reader refuses such a line by its number before parsing.
 from __future__ import annotations
 
 import csv
+import re
 
 from .errors import InputFileError
+
+#: The line boundaries of :meth:`str.splitlines`.
+_LINE_BOUNDARY = re.compile("[\n\r\v\f\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _may_hold_longer_line(text: str, limit: int) -> bool:
+    """False where no line of `text` (as :meth:`str.splitlines` splits it) is longer than
+    `limit` characters, found without splitting the whole text (round speed53: the split
+    and the loop over its lines took 18 ms of a ten-year file, 1.4 ms of a year).
+
+    A line of more than `limit` characters covers a whole block of ``limit // 2``
+    characters of the text aligned at a multiple of that length (any stretch of
+    ``2 * (limit // 2) - 1`` characters or more does): where every such block holds a line
+    boundary, no line is that long. True where a block holds none (a line of half the
+    limit or more: the caller then measures every line).
+    """
+    block = max(limit // 2, 1)
+    return any(_LINE_BOUNDARY.search(text, start, start + block) is None
+               for start in range(0, len(text) - block + 1, block))
 
 
 def refuse_overlong_value(path, text: str, delimiter: str, whitespace: str) -> None:
@@ -44,6 +64,8 @@ def refuse_overlong_value(path, text: str, delimiter: str, whitespace: str) -> N
     """
     limit = csv.field_size_limit()
     if len(text) <= limit:                  # no line can hold such a value
+        return
+    if not _may_hold_longer_line(text, limit):
         return
     for number, line in enumerate(text.splitlines(), start=1):
         if len(line) <= limit:

@@ -173,6 +173,35 @@ def test_a_value_longer_than_the_csv_field_limit_is_refused_by_its_line(copy, ca
     assert not (copy / "new").exists()
 
 
+def test_the_overlong_value_scan_by_blocks_misses_no_line_longer_than_the_limit():
+    """The refusal first looks for a block of half the limit without a line boundary
+    (round speed53) instead of splitting every file whole: a line one character over
+    Python's CSV field limit (``csv.field_size_limit``, 131 072 (m)) is still found
+    wherever it starts against the blocks, ending in LF, CR LF or a line separator, and
+    a line of exactly the limit is read as before. The scan's answer is checked against
+    ``str.splitlines``' lines (Python documentation (m)) on random texts at small limits."""
+    import random
+
+    from fluxpart.overlong_values import _may_hold_longer_line
+
+    limit = csv.field_size_limit()
+    half = limit // 2
+    for offset in (0, 1, half - 2, half - 1, half, half + 1, limit - 1, limit):
+        for end in ("\n", "\r\n", "\u2028"):
+            head = "a,b\n" + "1" * offset + "\n"
+            text = head + "9" * (limit + 1) + end + "3,4\n"
+            with pytest.raises(InputFileError, match=r"line 3 holds a value of 131,073"):
+                refuse_overlong_value("x.csv", text, ",", "whitespace")
+            refuse_overlong_value("x.csv", head + "9" * limit + end + "3,4\n", ",",
+                                  "whitespace")
+    rng = random.Random(53)
+    for _ in range(3000):
+        text = "".join(rng.choice("ab,ab,ab\r\n\u2028") for _ in range(rng.randint(0, 90)))
+        small = rng.randint(1, 30)
+        if max(map(len, text.splitlines()), default=0) > small:
+            assert _may_hold_longer_line(text, small), (text, small)
+
+
 def test_a_figure_pillow_cannot_quantize_for_memory_is_a_memory_error(monkeypatch):
     """Under ``ulimit -v`` 360 MB `report` ended with "ValueError: quantization error"
     (Pillow's C quantizer, whose tables could not be allocated) and a 38-line traceback,

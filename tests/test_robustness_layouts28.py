@@ -23,7 +23,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from fluxpart._validate import markup_message
+from fluxpart._validate import leading_lines, markup_message, universal_head
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
@@ -424,3 +424,42 @@ def test_a_preamble_line_of_json_or_tags_above_a_table_is_no_markup(tmp_path, ab
         _read(path)
     frame, _ = _read(path, rows_before_header=1)
     assert np.allclose(frame["rg"].to_numpy(), values[:, 2])
+
+
+def test_the_head_of_a_text_reads_as_the_whole_texts_first_lines():
+    """The reader's head-line checks read `universal_head` instead of the whole text
+    (round speed53): its lines must be those Python's ``io.StringIO(text, newline=None)``
+    reads from the whole text (universal newlines: "\\n", "\\r", "\\r\\n" end a line;
+    the Python documentation of io.StringIO and of universal newlines (m)), for every
+    mix of line ends, a CR LF split or not at the cut, and texts with fewer lines."""
+    import io
+    import itertools
+
+    rng = np.random.default_rng(53)
+    alphabet = np.array(list("ab,\r\n \u2028\x0c"))
+    for size in rng.integers(0, 40, 400):
+        text = "".join(rng.choice(alphabet, size))
+        for lines in range(6):
+            whole = list(itertools.islice(io.StringIO(text, newline=None), lines))
+            head = universal_head(text, lines)
+            assert text.startswith(head)
+            assert list(io.StringIO(head, newline=None)) == whole, (text, lines)
+    # a CR LF is one line end: the cut never falls between its two characters
+    assert universal_head("h\r\nx\r\ny", 1) == "h\r\n"
+    assert universal_head("h\rx\ny", 2) == "h\rx\n"
+    assert universal_head("h\nx", 5) == "h\nx"
+
+
+def test_the_leading_lines_of_a_text_are_its_first_split_lines():
+    """`leading_lines` (round speed53) splits only the start of a text: its lines must be
+    the first lines of Python's ``str.splitlines`` of the whole text (its line boundaries:
+    LF, CR, CR LF, VT, FF, FS, GS, RS, NEL, LS, PS; the Python documentation of
+    str.splitlines (m)), a CR LF at the cut taken whole."""
+    rng = np.random.default_rng(530)
+    alphabet = np.array(list("ab,\t \r\n\v\f\x1c\x1d\x1e\x85\u2028\u2029"))
+    for size in rng.integers(0, 40, 400):
+        text = "".join(rng.choice(alphabet, size))
+        for lines in range(6):
+            assert leading_lines(text, lines) == text.splitlines()[:lines], (text, lines)
+    assert leading_lines("h\r\nx\r\ny", 2) == ["h", "x"]
+    assert leading_lines("h\u2028x", 9) == ["h", "x"]
