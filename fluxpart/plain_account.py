@@ -158,6 +158,11 @@ def interval_sentence(parts: pd.Series, total: float, low: float, high: float) -
     -------
     str
         The sentences; "" where any of the numbers is missing or the total is zero.
+
+    References
+    ----------
+    JCGM 100:2008 (GUM), §5.1 and §G.3, see the module (root sum of squares of
+    independent parts; ±1.96 u at 95 % (m)).
     """
     values = pd.to_numeric(parts, errors="coerce").dropna()
     values = values[values > 0].sort_values(ascending=False, kind="stable")

@@ -75,6 +75,11 @@ def class_means(ratio, nee, tair, temperature_classes, ustar_classes):
         One row per u* class: ``stratum`` (temperature class), ``ratio`` and ``nee``
         (class means), ``upper`` (the class's highest ratio), sorted by stratum and ratio.
         Strata with fewer than :data:`MIN_CLASSES` classes are left out.
+
+    References
+    ----------
+    Papale, D. et al. (2006), see the module (u* classes within temperature classes, as
+    the threshold's own detector sorts the night records).
     """
     rows = []
     order = np.argsort(tair, kind="stable")
@@ -221,6 +226,11 @@ def yearly_factors(index, nee, ustar, tair, is_night, central: pd.Series,
     -------
     dict of int to Raise
         Every year with a finite threshold.
+
+    References
+    ----------
+    Goulden, M. L. et al. (1996); Papale, D. et al. (2006), see the module (above the
+    threshold night NEE no longer depends on u*).
     """
     years = index.year.to_numpy()
     out = {}
