@@ -166,7 +166,8 @@ class Config:
         seasons, bootstrap percentiles) are raised past the lowest u* class until it no
         longer rejects or half the kept night records would be filtered
         (:mod:`fluxpart.ustar_trend`). ``threshold_detected`` keeps the detector's value,
-        the year's ``reason`` names the raise. Measured, not the default
+        the year's ``reason`` says what the test found (the raise and its p-value, not raised
+        with its p-value, or too few night records to test). Measured, not the default
         (DEVELOPERS.md, round nightbias52).
     storage_release : str
         What to do where the morning release of CO2 stored on calm nights is seen in

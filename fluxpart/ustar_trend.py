@@ -75,6 +75,11 @@ def class_means(ratio, nee, tair, temperature_classes, ustar_classes):
         One row per u* class: ``stratum`` (temperature class), ``ratio`` and ``nee``
         (class means), ``upper`` (the class's highest ratio), sorted by stratum and ratio.
         Strata with fewer than :data:`MIN_CLASSES` classes are left out.
+
+    References
+    ----------
+    Papale, D. et al. (2006), see the module (u* classes within temperature classes, as
+    the threshold's own detector sorts the night records).
     """
     rows = []
     order = np.argsort(tair, kind="stable")
@@ -221,6 +226,11 @@ def yearly_factors(index, nee, ustar, tair, is_night, central: pd.Series,
     -------
     dict of int to Raise
         Every year with a finite threshold.
+
+    References
+    ----------
+    Goulden, M. L. et al. (1996); Papale, D. et al. (2006), see the module (above the
+    threshold night NEE no longer depends on u*).
     """
     years = index.year.to_numpy()
     out = {}
@@ -253,11 +263,12 @@ def raised(table: pd.DataFrame, central: pd.Series, scenarios: dict, factors: di
     -------
     tuple
         ``(table, central, scenarios)``, every threshold of a raised year (its seasons'
-        and its bootstrap percentiles' too) times its factor; the year's row names the
-        raise in ``reason``.
+        and its bootstrap percentiles' too) times its factor; each tested year's row
+        says in ``reason`` what the test found (raised, not raised with its p-value, or
+        too few night records to test).
     """
     factor = pd.Series({year: found.factor for year, found in factors.items()}, dtype=float)
-    if not (factor > 1).any():
+    if not factors:
         return table, central, scenarios
     table = table.copy()
     per_row = table["year"].map(factor).fillna(1.0).to_numpy()
@@ -265,13 +276,19 @@ def raised(table: pd.DataFrame, central: pd.Series, scenarios: dict, factors: di
                    or name.startswith("threshold_p")]:
         table[column] = table[column] * per_row
     for year, found in factors.items():
-        if found.factor > 1:
-            row = (table["year"] == year) & (table["period"] == "year")
-            text = (f"raised x{found.factor:.3f}: night NEE still rose with u* above the "
-                    f"detected threshold (one-sided p = {found.first_p:.3g}), "
-                    f"{found.steps} u* classes passed")
-            table.loc[row, "reason"] = [f"{old}; {text}" if isinstance(old, str) and old
-                                        else text for old in table.loc[row, "reason"]]
+        # every tested year says what the test found: with the option on and nothing
+        # raised, the table had kept no trace that the test ran (review67)
+        row = (table["year"] == year) & (table["period"] == "year")
+        text = (f"raised x{found.factor:.3f}: night NEE still rose with u* above the "
+                f"detected threshold (one-sided p = {found.first_p:.3g}), "
+                f"{found.steps} u* classes passed" if found.factor > 1 else
+                "kept nights not tested for a rise of NEE with u*: no temperature class "
+                f"holds {MIN_CLASSES} u* classes of {MIN_CLASS_RECORDS} night records in "
+                "darkness" if found.first_p >= 1 else
+                "kept nights tested: night NEE did not rise with u* above the threshold "
+                f"(one-sided p = {found.first_p:.3g}); not raised")
+        table.loc[row, "reason"] = [f"{old}; {text}" if isinstance(old, str) and old
+                                    else text for old in table.loc[row, "reason"]]
     scale = factor.reindex(central.index).fillna(1.0)
     return (table, central * scale,
             {name: values * scale.reindex(values.index).fillna(1.0)

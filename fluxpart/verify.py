@@ -1264,7 +1264,7 @@ def earlier_wordings(table: str, found: list) -> tuple[list, list]:
     return known, rest
 
 
-def earlier_wording_notes(worded: dict, manifest: dict) -> list[str]:
+def earlier_wording_notes(worded: dict, manifest: dict, others: bool = False) -> list[str]:
     """The notes of :func:`verify` on descriptions worded as an earlier release wrote them.
 
     Parameters
@@ -1274,6 +1274,12 @@ def earlier_wording_notes(worded: dict, manifest: dict) -> list[str]:
         stored three times per column), from :func:`earlier_wordings`.
     manifest : dict
         The folder's manifest (its writing release is named where recorded).
+    others : bool
+        Whether anything else differs (a value, within rounding or not, another
+        description, a manifest field): the note then says those differences stand
+        apart from these words, not that the words are all that differs (a 0.34.0
+        folder verified after widths52 read "every value ... equals the recomputation"
+        below sixteen differing values; round review67).
 
     Returns
     -------
@@ -1293,10 +1299,11 @@ def earlier_wording_notes(worded: dict, manifest: dict) -> list[str]:
             listed.append(f"the time_convention of {len(timed)} table(s)" if len(timed) > 3
                           else f"the time_convention of {', '.join(sorted(timed))}")
         listed = "; ".join(listed)
+        tail = ("these words are no difference; the differences listed are apart from them"
+                if others else "every value and every other description equals the "
+                "recomputation, so the file bytes differ from the rerun's by these words only")
         notes.append(f"descriptions worded as {writer} wrote them, before {release} reworded "
-                     f"them (fluxpart.schema.REWORDED_DESCRIPTIONS): {listed}; every value and "
-                     "every other description equals the recomputation, so the file bytes "
-                     "differ from the rerun's by these words only")
+                     f"them (fluxpart.schema.REWORDED_DESCRIPTIONS): {listed}; {tail}")
     return notes
 
 
@@ -2475,7 +2482,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                              "the recorded library versions and platform match; a compression "
                              "library outside the record may differ")
                     same_values.setdefault(cause, []).append(name)
-    notes += earlier_wording_notes(worded, manifest)
+    notes += earlier_wording_notes(worded, manifest, others=bool(differences or rounding))
     # one note per cause, naming its tables (a result of 0.22.0 gave 14 such lines)
     notes += [f"{', '.join(tables)}: values and metadata bit-identical, file bytes differ from "
               f"the recorded ones ({cause})" for cause, tables in same_values.items()]

@@ -1987,6 +1987,16 @@ def test_the_card_explains_the_interval_from_its_written_parts(folder):
     assert np.sqrt(np.sum(np.square(expected))) == pytest.approx(half, rel=1e-4)
     assert "estimating the records without an accepted measurement" in meaning
     assert "not in it" in meaning                     # the systematic errors left out
+    # a stated interval, not a promise (review67: "should lie inside ... in about 19 of 20"
+    # and "less often" on every test set, where the generated sets held NEE in 93-99 %):
+    # 19 of 20 is the design under the named sources; the shortfall it names is the one
+    # the run's own "Checked" statement measures (NEE's shares on the trials, below 95 %)
+    assert "is built to hold the true NEE in about 19 of 20 site-years if the sources " \
+           "named here were the only errors" in meaning and "should lie" not in meaning
+    checked = re.search(r"Checked: (.*?)</", folder["text"], re.S).group(1)
+    trials = re.findall(r"trials[^%]*? NEE in (\d+) %", checked)
+    assert trials and min(int(v) for v in trials) < 95, checked[:300]
+    assert "whose physics the methods do not assume it held the truth less often" in meaning
 
 
 def test_the_summary_points_to_the_warnings_and_states_its_rounding(folder):

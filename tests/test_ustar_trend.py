@@ -113,6 +113,20 @@ def test_yearly_factors_and_raised_tables():
     assert new_table["threshold_detected"].tolist() == [0.2, 0.2, 0.25]
     assert "raised" in new_table["reason"].iloc[1]
     assert (new_central[2021] == 0.2) == (factors[2021].factor == 1)
+    # a year tested and not raised keeps a trail of the test (review67: with the option
+    # on and nothing raised the table said nothing), and a year that could not be tested
+    # says so rather than "not raised"
+    held = ustar_trend.Raise(1.0, 0, 0.4321, 0.4321)
+    untested = ustar_trend.Raise(1.0, 0, 1.0, 1.0)
+    kept_table, kept_central, _ = ustar_trend.raised(table, central, scenarios,
+                                                     {2021: held, 2022: untested})
+    assert kept_table["reason"].iloc[0] == ("kept nights tested: night NEE did not rise "
+                                            "with u* above the threshold (one-sided p = "
+                                            "0.432); not raised")
+    assert kept_table["reason"].iloc[1].startswith("kept nights not tested")
+    assert kept_table["reason"].iloc[2] == ""               # a season's row: no test of its own
+    assert kept_table["threshold"].tolist() == table["threshold"].tolist()
+    assert kept_central.equals(central)
 
 
 def test_bad_setting_is_named():
