@@ -185,11 +185,11 @@ CONFIDENCE = 0.95
 #: release (until review33 it still gave 0.16.0's; until review43 it left out the six
 #: trials after the eleventh, whose per-trial NEE coverage reaches down to 7 of 12).
 CALIBRATION_CHECK = (
-    "fluxpart 0.34.0 (the generated sets' figures rerun on this release, whose night gaps "
-    "take no donor within the u* threshold's own 1-sigma above it: NEE's central estimates "
-    "moved, median |error| 3.7 / 5.2 / 5.2 to 3.8 / 4.9 / 5.0 g C m-2 on the three sets; "
-    "the gap-filling part models a long gap's shared error by its length since 0.33.0; "
-    "one structural part of GPP and Reco from both method differences since widths52) "
+    "fluxpart 0.35.0 (the generated sets' figures rerun on this release, whose four "
+    "partitioned fluxes share one structural part, estimated from both method differences "
+    "(nighttime GPP = Reco − NEE): their intervals moved, no central value did; night gaps "
+    "take no donor within the u* threshold's own 1-sigma above it since 0.34.0; the "
+    "gap-filling part models a long gap's shared error by its length since 0.33.0) "
     "on 70 generated known-truth "
     "site-years of seven invented archetypes (35 held out while most rules were chosen): "
     "the stated 95 % intervals contained the true "
@@ -2577,7 +2577,7 @@ def period_uncertainty(inputs: UncertaintyInputs, keys, interval_minutes, *,
       unquantified structural error of common standard deviation s, all
       independent, then E[d²] = p_day² + p_night² + 2s² for each flux.
       Nighttime GPP = Reco − NEE and NEE has no structural error, so one s
-      moves the nighttime GPP and Reco alike: since widths52 both fluxes take
+      moves the nighttime GPP and Reco alike: since 0.35.0 both fluxes take
       s = √(max(ΣE, 0) / 4), E = d² − p_day² − p_night² of GPP and of Reco
       (:func:`structural_sigma`); before, each flux took
       √(max(E, 0) / 2) of its own d. Adding |d|/√2 instead would
