@@ -1068,6 +1068,8 @@ CASES.update({
     "hourly file, interval_minutes 30": hourly_means_declared_30,
     "u* in km h-1 from July": ustar_km_per_hour_from_july,
     "u* 0 for missing": ustar_zero_for_missing,
+    "u* in km h-1, canopy tall written": lambda f, t: (
+        ustar_km_per_hour(f, t)[0], t.replace('canopy = "short"', 'canopy = "tall"')),
     "Rg in kW m-2, no unit": lambda f, t: (_scaled(f, "solar_down", 0.001, 5), t),
     "NEP (uptake positive) as NEE": nee_as_nep,
     "dew point as tair": dew_point_as_tair,
