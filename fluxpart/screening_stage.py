@@ -14,7 +14,7 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import clock, preflight, screening, solar, unit_checks
+from . import clock, preflight, screening, solar, unit_checks, ustar_scale
 from .errors import ConfigError, ImplausibleValueError, InsufficientDataError
 from .fill_labels import FILLED_LABEL_MARK
 from .storage_size import STORAGE_SMOOTHS_MARK
@@ -153,6 +153,7 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
         reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
+    findings += _ustar_scale(frame, site, is_night, findings, reader.get("columns") or {})
     # a finding the reader's message names already (its mark on the frame)
     named = {stage for mark, stage in READER_NAMED_FINDINGS.items() if frame.attrs.get(mark)}
     findings = [f for f in findings if f.stage not in named]
@@ -162,6 +163,17 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
             findings, verdict, screens.screened["rg"].to_numpy(dtype=float), frame.index,
             site.latitude, site.longitude, site.utc_offset, interval, reader.get("columns"))
     return verdict, findings
+
+
+def _ustar_scale(frame, site, is_night, findings, columns) -> list:
+    """u* whose nights lie beyond the surface layer (:mod:`fluxpart.ustar_scale`): a
+    warning, where no fatal finding stops the run first."""
+    if "ustar" not in frame.columns or any(finding.fatal for finding in findings):
+        return []
+    text = ustar_scale.ustar_beyond_surface_layer(
+        frame["ustar"].to_numpy(dtype=float), is_night, frame.index, site.canopy,
+        columns.get("ustar", "ustar"))
+    return [preflight.Finding(ustar_scale.STAGE, text, False)] if text else []
 
 
 #: Share of the records with an NEE value that the site flag rejects beyond which a fatal

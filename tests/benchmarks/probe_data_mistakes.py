@@ -1005,6 +1005,87 @@ CASES.update({
 })
 
 
+# round mistakes52: thirteen more, each checked against the cases above
+def soil_heat_flux_as_tsoil(frame, text):
+    """The soil heat flux plate's column (W m-2: about a tenth of the net radiation by day,
+    -10 to -30 at night, Campbell and Norman 1998, ch. 8 (m)) mapped as tsoil."""
+    rg = frame["solar_down"].to_numpy()
+    heat = np.where(rg == MISSING, MISSING, np.round(0.1 * (0.7 * rg - 50.0) - 8.0, 1))
+    return _with(frame, "soil_temp_5cm", heat), text
+
+
+def _set_setting(text, section, line):
+    return text.replace(f"[{section}]\n", f"[{section}]\n{line}\n", 1)
+
+
+def hourly_means_declared_30(frame, text):
+    """Hourly records (the means of each hour) with interval_minutes = 30 written."""
+    data = frame.replace(MISSING, np.nan)
+    data.index = _stamps(frame)
+    groups = data.drop(columns="stamp_end").resample("1h", closed="right", label="right")
+    out = groups.mean().assign(qc_co2=groups["qc_co2"].max())
+    out.insert(0, "stamp_end", out.index.strftime("%Y%m%d%H%M"))
+    return (out.fillna(MISSING).reset_index(drop=True),
+            _set_setting(text, "input", "interval_minutes = 30"))
+
+
+def ustar_km_per_hour_from_july(frame, text):
+    """u* in km h-1 from July (a sonic's new program), read as m s-1."""
+    ustar = frame["friction_velocity"].to_numpy()
+    late = _months(frame, range(7, 13)) & (ustar != MISSING)
+    return _with(frame, "friction_velocity", np.where(late, np.round(ustar * 3.6, 3),
+                                                      ustar)), text
+
+
+def ustar_zero_for_missing(frame, text):
+    """u* written 0 for missing (a logger's habit)."""
+    ustar = frame["friction_velocity"].to_numpy()
+    return _with(frame, "friction_velocity", np.where(ustar == MISSING, 0.0, ustar)), text
+
+
+def nee_as_nep(frame, text):
+    """NEP (uptake positive) mapped as NEE for the whole year."""
+    return _scaled(frame, "co2_exchange", -1.0, 3), text
+
+
+def dew_point_as_tair(frame, text):
+    """The dew point (Magnus formula, Alduchov and Eskridge 1996 (m)) mapped as tair."""
+    tair = frame["air_temp_c"].to_numpy()
+    rh = np.clip(frame["rel_humidity"].to_numpy(), 1.0, 100.0)
+    gamma = np.log(rh / 100.0) + 17.625 * tair / (243.04 + tair)
+    dew = 243.04 * gamma / (17.625 - gamma)
+    bad = (tair == MISSING) | (frame["rel_humidity"].to_numpy() == MISSING)
+    return _with(frame, "air_temp_c", np.where(bad, MISSING, np.round(dew, 2))), text
+
+
+def vpd_pa_declared_hpa(frame, text):
+    """VPD in Pa (a humidity logger's output) declared hPa: read 10 times too large."""
+    return _scaled(frame, "vpd_kpa", 1000.0, 1), text.replace('vpd = "kPa"', 'vpd = "hPa"')
+
+
+CASES.update({
+    "soil heat flux (W m-2) as tsoil": soil_heat_flux_as_tsoil,
+    "hourly file, interval_minutes 30": hourly_means_declared_30,
+    "u* in km h-1 from July": ustar_km_per_hour_from_july,
+    "u* 0 for missing": ustar_zero_for_missing,
+    "u* in km h-1, canopy tall written": lambda f, t: (
+        ustar_km_per_hour(f, t)[0], t.replace('canopy = "short"', 'canopy = "tall"')),
+    "Rg in kW m-2, no unit": lambda f, t: (_scaled(f, "solar_down", 0.001, 5), t),
+    "NEP (uptake positive) as NEE": nee_as_nep,
+    "dew point as tair": dew_point_as_tair,
+    "VPD in Pa declared hPa": vpd_pa_declared_hpa,
+    "events a harvest in winter (2021-01-20)": lambda f, t: (
+        f, _processing(t, 'events = ["2021-01-20"]')),
+    "events next year's (2022-06-05, outside the record)": lambda f, t: (
+        f, _processing(t, 'events = ["2022-06-05"]')),
+    "year_start 01-07 (day-month for 1 July)": lambda f, t: (
+        f, _processing(t, 'year_start = "01-07"')),
+    "longitude -10.2 (west; utc_offset 1 kept)": lambda f, t: (
+        f, t.replace("longitude = 10.2", "longitude = -10.2")),
+    "latitude 39.3 (a digit slip)": lambda f, t: (
+        f, t.replace("latitude = 49.3", "latitude = 39.3")),
+})
+
 def run(frame: pd.DataFrame, text: str, folder: Path):
     """The settings probe's run on ``frame`` written as the example's file in ``folder``."""
     frame.to_csv(folder / "quillmoor_grassland.csv", index=False)
