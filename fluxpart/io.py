@@ -52,6 +52,7 @@ import pyarrow.compute as pc
 
 from . import (
     bracket_names,
+    day_summaries,
     digit_grouping,
     flux_rate_labels,
     footers,
@@ -59,6 +60,7 @@ from . import (
     header_cells,
     interleaved_lines,
     later_files,
+    record_order,
     table_formats,
     unicode_names,
 )
@@ -4205,6 +4207,18 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             judged_format, time_zone, utc_offset, source)
         if zone_said:
             raise TimestampError(zone_said)
+    summaries, said = day_summaries.summary_lines(
+        stamp_text, raw[[c for c in dict.fromkeys([*mapping.values(), *flag_columns])
+                         if c in raw.columns and c not in time_columns]],
+        time_format, tuple(missing) + tuple(flag_missing or ()), decimal, lines)
+    if summaries.size:
+        # a day's or a month's means or sums among the records, verified against them
+        # (layouts47; refused before, naming them: layouts45)
+        warnings.append(ReaderNote(f"input file {source!r}: {said}"))
+        kept = np.setdiff1d(np.arange(len(raw)), summaries)
+        raw = raw.iloc[kept].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[kept].reset_index(drop=True)
+        lines = lines[kept]
     summary = footers.summary_rows(stamp_text, time_columns)
     if summary:
         # a spreadsheet's statistics under the records ("mean", "max"): no stamp, no
@@ -4236,11 +4250,17 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                           rows_after_header=rows_after_header)
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
-    if newest_first:
+    order, sorted_note = (None, "") if newest_first else record_order.time_order(
+        parsed.stamps, raw.drop(columns=[c for c in time_columns if c in raw.columns]))
+    if sorted_note:
+        # rows sorted by another column, whole days out of order (layouts47; refused
+        # before, naming the fix: layouts45)
+        warnings.append(ReaderNote(f"input file {source!r}: {sorted_note}"))
+    if newest_first or order is not None:
         # a portal's export sorted newest first (layouts38; refused before with "sort a
         # copy of the file oldest first"): read in the logger's order, parsed again so
         # that civil time's repeated autumn hour is resolved by that order
-        order = np.arange(len(raw))[::-1]
+        order = np.arange(len(raw))[::-1] if newest_first else order
         raw = raw.iloc[order].reset_index(drop=True)
         stamp_text = stamp_text.iloc[order].reset_index(drop=True)
         lines = lines[order]
