@@ -52,6 +52,7 @@ import pyarrow.compute as pc
 
 from . import (
     bracket_names,
+    day_counts,
     day_summaries,
     digit_grouping,
     flux_rate_labels,
@@ -4127,6 +4128,19 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         later_notes.setdefault("marked", []).append((str(path), mark))
     elif mark:
         warnings.append(_marked_header_warning([(str(path), mark)]))
+    if header_cells.group_line_above(text, rows_before_header, delimiter,
+                                     [*columns.values(), *time_columns, *flag_columns]):
+        rows_before_header += 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {rows_before_header} holds group titles above "
+            f"the header (line {rows_before_header + 1} holds every column named in the "
+            "settings): read past"))
+    if not rows_after_header and header_cells.bracketed_units_row(text, rows_before_header,
+                                                                   delimiter):
+        rows_after_header = 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {rows_before_header + 2} under the header holds "
+            "units in brackets, no record: read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
@@ -4245,6 +4259,14 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
         lines = lines[:kept]
+    counted = (day_counts.as_clock(stamp_text, time_format)
+               if not isinstance(time_columns, str) and len(time_columns) == 2 else None)
+    if counted is not None:
+        # minutes or seconds of the day beside a date (layouts47; refused before, naming
+        # the count: layouts36)
+        stamp_text, said = counted
+        warnings.append(ReaderNote(f"input file {source!r}: column {time_columns[1]!r}: "
+                                   f"{said}"))
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
