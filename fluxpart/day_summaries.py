@@ -68,14 +68,10 @@ def summary_lines(stamp_text: pd.Series, cells: pd.DataFrame, time_format: str,
     if not shorter.any():
         return none                     # the usual file: every stamp as long as most
     labelled = text.str.fullmatch(_LABEL.pattern, case=False).to_numpy() & (digits == 0)
-    period = pd.Series(pd.NaT, index=text.index, dtype="datetime64[ns]")
-    length = pd.Series("", index=text.index)
-    for form, unit in _PERIOD_FORMATS:
-        read = pd.to_datetime(text.where(period.isna() & shorter), format=form,
-                              errors="coerce")
-        length = length.mask(read.notna() & period.isna(), unit)
-        period = period.fillna(read)
-    dated = period.notna().to_numpy()
+    # each form's reading of the shorter stamps: "01/02/2021" is a day in two forms
+    periods = [(pd.to_datetime(text.where(shorter), format=form, errors="coerce"), unit)
+               for form, unit in _PERIOD_FORMATS]
+    dated = np.logical_or.reduce([read.notna().to_numpy() for read, _ in periods])
     candidate = labelled | dated
     if not candidate.any() or candidate.all() or candidate.sum() > 0.2 * len(text):
         return none
@@ -91,15 +87,15 @@ def summary_lines(stamp_text: pd.Series, cells: pd.DataFrame, time_format: str,
     statistic: dict = {}
     for start, row in zip(starts, rows, strict=True):
         block = slice(start, row)
-        if dated[row] and not _holds_most(stamps.iloc[block], period.iloc[row],
-                                          length.iloc[row]):
+        if dated[row] and not any(_holds_most(stamps.iloc[block], read.iloc[row], unit)
+                                  for read, unit in periods if pd.notna(read.iloc[row])):
             return none
         if not _values_agree(cells.iloc[row], numbers.iloc[block], missing, decimal,
                              statistic):
             return none
     listed = ", ".join(str(int(lines[r])) for r in rows[:3]) + (", ..." if rows.size > 3 else "")
     shown = ", ".join(repr(v) for v in dict.fromkeys(text.iloc[rows[:2]]))
-    kinds = " and ".join(sorted(set(statistic.values())))
+    kinds = " or ".join(sorted(set().union(*statistic.values())))
     return rows, (f"{rows.size} summary line(s) among the records (lines {listed}: "
                   f"{shown}{', ...' if rows.size > 2 else ''}) hold in every value written "
                   f"the {kinds} of the records above them"
@@ -148,15 +144,12 @@ def _values_agree(line: pd.Series, block: pd.DataFrame, missing: tuple, decimal:
         places = _DECIMALS.search(cell)
         tolerance = 0.5 * 10.0 ** -(len(places[1]) if places else 0) + 1e-9 * abs(value)
         present = block[column].dropna()
-        if present.empty:
-            return False
-        found = [name for name, got in (("mean", present.mean()), ("sum", present.sum()))
-                 if abs(got - value) <= tolerance]
-        kind = statistic.get(column)
-        if kind is not None:
-            found = [name for name in found if name == kind]
+        # the sum of no value is 0 (the empty sum); a mean of none is no number
+        found = {name for name, got in (("mean", present.mean() if len(present) else np.nan),
+                                        ("sum", present.sum()))
+                 if abs(got - value) <= tolerance} & statistic.get(column, {"mean", "sum"})
         if not found:
             return False
-        statistic[column] = found[0]
+        statistic[column] = found
         agreed += 1
     return agreed >= 2

@@ -4272,8 +4272,10 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                           rows_after_header=rows_after_header)
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
-    order, sorted_note = (None, "") if newest_first else record_order.time_order(
+    order, sorted_note = (None, "") if newest_first and parsed.stamps[
+        ::-1].is_monotonic_increasing else record_order.time_order(
         parsed.stamps, raw.drop(columns=[c for c in time_columns if c in raw.columns]))
+    newest_first = newest_first and order is None
     if sorted_note:
         # rows sorted by another column, whole days out of order (layouts47; refused
         # before, naming the fix: layouts45)

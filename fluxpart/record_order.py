@@ -44,11 +44,12 @@ def time_order(stamps: pd.DatetimeIndex, cells: pd.DataFrame) -> tuple[np.ndarra
     interval = pd.Series(ordered[1:] - ordered[:-1]).mode().iloc[0]
     if interval <= pd.Timedelta(0) or ((ordered - ordered[0]) % interval).any():
         return None, ""                 # a stamp off the records' grid
-    column = _ordering_column(stamps, cells)
+    complete = len(ordered) == (ordered[-1] - ordered[0]) / interval + 1
+    column = _ordering_column(stamps, cells, complete)
     if column:
         return order, (f"its records are sorted by column {column!r}, not by time (every "
-                       "stamp unique and on the records' grid, the runs in time order "
-                       "interleaving): read in time order")
+                       "stamp unique and on the records' grid, no clock reset possible): "
+                       "read in time order")
     blocks = _whole_days_out_of_order(stamps, interval)
     if blocks:
         return order, (f"its records are {blocks} whole days or months out of time order, "
@@ -57,15 +58,18 @@ def time_order(stamps: pd.DatetimeIndex, cells: pd.DataFrame) -> tuple[np.ndarra
     return None, ""
 
 
-def _ordering_column(stamps: pd.DatetimeIndex, cells: pd.DataFrame) -> str:
+def _ordering_column(stamps: pd.DatetimeIndex, cells: pd.DataFrame, complete: bool) -> str:
     """The first column whose numbers are monotone in file order (cells of no number
-    together at one end) where the file's runs in time order interleave (in time order
-    the records pass between runs more than twice a run, as no clock reset's do), or "".
+    together at one end), or "", asked only where no clock reset can explain the order:
+    the stamps `complete` (every record interval from the first to the last once: a
+    block written under a wrong time leaves a gap where it belongs), or the file's runs
+    in time order interleaving (in time order the records pass between runs more than
+    twice a run, as no clock reset's do).
     """
     steps = np.asarray((stamps[1:] - stamps[:-1]) / pd.Timedelta(seconds=1))
     run = np.concatenate(([0], np.cumsum(steps < 0)))
     passes = int((np.diff(run[np.argsort(np.asarray(stamps), kind="stable")]) != 0).sum())
-    if passes <= 2 * (int(run[-1]) + 1):
+    if not complete and passes <= 2 * (int(run[-1]) + 1):
         return ""
     for name in cells.columns:
         values = pd.to_numeric(cells[name].astype(str).str.strip(), errors="coerce").to_numpy()
