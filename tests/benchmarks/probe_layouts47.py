@@ -111,29 +111,29 @@ def one_file_of_month_blocks_each_newest_first(folder):
     toml(folder, "t.csv")
 
 
-@case
-def whole_days_in_reverse_order_each_oldest_first(folder):
-    """Daily files pasted newest day first, each day's records in time order."""
+def days_in_reverse(folder, left_out=""):
+    """The example's days pasted newest day first, each in time order, day `left_out`
+    (ISO date) not written."""
     raw, ends = table()
     day = (ends - pd.Timedelta("30min")).dt.date.to_numpy()
     text = lines(raw)[:1]
     for d in sorted(set(day), reverse=True):
-        text += lines(raw[day == d], header=False)
+        if str(d) != left_out:
+            text += lines(raw[day == d], header=False)
     write(folder / "t.csv", text)
     toml(folder, "t.csv")
+
+
+@case
+def whole_days_in_reverse_order_each_oldest_first(folder):
+    """Daily files pasted newest day first, each day's records in time order."""
+    days_in_reverse(folder)
 
 
 @case
 def whole_days_in_reverse_order_one_day_missing(folder):
     """Twin: as above with 1 March left out: the blocks do not meet (a gap)."""
-    raw, ends = table()
-    day = (ends - pd.Timedelta("30min")).dt.date.to_numpy()
-    text = lines(raw)[:1]
-    for d in sorted(set(day), reverse=True):
-        if str(d) != "2021-03-01":
-            text += lines(raw[day == d], header=False)
-    write(folder / "t.csv", text)
-    toml(folder, "t.csv")
+    days_in_reverse(folder, "2021-03-01")
     return "refused"
 
 
