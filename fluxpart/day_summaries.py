@@ -81,21 +81,19 @@ def summary_lines(stamp_text: pd.Series, cells: pd.DataFrame, time_format: str,
     starts = np.concatenate(([0], rows[:-1] + 1))
     if (rows - starts).min() < 3:
         return none
-    stamps = pd.to_datetime(text.where(~pd.Series(candidate, index=text.index)),
-                            format=time_format, errors="coerce")
-    numbers = _numbers(cells, missing, decimal)
-    statistic: dict = {}
-    for start, row in zip(starts, rows, strict=True):
-        block = slice(start, row)
-        if dated[row] and not any(_holds_most(stamps.iloc[block], read.iloc[row], unit)
-                                  for read, unit in periods if pd.notna(read.iloc[row])):
-            return none
-        if not _values_agree(cells.iloc[row], numbers.iloc[block], missing, decimal,
-                             statistic):
-            return none
+    # each record's block: the summary line closing it (records after the last: none)
+    block = np.cumsum(candidate) - candidate
+    records = ~candidate & (block < rows.size)
+    stamps = pd.to_datetime(text[records], format=time_format, errors="coerce")
+    if dated.any() and not _dates_hold_most(stamps, block[records], rows, dated, periods):
+        return none
+    statistic = _statistics(_numbers(cells, missing, decimal), cells, block, records, rows)
+    if not statistic:
+        return none
     listed = ", ".join(str(int(lines[r])) for r in rows[:3]) + (", ..." if rows.size > 3 else "")
     shown = ", ".join(repr(v) for v in dict.fromkeys(text.iloc[rows[:2]]))
-    kinds = " or ".join(sorted(set().union(*statistic.values())))
+    told = {kind for kinds in statistic if len(kinds) == 1 for kind in kinds}
+    kinds = " or ".join(sorted(told or set().union(*statistic)))
     return rows, (f"{rows.size} summary line(s) among the records (lines {listed}: "
                   f"{shown}{', ...' if rows.size > 2 else ''}) hold in every value written "
                   f"the {kinds} of the records above them"
@@ -118,38 +116,51 @@ def _numbers(cells: pd.DataFrame, missing: tuple, decimal: str) -> pd.DataFrame:
     return pd.DataFrame(out)
 
 
-def _holds_most(stamps: pd.Series, start, unit: str) -> bool:
-    """Whether most of the records above a dated line fall in its day or month (a record
-    ending at its midnight included)."""
-    end = start + (pd.DateOffset(months=1) if unit == "M" else pd.Timedelta(days=1))
-    inside = (stamps >= start) & (stamps <= end)
-    return bool(inside.sum() > 0.5 * len(stamps))
+def _dates_hold_most(stamps: pd.Series, block: np.ndarray, rows: np.ndarray,
+                     dated: np.ndarray, periods: list) -> bool:
+    """Whether the date or month of every dated summary line holds most of the records
+    of its block (a record ending at its closing midnight included), in one of the
+    forms the line's stamp reads in."""
+    held = np.zeros(rows.size, dtype=bool)
+    counts = np.bincount(block, minlength=rows.size)
+    for read, unit in periods:
+        start = read.to_numpy()[rows]
+        end = ((pd.DatetimeIndex(start) + pd.DateOffset(months=1)).to_numpy() if unit == "M"
+               else start + np.timedelta64(1, "D"))
+        written = stamps.to_numpy()
+        inside = (written >= start[block]) & (written <= end[block])
+        held |= np.bincount(block, weights=inside, minlength=rows.size) > 0.5 * counts
+    return bool(held[dated[rows]].all())
 
 
-def _values_agree(line: pd.Series, block: pd.DataFrame, missing: tuple, decimal: str,
-                  statistic: dict) -> bool:
-    """Whether every number of the summary `line` is the mean or the sum of its column in
-    `block` to the decimals written (half a unit of the last one), each column one
-    statistic over all lines (kept in `statistic`); two numbers at least."""
-    agreed = 0
-    written = _numbers(line.to_frame().T, missing, decimal).iloc[0]
-    for column, value in written.items():
-        if not np.isfinite(value):
-            # no value: a mean or sum over a missing record is none (kept by loggers)
-            if not block[column].isna().any():
-                return False
-            agreed += 1
-            continue
-        cell = str(line[column]).strip()
-        places = _DECIMALS.search(cell)
-        tolerance = 0.5 * 10.0 ** -(len(places[1]) if places else 0) + 1e-9 * abs(value)
-        present = block[column].dropna()
-        # the sum of no value is 0 (the empty sum); a mean of none is no number
-        found = {name for name, got in (("mean", present.mean() if len(present) else np.nan),
-                                        ("sum", present.sum()))
-                 if abs(got - value) <= tolerance} & statistic.get(column, {"mean", "sum"})
-        if not found:
-            return False
-        statistic[column] = found
-        agreed += 1
-    return agreed >= 2
+def _statistics(numbers: pd.DataFrame, cells: pd.DataFrame, block: np.ndarray,
+                records: np.ndarray, rows: np.ndarray) -> list:
+    """The statistic ({"mean"}, {"sum"} or both) of each column where every number of
+    every summary line is the mean or the sum of its column over its block's records to
+    the decimals written (half a unit of the last one), one statistic a column over all
+    lines; a cell of no value only where a record of its block has none (a logger's mean
+    over a missing record is none); the sum of no value is 0 (the empty sum). [] where a
+    line fails, or agrees in fewer than two cells."""
+    grouped = numbers[records].groupby(block[records])
+    means = grouped.mean().reindex(range(rows.size)).to_numpy()
+    sums = grouped.sum().reindex(range(rows.size)).fillna(0.0).to_numpy()
+    sizes = np.bincount(block[records], minlength=rows.size)[:, None]
+    lacking = (sizes - grouped.count().reindex(range(rows.size)).fillna(0).to_numpy()) > 0
+    written = numbers.to_numpy()[rows]
+    places = cells.iloc[rows].apply(lambda column: column.astype(str).str.strip().str.extract(
+        _DECIMALS.pattern, expand=False).str.len()).fillna(0).to_numpy(dtype=float)
+    tolerance = 0.5 * 10.0 ** -places + 1e-9 * np.abs(np.nan_to_num(written))
+    finite = np.isfinite(written)
+    if (~finite & ~lacking).any():
+        return []
+    with np.errstate(invalid="ignore"):
+        by_mean = ~finite | (np.abs(means - written) <= tolerance)
+        by_sum = ~finite | (np.abs(sums - written) <= tolerance)
+    found = []
+    for j in range(written.shape[1]):
+        kinds = {name for name, ok in (("mean", by_mean[:, j]), ("sum", by_sum[:, j]))
+                 if ok.all()}
+        if not kinds:
+            return []
+        found.append(kinds)
+    return found if (finite | lacking).sum(axis=1).min() >= 2 else []
