@@ -4272,9 +4272,13 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                           rows_after_header=rows_after_header)
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
-    order, sorted_note = (None, "") if newest_first and parsed.stamps[
-        ::-1].is_monotonic_increasing else record_order.time_order(
-        parsed.stamps, raw.drop(columns=[c for c in time_columns if c in raw.columns]))
+    # stamps unique as written too: civil time's repeated autumn hour is read by record
+    # order, which a file sorted by another column does not keep
+    out_of_order = not parsed.stamps.is_monotonic_increasing and not (
+        newest_first and parsed.stamps[::-1].is_monotonic_increasing)
+    order, sorted_note = record_order.time_order(
+        parsed.stamps, raw.drop(columns=[c for c in time_columns if c in raw.columns])
+    ) if out_of_order and stamp_text.is_unique else (None, "")
     newest_first = newest_first and order is None
     if sorted_note:
         # rows sorted by another column, whole days out of order (layouts47; refused
@@ -4282,8 +4286,9 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         warnings.append(ReaderNote(f"input file {source!r}: {sorted_note}"))
     if newest_first or order is not None:
         # a portal's export sorted newest first (layouts38; refused before with "sort a
-        # copy of the file oldest first"): read in the logger's order, parsed again so
-        # that civil time's repeated autumn hour is resolved by that order
+        # copy of the file oldest first"), or the order `record_order` found: read in the
+        # logger's order, parsed again so that civil time's repeated autumn hour is
+        # resolved by that order
         order = np.arange(len(raw))[::-1] if newest_first else order
         raw = raw.iloc[order].reset_index(drop=True)
         stamp_text = stamp_text.iloc[order].reset_index(drop=True)
