@@ -100,3 +100,92 @@ def unwrapped_names(file_names: list, wanted) -> dict:
             if unwrapped not in file_names:
                 renamed[name] = unwrapped
     return renamed
+
+
+def _cells(line: str, delimiter: str) -> list:
+    """A line's cells, stripped of blanks and quotes."""
+    split = line.split() if delimiter == "whitespace" else line.split(delimiter)
+    return [cell.strip().strip('"').strip() for cell in split]
+
+
+def _is_number(cell: str) -> bool:
+    try:
+        float(cell.replace(",", "."))
+    except ValueError:
+        return False
+    return True
+
+
+def group_line_above(text: str, rows_before_header: int, delimiter: str, wanted) -> bool:
+    """Whether the line set as the header is a line of group titles above it
+    ("Fluxes,,Met,,,Soil,,": a spreadsheet's merged cells over its columns).
+
+    It is where that line holds none of `wanted`, no number and some empty cells, and the
+    next line holds every name of `wanted` (so no other line can be the header); the
+    header is then the next line (layouts47; refused before, "set rows_before_header").
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+    rows_before_header : int
+        Lines set above the header line.
+    delimiter : str
+        ``[input] delimiter`` (``"whitespace"`` is never judged: its empty cells vanish).
+    wanted : iterable of str
+        Every name the settings give (mapped, time and flag columns).
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    Spreadsheets write a merged cell's text in its first column and leave the others
+    empty when saved as CSV (common practice).
+    """
+    if delimiter == "whitespace":
+        return False
+    head = text.lstrip("\ufeff").split("\n", rows_before_header + 2)
+    if len(head) < rows_before_header + 2:
+        return False
+    wanted = {name for name in wanted if isinstance(name, str)}
+    group = _cells(head[rows_before_header].rstrip("\r"), delimiter)
+    names = set(_cells(head[rows_before_header + 1].rstrip("\r"), delimiter))
+    filled = [cell for cell in group if cell]
+    return bool(wanted and filled and len(filled) < len(group) and wanted <= names
+                and not wanted & set(group) and not any(_is_number(c) for c in filled))
+
+
+def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> bool:
+    """Whether the line under the header is a row of units in brackets ("[-],
+    [umol/m2/s],[W/m2],...": every cell, the stamp column's too, bracketed or empty, one
+    cell a header name each, none a number), which no record can be (layouts47; refused
+    before, "set rows_after_header = 1").
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+    rows_before_header : int
+        Lines above the header line.
+    delimiter : str
+        ``[input] delimiter``.
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    Loggers and spreadsheets write a column's unit in brackets in a row under its name
+    (common practice).
+    """
+    head = text.lstrip("\ufeff").split("\n", rows_before_header + 2)
+    if len(head) < rows_before_header + 3:
+        return False
+    names = _cells(head[rows_before_header].rstrip("\r"), delimiter)
+    units = _cells(head[rows_before_header + 1].rstrip("\r"), delimiter)
+    filled = [cell for cell in units if cell]
+    return (len(units) == len(names) and len(filled) >= max(2, len(units) // 2)
+            and bool(units[0]) and all(c.startswith("[") and c.endswith("]") for c in filled))

@@ -52,6 +52,8 @@ import pyarrow.compute as pc
 
 from . import (
     bracket_names,
+    day_counts,
+    day_summaries,
     digit_grouping,
     flux_rate_labels,
     footers,
@@ -59,6 +61,7 @@ from . import (
     header_cells,
     interleaved_lines,
     later_files,
+    record_order,
     table_formats,
     unicode_names,
 )
@@ -4136,6 +4139,19 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         later_notes.setdefault("marked", []).append((str(path), mark))
     elif mark:
         warnings.append(_marked_header_warning([(str(path), mark)]))
+    if header_cells.group_line_above(text, rows_before_header, delimiter,
+                                     [*columns.values(), *time_columns, *flag_columns]):
+        rows_before_header += 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {rows_before_header} holds group titles above "
+            f"the header (line {rows_before_header + 1} holds every column named in the "
+            "settings): read past"))
+    if not rows_after_header and header_cells.bracketed_units_row(text, rows_before_header,
+                                                                   delimiter):
+        rows_after_header = 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {rows_before_header + 2} under the header holds "
+            "units in brackets, no record: read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
@@ -4216,6 +4232,18 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             judged_format, time_zone, utc_offset, source)
         if zone_said:
             raise TimestampError(zone_said)
+    summaries, said = day_summaries.summary_lines(
+        stamp_text, raw[[c for c in dict.fromkeys([*mapping.values(), *flag_columns])
+                         if c in raw.columns and c not in time_columns]],
+        time_format, tuple(missing) + tuple(flag_missing or ()), decimal, lines)
+    if summaries.size:
+        # a day's or a month's means or sums among the records, verified against them
+        # (layouts47; refused before, naming them: layouts45)
+        warnings.append(ReaderNote(f"input file {source!r}: {said}"))
+        kept = np.setdiff1d(np.arange(len(raw)), summaries)
+        raw = raw.iloc[kept].reset_index(drop=True)
+        stamp_text = stamp_text.iloc[kept].reset_index(drop=True)
+        lines = lines[kept]
     summary = footers.summary_rows(stamp_text, time_columns)
     if summary:
         # a spreadsheet's statistics under the records ("mean", "max"): no stamp, no
@@ -4242,16 +4270,37 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raw = raw.iloc[:kept].reset_index(drop=True)
         stamp_text = stamp_text.iloc[:kept].reset_index(drop=True)
         lines = lines[:kept]
+    counted = (day_counts.as_clock(stamp_text, time_format)
+               if not isinstance(time_columns, str) and len(time_columns) == 2 else None)
+    if counted is not None:
+        # minutes or seconds of the day beside a date (layouts47; refused before, naming
+        # the count: layouts36)
+        stamp_text, said = counted
+        warnings.append(ReaderNote(f"input file {source!r}: column {time_columns[1]!r}: "
+                                   f"{said}"))
     parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
                           lines=lines, utc_offset=utc_offset, time_zone=time_zone,
                           rows_after_header=rows_after_header)
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
-    if newest_first:
+    # stamps unique as written too: civil time's repeated autumn hour is read by record
+    # order, which a file sorted by another column does not keep
+    out_of_order = not parsed.stamps.is_monotonic_increasing and not (
+        newest_first and parsed.stamps[::-1].is_monotonic_increasing)
+    order, sorted_note = record_order.time_order(
+        parsed.stamps, raw.drop(columns=[c for c in time_columns if c in raw.columns])
+    ) if out_of_order and stamp_text.is_unique else (None, "")
+    newest_first = newest_first and order is None
+    if sorted_note:
+        # rows sorted by another column, whole days out of order (layouts47; refused
+        # before, naming the fix: layouts45)
+        warnings.append(ReaderNote(f"input file {source!r}: {sorted_note}"))
+    if newest_first or order is not None:
         # a portal's export sorted newest first (layouts38; refused before with "sort a
-        # copy of the file oldest first"): read in the logger's order, parsed again so
-        # that civil time's repeated autumn hour is resolved by that order
-        order = np.arange(len(raw))[::-1]
+        # copy of the file oldest first"), or the order `record_order` found: read in the
+        # logger's order, parsed again so that civil time's repeated autumn hour is
+        # resolved by that order
+        order = np.arange(len(raw))[::-1] if newest_first else order
         raw = raw.iloc[order].reset_index(drop=True)
         stamp_text = stamp_text.iloc[order].reset_index(drop=True)
         lines = lines[order]

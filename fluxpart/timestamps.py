@@ -22,6 +22,7 @@ from datetime import datetime, timedelta
 import numpy as np
 import pandas as pd
 
+from . import day_counts
 from .config import setting_text
 from .counted_time import (
     counted_form,
@@ -735,47 +736,24 @@ def _serial_date_column(text: pd.Series, time_columns) -> str:
 
 
 #: Units a time field may count from midnight in: (name, per day, per minute).
-_DAY_COUNTS = (("seconds", 86400, 60), ("minutes", 1440, 1))
-
-
 def _seconds_of_day(text: pd.Series, time_format: str) -> str:
     """Name a time field that counts the seconds or the minutes of the day ("2021-06-01
-    3600" or "2021-06-01 60" for 01:00), or "".
+    3600" or "2021-06-01 60" for 01:00; :func:`fluxpart.day_counts.day_count`), or "".
 
-    The test: a format whose time is ``%H%M``, ``%M`` or ``%S`` at its end, and the last
-    field of every stamp a whole number from 0 to a day's count in steps of whole
-    minutes, some of them no hhmm clock reads (above 2400, or 60 to 99 past a hundred)
-    and the median step between stamps 30 or 60 minutes in that unit. Such stamps are
-    refused rather than read (layouts33: seconds refused with no cause; layouts36:
-    minutes): the counts are plain to convert in a copy.
-
-    References
-    ----------
-    A day holds 86,400 seconds, 1,440 minutes (SI; common practice); loggers write the
-    time of day as seconds or minutes since midnight beside a date (common practice).
+    Such stamps are read where the count is a column beside a date and the format's
+    time hours and minutes (``day_counts.as_clock``, layouts47); this names the others
+    (layouts33: seconds refused with no cause; layouts36: minutes).
     """
-    if not time_format.endswith(("%H%M", "%M", "%S")):
+    found = day_counts.day_count(text, time_format)
+    if found is None:
         return ""
-    last = text.str.strip().str.rsplit(n=1).str[-1]
-    numbers = pd.to_numeric(last, errors="coerce").to_numpy(dtype=float)
-    if numbers.size < 3 or not np.isfinite(numbers).all() \
-            or (numbers != np.round(numbers)).any() or numbers.min() < 0:
-        return ""
-    steps = np.diff(numbers)
-    steps = steps[steps > 0]
-    no_clock = (numbers > 2400) | (numbers % 100 >= 60)
-    for unit, per_day, per_minute in _DAY_COUNTS:
-        if numbers.max() > per_day or (numbers % per_minute).any() or not no_clock.any() \
-                or steps.size == 0 or np.median(steps) not in (30.0 * per_minute,
-                                                               60.0 * per_minute):
-            continue
-        position = int(np.argmax(no_clock))
-        hours, minutes = divmod(int(numbers[position]) // per_minute, 60)
-        return (f"the time field counts the {unit} of the day ({last.iloc[position]!r} is "
-                f"{hours:02d}:{minutes:02d}), not hours and minutes, which fluxpart does "
-                f"not read: write it as hh:mm in a copy of the file ({unit} / "
-                f"{per_minute * 60} hours) and set [input] time_format to match")
-    return ""
+    unit, per_minute, numbers, last, position = found
+    hours, minutes = divmod(int(numbers[position]) // per_minute, 60)
+    return (f"the time field counts the {unit} of the day ({last.iloc[position]!r} is "
+            f"{hours:02d}:{minutes:02d}), not hours and minutes, which fluxpart reads "
+            "only as a column of its own beside a date column under a format whose time "
+            f"is %H:%M: write it so, or as hh:mm, in a copy of the file ({unit} / "
+            f"{per_minute * 60} hours) and set [input] time_format to match")
 
 
 def _date_part(time_format: str) -> str | None:

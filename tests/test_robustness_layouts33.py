@@ -271,16 +271,24 @@ def test_the_lag_of_rg_behind_the_sun_is_recovered():
 # ------------------------------------------------------ seconds of the day as the time
 def test_a_time_field_of_seconds_of_the_day_is_named(tmp_path):
     """A date column beside the time of day as seconds since midnight ('3600' for 01:00;
-    a day holds 86,400 s) under "%Y-%m-%d %H%M" was refused as stamps that fail to parse,
-    with no cause (some, '1800', read as 18:00). Now the seconds are named with the
-    first one beyond any hhmm clock converted."""
+    a day holds 86,400 s, SI) under "%Y-%m-%d %H%M" was refused as stamps that fail to
+    parse, with no cause (some, '1800', read as 18:00); then named (layouts33). Since
+    layouts47 such a column of its own is read as the clock it counts, with a note; the
+    same count joined to the date in one field is still named, not read."""
     starts, records = _tower(periods=48 * 3)
     ends = starts + pd.Timedelta(minutes=30)
     records.insert(0, "date", ends.strftime("%Y-%m-%d"))
     records["stamp"] = ends.hour * 3600 + ends.minute * 60
     records.to_csv(tmp_path / "a.csv", index=False)
+    frame, report = _read(tmp_path / "a.csv", time_column=["date", "stamp"],
+                          time_format="%Y-%m-%d %H%M")
+    pd.testing.assert_index_equal(frame.index, pd.DatetimeIndex(starts, name="time"))
+    assert any("counts the seconds of the day ('3600' is 0100)" in n for n in report.notes)
+    assert not report.warnings
+    records["date"] = records["date"] + " " + records.pop("stamp").astype(str)
+    records.to_csv(tmp_path / "b.csv", index=False)
     with pytest.raises(TimestampError) as caught:
-        _read(tmp_path / "a.csv", time_column=["date", "stamp"], time_format="%Y-%m-%d %H%M")
+        _read(tmp_path / "b.csv", time_column="date", time_format="%Y-%m-%d %H%M")
     message = str(caught.value)
     assert len(message.splitlines()) == 1
     # 01:00 is 3600 s, the first count above 2400 (the largest hhmm)

@@ -135,16 +135,23 @@ def test_header_names_wrapped_over_two_lines_are_read_with_a_blank(tmp_path):
 
 def test_records_appended_late_that_fill_a_gap_are_named_with_the_sort_fix(tmp_path):
     """A day read late from the logger and appended: refused before with "sorting would
-    misplace them", which is the fix here (every stamp fills the gap, none repeats)."""
+    misplace them", which is the fix here (every stamp fills the gap, none repeats).
+    Since layouts47 a whole day so appended is read in time order with a note; a block
+    that is no whole day keeps the named sort fix."""
     frame, _ = _records()
     lines = frame.to_csv(index=False).splitlines()
     late = lines[1 + 96:1 + 144]                       # 3 June, 48 records
     (tmp_path / "late.csv").write_text("\n".join(lines[:97] + lines[145:] + late) + "\n")
+    read, report = _read(tmp_path / "late.csv")
+    np.testing.assert_array_equal(read["nee"].to_numpy(), frame["co2"].to_numpy(float))
+    assert any("3 whole days or months out of time order" in n for n in report.notes)
+    part = lines[1 + 100:1 + 140]                      # 40 records of 3 June
+    (tmp_path / "part.csv").write_text("\n".join(lines[:101] + lines[141:] + part) + "\n")
     with pytest.raises(NonMonotonicTimestampError,
-                       match=r"the 48 records from there \(2021-06-03 00:30 \.\. 2021-06-04 "
-                             r"00:00\) fill the gap between 2021-06-03 00:00 and 2021-06-04 "
-                             r"00:30 of the others exactly .*sort a copy"):
-        _read(tmp_path / "late.csv")
+                       match=r"the 40 records from there \(2021-06-03 02:30 \.\. 2021-06-03 "
+                             r"22:00\) fill the gap between 2021-06-03 02:00 and 2021-06-03 "
+                             r"22:30 of the others exactly .*sort a copy"):
+        _read(tmp_path / "part.csv")
     # a block one record short of its gap (a clock set back): no such fix
     (tmp_path / "reset.csv").write_text("\n".join(lines[:97] + lines[146:] + late) + "\n")
     with pytest.raises(NonMonotonicTimestampError, match="sorting would misplace them"):

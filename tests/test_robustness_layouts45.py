@@ -40,16 +40,18 @@ def _lines(stamps, values, head="stamp"):
 def test_minutes_since_midnight_are_named_as_such_not_as_hhmm(tmp_path):
     """ "2021-06-01" beside "90" (01:30, the start of the record): the refusal named
     HHMM, whose fix ("%H%M") reads "90" as no clock at all; the count it names now
-    converts to the clock it gives."""
+    converts to the clock it gives. Since layouts47 a column of minutes beside a date
+    column is read (test_robustness_layouts47); the count joined to the date in one
+    field is still named."""
     ends, values = _records()
     starts = ends - pd.Timedelta("30min")
     minutes = starts.hour * 60 + starts.minute
     path = tmp_path / "minutes.csv"
-    lines = _lines(zip(starts.strftime("%Y-%m-%d"), minutes.astype(str), strict=True),
-                   values, head="day,minute")
+    joined = starts.strftime("%Y-%m-%d ") + minutes.astype(str)
+    lines = _lines(zip(joined, strict=True), values, head="stamp")
     path.write_text("\n".join(lines) + "\n")
     with pytest.raises(TimestampError) as caught:
-        _read(path, time_column=["day", "minute"], time_marks="start")
+        _read(path, time_marks="start")
     message = str(caught.value)
     named = re.search(r"counts the minutes of the day \('(\d+)' is (\d\d):(\d\d)\)", message)
     assert named, message
@@ -87,13 +89,16 @@ def test_a_clock_reset_is_still_named_beside_the_sorted_rows_test(tmp_path):
 
 
 def test_a_daily_summary_line_after_every_48_records_is_named(tmp_path):
+    """Each line's values the next day's means, not its records': no proof that it holds
+    no record, so named, not dropped (layouts47 drops them where they are the day's)."""
     ends, values = _records()
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     lines = [",".join(["stamp"] + NAMES)]
     for day in range(4):
         rows = slice(48 * day, 48 * (day + 1))
         lines += _lines(zip(stamps[rows], strict=True), values[rows])[1:]
-        lines.append(",".join(["daily mean"] + [f"{v:.3f}" for v in values[rows].mean(0)]))
+        later = slice(48 * (day + 1), 48 * (day + 2))
+        lines.append(",".join(["daily mean"] + [f"{v:.3f}" for v in values[later].mean(0)]))
     path = tmp_path / "daily.csv"
     path.write_text("\n".join(lines) + "\n")
     with pytest.raises(TimestampError) as caught:
@@ -107,11 +112,12 @@ def test_a_daily_summary_line_after_every_48_records_is_named(tmp_path):
 def test_a_day_file_closed_by_a_line_of_the_date_alone_is_not_sorted(tmp_path):
     """A day's records, then "2021-06-01,<means>": the date alone is a midnight that
     goes back in time; named a ring memory read from its start before, whose fix
-    (sort) reads the summary as a record at 00:00."""
+    (sort) reads the summary as a record at 00:00. Its values here another day's means
+    (layouts47 drops such a line where they are its records')."""
     ends, values = _records()
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     lines = _lines(zip(stamps[:48], strict=True), values[:48])
-    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[:48].mean(0)]))
+    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[48:96].mean(0)]))
     path = tmp_path / "day.csv"
     path.write_text("\n".join(lines) + "\n")
     with pytest.raises(NonMonotonicTimestampError) as caught:
@@ -124,11 +130,12 @@ def test_a_day_file_closed_by_a_line_of_the_date_alone_is_not_sorted(tmp_path):
 
 def test_a_day_file_of_start_stamps_closed_by_its_date_names_the_summary(tmp_path):
     """Start stamps 00:00 .. 23:30, then "2021-06-01,<means>": the date alone repeats
-    the first record's stamp; one day was told "keep one of them" (either)."""
+    the first record's stamp; one day was told "keep one of them" (either). Its values
+    here another day's means."""
     ends, values = _records()
     stamps = (ends - pd.Timedelta("30min")).strftime("%Y-%m-%d %H:%M")
     lines = _lines(zip(stamps[:48], strict=True), values[:48])
-    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[:48].mean(0)]))
+    lines.append(",".join(["2021-06-01"] + [f"{v:.3f}" for v in values[48:96].mean(0)]))
     path = tmp_path / "day.csv"
     path.write_text("\n".join(lines) + "\n")
     with pytest.raises(DuplicateTimestampError) as caught:
@@ -139,10 +146,11 @@ def test_a_day_file_of_start_stamps_closed_by_its_date_names_the_summary(tmp_pat
 
 
 def test_a_month_file_closed_by_a_line_of_its_month_names_the_summary(tmp_path):
+    """Its values here the records' means plus one: not the month's, so named."""
     ends, values = _records()
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     lines = _lines(zip(stamps, strict=True), values)
-    lines.append(",".join(["2021-06"] + [f"{v:.3f}" for v in values.mean(0)]))
+    lines.append(",".join(["2021-06"] + [f"{v + 1:.3f}" for v in values.mean(0)]))
     path = tmp_path / "month.csv"
     path.write_text("\n".join(lines) + "\n")
     with pytest.raises(TimestampError) as caught:
