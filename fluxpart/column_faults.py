@@ -302,14 +302,15 @@ def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tup
     return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count
 
 
-def _decide(scores: dict):
+def _decide(scores: dict, bound: float = _LAG_STANDARD_ERRORS):
     """The shift whose correlation clearly beats the same record's, or None.
 
     `scores` maps a shift k [records] to (correlation, pairs), the correlation signed so
     that the physical relation is positive. Returns (k, its correlation, that of k = 0,
     Fisher z difference in standard errors) where k is not 0, its correlation reaches
-    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by
-    :data:`_LAG_STANDARD_ERRORS` standard errors (sqrt(2 / (n - 3))); otherwise None.
+    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by `bound`
+    (default :data:`_LAG_STANDARD_ERRORS`) standard errors (sqrt(2 / (n - 3))); otherwise
+    None.
     """
     if not all(math.isfinite(v) for v, _ in scores.values()):
         return None
@@ -320,7 +321,7 @@ def _decide(scores: dict):
     z_best = math.atanh(min(strength, 0.999999))
     z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
     error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
-    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
+    if z_best - z_zero <= bound * error:
         return None
     return best, strength, scores[0][0], (z_best - z_zero) / error
 
@@ -790,7 +791,8 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     record (Lambers, Chapin & Pons 2008, ch. 2 (m)). Where the changes of Rg ``k``
     days (``k`` from 1 to :data:`_MAX_SHIFT_DAYS` either way) away correlate with
     those of NEE clearly more strongly than those of the same day (Fisher z larger by
-    3 standard errors, sqrt(2 / (n - 3))), the two records are named as whole days
+    Bonferroni's bound for the shifts compared, :func:`_family_bound`: 4.1 standard
+    errors, sqrt(2 / (n - 3)), for 62 shifts), the two records are named as whole days
     apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
@@ -812,7 +814,9 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
-    found = _decide(scores)
+    # the best of up to 62 shifts against the same record: each one more draw of the
+    # noise, so Bonferroni's bound for the shifts compared (falsealarm53)
+    found = _decide(scores, _family_bound(len(scores) - 1))
     if found is None:
         return None
     best, strength, same, apart = found

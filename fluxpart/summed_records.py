@@ -21,9 +21,9 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .split_factor import UNIT_FIT, jump_factor
+from .split_factor import FORTNIGHT_DAYS, UNIT_FIT, jump_factor
 
-__all__ = ["SUM_FACTOR", "summed_stretch"]
+__all__ = ["SUM_FACTOR", "season_trend", "summed_stretch"]
 
 #: Factor of a sum of two records' rates against their mean [1]: 2, by definition.
 SUM_FACTOR = 2.0
@@ -41,6 +41,58 @@ def _first_long_stretch(starts: pd.DatetimeIndex, interval_minutes: int) -> int 
     first, last = edges[0::2], edges[1::2]
     long = (last - first) >= _MIN_DAYS * 24 * 60 // (2 * interval_minutes)
     return int(first[long][0]) + 1 if long.any() else None
+
+
+def _top(values: np.ndarray, index: pd.DatetimeIndex, start: pd.Timestamp) -> float | None:
+    """The 99th percentile of |values| in the fortnight from `start`, or None (fewer than
+    48 values, or 0)."""
+    lo, hi = index.searchsorted([start, start + pd.Timedelta(days=FORTNIGHT_DAYS)])
+    kept = np.abs(values[lo:hi])
+    kept = kept[np.isfinite(kept)]
+    top = float(np.percentile(kept, 99)) if kept.size >= 48 else 0.0
+    return top if top > 0.0 else None
+
+
+def season_trend(nee, index: pd.DatetimeIndex, at: pd.Timestamp) -> float:
+    """The season's growth of |NEE| per fortnight either side of `at` [1]: the geometric mean
+    of the 99th percentiles' ratio of the fortnight before `at` to the one before it and of
+    the second fortnight after `at` to the first (1 where neither pair holds 48 values each),
+    the ratio a smooth course of log |NEE| predicts across `at`.
+
+    A sum of two half-hours doubles every value from the change on at once; a season
+    (leaf-out, a crop's growth, a snow melt) grows the flux over weeks, through the change
+    as much as beside it: a crop in full growth doubles its largest uptake in a fortnight
+    or two (an invented maize's grew 1.77 times across a logger's change to hourly means
+    on 14 June, round falsealarm53). The jump at the change is judged against this trend.
+
+    Parameters
+    ----------
+    nee : array_like
+        NEE of each record [µmol m-2 s-1], NaN where missing.
+    index : pandas.DatetimeIndex
+        Interval starts of the records.
+    at : pandas.Timestamp
+        The change.
+
+    Returns
+    -------
+    float
+        The trend factor per fortnight [1].
+
+    References
+    ----------
+    Aubinet, M., Vesala, T., & Papale, D. (Eds.) (2012). Eddy Covariance. Springer, ch. 1
+    (m).
+    """
+    values = np.asarray(nee, dtype=float)
+    index = pd.DatetimeIndex(index)
+    span = pd.Timedelta(days=FORTNIGHT_DAYS)
+    ratios = []
+    for earlier, later in ((at - 2 * span, at - span), (at, at + span)):   # fortnights' starts
+        pair = _top(values, index, earlier), _top(values, index, later)
+        if None not in pair:
+            ratios.append(np.log(pair[1] / pair[0]))
+    return float(np.exp(np.mean(ratios))) if ratios else 1.0
 
 
 def summed_stretch(nee, index: pd.DatetimeIndex, starts: pd.DatetimeIndex,
@@ -65,7 +117,8 @@ def summed_stretch(nee, index: pd.DatetimeIndex, starts: pd.DatetimeIndex,
     str or None
         The warning; None where the file has no day of stamps two intervals apart in a row,
         or where the 99th percentile of |NEE| in the fortnight after the change (searched
-        from a day before it to a day after) is not :data:`SUM_FACTOR` times that of the
+        from a day before it to a day after), divided by the season's growth per fortnight
+        beside it (:func:`season_trend`), is not :data:`SUM_FACTOR` times that of the
         fortnight before within ``split_factor.UNIT_FIT`` (1.4), or either fortnight holds
         fewer than 48 values.
 
@@ -83,11 +136,14 @@ def summed_stretch(nee, index: pd.DatetimeIndex, starts: pd.DatetimeIndex,
     if found is None:
         return None
     ratio = 1.0 / found[0]               # later over earlier
-    if not SUM_FACTOR / UNIT_FIT <= ratio <= SUM_FACTOR * UNIT_FIT:
+    trend = season_trend(nee, index, found[1])
+    if not SUM_FACTOR / UNIT_FIT <= ratio / trend <= SUM_FACTOR * UNIT_FIT:
         return None
+    beside = (f", {ratio / trend:.2f} beyond the season's {trend:.2f} a fortnight beside it"
+              if abs(np.log(trend)) >= np.log(1.05) else "")
     return (f"NEE (column {column!r}) grows {ratio:.2f} times where the stamps turn "
             f"{2 * interval_minutes} minutes apart ({starts[first]:%Y-%m-%d %H:%M}; the 99th "
-            "percentile of |NEE| in the fortnight after it against the fortnight before): "
+            f"percentile of |NEE| in the fortnight after it against the fortnight before{beside}): "
             "NEE is a rate, and an hour's value is the mean of its half-hours; their sum "
             "reads twice the flux, and every sum drawn from it doubles: average, do not "
             "add, the half-hours in a copy of the file")
