@@ -224,6 +224,12 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
     exp(-z / d) of the surface's, d about 0.1 m; Campbell & Norman 1998, ch. 8 (m)) in
     every month, so a month whose soil column swings more than 1.5 times the air's, and
     by more than 1 K, holds a surface probe of bare, dry soil or the columns swapped.
+    A swap turns a month's ratio r into 1 / r, so the months left right hold a soil
+    damped against the air: where the months not named swing the soil column as much as
+    the air or more (their median ratio 1 or above), the named ones are the sunny season
+    of a shallow probe under a sparse canopy (an invented sub-Antarctic heath's probe at
+    2 cm: ratios 1.0-1.56 month by month, three months past 1.5; round falsealarm53), and
+    nothing is named.
     On the example site, the columns swapped from July moved nighttime GPP and Reco by
     -89 g C m-2 and daytime GPP by -62 without a word (the whole record's medians, air
     3.8 K and soil 4.7 K, kept it quiet).
@@ -256,7 +262,7 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
         air_ranges = np.nanmax(grid_air, axis=1) - np.nanmin(grid_air, axis=1)
         soil_ranges = np.nanmax(grid_soil, axis=1) - np.nanmin(grid_soil, axis=1)
     months = (first_day + pd.to_timedelta(np.flatnonzero(usable), unit="D")).strftime("%Y-%m")
-    named = []
+    named, others = [], []
     for month in pd.unique(months):
         here = months == month
         if here.sum() < _MIN_DAYS:
@@ -266,7 +272,13 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
         if (soil_range > SOIL_RANGE_RATIO * air_range
                 and soil_range - air_range > _SOIL_RANGE_EXCESS):
             named.append((month, air_range, soil_range))
-    if not named:
+        elif air_range > 0:
+            others.append(soil_range / air_range)
+    # a swap turns a month's ratio r into 1 / r: months above 1.5 swapped hold a soil
+    # below 1 / 1.5 of the air's, and the months around them, right, a soil damped as
+    # much. Where the soil column swings as much as the air in the months not named too,
+    # those months are the sunny season of a shallow probe (falsealarm53)
+    if not named or (others and np.median(others) >= 1.0):
         return None
     names = columns or {}
     air_column, soil_column = names.get("tair", "tair"), names.get("tsoil", "tsoil")

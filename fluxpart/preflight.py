@@ -268,10 +268,12 @@ _CURTAIN_JUMP = 5.0
 # value for days as it crosses one step of its resolution (an invented tundra soil at
 # -1.4 °C for 2.3 days under snow, round falsealarm53). A held value is evidence of a
 # stopped probe only where the soil beside it moves more than that: a run is excepted
-# where every present record in as many records before it and after it lies within this
-# many steps of the logger's resolution (the smallest change between consecutive values)
-# of the run's value. A probe stopped in such a soil writes what it would have read
-# within its resolution.
+# where every present record of the day before it and of the day after it lies within
+# this many steps of the logger's resolution (the smallest change between consecutive
+# values) of the run's value: no daily cycle either side, and entered and left by a step
+# of the resolution. A probe that stops writes its last value while the soil moves on,
+# and resumes with the difference as a jump; one stopped in a soil that moved less than
+# that wrote what it would have read within its resolution.
 _QUIET_STEPS = 2
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
@@ -422,13 +424,14 @@ def _resolution(values: np.ndarray) -> float:
     return float(steps.min()) if steps.size else np.nan
 
 
-def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float) -> bool:
-    """Whether the present values in as many records before a run and after it all lie
+def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
+                  per_day: int) -> bool:
+    """Whether the present values in the day before a run and the day after it all lie
     within :data:`_QUIET_STEPS` steps of `resolution` of the run's value (half of each
-    window present at least), as a soil drifting through one step of a logger's
-    resolution writes them (see ``_QUIET_STEPS``)."""
+    day present at least), as a soil without a daily cycle drifting through one step of
+    a logger's resolution writes them (see ``_QUIET_STEPS``)."""
     first, last = int(positions[0]), int(positions[-1])
-    length = last - first + 1
+    length = int(per_day)
     value = values[first]
     for window in (values[max(first - length, 0):first], values[last + 1:last + 1 + length]):
         window = window[np.isfinite(window)]
@@ -454,7 +457,8 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
             if value in natural or (name == "tsoil" and abs(value) <= _ZERO_CURTAIN):
                 if name != "tsoil" or not _jumps(values, positions, _CURTAIN_JUMP):
                     continue
-            if name == "tsoil" and _quiet_beside(values, positions, resolution):
+            if name == "tsoil" and _quiet_beside(values, positions, resolution,
+                                                  round(per_day)):
                 continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:
