@@ -76,6 +76,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).parent))
 from probe_clean_sites import run_probe  # noqa: E402
@@ -174,22 +175,18 @@ def _sun(utc, lon, lat):
 
 def _ar(rng, size, phi, sd):
     """AR(1) series of stationary standard deviation `sd`."""
-    out = np.empty(size)
     shocks = rng.normal(0, sd * np.sqrt(1 - phi ** 2), size)
-    out[0] = rng.normal(0, sd)
-    for i in range(1, size):
-        out[i] = phi * out[i - 1] + shocks[i]
-    return out
+    first = rng.normal(0, sd)
+    shocks[0] = first
+    return lfilter([1.0], [1.0, -phi], shocks)
 
 
 def _lowpass(x, days, per_day):
     """Exponential smoothing with time constant `days` of a series of `per_day` values a day."""
     a = 1 - np.exp(-1 / (days * per_day))
-    out = np.empty_like(x)
-    out[0] = x[0]
-    for i in range(1, len(x)):
-        out[i] = out[i - 1] + a * (x[i] - out[i - 1])
-    return out
+    x = np.asarray(x, dtype=float)
+    smoothed, _ = lfilter([a], [1.0, a - 1.0], x[1:], zi=[(1 - a) * x[0]])
+    return np.r_[x[0], smoothed]
 
 
 def _logistic(x):
