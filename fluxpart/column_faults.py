@@ -224,6 +224,12 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
     exp(-z / d) of the surface's, d about 0.1 m; Campbell & Norman 1998, ch. 8 (m)) in
     every month, so a month whose soil column swings more than 1.5 times the air's, and
     by more than 1 K, holds a surface probe of bare, dry soil or the columns swapped.
+    A swap turns a month's ratio r into 1 / r, so the months left right hold a soil
+    damped against the air: where the months not named swing the soil column as much as
+    the air or more (their median ratio 1 or above), the named ones are the sunny season
+    of a shallow probe under a sparse canopy (an invented sub-Antarctic heath's probe at
+    2 cm: ratios 1.0-1.56 month by month, three months past 1.5; round falsealarm53), and
+    nothing is named.
     On the example site, the columns swapped from July moved nighttime GPP and Reco by
     -89 g C m-2 and daytime GPP by -62 without a word (the whole record's medians, air
     3.8 K and soil 4.7 K, kept it quiet).
@@ -256,7 +262,7 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
         air_ranges = np.nanmax(grid_air, axis=1) - np.nanmin(grid_air, axis=1)
         soil_ranges = np.nanmax(grid_soil, axis=1) - np.nanmin(grid_soil, axis=1)
     months = (first_day + pd.to_timedelta(np.flatnonzero(usable), unit="D")).strftime("%Y-%m")
-    named = []
+    named, others = [], []
     for month in pd.unique(months):
         here = months == month
         if here.sum() < _MIN_DAYS:
@@ -266,7 +272,13 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
         if (soil_range > SOIL_RANGE_RATIO * air_range
                 and soil_range - air_range > _SOIL_RANGE_EXCESS):
             named.append((month, air_range, soil_range))
-    if not named:
+        elif air_range > 0:
+            others.append(soil_range / air_range)
+    # a swap turns a month's ratio r into 1 / r: months above 1.5 swapped hold a soil
+    # below 1 / 1.5 of the air's, and the months around them, right, a soil damped as
+    # much. Where the soil column swings as much as the air in the months not named too,
+    # those months are the sunny season of a shallow probe (falsealarm53)
+    if not named or (others and np.median(others) >= 1.0):
         return None
     names = columns or {}
     air_column, soil_column = names.get("tair", "tair"), names.get("tsoil", "tsoil")
@@ -302,14 +314,15 @@ def _correlation(a: np.ndarray, b: np.ndarray, minimum: int = _MIN_PAIRS) -> tup
     return (float(np.sum(x * y)) / scale if scale > 0 else math.nan), count
 
 
-def _decide(scores: dict):
+def _decide(scores: dict, bound: float = _LAG_STANDARD_ERRORS):
     """The shift whose correlation clearly beats the same record's, or None.
 
     `scores` maps a shift k [records] to (correlation, pairs), the correlation signed so
     that the physical relation is positive. Returns (k, its correlation, that of k = 0,
     Fisher z difference in standard errors) where k is not 0, its correlation reaches
-    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by
-    :data:`_LAG_STANDARD_ERRORS` standard errors (sqrt(2 / (n - 3))); otherwise None.
+    :data:`_MIN_CORRELATION` and its Fisher z exceeds that of k = 0 by `bound`
+    (default :data:`_LAG_STANDARD_ERRORS`) standard errors (sqrt(2 / (n - 3))); otherwise
+    None.
     """
     if not all(math.isfinite(v) for v, _ in scores.values()):
         return None
@@ -320,7 +333,7 @@ def _decide(scores: dict):
     z_best = math.atanh(min(strength, 0.999999))
     z_zero = math.atanh(max(min(scores[0][0], 0.999999), -0.999999))
     error = math.sqrt(2.0 / (min(count, scores[0][1]) - 3))
-    if z_best - z_zero <= _LAG_STANDARD_ERRORS * error:
+    if z_best - z_zero <= bound * error:
         return None
     return best, strength, scores[0][0], (z_best - z_zero) / error
 
@@ -790,7 +803,8 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     record (Lambers, Chapin & Pons 2008, ch. 2 (m)). Where the changes of Rg ``k``
     days (``k`` from 1 to :data:`_MAX_SHIFT_DAYS` either way) away correlate with
     those of NEE clearly more strongly than those of the same day (Fisher z larger by
-    3 standard errors, sqrt(2 / (n - 3))), the two records are named as whole days
+    Bonferroni's bound for the shifts compared, :func:`_family_bound`: 4.1 standard
+    errors, sqrt(2 / (n - 3)), for 62 shifts), the two records are named as whole days
     apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
@@ -812,7 +826,9 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
-    found = _decide(scores)
+    # the best of up to 62 shifts against the same record: each one more draw of the
+    # noise, so Bonferroni's bound for the shifts compared (falsealarm53)
+    found = _decide(scores, _family_bound(len(scores) - 1))
     if found is None:
         return None
     best, strength, same, apart = found

@@ -261,6 +261,20 @@ _ZERO_CURTAIN = 0.5
 # writing 0 for a lost probe (review round fifteen: 20 July days of a soil at 0 moved
 # the example site's GPP by -262 g C m-2 with respiration_driver = "tsoil").
 _CURTAIN_JUMP = 5.0
+# A quiet soil, not a stopped probe (round falsealarm53): a soil under snow, or deep under
+# a closed canopy, loses its daily cycle (conduction damps each period by exp(-z / d),
+# and a snow pack's own low diffusivity damps the surface's; Campbell & Norman 1998,
+# ch. 8-9 (m)) and drifts by hundredths of a K a day, so a logger at 0.1 K writes one
+# value for days as it crosses one step of its resolution (an invented tundra soil at
+# -1.4 °C for 2.3 days under snow, round falsealarm53). A held value is evidence of a
+# stopped probe only where the soil beside it moves more than that: a run is excepted
+# where every present record of the day before it and of the day after it lies within
+# this many steps of the logger's resolution (the smallest change between consecutive
+# values) of the run's value: no daily cycle either side, and entered and left by a step
+# of the resolution. A probe that stops writes its last value while the soil moves on,
+# and resumes with the difference as a jump; one stopped in a soil that moved less than
+# that wrote what it would have read within its resolution.
+_QUIET_STEPS = 2
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -401,6 +415,31 @@ def _jumps(values: np.ndarray, positions: np.ndarray, limit: float) -> bool:
                for i in beside)
 
 
+def _resolution(values: np.ndarray) -> float:
+    """The logger's resolution: the smallest change between consecutive present values
+    (NaN where none changes)."""
+    kept = values[np.isfinite(values)]
+    steps = np.abs(np.diff(kept))
+    steps = steps[steps > 1e-9]
+    return float(steps.min()) if steps.size else np.nan
+
+
+def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
+                  per_day: int) -> bool:
+    """Whether the present values in the day before a run and the day after it all lie
+    within :data:`_QUIET_STEPS` steps of `resolution` of the run's value (half of each
+    day present at least), as a soil without a daily cycle drifting through one step of
+    a logger's resolution writes them (see ``_QUIET_STEPS``)."""
+    first, last = int(positions[0]), int(positions[-1])
+    length = int(per_day)
+    value = values[first]
+    for window in (values[max(first - length, 0):first], values[last + 1:last + 1 + length]):
+        window = window[np.isfinite(window)]
+        if window.size < length / 2 or np.abs(window - value).max() > (_QUIET_STEPS + 0.5) * resolution:
+            return False
+    return True
+
+
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
     """Sensors that repeat one value for days: their records enter as measured."""
     index = pd.DatetimeIndex(frame.index)
@@ -411,12 +450,16 @@ def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
         if name not in frame.columns:
             continue
         values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        resolution = _resolution(values) if name == "tsoil" else np.nan
         stuck = []
         for positions in _runs(values, min_length=days_needed * per_day):
             value = values[positions[0]]
             if value in natural or (name == "tsoil" and abs(value) <= _ZERO_CURTAIN):
                 if name != "tsoil" or not _jumps(values, positions, _CURTAIN_JUMP):
                     continue
+            if name == "tsoil" and _quiet_beside(values, positions, resolution,
+                                                  round(per_day)):
+                continue
             sunlit = int(sun_up[positions].sum())
             if name == "rg" and sunlit < _STUCK_SUNLIT_RECORDS:
                 continue

@@ -137,6 +137,45 @@ def test_columns_swapped_for_the_last_month_are_named_by_month():
     frame = pd.DataFrame({"tair": tair, "tsoil": tsoil}, index=stamps)
     assert [f.stage for f in _column_faults(frame, None, STEP)] == ["input (tair, tsoil)"]
 
+def test_a_shallow_probe_in_its_sunny_months_is_not_a_swap():
+    """A probe at 2 cm under a sparse canopy swings as much as the air or more all year
+    (the surface heated by the sun, Campbell & Norman 1998, ch. 8 (m)): months past 1.5
+    times the air's in a smooth seasonal course are its sunny season, not a swap, which
+    turns a month's ratio r into 1 / r and leaves the other months' soil damped
+    (falsealarm53: an invented sub-Antarctic heath's probe, ratios 1.0-1.56)."""
+    air, soil = temperatures(0.05)
+    stamps = pd.date_range("2021-03-01", periods=air.size, freq=f"{STEP}min")
+    mean = pd.Series(soil).rolling(PER_DAY, center=True, min_periods=1).mean().to_numpy()
+    month = stamps.month.to_numpy()
+    gain = {3: 1.25, 4: 1.7, 5: 1.75, 6: 1.35}            # soil range / air range by month
+    ratio = np.array([gain[m] for m in month]) / np.exp(-0.05 / DAMPING)
+    shallow = mean + (soil - mean) * ratio
+    assert swapped_temperatures_in_months(air, shallow, stamps, STEP) is None
+    # the same months swapped in a record of a damped soil are still named
+    late = month >= 5
+    text = swapped_temperatures_in_months(np.where(late, soil, air), np.where(late, air, soil),
+                                          stamps, STEP)
+    assert text is not None and "2021-05, 2021-06" in text
+
+
+def test_the_best_of_many_day_shifts_must_pass_the_family_bound():
+    """nee_day_shift compares up to 62 whole-day shifts with the same record: the best of
+    them at 3.5 standard errors is a chance draw among 62 (Bonferroni, Dunn 1961 (m):
+    4.1 for 62), named at one test's 3 (falsealarm53: an invented desert's tiny fluxes
+    under clear skies, 30 days at 3.0 standard errors); a shift past 4.1 still is."""
+    from fluxpart.column_faults import _decide, _family_bound
+
+    pairs = 2000
+    error = np.sqrt(2.0 / (pairs - 3))
+    same = 0.18
+    for apart, named_by_one, named_by_family in ((3.5, True, False), (4.5, True, True)):
+        best = np.tanh(np.arctanh(same) + apart * error)
+        scores = {0: (same, pairs), 30: (best, pairs),
+                  **{k: (same, pairs) for k in range(1, 30)}}
+        assert (_decide(scores) is not None) is named_by_one
+        assert (_decide(scores, _family_bound(len(scores) - 1)) is not None) is named_by_family
+
+
 def light_record(seed=0, noise=1.0):
     """Invented Rg with passing clouds, its potential radiation and an undelayed NEE."""
     rng = np.random.default_rng(seed)

@@ -104,6 +104,24 @@ def test_zero_curtain_entered_gradually_stays_excepted(year):
     assert [f for f in _stuck(held, potential, 30) if f.stage == "input (tsoil)"] == []
 
 
+def test_a_quiet_soil_drifting_through_a_step_of_resolution_is_not_stuck(year):
+    """A soil under snow loses its daily cycle (Campbell & Norman 1998, ch. 8-9 (m)) and
+    drifts by hundredths of a K a day: a logger at 0.1 K writes one value for days as it
+    crosses one step (falsealarm53: an invented tundra soil at -1.4 °C for 2.3 days). A
+    probe that stops in it while the soil drifts on resumes with a jump and is named."""
+    frame, _, potential = year
+    quiet = frame.assign(tsoil=frame["tsoil"].round(1))       # a logger at 0.1 K
+    winter = quiet.index < "2021-02-14"
+    drift = np.linspace(-0.6, -1.9, int(winter.sum()))        # 0.03 K a day
+    quiet.loc[winter, "tsoil"] = np.round(drift, 1)
+    assert [f for f in _stuck(quiet, potential, 30) if f.stage == "input (tsoil)"] == []
+    stopped = quiet.copy()
+    held = (stopped.index >= "2021-01-10") & (stopped.index < "2021-01-25")
+    stopped.loc[held, "tsoil"] = stopped.loc[held, "tsoil"].iloc[0]
+    findings = [f for f in _stuck(stopped, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly -0.9 for 15.5 days" in findings[0].message
+
+
 def test_polar_night_zero_rg_is_not_stuck(year):
     """Rg = 0 for weeks where the sun never rises (potential radiation 0) is correct."""
     frame, _, potential = year

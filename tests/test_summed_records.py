@@ -58,3 +58,27 @@ def test_hourly_means_at_leaf_out_are_not_named_as_sums():
     written[index[later][1::2]] = nee[later].reshape(-1, 2).mean(axis=1)
     starts = index[~later].append(index[later][1::2])
     assert summed_stretch(written.to_numpy(), index, starts, 30, "co2") is None
+
+
+def test_a_crop_growing_across_a_change_to_hourly_means_is_not_named():
+    """A maize canopy doubles its largest uptake in a fortnight or two; a logger turned to
+    hourly MEANS in that fortnight sees |NEE| grow across the change as much as beside it
+    (falsealarm53: an invented maize, 1.77 across the change on 14 June, 1.41 a fortnight
+    beside it). The season's growth (season_trend) is taken out; the same record written
+    as hourly SUMS still doubles beyond it and is named."""
+    rng = np.random.default_rng(5)
+    index = pd.date_range("2022-05-17", periods=56 * 48, freq="30min")
+    hours = (index.hour + index.minute / 60).to_numpy()
+    days = ((index - index[0]) / pd.Timedelta(days=1)).to_numpy()
+    capacity = 2.0 * 1.8 ** (days / 14)                   # x1.8 a fortnight
+    nee = 3.0 - capacity * np.clip(np.sin(np.pi * (hours - 6) / 12), 0, None) \
+        + rng.normal(0, 0.5, len(index))
+    later = index >= pd.Timestamp("2022-06-14")
+    pairs = nee[later].reshape(-1, 2)
+    starts = index[~later].append(index[later][1::2])
+    for hourly, named in ((np.mean, False), (np.sum, True)):
+        written = pd.Series(np.nan, index=index)
+        written[~later] = nee[~later]
+        written[index[later][1::2]] = hourly(pairs, axis=1)
+        text = summed_stretch(written.to_numpy(), index, starts, 30)
+        assert (text is not None) is named
