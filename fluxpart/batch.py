@@ -1324,6 +1324,99 @@ def _check_cluster_options(scheduler, workers) -> None:
             raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
 
 
+def scheduler_address_error(scheduler: str, error: BaseException) -> ConfigError:
+    """The one-line error of a ``--scheduler`` address the batch cannot use.
+
+    Parameters
+    ----------
+    scheduler : str
+        The address as given.
+    error : BaseException
+        What Dask raised: a ``ValueError`` for an address it cannot parse (no port, an
+        unknown scheme), a ``TypeError`` for ``tls://`` without Dask's TLS settings,
+        an ``OSError`` or ``TimeoutError`` where nothing answered.
+
+    Returns
+    -------
+    ConfigError
+        Names the address, what was wrong with it and the fix. A malformed address was
+        said to be a scheduler that "answered not within 10 s" (round faults44).
+    """
+    cause = f"{type(error).__name__}: {error}" if str(error) else type(error).__name__
+    if isinstance(error, ValueError):
+        return ConfigError(f"--scheduler {scheduler!r} is not a Dask scheduler address "
+                           f"({cause}); write tcp://HOST:PORT (port 8786 by default)")
+    if isinstance(error, TypeError):
+        return ConfigError(f"--scheduler {scheduler!r}: Dask cannot open this address "
+                           f"({cause}); a tls:// scheduler needs Dask's TLS settings "
+                           "(distributed.comm.tls.* in its configuration)")
+    return ConfigError(f"--scheduler {scheduler!r}: no Dask scheduler answered within "
+                       f"{_CONNECT_TIMEOUT_SECONDS} s ({cause}); start one with `dask "
+                       "scheduler`, or leave --scheduler out for a local cluster")
+
+
+def check_scheduler(scheduler: str, seconds: float | None = None) -> None:
+    """Refuse a ``--scheduler`` address where no Dask scheduler answers, within `seconds`.
+
+    Asked before the output folder is made (an unreachable scheduler left a new, empty
+    ``--out``), with one deadline for the connection and the answer: Dask's client
+    waits for ever for the first answer of a service that accepts the connection but
+    speaks no Dask (an HTTP server, an ssh port: the batch hung until killed; round
+    faults44). The scheduler's ``identity`` is asked; an answer of another kind (the
+    address of a worker) is refused too.
+
+    Parameters
+    ----------
+    scheduler : str
+        The address as given (``tcp://host:port``; other schemes are left to the client).
+    seconds : float, optional
+        The deadline [s]; default :data:`_CONNECT_TIMEOUT_SECONDS`.
+
+    Raises
+    ------
+    ConfigError
+        Naming the address and the fix.
+
+    References
+    ----------
+    Dask.distributed documentation, "Foundations" (``rpc`` and a server's ``identity``
+    handler) (m).
+    """
+    import asyncio
+
+    from distributed.comm import parse_address
+    from distributed.comm.registry import get_backend
+    from distributed.core import rpc
+
+    seconds = _CONNECT_TIMEOUT_SECONDS if seconds is None else seconds
+    try:
+        scheme = parse_address(scheduler)[0]
+        get_backend(scheme)
+    except ValueError as error:
+        raise scheduler_address_error(scheduler, error) from None
+    if scheme == "inproc":          # a cluster of this process, on its own event loop
+        return
+
+    async def ask():
+        async with rpc(scheduler, timeout=seconds) as remote:
+            return await remote.identity()
+
+    try:
+        identity = asyncio.run(asyncio.wait_for(ask(), seconds))
+    except (OSError, TimeoutError, ValueError, TypeError) as error:
+        raise scheduler_address_error(scheduler, error) from None
+    except Exception as error:     # the service answered, but not in Dask's protocol
+        raise ConfigError(f"--scheduler {scheduler!r}: what answered there is not a Dask "
+                          f"scheduler ({type(error).__name__}); give the address `dask "
+                          "scheduler` prints (tcp://HOST:8786 by default)") from None
+    kind = identity.get("type") if isinstance(identity, dict) else None
+    if kind != "Scheduler":
+        raise ConfigError(f"--scheduler {scheduler!r}: what answered there is "
+                          f"{'a Dask ' + str(kind) if kind else 'not a Dask scheduler'}, not "
+                          "the scheduler; give the address `dask scheduler` prints "
+                          "(tcp://HOST:8786 by default)")
+
+
 def local_workers(workers, sites: int) -> int:
     """The processes a local cluster starts: `workers` (default 2), at most one per site.
 
@@ -1365,11 +1458,8 @@ def _client(scheduler, workers, sites: int | None = None):
     if scheduler:
         try:
             return Client(scheduler, timeout=_CONNECT_TIMEOUT_SECONDS), None
-        except (OSError, TimeoutError, ValueError) as error:
-            raise ConfigError(f"--scheduler {scheduler!r}: no Dask scheduler answered within "
-                              f"{_CONNECT_TIMEOUT_SECONDS} s ({type(error).__name__}: {error}); "
-                              "start one with `dask scheduler`, or leave --scheduler out "
-                              "for a local cluster") from None
+        except (OSError, TimeoutError, ValueError, TypeError) as error:
+            raise scheduler_address_error(scheduler, error) from None
     # Dask starts workers with MALLOC_TRIM_THRESHOLD_ set, which switches off glibc's
     # adaptive mmap threshold: the pipeline's many mid-sized arrays then cost about a
     # third more time per site (tests/benchmarks/bench_batch.py). Our own local
@@ -1577,6 +1667,8 @@ def _run_batch(sites_file, scheduler, workers, out, force, progress,
     _check_out(out)
     require_owner_access()           # before a folder or a cluster is made
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
+    if scheduler:
+        check_scheduler(scheduler)   # nor an unreachable scheduler (round faults44)
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out)
     client, cluster = _client(scheduler, workers, len(network.sites))
