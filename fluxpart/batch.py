@@ -995,7 +995,14 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         folder), the period (``year``, ``month`` or ``date``), the site columns
         and the budget columns [g C m-2 per period], sorted by site and period;
         ``attrs`` holds ``units`` (UDUNITS-2) and ``descriptions`` of every column
-        and the time convention, as :func:`fluxpart.load` gives a site's tables.
+        and the time convention, as :func:`fluxpart.load` gives a site's tables;
+        ``attrs["failed_sites"]`` the sites left out because they failed
+        (:func:`failed_sites`).
+
+    Warns
+    -----
+    FluxpartWarning
+        Where the batch that wrote the tables failed any site: names each one.
 
     Raises
     ------
@@ -1016,14 +1023,51 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
                              "output folder")
     files = sorted(path.glob("site=*/*.parquet"))
     _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
+    failed = failed_sites(Path(out))
     if not files:
-        return pd.DataFrame({"site": pd.Series([], dtype="str")})
-    frame = _network_frame(files)
-    ordered = ["site", *[c for c in frame.columns if c != "site"]]
-    frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
-                                       kind="stable").reset_index(drop=True)
-    frame.attrs = _network_attrs(files[0])
+        frame = pd.DataFrame({"site": pd.Series([], dtype="str")})
+    else:
+        frame = _network_frame(files)
+        ordered = ["site", *[c for c in frame.columns if c != "site"]]
+        frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
+                                           kind="stable").reset_index(drop=True)
+        frame.attrs = _network_attrs(files[0])
+    frame.attrs["failed_sites"] = failed
+    if failed:
+        named = ", ".join(f"{key!r} ({text.split(':', 1)[0]})" for key, text in failed.items())
+        warnings.warn(FluxpartWarning(
+            f"the network tables of {str(out)!r} leave out {len(failed)} site(s) that "
+            f"failed in the batch that wrote them ({len(frame['site'].unique())} site(s) "
+            f"read): {named}; their errors in {FAILURES_FILE} and attrs['failed_sites']"),
+            stacklevel=2)
     return frame
+
+
+def failed_sites(out: Path) -> dict:
+    """The sites a batch's network tables leave out because they failed, as recorded.
+
+    Parameters
+    ----------
+    out : pathlib.Path
+        The batch output folder.
+
+    Returns
+    -------
+    dict
+        Site key -> ``"<error class>: <message>"`` (the message's first 200 characters),
+        in the order of ``failures.parquet``; empty where it is absent or holds no row.
+
+    Notes
+    -----
+    A reader of the network tables alone saw only the sites written, with no word of
+    those missing (all sites failed gave an empty table without a note; round faults44).
+    """
+    path = out / FAILURES_FILE
+    if not path.is_file():
+        return {}
+    failures = read_table(path).reset_index()
+    return {str(row.site): f"{row.error}: {str(row.message)[:200]}"
+            for row in failures.itertuples(index=False)}
 
 
 def _network_frame(files: list[Path]) -> pd.DataFrame:

@@ -69,3 +69,27 @@ def test_a_malformed_scheduler_address_is_named_as_such(address, said):
     TypeError traceback (exit 1). Each is now one line saying what is wrong."""
     with pytest.raises(ConfigError, match=said):
         batch.check_scheduler(address, seconds=1)
+
+
+def test_network_tables_read_back_name_the_sites_that_failed(tmp_path):
+    """A network whose sites all failed (or some): ``read_network`` returned the sites
+    written (none: an empty table) without a word of those left out, which only
+    ``failures.parquet`` named. Now a FluxpartWarning names each, and
+    ``attrs["failed_sites"]`` holds their errors."""
+    import pandas as pd
+
+    failures = pd.DataFrame({"site": ["fen", "north-tower"], "config": ["f.toml", "n.toml"],
+                             "error": ["ConfigError", "InputFileError"],
+                             "message": ["[site] latitude = 200 is out of range", "no file"],
+                             "kind": ["input", "input"]})
+    out = tmp_path / "net"
+    out.mkdir()
+    for folder in batch.NETWORK_DATASETS.values():
+        (out / folder).mkdir()
+    batch.write_table(failures.set_index("site"), out / batch.FAILURES_FILE,
+                      batch._FAILURE_COLUMNS, "failures")
+    with pytest.warns(batch.FluxpartWarning, match=r"leave out 2 site\(s\).*'fen' "
+                      r"\(ConfigError\), 'north-tower' \(InputFileError\)"):
+        frame = batch.read_network(out, "daily")
+    assert len(frame) == 0
+    assert frame.attrs["failed_sites"]["fen"].startswith("ConfigError: [site] latitude")
