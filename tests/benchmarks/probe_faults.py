@@ -3043,15 +3043,18 @@ def f_batch_same_bytes_as_run():
            f"{_parquets(NET / 'out1') == base}, threads same {_parquets(NET / 'out_t') == base}")
 
 
-HUNG_OPEN = """
-import builtins, time
+#: A worker's ``open`` of a tower file below a folder named FOLDER does ACTION first.
+OPEN_HOOK = """
+import builtins, os, signal, threading, time
 _open = builtins.open
-def _hung(file, *args, **kwargs):
-    if "/hung/" in str(file) and str(file).endswith(".csv"):
-        time.sleep(10 ** 6)      # read(2) on a hard NFS mount that stopped answering
+def _hooked(file, *args, **kwargs):
+    if "/FOLDER/" in str(file) and str(file).endswith(".csv"):
+        ACTION
     return _open(file, *args, **kwargs)
-builtins.open = _hung
+builtins.open = _hooked
 """
+HUNG_OPEN = OPEN_HOOK.replace("FOLDER", "hung").replace(
+    "ACTION", "time.sleep(10 ** 6)  # read(2) on a hard NFS mount that stopped answering")
 
 
 def f_batch_hung_site():
@@ -4040,21 +4043,22 @@ def f_batch_scheduler_addresses():
     TLS settings: one ``error:`` line each, exit 2, within 30 s, no ``--out`` made."""
     _seeded_net(2)
     service, silent = _silent_service()
-    try:
-        for address in (silent, "tcp://127.0.0.1:1", "tcp://127.0.0.1", "http://127.0.0.1:8786",
-                        "tls://127.0.0.1:8786"):
-            began = time.time()
+    for address in (silent, "tcp://127.0.0.1:1", "tcp://127.0.0.1", "http://127.0.0.1:8786",
+                    "tls://127.0.0.1:8786"):
+        shutil.rmtree(NET / "out", ignore_errors=True)
+        began, name = time.time(), address.replace(silent, "tcp://(a silent service)")
+        try:
             done = fp("batch", "sites.toml", "--scheduler", address, "--quiet", cwd=NET,
                       timeout=90)
-            record(f"batch --scheduler {address.replace(silent, 'tcp://(a silent service)')}",
-                   one_line(done) and time.time() - began < 30 and not (NET / "out").exists(),
-                   f"exit {done.returncode} after {time.time() - began:.0f} s, "
-                   f"out made {(NET / 'out').exists()}, {done.stderr.strip()[-160:]!r}")
-    except subprocess.TimeoutExpired:
-        record("batch --scheduler a silent service", False, "hung (killed after 90 s)")
-    finally:
-        service.kill()
-        service.wait()
+        except subprocess.TimeoutExpired:
+            record(f"batch --scheduler {name}", False, "hung (killed after 90 s)")
+            continue
+        record(f"batch --scheduler {name}",
+               one_line(done) and time.time() - began < 30 and not (NET / "out").exists(),
+               f"exit {done.returncode} after {time.time() - began:.0f} s, "
+               f"out made {(NET / 'out').exists()}, {done.stderr.strip()[-160:]!r}")
+    service.kill()
+    service.wait()
 
 
 def f_batch_all_or_some_fail():
@@ -4085,26 +4089,10 @@ def f_batch_all_or_some_fail():
            f"reader's note {said.strip()[-120:]!r}")
 
 
-DOOMED = """
-import builtins, os, signal, threading
-_open = builtins.open
-def _doomed(file, *args, **kwargs):
-    if "/doomed/" in str(file) and str(file).endswith(".csv"):
-        threading.Timer(0.5, os.kill, (os.getpid(), signal.SIGKILL)).start()
-    return _open(file, *args, **kwargs)
-builtins.open = _doomed
-"""
-
-SPIN = """
-import builtins
-_open = builtins.open
-def _spin(file, *args, **kwargs):
-    if "/hung/" in str(file) and str(file).endswith(".csv"):
-        while True:          # pure Python holding the GIL
-            pass
-    return _open(file, *args, **kwargs)
-builtins.open = _spin
-"""
+DOOMED = OPEN_HOOK.replace("FOLDER", "doomed").replace(
+    "ACTION", "threading.Timer(0.5, os.kill, (os.getpid(), signal.SIGKILL)).start()")
+SPIN = OPEN_HOOK.replace("FOLDER", "hung").replace(
+    "ACTION", "while True:  # pure Python holding the GIL\n            pass")
 
 
 def _hooked(name, code):
