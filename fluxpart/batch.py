@@ -903,7 +903,7 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({
         "format": _NETWORK_FORMAT, "complete": True, "sites": sites, "files": files,
         "failures": file_sha256(out / FAILURES_FILE)}))
-    return read_network_annual(out), failures
+    return _network_table(out, "annual"), failures
 
 
 def _seal_bytes(seal: dict) -> bytes:
@@ -973,9 +973,12 @@ def read_network_annual(out) -> pd.DataFrame:
         One row per site and year: ``site`` (the site key, from the partition
         folder), ``year``, ``site_name``, ``latitude``, ``longitude``,
         ``utc_offset`` and the annual budget columns [g C m-2 per year], sorted by
-        site and year.
+        site and year; ``attrs["failed_sites"]`` and the warning as
+        :func:`read_network`'s.
     """
-    return read_network(out, "annual")
+    frame = _network_table(out, "annual")
+    _warn_failed(out, frame)
+    return frame
 
 
 def read_network(out, table: str = "annual") -> pd.DataFrame:
@@ -1014,6 +1017,13 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         after rewriting some site folders); the message says to run the batch
         again. Folders of batches before the seal existed are read unchecked.
     """
+    frame = _network_table(out, table)
+    _warn_failed(out, frame)
+    return frame
+
+
+def _network_table(out, table: str) -> pd.DataFrame:
+    """:func:`read_network` without its warning (the batch's own read-back)."""
     if table not in NETWORK_DATASETS:
         raise ConfigError(f"network table {table!r}: expected one of "
                           f"{', '.join(map(repr, NETWORK_DATASETS))}")
@@ -1033,14 +1043,19 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
                                            kind="stable").reset_index(drop=True)
         frame.attrs = _network_attrs(files[0])
     frame.attrs["failed_sites"] = failed
+    return frame
+
+
+def _warn_failed(out, frame: pd.DataFrame) -> None:
+    """Warn, for the caller of a public reader, of the sites `frame` leaves out."""
+    failed = frame.attrs.get("failed_sites") or {}
     if failed:
         named = ", ".join(f"{key!r} ({text.split(':', 1)[0]})" for key, text in failed.items())
         warnings.warn(FluxpartWarning(
             f"the network tables of {str(out)!r} leave out {len(failed)} site(s) that "
-            f"failed in the batch that wrote them ({len(frame['site'].unique())} site(s) "
+            f"failed in the batch that wrote them ({frame['site'].nunique()} site(s) "
             f"read): {named}; their errors in {FAILURES_FILE} and attrs['failed_sites']"),
-            stacklevel=2)
-    return frame
+            stacklevel=3)
 
 
 def failed_sites(out: Path) -> dict:
