@@ -4211,7 +4211,8 @@ def f_batch_worker_peak_memory():
                 status = Path(f"/proc/{kid}/status").read_text()
             except OSError:
                 continue
-            if "forkserver" in _cmdline(kid):
+            # a worker: forked from the fork server, so its command line is the server's
+            if "forkserver" not in _cmdline(kid) or "forkserver" not in _cmdline(_parent(kid)):
                 continue
             peak = int(status.split("VmHWM:")[1].split()[0]) // 1024
             peaks[kid] = max(peaks.get(kid, 0), peak)
@@ -4224,7 +4225,7 @@ def f_batch_worker_peak_memory():
     proc.communicate()
     after = peaks.get("after", [0])
     record("one worker's peak memory over 4 site-years", proc.returncode == 0
-           and 0 < max(after) < 512 and after[-1] < 1.1 * after[0],
+           and 100 < after[0] and max(after) < 512 and after[-1] < 1.1 * after[0],
            f"exit {proc.returncode}, peak after each site {after} MiB")
 
 
