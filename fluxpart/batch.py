@@ -928,7 +928,7 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({
         "format": _NETWORK_FORMAT, "complete": True, "sites": sites, "files": files,
         "failures": file_sha256(out / FAILURES_FILE)}))
-    return read_network_annual(out), failures
+    return _network_table(out, "annual"), failures
 
 
 def _seal_bytes(seal: dict) -> bytes:
@@ -998,9 +998,12 @@ def read_network_annual(out) -> pd.DataFrame:
         One row per site and year: ``site`` (the site key, from the partition
         folder), ``year``, ``site_name``, ``latitude``, ``longitude``,
         ``utc_offset`` and the annual budget columns [g C m-2 per year], sorted by
-        site and year.
+        site and year; ``attrs["failed_sites"]`` and the warning as
+        :func:`read_network`'s.
     """
-    return read_network(out, "annual")
+    frame = _network_table(out, "annual")
+    _warn_failed(out, frame)
+    return frame
 
 
 def read_network(out, table: str = "annual") -> pd.DataFrame:
@@ -1020,7 +1023,14 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         folder), the period (``year``, ``month`` or ``date``), the site columns
         and the budget columns [g C m-2 per period], sorted by site and period;
         ``attrs`` holds ``units`` (UDUNITS-2) and ``descriptions`` of every column
-        and the time convention, as :func:`fluxpart.load` gives a site's tables.
+        and the time convention, as :func:`fluxpart.load` gives a site's tables;
+        ``attrs["failed_sites"]`` the sites left out because they failed
+        (:func:`failed_sites`).
+
+    Warns
+    -----
+    FluxpartWarning
+        Where the batch that wrote the tables failed any site: names each one.
 
     Raises
     ------
@@ -1032,6 +1042,13 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
         after rewriting some site folders); the message says to run the batch
         again. Folders of batches before the seal existed are read unchecked.
     """
+    frame = _network_table(out, table)
+    _warn_failed(out, frame)
+    return frame
+
+
+def _network_table(out, table: str) -> pd.DataFrame:
+    """:func:`read_network` without its warning (the batch's own read-back)."""
     if table not in NETWORK_DATASETS:
         raise ConfigError(f"network table {table!r}: expected one of "
                           f"{', '.join(map(repr, NETWORK_DATASETS))}")
@@ -1041,14 +1058,56 @@ def read_network(out, table: str = "annual") -> pd.DataFrame:
                              "output folder")
     files = sorted(path.glob("site=*/*.parquet"))
     _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
+    failed = failed_sites(Path(out))
     if not files:
-        return pd.DataFrame({"site": pd.Series([], dtype="str")})
-    frame = _network_frame(files)
-    ordered = ["site", *[c for c in frame.columns if c != "site"]]
-    frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
-                                       kind="stable").reset_index(drop=True)
-    frame.attrs = _network_attrs(files[0])
+        frame = pd.DataFrame({"site": pd.Series([], dtype="str")})
+    else:
+        frame = _network_frame(files)
+        ordered = ["site", *[c for c in frame.columns if c != "site"]]
+        frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
+                                           kind="stable").reset_index(drop=True)
+        frame.attrs = _network_attrs(files[0])
+    frame.attrs["failed_sites"] = failed
     return frame
+
+
+def _warn_failed(out, frame: pd.DataFrame) -> None:
+    """Warn, for the caller of a public reader, of the sites `frame` leaves out."""
+    failed = frame.attrs.get("failed_sites") or {}
+    if failed:
+        named = ", ".join(f"{key!r} ({text.split(':', 1)[0]})" for key, text in failed.items())
+        warnings.warn(FluxpartWarning(
+            f"the network tables of {str(out)!r} leave out {len(failed)} site(s) that "
+            f"failed in the batch that wrote them ({frame['site'].nunique()} site(s) "
+            f"read): {named}; their errors in {FAILURES_FILE} and attrs['failed_sites']"),
+            stacklevel=3)
+
+
+def failed_sites(out: Path) -> dict:
+    """The sites a batch's network tables leave out because they failed, as recorded.
+
+    Parameters
+    ----------
+    out : pathlib.Path
+        The batch output folder.
+
+    Returns
+    -------
+    dict
+        Site key -> ``"<error class>: <message>"`` (the message's first 200 characters),
+        in the order of ``failures.parquet``; empty where it is absent or holds no row.
+
+    Notes
+    -----
+    A reader of the network tables alone saw only the sites written, with no word of
+    those missing (all sites failed gave an empty table without a note; round faults44).
+    """
+    path = out / FAILURES_FILE
+    if not path.is_file():
+        return {}
+    failures = read_table(path).reset_index()
+    return {str(row.site): f"{row.error}: {str(row.message)[:200]}"
+            for row in failures.itertuples(index=False)}
 
 
 def _network_frame(files: list[Path]) -> pd.DataFrame:
@@ -1349,6 +1408,99 @@ def _check_cluster_options(scheduler, workers) -> None:
             raise ConfigError(f"the local Dask cluster cannot start: {scratch}")
 
 
+def scheduler_address_error(scheduler: str, error: BaseException) -> ConfigError:
+    """The one-line error of a ``--scheduler`` address the batch cannot use.
+
+    Parameters
+    ----------
+    scheduler : str
+        The address as given.
+    error : BaseException
+        What Dask raised: a ``ValueError`` for an address it cannot parse (no port, an
+        unknown scheme), a ``TypeError`` for ``tls://`` without Dask's TLS settings,
+        an ``OSError`` or ``TimeoutError`` where nothing answered.
+
+    Returns
+    -------
+    ConfigError
+        Names the address, what was wrong with it and the fix. A malformed address was
+        said to be a scheduler that "answered not within 10 s" (round faults44).
+    """
+    cause = f"{type(error).__name__}: {error}" if str(error) else type(error).__name__
+    if isinstance(error, ValueError):
+        return ConfigError(f"--scheduler {scheduler!r} is not a Dask scheduler address "
+                           f"({cause}); write tcp://HOST:PORT (port 8786 by default)")
+    if isinstance(error, TypeError):
+        return ConfigError(f"--scheduler {scheduler!r}: Dask cannot open this address "
+                           f"({cause}); a tls:// scheduler needs Dask's TLS settings "
+                           "(distributed.comm.tls.* in its configuration)")
+    return ConfigError(f"--scheduler {scheduler!r}: no Dask scheduler answered within "
+                       f"{_CONNECT_TIMEOUT_SECONDS} s ({cause}); start one with `dask "
+                       "scheduler`, or leave --scheduler out for a local cluster")
+
+
+def check_scheduler(scheduler: str, seconds: float | None = None) -> None:
+    """Refuse a ``--scheduler`` address where no Dask scheduler answers, within `seconds`.
+
+    Asked before the output folder is made (an unreachable scheduler left a new, empty
+    ``--out``), with one deadline for the connection and the answer: Dask's client
+    waits for ever for the first answer of a service that accepts the connection but
+    speaks no Dask (an HTTP server, an ssh port: the batch hung until killed; round
+    faults44). The scheduler's ``identity`` is asked; an answer of another kind (the
+    address of a worker) is refused too.
+
+    Parameters
+    ----------
+    scheduler : str
+        The address as given (``tcp://host:port``; other schemes are left to the client).
+    seconds : float, optional
+        The deadline [s]; default :data:`_CONNECT_TIMEOUT_SECONDS`.
+
+    Raises
+    ------
+    ConfigError
+        Naming the address and the fix.
+
+    References
+    ----------
+    Dask.distributed documentation, "Foundations" (``rpc`` and a server's ``identity``
+    handler) (m).
+    """
+    import asyncio
+
+    from distributed.comm import parse_address
+    from distributed.comm.registry import get_backend
+    from distributed.core import rpc
+
+    seconds = _CONNECT_TIMEOUT_SECONDS if seconds is None else seconds
+    try:
+        scheme = parse_address(scheduler)[0]
+        get_backend(scheme)
+    except ValueError as error:
+        raise scheduler_address_error(scheduler, error) from None
+    if scheme == "inproc":          # a cluster of this process, on its own event loop
+        return
+
+    async def ask():
+        async with rpc(scheduler, timeout=seconds) as remote:
+            return await remote.identity()
+
+    try:
+        identity = asyncio.run(asyncio.wait_for(ask(), seconds))
+    except (OSError, TimeoutError, ValueError, TypeError) as error:
+        raise scheduler_address_error(scheduler, error) from None
+    except Exception as error:     # the service answered, but not in Dask's protocol
+        raise ConfigError(f"--scheduler {scheduler!r}: what answered there is not a Dask "
+                          f"scheduler ({type(error).__name__}); give the address `dask "
+                          "scheduler` prints (tcp://HOST:8786 by default)") from None
+    kind = identity.get("type") if isinstance(identity, dict) else None
+    if kind != "Scheduler":
+        raise ConfigError(f"--scheduler {scheduler!r}: what answered there is "
+                          f"{'a Dask ' + str(kind) if kind else 'not a Dask scheduler'}, not "
+                          "the scheduler; give the address `dask scheduler` prints "
+                          "(tcp://HOST:8786 by default)")
+
+
 def local_workers(workers, sites: int) -> int:
     """The processes a local cluster starts: `workers` (default 2), at most one per site.
 
@@ -1390,11 +1542,8 @@ def _client(scheduler, workers, sites: int | None = None):
     if scheduler:
         try:
             return Client(scheduler, timeout=_CONNECT_TIMEOUT_SECONDS), None
-        except (OSError, TimeoutError, ValueError) as error:
-            raise ConfigError(f"--scheduler {scheduler!r}: no Dask scheduler answered within "
-                              f"{_CONNECT_TIMEOUT_SECONDS} s ({type(error).__name__}: {error}); "
-                              "start one with `dask scheduler`, or leave --scheduler out "
-                              "for a local cluster") from None
+        except (OSError, TimeoutError, ValueError, TypeError) as error:
+            raise scheduler_address_error(scheduler, error) from None
     # Dask starts workers with MALLOC_TRIM_THRESHOLD_ set, which switches off glibc's
     # adaptive mmap threshold: the pipeline's many mid-sized arrays then cost about a
     # third more time per site (tests/benchmarks/bench_batch.py). Our own local
@@ -1602,6 +1751,8 @@ def _run_batch(sites_file, scheduler, workers, out, force, progress,
     _check_out(out)
     require_owner_access()           # before a folder or a cluster is made
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
+    if scheduler:
+        check_scheduler(scheduler)   # nor an unreachable scheduler (round faults44)
     _make_writable_out(out)          # before the cluster starts and any site is computed
     _sweep_leftovers(out)
     client, cluster = _client(scheduler, workers, len(network.sites))

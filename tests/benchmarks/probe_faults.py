@@ -88,6 +88,13 @@ result; fluxpart.load looped while runs replace the folder; kill -9 of a 2-worke
 seeded moments while it replaces a network; Ctrl-C to ``run | tee``; a moved result's run
 log pointing beside another file of the input's name.
 
+Round faults44 (a network on Dask): --scheduler a service that speaks no Dask, where
+nothing listens, without a port, http:// and tls://; every site failing and two of three
+(what the network tables' reader says); the worker of one site killed on every try; a
+site spinning in Python past the time limit; a site key reassigned by a changed listing;
+one config listed in five spellings; verify of the batch output folder; one worker's peak
+memory over 4 site-years.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -3036,15 +3043,18 @@ def f_batch_same_bytes_as_run():
            f"{_parquets(NET / 'out1') == base}, threads same {_parquets(NET / 'out_t') == base}")
 
 
-HUNG_OPEN = """
-import builtins, time
+#: A worker's ``open`` of a tower file below a folder named FOLDER does ACTION first.
+OPEN_HOOK = """
+import builtins, os, signal, threading, time
 _open = builtins.open
-def _hung(file, *args, **kwargs):
-    if "/hung/" in str(file) and str(file).endswith(".csv"):
-        time.sleep(10 ** 6)      # read(2) on a hard NFS mount that stopped answering
+def _hooked(file, *args, **kwargs):
+    if "/FOLDER/" in str(file) and str(file).endswith(".csv"):
+        ACTION
     return _open(file, *args, **kwargs)
-builtins.open = _hung
+builtins.open = _hooked
 """
+HUNG_OPEN = OPEN_HOOK.replace("FOLDER", "hung").replace(
+    "ACTION", "time.sleep(10 ** 6)  # read(2) on a hard NFS mount that stopped answering")
 
 
 def f_batch_hung_site():
@@ -4009,6 +4019,216 @@ def f_netcdf_into_result():
            f"exit {done.returncode} {_stderr_tail(done, 80)}, verify and rerun {after}")
 
 
+# ---------------------------------------------------------------- round faults44
+def _net_read(out):
+    """``read_network`` of `out` in a fresh process: (sites read, the warnings' text)."""
+    done = subprocess.run([PY, "-W", "always", "-c", "import sys; from fluxpart.batch import "
+                           "read_network; print(read_network(sys.argv[1]).site.nunique())",
+                           str(out)], env=ENV, capture_output=True, text=True, timeout=120)
+    return done.stdout.strip(), done.stderr
+
+
+def _silent_service():
+    """A TCP server on 127.0.0.1 that accepts and never answers: (process, address)."""
+    code = ("import socket, time\ns = socket.socket(); s.bind(('127.0.0.1', 0)); s.listen(8)\n"
+            "print(s.getsockname()[1], flush=True)\nheld = []\n"
+            "while True:\n    held.append(s.accept()[0])\n")
+    proc = subprocess.Popen([PY, "-c", code], stdout=subprocess.PIPE, text=True)
+    return proc, f"tcp://127.0.0.1:{proc.stdout.readline().strip()}"
+
+
+def f_batch_scheduler_addresses():
+    """``--scheduler`` the address of a service that speaks no Dask (accepts and never
+    answers), where nothing listens, without a port, of scheme http:// and tls:// without
+    TLS settings: one ``error:`` line each, exit 2, within 30 s, no ``--out`` made."""
+    _seeded_net(2)
+    service, silent = _silent_service()
+    for address in (silent, "tcp://127.0.0.1:1", "tcp://127.0.0.1", "http://127.0.0.1:8786",
+                    "tls://127.0.0.1:8786"):
+        shutil.rmtree(NET / "out", ignore_errors=True)
+        began, name = time.time(), address.replace(silent, "tcp://(a silent service)")
+        try:
+            done = fp("batch", "sites.toml", "--scheduler", address, "--quiet", cwd=NET,
+                      timeout=90)
+        except subprocess.TimeoutExpired:
+            record(f"batch --scheduler {name}", False, "hung (killed after 90 s)")
+            continue
+        record(f"batch --scheduler {name}",
+               one_line(done) and time.time() - began < 30 and not (NET / "out").exists(),
+               f"exit {done.returncode} after {time.time() - began:.0f} s, "
+               f"out made {(NET / 'out').exists()}, {done.stderr.strip()[-160:]!r}")
+    service.kill()
+    service.wait()
+
+
+def f_batch_all_or_some_fail():
+    """Every site fails (latitude 200), then two of three (a setting unknown, the input a
+    folder): exit 1, one line per cause, ``failures.parquet`` names them, the network
+    tables hold the rest and their reader names those left out."""
+    _seeded_net(3)
+    for config in NET.glob("s*/s*.toml"):
+        config.write_text(config.read_text().replace("latitude = 49.3", "latitude = 200"))
+    every = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    read, said = _net_read(NET / "out")
+    record("batch: every site fails", every.returncode == 1 and len(errlines(every)) == 1
+           and "3 sites failed alike" in every.stderr and read == "0"
+           and "FluxpartWarning" not in every.stderr
+           and "leave out 3 site(s)" in said,
+           f"exit {every.returncode}, {len(errlines(every))} error lines, network sites "
+           f"{read}, reader's note {'leave out' in said}")
+    _seeded_net(3)
+    (NET / "s01" / "s01.toml").write_text((NET / "s01" / "s01.toml").read_text()
+                                          + "bogus_setting = 1\n")
+    (NET / "s02" / "tower.csv").unlink()
+    (NET / "s02" / "tower.csv").mkdir()
+    some = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    read, said = _net_read(NET / "out")
+    record("batch: two of three sites fail (unknown setting, input a folder)",
+           some.returncode == 1 and len(errlines(some)) == 2 and read == "1"
+           and "'s01' (ConfigError), 's02' (InputFileError)" in said,
+           f"exit {some.returncode}, {errlines(some)!r:.160}, network sites {read}, "
+           f"reader's note {said.strip()[-120:]!r}")
+
+
+DOOMED = OPEN_HOOK.replace("FOLDER", "doomed").replace(
+    "ACTION", "threading.Timer(0.5, os.kill, (os.getpid(), signal.SIGKILL)).start()")
+SPIN = OPEN_HOOK.replace("FOLDER", "hung").replace(
+    "ACTION", "while True:  # pure Python holding the GIL\n            pass")
+
+
+def _hooked(name, code):
+    hook = W / name
+    hook.mkdir(exist_ok=True)
+    (hook / "sitecustomize.py").write_text(code)
+    return dict(ENV, PYTHONPATH=f"{hook}:{ENV['PYTHONPATH']}")
+
+
+def f_batch_worker_killed_every_try():
+    """Each worker that computes one site is killed (SIGKILL 0.5 s after it opens the
+    input; Dask's nanny restarts it and retries): that site fails with one line, the
+    others are whole, no staging is left, a rerun processes only it."""
+    _seeded_net(3)
+    shutil.move(NET / "s01", NET / "doomed")
+    done = fp("batch", "sites.toml", "--quiet", "--workers", "2", cwd=NET,
+              env=_hooked("doom_hook", DOOMED), timeout=300)
+    lines = errlines(done)
+    left, codes = leftovers(NET / "out"), sites_verify(NET / "out")
+    rerun = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    record("a worker killed on every try of one site", done.returncode == 1
+           and len(lines) == 1 and "WorkerLostError" in lines[0] and not left
+           and codes == [0, 0] and rerun.returncode == 0
+           and "1 processed, 2 up to date" in rerun.stdout,
+           f"exit {done.returncode}, {lines!r:.120}, left {left}, verify {codes}, rerun "
+           f"{rerun.stdout.splitlines()[:1]}")
+
+
+def f_batch_spinning_site():
+    """A site stuck in a loop of pure Python (not waiting on a file) under
+    ``--site-time-limit 0.2``: one line, the batch ends, no worker left running."""
+    _seeded_net(3)
+    shutil.move(NET / "s01", NET / "hung")
+    began = time.time()
+    proc = start("batch", "sites.toml", "--quiet", "--site-time-limit", "0.2", cwd=NET,
+                 env=_hooked("spin_hook", SPIN))
+    time.sleep(5)
+    kids = descendants(proc.pid)
+    out, err = proc.communicate(timeout=240)
+    time.sleep(3)
+    alive = [k for k in kids if Path(f"/proc/{k}").exists()]
+    lines = [line for line in err.splitlines() if line.startswith("error:")]
+    record("a site spinning in Python past --site-time-limit 0.2", proc.returncode == 1
+           and len(lines) == 1 and "SiteTimeLimitError" in lines[0] and not alive
+           and sites_verify(NET / "out") == [0, 0],
+           f"exit {proc.returncode} after {time.time() - began:.0f} s, {lines!r:.100}, "
+           f"processes left {alive}")
+
+
+def f_batch_key_reassigned():
+    """Keys follow the listing: ``north/tower.toml`` alone is ``tower``; with
+    ``south/tower.toml`` both get their folder's name (the old ``tower`` named as no
+    site's); south alone again is ``tower``, the folder of north's result: refused, not
+    replaced nor mixed."""
+    shutil.rmtree(NET, ignore_errors=True)
+    for i, group in enumerate(("north", "south")):
+        (NET / group).mkdir(parents=True)
+        shutil.copy2(W / "b" / "tower.csv", NET / group / "tower.csv")
+        (NET / group / "tower.toml").write_text((W / "b" / "site.toml").read_text().replace(
+            "seed = 0", f"seed = {i}").replace("grassland", group))
+    listing = {"one": '["north/tower.toml"]', "two": '["*/tower.toml"]',
+               "south": '["south/tower.toml"]'}
+    done = {}
+    for name, sites in listing.items():
+        (NET / "sites.toml").write_text(f'[batch]\nsites = {sites}\nout = "out"\n')
+        done[name] = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    north = (NET / "out" / "tower" / "manifest.json").read_text()
+    record("a site key reassigned by a changed listing", done["one"].returncode == 0
+           and done["two"].returncode == 0 and "belong to no site" in done["two"].stdout
+           and done["south"].returncode == 1 and "holds the result of site" in
+           done["south"].stderr and "Quillmoor north" in north and _net_sites(NET / "out") == 0,
+           f"exits {[d.returncode for d in done.values()]}, tower still north's "
+           f"{'Quillmoor north' in north}, {errlines(done['south'])!r:.160}")
+
+
+def f_batch_duplicate_spellings():
+    """One config listed as ``s00/s00.toml``, ``./s00/s00.toml``, ``s00/../s00/s00.toml``,
+    ``s00//s00.toml`` and by a glob: one site."""
+    _seeded_net(2)
+    (NET / "sites.toml").write_text('[batch]\nsites = ["s00/s00.toml", "./s00/s00.toml", '
+                                    '"s00/../s00/s00.toml", "s00//s00.toml", "s0*/*.toml"]\n'
+                                    'out = "out"\n')
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    folders = sorted(p.name for p in (NET / "out").iterdir() if p.is_dir()
+                     and not p.name.startswith("network"))
+    record("one config listed in five spellings", done.returncode == 0
+           and folders == ["s00", "s01"] and "2 site(s)" in done.stdout,
+           f"exit {done.returncode}, folders {folders}")
+
+
+def f_batch_verify_network_folder():
+    """``verify`` of the batch output folder: one line naming it a batch output and what
+    to give instead, exit 2; ``verify`` of each site's folder in place: bit-identical."""
+    _seeded_net(2)
+    done = fp("batch", "sites.toml", "--quiet", cwd=NET, timeout=300)
+    whole = verify(NET / "out")
+    record("verify of a batch output folder and of its sites in place",
+           done.returncode == 0 and one_line(whole) and "batch output folder" in whole.stderr
+           and sites_verify(NET / "out") == [0, 0],
+           f"exit {whole.returncode}, {whole.stderr.strip()[:140]!r}")
+
+
+def f_batch_worker_peak_memory():
+    """One local worker computes the example network's 4 site-years (half-hourly and
+    hourly): its peak resident memory (VmHWM) after each site; held under 0.5 GB and
+    growing by less than 10 % after the first site (no leak between sites)."""
+    out = W / "example_net"
+    shutil.rmtree(out, ignore_errors=True)
+    proc = start("batch", TREE / "examples" / "network.toml", "--workers", "1", "--out", out,
+                 "--quiet", cwd=W)
+    peaks, sites = {}, []
+    while proc.poll() is None:
+        for kid in descendants(proc.pid):
+            try:
+                status = Path(f"/proc/{kid}/status").read_text()
+            except OSError:
+                continue
+            # a worker: forked from the fork server, so its command line is the server's
+            if "forkserver" not in _cmdline(kid) or "forkserver" not in _cmdline(_parent(kid)):
+                continue
+            peak = int(status.split("VmHWM:")[1].split()[0]) // 1024
+            peaks[kid] = max(peaks.get(kid, 0), peak)
+        done = sorted(p.name for p in out.glob("*/manifest.json")) if out.exists() else []
+        if len(done) > len(sites):
+            sites = done
+            peaks["after"] = peaks.get("after", []) + [max(
+                (v for k, v in peaks.items() if k != "after"), default=0)]
+        time.sleep(0.3)
+    proc.communicate()
+    after = peaks.get("after", [0])
+    record("one worker's peak memory over 4 site-years", proc.returncode == 0
+           and 100 < after[0] and max(after) < 512 and after[-1] < 1.1 * after[0],
+           f"exit {proc.returncode}, peak after each site {after} MiB")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -4065,7 +4285,12 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_verify_other_library_versions, f_table_cut_and_padded, f_result_renamed_odd,
           f_export_into_occupied, f_load_while_runs_write, f_batch_kill9_moments,
           f_table_cut_resealed, f_ctrl_c_pipeline, f_run_log_points_elsewhere,
-          f_netcdf_into_result]
+          f_netcdf_into_result,
+          # round faults44
+          f_batch_scheduler_addresses, f_batch_all_or_some_fail,
+          f_batch_worker_killed_every_try, f_batch_spinning_site, f_batch_key_reassigned,
+          f_batch_duplicate_spellings, f_batch_verify_network_folder,
+          f_batch_worker_peak_memory]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
