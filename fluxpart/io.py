@@ -1029,7 +1029,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     stamps = combined["stamps"]
     def describe(position):
-        return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
+        return _place(combined, position)
 
     check_isolated_stretch(pd.DatetimeIndex(stamps), describe)
     interval_minutes = infer_interval(stamps, interval_minutes, describe)
@@ -4108,6 +4108,7 @@ def _read_file(path: Path, **settings) -> dict:
     warnings[start:] = [type(warning)(table_formats.record_wording(warning))
                         for warning in warnings[start:]]
     part["lines"] = part["lines"] - 1          # record places, 1-based
+    part["place_word"] = "record"              # named so once files are combined
     return part
 
 
@@ -5305,6 +5306,14 @@ def _second_pass_heads(parts: list, time_zone: str, utc_offset: float,
     return parts
 
 
+def _place(combined: dict, position: int) -> str:
+    """Where the combined row `position` came from: "line 8 of 'a.csv'" for a text file,
+    "record 7 of 'a.parquet'" for a typed table (whose places count records from 1)."""
+    source = combined["sources"][position]
+    word = "record" if source in combined["record_sources"] else "line"
+    return f"{word} {int(combined['lines'][position])} of {source!r}"
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -5313,6 +5322,7 @@ def _combine(parts: list) -> dict:
     sources = np.array([part["source"] for part in parts for _ in range(len(part["stamps"]))],
                        dtype=object)
     values = {name: np.concatenate([part["values"][name] for part in parts]) for name in names}
+    record_sources = {part["source"] for part in parts if part.get("place_word") == "record"}
     order = np.argsort(stamps, kind="stable")
     stamps, lines, sources = stamps[order], lines[order], sources[order]
     values = {name: column[order] for name, column in values.items()}
@@ -5352,6 +5362,7 @@ def _combine(parts: list) -> dict:
                        "look like two loggers' files joined by stamp: keep the column(s) of "
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
+            where = {"lines": lines, "sources": sources, "record_sources": record_sources}
             if sources[a] != sources[b]:
                 fix = (_other_step_overlap(parts, sources[a], sources[b])
                        or _shifted_overlap(parts, sources[a], sources[b])
@@ -5364,9 +5375,9 @@ def _combine(parts: list) -> dict:
                            "format?): remove the overlap from one of them in a copy (keeping "
                            f"{rounded[1]!r}'s moves no value by more than that rounding)")
             raise DuplicateTimestampError(
-                f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
-                f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
-                f"{sources[b]!r} with different values ({', '.join(differing)}); "
+                f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on "
+                f"{_place(where, a)} and on {_place(where, b)} "
+                f"with different values ({', '.join(differing)}); "
                 f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: {fix}")
     conversions: dict = {}
     for part in parts:
@@ -5374,7 +5385,8 @@ def _combine(parts: list) -> dict:
             conversions[key] = conversions.get(key, 0) + count
     return {
         "stamps": pd.DatetimeIndex(stamps), "lines": lines, "sources": sources,
-        "values": values, "merged_rows": merged, "completed_stamps": completed,
+        "record_sources": record_sources, "values": values, "merged_rows": merged,
+        "completed_stamps": completed,
         "completed_first": completed_first,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),

@@ -22,7 +22,12 @@ from test_robustness_layouts35 import _records  # invented records of 1-10 June 
 from test_robustness_layouts36 import MAPPING, SITE
 
 from fluxpart import table_formats
-from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
+from fluxpart.errors import (
+    DuplicateTimestampError,
+    InputFileError,
+    MissingColumnError,
+    TimestampError,
+)
 from fluxpart.io import _plain_numbers, read_table
 
 VALUES = ["co2", "sw", "t_air", "vpd", "us"]
@@ -217,6 +222,13 @@ def test_wrong_mappings_and_faults_are_named_with_records(tmp_path, text_reading
     with pytest.raises(TimestampError) as caught:
         _read(tmp_path / "gap.parquet")
     assert "record 7" in str(caught.value) and "line" not in str(caught.value)
+    # files combined: a typed file's place is still a record, a text file's a line
+    other = frame.iloc[48:].assign(co2=[f"{float(v) + 1:g}" for v in frame["co2"].iloc[48:]])
+    (tmp_path / "b.csv").write_text(other.to_csv(index=False))
+    typed.to_parquet(tmp_path / "a.parquet")
+    with pytest.raises(DuplicateTimestampError, match=r"on record 49 of '[^']*a\.parquet' "
+                       r"and on line 2 of '[^']*b\.csv'"):
+        _read([tmp_path / "a.parquet", tmp_path / "b.csv"])
 
 
 def test_row_groups_of_another_schema_are_refused():
