@@ -3517,6 +3517,14 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     return _emptied_lines(text, skipped)
 
 
+def _first_in_file(lines: np.ndarray, rows: np.ndarray) -> int:
+    """Position of the row of the mask `rows` that stands first in its file: the rows
+    are in time order, which is not the file's where it was read reordered (sorted by
+    another column, days newest first), and a note quotes the file's first line."""
+    positions = np.flatnonzero(rows)
+    return int(positions[np.argmin(lines[positions])])
+
+
 def _lines_word(indices) -> str:
     return "line" if len(indices) == 1 else "lines"
 
@@ -4328,17 +4336,19 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
     grouping = digit_grouping.may_hold(text, decimal, delimiter)
     for name, column in read.items():
         written = raw[column]
-        raw[column], regrouped, first_grouped = (
-            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, -1))
+        raw[column], regrouped, grouped = (
+            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, None))
         if regrouped:
+            first_grouped = _first_in_file(lines, grouped)
             warnings.append(
                 f"column {column!r} ({name.split(':')[0]}): {regrouped} cell(s) written with "
                 "thousands separators where they cannot be a decimal mark (first "
                 f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
                 "of its file): read without them")
         cells = raw[column]
-        raw[column], fortran, first_fortran = fortran_numbers.e_exponents(cells)
+        raw[column], fortran, lettered = fortran_numbers.e_exponents(cells)
         if fortran:
+            first_fortran = _first_in_file(lines, lettered)
             warnings.append(
                 f"column {column!r} ({name.split(':')[0]}): {fortran} cell(s) written with "
                 f"Fortran's exponent letter D (first {cells.iloc[first_fortran].strip()!r} "
@@ -4356,7 +4366,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
                             f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
                             "more) read as missing, first on data line "
-                            f"{int(lines[np.flatnonzero(absurd)[0]])} of its file")
+                            f"{int(lines[_first_in_file(lines, absurd)])} of its file")
 
     # exact duplicate rows: same stamp and same value in every column read (none where
     # no stamp repeats, the usual file, which a hash of the stamps alone tells)
