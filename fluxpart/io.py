@@ -3896,6 +3896,12 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
     return 1
 
 
+def _blank_lines_at(text: str, line: int) -> int:
+    """Blank lines (whitespace only) from the 0-based `line` on, among the first 50."""
+    lines = leading_lines(text, 50)[line:]
+    return next((count for count, each in enumerate(lines) if each.strip()), 0)
+
+
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                        rows_before_header: int, path: Path) -> int:
     """Raise with the right ``rows_before_header`` when the header is on another line;
@@ -4148,18 +4154,22 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         later_notes.setdefault("marked", []).append((str(path), mark))
     elif mark:
         warnings.append(_marked_header_warning([(str(path), mark)]))
-    if header_cells.group_line_above(text, rows_before_header, delimiter,
+    # a group line or units row under blank lines above the header is judged where it
+    # stands, as the blank lines are read past below (leftovers56)
+    blank = _blank_lines_at(text, rows_before_header)
+    at = rows_before_header + blank
+    if header_cells.group_line_above(text, at, delimiter,
                                      [*columns.values(), *time_columns, *flag_columns]):
-        rows_before_header += 1
+        rows_before_header = at + 1
         warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {rows_before_header} holds group titles above "
-            f"the header (line {rows_before_header + 1} holds every column named in the "
-            "settings): read past"))
-    if not rows_after_header and header_cells.bracketed_units_row(text, rows_before_header,
-                                                                   delimiter):
+            f"input file {str(path)!r}: line {at + 1} holds group titles above the header "
+            f"(line {at + 2} holds every column named in the settings)"
+            + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
+        at = rows_before_header
+    if not rows_after_header and header_cells.bracketed_units_row(text, at, delimiter):
         rows_after_header = 1
         warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {rows_before_header + 2} under the header holds "
+            f"input file {str(path)!r}: line {at + 2} under the header holds "
             "units in brackets, no record: read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:

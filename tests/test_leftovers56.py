@@ -33,3 +33,27 @@ def test_a_note_of_a_file_read_in_time_order_quotes_its_first_line_in_the_file(t
     pd.testing.assert_frame_equal(read, expected)
     noted = [text for text in report.warnings + report.notes if "exponent letter D" in text]
     assert noted and "(first '2.5D0' on line 2 of its file)" in noted[0], noted
+
+
+def test_a_group_line_and_a_units_row_under_blank_lines_are_read_past(tmp_path):
+    """Two blank lines, then "Fluxes,,Met,,," and the names, then "[-],[umol/m2/s],..."
+    (the layout of layouts47, opened by blank lines as some exports do): read as the
+    clean file, each line named where it stands; the units row alone under the blank
+    lines too."""
+    ends, values, expected = _clean(tmp_path)
+    lines = _lines(ends.strftime("%Y-%m-%d %H:%M"), values)
+    group = ",Fluxes,,Met,,"
+    units = "[-],[umol/m2/s],[m/s],[W/m2],[degC],[hPa]"
+    (tmp_path / "group.csv").write_text(
+        "\n".join(["", " ", group, lines[0], units] + lines[1:]) + "\n")
+    read, report = _read(tmp_path / "group.csv")
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("line 3 holds group titles above the header (line 4 holds every column "
+               "named in the settings), under 2 blank line(s)" in n for n in report.notes)
+    assert any("line 5 under the header holds units in brackets" in n for n in report.notes)
+    (tmp_path / "units.csv").write_text("\n".join(["", lines[0], units] + lines[1:]) + "\n")
+    read, report = _read(tmp_path / "units.csv")
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("line 3 under the header holds units in brackets" in n for n in report.notes)
+    assert any("1 blank line(s) above the header (line 2) read past" in n
+               for n in report.notes)
