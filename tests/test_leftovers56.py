@@ -9,7 +9,7 @@ practice). Everything else is invented known truth: the records as written
 
 import pandas as pd
 from test_robustness_layouts26 import _read
-from test_robustness_layouts47 import _clean, _lines
+from test_robustness_layouts47 import _clean, _lines, _newest_day_first
 
 
 def test_a_note_of_a_file_read_in_time_order_quotes_its_first_line_in_the_file(tmp_path):
@@ -17,11 +17,7 @@ def test_a_note_of_a_file_read_in_time_order_quotes_its_first_line_in_the_file(t
     names the cell of the last day, which stands first in the file (line 2), not the
     first day's, which comes first in time (line 338)."""
     ends, values, expected = _clean(tmp_path)
-    stamps = ends.strftime("%Y-%m-%d %H:%M")
-    days = [slice(48 * d, 48 * (d + 1)) for d in range(len(ends) // 48)]
-    lines = _lines(stamps[:0], values[:0])
-    for day in days[::-1]:
-        lines += _lines(stamps[day], values[day])[1:]
+    lines = _newest_day_first(ends, values)[0]
     first_day, last_day = 7 * 48 + 1, 1                # list places of the two cells
     for place, written in ((first_day, "1.5D0"), (last_day, "2.5D0")):
         cells = lines[place].split(",")
