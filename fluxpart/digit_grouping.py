@@ -56,10 +56,10 @@ def may_hold(text: str, decimal: str, delimiter: str) -> bool:
     return other in text and (other != delimiter or '"' in text)
 
 
-def ungrouped(cells: pd.Series, decimal: str) -> tuple[pd.Series, int, int]:
+def ungrouped(cells: pd.Series, decimal: str) -> tuple[pd.Series, int, np.ndarray]:
     """`cells` (text, stripped or not) with thousands separators removed where they
-    cannot be a decimal mark (rules of the module); the count of cells changed and the
-    row of the first (-1 where none).
+    cannot be a decimal mark (rules of the module); the count of cells changed and a
+    mask of them (the caller names the first in its file's order).
 
     Parameters
     ----------
@@ -69,12 +69,12 @@ def ungrouped(cells: pd.Series, decimal: str) -> tuple[pd.Series, int, int]:
         The file's declared decimal mark ([input] decimal).
     """
     if decimal not in _CANDIDATE or cells.empty:
-        return cells, 0, -1
+        return cells, 0, np.zeros(len(cells), dtype=bool)
     text = pa.array(cells, type=pa.string(), from_pandas=True)
     holding = pc.fill_null(pc.match_substring_regex(text, _CANDIDATE[decimal]), False
                            ).to_numpy(zero_copy_only=False).astype(bool)
     if not holding.any():
-        return cells, 0, -1
+        return cells, 0, np.zeros(len(cells), dtype=bool)
     stripped = cells.str.strip()
     changed = np.zeros(len(cells), dtype=bool)
     result = stripped.copy()
@@ -86,16 +86,16 @@ def ungrouped(cells: pd.Series, decimal: str) -> tuple[pd.Series, int, int]:
         fits = stripped[has].str.fullmatch(_grouped(separator, decimal).pattern).to_numpy(
             dtype=bool)
         if not fits.all():
-            return cells, 0, -1                      # the reader names the cell
+            return cells, 0, np.zeros(len(cells), dtype=bool)                      # the reader names the cell
         if separator == other:
             column_decimal = stripped[~has].str.contains(decimal, regex=False).any()
             cell_sure = (stripped[has].str.contains(decimal, regex=False)
                          | (stripped[has].str.count(re.escape(other)) >= 2)).any()
             if not (column_decimal or cell_sure):
-                return cells, 0, -1                  # whole numbers only: two readings
+                return cells, 0, np.zeros(len(cells), dtype=bool)                  # whole numbers only: two readings
         rows = np.flatnonzero(has)
         result.iloc[rows] = stripped.iloc[rows].str.replace(separator, "", regex=False)
         changed[rows] = True
     if not changed.any():
-        return cells, 0, -1
-    return result, int(changed.sum()), int(np.flatnonzero(changed)[0])
+        return cells, 0, np.zeros(len(cells), dtype=bool)
+    return result, int(changed.sum()), changed

@@ -14,7 +14,7 @@ import pandas as pd
 _D_NUMBER = r"\s*[+-]?(?:\d+\.?\d*|\.\d+)[dD][+-]?\d+\s*"
 
 
-def e_exponents(written: pd.Series) -> tuple[pd.Series, int, int]:
+def e_exponents(written: pd.Series) -> tuple[pd.Series, int, np.ndarray]:
     """The cells of `written` with a D exponent written with E.
 
     Parameters
@@ -28,8 +28,8 @@ def e_exponents(written: pd.Series) -> tuple[pd.Series, int, int]:
         `written` with each D-exponent number's letter as E (`written` itself where none).
     count : int
         Cells rewritten.
-    first : int
-        Position of the first rewritten cell (-1 where none).
+    rewritten : numpy.ndarray of bool
+        Mask of the rewritten cells (the caller names the first in its file's order).
 
     References
     ----------
@@ -40,12 +40,12 @@ def e_exponents(written: pd.Series) -> tuple[pd.Series, int, int]:
     # pattern's \s and \d keep pandas off pyarrow's) runs on those alone, none in most files
     lettered = written.str.contains("[dD]", regex=True, na=False).to_numpy(dtype=bool)
     if not lettered.any():
-        return written, 0, -1
+        return written, 0, np.zeros(len(written), dtype=bool)
     found = np.zeros(len(written), dtype=bool)
     found[lettered] = written[lettered].str.fullmatch(_D_NUMBER).fillna(False).to_numpy(
         dtype=bool)
     if not found.any():
-        return written, 0, -1
+        return written, 0, np.zeros(len(written), dtype=bool)
     cells = written.copy()
     cells[found] = written[found].str.replace(r"[dD]", "E", regex=True)
-    return cells, int(found.sum()), int(np.flatnonzero(found)[0])
+    return cells, int(found.sum()), found

@@ -1029,7 +1029,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     stamps = combined["stamps"]
     def describe(position):
-        return f"line {combined['lines'][position]} of {combined['sources'][position]!r}"
+        return _place(combined, position)
 
     check_isolated_stretch(pd.DatetimeIndex(stamps), describe)
     interval_minutes = infer_interval(stamps, interval_minutes, describe)
@@ -3517,6 +3517,14 @@ def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_h
     return _emptied_lines(text, skipped)
 
 
+def _first_in_file(lines: np.ndarray, rows: np.ndarray) -> int:
+    """Position of the row of the mask `rows` that stands first in its file: the rows
+    are in time order, which is not the file's where it was read reordered (sorted by
+    another column, days newest first), and a note quotes the file's first line."""
+    positions = np.flatnonzero(rows)
+    return int(positions[np.argmin(lines[positions])])
+
+
 def _lines_word(indices) -> str:
     return "line" if len(indices) == 1 else "lines"
 
@@ -3888,6 +3896,12 @@ def _separator_line(text: str, delimiter: str, rows_before_header: int, path: Pa
     return 1
 
 
+def _blank_lines_at(text: str, line: int) -> int:
+    """Blank lines (whitespace only) from the 0-based `line` on, among the first 50."""
+    lines = leading_lines(text, 50)[line:]
+    return next((count for count, each in enumerate(lines) if each.strip()), 0)
+
+
 def _check_header_line(text: str, delimiter: str, time_columns: tuple,
                        rows_before_header: int, path: Path) -> int:
     """Raise with the right ``rows_before_header`` when the header is on another line;
@@ -4108,6 +4122,7 @@ def _read_file(path: Path, **settings) -> dict:
     warnings[start:] = [type(warning)(table_formats.record_wording(warning))
                         for warning in warnings[start:]]
     part["lines"] = part["lines"] - 1          # record places, 1-based
+    part["place_word"] = "record"              # named so once files are combined
     return part
 
 
@@ -4139,18 +4154,22 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         later_notes.setdefault("marked", []).append((str(path), mark))
     elif mark:
         warnings.append(_marked_header_warning([(str(path), mark)]))
-    if header_cells.group_line_above(text, rows_before_header, delimiter,
+    # a group line or units row under blank lines above the header is judged where it
+    # stands, as the blank lines are read past below (leftovers56)
+    blank = _blank_lines_at(text, rows_before_header)
+    at = rows_before_header + blank
+    if header_cells.group_line_above(text, at, delimiter,
                                      [*columns.values(), *time_columns, *flag_columns]):
-        rows_before_header += 1
+        rows_before_header = at + 1
         warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {rows_before_header} holds group titles above "
-            f"the header (line {rows_before_header + 1} holds every column named in the "
-            "settings): read past"))
-    if not rows_after_header and header_cells.bracketed_units_row(text, rows_before_header,
-                                                                   delimiter):
+            f"input file {str(path)!r}: line {at + 1} holds group titles above the header "
+            f"(line {at + 2} holds every column named in the settings)"
+            + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
+        at = rows_before_header
+    if not rows_after_header and header_cells.bracketed_units_row(text, at, delimiter):
         rows_after_header = 1
         warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {rows_before_header + 2} under the header holds "
+            f"input file {str(path)!r}: line {at + 2} under the header holds "
             "units in brackets, no record: read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
@@ -4327,17 +4346,19 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
     grouping = digit_grouping.may_hold(text, decimal, delimiter)
     for name, column in read.items():
         written = raw[column]
-        raw[column], regrouped, first_grouped = (
-            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, -1))
+        raw[column], regrouped, grouped = (
+            digit_grouping.ungrouped(written, decimal) if grouping else (written, 0, None))
         if regrouped:
+            first_grouped = _first_in_file(lines, grouped)
             warnings.append(
                 f"column {column!r} ({name.split(':')[0]}): {regrouped} cell(s) written with "
                 "thousands separators where they cannot be a decimal mark (first "
                 f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
                 "of its file): read without them")
         cells = raw[column]
-        raw[column], fortran, first_fortran = fortran_numbers.e_exponents(cells)
+        raw[column], fortran, lettered = fortran_numbers.e_exponents(cells)
         if fortran:
+            first_fortran = _first_in_file(lines, lettered)
             warnings.append(
                 f"column {column!r} ({name.split(':')[0]}): {fortran} cell(s) written with "
                 f"Fortran's exponent letter D (first {cells.iloc[first_fortran].strip()!r} "
@@ -4355,7 +4376,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             warnings.append(f"column {column!r} ({name.split(':')[0]}): {int(absurd.sum())} "
                             f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
                             "more) read as missing, first on data line "
-                            f"{int(lines[np.flatnonzero(absurd)[0]])} of its file")
+                            f"{int(lines[_first_in_file(lines, absurd)])} of its file")
 
     # exact duplicate rows: same stamp and same value in every column read (none where
     # no stamp repeats, the usual file, which a hash of the stamps alone tells)
@@ -5305,6 +5326,14 @@ def _second_pass_heads(parts: list, time_zone: str, utc_offset: float,
     return parts
 
 
+def _place(combined: dict, position: int) -> str:
+    """Where the combined row `position` came from: "line 8 of 'a.csv'" for a text file,
+    "record 7 of 'a.parquet'" for a typed table (whose places count records from 1)."""
+    source = combined["sources"][position]
+    word = "record" if source in combined["record_sources"] else "line"
+    return f"{word} {int(combined['lines'][position])} of {source!r}"
+
+
 def _combine(parts: list) -> dict:
     """Join the files' rows in time order; merge identical rows, refuse conflicting ones."""
     names = list(parts[0]["values"])
@@ -5313,6 +5342,7 @@ def _combine(parts: list) -> dict:
     sources = np.array([part["source"] for part in parts for _ in range(len(part["stamps"]))],
                        dtype=object)
     values = {name: np.concatenate([part["values"][name] for part in parts]) for name in names}
+    record_sources = {part["source"] for part in parts if part.get("place_word") == "record"}
     order = np.argsort(stamps, kind="stable")
     stamps, lines, sources = stamps[order], lines[order], sources[order]
     values = {name: column[order] for name, column in values.items()}
@@ -5352,6 +5382,7 @@ def _combine(parts: list) -> dict:
                        "look like two loggers' files joined by stamp: keep the column(s) of "
                        f"{', '.join(differing)} in one of them only (in a copy), or rename "
                        "them in the other")
+            where = {"lines": lines, "sources": sources, "record_sources": record_sources}
             if sources[a] != sources[b]:
                 fix = (_other_step_overlap(parts, sources[a], sources[b])
                        or _shifted_overlap(parts, sources[a], sources[b])
@@ -5364,9 +5395,9 @@ def _combine(parts: list) -> dict:
                            "format?): remove the overlap from one of them in a copy (keeping "
                            f"{rounded[1]!r}'s moves no value by more than that rounding)")
             raise DuplicateTimestampError(
-                f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on line "
-                f"{int(lines[a])} of {sources[a]!r} and on line {int(lines[b])} of "
-                f"{sources[b]!r} with different values ({', '.join(differing)}); "
+                f"overlapping files disagree: stamp {pd.Timestamp(stamps[a])} is on "
+                f"{_place(where, a)} and on {_place(where, b)} "
+                f"with different values ({', '.join(differing)}); "
                 f"{int(pd.Index(stamps).duplicated().sum())} such stamp(s) in all: {fix}")
     conversions: dict = {}
     for part in parts:
@@ -5374,7 +5405,8 @@ def _combine(parts: list) -> dict:
             conversions[key] = conversions.get(key, 0) + count
     return {
         "stamps": pd.DatetimeIndex(stamps), "lines": lines, "sources": sources,
-        "values": values, "merged_rows": merged, "completed_stamps": completed,
+        "record_sources": record_sources, "values": values, "merged_rows": merged,
+        "completed_stamps": completed,
         "completed_first": completed_first,
         "records_read": sum(part["records_read"] for part in parts),
         "duplicate_rows": sum(part["duplicate_rows"] for part in parts),

@@ -15,8 +15,9 @@ unchanged. The text is an exact copy, not a rounding:
   exactly first);
 - integers, decimals and strings are written as they are; booleans as 1 and 0;
 - nulls (and JSON ``null`` or a key a record lacks) are empty cells, missing values;
-- typed stamps (Arrow timestamps, dates and times of day) are written in ISO 8601 order
-  and read under a format of their own (:attr:`TableText.time_format`), whatever
+- typed stamps (Arrow timestamps, dates and times of day) are written in ISO 8601 order,
+  to the microsecond where any has a finer part than the second (a time of day finer
+  than a microsecond is refused), and read under a format of their own (:attr:`TableText.time_format`), whatever
   ``[input] time_format`` says, which applies to stamps stored as text or numbers.
 
 A pandas index stored in the file (``DataFrame.to_parquet``: a DatetimeIndex, named or
@@ -306,9 +307,7 @@ def _arrow_columns(table: pa.Table, source: str, wanted, clock) -> tuple[dict, d
         elif pa.types.is_date(kind):
             cells, formats[name] = pc.cast(column, pa.string()), _DATE_FORMAT
         elif pa.types.is_time(kind):
-            # to whole seconds: a logger's time of day has none finer
-            cells, formats[name] = (pc.cast(column.cast(pa.time32("s"), safe=False),
-                                            pa.string()), _TIME_FORMAT)
+            cells, formats[name] = _time_of_day_cells(column, name, source)
         elif pa.types.is_floating(kind):
             cells = pc.cast(column.cast(pa.float64()), pa.string())
         elif pa.types.is_boolean(kind):
@@ -319,6 +318,29 @@ def _arrow_columns(table: pa.Table, source: str, wanted, clock) -> tuple[dict, d
             cells = pc.cast(column, pa.string())
         columns[name] = cells.to_numpy(zero_copy_only=False)
     return columns, formats
+
+
+def _time_of_day_cells(column: pa.Array, name: str, source: str) -> tuple:
+    """Text of a time-of-day column (Arrow time32/time64) and its format, exact.
+
+    Whole seconds are written "%H:%M:%S"; a column with a finer part anywhere is written
+    to the microsecond ("%H:%M:%S.%f", the finest the stamp parser reads), and one with
+    a part finer than a microsecond (time64 in ns) is refused naming the column and the
+    first record, as no reading keeps it.
+    """
+    whole = column.cast(pa.time32("s"), safe=False)
+    if not bool(pc.any(pc.not_equal(whole.cast(column.type), column)).as_py()):
+        return pc.cast(whole, pa.string()), _TIME_FORMAT
+    micro = column.cast(pa.time64("us"), safe=False)
+    finer = pc.fill_null(pc.not_equal(micro.cast(column.type), column), False)
+    if bool(pc.any(finer).as_py()):
+        record = int(np.flatnonzero(finer.to_numpy(zero_copy_only=False))[0]) + 1
+        shown = pc.cast(column.slice(record - 1, 1), pa.string())[0].as_py()
+        raise TimestampError(
+            f"input file {source!r}: column {name!r} holds times of day finer than a "
+            f"microsecond (record {record}: {shown}); the reader keeps "
+            "microseconds at most: round them to the microsecond in a copy")
+    return pc.cast(micro, pa.string()), _TIME_FORMAT + ".%f"
 
 
 def _stamp_cells(column: pa.Array, name: str, source: str, clock) -> tuple:

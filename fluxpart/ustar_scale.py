@@ -19,6 +19,17 @@ at 3 m over grass; tall canopy 1.0 and 2.0 m s-1) is not a real site's; two or m
 months are named, with the values divided by 3.6 where they then lie in the towers'
 range. One stormy month never counts alone.
 
+Limit (leftovers56): ``[site] canopy`` defaults to "tall" (:class:`fluxpart.site.Site`),
+and a calm short canopy's u* in km h-1 (the invented grassland: nights' median 0.72, 95th
+percentile 1.52 m s-1) lies within a tall canopy's bounds, so a grass or crop site that
+leaves ``canopy`` unset is not named. The records cannot tell the canopy instead: the
+bound is on u* / U and the roughness (z - d) / z0, and the input holds neither the wind
+speed nor the canopy or measurement height; u* against Rg, temperature or the season
+carries no canopy signal we can argue (a daytime u* rises with Rg over either canopy
+(m)), and judging an unset canopy as short would name 8 of the 34 generated
+forests of ``bench_ustar_scale.py``, a false alarm at every such forest. So a short canopy
+must be written ``canopy = "short"``, as its u* floor needs anyway (:mod:`fluxpart.ustar`).
+
 References
 ----------
 Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer, ch. 9 (the

@@ -77,15 +77,22 @@ def test_rows_sorted_by_a_value_column_are_read_in_time_order(tmp_path):
         _read(tmp_path / "reset.csv")
 
 
-def test_whole_days_in_reverse_order_are_read_in_time_order(tmp_path):
-    """Day blocks pasted newest day first, each in time order, and each newest first in
-    time order of days: read; with one day left out the blocks leave a gap: refused."""
-    ends, values, expected = _clean(tmp_path)
+def _newest_day_first(ends, values):
+    """The file's lines with the days pasted newest day first (each in time order), the
+    stamps and the day slices (48 records a day)."""
     stamps = ends.strftime("%Y-%m-%d %H:%M")
     days = [slice(48 * d, 48 * (d + 1)) for d in range(len(ends) // 48)]
     lines = _lines(stamps[:0], values[:0])
     for day in days[::-1]:
         lines += _lines(stamps[day], values[day])[1:]
+    return lines, stamps, days
+
+
+def test_whole_days_in_reverse_order_are_read_in_time_order(tmp_path):
+    """Day blocks pasted newest day first, each in time order, and each newest first in
+    time order of days: read; with one day left out the blocks leave a gap: refused."""
+    ends, values, expected = _clean(tmp_path)
+    lines, stamps, days = _newest_day_first(ends, values)
     (tmp_path / "reverse.csv").write_text("\n".join(lines) + "\n")
     _same(tmp_path / "reverse.csv", expected, f"its records are {len(days)} whole days")
     lines = _lines(stamps[:0], values[:0])

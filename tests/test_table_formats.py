@@ -22,7 +22,12 @@ from test_robustness_layouts35 import _records  # invented records of 1-10 June 
 from test_robustness_layouts36 import MAPPING, SITE
 
 from fluxpart import table_formats
-from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
+from fluxpart.errors import (
+    DuplicateTimestampError,
+    InputFileError,
+    MissingColumnError,
+    TimestampError,
+)
 from fluxpart.io import _plain_numbers, read_table
 
 VALUES = ["co2", "sw", "t_air", "vpd", "us"]
@@ -217,6 +222,13 @@ def test_wrong_mappings_and_faults_are_named_with_records(tmp_path, text_reading
     with pytest.raises(TimestampError) as caught:
         _read(tmp_path / "gap.parquet")
     assert "record 7" in str(caught.value) and "line" not in str(caught.value)
+    # files combined: a typed file's place is still a record, a text file's a line
+    other = frame.iloc[48:].assign(co2=[f"{float(v) + 1:g}" for v in frame["co2"].iloc[48:]])
+    (tmp_path / "b.csv").write_text(other.to_csv(index=False))
+    typed.to_parquet(tmp_path / "a.parquet")
+    with pytest.raises(DuplicateTimestampError, match=r"on record 49 of '[^']*a\.parquet' "
+                       r"and on line 2 of '[^']*b\.csv'"):
+        _read([tmp_path / "a.parquet", tmp_path / "b.csv"])
 
 
 def test_row_groups_of_another_schema_are_refused():
@@ -284,3 +296,32 @@ def test_csv_and_parquet_give_byte_identical_result_tables(bundle, tmp_path):
     assert len(tables) > 10
     assert [name for name in tables if (bundle / "out" / name).read_bytes()
             != (tmp_path / "out" / name).read_bytes()] == []
+
+
+def test_a_time_of_day_column_is_read_exactly_or_refused(tmp_path):
+    """A date column and an Arrow time64 column (pyarrow, a general-purpose reference
+    library, stores the values): a quarter second is written as stored and read by the
+    reader's rule for stamps off the minute (rounded with a note, not dropped silently),
+    and a nanosecond, which no reading keeps, is refused naming the column and record."""
+    frame, _ = _records(96)
+    typed = _typed(frame)
+    stamps = typed.pop("stamp")
+    for shift in ("250ms", "1ns"):
+        shifted = stamps + pd.Timedelta(shift)
+        clock = (shifted - shifted.dt.normalize()).to_numpy("timedelta64[ns]").astype(np.int64)
+        table = pa.table({"day": pa.array(shifted.dt.date, pa.date32()),
+                          "clock": pa.array(clock, pa.time64("ns")),
+                          **{name: typed[name] for name in VALUES}})
+        path = tmp_path / f"{shift}.parquet"
+        pq.write_table(table, path)
+        if shift == "250ms":
+            text = table_formats.table_text(path.read_bytes(), path, "a Parquet file")
+            assert text.splitlines()[1].split(",")[:2] == ["2021-06-01", "00:30:00.250000"]
+            read, notes = _read(path, time_column=["day", "clock"],
+                                time_format="%Y-%m-%d %H:%M")
+            assert "96 stamp(s) within seconds of a whole minute rounded" in str(notes)
+            assert read.index[0] == pd.Timestamp("2021-06-01 00:00")
+        else:
+            with pytest.raises(TimestampError, match=r"'clock' .* finer than a "
+                               r"microsecond \(record 1: 00:30:00\.000000001\)"):
+                _read(path, time_column=["day", "clock"], time_format="%Y-%m-%d %H:%M")
