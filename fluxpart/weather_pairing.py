@@ -154,8 +154,23 @@ def cloud_response(nee, rg, index, changes: bool = False) -> tuple[float, float]
     nee = np.asarray(nee, dtype=float)
     rg = np.asarray(rg, dtype=float)
     index = pd.DatetimeIndex(index)
-    day, _, slope, nee_anomaly, rg_anomaly = _uptake_days(nee, rg, index)
-    days = pd.factorize(index.normalize())[0]
+    return _response(_uptake_days(nee, rg, index), _day_numbers(index), changes)
+
+
+def _day_numbers(index: pd.DatetimeIndex) -> np.ndarray:
+    """Each record's day as an integer rising with the days (the blocks of :func:`_ratio`)."""
+    return pd.factorize(index.normalize())[0]
+
+
+def _response(uptake, days, changes: bool) -> tuple[float, float]:
+    """:func:`cloud_response` from :func:`_uptake_days`' arrays and the day numbers.
+
+    :func:`_uptake_days` groups records by calendar month, so its arrays over a whole
+    record, taken at any calendar years' rows, are those of these years alone; the
+    numbers of :func:`_day_numbers`, taken so, keep their order, and :func:`_ratio` sums
+    its day blocks in that order: one computation serves the record and each of its
+    years with the same bits."""
+    day, _, slope, nee_anomaly, rg_anomaly = uptake
     predicted = slope * rg_anomaly
     if not changes:
         return _ratio(nee_anomaly[day], predicted[day], days[day])
@@ -194,7 +209,12 @@ def own_weather_gain(nee, drivers, index) -> tuple[float, float]:
     nee = np.asarray(nee, dtype=float)
     weather = np.asarray(drivers, dtype=float).reshape(len(nee), -1)
     index = pd.DatetimeIndex(index)
-    day, month, _, nee_anomaly, _ = _uptake_days(nee, weather[:, 0], index)
+    return _weather_gain(nee, weather, index, _uptake_days(nee, weather[:, 0], index))
+
+
+def _weather_gain(nee, weather, index, uptake) -> tuple[float, float]:
+    """:func:`own_weather_gain` with :func:`_uptake_days`' arrays of NEE and Rg given."""
+    day, month, _, nee_anomaly, _ = uptake
     _, keys = _keys(index)
     per_day = int(round(pd.Timedelta(days=1) / pd.Series(index).diff().median()))
     shifts = [0] + [sign * d * per_day for d in SHIFT_DAYS for sign in (1, -1)]
@@ -223,16 +243,18 @@ def own_weather_gain(nee, drivers, index) -> tuple[float, float]:
             float((shifted.mean() - sse[0]) / shifted.std()))
 
 
-def _no_answer(nee, rg, index, vpd, tair):
+def _no_answer(nee, rg, index, vpd, tair, uptake, days):
     """The three measures where all read "no answer": (share, error, step share, step
     error, gain, z, driver names of the free fit); None otherwise or where any of them
-    cannot be judged (see :func:`weather_of_another_record`)."""
+    cannot be judged (see :func:`weather_of_another_record`). ``uptake`` and ``days``:
+    :func:`_uptake_days` and :func:`_day_numbers` at these records (see
+    :func:`_response`)."""
     if nee.size < 2 * _MIN_RECORDS:
         return None
-    share, error = cloud_response(nee, rg, index)
+    share, error = _response(uptake, days, False)
     if not share + 2 * error < RESPONSE_SHARE:
         return None
-    step_share, step_error = cloud_response(nee, rg, index, changes=True)
+    step_share, step_error = _response(uptake, days, True)
     if not step_share + 2 * step_error < RESPONSE_SHARE:
         return None
     present = {"rg": rg, "vpd": vpd, "tair": tair}
@@ -240,13 +262,13 @@ def _no_answer(nee, rg, index, vpd, tair):
     columns = ["rg"] + [name for name in ("vpd", "tair") if present[name] is not None
                         and np.isfinite(present[name]).mean() >= 0.5]
     drivers = np.column_stack([present[name] for name in columns])
-    gain, z = own_weather_gain(nee, drivers, index)
+    gain, z = _weather_gain(nee, drivers, index, uptake)
     if np.isnan(z) and len(columns) > 1:
         # a VPD or tair with scattered gaps leaves no month whose records are complete
         # under all nine shifts (40 % missing at random: none), which silenced the check
         # on a mispaired record; Rg alone still judges it (review56)
         columns = ["rg"]
-        gain, z = own_weather_gain(nee, drivers[:, :1], index)
+        gain, z = _weather_gain(nee, drivers[:, :1], index, uptake)
     if not z < EVIDENCE:
         return None
     return share, error, step_share, step_error, gain, z, columns
@@ -293,7 +315,11 @@ def weather_of_another_record(nee, rg, index, vpd=None, tair=None,
         return None
     vpd, tair = (None if column is None else np.asarray(column, dtype=float)
                  for column in (vpd, tair))
-    found = _no_answer(nee, rg, index, vpd, tair)
+    # the monthly courses and day numbers once for the record, taken at each year's rows
+    # below (the same bits as each year's own: _response; round speed54)
+    uptake = _uptake_days(nee, rg, index)
+    days = _day_numbers(index)
+    found = _no_answer(nee, rg, index, vpd, tair, uptake, days)
     years = index.year.to_numpy()
     named_years = []
     if found is None and np.unique(years).size > 1:
@@ -308,10 +334,12 @@ def weather_of_another_record(nee, rg, index, vpd=None, tair=None,
         for year in np.unique(years):
             rows = years == year
             figures = _no_answer(nee[rows], rg[rows], index[rows],
-                                 *(None if c is None else c[rows] for c in (vpd, tair)))
+                                 *(None if c is None else c[rows] for c in (vpd, tair)),
+                                 tuple(part[rows] for part in uptake), days[rows])
             if figures is None:
                 continue
-            rest_share, rest_error = cloud_response(nee[~rows], rg[~rows], index[~rows])
+            rest_share, rest_error = _response(tuple(part[~rows] for part in uptake),
+                                               days[~rows], False)
             if rest_share - 2 * rest_error >= RESPONSE_SHARE:
                 named_years.append(int(year))
                 found = found or figures
