@@ -100,6 +100,9 @@ Warnings (the run goes on):
   unscreened).
 - ``input (ustar of another record)``: u* missing for days where NEE and the weather were
   measured (another record's u*, or u* removed alone by a check).
+- ``input (ustar unit)``: the nights' u* far above what the surface layer allows for the
+  site's canopy in two or more months (u* in km h-1, or a wind speed mapped as u*;
+  ``ustar_scale``, called from the screening stage).
 - ``input (rg shaded)``: Rg of clear mornings and afternoons at the same sun height far
   apart (shaded).
 - ``input (rg dark)``: Rg missing in the dark but present by day.
