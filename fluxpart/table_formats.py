@@ -16,8 +16,9 @@ unchanged. The text is an exact copy, not a rounding:
 - integers, decimals and strings are written as they are; booleans as 1 and 0;
 - nulls (and JSON ``null`` or a key a record lacks) are empty cells, missing values;
 - typed stamps (Arrow timestamps, dates and times of day) are written in ISO 8601 order,
-  to the microsecond where any has a finer part than the second (a time of day finer
-  than a microsecond is refused), and read under a format of their own (:attr:`TableText.time_format`), whatever
+  to the microsecond where any has a finer part than the second (a stamp or a time of
+  day finer than a microsecond is refused), and read under a format of their own
+  (:attr:`TableText.time_format`), whatever
   ``[input] time_format`` says, which applies to stamps stored as text or numbers.
 
 A pandas index stored in the file (``DataFrame.to_parquet``: a DatetimeIndex, named or
@@ -331,16 +332,25 @@ def _time_of_day_cells(column: pa.Array, name: str, source: str) -> tuple:
     whole = column.cast(pa.time32("s"), safe=False)
     if not bool(pc.any(pc.not_equal(whole.cast(column.type), column)).as_py()):
         return pc.cast(whole, pa.string()), _TIME_FORMAT
-    micro = column.cast(pa.time64("us"), safe=False)
+    micro = _to_microseconds(column, pa.time64("us"), name, source, "times of day")
+    return pc.cast(micro, pa.string()), _TIME_FORMAT + ".%f"
+
+
+def _to_microseconds(column: pa.Array, unit: pa.DataType, name: str, source: str,
+                     what: str) -> pa.Array:
+    """`column` cast to `unit` (a microsecond type), refused naming the column and the
+    first record where a value has a part finer than a microsecond (nanoseconds), as no
+    reading keeps it."""
+    micro = column.cast(unit, safe=False)
     finer = pc.fill_null(pc.not_equal(micro.cast(column.type), column), False)
     if bool(pc.any(finer).as_py()):
         record = int(np.flatnonzero(finer.to_numpy(zero_copy_only=False))[0]) + 1
         shown = pc.cast(column.slice(record - 1, 1), pa.string())[0].as_py()
         raise TimestampError(
-            f"input file {source!r}: column {name!r} holds times of day finer than a "
+            f"input file {source!r}: column {name!r} holds {what} finer than a "
             f"microsecond (record {record}: {shown}); the reader keeps "
             "microseconds at most: round them to the microsecond in a copy")
-    return pc.cast(micro, pa.string()), _TIME_FORMAT + ".%f"
+    return micro
 
 
 def _stamp_cells(column: pa.Array, name: str, source: str, clock) -> tuple:
@@ -348,7 +358,8 @@ def _stamp_cells(column: pa.Array, name: str, source: str, clock) -> tuple:
     whole = column.cast(pa.timestamp("s", column.type.tz), safe=False)
     fraction = bool(pc.any(pc.not_equal(whole.cast(column.type), column)).as_py())
     seconds = STAMP_FORMAT + (".%f" if fraction else "")
-    shown = column.cast(pa.timestamp("us", column.type.tz)) if fraction else whole
+    shown = (_to_microseconds(column, pa.timestamp("us", column.type.tz), name, source,
+                              "stamps") if fraction else whole)
     mapped = clock is not None and name in clock["time_columns"]
     if column.type.tz is None:
         if mapped and "%z" in clock["time_format"]:

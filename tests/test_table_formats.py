@@ -325,3 +325,25 @@ def test_a_time_of_day_column_is_read_exactly_or_refused(tmp_path):
             with pytest.raises(TimestampError, match=r"'clock' .* finer than a "
                                r"microsecond \(record 1: 00:30:00\.000000001\)"):
                 _read(path, time_column=["day", "clock"], time_format="%Y-%m-%d %H:%M")
+
+
+def test_a_timestamp_finer_than_a_microsecond_is_refused_naming_it(tmp_path):
+    """An Arrow timestamp[ns] column (pyarrow, a general-purpose reference library, stores
+    the values) with one stamp a nanosecond off the minute: no reading keeps it, so it is
+    refused naming the column and the record (pyarrow's own "would lose data" error
+    before, a traceback; round review68), and one a quarter second off is read."""
+    frame, _ = _records(96)
+    typed = _typed(frame)
+    stamps = typed["stamp"].to_numpy("datetime64[ns]").astype(np.int64)
+    for off, record in ((250_000_000, None), (1, 7)):
+        shifted = stamps.copy()
+        shifted[6] += off
+        typed["stamp"] = pa.array(shifted, pa.timestamp("ns"))
+        path = tmp_path / f"{off}.parquet"
+        pq.write_table(pa.Table.from_pandas(typed, preserve_index=False), path)
+        if record is None:
+            assert _read(path)[0].index[6] == pd.Timestamp("2021-06-01 03:00")  # start
+        else:
+            with pytest.raises(TimestampError, match=r"'stamp' holds stamps finer than a "
+                               r"microsecond \(record 7: 2021-06-01 03:30:00\.000000001\)"):
+                _read(path)
