@@ -643,8 +643,8 @@ def _parser() -> argparse.ArgumentParser:
         "network.json seal is checked, then each site folder it lists is verified, one after "
         "another (serially, no cluster), one line per site; a site the batch failed is "
         "'not computed by the batch' and does not fail the verdict by itself; exit 0 only if "
-        "every computed site is reproduced, 1 if any is not, 2 on error (a listed site folder "
-        "missing).")
+        "every computed site is reproduced, 1 if any is not or the seal does not hold, 2 on "
+        "error (a listed site folder missing).")
     verify.add_argument("directory", type=_path,
                         help="result folder written by run, demo or batch, or a batch's "
                         "output folder (every site in it)")

@@ -8,6 +8,9 @@ order listed, serially, by :func:`fluxpart.verify.verify` unchanged. A site the
 batch failed (a row of ``failures.parquet``) has no result of that batch to verify:
 it is reported as not computed by the batch and does not fail the network's verdict
 by itself (the batch's own exit status and its failures table already say it failed).
+A complete seal that does not hold (a network file or a site's manifest not as sealed)
+fails the verdict, as a tampered result folder fails its own, and the sites are still
+verified; a seal damaged or left incomplete lists no site to walk and is an error.
 """
 
 from __future__ import annotations
@@ -47,16 +50,22 @@ class NetworkReport:
         Each site the seal lists, in its order, with its single-folder report.
     failed : tuple of (str, str)
         Each site the batch failed (``failures.parquet``), with its recorded error.
+    seal_problem : str
+        Why the network files or a site's manifest do not match ``network.json`` (as
+        :func:`fluxpart.batch.read_network` refuses them), or "" where they match.
     """
 
     directory: Path
     sites: tuple
     failed: tuple
+    seal_problem: str = ""
 
     @property
     def exit_code(self) -> int:
-        """0 when every computed site is reproduced (as verify's rules allow), else 1."""
-        return max((report.exit_code for _, report in self.sites), default=0)
+        """0 when the seal holds and every computed site is reproduced (as verify's
+        rules allow), else 1."""
+        return max((int(bool(self.seal_problem)),
+                    *(report.exit_code for _, report in self.sites)))
 
     @property
     def verdict(self) -> str:
@@ -66,9 +75,11 @@ class NetworkReport:
     def lines(self) -> list[str]:
         """One line per site, the network's verdict and the caution."""
         width = max((len(key) for key, _ in (*self.sites, *self.failed)), default=0)
-        lines = [f"network {shown_path(self.directory)}: seal intact ({NETWORK_SEAL}: every network "
-                 "file and site folder as the batch wrote them); sites verified one "
-                 "after another"]
+        seal = (f"seal NOT intact: {self.seal_problem}" if self.seal_problem else
+                f"seal intact ({NETWORK_SEAL}: every network file and site folder as the "
+                "batch wrote them)")
+        lines = [f"network {shown_path(self.directory)}: {seal}; sites verified one after "
+                 "another"]
         for key, report in self.sites:
             changed = report.folder_changes
             lines.append(f"  {key:<{width}}  {report.verdict}"
@@ -78,7 +89,8 @@ class NetworkReport:
                          "in failures.parquet)")
         bad = [key for key, report in self.sites if report.exit_code]
         lines.append(
-            f"{self.verdict}: " + (f"{len(bad)} of {len(self.sites)} site(s) not reproduced: "
+            f"{self.verdict}: " + ("the network seal does not hold; " if self.seal_problem
+                                   else "") + (f"{len(bad)} of {len(self.sites)} site(s) not reproduced: "
                                    + ", ".join(bad) if bad else
                                    f"all {len(self.sites)} computed site(s) reproduced")
             + (f"; {len(self.failed)} site(s) {NOT_COMPUTED}, which does not by itself fail "
@@ -96,6 +108,7 @@ class NetworkReport:
         return json.dumps({"format": NETWORK_JSON_FORMAT, "site_format": JSON_FORMAT,
                            "directory": str(self.directory), "sites": sites,
                            "verdict": self.verdict, "exit_code": self.exit_code,
+                           "seal_problem": self.seal_problem,
                            "caution": VERIFY_CAUTION},
                           indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
 
@@ -133,8 +146,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Raises
     ------
     InputFileError
-        If a site folder the seal lists is missing (named), or the network files do not
-        match their seal (as :func:`fluxpart.batch.read_network` refuses them).
+        If a site folder the seal lists is missing (named), or the seal lists no site
+        (damaged, or written incomplete by a stopped batch). Network files or site
+        manifests that do not match a complete seal are the report's `seal_problem`.
     FluxpartError
         A site's verify error, prefixed with its key.
 
@@ -152,12 +166,19 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             raise InputFileError(f"verify: site {key!r}: its folder {str(folder)!r}, listed in "
                                  f"{str(out / NETWORK_SEAL)!r}, does not exist (moved or "
                                  "deleted?); put it back, or run the batch again")
+    seal_problem = ""
     for table in NETWORK_DATASETS:
         try:
             _network_table(out, table)      # the seal check of read_network, unchanged
         except FluxpartError as error:
-            error.args = (f"verify: {error}",)
-            raise
+            if not listed:      # no seal, or one cut short or incomplete: nothing to walk
+                error.args = (f"verify: {error}",)
+                raise
+            # a file or site manifest not as sealed is a failed verification (exit 1), as a
+            # tampered result folder is, and its sites are still verified; read_network's
+            # remedy (run the batch again) would overwrite what an auditor must see
+            seal_problem = str(error).split("; run the batch again", 1)[0]
+            break
     reports = []
     for key, folder in listed:
         try:
@@ -167,7 +188,8 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             raise
     failed = tuple((key, error) for key, error in failed_sites(out).items()
                    if key not in dict(listed))
-    return NetworkReport(directory=out, sites=tuple(reports), failed=failed)
+    return NetworkReport(directory=out, sites=tuple(reports), failed=failed,
+                         seal_problem=seal_problem)
 
 
 def command_verify_network(args) -> int:

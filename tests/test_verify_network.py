@@ -64,9 +64,13 @@ def test_every_listed_site_is_verified_in_order_and_a_failed_one_is_named(networ
 
 
 def test_an_edited_site_table_fails_the_network_and_names_the_site(network, tmp_path, capsys):
-    """A site's table rewritten with one value changed (its manifest untouched, so the
-    network seal still holds): that site is NOT reproduced, the others are; exit 1."""
+    """A site's table rewritten with one value changed (its manifest untouched): that
+    site is NOT reproduced, the others are; a network file edited too: the seal is said
+    not to hold (read_network's words, without its "run the batch again"), the sites are
+    still verified; exit 1."""
     out = _copy(network, tmp_path)
+    with open(out / "network_daily" / "site=alder" / "part-0.parquet", "ab") as handle:
+        handle.write(b"\0")
     path = out / "birch" / "annual.parquet"
     table = pd.read_parquet(path)
     number = table.select_dtypes("float").columns[0]
@@ -74,9 +78,12 @@ def test_an_edited_site_table_fails_the_network_and_names_the_site(network, tmp_
     table.to_parquet(path)
     assert main(["verify", str(out), "--quiet"]) == 1
     lines = capsys.readouterr().out.splitlines()
+    assert "seal NOT intact: network_daily/site=alder in" in lines[0]
+    assert "run the batch again" not in lines[0]
     assert lines[1].split() == ["alder", "bit-identical"]
     assert lines[2].split()[:3] == ["birch", "not", "reproduced"]
-    assert lines[4].startswith("not reproduced: 1 of 2 site(s) not reproduced: birch")
+    assert lines[4].startswith("not reproduced: the network seal does not hold; 1 of 2 "
+                               "site(s) not reproduced: birch")
 
 
 def test_a_missing_site_folder_is_an_error_naming_it(network, tmp_path, capsys):
