@@ -639,9 +639,15 @@ def _parser() -> argparse.ArgumentParser:
         "verify", help="rerun from DIR/manifest.json and compare",
         description="Check DIR against its manifest, rerun it from the recorded input and "
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
-        "rounding; 1: any other difference or tampering; 2: error.")
+        "rounding; 1: any other difference or tampering; 2: error. A batch output folder: its "
+        "network.json seal is checked, then each site folder it lists is verified, one after "
+        "another (serially, no cluster), one line per site; a site the batch failed is "
+        "'not computed by the batch' and does not fail the verdict by itself; exit 0 only if "
+        "every computed site is reproduced, 1 if any is not or the seal does not hold, 2 on "
+        "error (a listed site folder missing).")
     verify.add_argument("directory", type=_path,
-                        help="result folder written by run, demo or batch")
+                        help="result folder written by run, demo or batch, or a batch's "
+                        "output folder (every site in it)")
     verify.add_argument("--input", type=_path, action="append", help="the input file, if it is not "
                         "where the manifest says (relative to DIR); once per file for several")
     verify.add_argument("--config", type=_path, help="the site config, likewise (default: the recorded "

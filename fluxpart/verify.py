@@ -2505,8 +2505,13 @@ def command_verify(args) -> int:
         with ``--exact``), 1 for any other difference or tampering. Errors
         (missing manifest or input) propagate as
         :class:`~fluxpart.errors.FluxpartError`, which the command line prints as
-        one line with exit status 2.
+        one line with exit status 2. A batch output folder is verified site by site
+        (:mod:`fluxpart.verify_network`).
     """
+    from .verify_network import command_verify_network, is_network_folder
+
+    if is_network_folder(args.directory):
+        return command_verify_network(args)
     report = verify(args.directory, input_path=getattr(args, "input", None),
                     config_path=getattr(args, "config", None),
                     exact=bool(getattr(args, "exact", False)))

@@ -1,0 +1,206 @@
+"""``fluxpart verify`` of a batch output folder: the network's seal, then every site.
+
+A batch output folder (:mod:`fluxpart.batch`) holds one result folder per site and
+the network tables, sealed by ``network.json``. Verifying it checks that seal as
+:func:`fluxpart.batch.read_network` does (every network file's SHA-256, every site
+folder's manifest seal) and then verifies each site folder the seal lists, in the
+order listed, serially, by :func:`fluxpart.verify.verify` unchanged. A site the
+batch failed (a row of ``failures.parquet``) has no result of that batch to verify:
+it is reported as not computed by the batch and does not fail the network's verdict
+by itself (the batch's own exit status and its failures table already say it failed).
+A complete seal that does not hold (a network file or a site's manifest not as sealed)
+fails the verdict, as a tampered result folder fails its own, and the sites are still
+verified; a seal damaged or left incomplete lists no site to walk and is an error.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass
+from pathlib import Path
+
+from .errors import ConfigError, FluxpartError, InputFileError
+from .manifest import shown_path
+from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
+from .verify import JSON_FORMAT, VERIFY_CAUTION, verify
+
+__all__ = ["NetworkReport", "is_network_folder", "verify_network"]
+
+#: The layout of ``verify --json``'s object for a batch output folder.
+NETWORK_JSON_FORMAT = "fluxpart-verify-network/1"
+#: A failed site's verdict: the batch wrote no result for it.
+NOT_COMPUTED = "not computed by the batch"
+
+
+def is_network_folder(directory) -> bool:
+    """True where `directory` is a batch output folder: a ``network.json``, no manifest."""
+    directory = Path(directory)
+    return (directory / NETWORK_SEAL).is_file() and not (directory / "manifest.json").exists()
+
+
+@dataclass(frozen=True)
+class NetworkReport:
+    """The verdict on a batch output folder.
+
+    Attributes
+    ----------
+    directory : pathlib.Path
+        The batch output folder.
+    sites : tuple of (str, VerifyReport)
+        Each site the seal lists, in its order, with its single-folder report.
+    failed : tuple of (str, str)
+        Each site the batch failed (``failures.parquet``), with its recorded error.
+    seal_problem : str
+        Why the network files or a site's manifest do not match ``network.json`` (as
+        :func:`fluxpart.batch.read_network` refuses them), or "" where they match.
+    """
+
+    directory: Path
+    sites: tuple
+    failed: tuple
+    seal_problem: str = ""
+
+    @property
+    def exit_code(self) -> int:
+        """0 when the seal holds and every computed site is reproduced (as verify's
+        rules allow), else 1."""
+        return max((int(bool(self.seal_problem)),
+                    *(report.exit_code for _, report in self.sites)))
+
+    @property
+    def verdict(self) -> str:
+        """``"reproduced"`` or ``"not reproduced"`` (some site)."""
+        return "reproduced" if self.exit_code == 0 else "not reproduced"
+
+    def lines(self) -> list[str]:
+        """One line per site, the network's verdict and the caution."""
+        width = max((len(key) for key, _ in (*self.sites, *self.failed)), default=0)
+        seal = (f"seal NOT intact: {self.seal_problem}" if self.seal_problem else
+                f"seal intact ({NETWORK_SEAL}: every network file and site folder as the "
+                "batch wrote them)")
+        lines = [f"network {shown_path(self.directory)}: {seal}; sites verified one after "
+                 "another"]
+        for key, report in self.sites:
+            changed = report.folder_changes
+            lines.append(f"  {key:<{width}}  {report.verdict}"
+                         + (f" ({'; '.join(changed)})" if changed else ""))
+        for key, error in self.failed:
+            lines.append(f"  {key:<{width}}  {NOT_COMPUTED} ({error.split(':', 1)[0]}; "
+                         "in failures.parquet)")
+        bad = [key for key, report in self.sites if report.exit_code]
+        lines.append(
+            f"{self.verdict}: " + ("the network seal does not hold; " if self.seal_problem
+                                   else "") + (f"{len(bad)} of {len(self.sites)} site(s) not reproduced: "
+                                   + ", ".join(bad) if bad else
+                                   f"all {len(self.sites)} computed site(s) reproduced")
+            + (f"; {len(self.failed)} site(s) {NOT_COMPUTED}, which does not by itself fail "
+               "this verdict (the batch reported them failed)" if self.failed else ""))
+        lines.append(VERIFY_CAUTION)
+        return lines
+
+    def as_json(self) -> str:
+        """One JSON object: ``sites`` (each site's :meth:`VerifyReport.as_json` object with
+        its ``site`` key, or for a failed site ``verdict`` :data:`NOT_COMPUTED` and its
+        ``error``), ``verdict``, ``exit_code``, ``caution``; keys sorted, ASCII."""
+        sites = [{"site": key, **json.loads(report.as_json())} for key, report in self.sites]
+        sites += [{"site": key, "verdict": NOT_COMPUTED, "error": error, "exit_code": 0}
+                  for key, error in self.failed]
+        return json.dumps({"format": NETWORK_JSON_FORMAT, "site_format": JSON_FORMAT,
+                           "directory": str(self.directory), "sites": sites,
+                           "verdict": self.verdict, "exit_code": self.exit_code,
+                           "seal_problem": self.seal_problem,
+                           "caution": VERIFY_CAUTION},
+                          indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
+
+
+def _listed_sites(out: Path) -> list[tuple[str, Path]]:
+    """The site keys and folders ``network.json`` lists, in its order."""
+    path = out / NETWORK_SEAL
+    try:
+        seal = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, ValueError, RecursionError):
+        seal = None      # named by the seal check that follows
+    sites = seal.get("sites") if isinstance(seal, dict) else None
+    if not isinstance(sites, dict):
+        return []
+    return [(str(key), out / str(site.get("folder", key) if isinstance(site, dict) else key))
+            for key, site in sites.items()]
+
+
+def verify_network(directory, *, exact: bool = False) -> NetworkReport:
+    """Verify a batch output folder: its seal, then each site folder it lists.
+
+    Parameters
+    ----------
+    directory : path-like
+        Folder written by ``fluxpart batch`` (its ``out``).
+    exact : bool, optional
+        Demand bit identity of every site (as ``verify --exact``).
+
+    Returns
+    -------
+    NetworkReport
+        Each listed site's :class:`~fluxpart.verify.VerifyReport`, serially computed,
+        and the sites the batch failed.
+
+    Raises
+    ------
+    InputFileError
+        If a site folder the seal lists is missing (named), or the seal lists no site
+        (damaged, or written incomplete by a stopped batch). Network files or site
+        manifests that do not match a complete seal are the report's `seal_problem`.
+    FluxpartError
+        A site's verify error, prefixed with its key.
+
+    References
+    ----------
+    Common practice of reproducible computation: a result is checked by recomputing
+    it from its recorded input and settings, here one site at a time.
+    """
+    from .batch import _network_table, failed_sites
+
+    out = Path(directory).absolute()
+    listed = _listed_sites(out)
+    for key, folder in listed:
+        if not folder.is_dir():
+            raise InputFileError(f"verify: site {key!r}: its folder {str(folder)!r}, listed in "
+                                 f"{str(out / NETWORK_SEAL)!r}, does not exist (moved or "
+                                 "deleted?); put it back, or run the batch again")
+    seal_problem = ""
+    for table in NETWORK_DATASETS:
+        try:
+            _network_table(out, table)      # the seal check of read_network, unchanged
+        except FluxpartError as error:
+            if not listed:      # no seal, or one cut short or incomplete: nothing to walk
+                error.args = (f"verify: {error}",)
+                raise
+            # a file or site manifest not as sealed is a failed verification (exit 1), as a
+            # tampered result folder is, and its sites are still verified; read_network's
+            # remedy (run the batch again) would overwrite what an auditor must see
+            seal_problem = str(error).split("; run the batch again", 1)[0]
+            break
+    reports = []
+    for key, folder in listed:
+        try:
+            reports.append((key, verify(folder, exact=exact)))
+        except FluxpartError as error:
+            error.args = (f"site {key!r}: {error}",)
+            raise
+    failed = tuple((key, error) for key, error in failed_sites(out).items()
+                   if key not in dict(listed))
+    return NetworkReport(directory=out, sites=tuple(reports), failed=failed,
+                         seal_problem=seal_problem)
+
+
+def command_verify_network(args) -> int:
+    """``fluxpart verify OUT`` of a batch output folder; same options and exit statuses
+    (0 every computed site reproduced, 1 any not, 2 error)."""
+    given = [name for name in ("input", "config") if getattr(args, name, None)]
+    if given:
+        raise ConfigError(f"verify --{given[0]}: {str(args.directory)!r} is a batch output "
+                          "folder, whose sites each have their own input and config; give "
+                          "one site's folder in it with --" + given[0])
+    report = verify_network(args.directory, exact=bool(getattr(args, "exact", False)))
+    print(report.as_json() if getattr(args, "json", False) else "\n".join(report.lines()))
+    return report.exit_code
+

@@ -1,0 +1,100 @@
+"""Tests of ``fluxpart verify`` of a batch output folder (fluxpart.verify_network).
+
+The folder is built once per module without a cluster: :func:`fluxpart.batch.run_site`
+for two short bundles and one missing config (a failed site), then the batch's own
+network writer. The references are the single-folder ``fluxpart verify`` of each site
+(the network verdict must be its verdicts, in the seal's order), :mod:`json` (RFC 8259)
+for the ``--json`` object, and the exit statuses the command documents.
+"""
+
+import json
+import shutil
+
+import pandas as pd
+import pytest
+from bundles import make_bundle
+
+from fluxpart import batch
+from fluxpart.cli import main
+from fluxpart.verify_network import verify_network
+
+SITES = ("alder", "birch")
+
+
+@pytest.fixture(scope="module")
+def network(tmp_path_factory):
+    """A batch output folder: two computed sites and one the batch failed."""
+    root = tmp_path_factory.mktemp("verifynet")
+    out = root / "out"
+    outcomes = [batch.run_site(key, make_bundle(root / key), out / key) for key in SITES]
+    outcomes.append(batch.run_site("broken", root / "nowhere.toml", out / "broken"))
+    assert [o.status for o in outcomes] == ["written", "written", "failed"]
+    batch._write_network(outcomes, out)
+    return out
+
+
+def _copy(network, tmp_path):
+    copy = tmp_path / "out"
+    shutil.copytree(network, copy)
+    return copy
+
+
+@pytest.mark.filterwarnings("ignore::fluxpart.errors.FluxpartWarning")  # the reruns' own
+def test_every_listed_site_is_verified_in_order_and_a_failed_one_is_named(network, capsys):
+    """Exit 0; one line per site in network.json's order; the failed site is said not
+    computed by the batch and does not fail the verdict; --json gives each site's
+    single-folder object (as `verify SITE --json` gives it)."""
+    report = verify_network(network)
+    lines = report.lines()
+    assert lines[1].split() == ["alder", "bit-identical"]
+    assert lines[2].split() == ["birch", "bit-identical"]
+    assert lines[3].split()[:5] == ["broken", "not", "computed", "by", "the"]
+    assert lines[4].startswith("reproduced: all 2 computed site(s) reproduced; 1 site(s) "
+                               "not computed by the batch, which does not by itself fail")
+    assert report.exit_code == 0
+
+    found = json.loads(report.as_json())
+    assert [site["site"] for site in found["sites"]] == [*SITES, "broken"]
+    assert (found["verdict"], found["exit_code"]) == ("reproduced", 0)
+    assert main(["verify", str(network / "alder"), "--json"]) == 0
+    alone = json.loads(capsys.readouterr().out)
+    assert {k: v for k, v in found["sites"][0].items() if k != "site"} == alone
+    assert found["sites"][2]["verdict"] == "not computed by the batch"
+    assert "InputFileError" in found["sites"][2]["error"]
+
+
+def test_an_edited_site_table_fails_the_network_and_names_the_site(network, tmp_path, capsys):
+    """A site's table rewritten with one value changed (its manifest untouched): that
+    site is NOT reproduced, the others are; a network file edited too: the seal is said
+    not to hold (read_network's words, without its "run the batch again"), the sites are
+    still verified; exit 1."""
+    out = _copy(network, tmp_path)
+    with open(out / "network_daily" / "site=alder" / "part-0.parquet", "ab") as handle:
+        handle.write(b"\0")
+    path = out / "birch" / "annual.parquet"
+    table = pd.read_parquet(path)
+    number = table.select_dtypes("float").columns[0]
+    table[number] = table[number] + 1.0
+    table.to_parquet(path)
+    assert main(["verify", str(out), "--quiet"]) == 1
+    lines = capsys.readouterr().out.splitlines()
+    assert "seal NOT intact: network_daily/site=alder in" in lines[0]
+    assert "run the batch again" not in lines[0]
+    assert lines[1].split() == ["alder", "bit-identical"]
+    assert lines[2].split()[:3] == ["birch", "not", "reproduced"]
+    assert lines[4].startswith("not reproduced: the network seal does not hold; 1 of 2 "
+                               "site(s) not reproduced: birch")
+
+
+def test_a_missing_site_folder_is_an_error_naming_it(network, tmp_path, capsys):
+    """A listed site folder deleted: one error: line naming the site, exit 2, no verdict;
+    --input (one site's) is refused for a network folder."""
+    out = _copy(network, tmp_path)
+    shutil.rmtree(out / "alder")
+    assert main(["verify", str(out)]) == 2
+    captured = capsys.readouterr()
+    assert captured.out == ""
+    assert captured.err.startswith("error: verify: site 'alder': its folder")
+    assert "does not exist" in captured.err and len(captured.err.splitlines()) == 1
+    assert main(["verify", str(network), "--input", str(tmp_path)]) == 2
+    assert "is a batch output folder" in capsys.readouterr().err
