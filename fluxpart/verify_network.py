@@ -63,13 +63,17 @@ class NetworkReport:
     @property
     def exit_code(self) -> int:
         """0 when the seal holds and every computed site is reproduced (as verify's
-        rules allow), else 1."""
-        return max((int(bool(self.seal_problem)),
+        rules allow), else 1; 1 also where no site was computed (every site failed):
+        nothing was reproduced (lead52)."""
+        return max((int(bool(self.seal_problem)), int(not self.sites),
                     *(report.exit_code for _, report in self.sites)))
 
     @property
     def verdict(self) -> str:
-        """``"reproduced"`` or ``"not reproduced"`` (some site)."""
+        """``"reproduced"``, ``"not reproduced"`` (some site) or ``"nothing reproduced"``
+        (no site computed)."""
+        if not self.sites:
+            return "nothing reproduced"
         return "reproduced" if self.exit_code == 0 else "not reproduced"
 
     def lines(self) -> list[str]:
@@ -92,7 +96,8 @@ class NetworkReport:
             f"{self.verdict}: " + ("the network seal does not hold; " if self.seal_problem
                                    else "") + (f"{len(bad)} of {len(self.sites)} site(s) not reproduced: "
                                    + ", ".join(bad) if bad else
-                                   f"all {len(self.sites)} computed site(s) reproduced")
+                                   f"all {len(self.sites)} computed site(s) reproduced"
+                                   if self.sites else "the batch computed no site")
             + (f"; {len(self.failed)} site(s) {NOT_COMPUTED}, which does not by itself fail "
                "this verdict (the batch reported them failed)" if self.failed else ""))
         lines.append(VERIFY_CAUTION)

@@ -98,3 +98,15 @@ def test_a_missing_site_folder_is_an_error_naming_it(network, tmp_path, capsys):
     assert "does not exist" in captured.err and len(captured.err.splitlines()) == 1
     assert main(["verify", str(network), "--input", str(tmp_path)]) == 2
     assert "is a batch output folder" in capsys.readouterr().err
+
+
+def test_a_network_whose_every_site_failed_reproduces_nothing(tmp_path):
+    """A batch that computed no site leaves nothing to reproduce: the verdict must not read
+    as a pass (exit 0 with no site verified before lead52)."""
+    from fluxpart.verify_network import NetworkReport
+
+    report = NetworkReport(directory=tmp_path, sites=(),
+                           failed=(("a", "InputFileError: no file"),))
+    assert report.exit_code == 1
+    assert report.verdict == "nothing reproduced"
+    assert "the batch computed no site" in report.lines()[-2]
