@@ -59,6 +59,7 @@ import numpy as np
 import pandas as pd
 
 from ._groups import group_positions
+from .constants import SOLAR_CONSTANT
 from .daily_anomaly import daily_anomaly
 from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
@@ -437,6 +438,73 @@ def _light_arrays(nee, rg, potential, interval_minutes: float | None = None, sta
     return nee, rg, potential
 
 
+#: Haurwitz's clear-sky global radiation G = a cos(z) exp(-b / cos(z)) [W m-2], with
+#: a = 1098 W m-2 and b = 0.057 (Haurwitz 1945; Reno, Hansen & Stein 2012, SAND2012-2389,
+#: eq. 4 (m)): the shape of a cloudless day's course from the sun's zenith angle z alone.
+_HAURWITZ_A = 1098.0
+_HAURWITZ_B = 0.057
+#: Least cos(z) at which a record is judged for cloud (the sun about 6 degrees up): at a
+#: lower sun an interval's mean and the sensor's cosine error make Rg's ratio to any
+#: clear-sky course meaningless. Our choice.
+_CLOUD_MIN_COSZ = 0.1
+#: Quantile of Rg's ratio to Haurwitz's course taken as the site's clear-sky level (its
+#: turbidity, altitude and sensor calibration): clear records are the brightest ones at
+#: every site with clouds, and nearly all records at a desert's. Our choice.
+_CLEAR_QUANTILE = 0.9
+#: A record below this share of the clear-sky level is under cloud: a cloudless day's
+#: turbidity moves Rg by some 10 % from day to day (m), a cloud by more. Our choice.
+_CLOUDY_SHARE = 0.8
+
+
+def clear_sky_course(potential) -> np.ndarray:
+    """Haurwitz's clear-sky global radiation at each record [W m-2].
+
+    Parameters
+    ----------
+    potential : array_like
+        Potential radiation of each record [W m-2]; cos(z) is taken as its ratio to the
+        solar constant (the Earth's orbit moves that by 3.4 % either way, the shape not).
+
+    Returns
+    -------
+    numpy.ndarray
+        a cos(z) exp(-b / cos(z)) [W m-2], 0 with the sun down.
+
+    References
+    ----------
+    Haurwitz, B. (1945). Insolation in relation to cloudiness and cloud density. Journal
+    of Meteorology, 2, 154-166 (m).
+    Reno, M. J., Hansen, C. W., & Stein, J. S. (2012). Global horizontal irradiance clear
+    sky models: implementation and analysis. Sandia report SAND2012-2389, eq. 4 (m).
+    """
+    cosz = np.clip(np.asarray(potential, dtype=float) / SOLAR_CONSTANT, 0.0, None)
+    with np.errstate(divide="ignore"):
+        course = _HAURWITZ_A * cosz * np.exp(-_HAURWITZ_B / cosz)
+    return np.where(cosz > 0, course, 0.0)
+
+
+def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
+    """The changes of NEE and of the cloud-driven part of Rg from each record to the next:
+    the change of Rg's ratio to the clear-sky course (:func:`clear_sky_course`) times the
+    two records' mean course [W m-2]; NaN unless the sun is :data:`_CLOUD_MIN_COSZ` up at
+    both records and one of them is under cloud (below :data:`_CLOUDY_SHARE` of the site's
+    clear-sky level)."""
+    course = clear_sky_course(potential)
+    high = np.asarray(potential, dtype=float) / SOLAR_CONSTANT >= _CLOUD_MIN_COSZ
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(high, rg / np.where(high, course, 1.0), np.nan)
+    if not np.isfinite(ratio).any():
+        return np.diff(nee), np.full(max(nee.size - 1, 0), np.nan)
+    cloudy = high & (ratio < _CLOUDY_SHARE * float(np.nanquantile(ratio, _CLEAR_QUANTILE)))
+    judged = high[1:] & high[:-1] & (cloudy[1:] | cloudy[:-1])
+    # the change of the ratio to the clear-sky course at the pair's mean course: Rg's
+    # change less the change its course gives at an unchanged cloudiness (a day evenly
+    # overcast moves Rg with the sun alone, as a cloudless one)
+    with np.errstate(invalid="ignore"):
+        change = np.diff(ratio) * 0.5 * (course[1:] + course[:-1])
+    return np.diff(nee), np.where(judged, change, np.nan)
+
+
 def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
     """A message where NEE follows Rg by whole records, or None.
 
@@ -486,7 +554,11 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
         return None
     nee, rg, potential = arrays
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
-    scores = _sunlit_change_scores(nee, rg, potential, {k: k for k in range(-most, most + 1)})
+    d_nee, d_cloud = _cloud_changes(nee, rg, potential)
+    scores = {}
+    for k in range(-most, most + 1):
+        r, count = _correlation(*_shift_pairs(d_nee, d_cloud, k))
+        scores[k] = (-r, count)
     found = _decide(scores)
     if found is None:
         return None
@@ -496,7 +568,7 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     later = "later" if best > 0 else "earlier"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {abs(best)} record(s) ({minutes:g} min) {later} "
-            f"than the same record (correlation of the sunlit changes {strength:.2f} there, "
+            f"than the same record (correlation of the changes under cloud {strength:.2f} there, "
             f"{same:.2f} in the same record, {apart:.0f} standard errors apart): photosynthesis follows light within minutes, so the "
             f"NEE column looks shifted by {abs(best)} record(s) against the drivers (a "
             "flux file stamped at interval ends joined with a weather file stamped at "
