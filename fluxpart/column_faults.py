@@ -447,9 +447,10 @@ _HAURWITZ_B = 0.057
 #: lower sun an interval's mean and the sensor's cosine error make Rg's ratio to any
 #: clear-sky course meaningless. Our choice.
 _CLOUD_MIN_COSZ = 0.1
-#: Quantile of Rg's ratio to Haurwitz's course taken as the site's clear-sky level (its
-#: turbidity, altitude and sensor calibration): clear records are the brightest ones at
-#: every site with clouds, and nearly all records at a desert's. Our choice.
+#: Quantile of Rg's ratio to Haurwitz's course taken as the site's clear-sky level in each
+#: class of sun height (its turbidity, altitude and sensor calibration): clear records are
+#: the brightest ones at every site with clouds, and nearly all records at a desert's.
+#: Our choice.
 _CLEAR_QUANTILE = 0.9
 #: A record below this share of the clear-sky level is under cloud: a cloudless day's
 #: turbidity moves Rg by some 10 % from day to day (m), a cloud by more. Our choice.
@@ -483,10 +484,36 @@ def clear_sky_course(potential) -> np.ndarray:
     return np.where(cosz > 0, course, 0.0)
 
 
+#: Width of the classes of cos(z) in which the site's clear-sky level is taken, and the
+#: records a class needs (fewer: the level of the nearest classes). Our choice: 18
+#: classes between the sun 6 degrees up and overhead, each some days of records.
+_COSZ_CLASS = 0.05
+_CLASS_RECORDS = 20
+
+
+def _clear_level(ratio, cos_z) -> np.ndarray:
+    """The site's clear-sky level of Rg's ratio to Haurwitz's course at each record: the
+    :data:`_CLEAR_QUANTILE` of the ratio in its class of cos(z), linear between classes.
+    Haurwitz's constants are a mean atmosphere's; a site's turbidity, altitude, sensor
+    (cosine error, calibration) and the interval's mean over a moving sun bend the course
+    by sun height, which a clear or an evenly overcast day would otherwise show as a
+    cloud's change every morning and afternoon."""
+    classes = np.floor(np.where(np.isfinite(ratio), cos_z, np.nan) / _COSZ_CLASS)
+    centres, levels = [], []
+    for c in np.unique(classes[np.isfinite(classes)]):
+        values = ratio[classes == c]
+        if values.size >= _CLASS_RECORDS:
+            centres.append((c + 0.5) * _COSZ_CLASS)
+            levels.append(float(np.quantile(values, _CLEAR_QUANTILE)))
+    if not centres:
+        return np.full(ratio.size, np.nan)
+    return np.interp(cos_z, centres, levels)
+
+
 def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
     """The changes of NEE and of the cloud-driven part of Rg from each record to the next:
-    the change of Rg's ratio to the clear-sky course (:func:`clear_sky_course`) times the
-    two records' mean course [W m-2]; NaN unless the sun is :data:`_CLOUD_MIN_COSZ` up at
+    the change of Rg's ratio to the site's clear-sky course (:func:`clear_sky_course` times
+    :func:`_clear_level`) times the two records' mean course [W m-2]; NaN unless the sun is :data:`_CLOUD_MIN_COSZ` up at
     both records and one of them is under cloud (below :data:`_CLOUDY_SHARE` of the site's
     clear-sky level)."""
     course = clear_sky_course(potential)
@@ -495,13 +522,15 @@ def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
         ratio = np.where(high, rg / np.where(high, course, 1.0), np.nan)
     if not np.isfinite(ratio).any():
         return np.diff(nee), np.full(max(nee.size - 1, 0), np.nan)
-    cloudy = high & (ratio < _CLOUDY_SHARE * float(np.nanquantile(ratio, _CLEAR_QUANTILE)))
+    level = _clear_level(ratio, potential / SOLAR_CONSTANT)
+    ratio, clear = ratio / level, course * level
+    cloudy = high & (ratio < _CLOUDY_SHARE)
     judged = high[1:] & high[:-1] & (cloudy[1:] | cloudy[:-1])
-    # the change of the ratio to the clear-sky course at the pair's mean course: Rg's
-    # change less the change its course gives at an unchanged cloudiness (a day evenly
-    # overcast moves Rg with the sun alone, as a cloudless one)
+    # the change of the ratio to the site's clear-sky course at the pair's mean course:
+    # Rg's change less the change its course gives at an unchanged cloudiness (a day
+    # evenly overcast moves Rg with the sun alone, as a cloudless one)
     with np.errstate(invalid="ignore"):
-        change = np.diff(ratio) * 0.5 * (course[1:] + course[:-1])
+        change = np.diff(ratio) * 0.5 * (clear[1:] + clear[:-1])
     return np.diff(nee), np.where(judged, change, np.nan)
 
 
