@@ -8,7 +8,8 @@ physics the true columns must obey:
   less than the air's;
 * NEE shifted by whole records against the drivers (:func:`nee_lag`): photosynthesis
   answers a change of light within minutes, so a cloud's change of Rg and the change
-  of NEE it causes fall into the same record;
+  of NEE it causes fall into the same record (the cloud-driven part of Rg's change
+  only, against a clear-sky course);
 * air temperature shifted by whole records against the humidity columns
   (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment;
 * NEE whose sign changed within the record (:func:`months_rising_with_light`): in
@@ -66,7 +67,7 @@ from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
 __all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee",
-           "delayed_tair", "delayed_tair_in_a_year", "dew_point_as_tair",
+           "clear_sky_course", "delayed_tair", "delayed_tair_in_a_year", "dew_point_as_tair",
            "flag_as_measurement", "flux_as_storage", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "same_temperature_columns",
            "shaded_rg", "slope_reads_turbulent", "storage_in_turbulent_flux", "storage_slope",
@@ -513,9 +514,9 @@ def _clear_level(ratio, cos_z) -> np.ndarray:
 def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
     """The changes of NEE and of the cloud-driven part of Rg from each record to the next:
     the change of Rg's ratio to the site's clear-sky course (:func:`clear_sky_course` times
-    :func:`_clear_level`) times the two records' mean course [W m-2]; NaN unless the sun is :data:`_CLOUD_MIN_COSZ` up at
-    both records and one of them is under cloud (below :data:`_CLOUDY_SHARE` of the site's
-    clear-sky level)."""
+    :func:`_clear_level`) times the two records' mean course [W m-2]; NaN unless the sun
+    is :data:`_CLOUD_MIN_COSZ` up at both records and one of them is under cloud (below
+    :data:`_CLOUDY_SHARE` of the site's clear-sky level)."""
     course = clear_sky_course(potential)
     high = np.asarray(potential, dtype=float) / SOLAR_CONSTANT >= _CLOUD_MIN_COSZ
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -554,8 +555,9 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     Returns
     -------
     str or None
-        The warning text; None where the changes of NEE and Rg of the same record
-        correlate best (or too few sunlit pairs, or too weak a correlation to tell).
+        The warning text; None where the changes of NEE and of Rg's cloud-driven part
+        of the same record correlate best (or too few pairs under cloud, or too weak a
+        correlation to tell).
 
     Notes
     -----
@@ -573,10 +575,24 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     like this. First differences leave out the smooth diurnal course, whose
     afternoon depression (VPD) would pull a lag of the raw series.
 
+    Only the cloud-driven part of Rg's change counts (:func:`_cloud_changes`, since
+    round falsealarm54): under a sky clear or evenly overcast all day Rg's changes are
+    the daily course's alone, and an NEE that follows temperature (respiration, a
+    desert's heat-limited uptake), whose daily maximum trails the sun's by 1-2 h
+    (Campbell & Norman 1998, ch. 2 (m)), matched that course records late or early
+    (two invented deserts, 4-5 standard errors). The change of Rg's ratio to the site's
+    clear-sky course (Haurwitz's, bent to the site by sun height) is taken on pairs of
+    records of which one is under cloud; a site-year with too few such pairs (below
+    500) is not judged.
+
     References
     ----------
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
+    Haurwitz, B. (1945). Insolation in relation to cloudiness and cloud density. Journal
+    of Meteorology, 2, 154-166 (m).
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 2 (m).
     """
     arrays = _light_arrays(nee, rg, potential, interval_minutes)
     if arrays is None:

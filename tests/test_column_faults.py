@@ -18,11 +18,11 @@ import pytest
 
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
+    SOIL_RANGE_RATIO,
     _decide,
     _sunlit_change_scores,
-    clear_sky_course,
-    SOIL_RANGE_RATIO,
     censored_nee,
+    clear_sky_course,
     delayed_tair,
     dew_point_as_tair,
     flag_as_measurement,
