@@ -492,23 +492,26 @@ _COSZ_CLASS = 0.05
 _CLASS_RECORDS = 20
 
 
-def _clear_level(ratio, cos_z) -> np.ndarray:
+def _clear_level(ratio, cos_z, rising) -> np.ndarray:
     """The site's clear-sky level of Rg's ratio to Haurwitz's course at each record: the
-    :data:`_CLEAR_QUANTILE` of the ratio in its class of cos(z), linear between classes.
-    Haurwitz's constants are a mean atmosphere's; a site's turbidity, altitude, sensor
-    (cosine error, calibration) and the interval's mean over a moving sun bend the course
-    by sun height, which a clear or an evenly overcast day would otherwise show as a
+    :data:`_CLEAR_QUANTILE` of the ratio in its class of cos(z), linear between classes,
+    morning (`rising`: the potential radiation rising) and afternoon apart. Haurwitz's
+    constants are a mean atmosphere's; a site's turbidity, altitude, sensor (cosine
+    error, calibration, a tilt) and the interval's mean over a moving sun bend the course
+    by sun height, and unlike in the morning and the afternoon (a clock minutes off), which a clear or an evenly overcast day would otherwise show as a
     cloud's change every morning and afternoon."""
     classes = np.floor(np.where(np.isfinite(ratio), cos_z, np.nan) / _COSZ_CLASS)
-    centres, levels = [], []
-    for c in np.unique(classes[np.isfinite(classes)]):
-        values = ratio[classes == c]
-        if values.size >= _CLASS_RECORDS:
-            centres.append((c + 0.5) * _COSZ_CLASS)
-            levels.append(float(np.quantile(values, _CLEAR_QUANTILE)))
-    if not centres:
-        return np.full(ratio.size, np.nan)
-    return np.interp(cos_z, centres, levels)
+    level = np.full(ratio.size, np.nan)
+    for half in (True, False):
+        centres, levels = [], []
+        for c in np.unique(classes[np.isfinite(classes) & (rising == half)]):
+            values = ratio[(classes == c) & (rising == half)]
+            if values.size >= _CLASS_RECORDS:
+                centres.append((c + 0.5) * _COSZ_CLASS)
+                levels.append(float(np.quantile(values, _CLEAR_QUANTILE)))
+        if centres:
+            level = np.where(rising == half, np.interp(cos_z, centres, levels), level)
+    return level
 
 
 def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
@@ -523,7 +526,7 @@ def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
         ratio = np.where(high, rg / np.where(high, course, 1.0), np.nan)
     if not np.isfinite(ratio).any():
         return np.diff(nee), np.full(max(nee.size - 1, 0), np.nan)
-    level = _clear_level(ratio, potential / SOLAR_CONSTANT)
+    level = _clear_level(ratio, potential / SOLAR_CONSTANT, np.gradient(potential) > 0)
     ratio, clear = ratio / level, course * level
     cloudy = high & (ratio < _CLOUDY_SHARE)
     judged = high[1:] & high[:-1] & (cloudy[1:] | cloudy[:-1])
