@@ -19,7 +19,10 @@ import pytest
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    _decide,
+    _sunlit_change_scores,
     censored_nee,
+    clear_sky_course,
     delayed_tair,
     dew_point_as_tair,
     flag_as_measurement,
@@ -206,6 +209,36 @@ def test_nee_two_records_early_is_named():
     early = np.concatenate([nee[2:], [np.nan, np.nan]])
     text = nee_lag(early, rg, potential, STEP)
     assert text is not None and "2 record(s) (60 min) earlier" in text
+
+
+def test_clear_sky_course_is_haurwitz():
+    # Haurwitz (1945) as written by Reno, Hansen & Stein (2012, SAND2012-2389, eq. 4) (m):
+    # 1098 cos z exp(-0.057 / cos z) W m-2; the sun overhead gives 1037 W m-2, at 60 degrees
+    # from the zenith 490 W m-2 (hand-computed from the published constants), 0 below
+    cos_z = np.array([1.0, 0.5, 0.0])
+    assert clear_sky_course(1361.0 * cos_z) == pytest.approx([1037.2, 489.9, 0.0], abs=0.1)
+
+
+def test_nee_following_a_cloudless_days_temperature_is_not_named_a_lag():
+    # a desert under cloudless skies (round falsealarm53: two invented deserts named "2
+    # records earlier"): Rg's changes are its daily course alone, and NEE follows the air
+    # temperature, whose daily maximum trails the sun's by 1-2 h (Campbell & Norman 1998,
+    # ch. 2 (m)); no cloud moves light and uptake together, so the check says nothing
+    rng = np.random.default_rng(3)
+    n = DAYS * PER_DAY
+    hours = (np.arange(n) % PER_DAY) * STEP / 60.0 + STEP / 120.0
+    potential = np.clip(1100.0 * np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    rg = clear_sky_course(potential) * (0.95 + rng.normal(0, 0.005, n))
+    tair = 25.0 + 10.0 * np.sin(np.pi * (hours - 10.5) / 12.0)      # peak 16:30
+    nee = 0.3 + 0.05 * (tair - 25.0) - 0.2 * rg / 1000.0 + rng.normal(0, 0.05, n)
+    old_basis = _decide(_sunlit_change_scores(nee, rg, potential,
+                                              {k: k for k in range(-4, 5)}))
+    assert old_basis is not None and old_basis[0] != 0      # the daily course's false alarm
+    assert nee_lag(nee, rg, potential, STEP) is None
+    # the same NEE one record late under clouds is still named
+    nee, rg, potential = light_record()
+    late = np.concatenate([[np.nan], nee[:-1]])
+    assert "1 record(s) (30 min) later" in nee_lag(late, rg, potential, STEP)
 
 
 def test_noise_that_hides_the_light_response_cannot_tell():
