@@ -75,7 +75,7 @@ light with the sun below the horizon), ``nosubstrate`` (roots without the GPP su
 run is given), ``woodsoil`` (the wood on the 10 cm soil temperature, not the air), ``nodiffuse`` (the
 canopy's diffuse share held at 0.35 with the sun up, whatever the clouds), ``notemp`` (leaf
 capacity without the Johnson-Eyring-Williams temperature curve: its 25 deg C value),
-``bigleaf`` (the canopy as ONE big leaf: a rectangular hyperbola of the PPFD absorbed with
+``oneleaf`` (the canopy as ONE big leaf: a rectangular hyperbola of the PPFD absorbed with
 extinction 0.6, quantum efficiency 0.85 a, capacity 0.6 LAI x the leaf's; the form the daytime
 method fits), ``nolowlight`` (no uptake in records with Rg below 10 W m-2, the run's night
 class, whatever the sun); the last three added by round trace52);
@@ -172,7 +172,7 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "onethr", "notwilight", "nosubstrate",
             "nolitterwet", "noacclim", "noicing", "nopower", "nolong", "nodrought", "onesoil",
-            "woodsoil", "nodiffuse", "notemp", "bigleaf", "nolowlight")
+            "woodsoil", "nodiffuse", "notemp", "oneleaf", "nolowlight")
 DAMPING_DEPTH = 0.12      # m, diurnal damping depth of a moist soil (m)
 GAUSS_X, GAUSS_W = np.polynomial.legendre.leggauss(3)
 
@@ -523,7 +523,7 @@ def fluxes(site, met, rng, variant):
     diffuse = np.where(met["elev"] > 0, 0.35, 1.0) if "nodiffuse" in variant else met["diffuse"]
     alpha = 0.064 if c4 else 0.050
     gpp = canopy_uptake(ppfd, diffuse, met["elev"], lai, alpha, amax)
-    if "bigleaf" in variant:                     # one big leaf, rectangular hyperbola
+    if "oneleaf" in variant:                     # one big leaf, rectangular hyperbola
         absorbed = ppfd * (1 - np.exp(-0.6 * lai))
         plateau = 0.6 * lai * amax
         gpp = 0.85 * alpha * absorbed * plateau / np.maximum(0.85 * alpha * absorbed + plateau,
