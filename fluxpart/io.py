@@ -5571,9 +5571,11 @@ def _near(name: str, options: list, taken=()) -> str:
     # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
     # code or logger name before each column name, "QMG_logger1_co2_flux" for "co2_flux";
     # layouts31: the file's columns were listed, none suggested)
+    # also a unit after a slash or in parentheses glued to the name ("co2_net/umol m-2
+    # s-1", "air_c(degC)"): no suffix was named, the file's columns listed (layouts48)
     joined = [o for o in free if len(key) >= 2 and (
         re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
-        or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+        or re.fullmatch(re.escape(key) + r"[_\-.: /(\[].+", o.strip().casefold()))]
     # the name itself with other blanks around it, or in another case ("CO2_FLUX" for
     # "co2_flux", which difflib scores as far apart) comes before any nearer-looking
     # name: a "co2_flux_open" beside it was suggested instead (layouts34)
@@ -5893,6 +5895,9 @@ def _numeric_codes(missing: tuple, decimal: str) -> list:
     codes = [float(c) for c in missing if not isinstance(c, str)]
     for code in missing:
         if isinstance(code, str):
+            # a code written with a typographic minus (U+2212) as the file spells it: the
+            # cells are read with "-" for U+2212 (:func:`_numbers`), and so is the code
+            code = code.replace("\u2212", "-")
             try:
                 codes.append(float(code.replace(",", ".") if decimal == "," else code))
             except ValueError:
