@@ -61,6 +61,7 @@ from . import (
     header_cells,
     interleaved_lines,
     later_files,
+    merged_dates,
     record_order,
     table_formats,
     unicode_names,
@@ -4226,6 +4227,15 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
+    merged = merged_dates.filled_down(raw, time_columns)
+    if merged is not None:
+        # a date on each day's first record only (merged cells; layouts48: refused before,
+        # naming a stamp without its date)
+        raw[time_columns[0]], filled = merged
+        warnings.append(ReaderNote(
+            f"input file {source!r}: column {time_columns[0]!r} writes the date on the "
+            f"first record of each day only (a spreadsheet's merged cells): filled down on "
+            f"{filled} record(s)"))
     stamp_text = join_time_columns(raw, time_columns)
     judged_format = time_format
     if (time_marks is not None and time_format.upper() == "ISO8601"

@@ -276,19 +276,32 @@ def missing_as_minus_9999_point_0_in_some_columns_na_in_others(folder):
     toml(folder, "t.csv")
 
 
-@case
-def date_only_on_the_first_record_of_each_day(folder):
-    """A sheet with merged date cells: the date written on a day's first record only,
-    the clock on every record. Read as written the other records have no date."""
+def dates_on_first_records(folder, left_out=""):
+    """The date written on each day's first record only (a sheet's merged date cells),
+    the clock on every record, day `left_out` (ISO date) given no date at all."""
     raw, ends = table()
     starts = ends - pd.Timedelta("30min")
+    day = stamps(starts, "%Y-%m-%d")
     first = ~starts.dt.date.duplicated().to_numpy()
     raw.insert(0, "clock", stamps(starts, "%H:%M"))
-    raw.insert(0, "day", [d if f else "" for d, f in zip(stamps(starts, "%Y-%m-%d"), first,
-                                                            strict=True)])
+    raw.insert(0, "day", [d if f and d != left_out else "" for d, f in
+                          zip(day, first, strict=True)])
     write(folder / "t.csv", lines(raw.drop(columns="stamp")))
     toml(folder, "t.csv", time_column=["day", "clock"], time_format="%Y-%m-%d %H:%M",
          time_marks="start")
+
+
+@case
+def date_only_on_the_first_record_of_each_day(folder):
+    """Merged date cells saved as CSV: read with the dates filled down (a note)."""
+    dates_on_first_records(folder)
+
+
+@case
+def date_only_on_first_records_one_day_without_its_date(folder):
+    """Twin: 1 March has no date at all: filled down, its records would repeat the stamps
+    of 28 February (refused)."""
+    dates_on_first_records(folder, "2021-03-01")
     return "refused"
 
 
