@@ -1,0 +1,97 @@
+"""Layouts of the layouts48 round: logger and spreadsheet files read or refused right.
+
+A date written on each day's first record only (a sheet's merged date cells saved as CSV)
+was refused naming a stamp without its date; it is now read with the dates filled down
+and a note, and a day whose date is left out altogether stays refused. A missing code the
+config spells with a typographic minus (U+2212), as the file writes it, was not matched
+against the cells (read with U+2212 as "-") and the run stopped on thousands of "-9999"
+values. A name mapped without the unit the file writes after a slash stays refused, now
+naming the suffix (as the bracketed form, layouts40).
+
+Outside facts, each named beside its check: a spreadsheet saves a merged cell's value in
+its first cell only (ECMA-376 part 1, ``mergeCell`` (m)); U+2212 is the minus sign
+(Unicode, Basic Latin and Mathematical Operators charts (m)); half-hourly records make 48
+a day (common practice). Everything else is invented known truth: the records as written,
+read as the clean file is.
+"""
+
+import pandas as pd
+import pytest
+from test_robustness_layouts26 import NAMES, _read, _records  # invented records, 1-8 June 2021
+
+from fluxpart.errors import MissingColumnError, TimestampError
+
+
+def _clean(tmp_path):
+    ends, values = _records()
+    path = tmp_path / "clean.csv"
+    path.write_text("\n".join([",".join(["stamp"] + NAMES)] + [
+        ",".join([f"{e:%Y-%m-%d %H:%M}"] + [f"{v:g}" for v in row])
+        for e, row in zip(ends, values, strict=True)]) + "\n")
+    return ends, values, _read(path)[0]
+
+
+def _merged_dates(path, ends, values, left_out=None):
+    """The records with the date on each day's first record only (`left_out`: a day
+    given no date at all)."""
+    starts = ends - pd.Timedelta("30min")
+    first = ~starts.normalize().duplicated()
+    rows = [",".join(["day", "clock"] + NAMES)]
+    for s, f, row in zip(starts, first, values, strict=True):
+        day = f"{s:%Y-%m-%d}" if f and f"{s:%Y-%m-%d}" != left_out else ""
+        rows.append(",".join([day, f"{s:%H:%M}"] + [f"{v:g}" for v in row]))
+    path.write_text("\n".join(rows) + "\n")
+
+
+def test_a_date_on_each_days_first_record_only_is_filled_down(tmp_path):
+    """8 days, the date on 8 records, the clock on all 384: read as the clean file, with
+    a note naming the column and the 376 cells filled (48 a day less the first)."""
+    ends, values, expected = _clean(tmp_path)
+    path = tmp_path / "merged.csv"
+    _merged_dates(path, ends, values)
+    read, report = _read(path, time_column=["day", "clock"], time_marks="start")
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("'day'" in n and "filled down on 376 record(s)" in n for n in report.notes), \
+        report.notes
+    assert not report.warnings
+
+
+def test_a_day_without_any_date_stays_refused_naming_a_stamp_without_its_date(tmp_path):
+    """2 June written without its date: filled down it would repeat 1 June's clock, so
+    nothing is filled and the refusal names a stamp lacking its date, as before."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "merged.csv"
+    _merged_dates(path, ends, values, left_out="2021-06-02")
+    with pytest.raises(TimestampError, match=r"has stamp ' 00:30'"):
+        _read(path, time_column=["day", "clock"], time_marks="start")
+
+
+def test_a_missing_code_spelled_with_a_typographic_minus_matches_its_cells(tmp_path):
+    """Every minus written U+2212, some cells "−9999", the config's code "−9999" as the
+    file spells it: those cells are missing, the others read as with "-"."""
+    ends, values, expected = _clean(tmp_path)
+    rows = [",".join(["stamp"] + NAMES)]
+    for k, (e, row) in enumerate(zip(ends, values, strict=True)):
+        cells = ["-9999" if k % 5 == 0 and j == 0 else f"{v:g}" for j, v in enumerate(row)]
+        rows.append(",".join([f"{e:%Y-%m-%d %H:%M}"] + cells).replace("-", "\u2212")
+                    .replace("\u2212", "-", 2))    # the date's own hyphens stay
+    path = tmp_path / "minus.csv"
+    path.write_text("\n".join(rows) + "\n", encoding="utf-8")
+    read, _ = _read(path, missing=["\u22129999"])
+    want = expected.copy()
+    want.iloc[::5, want.columns.get_loc("nee")] = float("nan")
+    pd.testing.assert_frame_equal(read, want)
+
+
+def test_a_name_mapped_without_the_unit_after_a_slash_is_named_with_the_suffix(tmp_path):
+    """ "co2_flux/umol m-2 s-1" for the mapped "co2_flux": the refusal names the column and
+    its suffix (it listed the file's columns only)."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "slash.csv"
+    names = ["co2_flux/umol m-2 s-1"] + NAMES[1:]
+    path.write_text("\n".join([",".join(["stamp"] + names)] + [
+        ",".join([f"{e:%Y-%m-%d %H:%M}"] + [f"{v:g}" for v in row])
+        for e, row in zip(ends, values, strict=True)]) + "\n")
+    with pytest.raises(MissingColumnError,
+                       match=r"did you mean 'co2_flux/umol m-2 s-1'\? .* suffix '/umol m-2 s-1'"):
+        _read(path)
