@@ -6,13 +6,16 @@ and a note, and a day whose date is left out altogether stays refused. A missing
 config spells with a typographic minus (U+2212), as the file writes it, was not matched
 against the cells (read with U+2212 as "-") and the run stopped on thousands of "-9999"
 values. A name mapped without the unit the file writes after a slash stays refused, now
-naming the suffix (as the bracketed form, layouts40).
+naming the suffix (as the bracketed form, layouts40). A date cell and a time cell saved
+unformatted (a day number, a day fraction) are read under "days since 1899-12-30" as
+their sum, with a note (refused before as "no number" of the format).
 
 Outside facts, each named beside its check: a spreadsheet saves a merged cell's value in
 its first cell only (ECMA-376 part 1, ``mergeCell`` (m)); U+2212 is the minus sign
-(Unicode, Basic Latin and Mathematical Operators charts (m)); half-hourly records make 48
-a day (common practice). Everything else is invented known truth: the records as written,
-read as the clean file is.
+(Unicode, Mathematical Operators chart (m)); spreadsheet day numbers count from
+1899-12-30 (ECMA-376 part 1, 18.17.4 (m)); half-hourly records make 48 a day (common
+practice). Everything else is invented known truth: the records as written, read as the
+clean file is.
 """
 
 import pandas as pd
@@ -95,3 +98,25 @@ def test_a_name_mapped_without_the_unit_after_a_slash_is_named_with_the_suffix(t
     with pytest.raises(MissingColumnError,
                        match=r"did you mean 'co2_flux/umol m-2 s-1'\? .* suffix '/umol m-2 s-1'"):
         _read(path)
+
+
+def test_a_serial_date_and_a_day_fraction_in_two_columns_are_read_as_one_count(tmp_path):
+    """A date cell and a time cell saved unformatted: "44348" and "0.020833" (1 June
+    2021, 00:30). Under "days since 1899-12-30" they are read as the count 44348.020833
+    (days since 1899-12-30: Excel's and LibreOffice's 1900 date system, ECMA-376 part 1,
+    18.17.4 (m)), with a note; under a date format the refusal names both fields and
+    the setting."""
+    ends, values, expected = _clean(tmp_path)
+    days = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
+    whole = (days + 1e-9).astype(int)
+    path = tmp_path / "serial.csv"
+    path.write_text("\n".join([",".join(["day", "clock"] + NAMES)] + [
+        ",".join([str(w), f"{d - w:.6f}"] + [f"{v:g}" for v in row])
+        for w, d, row in zip(whole, days, values, strict=True)]) + "\n")
+    read, report = _read(path, time_column=["day", "clock"],
+                         time_format="days since 1899-12-30")
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("read as their sum" in n for n in report.notes), report.notes
+    with pytest.raises(TimestampError, match=r"'44348' .* the time field '0.020833' a "
+                       r"fraction of the day: set \[input\] time_format = \"days since"):
+        _read(path, time_column=["day", "clock"])

@@ -81,17 +81,30 @@ def spreadsheet_serial_days_of_the_1904_system(folder):
     return "refused"
 
 
-@case
-def serial_date_and_day_fraction_in_two_columns(folder):
-    """A whole serial day (1900 system) and the time as a day fraction, two columns, as a
-    spreadsheet stores a date cell and a time cell; the config names both."""
+def serial_date_and_day_fraction(folder, time_format):
+    """A whole serial day (1900 system) and the time as a day fraction (six decimals),
+    two columns, as a spreadsheet stores a date cell and a time cell; the config names
+    both, read under `time_format`."""
     raw, ends = table()
     days = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
     whole = np.floor(days + 1e-9)
     raw.insert(0, "clock", [f"{v:.6f}" for v in days - whole])
     raw.insert(0, "day", [str(int(v)) for v in whole])
     write(folder / "t.csv", lines(raw.drop(columns="stamp")))
-    toml(folder, "t.csv", time_column=["day", "clock"], time_format="%Y-%m-%d %H:%M")
+    toml(folder, "t.csv", time_column=["day", "clock"], time_format=time_format)
+
+
+@case
+def serial_date_and_day_fraction_in_two_columns(folder):
+    """Under a date format: refused, naming both fields and the count to set."""
+    serial_date_and_day_fraction(folder, "%Y-%m-%d %H:%M")
+    return "refused"
+
+
+@case
+def serial_date_and_day_fraction_under_days_since(folder):
+    """Under "days since 1899-12-30": read as the one count the two cells make."""
+    serial_date_and_day_fraction(folder, "days since 1899-12-30")
 
 
 @case
