@@ -68,6 +68,7 @@ from . import (
 )
 from ._validate import (
     is_tar,
+    joined_zip_tables,
     leading_lines,
     markup_message,
     odd_entry,
@@ -2738,6 +2739,16 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     owner = owner_file_message(path, len(data))
     if owner:
         raise InputFileError(owner)
+    joined = joined_zip_tables(data) if data.startswith(b"PK\x03\x04") else None
+    if joined is not None:
+        # a zip of a day's or a month's file each, one header (layouts48; refused before
+        # with "unpack it")
+        data, names = joined
+        if warnings is not None:
+            warnings.append(ReaderNote(
+                f"input file {str(path)!r}: a zip archive of {len(names)} tables with the "
+                f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
+                "in the order of their names (line numbers count the joined text)"))
     data = _decompressed(data, path)
     typed = typed or {}
     kind = table_formats.binary_kind(data)

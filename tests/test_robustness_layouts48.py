@@ -8,7 +8,8 @@ against the cells (read with U+2212 as "-") and the run stopped on thousands of 
 values. A name mapped without the unit the file writes after a slash stays refused, now
 naming the suffix (as the bracketed form, layouts40). A date cell and a time cell saved
 unformatted (a day number, a day fraction) are read under "days since 1899-12-30" as
-their sum, with a note (refused before as "no number" of the format).
+their sum, with a note (refused before as "no number" of the format). A zip of daily
+files, one header, is read as one table with a note (refused before: "unpack it").
 
 Outside facts, each named beside its check: a spreadsheet saves a merged cell's value in
 its first cell only (ECMA-376 part 1, ``mergeCell`` (m)); U+2212 is the minus sign
@@ -22,7 +23,7 @@ import pandas as pd
 import pytest
 from test_robustness_layouts26 import NAMES, _read, _records  # invented records, 1-8 June 2021
 
-from fluxpart.errors import MissingColumnError, TimestampError
+from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
 
 
 def _clean(tmp_path):
@@ -120,3 +121,40 @@ def test_a_serial_date_and_a_day_fraction_in_two_columns_are_read_as_one_count(t
     with pytest.raises(TimestampError, match=r"'44348' .* the time field '0.020833' a "
                        r"fraction of the day: set \[input\] time_format = \"days since"):
         _read(path, time_column=["day", "clock"])
+
+
+def _zip_of_days(path, ends, values, header_of=lambda day: ["stamp"] + NAMES):
+    """The records as one CSV a day ("mast_YYYYMMDD.csv"), each under `header_of(day)`,
+    packed into one zip (members in reverse name order: the names order them)."""
+    import io
+    import zipfile
+
+    day = (ends - pd.Timedelta("30min")).normalize()
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as archive:
+        for d in sorted(set(day), reverse=True):
+            names = header_of(d)
+            rows = [",".join(names)]
+            for e, row in zip(ends[day == d], values[day == d], strict=True):
+                cells = dict(zip(NAMES, (f"{v:g}" for v in row), strict=True))
+                rows.append(",".join([f"{e:%Y-%m-%d %H:%M}"] + [cells[n] for n in names[1:]]))
+            archive.writestr(f"mast_{d:%Y%m%d}.csv", "\n".join(rows) + "\n")
+    path.write_bytes(buffer.getvalue())
+
+
+def test_a_zip_of_daily_files_with_one_header_is_read_as_one_table(tmp_path):
+    """8 daily files in one zip (PKWARE APPNOTE (m): members are named files; the writer
+    orders them): read as the clean file, with a note naming the 8 tables; a zip whose
+    file of 3 June writes its columns in another order stays refused, naming that file."""
+    ends, values, expected = _clean(tmp_path)
+    path = tmp_path / "days.zip"
+    _zip_of_days(path, ends, values)
+    read, report = _read(path)
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("a zip archive of 8 tables with the same first line" in n
+               for n in report.notes), report.notes
+    assert not report.warnings
+    _zip_of_days(path, ends, values, lambda day: ["stamp"] + (
+        NAMES[::-1] if f"{day:%d}" == "03" else NAMES))
+    with pytest.raises(InputFileError, match=r"'mast_20210603.csv' opens with another line"):
+        _read(path)

@@ -221,6 +221,23 @@ def zip_of_daily_files_each_with_its_header(folder):
     toml(folder, "t.zip")
 
 
+@case
+def zip_of_daily_files_one_in_another_column_order(folder):
+    """Twin: the zip's file of 1 March writes its columns in another order (a logger
+    program changed): the first lines differ, refused naming the files."""
+    raw, ends = table()
+    day = day_of(ends)
+    members = []
+    for d in sorted(set(day)):
+        part = raw[day == d]
+        if f"{d}" == "2021-03-01":
+            part = part[list(part.columns[:1]) + list(part.columns[1:][::-1])]
+        members.append((f"quillmoor_{d:%Y%m%d}.csv", p40.plain_bytes(part)))
+    (folder / "t.zip").write_bytes(p40.zipped(members))
+    toml(folder, "t.zip")
+    return "refused"
+
+
 # --------------------------------------------------------------------------- numbers
 @case
 def minus_signs_written_as_u2212(folder):
