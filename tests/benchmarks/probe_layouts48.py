@@ -296,7 +296,8 @@ def estimated_values_marked_by_a_trailing_star(folder):
 @case
 def missing_as_minus_9999_point_0_in_some_columns_na_in_others(folder):
     """The logger writes "-9999.0" in its flux columns, its met module "NA"; the config
-    declares only -9999."""
+    declares only -9999: "-9999.0" is the code, "NA" a word refused naming the fix (as
+    "N/A", layouts40: a word is the config's to declare)."""
     raw, _ = table()
     for column in ("co2_net", "fric_vel", "co2_grade"):
         raw.loc[raw[column] == "-9999", column] = "-9999.0"
@@ -304,6 +305,7 @@ def missing_as_minus_9999_point_0_in_some_columns_na_in_others(folder):
         raw.loc[raw[column] == "-9999", column] = "NA"
     write(folder / "t.csv", lines(raw))
     toml(folder, "t.csv")
+    return "refused"
 
 
 def dates_on_first_records(folder, left_out=""):
