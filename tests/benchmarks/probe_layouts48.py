@@ -239,45 +239,45 @@ def zip_of_daily_files_one_in_another_column_order(folder):
 
 
 # --------------------------------------------------------------------------- numbers
+def values_rewritten(folder, cell, **inputs):
+    """The example with every value cell (not the stamp) as `cell` rewrites it."""
+    raw, _ = table()
+    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.map(cell))
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", **inputs)
+
+
+def typeset_minus(value):
+    return value.replace("-", "\u2212")
+
+
+def quoted_decimal_comma(value):
+    return f'"{value.replace(".", ",")}"' if "." in value else value
+
+
 @case
 def minus_signs_written_as_u2212(folder):
-    """A typeset export: every minus of a value the Unicode minus sign "−"."""
-    raw, _ = table()
-    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.str.replace("-", "\u2212",
-                                                                    regex=False))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", missing=["\u22129999"])
+    """A typeset export: every minus of a value the Unicode minus sign U+2212, the
+    missing code declared as the file spells it."""
+    values_rewritten(folder, typeset_minus, missing=["\u22129999"])
 
 
 @case
 def minus_signs_written_as_u2212_missing_code_plain(folder):
     """The same with the missing code declared as the number -9999."""
-    raw, _ = table()
-    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.str.replace("-", "\u2212",
-                                                                    regex=False))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    values_rewritten(folder, typeset_minus)
 
 
 @case
 def decimal_commas_quoted_in_a_comma_file_declared(folder):
     """German spreadsheet saved with commas between fields: "3,21" quoted; decimal=","."""
-    raw, _ = table()
-    quoted = raw.iloc[:, 1:].apply(lambda c: c.map(
-        lambda v: f'"{v.replace(".", ",")}"' if "." in v else v))
-    raw.iloc[:, 1:] = quoted
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", decimal=",")
+    values_rewritten(folder, quoted_decimal_comma, decimal=",")
 
 
 @case
 def decimal_commas_quoted_in_a_comma_file_undeclared(folder):
     """Twin: the same, the decimal sign not declared: "1,250" may be a thousand."""
-    raw, _ = table()
-    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.map(
-        lambda v: f'"{v.replace(".", ",")}"' if "." in v else v))
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    values_rewritten(folder, quoted_decimal_comma)
     return "refused"
 
 
