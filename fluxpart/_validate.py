@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import codecs
 import errno
 import os
 import re
@@ -299,6 +300,87 @@ def single_zip_member(data: bytes) -> bytes | None:
         return None
 
 
+def joined_zip_tables(data: bytes) -> tuple[bytes, list] | None:
+    """The tables of a zip archive of several, one after another, and their names; or
+    None.
+
+    A logger's card or a portal's download packs a day's (or a month's) file each into
+    one zip. They are read as one table where the zip holds two or more files besides
+    documents (a read-me, a licence: left out), none an archive, a compressed file or a
+    workbook's part, their names alike but for their digits (a date or a count: one
+    series of files split by time; "site_a.csv" and "site_b.csv" are not), none opening
+    with a UTF-16 or UTF-32 byte order mark, and every one opening with the same first
+    line, byte for byte (one header, one layout): joined in
+    the order of their names, each ending with a line end, a UTF-8 byte order mark kept
+    on the first only. The headers written again are then read past by the reader as a
+    header written again among the records, and the joined records meet the stamp checks
+    of one file (a stamp twice, a disorder, another interval refused); a zip whose files
+    differ in their first line or their names stays refused by :func:`refuse_binary`,
+    naming them (round layouts48).
+
+    Parameters
+    ----------
+    data : bytes
+        The bytes of a zip archive.
+
+    Returns
+    -------
+    tuple of (bytes, list of str) or None
+        The joined bytes and the files' names in the order joined; None where the zip is
+        not of this kind or cannot be read.
+
+    References
+    ----------
+    ZIP File Format Specification (PKWARE APPNOTE 6.3) (m): members are files named by
+    their paths; their order in the archive is the writer's, so names order them.
+    """
+    series = _zip_series(data)
+    if series is None or series[2] is not None:
+        return None
+    names, parts, _ = series
+    joined = b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts)
+    return joined, names
+
+
+def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
+    """(names, contents, the first name whose first line is not the first file's, or
+    None) of a zip's tables named as one series (:func:`joined_zip_tables`), or None
+    where they are no such series or the zip cannot be read."""
+    import io
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            files = [info for info in _user_files(archive) if not _document(info.filename)]
+            if len(files) < 2 or any(
+                    info.filename in ("[Content_Types].xml", "mimetype")
+                    or info.filename.lower().endswith(_PACKED) for info in files):
+                return None
+            if len({re.sub(r"\d+", "#", info.filename) for info in files}) != 1:
+                return None
+            files.sort(key=lambda info: info.filename)
+            parts = [archive.read(info) for info in files]
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
+            NotImplementedError):
+        return None
+    parts = [parts[0]] + [p.removeprefix(codecs.BOM_UTF8) for p in parts[1:]]
+    if any(p.startswith(_WIDE_MARKS) or not p.strip() for p in parts):
+        return None
+    first = parts[0].removeprefix(codecs.BOM_UTF8).splitlines()[0]
+    if b"\0" in first:
+        return None
+    other = next((info.filename for info, p in zip(files[1:], parts[1:], strict=True)
+                  if p.splitlines()[0] != first), None)
+    return [info.filename for info in files], parts, other
+
+
+#: Names of members that are packed or compressed (an archive in an archive).
+_PACKED = (".zip", ".7z", ".tar", ".tgz", ".gz", ".bz2", ".xz")
+#: Byte order marks of UTF-32 and UTF-16 (a member in a wide encoding is not joined).
+_WIDE_MARKS = (codecs.BOM_UTF32_LE, codecs.BOM_UTF32_BE, codecs.BOM_UTF16_LE,
+               codecs.BOM_UTF16_BE)
+
+
 def _one_table(files: list, name_of):
     """The one member of an archive's `files` (the user's, named by ``name_of(member)``)
     that is a table, or None: documents beside one other file are not counted, and a
@@ -387,6 +469,13 @@ def refuse_binary(data: bytes, path) -> None:
             inner = (f"; {archives[0]!r} is itself an archive: unpack it too" if archives
                      else f" ({compressed[0]!r} is read as it is, compressed)" if compressed
                      else "")
+            series = _zip_series(data)
+            if series is not None and series[2] is not None:
+                # one series of files, read one after another where their first lines
+                # agree (layouts48): name the file that breaks the layout
+                inner = (f" (read one after another where every file opens with the same "
+                         f"line: {series[2]!r} opens with another line than "
+                         f"{series[0][0]!r}, a changed header?)")
             if members and all(_document(name, surely=True) for name in members):
                 # a read-me, a licence, a PDF and no table (review55)
                 raise InputFileError(

@@ -101,6 +101,50 @@ def counted_form(time_format: str):
     return _UNIT_SECONDS[unit], reference, clock
 
 
+#: a whole day number and a fraction of a day written in two fields ("44197 0.020833")
+_DAY_AND_FRACTION = re.compile(r"(\d+) 0?(\.\d+|)")
+
+
+def day_and_fraction(text: pd.Series, time_format: str) -> tuple[pd.Series, str] | None:
+    """Stamps of a whole day count and a day fraction in two columns, written as one count.
+
+    A spreadsheet keeps a date cell and a time cell apart: saved unformatted they are the
+    whole day number ("44197") and the fraction of the day ("0.020833"). Under a
+    ``"days since ..."`` format and two time columns the stamp is their sum; it is
+    written as one count ("44197.020833") by joining the digits (no rounding), where
+    every stamp is a whole number, a blank and a fraction below 1 (a leading "0" and the
+    point optional: "0" is midnight). Elsewhere None, and the stamps are judged as
+    written.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamps as joined from the time columns (one blank between the fields).
+    time_format : str
+        ``[input] time_format``.
+
+    Returns
+    -------
+    tuple of (pandas.Series of str, str) or None
+        The stamps as one count each and a note for the reader; None where the stamps
+        or the format are not of this kind.
+
+    References
+    ----------
+    Spreadsheet date-times are day numbers whose fraction is the time of day (ECMA-376
+    part 1, section 18.17.4 "Dates and Times" (m)); a time cell alone holds the
+    fraction only (common practice).
+    """
+    form = counted_form(time_format)
+    if form is None or form[0] != _UNIT_SECONDS["day"] or len(text) == 0:
+        return None
+    parts = text.str.strip().str.extract(_DAY_AND_FRACTION.pattern + "$")
+    if parts[0].isna().any():
+        return None
+    return parts[0] + parts[1], ("a whole day count and a fraction of the day in two columns (a "
+                    "spreadsheet's date and time cells), read as their sum")
+
+
 def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, np.ndarray]:
     """Write counts of time as stamp text, with the strptime format that reads it back.
 

@@ -61,12 +61,14 @@ from . import (
     header_cells,
     interleaved_lines,
     later_files,
+    merged_dates,
     record_order,
     table_formats,
     unicode_names,
 )
 from ._validate import (
     is_tar,
+    joined_zip_tables,
     leading_lines,
     markup_message,
     odd_entry,
@@ -2737,6 +2739,16 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     owner = owner_file_message(path, len(data))
     if owner:
         raise InputFileError(owner)
+    joined = joined_zip_tables(data) if data.startswith(b"PK\x03\x04") else None
+    if joined is not None:
+        # a zip of a day's or a month's file each, one header (layouts48; refused before
+        # with "unpack it")
+        data, names = joined
+        if warnings is not None:
+            warnings.append(ReaderNote(
+                f"input file {str(path)!r}: a zip archive of {len(names)} tables with the "
+                f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
+                "in the order of their names (line numbers count the joined text)"))
     data = _decompressed(data, path)
     typed = typed or {}
     kind = table_formats.binary_kind(data)
@@ -4226,6 +4238,15 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
+    merged = merged_dates.filled_down(raw, time_columns)
+    if merged is not None:
+        # a date on each day's first record only (merged cells; layouts48: refused before,
+        # naming a stamp without its date)
+        raw[time_columns[0]], filled = merged
+        warnings.append(ReaderNote(
+            f"input file {source!r}: column {time_columns[0]!r} writes the date on the "
+            f"first record of each day only (a spreadsheet's merged cells): filled down on "
+            f"{filled} record(s)"))
     stamp_text = join_time_columns(raw, time_columns)
     judged_format = time_format
     if (time_marks is not None and time_format.upper() == "ISO8601"
@@ -5571,9 +5592,11 @@ def _near(name: str, options: list, taken=()) -> str:
     # the name with a prefix or suffix joined by "_", "-", ".", ":" or a blank (a site
     # code or logger name before each column name, "QMG_logger1_co2_flux" for "co2_flux";
     # layouts31: the file's columns were listed, none suggested)
+    # also a unit after a slash or in parentheses glued to the name ("co2_net/umol m-2
+    # s-1", "air_c(degC)"): no suffix was named, the file's columns listed (layouts48)
     joined = [o for o in free if len(key) >= 2 and (
         re.fullmatch(r".+[_\-.: ]" + re.escape(key), o.strip().casefold())
-        or re.fullmatch(re.escape(key) + r"[_\-.: ].+", o.strip().casefold()))]
+        or re.fullmatch(re.escape(key) + r"[_\-.: /(\[].+", o.strip().casefold()))]
     # the name itself with other blanks around it, or in another case ("CO2_FLUX" for
     # "co2_flux", which difflib scores as far apart) comes before any nearer-looking
     # name: a "co2_flux_open" beside it was suggested instead (layouts34)
@@ -5893,6 +5916,9 @@ def _numeric_codes(missing: tuple, decimal: str) -> list:
     codes = [float(c) for c in missing if not isinstance(c, str)]
     for code in missing:
         if isinstance(code, str):
+            # a code written with a typographic minus (U+2212) as the file spells it: the
+            # cells are read with "-" for U+2212 (:func:`_numbers`), and so is the code
+            code = code.replace("\u2212", "-")
             try:
                 codes.append(float(code.replace(",", ".") if decimal == "," else code))
             except ValueError:

@@ -28,6 +28,7 @@ from .counted_time import (
     counted_form,
     counted_stamps,
     counts,
+    day_and_fraction,
     day_system_mismatch,
     rounded_counts,
     unit_mismatch,
@@ -41,6 +42,7 @@ from .errors import (
     TimestampError,
 )
 from .month_words import MONTHS, english_months
+from .reader_notes import ReaderNote
 from .stamp_places import (
     column_utc_offset,
     date_only_backwards_hint,
@@ -728,9 +730,15 @@ def _serial_date_column(text: pd.Series, time_columns) -> str:
     if (numbers != np.round(numbers)).any() or numbers.min() < 26000 or numbers.max() > 73051:
         return ""
     day = pd.Timestamp("1899-12-30") + pd.Timedelta(days=float(numbers[0]))
-    return (f"the date field {first.iloc[0]!r} is a spreadsheet day number (days since "
+    said = (f"the date field {first.iloc[0]!r} is a spreadsheet day number (days since "
             f"1899-12-30, as Excel and LibreOffice count; {first.iloc[0]!r} is "
-            f"{day:%Y-%m-%d}), which fluxpart does not read: format the date column as "
+            f"{day:%Y-%m-%d})")
+    if day_and_fraction(text, "days since 1899-12-30") is not None:
+        # its time cell a day fraction too: the count is read (layouts48)
+        return (f"{said} and the time field {text.str.strip().str.split(n=1).str[1].iloc[0]!r}"
+                " a fraction of the day: set [input] time_format = \"days since 1899-12-30\" "
+                "to read the two columns as one count, their sum")
+    return (f"{said}, which fluxpart does not read: format the date column as "
             "yyyy-mm-dd in a copy of the file before saving it as CSV, and set [input] "
             "time_format to match")
 
@@ -1355,6 +1363,13 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # counts of time since a reference ("days since 1899-12-30"): written as stamps
         # and read as such from here on (layouts38; refused before, naming the readings)
         written_format = time_format
+        split = day_and_fraction(text, time_format) if not isinstance(time_columns, str) \
+            and len(time_columns) == 2 else None
+        if split is not None:
+            # a date cell and a time cell saved as numbers (layouts48; refused before as
+            # "no number" of the format)
+            text = split[0]
+            notes.append(ReaderNote(f"{_time_setting(time_columns)} of {source!r}: {split[1]}"))
         mismatch = rounded_counts(text, time_format) or unit_mismatch(text, time_format)
         if mismatch:
             # a count in another unit (milliseconds as seconds): named by its unit, not
