@@ -36,7 +36,7 @@ forms none of them used, at kinds of site trials 6-27 did not hold in these form
 - budget years from April (paddy), May (sugarcane), July (pine plantation), October (fen)
   and March (cocoa), others from January; four sites with HOURLY records;
 - gaps by a tower's failures: spikes rejected, rain on the open path with an exponential
-  drying time, DEW ON THE LENS in humid nights (RH > 92 %, six records in ten), analyser failures of log-normal length, a
+  drying time, DEW ON THE LENS in humid nights (air RH > 90 %: a window radiatively cooled ~1.5 K below the air reaches its dew point; six records in ten; invented), analyser failures of log-normal length, a
   SONIC outage (NEE and u* lost), POWER cuts (every column), and at three remote sites a
   LOGGER MEMORY that filled up (the rows are ABSENT from the file);
 - a night u* loss as a LOGISTIC decoupling: measured share 1 - 0.6 / (1 + exp((u*/thr -
@@ -637,7 +637,7 @@ def gaps(site, met, night, rng, variant):
     drying = rng.exponential(1.5 * steps_h, len(ends))
     for e, dry in zip(ends, drying, strict=True):
         wet[e:e + int(np.ceil(dry))] = True
-    lens = night & (met["rh"] > 92) & (rng.uniform(size=n) < 0.6)
+    lens = night & (met["rh"] > 90) & (rng.uniform(size=n) < 0.6)
     count = rng.poisson(7.0 if site.heavy else 2.5)
     failures = runs_mask(n, rng.integers(0, n, count),
                          np.minimum(rng.lognormal(np.log(2.5), 0.9, count), 30) * per_day)
