@@ -36,9 +36,11 @@ forms none of them used, at kinds of site trials 6-27 did not hold in these form
 - budget years from April (paddy), May (sugarcane), July (pine plantation), October (fen)
   and March (cocoa), others from January; four sites with HOURLY records;
 - gaps by a tower's failures: spikes rejected, rain on the open path with an exponential
-  drying time, DEW ON THE LENS in humid nights (air RH > 90 %: a window radiatively cooled ~1.5 K below the air reaches its dew point; six records in ten; invented), analyser failures of log-normal length, a
-  SONIC outage (NEE and u* lost), POWER cuts (every column), and at three remote sites a
-  LOGGER MEMORY that filled up (the rows are ABSENT from the file);
+  drying time, DEW ON THE LENS in humid nights (air RH > 90 %: a window radiatively cooled
+  ~1.5 K below the air reaches its dew point; six records in ten; invented), analyser
+  failures of log-normal length, a SONIC outage (NEE and u* lost), POWER cuts (every
+  column), and at three remote sites a LOGGER MEMORY that filled up (the rows are ABSENT
+  from the file);
 - a night u* loss as a LOGISTIC decoupling: measured share 1 - 0.6 / (1 + exp((u*/thr -
   0.75) / 0.08)) (2.5 % lost at the planted threshold, 30 % at 0.75 thr, 57 % at half of it;
   form and sizes invented), by night (sun below the horizon);
@@ -85,8 +87,8 @@ fluxpart's output):
 - sun: the low-precision solar coordinates of the Astronomical Almanac (mean longitude
   280.460 + 0.9856474 n deg, mean anomaly 357.528 + 0.9856003 n deg, ecliptic longitude
   with 1.915 sin g + 0.020 sin 2g, obliquity 23.439 - 4e-7 n deg; right ascension,
-  declination, Greenwich mean sidereal time 6.697375 + 0.0657098242 n + t h (m)) at each
-  record's middle (in UT from the site's offset).
+  declination, Greenwich mean sidereal time 18.697374558 + 24.06570982441908 n h (m)) at
+  each record's middle (in UT from the site's offset).
 - clear sky: the ASHRAE (1972) beam A exp(-B / sin beta) with diffuse C x beam (the
   seasonal A, B, C approximated as A = 1160 + 75 sin(2 pi (n - 275) / 365), B = 0.174 +
   0.035 sin(2 pi (n - 100) / 365), C = 0.095 + 0.04 sin(2 pi (n - 100) / 365) (m)).
