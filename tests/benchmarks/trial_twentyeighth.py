@@ -92,9 +92,9 @@ fluxpart's output):
 - clear sky: the ASHRAE (1972) beam A exp(-B / sin beta) with diffuse C x beam (the
   seasonal A, B, C approximated as A = 1160 + 75 sin(2 pi (n - 275) / 365), B = 0.174 +
   0.035 sin(2 pi (n - 100) / 365), C = 0.095 + 0.04 sin(2 pi (n - 100) / 365) (m)).
-- clouds: a daily cloud fraction as a logit-normal AR(1) scaled to at most 0.92 (invented), transmission (0.803 -
-  0.340 c - 0.458 c^2) / 0.803 (Black 1956 (m)), a record AR(1) flicker on broken days
-  (invented); PPFD = 2.1 x Rg (m).
+- clouds: a daily cloud fraction as a logit-normal AR(1) scaled to at most 0.92
+  (invented), transmission (0.803 - 0.340 c - 0.458 c^2) / 0.803 (Black 1956 (m)), a
+  record AR(1) flicker on broken days (invented); PPFD = 2.1 x Rg (m).
 - air temperature: a seasonal cosine (warmest 25 days after the summer solstice) and a daily
   AR(1) anomaly; within the day NEWTONIAN relaxation (time constant 2.5 h) towards an
   equilibrium that sunshine raises and clear nights lower (first-order heat balance, sizes
@@ -285,7 +285,8 @@ def arrhenius(tk, ea, hd=None, ds=None):
 
 
 def sun(times_ut, site):
-    """Solar elevation [deg] at UT `times_ut` (Astronomical Almanac low-precision formulas (m))."""
+    """Solar elevation [deg] at UT `times_ut` (the Astronomical Almanac's low-precision
+    formulas (m))."""
     n = ((times_ut - pd.Timestamp("2000-01-01 12:00")) / pd.Timedelta(days=1)).to_numpy()
     mean_lon = np.radians((280.460 + 0.9856474 * n) % 360)
     g = np.radians((357.528 + 0.9856003 * n) % 360)
@@ -531,7 +532,7 @@ def traffic(site, idx, met):
     """Road CO2 seen by the park's tower [umol m-2 s-1]: weekday rush hours and a daytime
     plateau, less at weekends, with the wind from the road's sector 50-130 deg (invented)."""
     hour = idx.hour.to_numpy() + idx.minute.to_numpy() / 60 + site.step / 120
-    weekday = idx.dayofweek.to_numpy() < 5
+    weekday = idx.day_of_week.to_numpy() < 5
     plateau = ramp(hour, 6, 8) * (1 - ramp(hour, 20, 23))
     rush = np.exp(-((hour - 8) / 1.2) ** 2) + 0.9 * np.exp(-((hour - 17.5) / 1.5) ** 2)
     profile = np.where(weekday, 0.15 + 0.5 * plateau + 1.0 * rush, 0.1 + 0.45 * plateau)
