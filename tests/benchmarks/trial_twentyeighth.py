@@ -49,7 +49,8 @@ forms none of them used, at kinds of site trials 6-27 did not hold in these form
 
 The generator is written fresh here with numpy, scipy and pandas; it imports neither
 ``fluxpart.scenarios`` nor ``fluxpart.demo`` nor another trial's generator (only the scoring
-helpers of ``trial_scoring.py`` are shared). Eleven sites, one budget year each:
+helpers of ``trial_scoring.py`` and its generic numerics without physics are
+shared). Eleven sites, one budget year each:
 
 - K  a mangrove at 22.5 deg N, 30 min, 2023; thr 0.18;
 - P  a rice paddy at 23.9 deg N, HOURLY, budget year from 1 April 2022, VPD in kPa; 0.10;
@@ -66,7 +67,8 @@ helpers of ``trial_scoring.py`` are shared). Eleven sites, one budget year each:
 - W  a lowland rainforest at 0.6 deg S, 30 min, 2022, HEAVY GAPS (more failures and two
      gaps of 12-20 days), missing code "NA"; 0.32.
 
-Run from the repository root (about two minutes a draw on two shared cores)::
+Run from the repository root (about eight minutes a draw with three draws side by side on
+two shared cores)::
 
     python tests/benchmarks/trial_twentyeighth.py --out /tmp/fluxpart-trial28 [--runs K,U]
         [--seed-offset 1]
@@ -142,12 +144,15 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
+    ar1,
     fill_errors,
+    lagged,
     print_scored_row,
+    ramp,
+    runs_mask,
     score_budget_years,
     trial_main,
     write_logger_site,
@@ -232,31 +237,6 @@ EVENTS: dict[str, list[str]] = {}   # each site's declared dates of its last dra
 
 
 # ----------------------------------------------------------------------------- helpers
-def ar1(rng, size, rho):
-    """Unit-variance red noise of `size` steps, lag-one correlation `rho`."""
-    return lfilter([np.sqrt(1 - rho * rho)], [1.0, -rho], rng.standard_normal(size))
-
-
-def lagged(x, tau):
-    """`x` through a first-order filter of time constant `tau` steps, started at x[0]."""
-    a = 1.0 - np.exp(-1.0 / tau)
-    y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
-    return y
-
-
-def ramp(x, lo, hi):
-    """0 at or below `lo`, 1 at or above `hi`, linear between."""
-    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
-
-
-def runs_mask(n, starts, lengths):
-    """A boolean mask of `n` records true on [start, start + length) of each run."""
-    mask = np.zeros(n, bool)
-    for s, ln in zip(starts, lengths, strict=True):
-        mask[max(int(s), 0):max(int(s) + int(ln), 0)] = True
-    return mask
-
-
 def goff_gratch(t):
     """Saturation vapour pressure over water [hPa] at `t` [deg C] (Goff-Gratch, WMO 1988 (m))."""
     ratio = 373.16 / (np.asarray(t, float) + 273.15)
