@@ -79,7 +79,8 @@ never flooded), ``notraffic``, ``flatwt`` (the fen's water table at its snow-fre
 ``nobirch``, ``notrash``, ``nogrowth`` (no growth respiration: the respiration tied to the
 previous day's uptake), ``nodark`` (no leaf dark respiration), ``nolowlight`` (no uptake in
 records with Rg below 10 W m-2, the run's night class), ``noabsent`` (the absent rows
-written)); ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to
+written), ``novpd`` (the C3 leaves' ci / ca held at its value at D = 1 kPa), ``q10resp``
+(heterotrophic respiration with a constant Q10 of 2 instead of O'Connell's form)); ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to
 every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -162,7 +163,8 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 CO2_G_PER_MOL = 44.0095   # g mol-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notide", "noflood", "notraffic", "flatwt",
-            "nobirch", "notrash", "nogrowth", "nodark", "nolowlight", "noabsent")
+            "nobirch", "notrash", "nogrowth", "nodark", "nolowlight", "noabsent", "novpd",
+            "q10resp")
 GAUSS_X, GAUSS_W = np.polynomial.legendre.leggauss(5)
 
 
@@ -481,7 +483,7 @@ def c4_leaf(q_abs, tair, vmax25, water):
     return colimit(first, co2, 0.93), 0.02 * vmax
 
 
-def canopy(site, met, lai, water):
+def canopy(site, met, lai, water, variant=frozenset()):
     """GPP and leaf dark respiration [umol m-2 s-1] of five layers of cumulative leaf area."""
     ppfd = 2.1 * met["rg"]
     gpp, dark = np.zeros(len(ppfd)), np.zeros(len(ppfd))
@@ -492,7 +494,8 @@ def canopy(site, met, lai, water):
         if site.kind == "sugarcane":
             a, rd = c4_leaf(q_abs, met["tair"], capacity, water)
         else:
-            a, rd = c3_leaf(q_abs, met["tair"], met["vpd"], capacity, site.g1, water)
+            vpd = np.full(len(ppfd), 10.0) if "novpd" in variant else met["vpd"]
+            a, rd = c3_leaf(q_abs, met["tair"], vpd, capacity, site.g1, water)
         gpp += w / 2 * lai * a
         dark += w / 2 * lai * rd
     return gpp, dark
@@ -526,6 +529,8 @@ def heterotrophic(site, met, marks, variant):
     day, per_day = met["day"], met["per_day"]
     t10 = met["soil"][0.10]
     temp = np.exp(0.1 * (t10 - 10) - 0.0009 * (t10 ** 2 - 100))
+    if "q10resp" in variant:                     # a constant Q10 of 2 instead
+        temp = 2.0 ** ((t10 - 10) / 10)
     rew = met["rew"]
     moist = rew / (0.1 + rew) * 3 / (3 + rew) / (1 / 1.1 * 3 / 4)
     factor = np.ones(len(t10))
@@ -574,7 +579,7 @@ def components(site, met, lai, marks, idx, variant):
     water = np.minimum(1.0, met["rew"] / 0.4)[day]
     if site.kind == "paddy":
         water = np.where(marks["flooded"][day], 1.0, water)
-    gpp, dark = canopy(site, met, lai, water)
+    gpp, dark = canopy(site, met, lai, water, variant)
     if "nolowlight" in variant:
         gpp = np.where(met["rg"] < 10, 0.0, gpp)
     if "nodark" in variant:
