@@ -113,7 +113,7 @@ fluxpart's output):
   amount / 5 hours; snow below 0.5 deg C, a degree-day pack (melt 3 mm K-1 d-1 (m)).
 - soil water: a bucket emptied by HAMON evaporation 0.1651 x (day length / 12) x 216.7 es /
   (T + 273.3) mm d-1 (Hamon 1963 (m)), held back below REW 0.4; drip irrigation at the
-  olive orchard (REW kept above 0.25) and a flood at the paddy (REW 1).
+  olive orchard (REW kept above 0.25) and a flood at the paddy (soil water taken as full while flooded).
 - wind and u*: a gamma daily wind with a record AR(1) and a daytime rise; u* = 0.4 U /
   ln((z - d) / z0) (neutral log law (m)) times a stability factor falling on clear calm
   nights (invented); wind direction a daily random walk (urban park).
