@@ -80,8 +80,9 @@ never flooded), ``notraffic``, ``flatwt`` (the fen's water table at its snow-fre
 previous day's uptake), ``nodark`` (no leaf dark respiration), ``nolowlight`` (no uptake in
 records with Rg below 10 W m-2, the run's night class), ``noabsent`` (the absent rows
 written), ``novpd`` (the C3 leaves' ci / ca held at its value at D = 1 kPa), ``q10resp``
-(heterotrophic respiration with a constant Q10 of 2 instead of O'Connell's form)); ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to
-every site's ``[processing]``.
+(heterotrophic respiration with a constant Q10 of 2 instead of O'Connell's form));
+``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to every
+site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
 constant or form of this script without a source; no constant was chosen by looking at
@@ -113,7 +114,8 @@ fluxpart's output):
   amount / 5 hours; snow below 0.5 deg C, a degree-day pack (melt 3 mm K-1 d-1 (m)).
 - soil water: a bucket emptied by HAMON evaporation 0.1651 x (day length / 12) x 216.7 es /
   (T + 273.3) mm d-1 (Hamon 1963 (m)), held back below REW 0.4; drip irrigation at the
-  olive orchard (REW kept above 0.25) and a flood at the paddy (soil water taken as full while flooded).
+  olive orchard (REW kept above 0.25) and a flood at the paddy (soil water taken as full
+  while flooded).
 - wind and u*: a gamma daily wind with a record AR(1) and a daytime rise; u* = 0.4 U /
   ln((z - d) / z0) (neutral log law (m)) times a stability factor falling on clear calm
   nights (invented); wind direction a daily random walk (urban park).
