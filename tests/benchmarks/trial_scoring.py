@@ -6,7 +6,9 @@ loop over a run's budget years; since ``trial_nineteenth.py`` the loop over the 
 ``run_sites``, and the scoring of a run's budget years, ``score_budget_years``; since ``trial_twentysecond.py`` the fill errors by rain gap and
 power outage, ``rain_outage_fill_parts``; since ``trial_twentythird.py`` and
 ``trial_twentyfourth.py`` the list of misses with z, ``print_misses_z`` (first written for
-trial 22), and the writer of a site's logger CSV and TOML, ``write_logger_site``): each trial
+trial 22), and the writer of a site's logger CSV and TOML, ``write_logger_site``; since
+``trial_twentyeighth.py`` the generators' generic numerics ``ar1``, ``lagged``, ``ramp`` and
+``runs_mask``, taken out of trials 25-27 unchanged): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
@@ -22,6 +24,7 @@ import sys
 from pathlib import Path
 
 import numpy as np
+from scipy.signal import lfilter
 
 FLUXES = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 TRUTH_OF = {"nee": "nee", "gpp_nighttime": "gpp", "reco_nighttime": "reco",
@@ -507,3 +510,34 @@ def trial_main(argv, doc, default_out, variants, sites, simulate, write_site, sc
         rows = pd.read_csv(path)
         print_misses_z(rows[rows["complete"]].to_dict("records"))
     return code
+
+
+# ----------------------------------------------------------------- generators' numerics
+# Generic numeric helpers of the trials' generators (since trial_twentyeighth.py): red
+# noise, a first-order lag, a linear ramp and runs of records. No physics: each trial
+# keeps its own weather and fluxes.
+
+
+def ar1(rng, size, rho):
+    """Unit-variance red noise of `size` steps, lag-one correlation `rho`."""
+    return lfilter([np.sqrt(1 - rho * rho)], [1.0, -rho], rng.standard_normal(size))
+
+
+def lagged(x, tau):
+    """`x` through a first-order filter of time constant `tau` steps, started at x[0]."""
+    a = 1.0 - np.exp(-1.0 / tau)
+    y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
+    return y
+
+
+def ramp(x, lo, hi):
+    """0 at or below `lo`, 1 at or above `hi`, linear between."""
+    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
+
+
+def runs_mask(n, starts, lengths):
+    """A boolean mask of `n` records true on [start, start + length) of each run."""
+    mask = np.zeros(n, bool)
+    for s, ln in zip(starts, lengths, strict=True):
+        mask[max(int(s), 0):max(int(s) + int(ln), 0)] = True
+    return mask

@@ -21,7 +21,8 @@ settings, a tower's usual QC gaps) and writes the flux physics in OTHER forms:
 
 The generator is written fresh here with numpy, scipy and pandas; it imports neither
 ``fluxpart.scenarios`` nor ``fluxpart.demo`` nor another trial's generator (only the scoring
-helpers of ``trial_scoring.py`` are shared). Eight sites, nine budget years a draw:
+helpers of ``trial_scoring.py`` and its generic numerics without physics are
+shared). Eight sites, nine budget years a draw:
 
 - B  a temperate beech forest at 50.9 deg N, 30 min, 2023; two-leaf; budburst by degree-days;
 - R  a maize-soybean rotation at 41.9 deg N, 30 min, 2022 (maize, C4) and 2023 (soybean,
@@ -126,6 +127,7 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
+    ar1,
     print_rain_outage_row,
     rain_outage_fill_parts,
     score_budget_years,
@@ -216,11 +218,6 @@ EVENTS: dict[str, list[str]] = {}   # each site's sowing and harvest dates of it
 
 
 # ----------------------------------------------------------------------------- helpers
-def ar1(rng, size, rho):
-    """Unit-variance red noise of `size` steps, lag-one correlation `rho`."""
-    return lfilter([np.sqrt(1 - rho * rho)], [1.0, -rho], rng.standard_normal(size))
-
-
 def lagged_mean(x, tau):
     """Exponential mean of `x` over the steps BEFORE each one (time constant `tau` steps)."""
     a = 1.0 / tau

@@ -41,7 +41,8 @@ forms:
 
 The generator is written fresh here with numpy, scipy and pandas; it imports neither
 ``fluxpart.scenarios`` nor ``fluxpart.demo`` nor another trial's generator (only the scoring
-helpers of ``trial_scoring.py`` are shared). Ten sites, one budget year each:
+helpers of ``trial_scoring.py`` and its generic numerics without physics are
+shared). Ten sites, one budget year each:
 
 - D  a temperate deciduous (beech-ash) forest at 44.2 deg N, 30 min, 2023; thr 0.30 / 0.20;
 - E  an evergreen conifer (spruce-pine) forest at 48.6 deg N, 30 min, 2022; 0.33 / 0.26;
@@ -157,12 +158,15 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
+    ar1,
     fill_errors,
+    lagged,
     print_scored_row,
+    ramp,
+    runs_mask,
     score_budget_years,
     trial_main,
     write_logger_site,
@@ -251,23 +255,6 @@ EVENTS: dict[str, list[str]] = {}   # each site's declared dates of its last dra
 
 
 # ----------------------------------------------------------------------------- helpers
-def ar1(rng, size, rho):
-    """Unit-variance red noise of `size` steps, lag-one correlation `rho`."""
-    return lfilter([np.sqrt(1 - rho * rho)], [1.0, -rho], rng.standard_normal(size))
-
-
-def lagged(x, tau):
-    """`x` through a first-order filter of time constant `tau` steps, started at x[0]."""
-    a = 1.0 - np.exp(-1.0 / tau)
-    y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
-    return y
-
-
-def ramp(x, lo, hi):
-    """0 at or below `lo`, 1 at or above `hi`, linear between."""
-    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
-
-
 def buck(t):
     """Saturation vapour pressure over water [hPa] at `t` [deg C] (Buck 1981 (m))."""
     return 6.1121 * np.exp((18.678 - t / 234.5) * t / (257.14 + t))
@@ -286,14 +273,6 @@ def markov_chain(rng, n, stay, enter):
             w = np.cumsum(enter[s]) / np.sum(enter[s])
             state[d] = int(np.searchsorted(w, pick[d]))
     return state
-
-
-def runs_mask(n, starts, lengths):
-    """A boolean mask of `n` records true on [start, start + length) of each run."""
-    mask = np.zeros(n, bool)
-    for s, ln in zip(starts, lengths, strict=True):
-        mask[max(int(s), 0):max(int(s) + int(ln), 0)] = True
-    return mask
 
 
 def sun(middle, site):

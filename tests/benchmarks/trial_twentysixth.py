@@ -36,7 +36,8 @@ names and default settings, and writes the physics and the gaps in OTHER forms:
 
 The generator is written fresh here with numpy, scipy and pandas; it imports neither
 ``fluxpart.scenarios`` nor ``fluxpart.demo`` nor another trial's generator (only the scoring
-helpers of ``trial_scoring.py`` are shared). Eight sites, one budget year each:
+helpers of ``trial_scoring.py`` and its generic numerics without physics are
+shared). Eight sites, one budget year each:
 
 - D  a temperate deciduous (maple-oak) forest at 42.5 deg N, 30 min, 2023; threshold 0.25;
 - E  an evergreen conifer (fir-hemlock) forest at 46.3 deg N, 30 min, 2022, dry summers;
@@ -136,8 +137,10 @@ from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
+    ar1,
     fill_errors,
     print_scored_row,
+    ramp,
     score_budget_years,
     trial_main,
     write_logger_site,
@@ -226,21 +229,11 @@ EVENTS: dict[str, list[str]] = {}   # each site's declared dates of its last dra
 
 
 # ----------------------------------------------------------------------------- helpers
-def ar1(rng, size, rho):
-    """Unit-variance red noise of `size` steps, lag-one correlation `rho`."""
-    return lfilter([np.sqrt(1 - rho * rho)], [1.0, -rho], rng.standard_normal(size))
-
-
 def exp_filter(x, tau):
     """First-order (exponential) filter of `x` with time constant `tau` steps, started at x[0]."""
     a = 1.0 - np.exp(-1.0 / tau)
     y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
     return y
-
-
-def ramp(x, lo, hi):
-    """0 at or below `lo`, 1 at or above `hi`, linear between."""
-    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
 
 
 def tetens(t):
