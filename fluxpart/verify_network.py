@@ -2,7 +2,7 @@
 
 A batch output folder (:mod:`fluxpart.batch`) holds one result folder per site and
 the network tables, sealed by ``network.json``. Verifying it checks that seal as
-:func:`fluxpart.batch.read_network` does (every network file's SHA-256, every site
+:func:`fluxpart.network_tables.read_network` does (every network file's SHA-256, every site
 folder's manifest seal) and then verifies each site folder the seal lists, in the
 order listed, serially, by :func:`fluxpart.verify.verify` unchanged. A site the
 batch failed (a row of ``failures.parquet``) has no result of that batch to verify:
@@ -22,6 +22,7 @@ from pathlib import Path
 from .errors import ConfigError, FluxpartError, InputFileError
 from .manifest import shown_path
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
+from .network_tables import failed_sites, network_table
 from .verify import JSON_FORMAT, VERIFY_CAUTION, verify
 
 __all__ = ["NetworkReport", "is_network_folder", "verify_network"]
@@ -52,7 +53,7 @@ class NetworkReport:
         Each site the batch failed (``failures.parquet``), with its recorded error.
     seal_problem : str
         Why the network files or a site's manifest do not match ``network.json`` (as
-        :func:`fluxpart.batch.read_network` refuses them), or "" where they match.
+        :func:`fluxpart.network_tables.read_network` refuses them), or "" where they match.
     """
 
     directory: Path
@@ -162,8 +163,6 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Common practice of reproducible computation: a result is checked by recomputing
     it from its recorded input and settings, here one site at a time.
     """
-    from .batch import _network_table, failed_sites
-
     out = Path(directory).absolute()
     listed = _listed_sites(out)
     for key, folder in listed:
@@ -174,7 +173,7 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     seal_problem = ""
     for table in NETWORK_DATASETS:
         try:
-            _network_table(out, table)      # the seal check of read_network, unchanged
+            network_table(out, table)      # the seal check of read_network, unchanged
         except FluxpartError as error:
             if not listed:      # no seal, or one cut short or incomplete: nothing to walk
                 error.args = (f"verify: {error}",)
