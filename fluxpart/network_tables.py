@@ -19,7 +19,7 @@ import pandas as pd
 import pyarrow as pa
 
 from .errors import ConfigError, FluxpartWarning, InputFileError
-from .manifest import read_manifest, seal_intact
+from .manifest import manifest_text, read_manifest, seal_intact
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
 from .store import (
     arrow_table,
@@ -56,7 +56,9 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
     rerun = "run the batch again, which skips the sites up to date and rewrites the " \
             "network tables whole"
     try:
-        seal = json.loads(path.read_text(encoding="utf-8"))
+        # a byte-order mark or UTF-16 of an editor's save is no content, as for a
+        # manifest (manifest_text); it was called damaged, "cut short or edited"
+        seal = json.loads(manifest_text(path.read_bytes()))
     except OSError as error:
         raise unreadable(path, error) from None
     except (ValueError, RecursionError):     # cut short, edited, nested too deep
