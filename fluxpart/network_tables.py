@@ -189,10 +189,9 @@ def network_table(out, table: str) -> pd.DataFrame:
 
     Parameters
     ----------
-    out : str or path-like
-        The batch output folder.
-    table : {"annual", "monthly", "daily"}
-        Which budget table; the dataset lives in ``out/network_<table>/``.
+    out, table
+        As :func:`read_network`'s: the batch output folder and ``"annual"``,
+        ``"monthly"`` or ``"daily"``.
 
     Returns
     -------

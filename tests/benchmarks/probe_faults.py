@@ -95,6 +95,18 @@ site spinning in Python past the time limit; a site key reassigned by a changed 
 one config listed in five spellings; verify of the batch output folder; one worker's peak
 memory over 4 site-years.
 
+Round faults45 (a network folder as an auditor and a returning user meet it; faults
+named ``f45_*``): failures.parquet relabelled by fluxpart's own writer, rewritten by
+pandas and deleted; ``--scheduler ""``; a network folder copied with ``cp -r`` and the
+batch rerun into the copy; moved two levels deeper; network.json re-saved with a BOM and
+CRLF; report, export and diff given the network folder; a batch resumed after a site's
+config changed and after its network file dropped and added sites; a site config and a
+network file with a BOM and CRLF, a config saved as UTF-16; ``report --out`` the result
+itself, another result or a network folder; ``run --out`` a network folder and ``batch
+--out`` a result; SIGTERM to verify of a network as its scratch folder appears; ``verify
+.`` and ``report .`` inside a result; a site folder replaced by its copy and by another
+run's; two verify of one network at once.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -4265,6 +4277,17 @@ def _net45_copy(name, *cp):
     return target
 
 
+def _net45_with_scratch(name):
+    """A copy of the round's network folder, an empty scratch folder for TMPDIR, and the
+    copy's Parquet digests."""
+    _net45()
+    out = _net45_copy(name)
+    scratch = W / f"tmp_{name}"
+    shutil.rmtree(scratch, ignore_errors=True)
+    scratch.mkdir()
+    return out, scratch, _tree_digests(out)
+
+
 def _tree_digests(folder):
     return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
             for p in sorted(Path(folder).rglob("*.parquet"))}
@@ -4471,12 +4494,7 @@ def f45_run_out_into_network():
 def f45_verify_network_stopped():
     """SIGTERM to ``verify`` of a network folder while it recomputes its first site:
     exit 143, one line, its scratch folder gone, the network untouched."""
-    _net45()
-    out = _net45_copy("ver_stop")
-    scratch = W / "tmp45"
-    shutil.rmtree(scratch, ignore_errors=True)
-    scratch.mkdir()
-    before = _tree_digests(out)
+    out, scratch, before = _net45_with_scratch("ver_stop")
     done = stop_when(["verify", "--quiet", out], signal.SIGTERM,
                      lambda: _entries(scratch, "fluxpart-verify-"),
                      env=dict(ENV, TMPDIR=str(scratch)))
@@ -4515,6 +4533,50 @@ def f45_network_site_replaced_by_copy():
            same.returncode == 0 and other.returncode == 1 and "s01" in other.stdout,
            f"copy {same.returncode}; other run {other.returncode} "
            f"{other.stdout.splitlines()[:1]!r:.100}")
+
+
+def f45_batch_resumed_sites_changed():
+    """A finished batch resumed after its network file changed: one site dropped (s01), one
+    added (s03). The kept site is skipped byte-identical, the new one computed, the network
+    tables hold the listed sites only, verify of the folder passes; the dropped site's folder
+    is left as it was (its files the user's), and said so."""
+    _net45()
+    out = _net45_copy("resumed_sites")
+    (NET45 / "s03").mkdir(exist_ok=True)
+    shutil.copy2(W / "b" / "tower.csv", NET45 / "s03" / "tower.csv")
+    (NET45 / "s03" / "s03.toml").write_text((NET45 / "s00" / "s00.toml").read_text()
+                                            .replace("seed = 0", "seed = 3")
+                                            .replace("Quillmoor s00", "Quillmoor s03"))
+    sites = NET45 / "sites_changed.toml"
+    sites.write_text('[batch]\nsites = ["s00/s00.toml", "s02/s02.toml", "s03/s03.toml"]\n')
+    keep = _tree_digests(out / "s00")
+    try:
+        rerun = fp("batch", sites, "--workers", "1", "--out", out, cwd=NET45, timeout=600)
+        done = verify(out)
+    finally:
+        shutil.rmtree(NET45 / "s03")
+    listed = sorted(p.name.removeprefix("site=") for p in (out / "network_annual").iterdir())
+    said = rerun.stdout + rerun.stderr
+    record("a batch resumed after its network file dropped one site and added one",
+           rerun.returncode == 1 and keep == _tree_digests(out / "s00")
+           and listed == ["s00", "s03"] and done.returncode == 0 and (out / "s01").is_dir(),
+           f"rerun {rerun.returncode}, network sites {listed}, verify {done.returncode}, s01 "
+           f"named {'s01' in said}: {[ln for ln in said.splitlines() if 's01' in ln][:1]!r:.140}")
+
+
+def f45_two_verifies_of_a_network():
+    """Two ``verify`` of one network folder at once (two auditors on a shared disk): both
+    exit 0, their scratch folders gone, the folder unchanged."""
+    out, scratch, before = _net45_with_scratch("two_verifies")
+    env = dict(ENV, TMPDIR=str(scratch))
+    procs = [start("verify", "--quiet", out, env=env) for _ in range(2)]
+    codes = [p.wait(timeout=600) for p in procs]
+    for p in procs:
+        p.communicate()
+    left = [p.name for p in scratch.iterdir()]
+    record("two verify of one network folder at once", codes == [0, 0] and not left
+           and before == _tree_digests(out) and not leftovers(out),
+           f"exits {codes}, left {left}")
 
 
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
@@ -4584,7 +4646,8 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f45_network_moved, f45_network_seal_bom_crlf, f45_other_commands_on_network,
           f45_batch_resumed_config_changed, f45_config_bom_crlf, f45_sites_file_bom_crlf,
           f45_report_out_into_results, f45_run_out_into_network, f45_verify_network_stopped,
-          f45_verify_from_inside, f45_network_site_replaced_by_copy]
+          f45_verify_from_inside, f45_network_site_replaced_by_copy,
+          f45_batch_resumed_sites_changed, f45_two_verifies_of_a_network]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
