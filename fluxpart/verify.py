@@ -2081,9 +2081,9 @@ def scratch_folder():
 
     A stop (SIGTERM, Ctrl-C: an exception raised by the command line's handler) that
     came between :func:`tempfile.mkdtemp` making the folder and
-    :class:`tempfile.TemporaryDirectory` registering its removal left it behind (1 of 5
-    SIGTERMs sent as the folder appeared, round faults45); a folder of this process's id
-    is then removed, as no other verify of this process runs at the same time.
+    :class:`tempfile.TemporaryDirectory` registering its removal left it behind (once in
+    15 SIGTERMs sent as the folder appeared, round faults45); a folder of this process's
+    id is then removed, as no other verify of this process runs at the same time.
 
     Yields
     ------

@@ -97,7 +97,7 @@ def test_an_empty_scheduler_address_is_one_error_line(address, tmp_path, capsys)
 
 def test_a_stop_as_verify_makes_its_scratch_folder_leaves_none(tmp_path, monkeypatch):
     """SIGTERM sent as verify's scratch folder appeared left it in the temporary folder
-    (1 of 5 tries): the stop came between ``mkdtemp`` and the registration of its removal
+    (once in 15 tries): the stop came between ``mkdtemp`` and the registration of its removal
     (Python's tempfile.TemporaryDirectory makes the folder first (m)). Simulated here by a
     stop raised right after the folder is made."""
     import tempfile
