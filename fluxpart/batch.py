@@ -75,7 +75,6 @@ from .manifest import (
     library_versions,
     read_manifest,
     recorded_inputs,
-    seal_intact,
     shown_name,
     shown_path,
 )
@@ -85,6 +84,14 @@ from .network_layout import (  # noqa: F401 - also this module's names
     NETWORK_SEAL,
     enclosing_network_dataset,
 )
+from .network_tables import (  # noqa: F401 - also this module's names
+    FAILURES_FILE,
+    NETWORK_SITE_DESCRIPTION,
+    failed_sites,
+    network_table,
+    read_network,
+    read_network_annual,
+)
 from .resultdir import check_folder, clean_leftovers, folder_lock, interrupted_writes
 from .schema import CALENDAR_YEAR_START, time_convention, units_for_table
 from .shared_records import day_keys, shared_days
@@ -92,7 +99,6 @@ from .store import (
     PANDAS_ATTRS_KEY,
     arrow_table,
     atomic_write_bytes,
-    damaged_table,
     file_sha256,
     folder_mode,
     read_table,
@@ -101,8 +107,6 @@ from .store import (
     remove_stale,
     require_owner_access,
     set_mode,
-    shortage,
-    unreadable,
     write_table,
 )
 from .swapped_sites import swapped_pairs
@@ -129,10 +133,6 @@ __all__ = [
     "same_records_sites",
 ]
 
-#: Index column of each budget table, the network dataset's sort key after ``site``.
-_PERIOD_COLUMNS = {"annual": "year", "monthly": "month", "daily": "date"}
-#: File of the failures table inside the batch output folder.
-FAILURES_FILE = "failures.parquet"
 _NETWORK_FORMAT = "fluxpart-network/1"
 
 _BATCH_KEYS = ("out", "sites", "site_time_limit")
@@ -184,9 +184,6 @@ _FAILURE_COLUMNS = {
              "written (full disk, permissions); 'internal': a fault of fluxpart or of the "
              "cluster"),
 }
-#: The network datasets' partition column (``site=<key>`` folders).
-_NETWORK_SITE_DESCRIPTION = ("site key (the result folder's name); the partition key of the "
-                             "dataset, from its site=<key> folder, not a column of the files")
 #: The batch summary's columns: NEE with its stated 95 % interval (review33: the sites'
 #: budgets were printed side by side without any, while `run` prints each site's).
 _SUMMARY_COLUMNS = ("site", "year", "nee", "nee_ci95_low", "nee_ci95_high", "gpp_nighttime",
@@ -842,7 +839,7 @@ def _unify(tables: list[pa.Table], name: str = "annual",
     # the partition column, which a Hive reader adds from the folder name: described like
     # the file's own (modeller52: it had no unit or description entry)
     columns["site"] = {"unit": _FAILURE_COLUMNS["site"][0],
-                       "description": _NETWORK_SITE_DESCRIPTION}
+                       "description": NETWORK_SITE_DESCRIPTION}
     info = {"table": NETWORK_DATASETS[name], "partitioning": "site",
             "time_convention": time_convention(year_start), "columns": columns}
     # and as the DataFrame.attrs pandas.read_parquet restores (the PANDAS_ATTRS key), as in
@@ -928,258 +925,11 @@ def _write_network_locked(outcomes, out: Path) -> tuple[pd.DataFrame, pd.DataFra
     atomic_write_bytes(out / NETWORK_SEAL, _seal_bytes({
         "format": _NETWORK_FORMAT, "complete": True, "sites": sites, "files": files,
         "failures": file_sha256(out / FAILURES_FILE)}))
-    return _network_table(out, "annual"), failures
+    return network_table(out, "annual"), failures
 
 
 def _seal_bytes(seal: dict) -> bytes:
     return (json.dumps(seal, indent=2, sort_keys=True) + "\n").encode()
-
-
-def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
-    """Refuse network files that do not match :data:`NETWORK_SEAL` or their site folders.
-
-    The seal names each site's folder relative to `out` (``out/<key>`` in a batch).
-
-    Output folders of batches before the seal existed have none and are read as they are.
-    """
-    path = out / NETWORK_SEAL
-    if not path.exists():
-        return
-    rerun = "run the batch again, which skips the sites up to date and rewrites the " \
-            "network tables whole"
-    try:
-        seal = json.loads(path.read_text(encoding="utf-8"))
-    except OSError as error:
-        raise unreadable(path, error) from None
-    except (ValueError, RecursionError):     # cut short, edited, nested too deep
-        seal = None
-    if not isinstance(seal, dict):
-        # it said "network.json says so: a batch was stopped", of a file cut short or edited
-        raise InputFileError(f"{str(path)!r} is damaged (not the JSON object a batch writes: "
-                             f"cut short or edited), so the network tables in {str(out)!r} "
-                             f"cannot be checked; {rerun}")
-    if seal.get("complete") is not True:
-        raise InputFileError(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
-                             f"says so: a batch was stopped while writing them); {rerun}")
-    recorded = (seal.get("files") or {}).get(folder) or {}
-    found = {f.parent.name.removeprefix("site="): f for f in files}
-    for key in sorted(set(found) | set(recorded)):
-        if key not in found or key not in recorded \
-                or file_sha256(found[key]) != recorded[key]:
-            raise InputFileError(f"{folder}/site={key} in {str(out)!r} is not the file the "
-                                 f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
-                                 f"rewriting the network tables, or an edit); {rerun}")
-    for key, site in sorted((seal.get("sites") or {}).items()):
-        site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
-        try:
-            manifest = read_manifest(site_folder)
-            # the seal recomputed, not only the recorded one: an edited manifest keeps its
-            # old "seal" entry, and passed (review round thirteen)
-            now = manifest.get("seal") if seal_intact(manifest) else None
-        except InputFileError:
-            now = None
-        if not isinstance(site, dict) or now != site.get("seal"):
-            raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "
-                                 f"network tables were written (a batch stopped after writing "
-                                 f"some sites, or a run into that folder); {rerun}")
-
-
-def read_network_annual(out) -> pd.DataFrame:
-    """Read a batch's annual network dataset back as one DataFrame.
-
-    Parameters
-    ----------
-    out : str or path-like
-        The batch output folder (the one holding ``network_annual/``).
-
-    Returns
-    -------
-    pandas.DataFrame
-        One row per site and year: ``site`` (the site key, from the partition
-        folder), ``year``, ``site_name``, ``latitude``, ``longitude``,
-        ``utc_offset`` and the annual budget columns [g C m-2 per year], sorted by
-        site and year; ``attrs["failed_sites"]`` and the warning as
-        :func:`read_network`'s.
-    """
-    frame = _network_table(out, "annual")
-    _warn_failed(out, frame)
-    return frame
-
-
-def read_network(out, table: str = "annual") -> pd.DataFrame:
-    """Read one of a batch's network datasets back as one DataFrame.
-
-    Parameters
-    ----------
-    out : str or path-like
-        The batch output folder.
-    table : {"annual", "monthly", "daily"}
-        Which budget table; the dataset lives in ``out/network_<table>/``.
-
-    Returns
-    -------
-    pandas.DataFrame
-        One row per site and period: ``site`` (the site key, from the partition
-        folder), the period (``year``, ``month`` or ``date``), the site columns
-        and the budget columns [g C m-2 per period], sorted by site and period;
-        ``attrs`` holds ``units`` (UDUNITS-2) and ``descriptions`` of every column
-        and the time convention, as :func:`fluxpart.load` gives a site's tables;
-        ``attrs["failed_sites"]`` the sites left out because they failed
-        (:func:`failed_sites`).
-
-    Warns
-    -----
-    FluxpartWarning
-        Where the batch that wrote the tables failed any site: names each one.
-
-    Raises
-    ------
-    ConfigError
-        If `table` is not one of the three budget tables.
-    InputFileError
-        If `out` holds no such dataset, or its files do not match the seal the
-        batch wrote last (``network.json``: a batch stopped while writing them, or
-        after rewriting some site folders); the message says to run the batch
-        again. Folders of batches before the seal existed are read unchecked.
-    """
-    frame = _network_table(out, table)
-    _warn_failed(out, frame)
-    return frame
-
-
-def _network_table(out, table: str) -> pd.DataFrame:
-    """:func:`read_network` without its warning (the batch's own read-back)."""
-    if table not in NETWORK_DATASETS:
-        raise ConfigError(f"network table {table!r}: expected one of "
-                          f"{', '.join(map(repr, NETWORK_DATASETS))}")
-    path = Path(out) / NETWORK_DATASETS[table]
-    if not path.is_dir():
-        raise InputFileError(f"{str(path)!r} does not exist: {str(out)!r} is not a batch "
-                             "output folder")
-    files = sorted(path.glob("site=*/*.parquet"))
-    _check_network_seal(Path(out), NETWORK_DATASETS[table], files)
-    failed = failed_sites(Path(out))
-    if not files:
-        frame = pd.DataFrame({"site": pd.Series([], dtype="str")})
-    else:
-        frame = _network_frame(files)
-        ordered = ["site", *[c for c in frame.columns if c != "site"]]
-        frame = frame[ordered].sort_values(["site", _PERIOD_COLUMNS[table]],
-                                           kind="stable").reset_index(drop=True)
-        frame.attrs = _network_attrs(files[0])
-    frame.attrs["failed_sites"] = failed
-    return frame
-
-
-def _warn_failed(out, frame: pd.DataFrame) -> None:
-    """Warn, for the caller of a public reader, of the sites `frame` leaves out."""
-    failed = frame.attrs.get("failed_sites") or {}
-    if failed:
-        named = ", ".join(f"{key!r} ({text.split(':', 1)[0]})" for key, text in failed.items())
-        warnings.warn(FluxpartWarning(
-            f"the network tables of {str(out)!r} leave out {len(failed)} site(s) that "
-            f"failed in the batch that wrote them ({frame['site'].nunique()} site(s) "
-            f"read): {named}; their errors in {FAILURES_FILE} and attrs['failed_sites']"),
-            stacklevel=3)
-
-
-def failed_sites(out: Path) -> dict:
-    """The sites a batch's network tables leave out because they failed, as recorded.
-
-    Parameters
-    ----------
-    out : pathlib.Path
-        The batch output folder.
-
-    Returns
-    -------
-    dict
-        Site key -> ``"<error class>: <message>"`` (the message's first 200 characters),
-        in the order of ``failures.parquet``; empty where it is absent or holds no row.
-
-    Notes
-    -----
-    A reader of the network tables alone saw only the sites written, with no word of
-    those missing (all sites failed gave an empty table without a note; round faults44).
-    """
-    path = out / FAILURES_FILE
-    if not path.is_file():
-        return {}
-    failures = read_table(path).reset_index()
-    return {str(row.site): f"{row.error}: {str(row.message)[:200]}"
-            for row in failures.itertuples(index=False)}
-
-
-def _network_frame(files: list[Path]) -> pd.DataFrame:
-    """The site files of one network table as one frame, read on the calling thread.
-
-    The same frame as ``pyarrow.dataset.dataset(files, partitioning=hive).to_table()``
-    gave (the first file's columns, a column another file lacks as nulls, the partition
-    key ``site`` last), without the dataset scanner: it starts pyarrow's I/O pool (7
-    threads here, also with ``use_threads=False``), and under a memory limit a thread the
-    system refuses hung the read for good (``ulimit -v`` 325-475 MB: `batch`'s client
-    never ended) or ended the process before Python could say why (glibc's "cannot
-    allocate memory for thread-local data: ABORT", exit 127, up to 700 MB). Each file is
-    read by :func:`fluxpart.store.arrow_table`, as :func:`fluxpart.store.read_table` reads
-    a site's tables.
-
-    Parameters
-    ----------
-    files : list of pathlib.Path
-        ``<dataset>/site=<key>/*.parquet``, in the order the rows are wanted.
-
-    Returns
-    -------
-    pandas.DataFrame
-        The files' rows in order, with ``site`` (the key of each file's folder) last.
-
-    Raises
-    ------
-    ResourceShortage
-        Where the system refused memory or a thread while reading a file.
-    InputFileError
-        Where a file cannot be read or decoded.
-
-    References
-    ----------
-    Apache Arrow documentation, ``pyarrow.parquet.ParquetFile.read`` and
-    ``pyarrow.Table.to_pandas``: ``use_threads=False`` decodes on the calling thread (m).
-    """
-    schema, parts = None, []
-    for file in files:
-        part = arrow_table(file)
-        schema = schema or part.schema
-        arrays = [part[f.name].cast(f.type) if f.name in part.column_names
-                  else pa.nulls(len(part), f.type) for f in schema]
-        key = file.parent.name.removeprefix("site=")
-        parts.append(pa.Table.from_arrays([*arrays, pa.array([key] * len(part), pa.string())],
-                                          names=[*schema.names, "site"]))
-    try:
-        return pa.concat_tables(parts).to_pandas(use_threads=False)
-    except (pa.ArrowException, MemoryError) as error:
-        raise shortage(files[0], error) or damaged_table(files[0], error) from None
-
-
-def _network_attrs(path: Path) -> dict:
-    """The ``attrs`` of a network table read back: the units, descriptions, time
-    convention and table name of one of its files (:func:`fluxpart.store.reader_attrs`;
-    every site's file has the same, :func:`_unify`), and the ``site`` partition key.
-    A file without fluxpart's metadata gives none."""
-    import pyarrow.parquet as pq
-
-    from .store import parquet_source
-
-    try:
-        with parquet_source(path) as source:
-            info = json.loads((pq.read_schema(source).metadata or {}).get(b"fluxpart", b"{}"))
-    except (OSError, ValueError, pa.ArrowException):
-        info = {}
-    if not isinstance(info, dict) or not isinstance(info.get("columns"), dict):
-        return {}
-    attrs = reader_attrs(info)
-    attrs["units"] = {"site": "", **attrs["units"]}
-    attrs["descriptions"] = {"site": _NETWORK_SITE_DESCRIPTION, **attrs["descriptions"]}
-    return attrs
 
 
 def _write_failures(outcomes, out: Path) -> pd.DataFrame:
@@ -1395,6 +1145,12 @@ def _check_cluster_options(scheduler, workers) -> None:
     if workers is not None and (not isinstance(workers, int) or isinstance(workers, bool)
                                 or workers < 1):
         raise ConfigError(f"--workers {workers!r}: expected a whole number >= 1")
+    if scheduler is not None and not str(scheduler).strip():
+        # an empty address (an unset shell variable: --scheduler "$ADDR") ran a local
+        # cluster without a word, on the machine the user meant to spare (round faults45)
+        raise ConfigError(f"--scheduler {scheduler!r}: an empty address; give the address "
+                          "`dask scheduler` prints (tcp://HOST:8786 by default), or leave "
+                          "--scheduler out for a local cluster")
     if scheduler and workers is not None:
         raise ConfigError("--workers applies to the local cluster only; with --scheduler "
                           "the cluster's own workers are used")

@@ -73,6 +73,7 @@ import re
 import shutil
 import tempfile
 import zlib
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -2073,6 +2074,33 @@ def remove_dead_scratch(root=None) -> list[str]:
     return removed
 
 
+@contextmanager
+def scratch_folder():
+    """A rerun's scratch folder in the system's temporary folder, removed however the
+    block ends.
+
+    A stop (SIGTERM, Ctrl-C: an exception raised by the command line's handler) that
+    came between :func:`tempfile.mkdtemp` making the folder and
+    :class:`tempfile.TemporaryDirectory` registering its removal left it behind (once in
+    15 SIGTERMs sent as the folder appeared, round faults45); a folder of this process's
+    id is then removed, as no other verify of this process runs at the same time.
+
+    Yields
+    ------
+    pathlib.Path
+        The folder, named ``fluxpart-verify-<process id>-<random>``.
+    """
+    try:
+        with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as made:
+            yield Path(made)
+    except BaseException:
+        own = f"{_SCRATCH_PREFIX}{os.getpid()}-"
+        for entry in Path(tempfile.gettempdir()).glob(f"{own}*"):
+            if entry.is_dir() and not entry.is_symlink():
+                shutil.rmtree(entry, ignore_errors=True)
+        raise
+
+
 #: Endings of a recorded input that the run unpacked (a tar, zip or compressed file of
 #: one table, :func:`fluxpart.io._decompressed`).
 _PACKED = (".tar", ".tgz", ".tar.gz", ".tar.bz2", ".tar.xz", ".zip", ".gz", ".bz2", ".xz")
@@ -2332,8 +2360,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     remove_dead_scratch()
     same_values: dict = {}      # cause -> tables whose values and metadata equal the rerun's
     worded: dict = {}           # release -> table -> columns worded as before it
-    with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as scratch:
-        scratch = Path(scratch)
+    with scratch_folder() as scratch:
         try:
             source, result, input_differences = _recompute(
                 directory, manifest, input_path, config_path, scratch, notes,

@@ -2,7 +2,7 @@
 
 A batch output folder (:mod:`fluxpart.batch`) holds one result folder per site and
 the network tables, sealed by ``network.json``. Verifying it checks that seal as
-:func:`fluxpart.batch.read_network` does (every network file's SHA-256, every site
+:func:`fluxpart.network_tables.read_network` does (every network file's SHA-256, every site
 folder's manifest seal) and then verifies each site folder the seal lists, in the
 order listed, serially, by :func:`fluxpart.verify.verify` unchanged. A site the
 batch failed (a row of ``failures.parquet``) has no result of that batch to verify:
@@ -20,8 +20,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .errors import ConfigError, FluxpartError, InputFileError
-from .manifest import shown_path
+from .manifest import manifest_text, shown_path
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
+from .network_tables import failed_sites, network_table
 from .verify import JSON_FORMAT, VERIFY_CAUTION, verify
 
 __all__ = ["NetworkReport", "is_network_folder", "verify_network"]
@@ -52,7 +53,7 @@ class NetworkReport:
         Each site the batch failed (``failures.parquet``), with its recorded error.
     seal_problem : str
         Why the network files or a site's manifest do not match ``network.json`` (as
-        :func:`fluxpart.batch.read_network` refuses them), or "" where they match.
+        :func:`fluxpart.network_tables.read_network` refuses them), or "" where they match.
     """
 
     directory: Path
@@ -118,16 +119,18 @@ class NetworkReport:
                           indent=2, sort_keys=True, ensure_ascii=True, allow_nan=False)
 
 
-def _listed_sites(out: Path) -> list[tuple[str, Path]]:
-    """The site keys and folders ``network.json`` lists, in its order."""
+def _listed_sites(out: Path) -> list[tuple[str, Path]] | None:
+    """The site keys and folders ``network.json`` lists, in its order; None where it is
+    unreadable, no complete seal or lists no sites (an empty list: a complete seal of a
+    batch that computed no site)."""
     path = out / NETWORK_SEAL
     try:
-        seal = json.loads(path.read_text(encoding="utf-8"))
+        seal = json.loads(manifest_text(path.read_bytes()))
     except (OSError, ValueError, RecursionError):
         seal = None      # named by the seal check that follows
     sites = seal.get("sites") if isinstance(seal, dict) else None
-    if not isinstance(sites, dict):
-        return []
+    if not isinstance(sites, dict) or seal.get("complete") is not True:
+        return None
     return [(str(key), out / str(site.get("folder", key) if isinstance(site, dict) else key))
             for key, site in sites.items()]
 
@@ -151,8 +154,8 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Raises
     ------
     InputFileError
-        If a site folder the seal lists is missing (named), or the seal lists no site
-        (damaged, or written incomplete by a stopped batch). Network files or site
+        If a site folder the seal lists is missing (named), or the seal is no complete
+        one (damaged, or written incomplete by a stopped batch). Network files or site
         manifests that do not match a complete seal are the report's `seal_problem`.
     FluxpartError
         A site's verify error, prefixed with its key.
@@ -162,10 +165,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Common practice of reproducible computation: a result is checked by recomputing
     it from its recorded input and settings, here one site at a time.
     """
-    from .batch import _network_table, failed_sites
-
     out = Path(directory).absolute()
-    listed = _listed_sites(out)
+    sealed = _listed_sites(out)
+    listed = sealed or []
     for key, folder in listed:
         if not folder.is_dir():
             raise InputFileError(f"verify: site {key!r}: its folder {str(folder)!r}, listed in "
@@ -174,9 +176,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     seal_problem = ""
     for table in NETWORK_DATASETS:
         try:
-            _network_table(out, table)      # the seal check of read_network, unchanged
+            network_table(out, table)      # the seal check of read_network, unchanged
         except FluxpartError as error:
-            if not listed:      # no seal, or one cut short or incomplete: nothing to walk
+            if sealed is None:      # no seal, or one cut short or incomplete: nothing to walk
                 error.args = (f"verify: {error}",)
                 raise
             # a file or site manifest not as sealed is a failed verification (exit 1), as a
@@ -191,7 +193,15 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
         except FluxpartError as error:
             error.args = (f"site {key!r}: {error}",)
             raise
-    failed = tuple((key, error) for key, error in failed_sites(out).items()
+    try:
+        recorded_failures = failed_sites(out)
+    except FluxpartError:
+        if not seal_problem:
+            raise
+        # a failures table not as sealed that is no fluxpart table either (rewritten by
+        # another tool): the seal problem names it; its rows are no record of the batch
+        recorded_failures = {}
+    failed = tuple((key, error) for key, error in recorded_failures.items()
                    if key not in dict(listed))
     return NetworkReport(directory=out, sites=tuple(reports), failed=failed,
                          seal_problem=seal_problem)

@@ -475,7 +475,7 @@ def test_network_dataset_reads_back_with_a_site_column(towers, tmp_path, cluster
         assert meta["time_convention"].startswith("each stamp marks the start")
         # the partition column a Hive reader adds is described too (modeller52: no entry)
         assert meta["columns"]["site"] == {"unit": "", "description": batch.
-                                           _NETWORK_SITE_DESCRIPTION}
+                                           NETWORK_SITE_DESCRIPTION}
 
     frame = pd.read_parquet(folder)
     assert "site" in frame.columns and len(frame) == len(table) == len(report.network)

@@ -95,6 +95,18 @@ site spinning in Python past the time limit; a site key reassigned by a changed 
 one config listed in five spellings; verify of the batch output folder; one worker's peak
 memory over 4 site-years.
 
+Round faults45 (a network folder as an auditor and a returning user meet it; faults
+named ``f45_*``): failures.parquet relabelled by fluxpart's own writer, rewritten by
+pandas and deleted; ``--scheduler ""``; a network folder copied with ``cp -r`` and the
+batch rerun into the copy; moved two levels deeper; network.json re-saved with a BOM and
+CRLF; report, export and diff given the network folder; a batch resumed after a site's
+config changed and after its network file dropped and added sites; a site config and a
+network file with a BOM and CRLF, a config saved as UTF-16; ``report --out`` the result
+itself, another result or a network folder; ``run --out`` a network folder and ``batch
+--out`` a result; SIGTERM to verify of a network as its scratch folder appears; ``verify
+.`` and ``report .`` inside a result; a site folder replaced by its copy and by another
+run's; two verify of one network at once.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -4229,6 +4241,344 @@ def f_batch_worker_peak_memory():
            f"exit {proc.returncode}, peak after each site {after} MiB")
 
 
+# ---------------------------------------------------------------- round faults45
+NET45 = W / "net45"
+
+
+def _net45():
+    """A batch output folder of two computed sites (own seeds) and one the batch failed
+    (its input missing), written once by a 1-worker local batch; its exit status."""
+    out = NET45 / "out"
+    if (out / "network.json").is_file():
+        return 1
+    shutil.rmtree(NET45, ignore_errors=True)
+    for i in range(3):
+        site = f"s{i:02d}"
+        (NET45 / site).mkdir(parents=True)
+        if i < 2:
+            shutil.copy2(W / "b" / "tower.csv", NET45 / site / "tower.csv")
+        text = (W / "b" / "site.toml").read_text().replace("seed = 0", f"seed = {i}")
+        (NET45 / site / f"{site}.toml").write_text(
+            text.replace("Quillmoor grassland (fictional)", f"Quillmoor {site} (fictional)"))
+    (NET45 / "sites.toml").write_text('[batch]\nsites = ["*/s*.toml"]\nout = "out"\n')
+    return fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET45,
+              timeout=600).returncode
+
+
+def _net45_copy(name, *cp):
+    """A copy of the round's network folder: ``cp -r`` (times and modes not kept) where
+    `cp` gives its options, else shutil.copytree (times kept)."""
+    target = NET45 / name
+    shutil.rmtree(target, ignore_errors=True)
+    if cp:
+        subprocess.run(["cp", *cp, NET45 / "out", target], check=True)
+    else:
+        shutil.copytree(NET45 / "out", target, symlinks=True)
+    return target
+
+
+def _net45_with_scratch(name):
+    """A copy of the round's network folder, an empty scratch folder for TMPDIR, and the
+    copy's Parquet digests."""
+    _net45()
+    out = _net45_copy(name)
+    scratch = W / f"tmp_{name}"
+    shutil.rmtree(scratch, ignore_errors=True)
+    scratch.mkdir()
+    return out, scratch, _tree_digests(out)
+
+
+def _tree_digests(folder):
+    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(Path(folder).rglob("*.parquet"))}
+
+
+def f45_failures_table_edited():
+    """An auditor's copy of a network whose failures.parquet was edited: the failed site
+    relabelled as another name, and the table deleted. verify of the folder must not
+    pass it as the batch's record (the seal holds its SHA-256)."""
+    code = _net45()
+    seen, held = [], code == 1
+    relabel = ("import sys, pandas as pd; from fluxpart import batch; p = sys.argv[1]; "
+               "t = pd.read_parquet(p).reset_index(); t['site'] = 'north-tower'; "
+               "t = t[[c for c in t.columns if c != 'index']].set_index('site'); ")
+    for case in ("relabelled", "rewritten by pandas", "deleted"):
+        out = _net45_copy(f"fail_{case.split()[0]}")
+        path = out / "failures.parquet"
+        if case == "deleted":
+            path.unlink()
+        else:     # a forger's tool (fluxpart's own writer) and another tool's
+            write = ("batch.write_table(t, p, batch._FAILURE_COLUMNS, 'failures')"
+                     if case == "relabelled" else "t.to_parquet(p)")
+            subprocess.run([PY, "-c", relabel + write, path], env=ENV, check=True)
+        done = verify(out)
+        ok = done.returncode == 1 and "failures.parquet" in done.stdout
+        held = held and ok
+        seen.append(f"{case}: exit {done.returncode} {done.stdout.splitlines()[:1]!r:.110}")
+    record("verify of a network whose failures.parquet was edited or deleted", held,
+           f"batch exit {code}; " + "; ".join(seen))
+
+
+def f45_scheduler_empty():
+    """``batch --scheduler "$ADDR"`` with ADDR unset: one error line naming the option,
+    exit 2, no output folder; the machine's local cluster not started."""
+    _net45()
+    shutil.rmtree(NET45 / "empty_sched", ignore_errors=True)
+    done = fp("batch", "sites.toml", "--quiet", "--scheduler", "", "--out", "empty_sched",
+              cwd=NET45, timeout=600)
+    record("batch --scheduler '' (an unset shell variable)",
+           one_line(done) and "--scheduler" in done.stderr
+           and not (NET45 / "empty_sched").exists(),
+           f"exit {done.returncode}, {done.stderr.strip()[-120:]!r}, folder made "
+           f"{(NET45 / 'empty_sched').exists()}")
+
+
+def f45_network_copied_without_times():
+    """``cp -r`` of a network folder (times and modes not kept): verify passes; a rerun of
+    the batch into the copy skips every site and leaves every Parquet file byte-identical."""
+    _net45()
+    out = _net45_copy("cp_plain", "-r")
+    before = _tree_digests(out)
+    done = verify(out)
+    rerun = fp("batch", "sites.toml", "--quiet", "--workers", "1", "--out", out, cwd=NET45,
+               timeout=600)
+    after = _tree_digests(out)
+    record("a network folder copied with cp -r, verified and the batch rerun into it",
+           done.returncode == 0 and rerun.returncode == 1 and before == after,
+           f"verify {done.returncode}, rerun {rerun.returncode} "
+           f"{rerun.stdout.strip().splitlines()[:1]!r:.90}, identical {before == after}")
+
+
+def f45_network_moved():
+    """A network folder moved two levels deeper (``mv``): verify of it passes (the seal
+    names site folders relative to it)."""
+    _net45()
+    deeper = NET45 / "moved" / "2026" / "archive"
+    shutil.rmtree(NET45 / "moved", ignore_errors=True)
+    deeper.parent.mkdir(parents=True)
+    shutil.copytree(NET45 / "out", NET45 / "to_move", symlinks=True)
+    (NET45 / "to_move").rename(deeper)
+    done = verify(deeper)
+    record("verify of a network folder moved two levels deeper", done.returncode == 0,
+           f"exit {done.returncode}, {(done.stdout + done.stderr).strip()[:110]!r}")
+
+
+def f45_network_seal_bom_crlf():
+    """network.json re-saved by a Windows editor (a UTF-8 BOM and CRLF): no content
+    changed (a manifest so saved is read as written), so verify passes."""
+    _net45()
+    out = _net45_copy("seal_bom")
+    path = out / "network.json"
+    path.write_bytes(b"\xef\xbb\xbf" + path.read_bytes().replace(b"\n", b"\r\n"))
+    done = verify(out)
+    said = done.stdout + done.stderr
+    record("verify of a network whose network.json got a BOM and CRLF",
+           done.returncode == 0 and "Traceback" not in said,
+           f"exit {done.returncode}, {said.strip()[:140]!r}")
+
+
+def f45_other_commands_on_network():
+    """report, export --csv and diff given a batch output folder (not a result folder):
+    one error line naming what to give instead, exit 2, nothing written."""
+    _net45()
+    out = _net45_copy("other_cmds")
+    before = sorted(p.name for p in out.iterdir())
+    shutil.rmtree(NET45 / "csv45", ignore_errors=True)
+    steps = {"report": fp("report", "--quiet", out),
+             "export": fp("export", "--csv", NET45 / "csv45", out),
+             "diff": fp("diff", out, NET45 / "out")}
+    after = sorted(p.name for p in out.iterdir())
+    held = all(one_line(d) or d.returncode == 0 for d in steps.values()) \
+        and before == after and (NET45 / "csv45").exists() == (steps["export"].returncode == 0)
+    record("report, export and diff of a batch output folder", held,
+           "; ".join(f"{k} {d.returncode} {d.stderr.strip()[-80:]!r}" for k, d in steps.items())
+           + f"; entries changed {before != after}")
+
+
+def f45_batch_resumed_config_changed():
+    """A finished batch resumed after one site's config changed (its seed): that site is
+    recomputed, the other skipped with its files byte-identical, the network resealed,
+    verify passes."""
+    _net45()
+    out = _net45_copy("resumed")
+    config = NET45 / "s01" / "s01.toml"
+    original = config.read_text()
+    keep = _tree_digests(out / "s00")
+    try:
+        config.write_text(original.replace("seed = 1", "seed = 7"))
+        rerun = fp("batch", "sites.toml", "--quiet", "--workers", "1", "--out", out,
+                   cwd=NET45, timeout=600)
+        done = verify(out)
+    finally:
+        config.write_text(original)
+    changed = _tree_digests(out / "s01") != _tree_digests(NET45 / "out" / "s01")
+    record("a batch resumed after one site's config changed", rerun.returncode == 1
+           and keep == _tree_digests(out / "s00") and changed and done.returncode == 0,
+           f"rerun {rerun.returncode}, s00 identical {keep == _tree_digests(out / 's00')}, "
+           f"s01 changed {changed}, verify {done.returncode}")
+
+
+def f45_config_bom_crlf():
+    """A site config saved by a Windows editor (UTF-8 BOM and CRLF) and one saved as
+    UTF-16 ("Unicode" in Notepad): run the first to the same bytes as the original's
+    tables; the second one error line naming the config, exit 2, no folder."""
+    config = W / "b" / "bom45.toml"
+    text = (W / "b" / "site.toml").read_text()
+    config.write_bytes(b"\xef\xbb\xbf" + text.replace("\n", "\r\n").encode())
+    shutil.rmtree(W / "bom45", ignore_errors=True)
+    bom = fp("run", config, "--out", W / "bom45", "--quiet")
+    utf16 = W / "b" / "utf16_45.toml"
+    utf16.write_bytes(text.encode("utf-16"))
+    shutil.rmtree(W / "utf16_45", ignore_errors=True)
+    wide = fp("run", utf16, "--out", W / "utf16_45", "--quiet")
+    same = bom.returncode == 0 and table_digests(W / "bom45") == table_digests(W / "r0")
+    record("a site config with a BOM and CRLF, and one saved as UTF-16",
+           same and one_line(wide) and "utf16_45.toml" in wide.stderr
+           and not (W / "utf16_45").exists(),
+           f"BOM+CRLF exit {bom.returncode} same tables {same}; UTF-16 exit {wide.returncode} "
+           f"{wide.stderr.strip()[-110:]!r}")
+
+
+def f45_sites_file_bom_crlf():
+    """A network file (SITES.toml) saved with a BOM and CRLF: the batch reads it as the
+    plain one (the same sites, skipped as up to date)."""
+    _net45()
+    out = _net45_copy("sites_bom")
+    sites = NET45 / "sites_bom.toml"
+    sites.write_bytes(b"\xef\xbb\xbf" + (NET45 / "sites.toml").read_bytes()
+                      .replace(b"\n", b"\r\n"))
+    before = _tree_digests(out)
+    done = fp("batch", sites, "--quiet", "--workers", "1", "--out", out, cwd=NET45,
+              timeout=600)
+    record("a batch's network file with a BOM and CRLF", done.returncode == 1
+           and "Traceback" not in done.stderr and before == _tree_digests(out),
+           f"exit {done.returncode}, {done.stderr.strip()[-120:]!r}")
+
+
+def f45_report_out_into_results():
+    """``report R --out R`` (the result folder itself), ``--out`` another result folder
+    and ``--out`` a batch's network folder: refused in one line, exit 2, every result
+    still verified."""
+    r = fresh("rep_self")
+    other = fresh("rep_other", "r1")
+    _net45()
+    net = _net45_copy("rep_net")
+    steps = {"itself": fp("report", "--quiet", r, "--out", r),
+             "other result": fp("report", "--quiet", r, "--out", other),
+             "network": fp("report", "--quiet", r, "--out", net)}
+    checks = [verify(r).returncode, verify(other).returncode, verify(net).returncode]
+    record("report --out the result itself, another result, a network folder",
+           all(one_line(d) for d in steps.values()) and checks == [0, 0, 0],
+           "; ".join(f"{k} {d.returncode} {d.stderr.strip()[-70:]!r}" for k, d in steps.items())
+           + f"; verify after {checks}")
+
+
+def f45_run_out_into_network():
+    """``run --out`` a batch output folder, and ``batch --out`` a single result folder:
+    one line, exit 2, both folders verified unchanged."""
+    _net45()
+    net = _net45_copy("run_into_net")
+    r = fresh("batch_into_result")
+    before = _tree_digests(net)
+    into_net = fp("run", "site.toml", "--out", net, "--quiet")
+    into_result = fp("batch", "sites.toml", "--quiet", "--workers", "1", "--out", r,
+                     cwd=NET45, timeout=600)
+    checks = [verify(net).returncode, verify(r).returncode]
+    record("run --out a network folder; batch --out a result folder",
+           one_line(into_net) and one_line(into_result) and checks == [0, 0]
+           and before == _tree_digests(net),
+           f"run {into_net.returncode} {into_net.stderr.strip()[-70:]!r}; batch "
+           f"{into_result.returncode} {into_result.stderr.strip()[-70:]!r}; verify {checks}")
+
+
+def f45_verify_network_stopped():
+    """SIGTERM to ``verify`` of a network folder while it recomputes its first site:
+    exit 143, one line, its scratch folder gone, the network untouched."""
+    out, scratch, before = _net45_with_scratch("ver_stop")
+    done = stop_when(["verify", "--quiet", out], signal.SIGTERM,
+                     lambda: _entries(scratch, "fluxpart-verify-"),
+                     env=dict(ENV, TMPDIR=str(scratch)))
+    left = [p.name for p in _entries(scratch)]
+    record("SIGTERM to verify of a network folder", one_line(done, 143) and not left
+           and before == _tree_digests(out) and not leftovers(out),
+           f"exit {done.returncode}, {done.stderr.strip()[-100:]!r}, left {left}")
+
+
+def f45_verify_from_inside():
+    """``verify .`` and ``report .`` run inside the result folder, and ``verify`` of the
+    network with a trailing slash: all pass."""
+    r = fresh("inside45")
+    _net45()
+    steps = [fp("verify", "--quiet", ".", cwd=r), fp("report", "--quiet", ".", cwd=r),
+             fp("verify", "--quiet", str(NET45 / "out") + "/")]
+    record("verify . and report . inside a result; a network given with a trailing /",
+           [d.returncode for d in steps] == [0, 0, 0],
+           f"exits {[d.returncode for d in steps]} {steps[0].stderr.strip()[-80:]!r}")
+
+
+def f45_network_site_replaced_by_copy():
+    """One site folder of a network replaced by its own ``cp -r`` copy (new inode and
+    times, same bytes): verify of the network passes; by another seed's result of the
+    same site: the seal is said not to hold, naming the site."""
+    _net45()
+    out = _net45_copy("site_copy")
+    shutil.copytree(out / "s00", out / "s00.copy")
+    shutil.rmtree(out / "s00")
+    (out / "s00.copy").rename(out / "s00")
+    same = verify(out)
+    shutil.rmtree(out / "s01")
+    shutil.copytree(W / "r1", out / "s01")
+    other = verify(out)
+    record("a network site replaced by its copy, and by another run",
+           same.returncode == 0 and other.returncode == 1 and "s01" in other.stdout,
+           f"copy {same.returncode}; other run {other.returncode} "
+           f"{other.stdout.splitlines()[:1]!r:.100}")
+
+
+def f45_batch_resumed_sites_changed():
+    """A finished batch resumed after its network file changed: one site dropped (s01), one
+    added (s03). The kept site is skipped byte-identical, the new one computed, the network
+    tables hold the listed sites only, verify of the folder passes; the dropped site's folder
+    is left as it was (its files the user's), and said so."""
+    _net45()
+    out = _net45_copy("resumed_sites")
+    (NET45 / "s03").mkdir(exist_ok=True)
+    shutil.copy2(W / "b" / "tower.csv", NET45 / "s03" / "tower.csv")
+    (NET45 / "s03" / "s03.toml").write_text((NET45 / "s00" / "s00.toml").read_text()
+                                            .replace("seed = 0", "seed = 3")
+                                            .replace("Quillmoor s00", "Quillmoor s03"))
+    sites = NET45 / "sites_changed.toml"
+    sites.write_text('[batch]\nsites = ["s00/s00.toml", "s02/s02.toml", "s03/s03.toml"]\n')
+    keep = _tree_digests(out / "s00")
+    try:
+        rerun = fp("batch", sites, "--workers", "1", "--out", out, cwd=NET45, timeout=600)
+        done = verify(out)
+    finally:
+        shutil.rmtree(NET45 / "s03")
+    listed = sorted(p.name.removeprefix("site=") for p in (out / "network_annual").iterdir())
+    said = rerun.stdout + rerun.stderr
+    record("a batch resumed after its network file dropped one site and added one",
+           rerun.returncode == 1 and keep == _tree_digests(out / "s00")
+           and listed == ["s00", "s03"] and done.returncode == 0 and (out / "s01").is_dir(),
+           f"rerun {rerun.returncode}, network sites {listed}, verify {done.returncode}, s01 "
+           f"named {'s01' in said}: {[ln for ln in said.splitlines() if 's01' in ln][:1]!r:.140}")
+
+
+def f45_two_verifies_of_a_network():
+    """Two ``verify`` of one network folder at once (two auditors on a shared disk): both
+    exit 0, their scratch folders gone, the folder unchanged."""
+    out, scratch, before = _net45_with_scratch("two_verifies")
+    env = dict(ENV, TMPDIR=str(scratch))
+    procs = [start("verify", "--quiet", out, env=env) for _ in range(2)]
+    codes = [p.wait(timeout=600) for p in procs]
+    for p in procs:
+        p.communicate()
+    left = [p.name for p in scratch.iterdir()]
+    record("two verify of one network folder at once", codes == [0, 0] and not left
+           and before == _tree_digests(out) and not leftovers(out),
+           f"exits {codes}, left {left}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -4290,13 +4640,20 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_batch_scheduler_addresses, f_batch_all_or_some_fail,
           f_batch_worker_killed_every_try, f_batch_spinning_site, f_batch_key_reassigned,
           f_batch_duplicate_spellings, f_batch_verify_network_folder,
-          f_batch_worker_peak_memory]
+          f_batch_worker_peak_memory,
+          # round faults45
+          f45_failures_table_edited, f45_scheduler_empty, f45_network_copied_without_times,
+          f45_network_moved, f45_network_seal_bom_crlf, f45_other_commands_on_network,
+          f45_batch_resumed_config_changed, f45_config_bom_crlf, f45_sites_file_bom_crlf,
+          f45_report_out_into_results, f45_run_out_into_network, f45_verify_network_stopped,
+          f45_verify_from_inside, f45_network_site_replaced_by_copy,
+          f45_batch_resumed_sites_changed, f45_two_verifies_of_a_network]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
-    wanted = [a for a in sys.argv[1:] if a.startswith("f_")]
+    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
