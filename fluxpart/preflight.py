@@ -103,6 +103,12 @@ Warnings (the run goes on):
 - ``input (ustar unit)``: the nights' u* far above what the surface layer allows for the
   site's canopy in two or more months (u* in km h-1, or a wind speed mapped as u*;
   ``ustar_scale``, called from the screening stage).
+- ``input (nee density terms)``: NEE taking up CO2 in most bright records of frozen air
+  (an open-path flux without its density terms, or self-heating uncorrected;
+  ``frozen_uptake``).
+- ``input (leap day)``: a leap year's 29 February empty for exactly one day between two
+  complete days (the file stamped a year early or late, or a calendar without leap days;
+  ``leap_day``).
 - ``input (rg shaded)``: Rg of clear mornings and afternoons at the same sun height far
   apart (shaded).
 - ``input (rg dark)``: Rg missing in the dark but present by day.
@@ -145,6 +151,8 @@ from . import (
     damped_tair,
     day_sign,
     fixed_time_offsets,
+    frozen_uptake,
+    leap_day,
     nee_limits,
     nee_smoothing,
     night_uptake,
@@ -635,6 +643,15 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                              screened.index, names)
         if text:
             findings.append(Finding(vpd_zero.STAGE, text, False))
+    if {"nee", "rg", "tair"} <= set(screened.columns):
+        # uptake in bright frozen weather: an open-path flux without its density terms
+        # (round mistakes53)
+        text = frozen_uptake.frozen_daylight_uptake(screened["nee"].to_numpy(dtype=float),
+                                                    screened["rg"].to_numpy(dtype=float),
+                                                    screened["tair"].to_numpy(dtype=float),
+                                                    names)
+        if text:
+            findings.append(Finding(frozen_uptake.STAGE, text, False))
     for name in PLACEHOLDER_VARIABLES:
         # one value written into gap after gap (round mistakes26)
         if name in screened.columns:
@@ -1664,6 +1681,10 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         findings += _column_faults(screened, potential, interval_minutes, sources,
                                    is_night, frame.attrs.get("nee_written_limit"))
         findings += _gapless(frame, interval_minutes, sources)
+        # a leap day absent between complete days: stamps a year off (round mistakes53)
+        text = leap_day.missing_leap_day(frame, interval_minutes)
+        if text:
+            findings.append(Finding(leap_day.STAGE, text, False))
         if not any(finding.stage in _NEE_STEPS for finding in findings):
             findings += _fixed_time_offsets(frame, is_night, interval_minutes, sources)
     if (temperature_name in frame.columns

@@ -1086,6 +1086,27 @@ CASES.update({
         f, t.replace("latitude = 49.3", "latitude = 39.3")),
 })
 
+# round mistakes53: gains on NEE and the full density terms of an open path left out
+def open_path_without_density_terms(frame, text):
+    """Open-path NEE without the density (WPL) terms: F loses (ρc/T) H / (ρ cp) and
+    μ (ρc/ρd) E (Webb et al. 1980 (m)), 0.0485 µmol m-2 s-1 per W m-2 of sensible heat and
+    0.0093 per W m-2 of latent heat at 15 °C; H = 0.3 Rg - 15 (negative at night) and
+    LE = 0.3 Rg, a rough surface energy balance (m)."""
+    rg = frame["solar_down"].replace(MISSING, 0.0).clip(lower=0).to_numpy()
+    nee = frame["co2_exchange"].to_numpy()
+    lost = 0.0485 * (0.3 * rg - 15.0) + 0.0093 * 0.3 * rg
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(nee - lost, 3))), text
+
+
+CASES.update({
+    "NEE gain x1.2 (a wrong calibration)": lambda f, t: (
+        _scaled(f, "co2_exchange", 1.2, 3), t),
+    "NEE gain x2.0": lambda f, t: (_scaled(f, "co2_exchange", 2.0, 3), t),
+    "open-path NEE without density terms (H and LE)": open_path_without_density_terms,
+})
+
+
 def run(frame: pd.DataFrame, text: str, folder: Path):
     """The settings probe's run on ``frame`` written as the example's file in ``folder``."""
     frame.to_csv(folder / "quillmoor_grassland.csv", index=False)
