@@ -113,7 +113,8 @@ def _digit_counts(text: pd.Series) -> np.ndarray:
         return text.str.count(r"\d").to_numpy()
     lengths = text.str.len().to_numpy(dtype=np.int64)
     codes = np.frombuffer("".join(text.tolist()).encode("ascii"), dtype=np.uint8)
-    running = np.concatenate(([0], np.cumsum((codes >= 48) & (codes <= 57))))
+    running = np.zeros(codes.size + 1, dtype=np.int64)      # digits before each byte
+    np.cumsum((codes >= 48) & (codes <= 57), out=running[1:])
     ends = np.cumsum(lengths)
     return running[ends] - running[ends - lengths]
 
