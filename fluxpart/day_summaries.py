@@ -63,7 +63,7 @@ def summary_lines(stamp_text: pd.Series, cells: pd.DataFrame, time_format: str,
     text = stamp_text.astype(str).str.strip()
     if len(text) < 4 or "%H" not in time_format and "%I" not in time_format:
         return none
-    digits = text.str.count(r"\d").to_numpy()
+    digits = _digit_counts(text)
     shorter = digits < np.median(digits)
     if not shorter.any():
         return none                     # the usual file: every stamp as long as most
@@ -99,6 +99,24 @@ def summary_lines(stamp_text: pd.Series, cells: pd.DataFrame, time_format: str,
                   f"the {kinds} of the records above them"
                   + (", with a date and no time of day" if dated.any() else "")
                   + ": no record, dropped")
+
+
+def _digit_counts(text: pd.Series) -> np.ndarray:
+    """Digits in each cell of `text`: ``text.str.count(r"\\d")``, the same numbers.
+
+    Where every cell is present and ASCII (every stamp written by a logger or a
+    spreadsheet), from one array of the joined cells' bytes, 0-9 only being digits there
+    (for either regex engine pandas may use), and each cell's share of its running
+    count: one pass, not a regex search per cell. Otherwise pandas' count.
+    """
+    if text.isna().any() or not text.str.isascii().all():
+        return text.str.count(r"\d").to_numpy()
+    lengths = text.str.len().to_numpy(dtype=np.int64)
+    codes = np.frombuffer("".join(text.tolist()).encode("ascii"), dtype=np.uint8)
+    running = np.zeros(codes.size + 1, dtype=np.int64)      # digits before each byte
+    np.cumsum((codes >= 48) & (codes <= 57), out=running[1:])
+    ends = np.cumsum(lengths)
+    return running[ends] - running[ends - lengths]
 
 
 def _numbers(cells: pd.DataFrame, missing: tuple, decimal: str) -> pd.DataFrame:

@@ -97,8 +97,10 @@ def e0_stops(screened: pd.DataFrame, is_night, thresholds: pd.Series, config) ->
     calm = low_ustar(screened["ustar"].to_numpy(dtype=float), is_night, per_record)
     night = np.asarray(is_night, dtype=bool) & np.isfinite(nee) & ~calm
     first = None
-    for year in sorted(set(index.year)):
-        mine = np.asarray(index.year == year)
+    record_years = index.year.to_numpy()
+    # the distinct years as Python ints, in order: NumPy's unique, not a set of every stamp
+    for year in np.unique(record_years).tolist():
+        mine = record_years == year
         for name in names:
             temperature = screened[name].to_numpy(dtype=float)[mine]
             usable = night[mine] & np.isfinite(temperature)

@@ -1197,7 +1197,7 @@ def _e0(days, index, usable, temperature, config, nee) -> list:
     window_start = origin + pd.to_timedelta(starts, unit="D")
     window_end = origin + pd.to_timedelta(starts + config.e0_window_days, unit="D")
     findings = []
-    for year in sorted(set(index.year)):
+    for year in np.unique(index.year.to_numpy()).tolist():     # in order, as Python ints
         mine = np.asarray(centres.year == year)
         if not mine.any():
             mine = np.asarray((window_start < pd.Timestamp(year + 1, 1, 1))
@@ -1386,7 +1386,7 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     counts = pd.Series(usable_night, index=index).groupby(
         [seasons["year"].to_numpy(), seasons["season"].to_numpy()]).sum()
     findings, years = [], set()
-    all_years = sorted(set(index.year))
+    all_years = np.unique(index.year.to_numpy()).tolist()     # in order, as Python ints
     for year in all_years:
         mine = counts[counts.index.get_level_values(0) == year]
         if mine.empty or mine.max() < needed:
@@ -1708,7 +1708,8 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
         config)
     # where the threshold is known before detection (method "fixed", or the fall-back of
     # years without enough night records), the u* filter's losses are counted too
-    fixed_years = (set(index.year) if config.ustar_method == "fixed"
+    fixed_years = (set(np.unique(index.year.to_numpy()).tolist())
+                   if config.ustar_method == "fixed"
                    else fallback_years)
     with np.errstate(invalid="ignore"):
         too_calm = np.isin(index.year, list(fixed_years)) & ~(ustar >= config.ustar_threshold)

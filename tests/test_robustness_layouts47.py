@@ -215,3 +215,26 @@ def test_a_messy_file_gives_the_clean_files_tables_byte_for_byte(bundle, tmp_pat
     assert len(tables) > 10
     assert [name for name in tables if (bundle / "out" / name).read_bytes()
             != (tmp_path / "out" / name).read_bytes()] == []
+
+
+def test_the_digit_count_of_each_stamp_is_pandas_regex_count():
+    """The summary check's digits of each stamp (one pass over the joined bytes where every
+    cell is ASCII, round speed55) are those of pandas' ``str.count(r"\\d")`` (a
+    general-purpose library), for both string storages, empty and missing cells and
+    non-ASCII digits (Arabic-Indic three, Unicode category Nd)."""
+    from fluxpart.day_summaries import _digit_counts
+
+    rng = np.random.default_rng(55)
+    alphabet = np.array(list("0123456789 -:/.Tx") + ["\u0663", "\u00e9"])
+    for case in range(60):
+        pool = alphabet if case % 3 == 0 else alphabet[:17]
+        cells = ["".join(rng.choice(pool, size=rng.integers(0, 20)))
+                 for _ in range(rng.integers(1, 40))]
+        for dtype in ("str", object):
+            text = pd.Series(cells, dtype=dtype)
+            if case % 5 == 0:
+                text.iloc[0] = np.nan
+            expected = text.str.count(r"\d").to_numpy()
+            counted = _digit_counts(text)
+            assert counted.dtype == expected.dtype
+            np.testing.assert_array_equal(counted, expected)

@@ -1441,3 +1441,22 @@ def test_hidden_drivers_match_pandas_mask():
     assert all(got[name].to_numpy().flags.c_contiguous for name in got.columns)
     pd.testing.assert_frame_equal(conditions, before)           # the input untouched
     assert with_hidden(conditions, None) is conditions
+
+
+def test_held_out_records_are_counted_once_where_artificial_gaps_overlap():
+    """The records a draw of artificial gaps newly holds out (round speed55: counted draw by
+    draw) are those a whole-record count finds added, overlaps and the record's end
+    included (a count of set members; invented masks)."""
+    from fluxpart.uncertainty import _hold_out
+
+    rng = np.random.default_rng(55)
+    n = 500
+    measured = rng.random(n) < 0.6
+    mask = np.zeros(n, dtype=bool)
+    for _ in range(20):
+        lengths = rng.integers(1, 30, size=8)
+        starts = rng.integers(0, n, size=8)
+        starts[:2] = starts[0]                      # two gaps over the same records
+        before = int((mask & measured).sum())
+        added = _hold_out(mask, None, None, starts, lengths, starts, measured)
+        assert added == int((mask & measured).sum()) - before
