@@ -414,11 +414,11 @@ def tair_lag(tair, rh, vpd, interval_minutes: float, columns=None) -> str | None
             "the file")
 
 
-def _sunlit_change_scores(nee, rg, potential, shifts: dict) -> dict:
+def _change_scores(d_nee, d_rg, shifts: dict) -> dict:
     """Per key of `shifts` (key -> shift k in records): (−r, pairs), r the correlation of the
-    change of NEE from record t + k to the next with that of Rg from record t to the next,
-    over the pairs of records with the sun up at t and t + 1."""
-    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
+    change of NEE from record t + k to the next (`d_nee`) with that of Rg from record t to
+    the next (`d_rg`: :func:`_sunlit_changes` or :func:`_cloud_changes`, NaN where not
+    judged), over the pairs both present."""
     scores = {}
     for key, k in shifts.items():
         r, count = _correlation(*_shift_pairs(d_nee, d_rg, k))
@@ -602,11 +602,8 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
         return None
     nee, rg, potential = arrays
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
-    d_nee, d_cloud = _cloud_changes(nee, rg, potential)
-    scores = {}
-    for k in range(-most, most + 1):
-        r, count = _correlation(*_shift_pairs(d_nee, d_cloud, k))
-        scores[k] = (-r, count)
+    scores = _change_scores(*_cloud_changes(nee, rg, potential),
+                            {k: k for k in range(-most, most + 1)})
     found = _decide(scores)
     if found is None:
         return None
@@ -848,14 +845,15 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     months = stamps.year.to_numpy() * 12 + stamps.month.to_numpy()
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
     chosen = None
-    stretch = _stretch_scores(*_sunlit_changes(nee, rg, potential), firsts, _STRETCH_PAIRS)
+    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
+    stretch = _stretch_scores(d_nee, d_rg, firsts, _STRETCH_PAIRS)
     for m, first in enumerate(firsts.tolist()):
         after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes)
         if after is None:
             continue
         k = after[0]
         # the records before: the same record clearly better than that shift
-        head = _sunlit_change_scores(nee[:first], rg[:first], potential[:first], {0: 0, k: k})
+        head = _change_scores(d_nee[:first - 1], d_rg[:first - 1], {0: 0, k: k})
         (r_zero, n_zero), (r_k, n_k) = head[0], head[k]
         if min(n_zero, n_k) < _STRETCH_PAIRS or not (math.isfinite(r_zero)
                                                      and math.isfinite(r_k)):
@@ -942,7 +940,7 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     per_day = int(round(1440.0 / interval_minutes))
     shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
               if abs(days * per_day) < nee.size - 1}
-    scores = _sunlit_change_scores(nee, rg, potential, shifts)
+    scores = _change_scores(*_sunlit_changes(nee, rg, potential), shifts)
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None

@@ -19,8 +19,9 @@ import pytest
 from fluxpart.column_faults import (
     GAPLESS_DAYS,
     SOIL_RANGE_RATIO,
+    _best_of,
+    _change_scores,
     _decide,
-    _sunlit_change_scores,
     censored_nee,
     clear_sky_course,
     delayed_tair,
@@ -219,26 +220,64 @@ def test_clear_sky_course_is_haurwitz():
     assert clear_sky_course(1361.0 * cos_z) == pytest.approx([1037.2, 489.9, 0.0], abs=0.1)
 
 
+def cloudless_desert(seed=3):
+    """Invented cloudless days: the draws' generator, the potential radiation, Rg on
+    Haurwitz's clear-sky course and an air temperature peaking at 16:30 (the air's daily
+    maximum trails the sun's by 1-3 h, Campbell & Norman 1998, ch. 2 (m))."""
+    rng = np.random.default_rng(seed)
+    n = DAYS * PER_DAY
+    hours = (np.arange(n) % PER_DAY) * STEP / 60.0 + STEP / 120.0
+    potential = np.clip(1100.0 * np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    rg = clear_sky_course(potential) * (0.95 + rng.normal(0, 0.005, n))
+    tair = 25.0 + 10.0 * np.sin(np.pi * (hours - 10.5) / 12.0)
+    return rng, potential, rg, tair
+
+
 def test_nee_following_a_cloudless_days_temperature_is_not_named_a_lag():
     # a desert under cloudless skies (round falsealarm53: two invented deserts named "2
     # records earlier"): Rg's changes are its daily course alone, and NEE follows the air
     # temperature, whose daily maximum trails the sun's by 1-2 h (Campbell & Norman 1998,
     # ch. 2 (m)); no cloud moves light and uptake together, so the check says nothing
-    rng = np.random.default_rng(3)
-    n = DAYS * PER_DAY
-    hours = (np.arange(n) % PER_DAY) * STEP / 60.0 + STEP / 120.0
-    potential = np.clip(1100.0 * np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
-    rg = clear_sky_course(potential) * (0.95 + rng.normal(0, 0.005, n))
-    tair = 25.0 + 10.0 * np.sin(np.pi * (hours - 10.5) / 12.0)      # peak 16:30
+    rng, potential, rg, tair = cloudless_desert()
+    n = rg.size
     nee = 0.3 + 0.05 * (tair - 25.0) - 0.2 * rg / 1000.0 + rng.normal(0, 0.05, n)
-    old_basis = _decide(_sunlit_change_scores(nee, rg, potential,
-                                              {k: k for k in range(-4, 5)}))
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    old_basis = _decide(_change_scores(np.diff(nee), np.where(sunlit, np.diff(rg), np.nan),
+                                       {k: k for k in range(-4, 5)}))
     assert old_basis is not None and old_basis[0] != 0      # the daily course's false alarm
     assert nee_lag(nee, rg, potential, STEP) is None
     # the same NEE one record late under clouds is still named
     nee, rg, potential = light_record()
     late = np.concatenate([[np.nan], nee[:-1]])
     assert "1 record(s) (30 min) later" in nee_lag(late, rg, potential, STEP)
+
+
+def test_nee_following_temperature_hours_after_the_sun_is_not_named_hours_or_days_off():
+    # round clock55: the checks of hours, of a shift from a month on and of whole days keep
+    # Rg's plain sunlit changes, whose daily course alone matches an NEE that follows
+    # temperature records away (a desert's respiration, a CAM succulent's night uptake);
+    # the air's daily maximum trails the sun's by 1-3 h (Campbell & Norman 1998, ch. 2
+    # (m)). Each rejects the daily course by its own rule: a daily course repeats a day
+    # on, a passing cloud does not (the same shift a day on either side), and a whole-day
+    # shift keeps the daily course in step with NEE
+    rng, potential, rg, tair = cloudless_desert()
+    n = rg.size
+    respiration = 0.3 * np.exp(0.07 * (tair - 25.0)) + rng.normal(0, 0.05, n)
+    night_uptake = 2.0 * (potential <= 0) * np.exp(-0.5 * ((tair - 18.0) / 6.0) ** 2)
+    stamps = pd.date_range("2021-03-01", periods=n, freq=f"{STEP}min")
+    sunlit = (potential[1:] > 0) & (potential[:-1] > 0)
+    d_rg = np.where(sunlit, np.diff(rg), np.nan)
+    for nee in (respiration, respiration - night_uptake):
+        d_nee = np.diff(nee)
+        scores = {k: _change_scores(d_nee, d_rg, {0: k})[0] for k in range(-28, 29)}
+        beyond_two_hours = _decide(scores)
+        # the daily course alone: a shift of more than 2 h, many standard errors clear ...
+        assert beyond_two_hours is not None and abs(beyond_two_hours[0]) > 4
+        # ... which the same shift a day on either side matches as well
+        assert _best_of(lambda k, d=d_nee: _change_scores(d, d_rg, {0: k})[0], STEP) is None
+        assert nee_hour_shift(nee, rg, potential, STEP) is None
+        assert nee_shift_from_month(nee, rg, potential, stamps, STEP) is None
+        assert nee_day_shift(nee, rg, potential, STEP) is None
 
 
 def test_noise_that_hides_the_light_response_cannot_tell():
