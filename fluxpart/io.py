@@ -62,6 +62,7 @@ from . import (
     interleaved_lines,
     later_files,
     merged_dates,
+    page_breaks,
     record_order,
     table_formats,
     unicode_names,
@@ -87,6 +88,7 @@ from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
+from .double_byte_text import double_byte_readings
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -2795,6 +2797,11 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     # a problem in `check`, and one written right after the last value cut that value)
     if text.rstrip("\r\n").endswith("\x1a"):
         text = text.rstrip("\r\n").rstrip("\x1a")
+    text, pages = page_breaks.without_page_breaks(text)
+    if pages and warnings is not None:
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: {pages} line(s) opened by a page break (form feed, "
+            "U+000C, a paged export's) read without it"))
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)
@@ -2846,6 +2853,19 @@ def _single_byte_advice(data: bytes, start: int) -> str:
                       for word, names in same.items())
     mac = (" (its lines end in CR alone, as classic Mac OS writes them)"
            if order[0] == "mac_roman" else "")
+    line_start = max(data.rfind(b"\n", 0, start), data.rfind(b"\r", 0, start)) + 1
+    line_end = re.compile(rb"[\r\n]").search(data, start)
+    line = data[line_start:line_end.start() if line_end else len(data)][:2000]
+    east_asian = double_byte_readings(line)
+    if east_asian and len(re.sub(rb"[\x00-\x7f]", b"", line)) >= 4:
+        # names written in a Chinese or Korean locale's encoding (layouts49: refused
+        # naming Latin-1 only, whose reading of "时间" is "Ê±¼ä")
+        named = "; ".join(f"as {name!r} it reads {text!r}" for name, text in
+                          east_asian.items())
+        return ("its bytes outside ASCII there come in pairs, as Chinese and Korean "
+                f"legacy encodings write them: set [input] encoding = "
+                f"\"{next(iter(east_asian))}\" (or another) to the encoding it was written "
+                f"in: {named}; as single bytes, {shown}")
     return (f"set [input] encoding = \"{order[0]}\"{mac} (or \"{order[1]}\", \"{order[2]}\", "
             f"or \"utf-16\") to the encoding it was written in: {shown}")
 
