@@ -488,8 +488,8 @@ def test_site_latitude_out_of_range(tmp_path):
     ("path = \"tower.csv\"", "path = 3", ConfigError, r"\[input\] path = 3"),
     ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
      r"file column 't_air' is mapped twice, to tair and to ustar"),
-    ("[processing]", "[input.units]\nvpd = \"psi\"\n[processing]", UnitError,
-     r'\[input.units\] vpd = "psi".*"kPa"'),
+    ("[processing]", "[input.units]\nvpd = \"atm\"\n[processing]", UnitError,
+     r'\[input.units\] vpd = "atm".*"kPa"'),
     ("[processing]", "[input.units]\nvdp = \"kPa\"\n[processing]", ConfigError,
      r"\[input.units\] vdp.*did you mean 'vpd'"),
 ])
