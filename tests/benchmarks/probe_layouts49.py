@@ -117,27 +117,28 @@ def rg_in_kilowatts_declared(folder):
     return close_truth("rg", written, 1000.0)
 
 
-@case
-def soil_in_kelvin_beside_air_in_celsius_declared(folder):
-    """Soil temperature in kelvin (a probe's raw output), air in °C, both declared."""
+def soil_in_kelvin(folder, units):
+    """The example with its soil temperature written in kelvin, read with `units`."""
     raw, _ = table()
     present = raw["soil_c"] != "-9999"
     raw.loc[present, "soil_c"] = [f"{v + 273.15:.2f}" for v in
                                   raw.loc[present, "soil_c"].astype(float)]
     write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", units={"vpd": "kPa", "tair": "degC", "tsoil": "K"})
-    return close_truth("tsoil", raw["soil_c"], 1.0, -273.15)
+    toml(folder, "t.csv", units=units)
+    return raw["soil_c"]
+
+
+@case
+def soil_in_kelvin_beside_air_in_celsius_declared(folder):
+    """Soil temperature in kelvin (a probe's raw output), air in °C, both declared."""
+    written = soil_in_kelvin(folder, {"vpd": "kPa", "tair": "degC", "tsoil": "K"})
+    return close_truth("tsoil", written, 1.0, -273.15)
 
 
 @case
 def soil_in_kelvin_beside_air_in_celsius_undeclared(folder):
     """Twin: soil temperature in kelvin not declared (no soil is at 280 °C; refused)."""
-    raw, _ = table()
-    present = raw["soil_c"] != "-9999"
-    raw.loc[present, "soil_c"] = [f"{v + 273.15:.2f}" for v in
-                                  raw.loc[present, "soil_c"].astype(float)]
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    soil_in_kelvin(folder, None)
     return "refused"
 
 
@@ -220,22 +221,24 @@ def flag_letters_a_b_c_declared(folder):
     toml(folder, "t.csv", flag_accept=["A", "B"])
 
 
-@case
-def flag_scale_reversed_two_good_declared(folder):
-    """Flags 2 good, 0 bad (another convention), flag_accept = [2, 1]."""
+def reversed_flags(folder, **inputs):
+    """The example's flags on the other scale: 2 good, 0 bad."""
     raw, _ = table()
     raw["co2_grade"] = raw["co2_grade"].map({"0": "2", "1": "1", "2": "0"})
     write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", flag_accept=[2, 1])
+    toml(folder, "t.csv", **inputs)
+
+
+@case
+def flag_scale_reversed_two_good_declared(folder):
+    """Flags 2 good, 0 bad (another convention), flag_accept = [2, 1]."""
+    reversed_flags(folder, flag_accept=[2, 1])
 
 
 @case
 def flag_scale_reversed_two_good_undeclared(folder):
     """Twin: the default keeps flag 0 only, 25 of 17520 records (refused naming counts)."""
-    raw, _ = table()
-    raw["co2_grade"] = raw["co2_grade"].map({"0": "2", "1": "1", "2": "0"})
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv")
+    reversed_flags(folder)
     return "refused"
 
 
