@@ -133,3 +133,42 @@ def test_a_cp1252_degree_sign_is_not_named_as_a_double_byte_encoding(tmp_path):
     with pytest.raises(InputFileError, match=r'set \[input\] encoding = "latin-1"') as caught:
         _read(path)
     assert "gb18030" not in str(caught.value)
+
+
+def _flagged(tmp_path, letters, name="flags.csv"):
+    """The records with a flag column "qc": grades 0, 1, 2 in turn, written as
+    `letters`, and the flag of every fifth record a missing code."""
+    ends, values = _records()
+    grades = np.arange(len(ends)) % 3
+    cells = [letters[g] if k % 5 else "-9999" for k, g in enumerate(grades)]
+    rows = _lines([f"{e:%Y-%m-%d %H:%M}" for e in ends], values)
+    path = tmp_path / name
+    path.write_text("\n".join([rows[0] + ",qc"] + [r + "," + c for r, c in
+                                                   zip(rows[1:], cells, strict=True)]) + "\n")
+    return path, grades
+
+
+def test_flags_written_as_letters_keep_the_records_flag_accept_lists(tmp_path):
+    """Grades "A", "B", "C" with flag_accept = ["A", "B"]: the site flag is the one the
+    digits 0, 1, 2 give under flag_accept = [0, 1] (C rejects, a missing code keeps), and
+    a note counts each letter."""
+    from test_robustness_layouts26 import MAPPING
+    path, grades = _flagged(tmp_path, "ABC")
+    read, report = _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["A", "B"])
+    digits, _ = _flagged(tmp_path, "012", "digits.csv")
+    expected, _ = _read(digits, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=[0, 1])
+    pd.testing.assert_series_equal(read["nee_flag"], expected["nee_flag"])
+    assert read["nee_flag"].sum() == sum(g == 2 for k, g in enumerate(grades) if k % 5)
+    assert ("flag column(s) 'qc' written as words: 'B' in 103, 'A' in 102 record(s) kept by "
+            "[input] flag_accept, 'C' in 102 rejected") in report.notes, report.notes
+
+
+def test_letters_in_another_case_than_flag_accept_are_refused_naming_them(tmp_path):
+    """Twin: the file writes "a", "b", "c", the config lists "A", "B": no record kept, so
+    refused naming the values not listed."""
+    from test_robustness_layouts26 import MAPPING
+
+    from fluxpart.errors import ImplausibleValueError
+    path, _ = _flagged(tmp_path, "abc")
+    with pytest.raises(ImplausibleValueError, match=r"values not listed \('b' in 103, 'a' in 102, 'c' in 102\)"):
+        _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["A", "B"])

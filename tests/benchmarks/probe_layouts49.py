@@ -212,13 +212,26 @@ def dates_written_with_chinese_year_month_day(folder):
 
 
 # --------------------------------------------------------------------------- flags
+def lettered_flags(folder, letters, **inputs):
+    """The example's flags 0, 1, 2 written as the grade `letters`."""
+    raw, _ = table()
+    raw["co2_grade"] = raw["co2_grade"].map(dict(zip("012", letters, strict=True)))
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv", **inputs)
+
+
 @case
 def flag_letters_a_b_c_declared(folder):
     """Quality grades as letters (A best), flag_accept = ["A", "B"]."""
-    raw, _ = table()
-    raw["co2_grade"] = raw["co2_grade"].map({"0": "A", "1": "B", "2": "C"})
-    write(folder / "t.csv", lines(raw))
-    toml(folder, "t.csv", flag_accept=["A", "B"])
+    lettered_flags(folder, "ABC", flag_accept=["A", "B"])
+
+
+@case
+def flag_letters_in_lower_case_declared_in_upper_case(folder):
+    """Twin: the file writes "a", "b", "c", the config lists "A", "B": no record would be
+    kept (refused naming the values the flags hold)."""
+    lettered_flags(folder, "abc", flag_accept=["A", "B"])
+    return "refused"
 
 
 def reversed_flags(folder, **inputs):
