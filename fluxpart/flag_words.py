@@ -68,8 +68,8 @@ def coded(cells: pd.Series, words: tuple, missing: tuple) -> tuple[pd.Series, di
     """
     stripped = cells.str.strip()
     numbers = pd.to_numeric(stripped, errors="coerce")
-    number_codes = [float(code) for code in missing if _number(code) is not None]
-    word_codes = {str(code).strip() for code in missing if _number(code) is None}
+    number_codes = [float(code) for code in missing if finite_number(code) is not None]
+    word_codes = {str(code).strip() for code in missing if finite_number(code) is None}
     kept = ((stripped == "") | stripped.isin(word_codes) | numbers.isin(number_codes)
             | stripped.str.lower().isin({"nan", "-nan", "+nan"}))   # no value, always
     place = {word.strip(): str(k) for k, word in enumerate(words)}
@@ -81,7 +81,8 @@ def coded(cells: pd.Series, words: tuple, missing: tuple) -> tuple[pd.Series, di
                             key=lambda item: (-item[1], item[0])))
 
 
-def _number(code):
+def finite_number(code) -> float | None:
+    """`code` (a setting's number or word, a cell) as a finite float, else None."""
     try:
         value = float(code)
     except (TypeError, ValueError):
@@ -91,7 +92,7 @@ def _number(code):
 
 def is_number(text: str) -> bool:
     """Whether a flag value as written is a finite number ("2", "0.0")."""
-    return _number(text) is not None
+    return finite_number(text) is not None
 
 
 def shown(value: float, words: tuple | None, counts: dict | None = None) -> str:

@@ -108,6 +108,7 @@ from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
 from .flag_words import counts_note as flag_counts_note
+from .flag_words import finite_number
 from .flag_words import is_number as flag_is_number
 from .flag_words import shown as flag_shown
 from .joined_clocks import span_shift_minutes
@@ -1926,18 +1927,11 @@ def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list
     [2]") pointed at `flag_accept` (mistakes17: on the example site, missing = [-9999, 0]).
     A value that keeps a record cannot mean "no flag" in the flag's own column.
     """
-    def number(code):
-        try:
-            value = float(code)
-        except (TypeError, ValueError):
-            return None
-        return value if math.isfinite(value) else None
-
     if flag_are_words(flag_accept):
         return tuple(missing), []             # the words are compared before the numbers
     accepted = {float(v) for v in flag_accept}
-    kept = tuple(code for code in missing if number(code) not in accepted)
-    left_out = sorted({number(code) for code in missing} & accepted)
+    kept = tuple(code for code in missing if finite_number(code) not in accepted)
+    left_out = sorted({finite_number(code) for code in missing} & accepted)
     return kept, left_out
 
 
