@@ -62,6 +62,7 @@ from . import (
     interleaved_lines,
     later_files,
     merged_dates,
+    page_breaks,
     record_order,
     table_formats,
     unicode_names,
@@ -87,6 +88,7 @@ from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
 from .config import Config, setting_text, suggest_key
+from .double_byte_text import double_byte_readings
 from .errors import (
     ConfigError,
     DuplicateTimestampError,
@@ -102,6 +104,13 @@ from .errors import (
     read_fault_remedy,
 )
 from .fixed_width import delimited, fused_header_names, run_together_field
+from .flag_words import accept_codes as flag_accept_codes
+from .flag_words import are_words as flag_are_words
+from .flag_words import coded as flag_word_codes
+from .flag_words import counts_note as flag_counts_note
+from .flag_words import finite_number
+from .flag_words import is_number as flag_is_number
+from .flag_words import shown as flag_shown
 from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
@@ -920,6 +929,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     interval_minutes = _check_interval(interval_minutes)
     flag_accept = _check_flag_accept(flag_accept)
     flag_missing, exempted = _flag_missing_codes(missing, flag_accept)
+    words = flag_accept if flag_are_words(flag_accept) else None
+    word_counts: dict = {}                    # flag value written -> records, all files
     accept_units = _check_accept_units(accept_units)
     missing_by_variable = _check_missing_by_variable(missing_by_variable or {}, columns)
     other_names = _check_other_names(other_names or {}, columns, time_columns)
@@ -960,6 +971,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                               rows_after_header=rows_after_header, time_zone=time_zone,
                               utc_offset=utc_offset, warnings=warnings,
                               may_lack=len(paths) > 1, flag_missing=flag_missing,
+                              flag_words=words, flag_word_counts=word_counts,
                               time_marks=time_marks, site=site,
                               missing_by_variable=missing_by_variable,
                               code_cells=code_cells, column_widths=column_widths,
@@ -1196,9 +1208,20 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         if joined:
             raise TimestampError(joined)
     flag_rejected, flag_rejected_with_nee = 0, None
+    if flag_columns and word_counts:
+        numbers = [value for value in word_counts if flag_is_number(value)]
+        if len(numbers) == len(word_counts):
+            # words listed for a column of numbers: every record would be rejected
+            raise ConfigError(
+                f"[input] flag_accept = {setting_text(list(flag_accept))} lists words, but "
+                f"the flag column(s) {', '.join(repr(c) for c in flag_columns)} hold numbers "
+                f"only ({', '.join(numbers[:6])}): list the numbers that keep a record, "
+                "e.g. flag_accept = [0, 1]")
+        warnings.append(ReaderNote(flag_counts_note(flag_columns, word_counts, words)))
     if flag_columns:
         flags = [combined["values"][_flag_key(column)] for column in flag_columns]
-        converted["nee_flag"] = _combine_flags(flags, flag_accept)
+        converted["nee_flag"] = _combine_flags(
+            flags, flag_accept_codes(words) if words else flag_accept)
         flag_rejected = int(np.nansum(converted["nee_flag"]))
         flag_rejected_with_nee = int(np.sum((converted["nee_flag"] == 1)
                                             & np.isfinite(converted["nee"])))
@@ -1216,7 +1239,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             f"NEE value ({100 * (flag_rejected_with_nee / judged):.0f} %) are "
                             "rejected by "
                             f"{' + '.join(flag_columns)} with [input] flag_accept = "
-                            f"{list(flag_accept)}; the flags hold {[f'{v:g}' for v in flag_values]}: "
+                            f"{list(flag_accept)}; the flags hold "
+                            f"{[flag_shown(v, words, word_counts) for v in flag_values]}: "
                             "check which values mean a good record")
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
@@ -1236,7 +1260,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             raise ImplausibleValueError(
                 f"nee_flag: every record with a value in {source_of['nee']!r} is rejected by "
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
-                f"the flags hold {[f'{v:g}' for v in flag_values]}: set [input] flag_accept to "
+                f"the flags hold {[flag_shown(v, words, word_counts) for v in flag_values]}: set [input] "
+                "flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
         # judged over the records with an NEE value (review41: a flag that marks every
         # record without NEE bad, as many processing programs write it, at a tower whose
@@ -1250,7 +1275,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # frame's flag (unit_checks.frame_refusal), the reader now does too
             raise ImplausibleValueError(_flag_scale_message(
                 [combined["values"][_flag_key(c)][with_nee] for c in flag_columns],
-                flag_columns, flag_accept, flag_rejected_with_nee, judged_nee))
+                flag_columns, flag_accept, flag_rejected_with_nee, judged_nee, words,
+                word_counts))
 
     order = [name for name in VARIABLES if name in converted]
     frame = pd.DataFrame({name: converted[name].astype(np.float64) for name in order},
@@ -1872,11 +1898,17 @@ def _check_interval(value):
 def _check_flag_accept(value) -> tuple:
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         value = [value]
+    if isinstance(value, str):
+        value = [value]
+    if isinstance(value, (list, tuple)) and value and all(
+            isinstance(v, str) and v.strip() for v in value):
+        # flags written as words or grade letters (layouts49; refused before)
+        return tuple(v.strip() for v in value)
     if isinstance(value, (list, tuple)) and any(isinstance(v, str) for v in value):
-        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: flag values are "
-                          "numbers (the flag columns are read as numbers); recode text "
-                          "flags as numbers in a copy of the file and list the ones that "
-                          "keep a record, e.g. flag_accept = [0, 1]")
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)}: list the flag "
+                          "values that keep a record as numbers or as words, not both "
+                          "(a flag column holds one kind), e.g. flag_accept = [0, 1] or "
+                          "flag_accept = [\"OK\"]")
     if (not isinstance(value, (list, tuple)) or not value
             or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v)
                    for v in value)):
@@ -1895,16 +1927,11 @@ def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list
     [2]") pointed at `flag_accept` (mistakes17: on the example site, missing = [-9999, 0]).
     A value that keeps a record cannot mean "no flag" in the flag's own column.
     """
-    def number(code):
-        try:
-            value = float(code)
-        except (TypeError, ValueError):
-            return None
-        return value if math.isfinite(value) else None
-
+    if flag_are_words(flag_accept):
+        return tuple(missing), []             # the words are compared before the numbers
     accepted = {float(v) for v in flag_accept}
-    kept = tuple(code for code in missing if number(code) not in accepted)
-    left_out = sorted({number(code) for code in missing} & accepted)
+    kept = tuple(code for code in missing if finite_number(code) not in accepted)
+    left_out = sorted({finite_number(code) for code in missing} & accepted)
     return kept, left_out
 
 
@@ -2795,6 +2822,11 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     # a problem in `check`, and one written right after the last value cut that value)
     if text.rstrip("\r\n").endswith("\x1a"):
         text = text.rstrip("\r\n").rstrip("\x1a")
+    text, pages = page_breaks.without_page_breaks(text)
+    if pages and warnings is not None:
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: {pages} line(s) opened by a page break (form feed, "
+            "U+000C, a paged export's) read without it"))
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)
@@ -2846,6 +2878,19 @@ def _single_byte_advice(data: bytes, start: int) -> str:
                       for word, names in same.items())
     mac = (" (its lines end in CR alone, as classic Mac OS writes them)"
            if order[0] == "mac_roman" else "")
+    line_start = max(data.rfind(b"\n", 0, start), data.rfind(b"\r", 0, start)) + 1
+    line_end = re.compile(rb"[\r\n]").search(data, start)
+    line = data[line_start:line_end.start() if line_end else len(data)][:2000]
+    east_asian = double_byte_readings(line)
+    if east_asian and len(re.sub(rb"[\x00-\x7f]", b"", line)) >= 4:
+        # names written in a Chinese or Korean locale's encoding (layouts49: refused
+        # naming Latin-1 only, whose reading of "时间" is "Ê±¼ä")
+        named = "; ".join(f"as {name!r} it reads {text!r}" for name, text in
+                          east_asian.items())
+        return ("its bytes outside ASCII there come in pairs, as Chinese and Korean "
+                f"legacy encodings write them: set [input] encoding = "
+                f"\"{next(iter(east_asian))}\" (or another) to the encoding it was written "
+                f"in: {named}; as single bytes, {shown}")
     return (f"set [input] encoding = \"{order[0]}\"{mac} (or \"{order[1]}\", \"{order[2]}\", "
             f"or \"utf-16\") to the encoding it was written in: {shown}")
 
@@ -4144,7 +4189,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                   warnings, may_lack=False, flag_missing=None, time_marks=None, site=None,
                   missing_by_variable=None, code_cells=None, column_widths=(),
                   other_names=None, renamed_in=None, first_header=None, later_notes=None,
-                  note_mark=None) -> dict:
+                  note_mark=None, flag_words=None, flag_word_counts=None) -> dict:
     """:func:`_read_file` of the file's decoded `text`."""
     if not column_widths:
         # a large file of finer records refused from samples, not after a parse of
@@ -4386,6 +4431,12 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                 f"on line {int(lines[first_fortran])} of its file): read as E")
         codes = flag_missing if (flag_missing is not None and name in flag_keys) else missing
         codes = tuple(codes) + tuple(missing_by_variable.get(name, ()))
+        if flag_words is not None and name in flag_keys:
+            # flags written as words, read as their codes (layouts49)
+            raw[column], written_words = flag_word_codes(raw[column], flag_words, codes)
+            for value, count in written_words.items():
+                if flag_word_counts is not None:
+                    flag_word_counts[value] = flag_word_counts.get(value, 0) + count
         numbers, n_missing, absurd = _numbers(raw[column], column, name, codes, decimal,
                                               source, lines, comma_file)
         if judged and name not in flag_keys:
@@ -5167,7 +5218,8 @@ def _boundary_shift(parts: list, stamp: pd.Timestamp) -> str:
 
 
 def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: int,
-                        judged: int) -> str:
+                        judged: int, words: tuple | None = None,
+                        word_counts: dict | None = None) -> str:
     """The refusal where the site flag rejects nearly every record, naming both readings.
 
     A flag of the other scale (2 or 1 for a good record, 0 for a bad one) under
@@ -5186,6 +5238,10 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
         ``[input] flag_accept`` [-].
     rejected, judged : int
         Records with an NEE value the flags reject, and those with a flag [-].
+    words : tuple of str, optional
+        `flag_accept` where it lists words: the flags are their codes
+        (:mod:`fluxpart.flag_words`), named as the words; `word_counts` (value written
+        -> records) names the values not listed.
 
     Returns
     -------
@@ -5200,7 +5256,7 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     held = np.concatenate([f[np.isfinite(f)] for f in flags])
     values, counts = np.unique(held, return_counts=True)
     order = np.argsort(-counts, kind="stable")[:6]
-    shown = ", ".join(f"{values[i]:g} in {counts[i]}" for i in order)
+    shown = ", ".join(f"{flag_shown(values[i], words, word_counts)} in {counts[i]}" for i in order)
     return (f"nee_flag: {rejected} of {judged} records with an NEE value "
             f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with "
             f"[input] flag_accept = {list(flag_accept)} "
@@ -5840,9 +5896,11 @@ def _numbers(text: pd.Series, column: str, name: str, missing: tuple, decimal: s
                     "in a copy of the file and map the value (and the flag, e.g. nee_flag)")
         elif name.startswith("nee_flag"):
             # a missing flag rejects nothing, so "add it to missing" would keep bad records
-            hint = ("; site flags must be numbers (a record is kept where its flag is in "
-                    "[input] flag_accept): recode text flags as numbers in a copy of the file "
-                    f"(listing {cell!r} in [input] missing would keep those records)")
+            hint = ("; a record is kept where its flag is in [input] flag_accept: list the "
+                    f"words that keep a record there (flag_accept = [{cell.strip()!r}] if "
+                    f"{cell.strip()!r} means a good record; words or numbers, not both), or "
+                    "recode the flags as numbers in a copy of the file (listing "
+                    f"{cell!r} in [input] missing would keep those records)")
         else:
             hint = f"; if {cell!r} marks missing data, add it to [input] missing"
         raise InputFileError(f"column {column!r} ({name.split(':')[0]}): line "

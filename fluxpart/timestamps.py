@@ -52,6 +52,7 @@ from .stamp_places import (
     zone_offset,
 )
 from .zero_seconds import zero_tails
+from .zone_suffixes import zone_suffixes
 
 __all__ = [
     "INTERVALS_MINUTES",
@@ -1439,6 +1440,21 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         # (m); pandas reads only upper case
         text = (text.str.replace(r"(?<=\d)t(?=\d)", "T", regex=True)
                 .str.replace(r"(?<=\d)z$", "Z", regex=True))
+    if time_format.upper() == "ISO8601" or time_format.endswith("%z"):
+        # RFC 9557's zone after the offset, "+02:00[Europe/Berlin]": read by the offsets
+        # where they are the zone's (layouts49; refused before as not matching the format)
+        text, zones, at, problem = zone_suffixes(text)
+        if problem:
+            raise TimestampError(
+                f"{_time_setting(time_columns)}: {_where(source, lines, at)} has stamp "
+                f"{as_written.iloc[at]!r}: {problem}, so the stamp states two times (RFC "
+                "9557); write each stamp's offset as its zone has it, or leave out the "
+                "zone in brackets, in a copy of the file")
+        if zones:
+            notes.append(ReaderNote(
+                f"{_time_setting(time_columns)} of {source!r}: the stamps name their time "
+                f"zone after the UTC offset ({', '.join(f'[{zone}]' for zone in zones)}, "
+                "RFC 9557), each offset the zone's at that instant: read by the offsets"))
     if time_format.endswith("Z") and ends_in_utc_z(time_format) and time_zone is None:
         time_format = time_format[:-1] + "%z"       # "...%SZ": the Z of UTC, not a letter
     with_offset = _carries_offset(text, time_format)

@@ -495,11 +495,15 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
              f"running mean of {mean_of[0]} records by {mean_of[1]:.2g} per record "
              "averaged, below the random error of any flux record in µmol m-2 s-1")
     per_record = 1e6 / CARBON_MOLAR_MASS / (interval_minutes * 60.0)
+    # mmol m-2 s-1 is named where it can be: 99 % of values within the NEE range's bound
+    # (100 µmol m-2 s-1) read as mmol (round layouts49)
+    millimoles = (", or nee = \"mmol m-2 s-1\" if it is in mmol m-2 s-1 (1000 times "
+                  "smaller)" if p99 <= READER_VARIABLES["nee"].maximum / 1000.0 else "")
     text = (f"column {columns['nee']!r} (nee, read as µmol m-2 s-1): {found}; the values look "
             "too small for µmol m-2 s-1: set [input.units] nee = \"mg CO2 m-2 s-1\" if the "
             "file is in mg CO2 m-2 s-1 (22.7 times smaller), or nee = \"g C m-2\" if it holds "
-            f"g C m-2 per {interval_minutes}-minute record ({per_record:.3g} times smaller) (or "
-            "list nee in [input] accept_units to keep the values as they are)")
+            f"g C m-2 per {interval_minutes}-minute record ({per_record:.3g} times smaller)"
+            f"{millimoles} (or list nee in [input] accept_units to keep the values as they are)")
     active = _active(converted, 5.0)
     nee_active = None if active is None else nee[active & np.isfinite(nee)]
     # Under warm, bright conditions an ecosystem's exchange together with the random

@@ -121,6 +121,13 @@ PPFD_PER_RG = 0.46 * 4.57
 #: global radiation are in it (a solar constant near 1.95 ly min-1 (m)).
 LANGLEY_PER_MINUTE = 4.184 * 1e4 / 60.0
 
+#: Hectopascals per pound-force per square inch and per conventional inch of mercury
+#: (NIST SP 811 (2008), appendix B.8: 1 psi = 6.894757E+03 Pa, 1 inHg = 3.386389E+03 Pa
+#: (m)); some North American greenhouse and weather-station loggers write pressures and
+#: vapour pressure deficits in them (round layouts49).
+HPA_PER_PSI = 68.94757
+HPA_PER_INHG = 33.86389
+
 # unit spelling -> (scale, offset) such that canonical = value * scale + offset
 _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
                 "K": (1.0, -KELVIN_OFFSET), "kelvin": (1.0, -KELVIN_OFFSET),
@@ -133,7 +140,12 @@ _TEMPERATURE = {"°C": (1.0, 0.0), "degC": (1.0, 0.0), "C": (1.0, 0.0),
 _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
     "nee": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
             "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0),
-            "g C m-2": (1e6 / CARBON_MOLAR_MASS, 0.0)},
+            "g C m-2": (1e6 / CARBON_MOLAR_MASS, 0.0),
+            # a thousand µmol (SI prefixes), and a mass flux of CO2 in micrograms: one
+            # µmol of CO2 weighs CO2_MOLAR_MASS µg (round layouts49)
+            "mmol m-2 s-1": (1000.0, 0.0),
+            "µg CO2 m-2 s-1": (1.0 / CO2_MOLAR_MASS, 0.0),
+            "ug CO2 m-2 s-1": (1.0 / CO2_MOLAR_MASS, 0.0)},
     "rg": {"W m-2": (1.0, 0.0), "W/m2": (1.0, 0.0), "kW m-2": (1000.0, 0.0),
            "MJ m-2": (1e6, 0.0),
            # calories per cm2 and minute, old actinographs' and pyranometer records' unit:
@@ -143,7 +155,8 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
            "ly min-1": (LANGLEY_PER_MINUTE, 0.0)},
     "tair": _TEMPERATURE,
     "tsoil": _TEMPERATURE,
-    "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0)},
+    "vpd": {"hPa": (1.0, 0.0), "mbar": (1.0, 0.0), "kPa": (10.0, 0.0), "Pa": (0.01, 0.0),
+            "psi": (HPA_PER_PSI, 0.0), "inHg": (HPA_PER_INHG, 0.0)},
     # centimetres per second: some sonic programs and older records write u* so
     # (1 cm s-1 = 0.01 m s-1, SI; layouts34: refused with no unit to declare)
     "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0), "cm s-1": (0.01, 0.0)},

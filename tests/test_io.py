@@ -452,14 +452,15 @@ def test_setting_in_another_table_is_named_with_its_table(tmp_path, where, line,
 
 
 @pytest.mark.parametrize(("where", "line", "pattern"), [
-    ("input", 'flag_accept = ["OK"]', r"flag values are numbers .* recode text flags"),
+    ("input", 'flag_accept = [0, "OK"]', r"as numbers or as words, not both"),
     ("columns", 'tsoil = ["t_soil_5", "t_soil_10"]',
      r"expected one column name; only nee_flag takes a list of columns")])
 def test_text_flag_values_and_a_list_for_one_variable_say_why(tmp_path, where, line,
                                                                pattern):
     """flag_accept = ["OK"] was refused as "expected a list of the flag values" (it is
     one), and a list of two columns for one variable as "expected a non-empty string";
-    each now says what the setting takes (review round seven)."""
+    each now says what the setting takes (review round seven). Since layouts49 a list of
+    words is read (flags written as words); a list mixing numbers and words is named."""
     if where == "input":
         path = _site_toml(tmp_path, body_input=line)
     else:
@@ -488,8 +489,8 @@ def test_site_latitude_out_of_range(tmp_path):
     ("path = \"tower.csv\"", "path = 3", ConfigError, r"\[input\] path = 3"),
     ("ustar = \"u_fric\"", "ustar = \"t_air\"", ConfigError,
      r"file column 't_air' is mapped twice, to tair and to ustar"),
-    ("[processing]", "[input.units]\nvpd = \"psi\"\n[processing]", UnitError,
-     r'\[input.units\] vpd = "psi".*"kPa"'),
+    ("[processing]", "[input.units]\nvpd = \"atm\"\n[processing]", UnitError,
+     r'\[input.units\] vpd = "atm".*"kPa"'),
     ("[processing]", "[input.units]\nvdp = \"kPa\"\n[processing]", ConfigError,
      r"\[input.units\] vdp.*did you mean 'vpd'"),
 ])

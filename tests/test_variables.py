@@ -95,8 +95,8 @@ def test_canonical_unit_is_identity_and_copies():
 
 def test_unknown_unit_lists_accepted():
     """An unknown unit raises UnitError naming the setting and the accepted units."""
-    with pytest.raises(UnitError, match=r'\[input.units\] vpd = "psi".*"hPa".*"kPa"'):
-        to_canonical([1.0], "vpd", "psi")
+    with pytest.raises(UnitError, match=r'\[input.units\] vpd = "atm".*"hPa".*"kPa"'):
+        to_canonical([1.0], "vpd", "atm")
     assert "K" in units_for("tair")
 
 
