@@ -4238,7 +4238,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
-    merged = merged_dates.filled_down(raw, time_columns)
+    merged = merged_dates.filled_down(raw, time_columns, time_format)
     if merged is not None:
         # a date on each day's first record only (merged cells; layouts48: refused before,
         # naming a stamp without its date)

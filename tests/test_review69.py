@@ -1,0 +1,85 @@
+"""Defects found by the review69 round in the session's first merges (invented data only).
+
+Each test fails on the code before its fix. Outside facts, each named beside its check: a
+spreadsheet saves a merged cell's value in its first cell only (ECMA-376 part 1,
+``mergeCell`` (m)); the times of one calendar day run forwards from 00:00 (ISO 8601-1,
+the time of day (m)); a Dask address is ``scheme://host:port`` with no blank (Dask
+distributed documentation, "Communications" (m)). Everything else is invented known
+truth: the records as written.
+"""
+from __future__ import annotations
+
+import pandas as pd
+import pytest
+from test_robustness_layouts26 import NAMES, _read, _records  # invented records, 1-8 June 2021
+
+from fluxpart import batch
+from fluxpart.cli import main
+from fluxpart.errors import ConfigError, NonMonotonicTimestampError, TimestampError
+
+
+def _date_where_it_changes(path, starts, values, left_out=None, date_of=None):
+    """The records with the date on the first record under each date only (`left_out`:
+    a date never written; `date_of`: the date each record is filed under)."""
+    date_of = starts.normalize() if date_of is None else date_of
+    first = ~pd.Series(date_of).duplicated().to_numpy()
+    rows = [",".join(["day", "clock"] + NAMES)]
+    for s, d, f, row in zip(starts, date_of, first, values, strict=True):
+        day = f"{d:%Y-%m-%d}" if f and f"{d:%Y-%m-%d}" != left_out else ""
+        rows.append(",".join([day, f"{s:%H:%M}"] + [f"{v:g}" for v in row]))
+    path.write_text("\n".join(rows) + "\n")
+
+
+def test_a_left_out_date_after_a_half_day_is_not_filled_with_the_day_before(tmp_path):
+    """1 June from noon, 2 June until 11:00 and its date never written, 3-8 June whole:
+    under 1 June's date no clock repeats, but the clock turns back to 00:00 before the
+    date's last record. It was filled with 1 June and refused as "every record ending at
+    midnight seems dated with the day it ends", a wrong cause; now nothing is filled and
+    the refusal names the date column written only where it changes, as before
+    layouts48."""
+    ends, values = _records()
+    starts = ends - pd.Timedelta("30min")
+    keep = (starts >= "2021-06-01 12:00") & ~((starts >= "2021-06-02 11:30")
+                                              & (starts < "2021-06-03"))
+    path = tmp_path / "sheet.csv"
+    _date_where_it_changes(path, starts[keep], values[keep], left_out="2021-06-02")
+    with pytest.raises(TimestampError, match=r"column 'day' is empty on .* written only "
+                       r"where it changes") as caught:
+        _read(path, time_column=["day", "clock"], time_marks="start")
+    assert "midnight" not in str(caught.value)
+    # the whole file with every date written where it changes is still filled down
+    _date_where_it_changes(path, starts[keep], values[keep])
+    read, report = _read(path, time_column=["day", "clock"], time_marks="start")
+    assert read.index[0] == pd.Timestamp("2021-06-01 12:00") and len(read) == 360
+    assert any("filled down on" in n for n in report.notes), report.notes
+
+
+def test_midnight_filed_under_the_day_it_ends_keeps_its_own_refusal(tmp_path):
+    """Interval ends with 00:00 under the date of the day it closes (each date's last
+    record): the turn back is at a date's last record only, so the dates are filled and
+    the refusal names midnight dated with the day it ends, as layouts48 left it."""
+    ends, values = _records()
+    path = tmp_path / "sheet.csv"
+    _date_where_it_changes(path, ends, values,
+                           date_of=(ends - pd.Timedelta("30min")).normalize())
+    with pytest.raises(NonMonotonicTimestampError, match="midnight"):
+        _read(path, time_column=["day", "clock"], time_marks="end")
+
+
+def test_blanks_around_a_scheduler_address_are_not_part_of_it(tmp_path, monkeypatch):
+    """``--scheduler " tcp://HOST:PORT"`` was refused as an "unknown address scheme
+    ' tcp'" while a trailing blank was taken: the address is asked for without them."""
+    asked = []
+
+    def refuse(address, seconds=None):
+        asked.append(address)
+        raise ConfigError("stop here")
+
+    monkeypatch.setattr(batch, "check_scheduler", refuse)
+    (tmp_path / "tower.toml").write_text("[site]\n")
+    sites = tmp_path / "SITES.toml"
+    sites.write_text('[batch]\nsites = ["tower.toml"]\nout = "net"\n')
+    for address in (" tcp://127.0.0.1:8786", "tcp://127.0.0.1:8786 \t"):
+        assert main(["batch", str(sites), "--scheduler", address]) == 2
+    assert asked == ["tcp://127.0.0.1:8786"] * 2
+    assert not (tmp_path / "net").exists()
