@@ -2748,7 +2748,8 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
             warnings.append(ReaderNote(
                 f"input file {str(path)!r}: a zip archive of {len(names)} tables with the "
                 f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
-                "in the order of their names (line numbers count the joined text)"))
+                "in the order of their names, digits as numbers (line numbers count the joined "
+                "text)"))
     data = _decompressed(data, path)
     typed = typed or {}
     kind = table_formats.binary_kind(data)

@@ -15,7 +15,12 @@ from test_robustness_layouts26 import NAMES, _read, _records  # invented records
 
 from fluxpart import batch
 from fluxpart.cli import main
-from fluxpart.errors import ConfigError, NonMonotonicTimestampError, TimestampError
+from fluxpart.errors import (
+    ConfigError,
+    InputFileError,
+    NonMonotonicTimestampError,
+    TimestampError,
+)
 
 
 def _date_where_it_changes(path, starts, values, left_out=None, date_of=None):
@@ -83,3 +88,49 @@ def test_blanks_around_a_scheduler_address_are_not_part_of_it(tmp_path, monkeypa
         assert main(["batch", str(sites), "--scheduler", address]) == 2
     assert asked == ["tcp://127.0.0.1:8786"] * 2
     assert not (tmp_path / "net").exists()
+
+
+def _zip_of_days(path, name_of, title_of=None, days=6):
+    """The records as one CSV a day (`name_of(k, day)`, k from 1), each under the header
+    and, where given, a title line `title_of(day)`, in one zip."""
+    import io
+    import zipfile
+
+    ends, values = _records(48 * days)
+    day = (ends - pd.Timedelta("30min")).normalize()
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as archive:
+        for k, d in enumerate(sorted(set(day)), start=1):
+            rows = ([title_of(d)] if title_of else []) + [",".join(["stamp"] + NAMES)]
+            rows += [",".join([f"{e:%Y-%m-%d %H:%M}"] + [f"{v:g}" for v in row])
+                     for e, row in zip(ends[day == d], values[day == d], strict=True)]
+            archive.writestr(name_of(k, d), "\n".join(rows) + "\n")
+    path.write_bytes(buffer.getvalue())
+    return ends
+
+
+def test_a_zip_of_days_numbered_without_leading_zeros_is_joined_in_their_order(tmp_path):
+    """day1.csv ... day12.csv: joined in the order of the names as text (day1, day10,
+    day11, day12, day2, ...) the records came out of time order (read with a note of
+    three days out of order, the note naming 'day1' to 'day9'); the digits are now
+    compared as numbers, so the days join in time order."""
+    path = tmp_path / "card.zip"
+    ends = _zip_of_days(path, lambda k, d: f"card/day{k}.csv", days=12)
+    read, report = _read(path)
+    assert read.index[-1] == ends[-1] - pd.Timedelta("30min") and len(read) == len(ends)
+    assert any("('card/day1.csv' to 'card/day12.csv')" in n for n in report.notes), \
+        report.notes
+    assert not any("out of time order" in n for n in report.notes), report.notes
+
+
+def test_a_zip_of_days_whose_title_line_names_the_day_names_both_lines(tmp_path):
+    """A title line with each file's date above one header: refused as before (the
+    files open with different lines), now showing both first lines, not "opens with
+    another line ... a changed header?" of a header that is the same."""
+    path = tmp_path / "card.zip"
+    _zip_of_days(path, lambda k, d: f"mast_{d:%Y%m%d}.csv",
+                 lambda d: f"Quillmoor mast, {d:%Y-%m-%d}")
+    with pytest.raises(InputFileError, match=r"'mast_20210602.csv' opens with 'Quillmoor "
+                       r"mast, 2021-06-02' where 'mast_20210601.csv' opens with 'Quillmoor "
+                       r"mast, 2021-06-01'; .* a title line"):
+        _read(path, rows_before_header=1)
