@@ -134,3 +134,23 @@ def test_a_zip_of_days_whose_title_line_names_the_day_names_both_lines(tmp_path)
                        r"mast, 2021-06-02' where 'mast_20210601.csv' opens with 'Quillmoor "
                        r"mast, 2021-06-01'; .* a title line"):
         _read(path, rows_before_header=1)
+
+
+def test_a_missing_leap_day_names_a_daily_file_left_out_beside_the_calendar():
+    """A logger writing one file a day whose 29 February 2024 file was not read leaves
+    exactly the trace of a calendar without leap days (one empty day between complete
+    ones); the warning named the calendar alone. The Gregorian rule (Python's
+    calendar.isleap, ISO 8601-1 (m)) makes 2024 a leap year."""
+    import calendar
+
+    import numpy as np
+
+    from fluxpart.leap_day import missing_leap_day
+
+    assert calendar.isleap(2024)
+    index = pd.date_range("2024-02-01", "2024-03-31 23:30", freq="30min")
+    frame = pd.DataFrame({"nee": np.random.default_rng(69).normal(1.0, 0.5, len(index))},
+                         index=index)
+    text = missing_leap_day(frame[frame.index.normalize() != "2024-02-29"], 30.0)
+    assert "29 February 2024" in text and "2023 or 2025" in text
+    assert "that day's file left out where a logger writes one file a day" in text
