@@ -154,3 +154,22 @@ def test_a_missing_leap_day_names_a_daily_file_left_out_beside_the_calendar():
     text = missing_leap_day(frame[frame.index.normalize() != "2024-02-29"], 30.0)
     assert "29 February 2024" in text and "2023 or 2025" in text
     assert "that day's file left out where a logger writes one file a day" in text
+
+
+def test_a_day_fraction_beside_a_cell_that_is_no_whole_day_count_is_not_summed(tmp_path):
+    """Under "days since 1899-12-30" a date cell written as a date ("2021-06-01") beside a
+    day fraction was read as the day count "01" (its last digits: the pattern searched,
+    not matched whole), the records put in 1899-12-31 to 1900-01-07 with a note of "a
+    whole day count"; "44348.0" gave the day "0". Both are now no day count and the
+    stamps are refused as no number of the format. Spreadsheet day numbers count from
+    1899-12-30 (ECMA-376 part 1, 18.17.4 (m))."""
+    ends, values = _records()
+    days = (ends - pd.Timestamp("1899-12-30")) / pd.Timedelta("1D")
+    whole = (days + 1e-9).astype(int)
+    path = tmp_path / "sheet.csv"
+    for day_of in (lambda e, w: f"{e:%Y-%m-%d}", lambda e, w: f"{w}.0"):
+        path.write_text("\n".join([",".join(["day", "clock"] + NAMES)] + [
+            ",".join([day_of(e, w), f"{d - w:.6f}"] + [f"{v:g}" for v in row])
+            for e, w, d, row in zip(ends, whole, days, values, strict=True)]) + "\n")
+        with pytest.raises(TimestampError, match=r"which is no number of time_format"):
+            _read(path, time_column=["day", "clock"], time_format="days since 1899-12-30")
