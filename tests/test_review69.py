@@ -173,3 +173,24 @@ def test_a_day_fraction_beside_a_cell_that_is_no_whole_day_count_is_not_summed(t
             for e, w, d, row in zip(ends, whole, days, values, strict=True)]) + "\n")
         with pytest.raises(TimestampError, match=r"which is no number of time_format"):
             _read(path, time_column=["day", "clock"], time_format="days since 1899-12-30")
+
+
+def test_an_error_in_one_verify_leaves_another_verifys_scratch_folder(tmp_path, monkeypatch):
+    """faults45's scratch folder removed every folder of the process's id on any
+    exception, so an error in one verify (a caller verifying sites in threads) deleted
+    another's scratch folder in use; a stop (KeyboardInterrupt, the command line's
+    signals) still removes them all (Python's exception hierarchy: KeyboardInterrupt is no
+    Exception (m))."""
+    import tempfile
+
+    from fluxpart import verify
+
+    monkeypatch.setattr(tempfile, "tempdir", str(tmp_path))
+    with verify.scratch_folder() as other:
+        with pytest.raises(ValueError), verify.scratch_folder() as mine:
+            (mine / "table.parquet").write_bytes(b"x")
+            raise ValueError("a rerun's error")
+        assert other.is_dir() and not mine.exists()
+        with pytest.raises(KeyboardInterrupt), verify.scratch_folder():
+            raise KeyboardInterrupt
+        assert not other.exists()
