@@ -14,9 +14,8 @@ run forwards up to the last of them (a day's date left out after a day begun or 
 short mid-day repeats no clock but turns back to the small hours, and the filled stamps
 were refused as "midnight dated with the day it ends", review69; a turn at the last
 record alone is that midnight written as 00:00, and left to its own refusal). The dates
-are then filled down
-(:func:`filled_down`); else nothing is filled and the stamps without a date are refused
-as before, naming one. The stamp checks that follow still refuse a repeated or
+are then filled down (:func:`filled_down`); else nothing is filled and the stamps without
+a date are refused as before, naming one. The stamp checks that follow still refuse a repeated or
 disordered stamp (round layouts48).
 """
 from __future__ import annotations
