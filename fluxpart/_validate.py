@@ -343,8 +343,8 @@ def joined_zip_tables(data: bytes) -> tuple[bytes, list] | None:
 
 
 def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
-    """(names, contents, the first name whose first line is not the first file's, or
-    None) of a zip's tables named as one series (:func:`joined_zip_tables`), or None
+    """(names, contents, the first file whose first line is not the first file's, named
+    with both lines, or None) of a zip's tables named as one series (:func:`joined_zip_tables`), or None
     where they are no such series or the zip cannot be read."""
     import io
     import zipfile
@@ -358,7 +358,10 @@ def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
                 return None
             if len({re.sub(r"\d+", "#", info.filename) for info in files}) != 1:
                 return None
-            files.sort(key=lambda info: info.filename)
+            # the digits compared as numbers: "day2" before "day10" (names alike but for
+            # their digits, so the other parts of two names stand at the same places)
+            files.sort(key=lambda info: [int(t) if t.isdigit() else t
+                                         for t in re.split(r"(\d+)", info.filename)])
             parts = [archive.read(info) for info in files]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
             NotImplementedError):
@@ -369,9 +372,18 @@ def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
     first = parts[0].removeprefix(codecs.BOM_UTF8).splitlines()[0]
     if b"\0" in first:
         return None
-    other = next((info.filename for info, p in zip(files[1:], parts[1:], strict=True)
+    other = next((f"{info.filename!r} opens with {_shown_line(p.splitlines()[0])} where "
+                  f"{files[0].filename!r} opens with {_shown_line(first)}"
+                  for info, p in zip(files[1:], parts[1:], strict=True)
                   if p.splitlines()[0] != first), None)
     return [info.filename for info in files], parts, other
+
+
+def _shown_line(line: bytes) -> str:
+    """A member's first line as a message shows it: decoded leniently, cut at 60
+    characters."""
+    text = line.decode("utf-8", errors="replace")
+    return repr(text if len(text) <= 60 else text[:57] + "...")
 
 
 #: Names of members that are packed or compressed (an archive in an archive).
@@ -474,8 +486,8 @@ def refuse_binary(data: bytes, path) -> None:
                 # one series of files, read one after another where their first lines
                 # agree (layouts48): name the file that breaks the layout
                 inner = (f" (read one after another where every file opens with the same "
-                         f"line: {series[2]!r} opens with another line than "
-                         f"{series[0][0]!r}, a changed header?)")
+                         f"line: {series[2]}; a changed header, or a title line that names "
+                         f"each file's day?)")
             if members and all(_document(name, surely=True) for name in members):
                 # a read-me, a licence, a PDF and no table (review55)
                 raise InputFileError(

@@ -1507,6 +1507,11 @@ def _run_batch(sites_file, scheduler, workers, out, force, progress,
     _check_out(out)
     require_owner_access()           # before a folder or a cluster is made
     _check_cluster_options(scheduler, workers)   # a usage error leaves no new folder
+    if scheduler is not None:
+        # blanks around an address (a quoted "$ADDR " or a pasted line): Dask refused a
+        # leading blank as an "unknown address scheme ' tcp'" and took a trailing one
+        # (review69); the address is the same with them or without
+        scheduler = str(scheduler).strip()
     if scheduler:
         check_scheduler(scheduler)   # nor an unreachable scheduler (round faults44)
     _make_writable_out(out)          # before the cluster starts and any site is computed

@@ -138,7 +138,9 @@ def day_and_fraction(text: pd.Series, time_format: str) -> tuple[pd.Series, str]
     form = counted_form(time_format)
     if form is None or form[0] != _UNIT_SECONDS["day"] or len(text) == 0:
         return None
-    parts = text.str.strip().str.extract(_DAY_AND_FRACTION.pattern + "$")
+    # anchored at both ends: str.extract searches, and "2021-06-01 0.25" or "44348.0 0.25"
+    # gave the day "01" or "0" (read in 1899 without a word, review69)
+    parts = text.str.strip().str.extract("^" + _DAY_AND_FRACTION.pattern + "$")
     if parts[0].isna().any():
         return None
     return parts[0] + parts[1], ("a whole day count and a fraction of the day in two columns (a "

@@ -2775,7 +2775,8 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
             warnings.append(ReaderNote(
                 f"input file {str(path)!r}: a zip archive of {len(names)} tables with the "
                 f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
-                "in the order of their names (line numbers count the joined text)"))
+                "in the order of their names, digits as numbers (line numbers count the joined "
+                "text)"))
     data = _decompressed(data, path)
     typed = typed or {}
     kind = table_formats.binary_kind(data)
@@ -4283,7 +4284,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
-    merged = merged_dates.filled_down(raw, time_columns)
+    merged = merged_dates.filled_down(raw, time_columns, time_format)
     if merged is not None:
         # a date on each day's first record only (merged cells; layouts48: refused before,
         # naming a stamp without its date)

@@ -11,7 +11,10 @@ it: 28 February is followed by 1 March, and the leap day is a gap of exactly one
 between two complete days. A logger or script that skips 29 February leaves the same
 trace (and every date from 1 March a day off). A real outage of exactly one day that
 starts and ends at the leap day's limits, with every column measured on the day before
-and after, is what no instrument produces by chance, so the day is named.
+and after, is what no instrument produces by chance, so the day is named; a logger or a
+portal that writes one file a day leaves it too where that day's file was not read (a
+card or a download short of one file), and the message names that cause beside the
+calendar (review69: it named the calendar alone).
 
 The Gregorian rule (a year divisible by 4, except the centuries not divisible by 400)
 decides the leap years (Python's ``calendar.isleap``, the proleptic Gregorian calendar of
@@ -119,5 +122,7 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
                 f"day. Likely the records of {year - 1} or {year + 1} (no leap years) "
                 f"stamped {year} (a year early or late: the budget and every event date "
                 "then name the wrong year), or a logger or script that skips 29 February "
-                f"(every date from 1 March a day off). Check the year of {where}")
+                f"(every date from 1 March a day off), or that day's file left out where "
+                f"a logger writes one file a day. Check the year of {where} and the files "
+                "read")
     return None

@@ -111,10 +111,14 @@ def _check_failures_seal(out: Path, seal: dict, rerun: str) -> None:
     except OSError as error:
         raise unreadable(path, error) from None
     if now != seal["failures"]:
-        state = "missing" if now is None else "not the file the batch recorded"
-        raise InputFileError(f"{FAILURES_FILE} in {str(out)!r} is {state} in {NETWORK_SEAL} "
-                             f"(an edit, or a copy from another batch), so which sites the "
-                             f"batch failed cannot be told; {rerun}")
+        # a file deleted was said to be "missing in network.json", as if the seal lacked it
+        # (review69)
+        state = (f"is missing from {str(out)!r}, while {NETWORK_SEAL} records it (deleted "
+                 "or moved)" if now is None else
+                 f"in {str(out)!r} is not the file the batch recorded in {NETWORK_SEAL} (an "
+                 "edit, or a copy from another batch)")
+        raise InputFileError(f"{FAILURES_FILE} {state}, so which sites the batch failed "
+                             f"cannot be told; {rerun}")
 
 
 def read_network_annual(out) -> pd.DataFrame:

@@ -2082,8 +2082,9 @@ def scratch_folder():
     A stop (SIGTERM, Ctrl-C: an exception raised by the command line's handler) that
     came between :func:`tempfile.mkdtemp` making the folder and
     :class:`tempfile.TemporaryDirectory` registering its removal left it behind (once in
-    15 SIGTERMs sent as the folder appeared, round faults45); a folder of this process's
-    id is then removed, as no other verify of this process runs at the same time.
+    15 SIGTERMs sent as the folder appeared, round faults45); on such a stop (an
+    exception that is no :class:`Exception`) the folders of this process's id are then
+    removed, as the process is ending; an error removes only the block's own folder.
 
     Yields
     ------
@@ -2093,6 +2094,11 @@ def scratch_folder():
     try:
         with tempfile.TemporaryDirectory(prefix=f"{_SCRATCH_PREFIX}{os.getpid()}-") as made:
             yield Path(made)
+    except Exception:
+        # an error, not a stop: its own folder is removed by TemporaryDirectory, and a
+        # folder of another verify of this process (a caller's threads) is left in use
+        # (review69: every folder of the process was removed on any error)
+        raise
     except BaseException:
         own = f"{_SCRATCH_PREFIX}{os.getpid()}-"
         for entry in Path(tempfile.gettempdir()).glob(f"{own}*"):

@@ -120,9 +120,9 @@ class NetworkReport:
 
 
 def _listed_sites(out: Path) -> list[tuple[str, Path]] | None:
-    """The site keys and folders ``network.json`` lists, in its order; None where it is
-    unreadable, no complete seal or lists no sites (an empty list: a complete seal of a
-    batch that computed no site)."""
+    """The site keys and folders ``network.json`` lists, in its order: None where it is
+    unreadable or no complete seal; an empty list where a complete seal lists no site (a
+    batch that computed none)."""
     path = out / NETWORK_SEAL
     try:
         seal = json.loads(manifest_text(path.read_bytes()))

@@ -52,7 +52,8 @@ def test_an_edited_failures_table_breaks_the_network_seal(tmp_path):
     assert report.seal_problem.startswith("failures.parquet in ") and report.failed == ()
     assert report.exit_code == 1
     (out / FAILURES_FILE).unlink()
-    with pytest.raises(InputFileError, match=r"failures.parquet in .* is missing"):
+    with pytest.raises(InputFileError, match=r"failures.parquet is missing from .*, while "
+                       r"network.json records it \(deleted or moved\)"):
         batch.read_network(out)
 
 

@@ -229,8 +229,11 @@ def test_hours_and_minutes_with_two_digits_read(tmp_path):
 
 
 def test_date_written_only_where_it_changes_is_named(tmp_path):
-    """A date written only on each day's first record (a sheet's merged date cells):
-    refused as before, but the line now names the empty column and why."""
+    """A date written only on each day's first record (a sheet's merged date cells): read
+    since layouts48, its dates filled down (this test still expected the refusal of
+    layouts27 and failed from layouts48 on; review69), equal to the file with every date
+    written; where the first record has no date (the file starts inside a merged cell)
+    nothing is filled, and the refusal names the empty column and why."""
     ends, values = _records()
     path = tmp_path / "mast.csv"
     cells, previous = [], None
@@ -238,9 +241,17 @@ def test_date_written_only_where_it_changes_is_named(tmp_path):
         day = f"{e:%d.%m.%Y}"
         cells.append((day if day != previous else "", f"{e:%H:%M}"))
         previous = day
+    _write(path, [(f"{e:%d.%m.%Y}", f"{e:%H:%M}") for e in ends], values, head="Datum,Zeit")
+    settings = {"time_column": ["Datum", "Zeit"], "time_format": "%d.%m.%Y %H:%M"}
+    expected = _read(path, **settings)[0]
     _write(path, cells, values, head="Datum,Zeit")
+    read, report = _read(path, **settings)
+    pd.testing.assert_frame_equal(read, expected)
+    assert any("column 'Datum' writes the date on the first record of each day only" in n
+               for n in report.notes), report.notes
+    _write(path, [("", cells[0][1])] + cells[1:], values, head="Datum,Zeit")
     with pytest.raises(TimestampError) as caught:
-        _read(path, time_column=["Datum", "Zeit"], time_format="%d.%m.%Y %H:%M")
+        _read(path, **settings)
     message = str(caught.value)
     assert "column 'Datum' is empty on" in message and "only where it changes" in message
 

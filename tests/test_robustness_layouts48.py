@@ -156,5 +156,6 @@ def test_a_zip_of_daily_files_with_one_header_is_read_as_one_table(tmp_path):
     assert not report.warnings
     _zip_of_days(path, ends, values, lambda day: ["stamp"] + (
         NAMES[::-1] if f"{day:%d}" == "03" else NAMES))
-    with pytest.raises(InputFileError, match=r"'mast_20210603.csv' opens with another line"):
+    with pytest.raises(InputFileError, match=r"'mast_20210603.csv' opens with 'stamp,vpd,"
+                       r".*' where 'mast_20210601.csv' opens with 'stamp,co2_flux,"):
         _read(path)

@@ -130,6 +130,7 @@ from trial_scoring import (  # noqa: E402
     ar1,
     print_rain_outage_row,
     rain_outage_fill_parts,
+    ramp,
     score_budget_years,
     trial_main,
     write_logger_site,
@@ -223,11 +224,6 @@ def lagged_mean(x, tau):
     a = 1.0 / tau
     y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
     return np.concatenate([[x[0]], y[:-1]])
-
-
-def ramp(x, lo, hi):
-    """0 at or below `lo`, 1 at or above `hi`, linear between (either order)."""
-    return np.clip((np.asarray(x, float) - lo) / (hi - lo), 0.0, 1.0)
 
 
 def sat_vp(t):

@@ -133,12 +133,12 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from scipy.signal import lfilter
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
     ar1,
     fill_errors,
+    lagged,
     print_scored_row,
     ramp,
     score_budget_years,
@@ -229,13 +229,6 @@ EVENTS: dict[str, list[str]] = {}   # each site's declared dates of its last dra
 
 
 # ----------------------------------------------------------------------------- helpers
-def exp_filter(x, tau):
-    """First-order (exponential) filter of `x` with time constant `tau` steps, started at x[0]."""
-    a = 1.0 - np.exp(-1.0 / tau)
-    y, _ = lfilter([a], [1.0, a - 1.0], x, zi=[(1 - a) * x[0]])
-    return y
-
-
 def tetens(t):
     """Saturation vapour pressure over water [hPa] at `t` [deg C] (Tetens 1930 (m))."""
     return 6.1078 * np.exp(17.27 * t / (t + 237.3))
@@ -329,7 +322,7 @@ def weather(site, idx, rng, variant):
         store = float(np.clip(store + (water_in - use) / site.bucket, 0.01, 1.0))
         rew[d] = store
     fast = tair - t_day[day]
-    tsoil = exp_filter(t_day, 4.0)[day] + 1.0 + exp_filter(fast, 9 * 60 / site.step)
+    tsoil = lagged(t_day, 4.0)[day] + 1.0 + lagged(fast, 9 * 60 / site.step)
     under_snow = np.clip(0.1 * tsoil - 0.3, -2.0, -0.05) + 0.03 * ar1(rng, n, 0.95)
     tsoil = np.where(snow[day], under_snow, tsoil)
     rain_rec = np.zeros(n, bool)
@@ -357,7 +350,7 @@ def leaf_area(site, idx, met, rng):
     """Green leaf area index per day and the declared events (sowing, harvest, cuts)."""
     doy, t_day, rew, snow = met["doy"], met["t_day"], met["rew"], met["snow"]
     year = int(idx[0].year)
-    warm = exp_filter(t_day, 7.0)
+    warm = lagged(t_day, 7.0)
     j = rng.normal(0, 4, 3)
     top, events = site.lai_max, []
     if site.kind in ("deciduous", "mixed"):     # budburst at 180 degree-days above 5 deg C
@@ -368,7 +361,7 @@ def leaf_area(site, idx, met, rng):
     elif site.kind == "conifer":
         lai = top + 0.6 * ramp(doy, 150, 180) * (1 - ramp(doy, 270, 330))
     elif site.kind == "savanna":                # grass greening with the soil water, trees
-        lai = 0.4 + (top - 0.4) * exp_filter(ramp(rew, 0.1, 0.5), 10.0)
+        lai = 0.4 + (top - 0.4) * lagged(ramp(rew, 0.1, 0.5), 10.0)
     elif site.kind == "maize":
         sow, harvest = 128 + j[0], 283 + j[1]
         grow = top / (1 + np.exp(-(doy - (sow + 48)) / 7.0)) * (1 - 0.7 * ramp(doy, harvest
@@ -424,7 +417,7 @@ def fluxes(site, idx, met, rng, variant):
     f_w = 1.0 if dry else 1 - np.exp(-rew / 0.12)
     cap = site.pmax * cover * peaked_arrhenius(met["tair"], site.ds) * f_d * f_w
     if site.kind in ("conifer", "tundra"):     # acclimation state of the photosynthetic capacity
-        state = exp_filter(met["tair"], 5 * met["per_day"])
+        state = lagged(met["tair"], 5 * met["per_day"])
         cap = cap * ramp(state, -3.0, 8.0)
     gpp = nonrect_hyperbola(ppfd, site.alpha * cover, cap, theta)
     if "nolowlight" in variant:                # no uptake in the records below 10 W m-2
