@@ -64,8 +64,8 @@ def test_a_sensor_reading_the_reflected_radiation_from_july_is_named():
     rg, potential, index = _invented_sky()
     july = index >= "2021-07-01"
     text = dim_rg_months(np.where(july, rg * ALBEDO, rg), potential, index,
-                         {"rg": "SW_in_1"})
-    assert text is not None and "'SW_in_1'" in text and "from 2021-07 to " in text
+                         {"rg": "Globalrad_1"})
+    assert text is not None and "'Globalrad_1'" in text and "from 2021-07 to " in text
     assert "reach only 0.17 times" in text and "against 0.75" in text
     assert dim_rg_months(rg * ALBEDO, potential, index) is None
     # two separate runs (a sensor swapped twice) are named as two spans

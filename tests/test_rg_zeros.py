@@ -48,8 +48,8 @@ def test_three_daylight_zeros_are_named_two_are_not():
     two[noon[[5, 200]]] = 0.0
     three[noon[[5, 200, 400]]] = 0.0
     assert rg_zero_in_daylight(two, potential, index) is None
-    text = rg_zero_in_daylight(three, potential, index, {"rg": "SW_IN_raw"})
-    assert text is not None and "'SW_IN_raw'" in text and "in 3 records" in text
+    text = rg_zero_in_daylight(three, potential, index, {"rg": "GLOBAL_RAD_raw"})
+    assert text is not None and "'GLOBAL_RAD_raw'" in text and "in 3 records" in text
     assert f"from {index[noon[5]]:%Y-%m-%d %H:%M}" in text
     # a negative fill (-1) is no sky either
     negative = np.where(np.isin(np.arange(rg.size), noon[[5, 200, 400]]), -1.0, rg)

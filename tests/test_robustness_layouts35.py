@@ -124,10 +124,10 @@ def test_names_that_fill_a_fixed_width_are_named_as_run_together(tmp_path):
     """Before: "line 2 has 7 fields where the header has 6 ... Is a column name missing
     in the header?"; now the cell holding two names is named."""
     frame, _ = _records()
-    frame = frame.rename(columns={"sw": "sw_in_wm2"})
+    frame = frame.rename(columns={"sw": "solar_wm2"})
     path = tmp_path / "t.dat"
     path.write_text(_fixed(frame, [14, 9, 9, 9, 9, 9]))
-    with pytest.raises(InputFileError, match=r"'co2sw_in_wm2' stand\(s\) over 2 columns"):
+    with pytest.raises(InputFileError, match=r"'co2solar_wm2' stand\(s\) over 2 columns"):
         _read(path, delimiter="whitespace")
 
 

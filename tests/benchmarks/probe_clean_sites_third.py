@@ -464,7 +464,7 @@ def write_site(spec, seed, folder: Path) -> Path:
     name, lat, lon, utc, *_ = spec
     frame, facts = generate(spec, seed)
     two = "tair_low" in frame.columns
-    names = {"nee": "nee_umol", "rg": "sw_in", "tair": "air_t_28m" if two else "air_t",
+    names = {"nee": "nee_umol", "rg": "solar_down", "tair": "air_t_28m" if two else "air_t",
              "tair_low": "air_t_2m", "rh": "rh_pct", "vpd": "vpd_hpa", "ustar": "ustar_ms",
              "tsoil": "soil_t"}
     out = frame.rename(columns=names)

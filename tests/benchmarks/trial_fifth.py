@@ -642,14 +642,14 @@ def write_layout(frame: pd.DataFrame, spec: dict, folder: Path) -> Path:
     if layout == "compact_end":
         table = pd.DataFrame({
             "stamp": end_stamps.strftime("%Y%m%d%H%M"), "co2_flux_umol": values.nee,
-            "sw_in_wm2": values.rg, "t_air_c": values.tair, "vpd_hpa": values.vpd,
+            "solar_wm2": values.rg, "t_air_c": values.tair, "vpd_hpa": values.vpd,
             "u_friction": values.ustar, "t_soil_5": values.tsoil, "rh_pct": values.rh,
             "qc_flux": values.quality, "irga_diag": values.diagnostic})
         table.round(4).to_csv(folder / "meadow.csv", index=False, na_rep="-9999")
         body = ('[input]\npath = "meadow.csv"\ntime_column = "stamp"\n'
                 'time_format = "%Y%m%d%H%M"\ntime_marks = "end"\nmissing = [-9999]\n'
                 'flag_accept = [0, 1]\n\n[input.columns]\nnee = "co2_flux_umol"\n'
-                'rg = "sw_in_wm2"\ntair = "t_air_c"\nvpd = "vpd_hpa"\nustar = "u_friction"\n'
+                'rg = "solar_wm2"\ntair = "t_air_c"\nvpd = "vpd_hpa"\nustar = "u_friction"\n'
                 'tsoil = "t_soil_5"\nrh = "rh_pct"\nnee_flag = ["qc_flux", "irga_diag"]\n')
     elif layout == "semicolon_24h":
         date = end_stamps.strftime("%d.%m.%Y").to_numpy().copy()

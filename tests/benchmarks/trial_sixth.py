@@ -845,7 +845,7 @@ nee_flag = "qc_co2"
             sub.mkdir(parents=True, exist_ok=True)
             body = pd.DataFrame({
                 "datetime": part.index.strftime("%Y-%m-%dT%H:%M"),
-                "co2flux": fmt(part.nee, 3, "-999"), "sw_in_kw": fmt(part.rg / 1000, 4, "-999"),
+                "co2flux": fmt(part.nee, 3, "-999"), "solar_kw": fmt(part.rg / 1000, 4, "-999"),
                 "t_air": fmt(part.tair, 2, "-999"), "rel_hum": fmt(part.rh, 1, "-999"),
                 "ustar": fmt(part.ustar, 3, "-999"), "t_soil": fmt(part.tsoil, 2, "-999"),
             })
@@ -856,7 +856,7 @@ time_format = "%Y-%m-%dT%H:%M"
 time_marks = "start"
 missing = [-999]
 """, """nee = "co2flux"
-rg = "sw_in_kw"
+rg = "solar_kw"
 tair = "t_air"
 rh = "rel_hum"
 ustar = "ustar"

@@ -444,7 +444,7 @@ LAYOUTS = {
           {"nee": "netco2", "rg": "globrad", "tair": "tk_air", "rh": "relh", "ustar": "us",
            "tsoil": "tsoil_5cm"}, {"tair": "K"}),
     "A": ("datetime_end", "%d/%m/%Y %H:%M", "end", "",
-          {"nee": "co2", "rg": "sw_in_pyr", "tair": "t_screen", "vpd": "vpd_hpa",
+          {"nee": "co2", "rg": "solar_pyr", "tair": "t_screen", "vpd": "vpd_hpa",
            "ustar": "ustar_sonic", "tsoil": "t_soil_8cm"}, {}),
 }
 # from hPa and deg C, with the decimals added

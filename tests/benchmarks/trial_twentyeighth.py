@@ -720,7 +720,7 @@ LAYOUTS = {
           dict(zip(_NAMES, ("co2_bakau", "radiasi_surya", "suhu_udara", "kelembapan",
                             "kecepatan_gesek", "suhu_tanah_5"), strict=True)), {}),
     "P": ("obs_start", "%Y/%m/%d %H:%M", "start", "-999",
-          {"nee": "paddy_co2", "rg": "sw_in_pyr", "tair": "t_air", "vpd": "vpd_kpa",
+          {"nee": "paddy_co2", "rg": "solar_pyr", "tair": "t_air", "vpd": "vpd_kpa",
            "ustar": "u_fric", "tsoil": "t_mud_5"}, {"vpd": "kPa"}),
     "U": ("ende", "%d.%m.%Y %H:%M", "end", "-9999",
           dict(zip(_NAMES, ("co2_fluss_mg", "strahlung", "lufttemperatur", "rel_feuchte",

@@ -474,7 +474,7 @@ LAYOUTS = {
           {"nee": "co2_netto", "rg": "globalstr", "tair": "lufttemp", "rh": "relfeuchte",
            "ustar": "schubgeschw", "tsoil": "bodentemp_5"}, {}),
     "B": ("ts_end", "%Y-%m-%d %H:%M", "end", "-9999",
-          {"nee": "flux_co2", "rg": "sw_in_top", "tair": "t_air_top", "vpd": "vpd_top",
+          {"nee": "flux_co2", "rg": "solar_top", "tair": "t_air_top", "vpd": "vpd_top",
            "ustar": "u_fric", "tsoil": "t_soil_5"}, {}),
     "C": ("aika", "%d.%m.%Y %H:%M", "end", "-9999",
           {"nee": "hiilivuo", "rg": "sateily", "tair": "ilman_t", "rh": "kosteus",
