@@ -554,7 +554,7 @@ def result_links(manifest: dict) -> dict:
     Parameters
     ----------
     manifest : dict
-        A parsed ``manifest.json`` (:func:`read_manifest`).
+        The exported folder's ``manifest.json`` as :func:`read_manifest` parses it.
 
     Returns
     -------
