@@ -1221,6 +1221,8 @@ def test_report_modules_import_no_pipeline_or_method_module():
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
         for node in ast.walk(tree):
             if isinstance(node, ast.ImportFrom) and node.level == 1:
+                if node.module is None and [a.name for a in node.names] == ["__version__"]:
+                    continue        # the release drawing the page (auditor53): no module
                 assert (node.module or "").split(".")[0] in allowed, (name, node.module)
     code = ("import sys, fluxpart.report, fluxpart.figures; print(sorted(m for m in sys.modules "
             "if m.startswith('fluxpart.')))")
