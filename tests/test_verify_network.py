@@ -178,3 +178,27 @@ def test_a_site_whose_input_is_missing_says_where_input_goes(network, tmp_path, 
     assert captured.out == "" and len(captured.err.splitlines()) == 1
     assert captured.err.startswith("error: site 'alder': verify: the input file")
     assert f"fluxpart verify {root / network.name / 'alder'} --input FILE" in captured.err
+
+
+def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(network,
+                                                                            tmp_path):
+    """auditor53: a value edited in a site's manifest.json broke the network seal with the
+    words "a batch stopped after writing some sites, or a run into that folder", though no
+    batch writes a manifest whose own seal fails; now "its manifest.json was edited". A
+    manifest replaced by one whose seal holds (another run) keeps the old words."""
+    from fluxpart.errors import InputFileError
+    from fluxpart.manifest import manifest_seal
+    from fluxpart.network_tables import network_table
+
+    out = _copy(network, tmp_path)
+    path = out / "alder" / "manifest.json"
+    manifest = json.loads(path.read_text(encoding="utf-8"))
+    manifest["seed"] = manifest["seed"] + 1
+    path.write_text(json.dumps(manifest), encoding="utf-8")
+    with pytest.raises(InputFileError, match="alder' changed after the network tables were "
+                       r"written \(its manifest.json was edited after it was written"):
+        network_table(out, "annual")
+    manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest), encoding="utf-8")
+    with pytest.raises(InputFileError, match=r"written \(a batch stopped after writing"):
+        network_table(out, "annual")
