@@ -641,7 +641,9 @@ def _parser() -> argparse.ArgumentParser:
         "settings, and compare. Exit 0: bit-identical, or reproduced within floating-point "
         "rounding; 1: any other difference or tampering; 2: error. A batch output folder: its "
         "network.json seal is checked, then each site folder it lists is verified, one after "
-        "another (serially, no cluster), one line per site; a site the batch failed is "
+        "another (serially, no cluster), one line per site with its result: line below it "
+        "(and, without --quiet, what differs for a site not reproduced); a site the batch "
+        "failed is "
         "'not computed by the batch' and does not fail the verdict by itself; exit 0 only if "
         "every computed site is reproduced, 1 if any is not or the seal does not hold, 2 on "
         "error (a listed site folder missing).")
@@ -655,8 +657,10 @@ def _parser() -> argparse.ArgumentParser:
     verify.add_argument("--exact", action="store_true",
                         help="demand bit identity: rounding differences exit 1")
     verify.add_argument("--quiet", action="store_true",
-                        help="print only the verdict, the result: line naming which "
-                        "result the folder holds, and the caution (same exit status)")
+                        help="print only the verdict (naming a changed, missing or "
+                        "unlisted file, and an input or site config that is another "
+                        "file), the result: line naming which result the folder holds, and "
+                        "the caution (same exit status)")
     verify.add_argument("--detail", action="store_true",
                         help="print each differing metadata entry (a column's description or "
                         "unit, each copy) with both texts in full; by default a table's "

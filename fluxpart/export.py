@@ -332,7 +332,7 @@ def to_xarray(result):
         from .result import load
 
         folder, result = result, load(result)
-        return _credit(to_xarray(result), _computed_by(folder))
+        return _linked(_credit(to_xarray(result), _computed_by(folder)), folder)
     _refuse_changed(result)
     series = result.timeseries
     missing = [column for column, _ in _FLUXES.values() if column not in series.columns]
@@ -838,6 +838,19 @@ def _credit(dataset, computed_by: str | None):
     return dataset
 
 
+def _linked(dataset, directory):
+    """Name in `dataset`'s global attributes the result its numbers come from: each fact of
+    :func:`fluxpart.manifest.result_links` of the folder `directory` as ``result_<fact>``
+    (``result_manifest_seal``, ``result_seed``, ``result_input_sha256``, ...), so a file
+    that travels without its folder still says which result, input bytes and seed made it.
+    Changed in place; returned."""
+    from .manifest import read_manifest, result_links
+
+    for name, value in result_links(read_manifest(directory)).items():
+        dataset.attrs[f"result_{name}"] = value
+    return dataset
+
+
 def write_netcdf(result, path) -> Path:
     """Write :func:`to_xarray` of `result` to the NetCDF file `path` (atomically).
 
@@ -876,7 +889,7 @@ def write_netcdf(result, path) -> Path:
     require_owner_access()
     dataset = to_xarray(result)
     if directory is not None:
-        _credit(dataset, _computed_by(directory))
+        _linked(_credit(dataset, _computed_by(directory)), directory)
     engine = _engine()
     with ExitStack() as held:
         return _write_locked(dataset, path, engine, held)

@@ -271,7 +271,8 @@ def _ordered(tables: dict) -> list[str]:
     return [n for n in _FIRST if n in tables] + sorted(n for n in tables if n not in _FIRST)
 
 
-def csv_tables(result, source: str | None = None, *, stored: bool = False) -> dict[str, bytes]:
+def csv_tables(result, source: str | None = None, *, stored: bool = False,
+               links: dict | None = None) -> dict[str, bytes]:
     """The files of the CSV export of `result`: file name -> bytes.
 
     Parameters
@@ -286,6 +287,10 @@ def csv_tables(result, source: str | None = None, *, stored: bool = False) -> di
         older release wrote it). False: they are those a result folder of this release
         stores (:func:`fluxpart.schema.units_for_table`), the index named as it does;
         for a result of this release both give the same bytes.
+    links : dict, optional
+        :func:`fluxpart.manifest.result_links` of the result folder `result` was loaded
+        from: each written as the property ``result_<name>`` (the manifest's seal, the
+        seed, the input's and site config's SHA-256, the code fingerprint).
 
     Returns
     -------
@@ -345,6 +350,8 @@ def csv_tables(result, source: str | None = None, *, stored: bool = False) -> di
             # the respiration choices both partitionings rest on (round modeller25)
             *(fact(name, value, FACT_UNITS.get(name))
               for name, value in respiration_facts(result.provenance).items()),
+            # which result, input bytes and seed (auditor53): as the NetCDF export names them
+            *(fact(f"result_{name}", value) for name, value in (links or {}).items()),
         ],
         "dialect": _DIALECT,
         "tables": described,
@@ -420,15 +427,17 @@ def write_csv(result, folder) -> Path:
     target = Path(folder)
     check_target(target)
     require_owner_access()
-    source, stored = None, False
+    source, stored, links = None, False, {}
     if isinstance(result, (str, os.PathLike)):
         from .export import _computed_by
+        from .manifest import read_manifest, result_links
         from .result import load
 
         directory = result
         result = load(directory)
         source, stored = _computed_by(directory), True
-    files = csv_tables(result, source, stored=stored)
+        links = result_links(read_manifest(directory))
+    files = csv_tables(result, source, stored=stored, links=links)
     parent = target.absolute().parent
     from .resultdir import dangling_link_above
 

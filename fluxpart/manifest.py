@@ -47,7 +47,7 @@ __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_
            "newer_format_reason", "path_entries",
            "name_in_other_case",
            "QUOTED_TEXT", "portable_messages", "portable_provenance", "read_manifest",
-           "recorded_path", "recorded_paths",
+           "recorded_path", "recorded_paths", "result_links",
            "seal_intact", "shown_name", "undecodable_message", "undecodable_paths",
            "without_paths"]
 
@@ -541,6 +541,53 @@ def recorded_inputs(manifest: dict) -> tuple:
     parts = recorded.get("files") if isinstance(recorded.get("files"), list) else [recorded]
     return tuple((str(part.get("path")), str(part.get("sha256"))) for part in parts
                  if isinstance(part, dict))
+
+
+def result_links(manifest: dict) -> dict:
+    """What ties a file derived from a result folder (a NetCDF or CSV export) to that
+    folder's result: the manifest's seal, the seed, each input file's and the site
+    config's SHA-256 and the code fingerprint, as the manifest records them.
+
+    An export named the release alone, so an auditor holding one could not tell which
+    result, input bytes or seed its numbers came from (auditor53).
+
+    Parameters
+    ----------
+    manifest : dict
+        The exported folder's ``manifest.json`` as :func:`read_manifest` parses it.
+
+    Returns
+    -------
+    dict of str to str or int
+        ``manifest_seal``, ``seed``, ``input_sha256`` (one hash per input file, in the
+        recorded order, separated by a space), ``site_config_sha256`` and
+        ``code_sha256``; a fact not recorded, or not of the type the manifest writes,
+        is left out (a demo or ``Result.write`` folder records no input file).
+
+    References
+    ----------
+    Eaton, B. et al. (2022). NetCDF Climate and Forecast (CF) Metadata Conventions,
+    version 1.10, section 2.6.2 (``history``: an audit trail of the data's processing).
+    """
+    if not isinstance(manifest, dict):
+        return {}
+    links = {}
+    if isinstance(manifest.get("seal"), str):
+        links["manifest_seal"] = manifest["seal"]
+    if isinstance(manifest.get("seed"), int) and not isinstance(manifest["seed"], bool):
+        links["seed"] = manifest["seed"]
+    inputs = [sha for _, sha in recorded_inputs(manifest) if sha != "None"]
+    if inputs:
+        links["input_sha256"] = " ".join(inputs)
+    provenance = manifest.get("provenance") if isinstance(manifest.get("provenance"),
+                                                          dict) else {}
+    config = provenance.get("site_config")
+    if isinstance(config, dict) and isinstance(config.get("sha256"), str):
+        links["site_config_sha256"] = config["sha256"]
+    code = manifest.get("code")
+    if isinstance(code, dict) and isinstance(code.get("sha256"), str):
+        links["code_sha256"] = code["sha256"]
+    return links
 
 
 #: The name of a writer's staging folder beside its output NAME (``.NAME.staging-`` and

@@ -82,17 +82,23 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
                                  f"rewriting the network tables, or an edit); {rerun}")
     for key, site in sorted((seal.get("sites") or {}).items()):
         site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
+        edited = False
         try:
             manifest = read_manifest(site_folder)
             # the seal recomputed, not only the recorded one: an edited manifest keeps its
             # old "seal" entry, and passed (review round thirteen)
-            now = manifest.get("seal") if seal_intact(manifest) else None
+            edited = not seal_intact(manifest)
+            now = None if edited else manifest.get("seal")
         except InputFileError:
             now = None
         if not isinstance(site, dict) or now != site.get("seal"):
+            # a manifest whose own seal fails was edited: no batch writes one, so the
+            # stopped batch the message offered misled an auditor (auditor53)
+            why = ("its manifest.json was edited after it was written (its own seal does "
+                   "not hold)" if edited else "a batch stopped after writing some sites, or "
+                   "a run into that folder")
             raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "
-                                 f"network tables were written (a batch stopped after writing "
-                                 f"some sites, or a run into that folder); {rerun}")
+                                 f"network tables were written ({why}); {rerun}")
 
 
 def _check_failures_seal(out: Path, seal: dict, rerun: str) -> None:

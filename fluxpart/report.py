@@ -1304,6 +1304,19 @@ def _provenance(manifest: dict) -> str:
     versions = manifest.get("versions", {})
     parts.append('<tr><th scope="row">versions</th><td>' + _e(", ".join(
         f"{name} {version}" for name, version in versions.items())) + "</td></tr>")
+    # an auditor holding a printed page could not tie it to the code that computed it
+    # or to the manifest it was drawn from (auditor53): both as the folder records them
+    code = manifest.get("code")
+    if isinstance(code, dict) and code.get("sha256"):
+        parts.append('<tr><th scope="row">code fingerprint</th><td><span class="hash">'
+                     f"SHA-256 {_e(code['sha256'])}</span> (fluxpart "
+                     f"{_e(code.get('version', ''))}, {_e(code.get('files', ''))} source "
+                     "files)</td></tr>")
+    if manifest.get("seal"):
+        parts.append('<tr><th scope="row">manifest seal</th><td><span class="hash">SHA-256 '
+                     f"{_e(manifest['seal'])}</span> (over manifest.json's content: names "
+                     "this result; <code>fluxpart verify</code> checks it and reruns "
+                     "the numbers)</td></tr>")
     tables = "".join(f"<tr><td><code>{_e(entry.get('file', name))}</code></td><td class=\"number\">"
                      f"{_e(entry.get('rows', ''))}</td><td class=\"hash\">"
                      f"{_e(entry.get('sha256', ''))}</td></tr>"
@@ -1311,6 +1324,14 @@ def _provenance(manifest: dict) -> str:
     return (f'<table id="provenance"><tbody>{"".join(parts)}</tbody></table>'
             '<table id="table-hashes"><thead><tr><th scope="col">Table</th><th scope="col">Rows'
             f'</th><th scope="col">SHA-256</th></tr></thead><tbody>{tables}</tbody></table>')
+
+
+def _running_release() -> str:
+    """The release drawing the page: a folder of an earlier release may be drawn by a later
+    one, and the page's header named only the release that computed the tables."""
+    from . import __version__
+
+    return __version__
 
 
 def _plain(value) -> str:
@@ -1416,9 +1437,10 @@ def _page(written: Written, directory: Path, figures, interval: int) -> str:
 <body>
 <header>
 <h1>Carbon budget report: <span id="site-name">{_e(site_name)}</span></h1>
-<p class="meta">Eddy-covariance record {_e(_span(written))}; written by fluxpart
-{_e(manifest.get("versions", {}).get("fluxpart", ""))} from the result folder
-<code>{_e(directory.name)}</code>.</p>
+<p class="meta">Eddy-covariance record {_e(_span(written))}; computed by fluxpart
+{_e(manifest.get("versions", {}).get("fluxpart", ""))} into the result folder
+<code>{_e(directory.name)}</code>; this page drawn from its tables by fluxpart
+{_e(_running_release())}.</p>
 <div class="caution" id="caution-top"><strong>Caution.</strong> {_e(CAUTION)}</div>
 {extra_caution}
 </header>

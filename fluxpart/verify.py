@@ -385,6 +385,23 @@ class VerifyReport:
         return phrases
 
     @property
+    def input_changes(self) -> list[str]:
+        """One phrase per input file or site config that is not the one the result was
+        computed from (its SHA-256 differs, so nothing was recomputed): named in the
+        one-line verdict of ``--quiet`` and of a network's site, which otherwise read
+        "1 difference(s)" naming nothing (auditor53)."""
+        return [" ".join([str(d.column), *([Path(d.row).name] if d.row else [])])
+                + f" is not the one the result was computed from (SHA-256 "
+                f"{d.recomputed[:12]}..., recorded {d.stored[:12]}...)"
+                for d in self.differences if d.kind == "input"]
+
+    @property
+    def changes(self) -> list[str]:
+        """:attr:`folder_changes` and :attr:`input_changes`: what the one-line verdicts
+        name."""
+        return self.folder_changes + self.input_changes
+
+    @property
     def exit_code(self) -> int:
         """0 when reproduced (see :attr:`reproduced`), 1 otherwise."""
         return 0 if self.reproduced else 1
@@ -2559,7 +2576,7 @@ def command_verify(args) -> int:
     # --quiet: the verdict and the caution, without the per-column detail
     if quiet:
         identity = [line for line in lines if line.startswith("result: ")]
-        changed = report.folder_changes
+        changed = report.changes
         headline = lines[0].rstrip(":") + (f" ({'; '.join(changed)})" if changed else "")
         lines = [headline, *identity, lines[-1]]
     print("\n".join(lines))

@@ -77,8 +77,14 @@ class NetworkReport:
             return "nothing reproduced"
         return "reproduced" if self.exit_code == 0 else "not reproduced"
 
-    def lines(self) -> list[str]:
-        """One line per site, the network's verdict and the caution."""
+    def lines(self, quiet: bool = False) -> list[str]:
+        """One line per site with its ``result:`` line below it (which seed, input, site
+        config and release, as ``verify SITE`` names them), the differences of a site not
+        reproduced (not with `quiet`), the network's verdict and the caution.
+
+        A site's verdict alone left an auditor without the input bytes, seed and release
+        of each site and, for a site not reproduced, without what differed (auditor53).
+        """
         width = max((len(key) for key, _ in (*self.sites, *self.failed)), default=0)
         seal = (f"seal NOT intact: {self.seal_problem}" if self.seal_problem else
                 f"seal intact ({NETWORK_SEAL}: every network file and site folder as the "
@@ -86,9 +92,17 @@ class NetworkReport:
         lines = [f"network {shown_path(self.directory)}: {seal}; sites verified one after "
                  "another"]
         for key, report in self.sites:
-            changed = report.folder_changes
+            changed = report.changes
             lines.append(f"  {key:<{width}}  {report.verdict}"
                          + (f" ({'; '.join(changed)})" if changed else ""))
+            own = report.format().splitlines()
+            if report.exit_code and not quiet:
+                # the single folder's difference lines, between its verdict and result:
+                shown = [line for line in own[1:] if line.startswith("  ")]
+                lines += [f"    {line.strip()}" for line in shown]
+                lines.append(f"    (fluxpart verify {shown_path(report.directory)} gives "
+                             "this site's whole report)")
+            lines += [f"    {line}" for line in own if line.startswith("result: ")]
         for key, error in self.failed:
             lines.append(f"  {key:<{width}}  {NOT_COMPUTED} ({error.split(':', 1)[0]}; "
                          "in failures.parquet)")
@@ -101,7 +115,7 @@ class NetworkReport:
                                    if self.sites else "the batch computed no site")
             + (f"; {len(self.failed)} site(s) {NOT_COMPUTED}, which does not by itself fail "
                "this verdict (the batch reported them failed)" if self.failed else ""))
-        lines.append(VERIFY_CAUTION)
+        lines.append(f"Caution: {VERIFY_CAUTION}")
         return lines
 
     def as_json(self) -> str:
@@ -191,7 +205,14 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
         try:
             reports.append((key, verify(folder, exact=exact)))
         except FluxpartError as error:
-            error.args = (f"site {key!r}: {error}",)
+            # the single folder's remedy, "give ... with --input", is refused for a batch
+            # output folder: say where the option goes (auditor53)
+            option = next((name for name in ("--input", "--config") if name in str(error)),
+                          None)
+            where = (f" (a batch output folder takes no {option}: give it with the site's "
+                     f"own folder, fluxpart verify {shown_path(folder)} {option} FILE)"
+                     if option else "")
+            error.args = (f"site {key!r}: {error}{where}",)
             raise
     try:
         recorded_failures = failed_sites(out)
@@ -216,6 +237,7 @@ def command_verify_network(args) -> int:
                           "folder, whose sites each have their own input and config; give "
                           "one site's folder in it with --" + given[0])
     report = verify_network(args.directory, exact=bool(getattr(args, "exact", False)))
-    print(report.as_json() if getattr(args, "json", False) else "\n".join(report.lines()))
+    print(report.as_json() if getattr(args, "json", False) else
+          "\n".join(report.lines(quiet=bool(getattr(args, "quiet", False)))))
     return report.exit_code
 

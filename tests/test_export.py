@@ -243,6 +243,34 @@ def test_export_never_replaces_the_input_or_the_site_config(bundle_result, capsy
     assert (root / victim).read_bytes() == before
 
 
+def test_the_netcdf_names_the_result_input_bytes_and_seed(exported, written_demo,
+                                                         bundle_result):
+    """auditor53: an exported file named the release alone, so a file that travelled
+    without its folder could not be tied to a result. Its global attributes now carry the
+    manifest's seal, the seed and the code fingerprint as manifest.json records them (read
+    with json), and for a run of a site config the SHA-256 of its input (hashlib on the
+    file itself) and of the config (fluxpart.manifest.result_links, which the export
+    writes; a Result.write folder records neither)."""
+    import hashlib
+    import json
+
+    from fluxpart.manifest import result_links
+
+    _, dataset = exported
+    manifest = json.loads((written_demo[1] / "manifest.json").read_text(encoding="utf-8"))
+    assert {k: v for k, v in dataset.attrs.items() if k.startswith("result_")} == {
+        "result_manifest_seal": manifest["seal"], "result_seed": manifest["seed"],
+        "result_code_sha256": manifest["code"]["sha256"]}
+    root, folder = bundle_result
+    manifest = json.loads((folder / "manifest.json").read_text(encoding="utf-8"))
+    links = result_links(manifest)
+    assert links["input_sha256"] == hashlib.sha256((root / "tower.csv").read_bytes()
+                                                   ).hexdigest()
+    assert links["site_config_sha256"] == hashlib.sha256((root / "site.toml").read_bytes()
+                                                         ).hexdigest()
+    assert links["manifest_seal"] == manifest["seal"]
+
+
 def test_export_replaces_only_a_netcdf_file_it_wrote(written_demo, tmp_path, capsys):
     """An existing file of another kind (text, or an HDF5 file fluxpart did not write) is
     kept and refused; a NetCDF file an earlier export wrote is replaced."""

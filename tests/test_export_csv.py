@@ -398,15 +398,29 @@ def test_the_csv_writer_knows_no_orchestrator():
 def test_a_result_in_memory_exports_the_same_bytes_as_its_folder(written_demo, exported):
     """Same result, same bytes by either route: the Result that ``process`` returned and
     the folder it wrote give identical files (the index named and the units as the folder
-    stores them, e.g. ``row`` of the u* table and the units of the ``parameters`` class)."""
+    stores them, e.g. ``row`` of the u* table and the units of the ``parameters`` class),
+    but for the folder's ``result_*`` facts in csv-metadata.json (auditor53: which result,
+    input bytes and seed; a Result in memory has no manifest), each as the folder's
+    manifest.json records it (read with json here)."""
     from fluxpart.export_csv import csv_tables
 
-    result, _ = written_demo
+    result, folder = written_demo
     _, target = exported
     files = csv_tables(result)
     assert sorted(files) == sorted(p.name for p in target.iterdir())
     for name, data in files.items():
-        assert data == (target / name).read_bytes(), name
+        if name != "csv-metadata.json":
+            assert data == (target / name).read_bytes(), name
+    written = json.loads((target / "csv-metadata.json").read_text(encoding="utf-8"))
+    facts = written["schema:additionalProperty"]
+    links = {f["schema:name"]: f["schema:value"] for f in facts
+             if f["schema:name"].startswith("result_")}
+    manifest = json.loads((Path(folder) / "manifest.json").read_text(encoding="utf-8"))
+    assert links == {"result_manifest_seal": manifest["seal"], "result_seed": manifest["seed"],
+                     "result_code_sha256": manifest["code"]["sha256"]}   # a demo: no input
+    written["schema:additionalProperty"] = [f for f in facts
+                                            if not f["schema:name"].startswith("result_")]
+    assert written == json.loads(files["csv-metadata.json"])
 
 
 def test_missing_infinite_and_quoted_cells_read_back():

@@ -33,6 +33,12 @@ def network(tmp_path_factory):
     return out
 
 
+def _site_lines(lines):
+    """The one line of each site (indented two spaces; its result: and difference lines
+    below it four)."""
+    return [line for line in lines if line.startswith("  ") and not line.startswith("    ")]
+
+
 def _copy(network, tmp_path):
     copy = tmp_path / "out"
     shutil.copytree(network, copy)
@@ -45,12 +51,13 @@ def test_every_listed_site_is_verified_in_order_and_a_failed_one_is_named(networ
     computed by the batch and does not fail the verdict; --json gives each site's
     single-folder object (as `verify SITE --json` gives it)."""
     report = verify_network(network)
-    lines = report.lines()
-    assert lines[1].split() == ["alder", "bit-identical"]
-    assert lines[2].split() == ["birch", "bit-identical"]
-    assert lines[3].split()[:5] == ["broken", "not", "computed", "by", "the"]
-    assert lines[4].startswith("reproduced: all 2 computed site(s) reproduced; 1 site(s) "
-                               "not computed by the batch, which does not by itself fail")
+    lines = _site_lines(report.lines())
+    assert lines[0].split() == ["alder", "bit-identical"]
+    assert lines[1].split() == ["birch", "bit-identical"]
+    assert lines[2].split()[:5] == ["broken", "not", "computed", "by", "the"]
+    assert report.lines()[-2].startswith(
+        "reproduced: all 2 computed site(s) reproduced; 1 site(s) not computed by the "
+        "batch, which does not by itself fail")
     assert report.exit_code == 0
 
     found = json.loads(report.as_json())
@@ -80,10 +87,11 @@ def test_an_edited_site_table_fails_the_network_and_names_the_site(network, tmp_
     lines = capsys.readouterr().out.splitlines()
     assert "seal NOT intact: network_daily/site=alder in" in lines[0]
     assert "run the batch again" not in lines[0]
-    assert lines[1].split() == ["alder", "bit-identical"]
-    assert lines[2].split()[:3] == ["birch", "not", "reproduced"]
-    assert lines[4].startswith("not reproduced: the network seal does not hold; 1 of 2 "
-                               "site(s) not reproduced: birch")
+    sites = _site_lines(lines)
+    assert sites[0].split() == ["alder", "bit-identical"]
+    assert sites[1].split()[:3] == ["birch", "not", "reproduced"]
+    assert lines[-2].startswith("not reproduced: the network seal does not hold; 1 of 2 "
+                                "site(s) not reproduced: birch")
 
 
 def test_a_missing_site_folder_is_an_error_naming_it(network, tmp_path, capsys):
@@ -110,3 +118,87 @@ def test_a_network_whose_every_site_failed_reproduces_nothing(tmp_path):
     assert report.exit_code == 1
     assert report.verdict == "nothing reproduced"
     assert "the batch computed no site" in report.lines()[-2]
+
+
+def test_each_site_names_its_result_and_a_changed_input_what_differs(network, tmp_path,
+                                                                     capsys):
+    """auditor53: the network's verdict named no site's seed, input or release, a site
+    NOT reproduced named nothing of what differed, and the caution lacked the "Caution:"
+    of every other command. Each computed site is now followed by its result: line (the
+    text `verify SITE` prints), a site whose input was edited by the file's name and,
+    without --quiet, the record that differs; exit 1 as before. Both sites' inputs are
+    edited, so nothing is rerun (fast)."""
+    root = tmp_path / "root"
+    shutil.copytree(network.parent, root)
+    out = root / network.name
+    for key, value in zip(SITES, ("6.666", "7.777"), strict=True):
+        tower = root / key / "tower.csv"
+        lines = tower.read_text().splitlines(keepends=True)
+        cells = lines[50].split(",")
+        cells[lines[0].split(",").index("co2_exchange")] = value
+        lines[50] = ",".join(cells)
+        tower.write_text("".join(lines))
+
+    assert main(["verify", str(out)]) == 1
+    printed = capsys.readouterr().out.splitlines()
+    for key, value in zip(SITES, ("6.666", "7.777"), strict=True):
+        line = next(line for line in printed if line.split()[0] == key)
+        assert "input file tower.csv is not the one the result was computed from" in line
+        below = printed[printed.index(line) + 1:]
+        assert any(f"{value} now" in text for text in below[:3])
+        assert next(text for text in below if "result:" in text).startswith(
+            "    result: seed 0; input tower.csv (sha256 ")
+    assert printed[-1].startswith("Caution: reproduced numbers show")
+
+    assert main(["verify", str(out), "--quiet"]) == 1
+    quiet = capsys.readouterr().out.splitlines()
+    assert not any("7.777" in line for line in quiet)
+    assert sum(line.startswith("    result: seed 0;") for line in quiet) == 2
+    # one site's folder under --quiet: its verdict line said "1 difference(s)" alone
+    assert main(["verify", str(out / "birch"), "--quiet"]) == 1
+    head = capsys.readouterr().out.splitlines()[0]
+    assert head.startswith("NOT reproduced: 1 difference(s)")
+    assert "(input file tower.csv is not the one the result was computed from" in head
+
+
+def test_a_site_whose_input_is_missing_says_where_input_goes(network, tmp_path, capsys):
+    """auditor53: a network folder whose site input is at neither recorded place ended
+    in verify's "give its new location with --input", which this folder refuses; the
+    error line now names the site folder to give it with. One line, exit 2."""
+    root = tmp_path / "root"
+    shutil.copytree(network.parent, root)
+    (root / "alder" / "tower.csv").unlink()
+    log = root / network.name / "alder" / "run-log.json"
+    record = json.loads(log.read_text())
+    for key in ("absolute_paths", "result_folder"):   # unhashed: where the run read it
+        record.pop(key, None)
+    log.write_text(json.dumps(record))
+    assert main(["verify", str(root / network.name)]) == 2
+    captured = capsys.readouterr()
+    assert captured.out == "" and len(captured.err.splitlines()) == 1
+    assert captured.err.startswith("error: site 'alder': verify: the input file")
+    assert f"fluxpart verify {root / network.name / 'alder'} --input FILE" in captured.err
+
+
+def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(network,
+                                                                            tmp_path):
+    """auditor53: a value edited in a site's manifest.json broke the network seal with the
+    words "a batch stopped after writing some sites, or a run into that folder", though no
+    batch writes a manifest whose own seal fails; now "its manifest.json was edited". A
+    manifest replaced by one whose seal holds (another run) keeps the old words."""
+    from fluxpart.errors import InputFileError
+    from fluxpart.manifest import manifest_seal
+    from fluxpart.network_tables import network_table
+
+    out = _copy(network, tmp_path)
+    path = out / "alder" / "manifest.json"
+    manifest = json.loads(path.read_text(encoding="utf-8"))
+    manifest["seed"] = manifest["seed"] + 1
+    path.write_text(json.dumps(manifest), encoding="utf-8")
+    with pytest.raises(InputFileError, match="alder' changed after the network tables were "
+                       r"written \(its manifest.json was edited after it was written"):
+        network_table(out, "annual")
+    manifest["seal"] = manifest_seal(manifest)
+    path.write_text(json.dumps(manifest), encoding="utf-8")
+    with pytest.raises(InputFileError, match=r"written \(a batch stopped after writing"):
+        network_table(out, "annual")
