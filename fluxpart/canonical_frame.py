@@ -23,7 +23,7 @@ from .config import Config
 from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
 from .site import Site
 from .variables import REQUIRED, VARIABLES
-from .year_start_season import split_growing_season
+from .year_start_season import day_first_year_start, split_growing_season
 
 _NOT_STAMPED = ("the frame's index must be a DatetimeIndex of interval starts (local standard "
                 "time), got ")
@@ -320,6 +320,9 @@ def run_record(frame, site: Site, config: Config, provenance: dict | None) -> Ru
     warnings = [f"input: {text}" for text in [*(provenance or {}).get("reader", {}).get(
         "warnings", []), *notes]] + [f"budget year: {text}" for text in edges]
     warnings.extend(gapfill.event_notes(frame.index, config.events))
+    # a year start written day first (round mistakes54)
+    order = day_first_year_start(config.year_start)
+    warnings.extend([f"budget year: {order}"] if order else [])
     if "nee" in frame.columns:
         # a budget year opened inside the growing season (round mistakes41)
         season = split_growing_season(config.year_start, frame["nee"].to_numpy(dtype=float),

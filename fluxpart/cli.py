@@ -487,8 +487,11 @@ def _command_check(args) -> int:
         problems += list(thresholds.attrs.get("setting_notes", ()))
         problems += [f"{text} (run stops)" for text in thresholds.attrs.get("e0_stops", ())]
     from .settings_notes import ignored_settings
+    from .year_start_season import day_first_year_start
 
     problems += ignored_settings(config)
+    order = day_first_year_start(config.year_start)
+    problems += [f"budget year: {order}"] if order else []
     text = format_check(site_config.site, report, table, problems=problems,
                         notes=report.notes)
     if report.unit_refusals and len(problems) + len(report.warnings) > len(report.unit_refusals):

@@ -201,7 +201,7 @@ from .partition.nighttime import fit_e0_joint
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons
-from .vpd_exchange import vpd_exchanged_in_months
+from .vpd_exchange import vpd_exchanged_in_months, vpd_mapped_to_another
 
 __all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
            "preflight", "shade_at_clock_shift"]
@@ -701,14 +701,19 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             findings.append(Finding("input (vpd vapour pressure)", text, False))
         # the VPD column exchanged with another for some months (round layouts28): named
         # as such, not by its side effect on the temperature VPD and RH imply
-        exchanged = vpd_exchanged_in_months(
-            screened["tair"].to_numpy(dtype=float), screened["rh"].to_numpy(dtype=float),
-            screened["vpd"].to_numpy(dtype=float),
-            {name: screened[name].to_numpy(dtype=float)
-             for name in ("ustar", "tsoil", "rg", "nee") if name in screened.columns},
-            screened.index, names)
+        humidity = (screened["tair"].to_numpy(dtype=float),
+                    screened["rh"].to_numpy(dtype=float), screened["vpd"].to_numpy(dtype=float),
+                    {name: screened[name].to_numpy(dtype=float)
+                     for name in ("ustar", "tsoil", "rg", "nee") if name in screened.columns},
+                    screened.index, names)
+        exchanged = vpd_exchanged_in_months(*humidity)
         if exchanged:
             findings.append(Finding("input (vpd exchanged)", exchanged, False))
+        else:
+            # the whole record's mapping exchanged, a certain mistake (round mistakes54)
+            exchanged = vpd_mapped_to_another(*humidity)
+            if exchanged:
+                findings.append(Finding("input (vpd exchanged)", exchanged, True))
         soil = None
         if "tsoil" in screened.columns and not exchanged:
             # a VPD computed with the soil temperature, named by its cause where the

@@ -1,4 +1,5 @@
-"""The VPD column exchanged with another column for some months (round layouts28).
+"""The VPD column exchanged with another column for some months (round layouts28), or in
+the whole record's ``[input.columns]`` mapping (round mistakes54).
 
 A logger program changed within the record can write its columns in another order
 without a new header line: from some month on the column mapped as VPD holds another
@@ -7,7 +8,10 @@ mapped too, they tell which: VPD is e_s(T) (1 - RH / 100) at each moment, so the
 column follows the VPD that RH and T imply record for record, and no other quantity
 does. VPD and u* exchanged from July had moved the example's annual NEE by -25.4 g C m-2
 and were named only by their side effects (a seasonal u* threshold, a "sun-heated
-thermometer"): each lies in the other's range and rises by day.
+thermometer"): each lies in the other's range and rises by day. The same two columns
+exchanged in the mapping itself (``vpd`` and ``ustar`` each given the other's column) moved
+the grassland example's annual NEE by -30.2 g C m-2 (-4.4 sigma), GPP and Reco by -3 to
+-6 sigma, named only by the same side effects (round mistakes54).
 """
 
 from __future__ import annotations
@@ -20,7 +24,7 @@ from .column_faults import _correlation as _paired_correlation
 from .measured_months import month_runs_text
 from .variables import vpd_from_rh
 
-__all__ = ["vpd_exchanged_in_months"]
+__all__ = ["MAPPED_SHARE", "vpd_exchanged_in_months", "vpd_mapped_to_another"]
 
 #: Pearson correlation over a month's records between a VPD column and the VPD that RH
 #: and T of the same records imply, above which the column follows it (a probe's own VPD
@@ -34,12 +38,43 @@ _DOES_NOT_FOLLOW = 0.7
 #: Records of a month with VPD, RH, T and the other column present needed to judge it
 #: (ten days of half-hours; our choice)
 _MONTH_RECORDS = 480
+#: Share of the months that judge in which one other mapped column follows the implied VPD
+#: (while the VPD column follows it in none) for the mapping to be called exchanged [1];
+#: three quarters, our choice: a month whose VPD barely varies (a humid winter) may leave
+#: the correlation of the true VPD column short of :data:`_FOLLOWS`
+MAPPED_SHARE = 0.75
+#: Fewest months that judge for the mapping to be called exchanged (our choice: a season)
+_MAPPED_MONTHS = 3
 
 
 def _correlation(a: np.ndarray, b: np.ndarray) -> float:
     """Pearson correlation of the pairs both present, NaN below :data:`_MONTH_RECORDS`
     (the column checks' sums of products: the same bits on every CPU)."""
     return _paired_correlation(a, b, _MONTH_RECORDS)[0]
+
+
+def _month_followers(tair, rh, vpd, others: dict, stamps) -> list:
+    """Each calendar month that judges: ``(month, r, follower)``, r the VPD column's
+    correlation with the VPD that RH and T imply, `follower` the first of `others` whose
+    correlation exceeds :data:`_FOLLOWS` where r is below :data:`_DOES_NOT_FOLLOW` (else
+    None). A month judges where r is defined (:data:`_MONTH_RECORDS` pairs)."""
+    tair = np.asarray(tair, dtype=float)
+    implied = vpd_from_rh(np.asarray(rh, dtype=float), tair)
+    vpd = np.asarray(vpd, dtype=float)
+    months = pd.DatetimeIndex(stamps).to_period("M")
+    codes, labels = pd.factorize(months, sort=True)
+    others = {name: np.asarray(values, dtype=float) for name, values in others.items()}
+    judged = []
+    for code, rows in group_positions(codes, where=codes >= 0).items():
+        own = _correlation(vpd[rows], implied[rows])
+        if not np.isfinite(own):
+            continue
+        follower = None
+        if own < _DOES_NOT_FOLLOW:
+            follower = next((name for name, values in others.items()
+                             if _correlation(values[rows], implied[rows]) > _FOLLOWS), None)
+        judged.append((labels[code], own, follower))
+    return judged
 
 
 def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
@@ -84,28 +119,12 @@ def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
     Campbell, G. S. & Norman, J. M. (1998). An Introduction to Environmental Biophysics,
     2nd ed., Springer, ch. 3 (m).
     """
-    tair = np.asarray(tair, dtype=float)
-    implied = vpd_from_rh(np.asarray(rh, dtype=float), tair)
-    vpd = np.asarray(vpd, dtype=float)
-    months = pd.DatetimeIndex(stamps).to_period("M")
-    codes, labels = pd.factorize(months, sort=True)
-    follows_somewhere = False
+    judged = _month_followers(tair, rh, vpd, others, stamps)
+    follows_somewhere = any(own > _FOLLOWS for _, own, _ in judged)
     exchanged = {}
-    for code, rows in group_positions(codes, where=codes >= 0).items():
-        label = labels[code]
-        own = _correlation(vpd[rows], implied[rows])
-        if not np.isfinite(own):
-            continue
-        if own > _FOLLOWS:
-            follows_somewhere = True
-            continue
-        if own >= _DOES_NOT_FOLLOW:
-            continue
-        for name, values in others.items():
-            values = np.asarray(values, dtype=float)
-            if _correlation(values[rows], implied[rows]) > _FOLLOWS:
-                exchanged.setdefault(name, []).append(label)
-                break
+    for label, _, follower in judged:
+        if follower is not None:
+            exchanged.setdefault(follower, []).append(label)
     if not follows_somewhere or not exchanged:
         return None
     names = {**{"vpd": "vpd", "rh": "rh", "tair": "tair"}, **(columns or {})}
@@ -121,3 +140,60 @@ def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
             "other months: the two columns exchanged there (a logger program changed "
             "within the record without a new header?): exchange them in those months in "
             "a copy of the file")
+
+
+
+def vpd_mapped_to_another(tair, rh, vpd, others: dict, stamps, columns=None) -> str | None:
+    """A message where ``[input.columns]`` maps VPD's column to another variable, or None.
+
+    Parameters
+    ----------
+    tair, rh, vpd, others, stamps, columns
+        As :func:`vpd_exchanged_in_months`: air temperature [°C], relative humidity [%],
+        the column mapped as VPD [hPa], the other mapped columns to try and the records'
+        interval starts; the file's column names.
+
+    Returns
+    -------
+    str or None
+        The refusal text, naming both columns and the mapping to write; None where the
+        VPD column follows the implied VPD in any month, where fewer than
+        :data:`_MAPPED_MONTHS` months judge, or where no single other column follows it
+        in :data:`MAPPED_SHARE` of them.
+
+    Notes
+    -----
+    VPD = e_s(T) (1 - RH / 100) (Campbell & Norman 1998, ch. 3 (m)): a column that
+    follows it record for record (correlation above :data:`_FOLLOWS`) month after month
+    holds the VPD, whatever it is mapped as; u*, Rg, a soil temperature or NEE share only
+    its diurnal course (0.4 to 0.7). Where the column mapped as VPD follows it in no month
+    (below :data:`_DOES_NOT_FOLLOW` in every one) and one other mapped column does in
+    most, the two columns' names were exchanged in the mapping, and each variable's
+    values enter as the other's: the u* filter then screens nights by VPD. The months
+    where the VPD column follows in some and not others are
+    :func:`vpd_exchanged_in_months`' (a logger program changed within the record).
+
+    References
+    ----------
+    Campbell, G. S. & Norman, J. M. (1998). An Introduction to Environmental Biophysics,
+    2nd ed., Springer, ch. 3 (m).
+    """
+    judged = _month_followers(tair, rh, vpd, others, stamps)
+    if len(judged) < _MAPPED_MONTHS or any(own >= _DOES_NOT_FOLLOW for _, own, _ in judged):
+        return None
+    followers = [follower for _, _, follower in judged if follower is not None]
+    if not followers:
+        return None
+    name = max(dict.fromkeys(followers), key=followers.count)
+    count = followers.count(name)
+    if count < MAPPED_SHARE * len(judged):
+        return None
+    names = {**{"vpd": "vpd", "rh": "rh", "tair": "tair"}, **(columns or {})}
+    other = names.get(name, name)
+    return (f"[input.columns] vpd = {names['vpd']!r} and {name} = {other!r} look exchanged: "
+            f"column {other!r} follows the VPD that RH ({names['rh']!r}) and air temperature "
+            f"({names['tair']!r}) imply record for record (correlation above {_FOLLOWS}) in "
+            f"{count} of {len(judged)} months, which only a VPD does, while column "
+            f"{names['vpd']!r} follows it in none (below {_DOES_NOT_FOLLOW}); map "
+            f"vpd = {other!r} and {name} = {names['vpd']!r} (VPD = e_s(T) (1 - RH / 100), "
+            "Campbell & Norman 1998)")

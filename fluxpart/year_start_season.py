@@ -15,13 +15,19 @@ References
 Common practice (m): budget or "carbon" years from the dormant season, calendar years in
 the northern extratropics and July-June years in the southern (the hydrological year of
 summer-dry sites begins in autumn).
+
+A ``year_start`` written day first ("01-07" for 1 July) is read month first, as the
+setting is defined: 7 January. Every day-first start on a month's first day other than
+January's reads so, a day of January from the 2nd to the 12th (13 and above are no month
+and refused); :func:`day_first_year_start` names it (round mistakes54).
 """
 from __future__ import annotations
 
 import numpy as np
 import pandas as pd
 
-__all__ = ["DORMANT_SHARE", "MIN_MONTHS", "SPLIT_SHARE", "split_growing_season"]
+__all__ = ["DORMANT_SHARE", "MIN_MONTHS", "SPLIT_SHARE", "day_first_year_start",
+           "split_growing_season"]
 
 #: Calendar months with enough NEE for their mean needed to judge [1]: three quarters
 #: of a year, so the growing season of a seasonal record is among them (our choice).
@@ -109,3 +115,44 @@ def split_growing_season(year_start: str, nee, stamps, latitude: float,
             "1 January north of the tropics, 1 July south of them, the end of the dry "
             f"season at summer-dry and monsoon sites; this site lies at {where}): check the "
             "setting (another hemisphere's start?); used as set")
+
+
+def day_first_year_start(year_start: str) -> str | None:
+    """A warning where ``year_start`` reads as a January day that, written day first,
+    is the first of another month (``"01-07"``: 7 January, or 1 July meant?).
+
+    Parameters
+    ----------
+    year_start : str
+        ``"MM-DD"``, the first day of each budget year (checked by the config).
+
+    Returns
+    -------
+    str or None
+        The text, naming the setting, the day it reads as and the start meant day
+        first; None for any other start.
+
+    Notes
+    -----
+    Pure and cheap (the setting alone). Budget years start on a month's first day
+    (common practice (m): 1 January, 1 July, the first of the month ending a dry
+    season), and the date order of many locales is day first (ISO 8601 writes month
+    before day, as the setting does). Of the starts a day-first writer types, those of
+    February to December's first day ("01-02" .. "01-12") are valid month-first days of
+    January, so they pass the config's check and move every budget year's edges by up to
+    eleven months: at the grassland example "01-07" cut its one year into two partial
+    years, 2021's sums 0.2 months short (round mistakes54). A start of 2 to 12 January
+    that is meant stays as set; the warning cannot change a number.
+
+    References
+    ----------
+    ISO 8601-1:2019, Date and time: representations for information interchange, §5.2.2
+    (calendar date, month before day) (m).
+    """
+    month, day = (int(part) for part in year_start.split("-"))
+    if month != 1 or not 2 <= day <= 12:
+        return None
+    return (f"[processing] year_start = \"{year_start}\" is read as {day} January (the "
+            f"setting is \"MM-DD\", month first), a start budget years rarely take: if "
+            f"1 {_MONTHS[day - 1]} was meant (day first), write year_start = "
+            f"\"{day:02d}-01\"; used as set")

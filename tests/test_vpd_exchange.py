@@ -96,3 +96,23 @@ def test_months_apart_are_not_shown_as_one_run():
     assert text is not None
     assert "2 month(s) (2021-03, 2021-09)" in text
     assert ".." not in text and "2021-03 to 2021-09" not in text
+
+
+def test_the_mapping_exchanged_for_the_whole_record_is_named():
+    """Round mistakes54, known truth: ``vpd`` and ``ustar`` each mapped to the other's
+    column for the whole record (VPD = e_s(T) (1 - RH / 100), Campbell & Norman 1998 (m));
+    the months-apart check names nothing (VPD follows in no month), this one names both
+    columns and the mapping to write. The columns as measured, and an unrelated VPD
+    column beside a u* that follows nothing, are not named."""
+    from fluxpart.vpd_exchange import vpd_mapped_to_another
+    stamps, tair, rh, vpd, others = _year(11)
+    written = {"ustar": vpd / 10, "tsoil": others["tsoil"]}        # the file's kPa as u*
+    names = {"vpd": "u_fric", "ustar": "VPD"}
+    assert vpd_exchanged_in_months(tair, rh, others["ustar"], written, stamps, names) is None
+    text = vpd_mapped_to_another(tair, rh, others["ustar"], written, stamps, names)
+    assert text is not None
+    assert "vpd = 'u_fric' and ustar = 'VPD' look exchanged" in text
+    assert "in 12 of 12 months" in text and "map vpd = 'VPD' and ustar = 'u_fric'" in text
+    assert vpd_mapped_to_another(tair, rh, vpd, others, stamps) is None
+    unrelated = np.random.default_rng(11).gamma(2.0, 3.0, vpd.size)
+    assert vpd_mapped_to_another(tair, rh, unrelated, others, stamps) is None

@@ -54,3 +54,18 @@ def test_too_few_months_say_nothing(grassland):
     nee, stamps = grassland
     summer = (stamps.month >= 4) & (stamps.month <= 10)
     assert split_growing_season("07-01", nee[summer], stamps[summer], 49.3) is None
+
+
+@pytest.mark.parametrize("start, meant", [("01-07", "07-01"), ("01-02", "02-01"),
+                                          ("01-12", "12-01"), ("01-01", None),
+                                          ("07-01", None), ("01-15", None), ("12-01", None)])
+def test_a_start_written_day_first_is_named(start, meant):
+    """Round mistakes54: a start read month first as a January day from the 2nd to the
+    12th is the first of another month written day first (ISO 8601 writes month before
+    day (m); budget years start on a month's first day, common practice (m))."""
+    from fluxpart.year_start_season import day_first_year_start
+    text = day_first_year_start(start)
+    if meant is None:
+        assert text is None
+    else:
+        assert f'year_start = "{start}"' in text and f'write year_start = "{meant}"' in text

@@ -10,6 +10,11 @@ of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
 Round mistakes48 added 35 cases (mappings, units, windows in records, percentages as
 shares, zones, the clock check off) and ``--use``: how far a user's own number moves
 where the result is used wrongly.
+
+Round mistakes54 added 54 cases (44 of the grassland, 10 of the maize logger; the time
+zone's sign, longitude west for east, degrees and minutes as decimals, a year start
+written day first, columns exchanged in the mapping, missing codes that are real values,
+another site's position, settings the config does not know): see DEVELOPERS.md.
 """
 
 from __future__ import annotations
@@ -188,6 +193,83 @@ CASES = {
     "e0_fallback 100": lambda t: _set(t, "processing", "e0_fallback", "100"),
     "night_rg_threshold 20 (PPFD's compensation point)": lambda t: _set(
         t, "processing", "night_rg_threshold", "20"),
+    # round mistakes54
+    "utc_offset -1 (sign flipped)": lambda t: _set(t, "site", "utc_offset", "-1"),
+    "utc_offset 2 (summer time's)": lambda t: _set(t, "site", "utc_offset", "2"),
+    "longitude -10.2 (west for east)": lambda t: _set(t, "site", "longitude", "-10.2"),
+    "latitude 49.18 (49°18' as decimals)": lambda t: _set(t, "site", "latitude", "49.18"),
+    "longitude 10.12 (10°12' as decimals)": lambda t: _set(t, "site", "longitude", "10.12"),
+    "latitude and longitude exchanged": lambda t: _set(_set(t, "site", "latitude", "10.2"),
+                                                       "site", "longitude", "49.3"),
+    "latitude 41.3 (another site's, 8° off)": lambda t: _set(t, "site", "latitude", "41.3"),
+    "latitude 57.3 (another site's, 8° off)": lambda t: _set(t, "site", "latitude", "57.3"),
+    "year_start 01-07 (day-month, July meant)": lambda t: _set(t, "processing", "year_start",
+                                                              '"01-07"'),
+    "year_start 01-04 (day-month, April meant)": lambda t: _set(t, "processing",
+                                                               "year_start", '"01-04"'),
+    "vpd and rh columns exchanged": lambda t: _set(_set(t, "input.columns", "vpd",
+                                                        '"rel_humidity"'),
+                                                   "input.columns", "rh", '"vpd_kpa"'),
+    "tair and tsoil columns exchanged": lambda t: _set(_set(t, "input.columns", "tair",
+                                                            '"soil_temp_5cm"'),
+                                                       "input.columns", "tsoil",
+                                                       '"air_temp_c"'),
+    "rg mapped as ppfd": lambda t: t.replace('rg = "solar_down"', 'ppfd = "solar_down"'),
+    "missing [-9999, 0]": lambda t: _set(t, "input", "missing", "[-9999, 0]"),
+    "missing [-9999, -1]": lambda t: _set(t, "input", "missing", "[-9999, -1]"),
+    "ustar_threshold 20 fixed (cm s-1)": lambda t: _set(
+        _set(t, "processing", "ustar_method", '"fixed"'), "processing", "ustar_threshold",
+        "20"),
+    "seed -1": lambda t: _set(t, "processing", "seed", "-1"),
+    "seed 1.5": lambda t: _set(t, "processing", "seed", "1.5"),
+    "time_zone Europe/Berlin (standard-time file)": lambda t: _set(
+        t, "input", "time_zone", '"Europe/Berlin"'),
+    "units: tair 'K' (values °C)": lambda t: _set(t, "input.units", "tair", '"K"'),
+    "units: rh 'fraction' (values %)": lambda t: _set(t, "input.units", "rh", '"fraction"'),
+    "events 2021-06-04 (UTC day of a local morning)": lambda t: _set(
+        t, "processing", "events", '["2021-06-04"]'),
+    "latitude -49.3 (south for north)": lambda t: _set(t, "site", "latitude", "-49.3"),
+    "time_zone Etc/GMT+1 (POSIX sign, UTC-1)": lambda t: _set(t, "input", "time_zone",
+                                                              '"Etc/GMT+1"'),
+    "time_zone Etc/GMT-1 (UTC+1, as meant)": lambda t: _set(t, "input", "time_zone",
+                                                            '"Etc/GMT-1"'),
+    "ustar_min_threshold 1 (cm s-1)": lambda t: _set(t, "processing", "ustar_min_threshold",
+                                                     "1"),
+    "random_error_draws 0": lambda t: _set(t, "processing", "random_error_draws", "0"),
+    "ustar_bootstrap_draws 0": lambda t: _set(t, "processing", "ustar_bootstrap_draws", "0"),
+    "ustar_scenarios [] (none)": lambda t: _set(t, "processing", "ustar_scenarios", "[]"),
+    "e0_bounds [450, 30] (reversed)": lambda t: _set(t, "processing", "e0_bounds",
+                                                     "[450, 30]"),
+    "another site's position (52.2 N, 25.0 E, UTC+2)": lambda t: _set(_set(_set(
+        t, "site", "latitude", "52.2"), "site", "longitude", "25.0"), "site", "utc_offset",
+        "2"),
+    "ustar and vpd columns exchanged": lambda t: _set(_set(t, "input.columns", "vpd",
+                                                           '"friction_velocity"'),
+                                                      "input.columns", "ustar", '"vpd_kpa"'),
+    "ustar and vpd columns exchanged, no rh": lambda t: _drop(_set(_set(
+        t, "input.columns", "vpd", '"friction_velocity"'), "input.columns", "ustar",
+        '"vpd_kpa"'), "rh"),
+    "nee_flag mapping dropped": lambda t: _drop(t, "nee_flag"),
+    "flag_accept [0, 1]": lambda t: _set(t, "input", "flag_accept", "[0, 1]"),
+    "units: vpd 'Pa' (values kPa)": lambda t: _set(t, "input.units", "vpd", '"Pa"'),
+    "units: vpd 'Pa' (values kPa), no rh": lambda t: _drop(_set(t, "input.units", "vpd",
+                                                               '"Pa"'), "rh"),
+    "ustar_threshold 0.5 fixed (a forest's)": lambda t: _set(
+        _set(t, "processing", "ustar_method", '"fixed"'), "processing", "ustar_threshold",
+        "0.5"),
+    "tsoil mapped to the rh column": lambda t: _set(t, "input.columns", "tsoil",
+                                                    '"rel_humidity"'),
+    "rg and tair columns exchanged": lambda t: _set(_set(t, "input.columns", "rg",
+                                                         '"air_temp_c"'),
+                                                    "input.columns", "tair", '"solar_down"'),
+    "rh mapped to the vpd column, vpd dropped": lambda t: _set(_drop(t, "vpd"),
+                                                               "input.columns", "rh",
+                                                               '"vpd_kpa"'),
+    "elevation 1640 in [site] (feet)": lambda t: _set(t, "site", "elevation", "1640"),
+    "measurement_height 300 in [site] (cm)": lambda t: _set(t, "site",
+                                                            "measurement_height", "300"),
+    "records_per_hour 1 in [input] (30 min data)": lambda t: _set(t, "input",
+                                                                  "records_per_hour", "1"),
 }
 
 #: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
@@ -202,6 +284,26 @@ MAIZE_CASES = {
                                                      '"Europe/London"'),
     "maize: night_rg_threshold 0.01": lambda t: _set(t, "processing", "night_rg_threshold",
                                                      "0.01"),
+    # round mistakes54
+    "maize: ppfd mapped as rg": lambda t: t.replace('ppfd = "PAR_in"', 'rg = "PAR_in"'),
+    "maize: storage mapping dropped": lambda t: _drop(t, "storage"),
+    "maize: nee and storage exchanged": lambda t: t.replace(
+        'nee = "co2_turb"', 'nee = "co2_store"').replace('storage = "co2_store"',
+                                                         'storage = "co2_turb"'),
+    "maize: utc_offset 2 beside time_zone": lambda t: _set(t, "site", "utc_offset", "2"),
+    "maize: time_zone Etc/GMT-1 (civil file as standard)": lambda t: _set(
+        t, "input", "time_zone", '"Etc/GMT-1"'),
+    "maize: missing [-9999, 0] (the flags' 0)": lambda t: _set(t, "input", "missing",
+                                                               "[-9999, 0]"),
+    "maize: nee mapped to the storage column": lambda t: _drop(t.replace(
+        'nee = "co2_turb"', 'nee = "co2_store"'), "storage"),
+    "maize: ustar and tsoil exchanged": lambda t: _set(_set(t, "input.columns", "ustar",
+                                                            '"T_soil"'),
+                                                       "input.columns", "tsoil", '"u_star"'),
+    "maize: missing [-9999, 100] (RH at saturation)": lambda t: _set(t, "input", "missing",
+                                                                      "[-9999, 100]"),
+    "maize: flag_accept [0, 1] for QC_flux alone": lambda t: _set(t, "input.columns",
+                                                                  "nee_flag", '"QC_flux"'),
 }
 
 
