@@ -106,6 +106,26 @@ def test_an_offset_its_zone_does_not_keep_is_refused_naming_both(tmp_path):
         _read(path, time_format="ISO8601")
 
 
+def test_an_offset_its_zone_does_not_keep_is_refused_under_a_format_of_another_order(
+        tmp_path):
+    """Twin under time_format = "%d.%m.%Y %H:%M%z": "+01:00[Europe/Berlin]" in June is
+    refused as under "ISO8601" (before review70 read by the offset, with a note that
+    each offset was the zone's); "+02:00" reads as the clean file."""
+    ends, values, expected = _clean(tmp_path)
+    for offset in ("+01:00", "+02:00"):
+        stamps = [f"{e + pd.Timedelta('1h'):%d.%m.%Y %H:%M}{offset}[Europe/Berlin]"
+                  for e in ends]
+        path = tmp_path / f"zoned{offset[1:3]}.csv"
+        path.write_text("\n".join(_lines(stamps, values)) + "\n")
+        if offset == "+01:00":
+            with pytest.raises(TimestampError, match=r"offset \+01:00 is not that of its "
+                                                     r"zone \[Europe/Berlin\].*\(\+02:00\)"):
+                _read(path, time_format="%d.%m.%Y %H:%M%z")
+        else:
+            read, _ = _read(path, time_format="%d.%m.%Y %H:%M%z")
+            pd.testing.assert_frame_equal(read, expected)
+
+
 def test_a_gb18030_header_undeclared_is_refused_naming_gb18030(tmp_path):
     """Names in Chinese saved as GB18030, no encoding declared: the refusal names
     "gb18030" and the names as it reads them; declared, the file reads as the clean one."""
