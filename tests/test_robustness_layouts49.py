@@ -63,6 +63,19 @@ def test_nee_and_vpd_in_other_units_declared_read_as_the_clean_file(tmp_path, co
     pd.testing.assert_index_equal(read.index, expected.index)
 
 
+def test_nee_in_umol_declared_in_micrograms_is_refused_naming_umol(tmp_path):
+    """Twin: the clean file's NEE (µmol m-2 s-1) declared "µg CO2 m-2 s-1" is read 44.0
+    times too small (the molar mass of CO2, above), 99 % of values then below 1 µmol
+    m-2 s-1 and night noise below any flux record's: refused naming µmol (read before,
+    every flux 44 times too small, as no unit check judged a declared unit)."""
+    from fluxpart.errors import ImplausibleValueError
+    _clean(tmp_path)
+    with pytest.raises(ImplausibleValueError, match=r"read as 'µg CO2 m-2 s-1', 44 times "
+                                                    r"smaller.*set \[input.units\] nee = "
+                                                    r'"µmol m-2 s-1"'):
+        _read(tmp_path / "clean.csv", units={"vpd": "hPa", "nee": "µg CO2 m-2 s-1"})
+
+
 def test_a_paged_export_with_the_header_on_every_page_reads_as_the_clean_file(tmp_path):
     """A form feed and the header again above every day's 48 records: read as the clean
     file, with a note counting the 7 page breaks (8 days)."""
@@ -151,6 +164,23 @@ def test_a_cp1252_degree_sign_is_not_named_as_a_double_byte_encoding(tmp_path):
     path.write_bytes(("\n".join(_lines([f"{e:%Y-%m-%d %H:%M}" for e in ends], values,
                                        head=head)) + "\n").encode("cp1252"))
     with pytest.raises(InputFileError, match=r'set \[input\] encoding = "latin-1"') as caught:
+        _read(path)
+    assert "gb18030" not in str(caught.value)
+
+
+def test_latin_letters_in_pairs_within_words_are_not_named_as_gb18030(tmp_path):
+    """Twin: Portuguese names in cp1252 whose only letters outside ASCII come in pairs
+    within words ("Radiação", "Precipitação": "çã" is 0xE7 0xE3, one ideograph in
+    GB18030): Latin-1 stays the advice, with the names as it reads them (review70:
+    GB18030 was named first, reading "玢")."""
+    ends, values, _ = _clean(tmp_path)
+    head = ["stamp", "co2_flux", "us", "Radiação", "t_air", "vpd", "Precipitação"]
+    rows = _lines([f"{e:%Y-%m-%d %H:%M}" for e in ends], values, head=head[:-1])
+    path = tmp_path / "portuguese.csv"
+    path.write_bytes(("\n".join([",".join(head)] + [r + ",0" for r in rows[1:]])
+                      + "\n").encode("cp1252"))
+    with pytest.raises(InputFileError, match=r'set \[input\] encoding = "latin-1".*'
+                                             r"'Radiação'") as caught:
         _read(path)
     assert "gb18030" not in str(caught.value)
 
