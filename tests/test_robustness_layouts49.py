@@ -222,3 +222,18 @@ def test_letters_in_another_case_than_flag_accept_are_refused_naming_them(tmp_pa
     path, _ = _flagged(tmp_path, "abc")
     with pytest.raises(ImplausibleValueError, match=r"values not listed \('b' in 103, 'a' in 102, 'c' in 102\)"):
         _read(path, columns=MAPPING | {"nee_flag": "qc"}, flag_accept=["A", "B"])
+
+
+def test_a_listed_word_also_among_the_missing_codes_still_keeps_its_records(tmp_path):
+    """Twin: "A" listed in flag_accept and in [input] missing (a code list shared by
+    every column): the site flag is the one without it, and a warning says "A" is
+    missing in the data columns only, as for a number (mistakes17). Before review70 "A"
+    was read as no flag, every record flagged was a rejected one, and the file was
+    refused as a flag scale reversed."""
+    from test_robustness_layouts26 import MAPPING
+    path, _ = _flagged(tmp_path, "ABC")
+    columns = MAPPING | {"nee_flag": "qc"}
+    expected, _ = _read(path, columns=columns, flag_accept=["A"])
+    read, report = _read(path, columns=columns, flag_accept=["A"], missing=[-9999, "A"])
+    pd.testing.assert_series_equal(read["nee_flag"], expected["nee_flag"])
+    assert any("missing lists 'A'" in w for w in report.warnings), report.warnings
