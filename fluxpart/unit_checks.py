@@ -983,6 +983,13 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                             f"{median:.3g} times the VPD computed from rh and tair: the file "
                             f"is in {unit}: set [input.units] vpd = \"{unit}\" (or list vpd "
                             "in [input] accept_units)"), None
+    # from the values alone only an SI prefix read as another (kPa as hPa) is named: psi
+    # and inHg are no prefix's slip (review70: since layouts49 a declared kPa of a record
+    # humid throughout was refused naming inHg, where no larger unit had judged it)
+    larger = [(factor, unit) for factor, unit in larger
+              if float(np.log10(scale[unit])).is_integer()]
+    if not larger:
+        return None, None
     # VPD cannot exceed the saturation vapour pressure, so a file in the next larger unit
     # (factor f) read as the declared one stays below 1/f of it: 0.1 for kPa read as hPa,
     # 0.01 for hPa read as Pa. A bound of 0.1 for a declared Pa would call a correct rain

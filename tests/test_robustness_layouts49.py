@@ -237,3 +237,28 @@ def test_a_listed_word_also_among_the_missing_codes_still_keeps_its_records(tmp_
     read, report = _read(path, columns=columns, flag_accept=["A"], missing=[-9999, "A"])
     pd.testing.assert_series_equal(read["nee_flag"], expected["nee_flag"])
     assert any("missing lists 'A'" in w for w in report.warnings), report.warnings
+
+
+def test_a_humid_record_declared_in_kpa_is_not_told_to_be_inches_of_mercury():
+    """VPD at 6 % of the saturation vapour pressure throughout (relative humidity 94 %,
+    a cloud forest's) at 23-25 °C for ten days: declared kPa, no refusal names "inHg"
+    (psi and inHg are no SI prefix's slip; review70: since layouts49 refused so, where
+    no larger unit had judged a kPa record before); the same record declared hPa and
+    written in kPa stays named kPa (a prefix's slip). Saturation vapour pressure:
+    fluxpart's own, checked against the CRC Handbook in test_variables. The psi record of a
+    file with rh beside it is still named psi from the VPD computed from rh and tair."""
+    from fluxpart.unit_checks import mixup_messages
+    from fluxpart.variables import saturation_vapour_pressure
+    count = 48 * 10
+    tair = 24.0 + np.sin(np.arange(count) / 7.6)
+    vpd = 0.06 * saturation_vapour_pressure(tair)                  # hPa
+    columns = {"vpd": "vpd", "tair": "tair"}
+    kpa, _ = mixup_messages({"vpd": vpd, "tair": tair}, {"vpd": "kPa"}, columns, 30)
+    assert "vpd" not in kpa, kpa
+    hpa, _ = mixup_messages({"vpd": vpd / 10.0, "tair": tair}, {"vpd": "hPa"}, columns, 30)
+    assert 'vpd = "kPa"' in hpa["vpd"]
+    rh = np.linspace(40.0, 80.0, count)
+    psi = saturation_vapour_pressure(tair) * (1 - rh / 100) / HPA_PER_PSI
+    named, _ = mixup_messages({"vpd": psi, "tair": tair, "rh": rh}, {"vpd": "hPa"},
+                              columns | {"rh": "rh"}, 30)
+    assert 'the file is in psi' in named["vpd"]
