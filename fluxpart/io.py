@@ -1904,6 +1904,13 @@ def _check_flag_accept(value) -> tuple:
             isinstance(v, str) and v.strip() for v in value):
         # flags written as words or grade letters (layouts49; refused before)
         return tuple(v.strip() for v in value)
+    if isinstance(value, (list, tuple)) and any(isinstance(v, str) and not v.strip()
+                                                for v in value):
+        # review70: named "numbers or words, not both" before, where no number is listed
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)} lists an empty word: "
+                          "an empty flag cell is no flag (its record is kept, as a missing "
+                          "code's); list only the words that mean a good record, e.g. "
+                          "flag_accept = [\"OK\"]")
     if isinstance(value, (list, tuple)) and any(isinstance(v, str) for v in value):
         raise ConfigError(f"[input] flag_accept = {setting_text(value)}: list the flag "
                           "values that keep a record as numbers or as words, not both "

@@ -262,3 +262,14 @@ def test_a_humid_record_declared_in_kpa_is_not_told_to_be_inches_of_mercury():
     named, _ = mixup_messages({"vpd": psi, "tair": tair, "rh": rh}, {"vpd": "hPa"},
                               columns | {"rh": "rh"}, 30)
     assert 'the file is in psi' in named["vpd"]
+
+
+@pytest.mark.parametrize("setting", [[""], ["OK", " "]])
+def test_an_empty_word_in_flag_accept_is_refused_as_empty(setting):
+    """flag_accept listing an empty word: refused naming it (an empty cell is no flag),
+    not as numbers and words mixed (review70), no number being listed."""
+    from fluxpart.errors import ConfigError
+    from fluxpart.io import _check_flag_accept
+    with pytest.raises(ConfigError, match="lists an empty word") as caught:
+        _check_flag_accept(setting)
+    assert "not both" not in str(caught.value)
