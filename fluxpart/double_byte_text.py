@@ -11,7 +11,9 @@ UTF-8 such a file fails at its first name; the reader's refusal named only the
 single-byte encodings, whose reading of "时间" is "Ê±¼ä" (round layouts49). A line whose
 bytes outside ASCII all come in runs of even length of such bytes, each decoding in one
 of these encodings to ideographs, kana or hangul only, names that encoding with its
-reading. The
+reading. A run between two ASCII letters is read as letters of a word in a Latin
+script ("Radiação": "çã" is 0xE7 0xE3 in Latin-1, which GB18030 reads as one ideograph),
+and the line then names no double-byte encoding (review70). The
 choice stays the user's: the bytes of two such encodings can both decode to ideographs.
 
 References
@@ -28,6 +30,8 @@ DOUBLE_BYTE = ("gb18030", "euc-kr")
 
 #: Runs of bytes outside ASCII.
 _RUNS = re.compile(rb"[\x80-\xff]+")
+#: A run of bytes outside ASCII between two ASCII letters.
+_IN_A_WORD = re.compile(rb"[A-Za-z][\x80-\xff]+[A-Za-z]")
 #: CJK symbols and punctuation, hiragana, katakana, CJK unified ideographs (and their
 #: extension A), hangul syllables, full-width forms (not the half-width katakana).
 _EAST_ASIAN = re.compile("[\u3000-\u30ff\u3400-\u4dbf\u4e00-\u9fff\uac00-\ud7a3"
@@ -48,7 +52,8 @@ def double_byte_readings(line: bytes) -> dict:
     -------
     dict
         Empty where a run has odd length or a byte below 0xA1 (one byte a character,
-        a single-byte encoding's), or no encoding reads the runs so.
+        a single-byte encoding's), or stands between two ASCII letters (within a word
+        of a Latin script), or no encoding reads the runs so.
 
     Examples
     --------
@@ -56,9 +61,13 @@ def double_byte_readings(line: bytes) -> dict:
     '时间 气温'
     >>> double_byte_readings("Zeit,Temp °C".encode("cp1252"))
     {}
+    >>> double_byte_readings("Radiação,Precipitação".encode("cp1252"))
+    {}
     """
     runs = _RUNS.findall(line)
     if not runs or any(len(run) % 2 or min(run) < 0xA1 for run in runs):
+        return {}
+    if _IN_A_WORD.search(line):
         return {}
     readings = {}
     for encoding in DOUBLE_BYTE:

@@ -951,7 +951,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
     warnings: list[str] = []
     if flag_columns and exempted:
-        shown = ", ".join(f"{v:g}" for v in exempted)
+        shown = ", ".join(repr(v) if isinstance(v, str) else f"{v:g}" for v in exempted)
         warnings.append(f"[input] missing lists {shown}, which [input] flag_accept keeps as a "
                         f"good record: {shown} is read as missing in the data columns only, not "
                         f"in the flag column(s) {', '.join(repr(c) for c in flag_columns)}")
@@ -1904,6 +1904,13 @@ def _check_flag_accept(value) -> tuple:
             isinstance(v, str) and v.strip() for v in value):
         # flags written as words or grade letters (layouts49; refused before)
         return tuple(v.strip() for v in value)
+    if isinstance(value, (list, tuple)) and any(isinstance(v, str) and not v.strip()
+                                                for v in value):
+        # review70: named "numbers or words, not both" before, where no number is listed
+        raise ConfigError(f"[input] flag_accept = {setting_text(value)} lists an empty word: "
+                          "an empty flag cell is no flag (its record is kept, as a missing "
+                          "code's); list only the words that mean a good record, e.g. "
+                          "flag_accept = [\"OK\"]")
     if isinstance(value, (list, tuple)) and any(isinstance(v, str) for v in value):
         raise ConfigError(f"[input] flag_accept = {setting_text(value)}: list the flag "
                           "values that keep a record as numbers or as words, not both "
@@ -1928,7 +1935,11 @@ def _flag_missing_codes(missing: tuple, flag_accept: tuple) -> tuple[tuple, list
     A value that keeps a record cannot mean "no flag" in the flag's own column.
     """
     if flag_are_words(flag_accept):
-        return tuple(missing), []             # the words are compared before the numbers
+        # a listed word is no missing code in the flag columns either (review70: a word
+        # both listed and in `missing` read as no flag, each such record kept unjudged)
+        listed = set(flag_accept)
+        kept = tuple(code for code in missing if str(code).strip() not in listed)
+        return kept, sorted({str(code).strip() for code in missing} & listed)
     accepted = {float(v) for v in flag_accept}
     kept = tuple(code for code in missing if finite_number(code) not in accepted)
     left_out = sorted({finite_number(code) for code in missing} & accepted)

@@ -1443,12 +1443,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     if time_format.upper() == "ISO8601" or time_format.endswith("%z"):
         # RFC 9557's zone after the offset, "+02:00[Europe/Berlin]": read by the offsets
         # where they are the zone's (layouts49; refused before as not matching the format)
-        text, zones, at, problem = zone_suffixes(text)
+        text, zones, at, problem = zone_suffixes(text, time_format)
         if problem:
             raise TimestampError(
                 f"{_time_setting(time_columns)}: {_where(source, lines, at)} has stamp "
-                f"{as_written.iloc[at]!r}: {problem}, so the stamp states two times (RFC "
-                "9557); write each stamp's offset as its zone has it, or leave out the "
+                f"{as_written.iloc[at]!r}: {problem} (RFC 9557); write each stamp's offset as its zone has it, or leave out the "
                 "zone in brackets, in a copy of the file")
         if zones:
             notes.append(ReaderNote(

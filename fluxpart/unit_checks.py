@@ -32,6 +32,7 @@ import numpy as np
 
 from . import nee_limits
 from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
+from .errors import UnitError
 from .nee_smoothing import (
     _MIN_PAIRS,
     SMOOTHED_CORRELATION,
@@ -452,9 +453,15 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     `smoothed` True: the whole record's night changes correlate as a running mean's
     (:func:`_smoothed_night`), so a part's quiet noise is not judged (a month holds too
     few night pairs to tell by itself).
+
+    NEE in µmol m-2 s-1 declared in a unit the reader divides ("µg CO2 m-2 s-1", 44.0
+    times smaller) is judged the same way once read, and named so (review70: read 44
+    times too small before, as no unit check looked at a declared unit).
     """
     nee = converted.get("nee")
-    if nee is None or not reads_as_canonical("nee", units.get("nee")):
+    declared = units.get("nee")
+    divided = _divided_nee_unit(declared)
+    if nee is None or not (reads_as_canonical("nee", declared) or divided):
         return None, None
     present = np.abs(nee[np.isfinite(nee)])
     if present.size < 48:
@@ -504,6 +511,12 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
             "file is in mg CO2 m-2 s-1 (22.7 times smaller), or nee = \"g C m-2\" if it holds "
             f"g C m-2 per {interval_minutes}-minute record ({per_record:.3g} times smaller)"
             f"{millimoles} (or list nee in [input] accept_units to keep the values as they are)")
+    if divided:
+        text = (f"column {columns['nee']!r} (nee, read as {declared!r}, {divided:.3g} times "
+                f"smaller than µmol m-2 s-1): {found} once read so; the values look like "
+                "µmol m-2 s-1 as written: set [input.units] nee = \"µmol m-2 s-1\" if the "
+                "file is in µmol m-2 s-1 (or list nee in [input] accept_units to keep the "
+                "values as they are)")
     active = _active(converted, 5.0)
     nee_active = None if active is None else nee[active & np.isfinite(nee)]
     # Under warm, bright conditions an ecosystem's exchange together with the random
@@ -513,9 +526,25 @@ def _nee_message(converted: dict, units: dict, columns: dict, interval_minutes: 
     if (nee_active is not None and nee_active.size >= _MIN_ACTIVE_RECORDS
             and _enough_days(present.size, interval_minutes)):
         return text, None
+    if divided:
+        return None, (f"nee: read as {declared!r}, but {found} once read so; a half-hourly "
+                      "flux record is rarely that small: if the file is in µmol m-2 s-1, "
+                      "set [input.units] nee = \"µmol m-2 s-1\"")
     return None, (f"nee: read as µmol m-2 s-1, but {found}; a half-hourly flux record is "
                   "rarely that small: if the file is in mg CO2 m-2 s-1, set [input.units] nee "
                   "= \"mg CO2 m-2 s-1\"")
+
+
+def _divided_nee_unit(declared) -> float | None:
+    """The factor by which a declared NEE unit's values are divided when read ("µg CO2
+    m-2 s-1": 44.0), or None for a unit read as written or multiplied."""
+    if declared is None or (("nee", declared) in PER_INTERVAL_UNITS):
+        return None
+    try:
+        scale = float(to_canonical(np.array([1.0]), "nee", declared)[0])
+    except UnitError:                           # an unknown unit is refused elsewhere
+        return None
+    return 1.0 / scale if 0.0 < scale < 1.0 else None
 
 
 def _zero_code_message(converted: dict, columns: dict, interval_minutes: int, missing=()):
@@ -954,6 +983,13 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
                             f"{median:.3g} times the VPD computed from rh and tair: the file "
                             f"is in {unit}: set [input.units] vpd = \"{unit}\" (or list vpd "
                             "in [input] accept_units)"), None
+    # from the values alone only an SI prefix read as another (kPa as hPa) is named: psi
+    # and inHg are no prefix's slip (review70: since layouts49 a declared kPa of a record
+    # humid throughout was refused naming inHg, where no larger unit had judged it)
+    larger = [(factor, unit) for factor, unit in larger
+              if float(np.log10(scale[unit])).is_integer()]
+    if not larger:
+        return None, None
     # VPD cannot exceed the saturation vapour pressure, so a file in the next larger unit
     # (factor f) read as the declared one stays below 1/f of it: 0.1 for kPa read as hPa,
     # 0.01 for hPa read as Pa. A bound of 0.1 for a declared Pa would call a correct rain
@@ -1425,7 +1461,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 refusals["nee"] = refuse
             if warn:
                 warnings.append(warn)
-            if not refuse:
+            if not refuse and reads_as_canonical("nee", units.get("nee")):
                 # a running mean's quiet noise is no unit in any month (round mistakes29)
                 smoothed = ("nee" in converted
                             and _smoothed_night(converted["nee"], converted, potential))

@@ -35,13 +35,19 @@ _SUFFIX = re.compile(r"^(?P<stamp>.*?(?:Z|[+-]\d{2}(?::?\d{2})?))\[!?(?P<zone>[A
 _OFFSET = re.compile(r"(?P<sign>[+-])(?P<hours>\d{2}):?(?P<minutes>\d{2})?$")
 
 
-def zone_suffixes(text: pd.Series) -> tuple[pd.Series, list, int, str]:
+def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
+                  ) -> tuple[pd.Series, list, int, str]:
     """Stamp text without RFC 9557 zone suffixes, the zones named, and any disagreement.
 
     Parameters
     ----------
     text : pandas.Series of str
         One file's stamp cells, read under an ISO 8601 format with offsets.
+    time_format : str
+        ``[input] time_format``: "ISO8601" or a strptime format ending in ``%z``
+        ("%d.%m.%Y %H:%M%z"), under which the stamps are read to their instants to be
+        compared with their zones (review70: read as ISO 8601 only, a stamp of another
+        order was not compared, its offset taken as the zone's).
 
     Returns
     -------
@@ -50,7 +56,8 @@ def zone_suffixes(text: pd.Series) -> tuple[pd.Series, list, int, str]:
         has one); the zone names written, sorted; and where every offset is its zone's at
         that instant ``-1, ""``, else the position of the first stamp whose offset
         disagrees with its zone, or whose zone the IANA database does not hold, and what
-        is wrong.
+        is wrong. A stamp the format does not read is not compared (the reader refuses
+        it as not matching the format).
 
     Examples
     --------
@@ -83,6 +90,9 @@ def zone_suffixes(text: pd.Series) -> tuple[pd.Series, list, int, str]:
                       + pd.to_numeric(offsets["minutes"], errors="coerce").fillna(0).to_numpy())
     instants = pd.to_datetime(stripped.where(written), format="ISO8601", utc=True,
                               errors="coerce")
+    if time_format.upper() != "ISO8601":
+        instants = pd.to_datetime(stripped.where(written), format=time_format, utc=True,
+                                  errors="coerce").fillna(instants)
     for zone in zones:
         at = written & (parts["zone"] == zone).to_numpy() & instants.notna().to_numpy()
         if not at.any():
@@ -96,7 +106,7 @@ def zone_suffixes(text: pd.Series) -> tuple[pd.Series, list, int, str]:
             return stripped, zones, first, (
                 f"its offset {_shown(minutes[first])} is not that of its zone "
                 f"[{zone}] at that instant ({_shown(own[np.flatnonzero(wrong)[0]])}); "
-                f"{int(wrong.sum())} such stamp(s)")
+                f"{int(wrong.sum())} such stamp(s), so each states two times")
     return stripped, zones, -1, ""
 
 
