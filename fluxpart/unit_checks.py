@@ -923,7 +923,10 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
     declared = units.get("vpd")
     if vpd is None or tair is None:
         return None, None
-    both = np.isfinite(vpd) & np.isfinite(tair)
+    # judged at plausible air temperatures only: a tair in the wrong unit (°C read as K:
+    # -265 °C, whose Magnus value is astronomically large) gives no basis, and its own
+    # message names it (lead53: VPD in kPa was then told to be in inHg)
+    both = np.isfinite(vpd) & np.isfinite(tair) & ~_outside("tair", tair)
     if both.sum() < 48:
         return None, None
     saturation = saturation_vapour_pressure(tair[both])

@@ -769,3 +769,22 @@ def test_ustar_in_m_per_second_declared_in_cm_per_second_is_refused_naming_the_u
     right, _ = mixup_messages({"ustar": to_canonical(100.0 * metres, "ustar", "cm s-1")},
                               {"ustar": "cm s-1"}, columns, 30)
     assert "ustar" not in right
+
+
+def test_vpd_unit_is_not_judged_against_an_air_temperature_in_the_wrong_unit():
+    """Air temperature in K declared as °C reads as about 288 °C (0 °C = 273.15 K, SI),
+    where the Magnus saturation vapour pressure (Alduchov & Eskridge 1996) is some 85,000
+    hPa: a correct VPD in hPa then "stays below 0.1 of it" and was told to be kPa beside
+    the tair message. The VPD column's unit is not judged against an implausible tair
+    (lead53); with the air temperature read right the same column raises nothing."""
+    from fluxpart import unit_checks
+
+    hours = np.arange(24 * 20)
+    tair_c = 15.0 + 8.0 * np.sin(2 * np.pi * hours / 24)
+    vpd_hpa = np.clip(4.0 + 6.0 * np.sin(2 * np.pi * hours / 24), 0.1, None)
+    columns = {"tair": "air_temp_k", "vpd": "vpd_hpa"}
+    wrong = {"tair": tair_c + 273.15, "vpd": vpd_hpa}
+    right = {"tair": tair_c, "vpd": vpd_hpa}
+    units = {"tair": "°C", "vpd": "hPa"}
+    assert unit_checks._vpd_messages(wrong, units, columns, 60) == (None, None)
+    assert unit_checks._vpd_messages(right, units, columns, 60) == (None, None)
