@@ -85,7 +85,8 @@ C3 leaves' uptake (round trace53; the leaf dark respiration keeps its own temper
 ``flattemp`` (every kinetic constant at 25 deg C), ``nodeact`` (Vcmax and Jmax without the
 high-temperature deactivation), ``flatgamma`` (G*, Kc and Ko at 25 deg C), ``rectlight``
 (both co-limitations rectangular, theta 0: the leaf's light response a rectangular
-hyperbola));
+hyperbola), ``rectj`` (only the electron transport's light curve J rectangular),
+``rectcolimit`` (only the Rubisco-electron co-limitation rectangular));
 ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to every
 site's ``[processing]``.
 
@@ -171,7 +172,8 @@ GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 CO2_G_PER_MOL = 44.0095   # g mol-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notide", "noflood", "notraffic", "flatwt",
             "nobirch", "notrash", "nogrowth", "nodark", "nolowlight", "noabsent", "novpd",
-            "q10resp", "flattemp", "nodeact", "rectlight", "flatgamma")
+            "q10resp", "flattemp", "nodeact", "flatgamma", "rectlight", "rectj",
+            "rectcolimit")
 GAUSS_X, GAUSS_W = np.polynomial.legendre.leggauss(5)
 
 
@@ -472,7 +474,9 @@ def c3_leaf(q_abs, tair, vpd, vcmax25, g1, water, variant=frozenset()):
     Diagnosis switches of `variant` (uptake only; the dark respiration keeps the air
     temperature and its deactivation): ``flattemp`` every kinetic constant at 25 deg C,
     ``nodeact`` Vcmax and Jmax without the high-temperature deactivation, ``flatgamma``
-    G*, Kc and Ko at 25 deg C, ``rectlight`` both co-limitations rectangular (theta 0)."""
+    G*, Kc and Ko at 25 deg C, ``rectlight`` both co-limitations rectangular (theta 0),
+    ``rectj`` the electron transport's light curve only, ``rectcolimit`` the Rubisco-electron
+    co-limitation only."""
     tk = tair + 273.15
     vcmax = vcmax25 * arrhenius(tk, 65.33e3, 200e3, 650.0) * water
     dark = 0.015 * vcmax
@@ -486,10 +490,11 @@ def c3_leaf(q_abs, tair, vpd, vcmax25, g1, water, variant=frozenset()):
     gamma = 42.75 * arrhenius(tk_gas, 37.83e3)
     ci = 415.0 * g1 / (g1 + np.sqrt(np.maximum(vpd / 10, 0.05)))
     rubisco = vcmax * (ci - gamma) / (ci + kc * (1 + 210.0 / ko))
-    rect = "rectlight" in variant
-    j = colimit(0.425 * q_abs, jmax, 0.0 if rect else 0.7)
+    rect_j = bool({"rectlight", "rectj"} & variant)
+    rect_colimit = bool({"rectlight", "rectcolimit"} & variant)
+    j = colimit(0.425 * q_abs, jmax, 0.0 if rect_j else 0.7)
     electron = j * (ci - gamma) / (4 * ci + 8 * gamma)
-    return np.maximum(colimit(rubisco, electron, 0.0 if rect else 0.98), 0.0), dark
+    return np.maximum(colimit(rubisco, electron, 0.0 if rect_colimit else 0.98), 0.0), dark
 
 
 def c4_leaf(q_abs, tair, vmax25, water):
