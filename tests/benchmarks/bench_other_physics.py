@@ -121,14 +121,24 @@ def _measure(rng, weather, gpp, reco, step, p, q):
                            for name, mask in missing.items()})
 
 
-def generate(seed: int) -> scenarios.SiteYear:
-    """The other-physics site-year of `seed`: place and weather of ``scenarios.draw(seed)``."""
+def physics_of(seed: int) -> dict:
+    """The other-physics parameters drawn for `seed` (those :func:`generate` uses)."""
+    scenario = scenarios.draw(seed)
+    physics_rng = np.random.default_rng(
+        np.random.SeedSequence([scenario.seed, 104729, 31]).spawn(3)[2])
+    return _physics(physics_rng, scenario.archetype)
+
+
+def generate(seed: int, replaced: dict | None = None) -> scenarios.SiteYear:
+    """The other-physics site-year of `seed`: place and weather of ``scenarios.draw(seed)``;
+    `replaced` overrides other-physics parameters after their draw (the same random numbers
+    otherwise; ``bench_miss_causes.py oth:SEED``)."""
     scenario = scenarios.draw(seed)
     p = scenario.parameters
     weather_rng, measure_rng, physics_rng = (
         np.random.default_rng(child)
         for child in np.random.SeedSequence([scenario.seed, 104729, 31]).spawn(3))
-    q = _physics(physics_rng, scenario.archetype)
+    q = {**_physics(physics_rng, scenario.archetype), **(replaced or {})}
     index = pd.date_range(f"{scenario.year}-01-01", f"{scenario.year + 1}-01-01",
                           freq="30min", inclusive="left", name="time")
     weather = scenarios._weather(weather_rng, index, scenario.site, p, 30)

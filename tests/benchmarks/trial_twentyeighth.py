@@ -80,7 +80,13 @@ never flooded), ``notraffic``, ``flatwt`` (the fen's water table at its snow-fre
 previous day's uptake), ``nodark`` (no leaf dark respiration), ``nolowlight`` (no uptake in
 records with Rg below 10 W m-2, the run's night class), ``noabsent`` (the absent rows
 written), ``novpd`` (the C3 leaves' ci / ca held at its value at D = 1 kPa), ``q10resp``
-(heterotrophic respiration with a constant Q10 of 2 instead of O'Connell's form));
+(heterotrophic respiration with a constant Q10 of 2 instead of O'Connell's form), and for the
+C3 leaves' uptake (round trace53; the leaf dark respiration keeps its own temperature):
+``flattemp`` (every kinetic constant at 25 deg C), ``nodeact`` (Vcmax and Jmax without the
+high-temperature deactivation), ``flatgamma`` (G*, Kc and Ko at 25 deg C), ``rectlight``
+(both co-limitations rectangular, theta 0: the leaf's light response a rectangular
+hyperbola), ``rectj`` (only the electron transport's light curve J rectangular),
+``rectcolimit`` (only the Rubisco-electron co-limitation rectangular));
 ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to every
 site's ``[processing]``.
 
@@ -166,7 +172,8 @@ GAS_CONSTANT = 8.314      # J mol-1 K-1 (m)
 CO2_G_PER_MOL = 44.0095   # g mol-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notide", "noflood", "notraffic", "flatwt",
             "nobirch", "notrash", "nogrowth", "nodark", "nolowlight", "noabsent", "novpd",
-            "q10resp")
+            "q10resp", "flattemp", "nodeact", "flatgamma", "rectlight", "rectj",
+            "rectcolimit")
 GAUSS_X, GAUSS_W = np.polynomial.legendre.leggauss(5)
 
 
@@ -252,7 +259,10 @@ def goff_gratch(t):
 
 def colimit(a, b, theta):
     """The smaller root of theta x^2 - (a + b) x + a b = 0: a smooth minimum of `a`, `b`
-    (Collatz et al. 1991 (m))."""
+    (Collatz et al. 1991 (m)); at theta 0 its limit a b / (a + b) (rectangular)."""
+    if theta == 0:
+        s = a + b
+        return np.divide(a * b, s, out=np.zeros_like(s * 1.0), where=s > 0)
     s = a + b
     return (s - np.sqrt(np.maximum(s * s - 4 * theta * a * b, 0.0))) / (2 * theta)
 
@@ -458,20 +468,33 @@ def phenology(site, met, rng, start):
     return np.maximum(lai, 0.0), events, marks
 
 
-def c3_leaf(q_abs, tair, vpd, vcmax25, g1, water):
+def c3_leaf(q_abs, tair, vpd, vcmax25, g1, water, variant=frozenset()):
     """Gross C3 leaf uptake and dark respiration [umol m-2 leaf s-1] (Farquhar, von
-    Caemmerer and Berry 1980; Bernacchi et al. 2001; Medlyn et al. 2002, 2011 (m))."""
+    Caemmerer and Berry 1980; Bernacchi et al. 2001; Medlyn et al. 2002, 2011 (m)).
+    Diagnosis switches of `variant` (uptake only; the dark respiration keeps the air
+    temperature and its deactivation): ``flattemp`` every kinetic constant at 25 deg C,
+    ``nodeact`` Vcmax and Jmax without the high-temperature deactivation, ``flatgamma``
+    G*, Kc and Ko at 25 deg C, ``rectlight`` both co-limitations rectangular (theta 0),
+    ``rectj`` the electron transport's light curve only, ``rectcolimit`` the Rubisco-electron
+    co-limitation only."""
     tk = tair + 273.15
     vcmax = vcmax25 * arrhenius(tk, 65.33e3, 200e3, 650.0) * water
-    jmax = 1.67 * vcmax25 * arrhenius(tk, 43.5e3, 200e3, 650.0) * water
-    kc = 404.9 * arrhenius(tk, 79.43e3)
-    ko = 278.4 * arrhenius(tk, 36.38e3)
-    gamma = 42.75 * arrhenius(tk, 37.83e3)
+    dark = 0.015 * vcmax
+    tk = np.full(len(tk), 298.15) if "flattemp" in variant else tk
+    deact = (None, None) if "nodeact" in variant else (200e3, 650.0)
+    vcmax = vcmax25 * arrhenius(tk, 65.33e3, *deact) * water
+    jmax = 1.67 * vcmax25 * arrhenius(tk, 43.5e3, *deact) * water
+    tk_gas = np.full(len(tk), 298.15) if "flatgamma" in variant else tk
+    kc = 404.9 * arrhenius(tk_gas, 79.43e3)
+    ko = 278.4 * arrhenius(tk_gas, 36.38e3)
+    gamma = 42.75 * arrhenius(tk_gas, 37.83e3)
     ci = 415.0 * g1 / (g1 + np.sqrt(np.maximum(vpd / 10, 0.05)))
     rubisco = vcmax * (ci - gamma) / (ci + kc * (1 + 210.0 / ko))
-    j = colimit(0.425 * q_abs, jmax, 0.7)
+    rect_j = bool({"rectlight", "rectj"} & variant)
+    rect_colimit = bool({"rectlight", "rectcolimit"} & variant)
+    j = colimit(0.425 * q_abs, jmax, 0.0 if rect_j else 0.7)
     electron = j * (ci - gamma) / (4 * ci + 8 * gamma)
-    return np.maximum(colimit(rubisco, electron, 0.98), 0.0), 0.015 * vcmax
+    return np.maximum(colimit(rubisco, electron, 0.0 if rect_colimit else 0.98), 0.0), dark
 
 
 def c4_leaf(q_abs, tair, vmax25, water):
@@ -497,7 +520,7 @@ def canopy(site, met, lai, water, variant=frozenset()):
             a, rd = c4_leaf(q_abs, met["tair"], capacity, water)
         else:
             vpd = np.full(len(ppfd), 10.0) if "novpd" in variant else met["vpd"]
-            a, rd = c3_leaf(q_abs, met["tair"], vpd, capacity, site.g1, water)
+            a, rd = c3_leaf(q_abs, met["tair"], vpd, capacity, site.g1, water, variant)
         gpp += w / 2 * lai * a
         dark += w / 2 * lai * rd
     return gpp, dark
