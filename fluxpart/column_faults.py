@@ -9,7 +9,7 @@ physics the true columns must obey:
 * NEE shifted by whole records against the drivers (:func:`nee_lag`): photosynthesis
   answers a change of light within minutes, so a cloud's change of Rg and the change
   of NEE it causes fall into the same record (the cloud-driven part of Rg's change
-  only, against a clear-sky course);
+  only, against a clear-sky course, and each change less its mean at that time of day);
 * air temperature shifted by whole records against the humidity columns
   (:func:`tair_lag`): VPD is a function of temperature and humidity at one moment;
 * NEE whose sign changed within the record (:func:`months_rising_with_light`): in
@@ -538,6 +538,38 @@ def _cloud_changes(nee, rg, potential) -> tuple[np.ndarray, np.ndarray]:
     return np.diff(nee), np.where(judged, change, np.nan)
 
 
+#: Days of the running window in which the mean course of a change at each time of day is
+#: taken (:func:`_less_daily_course`), centred on the day: a week either side, short
+#: against the season's change of the sun's course (the declination moves by at most
+#: 0.4 degrees a day, near the equinoxes; fact of the trade) and long against a passing
+#: cloud, whose change a 15-day mean keeps all but a fifteenth of. Our choice.
+_COURSE_DAYS = 15
+#: Least values of a time of day in the window for its mean course (fewer: not judged).
+#: Our choice.
+_COURSE_VALUES = 3
+
+
+def _less_daily_course(changes, per_day: int, days: int = _COURSE_DAYS,
+                       least: int = _COURSE_VALUES) -> np.ndarray:
+    """`changes` less their mean at the same time of day (the same position in the day of
+    `per_day` records) over the `days` days centred on each day, over the values present;
+    NaN where fewer than `least` are."""
+    changes = np.asarray(changes, dtype=float)
+    whole = -(-changes.size // per_day)
+    grid = np.full(whole * per_day, np.nan)
+    grid[:changes.size] = changes
+    grid = grid.reshape(whole, per_day)
+    present = np.isfinite(grid)
+    sums = np.vstack([np.zeros((1, per_day)), np.cumsum(np.where(present, grid, 0.0), axis=0)])
+    counts = np.vstack([np.zeros((1, per_day)), np.cumsum(present, axis=0)])
+    day = np.arange(whole)
+    low, high = np.clip(day - days // 2, 0, whole), np.clip(day + days // 2 + 1, 0, whole)
+    total, count = sums[high] - sums[low], counts[high] - counts[low]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        mean = np.where(count >= least, total / count, np.nan)
+    return (grid - mean).ravel()[:changes.size]
+
+
 def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
     """A message where NEE follows Rg by whole records, or None.
 
@@ -588,6 +620,15 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     records of which one is under cloud; a site-year with too few such pairs (below
     500) is not judged.
 
+    Each change, of NEE and of the cloud-driven part, is taken less its mean at that time
+    of day over the 15 days centred on its day (:func:`_less_daily_course`, since round
+    lag56): convective cloud that builds at the same hour on most days (over tropical and
+    monsoon land thunderstorms peak in the afternoon; Dai 2001 (m)) gives the cloud-driven
+    changes a daily course again, and an NEE following temperature matched it two
+    records early at two invented savanna and desert sites with afternoon cloud on 70 %
+    of days. A clock shift moves NEE against the day-to-day changes of cloud, which a
+    recurring course does not have; the uptake a cloud moves stays in the same record.
+
     References
     ----------
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
@@ -596,14 +637,20 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     of Meteorology, 2, 154-166 (m).
     Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
     Biophysics, 2nd ed. Springer, ch. 2 (m).
+    Dai, A. (2001). Global precipitation and thunderstorm frequencies. Part II: Diurnal
+    variations. Journal of Climate, 14, 1112-1128 (m).
     """
     arrays = _light_arrays(nee, rg, potential, interval_minutes)
     if arrays is None:
         return None
     nee, rg, potential = arrays
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
-    scores = _change_scores(*_cloud_changes(nee, rg, potential),
-                            {k: k for k in range(-most, most + 1)})
+    per_day = max(1, int(round(1440.0 / interval_minutes)))
+    # each change less its mean course at that time of day (a cloud that comes at the
+    # same hour every day, and NEE's own daily course, out)
+    d_nee, d_cloud = (_less_daily_course(changes, per_day)
+                      for changes in _cloud_changes(nee, rg, potential))
+    scores = _change_scores(d_nee, d_cloud, {k: k for k in range(-most, most + 1)})
     found = _decide(scores)
     if found is None:
         return None
