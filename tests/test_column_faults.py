@@ -10,6 +10,7 @@ Norman 1998, ch. 3 (m)), e_s from fluxpart.variables (Magnus form, checked again
 handbook values in test_variables).
 """
 
+import math
 import re
 
 import numpy as np
@@ -23,6 +24,7 @@ from fluxpart.column_faults import (
     _change_scores,
     _cloud_changes,
     _decide,
+    _serial_inflation,
     censored_nee,
     clear_sky_course,
     delayed_tair,
@@ -286,9 +288,9 @@ def test_cloud_that_comes_every_afternoon_is_not_named_a_lag():
     # and monsoon land thunderstorms peak in the afternoon, Dai 2001, J. Climate 14,
     # 1112-1128 (m)) gives the changes of Rg's cloud-driven part a daily course, which an
     # NEE following the air temperature (peaking at 16:30, Campbell & Norman 1998, ch. 2
-    # (m)) matches records away; less each change's mean course at that time of day over
-    # a running window, only the day-to-day changes of cloud are left, and the uptake
-    # they move is in the same record. Invented hourly year: cloud on 70 % of days from
+    # (m)) matches records away; less each change's mean at that time of day over a
+    # running month, only the day-to-day changes of cloud are left, and the uptake they
+    # move is in the same record. Invented hourly year: cloud on 70 % of days from
     # 13 h (1 h either way), fair-weather cumulus at any hour
     rng = np.random.default_rng(0)
     per_day, days = 24, 365
@@ -312,6 +314,17 @@ def test_cloud_that_comes_every_afternoon_is_not_named_a_lag():
     # the same NEE a record late is named
     late = np.concatenate([[np.nan], nee[:-1]])
     assert "1 record(s) (60 min) later" in (nee_lag(late, rg, potential, 60) or "")
+
+
+def test_serial_inflation_of_two_differenced_white_noises_is_bartletts():
+    # the first difference of white noise has autocorrelation -0.5 at one step and 0
+    # beyond (fact of the trade), so Bartlett's variance of the cross-correlation of two
+    # such series unrelated to each other is (1 + 2 * 0.25) / n (Box, Jenkins & Reinsel
+    # 2008, ch. 11 (m)): the standard error sqrt(1.5) = 1.22 times the independent pairs'
+    rng = np.random.default_rng(1)
+    a, b = (np.diff(rng.normal(size=40_000)) for _ in range(2))
+    assert _serial_inflation(a, b) == pytest.approx(math.sqrt(1.5), abs=0.02)
+    assert _serial_inflation(rng.normal(size=40_000), b) == pytest.approx(1.0, abs=0.02)
 
 
 def test_noise_that_hides_the_light_response_cannot_tell():
