@@ -10,6 +10,7 @@ Norman 1998, ch. 3 (m)), e_s from fluxpart.variables (Magnus form, checked again
 handbook values in test_variables).
 """
 
+import math
 import re
 
 import numpy as np
@@ -21,7 +22,9 @@ from fluxpart.column_faults import (
     SOIL_RANGE_RATIO,
     _best_of,
     _change_scores,
+    _cloud_changes,
     _decide,
+    _serial_inflation,
     censored_nee,
     clear_sky_course,
     delayed_tair,
@@ -278,6 +281,50 @@ def test_nee_following_temperature_hours_after_the_sun_is_not_named_hours_or_day
         assert nee_hour_shift(nee, rg, potential, STEP) is None
         assert nee_shift_from_month(nee, rg, potential, stamps, STEP) is None
         assert nee_day_shift(nee, rg, potential, STEP) is None
+
+
+def test_cloud_that_comes_every_afternoon_is_not_named_a_lag():
+    # round lag56: convective cloud that builds at the same hour on most days (over tropical
+    # and monsoon land thunderstorms peak in the afternoon, Dai 2001, J. Climate 14,
+    # 1112-1128 (m)) gives the changes of Rg's cloud-driven part a daily course, which an
+    # NEE following the air temperature (peaking at 16:30, Campbell & Norman 1998, ch. 2
+    # (m)) matches records away; less each change's mean at that time of day over a
+    # running month, only the day-to-day changes of cloud are left, and the uptake they
+    # move is in the same record. Invented hourly year: cloud on 70 % of days from
+    # 13 h (1 h either way), fair-weather cumulus at any hour
+    rng = np.random.default_rng(0)
+    per_day, days = 24, 365
+    n = per_day * days
+    hours = np.arange(n) % per_day + 0.5
+    day = np.arange(n) // per_day
+    potential = np.clip(1100.0 * np.sin(np.pi * (hours - 6.0) / 12.0), 0.0, None)
+    onset = np.where(rng.random(days) < 0.7, 13.0 + rng.normal(0, 1.0, days), np.inf)
+    cover = 1.0 / (1.0 + np.exp(-(hours - onset[day]) / 0.7))
+    cumulus = np.clip(rng.normal(0, 0.05, n), 0.0, None)
+    rg = (clear_sky_course(potential) * 0.95 * (1.0 - cumulus)
+          * (1.0 - 0.7 * cover * rng.uniform(0.8, 1.0, days)[day]))
+    tair = 25.0 + 6.0 * np.sin(np.pi * (hours - 10.5) / 12.0) + rng.normal(0, 2.0, days)[day]
+    gpp = 0.2 * 0.05 * rg * 25.0 / (0.05 * rg + 25.0)    # a rectangular light response
+    nee = 4.0 * np.exp(0.09 * (tair - 25.0)) - gpp + rng.normal(0, 0.3, n)
+    # the changes as they are, daily courses and all: a lag named many standard errors clear
+    plain = _decide(_change_scores(*_cloud_changes(nee, rg, potential),
+                                   {k: k for k in range(-2, 3)}))
+    assert plain is not None and plain[0] != 0 and plain[3] > 5
+    assert nee_lag(nee, rg, potential, 60) is None
+    # the same NEE a record late is named
+    late = np.concatenate([[np.nan], nee[:-1]])
+    assert "1 record(s) (60 min) later" in (nee_lag(late, rg, potential, 60) or "")
+
+
+def test_serial_inflation_of_two_differenced_white_noises_is_bartletts():
+    # the first difference of white noise has autocorrelation -0.5 at one step and 0
+    # beyond (fact of the trade), so Bartlett's variance of the cross-correlation of two
+    # such series unrelated to each other is (1 + 2 * 0.25) / n (Box, Jenkins & Reinsel
+    # 2008, ch. 11 (m)): the standard error sqrt(1.5) = 1.22 times the independent pairs'
+    rng = np.random.default_rng(1)
+    a, b = (np.diff(rng.normal(size=40_000)) for _ in range(2))
+    assert _serial_inflation(a, b) == pytest.approx(math.sqrt(1.5), abs=0.02)
+    assert _serial_inflation(rng.normal(size=40_000), b) == pytest.approx(1.0, abs=0.02)
 
 
 def test_noise_that_hides_the_light_response_cannot_tell():
