@@ -143,7 +143,8 @@ class RunOutcome(NamedTuple):
 
 def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                        temperature, config, curvature, night_fit=None, central_fill=None,
-                       delay=0, skip=(), nearest_year=False, sun_up=None, donor_margin=None):
+                       delay=0, skip=(), nearest_year=False, sun_up=None, donor_margin=None,
+                       day_start=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     The central run lets one method that cannot fit be NaN and tries the nearest
@@ -183,6 +184,10 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         (:func:`fluxpart.night_donors.threshold_spread`): the night records kept
         between `threshold` and `threshold` + this stay measured but fill no night gap.
         None: every kept record is a donor.
+    day_start : pandas.DataFrame, optional
+        The central run's daytime parameter table, from which a u* scenario's daytime
+        window fits start (:func:`fluxpart.partition.daytime.partition_daytime`'s
+        ``start``). None: from the starting values of the run's own data.
 
     Returns
     -------
@@ -236,13 +241,14 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         (lambda: method_failure.first_fit(fit_nighttime)) if central
         else (lambda: fit_nighttime(nearest_year)),
         lambda night: fit_daytime(frame, nee_measured, screened, filled_drivers,
-                                  temperature_filled, is_night, config, curvature, night),
+                                  temperature_filled, is_night, config, curvature, night,
+                                  start=day_start),
         len(frame), temperature, skip=skip, degrade=central)
     return too_calm, nee_measured, filled, night, day, withheld, errors
 
 
 def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
-                config, curvature, night):
+                config, curvature, night, start=None):
     """The daytime method with the configured settings.
 
     Where no daytime night window has the temperature range for an E0 of its own, the
@@ -269,6 +275,9 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
         The light-response curvature to keep, or None to fit it.
     night : fluxpart.partition.nighttime.NighttimeResult
         The nighttime result (its E0 [K] for the fallback).
+    start : pandas.DataFrame, optional
+        Another run's daytime parameter table to start the window fits from
+        (:func:`fluxpart.partition.daytime.partition_daytime`).
 
     Returns
     -------
@@ -298,7 +307,7 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
         consistency_z=config.daytime_consistency_z,
         rref_max_relative_error=config.daytime_rref_max_relative_error,
         night_in_fit=config.daytime_night_in_fit,
-        curvature=curvature, **event_cut(frame.index, config))
+        curvature=curvature, start=start, **event_cut(frame.index, config))
 
 
 def daytime_error_model(index, nee_measured, screened, config):
@@ -385,7 +394,7 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     # "average": the runs fit the rectangular shape; the profiled one is fitted once, on
     # the central run (fluxpart.central_run.averaged_shape)
     curvature = light_shape.central_curvature(config.daytime_curvature)
-    skip, borrowed = (), False
+    skip, borrowed, day_start = (), False, None
     # one margin for every run: the threshold's own spread (night_donors)
     margin = night_donors.threshold_spread(runs, config.night_donor_margin)
     for name, threshold in runs.items():
@@ -394,7 +403,7 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 *arguments[:5], threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
                 None if name == "central" else outcomes["central"][2], delay, skip, borrowed,
-                sun_up=arguments.sun_up, donor_margin=margin)
+                sun_up=arguments.sun_up, donor_margin=margin, day_start=day_start)
             outcomes[name] = (RunOutcome(*outcome) if name == "central"
                               else _scenario_outcome(RunOutcome(*outcome)))
             if name == "central":
@@ -413,6 +422,9 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 # that their spread is the u* threshold's alone
                 day_parameters = outcomes["central"][4].parameters
                 curvature = float(day_parameters["curvature"].iloc[0])
+                # and start their window fits from its parameters: the same day records,
+                # a few night records fewer or more (round speed56, issue 17)
+                day_start = day_parameters
         except InsufficientDataError as error:
             if name == "central":
                 raise
