@@ -184,9 +184,9 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         (:func:`fluxpart.night_donors.threshold_spread`): the night records kept
         between `threshold` and `threshold` + this stay measured but fill no night gap.
         None: every kept record is a donor.
-    day_start : pandas.DataFrame, optional
-        The central run's daytime parameter table, from which a u* scenario's daytime
-        window fits start (:func:`fluxpart.partition.daytime.partition_daytime`'s
+    day_start : fluxpart.partition.daytime.DaytimeResult, optional
+        The central run's daytime result, from whose window fits a u* scenario's
+        start (:func:`fluxpart.partition.daytime.partition_daytime`'s
         ``start``). None: from the starting values of the run's own data.
 
     Returns
@@ -275,8 +275,8 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
         The light-response curvature to keep, or None to fit it.
     night : fluxpart.partition.nighttime.NighttimeResult
         The nighttime result (its E0 [K] for the fallback).
-    start : pandas.DataFrame, optional
-        Another run's daytime parameter table to start the window fits from
+    start : fluxpart.partition.daytime.DaytimeResult, optional
+        Another run's daytime result to start the window fits from
         (:func:`fluxpart.partition.daytime.partition_daytime`).
 
     Returns
@@ -424,7 +424,7 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 curvature = float(day_parameters["curvature"].iloc[0])
                 # and start their window fits from its parameters: the same day records,
                 # a few night records fewer or more (round speed56, issue 17)
-                day_start = day_parameters
+                day_start = outcomes["central"][4]
         except InsufficientDataError as error:
             if name == "central":
                 raise

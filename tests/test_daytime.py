@@ -1,5 +1,7 @@
 """Tests of fluxpart.partition.daytime: light-response partitioning (Lasslop et al. 2010)."""
 
+import dataclasses
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -932,7 +934,7 @@ def test_fits_started_from_another_runs_parameters_reach_the_same_optimum(season
     monkeypatch.setattr(daytime, "_marquardt_step", counted)
     cold = partition_daytime(**inputs)
     cold_rows, rows[:] = sum(rows), []
-    warm = partition_daytime(**inputs, start=central.parameters)
+    warm = partition_daytime(**inputs, start=central)
     assert sum(rows) < 0.7 * cold_rows                 # window-iterations: 1454 -> 666
     first, second = cold.parameters, warm.parameters
     assert (first.status == second.status).all()
@@ -945,4 +947,5 @@ def test_fits_started_from_another_runs_parameters_reach_the_same_optimum(season
     assert np.nansum(warm.gpp) == pytest.approx(np.nansum(cold.gpp), rel=1e-4)
     assert np.nansum(warm.reco) == pytest.approx(np.nansum(cold.reco), rel=1e-4)
     with pytest.raises(FluxpartError, match="daytime start"):
-        partition_daytime(**inputs, start=central.parameters.iloc[:-1])
+        partition_daytime(**inputs, start=dataclasses.replace(
+            central, fits=tuple(fits[:, :-1] for fits in central.fits)))
