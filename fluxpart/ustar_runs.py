@@ -446,8 +446,9 @@ def _scenario_outcome(outcome: RunOutcome) -> RunOutcome:
     (``gpp_before``, ``gpp_after``, ``span_days``, ``stretch``: the central run's gap
     sides) are let go as each scenario ends, not kept to the end of the run (10.2 MB
     per scenario on ten half-hourly years: 4.6 MB of fill columns, 5.6 MB of arrays;
-    round speed54). The value column is copied, so no block of the fill's other
-    columns stays alive behind it.
+    round speed54), and so are its window fits (``fits``: the central run's alone are
+    the scenarios' starting point). The value column is copied, so no block of the
+    fill's other columns stays alive behind it.
     """
     filled = pd.DataFrame({"value": outcome.filled["value"].to_numpy(copy=True)},
                           index=outcome.filled.index)
@@ -455,7 +456,7 @@ def _scenario_outcome(outcome: RunOutcome) -> RunOutcome:
     day = outcome.day
     if getattr(day, "gpp_before", None) is not None:
         day = dataclasses.replace(day, gpp_before=None, gpp_after=None, span_days=None,
-                                  stretch=None)
+                                  stretch=None, fits=None)
     return outcome._replace(filled=filled, day=day)
 
 
