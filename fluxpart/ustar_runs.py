@@ -355,9 +355,12 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
 
     The central run comes first (it may reuse `night_fit`, the temperature choice's
     nighttime fit on the same measured NEE); the scenarios share its NEE fill of the
-    day records and its light-response curvature. A scenario with too little data is
-    left out with a warning appended to `warnings`. A method the central run could not
-    fit is NaN in every run, named in `warnings` with the budget years `year_keys`.
+    day records and its light-response curvature, and start their daytime window fits
+    from its fits (round speed56: in fewer iterations, to within the fits' convergence
+    tolerance of the fits from their own data's starting values). A scenario with too
+    little data is left out with a warning appended to `warnings`. A method the central
+    run could not fit is NaN in every run, named in `warnings` with the budget years
+    `year_keys`.
 
     Parameters
     ----------
