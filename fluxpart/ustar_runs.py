@@ -186,7 +186,7 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         None: every kept record is a donor.
     day_start : fluxpart.partition.daytime.DaytimeResult, optional
         The central run's daytime result, from whose window fits a u* scenario's
-        start (:func:`fluxpart.partition.daytime.partition_daytime`'s
+        daytime fits start (:func:`fluxpart.partition.daytime.partition_daytime`'s
         ``start``). None: from the starting values of the run's own data.
 
     Returns
@@ -425,8 +425,8 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 # that their spread is the u* threshold's alone
                 day_parameters = outcomes["central"][4].parameters
                 curvature = float(day_parameters["curvature"].iloc[0])
-                # and start their window fits from its parameters: the same day records,
-                # a few night records fewer or more (round speed56, issue 17)
+                # and start their window fits from its fits: the same day records, some
+                # night records fewer or more (round speed56, issue 17)
                 day_start = outcomes["central"][4]
         except InsufficientDataError as error:
             if name == "central":

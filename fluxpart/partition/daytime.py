@@ -434,9 +434,12 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
         converged, and its refit with the night Rref from that run's refit's alpha,
         beta0 and k where it had one (:attr:`DaytimeResult.fits`), instead of the
         starting values from its own data. The fits converge to the same tolerance in
-        fewer iterations; the result moves within that tolerance (a few hundredths of
-        the parameters' standard errors, see :func:`_levenberg_marquardt`). Default
-        None: the starting values from the data.
+        fewer iterations; the result moves within that tolerance (mostly hundredths of
+        the parameters' standard errors, see :func:`_levenberg_marquardt`; the weighted
+        pass also moves with the weights the first pass gives), and a window whose
+        verdict hangs on where the iteration stops (a bound reached or not, a singular
+        refit) tends to take the other run's. Default None: the starting values from
+        the data.
 
     Returns
     -------
@@ -611,8 +614,7 @@ def _prepare(data, weight, settings) -> dict:
     return {"starts": starts, "ends": ends, "centres": centres, "e0_fit": e0_fit,
             "windows": windows, "rref_night": rref_night, "rref_night_se": rref_night_se,
             "lower": lower, "upper": upper, "theta0": theta0, "refit_theta0": refit_theta0,
-            "fixed": fixed,
-            "fitted": fitted, "mask": mask}
+            "fixed": fixed, "fitted": fitted, "mask": mask}
 
 
 def _partition(data, weight, settings) -> dict:
