@@ -143,7 +143,8 @@ class RunOutcome(NamedTuple):
 
 def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, threshold,
                        temperature, config, curvature, night_fit=None, central_fill=None,
-                       delay=0, skip=(), nearest_year=False, sun_up=None, donor_margin=None):
+                       delay=0, skip=(), nearest_year=False, sun_up=None, donor_margin=None,
+                       day_start=None):
     """Gap-fill NEE after the u* filter at `threshold` and partition it both ways.
 
     The central run lets one method that cannot fit be NaN and tries the nearest
@@ -183,6 +184,10 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         (:func:`fluxpart.night_donors.threshold_spread`): the night records kept
         between `threshold` and `threshold` + this stay measured but fill no night gap.
         None: every kept record is a donor.
+    day_start : fluxpart.partition.daytime.DaytimeResult, optional
+        The central run's daytime result, from whose window fits a u* scenario's
+        daytime fits start (:func:`fluxpart.partition.daytime.partition_daytime`'s
+        ``start``). None: from the starting values of the run's own data.
 
     Returns
     -------
@@ -236,13 +241,14 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         (lambda: method_failure.first_fit(fit_nighttime)) if central
         else (lambda: fit_nighttime(nearest_year)),
         lambda night: fit_daytime(frame, nee_measured, screened, filled_drivers,
-                                  temperature_filled, is_night, config, curvature, night),
+                                  temperature_filled, is_night, config, curvature, night,
+                                  start=day_start),
         len(frame), temperature, skip=skip, degrade=central)
     return too_calm, nee_measured, filled, night, day, withheld, errors
 
 
 def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_filled, is_night,
-                config, curvature, night):
+                config, curvature, night, start=None):
     """The daytime method with the configured settings.
 
     Where no daytime night window has the temperature range for an E0 of its own, the
@@ -269,6 +275,9 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
         The light-response curvature to keep, or None to fit it.
     night : fluxpart.partition.nighttime.NighttimeResult
         The nighttime result (its E0 [K] for the fallback).
+    start : fluxpart.partition.daytime.DaytimeResult, optional
+        Another run's daytime result to start the window fits from
+        (:func:`fluxpart.partition.daytime.partition_daytime`).
 
     Returns
     -------
@@ -298,7 +307,7 @@ def fit_daytime(frame, nee_measured, screened, filled_drivers, temperature_fille
         consistency_z=config.daytime_consistency_z,
         rref_max_relative_error=config.daytime_rref_max_relative_error,
         night_in_fit=config.daytime_night_in_fit,
-        curvature=curvature, **event_cut(frame.index, config))
+        curvature=curvature, start=start, **event_cut(frame.index, config))
 
 
 def daytime_error_model(index, nee_measured, screened, config):
@@ -346,9 +355,12 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
 
     The central run comes first (it may reuse `night_fit`, the temperature choice's
     nighttime fit on the same measured NEE); the scenarios share its NEE fill of the
-    day records and its light-response curvature. A scenario with too little data is
-    left out with a warning appended to `warnings`. A method the central run could not
-    fit is NaN in every run, named in `warnings` with the budget years `year_keys`.
+    day records and its light-response curvature, and start their daytime window fits
+    from its fits (round speed56: in fewer iterations, to within the fits' convergence
+    tolerance of the fits from their own data's starting values). A scenario with too
+    little data is left out with a warning appended to `warnings`. A method the central
+    run could not fit is NaN in every run, named in `warnings` with the budget years
+    `year_keys`.
 
     Parameters
     ----------
@@ -385,7 +397,7 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
     # "average": the runs fit the rectangular shape; the profiled one is fitted once, on
     # the central run (fluxpart.central_run.averaged_shape)
     curvature = light_shape.central_curvature(config.daytime_curvature)
-    skip, borrowed = (), False
+    skip, borrowed, day_start = (), False, None
     # one margin for every run: the threshold's own spread (night_donors)
     margin = night_donors.threshold_spread(runs, config.night_donor_margin)
     for name, threshold in runs.items():
@@ -394,7 +406,7 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 *arguments[:5], threshold, temperature, config, curvature,
                 night_fit if name == "central" else None,
                 None if name == "central" else outcomes["central"][2], delay, skip, borrowed,
-                sun_up=arguments.sun_up, donor_margin=margin)
+                sun_up=arguments.sun_up, donor_margin=margin, day_start=day_start)
             outcomes[name] = (RunOutcome(*outcome) if name == "central"
                               else _scenario_outcome(RunOutcome(*outcome)))
             if name == "central":
@@ -413,6 +425,9 @@ def threshold_runs(arguments, runs, temperature, config, night_fit, delay, warni
                 # that their spread is the u* threshold's alone
                 day_parameters = outcomes["central"][4].parameters
                 curvature = float(day_parameters["curvature"].iloc[0])
+                # and start their window fits from its fits: the same day records, some
+                # night records fewer or more (round speed56, issue 17)
+                day_start = outcomes["central"][4]
         except InsufficientDataError as error:
             if name == "central":
                 raise
@@ -434,8 +449,9 @@ def _scenario_outcome(outcome: RunOutcome) -> RunOutcome:
     (``gpp_before``, ``gpp_after``, ``span_days``, ``stretch``: the central run's gap
     sides) are let go as each scenario ends, not kept to the end of the run (10.2 MB
     per scenario on ten half-hourly years: 4.6 MB of fill columns, 5.6 MB of arrays;
-    round speed54). The value column is copied, so no block of the fill's other
-    columns stays alive behind it.
+    round speed54), and so are its window fits (``fits``: the central run's alone are
+    the scenarios' starting point). The value column is copied, so no block of the
+    fill's other columns stays alive behind it.
     """
     filled = pd.DataFrame({"value": outcome.filled["value"].to_numpy(copy=True)},
                           index=outcome.filled.index)
@@ -443,7 +459,7 @@ def _scenario_outcome(outcome: RunOutcome) -> RunOutcome:
     day = outcome.day
     if getattr(day, "gpp_before", None) is not None:
         day = dataclasses.replace(day, gpp_before=None, gpp_after=None, span_days=None,
-                                  stretch=None)
+                                  stretch=None, fits=None)
     return outcome._replace(filled=filled, day=day)
 
 

@@ -287,6 +287,12 @@ class DaytimeResult:
     stretch : numpy.ndarray of int or None
         Number of the window in use centred before each record: the records
         between two window centres share it.
+    fits : tuple of numpy.ndarray or None
+        Per pass (unweighted, then weighted where it is), the converged window fits'
+        ``alpha``, ``beta0``, ``k``, ``rref`` (2 x windows x 4): ``[0]`` with Rref free,
+        ``[1]`` the refit with the night Rref (NaN where a window had no such
+        converged fit); what another run of the same windows starts from
+        (:func:`partition_daytime`'s ``start``). None where not computed.
     """
 
     gpp: np.ndarray
@@ -297,6 +303,7 @@ class DaytimeResult:
     gpp_after: np.ndarray | None = None
     span_days: np.ndarray | None = None
     stretch: np.ndarray | None = None
+    fits: tuple | None = None
 
 
 def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
@@ -309,7 +316,8 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                       consistency_z=1.96, rref_max_relative_error=0.5,
                       night_in_fit=False, curvature=0.0, max_iterations=200,
                       tref_kelvin=LLOYD_TAYLOR_TREF_KELVIN,
-                      t0_kelvin=LLOYD_TAYLOR_T0_KELVIN, breaks=None) -> DaytimeResult:
+                      t0_kelvin=LLOYD_TAYLOR_T0_KELVIN, breaks=None,
+                      start=None) -> DaytimeResult:
     """Partition NEE into GPP and Reco by the daytime light-response method.
 
     Parameters
@@ -419,6 +427,19 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
         those beside it, across the events, named by
         :func:`fluxpart.partition.pieces.window_notes`). The E0 pool stays per
         calendar year. Default None: no events.
+    start : DaytimeResult, optional
+        The result of another run of the same record, settings and windows, e.g. the
+        central u* run's for a u* scenario, whose NEE differs at some night records:
+        each window's fit with Rref free (both passes) starts from that run's where it
+        converged, and its refit with the night Rref from that run's refit's alpha,
+        beta0 and k where it had one (:attr:`DaytimeResult.fits`), instead of the
+        starting values from its own data. The fits converge to the same tolerance in
+        fewer iterations; the result moves within that tolerance (mostly hundredths of
+        the parameters' standard errors, see :func:`_levenberg_marquardt`; the weighted
+        pass also moves with the weights the first pass gives), and a window whose
+        verdict hangs on where the iteration stops (a bound reached or not, a singular
+        refit) tends to take the other run's. Default None: the starting values from
+        the data.
 
     Returns
     -------
@@ -510,7 +531,10 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
                 "rref_max_relative_error": rref_max_relative_error,
                 "night_in_fit": night_in_fit, "max_iterations": max_iterations,
                 "curvature": 0.0 if curvature == "fit" else float(curvature)}
-    fit = _partition(data, None, settings)
+    # another run's fits, pass by pass (its last pass's for a pass it did not make)
+    starts = () if start is None or start.fits is None else start.fits
+    fit = _partition(data, None, {**settings, "start": starts[0] if starts else None})
+    fits = [fit["fits"]]
     weight = None
     if random_error is not None:
         # Weights from the error model at the first fit's modelled NEE, not at the
@@ -527,11 +551,13 @@ def partition_daytime(index, nee_measured, rg, vpd, temperature, is_night, *,
         # one curvature for the whole record, profiled on the final weights
         settings["curvature"] = _profile_curvature(data, weight, settings)
     if weight is not None or curvature == "fit":
-        fit = _partition(data, weight, settings)
+        fit = _partition(data, weight, {**settings, "start": starts[-1] if starts else None})
+        fits.append(fit["fits"])
     parameters = _parameter_table(index, fit)
     return DaytimeResult(gpp=fit["gpp"], reco=fit["reco"], e0=fit["e0"], parameters=parameters,
                          gpp_before=fit["gpp_sides"][0], gpp_after=fit["gpp_sides"][1],
-                         span_days=fit["span_days"], stretch=np.asarray(fit["stretch"]))
+                         span_days=fit["span_days"], stretch=np.asarray(fit["stretch"]),
+                         fits=tuple(fits))
 
 
 def _prepare(data, weight, settings) -> dict:
@@ -568,15 +594,27 @@ def _prepare(data, weight, settings) -> dict:
     theta0 = _starting_values(windows, rref_night, lower, upper)
     k_free = windows["high_vpd_points"] >= settings["k_min_points"]
     fitted = windows["points"] >= settings["min_points"]
+    refit_theta0 = theta0
+    start = settings.get("start")
+    if start is not None:
+        # another run's fits of the same windows (partition_daytime's `start`)
+        if start.shape[1] != len(starts):
+            raise LengthMismatchError(
+                f"daytime start: {start.shape[1]} windows, the record has {len(starts)}")
+        theta0, refit_theta0 = theta0.copy(), theta0.copy()
+        for values, fit in ((theta0, start[0]), (refit_theta0, start[1])):
+            warm = fitted & np.isfinite(fit).all(axis=1)
+            values[warm] = np.clip(fit[warm], lower, upper)
     fixed = np.zeros(theta0.shape, dtype=bool)
     fixed[:, _K] = ~k_free
     fixed[~fitted] = True
     theta0[~k_free, _K] = 0.0
+    refit_theta0[~k_free, _K] = 0.0
     mask = windows["mask"] & fitted[:, None]
     return {"starts": starts, "ends": ends, "centres": centres, "e0_fit": e0_fit,
             "windows": windows, "rref_night": rref_night, "rref_night_se": rref_night_se,
-            "lower": lower, "upper": upper, "theta0": theta0, "fixed": fixed,
-            "fitted": fitted, "mask": mask}
+            "lower": lower, "upper": upper, "theta0": theta0, "refit_theta0": refit_theta0,
+            "fixed": fixed, "fitted": fitted, "mask": mask}
 
 
 def _partition(data, weight, settings) -> dict:
@@ -591,6 +629,9 @@ def _partition(data, weight, settings) -> dict:
                                     "fixed", "fitted", "mask"))
     theta, converged = _levenberg_marquardt(theta0, fixed, lower, upper, windows, mask,
                                             vpd0, max_iterations)
+    # the converged fits, with Rref free and refitted: another run's starting values
+    fits = np.full((2, *theta.shape), np.nan)
+    fits[0] = np.where((converged & fitted)[:, None], theta, np.nan)
     errors, rmse = _standard_errors(theta, fixed, lower, upper, windows, mask, vpd0)
     status, reason, refit = _judge(theta, errors, fixed, fitted, converged, lower, upper,
                                    rref_night, rref_night_se, settings["consistency_z"],
@@ -599,8 +640,11 @@ def _partition(data, weight, settings) -> dict:
     if refit.any():
         theta, errors, rmse, fixed, status, reason = _refit_with_night_rref(
             refit, theta, errors, rmse, fixed, status, reason, rref_night, rref_night_se,
-            theta0, lower, upper, windows, usable_day_mask=windows["day"] & fitted[:, None],
-            vpd0=vpd0, max_iterations=max_iterations)
+            prepared["refit_theta0"], lower, upper, windows,
+            usable_day_mask=windows["day"] & fitted[:, None], vpd0=vpd0,
+            max_iterations=max_iterations)
+        replaced = status == "replaced"
+        fits[1][replaced] = theta[replaced]
 
     status, reason = _reject_runaway_curves(status, reason, theta, windows["e0"], days,
                                             centres, arrhenius, supplied_e0, data["edges"])
@@ -652,7 +696,7 @@ def _partition(data, weight, settings) -> dict:
             "windows": windows, "theta": theta, "errors": errors, "rmse": rmse,
             "status": status, "reason": reason, "k_fixed": fixed[:, _K] | (theta[:, _K] == 0.0),
             "e0_fit": e0_fit, "rref_night": rref_night, "rref_night_se": rref_night_se,
-            "weighted": weight is not None, "curvature": settings["curvature"]}
+            "weighted": weight is not None, "curvature": settings["curvature"], "fits": fits}
 
 
 def _profile_curvature(data, weight, settings):
