@@ -202,3 +202,9 @@ def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(netwo
     path.write_text(json.dumps(manifest), encoding="utf-8")
     with pytest.raises(InputFileError, match=r"written \(a batch stopped after writing"):
         network_table(out, "annual")
+    # review71: a deleted manifest (no batch leaves a site folder without one) was blamed
+    # on a stopped batch too; now named as unreadable, with the reason
+    path.unlink()
+    with pytest.raises(InputFileError, match=r"written \(its manifest.json cannot be read: "
+                       r".*manifest.json' does not exist"):
+        network_table(out, "annual")
