@@ -843,11 +843,16 @@ def _linked(dataset, directory):
     :func:`fluxpart.manifest.result_links` of the folder `directory` as ``result_<fact>``
     (``result_manifest_seal``, ``result_seed``, ``result_input_sha256``, ...), so a file
     that travels without its folder still says which result, input bytes and seed made it.
-    Changed in place; returned."""
+    Changed in place; returned.
+
+    A whole number outside the signed 64-bit range (a seed: the config takes any whole
+    number >= 0) is written as its decimal text, as NetCDF has no wider integer type: such
+    a seed had the export fail with a traceback (review71)."""
     from .manifest import read_manifest, result_links
 
     for name, value in result_links(read_manifest(directory)).items():
-        dataset.attrs[f"result_{name}"] = value
+        wide = isinstance(value, int) and not -2 ** 63 <= value < 2 ** 63
+        dataset.attrs[f"result_{name}"] = str(value) if wide else value
     return dataset
 
 

@@ -82,19 +82,21 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
                                  f"rewriting the network tables, or an edit); {rerun}")
     for key, site in sorted((seal.get("sites") or {}).items()):
         site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
-        edited = False
+        edited, unread = False, None
         try:
             manifest = read_manifest(site_folder)
             # the seal recomputed, not only the recorded one: an edited manifest keeps its
             # old "seal" entry, and passed (review round thirteen)
             edited = not seal_intact(manifest)
             now = None if edited else manifest.get("seal")
-        except InputFileError:
-            now = None
+        except InputFileError as error:
+            now, unread = None, str(error)
         if not isinstance(site, dict) or now != site.get("seal"):
-            # a manifest whose own seal fails was edited: no batch writes one, so the
-            # stopped batch the message offered misled an auditor (auditor53)
-            why = ("its manifest.json was edited after it was written (its own seal does "
+            # a manifest whose own seal fails was edited, one that cannot be read was
+            # deleted or damaged: no batch leaves either, so the stopped batch the message
+            # offered misled an auditor (auditor53; a deleted one, review71)
+            why = (f"its manifest.json cannot be read: {unread}" if unread else
+                   "its manifest.json was edited after it was written (its own seal does "
                    "not hold)" if edited else "a batch stopped after writing some sites, or "
                    "a run into that folder")
             raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "

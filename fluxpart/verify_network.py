@@ -201,7 +201,7 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             seal_problem = str(error).split("; run the batch again", 1)[0]
             break
     reports = []
-    for key, folder in listed:
+    for index, (key, folder) in enumerate(listed):
         try:
             reports.append((key, verify(folder, exact=exact)))
         except FluxpartError as error:
@@ -212,7 +212,12 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             where = (f" (a batch output folder takes no {option}: give it with the site's "
                      f"own folder, fluxpart verify {shown_path(folder)} {option} FILE)"
                      if option else "")
-            error.args = (f"site {key!r}: {error}{where}",)
+            # the error stops the walk: the sites after it are not verified, which the
+            # line did not say (an auditor fixed one site's input, reran, met the next)
+            later = [name for name, _ in listed[index + 1:]]
+            stopped = (f"; verify stopped at this site, {len(later)} listed after it not "
+                       f"verified ({', '.join(later)})" if later else "")
+            error.args = (f"site {key!r}: {error}{where}{stopped}",)
             raise
     try:
         recorded_failures = failed_sites(out)

@@ -617,3 +617,24 @@ def test_the_netcdf_extra_names_h5py_where_h5netcdf_leaves_it_to_an_extra():
     assert "h5netcdf" in named
     if not unconditional:
         assert "h5py" in named
+
+
+def test_a_seed_beyond_64_bits_is_written_as_its_text(tmp_path):
+    """review71: the config takes any whole number >= 0 as the seed (numpy's SeedSequence
+    takes any, NumPy documentation (m)), but a NetCDF attribute holds at most a 64-bit
+    integer (NetCDF-4 data model (m)): a seed of 2**70 had `export --netcdf` fail with a
+    traceback. Written as its decimal text, an ordinary seed still as a number."""
+    import json
+
+    from fluxpart.export import _engine, _linked
+
+    for seed, expected in ((2 ** 70, str(2 ** 70)), (7, 7)):
+        folder = tmp_path / f"result{seed}"
+        folder.mkdir()
+        (folder / "manifest.json").write_text(json.dumps({"seed": seed, "seal": "ab"}),
+                                              encoding="utf-8")
+        dataset = _linked(xr.Dataset({"a": ("x", [1.0, 2.0])}), folder)
+        dataset.to_netcdf(folder / "out.nc", engine=_engine())
+        with xr.open_dataset(folder / "out.nc", engine=_engine()) as reread:
+            assert reread.attrs["result_seed"] == expected
+            assert reread.attrs["result_manifest_seal"] == "ab"

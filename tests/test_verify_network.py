@@ -178,6 +178,9 @@ def test_a_site_whose_input_is_missing_says_where_input_goes(network, tmp_path, 
     assert captured.out == "" and len(captured.err.splitlines()) == 1
     assert captured.err.startswith("error: site 'alder': verify: the input file")
     assert f"fluxpart verify {root / network.name / 'alder'} --input FILE" in captured.err
+    # review71: the walk stops here; the line now says which sites it left unverified
+    assert captured.err.rstrip().endswith("verify stopped at this site, 1 listed after it "
+                                          "not verified (birch)")
 
 
 def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(network,
@@ -201,4 +204,10 @@ def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(netwo
     manifest["seal"] = manifest_seal(manifest)
     path.write_text(json.dumps(manifest), encoding="utf-8")
     with pytest.raises(InputFileError, match=r"written \(a batch stopped after writing"):
+        network_table(out, "annual")
+    # review71: a deleted manifest (no batch leaves a site folder without one) was blamed
+    # on a stopped batch too; now named as unreadable, with the reason
+    path.unlink()
+    with pytest.raises(InputFileError, match=r"written \(its manifest.json cannot be read: "
+                       r".*manifest.json' does not exist"):
         network_table(out, "annual")
