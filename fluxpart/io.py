@@ -66,6 +66,7 @@ from . import (
     record_order,
     table_formats,
     unicode_names,
+    zero_runs,
 )
 from ._validate import (
     is_tar,
@@ -2830,6 +2831,18 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)
+        nul = -1
+    cleaned = zero_runs.without_zero_runs(text) if nul >= 0 and warnings is not None else None
+    if cleaned is not None:
+        # the logger wrote on after a power cut's zeros (layouts50; refused before, naming
+        # the line and asking for an edited copy)
+        text, cut = cleaned
+        warnings.append(
+            f"input file {str(path)!r}: {len(cut)} run(s) of zero bytes (NUL) between the "
+            "records, where a logger wrote on after a power cut: "
+            + "; ".join(f"line {line} cut ({_shown_line(record)!r})" if record else
+                        f"line {line}" for line, record in cut)
+            + "; the cut record(s) dropped and the records after the zeros read")
         nul = -1
     if nul >= 0 and text.count("\x00") >= len(text) / 4:
         raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
