@@ -4540,6 +4540,13 @@ def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
         own_under = [line.strip() for line in text_lines[above + 1:above + 1 + len(under)]]
         # the units lines written into the first file only too: none under this header
         return text, above, rows_after_header if own_under == under else 0, 0
+    below = later_files.title_lines_added(text_lines, header, rows_before_header, delimiter)
+    if below is not None:
+        # a title line added above one file's header (layouts50; refused before as blocks
+        # of different lengths above the header)
+        notes.setdefault("added", []).append(str(path))
+        own_under = [line.strip() for line in text_lines[below + 1:below + 1 + len(under)]]
+        return text, below, rows_after_header if own_under == under else 0, 0
     if not later_files.headerless(text_lines, header, delimiter):
         return text, rows_before_header, rows_after_header, 0
     notes.setdefault("header", []).append(str(path))
@@ -4570,6 +4577,13 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
             f"above it than [input] rows_before_header = {rows_before_header} (title lines "
             "written into the first file only?): read from their header line (and without "
             "units lines where none stands under it)"))
+    if notes.get("added"):
+        found.append(ReaderNote(
+            f"{len(notes['added'])} input file(s) ({_file_list(notes['added'])}) have the "
+            f"header line of {first['source']!r}, character for character, with more lines "
+            f"above it than [input] rows_before_header = {rows_before_header}, none of them "
+            "a record (a title line added by hand or by an export?): read from their header "
+            "line"))
     if notes.get("units"):
         found.append(
             f"{len(notes['units'])} input file(s) ({_file_list(notes['units'])}) have other "

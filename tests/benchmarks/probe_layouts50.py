@@ -99,8 +99,10 @@ def renamed_from_july(folder, declared):
         if m >= 7:
             part = part.rename(columns={"air_c": "t_air"})
         write(folder / f"q_{m:02d}.csv", lines(part))
-    other = {"other_names": {"tair": ["t_air"]}} if declared else {}
-    toml(folder, "q_*.csv", **other)
+    toml(folder, "q_*.csv")
+    if declared:
+        with open(folder / "site.toml", "a", encoding="utf-8") as config:
+            config.write('\n[input.other_names]\ntair = ["t_air"]\n')
 
 
 @case
@@ -159,14 +161,34 @@ def same_month_sent_again_crlf_and_bom_same_records(folder):
     write(folder / "q_05_resent.csv", lines(part), ending="\r\n", encoding="utf-8-sig")
 
 
-@case
-def same_month_sent_again_one_record_corrected(folder):
-    """May sent twice, the second with one NEE value corrected by hand: which is the
-    record cannot be told (refused naming both files and the stamp)."""
+def may_sent_again(folder, row):
+    """Month files and May's file sent again as "q_05_resent.csv", the NEE of the first
+    record after May's 300th whose NEE is missing (`row` 0) or measured (`row` 1)
+    written -4.321; that record's place in the frame."""
     raw, ends = month_files(folder)
     part = raw[month_of(ends) == 5].copy()
-    part.iloc[300, 1] = "-4.321"
+    at = 300 + int(np.flatnonzero((part["co2_net"].to_numpy()[300:] == "-9999")
+                                  == (row == 0))[0])
+    part.iloc[at, 1] = "-4.321"
     write(folder / "q_05_resent.csv", lines(part))
+    return int(np.flatnonzero(month_of(ends) == 5)[at])
+
+
+@case
+def same_month_sent_again_one_missing_value_recovered(folder):
+    """May sent again with one NEE value the first file lacks (recovered from the
+    logger's card): the value is read where the other file has none."""
+    at = may_sent_again(folder, 0)
+    frame = p38.truth(None)
+    frame.iloc[at, frame.columns.get_loc("nee")] = -4.321
+    return frame
+
+
+@case
+def same_month_sent_again_one_value_corrected(folder):
+    """May sent again with one measured NEE value corrected by hand: which of the two
+    values is the record's cannot be told (refused naming both files and the stamp)."""
+    may_sent_again(folder, 1)
     return "refused"
 
 
