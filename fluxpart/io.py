@@ -64,6 +64,7 @@ from . import (
     merged_dates,
     page_breaks,
     record_order,
+    resaved_dates,
     table_formats,
     unicode_names,
     zero_runs,
@@ -4376,9 +4377,25 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         stamp_text, said = counted
         warnings.append(ReaderNote(f"input file {source!r}: column {time_columns[1]!r}: "
                                    f"{said}"))
-    parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
-                          lines=lines, utc_offset=utc_offset, time_zone=time_zone,
-                          rows_after_header=rows_after_header)
+    try:
+        parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns,
+                              source=source, lines=lines, utc_offset=utc_offset,
+                              time_zone=time_zone, rows_after_header=rows_after_header)
+    except TimestampError:
+        # a later file whose dates a spreadsheet rewrote (layouts50; refused before, naming
+        # the layout that reads it, which would refuse the other files)
+        own = (resaved_dates.file_layout(stamp_text, time_format)
+               if first_header is not None else None)
+        if own is None:
+            raise
+        parsed = parse_stamps(stamp_text, own, time_columns=time_columns, source=source,
+                              lines=lines, utc_offset=utc_offset, time_zone=time_zone,
+                              rows_after_header=rows_after_header)
+        warnings.append(ReaderNote(
+            f"input file {source!r}: no stamp reads as time_format = "
+            f"{setting_text(time_format)} and every stamp reads as {setting_text(own)}, "
+            "the one common layout that does (dates rewritten by a spreadsheet?): read so"))
+        time_format = own
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
     # stamps unique as written too: civil time's repeated autumn hour is read by record

@@ -225,6 +225,18 @@ def one_month_file_with_dates_rewritten_day_first(folder):
 
 
 @case
+def one_month_file_of_twelve_days_with_dates_rewritten_day_first(folder):
+    """Twin: a March file of 1-12 March only, rewritten day first: every stamp reads day
+    first and month first alike (refused naming the layout)."""
+    raw, ends = iso_table()
+    march = month_of(ends) == 3
+    raw.loc[march, "stamp"] = stamps(ends[march], "%d/%m/%Y %H:%M")
+    early = ~march | ((ends - pd.Timedelta("30min")).dt.day <= 12).to_numpy()
+    month_files(folder, None, raw[early], ends[early], time_format=ISO)
+    return "refused"
+
+
+@case
 def block_of_empty_delimited_lines_closing_a_month_file(folder):
     month_files(folder, lambda m, text: text + [",,,,,,,,"] * (40 if m == 4 else 0))
 

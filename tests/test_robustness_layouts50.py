@@ -1,0 +1,107 @@
+"""Layouts of the layouts50 round: a year's files as they arrive from the field. A power
+cut's zero bytes between a record cut short and the records the logger wrote on after them,
+a later file with a title line the first file lacks, and a later file whose dates a
+spreadsheet rewrote day first.
+
+Outside facts, each named beside its check: FAT file systems give a file whole clusters
+ahead of its data, which read as zeros after a power cut (common practice); a spreadsheet
+writes a date cell back in the computer's regional layout on saving as CSV (common
+practice); 13 June 2021 has no month-first reading "13/06/2021" (the Gregorian calendar
+has 12 months), and "11/06/2021" reads as 11 June day first and 6 November month first.
+Everything else is invented known truth: the records as written.
+"""
+import numpy as np
+import pandas as pd
+import pytest
+from test_robustness_layouts19 import _read, _tower
+
+from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
+from fluxpart.later_files import title_lines_added
+from fluxpart.resaved_dates import file_layout
+from fluxpart.zero_runs import without_zero_runs
+
+
+def _clean(tmp_path, records):
+    (tmp_path / "clean.csv").write_text(records.to_csv(index=False))
+    return _read(tmp_path / "clean.csv")[0]
+
+
+def test_zero_bytes_after_a_cut_record_with_records_after_them_are_read_past(tmp_path):
+    """Refused before ("line 202 holds zero bytes ... delete them"); now the record the
+    zeros cut is dropped (its stamp a gap) and every record after them read as written."""
+    starts, records = _tower()
+    lines = records.to_csv(index=False).splitlines(keepends=True)
+    data = "".join(lines[:201]) + lines[201][:14] + "\x00" * 2048 + "".join(lines[202:])
+    (tmp_path / "cut.csv").write_text(data)
+    frame, report = _read(tmp_path / "cut.csv")
+    expected = _clean(tmp_path, records)
+    expected.iloc[200] = np.nan                  # known truth: record 201 was cut
+    pd.testing.assert_frame_equal(frame, expected)
+    assert list(frame.index) == list(starts)
+    warned = [w for w in report.warnings if "run(s) of zero bytes" in w]
+    assert len(warned) == 1 and "line 202 cut ('2021-06-05 04:')" in warned[0]
+
+
+@pytest.mark.parametrize("after", ["half", "none"])
+def test_zero_bytes_not_between_a_cut_record_and_a_whole_one_stay_refused(tmp_path, after):
+    """Zeros ending inside a record (`half`: its first fields lost) or starting at a line
+    (`none`: no record cut, a damaged card's overwrite) say no write was cut: refused."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines(keepends=True)
+    zeros = (lines[201][:14] + "\x00" * 64 + lines[202][20:] if after == "half"
+             else "\x00" * 64 + lines[202])
+    (tmp_path / "cut.csv").write_text("".join(lines[:201]) + zeros + "".join(lines[203:]))
+    with pytest.raises(InputFileError, match="holds zero bytes"):
+        _read(tmp_path / "cut.csv")
+    assert without_zero_runs("a,b,c\n1,2,3\n1,\x00\x002,3,4\n") == (
+        "a,b,c\n1,2,3\n2,3,4\n", [(3, "1,")])
+
+
+def test_a_later_file_with_an_added_title_line_is_read_from_its_header(tmp_path):
+    """Refused before ("blocks of different lengths above their header line"); now read
+    as the files without it, with a note naming the file."""
+    _, records = _tower()
+    (tmp_path / "a.csv").write_text(records.iloc[:240].to_csv(index=False))
+    (tmp_path / "b.csv").write_text("Tower export by hand, 11-20 June (fictional)\n"
+                                    + records.iloc[240:].to_csv(index=False))
+    frame, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"])
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert any("more lines above it than [input] rows_before_header = 0" in n
+               and "b.csv" in n for n in report.notes)
+    header = "stamp,co2_flux,us"
+    # a record above the header is no title line: not read so
+    assert title_lines_added(["2021-06-01 00:30,1,2", header], header, 0, ",") is None
+    assert title_lines_added(["title", "", header], header, 0, ",") == 2
+
+
+def test_a_later_file_with_dates_rewritten_day_first_is_read_so(tmp_path):
+    """Refused before ("every stamp reads as time_format = "%d/%m/%Y %H:%M"", a setting
+    that refuses the first file); now read as written, with a note: 13-20 June have no
+    month-first reading."""
+    _, records = _tower(periods=48 * 20)
+    (tmp_path / "a.csv").write_text(records.iloc[:480].to_csv(index=False))
+    later = records.iloc[480:].copy()
+    later["stamp"] = pd.to_datetime(later["stamp"]).dt.strftime("%d/%m/%Y %H:%M")
+    (tmp_path / "b.csv").write_text(later.to_csv(index=False))
+    frame, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"])
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert any("every stamp reads as \"%d/%m/%Y %H:%M\"" in n and "b.csv" in n
+               for n in report.notes)
+
+
+@pytest.mark.parametrize("which", ["twelve_days", "first_file"])
+def test_dates_rewritten_stay_refused_where_not_provable(tmp_path, which):
+    """Day first and month first both read 11-12 June ("11/06/2021" is 6 November month
+    first; the record ending 13 June 00:00 left out); a first file has no file read
+    before it: refused, naming the layout."""
+    _, records = _tower(periods=48 * 20)
+    first, later = (records.iloc[:480], records.iloc[480:575].copy()) \
+        if which == "twelve_days" else (records.iloc[480:].copy(), records.iloc[:480])
+    day_first = later if which == "twelve_days" else first
+    day_first["stamp"] = pd.to_datetime(day_first["stamp"]).dt.strftime("%d/%m/%Y %H:%M")
+    (tmp_path / "a.csv").write_text(first.to_csv(index=False))
+    (tmp_path / "b.csv").write_text(later.to_csv(index=False))
+    with pytest.raises((TimestampError, MissingColumnError), match="does not match"):
+        _read([tmp_path / "a.csv", tmp_path / "b.csv"])
+    assert file_layout(pd.Series(["11/06/2021 00:30"]), "%Y-%m-%d %H:%M") is None
+    assert file_layout(pd.Series(["13/06/2021 00:30"]), "%Y-%m-%d %H:%M") == "%d/%m/%Y %H:%M"
