@@ -152,7 +152,7 @@ from .unit_checks import (
     most_repeated,
     undeclared_code,
 )
-from .unit_labels import relabelled_files, relabelled_months_message
+from .unit_labels import relabelled_files, relabelled_months_message, relabelled_range_clause
 from .variables import (
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -1107,6 +1107,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         message = implausible_message(name, converted[name], values[name], units.get(name),
                                       mapping[name], missing, interval_minutes)
         if message and name not in refusals:
+            if len(parts) > 1:
+                message += relabelled_range_clause(_relabelled(name, parts, units),
+                                                   units.get(name) or units_for(name)[0])
             accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
 
     derived: list[str] = []
@@ -2149,17 +2152,24 @@ def _relabelled_refusals(suspicions: list, refusals: dict, parts: list, mapping:
         if name is None or name in refusals or name in found:
             continue
         declared = units.get(name)
-        read_key = (same_unit_key(name, declared) if declared is not None
-                    else ("unit", (1.0, 0.0), False))
-        labels = [(part["source"], part["header_rows"].get(name, (None, ()))[1])
-                  for part in parts]
-        relabelled = relabelled_files(name, labels, read_key)
+        relabelled = _relabelled(name, parts, units)
         message = relabelled_months_message(name, str(mapping[name]), warning,
                                             declared or units_for(name)[0], relabelled,
                                             starts, sources)
         if message:
             found[name] = message
     return found
+
+
+def _relabelled(name: str, parts: list, units: dict) -> dict:
+    """The input files whose units line writes another unit of `name` than it is read in
+    (:func:`fluxpart.unit_labels.relabelled_files`)."""
+    declared = units.get(name)
+    read_key = (same_unit_key(name, declared) if declared is not None
+                else ("unit", (1.0, 0.0), False))
+    labels = [(part["source"], part["header_rows"].get(name, (None, ()))[1])
+              for part in parts]
+    return relabelled_files(name, labels, read_key)
 
 
 def _warned_variable(warning: str, mapping: dict) -> str | None:

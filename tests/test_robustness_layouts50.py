@@ -15,7 +15,12 @@ import pandas as pd
 import pytest
 from test_robustness_layouts19 import _read, _tower
 
-from fluxpart.errors import InputFileError, MissingColumnError, TimestampError
+from fluxpart.errors import (
+    ImplausibleValueError,
+    InputFileError,
+    MissingColumnError,
+    TimestampError,
+)
 from fluxpart.later_files import title_lines_added
 from fluxpart.resaved_dates import file_layout
 from fluxpart.zero_runs import without_zero_runs
@@ -105,3 +110,24 @@ def test_dates_rewritten_stay_refused_where_not_provable(tmp_path, which):
         _read([tmp_path / "a.csv", tmp_path / "b.csv"])
     assert file_layout(pd.Series(["11/06/2021 00:30"]), "%Y-%m-%d %H:%M") is None
     assert file_layout(pd.Series(["13/06/2021 00:30"]), "%Y-%m-%d %H:%M") == "%d/%m/%Y %H:%M"
+
+
+def test_a_range_refusal_names_the_files_whose_units_line_writes_another_unit(tmp_path):
+    """Air in kelvin from the second file on, its units line saying "K", read in degC:
+    refused by the range as before (one [input.units] reads every file), now naming the
+    file and its label (before: the range alone, whose fix refused the first file).
+    0 degC is 273.15 K (SI Brochure, 9th ed., 2.3.1 (m))."""
+    _, records = _tower(periods=48 * 20)
+    units_line = "-,umol m-2 s-1,m s-1,W m-2,{},kPa\n"
+    later = records.iloc[480:].copy()
+    later["t_air"] = np.round(later["t_air"] + 273.15, 2)
+    for name, part, unit in (("a.csv", records.iloc[:480], "degC"), ("b.csv", later, "K")):
+        text = part.to_csv(index=False).split("\n", 1)
+        (tmp_path / name).write_text(text[0] + "\n" + units_line.format(unit) + text[1])
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read([tmp_path / "a.csv", tmp_path / "b.csv"], rows_after_header=1,
+              units={"tair": "degC", "vpd": "hPa"})
+    message = str(caught.value)
+    assert "lie outside the plausible range" in message and len(message.splitlines()) == 1
+    assert (f"the units line of 1 input file(s) writes another unit than the 'degC' every "
+            f"file is read in: {str(tmp_path / 'b.csv')!r} ('K')") in message
