@@ -128,6 +128,23 @@ def relabelled_range_clause(relabelled: dict, read_unit: str) -> str:
     files; the files' own labels are named, as :func:`relabelled_months_message` names
     them (round layouts50). The values are not read in the label's unit: one
     ``[input.units]`` reads every file.
+
+    Parameters
+    ----------
+    relabelled : dict
+        From :func:`relabelled_files`: source -> unit its units line writes.
+    read_unit : str
+        The unit every file is read in (``[input.units]`` or the canonical unit).
+
+    Returns
+    -------
+    str
+        The clause, opening with "; ", or ''.
+
+    References
+    ----------
+    A unit written once per column above the records is how logger programs and exports
+    state their units (common practice).
     """
     if not relabelled:
         return ""
