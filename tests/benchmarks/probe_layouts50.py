@@ -231,7 +231,7 @@ def one_month_file_of_twelve_days_with_dates_rewritten_day_first(folder):
     raw, ends = iso_table()
     march = month_of(ends) == 3
     raw.loc[march, "stamp"] = stamps(ends[march], "%d/%m/%Y %H:%M")
-    early = ~march | ((ends - pd.Timedelta("30min")).dt.day <= 12).to_numpy()
+    early = ~march | (ends.dt.day <= 12).to_numpy()        # the last stamp 12/03 23:30
     month_files(folder, None, raw[early], ends[early], time_format=ISO)
     return "refused"
 
