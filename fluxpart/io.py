@@ -964,7 +964,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     code_cells = {} if len(paths) > 1 else None
     renamed_in: dict = {}                     # (other name, mapped name) -> files
     later_notes: dict = {}                    # later files lacking titles or a header
-    for path_ in paths:
+    queue, deferred = list(paths), set()
+    for path_ in queue:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
                               time_columns=time_columns, time_format=time_format,
@@ -994,6 +995,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # a layout setting that would read this file would misread those read before
             layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
                                r"rows_after_header) = ", str(error))
+            if (layout is not None and layout.group(1) == "rows_before_header" and not parts
+                    and path_ not in deferred
+                    and _header_as_set_elsewhere([p for p in paths if p != path_], encoding,
+                                                 delimiter, time_columns, rows_before_header)):
+                # a title block of another length in the first file(s): read after a file
+                # whose header stands as set, as later files are (layouts50)
+                deferred.add(path_)
+                queue.append(path_)
+                continue
             if layout is not None and layout.group(1) == "rows_before_header":
                 _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
                                             rows_before_header)
@@ -4088,6 +4098,15 @@ def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,
         f"{text}; but {having[0]!r} has the column as written: the input files write their "
         "header differently (other names or capitals from one file on?), and one [input] "
         "time_column reads every file, so give this file the others' header line in a copy")
+
+
+def _header_as_set_elsewhere(paths: list, encoding, delimiter: str, time_columns: tuple,
+                             rows_before_header: int) -> bool:
+    """True where one of `paths` holds its header line on the line ``rows_before_header``
+    sets: read first, it sets the header the files before it are then read under
+    (:func:`fluxpart.later_files.title_lines_added`, `title_lines_lacking`)."""
+    return any(_header_line_number(text, delimiter, time_columns[0]) == rows_before_header
+               for _, text in _decoded_files(paths, encoding))
 
 
 def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_columns: tuple,

@@ -131,3 +131,21 @@ def test_a_range_refusal_names_the_files_whose_units_line_writes_another_unit(tm
     assert "lie outside the plausible range" in message and len(message.splitlines()) == 1
     assert (f"the units line of 1 input file(s) writes another unit than the 'degC' every "
             f"file is read in: {str(tmp_path / 'b.csv')!r} ('K')") in message
+
+
+@pytest.mark.parametrize("setting", [2, 3, 4])
+def test_title_blocks_of_other_lengths_are_read_where_one_file_places_the_header(
+        tmp_path, setting):
+    """Files of 3, 2, 4 and 3 title lines above one header (a line added at a program
+    change; the first file among them): refused before unless the setting read the first
+    file and the others had fewer lines; now any setting that places one file's header
+    reads them all as the plain files read."""
+    _, records = _tower(periods=48 * 8)
+    paths = []
+    for number, count in enumerate([3, 2, 4, 3]):
+        block = "".join(f"station note {i}: logger 7{i}\n" for i in range(count))
+        path = tmp_path / f"q_{number}.csv"
+        path.write_text(block + records.iloc[number * 96:(number + 1) * 96].to_csv(index=False))
+        paths.append(path)
+    frame, report = _read(paths, rows_before_header=setting)
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))

@@ -214,6 +214,19 @@ def one_month_file_with_a_title_line_the_others_lack(folder):
 
 
 @case
+def first_month_file_with_a_title_line_the_others_lack(folder):
+    """Twin: January, the first file, holds the added title line."""
+    month_files(folder, lambda m, text: (["Quillmoor T1 export January 2021 (fictional)"]
+                                         if m == 1 else []) + text)
+
+
+@case
+def one_month_file_with_its_header_line_written_twice(folder):
+    """August's file opens with its header line twice (two exports pasted together)."""
+    month_files(folder, lambda m, text: text[:1] * (m == 8) + text)
+
+
+@case
 def one_month_file_with_dates_rewritten_day_first(folder):
     """A spreadsheet opened and saved March: "2021-03-04 00:30" became "04/03/2021 00:30"
     in that file only. Day first is provable (days 13 to 31 in the first field, every
