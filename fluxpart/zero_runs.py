@@ -33,6 +33,9 @@ _SEPARATORS = (",", ";", "\t", "|", " ")
 
 _ZERO_RUN = re.compile("\x00+")
 
+#: Characters before a cut line searched for the whole line above it.
+_WINDOW = 65536
+
 
 def _shape(line: str) -> tuple:
     """How many of each field separator `line` holds (blanks around it aside)."""
@@ -52,7 +55,8 @@ def without_zero_runs(text: str) -> tuple[str, list] | None:
         line_start = max(text.rfind("\n", 0, run.start()), text.rfind("\r", 0, run.start())) + 1
         ends = re.compile(r"\r\n|\r|\n").search(text, run.end())
         after = text[run.end():ends.start() if ends else len(text)]
-        above = text[:line_start].rstrip("\r\n").splitlines()
+        # the line above, from a window (a line longer than it fails the shape: refused)
+        above = text[max(0, line_start - _WINDOW):line_start].rstrip("\r\n").splitlines()
         before = text[line_start:run.start()]
         if line_start < start or not above or "\x00" in above[-1]:
             return None
