@@ -6067,11 +6067,7 @@ def _apply_numeric_codes(numbers, is_code, missing, decimal):
             is_code = is_code | (np.abs(numbers - code) <= tolerance)
     with np.errstate(invalid="ignore"):
         absurd = ~is_code & (np.isinf(numbers) | (np.abs(numbers) >= ABSURD_MAGNITUDE))
-    # + 0.0 writes a negative zero ("-0.0", "-0": a logger's rounding of a small negative
-    # value) as 0.0, every other value bit for bit as it is: the same number, so the same
-    # bytes wherever values are hashed (the artificial gaps' seed; layouts50: the
-    # intervals of a file writing "-0.000" differed from those of its "0.000" twin)
-    numbers = np.where(is_code | absurd, np.nan, numbers) + 0.0
+    numbers = np.where(is_code | absurd, np.nan, numbers)
     return numbers, int(is_code.sum()), absurd
 
 

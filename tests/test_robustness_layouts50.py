@@ -152,23 +152,21 @@ def test_title_blocks_of_other_lengths_are_read_where_one_file_places_the_header
     pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
 
 
-def test_negative_zeros_are_read_as_zero_bit_for_bit(tmp_path):
-    """ "-0.000" and "-0" (a logger's rounding of a small negative value) are 0: read as
-    +0.0, so the values hash as their "0" twin's do (the artificial gaps' seed is a
-    SHA-256 of the NEE bytes; IEEE 754 gives -0.0 a sign bit of its own, and
-    -0.0 + 0.0 = +0.0 under rounding to nearest (m)). Before: the intervals of the
-    "-0" file differed from its twin's."""
+def test_negative_zeros_seed_the_artificial_gaps_as_zeros(tmp_path):
+    """ "-0.000" and "-0" (a logger's rounding of a small negative value) are 0, read as
+    written (-0.0 == 0.0); the artificial gaps' seed, a SHA-256 of the NEE bytes, now
+    hashes them as their "0.000" twin's (IEEE 754 gives -0.0 a sign bit of its own, and
+    -0.0 + 0.0 = +0.0 under rounding to nearest (m)). Before: the intervals of the "-0"
+    file differed from its twin's."""
     _, records = _tower()
-    text = records.to_csv(index=False)
     records.loc[records["sw"] == 0, "sw"] = 0.0
     records.loc[::97, "co2_flux"] = 0.0
     plain = records.to_csv(index=False, float_format="%.3f")
     (tmp_path / "plain.csv").write_text(plain)
     (tmp_path / "signed.csv").write_text(plain.replace(",0.000,", ",-0.000,")
                                          .replace(",0.000\n", ",-0\n"))
-    assert "-0.000" in (tmp_path / "signed.csv").read_text() and text
     frame, _ = _read(tmp_path / "signed.csv")
     clean, _ = _read(tmp_path / "plain.csv")
-    assert not np.signbit(frame.to_numpy(float)[frame.to_numpy(float) == 0]).any()
-    assert artificial_gap_seed(frame["nee"]) == artificial_gap_seed(clean["nee"])
     pd.testing.assert_frame_equal(frame, clean)
+    assert np.signbit(frame["nee"].to_numpy()[frame["nee"].to_numpy() == 0]).all()
+    assert artificial_gap_seed(frame["nee"]) == artificial_gap_seed(clean["nee"])
