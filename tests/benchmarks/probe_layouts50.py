@@ -12,8 +12,9 @@ column renamed from July when the logger program changed (declared as another na
 not), the air temperature's unit changed to kelvin from July with a units line per file, the
 previous December's file at the head of the list, a month sent twice (byte for byte other,
 the same records; and again with one record corrected), the files listed in no order and
-overlapping by a day, one month file with a title line the others lack, one month file whose
-dates a spreadsheet rewrote day first, a block of empty delimited lines closing a month file,
+overlapping by a day, one month file with a title line the others lack (and the first file
+so), a month file opening with its header line twice, one month file whose dates a
+spreadsheet rewrote day first (and a twin of 1-12 March only, day and month first alike), a block of empty delimited lines closing a month file,
 the humidity all missing in one month file, the air temperature written twice under one name
 in one file, a header with trailing blanks and a trailing delimiter, a month file cut inside
 its last stamp, a run of zero bytes in mid-file after a power cut (the logger writing on after
