@@ -64,8 +64,10 @@ from . import (
     merged_dates,
     page_breaks,
     record_order,
+    resaved_dates,
     table_formats,
     unicode_names,
+    zero_runs,
 )
 from ._validate import (
     is_tar,
@@ -150,7 +152,7 @@ from .unit_checks import (
     most_repeated,
     undeclared_code,
 )
-from .unit_labels import relabelled_files, relabelled_months_message
+from .unit_labels import relabelled_files, relabelled_months_message, relabelled_range_clause
 from .variables import (
     PPFD_PER_RG,
     READER_VARIABLES,
@@ -962,7 +964,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     code_cells = {} if len(paths) > 1 else None
     renamed_in: dict = {}                     # (other name, mapped name) -> files
     later_notes: dict = {}                    # later files lacking titles or a header
-    for path_ in paths:
+    queue, deferred = list(paths), set()
+    for path_ in queue:
         try:
             part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
                               time_columns=time_columns, time_format=time_format,
@@ -992,6 +995,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # a layout setting that would read this file would misread those read before
             layout = re.search(r"set \[input\] (delimiter|decimal|encoding|rows_before_header|"
                                r"rows_after_header) = ", str(error))
+            if (layout is not None and layout.group(1) == "rows_before_header" and not parts
+                    and path_ not in deferred
+                    and _header_as_set_elsewhere([p for p in paths if p != path_], encoding,
+                                                 delimiter, time_columns, rows_before_header)):
+                # a title block of another length in the first file(s): read after a file
+                # whose header stands as set, as later files are (layouts50)
+                deferred.add(path_)
+                queue.append(path_)
+                continue
             if layout is not None and layout.group(1) == "rows_before_header":
                 _refuse_header_lines_differ(paths, encoding, delimiter, time_columns,
                                             rows_before_header)
@@ -1105,6 +1117,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         message = implausible_message(name, converted[name], values[name], units.get(name),
                                       mapping[name], missing, interval_minutes)
         if message and name not in refusals:
+            if len(parts) > 1:
+                message += relabelled_range_clause(_relabelled(name, parts, units),
+                                                   units.get(name) or units_for(name)[0])
             accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
 
     derived: list[str] = []
@@ -2158,17 +2173,24 @@ def _relabelled_refusals(suspicions: list, refusals: dict, parts: list, mapping:
         if name is None or name in refusals or name in found:
             continue
         declared = units.get(name)
-        read_key = (same_unit_key(name, declared) if declared is not None
-                    else ("unit", (1.0, 0.0), False))
-        labels = [(part["source"], part["header_rows"].get(name, (None, ()))[1])
-                  for part in parts]
-        relabelled = relabelled_files(name, labels, read_key)
+        relabelled = _relabelled(name, parts, units)
         message = relabelled_months_message(name, str(mapping[name]), warning,
                                             declared or units_for(name)[0], relabelled,
                                             starts, sources)
         if message:
             found[name] = message
     return found
+
+
+def _relabelled(name: str, parts: list, units: dict) -> dict:
+    """The input files whose units line writes another unit of `name` than it is read in
+    (:func:`fluxpart.unit_labels.relabelled_files`)."""
+    declared = units.get(name)
+    read_key = (same_unit_key(name, declared) if declared is not None
+                else ("unit", (1.0, 0.0), False))
+    labels = [(part["source"], part["header_rows"].get(name, (None, ()))[1])
+              for part in parts]
+    return relabelled_files(name, labels, read_key)
 
 
 def _warned_variable(warning: str, mapping: dict) -> str | None:
@@ -2842,6 +2864,18 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)
+        nul = -1
+    cleaned = zero_runs.without_zero_runs(text) if nul >= 0 and warnings is not None else None
+    if cleaned is not None:
+        # the logger wrote on after a power cut's zeros (layouts50; refused before, naming
+        # the line and asking for an edited copy)
+        text, cut = cleaned
+        warnings.append(
+            f"input file {str(path)!r}: {len(cut)} run(s) of zero bytes (NUL) between the "
+            "records, where a logger wrote on after a power cut: "
+            + "; ".join(f"line {line} cut ({_shown_line(record)!r})" if record else
+                        f"line {line}" for line, record in cut)
+            + "; the cut record(s) dropped and the records after the zeros read")
         nul = -1
     if nul >= 0 and text.count("\x00") >= len(text) / 4:
         raise InputFileError(f"input file {str(path)!r} is read as {encoding} but every other "
@@ -4078,6 +4112,15 @@ def _refuse_time_column_spelled_otherwise(error: MissingColumnError, path: Path,
         "time_column reads every file, so give this file the others' header line in a copy")
 
 
+def _header_as_set_elsewhere(paths: list, encoding, delimiter: str, time_columns: tuple,
+                             rows_before_header: int) -> bool:
+    """True where one of `paths` holds its header line on the line ``rows_before_header``
+    sets: read first, it sets the header the files before it are then read under
+    (:func:`fluxpart.later_files.title_lines_added`, `title_lines_lacking`)."""
+    return any(_header_line_number(text, delimiter, time_columns[0]) == rows_before_header
+               for _, text in _decoded_files(paths, encoding))
+
+
 def _refuse_header_lines_differ(paths: list, encoding, delimiter: str, time_columns: tuple,
                                 rows_before_header: int) -> None:
     """Raise where the files' headers stand on different lines (blocks of other lengths).
@@ -4375,9 +4418,25 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         stamp_text, said = counted
         warnings.append(ReaderNote(f"input file {source!r}: column {time_columns[1]!r}: "
                                    f"{said}"))
-    parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns, source=source,
-                          lines=lines, utc_offset=utc_offset, time_zone=time_zone,
-                          rows_after_header=rows_after_header)
+    try:
+        parsed = parse_stamps(stamp_text, time_format, time_columns=time_columns,
+                              source=source, lines=lines, utc_offset=utc_offset,
+                              time_zone=time_zone, rows_after_header=rows_after_header)
+    except TimestampError:
+        # a later file whose dates a spreadsheet rewrote (layouts50; refused before, naming
+        # the layout that reads it, which would refuse the other files)
+        own = (resaved_dates.file_layout(stamp_text, time_format)
+               if first_header is not None else None)
+        if own is None:
+            raise
+        parsed = parse_stamps(stamp_text, own, time_columns=time_columns, source=source,
+                              lines=lines, utc_offset=utc_offset, time_zone=time_zone,
+                              rows_after_header=rows_after_header)
+        warnings.append(ReaderNote(
+            f"input file {source!r}: no stamp reads as time_format = "
+            f"{setting_text(time_format)} and every stamp reads as {setting_text(own)}, "
+            "the one common layout that does (dates rewritten by a spreadsheet?): read so"))
+        time_format = own
     warnings.extend(parsed.notes)
     newest_first = written_newest_first(parsed.stamps)
     # stamps unique as written too: civil time's repeated autumn hour is read by record
@@ -4539,6 +4598,13 @@ def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
         own_under = [line.strip() for line in text_lines[above + 1:above + 1 + len(under)]]
         # the units lines written into the first file only too: none under this header
         return text, above, rows_after_header if own_under == under else 0, 0
+    below = later_files.title_lines_added(text_lines, header, rows_before_header, delimiter)
+    if below is not None:
+        # a title line added above one file's header (layouts50; refused before as blocks
+        # of different lengths above the header)
+        notes.setdefault("added", []).append(str(path))
+        own_under = [line.strip() for line in text_lines[below + 1:below + 1 + len(under)]]
+        return text, below, rows_after_header if own_under == under else 0, 0
     if not later_files.headerless(text_lines, header, delimiter):
         return text, rows_before_header, rows_after_header, 0
     notes.setdefault("header", []).append(str(path))
@@ -4569,6 +4635,13 @@ def _later_files_warnings(notes: dict, first: dict, rows_before_header: int,
             f"above it than [input] rows_before_header = {rows_before_header} (title lines "
             "written into the first file only?): read from their header line (and without "
             "units lines where none stands under it)"))
+    if notes.get("added"):
+        found.append(ReaderNote(
+            f"{len(notes['added'])} input file(s) ({_file_list(notes['added'])}) have the "
+            f"header line of {first['source']!r}, character for character, with more lines "
+            f"above it than [input] rows_before_header = {rows_before_header}, none of them "
+            "a record (a title line added by hand or by an export?): read from their header "
+            "line"))
     if notes.get("units"):
         found.append(
             f"{len(notes['units'])} input file(s) ({_file_list(notes['units'])}) have other "

@@ -5,12 +5,16 @@ A logger or a data system that splits its record into month files often writes i
 lines (station, logger, program) into the first file only, or the header into the first
 file only (later files appended to a download, a program that writes the header once per
 card). Read with the first file's ``rows_before_header``, such a file's header or first
-record is taken for a title, and its records for the header. Three rules read them, each
+record is taken for a title, and its records for the header. Four rules read them, each
 only where the reading is unambiguous:
 
 - a file whose header line, character for character (blanks around it aside), is the
   first file's and stands above the line the settings name (none or fewer title lines):
   read from its own header line;
+- a file whose header line, character for character, is the first file's and stands
+  below the line the settings name (up to 10 lines: a title line added by hand or by an
+  export), none of the lines above it a record: read from its own header line (round
+  layouts50);
 - a file with no header at all, whose first line holds as many fields as the first
   file's header, none of them one of its names, and at least half of them numbers (a
   record): read under the first file's header, with no title or units lines;
@@ -51,18 +55,43 @@ def title_lines_lacking(lines: list, first_header: str, rows_before_header: int)
     return None
 
 
+#: The most lines a later file may have above its header beyond the first file's.
+MAX_ADDED_LINES = 10
+
+
+def title_lines_added(lines: list, first_header: str, rows_before_header: int,
+                      delimiter: str) -> int | None:
+    """The number of lines above this file's header where it is more than
+    `rows_before_header` (by up to :data:`MAX_ADDED_LINES`), the header is `first_header`
+    (the first file's header line, stripped) and no line above it is a record of its
+    layout (:func:`is_record`); else None."""
+    for index in range(rows_before_header + 1,
+                       min(len(lines), rows_before_header + 1 + MAX_ADDED_LINES)):
+        if lines[index].strip() == first_header:
+            above = lines[rows_before_header:index]
+            if any(is_record(line, first_header, delimiter) for line in above):
+                return None
+            return index
+    return None
+
+
+def is_record(line: str, header: str, delimiter: str) -> bool:
+    """True where `line` holds as many fields as `header` and at least half of them are
+    numbers."""
+    fields = cells(line, delimiter)
+    numbers = sum(bool(_NUMBER.fullmatch(field)) for field in fields)
+    return len(fields) == len(cells(header, delimiter)) and numbers * 2 >= len(fields)
+
+
 def headerless(lines: list, first_header: str, delimiter: str) -> bool:
     """True where this file's first non-blank line is a record of the first file's
     layout and no line is its header (rules of the module)."""
     first = next((line for line in lines if line.strip()), None)
     if first is None or first.strip() == first_header:
         return False
-    names = cells(first_header, delimiter)
-    fields = cells(first, delimiter)
-    if len(fields) != len(names) or set(fields) & {name for name in names if name}:
-        return False
-    numbers = sum(bool(_NUMBER.fullmatch(field)) for field in fields)
-    return numbers * 2 >= len(fields)
+    names = {name for name in cells(first_header, delimiter) if name}
+    return not set(cells(first, delimiter)) & names and is_record(first, first_header,
+                                                                  delimiter)
 
 
 def no_record(line: str, header: str, delimiter: str, time_columns) -> bool:

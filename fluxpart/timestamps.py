@@ -945,10 +945,19 @@ def _common_format(text: pd.Series, time_format: str) -> str:
     which every stamp of the column parses, and no other of the list does, is named:
     stamps that read both day-first and month-first (every day at most 12) get none.
     """
+    fitting = common_formats(text, time_format)
+    if len(fitting) != 1:
+        return ""
+    return f"every stamp reads as time_format = {setting_text(fitting[0])}"
+
+
+def common_formats(text: pd.Series, time_format: str) -> list:
+    """The layouts of :data:`_COMMON_FORMATS` but `time_format` under which every stamp
+    of `text` (blank cells aside) parses; none where there is no stamp."""
     stamps = text.dropna().astype(str).str.strip()
     stamps = stamps[stamps != ""]
     if not len(stamps):
-        return ""
+        return []
     fitting = []
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -958,9 +967,7 @@ def _common_format(text: pd.Series, time_format: str) -> str:
             read = pd.to_datetime(stamps, format=candidate, errors="coerce")
             if read.notna().all():
                 fitting.append(candidate)
-    if len(fitting) != 1:
-        return ""
-    return f"every stamp reads as time_format = {setting_text(fitting[0])}"
+    return fitting
 
 
 def _text_around_stamps(text: pd.Series, failed: np.ndarray, time_format: str) -> str:

@@ -99,15 +99,55 @@ def relabelled_months_message(name: str, column: str, suspicion: str, read_unit:
     months_relabelled = set(pd.DatetimeIndex(starts)[in_relabelled].strftime("%Y-%m"))
     if not flagged or not flagged <= months_relabelled:
         return None
-    files = sorted(relabelled)
-    named = ", ".join(f"{source!r} ({relabelled[source]!r})" for source in files[:3])
-    if len(files) > 3:
-        named += f" and {len(files) - 3} more"
-    return (f"column {column!r} ({name}): the units line of {len(files)} input file(s) "
-            f"writes another unit than the {read_unit!r} every file is read in: {named}, "
+    return (f"column {column!r} ({name}): {_written_otherwise(relabelled, read_unit)}, "
             f"and the values of {len(flagged)} month(s) of those files "
             f"({', '.join(sorted(flagged))}) look like another unit too; read as declared, "
             "those months are in the wrong unit; read as labelled, they need a unit of "
             "their own, which one [input.units] cannot give: convert the values of those "
             "files in a copy (or, if the label is wrong and the values right, list "
             f"{name} in [input] accept_units)")
+
+
+def _written_otherwise(relabelled: dict, read_unit: str) -> str:
+    """"the units line of 2 input file(s) writes another unit than the 'degC' every file
+    is read in: 'a.csv' ('K'), 'b.csv' ('K')" (three files named, then a count)."""
+    files = sorted(relabelled)
+    named = ", ".join(f"{source!r} ({relabelled[source]!r})" for source in files[:3])
+    if len(files) > 3:
+        named += f" and {len(files) - 3} more"
+    return (f"the units line of {len(files)} input file(s) writes another unit than the "
+            f"{read_unit!r} every file is read in: {named}")
+
+
+def relabelled_range_clause(relabelled: dict, read_unit: str) -> str:
+    """What a range refusal adds where some input files' units line writes another unit
+    (:func:`relabelled_files`); '' where none does.
+
+    A unit changed between the files (a logger program writing kelvin from July) left the
+    refusal naming the range alone, and its fix (``[input.units]``) then refused the other
+    files; the files' own labels are named, as :func:`relabelled_months_message` names
+    them (round layouts50). The values are not read in the label's unit: one
+    ``[input.units]`` reads every file.
+
+    Parameters
+    ----------
+    relabelled : dict
+        From :func:`relabelled_files`: source -> unit its units line writes.
+    read_unit : str
+        The unit every file is read in (``[input.units]`` or the canonical unit).
+
+    Returns
+    -------
+    str
+        The clause, opening with "; ", or ''.
+
+    References
+    ----------
+    A unit written once per column above the records is how logger programs and exports
+    state their units (common practice).
+    """
+    if not relabelled:
+        return ""
+    return (f"; {_written_otherwise(relabelled, read_unit)} (a unit changed between the "
+            "files, which one [input.units] setting cannot read: convert that column of "
+            "those files in a copy)")
