@@ -15,8 +15,9 @@ off): 24 site-years where those checks could misfire on real towers, none with a
 - high-altitude grasslands with strong sun and nightly frost, snow-covered heaths and
   tundra with a bright albedo, southern-hemisphere winters (snow gum woodland, tussock
   grassland, Patagonian steppe, the Lesotho highlands);
-- a real outage of about a day (20-30 h from any hour) on 28 February, 29 February or 1
-  March, and lost daily files (a whole day from midnight) beside the leap day;
+- a real outage of about a day (20-30 h from any hour, two of exactly 24 h) on 28
+  February, 29 February or 1 March, and lost daily files (a whole day from midnight) beside
+  the leap day and on it (f27: no stamp tells that day from a calendar without it);
 - leap-year records that start on 1 March or end on 28 February, budget years from March,
   July and October, 30- and 60-minute records.
 
@@ -131,6 +132,15 @@ SITES = [
      {"outage_hours": ("2024-02-29 13:00", 23)}),
     ("f23", 43.1, 141.6, 9, 100, 30, "spruce", 7.0, 12, 8, "2020-03-01", {"year_start": "03-01"}),
     ("f24", 59.0, -3.2, 0, 60, 30, "heath", 8.0, 4.5, 5, "2024-01-01", {}),
+    # an outage of exactly one day from an afternoon or a morning (power restored at the
+    # hour it failed), over 29 February
+    ("f25", 63.8, 20.3, 1, 120, 60, "pine", 2.0, 11, 9, "2024-01-01",
+     {"outage_hours": ("2024-02-28 16:00", 24)}),
+    ("f26", 44.4, -110.6, -7, 2400, 30, "subalpine", 1.0, 10, 14, "2020-01-01",
+     {"outage_hours": ("2020-02-29 07:30", 24)}),
+    # a daily file lost on the leap day itself: midnight to midnight
+    ("f27", 58.3, 134.4, 9, 30, 30, "spruce", 5.0, 8, 7, "2024-01-01",
+     {"lost_day": "2024-02-29"}),
 ]
 
 # kind, leaf area, summer capacity umol m-2 s-1, Rref at 10 degC umol m-2 s-1, tall canopy,
@@ -339,7 +349,7 @@ def write_site(spec, seed, folder: Path) -> Path:
              f'canopy = "{"tall" if facts["tall"] else "short"}"', "",
              "[input]", f'path = "{csv.name}"', 'time_column = "stamp"',
              'time_format = "%Y-%m-%dT%H:%M"', f'time_marks = "{facts["marks"]}"',
-             'missing = ["NA"]', "", "[input.columns]"]
+             'delimiter = ";"', 'missing = ["NA"]', "", "[input.columns]"]
     lines += [f'{key} = "{value}"' for key, value in names.items() if key in frame.columns]
     if "vpd" in frame.columns:
         lines += ["", "[input.units]", 'vpd = "kPa"']
