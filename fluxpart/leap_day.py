@@ -142,5 +142,7 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
                 f"day. Likely the records of {year - 1} or {year + 1} (no leap years) "
                 f"stamped {year} (a year early or late: the budget and every event date "
                 "then name the wrong year), or a logger or script that skips 29 February "
-                f"(every date from 1 March a day off). Check the year of {where}")
+                f"(every date from 1 March a day off). Check the year of {where}; a "
+                "logger writing a file a day whose file of 29 February was lost leaves "
+                "the same gap, and then nothing is wrong")
     return None
