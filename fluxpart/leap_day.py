@@ -95,10 +95,11 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
     The records are put on the regular grid of ``interval_minutes``; a record counts as
     measured where any column of :data:`MEASURED` holds a finite value. For each leap
     year whose 29 February lies inside the record, the run of records without a value
-    that holds its noon is found; it is named where it spans exactly one day (a clock
-    offset of a few hours from the file's zone only moves the run) and the day before it
-    and the day after it each hold measured values in :data:`COMPLETE_SHARE` or more of
-    their records.
+    that holds its noon is found; it is named where it spans exactly one day, starts
+    within :data:`MIDNIGHT_TOLERANCE` of midnight of local standard time or of UTC (a
+    calendar without the day empties it from the file clock's midnight; an outage starts
+    at any hour), and the day before it and the day after it each hold measured values
+    in :data:`COMPLETE_SHARE` or more of their records.
 
     References
     ----------
