@@ -9,12 +9,15 @@ crediting period and a declared event date then point at the wrong year). Where 
 year so written is a leap year and the records' own year was not, the calendar betrays
 it: 28 February is followed by 1 March, and the leap day is a gap of exactly one day
 between two complete days. A logger or script that skips 29 February leaves the same
-trace (and every date from 1 March a day off). A real outage of exactly one day that
-starts and ends at the leap day's limits, with every column measured on the day before
-and after, is what no instrument produces by chance, so the day is named; a logger or a
-portal that writes one file a day leaves it too where that day's file was not read (a
-card or a download short of one file), and the message names that cause beside the
-calendar (review69: it named the calendar alone).
+trace (and every date from 1 March a day off). Either leaves the day empty from the
+file clock's midnight to the next: the reader moves the stamps by at most one interval
+(their marks), a file stamped in UTC is moved to the site's zone, and a clock on summer
+time or of a neighbouring zone lies an hour off. A real outage begins when the power or a
+sensor fails, at any hour: one of exactly a day that starts elsewhere (power restored at
+the hour it failed) is left alone (round falsealarm55). An outage of exactly the leap
+day from midnight with every column measured on the day before and after (a daily file
+lost: a card or a download short of one file, review69) cannot be told from a calendar
+without the day, and is named with that cause beside the calendar's.
 
 The Gregorian rule (a year divisible by 4, except the centuries not divisible by 400)
 decides the leap years (Python's ``calendar.isleap``, the proleptic Gregorian calendar of
@@ -32,7 +35,7 @@ import calendar
 import numpy as np
 import pandas as pd
 
-__all__ = ["COMPLETE_SHARE", "MEASURED", "STAGE", "missing_leap_day"]
+__all__ = ["COMPLETE_SHARE", "MEASURED", "MIDNIGHT_TOLERANCE", "STAGE", "missing_leap_day"]
 
 #: The finding's stage, as the warning names it.
 STAGE = "input (leap day)"
@@ -41,6 +44,18 @@ MEASURED = ("nee", "rg", "tair", "vpd", "rh", "ustar", "tsoil")
 #: Share of the records of the day before and the day after the empty day that must hold
 #: a measured value [1]: an outage of a sensor or of the power covers hours around it.
 COMPLETE_SHARE = 0.9
+#: Farthest the empty day's start may lie from midnight of local standard time or of UTC
+#: [min]: one record of a 30- or 60-minute file (its stamps' marks) or an hour of summer
+#: time or a neighbouring zone. An outage starting elsewhere is a failure's own hour.
+MIDNIGHT_TOLERANCE = 60.0
+
+
+def _from_midnight(start: pd.Timestamp, utc_offset: float) -> float:
+    """Least distance [min] of ``start`` (local standard time) from midnight of local
+    standard time or of UTC."""
+    minutes = (start - start.normalize()) / pd.Timedelta(minutes=1)
+    return min(abs((minutes - base + 720.0) % 1440.0 - 720.0)
+               for base in (0.0, 60.0 * utc_offset))
 
 
 def _empty_run(present: np.ndarray, at: int) -> tuple[int, int]:
@@ -53,7 +68,7 @@ def _empty_run(present: np.ndarray, at: int) -> tuple[int, int]:
 
 
 def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
-                     stamp_column: str | None = None) -> str | None:
+                     stamp_column: str | None = None, utc_offset: float = 0.0) -> str | None:
     """A message where a leap year's 29 February holds no record between complete days.
 
     Parameters
@@ -65,22 +80,27 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
         Record interval [min].
     stamp_column : str, optional
         The file's time column, to name it in the message.
+    utc_offset : float, optional
+        The site's offset of local standard time from UTC [h] (a file stamped in UTC
+        and moved to it has its midnight there).
 
     Returns
     -------
     str or None
         The warning text; None where no leap day of the record lies in a run of exactly
-        one day without a measured value whose neighbouring days are complete.
+        one day without a measured value starting within :data:`MIDNIGHT_TOLERANCE` of
+        midnight (local standard time or UTC) whose neighbouring days are complete.
 
     Notes
     -----
     The records are put on the regular grid of ``interval_minutes``; a record counts as
     measured where any column of :data:`MEASURED` holds a finite value. For each leap
     year whose 29 February lies inside the record, the run of records without a value
-    that holds its noon is found; it is named where it spans exactly one day (a clock
-    offset of a few hours from the file's zone only moves the run) and the day before it
-    and the day after it each hold measured values in :data:`COMPLETE_SHARE` or more of
-    their records.
+    that holds its noon is found; it is named where it spans exactly one day, starts
+    within :data:`MIDNIGHT_TOLERANCE` of midnight of local standard time or of UTC (a
+    calendar without the day empties it from the file clock's midnight; an outage starts
+    at any hour), and the day before it and the day after it each hold measured values
+    in :data:`COMPLETE_SHARE` or more of their records.
 
     References
     ----------
@@ -110,6 +130,8 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
         start, end = _empty_run(present, at)
         if end - start != per_day or start < per_day or end + per_day > len(grid):
             continue
+        if _from_midnight(grid[start], utc_offset) > MIDNIGHT_TOLERANCE:
+            continue
         before = present[start - per_day:start].mean()
         after = present[end:end + per_day].mean()
         if min(before, after) < COMPLETE_SHARE:
@@ -122,7 +144,7 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
                 f"day. Likely the records of {year - 1} or {year + 1} (no leap years) "
                 f"stamped {year} (a year early or late: the budget and every event date "
                 "then name the wrong year), or a logger or script that skips 29 February "
-                f"(every date from 1 March a day off), or that day's file left out where "
-                f"a logger writes one file a day. Check the year of {where} and the files "
-                "read")
+                f"(every date from 1 March a day off). Check the year of {where}; a "
+                "logger writing a file a day whose file of 29 February was lost leaves "
+                "the same gap, and then nothing is wrong")
     return None

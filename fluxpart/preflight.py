@@ -1629,7 +1629,7 @@ def _fixed_time_offsets(frame: pd.DataFrame, is_night, interval_minutes: float,
 
 def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, rg_high,
               latitude: float, config, interval_minutes: float, sources=None, *,
-              sun_elevation=None) -> list:
+              sun_elevation=None, utc_offset: float = 0.0) -> list:
     """Find every condition that would make a stage fail or fall back.
 
     Parameters
@@ -1656,6 +1656,9 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
     sun_elevation : array_like, optional
         Sun elevation at each record's middle [degrees]; where given, months whose dark
         records take up CO2 are named (:mod:`fluxpart.night_uptake`, not fatal).
+    utc_offset : float, optional
+        The site's offset of local standard time from UTC [h]: an empty leap day must
+        start near midnight of local time or of UTC to be named (:mod:`fluxpart.leap_day`).
 
     Returns
     -------
@@ -1687,7 +1690,7 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
                                    is_night, frame.attrs.get("nee_written_limit"))
         findings += _gapless(frame, interval_minutes, sources)
         # a leap day absent between complete days: stamps a year off (round mistakes53)
-        text = leap_day.missing_leap_day(frame, interval_minutes)
+        text = leap_day.missing_leap_day(frame, interval_minutes, utc_offset=utc_offset)
         if text:
             findings.append(Finding(leap_day.STAGE, text, False))
         if not any(finding.stage in _NEE_STEPS for finding in findings):

@@ -152,7 +152,8 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),
         screens.flags["rg_above_potential"].to_numpy(), site.latitude, config, interval,
-        reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy())
+        reader.get("columns"), sun_elevation=geometry["sun_elevation"].to_numpy(),
+        utc_offset=site.utc_offset)
     findings += _ustar_scale(frame, site, is_night, findings, reader.get("columns") or {})
     # a finding the reader's message names already (its mark on the frame)
     named = {stage for mark, stage in READER_NAMED_FINDINGS.items() if frame.attrs.get(mark)}

@@ -85,3 +85,22 @@ def test_frozen_daylight_uptake_named_for_webb_terms_left_out():
     assert frozen_daylight_uptake(nee - 0.1 * lost, rg, tair) is None
     # a warm month's uptake by day is a canopy's, not judged
     assert frozen_daylight_uptake(nee - lost, rg, tair + 15.0) is None
+
+
+def test_leap_day_outage_of_a_day_from_another_hour_is_not_named():
+    # round falsealarm55: a calendar without 29 February empties the day from the file
+    # clock's midnight (local standard time, or UTC where the reader moved UTC stamps);
+    # a power failure restored at the same hour the next day starts anywhere
+    frame = _records(2024, minutes=60)
+    outage = (frame.index >= "2024-02-28 16:00") & (frame.index < "2024-02-29 16:00")
+    assert missing_leap_day(frame[~outage], 60.0, utc_offset=1.0) is None
+    frame = _records(2020)
+    outage = (frame.index >= "2020-02-29 07:30") & (frame.index < "2020-03-01 07:30")
+    assert missing_leap_day(frame[~outage], 30.0, utc_offset=-7.0) is None
+    # the same day empty from UTC's midnight at a site of UTC-7 (17:00 local): named
+    moved = (frame.index >= "2020-02-28 17:00") & (frame.index < "2020-02-29 17:00")
+    assert "29 February 2020" in missing_leap_day(frame[~moved], 30.0, utc_offset=-7.0)
+    # one record late (time marks), an hour early (summer time): named
+    for begin in ("2020-02-29 00:30", "2020-02-28 23:00"):
+        late = (frame.index >= begin) & (frame.index < pd.Timestamp(begin) + pd.Timedelta(days=1))
+        assert "29 February 2020" in missing_leap_day(frame[~late], 30.0, utc_offset=-7.0)

@@ -153,7 +153,7 @@ def test_a_missing_leap_day_names_a_daily_file_left_out_beside_the_calendar():
                          index=index)
     text = missing_leap_day(frame[frame.index.normalize() != "2024-02-29"], 30.0)
     assert "29 February 2024" in text and "2023 or 2025" in text
-    assert "that day's file left out where a logger writes one file a day" in text
+    assert "a logger writing a file a day whose file of 29 February was lost" in text
 
 
 def test_a_day_fraction_beside_a_cell_that_is_no_whole_day_count_is_not_summed(tmp_path):
