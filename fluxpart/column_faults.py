@@ -555,8 +555,10 @@ _COURSE_VALUES = 3
 def _less_daily_course(changes, per_day: int, days: int = _COURSE_DAYS,
                        least: int = _COURSE_VALUES) -> np.ndarray:
     """`changes` less their mean at the same time of day (the same position in the day of
-    `per_day` records) over the `days` days centred on each day, over the values present;
-    NaN where fewer than `least` are."""
+    `per_day` records) over the `days` days centred on each day (the days of the record
+    alone near its ends: fewer, not centred), over the values present; NaN where fewer
+    than `least` are. Days are blocks of `per_day` records from the first, which need not
+    start at midnight."""
     changes = np.asarray(changes, dtype=float)
     whole = -(-changes.size // per_day)
     grid = np.full(whole * per_day, np.nan)

@@ -147,10 +147,16 @@ _RELEASE_FIELDS = ("provenance.uncertainty.checked",)
 #: (a sigma, a part of one, an interval's bound): where newer code changed only these,
 #: the verdict says the central values are reproduced (review61: a 0.32.0 folder under
 #: the code of gaplength50 listed 31 differences of σ, intervals and the gap-filling
-#: error model and said only that the code differs).
+#: error model and said only that the code differs). The u* scenarios' sums and their
+#: spread (``*_ustar_p16`` … ``*_ustar_spread``, ``*_ustar_seasonal``, ``*_ustar_year``)
+#: are the u* part's inputs, not the central run's values (review72: a 0.35.0 folder under
+#: the code of speed56, whose scenarios' daytime fits start from the central run's, read
+#: "computes these values otherwise" for its eight annual u* scenario columns, every
+#: central value equal).
 _UNCERTAINTY_TABLES = ("parameters_gapfill_error_model", "parameters_random_error_model",
                        "parameters_random_error_bins")
-_UNCERTAINTY_COLUMN = re.compile(r".*(sigma|uncertainty|ci95).*")
+_UNCERTAINTY_COLUMN = re.compile(
+    r".*(sigma|uncertainty|ci95).*|.+_ustar_(p\d+|spread|seasonal|year)")
 
 
 @dataclass(frozen=True)
@@ -322,7 +328,8 @@ class VerifyReport:
         """True when values differ and every one that does states an uncertainty.
 
         An uncertainty: a column of an error-model table (``_UNCERTAINTY_TABLES``) or
-        one named for a sigma, an uncertainty or a 95 % bound (``_UNCERTAINTY_COLUMN``),
+        one named for a sigma, an uncertainty, a 95 % bound or a u* scenario's sum
+        (``_UNCERTAINTY_COLUMN``),
         and the manifest's list of an error-model table's columns; reworded
         descriptions beside them change no number. Anything else (a central value, a
         unit, rows, a file) makes it False.
@@ -497,7 +504,8 @@ class VerifyReport:
                     "what this means: " + (
                         "every central value (budgets, fluxes, fits) is reproduced; the "
                         "values that differ are uncertainties (sigmas, intervals, error "
-                        "models), which the running release states otherwise"
+                        "models, the u* scenarios' sums), which the running release states "
+                        "otherwise"
                         if self.uncertainty_only else
                         "the running release computes these values otherwise")
                     + " (its changelog says what changed and why). To reproduce the "

@@ -1614,3 +1614,27 @@ def test_messages_naming_the_input_by_its_path_as_given_are_compared_so():
     renamed = json.loads(json.dumps(stored).replace("'g.csv'", "'/data/site/h.csv'"))
     assert respelled_inputs(stored, renamed) == (renamed, [])
     assert respelled_inputs(stored, stored) == (stored, [])
+
+
+def test_the_ustar_scenarios_sums_are_uncertainties_not_central_values(tmp_path):
+    """The u* scenarios' sums and spread (``*_ustar_p16`` … ``*_ustar_spread``) are the u*
+    part's inputs, not central values: a code change that moved only them and the σ built
+    on them (speed56: a 0.35.0 folder's daytime u* columns) says every central value is
+    reproduced (review72: "computes these values otherwise" before); the threshold itself
+    (``ustar_threshold``) and a central sum are central values. Fact of the audit contract
+    (DESIGN.md §4.1)."""
+    from fluxpart.verify import Difference, VerifyReport
+
+    def report(*columns):
+        return VerifyReport(tmp_path, "run", code_changed=True, differences=tuple(
+            Difference("annual", "value", column=column, row="year=2021")
+            for column in columns))
+
+    moved = report("gpp_daytime_ustar_p84", "reco_daytime_ustar_spread",
+                   "nee_ustar_seasonal", "nee_ustar_year", "gpp_daytime_uncertainty_total")
+    assert moved.uncertainty_only
+    assert ("every central value (budgets, fluxes, fits) is reproduced; the values that "
+            "differ are uncertainties (sigmas, intervals, error models, the u* scenarios' "
+            "sums)") in moved.format()
+    for central in ("ustar_threshold", "gpp_daytime", "nee"):
+        assert not report("gpp_daytime_ustar_p84", central).uncertainty_only, central
