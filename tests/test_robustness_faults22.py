@@ -314,9 +314,11 @@ def test_the_netcdf_made_in_memory_holds_what_a_direct_write_holds(bundle, tmp_p
 
     write_netcdf(bundle / "out", tmp_path / "export.nc")
     dataset = to_xarray(load(bundle / "out"))
-    from fluxpart.export import _computed_by, _credit
+    from fluxpart.export import _computed_by, _credit, _linked
 
-    _credit(dataset, _computed_by(bundle / "out"))
+    # the folder's links to its manifest (seal, seed, hashes) as the export writes them
+    # (round auditor53: an export from a folder carries them)
+    _linked(_credit(dataset, _computed_by(bundle / "out")), bundle / "out")
     dataset.to_netcdf(tmp_path / "direct.nc", engine="h5netcdf", format="NETCDF4")
     with xr.open_dataset(tmp_path / "export.nc", engine="h5netcdf") as exported, \
             xr.open_dataset(tmp_path / "direct.nc", engine="h5netcdf") as direct:
