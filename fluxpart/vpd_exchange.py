@@ -142,7 +142,6 @@ def vpd_exchanged_in_months(tair, rh, vpd, others: dict, stamps,
             "a copy of the file")
 
 
-
 def vpd_mapped_to_another(tair, rh, vpd, others: dict, stamps, columns=None) -> str | None:
     """A message where ``[input.columns]`` maps VPD's column to another variable, or None.
 
