@@ -4278,11 +4278,23 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"(line {at + 2} holds every column named in the settings)"
             + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
         at = rows_before_header
-    if not rows_after_header and header_cells.bracketed_units_row(text, at, delimiter):
+    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
+                                                                           delimiter)
+    if marks:
         rows_after_header = 1
         warnings.append(ReaderNote(
             f"input file {str(path)!r}: line {at + 2} under the header holds "
-            "units in brackets, no record: read as a units row"))
+            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
+            "read as a units row"))
+    other = header_cells.header_separator(text, at, rows_after_header, delimiter)
+    if other:
+        text = header_cells.with_header_separator(text, at, rows_after_header, other,
+                                                  delimiter)
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: the header (line {at + 1}) is written with "
+            f"{header_cells.SEPARATOR_WORDS[other]} where the records use "
+            f"{header_cells.SEPARATOR_WORDS.get(delimiter, repr(delimiter))}; each of "
+            "its names stands over a field: read so"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
