@@ -14,6 +14,7 @@ from test_robustness_layouts19 import _read, _tower
 
 from fluxpart.errors import FluxpartError
 from fluxpart.header_cells import bracketed_units_row, header_separator
+from fluxpart.quoted_lines import single_quoted
 
 
 def _clean(tmp_path, records):
@@ -65,3 +66,12 @@ def test_a_header_in_another_separator_missing_a_name_stays_refused(tmp_path):
     # two other separators fitting alike tell no intent (no guess between them)
     assert header_separator("a,b\tc,d\n1;2\n", 0, 0, ";") == ""
     assert header_separator("a,b\n1;2\n", 0, 0, ";") == ","
+
+
+def test_single_quotes_are_read_as_quotes_only_where_every_cell_has_them():
+    """Every cell of the header and records in apostrophes: read so (the layouts35 test
+    reads such a file); one cell without them, or a double quote (RFC 4180's quote (m))
+    anywhere, and the file is left to the refusals that name the quotes."""
+    assert single_quoted(["'a','b'", "'1','2'", "'3','4'"], ",", 0, 1)
+    assert not single_quoted(["'a','b'", "'1',2", "'3','4'"], ",", 0, 1)
+    assert not single_quoted(["'a','b'", "'1','\"2'"], ",", 0, 1)
