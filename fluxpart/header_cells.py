@@ -214,7 +214,7 @@ SEPARATOR_WORDS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertica
 
 
 def header_separator(text: str, rows_before_header: int, rows_after_header: int,
-                     delimiter: str) -> str:
+                     delimiter: str, time_column: str = "") -> str:
     """The one other separator the header line is written with where the records use
     `delimiter` ("stamp,co2_net,..." over "202101010030;0.329;..."), or "".
 
@@ -234,6 +234,9 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
         Lines above the header and between it and the records.
     delimiter : str
         ``[input] delimiter``.
+    time_column : str, optional
+        ``[input] time_column`` (its first name): where given, one of the names (a title
+        line set as the header by a wrong rows_before_header is left to its refusal).
 
     Returns
     -------
@@ -255,6 +258,7 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
     width = widths.pop()
     fits = [other for other in HEADER_SEPARATORS if other != delimiter
             and (names := _cells(header, other)) and len(names) == width and all(names)
+            and (not time_column or time_column in names)
             and not any(mark in line for line in records
                         for mark in _marks(other) - set(delimiter))]
     return fits[0] if len(fits) == 1 and width >= 2 else ""

@@ -4294,7 +4294,8 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"input file {str(path)!r}: line {at + 2} under the header holds "
             f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
             "read as a units row"))
-    other = header_cells.header_separator(text, at, rows_after_header, delimiter)
+    other = header_cells.header_separator(text, at, rows_after_header, delimiter,
+                                          next(iter(time_columns), ""))
     if other:
         text = header_cells.with_header_separator(text, at, rows_after_header, other,
                                                   delimiter)

@@ -75,3 +75,12 @@ def test_single_quotes_are_read_as_quotes_only_where_every_cell_has_them():
     assert single_quoted(["'a','b'", "'1','2'", "'3','4'"], ",", 0, 1)
     assert not single_quoted(["'a','b'", "'1',2", "'3','4'"], ",", 0, 1)
     assert not single_quoted(["'a','b'", "'1','\"2'"], ",", 0, 1)
+
+
+def test_a_title_line_splitting_like_a_header_is_no_header():
+    """A title set as the header by a wrong rows_before_header ("Quillmoor; logger 3"
+    over two-field lines) does not name the time column: left to the refusal that names
+    the header's line (invented known truth)."""
+    text = "Quillmoor; logger 3\nstamp,nee\n2021-01-01 00:30,1.5\n"
+    assert header_separator(text, 0, 0, ",", "stamp") == ""
+    assert header_separator("stamp;nee\n2021-01-01 00:30,1.5\n", 0, 0, ",", "stamp") == ";"
