@@ -221,8 +221,8 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
     It is where the header is one cell under `delimiter`, the first records below the
     lines under the header (up to :data:`RECORDS_JUDGED`) each split into the same n >= 2
     fields under it and hold none of another separator of :data:`HEADER_SEPARATORS`,
-    and exactly one such separator splits the header into n non-empty names: every name
-    then stands over its field (layouts51; refused before, "line 2 has 9 fields where
+    and exactly one such separator splits the header into n non-empty names, the time
+    column's among them: every name then stands over its field (layouts51; refused before, "line 2 has 9 fields where
     the header has 1"). A semicolon file with decimal commas read under "," is no such
     file: its records hold the header's semicolons.
 
