@@ -157,11 +157,13 @@ def group_line_above(text: str, rows_before_header: int, delimiter: str, wanted)
                 and not wanted & set(group) and not any(_is_number(c) for c in filled))
 
 
-def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> bool:
-    """Whether the line under the header is a row of units in brackets ("[-],
-    [umol/m2/s],[W/m2],...": every cell, the stamp column's too, bracketed or empty, one
-    cell a header name each, none a number), which no record can be (layouts47; refused
-    before, "set rows_after_header = 1").
+def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> str:
+    """The enclosing marks of a row of units under the header ("[-],[umol/m2/s],[W/m2]
+    ,...", or "(-),(umol m-2 s-1),(W m-2),..."): every cell, the stamp column's too,
+    enclosed in one kind of brackets or empty, one cell a header name each, nothing
+    enclosed a number (an accountant's "(1.5)" is -1.5), which no record can be
+    (layouts47 brackets, layouts51 parentheses; refused before, "set rows_after_header
+    = 1"); "" where the line is no such row.
 
     Parameters
     ----------
@@ -174,18 +176,110 @@ def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> b
 
     Returns
     -------
-    bool
+    str
+        ``"[]"`` or ``"()"``, or ``""``.
 
     References
     ----------
-    Loggers and spreadsheets write a column's unit in brackets in a row under its name
-    (common practice).
+    Loggers and spreadsheets write a column's unit in brackets or parentheses in a row
+    under its name (common practice).
     """
     head = text.lstrip("\ufeff").split("\n", rows_before_header + 2)
     if len(head) < rows_before_header + 3:
-        return False
+        return ""
     names = _cells(head[rows_before_header].rstrip("\r"), delimiter)
     units = _cells(head[rows_before_header + 1].rstrip("\r"), delimiter)
     filled = [cell for cell in units if cell]
-    return (len(units) == len(names) and len(filled) >= max(2, len(units) // 2)
-            and bool(units[0]) and all(c.startswith("[") and c.endswith("]") for c in filled))
+    if len(units) != len(names) or len(filled) < max(2, len(units) // 2) or not units[0]:
+        return ""
+    for marks in UNIT_MARKS:
+        if all(len(c) > 2 and c[0] == marks[0] and c[-1] == marks[1]
+               and not _is_number(c[1:-1]) for c in filled):
+            return marks
+    return ""
+
+
+#: The brackets a units row encloses each unit in (common practice)
+UNIT_MARKS = ("[]", "()")
+
+#: Field separators a header line retyped by hand or by another program may be written
+#: with where the records use another (the reader's delimiters; "whitespace" a run of
+#: blanks or tabs)
+HEADER_SEPARATORS = (",", ";", "\t", "|", "whitespace")
+#: Records under the header judged for their width and separators
+RECORDS_JUDGED = 20
+#: Each separator's name in a reader note
+SEPARATOR_WORDS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars",
+                   "whitespace": "blanks"}
+
+
+def header_separator(text: str, rows_before_header: int, rows_after_header: int,
+                     delimiter: str, time_column: str = "") -> str:
+    """The one other separator the header line is written with where the records use
+    `delimiter` ("stamp,co2_net,..." over "202101010030;0.329;..."), or "".
+
+    It is where the header is one cell under `delimiter`, the first records below the
+    lines under the header (up to :data:`RECORDS_JUDGED`) each split into the same n >= 2
+    fields under it and hold none of another separator of :data:`HEADER_SEPARATORS`,
+    and exactly one such separator splits the header into n non-empty names, the time
+    column's among them: every name then stands over its field (layouts51; refused before, "line 2 has 9 fields where
+    the header has 1"). A semicolon file with decimal commas read under "," is no such
+    file: its records hold the header's semicolons.
+
+    Parameters
+    ----------
+    text : str
+        The decoded file.
+    rows_before_header, rows_after_header : int
+        Lines above the header and between it and the records.
+    delimiter : str
+        ``[input] delimiter``.
+    time_column : str, optional
+        ``[input] time_column`` (its first name): where given, one of the names (a title
+        line set as the header by a wrong rows_before_header is left to its refusal).
+
+    Returns
+    -------
+    str
+
+    References
+    ----------
+    A header typed again by hand or pasted from another file keeps that file's field
+    separator (common practice).
+    """
+    first = rows_before_header + rows_after_header + 1
+    head = text.lstrip("\ufeff").split("\n", first + RECORDS_JUDGED)
+    header = head[rows_before_header].rstrip("\r") if len(head) > first else ""
+    records = [line.rstrip("\r") for line in head[first:first + RECORDS_JUDGED]]
+    records = [line for line in records if line.strip()]
+    widths = {len(_cells(line, delimiter)) for line in records}
+    if not records or len(_cells(header, delimiter)) != 1 or len(widths) != 1:
+        return ""
+    width = widths.pop()
+    fits = [other for other in HEADER_SEPARATORS if other != delimiter
+            and (names := _cells(header, other)) and len(names) == width and all(names)
+            and (not time_column or time_column in names)
+            and not any(mark in line for line in records
+                        for mark in _marks(other) - set(delimiter))]
+    return fits[0] if len(fits) == 1 and width >= 2 else ""
+
+
+def _marks(separator: str) -> set:
+    """The characters `separator` splits at."""
+    return {" ", "\t"} if separator == "whitespace" else {separator}
+
+
+def with_header_separator(text: str, rows_before_header: int, rows_after_header: int,
+                          other: str, delimiter: str) -> str:
+    """`text` with the header line, and each line under it written in `other` too,
+    split by `other` and joined by `delimiter` (blanks for ``"whitespace"``)."""
+    lines = text.split("\n", rows_before_header + rows_after_header + 1)
+    join = " " if delimiter == "whitespace" else delimiter
+    for at in range(rows_before_header, rows_before_header + rows_after_header + 1):
+        line = lines[at]
+        end = "\r" if line.endswith("\r") else ""
+        body = line.rstrip("\r")
+        if len(_cells(body, delimiter)) == 1 and len(_cells(body, other)) > 1:
+            cells = body.split() if other == "whitespace" else body.split(other)
+            lines[at] = join.join(cell.strip() for cell in cells) + end
+    return "\n".join(lines)

@@ -117,7 +117,7 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
-from .quoted_lines import wrapped_lines_message
+from .quoted_lines import single_quoted, wrapped_lines_message
 from .reader_notes import ReaderNote, notes_of, warnings_of
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
@@ -3004,6 +3004,14 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
     skipped = set(range(rows_before_header)) | set(
         range(rows_before_header + 1, rows_before_header + 1 + rows_after_header))
     options = {"dtype": str, "keep_default_na": False, "na_filter": False}
+    if text[:4096].count("'") >= 4 and single_quoted(
+            text[:65536].splitlines(), delimiter, rows_before_header,
+            rows_before_header + rows_after_header + 1):
+        options["quotechar"] = "'"
+        if warnings is not None:
+            warnings.append(ReaderNote(
+                f"input file {str(path)!r}: every cell of the header and the records is "
+                "wrapped in single quotes ('...'), no CSV quotes: read without them"))
     if delimiter == " " and "  " in next(
             iter(text.splitlines()[rows_before_header:rows_before_header + 1]), "").strip():
         # each space a delimiter: the padding of aligned columns becomes empty columns
@@ -4278,11 +4286,24 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"(line {at + 2} holds every column named in the settings)"
             + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
         at = rows_before_header
-    if not rows_after_header and header_cells.bracketed_units_row(text, at, delimiter):
+    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
+                                                                           delimiter)
+    if marks:
         rows_after_header = 1
         warnings.append(ReaderNote(
             f"input file {str(path)!r}: line {at + 2} under the header holds "
-            "units in brackets, no record: read as a units row"))
+            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
+            "read as a units row"))
+    other = header_cells.header_separator(text, at, rows_after_header, delimiter,
+                                          next(iter(time_columns), ""))
+    if other:
+        text = header_cells.with_header_separator(text, at, rows_after_header, other,
+                                                  delimiter)
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: the header (line {at + 1}) is written with "
+            f"{header_cells.SEPARATOR_WORDS[other]} where the records use "
+            f"{header_cells.SEPARATOR_WORDS.get(delimiter, repr(delimiter))}; each of "
+            "its names stands over a field: read so"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above

@@ -7,6 +7,12 @@ such line as one field holding the delimiters (RFC 4180, section 2: a field in q
 may hold the delimiter (m)), so the header is one name and the reader's usual hint, to
 set ``[input] delimiter`` to the character the cell holds, names the delimiter already
 set. This module names the quotes instead (layouts42).
+
+An export that marks every cell as text with single quotes (``'stamp','co2_net'`` over
+``'202101010030','0.329'``) writes quotes CSV does not know (RFC 4180 quotes with double
+quotes only (m)); where every cell of the header and of the first records is wrapped so,
+each quote pair is layout, and the cells are read without them (`single_quoted`,
+layouts51; refused before, naming the quotes).
 """
 
 from __future__ import annotations
@@ -45,3 +51,48 @@ def wrapped_lines_message(lines: list, delimiter: str, header_at: int,
     return (f"every line is wrapped in one pair of double quotes ({'; '.join(shown)}), so "
             f"each line is one field holding its {delimiter!r} delimiters: remove the quote "
             "at the start and at the end of each line in a copy of the file")
+
+
+#: Records under the header judged for their single quotes
+RECORDS_JUDGED = 20
+
+
+def single_quoted(lines: list, delimiter: str, header_at: int, first_record_at: int) -> bool:
+    """Whether every cell of the header line and of the first non-blank records (up to
+    :data:`RECORDS_JUDGED`) is wrapped in one pair of single quotes and no line holds a
+    double quote: the file quotes with ``'``, read so with a note.
+
+    Parameters
+    ----------
+    lines : list of str
+        The file's lines, without line ends.
+    delimiter : str
+        ``[input] delimiter`` (one character; "whitespace" is never judged: a quoted stamp
+        holding a blank splits under it).
+    header_at, first_record_at : int
+        0-based indices of the header line and of the first line after the lines
+        ``rows_after_header`` counts.
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    RFC 4180, section 2 (fields quoted with double quotes) (m); exports that mark text
+    cells with apostrophes (common practice).
+    """
+    if len(delimiter) != 1 or header_at >= len(lines):
+        return False
+    records = [line for line in lines[first_record_at:first_record_at + RECORDS_JUDGED]
+               if line.strip()]
+    if not records:
+        return False
+    for line in [lines[header_at], *records]:
+        if '"' in line:
+            return False
+        for cell in line.split(delimiter):
+            cell = cell.strip()
+            if not (len(cell) >= 2 and cell[0] == cell[-1] == "'" and cell.count("'") == 2):
+                return False
+    return True

@@ -196,14 +196,21 @@ def test_a_soil_temperature_code_outside_its_range_is_no_measurement_in_the_refi
     np.testing.assert_array_equal(values, [4.0, np.nan, 5.0])
 
 
-def test_names_and_values_in_single_quotes_are_named_as_such(tmp_path):
+def test_names_and_values_in_single_quotes_are_read_without_them(tmp_path):
     """Before: "did you mean \\"'stamp'\\"?", whose fix led to a refusal of the stamps;
-    now the single quotes, which are no CSV quotes (RFC 4180 quotes with '"'), are
-    named at once."""
+    layouts35 named the single quotes, which are no CSV quotes (RFC 4180 quotes with
+    '"'); since layouts51 a file whose every name and value is wrapped in them is read
+    without them, noted, as the same file unquoted (known truth: the values written)."""
     frame, _ = _records(48)
     path = tmp_path / "t.csv"
     path.write_text(frame.astype(str).apply(lambda c: "'" + c + "'")
                     .rename(columns=lambda c: f"'{c}'").to_csv(index=False))
+    (tmp_path / "plain.csv").write_text(frame.astype(str).to_csv(index=False))
+    read, report = _read(path)
+    pd.testing.assert_frame_equal(read, _read(tmp_path / "plain.csv")[0])
+    assert any("wrapped in single quotes" in note for note in report.notes)
+    # names quoted, values not: still named, no guess (layouts35)
+    path.write_text(frame.astype(str).rename(columns=lambda c: f"'{c}'").to_csv(index=False))
     with pytest.raises(MissingColumnError, match=r"wrapped in single quotes"):
         _read(path)
 

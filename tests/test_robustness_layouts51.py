@@ -1,0 +1,86 @@
+"""Layouts of the layouts51 round: a units row in parentheses under the header, and a
+header line written with another field separator than its records.
+
+Outside facts, each named beside its check: accounting formats write a negative number in
+parentheses, "(1.5)" for -1.5 (common practice), so a parenthesised number is no unit;
+a header typed again by hand or pasted from another file keeps that file's separator
+(common practice); Python's ``str.split`` without an argument splits on runs of blanks
+and tabs (Python documentation, str.split). Everything else is invented known truth: the
+records as written.
+"""
+import pandas as pd
+import pytest
+from test_robustness_layouts19 import _read, _tower
+
+from fluxpart.errors import FluxpartError
+from fluxpart.header_cells import bracketed_units_row, header_separator
+from fluxpart.quoted_lines import single_quoted
+
+
+def _clean(tmp_path, records):
+    (tmp_path / "clean.csv").write_text(records.to_csv(index=False))
+    return _read(tmp_path / "clean.csv")[0]
+
+
+def test_a_units_row_in_parentheses_is_read_as_one(tmp_path):
+    """Refused before ("has stamp '(-)' ... set rows_after_header = 1"); now read as the
+    bracket form is since layouts47, with a note naming the line."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines()
+    units = ",".join(["(-)", *(f"({u})" for u in ["umol m-2 s-1", "m s-1", "W m-2",
+                                                    "degC", "hPa"])][:len(records.columns)])
+    (tmp_path / "units.csv").write_text("\n".join([lines[0], units] + lines[1:]) + "\n")
+    frame, report = _read(tmp_path / "units.csv")
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert any("line 2 under the header holds units in parentheses" in n
+               for n in report.notes)
+    # an accountant's negatives "(1.5)" are numbers, no units (common practice)
+    assert bracketed_units_row("a,b,c\n(1.5),(2),(3)\n1,2,3\n", 0, ",") == ""
+    assert bracketed_units_row("a,b,c\n[-],[m],[s]\n1,2,3\n", 0, ",") == "[]"
+
+
+@pytest.mark.parametrize("header_sep, sep, delimiter", [
+    (",", ";", ";"), ("|", "\t", "\t"), (";", ",", ",")])
+def test_a_header_in_another_separator_than_its_records_is_read(tmp_path, header_sep, sep,
+                                                                delimiter):
+    """Refused before ("line 2 has 6 fields where the header has 1"); now each name is
+    read over its field, with a note naming both separators."""
+    _, records = _tower()
+    lines = records.to_csv(index=False, sep=sep).splitlines()
+    header = lines[0].replace(sep, header_sep)
+    (tmp_path / "mixed.csv").write_text("\n".join([header] + lines[1:]) + "\n")
+    frame, report = _read(tmp_path / "mixed.csv", delimiter=delimiter)
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert sum("the header (line 1) is written with" in n for n in report.notes) == 1
+
+
+def test_a_header_in_another_separator_missing_a_name_stays_refused(tmp_path):
+    """A header of one name fewer than the records' fields under any separator tells no
+    place for each name: refused as before, naming the line."""
+    _, records = _tower()
+    lines = records.to_csv(index=False, sep=";").splitlines()
+    header = ",".join(lines[0].split(";")[:-1])
+    (tmp_path / "short.csv").write_text("\n".join([header] + lines[1:]) + "\n")
+    with pytest.raises(FluxpartError, match="line 2 has 6 fields where the header has 1"):
+        _read(tmp_path / "short.csv", delimiter=";")
+    # two other separators fitting alike tell no intent (no guess between them)
+    assert header_separator("a,b\tc,d\n1;2\n", 0, 0, ";") == ""
+    assert header_separator("a,b\n1;2\n", 0, 0, ";") == ","
+
+
+def test_single_quotes_are_read_as_quotes_only_where_every_cell_has_them():
+    """Every cell of the header and records in apostrophes: read so (the layouts35 test
+    reads such a file); one cell without them, or a double quote (RFC 4180's quote (m))
+    anywhere, and the file is left to the refusals that name the quotes."""
+    assert single_quoted(["'a','b'", "'1','2'", "'3','4'"], ",", 0, 1)
+    assert not single_quoted(["'a','b'", "'1',2", "'3','4'"], ",", 0, 1)
+    assert not single_quoted(["'a','b'", "'1','\"2'"], ",", 0, 1)
+
+
+def test_a_title_line_splitting_like_a_header_is_no_header():
+    """A title set as the header by a wrong rows_before_header ("Quillmoor; logger 3"
+    over two-field lines) does not name the time column: left to the refusal that names
+    the header's line (invented known truth)."""
+    text = "Quillmoor; logger 3\nstamp,nee\n2021-01-01 00:30,1.5\n"
+    assert header_separator(text, 0, 0, ",", "stamp") == ""
+    assert header_separator("stamp;nee\n2021-01-01 00:30,1.5\n", 0, 0, ",", "stamp") == ";"
