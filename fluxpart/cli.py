@@ -440,6 +440,48 @@ def _format_clock(verdict) -> str:
     return "\n".join(lines)
 
 
+def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
+    """The note ``check`` prints after its problems where a refusal may explain the rest.
+
+    A temperature read in the wrong unit is out of range everywhere, so every stage finds no
+    night records and the list went on to advise e0_fallback (review49); a missing code
+    read as a value is refused the same way and is fixed in ``[input] missing``, not in
+    ``[input.units]``; a latitude of the wrong sign or a clock an hour off moves the sun
+    every record is judged against, so Rg exceeds the potential radiation and the night
+    mask counts the sky's noise as day (the list advised a ``night_rg_threshold`` of
+    hundreds of W m-2; newuser54).
+
+    Parameters
+    ----------
+    unit_refusals : sequence of str
+        The reader's refusals (``ReadReport.unit_refusals``), each among the problems.
+    clock_stops : sequence of str
+        The clock and site-geometry problems that stop the run (empty where
+        ``clock_check`` is not ``"refuse"``).
+    listed : int
+        Every problem listed, the refusals included.
+
+    Returns
+    -------
+    str
+        One indented line ending in a newline, or ``""`` where nothing else is listed.
+    """
+    if unit_refusals and listed > len(unit_refusals):
+        if all("[input] missing" in text for text in unit_refusals):
+            return ("  note: the run stops at the missing code named above; the other problems "
+                    "were judged with that code read as a value and may follow from it "
+                    "alone: add it to [input] missing and run check again\n")
+        return ("  note: the run stops at the unit mix-up named above; the other problems "
+                "were judged on the values as read in that unit and may follow from it "
+                "alone: set the unit and run check again\n")
+    if clock_stops and listed > len(clock_stops):
+        return ("  note: the run stops at the clock or site geometry named above; the other "
+                "problems were judged against the sun as [site] places it (Rg above the "
+                "potential radiation, the night mask) and may follow from it alone: make the "
+                "change it names and run check again\n")
+    return ""
+
+
 def _command_check(args) -> int:
     """List every problem ``run`` would trip on; exit 0 clean, 1 problems, 2 error (the
     reader's notes, a layout understood, are listed apart and leave exit 0)."""
@@ -494,12 +536,9 @@ def _command_check(args) -> int:
     problems += [f"budget year: {order}"] if order else []
     text = format_check(site_config.site, report, table, problems=problems,
                         notes=report.notes)
-    if report.unit_refusals and len(problems) + len(report.warnings) > len(report.unit_refusals):
-        # a temperature read in the wrong unit is out of range everywhere, so every stage
-        # finds no night records and the list went on to advise e0_fallback (review49)
-        text += ("  note: the run stops at the unit mix-up named above; the other problems "
-                 "were judged on the values as read in that unit and may follow from it "
-                 "alone: set the unit and run check again\n")
+    text += _follow_on_note(report.unit_refusals,
+                            verdict.problems if verdict is not None and refuse else (),
+                            len(problems) + len(report.warnings))
     print(text)
     print(_format_clock(verdict))
     if counts is not None:

@@ -419,6 +419,16 @@ def _spans_zero(kind, low, high) -> str:
     return ""
 
 
+def _not_stored(release: bool) -> str:
+    """The headline's clause beside the tonnes of a net uptake: the tonnes are what a reader
+    quotes, and the note that they are not carbon stored stood only in the small print
+    below the card (newuser54); a crediting methodology decides what a removal is."""
+    if release:
+        return ""
+    return (" These tonnes are CO2 taken from the air above the canopy: not by themselves "
+            "carbon the ecosystem stored, nor a credited removal (notes below).")
+
+
 def _summary_card(written: Written) -> tuple[str, bool]:
     """The summary per budget period; also whether a combined (non-95 %) uncertainty is shown."""
     annual = written.annual
@@ -474,7 +484,7 @@ def _summary_card(written: Written) -> tuple[str, bool]:
             f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
             f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
             f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), {tonnes} "
-            f"({t_interval}).{_spans_zero(kind, low, high)}</p>")
+            f"({t_interval}).{_spans_zero(kind, low, high)}{_not_stored(release)}</p>")
         headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
         for part in ("gpp", "reco"):

@@ -404,3 +404,30 @@ def test_check_names_an_event_outside_the_record(example, capsys):
     example.write_text(text + 'events = ["2021-07-20"]\n')
     assert main(["check", str(example)]) == 0
     assert "events:" not in capsys.readouterr().out
+
+
+def test_check_says_what_follows_from_a_wrong_latitude_or_missing_code(example, capsys):
+    """A latitude of the wrong sign moves the sun every record is judged against: `check`
+    listed, beside the geometry refusal, Rg above the potential radiation and a night mask
+    whose advice was a night_rg_threshold of hundreds of W m-2. A note now says those may
+    follow from the refusal; a missing code read as a value (-9999 left out of
+    [input] missing) names [input] missing as the fix, not the unit (newuser54). The
+    geometry fact: in the southern hemisphere the potential radiation peaks in December,
+    in the northern in June (solar declination, Spencer 1971 (m)); the example's Rg
+    follows the north."""
+    text = example.read_text()
+    example.write_text(text.replace("latitude = 49.3", "latitude = -49.3"))
+    assert main(["check", str(example)]) == 1
+    listed = capsys.readouterr().out.split("problems found (", 1)[1].split("\n\n", 1)[0]
+    assert "latitude = 49.3 (run stops)" in listed and "potential radiation" in listed
+    assert listed.splitlines()[-1].startswith(
+        "  note: the run stops at the clock or site geometry named above; the other problems "
+        "were judged against the sun as [site] places it")
+    example.write_text(text.replace("missing = [-9999]", "missing = [-7777]"))
+    assert main(["check", str(example)]) == 1
+    listed = capsys.readouterr().out.split("problems found (", 1)[1].split("\n\n", 1)[0]
+    assert "the value -9999 alone occurs" in listed and "(run stops)" in listed
+    assert listed.splitlines()[-1] == (
+        "  note: the run stops at the missing code named above; the other problems were "
+        "judged with that code read as a value and may follow from it alone: add it to "
+        "[input] missing and run check again")

@@ -340,3 +340,33 @@ def test_an_interval_over_zero_is_said_to_tell_no_sink_from_a_source():
         if said:
             assert (f"95 % interval {-high * T_PER_G:.2f} to {-low * T_PER_G:.2f}, holding "
                     "zero") in line
+
+
+def test_the_headline_says_beside_the_tonnes_of_uptake_that_they_are_not_carbon_stored():
+    """The summary card's headline gave "a net uptake of 8.42 t CO2 ha-1" and the note
+    that NEE leaves out harvest, manure, methane and water lay only in the small print
+    below the card (newuser54). The tonnes of an uptake now carry the clause in the
+    headline itself; a release, which no one reads as a removal, does not. Fact of the
+    trade: NEE is the vertical CO2 exchange only, so the net ecosystem carbon balance
+    adds the lateral fluxes (Chapin et al. 2006, Ecosystems 9, 1041 (m)). Invented
+    numbers; tonnes as 44.009 / 12.011 x 0.01 (m)."""
+    from fluxpart import report
+    from fluxpart.figures import Written
+
+    index = pd.date_range("2023-01-01", "2023-12-31 23:30", freq="30min")
+    clause = "These tonnes are CO2 taken from the air above the canopy: not by themselves"
+    for nee, said in ((-229.8, True), (106.8, False)):
+        annual = pd.DataFrame({
+            "nee": [nee], "complete": [True], "records": [17520],
+            "records_expected": [17520], "records_unfilled": [0],
+            "net_uptake_t_co2_per_ha": [-nee * T_PER_G],
+            "nee_ci95_low": [nee - 13.0], "nee_ci95_high": [nee + 13.0],
+            "ustar_threshold": [0.17]}, index=pd.Index([2023], name="year"))
+        written = Written(manifest={}, tables={
+            "timeseries": pd.DataFrame({"nee_filled": nee / 1e3}, index=index),
+            "annual": annual})
+        summary, _ = report._summary_card(written)
+        headline = re.search(r'<p class="headline">(.*?)</p>', summary, re.S).group(1)
+        plain = " ".join(html.unescape(re.sub(r"<[^>]+>", "", headline)).split())
+        assert (clause in plain) is said, plain
+        assert ("a net uptake of 8.42 t CO2 ha-1" in plain) is said, plain
