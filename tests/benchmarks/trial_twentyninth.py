@@ -84,7 +84,10 @@ Run from the repository root (a few minutes a draw)::
 ``nofog`` (no fog: neither its dim light nor its lost records), ``nowater`` (uptake without
 its VPD and soil-water factors), ``notemp`` (uptake without its temperature factor),
 ``onestratum`` (every stratum's leaf area in one big leaf with the top stratum's curve),
-``nolowlight`` (no uptake in records with Rg below 10 W m-2, the run's night class));
+``nolowlight`` (no uptake in records with Rg below 10 W m-2, the run's night class),
+``nowetlimb`` (the Skopp moisture factor without its wet limb: respiration not slowed in a
+wet soil), ``soilauto`` (autotrophic maintenance on the 5 cm soil temperature instead of the
+air's), ``flatauto`` (autotrophic maintenance not following the leaf area: its year's mean));
 ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds lines to every
 site's ``[processing]``.
 
@@ -144,6 +147,7 @@ from trial_scoring import (  # noqa: E402
     fill_errors,
     lagged,
     print_scored_row,
+    rain_outage_fill_parts,
     ramp,
     runs_mask,
     score_budget_years,
@@ -154,7 +158,8 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 CO2_G_PER_MOL = 44.0095   # g mol-1 (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "noserial", "nobattery", "nopools", "nobirch",
-            "flatwt", "nomow", "nofog", "nowater", "notemp", "onestratum", "nolowlight")
+            "flatwt", "nomow", "nofog", "nowater", "notemp", "onestratum", "nolowlight",
+            "nowetlimb", "soilauto", "flatauto")
 
 
 @dataclass(frozen=True)
@@ -233,7 +238,7 @@ def solar_elevation(site, times):
     """Solar elevation [deg] at local standard `times` (Bourges 1985's declination, a
     two-sine equation of time (m)); also the declination [rad] and solar hour."""
     year = times.year.to_numpy()
-    n = times.dayofyear.to_numpy() + (times.hour.to_numpy() + times.minute.to_numpy() / 60
+    n = times.day_of_year.to_numpy() + (times.hour.to_numpy() + times.minute.to_numpy() / 60
                                       - site.utc_offset) / 24
     n0 = 78.801 + 0.2422 * (year - 1969) - np.floor(0.25 * (year - 1969))
     wt = 2 * np.pi / 365.2422 * (n - n0)
@@ -352,9 +357,9 @@ def weather(site, idx, rng, variant):
     n_days = n // per_day
     mid = idx + pd.Timedelta(minutes=site.step / 2)
     elev, decl, solar_hour = solar_elevation(site, mid)
-    doy = mid.dayofyear.to_numpy()
+    doy = mid.day_of_year.to_numpy()
     day = np.arange(n) // per_day
-    doy_d = idx[::per_day].dayofyear.to_numpy()
+    doy_d = idx[::per_day].day_of_year.to_numpy()
     warm_d = season_of(site, doy_d)
     # clouds: oktas by a persistence chain
     cloud_mean = np.clip(site.cloudiness * (1 - 0.25 * warm_d
@@ -650,11 +655,13 @@ def ratkowsky(t):
     return (np.maximum(np.asarray(t, float) + 8.0, 0.0) / 18.0) ** 2
 
 
-def skopp(x):
+def skopp(x, wet_limb=True):
     """Skopp et al. (1990)'s moisture factor min(a x^0.75, c (1 - x)^0.6) of relative soil
-    water, 1 at its peak (x 0.65; exponents invented)."""
+    water, 1 at its peak (x 0.65; exponents invented); without `wet_limb` the dry limb
+    only, held at 1 above the peak."""
     x = np.clip(x, 0, 1)
-    return np.minimum((x / 0.65) ** 0.75, ((1 - x) / 0.35) ** 0.6).clip(0.05)
+    wet = ((1 - x) / 0.35) ** 0.6 if wet_limb else 1.0
+    return np.minimum((x / 0.65) ** 0.75, wet).clip(0.05)
 
 
 def heskel(t):
@@ -701,8 +708,9 @@ def components(site, met, strata, pmaxes, wood, inputs, rew, wtd, ts, variant):
     day = met["day"]
     gpp = uptake(site, met, strata, pmaxes, rew, wtd, variant)
     leaf = sum(strata)[day]
-    auto_unit = heskel(met["tair"]) * (leaf + 2.0 * wood)
-    moist = skopp(0.2 + 0.75 * rew)[day]
+    auto_unit = heskel(ts if "soilauto" in variant else met["tair"]) * (
+        np.mean(leaf) if "flatauto" in variant else leaf + 2.0 * wood)
+    moist = skopp(0.2 + 0.75 * rew, "nowetlimb" not in variant)[day]
     hetero_unit = ratkowsky(ts) * moist
     if site.kind == "bog":
         hetero_unit = ratkowsky(ts) * (0.25 + 1 - np.exp(-wtd / 0.15))[day]
@@ -920,16 +928,13 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
 
 
 def fill_parts(part, series, row):
-    """The NEE error [g C m-2] of the filled records by cause (QC rejections by night and by
-    day, rain and fog on the open path, outages of the analyser, sonic and power (field work
-    and the flat battery among them)) and of the battery's outage alone; updates `row`."""
-    night = part.night.to_numpy().astype(bool)
-    rain = part.rain.to_numpy().astype(bool)
-    outage = part.outage.to_numpy().astype(bool)
-    rest = ~(rain | outage)
-    row.update(fill_errors(part, series, {"night": night & rest, "day": ~night & rest,
-                                          "rain": rain, "outage": outage,
-                                          "battery": part.battery.to_numpy().astype(bool)}))
+    """The NEE error [g C m-2] of the filled records by cause (``rain_outage_fill_parts``:
+    QC rejections by night and by day, rain and fog on the open path, outages of the
+    analyser, sonic and power, field work and the flat battery among them) and of the
+    battery's outage alone; updates `row`."""
+    rain_outage_fill_parts(part, series, row)
+    row["err_fill_battery"] = fill_errors(part, series, {"battery": part.battery.to_numpy()
+                                                         .astype(bool)})["err_fill_battery"]
 
 
 def print_row(row):
