@@ -123,6 +123,21 @@ _MONTH_PAIRS = 100
 _SIGN_BLOCK_DAYS = 7
 
 
+def _records_per_day(interval_minutes: float) -> int:
+    """Records in a day [1] of an interval [min] that divides it.
+
+    The daily checks compare records by position within days; an interval that does not
+    divide the day's 1440 minutes (7 min: 205.7 records) moves each day's records against
+    the last one's time of day, so it is refused, naming it (leftovers56: it drifted).
+    The reader and ``process`` accept 30- and 60-minute records only; this guards a
+    direct call.
+    """
+    if not interval_minutes > 0 or 1440.0 % float(interval_minutes):
+        raise ValueError(f"interval_minutes = {interval_minutes:g} does not divide a day "
+                         "(1440 minutes): the daily checks need whole records per day")
+    return int(round(1440.0 / interval_minutes))
+
+
 def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
     """Max minus min of each whole day (calendar rows) where `usable`."""
     days = values.size // per_day
@@ -170,7 +185,7 @@ def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int
     """
     tair = np.asarray(tair, dtype=float)
     tsoil = np.asarray(tsoil, dtype=float)
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     if per_day < 4 or tair.size != tsoil.size:
         return None
     pad = np.full(int(first_offset) % per_day, np.nan)
@@ -245,7 +260,7 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
     tair = np.asarray(tair, dtype=float)
     tsoil = np.asarray(tsoil, dtype=float)
     stamps = pd.DatetimeIndex(stamps)
-    per_day = int(round(1440.0 / interval_minutes)) if interval_minutes > 0 else 0
+    per_day = _records_per_day(interval_minutes) if interval_minutes > 0 else 0
     if per_day < 4 or not tair.size == tsoil.size == len(stamps) or tair.size == 0:
         return None
     first_day = stamps[0].normalize()
@@ -682,7 +697,7 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
     # each change less its mean at that time of day: a cloud that comes at the same hour
     # every day, and NEE's daily course, out
-    per_day = max(1, int(round(1440.0 / interval_minutes)))
+    per_day = _records_per_day(interval_minutes)
     d_nee, d_cloud = (_less_daily_course(values, per_day)
                       for values in _cloud_changes(nee, rg, potential))
     scores = _change_scores(d_nee, d_cloud, {k: k for k in range(-most, most + 1)})
@@ -818,7 +833,7 @@ def _best_of(score, interval_minutes: float):
     """:func:`_best_shift`'s rule on `score(k)` -> (correlation signed to be positive where
     physical, pairs) of each shift k [records]."""
     most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     scores = {k: score(k) for k in range(-most, most + 1)}
     scores = {k: s for k, s in scores.items() if math.isfinite(s[0])}
     if 0 not in scores or len(scores) < 2:
@@ -1023,7 +1038,7 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     if arrays is None:
         return None
     nee, rg, potential = arrays
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
               if abs(days * per_day) < nee.size - 1}
     scores = _change_scores(*_sunlit_changes(nee, rg, potential), shifts)
@@ -1594,7 +1609,7 @@ def same_temperature_columns(tair, tsoil, stamps, interval_minutes: float,
     a = np.asarray(tair, dtype=float)
     b = np.asarray(tsoil, dtype=float)
     both = np.isfinite(a) & np.isfinite(b)
-    per_day = 1440.0 / float(interval_minutes)
+    per_day = _records_per_day(interval_minutes)
     needed = int(np.ceil(SAME_TEMPERATURE_DAYS * per_day))
     if int(both.sum()) < needed:
         return None
@@ -1985,7 +2000,7 @@ def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | 
     tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
     if not tair.size == rh.size == vpd.size or interval_minutes <= 0:
         return None
-    per_day = int(round(1440 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     if per_day < 4 or tair.size < 30 * per_day:
         return None
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -2893,7 +2908,7 @@ def flat_air_temperature(tair, rg, potential, stamps, interval_minutes: float,
     index = pd.DatetimeIndex(stamps)
     if tair.size == 0 or not tair.size == rg.size == potential.size == len(index):
         return None
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     day = index.normalize()
     # each day's counts and means column by column, as a grouping on the days themselves
     # takes them (pandas picks its summation for a block of columns by NaN in any of

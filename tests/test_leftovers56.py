@@ -79,3 +79,24 @@ def test_storage_in_the_units_nee_is_read_in_reads_as_the_clean_file(tmp_path, u
     np.testing.assert_allclose(read["nee"], expected["nee"], rtol=1e-11, atol=1e-12)
     assert not [w for w in report.warnings if w.startswith("storage")], report.warnings
     assert f"set [input.units] storage = '{unit}'" in storage_unit_apart(unit, None)
+
+
+def test_an_interval_that_does_not_divide_a_day_is_refused_naming_it(tmp_path):
+    """7 minutes: 1440 / 7 = 205.7 records a day (arithmetic), so a daily check's days
+    drift in time of day; a direct call is refused naming the interval (it ran before),
+    and the reader refuses such a file naming its 7-minute spacing, as before."""
+    from test_robustness_layouts26 import NAMES
+
+    from fluxpart.column_faults import nee_day_shift, nee_lag
+    from fluxpart.errors import SpacingError
+    values = np.linspace(0.0, 1.0, 1000)
+    for check in (nee_lag, nee_day_shift):
+        with pytest.raises(ValueError, match="interval_minutes = 7 does not divide a day"):
+            check(values, values, values, 7.0)
+    assert nee_lag(values, values, values, 30.0) is None     # a divisor still judged
+    ends = pd.date_range("2021-06-01 00:07", periods=300, freq="7min")
+    path = tmp_path / "seven.csv"
+    path.write_text("\n".join(_lines([f"{e:%Y-%m-%d %H:%M}" for e in ends],
+                                     np.ones((300, len(NAMES))))) + "\n")
+    with pytest.raises(SpacingError, match="most common spacing between stamps is 7 minutes"):
+        _read(path)
