@@ -1027,7 +1027,10 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
-    uncertainty without a word; ten days late moved GPP by -127 g C m-2.
+    uncertainty without a word; ten days late moved GPP by -127 g C m-2. Where a shift of
+    a few records within the day correlates at least as well as the best day's, the
+    record's shift is named instead (:func:`_record_rival`): NEE a record off that
+    :func:`nee_lag` left unnamed.
 
     References
     ----------
@@ -1041,7 +1044,8 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     per_day = _records_per_day(interval_minutes)
     shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
               if abs(days * per_day) < nee.size - 1}
-    scores = _change_scores(*_sunlit_changes(nee, rg, potential), shifts)
+    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
+    scores = _change_scores(d_nee, d_rg, shifts)
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
@@ -1052,6 +1056,9 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
         return None
     best, strength, same, apart = found
     names = columns or {}
+    records = _record_rival(d_nee, d_rg, interval_minutes, strength)
+    if records is not None:
+        return _record_shift_text(records, strength, best, same, interval_minutes, names)
     later = "later" if best > 0 else "earlier"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {abs(best)} day(s) {later} than the same record "
@@ -1060,6 +1067,45 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
             "in the same record, so the flux and the weather records look whole days apart "
             "(a day of year counted from 0 in one file and from 1 in the other, or a "
             "weather file of other dates); align them in a copy of the file")
+
+
+def _record_rival(d_nee, d_rg, interval_minutes: float, day_strength: float):
+    """(k, correlation) of the shift of a few records within the same day whose sunlit
+    changes correlate at least as well as the best whole-day shift's (`day_strength`),
+    or None.
+
+    Whole days apart, the clouds of one day pass over the other's flux only at that
+    shift: every shift of a few records within the day holds the shared diurnal shape
+    alone, as the other day shifts do, and falls below it. NEE a record off holds the
+    clouds at that record's shift, and its same-record changes lose them (the changes of
+    unrelated clouds at one record's distance correlate negatively): the shared shape of
+    some day shift then beats the same record, and the record's shift beats them all
+    (round leftovers56: NEE one record off at the invented Sahel site w04 was named
+    "9 days later"). Shifts of up to :data:`_MAX_SHIFT_MINUTES` are compared, those of
+    :func:`nee_lag`.
+    """
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = _change_scores(d_nee, d_rg, {k: k for k in range(-most, most + 1) if k})
+    finite = {k: score for k, score in scores.items() if math.isfinite(score[0])}
+    if not finite:
+        return None
+    k = max(finite, key=lambda key: finite[key][0])
+    return (k, finite[k][0]) if finite[k][0] >= day_strength else None
+
+
+def _record_shift_text(records, day_strength, days, same, interval_minutes, names) -> str:
+    """The warning of NEE a few records off its light where a whole-day shift scored."""
+    k, strength = records
+    later = "later" if k > 0 else "earlier"
+    return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
+            f"{names.get('rg', 'rg')!r}) {abs(k)} record(s) ({abs(k) * interval_minutes:g} "
+            f"min) {later} than the same record (correlation of the sunlit changes "
+            f"{strength:.2f} there, {same:.2f} in the same record; {day_strength:.2f} "
+            f"{abs(days)} day(s) {'later' if days > 0 else 'earlier'}, the diurnal shape "
+            "alone): photosynthesis follows light within minutes, so the NEE column looks "
+            f"shifted by {abs(k)} record(s) against the drivers, not by whole days (a flux "
+            "file stamped at interval ends joined with a weather file stamped at starts "
+            "reads like this); align the columns in a copy of the file")
 
 
 def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | None:

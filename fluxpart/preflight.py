@@ -76,7 +76,7 @@ Warnings (the run goes on):
   together far beyond the record's own changes (another file's records pasted in).
 - ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted).
 - ``input (nee days)``: NEE changing with Rg whole days earlier or later (files of other
-  dates joined).
+  dates joined); a few records off where a record's shift beats every day's (leftovers56).
 - ``input (nee sign)``: months whose NEE rises with light beside months whose NEE falls with
   it (or weeks where no month does).
 - ``input (nee day sign)``: NEE negated by day only: nights a release, warm bright records a

@@ -100,3 +100,20 @@ def test_an_interval_that_does_not_divide_a_day_is_refused_naming_it(tmp_path):
                                      np.ones((300, len(NAMES))))) + "\n")
     with pytest.raises(SpacingError, match="most common spacing between stamps is 7 minutes"):
         _read(path)
+
+
+def test_nee_one_record_off_is_named_as_records_not_whole_days():
+    """Invented passing clouds (test_column_faults.light_record, known truth: NEE one
+    record late or early). Photosynthesis follows light within minutes (Lambers, Chapin &
+    Pons 2008, ch. 2 (m)), so the clouds line up at the record's shift; whole days apart
+    only the diurnal shape is shared. `nee_day_shift` named "27 day(s) earlier" for NEE
+    one record late; now the record's shift, and a day late still whole days."""
+    from test_column_faults import STEP, light_record
+
+    from fluxpart.column_faults import nee_day_shift
+    nee, rg, potential = light_record(0, 1.0)
+    for records, named in ((1, "1 record(s) (30 min) later"), (-1, "1 record(s) (30 min) earlier"),
+                           (48, "1 day(s) later"), (-48, "1 day(s) earlier")):
+        text = nee_day_shift(np.roll(nee, records), rg, potential, STEP)
+        assert text is not None and named in text, (records, text)
+        assert ("not by whole days" in text) is (abs(records) == 1)
