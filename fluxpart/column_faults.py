@@ -66,7 +66,8 @@ from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
-__all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee",
+__all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "RECORD_SHIFT_WORDS", "SOIL_RANGE_RATIO",
+           "censored_nee",
            "clear_sky_course", "delayed_tair", "delayed_tair_in_a_year", "dew_point_as_tair",
            "flag_as_measurement", "flux_as_storage", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "same_temperature_columns",
@@ -1069,6 +1070,11 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
             "weather file of other dates); align them in a copy of the file")
 
 
+#: Words of :func:`nee_day_shift`'s message where a record's shift beats the days' (the
+#: preflight files it with the record shifts).
+RECORD_SHIFT_WORDS = "not by whole days"
+
+
 def _record_rival(d_nee, d_rg, interval_minutes: float, day_strength: float):
     """(k, correlation) of the shift of a few records within the same day whose sunlit
     changes correlate at least as well as the best whole-day shift's (`day_strength`),
@@ -1103,7 +1109,7 @@ def _record_shift_text(records, day_strength, days, same, interval_minutes, name
             f"{strength:.2f} there, {same:.2f} in the same record; {day_strength:.2f} "
             f"{abs(days)} day(s) {'later' if days > 0 else 'earlier'}, the diurnal shape "
             "alone): photosynthesis follows light within minutes, so the NEE column looks "
-            f"shifted by {abs(k)} record(s) against the drivers, not by whole days (a flux "
+            f"shifted by {abs(k)} record(s) against the drivers, {RECORD_SHIFT_WORDS} (a flux "
             "file stamped at interval ends joined with a weather file stamped at starts "
             "reads like this); align the columns in a copy of the file")
 

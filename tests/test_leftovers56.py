@@ -117,3 +117,21 @@ def test_nee_one_record_off_is_named_as_records_not_whole_days():
         text = nee_day_shift(np.roll(nee, records), rg, potential, STEP)
         assert text is not None and named in text, (records, text)
         assert ("not by whole days" in text) is (abs(records) == 1)
+
+
+def test_the_preflight_files_a_record_shift_found_beside_the_days_with_the_records(
+        monkeypatch):
+    """Where the record-level checks are silent (as at w04) and `nee_day_shift` names a
+    record's shift, the finding's stage is the record shifts' "input (nee)"; a day late
+    stays "input (nee days)". The record-level checks are silenced here to reach it."""
+    from test_column_faults import STEP, light_record
+
+    from fluxpart import preflight
+    for name in ("nee_hour_shift", "nee_lag", "nee_shift_from_month"):
+        monkeypatch.setattr(preflight, name, lambda *args, **kwargs: None)
+    nee, rg, potential = light_record(0, 1.0)
+    index = pd.date_range("2021-03-01", periods=nee.size, freq=f"{STEP}min")
+    for records, stage in ((1, "input (nee)"), (48, "input (nee days)")):
+        found = preflight._column_faults(
+            pd.DataFrame({"nee": np.roll(nee, records), "rg": rg}, index=index), potential, STEP)
+        assert [f.stage for f in found] == [stage], found
