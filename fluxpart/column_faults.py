@@ -66,7 +66,8 @@ from .robust_scale import scaled_mad
 from .uncertainty import gap_runs
 from .variables import saturation_temperature, saturation_vapour_pressure, vpd_from_rh
 
-__all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "SOIL_RANGE_RATIO", "censored_nee",
+__all__ = ["FLUX_COPY_WORDS", "GAPLESS_DAYS", "RECORD_SHIFT_WORDS", "SOIL_RANGE_RATIO",
+           "censored_nee",
            "clear_sky_course", "delayed_tair", "delayed_tair_in_a_year", "dew_point_as_tair",
            "flag_as_measurement", "flux_as_storage", "gapless_nee", "interpolated_nee",
            "months_rising_with_light", "nee_day_shift", "nee_lag", "same_temperature_columns",
@@ -123,6 +124,21 @@ _MONTH_PAIRS = 100
 _SIGN_BLOCK_DAYS = 7
 
 
+def _records_per_day(interval_minutes: float) -> int:
+    """Records in a day [1] of an interval [min] that divides it.
+
+    The daily checks compare records by position within days; an interval that does not
+    divide the day's 1440 minutes (7 min: 205.7 records) moves each day's records against
+    the last one's time of day, so it is refused, naming it (leftovers56: it drifted).
+    The reader and ``process`` accept 30- and 60-minute records only; this guards a
+    direct call.
+    """
+    if not interval_minutes > 0 or 1440.0 % float(interval_minutes):
+        raise ValueError(f"interval_minutes = {interval_minutes:g} does not divide a day "
+                         "(1440 minutes): the daily checks need whole records per day")
+    return int(round(1440.0 / interval_minutes))
+
+
 def _daily_ranges(values: np.ndarray, per_day: int, usable: np.ndarray) -> np.ndarray:
     """Max minus min of each whole day (calendar rows) where `usable`."""
     days = values.size // per_day
@@ -170,7 +186,7 @@ def swapped_temperatures(tair, tsoil, interval_minutes: float, first_offset: int
     """
     tair = np.asarray(tair, dtype=float)
     tsoil = np.asarray(tsoil, dtype=float)
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     if per_day < 4 or tair.size != tsoil.size:
         return None
     pad = np.full(int(first_offset) % per_day, np.nan)
@@ -245,7 +261,7 @@ def swapped_temperatures_in_months(tair, tsoil, stamps, interval_minutes: float,
     tair = np.asarray(tair, dtype=float)
     tsoil = np.asarray(tsoil, dtype=float)
     stamps = pd.DatetimeIndex(stamps)
-    per_day = int(round(1440.0 / interval_minutes)) if interval_minutes > 0 else 0
+    per_day = _records_per_day(interval_minutes) if interval_minutes > 0 else 0
     if per_day < 4 or not tair.size == tsoil.size == len(stamps) or tair.size == 0:
         return None
     first_day = stamps[0].normalize()
@@ -682,7 +698,7 @@ def nee_lag(nee, rg, potential, interval_minutes: float, columns=None) -> str | 
     most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
     # each change less its mean at that time of day: a cloud that comes at the same hour
     # every day, and NEE's daily course, out
-    per_day = max(1, int(round(1440.0 / interval_minutes)))
+    per_day = _records_per_day(interval_minutes)
     d_nee, d_cloud = (_less_daily_course(values, per_day)
                       for values in _cloud_changes(nee, rg, potential))
     scores = _change_scores(d_nee, d_cloud, {k: k for k in range(-most, most + 1)})
@@ -818,7 +834,7 @@ def _best_of(score, interval_minutes: float):
     """:func:`_best_shift`'s rule on `score(k)` -> (correlation signed to be positive where
     physical, pairs) of each shift k [records]."""
     most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     scores = {k: score(k) for k in range(-most, most + 1)}
     scores = {k: s for k, s in scores.items() if math.isfinite(s[0])}
     if 0 not in scores or len(scores) < 2:
@@ -1012,7 +1028,10 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
-    uncertainty without a word; ten days late moved GPP by -127 g C m-2.
+    uncertainty without a word; ten days late moved GPP by -127 g C m-2. Where a shift of
+    a few records within the day correlates at least as well as the best day's, the
+    record's shift is named instead (:func:`_record_rival`): NEE a record off that
+    :func:`nee_lag` left unnamed.
 
     References
     ----------
@@ -1023,10 +1042,11 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     if arrays is None:
         return None
     nee, rg, potential = arrays
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
               if abs(days * per_day) < nee.size - 1}
-    scores = _change_scores(*_sunlit_changes(nee, rg, potential), shifts)
+    d_nee, d_rg = _sunlit_changes(nee, rg, potential)
+    scores = _change_scores(d_nee, d_rg, shifts)
     scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
@@ -1037,6 +1057,9 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
         return None
     best, strength, same, apart = found
     names = columns or {}
+    records = _record_rival(d_nee, d_rg, interval_minutes, strength)
+    if records is not None:
+        return _record_shift_text(records, strength, best, same, interval_minutes, names)
     later = "later" if best > 0 else "earlier"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {abs(best)} day(s) {later} than the same record "
@@ -1045,6 +1068,50 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
             "in the same record, so the flux and the weather records look whole days apart "
             "(a day of year counted from 0 in one file and from 1 in the other, or a "
             "weather file of other dates); align them in a copy of the file")
+
+
+#: Words of :func:`nee_day_shift`'s message where a record's shift beats the days' (the
+#: preflight files it with the record shifts).
+RECORD_SHIFT_WORDS = "not by whole days"
+
+
+def _record_rival(d_nee, d_rg, interval_minutes: float, day_strength: float):
+    """(k, correlation) of the shift of a few records within the same day whose sunlit
+    changes correlate at least as well as the best whole-day shift's (`day_strength`),
+    or None.
+
+    Whole days apart, the clouds of one day pass over the other's flux only at that
+    shift: every shift of a few records within the day holds the shared diurnal shape
+    alone, as the other day shifts do, and falls below it. NEE a record off holds the
+    clouds at that record's shift, and its same-record changes lose them (the changes of
+    unrelated clouds at one record's distance correlate negatively): the shared shape of
+    some day shift then beats the same record, and the record's shift beats them all
+    (round leftovers56: NEE one record off at the invented Sahel site w04 was named
+    "9 days later"). Shifts of up to :data:`_MAX_SHIFT_MINUTES` are compared, those of
+    :func:`nee_lag`.
+    """
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    scores = _change_scores(d_nee, d_rg, {k: k for k in range(-most, most + 1) if k})
+    finite = {k: score for k, score in scores.items() if math.isfinite(score[0])}
+    if not finite:
+        return None
+    k = max(finite, key=lambda key: finite[key][0])
+    return (k, finite[k][0]) if finite[k][0] >= day_strength else None
+
+
+def _record_shift_text(records, day_strength, days, same, interval_minutes, names) -> str:
+    """The warning of NEE a few records off its light where a whole-day shift scored."""
+    k, strength = records
+    later = "later" if k > 0 else "earlier"
+    return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
+            f"{names.get('rg', 'rg')!r}) {abs(k)} record(s) ({abs(k) * interval_minutes:g} "
+            f"min) {later} than the same record (correlation of the sunlit changes "
+            f"{strength:.2f} there, {same:.2f} in the same record; {day_strength:.2f} "
+            f"{abs(days)} day(s) {'later' if days > 0 else 'earlier'}, the diurnal shape "
+            "alone): photosynthesis follows light within minutes, so the NEE column looks "
+            f"shifted by {abs(k)} record(s) against the drivers, {RECORD_SHIFT_WORDS} (a flux "
+            "file stamped at interval ends joined with a weather file stamped at starts "
+            "reads like this); align the columns in a copy of the file")
 
 
 def months_rising_with_light(nee, rg, potential, stamps, columns=None) -> str | None:
@@ -1594,7 +1661,7 @@ def same_temperature_columns(tair, tsoil, stamps, interval_minutes: float,
     a = np.asarray(tair, dtype=float)
     b = np.asarray(tsoil, dtype=float)
     both = np.isfinite(a) & np.isfinite(b)
-    per_day = 1440.0 / float(interval_minutes)
+    per_day = _records_per_day(interval_minutes)
     needed = int(np.ceil(SAME_TEMPERATURE_DAYS * per_day))
     if int(both.sum()) < needed:
         return None
@@ -1985,7 +2052,7 @@ def delayed_tair(tair, rh, vpd, interval_minutes: float, columns=None) -> str | 
     tair, rh, vpd = (np.asarray(v, dtype=float) for v in (tair, rh, vpd))
     if not tair.size == rh.size == vpd.size or interval_minutes <= 0:
         return None
-    per_day = int(round(1440 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     if per_day < 4 or tair.size < 30 * per_day:
         return None
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
@@ -2893,7 +2960,7 @@ def flat_air_temperature(tair, rg, potential, stamps, interval_minutes: float,
     index = pd.DatetimeIndex(stamps)
     if tair.size == 0 or not tair.size == rg.size == potential.size == len(index):
         return None
-    per_day = int(round(1440.0 / interval_minutes))
+    per_day = _records_per_day(interval_minutes)
     day = index.normalize()
     # each day's counts and means column by column, as a grouping on the days themselves
     # takes them (pandas picks its summation for a block of columns by NaN in any of

@@ -67,8 +67,8 @@ def _empty_run(present: np.ndarray, at: int) -> tuple[int, int]:
             after[0] if len(after) else len(present))
 
 
-def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
-                     stamp_column: str | None = None, utc_offset: float = 0.0) -> str | None:
+def missing_leap_day(frame: pd.DataFrame, interval_minutes: float, *,
+                     utc_offset: float = 0.0) -> str | None:
     """A message where a leap year's 29 February holds no record between complete days.
 
     Parameters
@@ -78,8 +78,6 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
         columns among :data:`MEASURED`.
     interval_minutes : float
         Record interval [min].
-    stamp_column : str, optional
-        The file's time column, to name it in the message.
     utc_offset : float, optional
         The site's offset of local standard time from UTC [h] (a file stamped in UTC
         and moved to it has its midnight there).
@@ -136,7 +134,6 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
         after = present[end:end + per_day].mean()
         if min(before, after) < COMPLETE_SHARE:
             continue
-        where = f"column {stamp_column!r}" if stamp_column else "the file's stamps"
         return (f"no record on 29 February {year} ({grid[start]:%Y-%m-%d %H:%M} to "
                 f"{grid[end - 1] + step:%Y-%m-%d %H:%M}, exactly one day empty) while the "
                 f"day before and the day after hold measured values in {before:.0%} and "
@@ -144,7 +141,7 @@ def missing_leap_day(frame: pd.DataFrame, interval_minutes: float,
                 f"day. Likely the records of {year - 1} or {year + 1} (no leap years) "
                 f"stamped {year} (a year early or late: the budget and every event date "
                 "then name the wrong year), or a logger or script that skips 29 February "
-                f"(every date from 1 March a day off). Check the year of {where}; a "
+                "(every date from 1 March a day off). Check the year of the file's stamps; a "
                 "logger writing a file a day whose file of 29 February was lost leaves "
                 "the same gap, and then nothing is wrong")
     return None

@@ -74,7 +74,8 @@ Warnings (the run goes on):
   (one sensor twice).
 - ``input (spliced records)``: two or more joints where soil and air temperature step
   together far beyond the record's own changes (another file's records pasted in).
-- ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted).
+- ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted; also
+  where :func:`.column_faults.nee_day_shift` finds a record's shift beating every day's).
 - ``input (nee days)``: NEE changing with Rg whole days earlier or later (files of other
   dates joined).
 - ``input (nee sign)``: months whose NEE rises with light beside months whose NEE falls with
@@ -170,6 +171,7 @@ from . import (
 )
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
+    RECORD_SHIFT_WORDS,
     censored_nee,
     delayed_tair,
     delayed_tair_in_a_year,
@@ -551,8 +553,9 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
             text = nee_day_shift(screened["nee"].to_numpy(dtype=float),
                                  screened["rg"].to_numpy(dtype=float), potential,
                                  interval_minutes, names)
-            if text:
-                findings.append(Finding("input (nee days)", text, False))
+            if text:       # a few records off where they beat every day (leftovers56)
+                findings.append(Finding("input (nee)" if RECORD_SHIFT_WORDS in text
+                                        else "input (nee days)", text, False))
         text = months_rising_with_light(screened["nee"].to_numpy(dtype=float),
                                         screened["rg"].to_numpy(dtype=float), potential,
                                         screened.index, names)

@@ -1454,8 +1454,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         if problem:
             raise TimestampError(
                 f"{_time_setting(time_columns)}: {_where(source, lines, at)} has stamp "
-                f"{as_written.iloc[at]!r}: {problem} (RFC 9557); write each stamp's offset as its zone has it, or leave out the "
-                "zone in brackets, in a copy of the file")
+                f"{as_written.iloc[at]!r}: {problem}, in a copy of the file (RFC 9557)")
         if zones:
             notes.append(ReaderNote(
                 f"{_time_setting(time_columns)} of {source!r}: the stamps name their time "

@@ -166,10 +166,13 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
            "1": (100.0, 0.0),
            "0.1 %": (0.1, 0.0)},          # tenths of a percent as whole numbers (layouts32)
     "nee_flag": {"1": (1.0, 0.0)},
-    "storage": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0),
-                "mg CO2 m-2 s-1": (1000.0 / CO2_MOLAR_MASS, 0.0)},
+    "storage": {},              # the flux's own units, below (leftovers56)
     "ppfd": {"µmol m-2 s-1": (1.0, 0.0), "umol m-2 s-1": (1.0, 0.0)},
 }
+
+# the storage term is written beside the flux, in its unit (common practice (m)): every
+# unit NEE is read in (layouts49 added mmol and µg CO2 to NEE only; leftovers56)
+_CONVERSIONS["storage"] = dict(_CONVERSIONS["nee"])
 
 #: Units of whole numbers counting a tenth or hundredth of the canonical unit (a logger's
 #: integer storage; round layouts32) -> the divisor applied
@@ -179,7 +182,7 @@ DIVIDED_UNITS = {"0.1 °C": 10.0, "0.1 degC": 10.0, "0.01 °C": 100.0, "0.01 deg
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received
 #: per record interval).
-PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2"), ("nee", "g C m-2")})
+PER_INTERVAL_UNITS = frozenset({("rg", "MJ m-2"), ("nee", "g C m-2"), ("storage", "g C m-2")})
 
 
 def units_for(name: str) -> tuple[str, ...]:

@@ -10,9 +10,12 @@ where they differ (a logger writing the winter offset all year beside its zone n
 file states two times for one record and is refused, naming the stamp and both offsets
 (RFC 9557 section 3.4 leaves such an inconsistency to the application, an error where the
 suffix is marked critical, "[!Europe/Berlin]"). A "Z" before the suffix states the instant
-in UTC and no local offset, so it disagrees with no zone. Suffixes of other tags
-("[u-ca=...]", a calendar) are left, so that such stamps stay refused as not matching the
-format (round layouts49).
+in UTC and no local offset, so it disagrees with no zone (round layouts49). A zone name
+written in another case ("[europe/berlin]") names the one IANA zone it matches without
+case, and a UTC offset in brackets ("[+01:00]", RFC 9557's numeric zone) a fixed offset,
+compared with the stamp's as a name's is (leftovers56: both were refused, the first as an
+unknown zone, the second as not matching the format). Any other suffix (a tag such as
+"[u-ca=iso8601]", a calendar, or a second suffix) is refused naming it.
 
 References
 ----------
@@ -23,16 +26,57 @@ Internet: Timestamps. RFC 3339, IETF.
 from __future__ import annotations
 
 import re
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError, available_timezones
 
 import numpy as np
 import pandas as pd
 
-#: An offset (or Z) then one bracketed zone name, optionally marked critical by "!".
-_SUFFIX = re.compile(r"^(?P<stamp>.*?(?:Z|[+-]\d{2}(?::?\d{2})?))\[!?(?P<zone>[A-Za-z_]"
-                     r"[A-Za-z0-9_+\-]*(?:/[A-Za-z0-9_+\-]+)*)\]$")
+#: An offset (or Z) then one or more bracketed suffixes.
+_SUFFIX = re.compile(r"^(?P<stamp>.*?(?:Z|[+-]\d{2}(?::?\d{2})?))(?P<suffix>(?:\[[^\[\]]*\])+)$")
+#: One suffix naming a zone: an IANA name, optionally marked critical by "!".
+_ZONE_NAME = re.compile(r"^\[!?(?P<zone>[A-Za-z_][A-Za-z0-9_+\-]*(?:/[A-Za-z0-9_+\-]+)*)\]$")
+#: One suffix naming a numeric offset ("[+01:00]", RFC 9557's time-numoffset).
+_ZONE_OFFSET = re.compile(r"^\[!?(?P<sign>[+-])(?P<hours>\d{2}):?(?P<minutes>\d{2})\]$")
 #: The written offset of a stamp (without its suffix) [sign, hours, minutes]
 _OFFSET = re.compile(r"(?P<sign>[+-])(?P<hours>\d{2}):?(?P<minutes>\d{2})?$")
+
+
+def _iana_zone(name: str) -> str | None:
+    """The IANA zone `name` names, its case aside, or None.
+
+    The tz database keeps no two names that differ only in case (its theory file: some
+    systems compare names without case (m)), so a name written in another case names one
+    zone; a name matching none, or (should the database ever hold them) two, names none.
+    """
+    try:
+        ZoneInfo(name)
+        return name
+    except (ZoneInfoNotFoundError, ValueError):
+        pass
+    matches = [zone for zone in available_timezones() if zone.lower() == name.lower()]
+    return matches[0] if len(matches) == 1 else None
+
+
+def _read_suffix(suffix: str):
+    """A written suffix as ``(label, zone, minutes, problem)``: the zone's label for the
+    note, an IANA zone name or None, a fixed offset [min] or None, and what is wrong."""
+    numeric = _ZONE_OFFSET.match(suffix)
+    if numeric:
+        minutes = (int(numeric["hours"]) * 60 + int(numeric["minutes"])) \
+            * (-1 if numeric["sign"] == "-" else 1)
+        return _shown(minutes), None, minutes, ""
+    named = _ZONE_NAME.match(suffix)
+    if not named:
+        return suffix, None, None, (
+            f"its suffix {suffix} is not one time zone (an IANA name or a UTC offset in "
+            "brackets), and other suffixes are not read; leave the suffix out")
+    zone = _iana_zone(named["zone"])
+    if zone is None:
+        return suffix, None, None, (f"its zone [{named['zone']}] is no time zone of the "
+                                    "IANA database; write its IANA name, or leave the zone "
+                                    "in brackets out")
+    label = zone if zone == named["zone"] else f"{named['zone']}, the IANA zone {zone}"
+    return label, zone, None, ""
 
 
 def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
@@ -52,12 +96,13 @@ def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
     Returns
     -------
     tuple of (pandas.Series, list of str, int, str)
-        The cells with each ``[Area/City]`` suffix removed (`text` itself where no cell
-        has one); the zone names written, sorted; and where every offset is its zone's at
-        that instant ``-1, ""``, else the position of the first stamp whose offset
-        disagrees with its zone, or whose zone the IANA database does not hold, and what
-        is wrong. A stamp the format does not read is not compared (the reader refuses
-        it as not matching the format).
+        The cells with each suffix removed (`text` itself where no cell has one); the
+        zones named, sorted (an IANA name, one written in another case with the name it
+        matches, or an offset "+01:00"); and where every offset is its zone's at that
+        instant ``-1, ""``, else the position of the first stamp whose offset disagrees
+        with its zone, whose zone the IANA database does not hold, or whose suffix is no
+        zone, and what is wrong with its remedy. A stamp the format does not read is not
+        compared (the reader refuses it as not matching the format).
 
     Examples
     --------
@@ -70,17 +115,16 @@ def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
     if not text.str.endswith("]").any():         # one C pass: most files stop here
         return text, [], -1, ""
     parts = text.str.extract(_SUFFIX)
-    suffixed = parts["zone"].notna().to_numpy()
+    suffixed = parts["suffix"].notna().to_numpy()
     if not suffixed.any():
         return text, [], -1, ""
     stripped = text.where(~suffixed, parts["stamp"])
-    zones = sorted(set(parts.loc[suffixed, "zone"]))
-    for zone in zones:
-        try:
-            ZoneInfo(zone)
-        except (ZoneInfoNotFoundError, ValueError):
-            first = int(np.flatnonzero((parts["zone"] == zone).to_numpy())[0])
-            return stripped, zones, first, f"its zone [{zone}] is no time zone of the IANA database"
+    read = {suffix: _read_suffix(suffix) for suffix in sorted(set(parts.loc[suffixed, "suffix"]))}
+    zones = sorted({label for label, _, _, _ in read.values()})
+    for suffix, (_, _, _, problem) in read.items():
+        if problem:
+            first = int(np.flatnonzero((parts["suffix"] == suffix).to_numpy())[0])
+            return stripped, zones, first, problem
     offsets = stripped.str.extract(_OFFSET)
     written = offsets["sign"].notna().to_numpy() & suffixed
     if not written.any():
@@ -93,20 +137,24 @@ def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
     if time_format.upper() != "ISO8601":
         instants = pd.to_datetime(stripped.where(written), format=time_format, utc=True,
                                   errors="coerce").fillna(instants)
-    for zone in zones:
-        at = written & (parts["zone"] == zone).to_numpy() & instants.notna().to_numpy()
+    for suffix, (label, zone, fixed, _) in read.items():
+        at = written & (parts["suffix"] == suffix).to_numpy() & instants.notna().to_numpy()
         if not at.any():
             continue
-        utc = instants[at]
-        local = utc.dt.tz_convert(ZoneInfo(zone)).dt.tz_localize(None)
-        own = ((local - utc.dt.tz_localize(None)) / pd.Timedelta("1min")).to_numpy()
+        if zone is None:                          # a fixed offset: the same at every instant
+            own = np.full(int(at.sum()), float(fixed))
+        else:
+            utc = instants[at]
+            local = utc.dt.tz_convert(ZoneInfo(zone)).dt.tz_localize(None)
+            own = ((local - utc.dt.tz_localize(None)) / pd.Timedelta("1min")).to_numpy()
         wrong = own != minutes[at]
         if wrong.any():
             first = int(np.flatnonzero(at)[np.flatnonzero(wrong)[0]])
             return stripped, zones, first, (
                 f"its offset {_shown(minutes[first])} is not that of its zone "
-                f"[{zone}] at that instant ({_shown(own[np.flatnonzero(wrong)[0]])}); "
-                f"{int(wrong.sum())} such stamp(s), so each states two times")
+                f"[{label}] at that instant ({_shown(own[np.flatnonzero(wrong)[0]])}); "
+                f"{int(wrong.sum())} such stamp(s), so each states two times; write each "
+                "stamp's offset as its zone has it, or leave the zone in brackets out")
     return stripped, zones, -1, ""
 
 

@@ -31,8 +31,9 @@ def test_leap_day_absent_is_named_only_in_a_leap_year():
     # years, 2100 and 2021 are not
     assert calendar.isleap(2020) and calendar.isleap(2000)
     assert not calendar.isleap(2100) and not calendar.isleap(2021)
-    text = missing_leap_day(_dropped_day(_records(2020), "2020-02-29"), 30.0, "stamp_end")
-    assert text is not None and "29 February 2020" in text and "'stamp_end'" in text
+    text = missing_leap_day(_dropped_day(_records(2020), "2020-02-29"), 30.0)
+    assert text is not None and "29 February 2020" in text
+    assert "Check the year of the file's stamps" in text      # no column it was not given
     assert "2019 or 2021" in text
     # rows kept with every value missing read the same (the reader's regular grid)
     blank = _records(2000)

@@ -676,7 +676,7 @@ tsoil = "Tboden"
         body = pd.DataFrame({
             "Date": idx.strftime("%Y/%m/%d"), "Time": idx.strftime("%H:%M"),
             "NEE": fmt(data.nee, 3, "-9999"), "Rs_down": fmt(data.rg, 1, "-9999"),
-            "Ta_K": fmt(data.tair + 273.15, 2, "-9999"), "VPD_kPa": fmt(data.vpd / 10, 4, "-9999"),
+            "t_air_K": fmt(data.tair + 273.15, 2, "-9999"), "VPD_kPa": fmt(data.vpd / 10, 4, "-9999"),
             "Ustar": fmt(data.ustar, 3, "-9999"), "Tsoil": fmt(data.tsoil, 2, "-9999")})
         text = "Mopani Flats hourly fluxes (FICTIONAL) v2\n" + body.to_csv(sep="\t", index=False)
         (folder / "mopani_hourly.txt").write_text(text)
@@ -689,7 +689,7 @@ time_marks = "start"
 missing = [-9999]
 """, """nee = "NEE"
 rg = "Rs_down"
-tair = "Ta_K"
+tair = "t_air_K"
 vpd = "VPD_kPa"
 ustar = "Ustar"
 tsoil = "Tsoil"

@@ -597,14 +597,14 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         end = idx + step
         frame = pd.DataFrame({
             "DateTime": end.strftime("%Y/%m/%d %H:%M"), "NEE": fmt(data.nee, 3, "-9999"),
-            "SWdown": fmt(data.rg, 1, "-9999"), "TA_K": fmt(data.tair + 273.15, 2, "-9999"),
+            "glob_rad": fmt(data.rg, 1, "-9999"), "t_air_K": fmt(data.tair + 273.15, 2, "-9999"),
             "VPD_kPa": fmt(data.vpd / 10, 3, "-9999"), "u_fric": fmt(data.ustar, 3, "-9999"),
             "TS_5cm": fmt(data.tsoil, 2, "-9999")})
         frame.to_csv(folder / "drywash_hourly.txt", sep="\t", index=False)
         text = toml(site, 'path = "drywash_hourly.txt"\ndelimiter = "\\t"\n'
                     'time_column = "DateTime"\ntime_format = "%Y/%m/%d %H:%M"\n'
                     'time_marks = "end"\nmissing = [-9999]\n',
-                    'nee = "NEE"\nrg = "SWdown"\ntair = "TA_K"\nvpd = "VPD_kPa"\n'
+                    'nee = "NEE"\nrg = "glob_rad"\ntair = "t_air_K"\nvpd = "VPD_kPa"\n'
                     'ustar = "u_fric"\ntsoil = "TS_5cm"\n', 'vpd = "kPa"\ntair = "K"\n',
                     processing)
     elif k == "B":  # compact start stamps, RH fraction, mg CO2

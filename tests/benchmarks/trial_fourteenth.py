@@ -584,18 +584,18 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
         last = end - pd.Timedelta(minutes=1)  # the day the interval belongs to
         hhmm = np.where((end.hour == 0) & (end.minute == 0), 2400, end.hour * 100 + end.minute)
         frame = pd.DataFrame({"Yr": last.year, "DOY": last.day_of_year, "HrMn": hhmm,
-                              "Fco2": fmt(data.nee, 3, "-9999"), "SWin": fmt(data.rg, 1, "-9999"),
+                              "Fco2": fmt(data.nee, 3, "-9999"), "glob_rad": fmt(data.rg, 1, "-9999"),
                               "t_air2": fmt(data.tair, 2, "-9999"), "RHa": fmt(data.rh, 1, "-9999"),
                               "Ustr": fmt(data.ustar, 3, "-9999"),
-                              "Ts5": fmt(data.tsoil, 2, "-9999")})
+                              "t_soil5": fmt(data.tsoil, 2, "-9999")})
         lines = [" ".join(f"{c:>8s}" for c in frame.columns)]
         lines += [" ".join(f"{str(v):>8s}" for v in row) for row in frame.itertuples(index=False)]
         (folder / "kaldvik_flux.dat").write_text("\n".join(lines) + "\n")
         text = toml(site, 'path = "kaldvik_flux.dat"\ndelimiter = "whitespace"\n'
                     'time_column = ["Yr", "DOY", "HrMn"]\ntime_format = "%Y %j %H%M"\n'
                     'time_marks = "end"\nmissing = [-9999]\n',
-                    'nee = "Fco2"\nrg = "SWin"\ntair = "t_air2"\nrh = "RHa"\nustar = "Ustr"\n'
-                    'tsoil = "Ts5"\n', processing=processing)
+                    'nee = "Fco2"\nrg = "glob_rad"\ntair = "t_air2"\nrh = "RHa"\nustar = "Ustr"\n'
+                    'tsoil = "t_soil5"\n', processing=processing)
     elif k == "D":  # semicolons, decimal commas, ISO end stamps, VPD in kPa
         end = idx + step
         frame = pd.DataFrame({

@@ -289,7 +289,7 @@ def write_files(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
         ratio = 1.95 + 0.25 * (1 - frame["trans"].to_numpy())
         out["PAR_in"] = np.where(dm, np.nan, frame["rg"] * ratio)
     else:
-        out["SWin"] = np.where(dm, np.nan, frame["rg"])
+        out["glob_rad"] = np.where(dm, np.nan, frame["rg"])
     t = frame["tair"].to_numpy() + (273.15 if s.t_unit == "K" else 0.0)
     out["T_air"] = np.where(dm, np.nan, t)
     if s.write_tsoil:
@@ -305,7 +305,7 @@ def write_files(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
 
     cols = {"nee": "FCO2_mg" if s.nee_unit == "mg" else "FCO2",
             ("ppfd" if s.radiation == "ppfd" else "rg"): "PAR_in" if s.radiation == "ppfd"
-            else "SWin",
+            else "glob_rad",
             "tair": "T_air", "ustar": "u_fric"}
     if s.write_tsoil:
         cols["tsoil"] = "T_soil10"

@@ -708,13 +708,13 @@ def write_site(s: SiteYear, frame: pd.DataFrame, folder: Path) -> Path:
     elif lay == "utc_iso_pa":
         t = _stamps(s, f.index, "end", "UTC")
         out = pd.DataFrame({"time_utc": t.strftime("%Y-%m-%dT%H:%M:%SZ"),
-                            "co2_flux": _num(f["nee"], 3), "swin": _num(f["rg"], 1),
+                            "co2_flux": _num(f["nee"], 3), "glob_rad": _num(f["rg"], 1),
                             "t_air": _num(f["tair"], 2), "vpd_pa": _num(f["vpd"] * 100, 1),
                             "us": _num(f["ustar"], 3), "t_soil": _num(f["tsoil"], 2)})
         out[keep].to_csv(folder / "flux_utc.csv", index=False, na_rep="")
         inp = dict(path="flux_utc.csv", time_column="time_utc", time_format="ISO8601",
                    time_marks="end", missing=[])
-        cols = dict(nee="co2_flux", rg="swin", tair="t_air", vpd="vpd_pa", ustar="us",
+        cols = dict(nee="co2_flux", rg="glob_rad", tair="t_air", vpd="vpd_pa", ustar="us",
                     tsoil="t_soil")
         extra_units = dict(vpd="Pa")
     elif lay in ("civil_dst_glob", "civil_dst_sydney"):

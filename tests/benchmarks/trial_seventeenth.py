@@ -664,7 +664,7 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
         frame = pd.DataFrame({
             "time_begin": idx.strftime("%Y-%m-%dT%H:%M:00+01:00"),
             "fco2": fmt(data.nee, 3, ""), "qc": data.flag.astype(int),
-            "swin": fmt(data.rg, 1, ""), "t_air": fmt(data.tair, 2, ""),
+            "glob_rad": fmt(data.rg, 1, ""), "t_air": fmt(data.tair, 2, ""),
             "vpd_pa": fmt(data.vpd * 100, 0, ""), "ustar": fmt(data.ustar, 3, ""),
             "ts5": fmt(data.tsoil, 2, ""), "wdir": fmt(data.direction, 0, "")})
         for (y, m), part in frame.groupby([idx.year, idx.month]):
@@ -673,7 +673,7 @@ def write_site(site: Site, data: pd.DataFrame, events, folder: Path, processing=
             part.to_csv(sub / f"edge_{y}_{m:02d}.csv", index=False)
         text = toml(site, 'path = "edge/**/*.csv"\ntime_column = "time_begin"\n'
                     'time_format = "ISO8601"\ntime_marks = "start"\nflag_accept = [0, 1]\n',
-                    'nee = "fco2"\nnee_flag = "qc"\nrg = "swin"\ntair = "t_air"\nvpd = "vpd_pa"\n'
+                    'nee = "fco2"\nnee_flag = "qc"\nrg = "glob_rad"\ntair = "t_air"\nvpd = "vpd_pa"\n'
                     'ustar = "ustar"\ntsoil = "ts5"\n', 'vpd = "Pa"\n', processing)
     elif k == "A":  # the raw kinematic file, and the user's converted file with year/DOY/hhmm
         raw_t = data.tair.to_numpy()

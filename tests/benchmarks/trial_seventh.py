@@ -637,8 +637,8 @@ def write_site(site: Site, data: pd.DataFrame, truth: pd.DataFrame, folder: Path
             body = pd.DataFrame({
                 "aika": part.index.strftime("%d.%m.%Y %H:%M"),
                 "NEE": fmt(part.nee, 3, "-9999"), "Rglob": fmt(part.rg, 1, "-9999"),
-                "Ta_K": fmt(part.tair + 273.15, 2, "-9999"), "RH": fmt(part.rh, 1, "-9999"),
-                "ustar": fmt(part.ustar, 3, "-9999"), "Ts10": fmt(part.tsoil, 2, "-9999"),
+                "t_air_K": fmt(part.tair + 273.15, 2, "-9999"), "RH": fmt(part.rh, 1, "-9999"),
+                "ustar": fmt(part.ustar, 3, "-9999"), "t_soil10": fmt(part.tsoil, 2, "-9999"),
             })
             body = body.apply(lambda c: c.str.replace(".", ",", regex=False)
                               if c.name != "aika" else c)
@@ -652,10 +652,10 @@ time_marks = "start"
 missing = [-9999]
 """, """nee = "NEE"
 rg = "Rglob"
-tair = "Ta_K"
+tair = "t_air_K"
 rh = "RH"
 ustar = "ustar"
-tsoil = "Ts10"
+tsoil = "t_soil10"
 """, 'tair = "K"\n')
     elif site.key == "B":  # whitespace, year / day of year / hhmm at the end, mg CO2
         stamps = idx + step
@@ -769,7 +769,7 @@ tsoil = "t_soil5"
             "Date": stamps.strftime("%d/%m/%Y"), "Time": stamps.strftime("%H:%M"),
             "NEE": fmt(nee_written, 3, "-99999"), "Rg": fmt(data.rg, 1, "-99999"),
             "Tair": fmt(data.tair, 2, "-99999"), "VPD_Pa": fmt(data.vpd * 100, 0, "-99999"),
-            "Ustar": fmt(data.ustar, 3, "-99999"), "Ts_30cm": fmt(data.tsoil, 2, "-99999"),
+            "Ustar": fmt(data.ustar, 3, "-99999"), "t_soil_30cm": fmt(data.tsoil, 2, "-99999"),
             "QC": flag.astype(str),
         })
         (folder / "te_awakiri.txt").write_bytes(
@@ -786,7 +786,7 @@ rg = "Rg"
 tair = "Tair"
 vpd = "VPD_Pa"
 ustar = "Ustar"
-tsoil = "Ts_30cm"
+tsoil = "t_soil_30cm"
 nee_flag = "QC"
 """, 'vpd = "Pa"\n')
     else:

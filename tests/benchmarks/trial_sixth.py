@@ -890,7 +890,7 @@ tsoil = "Soil_Temp"
             "date": stamps.strftime("%Y-%m-%d"), "time": stamps.strftime("%H:%M:%S"),
             "Fco2": fmt(data.nee, 3, "-7777"), "SWdn": fmt(data.rg, 1, "-7777"),
             "t_air2": fmt(data.tair, 2, "-7777"), "VPD": fmt(data.vpd, 2, "-7777"),
-            "ust": fmt(data.ustar, 3, "-7777"), "Ts10": fmt(data.tsoil, 2, "-7777"),
+            "ust": fmt(data.ustar, 3, "-7777"), "t_soil10": fmt(data.tsoil, 2, "-7777"),
         }
         lines = ["Lhari Kharka alpine meadow 4350 m a.s.l. -- FICTIONAL test data",
                  " ".join(cols), "yyyy-mm-dd hh:mm:ss umol/m2/s W/m2 C hPa m/s C"]
@@ -910,7 +910,7 @@ rg = "SWdn"
 tair = "t_air2"
 vpd = "VPD"
 ustar = "ust"
-tsoil = "Ts10"
+tsoil = "t_soil10"
 """)
     elif site.key == "E":  # two latin-1 files, units line, civil time UTC-3:30 with DST
         stamps = civil(idx + step, "America/St_Johns", site.utc_offset)

@@ -693,7 +693,7 @@ tsoil = "SedT"
                 "Zeit": part.index.strftime("%Y-%m-%dT%H:%M"),
                 "NEE": fmt(part.nee, 3, "-9999"), "Rg": fmt(part.rg, 1, "-9999"),
                 "t_air2": fmt(part.tair, 2, "-9999"), "RH": fmt(part.rh, 1, "-9999"),
-                "ustar": fmt(part.ustar, 3, "-9999"), "Ts10": fmt(part.tsoil, 2, "-9999"),
+                "ustar": fmt(part.ustar, 3, "-9999"), "t_soil10": fmt(part.tsoil, 2, "-9999"),
             })
             text = body.to_csv(sep=";", index=False)
             text = text.replace(".", ",")
@@ -710,7 +710,7 @@ rg = "Rg"
 tair = "t_air2"
 rh = "RH"
 ustar = "ustar"
-tsoil = "Ts10"
+tsoil = "t_soil10"
 """, processing=processing)
     elif site.key == "W":  # tab, title and units lines, Date + Time end stamps with 24:00
         stamps = idx + step
@@ -747,7 +747,7 @@ tsoil = "Tsoil"
     elif site.key == "A":  # UTC stamps with Z, kelvin
         stamps = (idx - pd.Timedelta(hours=site.utc_offset)).strftime("%Y-%m-%dT%H:%M:%SZ")
         body = pd.DataFrame({
-            "t_utc": stamps, "fco2": fmt(data.nee, 3, "-9999"), "swin": fmt(data.rg, 1, "-9999"),
+            "t_utc": stamps, "fco2": fmt(data.nee, 3, "-9999"), "glob_rad": fmt(data.rg, 1, "-9999"),
             "tak": fmt(data.tair + 273.15, 2, "-9999"), "vpd_hpa": fmt(data.vpd, 2, "-9999"),
             "ust": fmt(data.ustar, 3, "-9999"), "tsk": fmt(data.tsoil + 273.15, 2, "-9999"),
         })
@@ -758,7 +758,7 @@ time_format = "%Y-%m-%dT%H:%M:%SZ"
 time_marks = "start"
 missing = [-9999]
 """, """nee = "fco2"
-rg = "swin"
+rg = "glob_rad"
 tair = "tak"
 vpd = "vpd_hpa"
 ustar = "ust"
@@ -793,7 +793,7 @@ tsoil = "tsoil"
             "qc_fc": data.flag.astype(int).astype(str),
             "Rg": fmt(data.rg, 1, "-9999"), "t_air2": fmt(data.tair, 2, "-9999"),
             "VPD": fmt(data.vpd, 2, "-9999"), "ustar": fmt(data.ustar, 3, "-9999"),
-            "Ts5": fmt(data.tsoil, 2, "-9999"),
+            "t_soil5": fmt(data.tsoil, 2, "-9999"),
         })
         body.to_csv(folder / "kallioniemi.csv", index=False)
         text = toml_site(site, """path = "kallioniemi.csv"
@@ -809,7 +809,7 @@ rg = "Rg"
 tair = "t_air2"
 vpd = "VPD"
 ustar = "ustar"
-tsoil = "Ts5"
+tsoil = "t_soil5"
 """, processing=processing)
     else:
         raise ValueError(site.key)

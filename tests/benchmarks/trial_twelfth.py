@@ -719,9 +719,9 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing="", vari
     if site.key == "G":  # CSV, units line, end stamps, RH
         body = pd.DataFrame({
             "TimeEnd": (idx + step).strftime("%Y-%m-%d %H:%M"),
-            "Fco2": fmt(data.nee, 3, "-9999"), "SWin": fmt(data.rg, 1, "-9999"),
+            "Fco2": fmt(data.nee, 3, "-9999"), "glob_rad": fmt(data.rg, 1, "-9999"),
             "t_air2": fmt(data.tair, 2, "-9999"), "RH": fmt(data.rh, 1, "-9999"),
-            "ustar": fmt(data.ustar, 3, "-9999"), "Ts5": fmt(data.tsoil, 2, "-9999")})
+            "ustar": fmt(data.ustar, 3, "-9999"), "t_soil5": fmt(data.tsoil, 2, "-9999")})
         units = "local standard time,umol m-2 s-1,W m-2,degC,%,m s-1,degC"
         (folder / "brackenrigg.csv").write_text(
             ",".join(body.columns) + "\n" + units + "\n" + body.to_csv(index=False, header=False))
@@ -731,7 +731,7 @@ time_column = "TimeEnd"
 time_format = "%Y-%m-%d %H:%M"
 time_marks = "end"
 missing = [-9999]
-""", 'nee = "Fco2"\nrg = "SWin"\ntair = "t_air2"\nrh = "RH"\nustar = "ustar"\ntsoil = "Ts5"\n',
+""", 'nee = "Fco2"\nrg = "glob_rad"\ntair = "t_air2"\nrh = "RH"\nustar = "ustar"\ntsoil = "t_soil5"\n',
             processing=processing)
     elif site.key == "K":  # tab, title line, Date + Time end stamps with 24:00, mg CO2, kPa
         end = idx + step
