@@ -70,6 +70,7 @@ from .manifest import (
     undecodable_message,
     undecodable_paths,
 )
+from .renamed_tables import copy_of_table, renamed_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
@@ -1157,6 +1158,10 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             if path.exists():
                 detail = ("is listed in the manifest but is not a plain file (a folder, a "
                           "pipe or a device)")
+            kept = renamed_table(directory, file, entry.get("sha256"))
+            if kept:
+                detail += (f"; {kept!r} holds its recorded bytes (a backup never put back?): "
+                           f"rename it to {file}")
             other_case = name_in_other_case(directory, file)
             if other_case and not path.exists():
                 detail += (f"; {other_case!r} is there, its name in another case (copied by a "
@@ -1211,10 +1216,21 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                                           "is not listed in the manifest (the folder must hold "
                                           "exactly the files its manifest lists)"))
             continue
+        copied = copy_of_table(path, tables)
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
-                                      "exactly the files its manifest lists)"))
+                                      "exactly the files its manifest lists)"
+                                      + _copy_remedy(directory, copied)))
     return problems
+
+
+def _copy_remedy(directory: Path, copied: str | None) -> str:
+    """What to do with an unlisted file holding the bytes of the table `copied` (or "")."""
+    if not copied:
+        return ""
+    if (directory / copied).is_file():
+        return f"; it holds the same bytes as {copied} (a backup copy?): move it out of the folder"
+    return f"; it holds the recorded bytes of {copied}, which is missing: rename it so"
 
 
 def _report_leftover(path: Path) -> bool:
