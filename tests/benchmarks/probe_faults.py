@@ -107,6 +107,18 @@ itself, another result or a network folder; ``run --out`` a network folder and `
 .`` and ``report .`` inside a result; a site folder replaced by its copy and by another
 run's; two verify of one network at once.
 
+Round faults46 (faults named ``f46_*``): --out whose last name is 255 or 256 bytes
+(ASCII, three-byte letters) and 237; run --out the input file itself; --out inside the
+input's folder, run twice and the folder copied; the input deleted between check and run;
+manifest.json pretty-printed or minified by an editor; a table renamed ``.parquet.bak``
+and a backup copy beside a table; two verify of one result at once; verify as another
+user (setpriv) with TMPDIR writable and not; report as that user with MPLCONFIGDIR
+unwritable and HOME unset; run, report and export under tr_TR.UTF-8 (where the locale is
+installed); nice with 2 threads and far time zones (bytes); a batch of 0-byte configs
+and inputs; Ctrl-C to verify as its scratch appears; times rounded to 2 s; --out below a
+link loop; verify of a network with one site's input missing; diff of a zero annual part
+against a float residue.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
