@@ -186,6 +186,11 @@ def test_a_site_whose_input_is_missing_says_where_input_goes(network, tmp_path, 
         == "bit-identical"
     assert any(line.split()[:4] == ["alder", "could", "not", "be"] for line in printed)
     assert next(line for line in printed if line.startswith("not verified: 1 of 2 listed"))
+    assert main(["verify", str(root / network.name), "--json"]) == 2
+    found = json.loads(capsys.readouterr().out)
+    assert (found["verdict"], found["exit_code"]) == ("not verified", 2)
+    assert [(site["site"], site["verdict"]) for site in found["sites"]][:2] == [
+        ("birch", "bit-identical"), ("alder", "could not be verified")]
 
 
 def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(network,

@@ -4576,16 +4576,22 @@ def f45_batch_resumed_sites_changed():
            f"named {'s01' in said}: {[ln for ln in said.splitlines() if 's01' in ln][:1]!r:.140}")
 
 
+def _two_verifies(folder, scratch):
+    """Two ``verify --quiet FOLDER`` at once with TMPDIR `scratch`: their exit statuses
+    and what is left in `scratch`."""
+    env = dict(ENV, TMPDIR=str(scratch))
+    procs = [start("verify", "--quiet", folder, env=env) for _ in range(2)]
+    codes = [p.wait(timeout=600) for p in procs]
+    for p in procs:
+        p.communicate()
+    return codes, [p.name for p in scratch.iterdir()]
+
+
 def f45_two_verifies_of_a_network():
     """Two ``verify`` of one network folder at once (two auditors on a shared disk): both
     exit 0, their scratch folders gone, the folder unchanged."""
     out, scratch, before = _net45_with_scratch("two_verifies")
-    env = dict(ENV, TMPDIR=str(scratch))
-    procs = [start("verify", "--quiet", out, env=env) for _ in range(2)]
-    codes = [p.wait(timeout=600) for p in procs]
-    for p in procs:
-        p.communicate()
-    left = [p.name for p in scratch.iterdir()]
+    codes, left = _two_verifies(out, scratch)
     record("two verify of one network folder at once", codes == [0, 0] and not left
            and before == _tree_digests(out) and not leftovers(out),
            f"exits {codes}, left {left}")
@@ -4614,6 +4620,15 @@ def _readable_by_all(path):
     for part in [Path(path), *Path(path).parents]:
         if part.exists() and part.stat().st_uid == os.getuid():
             part.chmod(part.stat().st_mode | 0o055)
+
+
+def _folders_for_others(name):
+    """A folder `name` other users cannot write (root's, 0755) and ``tmp_open`` (1777)."""
+    locked, writable = W / name, W / "tmp_open"
+    for folder, mode in ((locked, 0o755), (writable, 0o1777)):
+        folder.mkdir(exist_ok=True)
+        folder.chmod(mode)
+    return locked, writable
 
 
 def _noise(done):
@@ -4751,12 +4766,7 @@ def f46_two_verifies_one_result():
     scratch = W / "tmp_two_ver46"
     shutil.rmtree(scratch, ignore_errors=True)
     scratch.mkdir()
-    env = dict(ENV, TMPDIR=str(scratch))
-    procs = [start("verify", "--quiet", folder, env=env) for _ in range(2)]
-    codes = [p.wait(timeout=300) for p in procs]
-    for p in procs:
-        p.communicate()
-    left = [p.name for p in scratch.iterdir()]
+    codes, left = _two_verifies(folder, scratch)
     record("two verify of one result folder at once", codes == [0, 0] and not left
            and table_digests(folder) == before and not leftovers(folder),
            f"exits {codes}, left {left}")
@@ -4772,12 +4782,7 @@ def f46_verify_as_other_user():
     for p in [folder, *folder.rglob("*")]:
         p.chmod(0o755 if p.is_dir() else 0o644)
     _readable_by_all(TREE)
-    locked = W / "tmp_locked"
-    locked.mkdir(exist_ok=True)
-    locked.chmod(0o755)
-    writable = W / "tmp_open"
-    writable.mkdir(exist_ok=True)
-    writable.chmod(0o1777)
+    locked, writable = _folders_for_others("tmp_locked")
     before = sorted(p.name for p in folder.iterdir())
     open_tmp = _as_user("verify", "--quiet", folder, env=dict(ENV, TMPDIR=str(writable)),
                         cwd=writable)
@@ -4806,12 +4811,7 @@ def f46_report_mpl_cache_unwritable():
     nobody = pwd.getpwnam("nobody")
     for p in [folder, *folder.rglob("*")]:
         os.chown(p, nobody.pw_uid, nobody.pw_gid)
-    locked = W / "mpl_locked"
-    locked.mkdir(exist_ok=True)
-    locked.chmod(0o755)
-    scratch = W / "tmp_open"
-    scratch.mkdir(exist_ok=True)
-    scratch.chmod(0o1777)
+    locked, scratch = _folders_for_others("mpl_locked")
     done = _as_user("report", "--quiet", folder, cwd=scratch,
                     env=dict(ENV, MPLCONFIGDIR=str(locked), TMPDIR=str(scratch)))
     if done is None:
