@@ -612,8 +612,11 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     protected = _write_protected(directory)
     if protected is not None:
         attribute = _locked_attribute(protected)
+        owner = _other_owner(protected)
         remedy = (f"clear its {attribute} attribute (lsattr -d shows it; chattr -R -i -a, "
-                  "which takes root)" if attribute else "make it writable (chmod -R u+w)")
+                  "which takes root)" if attribute else
+                  f"it belongs to {owner}, so only they can make it writable" if owner else
+                  "make it writable (chmod -R u+w)")
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
                 "purpose?); the new one would be swapped in while the old one could not be "
                 f"removed and would stay hidden beside it: {remedy}")
@@ -825,6 +828,26 @@ def _write_protected(directory: Path) -> Path | None:
         if not os.access(folder, os.W_OK | os.X_OK) or _locked_attribute(Path(folder)):
             return Path(folder)     # an append-only folder passes access(2) (faults36)
     return None
+
+
+def _other_owner(folder: Path) -> str | None:
+    """The user owning `folder` where it is not this process's (effective) user, named
+    (``user 'alice'``, or its number), else None; None where it cannot be asked.
+
+    An auditor running into a colleague's result was told "chmod -R u+w", which only the
+    owner may do (chmod(2): EPERM for another user's file) (round faults46).
+    """
+    try:
+        uid = folder.stat().st_uid
+        if not hasattr(os, "geteuid") or uid == os.geteuid():
+            return None
+        import pwd
+
+        return f"user {pwd.getpwuid(uid).pw_name!r}"
+    except KeyError:
+        return f"user number {uid}"
+    except (OSError, ImportError):
+        return None
 
 
 #: Linux inode flags (ioctl_iflags(2) (m)): ``FS_IOC_GETFLAGS`` and the two flags under

@@ -46,3 +46,23 @@ def test_a_table_kept_under_a_backup_name_is_named(copy):
     (out / "monthly.parquet.old").write_bytes(b"not the table")
     other = {p.file: p for p in check_folder(out, manifest)}["monthly.parquet.old"]
     assert "same bytes" not in other.detail and "recorded bytes" not in other.detail
+
+
+def test_a_result_of_another_user_names_its_owner_not_chmod(tmp_path):
+    """A result folder owned by a colleague, not writable by this user: run into it was
+    refused with "make it writable (chmod -R u+w)", which only the owner may do (chmod(2):
+    EPERM). The refusal now names the owner. Checked on the owner lookup (as root no mode
+    refuses a write, so the refusal itself is seen in probe_faults' f46_other_users_result)."""
+    import os
+
+    import pytest
+
+    from fluxpart.resultdir import _other_owner
+
+    assert _other_owner(tmp_path) is None
+    if os.geteuid() != 0:
+        pytest.skip("needs root to give a folder to another user")
+    theirs = tmp_path / "theirs"
+    theirs.mkdir()
+    os.chown(theirs, 65534, 65534)
+    assert _other_owner(theirs) in ("user 'nobody'", "user number 65534")

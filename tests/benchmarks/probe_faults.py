@@ -112,7 +112,8 @@ Round faults46 (faults named ``f46_*``): --out whose last name is 255 or 256 byt
 input's folder, run twice and the folder copied; the input deleted between check and run;
 manifest.json pretty-printed or minified by an editor; a table renamed ``.parquet.bak``
 and a backup copy beside a table; two verify of one result at once; verify as another
-user (setpriv) with TMPDIR writable and not; report as that user with MPLCONFIGDIR
+user (setpriv) with TMPDIR writable and not; run, report and export by that user into
+root's result; report as that user with MPLCONFIGDIR
 unwritable and HOME unset; run, report and export under tr_TR.UTF-8 (where the locale is
 installed); nice with 2 threads and far time zones (bytes); a batch of 0-byte configs
 and inputs; Ctrl-C to verify as its scratch appears; times rounded to 2 s; --out below a
@@ -4800,6 +4801,31 @@ def f46_verify_as_other_user():
            f"{shut.returncode} {_stderr_tail(shut, 130)}")
 
 
+def f46_other_users_result():
+    """Another user (nobody) given root's result folder: ``run --out`` it, ``report`` into
+    it, ``export --csv`` beside it: one line each, exit 2, the run's naming the owner (not
+    "chmod -R u+w", which only the owner may do); the result unchanged and verified."""
+    folder = fresh("theirs46")
+    _readable_by_all(folder)
+    for p in [folder, *folder.rglob("*")]:
+        p.chmod(0o755 if p.is_dir() else 0o644)
+    _readable_by_all(W / "b")
+    _, scratch = _folders_for_others("tmp_locked")
+    before = table_digests(folder)
+    steps = {"run": _as_user("run", W / "b" / "site.toml", "--out", folder, "--quiet",
+                             cwd=scratch),
+             "report": _as_user("report", "--quiet", folder, cwd=scratch),
+             "export": _as_user("export", "--csv", W / "theirs46_csv", folder, cwd=scratch)}
+    if steps["run"] is None:
+        record("another user's result", True, "unprobed: no setpriv")
+        return
+    record("run, report and export by another user into root's result folder",
+           all(one_line(d) for d in steps.values()) and "belongs to user" in
+           steps["run"].stderr and table_digests(folder) == before
+           and verify(folder).returncode == 0 and not leftovers(W),
+           "; ".join(f"{k} {d.returncode} {d.stderr.strip()[-70:]!r}" for k, d in steps.items()))
+
+
 def f46_report_mpl_cache_unwritable():
     """``report`` as another user whose HOME is unset and whose MPLCONFIGDIR is a folder
     it cannot write (matplotlib then makes a temporary cache and warns on stderr): the page
@@ -5076,7 +5102,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           # round faults46
           f46_long_final_name, f46_out_is_the_input_file, f46_out_inside_input_folder,
           f46_input_deleted_after_check, f46_manifest_pretty_printed, f46_table_renamed_bak,
-          f46_two_verifies_one_result, f46_verify_as_other_user,
+          f46_two_verifies_one_result, f46_verify_as_other_user, f46_other_users_result,
           f46_report_mpl_cache_unwritable, f46_turkish_locale,
           f46_nice_two_threads_far_zone, f46_batch_zero_byte_files, f46_sigint_verify,
           f46_mtimes_rounded, f46_out_below_link_loop, f46_network_site_input_missing,
