@@ -165,6 +165,12 @@ def read_toml(path, what: str) -> dict:
     except OSError as error:
         raise InputFileError(f"{what} {str(path)!r} cannot be read: "
                              f"{error.strerror or error}") from None
+    if not data:
+        # a file cut to nothing (a copy or sync that failed, an editor's save interrupted)
+        # was "has no [site] table", which sent the reader looking for a typo (faults46)
+        raise InputFileError(f"{what} {str(path)!r} is empty (0 bytes: a copy or sync cut "
+                             "short, or a save that did not finish?); restore it from where "
+                             "it came")
     try:
         # TOML is UTF-8; a byte-order mark (as some Windows editors write) is dropped
         text = data.decode("utf-8-sig")

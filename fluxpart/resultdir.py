@@ -70,6 +70,7 @@ from .manifest import (
     undecodable_message,
     undecodable_paths,
 )
+from .renamed_tables import copy_of_table, renamed_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
@@ -611,8 +612,11 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     protected = _write_protected(directory)
     if protected is not None:
         attribute = _locked_attribute(protected)
+        owner = _other_owner(protected)
         remedy = (f"clear its {attribute} attribute (lsattr -d shows it; chattr -R -i -a, "
-                  "which takes root)" if attribute else "make it writable (chmod -R u+w)")
+                  "which takes root)" if attribute else
+                  f"it belongs to {owner}, so only they can make it writable" if owner else
+                  "make it writable (chmod -R u+w)")
         return (f"is write-protected ({str(protected)!r} cannot be changed: kept read-only on "
                 "purpose?); the new one would be swapped in while the old one could not be "
                 f"removed and would stay hidden beside it: {remedy}")
@@ -824,6 +828,26 @@ def _write_protected(directory: Path) -> Path | None:
         if not os.access(folder, os.W_OK | os.X_OK) or _locked_attribute(Path(folder)):
             return Path(folder)     # an append-only folder passes access(2) (faults36)
     return None
+
+
+def _other_owner(folder: Path) -> str | None:
+    """The user owning `folder` where it is not this process's (effective) user, named
+    (``user 'alice'``, or its number), else None; None where it cannot be asked.
+
+    An auditor running into a colleague's result was told "chmod -R u+w", which only the
+    owner may do (chmod(2): EPERM for another user's file) (round faults46).
+    """
+    try:
+        uid = folder.stat().st_uid
+        if not hasattr(os, "geteuid") or uid == os.geteuid():
+            return None
+        import pwd
+
+        return f"user {pwd.getpwuid(uid).pw_name!r}"
+    except KeyError:
+        return f"user number {uid}"
+    except (OSError, ImportError):
+        return None
 
 
 #: Linux inode flags (ioctl_iflags(2) (m)): ``FS_IOC_GETFLAGS`` and the two flags under
@@ -1157,6 +1181,10 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
             if path.exists():
                 detail = ("is listed in the manifest but is not a plain file (a folder, a "
                           "pipe or a device)")
+            kept = renamed_table(directory, file, entry.get("sha256"))
+            if kept:
+                detail += (f"; {kept!r} holds its recorded bytes (a backup never put back?): "
+                           f"rename it to {file}")
             other_case = name_in_other_case(directory, file)
             if other_case and not path.exists():
                 detail += (f"; {other_case!r} is there, its name in another case (copied by a "
@@ -1211,10 +1239,21 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
                                           "is not listed in the manifest (the folder must hold "
                                           "exactly the files its manifest lists)"))
             continue
+        copied = copy_of_table(path, tables)
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
-                                      "exactly the files its manifest lists)"))
+                                      "exactly the files its manifest lists)"
+                                      + _copy_remedy(directory, copied)))
     return problems
+
+
+def _copy_remedy(directory: Path, copied: str | None) -> str:
+    """What to do with an unlisted file holding the bytes of the table `copied` (or "")."""
+    if not copied:
+        return ""
+    if (directory / copied).is_file():
+        return f"; it holds the same bytes as {copied} (a backup copy?): move it out of the folder"
+    return f"; it holds the recorded bytes of {copied}, which is missing: rename it so"
 
 
 def _report_leftover(path: Path) -> bool:

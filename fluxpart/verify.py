@@ -808,7 +808,8 @@ def _is_float(series: pd.Series) -> bool:
     return pd.api.types.is_float_dtype(series.dtype)
 
 
-def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame) -> np.ndarray:
+def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame,
+                    row_scale=None) -> np.ndarray:
     """Rows where a float column of two tables of equal index differs, but only within
     :data:`ROUNDING_TOLERANCE`, judged as :func:`compare_tables` judges it (relative to
     the larger value, a near-zero value to :data:`NEAR_ZERO_SHARE` of the column, a
@@ -820,6 +821,11 @@ def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame) -> np.nda
         A column both tables hold.
     first, second : pandas.DataFrame
         Two tables of the same index (rows in the same order).
+    row_scale : numpy.ndarray, optional
+        Per row, the magnitude of the values the column's value is computed beside (in
+        its unit): a near-zero value is then judged relative to :data:`NEAR_ZERO_SHARE`
+        of it as well as of the column (a table of one row has no column scale to speak
+        of; ``diff``'s annual values, round faults46).
 
     Returns
     -------
@@ -835,7 +841,11 @@ def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame) -> np.nda
     left, right = first[column], second[column]
     if not (_is_float(left) and _is_float(right)):
         return np.zeros(len(left), dtype=bool)
-    differs, beyond, _ = _float_column(left, right, _operand_scale(column, first, second))
+    scale = _operand_scale(column, first, second)
+    if row_scale is not None:
+        floor = NEAR_ZERO_SHARE * np.nan_to_num(np.asarray(row_scale, dtype=np.float64))
+        scale = floor if scale is None else np.maximum(scale, floor)
+    differs, beyond, _ = _float_column(left, right, scale)
     return differs & ~beyond
 
 

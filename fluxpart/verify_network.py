@@ -11,6 +11,9 @@ by itself (the batch's own exit status and its failures table already say it fai
 A complete seal that does not hold (a network file or a site's manifest not as sealed)
 fails the verdict, as a tampered result folder fails its own, and the sites are still
 verified; a seal damaged or left incomplete lists no site to walk and is an error.
+A site that cannot be verified (its input at no recorded place, a folder it cannot read)
+does not stop the walk: every other site is still verified and reported, and the command
+ends in one ``error:`` line naming each such site (exit 2, round faults46).
 """
 
 from __future__ import annotations
@@ -31,6 +34,8 @@ __all__ = ["NetworkReport", "is_network_folder", "verify_network"]
 NETWORK_JSON_FORMAT = "fluxpart-verify-network/1"
 #: A failed site's verdict: the batch wrote no result for it.
 NOT_COMPUTED = "not computed by the batch"
+#: The verdict of a site whose verification ended in an error (named beside it).
+NOT_VERIFIED = "could not be verified"
 
 
 def is_network_folder(directory) -> bool:
@@ -54,25 +59,34 @@ class NetworkReport:
     seal_problem : str
         Why the network files or a site's manifest do not match ``network.json`` (as
         :func:`fluxpart.network_tables.read_network` refuses them), or "" where they match.
+    unverified : tuple of (str, str)
+        Each listed site whose verification ended in an error, with the error (its
+        remedy included): nothing was judged for it.
     """
 
     directory: Path
     sites: tuple
     failed: tuple
     seal_problem: str = ""
+    unverified: tuple = ()
 
     @property
     def exit_code(self) -> int:
         """0 when the seal holds and every computed site is reproduced (as verify's
         rules allow), else 1; 1 also where no site was computed (every site failed):
-        nothing was reproduced (lead52)."""
+        nothing was reproduced (lead52); 2 where a site could not be verified (an error
+        to mend, as for one result folder)."""
+        if self.unverified:
+            return 2
         return max((int(bool(self.seal_problem)), int(not self.sites),
                     *(report.exit_code for _, report in self.sites)))
 
     @property
     def verdict(self) -> str:
         """``"reproduced"``, ``"not reproduced"`` (some site) or ``"nothing reproduced"``
-        (no site computed)."""
+        (no site computed); ``"not verified"`` where a site could not be verified."""
+        if self.unverified:
+            return "not verified"
         if not self.sites:
             return "nothing reproduced"
         return "reproduced" if self.exit_code == 0 else "not reproduced"
@@ -85,7 +99,8 @@ class NetworkReport:
         A site's verdict alone left an auditor without the input bytes, seed and release
         of each site and, for a site not reproduced, without what differed (auditor53).
         """
-        width = max((len(key) for key, _ in (*self.sites, *self.failed)), default=0)
+        width = max((len(key) for key, _ in (*self.sites, *self.failed, *self.unverified)),
+                    default=0)
         seal = (f"seal NOT intact: {self.seal_problem}" if self.seal_problem else
                 f"seal intact ({NETWORK_SEAL}: every network file and site folder as the "
                 "batch wrote them)")
@@ -103,10 +118,19 @@ class NetworkReport:
                 lines.append(f"    (fluxpart verify {shown_path(report.directory)} gives "
                              "this site's whole report)")
             lines += [f"    {line}" for line in own if line.startswith("result: ")]
+        for key, error in self.unverified:
+            lines.append(f"  {key:<{width}}  {NOT_VERIFIED}: {error}")
         for key, error in self.failed:
             lines.append(f"  {key:<{width}}  {NOT_COMPUTED} ({error.split(':', 1)[0]}; "
                          "in failures.parquet)")
         bad = [key for key, report in self.sites if report.exit_code]
+        if self.unverified:
+            lines.append(f"not verified: {len(self.unverified)} of "
+                         f"{len(self.sites) + len(self.unverified)} listed site(s) "
+                         f"{NOT_VERIFIED} ({', '.join(k for k, _ in self.unverified)}); "
+                         f"{len(self.sites) - len(bad)} reproduced, {len(bad)} not")
+            lines.append(f"Caution: {VERIFY_CAUTION}")
+            return lines
         lines.append(
             f"{self.verdict}: " + ("the network seal does not hold; " if self.seal_problem
                                    else "") + (f"{len(bad)} of {len(self.sites)} site(s) not reproduced: "
@@ -123,6 +147,8 @@ class NetworkReport:
         its ``site`` key, or for a failed site ``verdict`` :data:`NOT_COMPUTED` and its
         ``error``), ``verdict``, ``exit_code``, ``caution``; keys sorted, ASCII."""
         sites = [{"site": key, **json.loads(report.as_json())} for key, report in self.sites]
+        sites += [{"site": key, "verdict": NOT_VERIFIED, "error": error, "exit_code": 2}
+                  for key, error in self.unverified]
         sites += [{"site": key, "verdict": NOT_COMPUTED, "error": error, "exit_code": 0}
                   for key, error in self.failed]
         return json.dumps({"format": NETWORK_JSON_FORMAT, "site_format": JSON_FORMAT,
@@ -171,8 +197,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
         If a site folder the seal lists is missing (named), or the seal is no complete
         one (damaged, or written incomplete by a stopped batch). Network files or site
         manifests that do not match a complete seal are the report's `seal_problem`.
-    FluxpartError
-        A site's verify error, prefixed with its key.
+
+    A site's verify error (its input not found, say) is the report's `unverified` entry
+    for that site, and the walk goes on with the next.
 
     References
     ----------
@@ -200,8 +227,8 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             # remedy (run the batch again) would overwrite what an auditor must see
             seal_problem = str(error).split("; run the batch again", 1)[0]
             break
-    reports = []
-    for index, (key, folder) in enumerate(listed):
+    reports, unverified = [], []
+    for key, folder in listed:
         try:
             reports.append((key, verify(folder, exact=exact)))
         except FluxpartError as error:
@@ -212,13 +239,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             where = (f" (a batch output folder takes no {option}: give it with the site's "
                      f"own folder, fluxpart verify {shown_path(folder)} {option} FILE)"
                      if option else "")
-            # the error stops the walk: the sites after it are not verified, which the
-            # line did not say (an auditor fixed one site's input, reran, met the next)
-            later = [name for name, _ in listed[index + 1:]]
-            stopped = (f"; verify stopped at this site, {len(later)} listed after it not "
-                       f"verified ({', '.join(later)})" if later else "")
-            error.args = (f"site {key!r}: {error}{where}{stopped}",)
-            raise
+            # the walk goes on: stopping here left every later site unverified, and an
+            # auditor who mended one site's input met the next at each rerun (faults46)
+            unverified.append((key, f"{str(error).removeprefix('verify: ')}{where}"))
     try:
         recorded_failures = failed_sites(out)
     except FluxpartError:
@@ -230,7 +253,7 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     failed = tuple((key, error) for key, error in recorded_failures.items()
                    if key not in dict(listed))
     return NetworkReport(directory=out, sites=tuple(reports), failed=failed,
-                         seal_problem=seal_problem)
+                         seal_problem=seal_problem, unverified=tuple(unverified))
 
 
 def command_verify_network(args) -> int:
@@ -244,5 +267,11 @@ def command_verify_network(args) -> int:
     report = verify_network(args.directory, exact=bool(getattr(args, "exact", False)))
     print(report.as_json() if getattr(args, "json", False) else
           "\n".join(report.lines(quiet=bool(getattr(args, "quiet", False)))))
+    if report.unverified:
+        # the report above holds every site judged; the error line names what to mend
+        raise FluxpartError(f"verify: {len(report.unverified)} site(s) of "
+                            f"{str(report.directory)!r} could not be verified: "
+                            + "; ".join(f"site {key!r}: {error}"
+                                        for key, error in report.unverified))
     return report.exit_code
 

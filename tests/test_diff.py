@@ -240,6 +240,37 @@ def test_float_noise_reads_equal_within_rounding_not_as_a_move():
     assert "equal within rounding" in text and "1 (2023 gpp_daytime_ustar_spread)" in text
 
 
+def test_a_zero_part_against_its_float_residue_is_no_move():
+    """faults46 (left by auditor53): a part that is zero in one folder and a float residue
+    (9.46e-23 g C m-2) in the other was listed as a move of -100 %, because a year is one
+    row and verify's near-zero rule (a value judged against 1e-3 of its column's largest
+    magnitude) had no column. The year's largest magnitude in the same unit stands in: a
+    float64 sum of values of magnitude M rounds at about 2.2e-16 M (IEEE 754 binary64
+    machine epsilon; Higham 2002, section 1.7 (m)), so 9.46e-23 beside GPP 1419 is
+    rounding, while 0.5 g C m-2 of the same part and a 1e-5 relative move of Reco stay
+    moves, and a value of another unit gets no such floor."""
+    import pandas as pd
+
+    from fluxpart.diff import _annual_moves
+
+    year = pd.Index([2021], name="year")
+    first = pd.DataFrame({"gpp_nighttime": [1419.4], "reco_nighttime": [1178.8],
+                          "reco_uncertainty_temperature_driver": [0.0],
+                          "reco_uncertainty_respiration_form": [0.0],
+                          "ustar_threshold": [0.0]}, index=year)
+    first.attrs["units"] = {**dict.fromkeys(list(first.columns)[:4], "g C m-2"),
+                            "ustar_threshold": "m s-1"}
+    second = first.assign(reco_uncertainty_temperature_driver=9.46e-23,
+                          reco_uncertainty_respiration_form=0.5,
+                          reco_nighttime=1178.8 * (1 + 1e-5), ustar_threshold=1e-9)
+    second.attrs = dict(first.attrs)
+    moves, same, rounding = _annual_moves(first, second)
+    assert rounding == [(2021, "reco_uncertainty_temperature_driver")]
+    assert sorted(column for _, column in moves.index) == [
+        "reco_nighttime", "reco_uncertainty_respiration_form", "ustar_threshold"]
+    assert same == 1
+
+
 def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsys):
     """Behaviour check (review63, a modeller's diff of a changed setting): the moves table
     put -0.27 of NEE (g C m-2), 0.012 of the u* threshold (m s-1) and -0.009 of a share

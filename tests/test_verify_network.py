@@ -175,12 +175,22 @@ def test_a_site_whose_input_is_missing_says_where_input_goes(network, tmp_path, 
     log.write_text(json.dumps(record))
     assert main(["verify", str(root / network.name)]) == 2
     captured = capsys.readouterr()
-    assert captured.out == "" and len(captured.err.splitlines()) == 1
-    assert captured.err.startswith("error: site 'alder': verify: the input file")
+    assert len(captured.err.splitlines()) == 1
+    assert captured.err.startswith("error: verify: 1 site(s) of ")
+    assert "could not be verified: site 'alder': the input file" in captured.err
     assert f"fluxpart verify {root / network.name / 'alder'} --input FILE" in captured.err
-    # review71: the walk stops here; the line now says which sites it left unverified
-    assert captured.err.rstrip().endswith("verify stopped at this site, 1 listed after it "
-                                          "not verified (birch)")
+    # faults46: the walk no longer stops at alder (review71 named birch as left unverified):
+    # birch is verified and reported, alder named as not verified, the verdict says so
+    printed = captured.out.splitlines()
+    assert next(line for line in printed if line.split()[0] == "birch").split()[1] \
+        == "bit-identical"
+    assert any(line.split()[:4] == ["alder", "could", "not", "be"] for line in printed)
+    assert next(line for line in printed if line.startswith("not verified: 1 of 2 listed"))
+    assert main(["verify", str(root / network.name), "--json"]) == 2
+    found = json.loads(capsys.readouterr().out)
+    assert (found["verdict"], found["exit_code"]) == ("not verified", 2)
+    assert [(site["site"], site["verdict"]) for site in found["sites"]][:2] == [
+        ("birch", "bit-identical"), ("alder", "could not be verified")]
 
 
 def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(network,

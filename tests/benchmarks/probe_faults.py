@@ -107,6 +107,19 @@ itself, another result or a network folder; ``run --out`` a network folder and `
 .`` and ``report .`` inside a result; a site folder replaced by its copy and by another
 run's; two verify of one network at once.
 
+Round faults46 (faults named ``f46_*``): --out whose last name is 255 or 256 bytes
+(ASCII, three-byte letters) and 237; run --out the input file itself; --out inside the
+input's folder, run twice and the folder copied; the input deleted between check and run;
+manifest.json pretty-printed or minified by an editor; a table renamed ``.parquet.bak``
+and a backup copy beside a table; two verify of one result at once; verify as another
+user (setpriv) with TMPDIR writable and not; run, report and export by that user into
+root's result; report as that user with MPLCONFIGDIR
+unwritable and HOME unset; run, report and export under tr_TR.UTF-8 (where the locale is
+installed); nice with 2 threads and far time zones (bytes); a batch of 0-byte configs
+and inputs; Ctrl-C to verify as its scratch appears; times rounded to 2 s; --out below a
+link loop; verify of a network with one site's input missing; diff of a zero annual part
+against a float residue.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -4564,19 +4577,457 @@ def f45_batch_resumed_sites_changed():
            f"named {'s01' in said}: {[ln for ln in said.splitlines() if 's01' in ln][:1]!r:.140}")
 
 
+def _two_verifies(folder, scratch):
+    """Two ``verify --quiet FOLDER`` at once with TMPDIR `scratch`: their exit statuses
+    and what is left in `scratch`."""
+    env = dict(ENV, TMPDIR=str(scratch))
+    procs = [start("verify", "--quiet", folder, env=env) for _ in range(2)]
+    codes = [p.wait(timeout=600) for p in procs]
+    for p in procs:
+        p.communicate()
+    return codes, [p.name for p in scratch.iterdir()]
+
+
 def f45_two_verifies_of_a_network():
     """Two ``verify`` of one network folder at once (two auditors on a shared disk): both
     exit 0, their scratch folders gone, the folder unchanged."""
     out, scratch, before = _net45_with_scratch("two_verifies")
-    env = dict(ENV, TMPDIR=str(scratch))
-    procs = [start("verify", "--quiet", out, env=env) for _ in range(2)]
-    codes = [p.wait(timeout=600) for p in procs]
-    for p in procs:
-        p.communicate()
-    left = [p.name for p in scratch.iterdir()]
+    codes, left = _two_verifies(out, scratch)
     record("two verify of one network folder at once", codes == [0, 0] and not left
            and before == _tree_digests(out) and not leftovers(out),
            f"exits {codes}, left {left}")
+
+
+# ---------------------------------------------------------------- round faults46
+def _as_user(*args, user="nobody", env=None, cwd=None, timeout=300):
+    """``fluxpart ARGS`` run as another user (setpriv(1): no write access to root's
+    folders), HOME unset; None where setpriv is not there or refused."""
+    setpriv = shutil.which("setpriv")
+    if setpriv is None:
+        return None
+    import pwd
+    entry = pwd.getpwnam(user)
+    base = {k: v for k, v in (env or ENV).items() if k not in ("HOME", "XDG_CACHE_HOME",
+                                                                 "XDG_CONFIG_HOME")}
+    return subprocess.run([setpriv, f"--reuid={entry.pw_uid}", f"--regid={entry.pw_gid}",
+                           "--clear-groups", PY, "-m", "fluxpart", *map(str, args)],
+                          env=base, cwd=cwd or W / "b", capture_output=True, text=True,
+                          timeout=timeout, errors="backslashreplace")
+
+
+def _readable_by_all(path):
+    """Make `path` and its parents searchable by every user (a scratch folder of
+    :func:`tempfile.mkdtemp` is 0700)."""
+    for part in [Path(path), *Path(path).parents]:
+        if part.exists() and part.stat().st_uid == os.getuid():
+            part.chmod(part.stat().st_mode | 0o055)
+
+
+def _folders_for_others(name):
+    """A folder `name` other users cannot write (root's, 0755) and ``tmp_open`` (1777)."""
+    locked, writable = W / name, W / "tmp_open"
+    for folder, mode in ((locked, 0o755), (writable, 0o1777)):
+        folder.mkdir(exist_ok=True)
+        folder.chmod(mode)
+    return locked, writable
+
+
+def _noise(done):
+    return [line for line in done.stderr.splitlines() if not line.startswith("warning:")]
+
+
+def f46_long_final_name():
+    """``--out`` whose last name is 255 bytes (NAME_MAX, limits.h (m)) in ASCII and in 85
+    three-byte letters, and 256: refused in one line naming the limit that leaves room
+    for the staging and retired names beside it, nothing made; a name at that limit (ASCII
+    and 3-byte letters): run, verify, report, export and a byte-identical rerun."""
+    parent = W / "longname"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    seen, held = [], True
+    for label, name in (("255 ASCII bytes", "r" * 255), ("85 letters of 3 bytes", "結" * 85),
+                        ("256 bytes", "r" * 256)):
+        done = fp("run", "site.toml", "--out", parent / name, "--quiet")
+        # Path.exists() raises ENAMETOOLONG for a name past NAME_MAX: list the parent
+        held = held and one_line(done) and name not in os.listdir(parent)
+        seen.append(f"{label}: {done.returncode} {_stderr_tail(done, 60)}")
+    for label, name in (("237 ASCII bytes", "r" * 237), ("79 letters of 3 bytes", "結" * 79)):
+        out = parent / name
+        steps = [fp("run", "site.toml", "--out", out, "--quiet"), verify(out),
+                 fp("report", "--quiet", out), fp("export", "--csv", parent / "csv", out),
+                 fp("run", "site.toml", "--out", out, "--quiet")]
+        shutil.rmtree(parent / "csv", ignore_errors=True)
+        held = held and all(s.returncode == 0 for s in steps) and \
+            table_digests(out) == table_digests(W / "r0") and not leftovers(out)
+        seen.append(f"{label}: exits {[s.returncode for s in steps]}")
+    record("--out whose last name is 255 or 256 bytes (refused) and 237 (written)",
+           held and not leftovers(parent), "; ".join(seen) + f"; left {leftovers(parent)}")
+
+
+def f46_out_is_the_input_file():
+    """``run --out tower.csv`` (the input itself, an existing file; a slip of the
+    completion key): one line naming --out, exit 2, the input byte for byte as it was."""
+    bundle = _bundle("out_input")
+    before = (bundle / "tower.csv").read_bytes()
+    done = fp("run", "site.toml", "--out", "tower.csv", "--quiet", cwd=bundle)
+    record("run --out the input file itself", one_line(done) and "--out" in done.stderr
+           and (bundle / "tower.csv").read_bytes() == before and not leftovers(bundle),
+           f"exit {done.returncode}, {_stderr_tail(done, 140)}")
+
+
+def f46_out_inside_input_folder():
+    """``--out results`` inside the input's folder (results kept beside the data), twice:
+    the rerun reads the same input (the result not taken for input), both byte-identical
+    to the reference result, verify passes, a copy of the whole folder verified too."""
+    bundle = _bundle("out_beside")
+    runs = [fp("run", "site.toml", "--out", "results", "--quiet", cwd=bundle)
+            for _ in range(2)]
+    out = bundle / "results"
+    copy = W / "out_beside_copy"
+    shutil.rmtree(copy, ignore_errors=True)
+    shutil.copytree(bundle, copy)
+    checks = [verify(out).returncode, verify(copy / "results").returncode]
+    record("--out inside the input's folder, run twice, folder copied",
+           [r.returncode for r in runs] == [0, 0] and checks == [0, 0]
+           and table_digests(out) == table_digests(W / "r0") and not leftovers(bundle),
+           f"runs {[r.returncode for r in runs]}, verify {checks}, same "
+           f"{table_digests(out) == table_digests(W / 'r0')}")
+
+
+def f46_input_deleted_after_check():
+    """``check`` passes, the input is deleted (a cleanup job), then ``run`` into a new
+    folder and into an existing result: one line naming the input, exit 2; no new folder,
+    the existing result verified unchanged."""
+    bundle = _bundle("chk_gone")
+    first = fp("check", "site.toml", cwd=bundle)
+    (bundle / "tower.csv").unlink()
+    new = W / "chk_gone_new"
+    shutil.rmtree(new, ignore_errors=True)
+    old = fresh("chk_gone_old")
+    before = table_digests(old)
+    runs = [fp("run", "site.toml", "--out", target, "--quiet", cwd=bundle)
+            for target in (new, old)]
+    record("the input deleted between check and run (new folder, existing result)",
+           first.returncode in (0, 1) and all(one_line(r) and "tower.csv" in r.stderr
+                                              for r in runs)
+           and not new.exists() and table_digests(old) == before
+           and verify(old).returncode == 0 and not leftovers(W),
+           f"check {first.returncode}; runs {[r.returncode for r in runs]} "
+           f"{_stderr_tail(runs[0], 110)}")
+
+
+def f46_manifest_pretty_printed():
+    """manifest.json opened in an editor and saved pretty-printed again (4-space indent,
+    keys sorted, non-ASCII escaped, no final newline; and minified): the same content in
+    other whitespace. verify and report pass, the seal holds."""
+    import json
+    seen, held = [], True
+    for label, dump in (("4-space indent, sorted, escaped",
+                         lambda m: json.dumps(m, indent=4, sort_keys=True, ensure_ascii=True)),
+                        ("minified", lambda m: json.dumps(m, separators=(",", ":"),
+                                                          ensure_ascii=False))):
+        folder = fresh(f"pretty_{label.split()[0].replace('-', '')}")
+        path = folder / "manifest.json"
+        path.write_text(dump(json.loads(path.read_text(encoding="utf-8"))), encoding="utf-8")
+        ver, rep = verify(folder), fp("report", "--quiet", folder)
+        held = held and ver.returncode == 0 and rep.returncode == 0
+        seen.append(f"{label}: verify {ver.returncode} {ver.stdout.strip()[:70]!r}, report "
+                    f"{rep.returncode}")
+    record("manifest.json re-saved pretty-printed or minified", held, "; ".join(seen))
+
+
+def f46_table_renamed_bak():
+    """A table renamed ``annual.parquet.bak`` (a user's backup before an edit, never put
+    back), and a ``.bak`` copy left beside an intact table: verify exit 1 and report one
+    line each (the folder holds other files than its manifest lists), naming the file
+    that holds the table's recorded bytes and whether to rename it or move it out."""
+    moved = fresh("bak_moved")
+    (moved / "annual.parquet").rename(moved / "annual.parquet.bak")
+    beside = fresh("bak_beside")
+    shutil.copy2(beside / "daily.parquet", beside / "daily.parquet.bak")
+    ver_moved, rep_moved = verify(moved), fp("report", "--quiet", moved)
+    ver_beside, rep_beside = verify(beside), fp("report", "--quiet", beside)
+    # the folder must hold exactly the files its manifest lists (a design rule kept):
+    # both fail, and the words say which file holds the recorded bytes and what to do
+    record("a table renamed .parquet.bak; a .bak copy beside an intact table",
+           ver_moved.returncode == 1 and "rename it to annual.parquet" in ver_moved.stdout
+           and one_line(rep_moved) and "rename it to annual.parquet" in rep_moved.stderr
+           and ver_beside.returncode == 1 and "same bytes as daily.parquet" in ver_beside.stdout
+           and one_line(rep_beside),
+           f"renamed: verify {ver_moved.returncode} {ver_moved.stdout.strip()[:80]!r}, report "
+           f"{rep_moved.returncode} {_stderr_tail(rep_moved, 70)}; beside: verify "
+           f"{ver_beside.returncode}, report {rep_beside.returncode}")
+
+
+def f46_two_verifies_one_result():
+    """Two ``verify`` of one result folder at once, one TMPDIR (two auditors on a shared
+    disk): both exit 0, no scratch left, the folder unchanged."""
+    folder = fresh("two_ver46")
+    before = table_digests(folder)
+    scratch = W / "tmp_two_ver46"
+    shutil.rmtree(scratch, ignore_errors=True)
+    scratch.mkdir()
+    codes, left = _two_verifies(folder, scratch)
+    record("two verify of one result folder at once", codes == [0, 0] and not left
+           and table_digests(folder) == before and not leftovers(folder),
+           f"exits {codes}, left {left}")
+
+
+def f46_verify_as_other_user():
+    """An auditor verifying as another user (nobody): no write access to the result folder
+    and HOME unset; with TMPDIR writable, then TMPDIR a folder it cannot write: verify
+    exits 0, or one line naming the temporary folder and TMPDIR (exit 2); nothing written
+    in the result either way."""
+    folder = fresh("other_user")
+    _readable_by_all(folder)
+    for p in [folder, *folder.rglob("*")]:
+        p.chmod(0o755 if p.is_dir() else 0o644)
+    _readable_by_all(TREE)
+    locked, writable = _folders_for_others("tmp_locked")
+    before = sorted(p.name for p in folder.iterdir())
+    open_tmp = _as_user("verify", "--quiet", folder, env=dict(ENV, TMPDIR=str(writable)),
+                        cwd=writable)
+    if open_tmp is None:
+        record("verify as another user", True, "unprobed: no setpriv")
+        return
+    shut = _as_user("verify", "--quiet", folder, env=dict(ENV, TMPDIR=str(locked)),
+                    cwd=writable)
+    after = sorted(p.name for p in folder.iterdir())
+    record("verify as another user without write access (TMPDIR writable / unwritable)",
+           open_tmp.returncode == 0 and (shut.returncode == 0 or one_line(shut)
+                                         and "TMPDIR" in shut.stderr)
+           and before == after and not list(writable.iterdir()),
+           f"TMPDIR open: {open_tmp.returncode} {_stderr_tail(open_tmp, 80)}; unwritable: "
+           f"{shut.returncode} {_stderr_tail(shut, 130)}")
+
+
+def f46_other_users_result():
+    """Another user (nobody) given root's result folder: ``run --out`` it, ``report`` into
+    it, ``export --csv`` beside it: one line each, exit 2, the run's naming the owner (not
+    "chmod -R u+w", which only the owner may do); the result unchanged and verified."""
+    folder = fresh("theirs46")
+    _readable_by_all(folder)
+    for p in [folder, *folder.rglob("*")]:
+        p.chmod(0o755 if p.is_dir() else 0o644)
+    _readable_by_all(W / "b")
+    _, scratch = _folders_for_others("tmp_locked")
+    before = table_digests(folder)
+    steps = {"run": _as_user("run", W / "b" / "site.toml", "--out", folder, "--quiet",
+                             cwd=scratch),
+             "report": _as_user("report", "--quiet", folder, cwd=scratch),
+             "export": _as_user("export", "--csv", W / "theirs46_csv", folder, cwd=scratch)}
+    if steps["run"] is None:
+        record("another user's result", True, "unprobed: no setpriv")
+        return
+    record("run, report and export by another user into root's result folder",
+           all(one_line(d) for d in steps.values()) and "belongs to user" in
+           steps["run"].stderr and table_digests(folder) == before
+           and verify(folder).returncode == 0 and not leftovers(W),
+           "; ".join(f"{k} {d.returncode} {d.stderr.strip()[-70:]!r}" for k, d in steps.items()))
+
+
+def f46_report_mpl_cache_unwritable():
+    """``report`` as another user whose HOME is unset and whose MPLCONFIGDIR is a folder
+    it cannot write (matplotlib then makes a temporary cache and warns on stderr): the page
+    and figures written as under a clean setup, stderr nothing but ``warning:`` lines."""
+    base = _report_base()
+    folder = fresh("mpl_user")
+    _readable_by_all(folder)
+    import pwd
+    nobody = pwd.getpwnam("nobody")
+    for p in [folder, *folder.rglob("*")]:
+        os.chown(p, nobody.pw_uid, nobody.pw_gid)
+    locked, scratch = _folders_for_others("mpl_locked")
+    done = _as_user("report", "--quiet", folder, cwd=scratch,
+                    env=dict(ENV, MPLCONFIGDIR=str(locked), TMPDIR=str(scratch)))
+    if done is None:
+        record("report with MPLCONFIGDIR unwritable", True, "unprobed: no setpriv")
+        return
+    record("report as another user, MPLCONFIGDIR unwritable and HOME unset",
+           done.returncode == 0 and not _noise(done) and _same_report(folder, base),
+           f"exit {done.returncode}, same {_same_report(folder, base)}, stderr "
+           f"{_noise(done)[:2]!r:.200}")
+
+
+def f46_turkish_locale():
+    """LANG and LC_ALL tr_TR.UTF-8 (a dotless ı: "I".lower() is "ı" in C's towlower
+    there) for run, report and export --csv: tables byte-identical to the reference, the
+    CSV files byte-identical to an export under C.UTF-8. Unprobed where the locale is not
+    installed (``locale -a``)."""
+    listed = subprocess.run(["locale", "-a"], capture_output=True, text=True).stdout.lower()
+    if "tr_tr.utf8" not in listed:
+        record("run, report and export under tr_TR.UTF-8", True, "unprobed: no tr_TR locale")
+        return
+    env = dict(ENV, LANG="tr_TR.UTF-8", LC_ALL="tr_TR.UTF-8")
+    out = W / "turkish"
+    shutil.rmtree(out, ignore_errors=True)
+    run = fp("run", "site.toml", "--out", out, "--quiet", env=env)
+    rep = fp("report", "--quiet", out, env=env)
+    csvs = {}
+    for label, extra in (("tr", env), ("c", dict(ENV, LANG="C.UTF-8", LC_ALL="C.UTF-8"))):
+        target = W / f"turkish_csv_{label}"
+        shutil.rmtree(target, ignore_errors=True)
+        fp("export", "--csv", target, out, env=extra)
+        csvs[label] = {p.name: p.read_bytes() for p in sorted(target.glob("*"))
+                       if p.is_file()}
+    same = table_digests(out) == table_digests(W / "r0")
+    record("run, report and export --csv under tr_TR.UTF-8",
+           run.returncode == 0 and rep.returncode == 0 and same and csvs["tr"]
+           and csvs["tr"] == csvs["c"] and verify(out).returncode == 0,
+           f"run {run.returncode}, report {rep.returncode} {_stderr_tail(rep, 60)}, tables "
+           f"same {same}, CSV same {csvs['tr'] == csvs['c']} ({len(csvs['tr'])} files)")
+
+
+def f46_nice_two_threads_far_zone():
+    """``nice -n 10`` with OMP/OpenBLAS at 2 threads, TZ=Pacific/Chatham (+12:45) and
+    TZ=America/Adak (-10/-9 with DST) alone (no locale set): every table byte-identical to
+    the reference run's."""
+    seen, held = [], True
+    for label, extra, prefix in (
+            ("nice -n 10, 2 threads", dict(OMP_NUM_THREADS="2", OPENBLAS_NUM_THREADS="2"),
+             ["nice", "-n", "10"]),
+            ("TZ=Pacific/Chatham", dict(TZ="Pacific/Chatham"), []),
+            ("TZ=America/Adak", dict(TZ="America/Adak"), [])):
+        out = W / f"bytes46_{len(seen)}"
+        shutil.rmtree(out, ignore_errors=True)
+        done = subprocess.run([*prefix, PY, "-m", "fluxpart", "run", "site.toml", "--out",
+                               str(out), "--quiet"], env=dict(ENV, **extra), cwd=W / "b",
+                              capture_output=True, text=True)
+        same = done.returncode == 0 and table_digests(out) == table_digests(W / "r0")
+        held = held and same
+        seen.append(f"{label}: {done.returncode} same {same}")
+    record("nice with 2 threads, far time zones: tables byte-identical", held, "; ".join(seen))
+
+
+def f46_batch_zero_byte_files():
+    """A network file whose site pattern matches a folder of 0-byte files (configs and
+    inputs cut to nothing by a failed sync): every site fails (a bad site config fails its
+    site, not the batch), exit 1, each named as an empty file, no traceback; the folder
+    holds the failures table."""
+    root = W / "zero46"
+    shutil.rmtree(root, ignore_errors=True)
+    for i in range(2):
+        (root / f"z{i}").mkdir(parents=True)
+        (root / f"z{i}" / f"z{i}.toml").write_bytes(b"")
+        (root / f"z{i}" / "tower.csv").write_bytes(b"")
+    (root / "sites.toml").write_text('[batch]\nsites = ["z*/z*.toml"]\nout = "out"\n')
+    started = time.time()
+    done = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=root, timeout=600)
+    took = time.time() - started
+    named = [line for line in errlines(done) if "is empty (0 bytes" in line]
+    record("a batch whose configs and inputs are 0-byte files",
+           done.returncode == 1 and len(named) == 2 and "Traceback" not in done.stderr
+           and (root / "out" / "failures.parquet").is_file(),
+           f"exit {done.returncode} in {took:.1f} s, {_stderr_tail(done, 140)}, folder "
+           f"made {(root / 'out').exists()}")
+
+
+def f46_sigint_verify():
+    """Ctrl-C (SIGINT) to ``verify`` of a result folder as its scratch folder appears:
+    exit 130, one line, the scratch gone, the folder unchanged and verified after."""
+    folder = fresh("int_ver46")
+    before = table_digests(folder)
+    scratch = W / "tmp_int46"
+    shutil.rmtree(scratch, ignore_errors=True)
+    scratch.mkdir()
+    done = stop_when(["verify", "--quiet", folder], signal.SIGINT,
+                     lambda: _entries(scratch, "fluxpart-verify-"),
+                     env=dict(ENV, TMPDIR=str(scratch)))
+    left = [p.name for p in _entries(scratch)]
+    record("Ctrl-C to verify as its scratch folder appears", one_line(done, 130)
+           and not left and table_digests(folder) == before
+           and verify(folder).returncode == 0,
+           f"exit {done.returncode}, {_stderr_tail(done, 100)}, left {left}")
+
+
+def f46_mtimes_rounded():
+    """A result copied to a file system that rounds times to 2 s (FAT, exFAT's default)
+    and dated so the manifest is older than its tables, the run log newest: verify and
+    report pass (a result is judged by its content, never by its dates)."""
+    copy = W / "fat46"
+    shutil.rmtree(copy, ignore_errors=True)
+    shutil.copytree(W / "r0", copy)
+    for p in copy.rglob("*"):
+        st = p.stat()
+        os.utime(p, ns=(st.st_atime_ns, st.st_mtime_ns // 2_000_000_000 * 2_000_000_000))
+    now = time.time()
+    os.utime(copy / "manifest.json", (now - 86400, now - 86400))
+    os.utime(copy / "run-log.json", (now + 4, now + 4))
+    ver, rep = verify(copy), fp("report", "--quiet", copy)
+    record("a result with times rounded to 2 s, the manifest older than its tables",
+           ver.returncode == 0 and rep.returncode == 0,
+           f"verify {ver.returncode} {ver.stdout.strip()[:60]!r}, report {rep.returncode}")
+
+
+def f46_out_below_link_loop():
+    """``--out loop/out`` where ``loop`` is a link to itself (ELOOP), and ``--out`` a
+    link to a link to itself: one line, exit 2, nothing made."""
+    parent = W / "loop46"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    (parent / "loop").symlink_to("loop")
+    (parent / "again").symlink_to("loop")
+    runs = [fp("run", "site.toml", "--out", parent / "loop" / "out", "--quiet"),
+            fp("run", "site.toml", "--out", parent / "again", "--quiet")]
+    record("--out below a link to itself, and a link to that link",
+           all(one_line(r) for r in runs)
+           and sorted(p.name for p in parent.iterdir()) == ["again", "loop"],
+           "; ".join(f"{r.returncode} {_stderr_tail(r, 90)}" for r in runs))
+
+
+def f46_network_site_input_missing():
+    """verify of a network copied without one site's input (s00's tower.csv gone, its run
+    log's places of the run removed): every other site still verified and reported, one
+    error line naming s00 and where its input goes, exit 2 (faults45 left verify stopping
+    at the first such site)."""
+    import json
+    _net45()
+    root = NET45 / "lost_input"
+    shutil.rmtree(root, ignore_errors=True)
+    root.mkdir()
+    out = root / "out"
+    shutil.copytree(NET45 / "out", out)
+    for site in ("s00", "s01", "s02"):
+        shutil.copytree(NET45 / site, root / site)
+    (root / "s00" / "tower.csv").unlink()
+    log = out / "s00" / "run-log.json"
+    record_ = json.loads(log.read_text())
+    for key in ("absolute_paths", "result_folder"):
+        record_.pop(key, None)
+    log.write_text(json.dumps(record_))
+    done = fp("verify", out)
+    site_lines = [line.split()[:2] for line in done.stdout.splitlines()
+                  if line.startswith("  ") and not line.startswith("    ")]
+    record("verify of a network with one site's input missing",
+           one_line(done) and "s00" in done.stderr and ["s01", "bit-identical"] in site_lines,
+           f"exit {done.returncode}, sites {site_lines}, {_stderr_tail(done, 100)}")
+
+
+def f46_diff_residue():
+    """diff of a result and its copy whose annual part that is zero holds a float residue
+    (9.46e-23 g C m-2, resealed by a forger's tool as another run would write it): the
+    part is equal within rounding, listed as such, not a move of -100 %."""
+    import pandas as pd
+    folder = fresh("residue46")
+    annual = pd.read_parquet(folder / "annual.parquet")
+    zero = [c for c in annual.columns if pd.api.types.is_float_dtype(annual[c])
+            and (annual[c] == 0).all() and "uncertainty" in c]
+    if not zero:
+        record("diff of a zero part against a float residue", True,
+               "unprobed: no zero uncertainty part in the annual table")
+        return
+    edit = ("import pyarrow.parquet as pq, pyarrow as pa, numpy as np\n"
+            f"p = d / 'annual.parquet'; t = pq.read_table(p); i = t.schema.get_field_index("
+            f"{zero[0]!r})\n"
+            "c = pa.array(np.full(t.num_rows, 9.46e-23))\n"
+            "pq.write_table(t.set_column(i, t.schema.field(i), c), p)\n")
+    subprocess.run([PY, "-c", RESEAL, folder, edit], env=ENV, check=True)
+    done = fp("diff", W / "r0", folder)
+    moved = [line for line in done.stdout.splitlines() if zero[0] in line
+             and "e-23" in line]
+    record("diff of a zero annual part against a float residue", not moved
+           and "within rounding" in done.stdout and zero[0] in done.stdout,
+           f"exit {done.returncode}, column {zero[0]}, moves shown {moved[:1]!r:.100}")
 
 
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
@@ -4647,13 +5098,21 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f45_batch_resumed_config_changed, f45_config_bom_crlf, f45_sites_file_bom_crlf,
           f45_report_out_into_results, f45_run_out_into_network, f45_verify_network_stopped,
           f45_verify_from_inside, f45_network_site_replaced_by_copy,
-          f45_batch_resumed_sites_changed, f45_two_verifies_of_a_network]
+          f45_batch_resumed_sites_changed, f45_two_verifies_of_a_network,
+          # round faults46
+          f46_long_final_name, f46_out_is_the_input_file, f46_out_inside_input_folder,
+          f46_input_deleted_after_check, f46_manifest_pretty_printed, f46_table_renamed_bak,
+          f46_two_verifies_one_result, f46_verify_as_other_user, f46_other_users_result,
+          f46_report_mpl_cache_unwritable, f46_turkish_locale,
+          f46_nice_two_threads_far_zone, f46_batch_zero_byte_files, f46_sigint_verify,
+          f46_mtimes_rounded, f46_out_below_link_loop, f46_network_site_input_missing,
+          f46_diff_residue]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
-    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_"))]
+    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
