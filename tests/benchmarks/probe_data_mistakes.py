@@ -1,7 +1,8 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-51).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-55).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
-fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
+fictional) as a user's spreadsheet, logger or merge would (``MAIZE_CASES``: the maize
+example's two logger files, fictional, since round mistakes55), writes it beside a copy of its
 site config, runs ``process_site_config`` (what ``run`` calls) and prints whether it was
 refused (the error line), warned (new warnings against the clean run) or silent, and the
 moves of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
@@ -1257,7 +1258,8 @@ def par_watts_as_rg_from_july(frame, text):
 def soil_50cm_from_july(frame, text):
     """The soil probe reinstalled at 50 cm in July: from then on damped and late."""
     deep, _ = soil_at_50cm(frame, text)
-    later = _months(frame, range(7, 13)) & _present(frame, "soil_temp_5cm")
+    starts = _stamps(frame) - pd.Timedelta(minutes=1)
+    later = starts.dt.month.ge(7).to_numpy() & _present(frame, "soil_temp_5cm")
     values = np.where(later, deep["soil_temp_5cm"].to_numpy(), frame["soil_temp_5cm"].to_numpy())
     return _with(frame, "soil_temp_5cm", values), text
 
