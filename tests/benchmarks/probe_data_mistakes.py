@@ -1111,6 +1111,15 @@ CASES.update({
 # Round mistakes55: further mistakes of a tower team's hand-over, each checked against the
 # cases above first (partial-year variants, sensor offsets, stuck sensors, shifted joins).
 
+def _from_july_start(frame, column, edit):
+    """``edit`` applied from the first record starting in July (an end stamp of 1 January
+    00:00 closes December's last record)."""
+    values = frame[column].to_numpy()
+    starts = _stamps(frame) - pd.Timedelta(minutes=1)
+    later = starts.dt.month.ge(7).to_numpy() & (values != MISSING)
+    return _with(frame, column, np.where(later, edit(values), values))
+
+
 def _offset_where(frame, column, mask, offset, decimals=2):
     values = frame[column].to_numpy()
     chosen = mask & (values != MISSING)
@@ -1132,7 +1141,7 @@ def rg_negative_at_night(frame, text):
 
 def nee_step_from_july(frame, text):
     """From July another tower's NEE, of a wetter plot: every record +1.5 µmol m-2 s-1."""
-    return _from_july(frame, "co2_exchange", lambda v: np.round(v + 1.5, 3)), text
+    return _from_july_start(frame, "co2_exchange", lambda v: np.round(v + 1.5, 3)), text
 
 
 def nee_zero_drift(frame, text):
@@ -1145,18 +1154,18 @@ def nee_zero_drift(frame, text):
 
 def tair_fahrenheit_from_july(frame, text):
     """tair in °F from July (a logger program change), declared °C."""
-    return _from_july(frame, "air_temp_c", lambda v: np.round(v * 1.8 + 32, 2)), text
+    return _from_july_start(frame, "air_temp_c", lambda v: np.round(v * 1.8 + 32, 2)), text
 
 
 def rh_fraction_from_july(frame, text):
     """RH as a fraction (0-1) from July (a new humidity probe's output), read as %."""
-    return _from_july(frame, "rel_humidity", lambda v: np.round(v / 100, 3)), text
+    return _from_july_start(frame, "rel_humidity", lambda v: np.round(v / 100, 3)), text
 
 
 def par_as_rg_from_july(frame, text):
     """The pyranometer replaced in July by a quantum sensor (µmol m-2 s-1) under the Rg
     column: x2.1 (McCree 1972 (m))."""
-    return _from_july(frame, "solar_down", lambda v: np.round(v * 2.1, 1)), text
+    return _from_july_start(frame, "solar_down", lambda v: np.round(v * 2.1, 1)), text
 
 
 def rg_a_day_late(frame, text):
@@ -1252,7 +1261,7 @@ def utc_stamps_from_july(frame, text):
 def par_watts_as_rg_from_july(frame, text):
     """The pyranometer replaced in July by a PAR sensor in W m-2 (x0.46, Britton and
     Dodd 1976 (m)) under the Rg column."""
-    return _from_july(frame, "solar_down", lambda v: np.round(v * 0.46, 1)), text
+    return _from_july_start(frame, "solar_down", lambda v: np.round(v * 0.46, 1)), text
 
 
 def soil_50cm_from_july(frame, text):
@@ -1266,7 +1275,7 @@ def soil_50cm_from_july(frame, text):
 
 def ustar_low_from_july(frame, text):
     """u* of a new sonic program from July x0.7 (one covariance of the two, m)."""
-    return _from_july(frame, "friction_velocity", lambda v: np.round(v * 0.7, 3)), text
+    return _from_july_start(frame, "friction_velocity", lambda v: np.round(v * 0.7, 3)), text
 
 
 CASES.update({
