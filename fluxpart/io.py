@@ -1177,6 +1177,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                                                 np.asarray(potential) <= 0.0, starts,
                                                 interval_minutes, mapping)
             storage_smooths = counted_twice is not None
+        if counted_twice is None and potential is not None and "tair" in converted:
+            # night NEE following the store's own daily course: the store counted twice
+            # where it repeats its course night after night (mistakes55)
+            from .storage_course import night_nee_follows_storage
+
+            counted_twice = night_nee_follows_storage(
+                turbulent, storage, np.asarray(potential) <= 0.0, starts,
+                [converted[name] for name in ("tair", "tsoil") if name in converted], mapping)
         if counted_twice and FLUX_COPY_WORDS in counted_twice:
             # a flux mapped as storage: NEE counted twice cannot be right (mistakes38)
             accepted.append(_refuse_or_warn(

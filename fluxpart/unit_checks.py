@@ -836,6 +836,21 @@ def _storage_sign_message(converted: dict, columns: dict, potential, stamps) -> 
             "storage in [input] accept_units to keep it as it is)")
 
 
+def _without_rh_fraction_months(converted: dict, units: dict, potential, stamps) -> dict:
+    """`converted` with rh missing in the calendar months whose RH alone is a fraction
+    (:func:`_rh_fraction`) where the whole record's is not; unchanged otherwise."""
+    rh = converted.get("rh")
+    if (rh is None or not reads_as_canonical("rh", units.get("rh")) or _rh_fraction(rh)
+            or stamps is None):
+        return converted
+    months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
+                             potential, stamps)
+    if not months:
+        return converted
+    fraction = np.isin(np.asarray(stamps, dtype="datetime64[M]").astype(str), months)
+    return {**converted, "rh": np.where(fraction, np.nan, rh)}
+
+
 def _months_refused(check, converted: dict, potential, stamps) -> list:
     """Calendar months ("YYYY-MM") whose records alone `check` refuses.
 
@@ -1531,7 +1546,11 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                     lambda part, sun: _tsoil_message(part, units, columns, interval_minutes),
                     "tsoil", columns, "a soil temperature in °F or K (a median above 25 °C "
                     "and more than 15 K above the air's)", converted, potential, stamps)
-            refuse, warn = _vpd_messages(converted, units, columns, interval_minutes)
+            # months whose RH is a fraction give no basis for the VPD the humidity
+            # allows (round mistakes55: RH as a fraction from July made vpd read as
+            # inHg); the rh warning below names them
+            humidity_basis = _without_rh_fraction_months(converted, units, potential, stamps)
+            refuse, warn = _vpd_messages(humidity_basis, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse
             if warn:
@@ -1542,7 +1561,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings += _changed_within(
                     lambda part, sun: _vpd_messages(part, units, columns, interval_minutes)[0],
                     "vpd", columns, "VPD in another unit (a tenth or ten times the VPD "
-                    "that tair and the humidity allow)", converted, potential, stamps)
+                    "that tair and the humidity allow)", humidity_basis, potential, stamps)
         rh = converted.get("rh")
         if rh is not None and reads_as_canonical("rh", units.get("rh")) and not _rh_fraction(rh):
             warnings += _changed_within(

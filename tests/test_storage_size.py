@@ -109,6 +109,8 @@ def test_the_maize_example_storage_through_the_reader(tmp_path, factor, named):
     texts = [text for text in report.warnings if "too large for the air" in text]
     assert bool(texts) is named
     assert not any(SMOOTHS_WORDS in text for text in report.warnings)
+    # nor as a store counted twice (storage_course, round mistakes55)
+    assert not any("already holds the storage term" in text for text in report.warnings)
     if named:
         assert texts[0].startswith("storage: the storage column ('co2_store')")
 

@@ -1,7 +1,8 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-51).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-55).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
-fictional) as a user's spreadsheet, logger or merge would, writes it beside a copy of its
+fictional) as a user's spreadsheet, logger or merge would (``MAIZE_CASES``: the maize
+example's two logger files, fictional, since round mistakes55), writes it beside a copy of its
 site config, runs ``process_site_config`` (what ``run`` calls) and prints whether it was
 refused (the error line), warned (new warnings against the clean run) or silent, and the
 moves of the annual NEE, GPP and Reco against the clean run's stated 1 sigma.
@@ -1107,6 +1108,308 @@ CASES.update({
 })
 
 
+# Round mistakes55: further mistakes of a tower team's hand-over, each checked against the
+# cases above first (partial-year variants, sensor offsets, stuck sensors, shifted joins).
+
+def _from_july_start(frame, column, edit):
+    """``edit`` applied from the first record starting in July (an end stamp of 1 January
+    00:00 closes December's last record)."""
+    values = frame[column].to_numpy()
+    starts = _stamps(frame) - pd.Timedelta(minutes=1)
+    later = starts.dt.month.ge(7).to_numpy() & (values != MISSING)
+    return _with(frame, column, np.where(later, edit(values), values))
+
+
+def _offset_where(frame, column, mask, offset, decimals=2):
+    values = frame[column].to_numpy()
+    chosen = mask & (values != MISSING)
+    return _with(frame, column, np.where(chosen, np.round(values + offset, decimals), values))
+
+
+def rg_night_offset(frame, text):
+    """A pyranometer's zero offset left in: +12 W m-2 in every record, day and night
+    (a logger's offset not subtracted, common practice to remove (m))."""
+    return _offset_where(frame, "solar_down", np.ones(len(frame), bool), 12.0, 1), text
+
+
+def rg_negative_at_night(frame, text):
+    """A thermopile's thermal offset: -12 W m-2 at night (clear nights cool the dome,
+    a few to 15 W m-2 below zero, Dutton et al. 2001 (m)), left in and not clipped."""
+    rg = frame["solar_down"].to_numpy()
+    return _offset_where(frame, "solar_down", rg <= 5.0, -12.0, 1), text
+
+
+def nee_step_from_july(frame, text):
+    """From July another tower's NEE, of a wetter plot: every record +1.5 µmol m-2 s-1."""
+    return _from_july_start(frame, "co2_exchange", lambda v: np.round(v + 1.5, 3)), text
+
+
+def nee_zero_drift(frame, text):
+    """An analyser's zero drifting over the year: NEE +0 in January to +1.0 in December."""
+    nee = _nee(frame)
+    drift = np.linspace(0.0, 1.0, len(frame))
+    return _with(frame, "co2_exchange", np.where(nee == MISSING, MISSING,
+                                                 np.round(nee + drift, 3))), text
+
+
+def tair_fahrenheit_from_july(frame, text):
+    """tair in °F from July (a logger program change), declared °C."""
+    return _from_july_start(frame, "air_temp_c", lambda v: np.round(v * 1.8 + 32, 2)), text
+
+
+def rh_fraction_from_july(frame, text):
+    """RH as a fraction (0-1) from July (a new humidity probe's output), read as %."""
+    return _from_july_start(frame, "rel_humidity", lambda v: np.round(v / 100, 3)), text
+
+
+def par_as_rg_from_july(frame, text):
+    """The pyranometer replaced in July by a quantum sensor (µmol m-2 s-1) under the Rg
+    column: x2.1 (McCree 1972 (m))."""
+    return _from_july_start(frame, "solar_down", lambda v: np.round(v * 2.1, 1)), text
+
+
+def rg_a_day_late(frame, text):
+    """Rg of a station's file joined by date one day late (every Rg the previous day's)."""
+    rg = frame["solar_down"].to_numpy()
+    return _with(frame, "solar_down", np.r_[rg[:PER_DAY], rg[:-PER_DAY]]), text
+
+
+def nee_a_record_late(frame, text):
+    """NEE one row late against the weather and its flag (a cell inserted in the column)."""
+    nee = _nee(frame)
+    return _with(frame, "co2_exchange", np.r_[MISSING, nee[:-1]]), text
+
+
+def stuck_tair_weeks(frame, text):
+    """tair stuck at one reading for three weeks of summer (a logger's frozen channel)."""
+    return _stuck(frame, "air_temp_c", "2021-07-05 14:00", 21), text
+
+
+def stuck_ustar_weeks(frame, text):
+    """u* stuck at one reading for three weeks (a sonic's lost output held by the logger)."""
+    return _stuck(frame, "friction_velocity", "2021-07-05 02:00", 21), text
+
+
+def wet_humidity_sensor(frame, text):
+    """A humidity probe wet for three weeks of July: RH 100 % and VPD 0 (saturated)."""
+    out = frame.copy()
+    stamps = _stamps(frame)
+    wet = ((stamps >= pd.Timestamp("2021-07-05")) & (stamps < pd.Timestamp("2021-07-26"))).to_numpy()
+    out.loc[wet & _present(frame, "vpd_kpa"), "vpd_kpa"] = 0.0
+    out.loc[wet & _present(frame, "rel_humidity"), "rel_humidity"] = 100.0
+    return out, text
+
+
+def may_nee_into_june(frame, text):
+    """May's NEE copied over June 1-30 (a spreadsheet's copy-paste; the weather kept)."""
+    out = frame.copy()
+    stamps = _stamps(frame)
+    june = np.flatnonzero(((stamps > pd.Timestamp("2021-06-01")) &
+                           (stamps <= pd.Timestamp("2021-07-01"))).to_numpy())
+    out.loc[june, "co2_exchange"] = frame["co2_exchange"].to_numpy()[june - 31 * PER_DAY]
+    return out, text
+
+
+def stuck_tsoil_month(frame, text):
+    """tsoil stuck at its 1 June reading for two months (the probe's channel frozen)."""
+    return _stuck(frame, "soil_temp_5cm", "2021-06-01 00:30", 61), text
+
+
+def storage_added_twice(frame, text):
+    """A storage column mapped while the NEE already holds the storage term: added twice.
+    The storage of a short canopy: the night's release accumulating below the sensor
+    on calm nights and flushed in the morning (Finnigan 2006 (m)); modelled as a swing of
+    about +0.6 in the evening and -1.2 after sunrise (µmol m-2 s-1)."""
+    hours = _day_hours(frame)
+    storage = np.where((hours >= 19) | (hours < 5), 0.6,
+                       np.where((hours >= 6) & (hours < 10), -1.2, 0.0))
+    out = frame.copy()
+    out["storage_co2"] = np.round(storage, 2)
+    text = text.replace('nee_flag = "qc_co2"', 'nee_flag = "qc_co2"\nstorage = "storage_co2"')
+    return out, text
+
+
+def nee_sign_flipped_august(frame, text):
+    """NEE written with uptake positive in August only (a month's logger program)."""
+    nee = _nee(frame)
+    august = _months(frame, [8]) & (nee != MISSING)
+    return _with(frame, "co2_exchange", np.where(august, -nee, nee)), text
+
+
+def _shift_from(frame, start, end, minutes):
+    """Stamps of the records in (start, end] moved by ``minutes``; duplicates keep the
+    later file's record."""
+    stamps = _stamps(frame)
+    moved = ((stamps > pd.Timestamp(start)) & (stamps <= pd.Timestamp(end))).to_numpy()
+    shifted = stamps + pd.to_timedelta(np.where(moved, minutes, 0), unit="min")
+    out = frame.assign(stamp_end=shifted.dt.strftime("%Y%m%d%H%M").to_numpy())
+    out = out.drop_duplicates("stamp_end", keep="last")
+    return out.sort_values("stamp_end").reset_index(drop=True)
+
+
+def summer_time_second_file(frame, text):
+    """Two half-year files, the second (from July) in civil time with daylight saving
+    to 31 October, the first in standard time: an hour late in July-October."""
+    return _shift_from(frame, "2021-07-01 00:00", "2021-10-31 02:00", 60), text
+
+
+def utc_stamps_from_july(frame, text):
+    """A new logger from July set to UTC at this UTC+1 site: an hour early from then on."""
+    return _shift_from(frame, "2021-07-01 00:00", "2022-01-01 00:00", -60), text
+
+
+def par_watts_as_rg_from_july(frame, text):
+    """The pyranometer replaced in July by a PAR sensor in W m-2 (x0.46, Britton and
+    Dodd 1976 (m)) under the Rg column."""
+    return _from_july_start(frame, "solar_down", lambda v: np.round(v * 0.46, 1)), text
+
+
+def soil_50cm_from_july(frame, text):
+    """The soil probe reinstalled at 50 cm in July: from then on damped and late."""
+    deep, _ = soil_at_50cm(frame, text)
+    starts = _stamps(frame) - pd.Timedelta(minutes=1)
+    later = starts.dt.month.ge(7).to_numpy() & _present(frame, "soil_temp_5cm")
+    values = np.where(later, deep["soil_temp_5cm"].to_numpy(), frame["soil_temp_5cm"].to_numpy())
+    return _with(frame, "soil_temp_5cm", values), text
+
+
+def ustar_low_from_july(frame, text):
+    """u* of a new sonic program from July x0.7 (one covariance of the two, m)."""
+    return _from_july_start(frame, "friction_velocity", lambda v: np.round(v * 0.7, 3)), text
+
+
+CASES.update({
+    "Rg zero offset +12 W m-2 left in": rg_night_offset,
+    "Rg negative at night (-12 W m-2 thermal offset)": rg_negative_at_night,
+    "NEE step +1.5 from July (another tower)": nee_step_from_july,
+    "NEE zero drift 0 to +1.0 over the year": nee_zero_drift,
+    "tair in °F from July": tair_fahrenheit_from_july,
+    "RH as a fraction from July": rh_fraction_from_july,
+    "PAR (µmol) as Rg from July": par_as_rg_from_july,
+    "Rg a day late (joined by date)": rg_a_day_late,
+    "NEE one record late": nee_a_record_late,
+    "tair stuck 3 weeks": stuck_tair_weeks,
+    "u* stuck 3 weeks": stuck_ustar_weeks,
+    "humidity probe wet 3 weeks (VPD 0)": wet_humidity_sensor,
+    "May NEE pasted into June (weather kept)": may_nee_into_june,
+    "tsoil stuck 2 months": stuck_tsoil_month,
+    "storage added twice": storage_added_twice,
+    "NEE sign flipped in August only": nee_sign_flipped_august,
+    "summer time in the second file only (Jul-Oct)": summer_time_second_file,
+    "UTC stamps from July (UTC+1 site)": utc_stamps_from_july,
+    "PAR (W m-2) as Rg from July": par_watts_as_rg_from_july,
+    "soil at 50 cm from July": soil_50cm_from_july,
+    "u* x0.7 from July (sonic program)": ustar_low_from_july,
+})
+
+
+# Round mistakes55 on the maize example's logger export (two half-year files in civil time,
+# the turbulent flux and the storage term in separate columns): each case edits the files'
+# lines, ``{name: lines}`` of the header's three lines and the records.
+
+MAIZE = EXAMPLE.with_name("quillmoor_maize_logger.toml")
+MAIZE_FILES = ("maize_2021_1.dat", "maize_2021_2.dat")
+MAIZE_HEADER = 3
+
+
+def _maize_stamps(lines):
+    """Civil stamps of the records' lines (``24:00`` as the next day's midnight)."""
+    dates, times = zip(*(line.split(";")[:2] for line in lines), strict=True)
+    late = np.array([t == "24:00" for t in times])
+    stamps = pd.to_datetime([f"{d} {'00:00' if t == '24:00' else t}"
+                             for d, t in zip(dates, times, strict=True)],
+                            format="%d.%m.%Y %H:%M")
+    return stamps + pd.to_timedelta(np.where(late, 1, 0), unit="D")
+
+
+def _maize_line_stamp(stamp, line):
+    """``line`` with its date and time written for ``stamp`` (midnight as 24:00)."""
+    if stamp.hour == 0 and stamp.minute == 0:
+        date, time = (stamp - pd.Timedelta(days=1)).strftime("%d.%m.%Y"), "24:00"
+    else:
+        date, time = stamp.strftime("%d.%m.%Y"), stamp.strftime("%H:%M")
+    return ";".join([date, time, *line.split(";")[2:]])
+
+
+def maize_second_file_standard_time(files):
+    """The second half-year's file written in standard time (a new logger's clock) while
+    the first keeps civil time with daylight saving, as ``time_zone`` declares: its
+    July-October records read an hour early."""
+    lines = files[MAIZE_FILES[1]]
+    records = lines[MAIZE_HEADER:]
+    stamps = _maize_stamps(records)
+    summer = np.asarray(stamps <= pd.Timestamp("2021-10-31 03:00"))
+    moved = stamps - pd.to_timedelta(np.where(summer, 60, 0), unit="min")
+    kept = [_maize_line_stamp(t, line) for t, line in zip(moved, records, strict=True)]
+    # the hour of 31 October written twice in civil time is written once in standard time
+    seen, unique = set(), []
+    for line in kept:
+        if line[:16] not in seen:
+            seen.add(line[:16])
+            unique.append(line)
+    return {**files, MAIZE_FILES[1]: lines[:MAIZE_HEADER] + unique}
+
+
+def maize_second_file_standard_time_no_overlap(files):
+    """... with the second file cut where the first ends by its own clock (no overlap
+    of stamps left to disagree)."""
+    files = maize_second_file_standard_time(files)
+    last = _maize_stamps(files[MAIZE_FILES[0]][MAIZE_HEADER:]).max()
+    records = files[MAIZE_FILES[1]][MAIZE_HEADER:]
+    later = np.asarray(_maize_stamps(records) > last)
+    kept = [line for line, keep in zip(records, later, strict=True) if keep]
+    return {**files, MAIZE_FILES[1]: files[MAIZE_FILES[1]][:MAIZE_HEADER] + kept}
+
+
+def maize_storage_in_flux_column(files):
+    """The flux column delivered with the storage term already added (NEE), the config
+    still mapping the storage column: storage counted twice."""
+    out = {}
+    for name, lines in files.items():
+        rows = []
+        for line in lines[MAIZE_HEADER:]:
+            cells = line.split(";")
+            flux, store = (float(c.replace(",", ".")) for c in cells[2:4])
+            if flux != MISSING and store != MISSING:
+                cells[2] = f"{flux + store:.3f}".replace(".", ",")
+            rows.append(";".join(cells))
+        out[name] = lines[:MAIZE_HEADER] + rows
+    return out
+
+
+MAIZE_CASES = {
+    "maize: second file in standard time, first civil": maize_second_file_standard_time,
+    "maize: second file in standard time, no overlap": maize_second_file_standard_time_no_overlap,
+    "maize: storage already in the flux column (added twice)": maize_storage_in_flux_column,
+}
+
+
+def run_maize(files, folder: Path):
+    """The settings probe's run on the maize example's files ``{name: lines}``."""
+    data = folder / "quillmoor_maize_logger"
+    data.mkdir(exist_ok=True)
+    for name, lines in files.items():
+        (data / name).write_bytes("\r\n".join(lines).encode("latin-1") + b"\r\n")
+    return run_config(MAIZE.read_text(), folder)
+
+
+def maize_main(only) -> None:
+    """The maize cases against the maize example's clean run."""
+    source = MAIZE.with_suffix("")
+    files = {name: (source / name).read_bytes().decode("latin-1").splitlines()
+             for name in MAIZE_FILES}
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = Path(tmp)
+        clean, _, clean_warnings = run_maize(files, folder)
+        base = clean.annual.iloc[0]
+        print("maize clean:", ", ".join(
+            f"{s} {base[s]:.1f} (1σ {base[s + '_uncertainty_total']:.1f})" for s in SUMS))
+        for name, edit in MAIZE_CASES.items():
+            if only and not any(o in name for o in only):
+                continue
+            print_outcome(name, run_maize(edit(files), folder), clean_warnings, base)
+
+
 def run(frame: pd.DataFrame, text: str, folder: Path):
     """The settings probe's run on ``frame`` written as the example's file in ``folder``."""
     frame.to_csv(folder / "quillmoor_grassland.csv", index=False)
@@ -1129,6 +1432,7 @@ def main(argv=None) -> int:
             if args.only and not any(o in name for o in args.only):
                 continue
             print_outcome(name, run(*edit(clean_frame, text), folder), clean_warnings, base)
+    maize_main(args.only)
     return 0
 
 
