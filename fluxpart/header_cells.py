@@ -193,7 +193,7 @@ def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> s
     if len(units) != len(names) or len(filled) < max(2, len(units) // 2) or not units[0]:
         return ""
     for marks in UNIT_MARKS:
-        if all(len(c) > 2 and c[0] == marks[0] and c[-1] == marks[1]
+        if all(len(c) >= 2 and c[0] == marks[0] and c[-1] == marks[1]
                and not _is_number(c[1:-1]) for c in filled):
             return marks
     return ""
@@ -201,6 +201,17 @@ def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> s
 
 #: The brackets a units row encloses each unit in (common practice)
 UNIT_MARKS = ("[]", "()")
+
+
+def enclosed_unit(cell: str) -> str:
+    """The unit a units-row cell writes within one pair of :data:`UNIT_MARKS`
+    ("(mg m-2 s-1)" -> "mg m-2 s-1"), else the cell as written."""
+    cell = cell.strip()
+    for marks in UNIT_MARKS:
+        if len(cell) >= 2 and cell[0] == marks[0] and cell[-1] == marks[1] \
+                and marks[0] not in cell[1:-1] and marks[1] not in cell[1:-1]:
+            return cell[1:-1].strip()
+    return cell
 
 #: Field separators a header line retyped by hand or by another program may be written
 #: with where the records use another (the reader's delimiters; "whitespace" a run of

@@ -84,3 +84,43 @@ def test_a_title_line_splitting_like_a_header_is_no_header():
     text = "Quillmoor; logger 3\nstamp,nee\n2021-01-01 00:30,1.5\n"
     assert header_separator(text, 0, 0, ",", "stamp") == ""
     assert header_separator("stamp;nee\n2021-01-01 00:30,1.5\n", 0, 0, ",", "stamp") == ";"
+
+
+@pytest.mark.parametrize("later, line", [
+    # a spreadsheet's text mark opening a cell, never closed: the parser's last line was
+    # taken for the quote's, dropped, and the file read again line by line (481 notes)
+    ({300: "'"}, 301),
+    # closed by an apostrophe 99 lines on ("rock'n"): the records between were one cell
+    ({300: "'", 399: "rock'n "}, 301)])
+def test_a_quote_opened_in_a_later_record_of_a_single_quoted_file_is_named(tmp_path, later,
+                                                                           line):
+    """review73: a file whose header and first 20 records are in single quotes is read with
+    ``'`` as its quote character; an apostrophe opening a cell of a later unquoted record
+    ran on over the lines after it. Python's csv module (strict) names the line that ends
+    inside a quoted cell (Python documentation, csv); the file is refused naming it."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines()
+    lines[:21] = [",".join(f"'{cell}'" for cell in row.split(",")) for row in lines[:21]]
+    for at, mark in later.items():
+        cells = lines[at].split(",")
+        cells[2] = mark + cells[2]
+        lines[at] = ",".join(cells)
+    (tmp_path / "q.csv").write_text("\n".join(lines) + "\n")
+    with pytest.raises(FluxpartError, match=rf"line {line} \(.*\) opens a (single )?quote \('\)"):
+        _read(tmp_path / "q.csv")
+
+
+def test_a_unit_in_parentheses_or_brackets_is_judged_against_the_unit_read(tmp_path):
+    """review73: "(kPa)" under a VPD read in hPa, the default, went unjudged where the
+    same row without parentheses is named (1 kPa = 10 hPa, SI); and "[]" over the stamp
+    column, a units row since layouts47, was refused by the parentheses' rule."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines()
+    for units, marks in [("(-),(umol m-2 s-1),(m s-1),(W m-2),(degC),(kPa)", "()"),
+                         ("[],[umol m-2 s-1],[m s-1],[W m-2],[degC],[kPa]", "[]")]:
+        (tmp_path / "u.csv").write_text("\n".join([lines[0], units] + lines[1:]) + "\n")
+        assert bracketed_units_row((tmp_path / "u.csv").read_text(), 0, ",") == marks
+        frame, report = _read(tmp_path / "u.csv")
+        pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+        assert sum("labelled 'kPa' by the units line" in w and 'vpd = "kPa"' in w
+                   for w in report.warnings) == 1
