@@ -3431,6 +3431,17 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"{width + extra} fields by tabs ([input] delimiter): tabs turned into "
                 f"blanks by an editor? write the header with tabs in a copy of the file"
                 f"{whitespace}")
+        single = str(raw.columns[0]).split()
+        if width == 1 and not separator and len(single) == width + extra:
+            # names split at single blanks as many as the fields: a name may hold a
+            # blank, and a header missing a name then reads every later name one field
+            # off (review73), so no reading is taken
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line holds {len(single)} names if "
+                f"split at its single blanks, as many as the data lines' fields (delimiter "
+                f"{setting_text(delimiter)}), but a name may hold a blank too (\"net "
+                "radiation\"), so no reading can tell the names: write the header with the "
+                "data's delimiter in a copy of the file")
         if width == 1 and separator:
             # a header of one cell holding another separator: decimal commas in the data
             # lines split them where the header line stays whole

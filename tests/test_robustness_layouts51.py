@@ -10,10 +10,11 @@ records as written.
 """
 import pandas as pd
 import pytest
-from test_robustness_layouts19 import _read, _tower
+from test_robustness_layouts19 import MAPPING, _read, _tower
 
 from fluxpart.errors import FluxpartError
 from fluxpart.header_cells import bracketed_units_row, header_separator
+from fluxpart.io import read_table
 from fluxpart.quoted_lines import single_quoted
 
 
@@ -63,8 +64,10 @@ def test_a_header_in_another_separator_missing_a_name_stays_refused(tmp_path):
     (tmp_path / "short.csv").write_text("\n".join([header] + lines[1:]) + "\n")
     with pytest.raises(FluxpartError, match="line 2 has 6 fields where the header has 1"):
         _read(tmp_path / "short.csv", delimiter=";")
-    # two other separators fitting alike tell no intent (no guess between them)
-    assert header_separator("a,b\tc,d\n1;2\n", 0, 0, ";") == ""
+    # two other separators fitting alike tell no intent (no guess between them); a tab
+    # read as a tab and as blanks gives one reading (review73)
+    assert header_separator("a,b|c\n1;2\n", 0, 0, ";") == ""
+    assert header_separator("a,b\tc,d\n1;2\n", 0, 0, ";") == "\t"
     assert header_separator("a,b\n1;2\n", 0, 0, ";") == ","
 
 
@@ -124,3 +127,25 @@ def test_a_unit_in_parentheses_or_brackets_is_judged_against_the_unit_read(tmp_p
         pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
         assert sum("labelled 'kPa' by the units line" in w and 'vpd = "kPa"' in w
                    for w in report.warnings) == 1
+
+
+def test_a_header_in_single_blanks_tells_no_names(tmp_path):
+    """review73: a tab file whose header was typed with single blanks, one name holding a
+    blank ("wind dir") and the last field (a flag) unnamed, split into as many names as
+    fields: read with every name after "wind" one field off (rg over the air
+    temperatures). A single blank may stand within a name, so blanks separate names only
+    as runs of two or more; else refused, naming the cause (invented known truth)."""
+    _, records = _tower()
+    records = records.assign(stamp=records["stamp"].str.replace(" ", "T"))
+    records.insert(3, "wind dir", 180)
+    records["flag"] = 0
+    lines = records.to_csv(index=False, sep="\t").splitlines()
+    header = lines[0].replace("\t", " ").removesuffix(" flag")
+    (tmp_path / "w.dat").write_text("\n".join([header] + lines[1:]) + "\n")
+    with pytest.raises(FluxpartError, match="holds 8 names if split at its single blanks"):
+        read_table(tmp_path / "w.dat", columns=MAPPING, time_column="stamp",
+                   time_format="%Y-%m-%dT%H:%M", time_marks="end", delimiter="\t")
+    # the same names apart by runs of blanks (tabs an editor turned into blanks) are read
+    runs = lines[0].replace("\t", "   ")
+    assert header_separator("\n".join([runs] + lines[1:]), 0, 0, "\t", "stamp") == \
+        "whitespace"
