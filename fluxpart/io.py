@@ -4312,14 +4312,8 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"(line {at + 2} holds every column named in the settings)"
             + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
         at = rows_before_header
-    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
-                                                                           delimiter)
-    if marks:
-        rows_after_header = 1
-        warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {at + 2} under the header holds "
-            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
-            "read as a units row"))
+    # the header's separator first: a units row under it is judged by its names
+    # (review73: a header in semicolons left the units row in parentheses a record)
     other = header_cells.header_separator(text, at, rows_after_header, delimiter,
                                           next(iter(time_columns), ""))
     if other:
@@ -4330,6 +4324,14 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"{header_cells.SEPARATOR_WORDS[other]} where the records use "
             f"{header_cells.SEPARATOR_WORDS.get(delimiter, repr(delimiter))}; each of "
             "its names stands over a field: read so"))
+    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
+                                                                           delimiter)
+    if marks:
+        rows_after_header = 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {at + 2} under the header holds "
+            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
+            "read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above

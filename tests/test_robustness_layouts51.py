@@ -149,3 +149,19 @@ def test_a_header_in_single_blanks_tells_no_names(tmp_path):
     runs = lines[0].replace("\t", "   ")
     assert header_separator("\n".join([runs] + lines[1:]), 0, 0, "\t", "stamp") == \
         "whitespace"
+
+
+def test_a_units_row_under_a_header_in_another_separator_is_read_as_one(tmp_path):
+    """review73: the units row was judged before the header's separator, against a
+    header of one cell, and then read as a record (refused on its stamp "(-)"); now both
+    readings are taken, each noted (invented known truth: the records as written)."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines()
+    units = "(-),(umol m-2 s-1),(m s-1),(W m-2),(degC),(hPa)"
+    (tmp_path / "h.csv").write_text("\n".join([lines[0].replace(",", ";"), units]
+                                              + lines[1:]) + "\n")
+    frame, report = _read(tmp_path / "h.csv")
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert len(report.notes) == 2
+    assert "the header (line 1) is written with semicolons" in report.notes[0]
+    assert "line 2 under the header holds units in parentheses" in report.notes[1]
