@@ -18,6 +18,7 @@ layouts51; refused before, naming the quotes).
 from __future__ import annotations
 
 import csv
+import re
 
 
 def wrapped_lines_message(lines: list, delimiter: str, header_at: int,
@@ -90,14 +91,12 @@ def single_quoted(lines: list, delimiter: str, header_at: int, first_record_at: 
                if line.strip()]
     if not records:
         return False
-    for line in [lines[header_at], *records]:
-        if '"' in line:
-            return False
-        for cell in line.split(delimiter):
-            cell = cell.strip()
-            if not (len(cell) >= 2 and cell[0] == cell[-1] == "'" and cell.count("'") == 2):
-                return False
-    return True
+    # quoted cells apart by the delimiter, which a quoted cell may hold ("'2,63'" in a
+    # comma file of decimal commas, review73: was named unquoted)
+    cell = r"\s*'[^']*'\s*"
+    quoted = re.compile(f"{cell}(?:{re.escape(delimiter)}{cell})*")
+    return all('"' not in line and quoted.fullmatch(line)
+               for line in [lines[header_at], *records])
 
 
 def line_opening_quote(lines: list, delimiter: str, first_record_at: int) -> int:

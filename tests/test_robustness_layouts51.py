@@ -165,3 +165,18 @@ def test_a_units_row_under_a_header_in_another_separator_is_read_as_one(tmp_path
     assert len(report.notes) == 2
     assert "the header (line 1) is written with semicolons" in report.notes[0]
     assert "line 2 under the header holds units in parentheses" in report.notes[1]
+
+
+def test_decimal_commas_within_single_quotes_of_a_comma_file_are_read(tmp_path):
+    """review73: "'2,022'" in a comma file of decimal commas was named unquoted ("must be
+    quoted ... and here it is not"); a quoted field may hold the delimiter (RFC 4180,
+    section 2 (m)), so every cell in single quotes is read so, the commas inside them
+    decimal marks (invented known truth: the records as written)."""
+    _, records = _tower()
+    lines = records.to_csv(index=False, sep=";", decimal=",").splitlines()
+    (tmp_path / "d.csv").write_text("\n".join(
+        ",".join(f"'{cell}'" for cell in line.split(";")) for line in lines) + "\n")
+    frame, report = _read(tmp_path / "d.csv", decimal=",")
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
+    assert any("wrapped in single quotes" in note for note in report.notes)
+    assert not single_quoted(["'a','b'", "'1,5',2"], ",", 0, 1)
