@@ -3008,8 +3008,9 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             text[:65536].splitlines(), delimiter, rows_before_header,
             rows_before_header + rows_after_header + 1):
         options["quotechar"] = "'"
-        note = (f"input file {str(path)!r}: every cell of the header and the records is "
-                "wrapped in single quotes ('...'), no CSV quotes: read without them")
+        note = (f"input file {str(path)!r}: every cell of the header and of the first "
+                "records is wrapped in single quotes ('...'), no CSV quotes: read with ' as "
+                "the quote character")
         if warnings is not None and note not in warnings:     # once where read again
             warnings.append(ReaderNote(note))
     quote = options.get("quotechar", '"')
