@@ -3432,6 +3432,17 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"{width + extra} fields by tabs ([input] delimiter): tabs turned into "
                 f"blanks by an editor? write the header with tabs in a copy of the file"
                 f"{whitespace}")
+        commas = str(raw.columns[0]).split(",")
+        if (width == 1 and not separator and delimiter != "," and len(commas) == width + extra
+                and any("," in str(cell) for column in cells for cell in column[:1000])):
+            # a header in commas over records holding commas of their own (decimal
+            # commas): the header's commas are no reading (review73: "is a name missing?")
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line holds {len(commas)} names if "
+                f"split at its commas, as many as the data lines' fields (delimiter "
+                f"{setting_text(delimiter)}), but the data lines hold commas too (decimal "
+                "commas?), so the header's commas cannot be read as its separator: write "
+                "the header with the data's delimiter in a copy of the file")
         single = str(raw.columns[0]).split()
         if width == 1 and not separator and len(single) == width + extra:
             # names split at single blanks as many as the fields: a name may hold a

@@ -180,3 +180,15 @@ def test_decimal_commas_within_single_quotes_of_a_comma_file_are_read(tmp_path):
     pd.testing.assert_frame_equal(frame, _clean(tmp_path, records))
     assert any("wrapped in single quotes" in note for note in report.notes)
     assert not single_quoted(["'a','b'", "'1,5',2"], ",", 0, 1)
+
+
+def test_a_header_in_commas_over_records_with_decimal_commas_is_named(tmp_path):
+    """review73: a semicolon file of decimal commas whose header is in commas stays
+    refused (its records hold commas of their own), now naming that cause instead of "is
+    a column name missing in the header?" (invented known truth: the records as written)."""
+    _, records = _tower()
+    lines = records.to_csv(index=False, sep=";", decimal=",").splitlines()
+    (tmp_path / "c.csv").write_text("\n".join([lines[0].replace(";", ",")] + lines[1:]) + "\n")
+    with pytest.raises(FluxpartError, match="holds 6 names if split at its commas.*hold "
+                                            "commas too"):
+        _read(tmp_path / "c.csv", delimiter=";", decimal=",")
