@@ -16,6 +16,8 @@ as written. The break is the cell's layout: read as one blank, the name is
 """
 from __future__ import annotations
 
+import re
+
 #: Comment marks a header line is opened with (NumPy ``savetxt``'s ``comments="# "``,
 #: MATLAB/Octave ``%``, C++ ``//``, Fortran ``!``; common practice)
 HEADER_MARKS = ("#", "%", "//", "!")
@@ -193,7 +195,7 @@ def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> s
     if len(units) != len(names) or len(filled) < max(2, len(units) // 2) or not units[0]:
         return ""
     for marks in UNIT_MARKS:
-        if all(len(c) > 2 and c[0] == marks[0] and c[-1] == marks[1]
+        if all(len(c) >= 2 and c[0] == marks[0] and c[-1] == marks[1]
                and not _is_number(c[1:-1]) for c in filled):
             return marks
     return ""
@@ -201,6 +203,17 @@ def bracketed_units_row(text: str, rows_before_header: int, delimiter: str) -> s
 
 #: The brackets a units row encloses each unit in (common practice)
 UNIT_MARKS = ("[]", "()")
+
+
+def enclosed_unit(cell: str) -> str:
+    """The unit a units-row cell writes within one pair of :data:`UNIT_MARKS`
+    ("(mg m-2 s-1)" -> "mg m-2 s-1"), else the cell as written."""
+    cell = cell.strip()
+    for marks in UNIT_MARKS:
+        if len(cell) >= 2 and cell[0] == marks[0] and cell[-1] == marks[1] \
+                and marks[0] not in cell[1:-1] and marks[1] not in cell[1:-1]:
+            return cell[1:-1].strip()
+    return cell
 
 #: Field separators a header line retyped by hand or by another program may be written
 #: with where the records use another (the reader's delimiters; "whitespace" a run of
@@ -221,8 +234,10 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
     It is where the header is one cell under `delimiter`, the first records below the
     lines under the header (up to :data:`RECORDS_JUDGED`) each split into the same n >= 2
     fields under it and hold none of another separator of :data:`HEADER_SEPARATORS`,
-    and exactly one such separator splits the header into n non-empty names, the time
-    column's among them: every name then stands over its field (layouts51; refused before, "line 2 has 9 fields where
+    and one such separator splits the header into n non-empty names (or several alike:
+    tabs read as tabs and as blanks), the time column's among them; blanks separate
+    names only as tabs or runs of two or more (`header_names`): every name then stands
+    over its field (layouts51; refused before, "line 2 has 9 fields where
     the header has 1"). A semicolon file with decimal commas read under "," is no such
     file: its records hold the header's semicolons.
 
@@ -256,12 +271,24 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
     if not records or len(_cells(header, delimiter)) != 1 or len(widths) != 1:
         return ""
     width = widths.pop()
-    fits = [other for other in HEADER_SEPARATORS if other != delimiter
-            and (names := _cells(header, other)) and len(names) == width and all(names)
-            and (not time_column or time_column in names)
+    fits = {other: names for other in HEADER_SEPARATORS if other != delimiter
+            and (names := header_names(header, other)) and len(names) == width
+            and all(names) and (not time_column or time_column in names)
             and not any(mark in line for line in records
-                        for mark in _marks(other) - set(delimiter))]
-    return fits[0] if len(fits) == 1 and width >= 2 else ""
+                        for mark in _marks(other) - set(delimiter))}
+    # tabs read alike as tabs and as blanks: one reading (review73)
+    readings = {tuple(names) for names in fits.values()}
+    return next(iter(fits)) if len(readings) == 1 and width >= 2 else ""
+
+
+def header_names(line: str, separator: str) -> list:
+    """A header line's names under `separator`; under ``"whitespace"`` split at tabs and
+    runs of two or more blanks only: a name may hold a single blank ("net radiation",
+    "date time"), so a header of single blanks tells no names (review73: "wind dir" over
+    a header missing one name was read with every later name one field off)."""
+    if separator != "whitespace":
+        return _cells(line, separator)
+    return [cell.strip().strip('"').strip() for cell in re.split(r"\t| {2,}", line.strip())]
 
 
 def _marks(separator: str) -> set:
@@ -279,7 +306,8 @@ def with_header_separator(text: str, rows_before_header: int, rows_after_header:
         line = lines[at]
         end = "\r" if line.endswith("\r") else ""
         body = line.rstrip("\r")
-        if len(_cells(body, delimiter)) == 1 and len(_cells(body, other)) > 1:
-            cells = body.split() if other == "whitespace" else body.split(other)
+        if len(_cells(body, delimiter)) == 1 and len(header_names(body, other)) > 1:
+            cells = (re.split(r"\t| {2,}", body.strip()) if other == "whitespace"
+                     else body.split(other))
             lines[at] = join.join(cell.strip() for cell in cells) + end
     return "\n".join(lines)

@@ -117,7 +117,7 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
-from .quoted_lines import single_quoted, wrapped_lines_message
+from .quoted_lines import line_opening_quote, single_quoted, wrapped_lines_message
 from .reader_notes import ReaderNote, notes_of, warnings_of
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
@@ -3016,10 +3016,12 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             text[:65536].splitlines(), delimiter, rows_before_header,
             rows_before_header + rows_after_header + 1):
         options["quotechar"] = "'"
-        if warnings is not None:
-            warnings.append(ReaderNote(
-                f"input file {str(path)!r}: every cell of the header and the records is "
-                "wrapped in single quotes ('...'), no CSV quotes: read without them"))
+        note = (f"input file {str(path)!r}: every cell of the header and of the first "
+                "records is wrapped in single quotes ('...'), no CSV quotes: read with ' as "
+                "the quote character")
+        if warnings is not None and note not in warnings:     # once where read again
+            warnings.append(ReaderNote(note))
+    quote = options.get("quotechar", '"')
     if delimiter == " " and "  " in next(
             iter(text.splitlines()[rows_before_header:rows_before_header + 1]), "").strip():
         # each space a delimiter: the padding of aligned columns becomes empty columns
@@ -3094,12 +3096,12 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                                                             header_line, text)) from None
         # a quote opened and never closed: the parser names no line of the file
         text_lines = text.splitlines()
-        number = _unclosed_quote_line(parsed.splitlines())
+        number = _unclosed_quote_line(parsed.splitlines(), quote)
         shown = _shown_line(text_lines[number])
         if any(line.strip() for line in text_lines[number + 1:]) or warnings is None \
                 or number <= rows_before_header + rows_after_header + 1:
             raise InputFileError(
-                f"input file {str(path)!r}: line {number + 1} ({shown!r}) opens a quote (\") "
+                f"input file {str(path)!r}: line {number + 1} ({shown!r}) opens a quote ({quote}) "
                 "that no later line closes, so the parser would read the rest of the file "
                 "as one value; close or delete the quote in a copy of the file") from None
         # the last line, cut inside a quoted value (a logger stopped mid-write)
@@ -3108,6 +3110,18 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
                         "mid-write): dropped")
         return _read_text(path, "\n".join(text_lines[:number]) + "\n", delimiter,
                           rows_before_header, rows_after_header, warnings)
+    if quote == "'" and raw.apply(
+            lambda cells: cells.str.contains("\n", regex=False)).to_numpy().any():
+        at = line_opening_quote(text.splitlines(), delimiter,
+                                rows_before_header + rows_after_header + 1)
+        where = (f"line {at + 1} ({_shown_line(text.splitlines()[at])!r})" if at >= 0
+                 else "a record line")
+        raise InputFileError(
+            f"input file {str(path)!r}: {where} opens a single quote (') "
+            "that the line does not close; the file is read with single quotes as its "
+            "quote character (every cell of the header and the first records is wrapped "
+            "in them), so the lines up to the next apostrophe would be read as one value: "
+            "close or delete that quote in a copy of the file")
     first_line = rows_before_header + rows_after_header + 2 + _header_breaks(
         text, rows_before_header, delimiter)
     raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
@@ -3426,6 +3440,28 @@ def _trailing_fields(path: Path, raw: pd.DataFrame, first_line: int,
                 f"{width + extra} fields by tabs ([input] delimiter): tabs turned into "
                 f"blanks by an editor? write the header with tabs in a copy of the file"
                 f"{whitespace}")
+        commas = str(raw.columns[0]).split(",")
+        if (width == 1 and not separator and delimiter != "," and len(commas) == width + extra
+                and any("," in str(cell) for column in cells for cell in column[:1000])):
+            # a header in commas over records holding commas of their own (decimal
+            # commas): the header's commas are no reading (review73: "is a name missing?")
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line holds {len(commas)} names if "
+                f"split at its commas, as many as the data lines' fields (delimiter "
+                f"{setting_text(delimiter)}), but the data lines hold commas too (decimal "
+                "commas?), so the header's commas cannot be read as its separator: write "
+                "the header with the data's delimiter in a copy of the file")
+        single = str(raw.columns[0]).split()
+        if width == 1 and not separator and len(single) == width + extra:
+            # names split at single blanks as many as the fields: a name may hold a
+            # blank, and a header missing a name then reads every later name one field
+            # off (review73), so no reading is taken
+            raise InputFileError(
+                f"input file {str(path)!r}: the header line holds {len(single)} names if "
+                f"split at its single blanks, as many as the data lines' fields (delimiter "
+                f"{setting_text(delimiter)}), but a name may hold a blank too (\"net "
+                "radiation\"), so no reading can tell the names: write the header with the "
+                "data's delimiter in a copy of the file")
         if width == 1 and separator:
             # a header of one cell holding another separator: decimal commas in the data
             # lines split them where the header line stays whole
@@ -3675,11 +3711,13 @@ def _lf_line_ends(text: str) -> str:
     return re.sub(r"\r(?!\n)", "\n", text)
 
 
-def _unclosed_quote_line(text_lines: list) -> int:
+def _unclosed_quote_line(text_lines: list, quote: str = '"') -> int:
     """Index of the line opening the quote that the file never closes: the last line
     after which an odd number of quote characters has been read (a doubled quote inside
-    a quoted value counts two; a quoted value may span lines)."""
-    odd = np.cumsum([line.count('"') for line in text_lines]) % 2 == 1
+    a quoted value counts two; a quoted value may span lines); `quote` the parser's
+    quote character (``'`` where every cell is written in single quotes, review73: the
+    file's last line was taken for it, dropped, and the file read again, line by line)."""
+    odd = np.cumsum([line.count(quote) for line in text_lines]) % 2 == 1
     opened = np.flatnonzero(odd & ~np.concatenate([[False], odd[:-1]]))
     return int(opened[-1]) if opened.size else len(text_lines) - 1
 
@@ -4294,14 +4332,8 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"(line {at + 2} holds every column named in the settings)"
             + (f", under {blank} blank line(s)" if blank else "") + ": read past"))
         at = rows_before_header
-    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
-                                                                           delimiter)
-    if marks:
-        rows_after_header = 1
-        warnings.append(ReaderNote(
-            f"input file {str(path)!r}: line {at + 2} under the header holds "
-            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
-            "read as a units row"))
+    # the header's separator first: a units row under it is judged by its names
+    # (review73: a header in semicolons left the units row in parentheses a record)
     other = header_cells.header_separator(text, at, rows_after_header, delimiter,
                                           next(iter(time_columns), ""))
     if other:
@@ -4312,6 +4344,14 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             f"{header_cells.SEPARATOR_WORDS[other]} where the records use "
             f"{header_cells.SEPARATOR_WORDS.get(delimiter, repr(delimiter))}; each of "
             "its names stands over a field: read so"))
+    marks = "" if rows_after_header else header_cells.bracketed_units_row(text, at,
+                                                                           delimiter)
+    if marks:
+        rows_after_header = 1
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: line {at + 2} under the header holds "
+            f"units in {'brackets' if marks == '[]' else 'parentheses'}, no record: "
+            "read as a units row"))
     blank_above = _check_header_line(text, delimiter, time_columns, rows_before_header, path)
     if blank_above:
         rows_before_header += blank_above
@@ -4810,6 +4850,9 @@ def _labelled_unit_warnings(parts: list, mapping: dict, units: dict) -> list:
             f"([input.units] {name} = {setting_text(declared)})" if declared
             else f"(no [input.units] {name}: its default)")
         for cell, where in written:
+            # "(mg m-2 s-1)", "[kPa]": a units row's marks are no part of the unit
+            # (review73: such labels went unjudged)
+            cell = header_cells.enclosed_unit(cell)
             key = same_unit_key(name, cell)
             note = (flux_rate_labels.unreadable_rate_note(name, column, cell, where,
                                                           read_key[1][0], read_text)
