@@ -1,0 +1,38 @@
+"""Fresh-eyes review of rounds leftovers56 and newuser54 (round review74).
+
+Outside facts, each named beside its check: RFC 3339 section 4.3, "-00:00" states a time
+in UTC whose local offset is unknown, and RFC 9557 section 2 gives "Z" that meaning too;
+RFC 3339's time-numoffset takes hours 00-23 and minutes 00-59 (m). Everything else is
+invented known truth.
+"""
+
+import pandas as pd
+import pytest
+from test_robustness_layouts26 import _read
+from test_robustness_layouts49 import _clean, _lines
+
+from fluxpart.errors import TimestampError
+
+
+def test_an_unknown_local_offset_before_a_zone_reads_as_utc(tmp_path):
+    """UTC stamps written "-00:00[Europe/Berlin]" (the instant in UTC, no local offset
+    stated, as "Z[Europe/Berlin]" reads): refused before as stating two times, since the
+    zone keeps +02:00 in June; now read as the clean file (UTC+1 standard time)."""
+    ends, values, expected = _clean(tmp_path)
+    stamps = [f"{e - pd.Timedelta('1h'):%Y-%m-%dT%H:%M}-00:00[Europe/Berlin]" for e in ends]
+    path = tmp_path / "unknown.csv"
+    path.write_text("\n".join(_lines(stamps, values)) + "\n")
+    read, _ = _read(path, time_format="ISO8601")
+    pd.testing.assert_frame_equal(read, expected)
+
+
+@pytest.mark.parametrize("suffix", ["[+02:99]", "[+24:00]"])
+def test_a_bracketed_offset_out_of_range_is_refused_naming_it(tmp_path, suffix):
+    """"[+02:99]" was read as +03:39 and the refusal named that offset, written nowhere."""
+    ends, values, _ = _clean(tmp_path)
+    stamps = [f"{e + pd.Timedelta('1h'):%Y-%m-%dT%H:%M}+02:00{suffix}" for e in ends]
+    path = tmp_path / "zoned.csv"
+    path.write_text("\n".join(_lines(stamps, values)) + "\n")
+    with pytest.raises(TimestampError, match=r"line 2 .*its suffix \[\+\d\d:\d\d\] is no UTC "
+                                             r"offset \(hours 00-23, minutes 00-59\)"):
+        _read(path, time_format="ISO8601")
