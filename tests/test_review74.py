@@ -36,3 +36,25 @@ def test_a_bracketed_offset_out_of_range_is_refused_naming_it(tmp_path, suffix):
     with pytest.raises(TimestampError, match=r"line 2 .*its suffix \[\+\d\d:\d\d\] is no UTC "
                                              r"offset \(hours 00-23, minutes 00-59\)"):
         _read(path, time_format="ISO8601")
+
+
+def test_a_unit_and_a_geometry_refusal_are_both_named_as_causes():
+    """Air temperature in °F undeclared beside a latitude of the wrong sign (the example,
+    probed in review74): the unit's note alone was printed, counting the latitude's
+    refusal, Rg above the potential radiation and the night mask among what "may follow"
+    from a temperature's unit, which moves no sun (the potential radiation is a function
+    of latitude, longitude and time only: Spencer 1971 (m)). Now both are named; with
+    nothing listed beyond the two refusals, no note."""
+    from fluxpart.cli import _follow_on_note
+
+    unit = ["column 'air_temp_c' (tair, read as °C): ... set [input.units] tair = \"°F\""]
+    geometry = ["site geometry: ... set [site] latitude = 49.3"]
+    note = _follow_on_note(unit, geometry, 5)
+    assert note.startswith("  note: the run stops at the unit mix-up and at the clock or "
+                           "site geometry named above;"), note
+    assert note.endswith("may follow from them alone: set the unit, make the change it "
+                         "names and run check again\n"), note
+    assert _follow_on_note(unit, geometry, 2) == ""
+    assert _follow_on_note(unit, (), 2).startswith("  note: the run stops at the unit mix-up "
+                                                   "named above;")
+    assert "clock" not in _follow_on_note(unit, (), 2)
