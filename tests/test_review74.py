@@ -58,3 +58,35 @@ def test_a_unit_and_a_geometry_refusal_are_both_named_as_causes():
     assert _follow_on_note(unit, (), 2).startswith("  note: the run stops at the unit mix-up "
                                                    "named above;")
     assert "clock" not in _follow_on_note(unit, (), 2)
+
+
+def test_the_tonnes_of_an_uptake_whose_interval_holds_zero_are_not_said_taken_up():
+    """Invented NEE of -20 g C m-2 with a 95 % interval of -60 to +20: the headline said
+    the record does not tell an uptake from a release, then "These tonnes are CO2 taken
+    from the air". The clause now stays conditional there; a clear uptake keeps it as it
+    was (newuser54's test_review39 case). Tonnes as 44.009 / 12.011 x 0.01 (m)."""
+    import html
+    import re
+
+    from fluxpart import report
+    from fluxpart.figures import Written
+
+    index = pd.date_range("2023-01-01", "2023-12-31 23:30", freq="30min")
+    for nee, low, high, said in ((-20.0, -60.0, 20.0, "Were they an uptake, these tonnes "
+                                  "would be CO2 taken from the air above the canopy"),
+                                 (-229.8, -243.0, -216.0, "These tonnes are CO2 taken from "
+                                  "the air above the canopy")):
+        annual = pd.DataFrame({
+            "nee": [nee], "complete": [True], "records": [17520],
+            "records_expected": [17520], "records_unfilled": [0],
+            "net_uptake_t_co2_per_ha": [-nee * 44.009 / 12.011 * 0.01],
+            "nee_ci95_low": [low], "nee_ci95_high": [high], "ustar_threshold": [0.17]},
+            index=pd.Index([2023], name="year"))
+        written = Written(manifest={}, tables={
+            "timeseries": pd.DataFrame({"nee_filled": nee / 1e3}, index=index),
+            "annual": annual})
+        headline = re.search(r'<p class="headline">(.*?)</p>',
+                             report._summary_card(written)[0], re.S).group(1)
+        plain = " ".join(html.unescape(re.sub(r"<[^>]+>", "", headline)).split())
+        assert said in plain, plain
+        assert ("holds zero" in plain) is (high > 0), plain
