@@ -464,22 +464,29 @@ def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
     Returns
     -------
     str
-        One indented line ending in a newline, or ``""`` where nothing else is listed.
+        One indented line ending in a newline, naming each refusal given (a unit and a
+        clock refusal both where both stop the run), or ``""`` where nothing else is
+        listed.
     """
-    if unit_refusals and listed > len(unit_refusals):
-        if all("[input] missing" in text for text in unit_refusals):
-            return ("  note: the run stops at the missing code named above; the other problems "
-                    "were judged with that code read as a value and may follow from it "
-                    "alone: add it to [input] missing and run check again\n")
-        return ("  note: the run stops at the unit mix-up named above; the other problems "
-                "were judged on the values as read in that unit and may follow from it "
-                "alone: set the unit and run check again\n")
-    if clock_stops and listed > len(clock_stops):
-        return ("  note: the run stops at the clock or site geometry named above; the other "
-                "problems were judged against the sun as [site] places it (Rg above the "
-                "potential radiation, the night mask) and may follow from it alone: make the "
-                "change it names and run check again\n")
-    return ""
+    causes = []          # (what stops the run, how the rest was judged, the fix)
+    if unit_refusals:
+        causes.append(("the missing code", "with that code read as a value",
+                       "add it to [input] missing")
+                      if all("[input] missing" in text for text in unit_refusals) else
+                      ("the unit mix-up", "on the values as read in that unit", "set the unit"))
+    if clock_stops:
+        causes.append(("the clock or site geometry", "against the sun as [site] places it "
+                       "(Rg above the potential radiation, the night mask)",
+                       "make the change it names"))
+    # both at once: each named, where the unit's note alone counted the clock's refusal
+    # among what may follow from the unit (a temperature's unit moves no sun; review74)
+    if not causes or listed <= len(unit_refusals) + len(clock_stops):
+        return ""
+    stops, judged, fixes = zip(*causes, strict=True)
+    return (f"  note: the run stops at {' and at '.join(stops)} named above; the other "
+            f"problems were judged {' and '.join(judged)} and may follow from "
+            f"{'it' if len(causes) == 1 else 'them'} alone: {', '.join(fixes)} and run "
+            "check again\n")
 
 
 def _command_check(args) -> int:

@@ -419,14 +419,18 @@ def _spans_zero(kind, low, high) -> str:
     return ""
 
 
-def _not_stored(release: bool) -> str:
+def _not_stored(release: bool, spans_zero: bool = False) -> str:
     """The headline's clause beside the tonnes of a net uptake: the tonnes are what a reader
     quotes, and the note that they are not carbon stored stood only in the small print
-    below the card (newuser54); a crediting methodology decides what a removal is."""
+    below the card (newuser54); a crediting methodology decides what a removal is. Where
+    the interval holds zero, the sentence before says the record does not tell an uptake
+    from a release, so the clause does not say the tonnes were taken up (review74)."""
     if release:
         return ""
-    return (" These tonnes are CO2 taken from the air above the canopy: not by themselves "
-            "carbon the ecosystem stored, nor a credited removal (notes below).")
+    taken = ("Were they an uptake, these tonnes would be CO2 taken" if spans_zero
+             else "These tonnes are CO2 taken")
+    return (f" {taken} from the air above the canopy: not by themselves carbon the "
+            "ecosystem stored, nor a credited removal (notes below).")
 
 
 def _summary_card(written: Written) -> tuple[str, bool]:
@@ -484,7 +488,8 @@ def _summary_card(written: Written) -> tuple[str, bool]:
             f"{_number(abs(nee), 0, 'nee_abs', label, _CARBON_UNIT)} of carbon: "
             f"NEE {_number(nee, 1, 'nee', label, _CARBON_UNIT)} "
             f"({_interval_html(kind, low, high, 1, 'nee', label, row)}), {tonnes} "
-            f"({t_interval}).{_spans_zero(kind, low, high)}{_not_stored(release)}</p>")
+            f"({t_interval}).{_spans_zero(kind, low, high)}"
+            f"{_not_stored(release, bool(_spans_zero(kind, low, high)))}</p>")
         headline += _unmeasured_note(written, label, periods[label][3])
         flux_rows = []
         for part in ("gpp", "reco"):

@@ -10,7 +10,8 @@ where they differ (a logger writing the winter offset all year beside its zone n
 file states two times for one record and is refused, naming the stamp and both offsets
 (RFC 9557 section 3.4 leaves such an inconsistency to the application, an error where the
 suffix is marked critical, "[!Europe/Berlin]"). A "Z" before the suffix states the instant
-in UTC and no local offset, so it disagrees with no zone (round layouts49). A zone name
+in UTC and no local offset, so it disagrees with no zone (round layouts49), and so does
+"-00:00" (RFC 3339's unknown local offset; review74). A zone name
 written in another case ("[europe/berlin]") names the one IANA zone it matches without
 case, and a UTC offset in brackets ("[+01:00]", RFC 9557's numeric zone) a fixed offset,
 compared with the stamp's as a name's is (leftovers56: both were refused, the first as an
@@ -61,6 +62,12 @@ def _read_suffix(suffix: str):
     """A written suffix as ``(label, zone, minutes, problem)``: the zone's label for the
     note, an IANA zone name or None, a fixed offset [min] or None, and what is wrong."""
     numeric = _ZONE_OFFSET.match(suffix)
+    if numeric and (int(numeric["hours"]) > 23 or int(numeric["minutes"]) > 59):
+        # RFC 3339's time-hour 00-23 and time-minute 00-59 (RFC 9557 takes its offset
+        # from there): "[+02:99]" read as +03:39 (review74)
+        return suffix, None, None, (
+            f"its suffix {suffix} is no UTC offset (hours 00-23, minutes 00-59); write the "
+            "offset the stamp states, or leave the suffix out")
     if numeric:
         minutes = (int(numeric["hours"]) * 60 + int(numeric["minutes"])) \
             * (-1 if numeric["sign"] == "-" else 1)
@@ -126,7 +133,13 @@ def zone_suffixes(text: pd.Series, time_format: str = "ISO8601"
             first = int(np.flatnonzero((parts["suffix"] == suffix).to_numpy())[0])
             return stripped, zones, first, problem
     offsets = stripped.str.extract(_OFFSET)
-    written = offsets["sign"].notna().to_numpy() & suffixed
+    # "-00:00" states the instant in UTC and no local offset, as "Z" does (RFC 3339
+    # section 4.3, which RFC 9557 section 2 makes Z's meaning too): compared with no zone
+    # (review74: "-00:00[Europe/London]" in summer was refused as two times)
+    unknown = ((offsets["sign"] == "-")
+               & (pd.to_numeric(offsets["hours"], errors="coerce") == 0)
+               & (pd.to_numeric(offsets["minutes"], errors="coerce").fillna(0) == 0))
+    written = offsets["sign"].notna().to_numpy() & ~unknown.to_numpy() & suffixed
     if not written.any():
         return stripped, zones, -1, ""            # "Z" before every suffix: UTC stated
     sign = np.where(offsets["sign"] == "-", -1, 1)
