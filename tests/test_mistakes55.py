@@ -3,7 +3,7 @@ a VPD column (`fluxpart.unit_checks`)."""
 import numpy as np
 import pandas as pd
 
-from fluxpart.unit_checks import mixup_messages
+from fluxpart.unit_checks import _without_rh_fraction_months, mixup_messages
 from fluxpart.variables import saturation_vapour_pressure
 
 
@@ -35,3 +35,24 @@ def test_rh_as_a_fraction_from_april_names_rh_not_a_vpd_unit():
     clean_refusals, clean_warnings = mixup_messages({"vpd": vpd, "tair": tair, "rh": rh},
                                                     {"vpd": "kPa"}, columns, 30, stamps=stamps)
     assert not clean_refusals and not clean_warnings
+
+
+def test_desert_summer_rh_in_percent_is_not_read_as_a_fraction():
+    """A desert site (invented) whose summer RH runs 2-8 % at its driest (July under 15 %; afternoons of a hot desert
+    reach a few per cent, common practice (m)), written in percent beside a right VPD
+    column: no month is left out of the VPD the humidity allows, and nothing is named
+    (review76: the months rule reads a fraction only where a month's RH never exceeds
+    1.05)."""
+    stamps = pd.date_range("2021-01-01", "2021-12-31 23:30", freq="30min")
+    day = np.arange(stamps.size) / 48.0
+    summer = np.clip(np.sin(np.pi * (day - 90) / 200), 0, 1)
+    tair = 18 + 14 * summer + 8 * np.sin(2 * np.pi * (day - 0.375))
+    dry = 2.0 + 6.0 * (0.5 - 0.5 * np.sin(2 * np.pi * (day - 0.375)))
+    rh = (1 - summer) * (40 + 20 * np.cos(2 * np.pi * day)) + summer * dry
+    assert rh[stamps.month == 7].max() < 15.0
+    vpd = saturation_vapour_pressure(tair) * (1 - rh / 100)
+    converted = {"vpd": vpd, "tair": tair, "rh": rh}
+    kept = _without_rh_fraction_months(converted, {}, None, stamps)
+    assert np.array_equal(kept["rh"], rh)
+    columns = {"vpd": "vpd_kpa", "tair": "air_temp_c", "rh": "rel_humidity"}
+    assert mixup_messages(converted, {"vpd": "kPa"}, columns, 30, stamps=stamps) == ({}, [])
