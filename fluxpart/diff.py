@@ -258,12 +258,27 @@ class DiffReport:
 def _run_fact_subject(facts) -> tuple:
     """The facts of the run that differ named for a sentence, and its verb:
     ``("the platform", "differs")``, ``("library versions and the code", "differ")``."""
-    names = [_RUN_FACT_NAMES[section] for section in RUN_FACTS
-             if any(item[0] == section for item in facts)]
+    names = [_input_subject(facts) if section == "input" else _RUN_FACT_NAMES[section]
+             for section in RUN_FACTS if any(item[0] == section for item in facts)]
     if len(names) <= 1:
         subject = names[0] if names else ""
-        return subject, "differs" if subject in ("the code", "the platform") else "differ"
+        return subject, ("differs" if subject in ("the code", "the platform", "the demo record")
+                         else "differ")
     return f"{', '.join(names[:-1])} and {names[-1]}", "differ"
+
+
+def _input_subject(facts) -> str:
+    """The input facts that differ named for a sentence: ``"the site config's bytes"``
+    where only its SHA-256 differs, ``"the inputs' bytes"`` where the input file's does
+    too (review75: "the inputs' bytes differ" sent the reader to the input file when only
+    the site config had been edited)."""
+    files = [name.removesuffix(" SHA-256") for section, name, _, _ in facts
+             if section == "input" and name.endswith(" SHA-256")]
+    named = ([_RUN_FACT_NAMES["input"]] if len(files) > 1 else
+             [f"the {files[0]}'s bytes"] if files else [])
+    if any(item[:2] == ("input", "demo record") for item in facts):
+        named.append("the demo record")
+    return " and ".join(named)
 
 
 def _run_fact_lines(facts) -> list:

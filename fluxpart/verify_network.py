@@ -118,6 +118,7 @@ class NetworkReport:
                 lines.append(f"    (fluxpart verify {shown_path(report.directory)} gives "
                              "this site's whole report)")
             lines += [f"    {line}" for line in own if line.startswith("result: ")]
+            lines += [f"    note: {note}" for note in report.kept_notes]
         for key, error in self.unverified:
             lines.append(f"  {key:<{width}}  {NOT_VERIFIED}: {error}")
         for key, error in self.failed:
