@@ -571,8 +571,8 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
     share of its column's largest magnitude) had no column to speak of: a part that is
     zero in one folder and a float residue (9.46e-23 g C m-2) in the other was a move of
     -100 %. The values of one unit in one year are computed from the same records, so the
-    year's largest magnitude in that unit (both folders) stands in for the column
-    (:func:`_unit_scale`; round faults46).
+    year's largest magnitude in that unit that both folders share stands in for the column
+    (:func:`_unit_scale`; round faults46, review75).
     """
     from .verify import within_rounding
 
@@ -588,8 +588,14 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
 
 
 def _unit_scale(first: pd.DataFrame, second: pd.DataFrame) -> dict:
-    """Per float column with a unit, the largest magnitude per row among the float columns
-    of the same unit in both tables (NaN ignored; 0 where none is finite)."""
+    """Per float column with a unit, the largest magnitude per row that both tables share
+    among the float columns of the same unit: per column the smaller of its two
+    magnitudes, then the largest of these (NaN and infinities count as 0).
+
+    The smaller of the two: a value that blew up in one folder only (a fit gone astray,
+    1.4e12 g C m-2) made the larger one the scale, and a real move of another column
+    (NEE -240.6 to -190.6) read as "equal within rounding" (review75).
+    """
     units = {**(second.attrs.get("units") or {}), **(first.attrs.get("units") or {})}
     groups = {}
     for column in first.columns.intersection(second.columns):
@@ -598,10 +604,10 @@ def _unit_scale(first: pd.DataFrame, second: pd.DataFrame) -> dict:
             groups.setdefault(units[column], []).append(column)
     scales = {}
     for columns in groups.values():
-        values = np.abs(np.hstack([frame[columns].to_numpy(dtype=np.float64)
-                                   for frame in (first, second)]))
+        values = np.abs(np.stack([frame[columns].to_numpy(dtype=np.float64)
+                                  for frame in (first, second)]))
         values[~np.isfinite(values)] = 0.0
-        scales.update(dict.fromkeys(columns, values.max(axis=1)))
+        scales.update(dict.fromkeys(columns, values.min(axis=0).max(axis=1)))
     return scales
 
 

@@ -274,6 +274,27 @@ def test_a_zero_part_against_its_float_residue_is_no_move():
     assert same == 1
 
 
+def test_a_value_blown_up_in_one_folder_hides_no_move_of_another():
+    """review75: the year's scale of a unit was the largest magnitude in either folder, so
+    a value blown up in one (a fit gone astray: GPP 1.4e12 g C m-2) made a real move of
+    NEE by 50 g C m-2 (21 %) "equal within rounding" (1e-6 of 1e-3 of 1.4e12). The scale is
+    now the magnitude both folders share: NEE is a move, the residue still rounding."""
+    import pandas as pd
+
+    from fluxpart.diff import _annual_moves
+
+    year = pd.Index([2021], name="year")
+    first = pd.DataFrame({"gpp_nighttime": [1419.4], "nee": [-240.6],
+                          "reco_uncertainty_respiration_form": [0.0]}, index=year)
+    first.attrs["units"] = dict.fromkeys(first.columns, "g C m-2")
+    second = first.assign(gpp_nighttime=1.4e12, nee=-190.6,
+                          reco_uncertainty_respiration_form=9.46e-23)
+    second.attrs = dict(first.attrs)
+    moves, _, rounding = _annual_moves(first, second)
+    assert sorted(column for _, column in moves.index) == ["gpp_nighttime", "nee"]
+    assert rounding == [(2021, "reco_uncertainty_respiration_form")]
+
+
 def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsys):
     """Behaviour check (review63, a modeller's diff of a changed setting): the moves table
     put -0.27 of NEE (g C m-2), 0.012 of the u* threshold (m s-1) and -0.009 of a share
