@@ -48,3 +48,23 @@ def test_the_report_remedy_suggests_a_folder_that_exists(tmp_path, monkeypatch):
     assert _suggested_out() == shlex.quote(str(work / "report"))
     monkeypatch.setenv("HOME", str(tmp_path / "nonexistent"))
     assert _suggested_out() == shlex.quote(str(work / "report"))
+
+
+def test_a_network_site_keeps_the_note_of_its_edited_site_config(tmp_path):
+    """A network's site lines showed a site's verdict and result: line only, so the note
+    that its site config was edited since the run (the verdict used the manifest's copy)
+    was never printed for a batch's site; it is kept below the site, with or without
+    ``--quiet``, and a note of another kind is not."""
+    from fluxpart.verify import CONFIG_EDITED, VerifyReport
+    from fluxpart.verify_network import NetworkReport
+
+    edited = (f"site config: the file at '{tmp_path}/alder.toml' {CONFIG_EDITED}; changed "
+              "since the run: [processing] seed 0 -> 1; used the copy of its text recorded "
+              "in the manifest (SHA-256 checked)")
+    site = VerifyReport(directory=tmp_path / "alder", source="run",
+                        notes=(edited, "input: read through a link"))
+    assert site.kept_notes == [edited]
+    network = NetworkReport(directory=tmp_path, sites=(("alder", site),), failed=())
+    for quiet in (False, True):
+        notes = [line for line in network.lines(quiet=quiet) if "note:" in line]
+        assert notes == [f"    note: {edited}"]
