@@ -709,7 +709,9 @@ def _parser() -> argparse.ArgumentParser:
                         help="print only the verdict (naming a changed, missing or "
                         "unlisted file, and an input or site config that is another "
                         "file), the result: line naming which result the folder holds, and "
-                        "the caution (same exit status)")
+                        "the caution (same exit status); and a note where the site config at "
+                        "its recorded place was edited since the run (the verdict used the "
+                        "manifest's copy)")
     verify.add_argument("--detail", action="store_true",
                         help="print each differing metadata entry (a column's description or "
                         "unit, each copy) with both texts in full; by default a table's "

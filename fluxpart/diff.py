@@ -258,12 +258,27 @@ class DiffReport:
 def _run_fact_subject(facts) -> tuple:
     """The facts of the run that differ named for a sentence, and its verb:
     ``("the platform", "differs")``, ``("library versions and the code", "differ")``."""
-    names = [_RUN_FACT_NAMES[section] for section in RUN_FACTS
-             if any(item[0] == section for item in facts)]
+    names = [_input_subject(facts) if section == "input" else _RUN_FACT_NAMES[section]
+             for section in RUN_FACTS if any(item[0] == section for item in facts)]
     if len(names) <= 1:
         subject = names[0] if names else ""
-        return subject, "differs" if subject in ("the code", "the platform") else "differ"
+        return subject, ("differs" if subject in ("the code", "the platform", "the demo record")
+                         else "differ")
     return f"{', '.join(names[:-1])} and {names[-1]}", "differ"
+
+
+def _input_subject(facts) -> str:
+    """The input facts that differ named for a sentence: ``"the site config's bytes"``
+    where only its SHA-256 differs, ``"the inputs' bytes"`` where the input file's does
+    too (review75: "the inputs' bytes differ" sent the reader to the input file when only
+    the site config had been edited)."""
+    files = [name.removesuffix(" SHA-256") for section, name, _, _ in facts
+             if section == "input" and name.endswith(" SHA-256")]
+    named = ([_RUN_FACT_NAMES["input"]] if len(files) > 1 else
+             [f"the {files[0]}'s bytes"] if files else [])
+    if any(item[:2] == ("input", "demo record") for item in facts):
+        named.append("the demo record")
+    return " and ".join(named)
 
 
 def _run_fact_lines(facts) -> list:
@@ -556,8 +571,8 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
     share of its column's largest magnitude) had no column to speak of: a part that is
     zero in one folder and a float residue (9.46e-23 g C m-2) in the other was a move of
     -100 %. The values of one unit in one year are computed from the same records, so the
-    year's largest magnitude in that unit (both folders) stands in for the column
-    (:func:`_unit_scale`; round faults46).
+    year's largest magnitude in that unit that both folders share stands in for the column
+    (:func:`_unit_scale`; round faults46, review75).
     """
     from .verify import within_rounding
 
@@ -573,8 +588,14 @@ def _rounding_cells(first: pd.DataFrame, second: pd.DataFrame, other: set) -> se
 
 
 def _unit_scale(first: pd.DataFrame, second: pd.DataFrame) -> dict:
-    """Per float column with a unit, the largest magnitude per row among the float columns
-    of the same unit in both tables (NaN ignored; 0 where none is finite)."""
+    """Per float column with a unit, the largest magnitude per row that both tables share
+    among the float columns of the same unit: per column the smaller of its two
+    magnitudes, then the largest of these (NaN and infinities count as 0).
+
+    The smaller of the two: a value that blew up in one folder only (a fit gone astray,
+    1.4e12 g C m-2) made the larger one the scale, and a real move of another column
+    (NEE -240.6 to -190.6) read as "equal within rounding" (review75).
+    """
     units = {**(second.attrs.get("units") or {}), **(first.attrs.get("units") or {})}
     groups = {}
     for column in first.columns.intersection(second.columns):
@@ -583,10 +604,10 @@ def _unit_scale(first: pd.DataFrame, second: pd.DataFrame) -> dict:
             groups.setdefault(units[column], []).append(column)
     scales = {}
     for columns in groups.values():
-        values = np.abs(np.hstack([frame[columns].to_numpy(dtype=np.float64)
-                                   for frame in (first, second)]))
+        values = np.abs(np.stack([frame[columns].to_numpy(dtype=np.float64)
+                                  for frame in (first, second)]))
         values[~np.isfinite(values)] = 0.0
-        scales.update(dict.fromkeys(columns, values.max(axis=1)))
+        scales.update(dict.fromkeys(columns, values.min(axis=0).max(axis=1)))
     return scales
 
 

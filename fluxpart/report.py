@@ -36,6 +36,7 @@ import html
 import inspect
 import os
 import re
+import shlex
 from contextlib import nullcontext
 from pathlib import Path
 
@@ -1585,12 +1586,36 @@ def build_report(directory, out=None, *, progress=None) -> Path:
                   if error.errno == errno.EDQUOT
                   else "raise the file-size limit (ulimit -f), or give --out a folder on "
                   "another file system" if error.errno == errno.EFBIG
-                  else "give --out a writable folder (e.g. --out ~/report)")
+                  else f"give --out a writable folder (e.g. --out {_suggested_out()})")
         raise OutputError(f"the report folder {str(out)!r} cannot be written "
                           f"({error.strerror or error}); the earlier report, if any, is "
                           f"unchanged: {remedy}") from None
     tick()
     return out / "report.html"
+
+
+def _suggested_out() -> str:
+    """An ``--out`` to suggest where a report folder cannot be written: ``report`` in the
+    first of the home folder, the working folder and the system's temporary folder that
+    exists and this user may write (``~/report`` where that is the home folder).
+
+    "~/report" was suggested whatever the home: with HOME unset (a service account, a
+    cron job) the shell gives the password file's home, often ``/nonexistent``, and the
+    suggested folder could not be made either (review75).
+    """
+    import tempfile
+
+    home = os.environ.get("HOME")
+    places = [home]
+    for where in (os.getcwd, tempfile.gettempdir):
+        try:
+            places.append(where())
+        except OSError:             # the working folder deleted; no temporary folder usable
+            pass
+    for place in places:
+        if place and os.path.isdir(place) and os.access(place, os.W_OK | os.X_OK):
+            return "~/report" if place == home else shlex.quote(str(Path(place) / "report"))
+    return "FOLDER"
 
 
 def _require_same_folder(directory: Path, read_from, out: Path) -> None:

@@ -109,6 +109,13 @@ __all__ = ["JSON_FORMAT", "NEAR_ZERO_SHARE", "ROUNDING_TOLERANCE", "Difference",
            "command_verify", "compare_tables", "field_differences", "respelled_inputs", "verify",
            "within_rounding"]
 
+#: SHA-256 of no bytes (FIPS 180-4; ``hashlib.sha256(b"").hexdigest()``): an input or site
+#: config with this digest is a file cut to nothing (a copy or sync cut short), which verify
+#: says in words where the digest alone meant nothing to a reader (review75)
+EMPTY_SHA256 = "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
+#: How a note says that the site config at its recorded place is another version than the
+#: run's (its recorded copy was used): the note ``--quiet`` keeps (:attr:`VerifyReport.kept_notes`).
+CONFIG_EDITED = "is another version"
 #: Largest relative difference of a float value still classed as floating-point rounding.
 ROUNDING_TOLERANCE = 1e-6
 #: Standard errors of fitted parameters (a column ``X_se`` beside ``X`` in a
@@ -221,13 +228,11 @@ class Difference:
         if self.kind == "more":
             return f"{self.table}: {self.count} more column(s) differ: {self.stored}"
         if self.kind == "input":
-            if self.cause:
-                return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the "
-                        f"manifest records {self.stored}: {self.cause}, so nothing was "
-                        "recomputed")
-            return (f"{self.column} {self.row} has SHA-256 {self.recomputed}, but the manifest "
-                    f"records {self.stored}: it is not the {self.column} the result was "
-                    "computed from, so nothing was recomputed")
+            now = (f"is now empty (0 bytes, SHA-256 {self.recomputed})"
+                   if self.recomputed == EMPTY_SHA256 else f"has SHA-256 {self.recomputed}")
+            cause = self.cause or f"it is not the {self.column} the result was computed from"
+            return (f"{self.column} {self.row} {now}, but the manifest records "
+                    f"{self.stored}: {cause}, so nothing was recomputed")
         if self.kind == "hash":
             return (f"{self.table}: file SHA-256 {self.recomputed} is not the {self.stored} "
                     f"recorded in manifest.json ({self.column or 'the file'} was changed after "
@@ -398,9 +403,20 @@ class VerifyReport:
         one-line verdict of ``--quiet`` and of a network's site, which otherwise read
         "1 difference(s)" naming nothing (auditor53)."""
         return [" ".join([str(d.column), *([Path(d.row).name] if d.row else [])])
-                + f" is not the one the result was computed from (SHA-256 "
-                f"{d.recomputed[:12]}..., recorded {d.stored[:12]}...)"
+                + (f" is now empty (0 bytes; recorded SHA-256 {d.stored[:12]}...)"
+                   if d.recomputed == EMPTY_SHA256 else
+                   f" is not the one the result was computed from (SHA-256 "
+                   f"{d.recomputed[:12]}..., recorded {d.stored[:12]}...)")
                 for d in self.differences if d.kind == "input"]
+
+    @property
+    def kept_notes(self) -> list[str]:
+        """The notes the one-line verdicts keep (``--quiet``, a network's site): the site
+        config at its recorded place edited since the run, whose recorded copy the verdict
+        used. Without it a reader of that file took its settings for the verified ones
+        (review75)."""
+        return [note for note in self.notes
+                if note.startswith("site config: ") and CONFIG_EDITED in note]
 
     @property
     def changes(self) -> list[str]:
@@ -1636,7 +1652,7 @@ def _site_config(directory: Path, recorded: dict, given, scratch: Path, notes: l
                      "endings); the recorded text was used, the file only to find the input")
         return copy, path, None
     if copy is not None:
-        where = (f"the file at {str(path)!r} is another version{_config_changes(path, copy)}"
+        where = (f"the file at {str(path)!r} {CONFIG_EDITED}{_config_changes(path, copy)}"
                  if path is not None and path.is_file() else f"it is not at {str(path)!r}")
         notes.append(f"site config: {where}; used the copy of its text recorded in the "
                      "manifest (SHA-256 checked)")
@@ -2596,7 +2612,7 @@ def command_verify(args) -> int:
         identity = [line for line in lines if line.startswith("result: ")]
         changed = report.changes
         headline = lines[0].rstrip(":") + (f" ({'; '.join(changed)})" if changed else "")
-        lines = [headline, *identity, lines[-1]]
+        lines = [headline, *identity, *[f"note: {n}" for n in report.kept_notes], lines[-1]]
     print("\n".join(lines))
     return report.exit_code
 

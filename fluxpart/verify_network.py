@@ -11,9 +11,10 @@ by itself (the batch's own exit status and its failures table already say it fai
 A complete seal that does not hold (a network file or a site's manifest not as sealed)
 fails the verdict, as a tampered result folder fails its own, and the sites are still
 verified; a seal damaged or left incomplete lists no site to walk and is an error.
-A site that cannot be verified (its input at no recorded place, a folder it cannot read)
-does not stop the walk: every other site is still verified and reported, and the command
-ends in one ``error:`` line naming each such site (exit 2, round faults46).
+A site that cannot be verified (its folder missing, its input at no recorded place, a
+folder it cannot read) does not stop the walk: every other site is still verified and
+reported, and the command ends in one ``error:`` line naming each such site (exit 2, round
+faults46).
 """
 
 from __future__ import annotations
@@ -22,7 +23,7 @@ import json
 from dataclasses import dataclass
 from pathlib import Path
 
-from .errors import ConfigError, FluxpartError, InputFileError
+from .errors import ConfigError, FluxpartError
 from .manifest import manifest_text, shown_path
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
 from .network_tables import failed_sites, network_table
@@ -118,6 +119,7 @@ class NetworkReport:
                 lines.append(f"    (fluxpart verify {shown_path(report.directory)} gives "
                              "this site's whole report)")
             lines += [f"    {line}" for line in own if line.startswith("result: ")]
+            lines += [f"    note: {note}" for note in report.kept_notes]
         for key, error in self.unverified:
             lines.append(f"  {key:<{width}}  {NOT_VERIFIED}: {error}")
         for key, error in self.failed:
@@ -125,7 +127,9 @@ class NetworkReport:
                          "in failures.parquet)")
         bad = [key for key, report in self.sites if report.exit_code]
         if self.unverified:
-            lines.append(f"not verified: {len(self.unverified)} of "
+            lines.append("not verified: "
+                         + ("the network seal does not hold; " if self.seal_problem else "")
+                         + f"{len(self.unverified)} of "
                          f"{len(self.sites) + len(self.unverified)} listed site(s) "
                          f"{NOT_VERIFIED} ({', '.join(k for k, _ in self.unverified)}); "
                          f"{len(self.sites) - len(bad)} reproduced, {len(bad)} not")
@@ -194,12 +198,13 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Raises
     ------
     InputFileError
-        If a site folder the seal lists is missing (named), or the seal is no complete
-        one (damaged, or written incomplete by a stopped batch). Network files or site
-        manifests that do not match a complete seal are the report's `seal_problem`.
+        If the seal is no complete one (damaged, or written incomplete by a stopped
+        batch). Network files or site manifests that do not match a complete seal are
+        the report's `seal_problem`.
 
-    A site's verify error (its input not found, say) is the report's `unverified` entry
-    for that site, and the walk goes on with the next.
+    A site folder the seal lists that is missing, or a site's verify error (its input
+    not found, say), is the report's `unverified` entry for that site, and the walk goes
+    on with the next.
 
     References
     ----------
@@ -209,11 +214,12 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     out = Path(directory).absolute()
     sealed = _listed_sites(out)
     listed = sealed or []
-    for key, folder in listed:
-        if not folder.is_dir():
-            raise InputFileError(f"verify: site {key!r}: its folder {str(folder)!r}, listed in "
-                                 f"{str(out / NETWORK_SEAL)!r}, does not exist (moved or "
-                                 "deleted?); put it back, or run the batch again")
+    # a site folder gone is named with the sites that could not be verified, and the walk
+    # verifies the others (review75: it ended the command before any site, the fault
+    # faults46 mended for a site's input)
+    gone = {key: (f"its folder {str(folder)!r}, listed in {str(out / NETWORK_SEAL)!r}, does "
+                  "not exist (moved or deleted?); put it back, or run the batch again")
+            for key, folder in listed if not folder.is_dir()}
     seal_problem = ""
     for table in NETWORK_DATASETS:
         try:
@@ -229,6 +235,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             break
     reports, unverified = [], []
     for key, folder in listed:
+        if key in gone:
+            unverified.append((key, gone[key]))
+            continue
         try:
             reports.append((key, verify(folder, exact=exact)))
         except FluxpartError as error:

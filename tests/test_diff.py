@@ -56,6 +56,9 @@ def test_setting_and_annual_moves_are_listed(folders, capsys):
     assert main(["diff", str(first), str(second)]) == 1
     out = capsys.readouterr().out
     assert "setting rg_tolerance" in out and "first 50.0" in out and "second 80.0" in out
+    # only the site config's SHA-256 differs among the inputs: named so (review75: "the
+    # inputs' bytes differ" sent the reader to the input file)
+    assert "; the site config's bytes differ in 1 fact(s) of the run" in out
 
 
 def test_another_seed_is_listed_once():
@@ -269,6 +272,27 @@ def test_a_zero_part_against_its_float_residue_is_no_move():
     assert sorted(column for _, column in moves.index) == [
         "reco_nighttime", "reco_uncertainty_respiration_form", "ustar_threshold"]
     assert same == 1
+
+
+def test_a_value_blown_up_in_one_folder_hides_no_move_of_another():
+    """review75: the year's scale of a unit was the largest magnitude in either folder, so
+    a value blown up in one (a fit gone astray: GPP 1.4e12 g C m-2) made a real move of
+    NEE by 50 g C m-2 (21 %) "equal within rounding" (1e-6 of 1e-3 of 1.4e12). The scale is
+    now the magnitude both folders share: NEE is a move, the residue still rounding."""
+    import pandas as pd
+
+    from fluxpart.diff import _annual_moves
+
+    year = pd.Index([2021], name="year")
+    first = pd.DataFrame({"gpp_nighttime": [1419.4], "nee": [-240.6],
+                          "reco_uncertainty_respiration_form": [0.0]}, index=year)
+    first.attrs["units"] = dict.fromkeys(first.columns, "g C m-2")
+    second = first.assign(gpp_nighttime=1.4e12, nee=-190.6,
+                          reco_uncertainty_respiration_form=9.46e-23)
+    second.attrs = dict(first.attrs)
+    moves, _, rounding = _annual_moves(first, second)
+    assert sorted(column for _, column in moves.index) == ["gpp_nighttime", "nee"]
+    assert rounding == [(2021, "reco_uncertainty_respiration_form")]
 
 
 def test_each_annual_move_names_its_unit_and_text_keeps_its_signs(folders, capsys):

@@ -95,15 +95,23 @@ def test_an_edited_site_table_fails_the_network_and_names_the_site(network, tmp_
 
 
 def test_a_missing_site_folder_is_an_error_naming_it(network, tmp_path, capsys):
-    """A listed site folder deleted: one error: line naming the site, exit 2, no verdict;
-    --input (one site's) is refused for a network folder."""
+    """A listed site folder deleted: one error: line naming the site, exit 2; the other
+    site is still verified and the verdict says the seal does not hold (review75: the
+    missing folder ended the command before any site, as a missing input did before
+    faults46); --input (one site's) is refused for a network folder."""
     out = _copy(network, tmp_path)
     shutil.rmtree(out / "alder")
     assert main(["verify", str(out)]) == 2
     captured = capsys.readouterr()
-    assert captured.out == ""
-    assert captured.err.startswith("error: verify: site 'alder': its folder")
+    assert captured.err.startswith("error: verify: 1 site(s) of ")
+    assert "site 'alder': its folder" in captured.err
     assert "does not exist" in captured.err and len(captured.err.splitlines()) == 1
+    printed = captured.out.splitlines()
+    assert printed[0].split(": ")[1].startswith("seal NOT intact")
+    assert next(line for line in printed if line.split()[0] == "birch").split()[1] \
+        == "bit-identical"
+    assert printed[-2].startswith("not verified: the network seal does not hold; 1 of 2 "
+                                  "listed site(s) could not be verified (alder); 1 reproduced")
     assert main(["verify", str(network), "--input", str(tmp_path)]) == 2
     assert "is a batch output folder" in capsys.readouterr().err
 
