@@ -239,7 +239,7 @@ def _day_slot_matrix(index: pd.DatetimeIndex, values: np.ndarray, interval_minut
 
 
 def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float,
-                      lags) -> dict:
+                      lags, potential=None) -> dict:
     """Potential radiation of every record with its stamps moved back by each lag [W m-2].
 
     ``potential_radiation(index - lag)`` for each lag [min]. It is computed record by
@@ -247,7 +247,9 @@ def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float
     lag of 6 - j sub-steps one record later, and a lag of one whole record those of no
     lag one record earlier: those are taken from one extra record computed at each end
     instead of computing them again (the stamps are checked to be the same to the
-    nanosecond, so the values are the same).
+    nanosecond, so the values are the same). `potential`, the record's own
+    ``potential_radiation(index)`` where the caller has it (the run's solar geometry),
+    is the lag 0's: only its two extra records are computed then.
     """
     interval = pd.Timedelta(minutes=interval_minutes)
     moved = {float(lag): pd.Timedelta(minutes=float(lag)) for lag in lags}
@@ -264,6 +266,11 @@ def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float
             out[lag] = computed[later][2:]
         elif regular and earlier is not None:
             out[lag] = computed[earlier][:-2]
+        elif regular and lag == 0.0 and potential is not None:
+            ends = potential_radiation(extended[[0, -1]], *position, interval_minutes)
+            computed[lag] = np.concatenate([ends[:1], np.asarray(potential, dtype=float),
+                                            ends[1:]])
+            out[lag] = computed[lag][1:-1]
         elif regular:
             computed[lag] = potential_radiation(extended - moved[lag], *position,
                                                 interval_minutes)
@@ -370,7 +377,8 @@ def _crossing_widths(curves: np.ndarray, interval_minutes: float, level: float) 
     return widths
 
 
-def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes) -> pd.DataFrame:
+def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
+                   potential=None) -> pd.DataFrame:
     """Time shift of measured Rg against potential radiation, month by month.
 
     Parameters
@@ -385,6 +393,10 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
         The configured offset of the stamps from UTC [hours].
     interval_minutes : float
         Record interval [min].
+    potential : array_like, optional
+        ``potential_radiation(index, latitude, longitude, utc_offset, interval_minutes)``
+        [W m-2] where the caller has it already (the run's solar geometry): not
+        computed again.
 
     Returns
     -------
@@ -411,7 +423,7 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes)
 
     step = interval / 6.0
     fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
-    shifted = _lagged_potential(index, position, interval, fine_lags)
+    shifted = _lagged_potential(index, position, interval, fine_lags, potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
     months = days.to_period("M")
@@ -1022,7 +1034,7 @@ def _fix(shift: float, utc_offset: float, interval_minutes: float, time_marks: s
 
 def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 time_marks: str | None = None, shift_applied_minutes: float = 0.0,
-                time_zone: str | None = None) -> ClockVerdict:
+                time_zone: str | None = None, potential=None) -> ClockVerdict:
     """Judge the record's clock and the site's latitude sign from measured Rg.
 
     Parameters
@@ -1046,6 +1058,9 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     time_zone : str, optional
         The ``[input] time_zone`` the reader converted the stamps from: a whole-hour
         shift is then named as that zone's, not as utc_offset's.
+    potential : array_like, optional
+        The record's potential radiation at the configured settings [W m-2], where the
+        caller has it (the run's solar geometry): not computed again.
 
     Returns
     -------
@@ -1064,7 +1079,8 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     Michalsky, J. J. (1988). Solar Energy 40(3):227–235.
     """
     interval = float(interval_minutes)
-    months = monthly_shifts(index, rg, latitude, longitude, utc_offset, interval)
+    months = monthly_shifts(index, rg, latitude, longitude, utc_offset, interval,
+                            potential=potential)
     used = months[months["used"]]
     problems, notes = [], []
     hemisphere, hemisphere_detail = check_hemisphere(index, rg, latitude, longitude, utc_offset,

@@ -147,7 +147,8 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
             frame.index, frame["rg"].to_numpy(dtype=float), site.latitude, site.longitude,
             site.utc_offset, interval, time_marks=reader.get("time_marks"),
             shift_applied_minutes=float(reader.get("shift_minutes") or 0.0),
-            time_zone=(reader.get("stamp_conversions") or {}).get("time_zone"))
+            time_zone=(reader.get("stamp_conversions") or {}).get("time_zone"),
+            potential=geometry["potential_radiation"].to_numpy())
     solar.forget_courses()      # the last call that asks for the record's sun course again
     findings = preflight.preflight(
         frame, screens.screened, is_night, geometry["potential_radiation"].to_numpy(),

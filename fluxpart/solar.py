@@ -312,13 +312,16 @@ def potential_radiation(index, latitude, longitude, utc_offset,
 def interval_sun(index, longitude, utc_offset, interval_minutes=None) -> tuple:
     """The sun's course over each interval, which does not depend on latitude.
 
-    Returns ``(sin_declination, cos_declination, h1, h2, span, eccentricity)``: the
-    sine and cosine of the declination [1] and (r0/r)^2 [1] at each interval's middle,
-    the hour angles at its start (in [-π, π)) and end [rad], and the hour-angle span of
-    an interval [rad]; for :func:`potential_at_latitude`, which gives
+    Returns ``(sin_declination, cos_declination, h1, h2, span, eccentricity,
+    h_middle)``: the sine and cosine of the declination [1] and (r0/r)^2 [1] at each
+    interval's middle, the hour angles at its start (in [-π, π)) and end [rad], the
+    hour-angle span of an interval [rad] and the hour angle at the interval's middle (in
+    [-π, π)) [rad]; for :func:`potential_at_latitude`, which gives
     :func:`potential_radiation` at any latitude from them (a scan over latitudes
-    computes the sun's position once). The arrays are read-only: the last course
-    computed is kept and returned again for the same stamps, position and interval.
+    computes the sun's position once), and :func:`solar_geometry`'s sun elevation at the
+    intervals' middles (the same course, not computed again). The arrays are read-only:
+    the last course computed is kept and returned again for the same stamps, position
+    and interval.
     """
     minutes = _interval_minutes(index, interval_minutes)
     instants = _as_datetime64(index, "index")
@@ -335,8 +338,8 @@ def interval_sun(index, longitude, utc_offset, interval_minutes=None) -> tuple:
     span = 2.0 * np.pi * minutes / _MINUTES_PER_DAY
     h1 = np.mod(h_middle - 0.5 * span + np.pi, 2.0 * np.pi) - np.pi   # in [-π, π)
     h2 = h1 + span                                            # below 3π
-    sun = (np.sin(declination), np.cos(declination), h1, h2, span, eccentricity)
-    for values in (*sun[:4], sun[5]):
+    sun = (np.sin(declination), np.cos(declination), h1, h2, span, eccentricity, h_middle)
+    for values in (*sun[:4], *sun[5:]):
         values.flags.writeable = False             # shared by the calls the cache serves
     _SUN_CACHE[1] = (key, instants.copy(), sun)   # a copy: the caller's array may change
     return sun
@@ -369,7 +372,7 @@ def forget_courses() -> None:
 
 def potential_at_latitude(sun: tuple, latitude: float) -> np.ndarray:
     """:func:`potential_radiation` [W m-2] at `latitude` [degrees] from :func:`interval_sun`."""
-    sin_declination, cos_declination, h1, h2, span, eccentricity = sun
+    sin_declination, cos_declination, h1, h2, span, eccentricity = sun[:6]
     phi = np.radians(latitude)
     a = np.sin(phi) * sin_declination
     b = np.cos(phi) * cos_declination
@@ -423,11 +426,37 @@ def solar_geometry(index, site, interval_minutes=None) -> pd.DataFrame:
     """
     minutes = _interval_minutes(index, interval_minutes)
     position = (site.latitude, site.longitude, site.utc_offset)
+    if not _whole_seconds(minutes, site.utc_offset):
+        return pd.DataFrame(
+            {"sun_elevation": interval_midpoint_elevation(index, *position, minutes),
+             "potential_radiation": potential_radiation(index, *position, minutes)},
+            index=pd.DatetimeIndex(index),
+        )
+    _as_datetime64(index, "index")      # its refusal first, as the elevation's own gives it
+    _check_location(*position)
+    sun = interval_sun(index, site.longitude, site.utc_offset, minutes)
     return pd.DataFrame(
-        {"sun_elevation": interval_midpoint_elevation(index, *position, minutes),
-         "potential_radiation": potential_radiation(index, *position, minutes)},
+        {"sun_elevation": _middle_elevation(sun, site.latitude),
+         "potential_radiation": potential_at_latitude(sun, site.latitude)},
         index=pd.DatetimeIndex(index),
     )
+
+
+def _whole_seconds(minutes: float, utc_offset: float) -> bool:
+    """Whether half an interval and the UTC offset are whole seconds, so that
+    :func:`interval_sun`'s middles (stamp − offset + half, in float seconds) are
+    :func:`interval_midpoint_elevation`'s instants (stamp + half − offset) to the bit: sums
+    of whole numbers far below 2**53 are exact in any order."""
+    return float(minutes * 30.0).is_integer() and float(utc_offset * 3600.0).is_integer()
+
+
+def _middle_elevation(sun: tuple, latitude: float) -> np.ndarray:
+    """:func:`interval_midpoint_elevation` [degrees] from :func:`interval_sun`'s course:
+    :func:`sun_elevation`'s formula on the declination and hour angle at the middles."""
+    sin_declination, cos_declination, h_middle = sun[0], sun[1], sun[6]
+    phi = np.radians(latitude)
+    sine = np.sin(phi) * sin_declination + np.cos(phi) * cos_declination * np.cos(h_middle)
+    return np.degrees(np.arcsin(np.clip(sine, -1.0, 1.0)))
 
 
 def night_mask(rg, potential, rg_threshold=10.0, *, potential_epsilon=1e-6) -> np.ndarray:

@@ -836,27 +836,26 @@ def _storage_sign_message(converted: dict, columns: dict, potential, stamps) -> 
             "storage in [input] accept_units to keep it as it is)")
 
 
-def _without_rh_fraction_months(converted: dict, units: dict, potential, stamps) -> dict:
+def _without_rh_fraction_months(converted: dict, units: dict, potential, stamps,
+                                month_rows: list) -> dict:
     """`converted` with rh missing in the calendar months whose RH alone is a fraction
-    (:func:`_rh_fraction`) where the whole record's is not; unchanged otherwise."""
+    (:func:`_rh_fraction`) where the whole record's is not; unchanged otherwise.
+    `month_rows` as from :func:`_month_rows` of `stamps`."""
     rh = converted.get("rh")
     if (rh is None or not reads_as_canonical("rh", units.get("rh")) or _rh_fraction(rh)
             or stamps is None):
         return converted
     months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
-                             potential, stamps)
+                             potential, month_rows)
     if not months:
         return converted
     fraction = np.isin(np.asarray(stamps, dtype="datetime64[M]").astype(str), months)
     return {**converted, "rh": np.where(fraction, np.nan, rh)}
 
 
-def _months_refused(check, converted: dict, potential, stamps) -> list:
-    """Calendar months ("YYYY-MM") whose records alone `check` refuses.
-
-    `check(converted, potential)` is a whole-record mix-up check returning a refusal
-    (text) or None; it sees each month's slice of `converted` and `potential`.
-    """
+def _month_rows(stamps) -> list:
+    """Each calendar month's label ("YYYY-MM") and rows (in record order), in month order;
+    [] without stamps. Computed once per record for :func:`_months_refused`'s checks."""
     if stamps is None:
         return []
     months = np.asarray(stamps, dtype="datetime64[M]")
@@ -864,24 +863,35 @@ def _months_refused(check, converted: dict, potential, stamps) -> list:
     # scan the whole record once per month: quadratic in the record's years)
     order = np.argsort(months, kind="stable")
     unique, starts = np.unique(months[order], return_index=True)
+    return [(str(month), rows)
+            for month, rows in zip(unique, np.split(order, starts[1:]), strict=True)]
+
+
+def _months_refused(check, converted: dict, potential, month_rows: list) -> list:
+    """Calendar months ("YYYY-MM") whose records alone `check` refuses.
+
+    `check(converted, potential)` is a whole-record mix-up check returning a refusal
+    (text) or None; it sees each month's slice of `converted` and `potential`, the months
+    and their rows from :func:`_month_rows`.
+    """
     potential = None if potential is None else np.asarray(potential)
     found = []
-    for month, rows in zip(unique, np.split(order, starts[1:]), strict=True):
+    for month, rows in month_rows:
         part = {name: values[rows] for name, values in converted.items()}
         if check(part, None if potential is None else potential[rows]):
-            found.append(str(month))
+            found.append(month)
     return found
 
 
 def _changed_within(check, name: str, columns: dict, what: str, converted: dict, potential,
-                    stamps) -> list:
+                    month_rows: list) -> list:
     """The warning for a mix-up `check` finds in some calendar months only ([] if none).
 
-    `check` as for :func:`_months_refused`; `columns` maps variables to file columns;
-    `what` says what those months look like.
+    `check` and `month_rows` as for :func:`_months_refused`; `columns` maps variables to
+    file columns; `what` says what those months look like.
     """
     return _changed_months_warning(name, columns, what,
-                                   _months_refused(check, converted, potential, stamps))
+                                   _months_refused(check, converted, potential, month_rows))
 
 
 def _changed_months_warning(name: str, columns: dict, what: str, months: list) -> list:
@@ -1460,6 +1470,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
         Suspicions on records that cannot tell for sure.
     """
     refusals, warnings = {}, []
+    month_rows = _month_rows(stamps)        # the months of every month-by-month check
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         refuse, warn = _zero_code_message(converted, columns, interval_minutes, missing)
         if refuse:
@@ -1486,7 +1497,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 months = _months_refused(
                     lambda part, sun: _nee_message(part, units, columns, interval_minutes,
                                                    sun, smoothed)[0],
-                    converted, potential, stamps)
+                    converted, potential, month_rows)
                 # a dormant season is small by nature; a unit steps (round falsealarm51)
                 months = stepped_months(converted.get("nee"), stamps, months,
                                         1000.0 / CO2_MOLAR_MASS)
@@ -1512,7 +1523,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 months = _months_refused(
                     lambda part, sun: _nee_sign_message(part, columns, interval_minutes,
                                                         sun)[0],
-                    converted, potential, stamps)
+                    converted, potential, month_rows)
                 if months and _night_median_outside(converted, potential, stamps,
                                                     months) >= 0.0:
                     warnings += _changed_months_warning(
@@ -1545,11 +1556,12 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings += _changed_within(
                     lambda part, sun: _tsoil_message(part, units, columns, interval_minutes),
                     "tsoil", columns, "a soil temperature in °F or K (a median above 25 °C "
-                    "and more than 15 K above the air's)", converted, potential, stamps)
+                    "and more than 15 K above the air's)", converted, potential, month_rows)
             # months whose RH is a fraction give no basis for the VPD the humidity
             # allows (round mistakes55: RH as a fraction from July made vpd read as
             # inHg); the rh warning below names them
-            humidity_basis = _without_rh_fraction_months(converted, units, potential, stamps)
+            humidity_basis = _without_rh_fraction_months(converted, units, potential, stamps,
+                                                         month_rows)
             refuse, warn = _vpd_messages(humidity_basis, units, columns, interval_minutes)
             if refuse:
                 refusals["vpd"] = refuse
@@ -1561,13 +1573,13 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
                 warnings += _changed_within(
                     lambda part, sun: _vpd_messages(part, units, columns, interval_minutes)[0],
                     "vpd", columns, "VPD in another unit (a tenth or ten times the VPD "
-                    "that tair and the humidity allow)", humidity_basis, potential, stamps)
+                    "that tair and the humidity allow)", humidity_basis, potential, month_rows)
         rh = converted.get("rh")
         if rh is not None and reads_as_canonical("rh", units.get("rh")) and not _rh_fraction(rh):
             warnings += _changed_within(
                 lambda part, sun: _rh_fraction(part["rh"]), "rh", columns,
                 "a fraction (all at most 1.05 %, which no surface air stays below for a "
-                "month)", converted, potential, stamps)
+                "month)", converted, potential, month_rows)
         def too_dark(name):
             """Rg mapped as ppfd or PAR as rg: a refusal, or a warning on a short record."""
             refuse, warn = _too_dark_message(name, converted, units, columns,
@@ -1587,7 +1599,7 @@ def mixup_messages(converted: dict, units: dict, columns: dict, interval_minutes
             warnings += _changed_within(
                 lambda part, sun: _rg_message(part, units, columns, interval_minutes, sun),
                 "rg", columns, "another unit or quantity (kW m-2, MJ m-2, PPFD or net "
-                "radiation)", converted, potential, stamps)
+                "radiation)", converted, potential, month_rows)
     return refusals, warnings
 
 

@@ -325,14 +325,18 @@ def test_a_run_shifted_as_much_as_the_rest_is_no_period_on_another_clock():
 def test_lagged_potential_equals_the_direct_computation(minutes):
     """The lags reused from one record later (and a whole record's lag from one record
     earlier) equal potential radiation computed at the
-    moved stamps, to the last bit; a record with gaps is computed directly."""
+    moved stamps, to the last bit; a record with gaps is computed directly. So do they
+    where the record's own potential radiation is given (the run's solar geometry), which
+    then only gains a record at each end."""
     from fluxpart.clock import _lagged_potential
     from fluxpart.solar import potential_radiation
 
     regular = pd.date_range("2021-03-01", periods=2000, freq=f"{minutes}min")
     lags = np.arange(-6, 7) * (minutes / 6.0)
-    for index in (regular, regular.delete([5, 6, 100])):
-        got = _lagged_potential(index, (-33.9, 18.4, 2.0), float(minutes), lags)
+    cases = [(index, given) for index in (regular, regular.delete([5, 6, 100]))
+             for given in (None, potential_radiation(index, -33.9, 18.4, 2.0, float(minutes)))]
+    for index, given in cases:
+        got = _lagged_potential(index, (-33.9, 18.4, 2.0), float(minutes), lags, given)
         for lag in lags:
             expected = potential_radiation(index - pd.Timedelta(minutes=float(lag)), -33.9,
                                            18.4, 2.0, float(minutes))

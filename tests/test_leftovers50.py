@@ -139,3 +139,46 @@ def test_a_decimal_day_of_the_year_both_counts_fit_is_named_with_the_settings(tm
         read, report = _read_as(path, time_column="doy", time_format=setting)
         assert read.index[0] == begins[0] + pd.Timedelta(days=shift)
         assert not [w for w in report.warnings if "day of the year" in w]
+
+
+def test_the_samples_are_the_first_middle_and_last_lines_of_the_records(monkeypatch):
+    """`io._sample_blocks` finds its three samples by positions in the file's text, without
+    a copy of it (round speed57): they must be the blocks of the records' part cut as
+    ``str.find`` and ``str.rfind`` cut a copy of it (the text after the head lines, its
+    final line ends stripped; the Python documentation of str (m)), for random texts,
+    head lines and sample lengths."""
+    import numpy as np
+
+    def copied(text, head_lines, size):
+        start = 0
+        for _ in range(head_lines):
+            start = text.find("\n", start) + 1
+            if not start:
+                return None
+        body = text[start:].rstrip("\n")
+
+        def lines_from(at):
+            end = at
+            for _ in range(size):
+                end = body.find("\n", end) + 1
+                if not end:
+                    return body[at:]
+            return body[at:end]
+
+        middle = body.find("\n", len(body) // 2) + 1
+        last = len(body)
+        for _ in range(size):
+            last = body.rfind("\n", 0, last)
+            if last < 0:
+                break
+        return text[:start], [lines_from(0), lines_from(middle), body[last + 1:]]
+
+    rng = np.random.default_rng(57)
+    pieces = np.array(["a", "b,c", "\n", "\n\n", "1", "\r\n"])
+    for size in rng.integers(0, 60, 600):
+        text = "".join(rng.choice(pieces, size))
+        for head_lines in range(3):
+            for lines in (1, 2, 5):
+                monkeypatch.setattr(io, "_SAMPLE_LINES", lines)
+                assert io._sample_blocks(text, head_lines) == copied(text, head_lines, lines), (
+                    text, head_lines, lines)

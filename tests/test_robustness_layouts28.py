@@ -450,6 +450,38 @@ def test_the_head_of_a_text_reads_as_the_whole_texts_first_lines():
     assert universal_head("h\nx", 5) == "h\nx"
 
 
+def test_the_header_row_read_from_the_head_lines_is_the_whole_texts():
+    """`io._header_text` (round speed57) gives the header read only the text through the
+    header line where that text holds no quote and the line is not blank: pandas' ``read_csv``
+    (``header=None, nrows=1, skiprows=k``, as `_read_text` calls it) must then read the
+    same row, or fail alike, as from the whole text (pandas' own parser is the
+    reference), for random texts of LF and CR LF line ends with quotes, blank lines and
+    rows of other lengths."""
+    import io
+
+    from fluxpart.io import _header_text
+
+    def header(text, skip, sep):
+        try:
+            return pd.read_csv(io.StringIO(text), header=None, nrows=1, skiprows=skip,
+                               dtype=str, keep_default_na=False, na_filter=False,
+                               sep=sep).iloc[0].tolist()
+        except Exception as error:     # the same failure from both texts
+            return type(error).__name__, str(error)
+
+    rng = np.random.default_rng(57)
+    pieces = np.array(["a", "b", ",", " ", '"', "\n", "\r\n", "\n\n", "ab,c"])
+    for size in rng.integers(1, 30, 150):
+        text = "".join(rng.choice(pieces, size))
+        for skip in range(3):
+            sep = ["," , r"\s+"][skip % 2]
+            head = _header_text(text, skip)
+            assert text.startswith(head)
+            assert header(head, skip, sep) == header(text, skip, sep), (text, skip)
+    assert _header_text('t\nx,y\n1,2\n', 1) == 't\nx,y\n'
+    assert _header_text('t\n"x\ny",z\n1,2\n', 1) == 't\n"x\ny",z\n1,2\n'
+
+
 def test_the_leading_lines_of_a_text_are_its_first_split_lines():
     """`leading_lines` (round speed53) splits only the start of a text: its lines must be
     the first lines of Python's ``str.splitlines`` of the whole text (its line boundaries:

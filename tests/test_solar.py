@@ -230,6 +230,27 @@ def test_solar_geometry_frame():
     np.testing.assert_array_equal(interval_midpoint_elevation(index, 49.3, 10.2, 1.0), middle)
 
 
+@pytest.mark.parametrize("latitude, longitude, offset, freq", [
+    (49.3, 10.2, 1.0, "30min"), (-33.9, 18.4, 2.0, "60min"), (78.2, 15.6, 5.75, "15min"),
+    (-0.5, -160.0, -9.5, "10min"), (61.8, 24.3, 1.0 / 7.0, "30min")])
+def test_solar_geometry_shares_the_course_to_the_bit(latitude, longitude, offset, freq):
+    """solar_geometry's elevation, taken from the course its potential radiation uses (the
+    declination and hour angle at the middles, computed once), equals
+    interval_midpoint_elevation and its potential equals potential_radiation, to the last
+    bit, over a year (every time zone's offset is whole seconds; a seventh of an hour, which
+    no `Site` takes, is computed apart)."""
+    import types
+
+    site = types.SimpleNamespace(latitude=latitude, longitude=longitude, utc_offset=offset)
+    index = pd.date_range("2023-01-01", "2023-12-31 23:59", freq=freq)
+    frame = solar_geometry(index, site)
+    np.testing.assert_array_equal(
+        frame["sun_elevation"].to_numpy(),
+        interval_midpoint_elevation(index, latitude, longitude, offset))
+    np.testing.assert_array_equal(frame["potential_radiation"].to_numpy(),
+                                  potential_radiation(index, latitude, longitude, offset))
+
+
 def test_night_mask():
     """Night by measured Rg below threshold; by potential radiation where Rg is missing."""
     rg = np.array([0.0, 9.9, 10.0, 300.0, np.nan, np.nan, -3.0])
