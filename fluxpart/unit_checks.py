@@ -837,16 +837,16 @@ def _storage_sign_message(converted: dict, columns: dict, potential, stamps) -> 
 
 
 def _without_rh_fraction_months(converted: dict, units: dict, potential, stamps,
-                                month_rows: list) -> dict:
+                                month_rows: list | None = None) -> dict:
     """`converted` with rh missing in the calendar months whose RH alone is a fraction
     (:func:`_rh_fraction`) where the whole record's is not; unchanged otherwise.
-    `month_rows` as from :func:`_month_rows` of `stamps`."""
+    `month_rows` as from :func:`_month_rows` of `stamps` (computed here if not given)."""
     rh = converted.get("rh")
     if (rh is None or not reads_as_canonical("rh", units.get("rh")) or _rh_fraction(rh)
             or stamps is None):
         return converted
     months = _months_refused(lambda part, sun: _rh_fraction(part["rh"]), converted,
-                             potential, month_rows)
+                             potential, _month_rows(stamps) if month_rows is None else month_rows)
     if not months:
         return converted
     fraction = np.isin(np.asarray(stamps, dtype="datetime64[M]").astype(str), months)
