@@ -5,7 +5,7 @@ this script. No number computed from them describes a real ecosystem or supports
 claim; a credited budget needs the applicable crediting methodology and accredited
 verification.
 
-The four earlier clean probes were in view when the checks were tuned. This one writes 30
+The four earlier clean probes were in view when the checks were tuned. This one writes 33
 site-years of kinds and habits they lack, none with a mistake:
 
 - hot deserts whose soil crusts take up CO2 for an hour or two after a dewy dawn; monsoon
@@ -19,7 +19,8 @@ site-years of kinds and habits they lack, none with a mistake:
   (strong uptake in air of 3-5 kPa VPD);
 - a sheltered forest in a valley whose u* stays low all year, and windy sites whose u*
   never falls below a threshold;
-- records of 15-minute intervals; a record starting on 29 February, one ending mid-year
+- records of 15-minute intervals (refused by design: the product reads 30 and 60 minutes)
+  and three more averaged to 30 minutes by the user as the refusal asks; a record starting on 29 February, one ending mid-year
   (18 months), one of 9 months; sites in zones of a half-hour offset (UTC+5:30 with the
   logger on UTC, UTC+9:30 and UTC-3:30 with civil summer time); budget years starting in
   the southern winter (June, August);
@@ -38,8 +39,8 @@ the other probes' physics is imported; only their runner):
   Jordan (1960), 0.271 - 0.294 tau_b (m); clouds: a day's cloud fraction from a Beta
   distribution of a seasonal mean (a Gaussian copula of an AR(1)), the sunshine fraction
   1 - C and the Angstrom-Prescott ratio (0.25 + 0.5 s) / 0.75 (FAO-56 defaults (m));
-- air temperature: an annual cosine lagging the sun by 30 days and AR(1) spells, the
-  diurnal course as a first-order response (tau 3 h) to the sunlight, scaled to the day's
+- air temperature: an annual cosine lagging the sun by 30 days and AR(1) spells (the daily
+  means joined linearly between the days' middles, the dew point likewise), the diurnal course as a first-order response (tau 3 h) to the sunlight, scaled to the day's
   range; humidity from a dew point below the day's minimum, saturation by Tetens (1930) in
   FAO-56's form (m); fog as saturation from dawn to a lifting hour;
 - soil at 5 cm by a force-restore pair (Deardorff 1978 (m)): a layer relaxing to the surface
@@ -142,6 +143,14 @@ SITES = [
      {"year_start": "06-01"}),
     ("v29", 52.2, 5.5, 1, 5, 30, "pasture", 10.0, 7, 7, "2022-01-01", "2023-07-01", {}),
     ("v30", 45.0, 10.0, 1, 40, 30, "pasture", 13.0, 10, 10, "2023-04-01", "2024-01-01", {}),
+    # 15-minute loggers (v06, v20, v28 are refused by design) averaged to 30 minutes by the
+    # user as the refusal says: the means of the rates, NEE only where both halves are
+    ("v31", 13.0, 77.6, 5.5, 900, 15, "monsoon_grass", 24.0, 3, 10, "2024-01-01", None,
+     {"monsoon": (155, 280), "average": 30}),
+    ("v32", 40.5, 71.8, 5, 450, 15, "irrigated_cotton", 14.5, 14, 15, "2022-01-01", None,
+     {"irrigate": 1, "average": 30}),
+    ("v33", -30.3, 149.8, 10, 200, 15, "savanna", 19.0, 7, 15, "2022-06-01", None,
+     {"year_start": "06-01", "average": 30}),
 ]
 
 # leaf area max, summer capacity umol m-2 s-1, quantum yield, optimum degC, width K,
@@ -280,7 +289,10 @@ def generate(spec, seed):
     warm_ref = max(np.percentile(warm, 99.5), 0.05)
     dtr = dtr_site * (0.5 + 0.7 * (1 - cloud_day))
     daily_warm = np.bincount(d, warm, nd) / np.bincount(d, minlength=nd)
-    tair = t_day[d] + dtr[d] * (warm - daily_warm[d]) / warm_ref + _ar1(rng, n, 0.9, 0.3)
+    # the daily means joined linearly between the days' middles (no step at midnight)
+    t_days = np.asarray((starts - days[0]) / pd.Timedelta(days=1)) + step / 2880
+    t_smooth = np.interp(t_days, np.arange(nd) + 0.5, t_day)
+    tair = t_smooth + dtr[d] * (warm - daily_warm[d]) / warm_ref + _ar1(rng, n, 0.9, 0.3)
     tmin = pd.Series(tair).groupby(d).min().to_numpy()
 
     # humidity: a dew point below the day's minimum; dewy nights where it nearly meets it
@@ -292,7 +304,7 @@ def generate(spec, seed):
     if "irrigate" in habits:                  # the crop moistens the air a little
         dep = np.maximum(dep - 2.0, 0.5)
     dew = tmin - dep
-    e_a = _tetens_kpa(dew[d])
+    e_a = _tetens_kpa(np.interp(t_days, np.arange(nd) + 0.5, dew))
     e_s = _tetens_kpa(tair)
     rh = np.clip(100 * e_a / e_s, 3, 100)
     rh = np.where(fog, rng.uniform(99.0, 101.5, n), rh)
@@ -437,6 +449,11 @@ def generate(spec, seed):
     if rng.random() < 0.5:
         frame["vpd"] = np.where(outage, np.nan, np.round(vpd, 3))
     frame = frame[(frame.index >= first) & (frame.index < last)]
+    if "average" in habits:                  # the user's means of the logger's records
+        step = habits["average"]
+        both = frame["nee"].notna().resample(f"{step}min").sum() == step // 15
+        frame = frame.resample(f"{step}min").mean().round(3)
+        frame["nee"] = frame["nee"].where(both)
     if rng.random() < 0.5:                   # the logger wrote no row without power
         frame = frame[frame.notna().any(axis=1)]
     marks = "end" if rng.random() < 0.6 else "start"
