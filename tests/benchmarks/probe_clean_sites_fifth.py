@@ -85,6 +85,7 @@ from scipy.stats import norm
 
 sys.path.insert(0, str(Path(__file__).parent))
 from probe_clean_sites import run_probe  # noqa: E402
+from probe_clean_sites_fourth import _ar1  # noqa: E402  (a helper, not physics)
 
 # name, lat, lon, utc offset h, altitude m, step min, cover, annual mean T degC, annual
 # amplitude K, diurnal range K, first stamp, last stamp (None: a year), habits
@@ -190,13 +191,6 @@ CLIMATES = {
     "mediterranean_grass": (0.35, 6.0, 8, 100), "boreal_heath": (0.6, 2.0, 6, 150),
     "savanna": (0.25, 8.0, 14, 150), "pasture": (0.55, 2.5, 7, 150),
 }
-
-
-def _ar1(rng, size, phi, sd):
-    """AR(1) series of stationary standard deviation ``sd``."""
-    shocks = rng.normal(0.0, sd * np.sqrt(1 - phi ** 2), size)
-    shocks[0] = rng.normal(0.0, sd)
-    return lfilter([1.0], [1.0, -phi], shocks)
 
 
 def _relax(x, a, start):
