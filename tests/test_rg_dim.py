@@ -87,15 +87,16 @@ def test_the_demo_is_quiet_and_par_from_july_is_a_preflight_warning():
     """Known-truth recovery on the invented Quillmoor site at 30 and 60 min: its Rg as
     simulated is quiet; PAR in W m-2 (0.46 of Rg) from July, which moved the example's
     nighttime Reco by -11.8 g C m-2 without a word, and the reflected radiation from July
-    (-36.2) are a preflight warning, not fatal, naming the column."""
+    (-36.2) are a preflight warning, not fatal, naming the column, with tair beside them
+    (the thermometer's daily range does not excuse a sensor, round falsealarm56)."""
     for step in (30, 60):
         frame, potential = _demo(step)
         rg = frame["rg"].to_numpy(dtype=float)
         assert dim_rg_months(rg, potential, frame.index) is None
         july = frame.index >= "2021-07-01"
         for share in (PAR_SHARE, ALBEDO):
-            screened = pd.DataFrame({"rg": np.where(july, rg * share, rg)},
-                                    index=frame.index)
+            screened = pd.DataFrame({"rg": np.where(july, rg * share, rg),
+                                     "tair": frame["tair"]}, index=frame.index)
             found = [f for f in _column_faults(screened, potential, step,
                                                {"rg": "solar_down"})
                      if f.stage == "input (rg dim)"]
