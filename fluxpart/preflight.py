@@ -599,8 +599,10 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
         if text:
             findings.append(Finding("input (rg zeros)", text, False))
         # a run of months too dim for any sky: a sensor changed mid-record (round mistakes29)
+        tair = (screened["tair"].to_numpy(dtype=float) if "tair" in screened.columns
+                else None)
         text = rg_dim.dim_rg_months(screened["rg"].to_numpy(dtype=float), potential,
-                                    screened.index, names)
+                                    screened.index, names, tair)
         if text:
             findings.append(Finding("input (rg dim)", text, False))
     if {"tair", "rg"} <= set(screened.columns):

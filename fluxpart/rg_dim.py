@@ -17,8 +17,17 @@ Here the same bound is applied to every run of whole calendar months that holds 
 reader's 60 days (here days with Rg read at high sun): where such a run is that dim while the rest of the record
 reads as a sky does, the months are named (a warning; the values are kept).
 
+Months without a clear half-hour do occur (a monsoon's core, a coastal winter's stratus):
+where the air temperature's daily range shows days as overcast as the rest's overcast days
+of the same range are (Bristow and Campbell 1984 (m)), the months are a cloudy season and
+not named (round falsealarm56).
+
 References
 ----------
+Bristow, K. L., & Campbell, G. S. (1984). On the relationship between incoming solar
+radiation and daily maximum and minimum temperature. Agricultural and Forest Meteorology
+31(2):159-166. doi:10.1016/0168-1923(84)90017-0 (m)
+
 Kasten, F., & Czeplak, G. (1980). Solar and terrestrial radiation dependent on the amount
 and type of cloud. Solar Energy 24(2):177-189. doi:10.1016/0038-092X(80)90391-6 (m)
 
@@ -33,7 +42,7 @@ import pandas as pd
 from .measured_months import month_runs_text
 from .unit_checks import _MIN_ACTIVE_RECORDS, _PPFD_CLEAR_MIN, _TOO_DARK_MIN_DAYS
 
-__all__ = ["HIGH_SUN_POTENTIAL", "dim_rg_months"]
+__all__ = ["HIGH_SUN_POTENTIAL", "SENSOR_RATIO", "dim_rg_months", "sky_ratio"]
 
 #: Potential radiation (interval mean) above which the sun counts as high [W m-2]: the
 #: reader's whole-record test's (``unit_checks._too_dark_message``), about 26 degrees of
@@ -42,6 +51,83 @@ HIGH_SUN_POTENTIAL = 600.0
 #: Rg at the 99th percentile of the records with the sun down above which the radiation
 #: at night is the clock's concern, not the sensor's [W m-2] (the reader's test's bound).
 _NIGHT_BRIGHT = 50.0
+#: The dim months' daily transmittance over the one the rest of the record shows on days of
+#: the same temperature range, below which the sensor, not the sky, is dim (the reflected
+#: channel reads about 0.22 of the incoming radiation, PAR in W m-2 about 0.46, a sensor the
+#: whole-record bound would catch under a clear sky 0.67 or less; an overcast season whose
+#: small daily range the rest's cloudy days share, about 1). Our choice between them.
+SENSOR_RATIO = 0.75
+#: Days of each part needed to compare them, and the nearest days in temperature range of
+#: the rest that predict a dim day's transmittance. Our choice.
+_MIN_SKY_DAYS = 20
+_NEAREST_DAYS = 15
+
+
+def sky_ratio(rg, potential, tair, day, inside) -> float:
+    """The dim records' daily transmittance over that of the rest's days of like range.
+
+    Parameters
+    ----------
+    rg, potential, tair : numpy.ndarray
+        Global and potential radiation [W m-2] and air temperature [degC] of each record,
+        NaN where missing.
+    day : numpy.ndarray
+        The calendar day (``datetime64[D]``) of each record.
+    inside : numpy.ndarray of bool
+        The records of the dim months.
+
+    Returns
+    -------
+    float
+        The median over the dim months' days of each day's transmittance (its Rg over its
+        potential radiation, summed over the records with the sun up) divided by the
+        median transmittance of the :data:`_NEAREST_DAYS` days of the rest of the record
+        whose daily air temperature range lies nearest its own; NaN where either part
+        holds fewer than :data:`_MIN_SKY_DAYS` days with Rg read over 80 % of the sun's
+        records and tair over 80 % of the day's.
+
+    Notes
+    -----
+    A cloud cover that dims the global radiation also narrows the day's temperature range:
+    the daily transmittance is a rising function of the range (Bristow and Campbell 1984
+    (m)), so an overcast season's days resemble the rest's overcast days in both, and the
+    ratio lies near 1. A sensor reading a share of the incoming radiation leaves the
+    thermometer's range as the sky makes it and scales only the transmittance: the ratio
+    is that share (0.22 for the reflected channel, 0.46 for PAR in W m-2).
+
+    References
+    ----------
+    Bristow, K. L., & Campbell, G. S. (1984). On the relationship between incoming solar
+    radiation and daily maximum and minimum temperature. Agricultural and Forest
+    Meteorology 31(2):159-166. doi:10.1016/0168-1923(84)90017-0 (m)
+    """
+    labels, where = np.unique(day, return_inverse=True)
+    count = np.bincount(where, minlength=labels.size)
+    sun = potential > 0.0
+    lit = sun & np.isfinite(rg)
+    sun_n = np.bincount(where, sun, labels.size)
+    lit_n = np.bincount(where, lit, labels.size)
+    rg_sum = np.bincount(where, np.where(lit, rg, 0.0), labels.size)
+    pot_sum = np.bincount(where, np.where(lit, potential, 0.0), labels.size)
+    warm = np.isfinite(tair)
+    frame = pd.DataFrame({"t": np.where(warm, tair, np.nan), "d": where})
+    groups = frame.groupby("d")["t"]
+    span = (groups.max() - groups.min()).reindex(range(labels.size)).to_numpy()
+    t_n = np.bincount(where, warm, labels.size)
+    part = np.bincount(where, inside, labels.size) > 0.5 * count
+    usable = (lit_n >= 0.8 * np.maximum(sun_n, 1)) & (sun_n > 0) & (t_n >= 0.8 * count) \
+        & (pot_sum > 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        tau = rg_sum / pot_sum
+    dim_days, rest_days = usable & part, usable & ~part
+    if dim_days.sum() < _MIN_SKY_DAYS or rest_days.sum() < _MIN_SKY_DAYS:
+        return float("nan")
+    distance = np.abs(span[dim_days][:, None] - span[rest_days][None, :])
+    k = min(_NEAREST_DAYS, int(rest_days.sum()))
+    nearest = np.argpartition(distance, k - 1, axis=1)[:, :k]
+    predicted = np.median(tau[rest_days][nearest], axis=1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return float(np.median(tau[dim_days] / predicted))
 
 
 def _clear_quantile(ratio: np.ndarray) -> float:
@@ -49,7 +135,7 @@ def _clear_quantile(ratio: np.ndarray) -> float:
     return float(np.percentile(ratio, 99)) if ratio.size else float("nan")
 
 
-def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
+def dim_rg_months(rg, potential, stamps, columns=None, tair=None) -> str | None:
     """A message where Rg reads too dim for any sky in a run of months, or None.
 
     Parameters
@@ -63,6 +149,11 @@ def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
         Interval starts of the records (local standard time).
     columns : dict, optional
         Canonical name -> file column, to name the column in the message.
+    tair : array_like, optional
+        Air temperature of the same records [degC]: where given, dim months whose days are
+        as bright as the rest's days of the same temperature range (:func:`sky_ratio` at
+        :data:`SENSOR_RATIO` or above) are an overcast season, not named (round
+        falsealarm56).
 
     Returns
     -------
@@ -92,9 +183,17 @@ def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
     a change for a season only are both found, and a run is never shorter than the
     record the reader would refuse. Under eight oktas the global radiation is about 0.25
     of the clear sky's (Kasten & Czeplak 1980 (m)), so a dim run is not a rainy spell.
+    Yet some climates hold months without a clear half-hour: a monsoon's core, the
+    stratus of a coastal winter, an equatorial dry season under cloud (round
+    falsealarm56). There the air temperature's daily range is as narrow as on the rest's
+    overcast days, and :func:`sky_ratio` tells the sky from the sensor.
 
     References
     ----------
+    Bristow, K. L., & Campbell, G. S. (1984). On the relationship between incoming solar
+    radiation and daily maximum and minimum temperature. Agricultural and Forest
+    Meteorology 31(2):159-166. doi:10.1016/0168-1923(84)90017-0 (m)
+
     Kasten, F., & Czeplak, G. (1980). Solar and terrestrial radiation dependent on the
     amount and type of cloud. Solar Energy 24(2):177-189.
     doi:10.1016/0038-092X(80)90391-6 (m)
@@ -155,6 +254,12 @@ def dim_rg_months(rg, potential, stamps, columns=None) -> str | None:
     rest_clear = _clear_quantile(ratio[rest])
     if not rest_clear >= _PPFD_CLEAR_MIN:
         return None
+    if tair is not None:
+        inside_mask = ~outside
+        with np.errstate(invalid="ignore"):
+            sky = sky_ratio(rg, potential, np.asarray(tair, dtype=float), day, inside_mask)
+        if sky >= SENSOR_RATIO:
+            return None
     dim_clear = _clear_quantile(ratio[inside[high[inside]]])
     named = pd.PeriodIndex(labels[dim], freq="M")
     # consecutive dim months as runs ("2021-03 to 2021-04, 2021-08"), in record order

@@ -87,15 +87,16 @@ def test_the_demo_is_quiet_and_par_from_july_is_a_preflight_warning():
     """Known-truth recovery on the invented Quillmoor site at 30 and 60 min: its Rg as
     simulated is quiet; PAR in W m-2 (0.46 of Rg) from July, which moved the example's
     nighttime Reco by -11.8 g C m-2 without a word, and the reflected radiation from July
-    (-36.2) are a preflight warning, not fatal, naming the column."""
+    (-36.2) are a preflight warning, not fatal, naming the column, with tair beside them
+    (the thermometer's daily range does not excuse a sensor, round falsealarm56)."""
     for step in (30, 60):
         frame, potential = _demo(step)
         rg = frame["rg"].to_numpy(dtype=float)
         assert dim_rg_months(rg, potential, frame.index) is None
         july = frame.index >= "2021-07-01"
         for share in (PAR_SHARE, ALBEDO):
-            screened = pd.DataFrame({"rg": np.where(july, rg * share, rg)},
-                                    index=frame.index)
+            screened = pd.DataFrame({"rg": np.where(july, rg * share, rg),
+                                     "tair": frame["tair"]}, index=frame.index)
             found = [f for f in _column_faults(screened, potential, step,
                                                {"rg": "solar_down"})
                      if f.stage == "input (rg dim)"]
@@ -120,3 +121,38 @@ def test_a_short_high_sun_season_at_the_edge_of_the_year_is_quiet():
     assert 20 <= october.sum() <= 100
     assert dim_rg_months(year.frame["rg"].to_numpy(dtype=float), potential,
                          year.frame.index) is None
+
+
+def _bristow_campbell_year(seed=0):
+    """An invented year at 21.5° N whose days' transmittance follows their temperature
+    range by Bristow and Campbell (1984, Agric. For. Meteorol. 31:159-166 (m)):
+    tau = A (1 - exp(-B dT^C)), A 0.7, B 0.008, C 2.4 (their form and C; A and B within
+    their reported ranges (m)); ranges of 4-16 K, and 3-7 K from June to August (a
+    monsoon's core: no day clearer than 0.40 of the potential radiation)."""
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2022-01-01", periods=365 * 48, freq=f"{STEP}min")
+    potential = solar.potential_radiation(index, 21.5, 105.9, 7.0, STEP)
+    days = np.arange(len(index)) // 48
+    monsoon = np.isin(pd.date_range("2022-01-01", periods=365).month, [6, 7, 8])
+    span = np.where(monsoon, rng.uniform(3, 7, 365), rng.uniform(4, 16, 365))
+    tau = 0.7 * (1 - np.exp(-0.008 * span ** 2.4))
+    hour = (np.arange(len(index)) % 48) / 2
+    tair = 25.0 + span[days] / 2 * np.cos(2 * np.pi * (hour - 14.5) / 24)
+    return potential * tau[days], potential, tair, index, tau, monsoon
+
+
+def test_a_monsoon_of_three_overcast_months_is_quiet_where_the_thermometer_shows_it():
+    """Known truth (round falsealarm56): three months without a day clearer than 0.40 of
+    the potential radiation (a monsoon's core; the fifth clean probe's rice paddy at
+    21.5° N was named) are named without tair, as before; with tair, whose daily range is
+    as narrow as the rest's overcast days (Bristow and Campbell 1984), quiet. PAR and the
+    reflected radiation from July, with the same thermometer, are still named (with the
+    monsoon's June beside them: a run of months holds the sensor's and the sky's)."""
+    rg, potential, tair, index, tau, monsoon = _bristow_campbell_year()
+    assert tau[monsoon].max() < _PPFD_CLEAR_MIN < tau[~monsoon].max()
+    assert dim_rg_months(rg, potential, index) is not None
+    assert dim_rg_months(rg, potential, index, tair=tair) is None
+    july = index >= "2022-07-01"
+    for share in (PAR_SHARE, ALBEDO):
+        text = dim_rg_months(np.where(july, rg * share, rg), potential, index, tair=tair)
+        assert text is not None and " to 2022-12 (" in text
