@@ -1085,7 +1085,7 @@ def _moving_point_level(nee, ustar, tair, group, n_groups, n_t, options, ranks):
     n_cells = n_strata * n_u
 
     nee_sum, count = _cell_means(nee, cell, n_cells)
-    ustar_sum, _ = _cell_means(ustar, cell, n_cells)
+    ustar_sum = np.bincount(cell, weights=ustar, minlength=n_cells)
     shape = (n_groups, n_t, n_u)
     nee_sum, count, ustar_sum = (a.reshape(shape) for a in (nee_sum, count, ustar_sum))
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -1114,11 +1114,12 @@ def _moving_point_level(nee, ustar, tair, group, n_groups, n_t, options, ranks):
     # resolution: mean NEE of the upper half of the u* classes (the plateau) over the
     # standard error of one u* class mean, sd / sqrt(records per class)
     upper = u_class >= n_u // 2
-    upper_count = np.bincount(stratum[upper], minlength=n_strata).astype(float)
-    upper_mean = _safe_divide(np.bincount(stratum[upper], weights=nee[upper],
+    upper_stratum, upper_nee = stratum[upper], nee[upper]     # selected once (speed58)
+    upper_count = np.bincount(upper_stratum, minlength=n_strata).astype(float)
+    upper_mean = _safe_divide(np.bincount(upper_stratum, weights=upper_nee,
                                           minlength=n_strata), upper_count)
-    deviation = nee[upper] - upper_mean[stratum[upper]]
-    upper_variance = _safe_divide(np.bincount(stratum[upper], weights=deviation * deviation,
+    deviation = upper_nee - upper_mean[upper_stratum]
+    upper_variance = _safe_divide(np.bincount(upper_stratum, weights=deviation * deviation,
                                               minlength=n_strata), upper_count - 1.0)
     with np.errstate(divide="ignore", invalid="ignore"):
         resolution = upper_mean / np.sqrt(upper_variance * n_u / stratum_count)
@@ -1159,10 +1160,14 @@ def _moving_point_core(nee, ustar, tair, group, groups, options, ranks=None, *,
         active = pending & (size >= n_t * per_class)
         if not active.any():
             continue
-        keep = active[group]
-        level = _moving_point_level(nee[keep], ustar[keep], tair[keep], group[keep], n_groups,
-                                    n_t, options,
-                                    {name: value[keep] for name, value in ranks.items()})
+        if active.all():
+            # every group tried: the records as they are, not a copy (speed58)
+            level = _moving_point_level(nee, ustar, tair, group, n_groups, n_t, options, ranks)
+        else:
+            keep = active[group]
+            level = _moving_point_level(nee[keep], ustar[keep], tair[keep], group[keep],
+                                        n_groups, n_t, options,
+                                        {name: value[keep] for name, value in ranks.items()})
         weak = np.abs(level["correlation"]) < options["correlation_limit"]
         resolved = (level["resolution"] >= min_resolution) if min_resolution > 0 else True
         used = level["plateau_reached"] & weak & resolved & active[:, None]
@@ -1220,7 +1225,7 @@ def _change_point_core(nee, ustar, tair, group, groups, options, *, statistics, 
     bin_of = _class_positions(ustar, stratum, n_strata, n_bins, ranks.get("ustar"))
     cell = stratum * n_bins + bin_of
     nee_sum, count = _cell_means(nee, cell, n_strata * n_bins)
-    ustar_sum, _ = _cell_means(ustar, cell, n_strata * n_bins)
+    ustar_sum = np.bincount(cell, weights=ustar, minlength=n_strata * n_bins)
     enough = stratum_count >= n_bins * options["min_records_per_bin"]
     with np.errstate(divide="ignore", invalid="ignore"):
         x = np.where(enough[:, None], (ustar_sum / count).reshape(n_strata, n_bins), 0.0)
@@ -1472,20 +1477,24 @@ def _bootstrap(data: _NightData, detector, options, draws, seed) -> pd.DataFrame
     # ranks of the original records, once: a draw's records sort by these integers
     data_ranks = {"tair": _dense_ranks(data.tair), "ustar": _dense_ranks(data.ustar)}
     rows = []
-    repeated = {}          # the groups repeated for a chunk of draws, by chunk size
+    repeated = {}          # the groups (table, per record) repeated for a chunk of draws, by size
     years, seasons = groups["year"].to_numpy(), groups["season"].to_numpy(dtype=object)
     per_chunk = max(1, _RECORDS_PER_CHUNK // max(n, 1))
+    # each record's group start and size, the same for every draw (speed58)
+    record_start, record_size = start[data.group], size[data.group]
     for first in range(0, draws, per_chunk):
         chunk = min(per_chunk, draws - first)
         if chunk not in repeated:
-            repeated[chunk] = pd.concat([groups] * chunk, ignore_index=True)
+            repeated[chunk] = (pd.concat([groups] * chunk, ignore_index=True),
+                               (np.arange(chunk)[:, None] * n_groups
+                                + data.group[None, :]).ravel())
+        chunk_groups, group = repeated[chunk]
         uniform = rng.random((chunk, n))
-        picked = start[data.group] + np.minimum((uniform * size[data.group]).astype(np.int64),
-                                                size[data.group] - 1)
+        picked = record_start + np.minimum((uniform * record_size).astype(np.int64),
+                                           record_size - 1)
         picked = picked.ravel()
-        group = (np.arange(chunk)[:, None] * n_groups + data.group[None, :]).ravel()
         resampled = _NightData(nee=data.nee[picked], ustar=data.ustar[picked],
-                               tair=data.tair[picked], group=group, groups=repeated[chunk])
+                               tair=data.tair[picked], group=group, groups=chunk_groups)
         ranks = {name: values[picked] for name, values in data_ranks.items()}
         if detector == "moving_point":
             core = _moving_point_core(resampled.nee, resampled.ustar, resampled.tair, group,
