@@ -50,7 +50,7 @@ Run from the repository root (about two minutes a draw on two free cores)::
 ``nonoise``, ``noloss``, ``notwilight`` (no skylight with the sun below the horizon),
 ``norain`` (no rain gaps), ``nolong`` (no NEE-only outage of weeks), ``nopower`` (no outage
 of every sensor), ``nowater`` (no soil-water factor on uptake or respiration), ``novpd`` (no
-VPD limit on uptake)); ``--planted-ustar`` runs at the planted threshold; ``--processing``
+VPD limit on uptake), ``flatref`` (R15 not rising with leaf area)); ``--planted-ustar`` runs at the planted threshold; ``--processing``
 adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -136,7 +136,7 @@ from trial_scoring import (  # noqa: E402
 GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 CO2_G_PER_MOL = 44.01     # (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "notwilight", "norain", "nolong", "nopower",
-            "nowater", "novpd")
+            "nowater", "novpd", "flatref")
 ECC, OBLIQUITY, PERIHELION_LON = 0.0167, np.radians(23.44), np.radians(282.9)   # (m)
 ERROR_SHAPE = 1.4          # generalised-normal shape (invented)
 
@@ -468,7 +468,7 @@ def fluxes(site, idx, met, rng, variant):
                     site.bann_c)
     gpp = np.maximum(gpp, 0.0)
     temp = tsoil if site.driver == "tsoil" else met["tair"]
-    r15 = site.r15 * (1 + site.r_lai * lai)
+    r15 = site.r15 * (1 + (0.0 if "flatref" in variant else site.r_lai) * lai)
     if site.resp == "lt":
         reco = r15 * np.exp(site.e0_or_q10 * (1 / 61.02 - 1 / np.maximum(temp + 46.02, 5.0)))
     else:
