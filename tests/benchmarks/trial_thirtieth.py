@@ -41,7 +41,7 @@ threshold, generalised-normal random error, spikes, QC rejections whose runs sta
 as often by night, an analyser zero check every third night, rain gaps with a drying time,
 one (L: three) NEE-only outages of 14-21 days and one outage of every sensor of 4-9 days.
 
-Run from the repository root (about two minutes a draw on two free cores)::
+Run from the repository root (four to seven minutes a draw on shared cores)::
 
     python tests/benchmarks/trial_thirtieth.py --out /tmp/fluxpart-trial30 [--runs A,L]
         [--seed-offset 1]
@@ -123,12 +123,13 @@ from scipy.stats import gennorm
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from trial_scoring import (  # noqa: E402
+    LoggerSite,
     ar1,
+    flux_note,
     print_rain_outage_row,
-    rain_outage_fill_parts,
     ramp,
     runs_mask,
-    score_budget_years,
+    score_rain_outage,
     trial_main,
     write_logger_site,
 )
@@ -142,17 +143,7 @@ ERROR_SHAPE = 1.4          # generalised-normal shape (invented)
 
 
 @dataclass(frozen=True)
-class Site:
-    key: str
-    name: str
-    lat: float
-    lon: float
-    utc_offset: float
-    canopy: str
-    step: int            # minutes
-    start: str
-    end: str
-    year_start: str
+class Site(LoggerSite):
     t_mean: float        # deg C, annual mean air temperature
     t_amp: float         # K, seasonal half-range
     dtr: float           # K, mean diurnal range
@@ -550,16 +541,12 @@ def simulate(site: Site, variant=frozenset(), seed_offset=0):
                           "outage": lost["power"] | lost["long"],
                           "rain": lost["rain"] & ~lost["power"] & ~lost["long"]}, index=idx)
     factor = site.step * 60 * GC_PER_UMOL
-    dim = met["rg"] < 10
     truth.attrs["note"] = (
         f"NEE lost {no_nee.mean():.0%} (night {no_nee[night].mean():.0%}, day "
         f"{no_nee[~night].mean():.0%}; QC {lost['qc'].mean():.0%}, zero checks "
         f"{lost['zero'].mean():.0%}, rain {lost['rain'].mean():.0%}, long outages "
-        f"{lost['long'].mean():.0%}, power {lost['power'].mean():.0%}); u* loss share of night "
-        f"Reco {1 - (share * reco)[night].sum() / reco[night].sum():.0%}; GPP "
-        f"{gpp.sum() * factor:.0f}, Reco {reco.sum() * factor:.0f} g C m-2; GPP in Rg < 10 "
-        f"W m-2 {gpp[dim].sum() * factor:.1f} g C m-2"
-        + (f"; events {', '.join(events)}" if events else ""))
+        f"{lost['long'].mean():.0%}, power {lost['power'].mean():.0%}); "
+        + flux_note(gpp, reco, share, night, met["rg"] < 10, factor, events))
     EVENTS[site.key] = events
     return data, truth
 
@@ -621,15 +608,9 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
                              csv_suffix="_tower.csv").name
 
 
-def score(site: Site, truth: pd.DataFrame, out: Path, check):
-    """Score every complete budget year of ``annual.parquet`` against the truth."""
-    return score_budget_years(out, truth, site.key, check, site.step * 60 * GC_PER_UMOL,
-                              rain_outage_fill_parts)
-
-
 def main(argv=None):
     return trial_main(argv, __doc__, "/tmp/fluxpart-trial30", VARIANTS, SITES, simulate,
-                      write_site, score, print_rain_outage_row)
+                      write_site, score_rain_outage, print_rain_outage_row)
 
 
 if __name__ == "__main__":
