@@ -8,7 +8,8 @@ power outage, ``rain_outage_fill_parts``; since ``trial_twentythird.py`` and
 ``trial_twentyfourth.py`` the list of misses with z, ``print_misses_z`` (first written for
 trial 22), and the writer of a site's logger CSV and TOML, ``write_logger_site``; since
 ``trial_twentyeighth.py`` the generators' generic numerics ``ar1``, ``lagged``, ``ramp`` and
-``runs_mask``, taken out of trials 25-27 unchanged): each trial
+``runs_mask``, taken out of trials 25-27 unchanged; since ``trial_thirtieth.py`` the site
+fields ``LoggerSite``, the scorer ``score_rain_outage`` and the note ``flux_note``): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
