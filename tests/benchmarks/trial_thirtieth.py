@@ -21,7 +21,8 @@ Ten sites, twelve budget years a draw:
 - L  a lowland heath at 52.6 deg N, 30 min, 2024 (a LEAP year) with about 55 % of NEE
      missing (three analyser outages of 14-21 days, frequent QC rejections); Lloyd-Taylor on
      AIR; 0.14;
-- T  a teak plantation at 11.0 deg N with HOURLY records, 2022, leafless in the dry season;
+- T  a teak plantation at 11.0 deg N with HOURLY records, 2022, leafless in the dry season,
+     respiration with a soil-water factor;
      Q10 on AIR; 0.30;
 - S  a sunflower field at 43.5 deg N, 30 min, 2022 and 2023, sowing and harvest declared as
      ``events``; Q10 on SOIL; 0.12;
