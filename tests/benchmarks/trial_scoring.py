@@ -8,7 +8,8 @@ power outage, ``rain_outage_fill_parts``; since ``trial_twentythird.py`` and
 ``trial_twentyfourth.py`` the list of misses with z, ``print_misses_z`` (first written for
 trial 22), and the writer of a site's logger CSV and TOML, ``write_logger_site``; since
 ``trial_twentyeighth.py`` the generators' generic numerics ``ar1``, ``lagged``, ``ramp`` and
-``runs_mask``, taken out of trials 25-27 unchanged): each trial
+``runs_mask``, taken out of trials 25-27 unchanged; since ``trial_thirtieth.py`` the site
+fields ``LoggerSite``, the scorer ``score_rain_outage`` and the note ``flux_note``): each trial
 keeps its own weather, flux physics and file layouts, so that the trials stay independent
 of each other and of ``fluxpart.scenarios``.
 
@@ -21,6 +22,7 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -541,3 +543,45 @@ def runs_mask(n, starts, lengths):
     for s, ln in zip(starts, lengths, strict=True):
         mask[max(int(s), 0):max(int(s) + int(ln), 0)] = True
     return mask
+
+
+# ----------------------------------------------------------------- a site's logger fields
+# Since trial_thirtieth.py: the fields every trial site carries for its TOML and its record
+# span (a trial's own ``Site`` adds its climate and physics after them).
+
+
+@dataclass(frozen=True)
+class LoggerSite:
+    """A trial site's identity and record span: `key` (one letter), `name`, `lat`, `lon`
+    [deg], `utc_offset` [h], `canopy` ("tall" | "short"), `step` [min], the records from
+    `start` to `end` (dates, end excluded) and the budget years from `year_start`
+    ("MM-DD")."""
+
+    key: str
+    name: str
+    lat: float
+    lon: float
+    utc_offset: float
+    canopy: str
+    step: int
+    start: str
+    end: str
+    year_start: str
+
+
+def score_rain_outage(site, truth, out, check):
+    """:func:`score_budget_years` of a run with :func:`rain_outage_fill_parts`, the records
+    `site.step` minutes long (g C m-2 per umol m-2 s-1 record: step x 60 s x 12.011e-6)."""
+    return score_budget_years(out, truth, site.key, check, site.step * 60 * 12.011e-6,
+                              rain_outage_fill_parts)
+
+
+def flux_note(gpp, reco, share, night, dim, factor, events=()) -> str:
+    """The closing text of a trial's planted note: the share of the night Reco lost to the
+    u* loss (`share` the measured share per record), annual GPP and Reco and the GPP of the
+    dim records (`dim` a mask) [g C m-2, `factor` per umol m-2 s-1 record] and the events."""
+    lost = 1 - (share * reco)[night].sum() / reco[night].sum()
+    return (f"u* loss share of night Reco {lost:.0%}; GPP {gpp.sum() * factor:.0f}, Reco "
+            f"{reco.sum() * factor:.0f} g C m-2; GPP in Rg < 10 W m-2 "
+            f"{gpp[dim].sum() * factor:.1f} g C m-2"
+            + (f"; events {', '.join(events)}" if events else ""))
