@@ -280,6 +280,27 @@ def _lagged_potential(index: pd.DatetimeIndex, position, interval_minutes: float
     return out
 
 
+#: Rows at which a potential radiation passed in is checked to be the record's own.
+_CHECKED_ROWS = 97
+
+
+def _own_potential(potential, index: pd.DatetimeIndex, position, interval_minutes: float
+                   ) -> bool:
+    """Whether `potential` [W m-2] is ``potential_radiation(index, *position,
+    interval_minutes)``: one value per record and the same bits at :data:`_CHECKED_ROWS`
+    rows spread over the record (each record's value is computed from its own stamp
+    alone). A potential of another record (trimmed, reindexed, shifted) or of other
+    settings would move the clock's verdict without a word (review77: one of an hour
+    later read as Rg 60 min late); it is computed afresh instead.
+    """
+    potential = np.asarray(potential, dtype=float)
+    if potential.shape != (len(index),):
+        return False
+    rows = np.unique(np.linspace(0, len(index) - 1, _CHECKED_ROWS).astype(np.intp))
+    own = potential_radiation(index[rows], *position, interval_minutes)
+    return bool(np.array_equal(own, potential[rows]))
+
+
 def _correlation(envelope: np.ndarray, model: np.ndarray) -> float:
     ok = np.isfinite(envelope) & np.isfinite(model)
     if ok.sum() < 4:
@@ -396,7 +417,8 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes,
     potential : array_like, optional
         ``potential_radiation(index, latitude, longitude, utc_offset, interval_minutes)``
         [W m-2] where the caller has it already (the run's solar geometry): not
-        computed again.
+        computed again where it is the record's own (:func:`_own_potential`), else
+        computed afresh.
 
     Returns
     -------
@@ -423,6 +445,8 @@ def monthly_shifts(index, rg, latitude, longitude, utc_offset, interval_minutes,
 
     step = interval / 6.0
     fine_lags = np.arange(-6, 7) * step             # sub-record lags [min]
+    if potential is not None and not _own_potential(potential, index, position, interval):
+        potential = None                # another record's: the lag 0 computed afresh
     shifted = _lagged_potential(index, position, interval, fine_lags, potential)
     present = np.isfinite(rg_matrix)
     good_day = present.sum(axis=1) >= 0.8 * slots
@@ -1060,7 +1084,8 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
         shift is then named as that zone's, not as utc_offset's.
     potential : array_like, optional
         The record's potential radiation at the configured settings [W m-2], where the
-        caller has it (the run's solar geometry): not computed again.
+        caller has it (the run's solar geometry): not computed again where it is the
+        record's own, else computed afresh (as :func:`monthly_shifts`).
 
     Returns
     -------

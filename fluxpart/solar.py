@@ -426,14 +426,14 @@ def solar_geometry(index, site, interval_minutes=None) -> pd.DataFrame:
     """
     minutes = _interval_minutes(index, interval_minutes)
     position = (site.latitude, site.longitude, site.utc_offset)
+    _as_datetime64(index, "index")      # its refusal first, as the elevation's own gives it
+    _check_location(*position)          # before the offset is used: a ConfigError, not a TypeError
     if not _whole_seconds(minutes, site.utc_offset):
         return pd.DataFrame(
             {"sun_elevation": interval_midpoint_elevation(index, *position, minutes),
              "potential_radiation": potential_radiation(index, *position, minutes)},
             index=pd.DatetimeIndex(index),
         )
-    _as_datetime64(index, "index")      # its refusal first, as the elevation's own gives it
-    _check_location(*position)
     sun = interval_sun(index, site.longitude, site.utc_offset, minutes)
     return pd.DataFrame(
         {"sun_elevation": _middle_elevation(sun, site.latitude),

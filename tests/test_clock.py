@@ -538,3 +538,21 @@ def test_a_frame_stamped_at_interval_ends_is_told_the_fix_in_python_terms():
     assert re.search(r"Rg comes (29|30|31) min later than the sun", message)
     assert "a frame given to fluxpart.process needs an index of interval starts" in message
     assert 'Config(clock_check="warn")' in message
+
+
+def test_a_potential_of_another_record_is_not_taken_for_the_records_own():
+    """check_clock's `potential` is taken only where it is the record's own (review77):
+    the potential radiation of the record an hour later, of one record fewer or at another
+    latitude gives the verdict of none passed (no Rg read as 60 min late); the record's
+    own, the same verdict. Synthetic Rg (clock_sites: Kasten-Czeplak clouds (m)) at a
+    correct clock, 120 days."""
+    from fluxpart.solar import potential_radiation
+
+    rg = synthetic_rg(48.0, 11.0, 1.0, days=120, seed=3)
+    own = potential_radiation(rg.index, 48.0, 11.0, 1.0, 30)
+    expected = _check(rg, 48.0, 11.0, 1.0, 30).to_dict()
+    assert expected["status"] == "consistent"
+    others = (own, potential_radiation(rg.index + pd.Timedelta(hours=1), 48.0, 11.0, 1.0, 30),
+              own[:-1], potential_radiation(rg.index, 30.0, 11.0, 1.0, 30))
+    for potential in others:
+        assert _check(rg, 48.0, 11.0, 1.0, 30, potential=potential).to_dict() == expected

@@ -251,6 +251,18 @@ def test_solar_geometry_shares_the_course_to_the_bit(latitude, longitude, offset
                                   potential_radiation(index, latitude, longitude, offset))
 
 
+def test_solar_geometry_names_an_offset_that_is_no_number():
+    """A site whose utc_offset is no number is a ConfigError naming the setting, as before
+    the shared course (review77: the whole-seconds test multiplied it first, a TypeError)."""
+    import types
+
+    index = pd.date_range("2024-02-28", periods=96, freq="30min")
+    for offset in ("5:45", None):
+        site = types.SimpleNamespace(latitude=27.7, longitude=85.3, utc_offset=offset)
+        with pytest.raises(ConfigError, match=r"\[site\] utc_offset"):
+            solar_geometry(index, site)
+
+
 def test_night_mask():
     """Night by measured Rg below threshold; by potential radiation where Rg is missing."""
     rg = np.array([0.0, 9.9, 10.0, 300.0, np.nan, np.nan, -3.0])
