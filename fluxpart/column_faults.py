@@ -1042,9 +1042,14 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     neither a whole day nor :func:`nee_hour_shift`'s 14 h reaches). Where the changes of
     Rg at one of them correlate with those of NEE clearly more strongly than those of the
     same record (Fisher z larger by Bonferroni's bound for the shifts compared,
-    :func:`_family_bound`: 4.6 standard errors, sqrt(2 / (n - 3)), for the 558 shifts of
-    30-minute records, 4.4 for the 310 of hourly ones; 4.1 for the 62 whole days alone),
-    the two records are named as that far apart: a day of year counted from 0 in one file and from 1 in the other, or a
+    :func:`_family_bound`, in standard errors sqrt(2 / (n - 3)): 4.1 for the 62 whole
+    days, judged first and as before; where none passes, the best shift of all, a day and
+    some records, must pass 4.6 for the 496 such shifts of 30-minute records, 4.4 for
+    the 248 of hourly ones, so each family keeps the chance alarm of one test at 3
+    standard errors and the two together twice that, and beat the same records a day on
+    either side by 3, :func:`_beats_the_days_beside`: an NEE whose daily course trails
+    the sun's matches every day those records off), the two records are named as that
+    far apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
     uncertainty without a word; ten days late moved GPP by -127 g C m-2. Where a shift of
@@ -1058,6 +1063,8 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     2nd ed. Springer, ch. 2 (m).
     Dunn, O. J. (1961). Multiple comparisons among means. Journal of the American
     Statistical Association, 56, 52-64 (m).
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 2 (m).
     """
     arrays = _light_arrays(nee, rg, potential, interval_minutes)
     if arrays is None:
@@ -1074,11 +1081,17 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     scores = {k: score for k, score in scores.items() if math.isfinite(score[0])}
     if 0 not in scores or len(scores) < 2:
         return None
-    # the best of up to 558 shifts against the same record: each one more draw of the
+    # the best of up to 62 whole days against the same record: each one more draw of the
     # noise, so Bonferroni's bound for the shifts compared (falsealarm53)
-    found = _decide(scores, _family_bound(len(scores) - 1))
+    whole = {k: score for k, score in scores.items() if k % per_day == 0}
+    found = _decide(whole, _family_bound(len(whole) - 1)) if len(whole) > 1 else None
     if found is None:
-        return None
+        # then a day and a few records (leftovers57), Bonferroni's bound for those shifts:
+        # the whole days decide as before, a day and a record is named where none does
+        found = _decide(scores, _family_bound(len(scores) - len(whole)))
+        if (found is None or found[0] % per_day == 0
+                or not _beats_the_days_beside(found, d_nee, d_rg, per_day, scores)):
+            return None
     best, strength, same, apart = found
     names = columns or {}
     records = _record_rival(d_nee, d_rg, interval_minutes, strength)
@@ -1099,6 +1112,32 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
             f"record, {apart:.0f} standard errors apart): a cloud changes light and uptake "
             f"in the same record, so the flux and the weather records look {apart_words}; "
             "align them in a copy of the file")
+
+
+def _beats_the_days_beside(found, d_nee, d_rg, per_day: int, scores: dict) -> bool:
+    """Whether the best shift of a day and some records (`found`, :func:`_decide`'s) beats
+    the same records a day on either side by :data:`_LAG_STANDARD_ERRORS` standard errors
+    of Fisher's z, as a passing cloud's change does (:func:`_best_of`'s rule).
+
+    A whole day keeps the daily course of Rg in step with NEE's; a day and some records
+    does not: an NEE whose daily course trails the sun's (respiration following the air's
+    temperature, whose daily maximum trails the sun's by 1-3 h: Campbell & Norman 1998,
+    ch. 2 (m)) matches Rg's course those records off on every day alike, the clouds only
+    at the one true shift."""
+    best, strength, _, _ = found
+    count = scores[best][1]
+    beside = {k: k for k in (best - per_day, best + per_day) if k not in scores}
+    known = {**scores, **_judged_change_scores(d_nee, d_rg, beside)}
+    z_best = math.atanh(min(strength, 0.999999))
+    for k in (best - per_day, best + per_day):
+        other, other_count = known[k]
+        if not math.isfinite(other) or min(count, other_count) <= 3:
+            continue
+        error = math.sqrt(2.0 / (min(count, other_count) - 3))
+        if z_best - math.atanh(max(min(other, 0.999999), -0.999999)) <= (
+                _LAG_STANDARD_ERRORS * error):
+            return False
+    return True
 
 
 def _days_and_records(shift: int, interval_minutes: float) -> str:
