@@ -70,15 +70,9 @@ def test_storage_in_grams_of_carbon_per_record_beside_a_rate_is_warned():
 def test_a_storage_column_in_grams_per_record_reads_right_with_the_warning(tmp_path):
     """The reader: storage written in g C m-2 per record and declared so reads to the
     file whose storage is in µmol m-2 s-1 (to 1e-9), now with the units-apart warning."""
-    from test_leftovers56 import _lines
-    from test_robustness_layouts26 import MAPPING, NAMES, _read, _records
-    ends, values = _records()
-    written = np.column_stack([values, (0.3 * np.sin(np.arange(len(ends)) / 9)).round(3)])
-    stamps, head = [f"{e:%Y-%m-%d %H:%M}" for e in ends], ("stamp", *NAMES, "stor")
-    columns = MAPPING | {"storage": "stor"}
-    (tmp_path / "clean.csv").write_text("\n".join(_lines(stamps, written, head)) + "\n")
-    expected, clean = _read(tmp_path / "clean.csv", columns=columns)
-    assert not [w for w in clean.warnings if w.startswith("storage")], clean.warnings
+    from test_leftovers56 import _lines, _storage_record
+    from test_robustness_layouts26 import _read
+    stamps, written, head, columns, expected = _storage_record(tmp_path)
     written[:, -1] *= 1800.0 * CARBON * 1e-6
     (tmp_path / "grams.csv").write_text("\n".join(_lines(stamps, written, head)) + "\n")
     read, report = _read(tmp_path / "grams.csv", columns=columns,
