@@ -456,6 +456,63 @@ def _judged_change_scores(d_nee, d_rg, shifts: dict) -> dict:
     return scores
 
 
+def _moment_change_scores(d_nee, d_rg, shifts) -> dict:
+    """:func:`_change_scores` of each shift k of `shifts` [records], to rounding (some
+    1e-12), from the pairs' moments for all shifts at once: the count, the sums, the sums
+    of squares and of products of the pairs both present at each k are cross-correlations
+    of the two series (NaN as 0) and of their masks, each taken by one product of discrete
+    Fourier transforms (the correlation theorem; Press et al. 2007, Numerical Recipes,
+    3rd ed., section 13.2 (m)) rather than by one pass over the pairs per shift.
+
+    Each series is taken less the mean of its present values first (a correlation is the
+    same for any constant subtracted), so the sums of squares less the squared sums lose
+    no digits to a large mean. A screen: a check that names a shift takes its correlation
+    again from its sums of products (:func:`_judged_change_scores`)."""
+    size = d_nee.size
+    present_a, present_b = np.isfinite(d_nee), np.isfinite(d_rg)
+    shifts = np.asarray(list(shifts), dtype=int)
+    if not present_a.any() or not present_b.any() or shifts.size == 0:
+        return {int(k): (math.nan, 0) for k in shifts}
+    a = np.where(present_a, d_nee - d_nee[present_a].mean(), 0.0)
+    b = np.where(present_b, d_rg - d_rg[present_b].mean(), 0.0)
+    # no pair wraps around: the series and the widest shift of zeros after it, to the next
+    # length of factors 2, 3 and 5 only (the transforms' fast sizes)
+    length = _smooth_length(size + int(np.abs(shifts).max()) + 1)
+
+    def transform(values):
+        return np.fft.rfft(values, length)
+
+    fa = [transform(v) for v in (present_a.astype(float), a, a * a)]
+    fb = [transform(v) for v in (present_b.astype(float), b, b * b)]
+
+    def cross(x, y):       # sum over t of x(t + k) y(t), at each shift k (index k mod length)
+        return np.fft.irfft(x * np.conj(y), length)[shifts % length]
+
+    count = np.rint(cross(fa[0], fb[0]))
+    sum_a, sum_b = cross(fa[1], fb[0]), cross(fa[0], fb[1])
+    sxx = cross(fa[2], fb[0]) - sum_a * sum_a / np.maximum(count, 1.0)
+    syy = cross(fa[0], fb[2]) - sum_b * sum_b / np.maximum(count, 1.0)
+    sxy = cross(fa[1], fb[1]) - sum_a * sum_b / np.maximum(count, 1.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r = sxy / np.sqrt(np.clip(sxx, 0.0, None) * np.clip(syy, 0.0, None))
+    r = np.where((count >= _MIN_PAIRS) & np.isfinite(r), r, np.nan)
+    return {int(k): (-float(v), int(n)) for k, v, n in zip(shifts, r, count, strict=True)}
+
+
+def _smooth_length(least: int) -> int:
+    """The least number of at least `least` whose prime factors are 2, 3 and 5 only."""
+    best = 1 << max(int(least - 1).bit_length(), 0)
+    fives = 1
+    while fives < best:
+        threes = fives
+        while threes < best:
+            length = threes << max(int(-(-least // threes) - 1).bit_length(), 0)
+            best = min(best, length)
+            threes *= 3
+        fives *= 5
+    return best
+
+
 def _light_arrays(nee, rg, potential, interval_minutes: float | None = None, stamps=None):
     """NEE, Rg and potential radiation as float arrays for the checks of NEE against light,
     or None where they hold fewer than 3 records, differ in length (from `stamps` too,
@@ -1077,20 +1134,27 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
               for records in (range(-most, most + 1) if days else (0,))
               if abs(days * per_day + records) < nee.size - 1}
     d_nee, d_rg = _sunlit_changes(nee, rg, potential)
-    scores = _judged_change_scores(d_nee, d_rg, shifts)
+    scores = _judged_change_scores(d_nee, d_rg, {k: k for k in shifts if k % per_day == 0})
     scores = {k: score for k, score in scores.items() if math.isfinite(score[0])}
-    if 0 not in scores or len(scores) < 2:
+    if 0 not in scores:
         return None
     # the best of up to 62 whole days against the same record: each one more draw of the
     # noise, so Bonferroni's bound for the shifts compared (falsealarm53)
-    whole = {k: score for k, score in scores.items() if k % per_day == 0}
-    found = _decide(whole, _family_bound(len(whole) - 1)) if len(whole) > 1 else None
+    found = _decide(scores, _family_bound(len(scores) - 1)) if len(scores) > 1 else None
     if found is None:
         # then a day and a few records (leftovers57), Bonferroni's bound for those shifts:
-        # the whole days decide as before, a day and a record is named where none does
-        found = _decide(scores, _family_bound(len(scores) - len(whole)))
-        if (found is None or found[0] % per_day == 0
-                or not _beats_the_days_beside(found, d_nee, d_rg, per_day, scores)):
+        # the whole days decide as before, a day and a record is named where none does.
+        # The 496 shifts' correlations from their moments at once (_moment_change_scores),
+        # the best one's then from its sums of products, as every other shift's here
+        extra = _moment_change_scores(d_nee, d_rg, [k for k in shifts if k % per_day])
+        extra = {k: score for k, score in extra.items() if math.isfinite(score[0])}
+        bound = _family_bound(len(extra))
+        found = _decide({**scores, **extra}, bound)
+        if found is None or found[0] % per_day == 0:
+            return None
+        scores |= _judged_change_scores(d_nee, d_rg, {found[0]: found[0]})
+        found = _decide({0: scores[0], found[0]: scores[found[0]]}, bound)
+        if found is None or not _beats_the_days_beside(found, d_nee, d_rg, per_day, scores):
             return None
     best, strength, same, apart = found
     names = columns or {}
