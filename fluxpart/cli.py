@@ -440,7 +440,7 @@ def _format_clock(verdict) -> str:
     return "\n".join(lines)
 
 
-def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
+def _follow_on_note(unit_refusals, clock_stops, listed: int, clock_warned=()) -> str:
     """The note ``check`` prints after its problems where a refusal may explain the rest.
 
     A temperature read in the wrong unit is out of range everywhere, so every stage finds no
@@ -449,7 +449,9 @@ def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
     ``[input.units]``; a latitude of the wrong sign or a clock an hour off moves the sun
     every record is judged against, so Rg exceeds the potential radiation and the night
     mask counts the sky's noise as day (the list advised a ``night_rg_threshold`` of
-    hundreds of W m-2; newuser54).
+    hundreds of W m-2; newuser54). Under ``clock_check = "warn"`` the run goes on past the
+    clock's problems, but the problems that follow from them are the same: the note says
+    so in its own words (leftovers57; it was absent, its words being "the run stops").
 
     Parameters
     ----------
@@ -460,12 +462,15 @@ def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
         ``clock_check`` is not ``"refuse"``).
     listed : int
         Every problem listed, the refusals included.
+    clock_warned : sequence of str, optional
+        The clock and site-geometry problems the run warns about and goes on past
+        (``clock_check = "warn"``), each among the problems.
 
     Returns
     -------
     str
-        One indented line ending in a newline, naming each refusal given (a unit and a
-        clock refusal both where both stop the run), or ``""`` where nothing else is
+        One indented line ending in a newline, naming each cause given (a unit and a
+        clock problem both where both are listed), or ``""`` where nothing else is
         listed.
     """
     causes = []          # (what stops the run, how the rest was judged, the fix)
@@ -474,17 +479,28 @@ def _follow_on_note(unit_refusals, clock_stops, listed: int) -> str:
                        "add it to [input] missing")
                       if all("[input] missing" in text for text in unit_refusals) else
                       ("the unit mix-up", "on the values as read in that unit", "set the unit"))
+    clock = ("the clock or site geometry", "against the sun as [site] places it (Rg above "
+             "the potential radiation, the night mask)", "make the change it names")
     if clock_stops:
-        causes.append(("the clock or site geometry", "against the sun as [site] places it "
-                       "(Rg above the potential radiation, the night mask)",
-                       "make the change it names"))
+        causes.append(clock)
     # both at once: each named, where the unit's note alone counted the clock's refusal
     # among what may follow from the unit (a temperature's unit moves no sun; review74)
-    if not causes or listed <= len(unit_refusals) + len(clock_stops):
+    warned = bool(clock_warned) and not clock_stops
+    if (not causes and not warned) or listed <= (len(unit_refusals) + len(clock_stops)
+                                                 + len(clock_warned)):
         return ""
-    stops, judged, fixes = zip(*causes, strict=True)
-    return (f"  note: the run stops at {' and at '.join(stops)} named above; the other "
-            f"problems were judged {' and '.join(judged)} and may follow from "
+    stops = [cause[0] for cause in causes]
+    said = [f"the run stops at {' and at '.join(stops)} named above"] if stops else []
+    if warned:
+        # clock_check = "warn": the run goes on, the follow-on problems are the same
+        said.append(f"{clock[0]} named above is only warned about (clock_check = "
+                    '"warn")' if stops else
+                    f"the run goes on past {clock[0]} named above (clock_check = "
+                    '"warn")')
+        causes.append(clock)
+    _, judged, fixes = zip(*causes, strict=True)
+    return (f"  note: {', and '.join(said)}; the other problems were judged "
+            f"{' and '.join(judged)} and may follow from "
             f"{'it' if len(causes) == 1 else 'them'} alone: {', '.join(fixes)} and run "
             "check again\n")
 
@@ -543,9 +559,10 @@ def _command_check(args) -> int:
     problems += [f"budget year: {order}"] if order else []
     text = format_check(site_config.site, report, table, problems=problems,
                         notes=report.notes)
-    text += _follow_on_note(report.unit_refusals,
-                            verdict.problems if verdict is not None and refuse else (),
-                            len(problems) + len(report.warnings))
+    clock_problems = tuple(verdict.problems) if verdict is not None else ()
+    text += _follow_on_note(report.unit_refusals, clock_problems if refuse else (),
+                            len(problems) + len(report.warnings),
+                            () if refuse else clock_problems)
     print(text)
     print(_format_clock(verdict))
     if counts is not None:

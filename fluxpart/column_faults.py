@@ -442,6 +442,77 @@ def _change_scores(d_nee, d_rg, shifts: dict) -> dict:
     return scores
 
 
+def _judged_change_scores(d_nee, d_rg, shifts: dict) -> dict:
+    """:func:`_change_scores` over the pairs whose Rg change is judged (finite) only: the
+    same pairs in the same order, so the same correlations to the bit, without carrying
+    the night's pairs through every shift (the days' check compares 558)."""
+    judged = np.flatnonzero(np.isfinite(d_rg))
+    rg_judged = d_rg[judged]
+    scores = {}
+    for key, k in shifts.items():
+        inside = (judged + k >= 0) & (judged + k < d_nee.size)
+        r, count = _correlation(d_nee[judged[inside] + k], rg_judged[inside])
+        scores[key] = (-r, count)
+    return scores
+
+
+def _moment_change_scores(d_nee, d_rg, shifts) -> dict:
+    """:func:`_change_scores` of each shift k of `shifts` [records], to rounding (some
+    1e-12), from the pairs' moments for all shifts at once: the count, the sums, the sums
+    of squares and of products of the pairs both present at each k are cross-correlations
+    of the two series (NaN as 0) and of their masks, each taken by one product of discrete
+    Fourier transforms (the correlation theorem; Press et al. 2007, Numerical Recipes,
+    3rd ed., section 13.2 (m)) rather than by one pass over the pairs per shift.
+
+    Each series is taken less the mean of its present values first (a correlation is the
+    same for any constant subtracted), so the sums of squares less the squared sums lose
+    no digits to a large mean. A screen: a check that names a shift takes its correlation
+    again from its sums of products (:func:`_judged_change_scores`)."""
+    size = d_nee.size
+    present_a, present_b = np.isfinite(d_nee), np.isfinite(d_rg)
+    shifts = np.asarray(list(shifts), dtype=int)
+    if not present_a.any() or not present_b.any() or shifts.size == 0:
+        return {int(k): (math.nan, 0) for k in shifts}
+    a = np.where(present_a, d_nee - d_nee[present_a].mean(), 0.0)
+    b = np.where(present_b, d_rg - d_rg[present_b].mean(), 0.0)
+    # no pair wraps around: the series and the widest shift of zeros after it, to the next
+    # length of factors 2, 3 and 5 only (the transforms' fast sizes)
+    length = _smooth_length(size + int(np.abs(shifts).max()) + 1)
+
+    def transform(values):
+        return np.fft.rfft(values, length)
+
+    fa = [transform(v) for v in (present_a.astype(float), a, a * a)]
+    fb = [transform(v) for v in (present_b.astype(float), b, b * b)]
+
+    def cross(x, y):       # sum over t of x(t + k) y(t), at each shift k (index k mod length)
+        return np.fft.irfft(x * np.conj(y), length)[shifts % length]
+
+    count = np.rint(cross(fa[0], fb[0]))
+    sum_a, sum_b = cross(fa[1], fb[0]), cross(fa[0], fb[1])
+    sxx = cross(fa[2], fb[0]) - sum_a * sum_a / np.maximum(count, 1.0)
+    syy = cross(fa[0], fb[2]) - sum_b * sum_b / np.maximum(count, 1.0)
+    sxy = cross(fa[1], fb[1]) - sum_a * sum_b / np.maximum(count, 1.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        r = sxy / np.sqrt(np.clip(sxx, 0.0, None) * np.clip(syy, 0.0, None))
+    r = np.where((count >= _MIN_PAIRS) & np.isfinite(r), r, np.nan)
+    return {int(k): (-float(v), int(n)) for k, v, n in zip(shifts, r, count, strict=True)}
+
+
+def _smooth_length(least: int) -> int:
+    """The least number of at least `least` whose prime factors are 2, 3 and 5 only."""
+    best = 1 << max(int(least - 1).bit_length(), 0)
+    fives = 1
+    while fives < best:
+        threes = fives
+        while threes < best:
+            length = threes << max(int(-(-least // threes) - 1).bit_length(), 0)
+            best = min(best, length)
+            threes *= 3
+        fives *= 5
+    return best
+
+
 def _light_arrays(nee, rg, potential, interval_minutes: float | None = None, stamps=None):
     """NEE, Rg and potential radiation as float arrays for the checks of NEE against light,
     or None where they hold fewer than 3 records, differ in length (from `stamps` too,
@@ -990,7 +1061,7 @@ _MAX_SHIFT_DAYS = 31
 
 
 def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> str | None:
-    """A message where NEE follows Rg by whole days, or None.
+    """A message where NEE follows Rg by whole days, or by a day and a few records, or None.
 
     Parameters
     ----------
@@ -1020,12 +1091,22 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     longer pass over the other day's flux. The correlation of the record-to-record
     changes of NEE and Rg then holds the shared diurnal shape only, while at the true
     alignment a cloud's change of light and the uptake it changes fall into the same
-    record (Lambers, Chapin & Pons 2008, ch. 2 (m)). Where the changes of Rg ``k``
-    days (``k`` from 1 to :data:`_MAX_SHIFT_DAYS` either way) away correlate with
-    those of NEE clearly more strongly than those of the same day (Fisher z larger by
-    Bonferroni's bound for the shifts compared, :func:`_family_bound`: 4.1 standard
-    errors, sqrt(2 / (n - 3)), for 62 shifts), the two records are named as whole days
-    apart: a day of year counted from 0 in one file and from 1 in the other, or a
+    record (Lambers, Chapin & Pons 2008, ch. 2 (m)). The shifts compared are ``d`` days
+    (``d`` from 1 to :data:`_MAX_SHIFT_DAYS` either way) and, beside each, ``d`` days and
+    up to :data:`_MAX_SHIFT_MINUTES` of records either way (since leftovers57: a day of
+    year counted from 0 in a flux file stamped at interval ends joined with weather
+    stamped at starts is a day and a record apart, 49 or 47 records at 30 min, which
+    neither a whole day nor :func:`nee_hour_shift`'s 14 h reaches). Where the changes of
+    Rg at one of them correlate with those of NEE clearly more strongly than those of the
+    same record (Fisher z larger by Bonferroni's bound for the shifts compared,
+    :func:`_family_bound`, in standard errors sqrt(2 / (n - 3)): 4.1 for the 62 whole
+    days, judged first and as before; where none passes, the best shift of all, a day and
+    some records, must pass 4.6 for the 496 such shifts of 30-minute records, 4.4 for
+    the 248 of hourly ones, so each family keeps the chance alarm of one test at 3
+    standard errors and the two together twice that, and beat the same records a day on
+    either side by 3, :func:`_beats_the_days_beside`: an NEE whose daily course trails
+    the sun's matches every day those records off), the two records are named as that
+    far apart: a day of year counted from 0 in one file and from 1 in the other, or a
     weather file of other dates joined by stamp. On the example site the weather a day
     late moved GPP by -55 and Reco by -47 g C m-2 and doubled the stated NEE
     uncertainty without a word; ten days late moved GPP by -127 g C m-2. Where a shift of
@@ -1037,37 +1118,103 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     ----------
     Lambers, H., Chapin, F. S., & Pons, T. L. (2008). Plant Physiological Ecology,
     2nd ed. Springer, ch. 2 (m).
+    Dunn, O. J. (1961). Multiple comparisons among means. Journal of the American
+    Statistical Association, 56, 52-64 (m).
+    Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
+    Biophysics, 2nd ed. Springer, ch. 2 (m).
     """
     arrays = _light_arrays(nee, rg, potential, interval_minutes)
     if arrays is None:
         return None
     nee, rg, potential = arrays
     per_day = _records_per_day(interval_minutes)
-    shifts = {days: days * per_day for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
-              if abs(days * per_day) < nee.size - 1}
+    most = max(1, int(_MAX_SHIFT_MINUTES // interval_minutes))
+    shifts = {days * per_day + records: days * per_day + records
+              for days in range(-_MAX_SHIFT_DAYS, _MAX_SHIFT_DAYS + 1)
+              for records in (range(-most, most + 1) if days else (0,))
+              if abs(days * per_day + records) < nee.size - 1}
     d_nee, d_rg = _sunlit_changes(nee, rg, potential)
-    scores = _change_scores(d_nee, d_rg, shifts)
-    scores = {days: score for days, score in scores.items() if math.isfinite(score[0])}
-    if 0 not in scores or len(scores) < 2:
+    scores = _judged_change_scores(d_nee, d_rg, {k: k for k in shifts if k % per_day == 0})
+    scores = {k: score for k, score in scores.items() if math.isfinite(score[0])}
+    if 0 not in scores:
         return None
-    # the best of up to 62 shifts against the same record: each one more draw of the
+    # the best of up to 62 whole days against the same record: each one more draw of the
     # noise, so Bonferroni's bound for the shifts compared (falsealarm53)
-    found = _decide(scores, _family_bound(len(scores) - 1))
+    found = _decide(scores, _family_bound(len(scores) - 1)) if len(scores) > 1 else None
     if found is None:
-        return None
+        # then a day and a few records (leftovers57), Bonferroni's bound for those shifts:
+        # the whole days decide as before, a day and a record is named where none does.
+        # The 496 shifts' correlations from their moments at once (_moment_change_scores),
+        # the best one's then from its sums of products, as every other shift's here
+        extra = _moment_change_scores(d_nee, d_rg, [k for k in shifts if k % per_day])
+        extra = {k: score for k, score in extra.items() if math.isfinite(score[0])}
+        bound = _family_bound(len(extra))
+        found = _decide({**scores, **extra}, bound)
+        if found is None or found[0] % per_day == 0:
+            return None
+        scores |= _judged_change_scores(d_nee, d_rg, {found[0]: found[0]})
+        found = _decide({0: scores[0], found[0]: scores[found[0]]}, bound)
+        if found is None or not _beats_the_days_beside(found, d_nee, d_rg, per_day, scores):
+            return None
     best, strength, same, apart = found
     names = columns or {}
     records = _record_rival(d_nee, d_rg, interval_minutes, strength)
     if records is not None:
         return _record_shift_text(records, strength, best, same, interval_minutes, names)
     later = "later" if best > 0 else "earlier"
+    span = _days_and_records(best, interval_minutes)
+    if best % per_day == 0:
+        apart_words = "whole days apart (a day of year counted from 0 in one file and from 1 in "
+        apart_words += "the other, or a weather file of other dates)"
+    else:
+        apart_words = ("that far apart (a day of year counted from 0 in one file and from 1 "
+                       "in the other, and stamps at the interval's end in one and its start "
+                       "in the other)")
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
-            f"{names.get('rg', 'rg')!r}) {abs(best)} day(s) {later} than the same record "
+            f"{names.get('rg', 'rg')!r}) {span} {later} than the same record "
             f"(correlation of the sunlit changes {strength:.2f} there, {same:.2f} in the same "
             f"record, {apart:.0f} standard errors apart): a cloud changes light and uptake "
-            "in the same record, so the flux and the weather records look whole days apart "
-            "(a day of year counted from 0 in one file and from 1 in the other, or a "
-            "weather file of other dates); align them in a copy of the file")
+            f"in the same record, so the flux and the weather records look {apart_words}; "
+            "align them in a copy of the file")
+
+
+def _beats_the_days_beside(found, d_nee, d_rg, per_day: int, scores: dict) -> bool:
+    """Whether the best shift of a day and some records (`found`, :func:`_decide`'s) beats
+    the same records a day on either side by :data:`_LAG_STANDARD_ERRORS` standard errors
+    of Fisher's z, as a passing cloud's change does (:func:`_best_of`'s rule).
+
+    A whole day keeps the daily course of Rg in step with NEE's; a day and some records
+    does not: an NEE whose daily course trails the sun's (respiration following the air's
+    temperature, whose daily maximum trails the sun's by 1-3 h: Campbell & Norman 1998,
+    ch. 2 (m)) matches Rg's course those records off on every day alike, the clouds only
+    at the one true shift."""
+    best, strength, _, _ = found
+    count = scores[best][1]
+    beside = {k: k for k in (best - per_day, best + per_day) if k not in scores}
+    known = {**scores, **_judged_change_scores(d_nee, d_rg, beside)}
+    z_best = math.atanh(min(strength, 0.999999))
+    for k in (best - per_day, best + per_day):
+        other, other_count = known[k]
+        if not math.isfinite(other) or min(count, other_count) <= 3:
+            continue
+        error = math.sqrt(2.0 / (min(count, other_count) - 3))
+        if z_best - math.atanh(max(min(other, 0.999999), -0.999999)) <= (
+                _LAG_STANDARD_ERRORS * error):
+            return False
+    return True
+
+
+def _days_and_records(shift: int, interval_minutes: float) -> str:
+    """A shift of records in words: "2 day(s)", "1 day(s) and 1 record(s) (24.5 h)" or
+    "1 day(s) less 1 record(s) (23.5 h)" (the nearest whole days, then the records)."""
+    per_day = _records_per_day(interval_minutes)
+    days = int(round(abs(shift) / per_day))
+    records = abs(shift) - days * per_day
+    if records == 0:
+        return f"{days} day(s)"
+    hours = abs(shift) * interval_minutes / 60.0
+    return (f"{days} day(s) {'and' if records > 0 else 'less'} {abs(records)} record(s) "
+            f"({hours:g} h)")
 
 
 #: Words of :func:`nee_day_shift`'s message where a record's shift beats the days' (the
@@ -1099,15 +1246,17 @@ def _record_rival(d_nee, d_rg, interval_minutes: float, day_strength: float):
     return (k, finite[k][0]) if finite[k][0] >= day_strength else None
 
 
-def _record_shift_text(records, day_strength, days, same, interval_minutes, names) -> str:
-    """The warning of NEE a few records off its light where a whole-day shift scored."""
+def _record_shift_text(records, day_strength, shift, same, interval_minutes, names) -> str:
+    """The warning of NEE a few records off its light where a shift of days (`shift`
+    records) scored."""
     k, strength = records
     later = "later" if k > 0 else "earlier"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {abs(k)} record(s) ({abs(k) * interval_minutes:g} "
             f"min) {later} than the same record (correlation of the sunlit changes "
             f"{strength:.2f} there, {same:.2f} in the same record; {day_strength:.2f} "
-            f"{abs(days)} day(s) {'later' if days > 0 else 'earlier'}, the diurnal shape "
+            f"{_days_and_records(shift, interval_minutes)} "
+            f"{'later' if shift > 0 else 'earlier'}, the diurnal shape "
             "alone): photosynthesis follows light within minutes, so the NEE column looks "
             f"shifted by {abs(k)} record(s) against the drivers, {RECORD_SHIFT_WORDS} (a flux "
             "file stamped at interval ends joined with a weather file stamped at starts "

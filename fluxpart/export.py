@@ -35,7 +35,9 @@ Layout (one file, four time axes):
   are the cell midpoints, in UTC (the site's local standard time minus its
   ``utc_offset``, which is also a global attribute);
 - scalar coordinates ``lat``, ``lon`` and ``station_name`` (``featureType =
-  "timeSeries"``) and the site, the record length and the caution as global attributes,
+  "timeSeries"``) and the site, the record length and the caution (``comment``, with
+  :data:`fluxpart.manifest.TONNES_CAUTION`: what NEE leaves out, since leftovers57) as
+  global attributes,
   with CF's ``title``, ``institution`` (a placeholder: fluxpart records none), ``source``
   (the release), ``history`` and ``references`` (the methods' publications);
 - the respiration choices the partitioned series rest on (the temperature, its delay,
@@ -72,7 +74,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import FluxpartError, InputFileError, OutputError
-from .manifest import recorded_paths, shown_path
+from .manifest import TONNES_CAUTION, recorded_paths, shown_path
 from .respiration_facts import respiration_comment, respiration_facts
 from .store import (
     file_mode,
@@ -526,7 +528,9 @@ def to_xarray(result):
         "sign_convention": "nee, reco: positive = release to the atmosphere; gpp positive = "
                            "uptake; nep = -nee",
         **facts,
-        "comment": _CAUTION,
+        # what NEE leaves out and that a net uptake is no credited removal, as the
+        # report and the command line say beside the tonnes (leftovers57)
+        "comment": f"{_CAUTION} {TONNES_CAUTION}.",
     }
     return dataset
 

@@ -32,7 +32,8 @@ one the CSVW standard's site-wide discovery looks for beside the CSV files):
   "^(?:measured|A|...)$"}``, the pattern of its labels: :func:`_labels_datatype`),
   ``schema:unitText`` (the unit, a UDUNITS-2 string, the same as the Parquet field's;
   left out where a column has none: names, labels, times) and ``dc:description`` (the
-  Parquet field's description). ``schema:unitText`` is the schema.org property for "a
+  Parquet field's description; for the tonnes, ``net_uptake_t_co2_per_ha``, followed by
+  :data:`fluxpart.manifest.TONNES_CAUTION`, since leftovers57). ``schema:unitText`` is the schema.org property for "a
   unit of measurement given as text"; the substance (carbon,
   CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
   ``g C m-2`` as gram-coulomb);
@@ -82,7 +83,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import OutputError
-from .manifest import shown_path
+from .manifest import TONNES_CAUTION, shown_path
 from .respiration_facts import FACT_UNITS, respiration_facts
 from .schema import time_convention, units_for_table
 from .store import (
@@ -103,6 +104,11 @@ __all__ = ["DESCRIPTION_PROPERTY", "METADATA_NAME", "UNIT_PROPERTY", "check_name
 METADATA_NAME = "csv-metadata.json"
 #: CSVW common property carrying a column's UDUNITS-2 unit (schema.org ``unitText``).
 UNIT_PROPERTY = "schema:unitText"
+#: Columns whose description in ``csv-metadata.json`` adds :data:`.manifest.TONNES_CAUTION`
+#: (what NEE leaves out, and that the tonnes are no credited removal): the tonnes a
+#: carbon-credit reader quotes. The Parquet field's description is left as it is (the
+#: table's bytes); the report and the command line say the same beside the tonnes.
+CAUTIONED_COLUMNS = ("net_uptake_t_co2_per_ha",)
 #: CSVW common property carrying a column's description (Dublin Core ``description``).
 DESCRIPTION_PROPERTY = "dc:description"
 #: The date-time pattern of every time stamp (CSVW/Unicode LDML syntax; ``xxx`` = ``+hh:mm``).
@@ -257,6 +263,9 @@ def _table_metadata(name: str, frame: pd.DataFrame, names: list[str], types: lis
         entry = {"name": column, "titles": column, "datatype": datatype}
         if unit:
             entry[UNIT_PROPERTY] = unit
+        if column in CAUTIONED_COLUMNS:      # the tonnes' caution (leftovers57)
+            description = f"{description}. {TONNES_CAUTION}." if description else \
+                f"{TONNES_CAUTION}."
         if description:
             entry[DESCRIPTION_PROPERTY] = description
         columns.append(entry)

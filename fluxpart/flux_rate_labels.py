@@ -18,11 +18,15 @@ from __future__ import annotations
 import re
 import unicodedata
 
+from .constants import CARBON_MOLAR_MASS, CO2_MOLAR_MASS
+
 __all__ = ["rate_factor", "unreadable_rate_note"]
 
-#: Molar masses [g mol-1]: CO2 44.01 and C 12.011 (IUPAC standard atomic weights (m));
-#: "CO2-C" is the carbon of CO2, a mass of C (common practice).
-_MOLAR_MASS = {"co2": 44.01, "c": 12.011, "co2-c": 12.011}
+#: Molar masses [g mol-1]: CO2 44.009 and C 12.011, the reader's own
+#: (:mod:`fluxpart.constants`: IUPAC conventional atomic weights, CO2 = 12.011 + 2 x 15.999;
+#: 44.01 before leftovers57, so a factor named here and the conversion of a declared unit
+#: agree to the bit); "CO2-C" is the carbon of CO2, a mass of C (common practice).
+_MOLAR_MASS = {"co2": CO2_MOLAR_MASS, "c": CARBON_MOLAR_MASS, "co2-c": CARBON_MOLAR_MASS}
 #: Amount prefixes -> factor to the base unit (SI prefixes, BIPM 2019 (m)).
 _PREFIX = {"": 1.0, "k": 1e3, "m": 1e-3, "u": 1e-6, "n": 1e-9}
 #: Time bases -> seconds (SI; 1 d = 86,400 s, BIPM 2019 table 8 (m)).
@@ -70,8 +74,8 @@ def rate_factor(label) -> float | None:
 
     References
     ----------
-    Molar masses of CO2 (44.01 g mol-1) and C (12.011 g mol-1), IUPAC standard atomic
-    weights (m); SI prefixes and the day of 86,400 s, BIPM (2019) The International
+    Molar masses of CO2 (44.009 g mol-1) and C (12.011 g mol-1), IUPAC conventional
+    atomic weights (:mod:`fluxpart.constants`); SI prefixes and the day of 86,400 s, BIPM (2019) The International
     System of Units, 9th ed. (m).
 
     Examples
@@ -115,7 +119,7 @@ def _unnamed_mass_note(column, label: str, where: str, name: str, read_scale: fl
                        read_text: str) -> str | None:
     """The warning for a mass rate without its species ("mg m-2 s-1"), or None.
 
-    Of CO2 or of C the factors lie 3.66 times apart (44.01 / 12.011), so neither is
+    Of CO2 or of C the factors lie 3.66 times apart (44.009 / 12.011), so neither is
     applied; but where the values are read as neither, every flux is wrong by one of
     them (mg CO2 m-2 s-1, an older flux unit, read as µmol m-2 s-1: 22.7 times too
     small).

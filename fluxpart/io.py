@@ -1141,7 +1141,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         # the storage read in another unit than the flux (mistakes40)
         from .storage_labels import storage_unit_apart
 
-        apart = storage_unit_apart(units.get("nee"), units.get("storage"))
+        apart = storage_unit_apart(units.get("nee"), units.get("storage"), interval_minutes)
         if apart:
             warnings.append(f"storage: {apart}")
         from .column_faults import (  # only where storage is mapped

@@ -74,6 +74,13 @@ CAUTION = (
 NEE_SCOPE = ("NEE counts only the CO2 exchanged with the air above the canopy: carbon removed "
              "by a harvest or grazing, brought in as manure, or lost as methane or in water "
              "is not in it, so a net uptake alone is not the carbon the ecosystem stored")
+#: The tonnes' caution where an export describes them (the CSVW column description of
+#: ``net_uptake_t_co2_per_ha``, the NetCDF file's comment): what the report's summary and
+#: the command line say beside the tonnes (leftovers57). Added by the exports only, not
+#: to the Parquet field's description, so the annual table keeps its bytes.
+TONNES_CAUTION = (f"{NEE_SCOPE}. Tonnes of CO2 taken up are not by themselves carbon "
+                  "stored, nor a credited removal: the applicable crediting methodology and "
+                  "accredited verification decide how they may be used")
 
 _LIBRARIES = ("fluxpart", "numpy", "pandas", "scipy", "statsmodels", "pyarrow")
 _UNHASHED = {

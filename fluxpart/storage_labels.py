@@ -178,7 +178,8 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
             "holds the storage term, leave the storage column out")
 
 
-def storage_unit_apart(nee_unit, storage_unit) -> str | None:
+def storage_unit_apart(nee_unit, storage_unit,
+                       interval_minutes: float | None = None) -> str | None:
     """A message where storage is read in another unit than the flux it is added to.
 
     Parameters
@@ -186,6 +187,9 @@ def storage_unit_apart(nee_unit, storage_unit) -> str | None:
     nee_unit, storage_unit : str or None
         The ``[input.units]`` of ``nee`` and ``storage``; None where not declared (the
         canonical µmol m-2 s-1).
+    interval_minutes : float, optional
+        Record interval [min]: the factor between an amount per record (g C m-2) and a
+        rate. Without it a unit per record beside a rate is not judged.
 
     Returns
     -------
@@ -200,7 +204,9 @@ def storage_unit_apart(nee_unit, storage_unit) -> str | None:
     (m)); two units in one file are a setting declared for one column and forgotten for
     the other. Read 22.7 times too small (mg CO2 for µmol), the store is as good as left
     out; 22.7 times too large, it swamps the flux. A warning: a profile system's own
-    file may write another unit, and then the settings are right.
+    file may write another unit, and then the settings are right. An amount per record
+    (g C m-2) beside a rate is judged as the others at the record interval (since
+    leftovers57: 1 µmol m-2 s-1 over 30 minutes is 0.0216 g C m-2, a factor of 46.3).
 
     References
     ----------
@@ -211,10 +217,15 @@ def storage_unit_apart(nee_unit, storage_unit) -> str | None:
     nee_key = same_unit_key("nee", nee_unit if nee_unit is not None else canonical)
     storage_key = same_unit_key("storage",
                                 storage_unit if storage_unit is not None else canonical)
-    if (nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit"
-            or nee_key[2] or storage_key[2]):   # an amount per interval: no one factor
+    if nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit":
         return None
-    factor = nee_key[1][0] / storage_key[1][0]
+    if (nee_key[2] or storage_key[2]) and not interval_minutes:
+        return None                   # an amount per record: no factor without the interval
+
+    def scale(key):                   # to µmol m-2 s-1, an amount per record over its seconds
+        return key[1][0] / (float(interval_minutes) * 60.0) if key[2] else key[1][0]
+
+    factor = scale(nee_key) / scale(storage_key)
     storage_text = (f"[input.units] storage = {storage_unit!r}" if storage_unit is not None
                     else f"{canonical!r} (no [input.units] storage: its default)")
     nee_text = (f"[input.units] nee = {nee_unit!r}" if nee_unit is not None

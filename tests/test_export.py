@@ -167,6 +167,9 @@ def test_site_and_conventions_are_global_attributes(exported):
     assert float(dataset["lat"]) == result.site.latitude
     assert dataset["lat"].attrs["units"] == "degrees_north"
     assert "certified" in attrs["comment"]
+    # what NEE leaves out and that a net uptake is no credited removal (leftovers57)
+    from fluxpart.manifest import TONNES_CAUTION
+    assert TONNES_CAUTION in attrs["comment"] and "credited removal" in attrs["comment"]
     assert set(STANDARD_NAMES.values()) >= {dataset["rg"].attrs["standard_name"]}
 
 

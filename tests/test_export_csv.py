@@ -23,12 +23,14 @@ import pytest
 
 from fluxpart.cli import main
 from fluxpart.export_csv import (
+    CAUTIONED_COLUMNS,
     DESCRIPTION_PROPERTY,
     METADATA_NAME,
     UNIT_PROPERTY,
     offset_text,
     write_csv,
 )
+from fluxpart.manifest import TONNES_CAUTION
 
 cf_units = pytest.importorskip("cf_units")
 
@@ -97,8 +99,10 @@ def test_units_and_descriptions_are_the_parquet_fields_and_parse_as_udunits(expo
             meta = schema.field(column["name"]).metadata or {}
             unit = meta.get(b"unit", b"").decode()
             assert column.get(UNIT_PROPERTY, "") == unit, (table["url"], column["name"])
-            assert column.get(DESCRIPTION_PROPERTY, "") == meta.get(b"description",
-                                                                    b"").decode()
+            parquet_text = meta.get(b"description", b"").decode()
+            if column["name"] in CAUTIONED_COLUMNS:     # the tonnes' caution after it
+                parquet_text = f"{parquet_text}. {TONNES_CAUTION}."
+            assert column.get(DESCRIPTION_PROPERTY, "") == parquet_text
             if unit:
                 assert not cf_units.Unit(unit).is_unknown(), (column["name"], unit)
                 checked += 1

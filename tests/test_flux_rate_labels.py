@@ -2,9 +2,9 @@
 
 NEE labelled "g CO2 m-2 d-1" (in its column name or on a units line) and read as
 µmol m-2 s-1 made every flux 3.8 times too large without a word: the reader judged only
-the units it knows. The conversion is arithmetic: molar masses of CO2 44.01 g mol-1 and
-of C 12.011 g mol-1 (IUPAC standard atomic weights (m)), 86,400 s in a day and the SI
-prefixes (BIPM 2019 (m)).
+the units it knows. The conversion is arithmetic: molar masses of CO2 44.009 g mol-1
+(12.011 + 2 x 15.999) and of C 12.011 g mol-1 (IUPAC conventional atomic weights (m)),
+86,400 s in a day and the SI prefixes (BIPM 2019 (m)).
 """
 
 from __future__ import annotations
@@ -19,7 +19,7 @@ from fluxpart.flux_rate_labels import rate_factor, unreadable_rate_note
 from fluxpart.io import read_site_config
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples"
-CO2, CARBON, DAY = 44.01, 12.011, 86400.0      # g mol-1, g mol-1, s (IUPAC, BIPM (m))
+CO2, CARBON, DAY = 12.011 + 2 * 15.999, 12.011, 86400.0   # g mol-1, g mol-1, s (IUPAC, BIPM (m))
 
 
 @pytest.mark.parametrize("label, expected", [
@@ -48,11 +48,11 @@ def test_no_co2_flux_unit_has_no_factor(label):
 def test_a_note_only_where_the_label_converts_otherwise():
     read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
     note = unreadable_rate_note("nee", "co2_flux", "g CO2 m-2 d-1", "its name", 1.0, read)
-    assert "3.8 times too large" in note and "0.262987" in note
+    assert "3.8 times too large" in note and "0.262993" in note     # 1e6 / 44.009 / 86400
     small = unreadable_rate_note("nee", "co2_flux", "mmol m-2 s-1", "its name", 1.0, read)
     assert "1e+03 times too small" in small
     assert unreadable_rate_note("nee", "co2_flux", "umol m-2 s-1", "its name", 1.0, read) is None
-    # mg CO2 m-2 s-1 declared (1000 / 44.01 µmol per unit) and labelled in mg per second
+    # mg CO2 m-2 s-1 declared (1000 / 44.009 µmol per unit) and labelled in mg per second
     assert unreadable_rate_note("nee", "co2_flux", "mg CO2 m-2 s-1", "its name", 1e3 / CO2,
                                 read) is None
     assert unreadable_rate_note("tair", "T", "g CO2 m-2 d-1", "its name", 1.0, read) is None
@@ -94,7 +94,7 @@ def test_nee_labelled_in_grams_of_co2_per_day_is_named_with_its_factor(tmp_path)
     pd.testing.assert_frame_equal(frame, plain_frame)
     named = [text for text in report.warnings if "labelled 'g CO2 m-2 d-1' by its name" in text]
     assert len(named) == 1
-    assert "3.8 times too large" in named[0] and "0.262987" in named[0]
+    assert "3.8 times too large" in named[0] and "0.262993" in named[0]
     frame, report = _example(tmp_path, units_cell="gCO2/m2/d", factor=factor)
     named = [text for text in report.warnings if "labelled 'gCO2/m2/d' by the units line" in text]
     assert len(named) == 1 and "3.8 times too large" in named[0]
@@ -133,7 +133,7 @@ def test_a_mass_rate_without_its_species_is_named_with_both_factors(tmp_path):
     no factor and no note before review40: the grassland example's NEE in g CO2 m-2 d-1
     under a units line "g/m2/d" was read as µmol m-2 s-1 (every flux 3.8 times too
     large) without a word. Now the label is named with the factors of CO2 and of C
-    (molar masses 44.01 and 12.011 g mol-1, IUPAC (m)); read as either, it is quiet."""
+    (molar masses 44.009 and 12.011 g mol-1, IUPAC (m)); read as either, it is quiet."""
     read = "'µmol m-2 s-1' (no [input.units] nee: its default)"
     note = unreadable_rate_note("nee", "co2_flux", "mg/m2/s", "its name", 1.0, read)
     assert note is not None

@@ -54,6 +54,20 @@ def test_a_suffix_not_read_or_not_agreeing_is_refused_naming_it(tmp_path, offset
         _read(path, time_format="ISO8601")
 
 
+def _storage_record(tmp_path):
+    """Invented half-hourly records with a storage column "stor" in µmol m-2 s-1, written
+    as clean.csv: (stamps, values, header, column mapping, the frame read)."""
+    from test_robustness_layouts26 import MAPPING, NAMES, _records
+    ends, values = _records()
+    written = np.column_stack([values, (0.3 * np.sin(np.arange(len(ends)) / 9)).round(3)])
+    stamps, head = [f"{e:%Y-%m-%d %H:%M}" for e in ends], ("stamp", *NAMES, "stor")
+    columns = MAPPING | {"storage": "stor"}
+    (tmp_path / "clean.csv").write_text("\n".join(_lines(stamps, written, head)) + "\n")
+    expected, report = _read(tmp_path / "clean.csv", columns=columns)
+    assert not [w for w in report.warnings if w.startswith("storage")], report.warnings
+    return stamps, written, head, columns, expected
+
+
 @pytest.mark.parametrize(("unit", "per_canonical"), [
     ("mmol m-2 s-1", 1e-3),                         # SI prefixes
     ("µg CO2 m-2 s-1", 12.011 + 2 * 15.999),        # IUPAC/CIAAW atomic weights (m)
@@ -63,15 +77,8 @@ def test_storage_in_the_units_nee_is_read_in_reads_as_the_clean_file(tmp_path, u
     """Flux and storage written in one unit (common practice (m)) and declared so: read
     as the file in µmol m-2 s-1 to 1e-12; the storage unit was refused as unknown, while
     the warning of a storage unit apart from the flux's advised that very setting."""
-    from test_robustness_layouts26 import MAPPING, NAMES, _records
-
     from fluxpart.storage_labels import storage_unit_apart
-    ends, values = _records()
-    written = np.column_stack([values, (0.3 * np.sin(np.arange(len(ends)) / 9)).round(3)])
-    stamps, head = [f"{e:%Y-%m-%d %H:%M}" for e in ends], ("stamp", *NAMES, "stor")
-    columns = MAPPING | {"storage": "stor"}
-    (tmp_path / "clean.csv").write_text("\n".join(_lines(stamps, written, head)) + "\n")
-    expected, _ = _read(tmp_path / "clean.csv", columns=columns)
+    stamps, written, head, columns, expected = _storage_record(tmp_path)
     written[:, [0, -1]] *= per_canonical
     (tmp_path / "unit.csv").write_text("\n".join(_lines(stamps, written, head)) + "\n")
     read, report = _read(tmp_path / "unit.csv", columns=columns,
