@@ -20,7 +20,9 @@ reads as a sky does, the months are named (a warning; the values are kept).
 Months without a clear half-hour do occur (a monsoon's core, a coastal winter's stratus):
 where the air temperature's daily range shows days as overcast as the rest's overcast days
 of the same range are (Bristow and Campbell 1984 (m)), the months are a cloudy season and
-not named (round falsealarm56).
+not named (round falsealarm56). Each run of consecutive dim months is judged so on its own,
+against the months outside every run: a monsoon's core and a sensor fault later in the same
+record are told apart, and only the fault's months are named (round rgdim57).
 
 References
 ----------
@@ -63,7 +65,7 @@ _MIN_SKY_DAYS = 20
 _NEAREST_DAYS = 15
 
 
-def sky_ratio(rg, potential, tair, day, inside) -> float:
+def sky_ratio(rg, potential, tair, day, inside, rest=None) -> float:
     """The dim records' daily transmittance over that of the rest's days of like range.
 
     Parameters
@@ -75,6 +77,9 @@ def sky_ratio(rg, potential, tair, day, inside) -> float:
         The calendar day (``datetime64[D]``) of each record.
     inside : numpy.ndarray of bool
         The records of the dim months.
+    rest : numpy.ndarray of bool, optional
+        The records to compare them with (default: all others); the months outside every
+        dim run, where the runs are judged one by one.
 
     Returns
     -------
@@ -115,11 +120,12 @@ def sky_ratio(rg, potential, tair, day, inside) -> float:
     span = (groups.max() - groups.min()).reindex(range(labels.size)).to_numpy()
     t_n = np.bincount(where, warm, labels.size)
     part = np.bincount(where, inside, labels.size) > 0.5 * count
+    other = ~part if rest is None else np.bincount(where, rest, labels.size) > 0.5 * count
     usable = (lit_n >= 0.8 * np.maximum(sun_n, 1)) & (sun_n > 0) & (t_n >= 0.8 * count) \
         & (pot_sum > 0)
     with np.errstate(invalid="ignore", divide="ignore"):
         tau = rg_sum / pot_sum
-    dim_days, rest_days = usable & part, usable & ~part
+    dim_days, rest_days = usable & part, usable & other
     if dim_days.sum() < _MIN_SKY_DAYS or rest_days.sum() < _MIN_SKY_DAYS:
         return float("nan")
     distance = np.abs(span[dim_days][:, None] - span[rest_days][None, :])
@@ -128,6 +134,16 @@ def sky_ratio(rg, potential, tair, day, inside) -> float:
     predicted = np.median(tau[rest_days][nearest], axis=1)
     with np.errstate(invalid="ignore", divide="ignore"):
         return float(np.median(tau[dim_days] / predicted))
+
+
+def _dim_runs(labels: np.ndarray, dim: np.ndarray) -> list[np.ndarray]:
+    """The indices of each run of consecutive calendar months flagged in ``dim``."""
+    flagged = np.flatnonzero(dim)
+    if not flagged.size:
+        return []
+    steps = np.diff(labels[flagged].astype("int64"))
+    breaks = np.flatnonzero(steps != 1) + 1
+    return np.split(flagged, breaks)
 
 
 def _clear_quantile(ratio: np.ndarray) -> float:
@@ -150,10 +166,11 @@ def dim_rg_months(rg, potential, stamps, columns=None, tair=None) -> str | None:
     columns : dict, optional
         Canonical name -> file column, to name the column in the message.
     tair : array_like, optional
-        Air temperature of the same records [degC]: where given, dim months whose days are
-        as bright as the rest's days of the same temperature range (:func:`sky_ratio` at
-        :data:`SENSOR_RATIO` or above) are an overcast season, not named (round
-        falsealarm56).
+        Air temperature of the same records [degC]: where given, a run of consecutive dim
+        months whose days are as bright as the days of the same temperature range outside
+        every run (:func:`sky_ratio` at :data:`SENSOR_RATIO` or above) is an overcast
+        season, not named (round falsealarm56); each run is judged on its own (round
+        rgdim57).
 
     Returns
     -------
@@ -255,11 +272,20 @@ def dim_rg_months(rg, potential, stamps, columns=None, tair=None) -> str | None:
     if not rest_clear >= _PPFD_CLEAR_MIN:
         return None
     if tair is not None:
-        inside_mask = ~outside
-        with np.errstate(invalid="ignore"):
-            sky = sky_ratio(rg, potential, np.asarray(tair, dtype=float), day, inside_mask)
-        if sky >= SENSOR_RATIO:
+        # each run of consecutive dim months is judged by its own days against the months
+        # outside every run: a monsoon's core and a later sensor fault are told apart
+        # (round rgdim57)
+        tair = np.asarray(tair, dtype=float)
+        for run in _dim_runs(labels, dim):
+            own = np.zeros(rg.size, dtype=bool)
+            own[np.concatenate([rows[i] for i in run])] = True
+            with np.errstate(invalid="ignore"):
+                sky = sky_ratio(rg, potential, tair, day, own, outside)
+            if sky >= SENSOR_RATIO:
+                dim[run] = False
+        if not dim.any():
             return None
+        inside = np.concatenate([rows[i] for i in np.flatnonzero(dim)])
     dim_clear = _clear_quantile(ratio[inside[high[inside]]])
     named = pd.PeriodIndex(labels[dim], freq="M")
     # consecutive dim months as runs ("2021-03 to 2021-04, 2021-08"), in record order

@@ -156,3 +156,19 @@ def test_a_monsoon_of_three_overcast_months_is_quiet_where_the_thermometer_shows
     for share in (PAR_SHARE, ALBEDO):
         text = dim_rg_months(np.where(july, rg * share, rg), potential, index, tair=tair)
         assert text is not None and " to 2022-12 (" in text
+
+
+def test_each_dim_run_is_judged_on_its_own_so_the_monsoon_is_not_named_beside_a_fault():
+    """Known truth (round rgdim57): the Bristow-Campbell year's monsoon (June-August,
+    quiet with tair) and PAR in W m-2 or the reflected radiation from October, two
+    separate runs of dim months: only the sensor's months are named; the monsoon's
+    are not. One ratio over both runs named the monsoon too."""
+    rg, potential, tair, index, tau, monsoon = _bristow_campbell_year()
+    october = index >= "2022-10-01"
+    for share in (PAR_SHARE, ALBEDO):
+        text = dim_rg_months(np.where(october, rg * share, rg), potential, index, tair=tair)
+        assert text is not None and "from 2022-10 to 2022-12 (3 month(s)" in text
+        assert "2022-06" not in text and "2022-08" not in text
+        # without the thermometer both runs are named, as before
+        text = dim_rg_months(np.where(october, rg * share, rg), potential, index)
+        assert text is not None and "from 2022-06 to 2022-08, 2022-10 to 2022-12" in text
