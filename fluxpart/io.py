@@ -89,7 +89,7 @@ from ._validate import (
 from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
-from .config import Config, setting_text, suggest_key
+from .config import Config, refuse_misplaced_processing, setting_text, suggest_key
 from .double_byte_text import double_byte_readings
 from .errors import (
     ConfigError,
@@ -712,6 +712,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     site_table, input_table = document["site"], document["input"]
     _check_keys(site_table, _SITE_KEYS, "[site]", "{key}")
     _check_keys(input_table, _INPUT_KEYS, "[input]", "{key}")
+    # a required key written under [processing] is named there, not as missing
+    refuse_misplaced_processing(document.get("processing", {}))
     for key in _SITE_REQUIRED:
         if key not in site_table:
             raise ConfigError(f"[site] {key} is missing; " + _SITE_HELP[key])
