@@ -15,6 +15,11 @@ Round mistakes54 added 54 cases (44 of the grassland, 10 of the maize logger; th
 zone's sign, longitude west for east, degrees and minutes as decimals, a year start
 written day first, columns exchanged in the mapping, missing codes that are real values,
 another site's position, settings the config does not know): see DEVELOPERS.md.
+
+Round mistakes56 added 51 cases (41 of the grassland, 10 of the maize logger; time zones
+as abbreviations or offsets, settings in the wrong table, text, lists and booleans where
+numbers are meant, large seeds, paths of another system, typed variable keys, a storage
+unit apart from the flux's): see DEVELOPERS.md.
 """
 
 from __future__ import annotations
