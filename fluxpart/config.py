@@ -20,8 +20,8 @@ from ._validate import read_site_config_toml
 from .errors import ConfigError
 
 __all__ = ["ADDED_SETTINGS", "AddedSetting", "Config", "UnknownSettingError",
-           "absent_added_settings", "implied_settings", "keyword_checked", "setting_text",
-           "suggest_key"]
+           "absent_added_settings", "implied_settings", "keyword_checked",
+           "refuse_misplaced_processing", "setting_text", "suggest_key"]
 
 
 @dataclass(frozen=True)
@@ -718,14 +718,7 @@ class Config:
         processing = document.get("processing", {})
         if not isinstance(processing, dict):
             raise ConfigError("[processing] must be a table of settings")
-        from .io import table_of_key
-
-        for key in processing:
-            owner = table_of_key(key)
-            if owner in ("site", "input"):      # canopy, time_zone, missing, ...
-                raise ConfigError(f"[processing] {key} = {setting_text(processing[key])}: "
-                                  f"{key} belongs under [{owner}], not [processing]: move it "
-                                  "there")
+        refuse_misplaced_processing(processing)
         if processing.get("ustar_method") == "fixed" and "ustar_threshold" not in processing \
                 and recorded_threshold is not None:
             processing = {**processing, "ustar_threshold": recorded_threshold}
@@ -792,6 +785,31 @@ class AddedSetting(NamedTuple):
 ADDED_SETTINGS = (
     AddedSetting("night_donor_margin", "0.34.0", "none"),
 )
+
+
+def refuse_misplaced_processing(processing: dict) -> None:
+    """Refuse a ``[site]`` or ``[input]`` key written under ``[processing]`` (canopy,
+    time_zone, missing, utc_offset, ...), naming the table it belongs to.
+
+    Called by the reading of ``[site]`` and ``[input]`` as well (round mistakes56): a
+    required key (``utc_offset``, ``time_marks``) moved to ``[processing]`` was otherwise
+    refused as missing from its own table, without a word of where it was written.
+
+    Raises
+    ------
+    ConfigError
+        Naming the key, its value and the table it belongs under.
+    """
+    if not isinstance(processing, dict):
+        return
+    from .io import table_of_key
+
+    for key in processing:
+        owner = table_of_key(key)
+        if owner in ("site", "input"):      # canopy, time_zone, missing, ...
+            raise ConfigError(f"[processing] {key} = {setting_text(processing[key])}: "
+                              f"{key} belongs under [{owner}], not [processing]: move it "
+                              "there")
 
 
 def absent_added_settings(recorded) -> tuple[AddedSetting, ...]:

@@ -89,7 +89,7 @@ from ._validate import (
 from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
 from .comma_fields import field_count, unquoted_decimal_commas
-from .config import Config, setting_text, suggest_key
+from .config import Config, refuse_misplaced_processing, setting_text, suggest_key
 from .double_byte_text import double_byte_readings
 from .errors import (
     ConfigError,
@@ -712,6 +712,8 @@ def read_site_config(path, input_paths=None) -> SiteConfig:
     site_table, input_table = document["site"], document["input"]
     _check_keys(site_table, _SITE_KEYS, "[site]", "{key}")
     _check_keys(input_table, _INPUT_KEYS, "[input]", "{key}")
+    # a required key written under [processing] is named there, not as missing
+    refuse_misplaced_processing(document.get("processing", {}))
     for key in _SITE_REQUIRED:
         if key not in site_table:
             raise ConfigError(f"[site] {key} is missing; " + _SITE_HELP[key])
@@ -1143,6 +1145,23 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
 
         apart = storage_unit_apart(units.get("nee"), units.get("storage"), interval_minutes)
         if apart:
+            from .storage_labels import storage_unit_ratio
+            from .storage_size import storage_unit_oversized
+
+            # apart and too large as read, not in the flux's unit: certain (mistakes56)
+            ratio = storage_unit_ratio(units.get("nee"), units.get("storage"))
+            oversized = storage_unit_oversized(storage, starts, interval_minutes,
+                                               getattr(site, "canopy", None), ratio, mapping)
+            if oversized:
+                flux_unit = units.get("nee") or units_for("nee")[0]
+                raise UnitError(
+                    f"[input.units] storage = {setting_text(units.get('storage'))} reads the "
+                    f"storage column {ratio:.3g} times larger than the unit of the flux it is "
+                    f"added to ({flux_unit!r}), and so read it is too large "
+                    f"{oversized.split(' is too large ', 1)[1].split('; check', 1)[0]}; "
+                    f"read in the flux's unit it is not: a flux and its storage term are "
+                    f"written by one program in one unit, so set [input.units] storage = "
+                    f"{setting_text(flux_unit)} (or remove it)")
             warnings.append(f"storage: {apart}")
         from .column_faults import (  # only where storage is mapped
             FLUX_COPY_WORDS,

@@ -178,6 +178,27 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
             "holds the storage term, leave the storage column out")
 
 
+def storage_unit_ratio(nee_unit, storage_unit) -> float | None:
+    """How many times larger the storage column reads in its declared unit than in the
+    flux's (22.7 for storage in mg CO2 m-2 s-1 beside NEE in µmol m-2 s-1), or None where
+    the two read as one unit or either is an amount per interval (no one factor).
+
+    Parameters
+    ----------
+    nee_unit, storage_unit : str or None
+        The ``[input.units]`` of ``nee`` and ``storage``; None where not declared (the
+        canonical µmol m-2 s-1).
+    """
+    canonical = units_for("storage")[0]
+    nee_key = same_unit_key("nee", nee_unit if nee_unit is not None else canonical)
+    storage_key = same_unit_key("storage",
+                                storage_unit if storage_unit is not None else canonical)
+    if (nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit"
+            or nee_key[2] or storage_key[2]):   # an amount per interval: no one factor
+        return None
+    return storage_key[1][0] / nee_key[1][0]
+
+
 def storage_unit_apart(nee_unit, storage_unit,
                        interval_minutes: float | None = None) -> str | None:
     """A message where storage is read in another unit than the flux it is added to.

@@ -20,7 +20,7 @@ import pandas as pd
 
 __all__ = ["AIR_MOLES_PER_M3", "LEVEL_WORDS", "MAX_COLUMN_RISE", "SHORT_COLUMN_M",
            "SMOOTHS_WORDS", "STORAGE_SMOOTHS_MARK", "daily_store_swing",
-           "oversized_storage", "storage_smooths_nee"]
+           "oversized_storage", "storage_smooths_nee", "storage_unit_oversized"]
 
 #: Words of :func:`fluxpart.column_faults.storage_in_turbulent_flux`'s message on a
 #: storage column that is a level (a running sum swings too, and that message names it).
@@ -214,3 +214,51 @@ def storage_smooths_nee(turbulent, storage, is_night, stamps, interval_minutes: 
             f"{implied}; a storage term is the change of a smooth store and small beside the "
             "flux's random error: check the storage column's unit and scale (a factor in "
             "the logger program or export?) before reading GPP and Reco")
+
+
+def storage_unit_oversized(storage, stamps, interval_minutes: float, canopy: str | None,
+                           ratio: float | None, columns=None) -> str | None:
+    """:func:`oversized_storage`'s message where the storage column read in another unit
+    than the flux it is added to is too large and read in the flux's unit is not.
+
+    Parameters
+    ----------
+    storage : array_like
+        The column mapped as ``storage``, converted from its declared unit [µmol m-2 s-1].
+    stamps : pandas.DatetimeIndex
+        Start of each record.
+    interval_minutes : float
+        Length of a record [min].
+    canopy : {"short", "tall"} or None
+        ``[site] canopy``; only a short canopy is judged.
+    ratio : float or None
+        How many times larger the column reads in its declared unit than in the flux's
+        (:func:`fluxpart.storage_labels.storage_unit_ratio`); None or 1 or less: not judged.
+    columns : dict, optional
+        Canonical name -> file column, to name the column in the message.
+
+    Returns
+    -------
+    str or None
+
+    Notes
+    -----
+    Two signs agree that the declared unit is wrong (round mistakes56: maize's storage
+    declared "mg CO2 m-2 s-1" over µmol values moved GPP by +7063 g C m-2, 469 sigma,
+    warned only): a flux and its storage term are written by one program in one unit
+    (common practice (m)), and so read the store implies a rise of the column's CO2 that
+    no air below a short canopy's sensor holds (Finnigan 2006), which the flux's unit
+    does not. A store too large in either reading is left to :func:`oversized_storage`.
+
+    References
+    ----------
+    Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
+    Forest Meteorology 136, 108-113.
+    """
+    if ratio is None or not ratio > 1.0:
+        return None
+    found = oversized_storage(storage, stamps, interval_minutes, canopy, columns)
+    if found is None or oversized_storage(np.asarray(storage, dtype=float) / ratio, stamps,
+                                          interval_minutes, canopy, columns) is not None:
+        return None
+    return found

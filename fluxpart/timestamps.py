@@ -1777,8 +1777,12 @@ def check_time_zone(time_zone, utc_offset: float, when=None) -> str:
     try:
         zone = ZoneInfo(time_zone)
     except (ZoneInfoNotFoundError, ValueError, OSError):
+        from .zone_names import zone_shorthand_hint
+
+        # an abbreviation ("CST") or a fixed offset ("UTC+1") said as such (mistakes56)
         raise ConfigError(f"[input] time_zone = {setting_text(time_zone)} is not a known time zone; use an "
-                          "\"Area/City\" name such as \"Europe/Berlin\"") from None
+                          "\"Area/City\" name such as \"Europe/Berlin\""
+                          + zone_shorthand_hint(time_zone, utc_offset)) from None
     standard = zone_standard_hours(zone, when)
     names_offset = time_zone.split("/")[0] in _OFFSET_ZONE_PREFIXES
     if names_offset and standard == 0.0:

@@ -451,6 +451,22 @@ def test_setting_in_another_table_is_named_with_its_table(tmp_path, where, line,
         read(path)
 
 
+@pytest.mark.parametrize(("key", "line"), [("utc_offset", "utc_offset = 12.0"),
+                                         ("time_marks", "time_marks = \"end\"")])
+def test_required_key_under_processing_is_named_there(tmp_path, key, line):
+    """A required [site] or [input] key moved under [processing] was refused as missing
+    from its own table ("[site] utc_offset is missing"), as if never written: now the
+    refusal names where it stands and where it belongs (round mistakes56; the TOML tables
+    of our own config layout, common practice)."""
+    path = _site_toml(tmp_path)
+    text = path.read_text().replace(line + "\n", "")
+    assert key not in text
+    path.write_text(text + line + "\n")
+    with pytest.raises(ConfigError, match=rf"^\[processing\] {key} = .*: {key} belongs under "
+                       r"\[(site|input)\], not \[processing\]: move it there"):
+        read_site_config(path)
+
+
 @pytest.mark.parametrize(("where", "line", "pattern"), [
     ("input", 'flag_accept = [0, "OK"]', r"as numbers or as words, not both"),
     ("columns", 'tsoil = ["t_soil_5", "t_soil_10"]',

@@ -20,6 +20,7 @@ from fluxpart.storage_size import (
     daily_store_swing,
     oversized_storage,
     storage_smooths_nee,
+    storage_unit_oversized,
 )
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
@@ -76,6 +77,25 @@ def test_a_storage_column_in_another_unit_is_named_at_a_short_canopy_only():
     assert rise == pytest.approx(daily_store_swing(true * factor, stamps, 30)
                                  / (AIR_MOLES_PER_M3 * SHORT_COLUMN_M) * 1e6, abs=1)
     assert oversized_storage(true * factor, stamps, 30, "tall") is None
+
+
+def test_a_storage_unit_apart_from_the_flux_is_judged_both_ways():
+    """Known-truth recovery on invented data (round mistakes56): the maize example's
+    store (1.5 µmol m-2 s-1) declared mg CO2 beside a µmol flux reads 1000/44.009 = 22.7
+    times larger (CO2 molar mass 44.009 g mol-1, IUPAC) and too large for a short
+    canopy's air, in the flux's unit not: named. A store too large in either reading, a
+    ratio of 1 or below (read smaller), and a tall canopy are not."""
+    stamps = _stamps()
+    true = _sine_storage(stamps, 1.5)
+    ratio = 1000 / 44.009
+    text = storage_unit_oversized(true * ratio, stamps, 30, "short", ratio,
+                                  {"storage": "co2_store"})
+    assert text is not None and "'co2_store'" in text
+    assert storage_unit_oversized(true * ratio * 20, stamps, 30, "short", ratio) is None
+    assert storage_unit_oversized(true * ratio, stamps, 30, "short", 1.0) is None
+    assert storage_unit_oversized(true / ratio, stamps, 30, "short", 1 / ratio) is None
+    assert storage_unit_oversized(true * ratio, stamps, 30, "short", None) is None
+    assert storage_unit_oversized(true * ratio, stamps, 30, "tall", ratio) is None
 
 
 def _maize_copy(tmp_path, factor):

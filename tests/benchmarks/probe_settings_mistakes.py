@@ -15,6 +15,11 @@ Round mistakes54 added 54 cases (44 of the grassland, 10 of the maize logger; th
 zone's sign, longitude west for east, degrees and minutes as decimals, a year start
 written day first, columns exchanged in the mapping, missing codes that are real values,
 another site's position, settings the config does not know): see DEVELOPERS.md.
+
+Round mistakes56 added 51 cases (41 of the grassland, 10 of the maize logger; time zones
+as abbreviations or offsets, settings in the wrong table, text, lists and booleans where
+numbers are meant, large seeds, paths of another system, typed variable keys, a storage
+unit apart from the flux's): see DEVELOPERS.md.
 """
 
 from __future__ import annotations
@@ -40,7 +45,7 @@ def _set(text: str, section: str, key: str, value: str) -> str:
     end = text.find("\n[", head + 1)
     end = len(text) if end < 0 else end
     block = text[head:end]
-    block = (pattern.sub(f"{key} = {value}", block) if pattern.search(block)
+    block = (pattern.sub(lambda _: f"{key} = {value}", block) if pattern.search(block)
              else block.rstrip("\n") + f"\n{key} = {value}\n")
     return text[:head] + block + text[end:]
 
@@ -270,6 +275,71 @@ CASES = {
                                                             "measurement_height", "300"),
     "records_per_hour 1 in [input] (30 min data)": lambda t: _set(t, "input",
                                                                   "records_per_hour", "1"),
+    # round mistakes56
+    "time_zone CST (an abbreviation, ambiguous)": lambda t: _set(t, "input", "time_zone",
+                                                              '"CST"'),
+    "time_zone IST (an abbreviation, ambiguous)": lambda t: _set(t, "input", "time_zone",
+                                                              '"IST"'),
+    "time_zone CET (a standard-time file)": lambda t: _set(t, "input", "time_zone", '"CET"'),
+    "time_zone MET (a standard-time file)": lambda t: _set(t, "input", "time_zone", '"MET"'),
+    "time_zone 'UTC+1' (written as an offset)": lambda t: _set(t, "input", "time_zone",
+                                                               '"UTC+1"'),
+    "time_zone in [site]": lambda t: _set(t, "site", "time_zone", '"Etc/GMT-1"'),
+    "utc_offset in [input]": lambda t: _set(_drop(t, "utc_offset"), "input", "utc_offset",
+                                            "1.0"),
+    "utc_offset in [processing]": lambda t: _set(_drop(t, "utc_offset"), "processing",
+                                                 "utc_offset", "1.0"),
+    "seed 2**32": lambda t: _set(t, "processing", "seed", "4294967296"),
+    "seed '0' (text)": lambda t: _set(t, "processing", "seed", '"0"'),
+    "ustar_threshold 0 fixed": lambda t: _set(_set(t, "processing", "ustar_method", '"fixed"'),
+                                              "processing", "ustar_threshold", "0"),
+    "ustar_threshold '0.2' fixed (text)": lambda t: _set(
+        _set(t, "processing", "ustar_method", '"fixed"'), "processing", "ustar_threshold",
+        '"0.2"'),
+    "ustar_threshold [0.2] fixed (a list)": lambda t: _set(
+        _set(t, "processing", "ustar_method", '"fixed"'), "processing", "ustar_threshold",
+        "[0.2]"),
+    "latitude [49.3] (a list)": lambda t: _set(t, "site", "latitude", "[49.3]"),
+    "latitude '49.3' (text)": lambda t: _set(t, "site", "latitude", '"49.3"'),
+    "daytime_night_in_fit 'false' (text)": lambda t: _set(t, "processing",
+                                                          "daytime_night_in_fit", '"false"'),
+    "daytime_night_in_fit 0 (a number)": lambda t: _set(t, "processing",
+                                                        "daytime_night_in_fit", "0"),
+    "missing ['-9999'] (text)": lambda t: _set(t, "input", "missing", '["-9999"]'),
+    "missing [-9999.0]": lambda t: _set(t, "input", "missing", "[-9999.0]"),
+    "missing [-999.9] (another logger's)": lambda t: _set(t, "input", "missing", "[-999.9]"),
+    "columns: 'ustr' (typo of ustar)": lambda t: t.replace('ustar = "friction', 'ustr = "friction'),
+    "columns: 'tsoil1' (typo of tsoil)": lambda t: t.replace('tsoil = "soil', 'tsoil1 = "soil'),
+    "columns: 'Tair' (case)": lambda t: t.replace('tair = "air', 'Tair = "air'),
+    "path with backslashes (Windows)": lambda t: _set(t, "input", "path",
+                                                      "'.\\quillmoor_grassland.csv'"),
+    "path 'C:/data/...' (Windows drive)": lambda t: _set(
+        t, "input", "path", "'C:/data/quillmoor_grassland.csv'"),
+    "path '~/quillmoor_grassland.csv'": lambda t: _set(t, "input", "path",
+                                                       '"~/quillmoor_grassland.csv"'),
+    "path listed twice": lambda t: _set(t, "input", "path",
+                                        '["quillmoor_grassland.csv", "quillmoor_grassland.csv"]'),
+    "ustar_scenarios 50 (a scalar)": lambda t: _set(t, "processing", "ustar_scenarios", "50"),
+    "events '2021-06-05' with a local hour 23:30": lambda t: _set(
+        t, "processing", "events", '["2021-06-05T23:30"]'),
+    "events beyond the record (2023-06-05)": lambda t: _set(t, "processing", "events",
+                                                            '["2023-06-05"]'),
+    "year_start '2023-01-01' (beyond the record)": lambda t: _set(t, "processing",
+                                                                  "year_start",
+                                                                  '"2023-01-01"'),
+    "interval_minutes '30' (text)": lambda t: _set(t, "input", "interval_minutes", '"30"'),
+    "clock_check false (a boolean)": lambda t: _set(t, "processing", "clock_check", "false"),
+    "units: rg 'umol m-2 s-1' (values W m-2)": lambda t: _set(t, "input.units", "rg",
+                                                              '"umol m-2 s-1"'),
+    "ustar_scenarios [16, 84] (no median)": lambda t: _set(t, "processing", "ustar_scenarios",
+                                                           "[16, 84]"),
+    "seed given twice": lambda t: t + "seed = 1\n",
+    "seed 2**70": lambda t: _set(t, "processing", "seed", "1180591620717411303424"),
+    "time_marks in [processing]": lambda t: _set(_drop(t, "time_marks"), "processing",
+                                                 "time_marks", '"end"'),
+    "flag_accept [] (none)": lambda t: _set(t, "input", "flag_accept", "[]"),
+    "missing [] (none)": lambda t: _set(t, "input", "missing", "[]"),
+    "canopy 'short ' (a blank after)": lambda t: _set(t, "site", "canopy", '"short "'),
 }
 
 #: Mistakes of the maize logger example (civil time, storage, PAR, two flags).
@@ -304,6 +374,25 @@ MAIZE_CASES = {
                                                                       "[-9999, 100]"),
     "maize: flag_accept [0, 1] for QC_flux alone": lambda t: _set(t, "input.columns",
                                                                   "nee_flag", '"QC_flux"'),
+    # round mistakes56
+    "maize: files listed last first": lambda t: _set(
+        t, "input", "path", '["quillmoor_maize_logger/maize_2021_2.dat", '
+        '"quillmoor_maize_logger/maize_2021_1.dat"]'),
+    "maize: time_zone CET": lambda t: _set(t, "input", "time_zone", '"CET"'),
+    "maize: units: ppfd 'W m-2' (values µmol)": lambda t: _set(t, "input.units", "ppfd",
+                                                                '"W m-2"') if "[input.units]" in t
+    else t.replace("[processing]", '[input.units]\nppfd = "W m-2"\n\n[processing]'),
+    "maize: units: storage 'mg CO2 m-2 s-1' (values µmol)": lambda t: t.replace(
+        "[processing]", '[input.units]\nstorage = "mg CO2 m-2 s-1"\n\n[processing]'),
+    "maize: time_marks left out": lambda t: _drop(t, "time_marks"),
+    "maize: encoding utf-8 (latin-1 file)": lambda t: _set(t, "input", "encoding", '"utf-8"'),
+    "maize: time_format month first": lambda t: _set(t, "input", "time_format",
+                                                     '"%m.%d.%Y %H:%M"'),
+    "maize: time_zone CEST (summer abbreviation)": lambda t: _set(t, "input", "time_zone",
+                                                                  '"CEST"'),
+    "maize: decimal '.' (comma file)": lambda t: _set(t, "input", "decimal", '"."'),
+    "maize: flag_accept [0, 1] as text '0,1'": lambda t: _set(t, "input", "flag_accept",
+                                                              '"0,1"'),
 }
 
 
