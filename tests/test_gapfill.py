@@ -1032,6 +1032,53 @@ def test_local_linear_corrections_of_joined_blocks_are_the_bits_of_one_call_per_
     pd.testing.assert_frame_equal(batched, wide, check_exact=True)
 
 
+def test_donor_means_and_spreads_batched_across_blocks_keep_their_bits(monkeypatch):
+    """The donors' mean and spread of the plain donor-mean estimate (Reichstein et al.
+    2005) are computed for many blocks in one call since round speed58; one block per
+    call and the wider batches must give the same bits, and every fill must stay the
+    mean and population standard deviation of its donors, which the slower oracle
+    (tests/gapfill_oracle.py) finds record by record."""
+    index, measured, drivers, _, _ = _synthetic(np.random.default_rng(8), 3000, 30)
+    batched = fill_marginal_module(measured, drivers, index, is_night=_night(drivers),
+                                   estimate="donor_mean")
+    for records in (1, 1 << 18):
+        monkeypatch.setattr("fluxpart.gapfill._CORRECTION_BATCH_RECORDS", records)
+        other = fill_marginal_module(measured, drivers, index, is_night=_night(drivers),
+                                     estimate="donor_mean")
+        pd.testing.assert_frame_equal(batched, other, check_exact=True)
+    expected = oracle_fill_marginal(measured, drivers, index, is_night=_night(drivers),
+                                    estimate="donor_mean")
+    _assert_same_fill(batched, expected)
+
+
+def test_run_means_leave_out_missing_values_as_numpy_nanmean():
+    """``_run_means`` (the donors' driver means of the local-linear fit) against
+    numpy.nanmean run by run (NumPy, a general-purpose library): rows without a NaN,
+    rows with some, a row all NaN, a run all NaN (NaN mean), on a row view of a larger
+    array as the fit passes it, with and without the NaN mask given."""
+    from fluxpart.gapfill import _run_means
+    rng = np.random.default_rng(12)
+    counts = np.array([1, 7, 3, 12, 5])
+    starts = np.cumsum(counts) - counts
+    rows = rng.normal(0.0, 50.0, (5, counts.sum()))
+    x = rows[:4]
+    x[1, rng.random(counts.sum()) < 0.3] = np.nan
+    x[2] = np.nan
+    x[3, starts[2]:starts[2] + counts[2]] = np.nan
+    expected = np.array([[np.nanmean(row[s:s + c]) if not np.isnan(row[s:s + c]).all()
+                          else np.nan for s, c in zip(starts, counts, strict=True)]
+                         for row in x])
+    for missing in (None, np.isnan(x)):
+        got = _run_means(x, starts, counts, missing)
+        np.testing.assert_allclose(got, expected, rtol=1e-13, atol=0.0, equal_nan=True)
+        assert np.isnan(got[2]).all() and np.isnan(got[3, 2])
+    clean = rows[4:]
+    np.testing.assert_allclose(_run_means(clean, starts, counts),
+                               [[clean[0, s:s + c].mean() for s, c in zip(starts, counts,
+                                                                          strict=True)]],
+                               rtol=1e-13, atol=0.0)
+
+
 def test_positive_definite_solve_matches_numpy():
     """The element-wise solve of the local-linear fit against numpy.linalg.solve (LAPACK,
     a general-purpose library) on random symmetric positive definite systems of 1-4
