@@ -1148,20 +1148,25 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             from .storage_labels import storage_unit_ratio
             from .storage_size import storage_unit_oversized
 
-            # apart and too large as read, not in the flux's unit: certain (mistakes56)
+            # apart and too large as read, not in the flux's unit: refused (mistakes56),
+            # as the reader's other refusals: listed by a preflight, and kept with a
+            # warning where accept_units lists storage (a store that large, rightly
+            # declared: a sensor high over a short canopy; round review80)
             ratio = storage_unit_ratio(units.get("nee"), units.get("storage"))
             oversized = storage_unit_oversized(storage, starts, interval_minutes,
                                                getattr(site, "canopy", None), ratio, mapping)
             if oversized:
                 flux_unit = units.get("nee") or units_for("nee")[0]
-                raise UnitError(
+                accepted.append(_refuse_or_warn("storage", (
                     f"[input.units] storage = {setting_text(units.get('storage'))} reads the "
                     f"storage column {ratio:.3g} times larger than the unit of the flux it is "
                     f"added to ({flux_unit!r}), and so read it is too large "
                     f"{oversized.split(' is too large ', 1)[1].split('; check', 1)[0]}; "
                     f"read in the flux's unit it is not: a flux and its storage term are "
                     f"written by one program in one unit, so set [input.units] storage = "
-                    f"{setting_text(flux_unit)} (or remove it)")
+                    f"{setting_text(flux_unit)} (or remove it; to keep a store that large as "
+                    "declared, list storage in [input] accept_units)"),
+                    accept_units, warnings, preflight))
             warnings.append(f"storage: {apart}")
         from .column_faults import (  # only where storage is mapped
             FLUX_COPY_WORDS,

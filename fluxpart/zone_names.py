@@ -17,6 +17,10 @@ References
 ----------
 IANA Time Zone Database, the file ``theory.html``: abbreviations are ambiguous and not
 used as zone names (the "Area/Location" form); the offsets below, common knowledge (m).
+Its file ``etcetera``: "Etc/GMT+5" is five hours behind UTC, the sign inverted (m).
+
+IEEE Std 1003.1 (POSIX), environment variable TZ: the offset is positive west of the
+prime meridian ("EST5", "UTC+5" five hours behind UTC) (m).
 """
 
 from __future__ import annotations
@@ -104,6 +108,18 @@ def zone_shorthand_hint(name: str, utc_offset: float) -> str:
             return ("; it is UTC itself: for stamps kept in UTC write time_zone = \"UTC\"")
         if abs(offset - float(utc_offset)) < 1e-9:
             keep = f"leave time_zone out, as {site} states it"
+        elif abs(offset + float(utc_offset)) < 1e-9:
+            # POSIX TZ strings and the database's Etc/GMT names count hours west of
+            # Greenwich: "GMT+5" there is UTC-5, the offset [site] states (review80)
+            etc = (f" or the database's \"Etc/GMT{offset:+g}\"" if offset == int(offset)
+                   else "")
+            return (f"; it is a fixed offset, not a zone: UTC{offset:+g} as a person says "
+                    f"it, but UTC{-offset:+g} as a POSIX TZ string{etc} counts it (hours west "
+                    f"of Greenwich), the offset {site} states: for a clock kept at "
+                    f"UTC{-offset:+g} all year leave time_zone out; for one at "
+                    f"UTC{offset:+g} set [site] utc_offset = {offset:g} and leave time_zone "
+                    "out; name a zone (\"Area/City\") only for a clock that follows "
+                    "daylight saving")
         else:
             keep = (f"set [site] utc_offset = {offset:g} (now {float(utc_offset):g}) and leave "
                     "time_zone out")

@@ -21,7 +21,7 @@ from fluxpart.column_faults import (
     slope_reads_turbulent,
     storage_in_turbulent_flux,
 )
-from fluxpart.errors import ImplausibleValueError, UnitError
+from fluxpart.errors import ImplausibleValueError
 from fluxpart.io import read_input, read_site_config
 from fluxpart.storage_labels import (
     label_words,
@@ -245,7 +245,21 @@ def test_the_maize_example_read_without_its_storage_or_with_one_unit_is_named(tm
                                        'storage = "mg CO2 m-2 s-1"\n\n[processing]'))
     # the store so read is too large for a short canopy's air, in the flux's unit not:
     # refused since round mistakes56 (GPP +7063 g C m-2, 469 sigma, warned before)
-    with pytest.raises(UnitError, match=r"^\[input.units\] storage = \"mg CO2 m-2 s-1\" reads "
-                       r"the storage column 22.7 times larger .* a rise of \d+ µmol mol-1 .*"
-                       r"set \[input.units\] storage = \"umol m-2 s-1\""):
+    with pytest.raises(ImplausibleValueError, match=r"^\[input.units\] storage = \"mg CO2 m-2 "
+                       r"s-1\" reads the storage column 22.7 times larger .* a rise of \d+ "
+                       r"µmol mol-1 .*set \[input.units\] storage = \"umol m-2 s-1\" \(or "
+                       r"remove it; to keep a store that large as declared, list storage in "
+                       r"\[input\] accept_units\)"):
         _storage_warnings(one_unit)
+    # kept, warned, where accept_units lists storage, as the reader's other refusals: a
+    # store that large rightly declared (a sensor high over a short canopy) has a way
+    # through (round review80: it had none but a wrong unit or canopy)
+    kept = tmp_path / "kept.toml"
+    kept.write_text(one_unit.read_text().replace(
+        "[input.columns]", 'accept_units = ["storage"]\n\n[input.columns]'))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, report = read_input(read_site_config(kept))
+    assert report.accepted_units == ("storage",)
+    assert [text for text in report.warnings if "times larger than the unit of the flux" in
+            text and text.endswith("kept as declared ([input] accept_units lists storage)")]

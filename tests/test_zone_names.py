@@ -47,3 +47,18 @@ def test_shorthand_refused_naming_what_it_stands_for(zone, offset, said):
 def test_a_misspelt_city_gets_no_shorthand_hint():
     assert zone_shorthand_hint("Europe/Berln", 1.0) == ""
     assert zone_shorthand_hint("Berlin", 1.0) == ""
+
+
+def test_a_fixed_offset_whose_sign_is_the_site_offsets_reversed_names_both_readings():
+    """"GMT+5" beside [site] utc_offset = -5: told to set utc_offset = 5 before round
+    review80, a wrong sign where the name was the POSIX count (hours west of Greenwich,
+    IEEE Std 1003.1 TZ (m)); now both readings are named, and the database's own
+    "Etc/GMT+5" (zoneinfo, an outside reference) is the offset the site states."""
+    from datetime import datetime, timedelta
+
+    hint = zone_shorthand_hint("GMT+5", -5.0)
+    assert "UTC+5 as a person says it, but UTC-5 as a POSIX TZ string" in hint
+    assert "\"Etc/GMT+5\"" in hint and "for a clock kept at UTC-5 all year leave" in hint
+    assert ZoneInfo("Etc/GMT+5").utcoffset(datetime(2021, 1, 1)) == timedelta(hours=-5)
+    assert "Etc/" not in zone_shorthand_hint("UTC-3:30", 3.5)
+    assert "POSIX" not in zone_shorthand_hint("GMT+5", 5.0)
