@@ -1101,7 +1101,7 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
     same record (Fisher z larger by Bonferroni's bound for the shifts compared,
     :func:`_family_bound`, in standard errors sqrt(2 / (n - 3)): 4.1 for the 62 whole
     days, judged first and as before; where none passes, the best shift of all, a day and
-    some records, must pass 4.6 for the 496 such shifts of 30-minute records, 4.4 for
+    some records, must pass 4.5 for the 496 such shifts of 30-minute records, 4.4 for
     the 248 of hourly ones, so each family keeps the chance alarm of one test at 3
     standard errors and the two together twice that, and beat the same records a day on
     either side by 3, :func:`_beats_the_days_beside`: an NEE whose daily course trails
@@ -1167,9 +1167,7 @@ def nee_day_shift(nee, rg, potential, interval_minutes: float, columns=None) -> 
         apart_words = "whole days apart (a day of year counted from 0 in one file and from 1 in "
         apart_words += "the other, or a weather file of other dates)"
     else:
-        apart_words = ("that far apart (a day of year counted from 0 in one file and from 1 "
-                       "in the other, and stamps at the interval's end in one and its start "
-                       "in the other)")
+        apart_words = f"that far apart ({_day_and_record_causes(best, interval_minutes)})"
     return (f"NEE (column {names.get('nee', 'nee')!r}) changes with Rg (column "
             f"{names.get('rg', 'rg')!r}) {span} {later} than the same record "
             f"(correlation of the sunlit changes {strength:.2f} there, {same:.2f} in the same "
@@ -1202,6 +1200,22 @@ def _beats_the_days_beside(found, d_nee, d_rg, per_day: int, scores: dict) -> bo
                 _LAG_STANDARD_ERRORS * error):
             return False
     return True
+
+
+def _day_and_record_causes(shift: int, interval_minutes: float) -> str:
+    """The usual causes of a shift of a day and some records, each part named only where
+    it fits: a day of year counted from 0 in one file and from 1 in the other moves one
+    day, other dates any number; stamps at the interval's end in one file and its start in
+    the other move one record, clocks set apart any number (review79: "1 day(s) and 2
+    record(s)" and "2 day(s) and 3 record(s)" were given the one-day, one-record causes)."""
+    per_day = _records_per_day(interval_minutes)
+    days = int(round(abs(shift) / per_day))
+    records = abs(abs(shift) - days * per_day)
+    day = ("a day of year counted from 0 in one file and from 1 in the other" if days == 1
+           else "a weather file of other dates joined by stamp")
+    record = ("stamps at the interval's end in one and its start in the other" if records == 1
+              else f"clocks {records * interval_minutes:g} min apart in the two files")
+    return f"{day}, and {record}"
 
 
 def _days_and_records(shift: int, interval_minutes: float) -> str:

@@ -132,3 +132,24 @@ def test_the_csvw_description_of_the_tonnes_carries_their_caution():
     texts = {c["name"]: c.get(DESCRIPTION_PROPERTY) for c in table["tableSchema"]["columns"]}
     assert texts == {"year": None, "net_uptake_t_co2_per_ha": f"{stored}. {TONNES_CAUTION}.",
                      "nee": "NEE"}
+
+
+@pytest.mark.parametrize(("records", "span", "causes"), [
+    (99, "2 day(s) and 3 record(s) (49.5 h) later",
+     "(a weather file of other dates joined by stamp, and clocks 90 min apart in the two "
+     "files)"),
+    (-50, "1 day(s) and 2 record(s) (25 h) earlier",
+     "(a day of year counted from 0 in one file and from 1 in the other, and clocks 60 min "
+     "apart in the two files)"),
+])
+def test_a_day_and_records_off_names_the_causes_that_fit(records, span, causes):
+    """Invented passing clouds (known truth: NEE shifted by `records`). A day of year
+    counted from 0 in one file and from 1 in the other moves one day (24 h), stamps at the
+    interval's end in one file and its start in the other one record (30 min here): two
+    days and three records were given those two as the causes (review79)."""
+    from test_column_faults import light_record
+
+    from fluxpart.column_faults import nee_day_shift
+    nee, rg, potential = light_record(0, 1.0)
+    text = nee_day_shift(np.roll(nee, records), rg, potential, 30)
+    assert text is not None and span in text and causes in text, text
