@@ -802,7 +802,13 @@ def _site_table(outcome: SiteOutcome, table: str) -> pd.DataFrame:
 
 
 def _arrow_site(outcome: SiteOutcome, table: str = "annual") -> pa.Table:
-    flat = _site_table(outcome, table).reset_index()
+    # without the table's attrs (its units and descriptions, which _unify writes anew):
+    # pandas deep-copies them at every step below, a third of the CPU of the network
+    # tables, built serially after every worker has finished (network56: 20 site-years
+    # 0.69 -> 0.48 s; the schema's metadata is dropped below, so the bytes are the same)
+    frame = pd.DataFrame(_site_table(outcome, table), copy=False)
+    frame.attrs = {}
+    flat = frame.reset_index()
     site = outcome.site or {}
     for position, (column, name) in enumerate(_SITE_FIELDS.items(), start=1):
         flat.insert(position, column, site.get(name))

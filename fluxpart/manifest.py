@@ -622,6 +622,14 @@ def _nearby_result(directory: Path) -> str:
         return ""
     if len(held) == 1:
         return f"; it holds the result folder {str(held[0])!r}: give that folder"
+    if held:
+        # a batch stopped (SIGTERM, Ctrl-C, kill -9) before it first sealed its network
+        # tables leaves site folders and no network.json; verify said only "not a fluxpart
+        # result folder" (network56)
+        return (f"; it holds {len(held)} result folders ({str(held[0].name)!r}, ...): give "
+                "one of them, or, where it is a `fluxpart batch` output folder, run the "
+                "batch again: a batch stopped before it wrote its network.json leaves no "
+                "network to verify")
     return ""
 
 

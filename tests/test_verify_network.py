@@ -229,3 +229,18 @@ def test_an_edited_site_manifest_is_named_as_edited_not_as_a_stopped_batch(netwo
     with pytest.raises(InputFileError, match=r"written \(its manifest.json cannot be read: "
                        r".*manifest.json' does not exist"):
         network_table(out, "annual")
+
+
+def test_a_batch_folder_without_its_seal_says_to_run_the_batch_again(network, tmp_path,
+                                                                     capsys):
+    """A batch stopped (SIGTERM, kill -9) before it first wrote network.json leaves site
+    folders and no seal; verify said only "not a fluxpart result folder" (network56). One
+    error line naming the folders it holds and the remedy, exit 2 (the documented status
+    of an error)."""
+    out = _copy(network, tmp_path)
+    (out / "network.json").unlink()
+    assert main(["verify", str(out)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: ")
+    assert "it holds 2 result folders ('alder', ...)" in err[0]
+    assert "run the batch again" in err[0]

@@ -4258,22 +4258,29 @@ def f_batch_worker_peak_memory():
 NET45 = W / "net45"
 
 
+def _three_sites(root):
+    """Three sites of their own seeds (the third failing: its input missing) and a network
+    file ``sites.toml`` (out = "out") in a fresh folder `root`; `root`."""
+    shutil.rmtree(root, ignore_errors=True)
+    for i in range(3):
+        site = f"s{i:02d}"
+        (root / site).mkdir(parents=True)
+        if i < 2:
+            shutil.copy2(W / "b" / "tower.csv", root / site / "tower.csv")
+        text = (W / "b" / "site.toml").read_text().replace("seed = 0", f"seed = {i}")
+        (root / site / f"{site}.toml").write_text(
+            text.replace("Quillmoor grassland (fictional)", f"Quillmoor {site} (fictional)"))
+    (root / "sites.toml").write_text('[batch]\nsites = ["*/s*.toml"]\nout = "out"\n')
+    return root
+
+
 def _net45():
     """A batch output folder of two computed sites (own seeds) and one the batch failed
     (its input missing), written once by a 1-worker local batch; its exit status."""
     out = NET45 / "out"
     if (out / "network.json").is_file():
         return 1
-    shutil.rmtree(NET45, ignore_errors=True)
-    for i in range(3):
-        site = f"s{i:02d}"
-        (NET45 / site).mkdir(parents=True)
-        if i < 2:
-            shutil.copy2(W / "b" / "tower.csv", NET45 / site / "tower.csv")
-        text = (W / "b" / "site.toml").read_text().replace("seed = 0", f"seed = {i}")
-        (NET45 / site / f"{site}.toml").write_text(
-            text.replace("Quillmoor grassland (fictional)", f"Quillmoor {site} (fictional)"))
-    (NET45 / "sites.toml").write_text('[batch]\nsites = ["*/s*.toml"]\nout = "out"\n')
+    _three_sites(NET45)
     return fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET45,
               timeout=600).returncode
 
@@ -5030,6 +5037,59 @@ def f46_diff_residue():
            f"exit {done.returncode}, column {zero[0]}, moves shown {moved[:1]!r:.100}")
 
 
+# ------------------------------------------------------------------ round network56
+NET56 = W / "net56"
+
+
+def _net56_sources(name):
+    """The three sites of :func:`_three_sites` in a fresh folder `name` of the round, no
+    output yet; the folder."""
+    return _three_sites(NET56 / name)
+
+
+def f56_verify_batch_stopped_before_its_seal():
+    """SIGTERM to a first batch once a site folder is written, before network.json exists:
+    `verify` of the folder is one error line naming its site folders and "run the batch
+    again" (it said only "not a fluxpart result folder"), exit 2; the rerun skips the
+    written site and the network then verifies (exit 0)."""
+    root = _net56_sources("stopped")
+    out = root / "out"
+    done = stop_when(["batch", root / "sites.toml", "--quiet", "--workers", "2"],
+                     signal.SIGTERM, lambda: any(p.name.startswith("s")
+                                                 for p in _entries(out)))
+    sealed = (out / "network.json").exists()
+    seen = fp("verify", "--quiet", out)
+    rerun = fp("batch", root / "sites.toml", "--quiet", "--workers", "2", timeout=600)
+    after = fp("verify", "--quiet", out, timeout=600)
+    record("verify of a batch folder stopped before its first seal, then the rerun",
+           done.returncode == 143 and (sealed or (one_line(seen) and "run the batch again"
+                                                  in seen.stderr))
+           and rerun.returncode == 1 and "up to date" in rerun.stdout
+           and after.returncode == 0 and not leftovers(out),
+           f"stop exit {done.returncode}, sealed {sealed}, verify exit {seen.returncode} "
+           f"{seen.stderr.strip()[-90:]!r}, rerun exit {rerun.returncode}, verify after "
+           f"{after.returncode}")
+
+
+def f56_one_or_two_workers_same_bytes():
+    """The same network on 1 and on 2 local workers: every site's tables and manifest,
+    the network datasets, failures.parquet and network.json byte for byte the same (only
+    run-log.json, the run's own log, may differ)."""
+    digests, root = [], _net56_sources("workers")
+    for workers in ("1", "2"):    # one source folder: failures.parquet names the config
+        out = root / f"out{workers}"
+        done = fp("batch", "sites.toml", "--quiet", "--workers", workers, "--out", out,
+                  cwd=root, timeout=600)
+        digests.append((done.returncode, {
+            p.relative_to(out).as_posix(): hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(out.rglob("*"))
+            if p.is_file() and p.name != "run-log.json" and not p.name.endswith(".lock")}))
+    (code1, one), (code2, two) = digests
+    differ = sorted(k for k in one.keys() | two.keys() if one.get(k) != two.get(k))
+    record("a network on 1 and on 2 workers", code1 == code2 == 1 and len(one) > 20
+           and not differ, f"exits {code1}/{code2}, {len(one)} files, differ {differ[:4]}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -5106,13 +5166,15 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f46_report_mpl_cache_unwritable, f46_turkish_locale,
           f46_nice_two_threads_far_zone, f46_batch_zero_byte_files, f46_sigint_verify,
           f46_mtimes_rounded, f46_out_below_link_loop, f46_network_site_input_missing,
-          f46_diff_residue]
+          f46_diff_residue,
+          # round network56
+          f56_verify_batch_stopped_before_its_seal, f56_one_or_two_workers_same_bytes]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
-    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_"))]
+    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_", "f56_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
