@@ -117,7 +117,8 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
-from .quoted_lines import line_opening_quote, single_quoted, wrapped_lines_message
+from .quoted_lines import (line_opening_quote, line_swallowing_records, single_quoted,
+                           wrapped_lines_message)
 from .reader_notes import ReaderNote, notes_of, warnings_of
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
@@ -3122,6 +3123,17 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             "quote character (every cell of the header and the first records is wrapped "
             "in them), so the lines up to the next apostrophe would be read as one value: "
             "close or delete that quote in a copy of the file")
+    if quote == '"' and '"' in parsed and raw.apply(
+            lambda cells: cells.str.contains("\n", regex=False)).to_numpy().any():
+        at = line_swallowing_records(text.splitlines(), delimiter,
+                                     rows_before_header + rows_after_header + 1, len(header))
+        if at >= 0:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {at + 1} ({_shown_line(text.splitlines()[at])!r}) "
+                "opens a quote (\") that a later line closes, so the records between would "
+                "be read as one value and lost; close or delete the quote in a copy of the "
+                "file (a quoted value may hold line breaks only where no line within it is "
+                "a record)")
     first_line = rows_before_header + rows_after_header + 2 + _header_breaks(
         text, rows_before_header, delimiter)
     raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
