@@ -117,8 +117,12 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
-from .quoted_lines import (line_opening_quote, line_swallowing_records, single_quoted,
-                           wrapped_lines_message)
+from .quoted_lines import (
+    line_opening_quote,
+    line_swallowing_records,
+    single_quoted,
+    wrapped_lines_message,
+)
 from .reader_notes import ReaderNote, notes_of, warnings_of
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
