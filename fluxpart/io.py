@@ -124,6 +124,7 @@ from .quoted_lines import (
     wrapped_lines_message,
 )
 from .reader_notes import ReaderNote, notes_of, warnings_of
+from .shifted_fields import shifted_records
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -1326,12 +1327,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     outside = {}
     for name in order:
         variable = VARIABLES[name]
-        column = frame[name].to_numpy()
+        column = np.asarray(converted[name], dtype=np.float64)
         with np.errstate(invalid="ignore"):
-            outside[name] = int(np.sum((column < variable.minimum) | (column > variable.maximum)))
+            beyond = np.flatnonzero((column < variable.minimum) | (column > variable.maximum))
+        outside[name] = int(beyond.size)
         if outside[name]:
+            # the first such record's line: a record whose fields shifted by one or a cell
+            # that lost a digit is found there (readfuzz54: named no place)
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
-                            f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
+                            f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit} "
+                            f"(the first on {describe(int(beyond[0]))}); "
                             "screening will reject them"
                             + _code_hint(name, values, converted[name], derived, missing))
     if outside.get("nee"):
@@ -4423,6 +4428,15 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
+    shifted, shift = shifted_records(raw, time_columns, decimal, missing)
+    if shifted.size:
+        at = int(lines[shifted[0]])
+        raise InputFileError(
+            f"input file {source!r}: line {at} holds values that each fit the column to the {'right' if shift > 0 else 'left'} "
+            "of their own, far outside their own column's values: a field "
+            f"{'dropped' if shift > 0 else 'added'} in that record, every value after it "
+            f"read under its neighbour's name ({shifted.size} such record(s)); complete or "
+            "delete the record in a copy of the file")
     merged = merged_dates.filled_down(raw, time_columns, time_format)
     if merged is not None:
         # a date on each day's first record only (merged cells; layouts48: refused before,

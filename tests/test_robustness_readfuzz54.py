@@ -43,3 +43,18 @@ def test_a_double_quote_opened_and_closed_99_lines_later_is_refused_naming_it(tm
     lines[100] += '"rain,\nheavy"'
     (tmp_path / "note.csv").write_text("\n".join(lines) + "\n")
     pd.testing.assert_frame_equal(_read(tmp_path / "note.csv")[0], _read(clean)[0])
+
+
+def test_a_value_outside_the_plausible_range_is_named_by_its_line(tmp_path):
+    """A missing code that lost a digit ("-9999" written "-999") or a record whose fields
+    shifted by one puts a value outside the variable's plausible range; the warning said
+    only how many, so the record could not be found. It names the first such line now."""
+    _, records = _tower()
+    lines = records.to_csv(index=False).splitlines()
+    cells = lines[50].split(",")
+    cells[1] = "-999"            # co2_flux: beyond [-100, 100] umol m-2 s-1 (fact of the trade)
+    lines[50] = ",".join(cells)
+    (tmp_path / "d.csv").write_text("\n".join(lines) + "\n")
+    warnings = _read(tmp_path / "d.csv")[1].warnings
+    assert sum("nee: 1 value(s) outside the plausible range" in w
+               and "(the first on line 51 of" in w for w in warnings) == 1

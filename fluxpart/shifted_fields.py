@@ -1,0 +1,111 @@
+"""Records whose values sit one column off: a field dropped or added within one record.
+
+A record that lost a field and gained an empty one (a value not written and a delimiter
+closing the line, a cell pasted one column over) keeps the header's count of fields, so
+no field count names it, and each of its values is read under its neighbour's name: the
+air temperature as VPD, the soil temperature as relative humidity (readfuzz54: read in
+silence where every value stayed inside its variable's plausible range). Such a record is
+found by the file itself: several of its values lie far outside their own column's range
+of values and every one of them lies inside the range of the column beside it.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+#: Least count of values far outside their own column for a record to be judged; with
+#: every one inside the neighbouring column's range, three such coincidences in one
+#: record of an ordinary file are not met by chance (our choice)
+LEAST_FOREIGN = 3
+#: Quantiles spanning a column's ordinary values (the 0.1st to the 99.9th percentile:
+#: a year's rare extremes inside, a foreign value of another quantity outside)
+SPAN = (0.001, 0.999)
+#: Share of a column's cells that must read as numbers for the column to be judged
+NUMERIC_SHARE = 0.9
+
+
+def _numbers(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[list, np.ndarray]:
+    """The columns of `raw` that hold numbers, in file order, as floats with `missing`
+    codes and unreadable cells NaN."""
+    names, columns = [], []
+    for name in raw.columns:
+        if name in skip:
+            continue
+        text = raw[name].astype(str).str.strip()
+        if decimal != ".":
+            text = text.str.replace(decimal, ".", regex=False)
+        values = np.array(pd.to_numeric(text, errors="coerce"), dtype=np.float64)
+        values[np.isin(values, np.asarray(missing, dtype=np.float64))] = np.nan
+        if np.isfinite(values).sum() >= NUMERIC_SHARE * max(1, (text != "").sum()):
+            names.append(name)
+            columns.append(values)
+    return names, np.column_stack(columns) if columns else np.empty((len(raw), 0))
+
+
+def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.ndarray, int]:
+    """Rows of `raw` whose values read one column off, and the shift of the first.
+
+    Parameters
+    ----------
+    raw : pandas.DataFrame
+        Every cell of a file as text, in the file's column order.
+    skip : collection of str
+        Columns not judged (the time columns).
+    decimal : str
+        ``[input] decimal``.
+    missing : sequence of float
+        ``[input] missing`` codes.
+
+    Returns
+    -------
+    rows : numpy.ndarray of int
+        Positions in `raw`.
+    shift : int
+        +1 where the first such row's values belong one column to the right of where
+        they are read (a field dropped before them), -1 one column to the left (a field
+        added), 0 where none.
+
+    Notes
+    -----
+    A column's range is its cells' 0.1st to 99.9th percentile widened by half its width
+    on each side. A row is named where at least :data:`LEAST_FOREIGN` of its values lie
+    outside their own column's range and, read one column to the left or to the right,
+    at most one of them lies outside that column's range.
+
+    References
+    ----------
+    Percentile fences for outliers, as Tukey's fences with quartiles (Tukey 1977,
+    Exploratory Data Analysis) (m); the dropped or added field of a delimited record
+    (RFC 4180, section 2: each record holds the header's count of fields) (m).
+    """
+    _, values = _numbers(raw, set(skip), decimal, missing)
+    if values.shape[1] < LEAST_FOREIGN + 1 or len(values) < 50:
+        return np.empty(0, dtype=int), 0
+    with np.errstate(invalid="ignore"):
+        low, high = np.nanquantile(values, SPAN, axis=0)
+    width = (high - low) / 2
+    judged = np.isfinite(width) & (width > 0)
+    low, high = low - width, high + width
+
+    def foreign(cells, lows, highs, where):
+        with np.errstate(invalid="ignore"):
+            return np.isfinite(cells) & where & ((cells < lows) | (cells > highs))
+
+    own = foreign(values, low, high, judged)
+    candidates = np.flatnonzero(own.sum(axis=1) >= LEAST_FOREIGN)
+    rows, shifts = [], []
+    for row in candidates:
+        cells = values[row]
+        for shift in (1, -1):
+            # read as column j + shift: the cell of column j compared with its neighbour
+            moved = np.full(cells.size, np.nan)
+            if shift == 1:
+                moved[1:] = cells[:-1]
+            else:
+                moved[:-1] = cells[1:]
+            if foreign(moved, low, high, judged).sum() <= 1:
+                rows.append(row)
+                shifts.append(shift)
+                break
+    return np.asarray(rows, dtype=int), (shifts[0] if shifts else 0)
