@@ -15,9 +15,13 @@ import numpy as np
 import pandas as pd
 
 #: Least count of values far outside their own column for a record to be judged; with
-#: every one inside the neighbouring column's range, three such coincidences in one
-#: record of an ordinary file are not met by chance (our choice)
-LEAST_FOREIGN = 3
+#: every value inside the neighbouring column's range once read one column over (at most
+#: one outside where three or more are), such coincidences in one record of an ordinary
+#: file are not met by chance (our choice)
+LEAST_FOREIGN = 2
+#: Half width of the range of a column holding one value throughout (a flag that is 0 in
+#: every record): a flag of 1 stays inside, a value of another quantity not (our choice)
+CONSTANT_HALF_WIDTH = 0.5
 #: Quantiles spanning a column's ordinary values (the 0.1st to the 99.9th percentile:
 #: a year's rare extremes inside, a foreign value of another quantity outside)
 SPAN = (0.001, 0.999)
@@ -71,7 +75,9 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
     A column's range is its cells' 0.1st to 99.9th percentile widened by half its width
     on each side. A row is named where at least :data:`LEAST_FOREIGN` of its values lie
     outside their own column's range and, read one column to the left or to the right,
-    at most one of them lies outside that column's range.
+    none of them lies outside that column's range (at most one where four or more lie
+    outside their own). A column holding one value throughout spans that value
+    ± :data:`CONSTANT_HALF_WIDTH`.
 
     References
     ----------
@@ -80,12 +86,13 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
     (RFC 4180, section 2: each record holds the header's count of fields) (m).
     """
     _, values = _numbers(raw, set(skip), decimal, missing)
-    if values.shape[1] < LEAST_FOREIGN + 1 or len(values) < 50:
+    if values.shape[1] < LEAST_FOREIGN + 2 or len(values) < 50:
         return np.empty(0, dtype=int), 0
     with np.errstate(invalid="ignore"):
         low, high = np.nanquantile(values, SPAN, axis=0)
     width = (high - low) / 2
-    judged = np.isfinite(width) & (width > 0)
+    width = np.where(width > 0, width, CONSTANT_HALF_WIDTH)
+    judged = np.isfinite(width)
     low, high = low - width, high + width
 
     def foreign(cells, lows, highs, where):
@@ -104,7 +111,8 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
                 moved[1:] = cells[:-1]
             else:
                 moved[:-1] = cells[1:]
-            if foreign(moved, low, high, judged).sum() <= 1:
+            left = foreign(moved, low, high, judged).sum()
+            if left <= min(1, own[row].sum() - LEAST_FOREIGN):
                 rows.append(row)
                 shifts.append(shift)
                 break
