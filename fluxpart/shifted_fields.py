@@ -29,22 +29,26 @@ SPAN = (0.001, 0.999)
 NUMERIC_SHARE = 0.9
 
 
-def _numbers(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[list, np.ndarray]:
-    """The columns of `raw` that hold numbers, in file order, as floats with `missing`
-    codes and unreadable cells NaN."""
-    names, columns = [], []
+def _numbers(raw: pd.DataFrame, skip, decimal: str, missing) -> np.ndarray:
+    """Every column of `raw` in file order as floats, `missing` codes and unreadable cells
+    NaN; a column in `skip`, or whose cells mostly read as no number, all NaN (kept, so
+    that each column's neighbours are those of the file)."""
+    codes = np.asarray([code for code in missing if isinstance(code, (int, float))],
+                       dtype=np.float64)         # a word ("#VALUE!") reads as NaN anyway
+    columns = []
     for name in raw.columns:
-        if name in skip:
-            continue
-        text = raw[name].astype(str).str.strip()
-        if decimal != ".":
-            text = text.str.replace(decimal, ".", regex=False)
-        values = np.array(pd.to_numeric(text, errors="coerce"), dtype=np.float64)
-        values[np.isin(values, np.asarray(missing, dtype=np.float64))] = np.nan
-        if np.isfinite(values).sum() >= NUMERIC_SHARE * max(1, (text != "").sum()):
-            names.append(name)
-            columns.append(values)
-    return names, np.column_stack(columns) if columns else np.empty((len(raw), 0))
+        values = np.full(len(raw), np.nan)
+        if name not in skip:
+            text = raw[name].astype(str).str.strip()
+            if decimal != ".":
+                text = text.str.replace(decimal, ".", regex=False)
+            read = np.array(pd.to_numeric(text, errors="coerce"), dtype=np.float64)
+            coded = np.isin(read, codes)
+            if (np.isfinite(read).sum()
+                    >= NUMERIC_SHARE * max(1, (text != "").sum()) and (~coded).any()):
+                values = np.where(coded, np.nan, read)
+        columns.append(values)
+    return np.column_stack(columns) if columns else np.empty((len(raw), 0))
 
 
 def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.ndarray, int]:
@@ -58,8 +62,8 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
         Columns not judged (the time columns).
     decimal : str
         ``[input] decimal``.
-    missing : sequence of float
-        ``[input] missing`` codes.
+    missing : sequence of float or str
+        ``[input] missing`` codes (numbers and words).
 
     Returns
     -------
@@ -85,11 +89,12 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
     Exploratory Data Analysis) (m); the dropped or added field of a delimited record
     (RFC 4180, section 2: each record holds the header's count of fields) (m).
     """
-    _, values = _numbers(raw, set(skip), decimal, missing)
-    if values.shape[1] < LEAST_FOREIGN + 2 or len(values) < 50:
+    values = _numbers(raw, set(skip), decimal, missing)
+    read = np.isfinite(values).any(axis=0)
+    if read.sum() < LEAST_FOREIGN + 2 or len(values) < 50:
         return np.empty(0, dtype=int), 0
-    with np.errstate(invalid="ignore"):
-        low, high = np.nanquantile(values, SPAN, axis=0)
+    low, high = np.full(values.shape[1], np.nan), np.full(values.shape[1], np.nan)
+    low[read], high[read] = np.nanquantile(values[:, read], SPAN, axis=0)
     width = (high - low) / 2
     width = np.where(width > 0, width, CONSTANT_HALF_WIDTH)
     judged = np.isfinite(width)

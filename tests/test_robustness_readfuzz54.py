@@ -85,6 +85,8 @@ def test_a_record_whose_values_sit_one_column_off_is_refused_naming_its_line(tmp
     cells = ([cells[0], *cells[2:], ""] if shift > 0 else [cells[0], "", *cells[1:-1]])
     raw = pd.DataFrame([row.split(",") for row in lines[1:]], columns=lines[0].split(","))
     assert shifted_records(raw, ["stamp_end"], ".", [-9999])[0].size == 0
+    # a word among the missing codes (a spreadsheet's "#VALUE!") is no number to compare
+    assert shifted_records(raw, ["stamp_end"], ".", [-9999, "#VALUE!"])[0].size == 0
     shifted = raw.copy()
     shifted.iloc[at - 1] = cells
     rows, found = shifted_records(shifted, ["stamp_end"], ".", [-9999])
