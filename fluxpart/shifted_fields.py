@@ -105,20 +105,17 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
             return np.isfinite(cells) & where & ((cells < lows) | (cells > highs))
 
     own = foreign(values, low, high, judged)
-    candidates = np.flatnonzero(own.sum(axis=1) >= LEAST_FOREIGN)
-    rows, shifts = [], []
-    for row in candidates:
-        cells = values[row]
-        for shift in (1, -1):
-            # read as column j + shift: the cell of column j compared with its neighbour
-            moved = np.full(cells.size, np.nan)
-            if shift == 1:
-                moved[1:] = cells[:-1]
-            else:
-                moved[:-1] = cells[1:]
-            left = foreign(moved, low, high, judged).sum()
-            if left <= min(1, own[row].sum() - LEAST_FOREIGN):
-                rows.append(row)
-                shifts.append(shift)
-                break
-    return np.asarray(rows, dtype=int), (shifts[0] if shifts else 0)
+    counts = own.sum(axis=1)
+    candidates = np.flatnonzero(counts >= LEAST_FOREIGN)
+    cells = values[candidates]
+    # each cell read as the column to its right (+1) or to its left (-1)
+    right = np.full_like(cells, np.nan)
+    right[:, 1:] = cells[:, :-1]
+    left = np.full_like(cells, np.nan)
+    left[:, :-1] = cells[:, 1:]
+    allowed = np.minimum(1, counts[candidates] - LEAST_FOREIGN)
+    fits_right = foreign(right, low, high, judged).sum(axis=1) <= allowed
+    fits_left = foreign(left, low, high, judged).sum(axis=1) <= allowed
+    named = fits_right | fits_left
+    shifts = np.where(fits_right, 1, -1)[named]
+    return candidates[named], (int(shifts[0]) if shifts.size else 0)
