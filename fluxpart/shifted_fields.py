@@ -43,6 +43,7 @@ def _numbers(raw: pd.DataFrame, skip, decimal: str, missing) -> np.ndarray:
             if decimal != ".":
                 text = text.str.replace(decimal, ".", regex=False)
             read = np.array(pd.to_numeric(text, errors="coerce"), dtype=np.float64)
+            read[np.abs(read) > 1e30] = np.nan      # "inf", 1e38: missing to the reader
             coded = np.isin(read, codes)
             if (np.isfinite(read).sum()
                     >= NUMERIC_SHARE * max(1, (text != "").sum()) and (~coded).any()):
