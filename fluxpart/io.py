@@ -117,8 +117,14 @@ from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
 from .overlong_values import refuse_overlong_value
-from .quoted_lines import line_opening_quote, single_quoted, wrapped_lines_message
+from .quoted_lines import (
+    line_opening_quote,
+    line_swallowing_records,
+    single_quoted,
+    wrapped_lines_message,
+)
 from .reader_notes import ReaderNote, notes_of, warnings_of
+from .shifted_fields import shifted_records
 from .site import Site
 from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
 from .stamp_places import (
@@ -1345,12 +1351,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     outside = {}
     for name in order:
         variable = VARIABLES[name]
-        column = frame[name].to_numpy()
+        column = np.asarray(converted[name], dtype=np.float64)
         with np.errstate(invalid="ignore"):
-            outside[name] = int(np.sum((column < variable.minimum) | (column > variable.maximum)))
+            beyond = np.flatnonzero((column < variable.minimum) | (column > variable.maximum))
+        outside[name] = int(beyond.size)
         if outside[name]:
+            # the first such record's line: a record whose fields shifted by one or a cell
+            # that lost a digit is found there (readfuzz54: named no place)
             warnings.append(f"{name}: {outside[name]} value(s) outside the plausible range "
-                            f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit}; "
+                            f"[{variable.minimum:g}, {variable.maximum:g}] {variable.unit} "
+                            f"(the first on {describe(int(beyond[0]))}); "
                             "screening will reject them"
                             + _code_hint(name, values, converted[name], derived, missing))
     if outside.get("nee"):
@@ -3156,6 +3166,17 @@ def _read_text(path: Path, text: str, delimiter: str, rows_before_header: int,
             "quote character (every cell of the header and the first records is wrapped "
             "in them), so the lines up to the next apostrophe would be read as one value: "
             "close or delete that quote in a copy of the file")
+    if quote == '"' and '"' in parsed and raw.apply(
+            lambda cells: cells.str.contains("\n", regex=False)).to_numpy().any():
+        at = line_swallowing_records(text.splitlines(), delimiter,
+                                     rows_before_header + rows_after_header + 1, len(header))
+        if at >= 0:
+            raise InputFileError(
+                f"input file {str(path)!r}: line {at + 1} ({_shown_line(text.splitlines()[at])!r}) "
+                "opens a quote (\") that a later line closes, so the records between would "
+                "be read as one value and lost; close or delete the quote in a copy of the "
+                "file (a quoted value may hold line breaks only where no line within it is "
+                "a record)")
     first_line = rows_before_header + rows_after_header + 2 + _header_breaks(
         text, rows_before_header, delimiter)
     raw = _trailing_fields(path, raw, first_line, delimiter, *_header_and_first(
@@ -4453,6 +4474,15 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         raise MissingColumnError(f"{error}{_utf8_hint(header, used_encoding)}{widths}") \
             from None
     source = str(path)
+    shifted, shift = shifted_records(raw, time_columns, decimal, missing)
+    if shifted.size:
+        at = int(lines[shifted[0]])
+        raise InputFileError(
+            f"input file {source!r}: line {at} holds values that each fit the column to the {'right' if shift > 0 else 'left'} "
+            "of their own, far outside their own column's values: a field "
+            f"{'dropped' if shift > 0 else 'added'} in that record, every value after it "
+            f"read under its neighbour's name ({shifted.size} such record(s)); complete or "
+            "delete the record in a copy of the file")
     merged = merged_dates.filled_down(raw, time_columns, time_format)
     if merged is not None:
         # a date on each day's first record only (merged cells; layouts48: refused before,

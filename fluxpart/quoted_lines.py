@@ -136,3 +136,53 @@ def line_opening_quote(lines: list, delimiter: str, first_record_at: int) -> int
             if "unexpected end of data" in str(error):
                 return at
     return -1
+
+
+def line_swallowing_records(lines: list, delimiter: str, first_record_at: int,
+                            width: int) -> int:
+    """Index of the first record line that opens a double-quoted cell running on over a
+    following line that is a record of its own, or -1.
+
+    RFC 4180 lets a quoted cell hold line breaks (a note written ``"rain,\\nheavy"``),
+    so a stray ``"`` opening a value or a note cell and another closing one, any number
+    of lines later, read the records between as that one cell, and those records were
+    lost as a gap without a word (readfuzz54). A multi-line cell is proved harmless where
+    no line it runs on over, read alone without quotes, holds the header's `width` of
+    fields: such a line cannot be a record of the file, only text of the cell.
+
+    Parameters
+    ----------
+    lines : list of str
+        The file's lines, without line ends.
+    delimiter : str
+        ``[input] delimiter`` (one character, or "whitespace").
+    first_record_at : int
+        0-based index of the first record line.
+    width : int
+        The header's count of names (fields of one record).
+
+    Returns
+    -------
+    int
+
+    References
+    ----------
+    RFC 4180, section 2 (a quoted field may hold line breaks) (m); Python's ``csv``
+    module (``reader.line_num``: the lines read so far) (Python documentation, csv).
+    """
+    whitespace = delimiter == "whitespace"
+    options = ({"delimiter": " ", "skipinitialspace": True} if whitespace
+               else {"delimiter": delimiter})
+    reader = csv.reader(iter(lines[first_record_at:]), **options)
+    while True:
+        start = reader.line_num
+        try:
+            if next(reader, None) is None:
+                return -1
+        except csv.Error:          # a line the parser read otherwise: judged there
+            return -1
+        for line in lines[first_record_at + start + 1:first_record_at + reader.line_num]:
+            fields = (len(line.split()) if whitespace
+                      else len(line.split(delimiter)))
+            if fields >= width:
+                return first_record_at + start
