@@ -191,8 +191,8 @@ def test_report_and_run_refuse_a_network_table_folder(written_demo, tmp_path, ca
     assert batch.enclosing_network_dataset(out / "network_daily" / "x" / "y") == \
         (out / "network_daily").resolve()
     assert batch.enclosing_network_dataset(out / "fen") is None
-    site = tmp_path / "site.toml"
-    site.write_text("", encoding="utf-8")
+    # a real site config: an empty one is refused as empty first (round faults46)
+    site = Path(__file__).resolve().parents[1] / "examples" / "quillmoor_grassland.toml"
     result = out / "network_annual" / "run"
     assert main(["run", str(site), "--out", str(result)]) == 2
     assert not result.exists()
