@@ -55,7 +55,7 @@ def night_light_tested(config) -> bool:
 
 
 def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, values_only=False,
-             sun_up=None):
+             sun_up=None, evening=None):
     """MDS gap filling of NEE with the configured settings (also scored on artificial gaps).
 
     Parameters
@@ -82,6 +82,9 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
         The sun above the horizon in the record: with ``gapfill_donors =
         "dark_first"``, night gaps in darkness take dark donors first
         (:func:`fluxpart.gapfill.fill_marginal`); ignored otherwise.
+    evening : tuple, optional
+        :func:`fluxpart.preceding_light.evening_days` of `index`, where the caller fills
+        the same record many times (default: computed where the conditions need it).
 
     Returns
     -------
@@ -100,7 +103,7 @@ def fill_nee(nee_measured, conditions, index, is_night, config, gaps=None, value
     fill = gapfill.fill_marginal_values if values_only else gapfill.fill_marginal
     # the preceding day's light, in the years whose own measured nights show it
     conditions, light_tests = preceding_light.gated_conditions(
-        conditions, nee_measured, is_night, index, with_table=not values_only)
+        conditions, nee_measured, is_night, index, with_table=not values_only, evening=evening)
     dark_first = config.gapfill_donors == DARK_FIRST
     filled = fill(
         nee_measured, conditions, index, is_night=is_night,

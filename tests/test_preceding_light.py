@@ -97,7 +97,7 @@ def test_the_slope_is_ordinary_least_squares_of_statsmodels(rng):
     # reference: statsmodels OLS on the same night means and block columns
     index, nee, is_night, light, tair = _year(rng, 0.5)
     nights = preceding_light._night_means(nee, is_night, light, [tair],
-                                          preceding_light._evening_days(index))
+                                          preceding_light.evening_days(index))
     nights = {name: values[nights["year"] == 2021] for name, values in nights.items()}
     got = preceding_light._year_test(nights)
     block = np.minimum((nights["doy"] - 1) // preceding_light.BLOCK_DAYS,
@@ -200,12 +200,12 @@ def test_the_light_is_tested_only_where_the_fill_can_take_it(settings, acts):
 @pytest.mark.parametrize(("start", "tz", "unit"), [
     ("2021-01-01 00:00", None, "ns"), ("2020-02-28 06:30", "Etc/GMT-1", "ns"),
     ("1969-12-30 11:30", None, "us"), ("2023-12-31 12:00", None, "s")])
-def test_evening_days_are_those_of_pandas(start, tz, unit):
+def testevening_days_are_those_of_pandas(start, tz, unit):
     # reference: pandas' normalize and date fields of the stamps 12 h earlier (the local
     # clock of a tz-aware index), across a leap day, a year's end and the 1970 epoch
     index = pd.date_range(start, periods=3 * 48 + 7, freq="30min", tz=tz).as_unit(unit)
     want = (index - pd.Timedelta(hours=12)).normalize()
-    first, day = preceding_light._evening_days(index)
+    first, day = preceding_light.evening_days(index)
     dates = first + day
     assert (dates == want.tz_localize(None).to_numpy().astype("datetime64[D]")).all()
     assert (preceding_light._calendar_year(dates) == want.year.to_numpy()).all()
@@ -213,7 +213,7 @@ def test_evening_days_are_those_of_pandas(start, tz, unit):
     assert (day == (want - want[0]).days.to_numpy()).all()
 
 
-def test_evening_days_match_numpy_day_cast():
+def testevening_days_match_numpy_day_cast():
     """The records' evenings in integer days equal NumPy's ``datetime64[D]`` cast of the
     stamps less 12 h (which floors, before 1970 too): a record before noon belongs to the
     night that began the evening before."""
@@ -222,7 +222,7 @@ def test_evening_days_match_numpy_day_cast():
     for index in (pd.DatetimeIndex(stamps), pd.date_range("2021-01-01", periods=96,
                                                           freq="30min")):
         evening = (index.to_numpy() - np.timedelta64(12, "h")).astype("datetime64[D]")
-        first, day = preceding_light._evening_days(index)
+        first, day = preceding_light.evening_days(index)
         assert first == evening[0] and first.dtype == evening.dtype
         np.testing.assert_array_equal(day, (evening - evening[0]).astype(np.int64))
         assert day.dtype == np.int64

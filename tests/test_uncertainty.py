@@ -1446,7 +1446,8 @@ def test_hidden_drivers_match_pandas_mask():
 def test_held_out_records_are_counted_once_where_artificial_gaps_overlap():
     """The records a draw of artificial gaps newly holds out (round speed55: counted draw by
     draw) are those a whole-record count finds added, overlaps and the record's end
-    included (a count of set members; invented masks)."""
+    included, a gap inside another too (round speed59: counted over the union of the spans)
+    (a count of set members; invented masks)."""
     from fluxpart.uncertainty import _hold_out
 
     rng = np.random.default_rng(55)
@@ -1457,6 +1458,7 @@ def test_held_out_records_are_counted_once_where_artificial_gaps_overlap():
         lengths = rng.integers(1, 30, size=8)
         starts = rng.integers(0, n, size=8)
         starts[:2] = starts[0]                      # two gaps over the same records
+        lengths[2], starts[3], lengths[3] = 10, starts[2] + 2, 3    # one inside another
         before = int((mask & measured).sum())
         added = _hold_out(mask, None, None, starts, lengths, starts, measured)
         assert added == int((mask & measured).sum()) - before
