@@ -795,6 +795,12 @@ def refuse_misplaced_processing(processing: dict) -> None:
     required key (``utc_offset``, ``time_marks``) moved to ``[processing]`` was otherwise
     refused as missing from its own table, without a word of where it was written.
 
+    Parameters
+    ----------
+    processing : dict
+        The site config's ``[processing]`` table as read (anything else is left to the
+        caller's own refusal).
+
     Raises
     ------
     ConfigError

@@ -33,9 +33,9 @@ one the CSVW standard's site-wide discovery looks for beside the CSV files):
   ``schema:unitText`` (the unit, a UDUNITS-2 string, the same as the Parquet field's;
   left out where a column has none: names, labels, times) and ``dc:description`` (the
   Parquet field's description; for the tonnes, ``net_uptake_t_co2_per_ha``, followed by
-  :data:`fluxpart.manifest.TONNES_CAUTION`, since leftovers57). ``schema:unitText`` is the schema.org property for "a
-  unit of measurement given as text"; the substance (carbon,
-  CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
+  :data:`fluxpart.manifest.TONNES_CAUTION`, since leftovers57). ``schema:unitText`` is
+  the schema.org property for "a unit of measurement given as text"; the substance
+  (carbon, CO2) is named in the description, as in the Parquet metadata (UDUNITS-2 reads
   ``g C m-2`` as gram-coulomb);
 - per table: ``url`` (the CSV file), ``dc:title``, ``tableSchema`` (``columns`` and the
   ``primaryKey`` where the table has an index);

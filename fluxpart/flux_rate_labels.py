@@ -75,8 +75,8 @@ def rate_factor(label) -> float | None:
     References
     ----------
     Molar masses of CO2 (44.009 g mol-1) and C (12.011 g mol-1), IUPAC conventional
-    atomic weights (:mod:`fluxpart.constants`); SI prefixes and the day of 86,400 s, BIPM (2019) The International
-    System of Units, 9th ed. (m).
+    atomic weights (:mod:`fluxpart.constants`); SI prefixes and the day of 86,400 s,
+    BIPM (2019) The International System of Units, 9th ed. (m).
 
     Examples
     --------

@@ -215,6 +215,7 @@ def enclosed_unit(cell: str) -> str:
             return cell[1:-1].strip()
     return cell
 
+
 #: Field separators a header line retyped by hand or by another program may be written
 #: with where the records use another (the reader's delimiters; "whitespace" a run of
 #: blanks or tabs)
@@ -224,6 +225,9 @@ RECORDS_JUDGED = 20
 #: Each separator's name in a reader note
 SEPARATOR_WORDS = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars",
                    "whitespace": "blanks"}
+#: Where a header written with blanks splits: a tab or a run of two or more blanks (a
+#: name may hold one blank)
+_WIDE_BLANKS = re.compile(r"\t| {2,}")
 
 
 def header_separator(text: str, rows_before_header: int, rows_after_header: int,
@@ -256,6 +260,7 @@ def header_separator(text: str, rows_before_header: int, rows_after_header: int,
     Returns
     -------
     str
+        That separator (one of :data:`HEADER_SEPARATORS`), or "" where there is none.
 
     References
     ----------
@@ -288,7 +293,7 @@ def header_names(line: str, separator: str) -> list:
     a header missing one name was read with every later name one field off)."""
     if separator != "whitespace":
         return _cells(line, separator)
-    return [cell.strip().strip('"').strip() for cell in re.split(r"\t| {2,}", line.strip())]
+    return [cell.strip().strip('"').strip() for cell in _WIDE_BLANKS.split(line.strip())]
 
 
 def _marks(separator: str) -> set:
@@ -307,7 +312,7 @@ def with_header_separator(text: str, rows_before_header: int, rows_after_header:
         end = "\r" if line.endswith("\r") else ""
         body = line.rstrip("\r")
         if len(_cells(body, delimiter)) == 1 and len(header_names(body, other)) > 1:
-            cells = (re.split(r"\t| {2,}", body.strip()) if other == "whitespace"
+            cells = (_WIDE_BLANKS.split(body.strip()) if other == "whitespace"
                      else body.split(other))
             lines[at] = join.join(cell.strip() for cell in cells) + end
     return "\n".join(lines)

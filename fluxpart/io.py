@@ -1160,14 +1160,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             # declared: a sensor high over a short canopy; round review80)
             ratio = storage_unit_ratio(units.get("nee"), units.get("storage"))
             oversized = storage_unit_oversized(storage, starts, interval_minutes,
-                                               getattr(site, "canopy", None), ratio, mapping)
+                                               getattr(site, "canopy", None), ratio)
             if oversized:
                 flux_unit = units.get("nee") or units_for("nee")[0]
                 accepted.append(_refuse_or_warn("storage", (
                     f"[input.units] storage = {setting_text(units.get('storage'))} reads the "
                     f"storage column {ratio:.3g} times larger than the unit of the flux it is "
-                    f"added to ({flux_unit!r}), and so read it is too large "
-                    f"{oversized.split(' is too large ', 1)[1].split('; check', 1)[0]}; "
+                    f"added to ({flux_unit!r}), and so read it is too large {oversized}; "
                     f"read in the flux's unit it is not: a flux and its storage term are "
                     f"written by one program in one unit, so set [input.units] storage = "
                     f"{setting_text(flux_unit)} (or remove it; to keep a store that large as "

@@ -36,8 +36,8 @@ import pandas as pd
 from .gapfill import NIGHT_LIGHT_COLUMN
 
 __all__ = ["BLOCK_DAYS", "COLUMN", "MIN_BLOCK_NIGHTS", "MIN_NIGHTS", "MIN_SHARE", "TEST_LEVEL",
-           "evening_days", "gated_conditions", "light_dependence", "preceding_day_rg", "test_records",
-           "tested_regressor"]
+           "evening_days", "gated_conditions", "light_dependence", "preceding_day_rg",
+           "test_records", "tested_regressor"]
 
 #: The regressor's column in the NEE fill's conditions (:func:`fluxpart.gapfill.fill_marginal`).
 COLUMN = NIGHT_LIGHT_COLUMN
@@ -239,10 +239,27 @@ _HALF_DAY_NS = _DAY_NS // 2
 
 
 def evening_days(index) -> tuple:
-    """The first record's evening date (``datetime64[D]``) and each record's evening as a
-    day number from it (int64): the date of the record's night's evening on the stamps'
-    local clock (records before noon: the day before). NumPy day arithmetic: a fill tests
-    its nights on every call, and pandas' date fields cost ~1 ms a site-year each time."""
+    """The evening of each record's night, as days from the first record's.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Record stamps on the local clock (a time zone, if any, is dropped first).
+
+    Returns
+    -------
+    first : numpy.datetime64
+        The first record's evening date (``datetime64[D]``); NaT where `index` is empty.
+    day : numpy.ndarray of int64
+        Each record's evening as days after `first`: the date of the record's night's
+        evening on the stamps' local clock (records before noon: the day before).
+
+    Notes
+    -----
+    NumPy day arithmetic: a fill tests its nights on every call, and pandas' date fields
+    cost ~1 ms a site-year each time. A caller filling the same record many times (the
+    artificial gaps' rounds) computes it once and passes it to :func:`gated_conditions`.
+    """
     if getattr(index, "tz", None) is not None:
         index = index.tz_localize(None)         # the local clock, as pandas' normalize
     stamps = np.asarray(index.to_numpy(), dtype="datetime64[ns]")

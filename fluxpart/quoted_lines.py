@@ -147,8 +147,8 @@ def line_swallowing_records(lines: list, delimiter: str, first_record_at: int,
     so a stray ``"`` opening a value or a note cell and another closing one, any number
     of lines later, read the records between as that one cell, and those records were
     lost as a gap without a word (readfuzz54). A multi-line cell is proved harmless where
-    no line it runs on over, read alone without quotes, holds the header's `width` of
-    fields: such a line cannot be a record of the file, only text of the cell.
+    no line it runs on over, read alone without quotes, holds at least the header's
+    `width` of fields: such a line cannot be a record of the file, only text of the cell.
 
     Parameters
     ----------

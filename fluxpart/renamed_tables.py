@@ -19,6 +19,7 @@ __all__ = ["copy_of_table", "renamed_table"]
 
 
 def _same_bytes(path: Path, sha256) -> bool:
+    """Whether `path` is a plain file (no link) whose SHA-256 is `sha256` (hex)."""
     try:
         return path.is_file() and not path.is_symlink() and file_sha256(path) == sha256
     except OSError:

@@ -114,11 +114,11 @@ def sky_ratio(rg, potential, tair, day, inside, rest=None) -> float:
     lit_n = np.bincount(where, lit, labels.size)
     rg_sum = np.bincount(where, np.where(lit, rg, 0.0), labels.size)
     pot_sum = np.bincount(where, np.where(lit, potential, 0.0), labels.size)
-    warm = np.isfinite(tair)
-    frame = pd.DataFrame({"t": np.where(warm, tair, np.nan), "d": where})
+    tair_read = np.isfinite(tair)
+    frame = pd.DataFrame({"t": np.where(tair_read, tair, np.nan), "d": where})
     groups = frame.groupby("d")["t"]
     span = (groups.max() - groups.min()).reindex(range(labels.size)).to_numpy()
-    t_n = np.bincount(where, warm, labels.size)
+    t_n = np.bincount(where, tair_read, labels.size)
     part = np.bincount(where, inside, labels.size) > 0.5 * count
     other = ~part if rest is None else np.bincount(where, rest, labels.size) > 0.5 * count
     usable = (lit_n >= 0.8 * np.maximum(sun_n, 1)) & (sun_n > 0) & (t_n >= 0.8 * count) \

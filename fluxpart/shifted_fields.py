@@ -80,7 +80,7 @@ def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.
     A column's range is its cells' 0.1st to 99.9th percentile widened by half its width
     on each side. A row is named where at least :data:`LEAST_FOREIGN` of its values lie
     outside their own column's range and, read one column to the left or to the right,
-    none of them lies outside that column's range (at most one where four or more lie
+    none of them lies outside that column's range (at most one where three or more lie
     outside their own). A column holding one value throughout spans that value
     ± :data:`CONSTANT_HALF_WIDTH`.
 

@@ -46,7 +46,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["MIDWAY", "MIN_COURSE_SHARE", "MIN_COURSE_T", "MIN_NIGHTS", "MIN_Z", "night_nee_follows_storage", "storage_slope"]
+__all__ = ["MIDWAY", "MIN_COURSE_SHARE", "MIN_COURSE_T", "MIN_NIGHTS", "MIN_Z",
+           "night_nee_follows_storage", "storage_slope"]
 
 #: Midway between a NEE formed once (slope 0) and one holding the store twice (+1).
 MIDWAY = 0.5
@@ -107,12 +108,17 @@ def storage_slope(nee, storage, is_night, stamps, temperatures):
     tuple of float or None
         The slope and its standard error clustered by night (records from noon to noon);
         None where fewer than :data:`MIN_NIGHTS` nights hold every value, the storage
-        term does not vary at equal temperatures, or its course there is below
-        :data:`MIN_COURSE_SHARE` of the median night NEE.
+        term does not vary at equal temperatures, its course there is below
+        :data:`MIN_COURSE_SHARE` of the median night NEE, or that course does not resolve
+        the storage term (its first-stage slope below :data:`MIN_COURSE_T` standard
+        errors).
 
     References
     ----------
     Cameron, A. C., & Miller, D. L. (2015). Journal of Human Resources 50, 317-372 (m).
+
+    Stock, J. H., & Yogo, M. (2005). Testing for weak instruments in linear IV
+    regression. In Identification and Inference for Econometric Models, 80-108 (m).
 
     Tang, J., Baldocchi, D. D., & Xu, L. (2005). Global Change Biology 11, 1298-1304 (m).
     """

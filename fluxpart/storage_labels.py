@@ -178,6 +178,14 @@ def unmapped_storage_column(nee_column, file_columns, taken) -> str | None:
             "holds the storage term, leave the storage column out")
 
 
+def _declared_unit_keys(nee_unit, storage_unit) -> tuple[tuple, tuple]:
+    """The conversion keys (:func:`fluxpart.variables.same_unit_key`) of the flux's and
+    the storage column's declared units, the canonical µmol m-2 s-1 where undeclared."""
+    canonical = units_for("storage")[0]
+    return (same_unit_key("nee", nee_unit if nee_unit is not None else canonical),
+            same_unit_key("storage", storage_unit if storage_unit is not None else canonical))
+
+
 def storage_unit_ratio(nee_unit, storage_unit) -> float | None:
     """How many times larger the storage column reads in its declared unit than in the
     flux's (22.7 for storage in mg CO2 m-2 s-1 beside NEE in µmol m-2 s-1), or None where
@@ -189,10 +197,7 @@ def storage_unit_ratio(nee_unit, storage_unit) -> float | None:
         The ``[input.units]`` of ``nee`` and ``storage``; None where not declared (the
         canonical µmol m-2 s-1).
     """
-    canonical = units_for("storage")[0]
-    nee_key = same_unit_key("nee", nee_unit if nee_unit is not None else canonical)
-    storage_key = same_unit_key("storage",
-                                storage_unit if storage_unit is not None else canonical)
+    nee_key, storage_key = _declared_unit_keys(nee_unit, storage_unit)
     if (nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit"
             or nee_key[2] or storage_key[2]):   # an amount per interval: no one factor
         return None
@@ -235,9 +240,7 @@ def storage_unit_apart(nee_unit, storage_unit,
     Forest Meteorology 136, 108-113.
     """
     canonical = units_for("storage")[0]
-    nee_key = same_unit_key("nee", nee_unit if nee_unit is not None else canonical)
-    storage_key = same_unit_key("storage",
-                                storage_unit if storage_unit is not None else canonical)
+    nee_key, storage_key = _declared_unit_keys(nee_unit, storage_unit)
     if nee_key == storage_key or nee_key[0] != "unit" or storage_key[0] != "unit":
         return None
     if (nee_key[2] or storage_key[2]) and not interval_minutes:

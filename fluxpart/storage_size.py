@@ -126,22 +126,35 @@ def oversized_storage(storage, stamps, interval_minutes: float, canopy: str | No
     Finnigan, J. (2006). The storage term in eddy flux calculations. Agricultural and
     Forest Meteorology 136, 108-113.
     """
-    if canopy != "short":
-        return None
-    swing = daily_store_swing(storage, stamps, interval_minutes)
-    if not np.isfinite(swing):
-        return None
-    rise = swing / (AIR_MOLES_PER_M3 * SHORT_COLUMN_M) * 1e6
-    if not rise > MAX_COLUMN_RISE:
+    clause = _column_rise_clause(storage, stamps, interval_minutes, canopy)
+    if clause is None:
         return None
     term = (columns or {}).get("storage", "storage")
-    return (f"the storage column ({term!r}) is too large for the air below a short "
-            f"canopy's sensor: summed over a day it swings by {swing * 1e3:.0f} mmol m-2 "
-            f"(median day), a rise of {rise:.0f} µmol mol-1 in the mean CO2 of a "
-            f"{SHORT_COLUMN_M:g} m column, while calm nights raise it by some hundreds at "
-            "most; check the storage column's unit: it is added to NEE as the change of "
-            "the stored CO2 in µmol m-2 s-1 (a mole fraction's change per interval is not "
-            "that)")
+    return (f"the storage column ({term!r}) is too large {clause}; check the storage "
+            "column's unit: it is added to NEE as the change of the stored CO2 in µmol "
+            "m-2 s-1 (a mole fraction's change per interval is not that)")
+
+
+def _column_rise_clause(storage, stamps, interval_minutes: float,
+                        canopy: str | None) -> str | None:
+    """The size part of :func:`oversized_storage`'s message (from "for the air below a
+    short canopy's sensor" to "at most"), or None where the store is not too large or
+    the canopy not short; shared with :func:`storage_unit_oversized`.
+
+    ``storage`` is in µmol m-2 s-1, ``interval_minutes`` in minutes.
+    """
+    if canopy != "short":
+        return None
+    swing = daily_store_swing(storage, stamps, interval_minutes)   # mol m-2
+    if not np.isfinite(swing):
+        return None
+    rise = swing / (AIR_MOLES_PER_M3 * SHORT_COLUMN_M) * 1e6     # µmol mol-1
+    if not rise > MAX_COLUMN_RISE:
+        return None
+    return (f"for the air below a short canopy's sensor: summed over a day it swings by "
+            f"{swing * 1e3:.0f} mmol m-2 (median day), a rise of {rise:.0f} µmol mol-1 in "
+            f"the mean CO2 of a {SHORT_COLUMN_M:g} m column, while calm nights raise it by "
+            "some hundreds at most")
 
 
 def storage_smooths_nee(turbulent, storage, is_night, stamps, interval_minutes: float,
@@ -217,9 +230,9 @@ def storage_smooths_nee(turbulent, storage, is_night, stamps, interval_minutes: 
 
 
 def storage_unit_oversized(storage, stamps, interval_minutes: float, canopy: str | None,
-                           ratio: float | None, columns=None) -> str | None:
-    """:func:`oversized_storage`'s message where the storage column read in another unit
-    than the flux it is added to is too large and read in the flux's unit is not.
+                           ratio: float | None) -> str | None:
+    """How the storage column read in another unit than the flux it is added to is too
+    large, where read in the flux's unit it is not.
 
     Parameters
     ----------
@@ -234,12 +247,13 @@ def storage_unit_oversized(storage, stamps, interval_minutes: float, canopy: str
     ratio : float or None
         How many times larger the column reads in its declared unit than in the flux's
         (:func:`fluxpart.storage_labels.storage_unit_ratio`); None or 1 or less: not judged.
-    columns : dict, optional
-        Canonical name -> file column, to name the column in the message.
 
     Returns
     -------
     str or None
+        The size clause of :func:`oversized_storage`'s message ("for the air below a
+        short canopy's sensor: ... at most"), for the reader's refusal to complete; None
+        where not so.
 
     Notes
     -----
@@ -257,8 +271,8 @@ def storage_unit_oversized(storage, stamps, interval_minutes: float, canopy: str
     """
     if ratio is None or not ratio > 1.0:
         return None
-    found = oversized_storage(storage, stamps, interval_minutes, canopy, columns)
-    if found is None or oversized_storage(np.asarray(storage, dtype=float) / ratio, stamps,
-                                          interval_minutes, canopy, columns) is not None:
+    found = _column_rise_clause(storage, stamps, interval_minutes, canopy)
+    if found is None or _column_rise_clause(np.asarray(storage, dtype=float) / ratio, stamps,
+                                            interval_minutes, canopy) is not None:
         return None
     return found

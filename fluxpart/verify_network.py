@@ -148,8 +148,10 @@ class NetworkReport:
 
     def as_json(self) -> str:
         """One JSON object: ``sites`` (each site's :meth:`VerifyReport.as_json` object with
-        its ``site`` key, or for a failed site ``verdict`` :data:`NOT_COMPUTED` and its
-        ``error``), ``verdict``, ``exit_code``, ``caution``; keys sorted, ASCII."""
+        its ``site`` key; for a site that could not be verified ``verdict``
+        :data:`NOT_VERIFIED`, its ``error`` and ``exit_code`` 2; for a failed site
+        ``verdict`` :data:`NOT_COMPUTED` and its ``error``), ``verdict``, ``exit_code``,
+        ``caution``; keys sorted, ASCII."""
         sites = [{"site": key, **json.loads(report.as_json())} for key, report in self.sites]
         sites += [{"site": key, "verdict": NOT_VERIFIED, "error": error, "exit_code": 2}
                   for key, error in self.unverified]
@@ -193,7 +195,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     -------
     NetworkReport
         Each listed site's :class:`~fluxpart.verify.VerifyReport`, serially computed,
-        and the sites the batch failed.
+        and the sites the batch failed. A site folder the seal lists that is missing, or
+        a site's verify error (its input not found, say), is the report's `unverified`
+        entry for that site, and the walk goes on with the next.
 
     Raises
     ------
@@ -201,10 +205,6 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
         If the seal is no complete one (damaged, or written incomplete by a stopped
         batch). Network files or site manifests that do not match a complete seal are
         the report's `seal_problem`.
-
-    A site folder the seal lists that is missing, or a site's verify error (its input
-    not found, say), is the report's `unverified` entry for that site, and the walk goes
-    on with the next.
 
     References
     ----------

@@ -75,6 +75,7 @@ _FIXED_OFFSET = re.compile(r"^(?:UTC|GMT|Z)?\s*([+-])\s*(\d{1,2})(?:[:.h]?(\d{2}
 
 
 def _offset_text(hours: float) -> str:
+    """An offset [h] as a person writes it: "UTC+1", "UTC-5", "UTC+5.5"."""
     return f"UTC{hours:+g}"
 
 
@@ -113,13 +114,13 @@ def zone_shorthand_hint(name: str, utc_offset: float) -> str:
             # Greenwich: "GMT+5" there is UTC-5, the offset [site] states (review80)
             etc = (f" or the database's \"Etc/GMT{offset:+g}\"" if offset == int(offset)
                    else "")
-            return (f"; it is a fixed offset, not a zone: UTC{offset:+g} as a person says "
-                    f"it, but UTC{-offset:+g} as a POSIX TZ string{etc} counts it (hours west "
-                    f"of Greenwich), the offset {site} states: for a clock kept at "
-                    f"UTC{-offset:+g} all year leave time_zone out; for one at "
-                    f"UTC{offset:+g} set [site] utc_offset = {offset:g} and leave time_zone "
-                    "out; name a zone (\"Area/City\") only for a clock that follows "
-                    "daylight saving")
+            said, posix = _offset_text(offset), _offset_text(-offset)
+            return (f"; it is a fixed offset, not a zone: {said} as a person says it, but "
+                    f"{posix} as a POSIX TZ string{etc} counts it (hours west of "
+                    f"Greenwich), the offset {site} states: for a clock kept at {posix} all "
+                    f"year leave time_zone out; for one at {said} set [site] utc_offset = "
+                    f"{offset:g} and leave time_zone out; name a zone (\"Area/City\") only "
+                    "for a clock that follows daylight saving")
         else:
             keep = (f"set [site] utc_offset = {offset:g} (now {float(utc_offset):g}) and leave "
                     "time_zone out")

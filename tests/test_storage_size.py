@@ -88,9 +88,8 @@ def test_a_storage_unit_apart_from_the_flux_is_judged_both_ways():
     stamps = _stamps()
     true = _sine_storage(stamps, 1.5)
     ratio = 1000 / 44.009
-    text = storage_unit_oversized(true * ratio, stamps, 30, "short", ratio,
-                                  {"storage": "co2_store"})
-    assert text is not None and "'co2_store'" in text
+    text = storage_unit_oversized(true * ratio, stamps, 30, "short", ratio)
+    assert text is not None and text.startswith("for the air below a short canopy")
     assert storage_unit_oversized(true * ratio * 20, stamps, 30, "short", ratio) is None
     assert storage_unit_oversized(true * ratio, stamps, 30, "short", 1.0) is None
     assert storage_unit_oversized(true / ratio, stamps, 30, "short", 1 / ratio) is None
