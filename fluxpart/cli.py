@@ -479,8 +479,12 @@ def _follow_on_note(unit_refusals, clock_stops, listed: int, clock_warned=()) ->
                        "add it to [input] missing")
                       if all("[input] missing" in text for text in unit_refusals) else
                       ("the unit mix-up", "on the values as read in that unit", "set the unit"))
+    # Rg of 0 with the sun up is judged by the same sun: a clock hours off puts the
+    # settings' noon in the record's night, and the zeros were blamed on the logger alone
+    # (newuser55: utc_offset -10 for +10 named 1014 "lost values written as 0")
     clock = ("the clock or site geometry", "against the sun as [site] places it (Rg above "
-             "the potential radiation, the night mask)", "make the change it names")
+             "the potential radiation, Rg of 0 with the sun up, the night mask)",
+             "make the change it names")
     if clock_stops:
         causes.append(clock)
     # both at once: each named, where the unit's note alone counted the clock's refusal

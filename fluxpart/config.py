@@ -148,8 +148,8 @@ class Config:
         describes the fill used (:mod:`fluxpart.night_donors`). Without a bootstrap (a
         fixed threshold, ``ustar_bootstrap_draws = 0``, fewer than two scenarios) no
         record is withheld. ``"none"``: every kept record is a donor, as up to 0.33.0.
-        Measured against ``"none"`` (DEVELOPERS.md, rounds nightbias51 and
-        donormargin51): NEE median |error| 3.67 / 5.17 / 5.23 → 3.79 / 4.88 / 4.95
+        Measured against ``"none"`` (DEVELOPERS.md, 0.34.0
+        changelog): NEE median |error| 3.67 / 5.17 / 5.23 → 3.79 / 4.88 / 4.95
         g C m-2 and worst 14.2 / 33.3 / 40.2 → 13.2 / 32.8 / 39.7 on the calibration,
         generalisation and other-physics sets (RMS smaller on all three), NEE coverage
         97.1 / 92.9 / 97.6 → 98.6 / 92.9 / 95.2 % (161 of 168 either way); on known-truth
@@ -157,7 +157,7 @@ class Config:
         The night fills' low bias from the loss is reduced, not removed.
     ustar_kept_trend : str
         ``"off"`` (default): the detected u* threshold is used as found. ``"raise"`` (an
-        option, round nightbias52): each year's kept night records are tested for the
+        option since 0.35.0): each year's kept night records are tested for the
         u* filter's premise (in darkness: twilight uptake left out), that night NEE no
         longer rises with u* above the threshold once temperature is held (Goulden et
         al. 1996; Papale et al. 2006), by a
@@ -168,7 +168,7 @@ class Config:
         (:mod:`fluxpart.ustar_trend`). ``threshold_detected`` keeps the detector's value,
         the year's ``reason`` says what the test found (the raise and its p-value, not raised
         with its p-value, or too few night records to test). Measured, not the default
-        (DEVELOPERS.md, round nightbias52).
+        (DEVELOPERS.md, 0.35.0 changelog).
     storage_release : str
         What to do where the morning release of CO2 stored on calm nights is seen in
         the measured NEE (:func:`fluxpart.storage_check.morning_release`: the
@@ -427,8 +427,8 @@ class Config:
         light compensation point of many canopies, so such records can hold uptake;
         with the sun down the sky gives below ~8 µmol m-2 s-1 (about 400 lx at sunset
         (m)). Gap filling's night class and the u* filter keep the Rg mask. See
-        :mod:`fluxpart.partition.dark_nights`. Not the default, measured (round
-        darkfit51): on trial 26 (draw 0) nighttime GPP / Reco median |error| 1.4 / 2.0
+        :mod:`fluxpart.partition.dark_nights`. Not the default, measured (DEVELOPERS.md,
+        0.34.0 changelog): on trial 26 (draw 0) nighttime GPP / Reco median |error| 1.4 / 2.0
         → 0.4 / 0.5 %, covered 8 / 6 → 8 / 7 of 8; trials 6–19 (163 site-years) covered
         143 / 134 → 146 / 142, NEE unchanged; on the generated sets median signed
         nighttime error nearer zero (e.g. Reco other physics −0.74 → −0.44 %) but median
@@ -532,7 +532,7 @@ class Config:
         nighttime intervals, whose partitioning part follows the day–night
         difference, narrow and hold the truth less often (nighttime GPP / Reco
         covered in 110 / 99 → 101 / 94 of 124, daytime 106 / 102 → 104 / 102): not
-        the default (figures in DEVELOPERS.md, 0.32.0 changelog, round dayshape49).
+        the default (figures in DEVELOPERS.md, 0.32.0 changelog).
     random_error_draws : int
         Monte Carlo realisations of the random error of NEE summed per year; 500,
         our choice (the standard deviation of the sum is then known to about 3 %).

@@ -101,9 +101,9 @@ def test_the_follow_on_note_under_clock_check_warn_has_its_own_words():
     note = _follow_on_note((), (), 3, geometry)
     assert note == ("  note: the run goes on past the clock or site geometry named above "
                     '(clock_check = "warn"); the other problems were judged against the sun '
-                    "as [site] places it (Rg above the potential radiation, the night mask) "
-                    "and may follow from it alone: make the change it names and run check "
-                    "again\n")
+                    "as [site] places it (Rg above the potential radiation, Rg of 0 with the "
+                    "sun up, the night mask) and may follow from it alone: make the change "
+                    "it names and run check again\n")
     unit = ["column 'air_temp_c' (tair, read as °C): ... set [input.units] tair = \"°F\""]
     both = _follow_on_note(unit, (), 5, geometry)
     assert both.startswith("  note: the run stops at the unit mix-up named above, and the "

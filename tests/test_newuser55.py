@@ -1,0 +1,64 @@
+"""A new user's reading of the docs and of `check`'s clock note (round newuser55).
+
+The project's rule for user-facing text: it names releases, never the names of the
+development rounds (the README, docs/checks.md and docs/logger-files.md named 65 of
+them, such as "since auditor53"; the report's settings table, drawn from the
+``Config`` docstring, five). The round names are read from the changelog's round
+headings in DEVELOPERS.md, so a round added later is guarded too.
+"""
+import re
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _round_names() -> set[str]:
+    """Every round name the changelog's ``#### ... (round NAME)`` headings give."""
+    names = set()
+    for line in (ROOT / "DEVELOPERS.md").read_text(encoding="utf-8").splitlines():
+        heading = re.match(r"#### .*\(rounds? ([^)]*)\)\s*$", line)
+        if heading:
+            names.update(re.findall(r"\b[a-z]+\d+\b", heading.group(1)))
+    return names
+
+
+def _named_rounds(text: str, names: set[str]) -> list[str]:
+    return sorted({word for word in re.findall(r"\b[a-z]+\d+\b", text) if word in names})
+
+
+def test_the_changelog_names_rounds_to_guard_against():
+    names = _round_names()
+    assert len(names) > 100                     # the guard below reads a real list
+    assert {"auditor53", "leftovers53", "layouts43", "mistakes55"} <= names
+
+
+def test_user_docs_name_releases_not_rounds():
+    names = _round_names()
+    for page in ("README.md", "docs/checks.md", "docs/logger-files.md"):
+        text = (ROOT / page).read_text(encoding="utf-8")
+        assert _named_rounds(text, names) == [], page
+
+
+def test_the_report_settings_text_names_no_round():
+    """The report's "Settings and their sources" table prints each setting's paragraph
+    of the Config docstring: it named rounds nightbias51, donormargin51, nightbias52,
+    darkfit51 and dayshape49."""
+    from fluxpart.report import _config_notes
+    notes = _config_notes()
+    assert "night_donor_margin" in notes and "0.34.0 changelog" in notes["night_donor_margin"]
+    found = {name: _named_rounds(note, _round_names()) for name, note in notes.items()}
+    assert {name: rounds for name, rounds in found.items() if rounds} == {}
+
+
+def test_the_clock_note_names_rg_zeros_among_what_may_follow():
+    """A clock hours off puts the settings' noon in the record's night: measured Rg is 0
+    where the potential radiation (Spencer 1971 (m), a function of the time of day) is
+    high, and `check` listed 1014 "lost values written as 0" beside the clock's refusal
+    (an invented site at UTC+10 configured as -10). The note that says which problems
+    may follow from the clock now names those zeros with the rest."""
+    from fluxpart.cli import _follow_on_note
+    clock = ["clock: measured Rg comes 241 min earlier than the sun ... (run stops)"]
+    note = _follow_on_note((), clock, 3)
+    assert note.startswith("  note: the run stops at the clock or site geometry named above")
+    assert "Rg of 0 with the sun up" in note
+    assert _follow_on_note((), clock, 1) == ""              # nothing else listed
