@@ -434,7 +434,13 @@ def _format_clock(verdict) -> str:
         lines.append(f"  shift of Rg      {verdict.shift_minutes:+.0f} min (spread "
                      f"{verdict.spread_minutes:.0f} min over {verdict.months_used} months; "
                      "positive = Rg later than the sun)")
-    lines.append(f"  clock            {verdict.status.replace('_', ' ')}")
+    clock = verdict.status.replace("_", " ")
+    if verdict.status in ("hemisphere", "latitude"):
+        # the status names the geometry where the clock itself agreed (or could not be
+        # judged): "clock  hemisphere" above "hemisphere  mismatch" read as a clock fault
+        judged = "consistent" if math.isfinite(verdict.shift_minutes) else "cannot judge"
+        clock = f"{judged} (the {verdict.status} is not: see the problems)"
+    lines.append(f"  clock            {clock}")
     lines.append(f"  hemisphere       {verdict.hemisphere.replace('_', ' ')}")
     lines.extend(f"  note: {note}" for note in verdict.notes)
     return "\n".join(lines)

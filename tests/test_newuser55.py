@@ -62,3 +62,28 @@ def test_the_clock_note_names_rg_zeros_among_what_may_follow():
     assert note.startswith("  note: the run stops at the clock or site geometry named above")
     assert "Rg of 0 with the sun up" in note
     assert _follow_on_note((), clock, 1) == ""              # nothing else listed
+
+
+def test_the_clock_line_of_check_does_not_read_a_wrong_latitude_as_a_clock_fault():
+    """The clock check's status names the site geometry where the clock itself agreed
+    (fluxpart.clock: "hemisphere" and "latitude" only replace "consistent"), and `check`
+    printed it on its clock line: "clock  hemisphere" above "hemisphere  mismatch" for a
+    latitude of the wrong sign. The clock line now says the clock agreed and the
+    geometry did not; a shifted clock is printed as before."""
+    from types import SimpleNamespace
+
+    from fluxpart.cli import _format_clock
+
+    def verdict(status, shift, hemisphere="consistent"):
+        return SimpleNamespace(status=status, shift_minutes=shift, spread_minutes=8.0,
+                               months_used=12, hemisphere=hemisphere, notes=())
+
+    text = _format_clock(verdict("hemisphere", -1.0, "mismatch"))
+    assert "  clock            consistent (the hemisphere is not: see the problems)" in text
+    assert "  hemisphere       mismatch" in text
+    text = _format_clock(verdict("latitude", 2.0))
+    assert "  clock            consistent (the latitude is not: see the problems)" in text
+    text = _format_clock(verdict("hemisphere", float("nan"), "mismatch"))
+    assert "  clock            cannot judge (the hemisphere is not" in text
+    assert "  clock            shifted" in _format_clock(verdict("shifted", 61.0))
+    assert "  clock            daylight saving" in _format_clock(verdict("daylight_saving", 0.0))
