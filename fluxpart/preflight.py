@@ -163,6 +163,7 @@ from . import (
     spliced_records,
     sunlit_uptake,
     tair_days,
+    timestamps,
     ustar_pairing,
     ustar_prefilter,
     vpd_soil,
@@ -1421,6 +1422,49 @@ def _ustar(index, usable_night, latitude, config) -> tuple:
     return findings, years
 
 
+def _partial_budget_years(index, interval_minutes: float, year_start: str) -> list[str]:
+    """One text per budget year the record holds only part of, for a record of a year or
+    more.
+
+    ``run`` warns of each partial budget year after its budget
+    (:func:`fluxpart.budget_warnings.budget_year_warnings`), while ``check`` named only a
+    record shorter than 365 days: a full year of records from April, or a calendar year
+    under ``year_start = "07-01"``, is two partial budget years of about six months each
+    (an invented southern site-year: 8688 of 17,520 and 8832 of 17,568 records), and
+    ``check`` found "none". The count is the run's: records of the record (after
+    :func:`fluxpart.timestamps.budget_year_edges`) against the budget year's length.
+
+    Parameters
+    ----------
+    index : pandas.DatetimeIndex
+        Interval starts of the record (local standard time).
+    interval_minutes : float
+        Record interval [min].
+    year_start : str
+        ``[processing] year_start``, ``"MM-DD"``.
+
+    Returns
+    -------
+    list of str
+        The texts, in the order of the years; empty where every budget year is whole.
+    """
+    table = timestamps.budget_years(index, year_start)
+    years = table.groupby("year").agg(records=("year", "size"),
+                                      start=("period_start", "first"),
+                                      end=("period_end", "first"))
+    expected = (years["end"] - years["start"]) / pd.Timedelta(minutes=interval_minutes)
+    label = "{}" if year_start == "01-01" else "budget year {}"
+    texts = []
+    for year, row in years[years["records"] < expected].iterrows():
+        last = row["end"] - pd.Timedelta(days=1)
+        months = 12.0 * row["records"] / expected[year]
+        texts.append(f"{label.format(year)} ({row['start']:%Y-%m-%d} to {last:%Y-%m-%d}) holds "
+                     f"{int(row['records'])} of {int(expected[year])} records "
+                     f"({months:.1f} months): its sums are partial and are not annual totals "
+                     f"(year_start = \"{year_start}\"; run warns of it too)")
+    return texts
+
+
 def _days_text(span_days: float, interval_minutes: float) -> str:
     """``"200.5 days"``; near a whole year, the records short of it (365.0 would read whole)."""
     short = int(round((365.0 - span_days) * 1440.0 / interval_minutes))
@@ -1775,6 +1819,10 @@ def preflight(frame: pd.DataFrame, screened: pd.DataFrame, is_night, potential, 
             f"the record covers {_days_text(span_days, interval_minutes)}, less than a year: "
             "its sums are partial "
             "and are not annual totals"), False))
+    else:
+        # a year of records across a budget year's turn: two partial years (newuser55)
+        findings += [Finding("annual budget", text, False) for text in
+                     _partial_budget_years(index, interval_minutes, config.year_start)]
     rg_high = np.asarray(rg_high, dtype=bool)
     daylight = int((potential > 0).sum())
     if daylight and rg_high.sum() > RG_ABOVE_POTENTIAL_SHARE * daylight:

@@ -87,3 +87,30 @@ def test_the_clock_line_of_check_does_not_read_a_wrong_latitude_as_a_clock_fault
     assert "  clock            cannot judge (the hemisphere is not" in text
     assert "  clock            shifted" in _format_clock(verdict("shifted", 61.0))
     assert "  clock            daylight saving" in _format_clock(verdict("daylight_saving", 0.0))
+
+
+def test_check_names_partial_budget_years_of_a_full_year_of_records():
+    """`run` warns of each budget year it holds only part of; `check` named only a record
+    shorter than 365 days, and found "none" for a calendar year of records under
+    year_start = "07-01" (two budget years of six months each). The expected count is
+    the Gregorian calendar's: 365 days of 48 half-hours, 17,520, and 17,568 for a budget
+    year holding 29 February (a fact of the calendar)."""
+    import pandas as pd
+
+    from fluxpart.preflight import _partial_budget_years
+    year = pd.date_range("2023-01-01", periods=17520, freq="30min")
+    assert _partial_budget_years(year, 30, "01-01") == []          # a whole calendar year
+    texts = _partial_budget_years(year, 30, "07-01")
+    assert len(texts) == 2
+    assert texts[0].startswith("budget year 2022 (2022-07-01 to 2023-06-30) holds 8688 of "
+                               "17520 records (6.0 months)")
+    assert texts[1].startswith("budget year 2023 (2023-07-01 to 2024-06-30) holds 8832 of "
+                               "17568 records (6.0 months)")
+    # a year of records from April under calendar years: both ends partial (275 days)
+    april = pd.date_range("2023-04-01", periods=17520, freq="30min")
+    texts = _partial_budget_years(april, 30, "01-01")
+    assert [text.split(" (")[0] for text in texts] == ["2023", "2024"]
+    assert "holds 13200 of 17520 records (9.0 months)" in texts[0]
+    # hourly records of a whole budget year from July
+    hourly = pd.date_range("2023-07-01", periods=8784, freq="60min")
+    assert _partial_budget_years(hourly, 60, "07-01") == []
