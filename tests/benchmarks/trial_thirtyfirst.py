@@ -569,7 +569,7 @@ def gaps(site, idx, met, ustar, night, rng, variant):
     # maintenance: a weekday visit every 14-21 days, 09-15 h (analyser calibrated)
     visit_days = np.cumsum(rng.integers(14, 22, 40))
     visit_days = visit_days[visit_days < met["n_days"]]
-    weekday = idx[::per_day].dayofweek.to_numpy()
+    weekday = idx[::per_day].day_of_week.to_numpy()
     visit_days = np.array([d + max(0, 7 - weekday[d]) % 7 * (weekday[d] >= 5)
                            for d in visit_days], int)
     visit_days = visit_days[visit_days < met["n_days"]]
