@@ -58,7 +58,8 @@ Run from the repository root (a few minutes a draw)::
 reference respiration constant), ``nodiffuse`` (no diffuse gain), ``nodrought`` (no planted
 rain-free spell), ``noheat`` (no heat wave), ``nobattery`` (no battery cuts), ``nolong`` (no
 analyser failure of days), ``norain`` (no rain gaps), ``nosnowdamp`` (snow does not
-insulate the soil)); ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds
+insulate the soil), ``rasoil`` (the autotrophic part on the respiration driver's
+temperature instead of the air's)); ``--planted-ustar`` runs at the planted threshold; ``--processing`` adds
 lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -140,7 +141,7 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 CO2_G_PER_MOL = 44.01     # (m)
 HPA_PER_INHG = 33.8639    # (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "nohyst", "nodiffuse", "nodrought", "noheat",
-            "nobattery", "nolong", "norain", "nosnowdamp")
+            "nobattery", "nolong", "norain", "nosnowdamp", "rasoil")
 
 
 @dataclass(frozen=True)
@@ -553,7 +554,7 @@ def fluxes(site, idx, met, rng, variant):
             dry_run = 0
         pulse[d] = level
     reco = ((rh_ref * f_w_resp)[day] * f_temp + pulse[day] * f_temp
-            + ra_day[day] * 2.0 ** ((met["tair"] - 15) / 10))
+            + ra_day[day] * 2.0 ** (((temp if "rasoil" in variant else met["tair"]) - 15) / 10))
     return gpp, reco, tsoil, events
 
 
