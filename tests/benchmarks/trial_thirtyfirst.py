@@ -577,27 +577,26 @@ def gaps(site, idx, met, ustar, night, rng, variant):
     vstart = visit_days * per_day + int(9 * steps_h) + rng.integers(0, 2 * steps_h,
                                                                     len(visit_days))
     visit = runs_mask(n, vstart, rng.integers(3, 7, len(visit_days)) * steps_h)
-    rain = np.zeros(n, bool)
-    if "norain" not in variant:
-        r = met["rain"]
-        begin = np.flatnonzero(r & ~np.roll(r, 1))
-        end = np.flatnonzero(r & ~np.roll(r, -1))
-        dry = rng.integers(2, 5, len(begin)) * 30 // site.step           # 1-2 h to dry
-        rain = runs_mask(n, begin, end - begin + 1 + dry)
+    # each mechanism draws its random numbers whether or not a variant switches it off,
+    # so that the others stay where they were
+    r = met["rain"]
+    begin = np.flatnonzero(r & ~np.roll(r, 1))
+    end = np.flatnonzero(r & ~np.roll(r, -1))
+    dry = rng.integers(2, 5, len(begin)) * 30 // site.step               # 1-2 h to dry
+    rain = runs_mask(n, begin, end - begin + 1 + dry) & ("norain" not in variant)
     # battery: after three dull days in the cold half-year the battery runs flat at
     # night and every sensor is off until the panel recharges it the next late morning
     battery = np.zeros(n, bool)
-    if "nobattery" not in variant:
-        dull = pd.Series(met["cover_d"] > 0.75).rolling(3).sum().to_numpy() >= 3
-        cold = met["day_length"] < 10.5
-        for d in np.flatnonzero(dull & cold & (rng.uniform(size=met["n_days"]) < 0.5)):
-            first = d * per_day + int(rng.uniform(20, 23.5) * steps_h)
-            battery[first:first + int(rng.uniform(12, 16) * steps_h)] = True
-        battery = battery[:n]
+    dull = pd.Series(met["cover_d"] > 0.75).rolling(3).sum().to_numpy() >= 3
+    cold = met["day_length"] < 10.5
+    for d in np.flatnonzero(dull & cold & (rng.uniform(size=met["n_days"]) < 0.5)):
+        first = d * per_day + int(rng.uniform(20, 23.5) * steps_h)
+        battery[first:first + int(rng.uniform(12, 16) * steps_h)] = True
+    battery &= "nobattery" not in variant
     long = np.zeros(n, bool)
-    if site.long_fail and "nolong" not in variant:
+    if site.long_fail:
         long = runs_mask(n, [rng.integers(0, n - 21 * per_day)],
-                         [rng.integers(8, 21) * per_day])
+                         [rng.integers(8, 21) * per_day]) & ("nolong" not in variant)
     power = runs_mask(n, [rng.integers(0, n - 8 * per_day)], [rng.integers(3, 8) * per_day])
     lost = {"qc": qc, "visit": visit, "rain": rain, "battery": battery, "long": long,
             "power": power}
