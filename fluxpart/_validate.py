@@ -383,6 +383,23 @@ def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
     IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m): members are files
     named by their paths, in the writer's order, so names order them.
     """
+    series = _tar_series(data)
+    if series is None or series[2] is not None:
+        return None
+    names, parts, _ = series
+    return b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts), names
+
+
+def tar_series_break(data: bytes) -> str | None:
+    """The first table of a tar archive's series (:func:`joined_tar_tables`) whose first
+    line is not the first table's, named with both lines; None where they agree or are
+    no series."""
+    series = _tar_series(data)
+    return None if series is None else series[2]
+
+
+def _tar_series(data: bytes) -> tuple[list, list, str | None] | None:
+    """As :func:`_zip_series`, of a tar archive's tables."""
     import io
     import tarfile
 
@@ -394,11 +411,7 @@ def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
         return None
     with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
         named = [(member.name, archive.extractfile(member).read()) for member in ordered]
-    series = _series_parts(named)
-    if series is None or series[2] is not None:
-        return None
-    names, parts, _ = series
-    return b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts), names
+    return _series_parts(named)
 
 
 def _series_order(files: list, name_of) -> list | None:

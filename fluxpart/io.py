@@ -85,6 +85,7 @@ from ._validate import (
     single_tar_member,
     single_zip_member,
     tar_files,
+    tar_series_break,
     unicode_form_hint,
     universal_head,
 )
@@ -2835,9 +2836,14 @@ def _tar_table(data: bytes, path: Path, compressed: str, joined: list | None = N
                              "to its end: a copy cut short? Copy it again")
     shown = ", ".join(repr(member.name) for member in files[:3])
     more = f" and {len(files) - 3} more" if len(files) > 3 else ""
+    other = tar_series_break(data)
+    # one series of files whose first lines differ: name the file that breaks the layout,
+    # as a zip's refusal does (layouts52)
+    inner = (f" (read one after another where every file opens with the same line: "
+             f"{other}; a changed header?)" if other else "")
     raise InputFileError(f"[input] path: {str(path)!r} is {kind} holding {len(files)} "
-                         f"file(s) ({shown}{more}), not a text table; unpack it and point "
-                         "[input] path at the text file(s)")
+                         f"file(s) ({shown}{more}), not a text table; unpack it{inner} and "
+                         "point [input] path at the text file(s)")
 
 
 def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:

@@ -293,6 +293,17 @@ def cells_written_as_spreadsheet_text_formulas(folder):
 
 
 @case
+def stamps_alone_as_text_formulas_semicolons_decimal_commas(folder):
+    """Only the stamp written ="202101010030" (to keep its digits), in a semicolon file of
+    decimal commas."""
+    raw, _ = table()
+    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.str.replace(".", ",", regex=False))
+    raw["stamp"] = '="' + raw["stamp"] + '"'
+    write(folder / "t.csv", lines(raw, sep=";"))
+    toml(folder, "t.csv", delimiter=";", decimal=",")
+
+
+@case
 def values_below_a_detection_limit(folder):
     """"<0.5" for small night Rg (a sensor's detection limit): refused naming the cell."""
     raw, _ = table()
@@ -436,6 +447,27 @@ def gzipped_tar_of_month_files(folder):
             archive.addfile(info, io.BytesIO(data))
     (folder / "t.tar.gz").write_bytes(buffer.getvalue())
     toml(folder, "t.tar.gz")
+
+
+@case
+def tar_of_daily_files_one_with_a_changed_header(folder):
+    """Daily files in a .tar, the header of day 200 naming air temperature "t_air": not
+    one layout, refused naming the files."""
+    raw, ends = table()
+    day = (ends - pd.Timedelta("30min")).dt.day_of_year.to_numpy()
+    buffer = io.BytesIO()
+    with tarfile.open(fileobj=buffer, mode="w") as archive:
+        for d in range(1, 366):
+            part = raw[day == d]
+            if d == 200:
+                part = part.rename(columns={"air_c": "t_air"})
+            data = ("\n".join(lines(part)) + "\n").encode()
+            info = tarfile.TarInfo(f"day_{d:03d}.csv")
+            info.size, info.mtime = len(data), 0
+            archive.addfile(info, io.BytesIO(data))
+    (folder / "t.tar").write_bytes(buffer.getvalue())
+    toml(folder, "t.tar")
+    return "refused"
 
 
 @case
