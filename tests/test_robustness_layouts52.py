@@ -8,20 +8,25 @@ follows, so ``="0.329"`` is no quoted field; a formula opens with "=" and a stri
 literal stands in double quotes (ECMA-376 Part 1, 18.17 (m)); the ``="..."`` cell that
 keeps a spreadsheet from reformatting text is common practice; zip and tar archives are
 written by Python's ``zipfile`` and ``tarfile`` (the general-purpose references); a PNG
-file opens with its 8-byte signature (PNG specification, 5.2 (m)). Everything else is
+file opens with its 8-byte signature (PNG specification, 5.2 (m)); spreadsheets count
+days from 1899-12-30 (Microsoft, "Date systems in Excel" (m)), checked with Python's
+``datetime``. Everything else is
 invented known truth: the records as written.
 """
 import csv
 import io
 import tarfile
 import zipfile
+from datetime import datetime
 
 import pandas as pd
 import pytest
-from test_robustness_layouts19 import _read, _tower
+from test_robustness_layouts19 import MAPPING, _read, _tower
 
+from fluxpart.counted_time import LATEST_RECORD, reference_mismatch
 from fluxpart.errors import FluxpartError
 from fluxpart.formula_cells import without_text_formulas
+from fluxpart.io import read_table
 
 
 def _clean(tmp_path, records):
@@ -116,3 +121,38 @@ def test_a_tar_of_tables_with_other_headers_stays_refused(tmp_path):
                        r"\(read one after another where every file opens with the same "
                        r"line: 'part2.csv' opens with"):
         _read(tmp_path / "t.tar")
+
+
+def test_counts_read_from_a_wrong_reference_date_are_refused_naming_the_right_one(tmp_path):
+    """Spreadsheet day numbers of the 1900 system (44348 is 2021-06-01, Microsoft, "Date
+    systems in Excel" (m); checked here with Python's datetime, the general-purpose
+    reference) under "days since 1970-01-01" were read as 2091 without a word; now
+    refused naming the reading and the setting that places them."""
+    _, records = _tower()
+    stamps = pd.to_datetime(records["stamp"])
+    serial = (stamps - datetime(1899, 12, 30)) / pd.Timedelta("1D")
+    assert serial.iloc[0] == (datetime(2021, 6, 1, 0, 30) - datetime(1899, 12, 30)).days \
+        + 0.5 / 24 == 44348 + 0.5 / 24
+    records = records.assign(stamp=[f"{v:.6f}" for v in serial])
+    (tmp_path / "serial.csv").write_text(records.to_csv(index=False))
+    with pytest.raises(FluxpartError, match=r"counted from 1970-01-01 the records run from "
+                       r"2091-06-0\d to 2091-06-1\d, after 2077: .*from 1899-12-30 they run "
+                       r"from 2021-06-01 .*time_format = \"days since 1899-12-30\""):
+        read_table(tmp_path / "serial.csv", columns=MAPPING, time_column="stamp",
+                   time_format="days since 1970-01-01", time_marks="end")
+    frame, _ = read_table(tmp_path / "serial.csv", columns=MAPPING, time_column="stamp",
+                          time_format="days since 1899-12-30", time_marks="end")
+    pd.testing.assert_frame_equal(frame, _clean(tmp_path, _tower()[1]))
+
+
+def test_a_count_placing_records_after_the_latest_date_names_the_reference():
+    """Seconds since 1904-01-01 (classic Mac OS and LabVIEW time (m)) of 2021-01-01 00:00
+    read as Unix time land in 2087; a count of this century's records from its own
+    reference passes."""
+    since_1904 = int((datetime(2021, 1, 1) - datetime(1904, 1, 1)).total_seconds())
+    text = pd.Series([str(since_1904 + 1800 * i) for i in range(4)])
+    said = reference_mismatch(text, "seconds since 1970-01-01 00:00:00 UTC")
+    assert said.startswith("counted from 1970-01-01 the records run from 2087-01-0")
+    assert "from 1904-01-01 they run from 2021-01-01 to 2021-01-01" in said
+    assert reference_mismatch(text, "seconds since 1904-01-01 00:00:00 UTC") == ""
+    assert LATEST_RECORD > pd.Timestamp("2070-01-01")

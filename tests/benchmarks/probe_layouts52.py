@@ -277,6 +277,32 @@ def a_line_of_column_numbers_under_a_header_of_unix_seconds(folder):
 
 
 @case
+def unix_milliseconds_declared_as_seconds(folder):
+    """Unix time in milliseconds under "seconds since 1970-01-01": refused, never read."""
+    p38.restamped(folder, lambda ends: [str(v * 1000) for v in (
+        ends - pd.Timedelta("1h") - pd.Timestamp("1970-01-01")) // pd.Timedelta("1s")],
+                  "seconds since 1970-01-01 00:00:00 UTC")
+    return "refused"
+
+
+@case
+def spreadsheet_days_declared_as_days_since_1970(folder):
+    """Spreadsheet day numbers (1900 system) under "days since 1970-01-01" (a copied
+    config): every stamp 70 years late (2091), refused, never read."""
+    p38.restamped(folder, p38.serial_days, "days since 1970-01-01")
+    return "refused"
+
+
+@case
+def minutes_since_the_year_declared_as_hours(folder):
+    """Minutes since 2021-01-01 under "hours since 2021-01-01": 30-hour steps, refused."""
+    p38.restamped(folder, lambda ends: [str(v) for v in (ends - pd.Timestamp("2021-01-01"))
+                                        // pd.Timedelta("1min")],
+                  "hours since 2021-01-01 00:00")
+    return "refused"
+
+
+@case
 def stamp_quoted_with_a_comma_inside(folder):
     """"2021-01-01, 00:30" in double quotes (a comma between date and clock)."""
     p38.restamped(folder, lambda ends: ['"' + s + '"' for s in stamps(ends, "%Y-%m-%d, %H:%M")],
@@ -325,6 +351,14 @@ def vpd_pascals_grouped_by_narrow_no_break_spaces_semicolons(folder):
 def vpd_pascals_grouped_by_apostrophes(folder):
     """"2'263.4" (a Swiss locale's grouping) in a comma file."""
     return pascals(folder, lambda s: s.replace(",", "'"))
+
+
+@case
+def decimal_comma_declared_file_writes_points(folder):
+    """A semicolon file of decimal points under decimal = "," (a copied config): read right
+    (no value holds a comma) or refused, never "0.329" as 329."""
+    with_lines(folder, lambda t: [line.replace(",", ";") for line in t], delimiter=";",
+               decimal=",")
 
 
 @case
