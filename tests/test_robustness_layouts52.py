@@ -1,6 +1,7 @@
 """Layouts of the layouts52 round: cells written as a spreadsheet's text formula
-(``="0.329"``), a picture packed beside the table in a zip, and a tar archive of a
-series of tables with one header.
+(``="0.329"``), a picture packed beside the table in a zip, a tar archive of a series of
+tables with one header, counts of time read from a wrong reference date, and month
+abbreviations in Italian, Dutch and Portuguese.
 
 Outside facts, each named beside its check: a CSV field is quoted only where a double
 quote opens it (RFC 4180, section 2, rules 5-7 (m)), which Python's ``csv`` module
@@ -27,6 +28,7 @@ from fluxpart.counted_time import LATEST_RECORD, reference_mismatch
 from fluxpart.errors import FluxpartError
 from fluxpart.formula_cells import without_text_formulas
 from fluxpart.io import read_table
+from fluxpart.month_words import english_months as english_months_of
 
 
 def _clean(tmp_path, records):
@@ -156,3 +158,22 @@ def test_a_count_placing_records_after_the_latest_date_names_the_reference():
     assert "from 1904-01-01 they run from 2021-01-01 to 2021-01-01" in said
     assert reference_mismatch(text, "seconds since 1904-01-01 00:00:00 UTC") == ""
     assert LATEST_RECORD > pd.Timestamp("2070-01-01")
+
+
+@pytest.mark.parametrize("language, words", [
+    # the abbreviations of the glibc locales it_IT, nl_NL and pt_PT (m)
+    ("Italian", ["gen", "feb", "mar", "apr", "mag", "giu", "lug", "ago", "set", "ott", "nov",
+                 "dic"]),
+    ("Dutch", ["jan", "feb", "mrt", "apr", "mei", "jun", "jul", "aug", "sep", "okt", "nov",
+               "dec"]),
+    ("Portuguese", ["jan", "fev", "mar", "abr", "mai", "jun", "jul", "ago", "set", "out",
+                    "nov", "dez"])])
+def test_italian_dutch_and_portuguese_month_words_are_read(tmp_path, language, words):
+    """Refused before, naming the word ('gen', 'mrt', 'out'); each month's stamps now read
+    as their English abbreviation reads (Python's strptime under %b, the C locale)."""
+    english_months = [datetime(2021, m, 1).strftime("%b") for m in range(1, 13)]
+    stamps = [f"{d:02d}-{w}-2021 {h:02d}:30" for d, w, h in zip(
+        range(1, 13), words, range(12), strict=True)]
+    read = english_months_of(pd.Series(stamps), "%d-%b-%Y %H:%M")
+    assert [s.split("-")[1] for s in read] == english_months, language
+    assert [datetime.strptime(s, "%d-%b-%Y %H:%M").month for s in read] == list(range(1, 13))
