@@ -157,6 +157,11 @@ def test_a_count_placing_records_after_the_latest_date_names_the_reference():
     assert said.startswith("counted from 1970-01-01 the records run from 2087-01-0")
     assert "from 1904-01-01 they run from 2021-01-01 to 2021-01-01" in said
     assert reference_mismatch(text, "seconds since 1904-01-01 00:00:00 UTC") == ""
+    # one count past it among Unix times of 2021 (a typo) is left to the stamp checks,
+    # which name its line
+    unix = int((datetime(2021, 1, 1) - datetime(1970, 1, 1)).total_seconds())
+    typo = pd.Series([str(unix + 1800 * i) for i in range(4)] + ["9e10"])
+    assert reference_mismatch(typo, "seconds since 1970-01-01 00:00:00 UTC") == ""
     assert LATEST_RECORD > pd.Timestamp("2070-01-01")
 
 
