@@ -264,9 +264,13 @@ def _user_files(archive) -> list:
 
 
 #: Documents a data portal packs beside a table (a read-me, the licence, how to cite the
-#: data): by name (the stem, any extension) or by a document format's extension.
+#: data): by name (the stem, any extension) or by a document format's extension; since
+#: layouts52 also a picture (a plot of the records, a photo of the site: PNG, JPEG, GIF,
+#: SVG, TIFF), which holds no table either (a zip of the table and its plot was refused
+#: as "holding 2 file(s)").
 _DOCUMENT_STEMS = ("readme", "read_me", "read-me", "license", "licence", "citation")
-_DOCUMENT_EXTENSIONS = (".pdf", ".md", ".html", ".htm", ".rtf", ".doc", ".docx", ".odt")
+_DOCUMENT_EXTENSIONS = (".pdf", ".md", ".html", ".htm", ".rtf", ".doc", ".docx", ".odt",
+                        ".png", ".jpg", ".jpeg", ".gif", ".svg", ".tif", ".tiff")
 
 
 #: Of those, the extensions no table is written in: a web page (.html, .htm) or a
@@ -358,31 +362,90 @@ def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as archive:
             files = [info for info in _user_files(archive) if not _document(info.filename)]
-            if len(files) < 2 or any(
-                    info.filename in ("[Content_Types].xml", "mimetype")
-                    or info.filename.lower().endswith(_PACKED) for info in files):
+            ordered = _series_order(files, lambda info: info.filename)
+            if ordered is None:
                 return None
-            if len({re.sub(r"\d+", "#", info.filename) for info in files}) != 1:
-                return None
-            # the digits compared as numbers: "day2" before "day10" (names alike but for
-            # their digits, so the other parts of two names stand at the same places)
-            files.sort(key=lambda info: [int(t) if t.isdigit() else t
-                                         for t in re.split(r"(\d+)", info.filename)])
-            parts = [archive.read(info) for info in files]
+            named = [(info.filename, archive.read(info)) for info in ordered]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
             NotImplementedError):
         return None
-    parts = [parts[0]] + [p.removeprefix(codecs.BOM_UTF8) for p in parts[1:]]
+    return _series_parts(named)
+
+
+def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
+    """The tables of a tar archive of several, one after another, and their names; or
+    None: as :func:`joined_zip_tables` joins a zip's (round layouts52: a ``.tar.gz`` of
+    a year's month files, one header, was refused as "holding 12 file(s)"). macOS tar's
+    "._" forks and desktop files are left out (:func:`tar_files`), and so are documents.
+
+    References
+    ----------
+    IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m): members are files
+    named by their paths, in the writer's order, so names order them.
+    """
+    series = _tar_series(data)
+    if series is None or series[2] is not None:
+        return None
+    names, parts, _ = series
+    return b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts), names
+
+
+def tar_series_break(data: bytes) -> str | None:
+    """The first table of a tar archive's series (:func:`joined_tar_tables`) whose first
+    line is not the first table's, named with both lines; None where they agree or are
+    no series."""
+    series = _tar_series(data)
+    return None if series is None else series[2]
+
+
+def _tar_series(data: bytes) -> tuple[list, list, str | None] | None:
+    """As :func:`_zip_series`, of a tar archive's tables."""
+    import io
+    import tarfile
+
+    files = tar_files(data)
+    if files is None:
+        return None
+    ordered = _series_order([m for m in files if not _document(m.name)], lambda m: m.name)
+    if ordered is None:
+        return None
+    with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
+        named = [(member.name, archive.extractfile(member).read()) for member in ordered]
+    return _series_parts(named)
+
+
+def _series_order(files: list, name_of) -> list | None:
+    """An archive's tables (`files`, named by ``name_of(member)``, documents left out) in
+    the order of their names, digits compared as numbers; None where they are fewer than
+    two, one is a workbook's part or packed, or their names differ in more than digits."""
+    if len(files) < 2 or any(
+            name_of(member) in ("[Content_Types].xml", "mimetype")
+            or name_of(member).lower().endswith(_PACKED) for member in files):
+        return None
+    if len({re.sub(r"\d+", "#", name_of(member)) for member in files}) != 1:
+        return None
+    # the digits compared as numbers: "day2" before "day10" (names alike but for their
+    # digits, so the other parts of two names stand at the same places)
+    return sorted(files, key=lambda member: [int(t) if t.isdigit() else t
+                                             for t in re.split(r"(\d+)", name_of(member))])
+
+
+def _series_parts(named: list) -> tuple[list, list, str | None] | None:
+    """(names, contents, the first file whose first line is not the first file's, or
+    None) of an archive's tables `named` ((name, bytes) in order), a UTF-8 mark kept on
+    the first only; None where one is empty, wide (UTF-16, UTF-32) or opens with zeros."""
+    names = [name for name, _ in named]
+    parts = [named[0][1]] + [p.removeprefix(codecs.BOM_UTF8) for _, p in named[1:]]
     if any(p.startswith(_WIDE_MARKS) or not p.strip() for p in parts):
         return None
     first = parts[0].removeprefix(codecs.BOM_UTF8).splitlines()[0]
     if b"\0" in first:
         return None
-    other = next((f"{info.filename!r} opens with {_shown_line(p.splitlines()[0])} where "
-                  f"{files[0].filename!r} opens with {_shown_line(first)}"
-                  for info, p in zip(files[1:], parts[1:], strict=True)
+    other = next((f"{name!r} opens with {_shown_line(p.splitlines()[0])} where "
+                  f"{names[0]!r} opens with {_shown_line(first)}"
+                  for name, p in zip(names[1:], parts[1:], strict=True)
                   if p.splitlines()[0] != first), None)
-    return [info.filename for info in files], parts, other
+    return names, parts, other
 
 
 def _shown_line(line: bytes) -> str:
@@ -498,9 +561,9 @@ def refuse_binary(data: bytes, path) -> None:
                 # a read-me, a licence, a PDF and no table (review55)
                 raise InputFileError(
                     f"[input] path: {str(path)!r} is a zip archive holding documents only "
-                    f"({shown}{more}: a read-me, a licence or a PDF by their names), no table "
-                    "of records; point [input] path at the data file, or at a zip that "
-                    "holds it")
+                    f"({shown}{more}: a read-me, a licence, a PDF or a picture by their "
+                    "names), no table of records; point [input] path at the data file, or "
+                    "at a zip that holds it")
             raise InputFileError(f"[input] path: {str(path)!r} is a zip archive holding "
                                  f"{len(members)} file(s) ({shown}{more}), not a text table; "
                                  f"unpack it{inner} and point [input] path at the text "

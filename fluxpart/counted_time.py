@@ -403,3 +403,76 @@ def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
             f"used that system, set [input] time_format = \"days since {other}\"; read as "
             "set (the setting outweighs a file name), and where the records are of the "
             "years as read, a name that names those years (or none) silences this")
+
+
+#: The latest date a record may carry once counted: 50 years after the release that set
+#: it (0.37.0, December 2026), longer than any release of a reader is used; raise it with
+#: the releases. Stamps past it are a count read from the wrong reference date: a
+#: spreadsheet's 1900-system day numbers read as days since 1970-01-01 land 70 years
+#: late, seconds since 1904-01-01 (classic Mac OS and LabVIEW time (m)) read as Unix
+#: time 66 years late, so any record since 2007 lands past it (layouts52: such a year
+#: was read as 2091 without a word).
+LATEST_RECORD = pd.Timestamp("2077-01-01")
+#: References that count the same unit, by the unit's length in seconds: a
+#: spreadsheet's two day systems (Microsoft, "Date systems in Excel" (m)); Unix time
+#: (POSIX.1), classic Mac OS and LabVIEW time (1904-01-01) and NTP time (1900-01-01,
+#: RFC 5905) (m).
+_KNOWN_REFERENCES = {86400.0: ("1899-12-30", "1904-01-01"),
+                     1.0: ("1970-01-01", "1904-01-01", "1900-01-01"),
+                     1e-3: ("1970-01-01",)}
+
+
+def reference_mismatch(text: pd.Series, time_format: str) -> str:
+    """Why the counts cannot count from `time_format`'s reference date, or ''.
+
+    Parameters
+    ----------
+    text : pandas.Series of str
+        The stamp text per record: numbers counting `time_format`'s unit.
+    time_format : str
+        A "<unit> since <reference>" format (:func:`counted_form`).
+
+    Returns
+    -------
+    str
+        Where the median count, read from the reference, dates a record after
+        :data:`LATEST_RECORD` (a tower records no future): the dates read, and each
+        known reference of the unit (:data:`_KNOWN_REFERENCES`) that places every
+        count before it, with the setting that reads it; '' otherwise (counts beyond
+        some 3000 years are named by :func:`counted_stamps`' caller).
+
+    References
+    ----------
+    CF conventions, section 4.4 (m); Microsoft, "Date systems in Excel" (m); POSIX.1
+    (Unix time) (m); RFC 5905 (NTP time from 1900-01-01) (m).
+    """
+    seconds, reference, _ = counted_form(time_format)
+    numbers = counts(text)
+    numbers = numbers[np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)]
+    if not numbers.size:
+        return ""
+    first, middle, last = (reference + pd.Timedelta(seconds=float(v) * seconds)
+                           for v in (numbers.min(), np.median(numbers), numbers.max()))
+    if middle < LATEST_RECORD:
+        # a few counts past it (a typo, a line of column numbers) are left to the
+        # stamp checks, which name their lines
+        return ""
+    said = (f"counted from {reference:%Y-%m-%d} the records run from {first:%Y-%m-%d} to "
+            f"{last:%Y-%m-%d}, after {LATEST_RECORD:%Y}: a tower records no future, so the "
+            "count has another reference date")
+    written = _FORM.fullmatch(time_format)
+    others = []
+    for other in _KNOWN_REFERENCES.get(seconds, ()):
+        start = pd.Timestamp(other)
+        if start == reference:
+            continue
+        begin = start + pd.Timedelta(seconds=float(numbers.min()) * seconds)
+        end = start + pd.Timedelta(seconds=float(numbers.max()) * seconds)
+        if end < LATEST_RECORD:
+            setting = (time_format[:written.start("date")] + other
+                       + time_format[written.end("date"):])
+            others.append(f"from {other} they run from {begin:%Y-%m-%d} to {end:%Y-%m-%d} "
+                          f"(time_format = {setting_text(setting)})")
+    if not others:
+        return f"{said}: check the reference date of [input] time_format"
+    return f"{said}; " + "; ".join(others) + ": set the one the file counts from"

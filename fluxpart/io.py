@@ -57,6 +57,7 @@ from . import (
     digit_grouping,
     flux_rate_labels,
     footers,
+    formula_cells,
     fortran_numbers,
     header_cells,
     interleaved_lines,
@@ -71,6 +72,7 @@ from . import (
 )
 from ._validate import (
     is_tar,
+    joined_tar_tables,
     joined_zip_tables,
     leading_lines,
     markup_message,
@@ -83,6 +85,7 @@ from ._validate import (
     single_tar_member,
     single_zip_member,
     tar_files,
+    tar_series_break,
     unicode_form_hint,
     universal_head,
 )
@@ -2774,7 +2777,7 @@ _COMPRESSED = ((b"\x1f\x8b", "gzip", gzip), (b"BZh", "bzip2", bz2),
 _COMPRESSION_LAYERS = 3
 
 
-def _decompressed(data: bytes, path: Path) -> bytes:
+def _decompressed(data: bytes, path: Path, joined: list | None = None) -> bytes:
     """The bytes of a gzip-, bzip2- or xz-compressed file decompressed, else `data`.
 
     A compressed text table is the table: read it as the file it holds (by its leading
@@ -2785,14 +2788,17 @@ def _decompressed(data: bytes, path: Path) -> bytes:
     files. A file compressed twice (``.csv.gz.gz``, or a portal's gzip of a
     file already gzipped, or of a zip of one table) is the table too: up to
     :data:`_COMPRESSION_LAYERS` layers are taken off (layouts41; refused before as
-    "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)").
+    "gzip-compressed, not a text table" or "a zip archive holding 1 file(s)"). A tar
+    archive of tables named as one series is read one after another
+    (:func:`fluxpart._validate.joined_tar_tables`, layouts52), their names put in
+    `joined` where given.
     """
     name = ""
     for _ in range(_COMPRESSION_LAYERS):
         if data.startswith(b"PK\x03\x04"):
             data = single_zip_member(data) or data
         if is_tar(data):
-            data = _tar_table(data, path, name)
+            data = _tar_table(data, path, name, joined)
         layer = next(((name, module) for magic, name, module in _COMPRESSED
                       if data.startswith(magic)
                       and (name != "bzip2" or data[4:10] == b"1AY&SY")), None)
@@ -2805,17 +2811,24 @@ def _decompressed(data: bytes, path: Path) -> bytes:
             raise InputFileError(
                 f"input file {str(path)!r} is {name}-compressed but cannot be "
                 f"decompressed ({error}): a copy cut short? Copy it again") from None
-    return _tar_table(data, path, name) if is_tar(data) else data
+    return _tar_table(data, path, name, joined) if is_tar(data) else data
 
 
-def _tar_table(data: bytes, path: Path, compressed: str) -> bytes:
+def _tar_table(data: bytes, path: Path, compressed: str, joined: list | None = None) -> bytes:
     """The one table of the tar archive `data` (:func:`fluxpart._validate.single_tar_member`;
-    `compressed` names the compressor it came out of, "" for none), else an InputFileError
-    naming the files it holds (layouts43: a plain tar was refused for the zero bytes of
-    its headers, a compressed one as an archive of files without naming them)."""
+    `compressed` names the compressor it came out of, "" for none), or its tables named
+    as one series joined (their names added to `joined`, layouts52), else an
+    InputFileError naming the files it holds (layouts43: a plain tar was refused for the
+    zero bytes of its headers, a compressed one as an archive of files without naming
+    them)."""
     table = single_tar_member(data)
     if table is not None:
         return table
+    series = joined_tar_tables(data)
+    if series is not None:
+        if joined is not None:
+            joined.extend(series[1])
+        return series[0]
     kind = f"a {compressed}-compressed tar archive" if compressed else "a tar archive"
     files = tar_files(data)
     if files is None:
@@ -2823,9 +2836,14 @@ def _tar_table(data: bytes, path: Path, compressed: str) -> bytes:
                              "to its end: a copy cut short? Copy it again")
     shown = ", ".join(repr(member.name) for member in files[:3])
     more = f" and {len(files) - 3} more" if len(files) > 3 else ""
+    other = tar_series_break(data)
+    # one series of files whose first lines differ: name the file that breaks the layout,
+    # as a zip's refusal does (layouts52)
+    inner = (f" (read one after another where every file opens with the same line: "
+             f"{other}; a changed header?)" if other else "")
     raise InputFileError(f"[input] path: {str(path)!r} is {kind} holding {len(files)} "
-                         f"file(s) ({shown}{more}), not a text table; unpack it and point "
-                         "[input] path at the text file(s)")
+                         f"file(s) ({shown}{more}), not a text table; unpack it{inner} and "
+                         "point [input] path at the text file(s)")
 
 
 def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
@@ -2860,7 +2878,16 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
                 f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
                 "in the order of their names, digits as numbers (line numbers count the joined "
                 "text)"))
-    data = _decompressed(data, path)
+    members = []
+    data = _decompressed(data, path, members)
+    if members and warnings is not None:
+        # a tar of a day's or a month's file each, one header (layouts52; refused before
+        # as "holding 12 file(s)")
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: a tar archive of {len(members)} tables with the "
+            f"same first line ({members[0]!r} to {members[-1]!r}), read one after another "
+            "in the order of their names, digits as numbers (line numbers count the joined "
+            "text)"))
     typed = typed or {}
     kind = table_formats.binary_kind(data)
     if kind:
@@ -2911,6 +2938,13 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
         warnings.append(ReaderNote(
             f"input file {str(path)!r}: {pages} line(s) opened by a page break (form feed, "
             "U+000C, a paged export's) read without it"))
+    text, formulas = formula_cells.without_text_formulas(text)
+    if formulas and warnings is not None:
+        # cells ="0.329", a spreadsheet's text formula (layouts52; every stamp failed to
+        # parse before, "does not match time_format")
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r}: {formulas} line(s) hold cells written as a "
+            "spreadsheet's text formula (=\"...\"), read as the text between the quotes"))
     nul = text.find("\x00")
     if nul >= 0 and warnings is not None and not text[nul:].strip("\x00"):
         text = _drop_zero_tail(path, text, nul, warnings)

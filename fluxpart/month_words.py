@@ -1,7 +1,8 @@
 """Month names of other languages in stamps read as the English names ``%b``/``%B`` read.
 
-A spreadsheet or logger set to a German, French or Spanish locale writes its month
-abbreviations ("05-Mär-2023", "05-déc.-2023", "05-dic-2023") or names ("5. März 2023");
+A spreadsheet or logger set to a German, French or Spanish locale (since layouts52 an
+Italian, Dutch or Portuguese one too) writes its month abbreviations ("05-Mär-2023",
+"05-déc.-2023", "05-dic-2023", "05-mrt-2023") or names ("5. März 2023");
 ``strptime`` reads only the English ones (the C locale). Where the format reads a month
 by name and every word of letters in the stamps that is no English month is a month of
 one of these languages, the words are written as the English names and read; the
@@ -39,6 +40,21 @@ _MONTH_WORDS = {
                 ("mayo", "may"), ("junio", "jun"), ("julio", "jul"), ("agosto", "ago"),
                 ("septiembre", "setiembre", "sep", "sept", "set"), ("octubre", "oct"),
                 ("noviembre", "nov"), ("diciembre", "dic")),
+    # since layouts52 (refused before, naming the word): Italian, Dutch and Portuguese,
+    # the month names (Treccani; Woordenlijst Nederlandse Taal; Acordo Ortográfico 1990)
+    # and the abbreviations of the glibc locales it_IT, nl_NL and pt_PT/pt_BR (m)
+    "Italian": (("gennaio", "gen"), ("febbraio", "feb"), ("marzo", "mar"), ("aprile", "apr"),
+                ("maggio", "mag"), ("giugno", "giu"), ("luglio", "lug"), ("agosto", "ago"),
+                ("settembre", "set", "sett"), ("ottobre", "ott"), ("novembre", "nov"),
+                ("dicembre", "dic")),
+    "Dutch": (("januari", "jan"), ("februari", "feb"), ("maart", "mrt", "mar"),
+              ("april", "apr"), ("mei",), ("juni", "jun"), ("juli", "jul"),
+              ("augustus", "aug"), ("september", "sep", "sept"), ("oktober", "okt"),
+              ("november", "nov"), ("december", "dec")),
+    "Portuguese": (("janeiro", "jan"), ("fevereiro", "fev"), ("março", "marco", "mar"),
+                   ("abril", "abr"), ("maio", "mai"), ("junho", "jun"), ("julho", "jul"),
+                   ("agosto", "ago"), ("setembro", "set"), ("outubro", "out"),
+                   ("novembro", "nov"), ("dezembro", "dez")),
 }
 
 
@@ -60,7 +76,8 @@ _WORD = re.compile(r"[^\W\d_]+\.?")
 
 
 def english_months(text: pd.Series, time_format: str) -> pd.Series:
-    """Stamps with month words of German, French or Spanish written in English.
+    """Stamps with month words of German, French, Spanish, Italian, Dutch or Portuguese
+    written in English.
 
     Parameters
     ----------

@@ -30,6 +30,7 @@ from .counted_time import (
     counts,
     day_and_fraction,
     day_system_mismatch,
+    reference_mismatch,
     rounded_counts,
     unit_mismatch,
 )
@@ -1378,7 +1379,8 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             # "no number" of the format)
             text = split[0]
             notes.append(ReaderNote(f"{_time_setting(time_columns)} of {source!r}: {split[1]}"))
-        mismatch = rounded_counts(text, time_format) or unit_mismatch(text, time_format)
+        mismatch = (rounded_counts(text, time_format) or unit_mismatch(text, time_format)
+                    or reference_mismatch(text, time_format))
         if mismatch:
             # a count in another unit (milliseconds as seconds): named by its unit, not
             # as stamps beyond 3000 years, 12-hour clocks or 2-second records (review51)

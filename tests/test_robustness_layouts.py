@@ -408,12 +408,13 @@ def test_day_of_year_counted_from_zero_is_named():
 
 
 def test_month_names_of_another_language_are_named():
-    """Italian 'Dic' and 'Gen' under %b: Python's strptime reads the locale's month names,
-    English in the C locale fluxpart runs under (m); a language outside
-    :mod:`fluxpart.month_words` ('Gen' is no month of its tables) is named with the
-    numeric fix (German 'Mär' is read since layouts44)."""
-    text = ["31.Dic.2020 23:30", "01.Gen.2021 00:00"]
-    with pytest.raises(TimestampError, match=r"'Gen' is no English month abbreviation.*%m"):
+    """Spanish 'Dic' and Polish 'Sty' (January (m)) under %b: Python's strptime reads the
+    locale's month names, English in the C locale fluxpart runs under (m); a language
+    outside :mod:`fluxpart.month_words` ('Sty' is no month of its tables) is named with
+    the numeric fix (German 'Mär' is read since layouts44, Italian 'Gen', this test's
+    word before, since layouts52)."""
+    text = ["31.Dic.2020 23:30", "01.Sty.2021 00:00"]
+    with pytest.raises(TimestampError, match=r"'Sty' is no English month abbreviation.*%m"):
         _parse(text, "%d.%b.%Y %H:%M")
 
 
