@@ -5167,7 +5167,7 @@ def f47_nested_copy():
         subprocess.run(["cp", "-r", W / "r0", dest], check=True)
     code, clean, done = _verified(dest)
     record("a result copied twice with cp -r (a copy inside the copy)", code == 1 and clean
-           and "r0/" in done.stdout and "result" in done.stdout.split("r0/", 1)[1][:160],
+           and "r0/" in done.stdout and "result folder of its own" in done.stdout,
            f"exit {code}, {done.stdout.strip()[:260]!r}")
 
 
@@ -5444,14 +5444,15 @@ def f47_windows_zip():
 
 
 def f47_manifest_utf16():
-    """manifest.json re-saved as UTF-16 by a Windows editor: verify and report name the
-    file's encoding in one line (exit 2), not a traceback."""
+    """manifest.json re-saved as UTF-16 by a Windows editor (its text unchanged, as a BOM
+    or CRLF leaves it): verify passes and report draws, no traceback; the manifest's
+    content, under its seal, is what is checked."""
     folder = fresh("utf16_47")
     path = folder / "manifest.json"
     path.write_bytes(path.read_text(encoding="utf-8").encode("utf-16"))
     done = [verify(folder), fp("report", "--quiet", folder)]
     record("manifest.json re-saved as UTF-16: verify, report",
-           all(one_line(d) and "manifest.json" in d.stderr for d in done),
+           all(d.returncode == 0 and "Traceback" not in d.stderr for d in done),
            f"exits {[d.returncode for d in done]}, {_stderr_tail(done[0])}")
 
 
