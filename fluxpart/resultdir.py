@@ -60,11 +60,13 @@ from .manifest import (
     RUN_LOG,
     build_manifest,
     library_versions,
+    lost_manifest_remedy,
     manifest_bytes,
     manifest_text,
     name_in_other_case,
     newer_format_reason,
     read_manifest,
+    result_files_without_manifest,
     seal_intact,
     shown_name,
     undecodable_message,
@@ -657,6 +659,13 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if empty:
         return None
     if not (directory / marker).is_file():
+        lost = result_files_without_manifest(directory) if marker == MANIFEST_FILE else []
+        if lost:
+            shown = ", ".join(lost[:3]) + (", ..." if len(lost) > 3 else "")
+            return (f"holds a result's files ({shown}) but no {marker} (deleted, or left "
+                    "out of a copy?), so it cannot be told to hold a run's whole result and "
+                    f"is not replaced: {lost_manifest_remedy(directory)}, or delete the "
+                    "folder yourself to run into it anew")
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
     unlisted = _unlisted_entries(directory, marker)

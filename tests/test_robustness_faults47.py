@@ -103,3 +103,22 @@ def test_a_stopped_lock_holder_is_named(tmp_path):
         holder.kill()
         holder.wait()
     assert lock_holder(path) is None and os.path.exists(path)
+
+
+def test_a_result_whose_manifest_is_gone_is_named_so(copy, capsys):
+    """manifest.json deleted (a tidy-up of JSON files, a copy that left it out): verify
+    said "is not a fluxpart result folder" and run "holds other files and no
+    manifest.json; it is not a fluxpart result folder", though the folder holds a run's
+    tables and run log. Both now say so and what to do; the folder is still neither
+    verified nor replaced (nothing says the files are a run's whole result)."""
+    out = copy / "out"
+    (out / "manifest.json").unlink()
+    before = sorted(p.name for p in out.iterdir())
+    assert main(["verify", "--quiet", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert len(err.splitlines()) == 1
+    assert "holds a result's files (annual.parquet" in err and "manifest.json is gone" in err
+    assert main(["run", str(copy / "site.toml"), "--out", str(out), "--quiet"]) == 2
+    err = capsys.readouterr().err
+    assert len(err.splitlines()) == 1 and "but no manifest.json (deleted" in err
+    assert sorted(p.name for p in out.iterdir()) == before

@@ -5511,6 +5511,45 @@ def f47_network_through_tar():
            f"exit {code}, {_said(done)}")
 
 
+def f47_manifest_deleted():
+    """manifest.json deleted from a result (a tidy-up of JSON files, a copy that left it
+    out): verify, report and export say the folder holds a result's files whose manifest
+    is gone (one line each, exit 2), and run into it refuses saying the same, the files
+    kept."""
+    folder = fresh("nomanifest47")
+    (folder / "manifest.json").unlink()
+    before = sorted(p.name for p in folder.iterdir())
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "nomanifest47_csv", folder),
+            fp("run", "site.toml", "--out", folder, "--quiet")]
+    record("manifest.json deleted from a result: verify, report, export, run into it",
+           all(one_line(d) and "manifest.json" in d.stderr and "result's files" in d.stderr
+               for d in done) and sorted(p.name for p in folder.iterdir()) == before,
+           f"exits {[d.returncode for d in done]}, {_stderr_tail(done[0])}")
+
+
+def f47_verify_json_zone_locale():
+    """verify --json of one result under UTC and C.UTF-8, and under TZ=Asia/Kolkata with
+    LC_ALL=C: the same bytes (an auditor's script compares them)."""
+    first = fp("verify", "--json", W / "r0")
+    other = fp("verify", "--json", W / "r0", env=dict(ENV, TZ="Asia/Kolkata", LC_ALL="C"))
+    record("verify --json under UTC and under Asia/Kolkata with LC_ALL=C",
+           first.returncode == other.returncode == 0 and first.stdout == other.stdout,
+           f"exits {first.returncode}, {other.returncode}, same {first.stdout == other.stdout}")
+
+
+def f47_diff_of_copies():
+    """diff of a result and its rsync -a / tar --touch copies: "same", exit 0."""
+    seen = []
+    for copy in (W / "rs_a", W / "tar47" / "r0"):
+        if not copy.is_dir():
+            continue
+        done = fp("diff", W / "r0", copy)
+        seen.append((done.returncode, "same:" in done.stdout))
+    record("diff of a result and its rsync and tar copies", bool(seen)
+           and all(code == 0 and same for code, same in seen), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -5599,7 +5638,8 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f47_two_runs_different_inputs, f47_table_of_older_download,
           f47_out_spelled_otherwise, f47_thread_env_garbage, f47_windows_zip,
           f47_manifest_utf16, f47_kill9_first_run_then_commands,
-          f47_input_through_dropped_link, f47_network_through_tar]
+          f47_input_through_dropped_link, f47_network_through_tar, f47_manifest_deleted,
+          f47_verify_json_zone_locale, f47_diff_of_copies]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
