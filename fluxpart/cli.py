@@ -195,6 +195,15 @@ def _enclosing_result(folder: Path) -> Path | None:
     return None
 
 
+def _physical(folder: Path) -> Path:
+    """`folder` with its links and ``..`` resolved as the file system does (as given where
+    a link loop or an unreadable folder stops that)."""
+    try:
+        return folder.resolve()
+    except (OSError, RuntimeError):
+        return folder
+
+
 def _refuse_network_dataset(option: str, given, path: Path) -> None:
     """Refuse to write `path` inside a batch's network dataset folder (rewritten whole by
     every batch: see :func:`fluxpart.network_layout.enclosing_network_dataset`)."""
@@ -296,7 +305,9 @@ def _check_output_folder(out: Path, site_name=None) -> None:
     if reason:
         raise FluxpartError(f"--out {str(out)!r} {reason}; choose another --out")
     _refuse_network_dataset("--out", out, out)
-    enclosing = _enclosing_result(out.parent)
+    # the folder it lands in, not the spelling: 'r/../r' is r itself, not a folder in r
+    # (its lexical parent 'r/..' has r among its own parents; round faults47)
+    enclosing = _enclosing_result(_physical(out.parent))
     if enclosing is not None:
         raise FluxpartError(f"--out {str(out)!r} is inside the result folder "
                             f"{str(enclosing)!r}, which must hold only the files its manifest "

@@ -43,7 +43,8 @@ from pathlib import Path
 from .errors import InputFileError
 
 __all__ = ["CAUTION", "MANIFEST_FILE", "MANIFEST_FORMAT", "REPORT_FOLDER", "RUN_LOG",
-           "build_manifest", "escaped_paths", "library_versions", "manifest_seal", "manifest_text",
+           "build_manifest", "escaped_paths", "library_versions", "lost_manifest_remedy",
+           "manifest_seal", "manifest_text", "result_files_without_manifest",
            "newer_format_reason", "path_entries",
            "name_in_other_case",
            "QUOTED_TEXT", "portable_messages", "portable_provenance", "read_manifest",
@@ -602,6 +603,44 @@ def result_links(manifest: dict) -> dict:
 _STAGING_NAME = re.compile(r"^\.(.+)\.staging-[a-z0-9_]{8}$")
 
 
+def result_files_without_manifest(directory: Path) -> list[str]:
+    """The names of a result's files in `directory` where it has no manifest.json but
+    holds a run's run log, or its time series and annual tables (the manifest deleted by
+    a tidy-up of JSON files, or left out of a copy); ``[]`` otherwise or where the folder
+    cannot be listed.
+
+    Such a folder is a result that lost its seal: "not a fluxpart result folder" (verify,
+    report, export) and "holds other files ... it is not a fluxpart result folder" (run)
+    hid that (round faults47).
+    """
+    directory = Path(directory)
+    try:
+        if (directory / MANIFEST_FILE).exists():
+            return []
+        names = sorted(p.name for p in directory.iterdir() if p.is_file()
+                       and (p.name == RUN_LOG or p.suffix == ".parquet"))
+    except OSError:
+        return []
+    if RUN_LOG in names or {"annual.parquet", "timeseries.parquet"} <= set(names):
+        return names
+    return []
+
+
+def lost_manifest_remedy(directory: Path) -> str:
+    """"put manifest.json back from a copy of the result", naming the folder the run
+    wrote where the run log of `directory` names another one (where a copy may be), for a
+    result folder whose manifest is gone (:func:`result_files_without_manifest`)."""
+    wrote = None
+    try:
+        log = json.loads((Path(directory) / RUN_LOG).read_text(encoding="utf-8"))
+        wrote = log.get("result_folder") if isinstance(log, dict) else None
+    except (OSError, ValueError):
+        pass
+    where = (f" (its run log says the run wrote {wrote!r})"
+             if isinstance(wrote, str) and Path(wrote) != Path(directory).absolute() else "")
+    return f"put {MANIFEST_FILE} back from a copy of the result{where}"
+
+
 def _nearby_result(directory: Path) -> str:
     """A hint naming the result folder next to `directory`: the one whose report page
     folder it is (``out/report``), or the one folder it holds (a bundle of input, site
@@ -616,6 +655,13 @@ def _nearby_result(directory: Path) -> str:
         return (f"; it is the unfinished folder a stopped fluxpart command (run, report) left "
                 f"while writing {str(directory.parent / staged.group(1))!r}, not a result: "
                 "give that folder; the next command writing it removes this one")
+    lost = result_files_without_manifest(directory)
+    if lost:
+        shown = ", ".join(lost[:3]) + (", ..." if len(lost) > 3 else "")
+        return (f"; it holds a result's files ({shown}) but its manifest.json is gone "
+                f"(deleted, or left out of a copy?), and without it nothing in it can be "
+                f"verified or read as a result: {lost_manifest_remedy(directory)}, or run "
+                "again into a new folder")
     try:
         held = sorted(p for p in directory.iterdir() if (p / MANIFEST_FILE).is_file())
     except OSError:

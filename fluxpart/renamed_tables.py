@@ -11,11 +11,12 @@ files its manifest lists, under their names.
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 from .store import file_sha256
 
-__all__ = ["copy_of_table", "renamed_table"]
+__all__ = ["copy_of_table", "copy_tool_temporary", "renamed_table"]
 
 
 def _same_bytes(path: Path, sha256) -> bool:
@@ -78,3 +79,31 @@ def copy_of_table(path: Path, tables: dict) -> str | None:
                 and path.name != file and _same_bytes(path, entry.get("sha256")):
             return file
     return None
+
+
+#: rsync's name for a file it is receiving: the file's name after a dot, a dot and six
+#: letters or digits (``.annual.parquet.Xy12Ab``; rsync(1), its temporary files without
+#: --inplace (m)); left behind where the copy was stopped.
+_RECEIVING = re.compile(r"\.(?P<file>.+)\.[A-Za-z0-9]{6}")
+
+
+def copy_tool_temporary(name: str, files) -> str | None:
+    """The listed file whose copy a copy tool was receiving under `name` when it stopped
+    (rsync's ``.FILE.XXXXXX``), or None; the name alone decides, no file is read.
+
+    Parameters
+    ----------
+    name : str
+        An entry of a result folder that its manifest does not list.
+    files : iterable of str
+        The file names a result folder holds (its tables', manifest.json, run-log.json).
+
+    References
+    ----------
+    rsync(1) manual: a file is received into a temporary file in the destination folder
+    and renamed over the destination's name when complete (m).
+    """
+    match = _RECEIVING.fullmatch(name)
+    if match is None:
+        return None
+    return match["file"] if match["file"] in set(files) else None

@@ -60,17 +60,19 @@ from .manifest import (
     RUN_LOG,
     build_manifest,
     library_versions,
+    lost_manifest_remedy,
     manifest_bytes,
     manifest_text,
     name_in_other_case,
     newer_format_reason,
     read_manifest,
+    result_files_without_manifest,
     seal_intact,
     shown_name,
     undecodable_message,
     undecodable_paths,
 )
-from .renamed_tables import copy_of_table, renamed_table
+from .renamed_tables import copy_of_table, copy_tool_temporary, renamed_table
 from .store import (
     atomic_write_bytes,
     file_sha256,
@@ -88,7 +90,7 @@ from .store import (
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "HeldLock", "check_folder",
            "clean_leftovers", "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
-           "lock_file", "make_staging", "read_folder",
+           "lock_file", "lock_holder", "make_staging", "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 
@@ -279,15 +281,75 @@ def _acquire(lock, directory, path: Path, timeout: float, notify) -> None:
                           "finish or choose another output folder") from None
     say = notify if notify is not None else (
         lambda text: print(text, file=sys.stderr, flush=True))
-    say(f"note: another fluxpart process is writing {str(_absolute(directory))!r}; "
-        f"waiting up to {timeout:g} s for it (lock file {str(path)!r})")
+    say(f"note: another fluxpart process{_holder_words(path)} is writing "
+        f"{str(_absolute(directory))!r}; waiting up to {timeout:g} s for it (lock file "
+        f"{str(path)!r})")
     try:
         lock.acquire(timeout=timeout)
     except Timeout:
+        holder = _holder_words(path)
+        remedy = ("end it or let it finish" if holder
+                  else "if no such process runs, delete the lock file")
         raise OutputError(f"gave up after {timeout:g} s waiting for another fluxpart "
-                          f"process writing {str(_absolute(directory))!r} (lock file "
-                          f"{str(path)!r}); if no such process runs, delete the lock "
-                          "file") from None
+                          f"process{holder} writing {str(_absolute(directory))!r} (lock file "
+                          f"{str(path)!r}); {remedy}") from None
+
+
+def lock_holder(path: Path) -> tuple[int, bool] | None:
+    """The process holding the ``flock`` of the file `path` and whether it is stopped.
+
+    Read from Linux's ``/proc/locks`` (a ``FLOCK`` line naming the process id and the
+    file as ``MAJOR:MINOR:INODE``, the device numbers in hex) and ``/proc/PID/stat``
+    (state ``T`` or ``t``: stopped by a signal, as by Ctrl-Z, or traced); proc(5).
+
+    Returns
+    -------
+    tuple of (int, bool) or None
+        (process id, stopped); None where there is no ``/proc`` (another system), no
+        such line, or the file is gone.
+    """
+    try:
+        info = os.stat(path)
+        lines = Path("/proc/locks").read_text().splitlines()
+    except OSError:
+        return None
+    place = f"{os.major(info.st_dev):02x}:{os.minor(info.st_dev):02x}:{info.st_ino}"
+    for line in lines:
+        # "1: FLOCK  ADVISORY  WRITE 17964 fe:00:2260995 0 EOF" (a blocked waiter's line
+        # reads "1: -> FLOCK ...": not the holder)
+        fields = line.split()
+        if len(fields) >= 6 and fields[1] == "FLOCK" and fields[5] == place \
+                and fields[4].isdigit():
+            pid = int(fields[4])
+            return pid, _stopped(pid)
+    return None
+
+
+def _stopped(pid: int) -> bool:
+    """Whether process `pid` is stopped (``/proc/PID/stat`` state T or t; proc(5))."""
+    try:
+        stat = Path(f"/proc/{pid}/stat").read_text()
+    except OSError:
+        return False
+    after_name = stat.rsplit(")", 1)[-1].split()
+    return bool(after_name) and after_name[0] in ("T", "t")
+
+
+def _holder_words(path: Path) -> str:
+    """" (process N)", or " (process N, stopped: ...)" with how to resume it, where the
+    holder of the lock file `path` can be told (:func:`lock_holder`), else "": a run
+    suspended with Ctrl-Z in another terminal kept the next run waiting its whole
+    timeout, told only that another process was writing (round faults47)."""
+    holder = lock_holder(path)
+    if holder is None:
+        return ""
+    pid, stopped = holder
+    if pid == os.getpid():
+        return ""
+    if stopped:
+        return (f" (process {pid}, stopped: resume it with fg in its terminal or "
+                f"kill -CONT {pid})")
+    return f" (process {pid})"
 
 
 def _names_locked_file(path: Path, locked: os.stat_result) -> bool:
@@ -597,6 +659,13 @@ def replace_refusal(directory, site_name=None, *, marker: str = MANIFEST_FILE,
     if empty:
         return None
     if not (directory / marker).is_file():
+        lost = result_files_without_manifest(directory) if marker == MANIFEST_FILE else []
+        if lost:
+            shown = ", ".join(lost[:3]) + (", ..." if len(lost) > 3 else "")
+            return (f"holds a result's files ({shown}) but no {marker} (deleted, or left "
+                    "out of a copy?), so it cannot be told to hold a run's whole result and "
+                    f"is not replaced: {lost_manifest_remedy(directory)}, or delete the "
+                    "folder yourself to run into it anew")
         return (f"is a folder that holds other files and no {marker}; it is not {kind}, and "
                 "writing would replace it whole")
     unlisted = _unlisted_entries(directory, marker)
@@ -1243,8 +1312,31 @@ def check_folder(directory, manifest: dict) -> list[FolderProblem]:
         problems.append(FolderProblem(path.name + ("/" if path.is_dir() else ""), "extra",
                                       "is not listed in the manifest (the folder must hold "
                                       "exactly the files its manifest lists)"
-                                      + _copy_remedy(directory, copied)))
+                                      + (_copy_remedy(directory, copied)
+                                         or _unlisted_origin(path, tables))))
     return problems
+
+
+def _unlisted_origin(path: Path, tables: dict) -> str:
+    """What made the unlisted entry `path` of a result folder, where its name or content
+    tells, with what to do (or ""): a copy tool's temporary file (an rsync stopped mid-
+    copy: the copy may be incomplete) or a result folder of its own inside this one (``cp
+    -r result dest`` run twice puts the second copy in the first; round faults47)."""
+    files = [entry.get("file") for entry in tables.values() if isinstance(entry, dict)]
+    receiving = copy_tool_temporary(path.name, [*files, MANIFEST_FILE, RUN_LOG])
+    if receiving is not None and path.is_file():
+        return (f"; it is a copy tool's temporary file of {receiving} (an rsync stopped "
+                "while copying it?): the copy may be incomplete, so delete it and copy the "
+                "folder again from where it came")
+    try:
+        inner = path.is_dir() and not path.is_symlink() \
+            and (path / MANIFEST_FILE).is_file()
+    except OSError:
+        inner = False
+    if inner:
+        return ("; it holds a result folder of its own (a copy made into this existing "
+                "folder, as `cp -r` run twice does?): move it out of the folder")
+    return ""
 
 
 def _copy_remedy(directory: Path, copied: str | None) -> str:

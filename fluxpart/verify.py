@@ -1747,6 +1747,15 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                 # faults43); the recorded SHA-256 decides, as for any file found
                 moved.append((path, at_run[number]))
                 path = at_run[number]
+            packed = None if path is None or path.exists() else _packed_beside(
+                path, sha, scratch, number)
+            if packed is not None:
+                notes.append(f"input file: {str(path)!r} is gone, and {packed[0].name!r} "
+                             "beside it holds its recorded bytes compressed (compressed to "
+                             "archive it after the run?); unpacked, they have the recorded "
+                             f"SHA-256 {sha}, and those bytes were rerun")
+                found.append(packed[1])
+                continue
             if path is None or not path.is_file():
                 broken = "" if path is None else broken_link(path)
                 if broken:
@@ -1929,19 +1938,55 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     except OSError:
         return None
     name = path.name
-    if data.startswith(b"\x1f\x8b"):
-        # compressed for the archive (gzip, RFC 1952: magic bytes 1f 8b); the recorded
-        # file may be the text inside, as it is or re-saved
-        try:
-            data = gzip.decompress(data)
-        except (OSError, EOFError, zlib.error):
-            return None
-        name = path.stem if path.suffix.lower() == ".gz" else path.name
+    unpacked = _unpacked(data)
+    if unpacked is not None:
+        # compressed for the archive; the recorded file may be the text inside, as it is
+        # or re-saved
+        data, suffix = unpacked
+        name = path.stem if path.suffix.lower() == suffix else path.name
         if hashlib.sha256(data).hexdigest() == sha:
             return _restored_copy(data, name, scratch, number)
     for converted in _text_variants(data):
         if converted != data and hashlib.sha256(converted).hexdigest() == sha:
             return _restored_copy(converted, name, scratch, number)
+    return None
+
+
+#: The compressions a user applies to a file to archive it, by their magic bytes and the
+#: suffix their tools add: gzip (RFC 1952: 1f 8b), bzip2 ("BZh", Seward's bzip2 file
+#: format (m)) and xz (FD "7zXZ" 00, the .xz file format 1.0.4, Tukaani 2009).
+PACKED_FORMS = ((b"\x1f\x8b", ".gz"), (b"BZh", ".bz2"), (b"\xfd7zXZ\x00", ".xz"))
+
+
+def _unpacked(data: bytes) -> tuple[bytes, str] | None:
+    """(the bytes inside, the tool's suffix) where `data` is one of `PACKED_FORMS`
+    whole, else None (not compressed, or damaged)."""
+    import bz2
+    import lzma
+
+    opened = {".gz": gzip.decompress, ".bz2": bz2.decompress, ".xz": lzma.decompress}
+    for magic, suffix in PACKED_FORMS:
+        if data.startswith(magic):
+            try:
+                return opened[suffix](data), suffix
+            except (OSError, EOFError, ValueError, zlib.error, lzma.LZMAError):
+                return None
+    return None
+
+
+def _packed_beside(path: Path, sha, scratch: Path, number: int):
+    """(the compressed file, the recorded bytes restored from it) where the recorded
+    input `path` is gone and ``NAME.gz``, ``.bz2`` or ``.xz`` beside it holds its bytes
+    exactly (the input compressed to archive it after the run: ``gzip tower.csv``
+    deletes tower.csv), else None. The recorded SHA-256 decides, as for any file found
+    (round faults47: "does not exist; give --input" before, though the bytes were
+    beside it)."""
+    for _, suffix in PACKED_FORMS:
+        packed = path.with_name(path.name + suffix)
+        if packed.is_file():
+            restored = _restored_text(packed, sha, scratch, number)
+            if restored is not None:
+                return packed, restored
     return None
 
 

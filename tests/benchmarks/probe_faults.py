@@ -5090,6 +5090,466 @@ def f56_one_or_two_workers_same_bytes():
            and not differ, f"exits {code1}/{code2}, {len(one)} files, differ {differ[:4]}")
 
 
+# ------------------------------------------------------------------ round faults47
+def _said(done, width=140):
+    return repr((done.stdout + done.stderr).strip()[:width])
+
+
+def _verified(folder, *extra, env=None):
+    """verify's exit status and whether it printed no traceback."""
+    done = verify(folder, *extra, env=env)
+    return done.returncode, "Traceback" not in done.stdout + done.stderr, done
+
+
+def f47_rsync_copies():
+    """A result copied with ``rsync -a`` (times and modes kept) and ``rsync -r`` (neither
+    kept, as onto a share): verify and report pass on each copy."""
+    if shutil.which("rsync") is None:
+        record("rsync -a / -r copies of a result", False, "unprobed: no rsync")
+        return
+    seen = []
+    for option, name in (("-a", "rs_a"), ("-r", "rs_r")):
+        shutil.rmtree(W / name, ignore_errors=True)
+        subprocess.run(["rsync", option, f"{W / 'r0'}/", f"{W / name}/"], check=True)
+        seen.append((verify(W / name).returncode, fp("report", "--quiet", W / name).returncode))
+    record("rsync -a / -r copies of a result: verify, report", seen == [(0, 0), (0, 0)],
+           f"(verify, report) {seen}")
+
+
+def f47_rsync_cut_short():
+    """An ``rsync`` stopped mid-copy leaves its temporary file ``.NAME.XXXXXX`` (a hidden
+    dot, six random letters; rsync(1) --temp-dir, (m)) holding the first bytes of a
+    table: verify fails naming the file and what it is."""
+    folder = fresh("rs_cut")
+    part = folder / ".annual.parquet.Xy12Ab"
+    part.write_bytes((W / "r0" / "annual.parquet").read_bytes()[:3000])
+    code, clean, done = _verified(folder)
+    record("an interrupted rsync's temporary file in a result", code == 1 and clean
+           and part.name in done.stdout and "copy" in done.stdout.split(part.name, 1)[1][:200],
+           f"exit {code}, {done.stdout.strip()[:260]!r}")
+
+
+def f47_tar_touch():
+    """A result through ``tar`` extracted with ``--touch`` and ``--no-same-permissions``
+    (every time now, the extracting user's umask): verify and report pass."""
+    box = W / "tar47"
+    shutil.rmtree(box, ignore_errors=True)
+    box.mkdir()
+    subprocess.run(["tar", "-C", W, "-cf", box / "r.tar", "r0"], check=True)
+    subprocess.run(["tar", "--touch", "--no-same-permissions", "-xf", "r.tar"], cwd=box,
+                   check=True)
+    seen = (verify(box / "r0").returncode, fp("report", "--quiet", box / "r0").returncode)
+    record("a result through tar --touch --no-same-permissions", seen == (0, 0),
+           f"(verify, report) {seen}")
+
+
+def f47_file_manager_litter():
+    """Finder's ``.DS_Store``, AppleDouble ``._annual.parquet``, Explorer's
+    ``Thumbs.db`` and ``desktop.ini`` dropped in a result by a file browser: verify 0
+    (they cost nothing when the folder is replaced)."""
+    folder = fresh("litter47")
+    for name, data in ((".DS_Store", b"\0\0\0\1Bud1"), ("._annual.parquet", b"\0\5\26\7"),
+                       ("Thumbs.db", b"x"), ("desktop.ini", b"[.ShellClassInfo]\r\n")):
+        (folder / name).write_bytes(data)
+    code, clean, done = _verified(folder)
+    rerun = fp("run", "site.toml", "--out", folder, "--quiet")
+    record("file browsers' litter in a result: verify, run over it", code == 0 and clean
+           and rerun.returncode == 0, f"verify {code}, rerun {rerun.returncode} "
+           f"{_stderr_tail(rerun)}")
+
+
+def f47_nested_copy():
+    """``cp -r r0 dest`` done twice: the second copy lands inside the first (dest/r0/).
+    verify of dest fails, naming r0/ and saying it holds a result."""
+    dest = W / "nest47"
+    shutil.rmtree(dest, ignore_errors=True)
+    for _ in range(2):
+        subprocess.run(["cp", "-r", W / "r0", dest], check=True)
+    code, clean, done = _verified(dest)
+    record("a result copied twice with cp -r (a copy inside the copy)", code == 1 and clean
+           and "r0/" in done.stdout and "result folder of its own" in done.stdout,
+           f"exit {code}, {done.stdout.strip()[:260]!r}")
+
+
+def f47_sync_conflict_copies():
+    """A sync client's conflicting copies of a table: Dropbox's "NAME (conflicted copy
+    DATE).parquet" and Syncthing's "NAME.sync-conflict-DATE-TIME-ID.parquet" (their
+    documentation (m)), each another run's table: verify fails naming the file."""
+    seen = []
+    for label, name in (("dropbox", "annual (conflicted copy 2026-12-05).parquet"),
+                        ("syncthing", "annual.sync-conflict-20261205-101500-ABCDEFG.parquet")):
+        folder = fresh(f"sync47_{label}")
+        shutil.copy2(W / "r1" / "annual.parquet", folder / name)
+        code, clean, done = _verified(folder)
+        seen.append((label, code, clean and name in done.stdout))
+    record("a sync client's conflicting copy of a table in a result",
+           all(code == 1 and named for _, code, named in seen), f"{seen}")
+
+
+def f47_manifest_case_changed():
+    """MANIFEST.JSON (a copy through a tool that upper-cases names): verify and report
+    name the rename, one line each."""
+    folder = fresh("case47")
+    (folder / "manifest.json").rename(folder / "MANIFEST.JSON")
+    done = [verify(folder), fp("report", "--quiet", folder)]
+    record("manifest.json renamed MANIFEST.JSON: verify, report",
+           all(one_line(d) and "MANIFEST.JSON" in d.stderr for d in done),
+           f"exits {[d.returncode for d in done]}, {_stderr_tail(done[0])}")
+
+
+def f47_half_hour_zone_c_locale_umask():
+    """run under TZ=Asia/Kolkata (+05:30), LC_ALL=C and umask 077: tables byte-identical
+    to the run under the probe's environment; verify of r0 under the same environment."""
+    env = dict(ENV, TZ="Asia/Kolkata", LC_ALL="C", LANG="C")
+    out = W / "kolkata47"
+    shutil.rmtree(out, ignore_errors=True)
+    done = subprocess.run(["sh", "-c", 'umask 077 && exec "$0" -m fluxpart "$@"', PY, "run",
+                           "site.toml", "--out", out, "--quiet"], env=env, cwd=W / "b",
+                          capture_output=True, text=True, timeout=300)
+    code, clean, _ = _verified(W / "r0", env=env)
+    record("run and verify under TZ=Asia/Kolkata, LC_ALL=C, umask 077",
+           done.returncode == 0 and table_digests(out) == table_digests(W / "r0")
+           and code == 0, f"run {done.returncode}, verify {code}, same bytes "
+           f"{table_digests(out) == table_digests(W / 'r0')}")
+
+
+def f47_python_flags():
+    """PYTHONWARNINGS=error (a site's hardened environment) and PYTHONOPTIMIZE=2 (asserts
+    and docstrings stripped): run, verify, report, export byte-identical / 0."""
+    seen = {}
+    for label, extra in (("warnings error", {"PYTHONWARNINGS": "error"}),
+                         ("optimize 2", {"PYTHONOPTIMIZE": "2"})):
+        env = dict(ENV, **extra)
+        out = W / f"pyflags47_{label.split()[0]}"
+        shutil.rmtree(out, ignore_errors=True)
+        shutil.rmtree(out.with_name(out.name + "_csv"), ignore_errors=True)
+        codes = [fp("run", "site.toml", "--out", out, "--quiet", env=env).returncode,
+                 verify(out, env=env).returncode,
+                 fp("report", "--quiet", out, env=env).returncode,
+                 fp("export", "--csv", out.with_name(out.name + "_csv"), out,
+                    env=env).returncode]
+        seen[label] = (codes, table_digests(out) == table_digests(W / "r0"))
+    record("PYTHONWARNINGS=error and PYTHONOPTIMIZE=2: run, verify, report, export",
+           all(codes == [0, 0, 0, 0] and same for codes, same in seen.values()), f"{seen}")
+
+
+def _own_copy(name):
+    """A bundle and its result of its own under W/name (b/, r/): for faults that edit
+    the input or the site config after the run."""
+    base = W / name
+    shutil.rmtree(base, ignore_errors=True)
+    (base / "b").mkdir(parents=True)
+    for file in ("site.toml", "tower.csv"):
+        shutil.copy2(W / "b" / file, base / "b" / file)
+    assert fp("run", "site.toml", "--out", base / "r", "--quiet", cwd=base / "b").returncode == 0
+    return base
+
+
+def f47_config_edited_after_run():
+    """The site config after the run: a comment added, re-saved with CRLF by a git
+    checkout, renamed, deleted. verify passes each with a note (the manifest keeps the
+    config's text; the file only finds the input)."""
+    seen = []
+    for label, edit in (("comment", lambda p: p.write_text(p.read_text() + "# checked\n")),
+                        ("crlf", lambda p: p.write_bytes(p.read_bytes().replace(b"\n",
+                                                                                 b"\r\n"))),
+                        ("renamed", lambda p: p.rename(p.with_name("site-2021.toml"))),
+                        ("deleted", lambda p: p.unlink())):
+        base = _own_copy(f"cfg47_{label}")
+        edit(base / "b" / "site.toml")
+        done = fp("verify", base / "r")
+        seen.append((label, done.returncode, "note: site config" in done.stdout))
+    record("the site config edited, re-saved CRLF, renamed, deleted after the run",
+           all(code == 0 and noted for _, code, noted in seen), f"{seen}")
+
+
+def f47_input_touched():
+    """The input touched (mtime 2030, bytes unchanged): verify 0 and run again
+    byte-identical."""
+    base = _own_copy("touch47")
+    stamp = time.mktime((2030, 1, 1, 0, 0, 0, 0, 0, 0))
+    os.utime(base / "b" / "tower.csv", (stamp, stamp))
+    code, clean, _ = _verified(base / "r")
+    again = fp("run", "site.toml", "--out", base / "r", "--quiet", cwd=base / "b")
+    record("the input touched (dated 2030, bytes unchanged): verify, rerun",
+           code == 0 and again.returncode == 0
+           and table_digests(base / "r") == table_digests(W / "r0"),
+           f"verify {code}, rerun {again.returncode}")
+
+
+def f47_input_compressed_after_run():
+    """The input compressed after the run to save room (``gzip tower.csv``, ``xz``,
+    ``bzip2``: the recorded name gone, NAME.gz beside it): verify finds it, checks its
+    unpacked bytes against the recorded SHA-256 and passes with a note."""
+    seen = []
+    for tool, suffix in (("gzip", ".gz"), ("xz", ".xz"), ("bzip2", ".bz2")):
+        if shutil.which(tool) is None:
+            continue
+        base = _own_copy(f"packed47_{tool}")
+        subprocess.run([tool, base / "b" / "tower.csv"], check=True)
+        done = fp("verify", base / "r")
+        seen.append((tool, done.returncode, f"tower.csv{suffix}" in done.stdout))
+    record("the input compressed after the run (gzip, xz, bzip2)",
+           bool(seen) and all(code == 0 and named for _, code, named in seen), f"{seen}")
+
+
+def f47_input_compressed_and_changed():
+    """As above, but the compressed file holds other data (another seed's input): verify
+    does not take it (exit 2, naming the recorded file), nothing recomputed."""
+    base = _own_copy("packed47_other")
+    other = base / "b" / "tower.csv"
+    text = other.read_text().splitlines(keepends=True)
+    other.write_text("".join(text[:-48]))       # a day fewer: another download
+    subprocess.run(["gzip", other], check=True)
+    done = fp("verify", base / "r")
+    record("the input replaced by another file's gzip after the run", one_line(done)
+           and "tower.csv" in done.stderr, f"exit {done.returncode}, {_stderr_tail(done)}")
+
+
+def _wait_for(check, seconds=120):
+    deadline = time.time() + seconds
+    while time.time() < deadline and not check():
+        time.sleep(0.01)
+    return check()
+
+
+def f47_stopped_lock_holder():
+    """A run suspended (SIGSTOP, as Ctrl-Z in another terminal) while it holds the
+    folder's lock; a second run into the folder waits, naming the holder's process and
+    that it is stopped; after SIGCONT both finish and the folder holds one whole result."""
+    out = fresh("stopped47")
+    first = start("run", "seed1.toml", "--out", out, "--quiet")
+    _wait_for(lambda: _entries(W, ".stopped47.staging-"))
+    first.send_signal(signal.SIGSTOP)
+    second = start("run", "site.toml", "--out", out, "--quiet")
+    time.sleep(8)                           # the second run meets the lock and waits
+    first.send_signal(signal.SIGCONT)
+    out1, err1 = first.communicate(timeout=300)
+    out2, err2 = second.communicate(timeout=300)
+    whole = table_digests(out) in (table_digests(W / "r0"), table_digests(W / "r1"))
+    named = str(first.pid) in err2 and "stopped" in err2
+    record("a run suspended with the lock, a second run into the folder",
+           first.returncode == 0 and second.returncode == 0 and whole and named
+           and verify(out).returncode == 0 and not leftovers(W),
+           f"exits {first.returncode}, {second.returncode}, whole {whole}, "
+           f"second said {err2.strip()[:200]!r}")
+
+
+def f47_lock_deleted_while_stopped():
+    """The lock file deleted by hand while its holder is suspended (as the waiting
+    run's message once told), a second run finishes, then the first continues: one
+    whole result, verify 0, no leftovers."""
+    out = fresh("lockdel47")
+    first = start("run", "seed1.toml", "--out", out, "--quiet")
+    _wait_for(lambda: _entries(W, ".lockdel47.staging-"))
+    first.send_signal(signal.SIGSTOP)
+    lock = W / ".lockdel47.lock"
+    if lock.exists():
+        lock.unlink()
+    second = fp("run", "site.toml", "--out", out, "--quiet")
+    first.send_signal(signal.SIGCONT)
+    first.communicate(timeout=300)
+    whole = table_digests(out) in (table_digests(W / "r0"), table_digests(W / "r1"))
+    record("the lock file deleted while its holder is stopped; a second run, then the first",
+           whole and verify(out).returncode == 0 and not leftovers(W),
+           f"exits {first.returncode}, {second.returncode}, whole {whole}, "
+           f"left {leftovers(W)}")
+
+
+def f47_two_runs_different_inputs():
+    """Two runs of different input files (the bundle and one cut a week short) at once
+    into one new folder: exit 0 both, one whole result that verifies."""
+    short = W / "b" / "tower_short.csv"
+    lines = (W / "b" / "tower.csv").read_text().splitlines(keepends=True)
+    short.write_text("".join(lines[: len(lines) - 7 * 48]))
+    (W / "b" / "short.toml").write_text((W / "b" / "site.toml").read_text()
+                                        .replace('"tower.csv"', '"tower_short.csv"'))
+    out = W / "diffin47"
+    shutil.rmtree(out, ignore_errors=True)
+    procs = [start("run", "site.toml", "--out", out, "--quiet"),
+             start("run", "short.toml", "--out", out, "--quiet")]
+    errs = [p.communicate(timeout=300)[1] for p in procs]
+    code, clean, _ = _verified(out)
+    record("two runs of different inputs at once into one folder",
+           [p.returncode for p in procs] == [0, 0] and code == 0 and not leftovers(W),
+           f"exits {[p.returncode for p in procs]}, verify {code}, "
+           f"{[e.strip()[-80:] for e in errs]}")
+
+
+def f47_table_of_older_download():
+    """A table replaced by the same table of a run on an earlier download of the input
+    (a week fewer records, same config): verify fails naming the table."""
+    base = _own_copy("olddl47")
+    older = W / "olddl47" / "older"
+    lines = (base / "b" / "tower.csv").read_text().splitlines(keepends=True)
+    (base / "b" / "tower.csv").write_text("".join(lines[: len(lines) - 7 * 48]))
+    assert fp("run", "site.toml", "--out", older, "--quiet", cwd=base / "b").returncode == 0
+    shutil.copy2(W / "b" / "tower.csv", base / "b" / "tower.csv")
+    shutil.copy2(older / "daily.parquet", base / "r" / "daily.parquet")
+    code, clean, done = _verified(base / "r")
+    record("a table replaced by the run's of an earlier download", code == 1 and clean
+           and "daily.parquet" in done.stdout, f"exit {code}, {done.stdout.strip()[:160]!r}")
+
+
+def f47_out_spelled_otherwise():
+    """--out given as ``r/``, ``./r/../r/`` and ``r//``: the one folder replaced each
+    time, no leftovers beside it, verify 0."""
+    parent = W / "spell47"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    codes = [fp("run", "site.toml", "--out", spelled, "--quiet").returncode
+             for spelled in (f"{parent}/r/", f"{parent}/./r/../r/", f"{parent}//r//")]
+    names = sorted(p.name for p in parent.iterdir())
+    record("--out spelled r/, ./r/../r/, r//", codes == [0, 0, 0] and names == ["r"]
+           and verify(parent / "r").returncode == 0, f"exits {codes}, folder {names}")
+
+
+def f47_thread_env_garbage():
+    """Thread-count variables set to nonsense by a site's login script (OMP_NUM_THREADS=0,
+    OPENBLAS_NUM_THREADS=abc, MKL_NUM_THREADS=-1) and a locale that is not installed
+    (LC_ALL=xx_XX.UTF-8): run byte-identical, verify 0, no traceback."""
+    env = dict(ENV, OMP_NUM_THREADS="0", OPENBLAS_NUM_THREADS="abc", MKL_NUM_THREADS="-1",
+               LC_ALL="xx_XX.UTF-8")
+    out = W / "threads47"
+    shutil.rmtree(out, ignore_errors=True)
+    done = fp("run", "site.toml", "--out", out, "--quiet", env=env)
+    code, clean, _ = _verified(out, env=env)
+    record("thread counts 0, abc, -1 and an uninstalled locale: run, verify",
+           done.returncode == 0 and code == 0 and clean and "Traceback" not in done.stderr
+           and table_digests(out) == table_digests(W / "r0"),
+           f"run {done.returncode}, verify {code}, {_stderr_tail(done)}")
+
+
+def f47_windows_zip():
+    """A result zipped as Windows' "Send to > Compressed folder" does (backslashes in
+    the member names, no Unix modes, DOS times) and unpacked with unzip: verify 0."""
+    import zipfile
+    box = W / "winzip47"
+    shutil.rmtree(box, ignore_errors=True)
+    box.mkdir()
+    with zipfile.ZipFile(box / "r0.zip", "w", zipfile.ZIP_DEFLATED) as archive:
+        for path in sorted((W / "r0").rglob("*")):
+            if path.is_file():
+                info = zipfile.ZipInfo("r0\\" + str(path.relative_to(W / "r0"))
+                                       .replace("/", "\\"), (2026, 12, 5, 10, 0, 0))
+                info.create_system = 0      # MS-DOS: no Unix modes
+                archive.writestr(info, path.read_bytes())
+    if shutil.which("unzip") is None:
+        record("a Windows zip of a result", False, "unprobed: no unzip")
+        return
+    subprocess.run(["unzip", "-q", "r0.zip"], cwd=box, capture_output=True)
+    code, clean, done = _verified(box / "r0")
+    record("a result through a Windows zip (backslash names, no modes)", code == 0 and clean,
+           f"exit {code}, {sorted(p.name for p in box.iterdir())}")
+
+
+def f47_manifest_utf16():
+    """manifest.json re-saved as UTF-16 by a Windows editor (its text unchanged, as a BOM
+    or CRLF leaves it): verify passes and report draws, no traceback; the manifest's
+    content, under its seal, is what is checked."""
+    folder = fresh("utf16_47")
+    path = folder / "manifest.json"
+    path.write_bytes(path.read_text(encoding="utf-8").encode("utf-16"))
+    done = [verify(folder), fp("report", "--quiet", folder)]
+    record("manifest.json re-saved as UTF-16: verify, report",
+           all(d.returncode == 0 and "Traceback" not in d.stderr for d in done),
+           f"exits {[d.returncode for d in done]}, {_stderr_tail(done[0])}")
+
+
+def f47_kill9_first_run_then_commands():
+    """kill -9 of a first run into a new folder as it writes: report, export and verify
+    of --out each one error line, exit 2; the next run recovers, no leftovers."""
+    out = W / "first47"
+    shutil.rmtree(out, ignore_errors=True)
+    proc = start("run", "site.toml", "--out", out, "--quiet")
+    _wait_for(lambda: any(p.is_dir() and any(p.iterdir())
+                          for p in _entries(W, ".first47.staging-")))
+    proc.kill()
+    proc.communicate(timeout=60)
+    done = [verify(out), fp("report", "--quiet", out), fp("export", "--csv", W / "first47_csv",
+                                                           out)]
+    again = fp("run", "site.toml", "--out", out, "--quiet")
+    record("kill -9 of a first run; verify, report, export of --out; rerun",
+           all(one_line(d) for d in done) and again.returncode == 0
+           and not (W / "first47_csv").exists() and not leftovers(W)
+           and verify(out).returncode == 0,
+           f"exits {[d.returncode for d in done]}, rerun {again.returncode}, "
+           f"left {leftovers(W)}")
+
+
+def f47_input_through_dropped_link():
+    """The input's folder reached through a link (``data -> disk2/b``), --out inside it;
+    then the link removed and the real folder used: verify of the result passes (the
+    input is found relative to the result)."""
+    base = W / "link47"
+    shutil.rmtree(base, ignore_errors=True)
+    real = base / "disk2" / "b"
+    real.mkdir(parents=True)
+    for file in ("site.toml", "tower.csv"):
+        shutil.copy2(W / "b" / file, real / file)
+    (base / "data").symlink_to(real)
+    done = fp("run", base / "data" / "site.toml", "--out", base / "data" / "r", "--quiet",
+              cwd=base)
+    (base / "data").unlink()
+    code, clean, said = _verified(real / "r")
+    record("input and result reached through a link, the link then removed",
+           done.returncode == 0 and code == 0, f"run {done.returncode}, verify {code}, "
+           f"{said.stdout.strip()[:120]!r}{_stderr_tail(said)}")
+
+
+def f47_network_through_tar():
+    """A batch output folder through tar with --touch: verify of the network passes."""
+    _net45()
+    box = NET45 / "tar47"
+    shutil.rmtree(box, ignore_errors=True)
+    box.mkdir()
+    subprocess.run(["tar", "-C", NET45, "-cf", box / "n.tar", "out"], check=True)
+    subprocess.run(["tar", "--touch", "--no-same-permissions", "-xf", "n.tar"], cwd=box,
+                   check=True)
+    code, clean, done = _verified(box / "out")
+    record("a network folder through tar --touch: verify", code == 0 and clean,
+           f"exit {code}, {_said(done)}")
+
+
+def f47_manifest_deleted():
+    """manifest.json deleted from a result (a tidy-up of JSON files, a copy that left it
+    out): verify, report and export say the folder holds a result's files whose manifest
+    is gone (one line each, exit 2), and run into it refuses saying the same, the files
+    kept."""
+    folder = fresh("nomanifest47")
+    (folder / "manifest.json").unlink()
+    before = sorted(p.name for p in folder.iterdir())
+    done = [verify(folder), fp("report", "--quiet", folder),
+            fp("export", "--csv", W / "nomanifest47_csv", folder),
+            fp("run", "site.toml", "--out", folder, "--quiet")]
+    record("manifest.json deleted from a result: verify, report, export, run into it",
+           all(one_line(d) and "manifest.json" in d.stderr and "result's files" in d.stderr
+               for d in done) and sorted(p.name for p in folder.iterdir()) == before,
+           f"exits {[d.returncode for d in done]}, {_stderr_tail(done[0])}")
+
+
+def f47_verify_json_zone_locale():
+    """verify --json of one result under UTC and C.UTF-8, and under TZ=Asia/Kolkata with
+    LC_ALL=C: the same bytes (an auditor's script compares them)."""
+    first = fp("verify", "--json", W / "r0")
+    other = fp("verify", "--json", W / "r0", env=dict(ENV, TZ="Asia/Kolkata", LC_ALL="C"))
+    record("verify --json under UTC and under Asia/Kolkata with LC_ALL=C",
+           first.returncode == other.returncode == 0 and first.stdout == other.stdout,
+           f"exits {first.returncode}, {other.returncode}, same {first.stdout == other.stdout}")
+
+
+def f47_diff_of_copies():
+    """diff of a result and its rsync -a / tar --touch copies: "same", exit 0."""
+    seen = []
+    for copy in (W / "rs_a", W / "tar47" / "r0"):
+        if not copy.is_dir():
+            continue
+        done = fp("diff", W / "r0", copy)
+        seen.append((done.returncode, "same:" in done.stdout))
+    record("diff of a result and its rsync and tar copies", bool(seen)
+           and all(code == 0 and same for code, same in seen), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -5168,13 +5628,24 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f46_mtimes_rounded, f46_out_below_link_loop, f46_network_site_input_missing,
           f46_diff_residue,
           # round network56
-          f56_verify_batch_stopped_before_its_seal, f56_one_or_two_workers_same_bytes]
+          f56_verify_batch_stopped_before_its_seal, f56_one_or_two_workers_same_bytes,
+          # round faults47
+          f47_rsync_copies, f47_rsync_cut_short, f47_tar_touch, f47_file_manager_litter,
+          f47_nested_copy, f47_sync_conflict_copies, f47_manifest_case_changed,
+          f47_half_hour_zone_c_locale_umask, f47_python_flags, f47_config_edited_after_run,
+          f47_input_touched, f47_input_compressed_after_run, f47_input_compressed_and_changed,
+          f47_stopped_lock_holder, f47_lock_deleted_while_stopped,
+          f47_two_runs_different_inputs, f47_table_of_older_download,
+          f47_out_spelled_otherwise, f47_thread_env_garbage, f47_windows_zip,
+          f47_manifest_utf16, f47_kill9_first_run_then_commands,
+          f47_input_through_dropped_link, f47_network_through_tar, f47_manifest_deleted,
+          f47_verify_json_zone_locale, f47_diff_of_copies]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
-    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_", "f56_"))]
+    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_", "f47_", "f56_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
