@@ -562,7 +562,7 @@ def _command_check(args) -> int:
         problems += list(thresholds.attrs.get("setting_notes", ()))
         problems += [f"{text} (run stops)" for text in thresholds.attrs.get("e0_stops", ())]
     from .settings_notes import ignored_settings
-    from .year_start_season import day_first_year_start
+    from .year_start_season import calendar_year_in_the_south, day_first_year_start
 
     problems += ignored_settings(config)
     order = day_first_year_start(config.year_start)
@@ -573,6 +573,10 @@ def _command_check(args) -> int:
     text += _follow_on_note(report.unit_refusals, clock_problems if refuse else (),
                             len(problems) + len(report.warnings),
                             () if refuse else clock_problems)
+    # a fact of the setting, no problem: a note, exit status unchanged (leftovers58)
+    south = calendar_year_in_the_south(config.year_start, site_config.site.latitude,
+                                       Config().year_start)
+    text += f"note: {south}\n" if south else ""
     print(text)
     print(_format_clock(verdict))
     if counts is not None:
