@@ -573,10 +573,12 @@ def _command_check(args) -> int:
     text += _follow_on_note(report.unit_refusals, clock_problems if refuse else (),
                             len(problems) + len(report.warnings),
                             () if refuse else clock_problems)
-    # a fact of the setting, no problem: a note, exit status unchanged (leftovers58)
-    south = calendar_year_in_the_south(config.year_start, site_config.site.latitude,
-                                       Config().year_start)
-    text += f"note: {south}\n" if south else ""
+    # a fact of the setting, no problem: a note apart, exit status unchanged; not where
+    # Rg says the site lies in the other hemisphere (a latitude of the wrong sign)
+    south = (None if verdict is not None and verdict.hemisphere == "mismatch" else
+             calendar_year_in_the_south(config.year_start, site_config.site.latitude,
+                                        Config().year_start))
+    text += f"\nnote: {south}\n" if south else ""
     print(text)
     print(_format_clock(verdict))
     if counts is not None:

@@ -70,6 +70,10 @@ class SealMismatch(InputFileError):
         self.problem = problem
         self.remedy = remedy
 
+    def __reduce__(self):
+        # pickled whole (a Dask worker's error travels to the batch process)
+        return type(self), (self.problem, self.remedy)
+
 
 def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
     """Refuse network files that do not match :data:`NETWORK_SEAL` or their site folders.

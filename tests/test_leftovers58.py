@@ -129,7 +129,14 @@ def test_calendar_years_south_of_the_tropics_get_a_check_note_only(checked):
     assert status == 0 and len(note) == 1 and 'year_start = "07-01"' in note[0]
     assert "34.5° S" in note[0]
     _agree(status, out)
+    assert "\n\nnote: budget year:" in out                  # apart from the problems
     assert "note: budget year" not in checked()[1]           # 49.3° N: the example
+    # Rg says the other hemisphere (a latitude of the wrong sign): the geometry's problem
+    # is named, not the south's budget year
+    wrong = dataclasses.replace(_verdict(["site geometry: Rg peaks in June"]),
+                                hemisphere="mismatch", status="hemisphere")
+    status, out = checked(verdict=wrong, latitude=-34.5)
+    assert status == 1 and "note: budget year" not in out
     assert TROPIC_LATITUDE == pytest.approx(23.44, abs=0.01)
     assert calendar_year_in_the_south("01-01", -23.0) is None
     assert calendar_year_in_the_south("01-01", -23.5) is not None

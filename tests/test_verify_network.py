@@ -8,6 +8,7 @@ for the ``--json`` object, and the exit statuses the command documents.
 """
 
 import json
+import pickle
 import shutil
 
 import pandas as pd
@@ -270,6 +271,8 @@ def test_the_seal_problem_is_kept_apart_from_its_remedy(network, tmp_path, monke
         network_table(out, "daily")
     error = refused.value
     assert str(error) == f"{error.problem}; {error.remedy}"
+    again = pickle.loads(pickle.dumps(error))          # as an error travels between processes
+    assert (str(again), again.problem, again.remedy) == (str(error), error.problem, error.remedy)
     assert error.remedy == network_tables.RERUN and "run the batch again" in error.remedy
     monkeypatch.setattr(network_tables, "RERUN", "write the tables anew with a batch")
     monkeypatch.setattr(module, "verify", lambda folder, exact=False: _Judged(0))
