@@ -573,7 +573,7 @@ def _command_check(args) -> int:
         problems += list(thresholds.attrs.get("setting_notes", ()))
         problems += [f"{text} (run stops)" for text in thresholds.attrs.get("e0_stops", ())]
     from .settings_notes import ignored_settings
-    from .year_start_season import day_first_year_start
+    from .year_start_season import calendar_year_in_the_south, day_first_year_start
 
     problems += ignored_settings(config)
     order = day_first_year_start(config.year_start)
@@ -584,6 +584,12 @@ def _command_check(args) -> int:
     text += _follow_on_note(report.unit_refusals, clock_problems if refuse else (),
                             len(problems) + len(report.warnings),
                             () if refuse else clock_problems)
+    # a fact of the setting, no problem: a note apart, exit status unchanged; not where
+    # Rg says the site lies in the other hemisphere (a latitude of the wrong sign)
+    south = (None if verdict is not None and verdict.hemisphere == "mismatch" else
+             calendar_year_in_the_south(config.year_start, site_config.site.latitude,
+                                        Config().year_start))
+    text += f"\nnote: {south}\n" if south else ""
     print(text)
     print(_format_clock(verdict))
     if counts is not None:

@@ -108,6 +108,7 @@ from .errors import (
     UnitError,
     read_fault_remedy,
 )
+from .file_digest import sha256_of_file
 from .fixed_width import delimited, fused_header_names, run_together_field
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
@@ -2462,14 +2463,10 @@ def _cannot_read(path: Path, error: OSError) -> str:
 def _file_sha256(path: Path) -> str:
     """SHA-256 of an input file; a missing or unreadable file is an `InputFileError`."""
     _require_input_file(Path(path))
-    digest = hashlib.sha256()
     try:
-        with open(path, "rb") as handle:
-            for block in iter(lambda: handle.read(1 << 20), b""):
-                digest.update(block)
+        return sha256_of_file(path)
     except OSError as error:
         raise InputFileError(_cannot_read(path, error)) from None
-    return digest.hexdigest()
 
 
 def _beside_link_target(config: Path, input_paths) -> None:

@@ -31,7 +31,7 @@ from .store import (
     unreadable,
 )
 
-__all__ = ["FAILURES_FILE", "failed_sites", "network_table", "read_network",
+__all__ = ["FAILURES_FILE", "RERUN", "SealMismatch", "failed_sites", "network_table", "read_network",
            "read_network_annual"]
 
 #: Index column of each budget table, the network dataset's sort key after ``site``.
@@ -41,6 +41,38 @@ FAILURES_FILE = "failures.parquet"
 #: The network datasets' partition column (``site=<key>`` folders).
 NETWORK_SITE_DESCRIPTION = ("site key (the result folder's name); the partition key of the "
                             "dataset, from its site=<key> folder, not a column of the files")
+
+
+#: The remedy of a batch output folder whose network files do not match their seal.
+RERUN = ("run the batch again, which skips the sites up to date and rewrites the network "
+         "tables whole")
+
+
+class SealMismatch(InputFileError):
+    """Network files, ``failures.parquet`` or a site's manifest not as ``network.json``
+    seals them (or the seal damaged or incomplete): the problem and its remedy apart.
+
+    The message is ``"<problem>; <remedy>"``, as before. ``verify`` of a batch output
+    folder reports the problem alone (the remedy, a new batch, would overwrite what an
+    auditor must see); it cut the message at the remedy's words, which a rewording of
+    either would have broken without a sign (round leftovers58).
+
+    Attributes
+    ----------
+    problem : str
+        What does not match the seal, naming the file or folder.
+    remedy : str
+        What to do (:data:`RERUN`).
+    """
+
+    def __init__(self, problem: str, remedy: str):
+        super().__init__(f"{problem}; {remedy}")
+        self.problem = problem
+        self.remedy = remedy
+
+    def __reduce__(self):
+        # pickled whole (a Dask worker's error travels to the batch process)
+        return type(self), (self.problem, self.remedy)
 
 
 def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
@@ -53,8 +85,6 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
     path = out / NETWORK_SEAL
     if not path.exists():
         return
-    rerun = "run the batch again, which skips the sites up to date and rewrites the " \
-            "network tables whole"
     try:
         # a byte-order mark or UTF-16 of an editor's save is no content, as for a
         # manifest (manifest_text); it was called damaged, "cut short or edited"
@@ -65,21 +95,21 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
         seal = None
     if not isinstance(seal, dict):
         # it said "network.json says so: a batch was stopped", of a file cut short or edited
-        raise InputFileError(f"{str(path)!r} is damaged (not the JSON object a batch writes: "
-                             f"cut short or edited), so the network tables in {str(out)!r} "
-                             f"cannot be checked; {rerun}")
+        raise SealMismatch(f"{str(path)!r} is damaged (not the JSON object a batch writes: "
+                           f"cut short or edited), so the network tables in {str(out)!r} "
+                           "cannot be checked", RERUN)
     if seal.get("complete") is not True:
-        raise InputFileError(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
-                             f"says so: a batch was stopped while writing them); {rerun}")
-    _check_failures_seal(out, seal, rerun)
+        raise SealMismatch(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
+                           "says so: a batch was stopped while writing them)", RERUN)
+    _check_failures_seal(out, seal)
     recorded = (seal.get("files") or {}).get(folder) or {}
     found = {f.parent.name.removeprefix("site="): f for f in files}
     for key in sorted(set(found) | set(recorded)):
         if key not in found or key not in recorded \
                 or file_sha256(found[key]) != recorded[key]:
-            raise InputFileError(f"{folder}/site={key} in {str(out)!r} is not the file the "
-                                 f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
-                                 f"rewriting the network tables, or an edit); {rerun}")
+            raise SealMismatch(f"{folder}/site={key} in {str(out)!r} is not the file the "
+                               f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
+                               "rewriting the network tables, or an edit)", RERUN)
     for key, site in sorted((seal.get("sites") or {}).items()):
         site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
         edited, unread = False, None
@@ -99,11 +129,11 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
                    "its manifest.json was edited after it was written (its own seal does "
                    "not hold)" if edited else "a batch stopped after writing some sites, or "
                    "a run into that folder")
-            raise InputFileError(f"the result folder {str(site_folder)!r} changed after the "
-                                 f"network tables were written ({why}); {rerun}")
+            raise SealMismatch(f"the result folder {str(site_folder)!r} changed after the "
+                               f"network tables were written ({why})", RERUN)
 
 
-def _check_failures_seal(out: Path, seal: dict, rerun: str) -> None:
+def _check_failures_seal(out: Path, seal: dict) -> None:
     """Refuse a ``failures.parquet`` that is not the one `seal` records.
 
     The failures table says which sites the batch did not compute; an edited one (a row
@@ -125,8 +155,8 @@ def _check_failures_seal(out: Path, seal: dict, rerun: str) -> None:
                  "or moved)" if now is None else
                  f"in {str(out)!r} is not the file the batch recorded in {NETWORK_SEAL} (an "
                  "edit, or a copy from another batch)")
-        raise InputFileError(f"{FAILURES_FILE} {state}, so which sites the batch failed "
-                             f"cannot be told; {rerun}")
+        raise SealMismatch(f"{FAILURES_FILE} {state}, so which sites the batch failed "
+                           "cannot be told", RERUN)
 
 
 def read_network_annual(out) -> pd.DataFrame:

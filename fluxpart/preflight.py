@@ -206,7 +206,7 @@ from .uncertainty import gap_runs
 from .ustar import assign_seasons
 from .vpd_exchange import vpd_exchanged_in_months, vpd_mapped_to_another
 
-__all__ = ["Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
+__all__ = ["CLOCK_SHIFT_CLAUSE", "Finding", "MISSING_USTAR_SHARE", "RG_ABOVE_POTENTIAL_SHARE", "defer_to_clock",
            "preflight", "shade_at_clock_shift"]
 
 #: Share of sunlit records whose Rg exceeds the potential radiation (beyond the
@@ -1522,7 +1522,8 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
         `findings` in their order (with the check off, the findings that time Rg by the
         sun saying so), less the shaded-Rg finding where the clock check
         found the stamps shifted against the sun (``"shifted"``, ``"daylight_saving"``),
-        and less the Rg-zeros and dim-Rg findings where it found the latitude wrong
+        the Rg-zeros finding then saying that the shift may explain it
+        (:data:`CLOCK_SHIFT_CLAUSE`; since round leftovers58), and less the Rg-zeros and dim-Rg findings where it found the latitude wrong
         (``"hemisphere"``, ``"latitude"``: they judge Rg by the sun's height at the
         configured latitude; since review39).
 
@@ -1549,7 +1550,31 @@ def defer_to_clock(findings: list, clock_status: str | None) -> list:
         return [finding for finding in findings if finding.stage not in _POTENTIAL_STAGES]
     if clock_status not in _CLOCK_MOVES_NOON:
         return list(findings)
-    return [finding for finding in findings if finding.stage not in _NOON_SYMMETRY_STAGES]
+    return [_from_the_clock(finding) for finding in findings
+            if finding.stage not in _NOON_SYMMETRY_STAGES]
+
+
+#: What a Rg-zeros finding adds where the clock check found the stamps shifted against
+#: the sun: the records it names as daylight may be the record's night.
+CLOCK_SHIFT_CLAUSE = ("; the clock problem named above moves the sun these records are "
+                      "judged against, so records it puts in daylight may be the record's "
+                      "night: judge them again once the clock is fixed")
+
+
+def _from_the_clock(finding: Finding) -> Finding:
+    """`finding`, where it judges Rg of 0 by the sun's height, saying that the clock
+    shift found may explain it (round leftovers58).
+
+    A clock hours off puts the settings' daylight in the record's night, where a working
+    pyranometer reads 0: on the grassland example (invented) at ``utc_offset = -3`` for
+    +1, 865 records (14 % of those present) were named "lost values written as 0" beside
+    the clock's refusal. It is kept, not dropped as under a wrong latitude: a shift of
+    some months only (:func:`fluxpart.clock.check_clock`'s shifted period) leaves the
+    zeros of the other months judged right.
+    """
+    if finding.stage != "input (rg zeros)":
+        return finding
+    return Finding(finding.stage, finding.message + CLOCK_SHIFT_CLAUSE, finding.fatal)
 
 
 def shade_at_clock_shift(findings: list, verdict, rg, index, latitude: float,

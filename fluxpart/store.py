@@ -47,6 +47,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 
 from .errors import InputFileError, OutputError, ResourceShortage, read_fault_remedy
+from .file_digest import sha256_of_file
 
 __all__ = ["PANDAS_ATTRS_KEY", "arrow_table", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
            "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
@@ -418,14 +419,10 @@ def file_sha256(path) -> str:
         If the file cannot be opened or read (no permission, an I/O error); the
         message names it.
     """
-    digest = hashlib.sha256()
     try:
-        with open(path, "rb") as handle:
-            for chunk in iter(lambda: handle.read(1 << 20), b""):
-                digest.update(chunk)
+        return sha256_of_file(path)
     except OSError as error:
         raise unreadable(path, error) from None
-    return digest.hexdigest()
 
 
 def atomic_write_bytes(path, data: bytes) -> None:

@@ -4,7 +4,8 @@ A batch output folder (:mod:`fluxpart.batch`) holds one result folder per site a
 the network tables, sealed by ``network.json``. Verifying it checks that seal as
 :func:`fluxpart.network_tables.read_network` does (every network file's SHA-256, every site
 folder's manifest seal) and then verifies each site folder the seal lists, in the
-order listed, serially, by :func:`fluxpart.verify.verify` unchanged. A site the
+order of their keys (sorted, as the seal lists them), serially, by
+:func:`fluxpart.verify.verify` unchanged. A site the
 batch failed (a row of ``failures.parquet``) has no result of that batch to verify:
 it is reported as not computed by the batch and does not fail the network's verdict
 by itself (the batch's own exit status and its failures table already say it failed).
@@ -26,7 +27,7 @@ from pathlib import Path
 from .errors import ConfigError, FluxpartError
 from .manifest import manifest_text, shown_path
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
-from .network_tables import failed_sites, network_table
+from .network_tables import SealMismatch, failed_sites, network_table
 from .verify import JSON_FORMAT, VERIFY_CAUTION, verify
 
 __all__ = ["NetworkReport", "is_network_folder", "verify_network"]
@@ -54,9 +55,10 @@ class NetworkReport:
     directory : pathlib.Path
         The batch output folder.
     sites : tuple of (str, VerifyReport)
-        Each site the seal lists, in its order, with its single-folder report.
+        Each site the seal lists, sorted by key, with its single-folder report.
     failed : tuple of (str, str)
-        Each site the batch failed (``failures.parquet``), with its recorded error.
+        Each site the batch failed (``failures.parquet``), sorted by key, with its
+        recorded error.
     seal_problem : str
         Why the network files or a site's manifest do not match ``network.json`` (as
         :func:`fluxpart.network_tables.read_network` refuses them), or "" where they match.
@@ -166,7 +168,8 @@ class NetworkReport:
 
 
 def _listed_sites(out: Path) -> list[tuple[str, Path]] | None:
-    """The site keys and folders ``network.json`` lists, in its order: None where it is
+    """The site keys and folders ``network.json`` lists, sorted by key (the order the
+    batch writes them in, whatever order an edited seal holds them in): None where it is
     unreadable or no complete seal; an empty list where a complete seal lists no site (a
     batch that computed none)."""
     path = out / NETWORK_SEAL
@@ -177,8 +180,9 @@ def _listed_sites(out: Path) -> list[tuple[str, Path]] | None:
     sites = seal.get("sites") if isinstance(seal, dict) else None
     if not isinstance(sites, dict) or seal.get("complete") is not True:
         return None
-    return [(str(key), out / str(site.get("folder", key) if isinstance(site, dict) else key))
-            for key, site in sites.items()]
+    return sorted((str(key), out / str(site.get("folder", key) if isinstance(site, dict)
+                                       else key))
+                  for key, site in sites.items())
 
 
 def verify_network(directory, *, exact: bool = False) -> NetworkReport:
@@ -231,7 +235,7 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
             # a file or site manifest not as sealed is a failed verification (exit 1), as a
             # tampered result folder is, and its sites are still verified; read_network's
             # remedy (run the batch again) would overwrite what an auditor must see
-            seal_problem = str(error).split("; run the batch again", 1)[0]
+            seal_problem = error.problem if isinstance(error, SealMismatch) else str(error)
             break
     reports, unverified = [], []
     for key, folder in listed:
@@ -259,8 +263,9 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
         # a failures table not as sealed that is no fluxpart table either (rewritten by
         # another tool): the seal problem names it; its rows are no record of the batch
         recorded_failures = {}
-    failed = tuple((key, error) for key, error in recorded_failures.items()
-                   if key not in dict(listed))
+    # sorted by key as the sites are: failures.parquet holds them in the batch's order
+    failed = tuple(sorted((key, error) for key, error in recorded_failures.items()
+                          if key not in dict(listed)))
     return NetworkReport(directory=out, sites=tuple(reports), failed=failed,
                          seal_problem=seal_problem, unverified=tuple(unverified))
 

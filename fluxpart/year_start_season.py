@@ -26,8 +26,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["DORMANT_SHARE", "MIN_MONTHS", "SPLIT_SHARE", "day_first_year_start",
-           "split_growing_season"]
+__all__ = ["DORMANT_SHARE", "MIN_MONTHS", "SPLIT_SHARE", "TROPIC_LATITUDE",
+           "calendar_year_in_the_south", "day_first_year_start", "split_growing_season"]
 
 #: Calendar months with enough NEE for their mean needed to judge [1]: three quarters
 #: of a year, so the growing season of a seasonal record is among them (our choice).
@@ -43,6 +43,11 @@ SPLIT_SHARE = 0.2
 #: taking up CO2 in every month (each two months a sixth of it) has no start that keeps
 #: its uptake in one year, and is not judged; the grassland example's best starts leave 0.
 DORMANT_SHARE = 0.05
+#: Latitude of the tropics' edge [degrees]: the Earth's axial tilt, 23.44° (23° 26'; the
+#: obliquity of the ecliptic, IAU 2006 precession, about 23.436° in the 2020s (m)). South
+#: of it the austral summer, the growing season of most sites, spans the turn of the
+#: calendar year.
+TROPIC_LATITUDE = 23.44
 #: NEE values a calendar month needs for its mean [1]: five days of 30-min records.
 _MIN_VALUES = 240
 
@@ -156,3 +161,50 @@ def day_first_year_start(year_start: str) -> str | None:
             f"setting is \"MM-DD\", month first), a start budget years rarely take: if "
             f"1 {_MONTHS[day - 1]} was meant (day first), write year_start = "
             f"\"{day:02d}-01\"; used as set")
+
+
+def calendar_year_in_the_south(year_start: str, latitude: float,
+                               default: str = "01-01") -> str | None:
+    """A note for ``check`` where a site south of the tropics keeps calendar budget years.
+
+    Parameters
+    ----------
+    year_start : str
+        ``"MM-DD"``, the first day of each budget year (checked by the config).
+    latitude : float
+        Site latitude [degrees north].
+    default : str
+        The default ``year_start``; only a start at it is noted.
+
+    Returns
+    -------
+    str or None
+        The note, naming the latitude, the setting and ``"07-01"``, where `latitude` lies
+        south of :data:`TROPIC_LATITUDE` and `year_start` is `default`; None otherwise.
+
+    Notes
+    -----
+    South of the tropics the austral summer spans December to February, so a budget
+    year from 1 January cuts most sites' growing season in two and each calendar year's
+    sums hold the end of one season and the start of the next; budget years there usually
+    run from 1 July (common practice (m)). Summer-dry (Mediterranean) sites of the south
+    grow in the austral winter, for which 1 January is a dormant-season start; so this is
+    a note (``check`` alone, exit status unchanged), not a warning of ``run``: the start
+    may well be the right one, and a warning would have changed the manifests of result
+    folders written before (round leftovers58). :func:`split_growing_season` judges a
+    start set to another day against the site's own records.
+
+    References
+    ----------
+    Common practice (m): budget years from the dormant season, July-June in the southern
+    extratropics. The tropics' edge: the obliquity of the ecliptic (IAU 2006 (m)).
+    """
+    if year_start != default or not latitude < -TROPIC_LATITUDE:
+        return None
+    return (f"budget year: [processing] year_start = \"{year_start}\" (the default, calendar "
+            f"years) at {abs(latitude):.1f}° S, south of the tropics: the austral summer "
+            "spans the turn of the year, so where the site's growing season lies there each "
+            "budget year holds the end of one season and the start of the next; budget "
+            "years there usually start on 1 July (year_start = \"07-01\"), a summer-dry "
+            "site's growing season in the austral winter aside; nothing changes unless you "
+            "set it")

@@ -8,6 +8,7 @@ for the ``--json`` object, and the exit statuses the command documents.
 """
 
 import json
+import pickle
 import shutil
 
 import pandas as pd
@@ -244,3 +245,66 @@ def test_a_batch_folder_without_its_seal_says_to_run_the_batch_again(network, tm
     assert len(err) == 1 and err[0].startswith("error: ")
     assert "it holds 2 result folders ('alder', ...)" in err[0]
     assert "run the batch again" in err[0]
+
+
+class _Judged:
+    """A site's verify report reduced to its exit status (the walk's order and the
+    network's status are judged, not the rerun)."""
+
+    def __init__(self, exit_code: int):
+        self.exit_code = exit_code
+
+
+def test_the_seal_problem_is_kept_apart_from_its_remedy(network, tmp_path, monkeypatch):
+    """The network's seal problem is the refusal's `problem`, its remedy apart (round
+    leftovers58): verify cut it at the words "; run the batch again", which a rewording
+    of the remedy would have let through without a sign. Here the remedy is reworded and
+    the problem still comes alone; the refusal's message is still problem; remedy."""
+    from fluxpart import network_tables
+    from fluxpart import verify_network as module
+    from fluxpart.network_tables import SealMismatch, network_table
+
+    out = _copy(network, tmp_path)
+    with open(out / "network_daily" / "site=alder" / "part-0.parquet", "ab") as handle:
+        handle.write(b"\0")
+    with pytest.raises(SealMismatch) as refused:
+        network_table(out, "daily")
+    error = refused.value
+    assert str(error) == f"{error.problem}; {error.remedy}"
+    again = pickle.loads(pickle.dumps(error))          # as an error travels between processes
+    assert (str(again), again.problem, again.remedy) == (str(error), error.problem, error.remedy)
+    assert error.remedy == network_tables.RERUN and "run the batch again" in error.remedy
+    monkeypatch.setattr(network_tables, "RERUN", "write the tables anew with a batch")
+    monkeypatch.setattr(module, "verify", lambda folder, exact=False: _Judged(0))
+    report = verify_network(out)
+    assert report.seal_problem == error.problem
+    assert report.seal_problem.startswith("network_daily/site=alder in ")
+    assert "anew" not in report.seal_problem and report.exit_code == 1
+
+
+def test_sites_are_walked_in_key_order_whatever_order_the_seal_holds(network, tmp_path,
+                                                                    monkeypatch):
+    """network.json written with its sites in reverse order (an edit that keeps every
+    hash): the sites are still verified in the order of their keys, as the batch writes
+    them (json.dumps with sort_keys); exit 1 where any site is not reproduced, 0 where
+    all are (the README's statuses)."""
+    from fluxpart import verify_network as module
+
+    out = _copy(network, tmp_path)
+    seal = json.loads((out / "network.json").read_text(encoding="utf-8"))
+    assert list(seal["sites"]) == sorted(seal["sites"])
+    seal["sites"] = dict(reversed(list(seal["sites"].items())))
+    (out / "network.json").write_text(json.dumps(seal, indent=2), encoding="utf-8")
+    walked = []
+
+    def judged(folder, exact=False):
+        walked.append(folder.name)
+        return _Judged(1 if folder.name == "birch" else 0)
+
+    monkeypatch.setattr(module, "verify", judged)
+    report = verify_network(out)
+    assert walked == list(SITES) and [key for key, _ in report.sites] == list(SITES)
+    assert [key for key, _ in report.failed] == ["broken"]
+    assert report.seal_problem == "" and report.exit_code == 1
+    monkeypatch.setattr(module, "verify", lambda folder, exact=False: _Judged(0))
+    assert verify_network(out).exit_code == 0
