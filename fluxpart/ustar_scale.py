@@ -18,8 +18,8 @@ median wind of 3.6 m s-1 at every night's middle and 7 m s-1 at one night hour i
 at 3 m over grass; tall canopy 1.0 and 2.0 m s-1) is not a real site's; two or more such
 months are named where they hold the record's first or last judged month (a unit is the
 logger program's, from the start or from a change on; a windy season between calmer months
-is weather: the very windy coastal sites of two clean probes, round falsealarm57), with the values divided by 3.6 where they then lie in the towers'
-range. One stormy month never counts alone.
+is weather: the very windy coastal sites of two clean probes, round falsealarm57), with
+the values divided by 3.6 where they then lie in the towers' range. One stormy month never counts alone.
 
 Limit (leftovers56): ``[site] canopy`` defaults to "tall" (:class:`fluxpart.site.Site`),
 and a calm short canopy's u* in km h-1 (the invented grassland: nights' median 0.72, 95th
@@ -131,7 +131,8 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
         The warning naming the column, the months, their nights' median and 95th
         percentile, and km h-1 where their values divided by 3.6 lie in the towers'
         range of nights' medians (:data:`TOWER_NIGHT_MEDIAN`); None where fewer than
-        :data:`_MIN_MONTHS` months are beyond the bounds.
+        :data:`_MIN_MONTHS` months are beyond the bounds, or where they hold neither
+        the first nor the last judged month (a season, not a unit).
 
     References
     ----------
