@@ -16,10 +16,8 @@ towers' nights' median u* lies at 0.1-0.5 m s-1 (m). A month's nights whose medi
 95th percentile both lie beyond :data:`NIGHT_BOUNDS` (short canopy 0.5 and 1.0 m s-1: a
 median wind of 3.6 m s-1 at every night's middle and 7 m s-1 at one night hour in twenty
 at 3 m over grass; tall canopy 1.0 and 2.0 m s-1) is not a real site's; two or more such
-months are named where they hold the record's first or last judged month (a unit is the
-logger program's, from the start or from a change on; a windy season between calmer months
-is weather: the very windy coastal sites of two clean probes, round falsealarm57), with
-the values divided by 3.6 where they then lie in the towers' range. One stormy month never counts alone.
+months are named, with the values divided by 3.6 where they then lie in the towers'
+range. One stormy month never counts alone.
 
 Limit (leftovers56): ``[site] canopy`` defaults to "tall" (:class:`fluxpart.site.Site`),
 and a calm short canopy's u* in km h-1 (the invented grassland: nights' median 0.72, 95th
@@ -94,13 +92,6 @@ def months_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
     ----------
     Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology, ch. 9 (m).
     """
-    months = _judged_months(ustar, is_night, index, canopy)
-    return months.loc[months["beyond"], ["median", "p95"]]
-
-
-def _judged_months(ustar, is_night, index, canopy):
-    """The months of :data:`_MIN_NIGHT_RECORDS` night records or more: their nights'
-    ``median`` and ``p95`` of u* and whether both lie ``beyond`` the canopy's bounds."""
     ustar = np.asarray(ustar, dtype=float)
     with np.errstate(invalid="ignore"):
         kept = np.asarray(is_night, dtype=bool) & np.isfinite(ustar) & (ustar > 0)
@@ -108,10 +99,10 @@ def _judged_months(ustar, is_night, index, canopy):
     groups = night.groupby(level=0)
     months = pd.DataFrame({"median": groups.median(), "p95": groups.quantile(0.95),
                            "count": groups.size()})
-    months = months[months["count"] >= _MIN_NIGHT_RECORDS]
     median_bound, p95_bound = NIGHT_BOUNDS.get(canopy, NIGHT_BOUNDS["tall"])
-    months["beyond"] = (months["median"] > median_bound) & (months["p95"] > p95_bound)
-    return months
+    beyond = ((months["count"] >= _MIN_NIGHT_RECORDS) & (months["median"] > median_bound)
+              & (months["p95"] > p95_bound))
+    return months.loc[beyond, ["median", "p95"]]
 
 
 def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
@@ -131,22 +122,15 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
         The warning naming the column, the months, their nights' median and 95th
         percentile, and km h-1 where their values divided by 3.6 lie in the towers'
         range of nights' medians (:data:`TOWER_NIGHT_MEDIAN`); None where fewer than
-        :data:`_MIN_MONTHS` months are beyond the bounds, or where they hold neither
-        the first nor the last judged month (a season, not a unit).
+        :data:`_MIN_MONTHS` months are beyond the bounds.
 
     References
     ----------
     Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology, ch. 9 (m).
     Garratt, J. R. (1992). The Atmospheric Boundary Layer, ch. 3 (m).
     """
-    judged = _judged_months(ustar, is_night, index, canopy)
-    months = judged.loc[judged["beyond"], ["median", "p95"]]
+    months = months_beyond_surface_layer(ustar, is_night, index, canopy)
     if len(months) < _MIN_MONTHS:
-        return None
-    # a unit is the logger program's: written from the record's start or from a change
-    # on, so the months beyond hold the first or the last judged month; a windy season
-    # with calmer months on both sides is weather (round falsealarm57)
-    if not (judged["beyond"].iloc[0] or judged["beyond"].iloc[-1]):
         return None
     canopy = canopy if canopy in NIGHT_BOUNDS else "tall"
     median_bound, p95_bound = NIGHT_BOUNDS[canopy]

@@ -42,19 +42,3 @@ def test_one_stormy_month_is_not_named_and_half_a_year_from_a_program_change_is(
     later = np.where(index.month >= 7, ustar * 3.6, ustar)
     text = ustar_scale.ustar_beyond_surface_layer(later, night, index, "short")
     assert text is not None and "6 months (2021-07 .. 2021-12)" in text
-
-
-def test_a_windy_season_between_calmer_months_is_weather_not_a_unit():
-    """Three months of gales in late winter (nights' wind near 6 m s-1 at 3 m, the
-    exposed coasts' (m)) lie beyond a short canopy's bounds as u* in km h-1 does; a unit
-    is the logger program's, written from the start or from a change on, so months beyond
-    that hold neither the record's first nor its last month are not named
-    (falsealarm57: the very windy coastal sites of two clean probes). The same u* in
-    km h-1 from a program change in October (the last three months) is still named."""
-    ustar, night, index = _windy_grass_nights(2)
-    gales = np.where(index.month.isin([2, 3, 4]), ustar * 1.8, ustar)
-    assert len(ustar_scale.months_beyond_surface_layer(gales, night, index, "short")) == 3
-    assert ustar_scale.ustar_beyond_surface_layer(gales, night, index, "short") is None
-    later = np.where(index.month >= 10, ustar * 3.6, ustar)
-    text = ustar_scale.ustar_beyond_surface_layer(later, night, index, "short")
-    assert text is not None and "3 months (2021-10 .. 2021-12)" in text
