@@ -347,3 +347,31 @@ def test_a_driver_pasted_over_other_records_is_named(year, name, lag):
     stuck = frame.copy()
     stuck.iloc[start:, stuck.columns.get_loc("ustar")] = 0.25
     assert _repeated_drivers(stuck, 30) == []
+
+
+def test_a_soil_drifting_several_steps_a_day_then_held_by_snow_is_not_stuck(year):
+    """A soil cooling by 0.3 K a day with no daily cycle (deep, or under an early snow pack:
+    conduction damps each period by exp(-z / d), Campbell & Norman 1998, ch. 8 (m)) that
+    then holds one reading of a 0.1 K logger for days is not named: it meets the run by one
+    step and leaves it by one (falsealarm57, an invented larch site's October soil at 0.9
+    for 3.7 days). A probe stopped in that drifting soil resumes off by the drift over
+    the run and is named; so is one whose days beside show a daily cycle."""
+    frame, _, potential = year
+    soil = frame.assign(tsoil=frame["tsoil"].round(1))
+    before = (soil.index >= "2021-10-01") & (soil.index < "2021-10-05")
+    held = (soil.index >= "2021-10-05") & (soil.index < "2021-10-09")
+    after = (soil.index >= "2021-10-09") & (soil.index < "2021-10-12")
+    soil.loc[before, "tsoil"] = np.round(np.linspace(-0.3, 0.85, int(before.sum())), 1)
+    soil.loc[held, "tsoil"] = 0.9
+    soil.loc[after, "tsoil"] = np.round(0.85 + 0.04 * np.sin(np.arange(int(after.sum()))), 1)
+    soil.loc[soil.index >= "2021-10-12", "tsoil"] = np.nan
+    assert [f for f in _stuck(soil, potential, 30) if f.stage == "input (tsoil)"] == []
+    stopped = soil.copy()
+    stopped.loc[after, "tsoil"] = np.round(np.linspace(2.1, 3.0, int(after.sum())), 1)
+    findings = [f for f in _stuck(stopped, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly 0.9 for 4.0 days" in findings[0].message
+    cycling = soil.copy()
+    hours = np.arange(int(after.sum())) / 2
+    cycling.loc[after, "tsoil"] = np.round(0.9 + 0.6 * np.sin(2 * np.pi * hours / 24), 1)
+    findings = [f for f in _stuck(cycling, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly 0.9 for 4.0 days" in findings[0].message
