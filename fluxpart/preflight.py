@@ -863,13 +863,19 @@ def _repeated_nee(frame: pd.DataFrame, interval_minutes: float) -> list:
     nee = pd.to_numeric(frame["nee"], errors="coerce").to_numpy(dtype=float)
     needed = max(2, int(np.ceil(_REPEATED_NEE_SHARE_OF_DAY * per_day)))
     best = None
+    finite = np.isfinite(nee)              # once, not twice per lag
     for days in range(1, min(_REPEATED_NEE_MAX_LAG_DAYS, (len(nee) - 1) // per_day) + 1):
         lag = days * per_day
         later, earlier = nee[lag:], nee[:-lag]
-        both = np.isfinite(later) & np.isfinite(earlier)
-        equal = both & (later == earlier)
+        # the equal pairs counted before the pairs both measured are taken (up to 366
+        # lags: one comparison and one count each): NaN equals nothing, so the count is
+        # that of the measured equal pairs, or more where both values are infinite; a
+        # lag with fewer cannot hold a run of `needed` measured equal pairs
+        equal = np.equal(later, earlier)
         if np.count_nonzero(equal) < needed:
             continue
+        both = finite[lag:] & finite[:-lag]
+        equal &= both
         # runs of equal pairs among the pairs where both are measured (gaps skipped)
         positions = np.flatnonzero(both)
         edges = np.diff(np.concatenate([[0], equal[positions].astype(np.int8), [0]]))

@@ -375,3 +375,24 @@ def test_a_soil_drifting_several_steps_a_day_then_held_by_snow_is_not_stuck(year
     cycling.loc[after, "tsoil"] = np.round(0.9 + 0.6 * np.sin(2 * np.pi * hours / 24), 1)
     findings = [f for f in _stuck(cycling, potential, 30) if f.stage == "input (tsoil)"]
     assert len(findings) == 1 and "exactly 0.9 for 4.0 days" in findings[0].message
+
+def test_repeated_nee_with_infinite_values_is_named_as_without(year):
+    """Round speed60 counts a lag's equal pairs before it takes the pairs both measured:
+    NaN equals nothing but inf equals inf (IEEE 754 comparison, a fact of floating point),
+    so infinite values repeated at a lag pass the count without being measured. A month
+    pasted over the next is named the same with infinite values among the records, and
+    infinite values repeated at a lag are no run."""
+    frame, _, _ = year
+    pasted = frame.copy()
+    june = (pasted.index >= "2021-06-01") & (pasted.index < "2021-07-01")
+    july = (pasted.index >= "2021-07-01") & (pasted.index < "2021-07-31")
+    pasted.loc[july, "nee"] = frame.loc[june, "nee"].to_numpy()
+    (plain,) = _repeated_nee(pasted, 30)
+    infinite = pasted.copy()
+    infinite.iloc[:480, infinite.columns.get_loc("nee")] = np.inf     # ten days of inf,
+    infinite.iloc[480:960, infinite.columns.get_loc("nee")] = np.inf  # ten more a lag on
+    (found,) = _repeated_nee(infinite, 30)
+    assert found.message == plain.message
+    only = frame.copy()
+    only.iloc[:960, only.columns.get_loc("nee")] = np.inf
+    assert _repeated_nee(only, 30) == []
