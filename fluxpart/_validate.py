@@ -489,17 +489,29 @@ def is_tar(data: bytes) -> bool:
 def tar_files(data: bytes) -> list | None:
     """The user's files a tar archive holds (folders, macOS "._" forks and
     desktop files left out), as :class:`tarfile.TarInfo`, or None where it cannot be
-    read (cut short)."""
+    read (cut short).
+
+    A name the archive holds twice (a file added again by ``tar -r`` or ``tar -u`` after
+    the logger wrote on) is its last copy only, the one unpacking leaves (review82: both
+    copies were read one after another as a series of two tables).
+
+    References
+    ----------
+    IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m); Python's
+    :meth:`tarfile.TarFile.getmember`: "if a member occurs more than once in the
+    archive, its last occurrence is assumed to be the most up-to-date version".
+    """
     import io
     import tarfile
 
     try:
         with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
-            return [member for member in archive.getmembers() if member.isfile()
-                    and not member.name.rsplit("/", 1)[-1].startswith("._")
-                    and member.name.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
+            files = [member for member in archive.getmembers() if member.isfile()
+                     and not member.name.rsplit("/", 1)[-1].startswith("._")
+                     and member.name.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
     except (tarfile.TarError, OSError, ValueError, EOFError):
         return None
+    return list({member.name: member for member in files}.values())
 
 
 def single_tar_member(data: bytes) -> bytes | None:
