@@ -410,11 +410,13 @@ def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
 #: present can be, whatever the machine's clock says (a logger PC without a clock battery
 #: starts at 1970 or 2000; ``probe_faults.f_clock_far`` runs at 1970).
 RELEASED = pd.Timestamp("2026-12-05")
-#: How far past the present a record's median date may lie, for a logger clock set a year
-#: wrong. The known wrong references (:data:`_KNOWN_REFERENCES`) move records by 66 years
-#: or more (1904 against 1970) and 4 (the two spreadsheet day systems, which no date bound
-#: can tell), so a year's margin misses none of the first kind.
-FUTURE_MARGIN = pd.Timedelta(days=366)
+#: How far past the present a record's median date may lie: ten years, more than any
+#: logger clock is set wrong, and a test file dated in the next years still reads. The
+#: known wrong references (:data:`_KNOWN_REFERENCES`) move records by 66 years or more
+#: (1904 against 1970; the two spreadsheet day systems' 4 years no date bound can tell):
+#: records since 1990, the first long-term ones (Wofsy et al. 1993 (m)), so misread land
+#: from 2056 on, past the bound until the present reaches 2046.
+FUTURE_MARGIN = pd.Timedelta(days=3653)
 #: The earliest date a record's median may carry once counted: no eddy-covariance tower
 #: measured CO2 fluxes before the 1970s (the first campaigns over crops, Desjardins 1974
 #: (m); long-term records since 1990, Wofsy et al. 1993 (m)). Unix time read as seconds
@@ -470,8 +472,8 @@ def reference_mismatch(text: pd.Series, time_format: str,
     time_format : str
         A "<unit> since <reference>" format (:func:`counted_form`).
     latest : pandas.Timestamp, optional
-        The latest date a record may carry; :func:`latest_record` (the present and a
-        year) where None.
+        The latest date a record may carry; :func:`latest_record` (the present and ten
+        years) where None.
 
     Returns
     -------
@@ -500,8 +502,8 @@ def reference_mismatch(text: pd.Series, time_format: str,
         # a few counts beyond them (a typo, a line of column numbers) are left to the
         # stamp checks, which name their lines
         return ""
-    why = (f"after {latest:%Y-%m-%d}, a year past this run's date: a tower records no "
-           "future" if middle >= latest else f"before {EARLIEST_RECORD:%Y}: no "
+    why = (f"after {latest:%Y-%m-%d}, ten years past this run's date: a tower records "
+           "no future" if middle >= latest else f"before {EARLIEST_RECORD:%Y}: no "
            "eddy-covariance tower measured then")
     said = (f"counted from {reference:%Y-%m-%d} the records run from {first:%Y-%m-%d} to "
             f"{last:%Y-%m-%d}, {why}, so the count has another reference date")
