@@ -344,12 +344,16 @@ def joined_zip_tables(data: bytes) -> tuple[bytes, list] | None:
     ZIP File Format Specification (PKWARE APPNOTE 6.3) (m): members are files named by
     their paths; their order in the archive is the writer's, so names order them.
     """
-    series = _zip_series(data)
+    return _joined(_zip_series(data))
+
+
+def _joined(series: tuple[list, list, str | None] | None) -> tuple[bytes, list] | None:
+    """An archive's series (:func:`_series_parts`) as one text, each table ending with
+    a line end, and the tables' names; None where it is no series or one breaks it."""
     if series is None or series[2] is not None:
         return None
     names, parts, _ = series
-    joined = b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts)
-    return joined, names
+    return b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts), names
 
 
 def _zip_series(data: bytes) -> tuple[list, list, str | None] | None:
@@ -376,18 +380,26 @@ def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
     """The tables of a tar archive of several, one after another, and their names; or
     None: as :func:`joined_zip_tables` joins a zip's (round layouts52: a ``.tar.gz`` of
     a year's month files, one header, was refused as "holding 12 file(s)"). macOS tar's
-    "._" forks and desktop files are left out (:func:`tar_files`), and so are documents.
+    "._" forks and desktop files are left out (:func:`tar_files`), and so are documents;
+    a name held twice is its last copy.
+
+    Parameters
+    ----------
+    data : bytes
+        The bytes of a tar archive (decompressed).
+
+    Returns
+    -------
+    tuple of (bytes, list of str) or None
+        The joined bytes and the tables' names in the order joined; None where the tar
+        is not of this kind or cannot be read.
 
     References
     ----------
     IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m): members are files
     named by their paths, in the writer's order, so names order them.
     """
-    series = _tar_series(data)
-    if series is None or series[2] is not None:
-        return None
-    names, parts, _ = series
-    return b"".join(p if p.endswith((b"\n", b"\r")) else p + b"\n" for p in parts), names
+    return _joined(_tar_series(data))
 
 
 def tar_series_break(data: bytes) -> str | None:
@@ -489,17 +501,29 @@ def is_tar(data: bytes) -> bool:
 def tar_files(data: bytes) -> list | None:
     """The user's files a tar archive holds (folders, macOS "._" forks and
     desktop files left out), as :class:`tarfile.TarInfo`, or None where it cannot be
-    read (cut short)."""
+    read (cut short).
+
+    A name the archive holds twice (a file added again by ``tar -r`` or ``tar -u`` after
+    the logger wrote on) is its last copy only, the one unpacking leaves (review82: both
+    copies were read one after another as a series of two tables).
+
+    References
+    ----------
+    IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m); Python's
+    :meth:`tarfile.TarFile.getmember`: "if a member occurs more than once in the
+    archive, its last occurrence is assumed to be the most up-to-date version".
+    """
     import io
     import tarfile
 
     try:
         with tarfile.open(fileobj=io.BytesIO(data), mode="r:") as archive:
-            return [member for member in archive.getmembers() if member.isfile()
-                    and not member.name.rsplit("/", 1)[-1].startswith("._")
-                    and member.name.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
+            files = [member for member in archive.getmembers() if member.isfile()
+                     and not member.name.rsplit("/", 1)[-1].startswith("._")
+                     and member.name.rsplit("/", 1)[-1].lower() not in _DESKTOP_FILES]
     except (tarfile.TarError, OSError, ValueError, EOFError):
         return None
+    return list({member.name: member for member in files}.values())
 
 
 def single_tar_member(data: bytes) -> bytes | None:

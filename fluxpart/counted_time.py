@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import os
 import re
+import time
 
 import numpy as np
 import pandas as pd
@@ -405,14 +406,52 @@ def day_system_mismatch(text: pd.Series, time_format: str, source: str) -> str:
             "years as read, a name that names those years (or none) silences this")
 
 
-#: The latest date a record may carry once counted: 50 years after the release that set
-#: it (0.37.0, December 2026), longer than any release of a reader is used; raise it with
-#: the releases. Stamps past it are a count read from the wrong reference date: a
-#: spreadsheet's 1900-system day numbers read as days since 1970-01-01 land 70 years
-#: late, seconds since 1904-01-01 (classic Mac OS and LabVIEW time (m)) read as Unix
-#: time 66 years late, so any record since 2007 lands past it (layouts52: such a year
-#: was read as 2091 without a word).
-LATEST_RECORD = pd.Timestamp("2077-01-01")
+#: The date of release 0.37.0: no run of this reader is earlier, so it is the least the
+#: present can be, whatever the machine's clock says (a logger PC without a clock battery
+#: starts at 1970 or 2000; ``probe_faults.f_clock_far`` runs at 1970).
+RELEASED = pd.Timestamp("2026-12-05")
+#: How far past the present a record's median date may lie: ten years, more than any
+#: logger clock is set wrong, and a test file dated in the next years still reads. The
+#: known wrong references (:data:`_KNOWN_REFERENCES`) move records by 66 years or more
+#: (1904 against 1970; the two spreadsheet day systems' 4 years no date bound can tell):
+#: records since 1990, the first long-term ones (Wofsy et al. 1993 (m)), so misread land
+#: from 2056 on, past the bound until the present reaches 2046.
+FUTURE_MARGIN = pd.Timedelta(days=3653)
+#: The earliest date a record's median may carry once counted: no eddy-covariance tower
+#: measured CO2 fluxes before the 1970s (the first campaigns over crops, Desjardins 1974
+#: (m); long-term records since 1990, Wofsy et al. 1993 (m)). Unix time read as seconds
+#: since 1904-01-01 lands 66 years early (a 2021 record in 1955), days since 1970 read
+#: as a spreadsheet's days 70 (review82: read without a word).
+EARLIEST_RECORD = pd.Timestamp("1970-01-01")
+
+
+def latest_record(now: float | None = None) -> pd.Timestamp:
+    """The latest date a record's median may carry once counted: a tower records no
+    future.
+
+    Parameters
+    ----------
+    now : float, optional
+        The present as Unix time [s]; the machine's clock (:func:`time.time`) where
+        None.
+
+    Returns
+    -------
+    pandas.Timestamp
+        The later of `now` and :data:`RELEASED`, plus :data:`FUTURE_MARGIN`. The bound
+        only rises with the clock, so a file read once is read on every later run; it
+        replaces the fixed 2077 of release 0.38.0's drafts (review82), which let the
+        66- and 70-year misreadings of records before 2011 and 2007 through (they land
+        before 2077) and would have refused real records from 2077 on.
+
+    References
+    ----------
+    POSIX.1, ``time()``: seconds since 1970-01-01 00:00 UTC (m).
+    """
+    present = pd.Timestamp(time.time() if now is None else now, unit="s")
+    return max(present, RELEASED) + FUTURE_MARGIN
+
+
 #: References that count the same unit, by the unit's length in seconds: a
 #: spreadsheet's two day systems (Microsoft, "Date systems in Excel" (m)); Unix time
 #: (POSIX.1), classic Mac OS and LabVIEW time (1904-01-01) and NTP time (1900-01-01,
@@ -422,7 +461,8 @@ _KNOWN_REFERENCES = {86400.0: ("1899-12-30", "1904-01-01"),
                      1e-3: ("1970-01-01",)}
 
 
-def reference_mismatch(text: pd.Series, time_format: str) -> str:
+def reference_mismatch(text: pd.Series, time_format: str,
+                       latest: pd.Timestamp | None = None) -> str:
     """Why the counts cannot count from `time_format`'s reference date, or ''.
 
     Parameters
@@ -431,15 +471,19 @@ def reference_mismatch(text: pd.Series, time_format: str) -> str:
         The stamp text per record: numbers counting `time_format`'s unit.
     time_format : str
         A "<unit> since <reference>" format (:func:`counted_form`).
+    latest : pandas.Timestamp, optional
+        The latest date a record may carry; :func:`latest_record` (the present and ten
+        years) where None.
 
     Returns
     -------
     str
-        Where the median count, read from the reference, dates a record after
-        :data:`LATEST_RECORD` (a tower records no future): the dates read, and each
-        known reference of the unit (:data:`_KNOWN_REFERENCES`) that places every
-        count before it, with the setting that reads it; '' otherwise (counts beyond
-        some 3000 years are named by :func:`counted_stamps`' caller).
+        Where the median count, read from the reference, dates a record after `latest`
+        (a tower records no future) or before :data:`EARLIEST_RECORD` (no tower measured
+        then): the dates read, and each known reference of the unit
+        (:data:`_KNOWN_REFERENCES`) that places every count within the two, with the
+        setting that reads it; '' otherwise (counts beyond some 3000 years are named by
+        :func:`counted_stamps`' caller).
 
     References
     ----------
@@ -451,15 +495,18 @@ def reference_mismatch(text: pd.Series, time_format: str) -> str:
     numbers = numbers[np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)]
     if not numbers.size:
         return ""
+    latest = latest_record() if latest is None else latest
     first, middle, last = (reference + pd.Timedelta(seconds=float(v) * seconds)
                            for v in (numbers.min(), np.median(numbers), numbers.max()))
-    if middle < LATEST_RECORD:
-        # a few counts past it (a typo, a line of column numbers) are left to the
+    if EARLIEST_RECORD <= middle < latest:
+        # a few counts beyond them (a typo, a line of column numbers) are left to the
         # stamp checks, which name their lines
         return ""
+    why = (f"after {latest:%Y-%m-%d}, ten years past this run's date: a tower records "
+           "no future" if middle >= latest else f"before {EARLIEST_RECORD:%Y}: no "
+           "eddy-covariance tower measured then")
     said = (f"counted from {reference:%Y-%m-%d} the records run from {first:%Y-%m-%d} to "
-            f"{last:%Y-%m-%d}, after {LATEST_RECORD:%Y}: a tower records no future, so the "
-            "count has another reference date")
+            f"{last:%Y-%m-%d}, {why}, so the count has another reference date")
     written = _FORM.fullmatch(time_format)
     others = []
     for other in _KNOWN_REFERENCES.get(seconds, ()):
@@ -468,7 +515,7 @@ def reference_mismatch(text: pd.Series, time_format: str) -> str:
             continue
         begin = start + pd.Timedelta(seconds=float(numbers.min()) * seconds)
         end = start + pd.Timedelta(seconds=float(numbers.max()) * seconds)
-        if end < LATEST_RECORD:
+        if EARLIEST_RECORD <= begin and end < latest:
             setting = (time_format[:written.start("date")] + other
                        + time_format[written.end("date"):])
             others.append(f"from {other} they run from {begin:%Y-%m-%d} to {end:%Y-%m-%d} "

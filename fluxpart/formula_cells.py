@@ -29,9 +29,13 @@ import re
 #: tab, pipe) or a blank of a whitespace-separated file.
 _SEPARATORS = ",;\t| "
 #: One whole field written ="text": opened by a line start or a separator, closed by a
-#: separator or a line end, no quote and no line break inside.
+#: separator or a line end, no quote and no line break inside. A line ends at LF, CRLF
+#: or a CR alone (a classic Mac OS file, which the reader reads; review82: ``(?m)^`` and
+#: ``$`` know LF only, so such a file's first and last cells kept their "=").
 _FORMULA_CELL = re.compile(
-    rf'(?m)(^|[{_SEPARATORS}])="([^"\r\n]*)"(?=[{_SEPARATORS}]|\r?$)')
+    rf'(^|[\r\n{_SEPARATORS}])="([^"\r\n]*)"(?=[\r\n{_SEPARATORS}]|$)')
+#: a line break: LF, CRLF or CR alone
+_LINE_BREAK = re.compile(r"\r\n|\r|\n")
 
 
 def without_text_formulas(text: str) -> tuple[str, int]:
@@ -58,11 +62,11 @@ def without_text_formulas(text: str) -> tuple[str, int]:
     starts = []
 
     def unwrapped(match: re.Match) -> str:
-        starts.append(match.start())
+        starts.append(match.start(2) - 2)          # the "=" of the cell
         return f'{match.group(1)}"{match.group(2)}"'
 
     found = _FORMULA_CELL.sub(unwrapped, text)
     if not starts:
         return text, 0
-    breaks = [m.start() for m in re.finditer("\n", text)]
+    breaks = [m.start() for m in _LINE_BREAK.finditer(text)]
     return found, len({bisect.bisect_left(breaks, start) for start in starts})

@@ -1480,9 +1480,12 @@ def _partial_budget_years(index, interval_minutes: float, year_start: str) -> li
     for year, row in years[years["records"] < expected].iterrows():
         last = row["end"] - pd.Timedelta(days=1)
         months = 12.0 * row["records"] / expected[year]
+        # a few days read as 0.0 months, as the run's warning says them (review82)
+        held = (f"{months:.1f} months" if months >= 0.1
+                else f"{row['records'] * interval_minutes / 1440.0:.1f} days")
         texts.append(f"{label.format(year)} ({row['start']:%Y-%m-%d} to {last:%Y-%m-%d}) holds "
                      f"{int(row['records'])} of {int(expected[year])} records "
-                     f"({months:.1f} months): its sums are partial and are not annual totals "
+                     f"({held}): its sums are partial and are not annual totals "
                      f"(year_start = \"{year_start}\"; run warns of it too)")
     return texts
 
