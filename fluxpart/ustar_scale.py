@@ -157,6 +157,12 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
 #: Days either side of a candidate day whose nights' median u* are compared: a fortnight
 #: (the step is sudden) and six weeks (the step stays; a windy spell does not) (our choice).
 STEP_SPANS_DAYS = (14, 45)
+#: Quantiles of the nights' u* that must all step so (the median and the 90th percentile):
+#: a unit multiplies every value, the calm nights' and the windy nights' alike, while a
+#: change of weather regime (a dry season's anticyclone giving way to fronts) changes how
+#: often the nights are windy, not how windy a windy night is, so the windy nights' u*
+#: beside the change stays (our argument; Stull 1988, ch. 9 (m)).
+STEP_QUANTILES = (0.5, 0.9)
 #: Largest ratio between a measured step and :data:`KMH_FACTOR` for the step to read as
 #: km h-1 (2.57 to 5.04): :data:`fluxpart.split_factor.UNIT_FIT`'s tolerance (our choice).
 STEP_FIT = 1.4
@@ -176,9 +182,12 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     day; snowmelt raises it about twofold (z0 of snow about 0.001 m, of short grass about
     0.01 m, Garratt 1992, ch. 3 (m): u* at a 3 m tower a factor ln(3000) / ln(300) = 1.4,
     and at most about 2 with the stable snow nights); a harvest lowers it (a step down,
-    not judged here). So a step up of 2.57 to 5.04 times (:data:`KMH_FACTOR` within
-    :data:`STEP_FIT`) in the nights' median over both spans of :data:`STEP_SPANS_DAYS`
-    either side of one day, whose later values divided by 3.6 read as towers' nights
+    not judged here). A change of weather regime (a dry season's calm anticyclone giving
+    way to fronts) can step the nights' median so, but not their windy nights: a unit
+    multiplies every value. So a step up of 2.57 to 5.04 times (:data:`KMH_FACTOR` within
+    :data:`STEP_FIT`) in the nights' median and 90th percentile (:data:`STEP_QUANTILES`)
+    over both spans of :data:`STEP_SPANS_DAYS` either side of one day (both spans within
+    the record), whose later values divided by 3.6 read as towers' nights
     (:data:`TOWER_NIGHT_MEDIAN`), is named. A step back down (km h-1 for some months,
     then m s-1 again) is found by its step up; a record in km h-1 from its start has no
     step (:func:`ustar_beyond_surface_layer` judges its level).
@@ -197,7 +206,8 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     -------
     dict or None
         ``at`` (the first day of the higher values, a Timestamp), ``ratios`` (the step
-        over each span [-]) and ``before``/``after`` (the nights' median u* over the
+        of each quantile of :data:`STEP_QUANTILES` over each span of
+        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after`` (the nights' median u* over the
         fortnights either side [m s-1]); None where no day so steps.
 
     References
@@ -214,35 +224,41 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     if values.size < 2 * _MIN_STEP_RECORDS:
         return None
     series = pd.Series(values, index=times)
-    # the first night record of each day; the spans before and after it (running medians
+    # the first night record of each day; the spans before and after it (running quantiles
     # over time windows, the later span's on the record read backwards)
     days = pd.DatetimeIndex(np.unique(times.normalize()))
     first = times.searchsorted(days)
     backwards = pd.Series(values[::-1], index=pd.DatetimeIndex(
         (times[-1] - times[::-1]).to_numpy() + np.datetime64("2000-01-01")))
-    ratios, medians = [], []
+    ratios, medians = [], None
     for span in STEP_SPANS_DAYS:
         window = f"{span}D"
         before = series.rolling(window, closed="left")
         after = backwards.rolling(window, closed="right")
-        b_med, b_n = before.median().to_numpy()[first], before.count().to_numpy()[first]
-        a_med = after.median().to_numpy()[::-1][first]
-        a_n = after.count().to_numpy()[::-1][first]
-        enough = (b_n >= _MIN_STEP_RECORDS) & (a_n >= _MIN_STEP_RECORDS)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            ratios.append(np.where(enough, a_med / b_med, np.nan))
-        medians.append((b_med, a_med))
+        # a span must lie within the record and hold enough nights
+        enough = ((days - pd.Timedelta(days=span) >= times[0].normalize())
+                  & (days + pd.Timedelta(days=span) <= times[-1])
+                  & (before.count().to_numpy()[first] >= _MIN_STEP_RECORDS)
+                  & (after.count().to_numpy()[::-1][first] >= _MIN_STEP_RECORDS))
+        for quantile in STEP_QUANTILES:
+            low_side = before.quantile(quantile).to_numpy()[first]
+            high_side = after.quantile(quantile).to_numpy()[::-1][first]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                ratios.append(np.where(enough, high_side / low_side, np.nan))
+            if medians is None:
+                medians = (low_side, high_side)
     ratios = np.array(ratios)
     low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
-    converted = medians[0][1] / KMH_FACTOR
+    converted = medians[1] / KMH_FACTOR
     with np.errstate(invalid="ignore"):
         stepped = (np.all((ratios >= low) & (ratios <= high), axis=0)
                    & (converted >= TOWER_NIGHT_MEDIAN[0]) & (converted <= TOWER_NIGHT_MEDIAN[1]))
     if not stepped.any():
         return None
-    at = int(np.flatnonzero(stepped)[np.argmax(ratios[0][stepped])])
+    # the day of the largest step over every quantile and span together
+    at = int(np.flatnonzero(stepped)[np.argmax(np.log(ratios[:, stepped]).sum(axis=0))])
     best = {"at": days[at], "ratios": [float(r) for r in ratios[:, at]],
-            "before": float(medians[0][0][at]), "after": float(medians[0][1][at])}
+            "before": float(medians[0][at]), "after": float(medians[1][at])}
     return best
 
 
@@ -270,14 +286,16 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
     step = ustar_step_up(ustar, is_night, index)
     if step is None:
         return None
-    short, long = step["ratios"]
+    short, short_top, long, long_top = step["ratios"]
     days_short, days_long = STEP_SPANS_DAYS
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
             f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
             f"over the {days_short} days either side; {long:.1f} times over {days_long} "
-            f"days), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) from that day "
-            "reads; the nights' u* follows the wind and the surface's roughness, which "
-            "neither step so in a day and stay so for weeks (snowmelt about doubles it, "
-            "a harvest lowers it): the calm nights after that day would be judged at a "
+            f"days), and its windy nights' too (the 90th percentile {short_top:.1f} and "
+            f"{long_top:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
+            "from that day reads; the nights' u* follows the wind and the surface's "
+            "roughness, which neither step so in a day and stay so for weeks (snowmelt "
+            "about doubles it, a harvest lowers it, a new weather regime changes how often "
+            "nights are windy, not how windy they are): the calm nights after that day would be judged at a "
             "threshold of the other unit; convert the later values to m s-1 (km h-1 / "
             f"{KMH_FACTOR:g}) or check what changed at the tower that day")

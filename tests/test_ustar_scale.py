@@ -84,3 +84,24 @@ def test_km_per_hour_for_some_months_only_is_named_at_its_start():
     spell = (index >= pd.Timestamp("2021-05-10")) & (index < pd.Timestamp("2021-10-01"))
     step = ustar_scale.ustar_step_up(np.where(spell, calm * 3.6, calm), night, index)
     assert step is not None and step["at"] == pd.Timestamp("2021-05-10")
+
+
+def test_a_dry_seasons_calm_giving_way_to_fronts_is_not_named():
+    # nights of a calm anticyclone (u* 0.08) and of fronts (0.40, a windy night's u* under
+    # a 6 m s-1 wind over grass, kU/ln(60)): 85 % calm until July, 85 % windy after
+    ustar, night, index = _windy_grass_nights(5)
+    rng = np.random.default_rng(5)
+    nights = index.normalize()
+    windy_share = np.where(nights < pd.Timestamp("2021-07-01"), 0.15, 0.85)
+    draw = pd.Series(rng.random(index.size), index=index).groupby(nights).transform("first")
+    level = np.where(draw.to_numpy() < windy_share, 0.40, 0.08)
+    regime = level * np.exp(rng.normal(0.0, 0.2, index.size))
+    lo = regime[index < pd.Timestamp("2021-07-01")]
+    hi = regime[index >= pd.Timestamp("2021-07-01")]
+    assert np.median(hi) / np.median(lo) > 3.6 / 1.4          # the median steps as km h-1
+    assert ustar_scale.ustar_step_up(regime, night, index) is None
+    # the same record written in km h-1 from October: every night steps, and is named
+    kmh = np.where(index >= pd.Timestamp("2021-10-01"), regime * 3.6, regime)
+    step = ustar_scale.ustar_step_up(kmh, night, index)
+    assert step is not None
+    assert abs(step["at"] - pd.Timestamp("2021-10-01")) <= pd.Timedelta(days=2)
