@@ -157,12 +157,12 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
 #: Days either side of a candidate day whose nights' median u* are compared: a fortnight
 #: (the step is sudden) and six weeks (the step stays; a windy spell does not) (our choice).
 STEP_SPANS_DAYS = (14, 45)
-#: Quantiles of the nights' u* that must all step so (the median and the 90th percentile):
-#: a unit multiplies every value, the calm nights' and the windy nights' alike, while a
-#: change of weather regime (a dry season's anticyclone giving way to fronts) changes how
-#: often the nights are windy, not how windy a windy night is, so the windy nights' u*
-#: beside the change stays (our argument; Stull 1988, ch. 9 (m)).
-STEP_QUANTILES = (0.5, 0.9)
+#: Quantiles of the nights' u* that must all step so (the calm nights' 10th percentile and
+#: the median): a unit multiplies every value, the calm nights' and the others' alike,
+#: while a change of weather regime (a dry season's anticyclone giving way to fronts)
+#: changes how often the nights are windy, and its calm, clear nights between the fronts
+#: stay as calm (our argument; Stull 1988, ch. 9 (m)).
+STEP_QUANTILES = (0.1, 0.5)
 #: Largest ratio between a measured step and :data:`KMH_FACTOR` for the step to read as
 #: km h-1 (2.57 to 5.04): :data:`fluxpart.split_factor.UNIT_FIT`'s tolerance (our choice).
 STEP_FIT = 1.4
@@ -183,9 +183,9 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     0.01 m, Garratt 1992, ch. 3 (m): u* at a 3 m tower a factor ln(3000) / ln(300) = 1.4,
     and at most about 2 with the stable snow nights); a harvest lowers it (a step down,
     not judged here). A change of weather regime (a dry season's calm anticyclone giving
-    way to fronts) can step the nights' median so, but not their windy nights: a unit
+    way to fronts) can step the nights' median so, but not their calmest nights: a unit
     multiplies every value. So a step up of 2.57 to 5.04 times (:data:`KMH_FACTOR` within
-    :data:`STEP_FIT`) in the nights' median and 90th percentile (:data:`STEP_QUANTILES`)
+    :data:`STEP_FIT`) in the nights' 10th percentile and median (:data:`STEP_QUANTILES`)
     over both spans of :data:`STEP_SPANS_DAYS` either side of one day (both spans within
     the record), whose later values divided by 3.6 read as towers' nights
     (:data:`TOWER_NIGHT_MEDIAN`), is named. A step back down (km h-1 for some months,
@@ -245,8 +245,8 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
             high_side = after.quantile(quantile).to_numpy()[::-1][first]
             with np.errstate(invalid="ignore", divide="ignore"):
                 ratios.append(np.where(enough, high_side / low_side, np.nan))
-            if medians is None:
-                medians = (low_side, high_side)
+            if medians is None and quantile == 0.5:
+                medians = (low_side, high_side)          # the fortnights' medians
     ratios = np.array(ratios)
     low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
     converted = medians[1] / KMH_FACTOR
@@ -286,16 +286,16 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
     step = ustar_step_up(ustar, is_night, index)
     if step is None:
         return None
-    short, short_top, long, long_top = step["ratios"]
+    calm, short, calm_long, long = step["ratios"]
     days_short, days_long = STEP_SPANS_DAYS
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
             f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
             f"over the {days_short} days either side; {long:.1f} times over {days_long} "
-            f"days), and its windy nights' too (the 90th percentile {short_top:.1f} and "
-            f"{long_top:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
+            f"days), and its calm nights' too (the 10th percentile {calm:.1f} and "
+            f"{calm_long:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
             "from that day reads; the nights' u* follows the wind and the surface's "
             "roughness, which neither step so in a day and stay so for weeks (snowmelt "
             "about doubles it, a harvest lowers it, a new weather regime changes how often "
-            "nights are windy, not how windy they are): the calm nights after that day would be judged at a "
+            "nights are windy, and its calm nights stay calm): the calm nights after that day would be judged at a "
             "threshold of the other unit; convert the later values to m s-1 (km h-1 / "
             f"{KMH_FACTOR:g}) or check what changed at the tower that day")
