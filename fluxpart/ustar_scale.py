@@ -207,8 +207,9 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     dict or None
         ``at`` (the first day of the higher values, a Timestamp), ``ratios`` (the step
         of each quantile of :data:`STEP_QUANTILES` over each span of
-        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after`` (the nights' median u* over the
-        fortnights either side [m s-1]); None where no day so steps.
+        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after``
+        (the nights' median u* over the fortnights either side [m s-1]); None where no
+        day so steps.
 
     References
     ----------
