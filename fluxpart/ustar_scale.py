@@ -216,6 +216,8 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer, ch. 9 (m).
     Garratt, J. R. (1992). The Atmospheric Boundary Layer. Cambridge University Press,
     ch. 3 (roughness lengths of snow, grass, crops and forests) (m).
+    Page, E. S. (1954). Continuous inspection schemes. Biometrika 41(1/2):100-115 (the
+    cumulative sum that locates a change) (m).
     """
     ustar = np.asarray(ustar, dtype=float)
     with np.errstate(invalid="ignore"):
@@ -256,11 +258,16 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
                    & (converted >= TOWER_NIGHT_MEDIAN[0]) & (converted <= TOWER_NIGHT_MEDIAN[1]))
     if not stepped.any():
         return None
-    # the day of the largest step over every quantile and span together
+    # the day of the largest step over every quantile and span together, then the record
+    # the step starts at: the split of the log values within a fortnight either side
+    # that departs most from their mean (a CUSUM change point, Page 1954 (m))
     at = int(np.flatnonzero(stepped)[np.argmax(np.log(ratios[:, stepped]).sum(axis=0))])
-    best = {"at": days[at], "ratios": [float(r) for r in ratios[:, at]],
+    near = times.searchsorted([days[at] - pd.Timedelta(days=STEP_SPANS_DAYS[0]),
+                               days[at] + pd.Timedelta(days=STEP_SPANS_DAYS[0])])
+    logs = np.log(values[near[0]:near[1]])
+    split = near[0] + int(np.argmax(np.abs(np.cumsum(logs - logs.mean()))[:-1])) + 1
+    return {"at": times[split].normalize(), "ratios": [float(r) for r in ratios[:, at]],
             "before": float(medians[0][at]), "after": float(medians[1][at])}
-    return best
 
 
 def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
