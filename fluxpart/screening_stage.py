@@ -168,13 +168,14 @@ def clock_and_preflight(frame, site, config, interval, geometry, is_night, scree
 
 
 def _ustar_scale(frame, site, is_night, findings, columns) -> list:
-    """u* whose nights lie beyond the surface layer (:mod:`fluxpart.ustar_scale`): a
-    warning, where no fatal finding stops the run first."""
+    """u* whose nights lie beyond the surface layer, or step up as km h-1 from one day on
+    (:mod:`fluxpart.ustar_scale`): a warning, where no fatal finding stops the run first."""
     if "ustar" not in frame.columns or any(finding.fatal for finding in findings):
         return []
-    text = ustar_scale.ustar_beyond_surface_layer(
-        frame["ustar"].to_numpy(dtype=float), is_night, frame.index, site.canopy,
-        columns.get("ustar", "ustar"))
+    ustar, column = frame["ustar"].to_numpy(dtype=float), columns.get("ustar", "ustar")
+    text = (ustar_scale.ustar_beyond_surface_layer(ustar, is_night, frame.index, site.canopy,
+                                                   column)
+            or ustar_scale.ustar_stepped_to_kmh(ustar, is_night, frame.index, column))
     return [preflight.Finding(ustar_scale.STAGE, text, False)] if text else []
 
 

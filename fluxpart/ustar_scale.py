@@ -44,7 +44,7 @@ import numpy as np
 import pandas as pd
 
 __all__ = ["KMH_FACTOR", "NIGHT_BOUNDS", "STAGE", "months_beyond_surface_layer",
-           "ustar_beyond_surface_layer"]
+           "ustar_beyond_surface_layer", "ustar_step_up", "ustar_stepped_to_kmh"]
 
 #: The finding's stage, as the warning names it.
 STAGE = "input (ustar unit)"
@@ -152,3 +152,158 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
             "record is so, its calm nights kept or lost at another part's threshold; "
             "convert the column to m s-1 (km h-1 / 3.6) or check that it is u*, not a "
             "wind speed")
+
+
+#: Days either side of a candidate day whose nights' median u* are compared: a fortnight
+#: (the step is sudden) and six weeks (the step stays; a windy spell does not) (our choice).
+STEP_SPANS_DAYS = (14, 45)
+#: Quantiles of the nights' u* that must all step so (the calm nights' 10th percentile and
+#: the median): a unit multiplies every value, the calm nights' and the others' alike,
+#: while a change of weather regime (a dry season's anticyclone giving way to fronts)
+#: changes how often the nights are windy, and its calm, clear nights between the fronts
+#: stay as calm (our argument; Stull 1988, ch. 9 (m)).
+STEP_QUANTILES = (0.1, 0.5)
+#: Largest ratio between a measured step and :data:`KMH_FACTOR` for the step to read as
+#: km h-1 (2.57 to 5.04): :data:`fluxpart.split_factor.UNIT_FIT`'s tolerance (our choice).
+STEP_FIT = 1.4
+#: Fewest night records with u* in each span either side [1]: about four nights of
+#: 30-minute records, eight of 60-minute ones (our choice).
+_MIN_STEP_RECORDS = 60
+
+
+def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
+    """The day from which the nights' u* steps up about 3.6 times and stays so, or None.
+
+    A sonic's or logger's program changed to write u* in km h-1 multiplies every later
+    value by 3.6 from one day on. The nights' u* is set by the wind and the surface's
+    roughness (u* = κU / ln((z - d) / z0), Stull 1988, ch. 9 (m)): between one fortnight
+    and the next neither changes by such a factor in one step, and none stays so for six
+    weeks, except through the surface itself. Leaf-out raises z0 over weeks, not in a
+    day; snowmelt raises it about twofold (z0 of snow about 0.001 m, of short grass about
+    0.01 m, Garratt 1992, ch. 3 (m): u* at a 3 m tower a factor ln(3000) / ln(300) = 1.4,
+    and at most about 2 with the stable snow nights); a harvest lowers it (a step down,
+    not judged here). A change of weather regime (a dry season's calm anticyclone giving
+    way to fronts) can step the nights' median so, but not their calmest nights: a unit
+    multiplies every value. So a step up of 2.57 to 5.04 times (:data:`KMH_FACTOR` within
+    :data:`STEP_FIT`) in the nights' 10th percentile and median (:data:`STEP_QUANTILES`)
+    over both spans of :data:`STEP_SPANS_DAYS` either side of one day (both spans within
+    the record), whose later values divided by 3.6 read as towers' nights
+    (:data:`TOWER_NIGHT_MEDIAN`), is named. A step back down (km h-1 for some months,
+    then m s-1 again) is found by its step up; a record in km h-1 from its start has no
+    step (:func:`ustar_beyond_surface_layer` judges its level).
+
+    Parameters
+    ----------
+    ustar : array_like
+        u* of each record as read [m s-1], NaN where missing; 0 (a logger's code for
+        missing) is left out.
+    is_night : array_like of bool
+        The night mask of the records.
+    index : pandas.DatetimeIndex
+        Interval starts of the records, increasing.
+
+    Returns
+    -------
+    dict or None
+        ``at`` (the first day of the higher values, a Timestamp), ``ratios`` (the step
+        of each quantile of :data:`STEP_QUANTILES` over each span of
+        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after``
+        (the nights' median u* over the fortnights either side [m s-1]); None where no
+        day so steps.
+
+    References
+    ----------
+    Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology. Kluwer, ch. 9 (m).
+    Garratt, J. R. (1992). The Atmospheric Boundary Layer. Cambridge University Press,
+    ch. 3 (roughness lengths of snow, grass, crops and forests) (m).
+    Page, E. S. (1954). Continuous inspection schemes. Biometrika 41(1/2):100-115 (the
+    cumulative sum that locates a change) (m).
+    """
+    ustar = np.asarray(ustar, dtype=float)
+    with np.errstate(invalid="ignore"):
+        kept = np.asarray(is_night, dtype=bool) & np.isfinite(ustar) & (ustar > 0)
+    times = pd.DatetimeIndex(index)[kept]
+    values = ustar[kept]
+    if values.size < 2 * _MIN_STEP_RECORDS:
+        return None
+    series = pd.Series(values, index=times)
+    # the first night record of each day; the spans before and after it (running quantiles
+    # over time windows, the later span's on the record read backwards)
+    days = pd.DatetimeIndex(np.unique(times.normalize()))
+    first = times.searchsorted(days)
+    backwards = pd.Series(values[::-1], index=pd.DatetimeIndex(
+        (times[-1] - times[::-1]).to_numpy() + np.datetime64("2000-01-01")))
+    ratios, medians = [], None
+    for span in STEP_SPANS_DAYS:
+        window = f"{span}D"
+        before = series.rolling(window, closed="left")
+        after = backwards.rolling(window, closed="right")
+        # a span must lie within the record and hold enough nights
+        enough = ((days - pd.Timedelta(days=span) >= times[0].normalize())
+                  & (days + pd.Timedelta(days=span) <= times[-1])
+                  & (before.count().to_numpy()[first] >= _MIN_STEP_RECORDS)
+                  & (after.count().to_numpy()[::-1][first] >= _MIN_STEP_RECORDS))
+        for quantile in STEP_QUANTILES:
+            low_side = before.quantile(quantile).to_numpy()[first]
+            high_side = after.quantile(quantile).to_numpy()[::-1][first]
+            with np.errstate(invalid="ignore", divide="ignore"):
+                ratios.append(np.where(enough, high_side / low_side, np.nan))
+            if medians is None and quantile == 0.5:
+                medians = (low_side, high_side)          # the fortnights' medians
+    ratios = np.array(ratios)
+    low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
+    converted = medians[1] / KMH_FACTOR
+    with np.errstate(invalid="ignore"):
+        stepped = (np.all((ratios >= low) & (ratios <= high), axis=0)
+                   & (converted >= TOWER_NIGHT_MEDIAN[0]) & (converted <= TOWER_NIGHT_MEDIAN[1]))
+    if not stepped.any():
+        return None
+    # the day of the largest step over every quantile and span together, then the record
+    # the step starts at: the split of the log values within a fortnight either side
+    # that departs most from their mean (a CUSUM change point, Page 1954 (m))
+    at = int(np.flatnonzero(stepped)[np.argmax(np.log(ratios[:, stepped]).sum(axis=0))])
+    near = times.searchsorted([days[at] - pd.Timedelta(days=STEP_SPANS_DAYS[0]),
+                               days[at] + pd.Timedelta(days=STEP_SPANS_DAYS[0])])
+    logs = np.log(values[near[0]:near[1]])
+    split = near[0] + int(np.argmax(np.abs(np.cumsum(logs - logs.mean()))[:-1])) + 1
+    return {"at": times[split].normalize(), "ratios": [float(r) for r in ratios[:, at]],
+            "before": float(medians[0][at]), "after": float(medians[1][at])}
+
+
+def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
+                         column: str = "ustar") -> str | None:
+    """A warning where the nights' u* steps up as km h-1 from one day on (:func:`ustar_step_up`).
+
+    Parameters
+    ----------
+    ustar, is_night, index
+        As :func:`ustar_step_up`.
+    column : str
+        The file's column of u*, to name it.
+
+    Returns
+    -------
+    str or None
+        The warning naming the column, the day, the step and the nights' medians either
+        side; None where no day so steps.
+
+    References
+    ----------
+    Stull, R. B. (1988). An Introduction to Boundary Layer Meteorology, ch. 9 (m).
+    """
+    step = ustar_step_up(ustar, is_night, index)
+    if step is None:
+        return None
+    calm, short, calm_long, long = step["ratios"]
+    days_short, days_long = STEP_SPANS_DAYS
+    return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
+            f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
+            f"over the {days_short} days either side; {long:.1f} times over {days_long} "
+            f"days), and its calm nights' too (the 10th percentile {calm:.1f} and "
+            f"{calm_long:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
+            "from that day reads; the nights' u* follows the wind and the surface's "
+            "roughness, which neither step so in a day and stay so for weeks (snowmelt "
+            "about doubles it, a harvest lowers it, a new weather regime changes how often "
+            "nights are windy, and its calm nights stay calm): the calm nights after that day would be judged at a "
+            "threshold of the other unit; convert the later values to m s-1 (km h-1 / "
+            f"{KMH_FACTOR:g}) or check what changed at the tower that day")

@@ -42,3 +42,66 @@ def test_one_stormy_month_is_not_named_and_half_a_year_from_a_program_change_is(
     later = np.where(index.month >= 7, ustar * 3.6, ustar)
     text = ustar_scale.ustar_beyond_surface_layer(later, night, index, "short")
     assert text is not None and "6 months (2021-07 .. 2021-12)" in text
+
+
+# round mistakes57: a step up of the nights' u* as km h-1 from one day on. Source: the
+# logarithmic profile above; roughness lengths of snow about 0.001 m and of grass 0.05 m
+# (Garratt 1992, ch. 3 (m)); km h-1 = 3.6 m s-1 (SI).
+def test_ustar_in_km_per_hour_from_a_program_change_is_named_over_a_calm_forest():
+    ustar, night, index = _windy_grass_nights(2)
+    calm = ustar * 0.6                           # a calm site, nights' median about 0.2
+    later = np.where(index >= pd.Timestamp("2021-07-01"), calm * 3.6, calm)
+    # within a forest's (and the default canopy's) bounds: the level alone names nothing
+    assert ustar_scale.ustar_beyond_surface_layer(later, night, index, "tall") is None
+    assert ustar_scale.ustar_step_up(calm, night, index) is None
+    step = ustar_scale.ustar_step_up(later, night, index)
+    assert step is not None and step["at"] == pd.Timestamp("2021-07-01")
+    assert all(3.6 / 1.4 <= r <= 3.6 * 1.4 for r in step["ratios"])
+    text = ustar_scale.ustar_stepped_to_kmh(later, night, index, "u_fric")
+    assert "'u_fric'" in text and "from 2021-07-01" in text and "km h-1" in text
+
+
+def test_snowmelt_a_harvest_and_a_fortnight_of_gales_are_not_named():
+    ustar, night, index = _windy_grass_nights(3)
+    wind = ustar * np.log(3.0 / 0.05) / 0.41
+    # snow (z0 0.001 m) until 15 April, grass (0.05 m) after: u* steps up ln(3000)/ln(60)
+    z0 = np.where(index < pd.Timestamp("2021-04-15"), 0.001, 0.05)
+    melt = 0.41 * wind / np.log(3.0 / z0)
+    assert 1.9 < np.log(3000.0) / np.log(60.0) < 2.0
+    assert ustar_scale.ustar_step_up(melt, night, index) is None
+    # a crop cut on 1 September: a step down, of about km h-1's size
+    harvest = np.where(index >= pd.Timestamp("2021-09-01"), ustar / 3.6, ustar)
+    assert ustar_scale.ustar_step_up(harvest, night, index) is None
+    # gales for a fortnight: sudden, but not kept for six weeks
+    gales = (index >= pd.Timestamp("2021-11-01")) & (index < pd.Timestamp("2021-11-15"))
+    assert ustar_scale.ustar_step_up(np.where(gales, ustar * 3.6, ustar), night,
+                                     index) is None
+
+
+def test_km_per_hour_for_some_months_only_is_named_at_its_start():
+    ustar, night, index = _windy_grass_nights(4)
+    calm = ustar * 0.6
+    spell = (index >= pd.Timestamp("2021-05-10")) & (index < pd.Timestamp("2021-10-01"))
+    step = ustar_scale.ustar_step_up(np.where(spell, calm * 3.6, calm), night, index)
+    assert step is not None and step["at"] == pd.Timestamp("2021-05-10")
+
+
+def test_a_dry_seasons_calm_giving_way_to_fronts_is_not_named():
+    # nights of a calm anticyclone (u* 0.08) and of fronts (0.40, a windy night's u* under
+    # a 6 m s-1 wind over grass, kU/ln(60)): 85 % calm until July, 85 % windy after
+    ustar, night, index = _windy_grass_nights(5)
+    rng = np.random.default_rng(5)
+    nights = index.normalize()
+    windy_share = np.where(nights < pd.Timestamp("2021-07-01"), 0.15, 0.85)
+    draw = pd.Series(rng.random(index.size), index=index).groupby(nights).transform("first")
+    level = np.where(draw.to_numpy() < windy_share, 0.40, 0.08)
+    regime = level * np.exp(rng.normal(0.0, 0.2, index.size))
+    lo = regime[index < pd.Timestamp("2021-07-01")]
+    hi = regime[index >= pd.Timestamp("2021-07-01")]
+    assert np.median(hi) / np.median(lo) > 3.6 / 1.4          # the median steps as km h-1
+    assert ustar_scale.ustar_step_up(regime, night, index) is None
+    # the same record written in km h-1 from October: every night steps, and is named
+    kmh = np.where(index >= pd.Timestamp("2021-10-01"), regime * 3.6, regime)
+    step = ustar_scale.ustar_step_up(kmh, night, index)
+    assert step is not None
+    assert abs(step["at"] - pd.Timestamp("2021-10-01")) <= pd.Timedelta(days=2)

@@ -10,6 +10,11 @@ short) and the clean-site probes' 78 site-years (``probe_clean_sites.py``,
 alarm. Also the power: each record's u* times 3.6 (km h-1). About five minutes::
 
     .venv/bin/python tests/benchmarks/bench_ustar_scale.py --trials /tmp/fluxpart-trial27
+
+``--step`` (round mistakes57) judges ``ustar_scale.ustar_step_up`` instead, once per record
+(it knows no canopy): a call on a clean record is a false alarm; the power is each record's
+u* times 3.6 from a day drawn (seeded by the record's place in the list) between its 60th
+day and 60 days before its end, named where the day found lies within 3 days of it.
 """
 from __future__ import annotations
 
@@ -20,6 +25,7 @@ import tomllib
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
@@ -67,7 +73,10 @@ def _records(trials):
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser()
     parser.add_argument("--trials", nargs="*", default=[])
+    parser.add_argument("--step", action="store_true")
     args = parser.parse_args(argv)
+    if args.step:
+        return _step_main(args.trials)
     count, false_calls, hits, short_calls = 0, [], 0, []
     for name, frame, canopy in _records(args.trials):
         ustar = frame["ustar"].to_numpy(dtype=float)
@@ -83,6 +92,34 @@ def main(argv=None) -> int:
     print(f"generated forests judged as short canopies named: {len(short_calls)} "
           f"{short_calls or ''}")
     print(f"u* x3.6 (km h-1) named: {hits} of {count}")
+    return 0
+
+
+def _step_main(trials) -> int:
+    """False alarms and power of ``ustar_scale.ustar_step_up`` (``--step``)."""
+    count, false_calls, hits, misses = 0, [], 0, []
+    for name, frame, _ in _records(trials):
+        if "(as short)" in name:
+            continue
+        ustar = frame["ustar"].to_numpy(dtype=float)
+        with np.errstate(invalid="ignore"):
+            night = frame["rg"].to_numpy(dtype=float) < 10.0
+        index = frame.index
+        if ustar_scale.ustar_step_up(ustar, night, index) is not None:
+            false_calls.append(name)
+        days = (index[-1] - index[0]).days
+        rng = np.random.default_rng(count)
+        at = (index[0].normalize()
+              + pd.Timedelta(days=int(rng.integers(60, max(61, days - 60)))))
+        step = ustar_scale.ustar_step_up(np.where(index >= at, ustar * ustar_scale.KMH_FACTOR,
+                                                  ustar), night, index)
+        found = step is not None and abs(step["at"] - at) <= pd.Timedelta(days=3)
+        hits += found
+        if not found:
+            misses.append(f"{name} {at:%Y-%m-%d}")
+        count += 1
+    print(f"step false alarms: {len(false_calls)} of {count} {false_calls or ''}")
+    print(f"u* x3.6 from a day named: {hits} of {count}; missed: {misses}")
     return 0
 
 

@@ -1,4 +1,4 @@
-"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-55).
+"""Probe: plausible mistakes in the data a tower team hands over (rounds mistakes44-57).
 
 Each case edits a copy of the grassland example's file (``examples/quillmoor_grassland.csv``,
 fictional) as a user's spreadsheet, logger or merge would (``MAIZE_CASES``: the maize
@@ -1302,6 +1302,38 @@ CASES.update({
     "u* x0.7 from July (sonic program)": ustar_low_from_july,
 })
 
+
+# round mistakes57: u* written in km h-1 from a program change on, at a site whose canopy
+# is written tall or left unset (the default, "tall"), where the nights' level is within
+# a forest's bounds and so was not named
+def _ustar_kmh_from(frame, start, end=None):
+    starts = _stamps(frame) - pd.Timedelta(minutes=1)
+    late = (starts >= pd.Timestamp(start)).to_numpy() & _present(frame, "friction_velocity")
+    if end is not None:
+        late &= (starts < pd.Timestamp(end)).to_numpy()
+    ustar = frame["friction_velocity"].to_numpy()
+    return _with(frame, "friction_velocity", np.where(late, np.round(ustar * 3.6, 3), ustar))
+
+
+def _canopy(text, canopy):
+    line = 'canopy = "short"'
+    return text.replace(line, f'canopy = "{canopy}"' if canopy else "", 1)
+
+
+CASES.update({
+    "u* in km h-1 from July, canopy tall written": lambda f, t: (
+        _ustar_kmh_from(f, "2021-07-01"), _canopy(t, "tall")),
+    "u* in km h-1 from July, canopy unset": lambda f, t: (
+        _ustar_kmh_from(f, "2021-07-01"), _canopy(t, None)),
+    "u* in km h-1 from 17 April, canopy unset": lambda f, t: (
+        _ustar_kmh_from(f, "2021-04-17"), _canopy(t, None)),
+    "u* in km h-1 from 9 September, canopy tall written": lambda f, t: (
+        _ustar_kmh_from(f, "2021-09-09"), _canopy(t, "tall")),
+    "u* in km h-1 May to August only, canopy tall written": lambda f, t: (
+        _ustar_kmh_from(f, "2021-05-01", "2021-09-01"), _canopy(t, "tall")),
+    "u* in km h-1 in the year's last 40 days, canopy unset": lambda f, t: (
+        _ustar_kmh_from(f, "2021-11-21"), _canopy(t, None)),
+})
 
 # Round mistakes55 on the maize example's logger export (two half-year files in civil time,
 # the turbulent flux and the storage term in separate columns): each case edits the files'
