@@ -143,10 +143,9 @@ def mistakes(site):
 def write_case(module, suffix, site, data, folder, starts):
     """The trial's own logger file and TOML; `starts`: interval-end stamps declared start."""
     layout = module.LAYOUTS[site.key]
-    if starts:
-        step = data.index[1] - data.index[0]
+    if starts:          # each record's end written, declared as its start
         data = data.copy()
-        data.index = data.index + (step if layout[2] == "start" else pd.Timedelta(0))
+        data.index = data.index + (data.index[1] - data.index[0])
         layout = (layout[0], layout[1], "start", *layout[3:])
     return write_logger_site(site, data, folder, layout, module.UNIT_CONVERSIONS, PROCESSING,
                              module.EVENTS.get(site.key, ()), writer="probe_clock_trials.py",
