@@ -55,7 +55,7 @@ import pandas as pd
 _HERE = Path(__file__).resolve().parent
 sys.path[:0] = [str(_HERE.parents[1]), str(_HERE)]
 
-from bench_clock_mistakes import daylight_stamps, degrees_minutes  # noqa: E402
+from bench_clock_mistakes import _sunday, degrees_minutes  # noqa: E402
 from trial_scoring import write_logger_site  # noqa: E402
 
 from fluxpart.config import Config  # noqa: E402
@@ -71,6 +71,26 @@ PROCESSING = "ustar_bootstrap_draws = 0\nrandom_error_draws = 100\n"
 #: words of a text about the clock or the site's geometry (bench_clock_mistakes' set)
 CLOCK_WORDS = re.compile(r"clock|stamp|latitude|longitude|utc_offset|time_zone|time_marks|"
                          r"hemisphere|daylight", re.IGNORECASE)
+
+
+def daylight_stamps(index, southern):
+    """Civil stamps of a logger on daylight-saving time (+1 h in summer) [local time], in
+    every year the record spans (``bench_clock_mistakes.daylight_stamps`` takes the first
+    year's dates only, and the trials' budget years start in other months).
+
+    Northern rule: the last Sundays of March and October; southern: the first Sundays of
+    October and April; the change at 02:00 standard time (common practice (m)).
+    """
+    summer = np.zeros(len(index), bool)
+    for year in range(index[0].year - 1, index[-1].year + 1):
+        if southern:
+            start = _sunday(year, 10, False) + pd.Timedelta(hours=2)
+            end = _sunday(year + 1, 4, False) + pd.Timedelta(hours=2)
+        else:
+            start = _sunday(year, 3, True) + pd.Timedelta(hours=2)
+            end = _sunday(year, 10, True) + pd.Timedelta(hours=2)
+        summer |= (index >= start) & (index < end - pd.Timedelta(hours=1))
+    return index + pd.to_timedelta(np.where(summer, 60, 0), unit="min")
 
 
 def _drifted(data, step_minutes):
@@ -185,7 +205,8 @@ def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--trials", nargs="*", default=["29", "30", "28", "27"])
     parser.add_argument("--sites", help="comma-separated site keys (default: all)")
-    parser.add_argument("--only", help="only the mistakes whose name contains this")
+    parser.add_argument("--only", help="only the mistakes whose name contains one of these "
+                        "(comma-separated)")
     parser.add_argument("--csv", help="write one row per case")
     parser.add_argument("--no-run", action="store_true", help="check only")
     args = parser.parse_args(argv)
@@ -220,7 +241,8 @@ def main(argv=None) -> int:
                              "text": (alarms + [""])[0][:200]})
                 print(label, "none", clean_status, (alarms + [""])[0][:200], flush=True)
                 for mistake, (change, site_changes, starts) in mistakes(site).items():
-                    if args.only and args.only not in mistake:
+                    if args.only and not any(part in mistake
+                                             for part in args.only.split(",")):
                         continue
                     planted = dataclasses.replace(site, **site_changes)
                     edited = data if change is None else change(data, step)
