@@ -27,7 +27,7 @@ For each case ``fluxpart check``'s work is done in this one process (the reader,
 ``check_record``: the clock verdict and the preflight findings): *refused* where the reader
 refuses or a problem stops the run, *warned* where a new text names the clock, the stamps,
 the latitude, the longitude or ``utc_offset``, *silent* otherwise. Every silent case (and
-the unplanted base) is then run (:func:`fluxpart.process_site_config`, what ``fluxpart
+the unplanted base) and every warned case (the run goes on past a warning) is then run (:func:`fluxpart.process_site_config`, what ``fluxpart
 run`` calls; a run warning naming the clock makes it *warned (run)*) and the annual NEE's
 move is printed in units of the base run's stated 1 sigma of NEE (``nee_uncertainty_total``;
 the runs use ``ustar_bootstrap_draws = 0`` and ``random_error_draws = 100`` to save time, so
@@ -256,12 +256,12 @@ def main(argv=None) -> int:
                         status = "warned" if said else "silent"
                     row = {"site": label, "mistake": mistake, "status": status,
                            "text": (said + [""])[0][:200]}
-                    if status == "silent" and base is not None:
+                    if status in ("silent", "warned") and base is not None:
                         annual, warned = run_case(path)
                         if annual is None:
                             row.update(status="refused (run)", text=warned[0][:200])
                         else:
-                            if warned:
+                            if warned and status == "silent":
                                 row.update(status="warned (run)", text=warned[0][:200])
                             years = min(len(annual), len(base))
                             moved = (annual["nee"].to_numpy()[:years]
@@ -284,23 +284,25 @@ def main(argv=None) -> int:
 
 
 def summary(table):
-    """Per mistake: cases, refused, warned, silent, silent beyond 1 sigma."""
-    print("\nmistake | cases | refused | warned | silent | silent > 1 sigma | "
-          "silent |dNEE|/sigma median / max")
+    """Per mistake: cases, refused, warned, silent; silent and warned cases beyond 1 sigma."""
+    print("\nmistake | cases | refused | warned | silent | silent > 1 sigma | silent "
+          "|dNEE|/sigma median / max | warned and run: > 1 sigma, max |dNEE|/sigma")
     for mistake, part in table.groupby("mistake", sort=False):
         status = part["status"].str.split(" ").str[0]
         counts = {s: int((status == s).sum()) for s in ("refused", "warned", "silent")}
+        if mistake == "none":
+            print(f"none | {len(part)} | false alarms "
+                  f"{int((part['status'] == 'false alarm').sum())} | refused "
+                  f"{counts['refused']}")
+            continue
         line = (f"{mistake} | {len(part)} | {counts['refused']} | {counts['warned']} | "
                 f"{counts['silent']}")
-        if mistake == "none":
-            line = (f"none | {len(part)} | false alarms "
-                    f"{int((part['status'] == 'false alarm').sum())} | refused "
-                    f"{counts['refused']}")
-        elif "d_sigma" in part:
-            silent = part[part["status"] == "silent"]["d_sigma"].abs().dropna()
-            if len(silent):
-                line += (f" | {int((silent > 1).sum())} | {silent.median():.1f} / "
-                         f"{silent.max():.1f}")
+        moved = part.get("d_sigma", pd.Series(np.nan, index=part.index)).abs()
+        silent, warned = moved[part["status"] == "silent"].dropna(), moved[
+            status == "warned"].dropna()
+        line += (f" | {int((silent > 1).sum())} | {silent.median():.1f} / {silent.max():.1f}"
+                 if len(silent) else " | - | -")
+        line += (f" | {int((warned > 1).sum())}, {warned.max():.1f}" if len(warned) else " | -")
         print(line)
 
 
