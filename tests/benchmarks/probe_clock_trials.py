@@ -17,8 +17,9 @@ text is a false alarm) and once per planted mistake (the mistakes of
 - ``utc_offset`` of the wrong sign; the latitude's or the longitude's sign flipped; latitude
   and longitude swapped (where |longitude| <= 90); the latitude in degrees-minutes written
   as decimal degrees (52°30' as 52.30);
-- a logger clock that gains 5 min a month (a record at logger stamp t holds the record of
-  t - drift(t), the stamps on the regular grid);
+- a logger clock that gains 5 min a month (a record at logger stamp t holds the average
+  over the interval that began drift(t) earlier in true time, interpolated between the two
+  records it overlaps; the stamps on the regular grid);
 - a clock reset one hour ahead or back half-way through the record (a logger set to
   another zone: an hour of stamps absent, or written twice);
 - a file in UTC declared as local standard time (the stamps ``utc_offset`` hours early).
@@ -95,14 +96,19 @@ def daylight_stamps(index, southern):
 
 def _drifted(data, step_minutes):
     """Records under a logger clock gaining DRIFT_MINUTES_PER_MONTH: the grid stamp t holds
-    the record of t - drift(t), nearest record (NaN before the first)."""
+    the average over the logger's interval, which began drift(t) before t in true time:
+    linearly interpolated between the two records it overlaps (NaN where either is)."""
     elapsed_days = (data.index - data.index[0]) / pd.Timedelta(days=1)
-    lag = np.rint(elapsed_days / 30.44 * DRIFT_MINUTES_PER_MONTH / step_minutes).astype(int)
-    source = np.arange(len(data)) - lag
-    out = data.iloc[np.clip(source, 0, None)].copy()
-    out.index = data.index
-    out.iloc[source < 0] = np.nan
-    return out
+    lag = np.asarray(elapsed_days) / 30.44 * DRIFT_MINUTES_PER_MONTH / step_minutes
+    whole = np.floor(lag).astype(int)
+    part = (lag - whole)[:, None]
+    values = data.to_numpy(dtype=float)
+    rows = np.arange(len(data)) - whole
+    padded = np.vstack([np.full((1, values.shape[1]), np.nan), values])   # row -1: NaN
+    near = padded[np.clip(rows, -1, None) + 1]
+    far = padded[np.clip(rows - 1, -1, None) + 1]
+    return pd.DataFrame((1.0 - part) * near + part * far, index=data.index,
+                        columns=data.columns)
 
 
 def _reset(minutes):
