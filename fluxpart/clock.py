@@ -125,6 +125,17 @@ STEP_TOLERANCE = 10.0
 #: (common practice for robust outlier rules), and the threshold of
 #: :func:`shift_threshold_minutes` applies as well.
 SHORT_RUN_ROBUST_SIGMAS = 6.0
+#: Fewest months with a sunrise and a sunset, and the fewest months from the first to the
+#: last, for a drifting clock to be judged [1]; 6 and 9, our choice: a trend must be seen
+#: over most of a year, so that a seasonal course (a tilted or shaded sensor, whose shift
+#: follows the sun's declination and comes back within the year) cannot pass for one.
+DRIFT_MIN_MONTHS = 6
+DRIFT_MIN_SPAN_MONTHS = 9
+#: Largest robust scatter of the monthly shifts about their straight line in time for a
+#: drifting clock [min]; 6, our choice: a few minutes of cloud scatter on correct sites
+#: (the monthly estimates' resolution), well under the 20 min or more a drift must add up
+#: to (:func:`shift_threshold_minutes`).
+DRIFT_MAX_SCATTER = 6.0
 _DAYLIGHT_SAVING_STEP = 60.0      # minutes: the daylight-saving change of the clock
 #: Months that can hold daylight-saving time, by hemisphere: in the north from the last
 #: Sunday of March (European Union) or the second Sunday of March (United States) to the
@@ -900,6 +911,63 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
     return _short_shifted_run(used, off, peak, months, threshold)
 
 
+def _drifting_clock(used: pd.DataFrame, threshold: float):
+    """Rate [min per month] and first and last month where the shifts follow a clock drift.
+
+    A logger clock that runs fast or slow at a steady rate moves sunrise, solar noon and
+    sunset alike by minutes that grow in proportion to the time since it was last set:
+    the monthly shifts of the peak and of the rise and fall then lie on one straight line
+    in time, and the day length is kept. A tilted or shaded sensor moves the peak with the
+    sun's declination, a course that returns within the year, and changes the day length;
+    clouds scatter a month by a few minutes. Named where at least
+    :data:`DRIFT_MIN_MONTHS` months with a sunrise and a sunset spanning
+    :data:`DRIFT_MIN_SPAN_MONTHS` months or more give a least-squares line of the peak
+    shifts that changes by the threshold or more over the record, the peak's and the
+    edges' robust scatter about their lines stay within :data:`DRIFT_MAX_SCATTER`, the
+    edges' line changes by the peak's within a quarter, and the day-length mismatch
+    changes by less than half of it (a clock keeps the day's length). None otherwise.
+
+    References
+    ----------
+    Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press, ch. 1 (solar
+    noon and day length from the stamps' clock) (m).
+    """
+    used = used[used["sun_sets"].astype(bool)]
+    peak = used["shift_minutes"].to_numpy(dtype=float)
+    edge = used["edge_shift_minutes"].to_numpy(dtype=float)
+    width = _daylength_mismatch(used)
+    ok = np.isfinite(peak) & np.isfinite(edge)
+    if ok.sum() < DRIFT_MIN_MONTHS:
+        return None
+    periods = used.index.to_period("M")
+    months = np.array([(p - periods[0]).n for p in periods], dtype=float)
+    months, peak, edge, width = months[ok], peak[ok], edge[ok], width[ok]
+    span = months[-1] - months[0]
+    if span < DRIFT_MIN_SPAN_MONTHS:
+        return None
+
+    def line(values):
+        slope, intercept = np.polyfit(months, values, 1)
+        residual = values - (slope * months + intercept)
+        return slope, scaled_mad(residual, float(np.median(residual)))
+
+    rate, scatter = line(peak)
+    edge_rate, edge_scatter = line(edge)
+    change = rate * span
+    if (abs(change) < threshold or scatter > DRIFT_MAX_SCATTER
+            or edge_scatter > DRIFT_MAX_SCATTER
+            or abs(edge_rate - rate) > 0.25 * abs(rate)):
+        return None
+    finite = np.isfinite(width)
+    if finite.sum() >= DRIFT_MIN_MONTHS:
+        width_rate = np.polyfit(months[finite], width[finite], 1)[0]
+        if abs(width_rate * span) >= 0.5 * abs(change):
+            return None
+    first, last = used.index[ok][0], used.index[ok][-1]
+    return float(rate), first, last, float(rate * months[0] + np.median(
+        peak - rate * months)), float(rate * months[-1] + np.median(peak - rate * months))
+
+
 def _short_shifted_run(used: pd.DataFrame, off: np.ndarray, peak: np.ndarray, months,
                        threshold: float):
     """First and last month and size of one or two months off by a clock step.
@@ -1169,6 +1237,19 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 f"but its rise and fall say {edge_median:+.0f} min (spread {edge_spread:.0f} "
                 f"min) and {100 * agree:.0f} % of {len(used)} months agree: a tilted or partly "
                 "shaded Rg sensor rather than a clock error; not called a clock problem")
+    if status == "consistent":
+        drift = _drifting_clock(used, threshold)
+        if drift is not None:
+            rate, first, last, start, end = drift
+            notes = [n for n in notes if "tilted or partly shaded" not in n]
+            status = "shifted"
+            direction = "later" if rate > 0 else "earlier"
+            problems.append(
+                f"clock: measured Rg comes {abs(rate):.1f} min {direction} against the sun "
+                f"each month, {start:+.0f} min in {first:%Y-%m} to {end:+.0f} min in "
+                f"{last:%Y-%m} (peak and rise and fall agree, the day length kept): the logger "
+                "clock drifts; correct the stamps by the drift (or set the logger clock "
+                "against a time source and mend the record)")
     if status == "consistent":
         run = _shifted_run(used, threshold)
         if run is not None:

@@ -556,3 +556,41 @@ def test_a_potential_of_another_record_is_not_taken_for_the_records_own():
               own[:-1], potential_radiation(rg.index, 30.0, 11.0, 1.0, 30))
     for potential in others:
         assert _check(rg, 48.0, 11.0, 1.0, 30, potential=potential).to_dict() == expected
+
+
+def _drifting(rg, minutes_per_month):
+    """`rg` under a logger clock gaining `minutes_per_month` (30.44-day months): the value
+    at stamp t is the true course at t - drift(t), linearly interpolated between records."""
+    step = (rg.index[1] - rg.index[0]) / pd.Timedelta(minutes=1)
+    days = (rg.index - rg.index[0]) / pd.Timedelta(days=1)
+    lag = np.asarray(days) / 30.44 * minutes_per_month / step          # records
+    position = np.arange(len(rg)) - lag
+    return pd.Series(np.interp(position, np.arange(len(rg)), rg.to_numpy()), index=rg.index)
+
+
+def test_a_drifting_clock_is_named_with_its_rate():
+    """Known truth: a logger clock gaining 5 min a month (Rg timed against pvlib's sun, the
+    stamps 0 to 60 min late from January to December) moves sunrise, noon and sunset alike
+    by minutes that grow with time (Iqbal 1983, ch. 1 (m)). It was called "a tilted or
+    partly shaded Rg sensor rather than a clock error" (round clocktrial55: six of twenty
+    independent trial site-years, the run going on). Now named as a drift with its rate;
+    the same year on time passes."""
+    on_time = synthetic_rg(46.6, 11.2, 1.0, interval_minutes=30, seed=4, cloudiness="cloudy")
+    verdict = _check(_drifting(on_time, 5.0), 46.6, 11.2, 1.0, 30)
+    assert verdict.status == "shifted", verdict.notes
+    text = next(p for p in verdict.problems if "drifts" in p)
+    rate = float(re.search(r"comes ([\d.]+) min later against the sun each month", text)[1])
+    assert abs(rate - 5.0) <= 1.0
+    assert _check(on_time, 46.6, 11.2, 1.0, 30).problems == ()
+
+
+@pytest.mark.parametrize("extra", [{"tilt_degrees": 3.0, "tilt_azimuth": 90.0},
+                                   {"shade_azimuths": (240.0, 300.0)},
+                                   {"wet_summer": 0.5}])
+def test_a_tilted_shaded_or_monsoon_sensor_is_no_drift(extra):
+    """A tilted sensor, a low western sun shaded and a monsoon move the monthly shifts with
+    the seasons, a course that comes back within the year: no drift is named (the correct
+    sites of bench_clock.py, at 35° S)."""
+    rg = synthetic_rg(-35.3, 149.1, 10.0, interval_minutes=30, seed=2, **extra)
+    verdict = _check(rg, -35.3, 149.1, 10.0, 30)
+    assert not any("drifts" in problem for problem in verdict.problems), verdict.problems
