@@ -444,7 +444,9 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     in the day before it and the day after it (half of each day present at least) all
     lie within :data:`_QUIET_STEPS` steps of `resolution` of the run's value, or they
     drift without a daily cycle (each day within that many steps of its own straight
-    line) and meet the run by one step of the resolution at most on both sides."""
+    line) and meet the run by one step of the resolution at most on both sides, not in
+    opposite directions faster than a soil turning within one reading allows
+    (:func:`_turned_within`)."""
     first, last = int(positions[0]), int(positions[-1])
     length = int(per_day)
     value = values[first]
