@@ -444,7 +444,9 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     in the day before it and the day after it (half of each day present at least) all
     lie within :data:`_QUIET_STEPS` steps of `resolution` of the run's value, or they
     drift without a daily cycle (each day within that many steps of its own straight
-    line) and meet the run by one step of the resolution at most on both sides."""
+    line) and meet the run by one step of the resolution at most on both sides, not in
+    opposite directions faster than a soil turning within one reading allows
+    (:func:`_turned_within`)."""
     first, last = int(positions[0]), int(positions[-1])
     length = int(per_day)
     value = values[first]
@@ -462,12 +464,34 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     touching = (kept[0][-1], kept[1][0])
     if any(abs(v - value) > 1.5 * resolution for v in touching):
         return False
+    drifts = []
     for window in windows:
         at = np.flatnonzero(np.isfinite(window))
         slope, intercept = np.polyfit(at, window[at], 1)
         if np.abs(window[at] - (slope * at + intercept)).max() > limit:
             return False
-    return True
+        drifts.append(slope * length)
+    return not _turned_within(drifts, (last - first + 1) / length, resolution)
+
+
+def _turned_within(drifts, days: float, resolution: float) -> bool:
+    """Whether a soil drifting by `drifts` [K per day] in the day before a run and the
+    day after it, in opposite directions, turned within the run faster than one reading
+    held for `days` allows (round review84).
+
+    Conduction smooths a soil's temperature, so near a turn it follows a parabola,
+    ``T = T0 + a t**2`` (Campbell & Norman 1998, ch. 8 (m)). A soil that stays within one
+    step of `resolution` for the `days` of a run has ``a <= 4 resolution / days**2``, and
+    changes over the day beside the run by ``a (days + 1)`` at most: a soil cooling 0.3 K
+    a day before a run of 20 days and warming 0.3 K a day after it went through a cold
+    spell that a probe stopped for those 20 days missed (a logger of 0.1 K allows 0.01 K
+    a day there). A drift reversed within one step a day is not judged (a held value's
+    rounding tilts a day's fit by that much), nor a drift on one side only (a soil that
+    stopped drifting under snow).
+    """
+    before, after = drifts
+    allowed = max(resolution, 4.0 * resolution * (days + 1.0) / days ** 2)
+    return before * after < 0 and min(abs(before), abs(after)) > allowed
 
 
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:

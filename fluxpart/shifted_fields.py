@@ -13,8 +13,8 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
-import pyarrow as pa
-import pyarrow.compute as pc
+
+from .plain_numbers import plain_floats
 
 #: Least count of values far outside their own column for a record to be judged; with
 #: every value inside the neighbouring column's range once read one column over (at most
@@ -59,38 +59,17 @@ def _column_floats(column: pd.Series, decimal: str) -> tuple[np.ndarray, int]:
     (Arrow's cast accepts no blank before or after a number, so stripping changes none of
     them) is cast as it is, without the strip, which costs more than the cast."""
     if decimal == "." and not column.isna().any():
-        plain = _plain_floats(column)
+        plain = plain_floats(column)
         if plain is not None:
             values, blank = plain
             return values, int(blank.size - blank.sum())
     text = column.astype(str).str.strip()
     if decimal != ".":
         text = text.str.replace(decimal, ".", regex=False)
-    plain = _plain_floats(text)
+    plain = plain_floats(text)
     read = plain[0] if plain is not None else np.array(pd.to_numeric(text, errors="coerce"),
                                                        dtype=np.float64)
     return read, int((text != "").sum())
-
-
-def _plain_floats(text: pd.Series):
-    """``(values, blank)`` of a column whose every cell is missing, empty or a plain
-    finite number, by Arrow's string-to-double cast (the reader's fast path,
-    ``io._plain_numbers``; several times quicker than ``pd.to_numeric``, the same values
-    but for the sign of a zero written "-0", which pandas reads as an integer 0 and no
-    range comparison here tells apart); missing and empty cells NaN and `blank`. None
-    where any cell is something else."""
-    try:
-        cells = pa.array(text, type=pa.string(), from_pandas=True)
-        blank = pc.fill_null(pc.equal(cells, ""), True)
-        values = np.array(pc.cast(pc.if_else(blank, pa.scalar(None, pa.string()), cells),
-                                  pa.float64()).to_numpy(zero_copy_only=False),
-                          dtype=np.float64)          # a copy: the caller writes into it
-    except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
-        return None
-    blank = np.asarray(blank.to_numpy(zero_copy_only=False), dtype=bool)
-    if not np.isfinite(values[~blank]).all():
-        return None
-    return values, blank
 
 
 def shifted_records(raw: pd.DataFrame, skip, decimal: str, missing) -> tuple[np.ndarray, int]:

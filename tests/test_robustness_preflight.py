@@ -396,3 +396,32 @@ def test_repeated_nee_with_infinite_values_is_named_as_without(year):
     only = frame.copy()
     only.iloc[:960, only.columns.get_loc("nee")] = np.inf
     assert _repeated_nee(only, 30) == []
+
+
+def test_a_probe_stopped_across_a_cold_spell_of_a_drifting_soil_is_named(year):
+    """A deep soil (no daily cycle) cooling 0.3 K a day, then one 0.1 K reading for 20 days,
+    then warming 0.3 K a day back to it: the soil turned within the run, which conduction
+    allows only slowly (a parabola near a turn, Campbell & Norman 1998, ch. 8 (m): one step
+    held 20 days allows 0.01 K a day beside), so a probe stopped through a cold spell is
+    named (round review84; the drift exception of round falsealarm57 hid it). A soil
+    turning smoothly within one reading is not: a parabola 0.03 K d-2 around a minimum."""
+    frame, _, potential = year
+    soil = frame.assign(tsoil=np.nan)
+    days = (soil.index - pd.Timestamp("2021-10-01")) / pd.Timedelta(days=1)
+    days = np.asarray(days, dtype=float)
+    before = (days >= 0) & (days < 3)
+    held = (days >= 3) & (days < 23)
+    after = (days >= 23) & (days < 26)
+    soil.loc[before, "tsoil"] = np.round(5.95 - 0.3 * days[before], 1)
+    soil.loc[held, "tsoil"] = 5.0
+    soil.loc[after, "tsoil"] = np.round(5.05 + 0.3 * (days[after] - 23), 1)
+    findings = [f for f in _stuck(soil, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly 5 for 20.0 days" in findings[0].message
+    one_sided = soil.copy()                 # stopped drifting: the falsealarm57 exception
+    one_sided.loc[after, "tsoil"] = 5.1
+    one_sided.iloc[np.flatnonzero(after)[::2], one_sided.columns.get_loc("tsoil")] = 5.0
+    assert [f for f in _stuck(one_sided, potential, 30) if f.stage == "input (tsoil)"] == []
+    smooth = frame.assign(tsoil=np.nan)
+    window = (days >= 0) & (days < 8)
+    smooth.loc[window, "tsoil"] = np.round(3.0 + 0.03 * (days[window] - 4) ** 2, 1)
+    assert [f for f in _stuck(smooth, potential, 30) if f.stage == "input (tsoil)"] == []
