@@ -626,6 +626,15 @@ def result_files_without_manifest(directory: Path) -> list[str]:
     return []
 
 
+def _same_place(recorded: str, directory: Path) -> bool:
+    """Whether the folder a run log `recorded` is `directory`, its links and ``..``
+    resolved (``verify r/../r`` named r itself as "the folder the run wrote")."""
+    try:
+        return os.path.realpath(recorded) == os.path.realpath(directory)
+    except (OSError, ValueError):
+        return Path(recorded) == Path(directory).absolute()
+
+
 def lost_manifest_remedy(directory: Path) -> str:
     """"put manifest.json back from a copy of the result", naming the folder the run
     wrote where the run log of `directory` names another one (where a copy may be), for a
@@ -637,7 +646,7 @@ def lost_manifest_remedy(directory: Path) -> str:
     except (OSError, ValueError):
         pass
     where = (f" (its run log says the run wrote {wrote!r})"
-             if isinstance(wrote, str) and Path(wrote) != Path(directory).absolute() else "")
+             if isinstance(wrote, str) and not _same_place(wrote, directory) else "")
     return f"put {MANIFEST_FILE} back from a copy of the result{where}"
 
 

@@ -1760,8 +1760,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                 path, sha, scratch, number)
             if packed is not None:
                 notes.append(f"input file: {str(path)!r} is gone, and {packed[0].name!r} "
-                             "beside it holds its recorded bytes compressed (compressed to "
-                             "archive it after the run?); unpacked, they have the recorded "
+                             "beside it holds its recorded bytes compressed or re-saved "
+                             "(compressed to archive it after the run?); restored, they have "
+                             "the recorded "
                              f"SHA-256 {sha}, and those bytes were rerun")
                 found.append(packed[1])
                 continue
