@@ -299,13 +299,18 @@ def lock_holder(path: Path) -> tuple[int, bool] | None:
     """The process holding the ``flock`` of the file `path` and whether it is stopped.
 
     Read from Linux's ``/proc/locks`` (:func:`flock_holder`) and ``/proc/PID/stat``
-    (state ``T`` or ``t``: stopped by a signal, as by Ctrl-Z, or traced); proc(5).
+    (state ``T`` or ``t``: stopped by a signal, as by Ctrl-Z, or traced); proc(5). The
+    process named must have the file open (``/proc/PID/fd``): the device and inode
+    numbers of ``/proc/locks`` can name another file (a btrfs subvolume's inode numbers
+    repeat under one device number), and the holder may end, its process id reused,
+    between the reads.
 
     Returns
     -------
     tuple of (int, bool) or None
         (process id, stopped); None where there is no ``/proc`` (another system), no
-        such line, or the file is gone.
+        such line, the file is gone, or the process cannot be seen to hold it open
+        (ended, or another user's).
 
     References
     ----------
@@ -318,7 +323,27 @@ def lock_holder(path: Path) -> tuple[int, bool] | None:
     except (OSError, AttributeError, UnicodeDecodeError):   # no /proc, no os.major
         return None
     pid = flock_holder(lines, place)
-    return None if pid is None else (pid, _stopped(pid))
+    if pid is None or not _holds_open(pid, info):
+        return None
+    return pid, _stopped(pid)
+
+
+def _holds_open(pid: int, info: os.stat_result) -> bool:
+    """Whether process `pid` has the file of `info` (its ``os.stat``) open: one of its
+    ``/proc/PID/fd`` entries is that file (same device and inode; proc(5)). False where
+    they cannot be read (the process ended, or is another user's)."""
+    try:
+        with os.scandir(f"/proc/{pid}/fd") as entries:
+            for entry in entries:
+                try:
+                    opened = os.stat(entry.path)
+                except OSError:
+                    continue
+                if (opened.st_dev, opened.st_ino) == (info.st_dev, info.st_ino):
+                    return True
+    except OSError:
+        return False
+    return False
 
 
 def flock_holder(lines, place: str) -> int | None:

@@ -123,3 +123,21 @@ def test_a_python_without_an_optional_compression_module_is_not_broken(tmp_path,
     path.write_bytes(head + b"not a stream")
     assert verify._unpacked(path) is None
     assert verify._restored_text(path, "0" * 64, tmp_path, 0) is None
+
+
+@pytest.mark.skipif(not os.path.isdir("/proc/self/fd"), reason="Linux /proc only")
+def test_a_process_named_by_proc_locks_must_hold_the_lock_file_open(tmp_path, monkeypatch):
+    """/proc/locks names a file by device and inode numbers alone (proc(5)), which can
+    be another file's (btrfs subvolumes repeat inode numbers under one device number),
+    and its process may end, its id reused, before the note is written: a process that
+    does not have the lock file open is not named as its holder."""
+    from fluxpart import resultdir
+
+    path = tmp_path / ".out.lock"
+    path.write_bytes(b"")
+    monkeypatch.setattr(resultdir, "flock_holder", lambda lines, place: os.getpid())
+    monkeypatch.setattr(resultdir.Path, "read_text", lambda self, *a, **k: "")
+    assert resultdir.lock_holder(path) is None
+    with open(path, "rb"):
+        assert resultdir.lock_holder(path) == (os.getpid(), False)
+    assert resultdir.lock_holder(path) is None
