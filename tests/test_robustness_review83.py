@@ -104,9 +104,13 @@ def test_the_folder_the_run_wrote_is_not_named_as_another(copy):
     (copy / "moved" / "run-log.json").write_text(
         log.replace(verify.json.dumps(wrote)[1:-1],
                     verify.json.dumps(str(copy / "moved"))[1:-1]), encoding="utf-8")
-    os.symlink(copy / "moved", copy / "link")
     assert "run log says" not in lost_manifest_remedy(copy / "moved" / ".." / "moved")
-    assert "run log says" not in lost_manifest_remedy(copy / "link")
+    try:
+        os.symlink(copy / "moved", copy / "link")
+    except OSError:   # a system where links need a privilege (Windows)
+        pass
+    else:
+        assert "run log says" not in lost_manifest_remedy(copy / "link")
     (copy / "moved" / "run-log.json").write_text(log, encoding="utf-8")
     assert f"run log says the run wrote {wrote!r}" in lost_manifest_remedy(copy / "moved")
 
