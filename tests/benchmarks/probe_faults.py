@@ -5310,8 +5310,8 @@ def f83_bomb_beside_input():
     """The input gone and a decompression bomb under its name + .gz beside it (1 GiB of
     zeros, 4.7 MB compressed): verify must not take it (exit 2, one error line) and
     must not hold it in memory (it was unpacked whole and re-saved in memory several
-    times over: 2.0 GB for 300 MB of zeros; round review83). The peak memory of the verify process is read
-    by a wrapper process whose only child it is."""
+    times over: 2.0 GB for 300 MB of zeros; round review83). The peak memory of the
+    verify process is read by a wrapper process whose only child it is."""
     import zlib
 
     base = _own_copy("bomb83")
