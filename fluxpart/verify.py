@@ -1782,8 +1782,9 @@ def _input_files(directory: Path, recorded: dict, given, config_path: Path | Non
                                          "result was computed from a file of that name): put "
                                          "the file back, or give its location with --input")
                 raise InputFileError(f"verify: the input file {str(path)!r} recorded in the "
-                                     "manifest (relative to the result folder) does not exist; "
-                                     "give its new location with --input")
+                                     "manifest (relative to the result folder) does not exist"
+                                     f"{_packed_not_taken(path)}; give its new location with "
+                                     "--input")
         actual = file_sha256(path)
         if actual != sha:
             restored = _restored_text(path, sha, scratch, number)
@@ -2077,6 +2078,22 @@ def _packed_beside(path: Path, sha, scratch: Path, number: int):
             if restored is not None:
                 return packed, restored
     return None
+
+
+def _packed_not_taken(path) -> str:
+    """"; NAME.gz beside it does not hold ..." naming the compressed files beside the gone
+    input `path` that :func:`_packed_beside` did not take (other bytes, damaged, or past
+    `MOST_UNPACKED_BYTES`), or "": "does not exist" alone sent the auditor looking for
+    a file that was there (round review83)."""
+    if path is None:
+        return ""
+    beside = [path.name + suffix for _, suffix in PACKED_FORMS
+              if path.with_name(path.name + suffix).is_file()]
+    if not beside:
+        return ""
+    return (f"; {', '.join(map(repr, beside))} beside it does not hold its recorded bytes "
+            f"(its unpacked bytes, re-saved or not, do not have the recorded SHA-256, or it "
+            f"is damaged or unpacks to more than {MOST_UNPACKED_BYTES >> 30} GiB)")
 
 
 def _restored_copy(data: bytes, name: str, scratch: Path, number: int) -> Path:

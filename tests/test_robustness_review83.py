@@ -43,6 +43,7 @@ def test_a_decompression_bomb_beside_the_input_is_given_up_early(copy, capsys, m
     assert main(["verify", "--quiet", str(copy / "out")]) == 2
     err = capsys.readouterr().err
     assert len(err.splitlines()) == 1 and "does not exist" in err
+    assert "'tower.csv.gz' beside it does not hold its recorded bytes" in err
     # the limit is 1 MiB in chunks of 1 MiB: the second chunk passes it and ends the read
     assert read and all(size == 2**20 for size in read) and len(read) <= 2
 
@@ -60,7 +61,11 @@ def test_an_input_too_large_to_hold_is_unpacked_to_a_file_and_checked(copy, caps
     assert "'tower.csv.xz' beside it holds its recorded bytes" in capsys.readouterr().out
     (copy / "tower.csv.xz").write_bytes(lzma.compress(data[:-1] + b"7"))
     assert main(["verify", "--quiet", str(copy / "out")]) == 2
-    assert "does not exist" in capsys.readouterr().err
+    err = capsys.readouterr().err
+    assert "does not exist; 'tower.csv.xz' beside it does not hold its recorded" in err
+    (copy / "tower.csv.xz").unlink()
+    assert main(["verify", "--quiet", str(copy / "out")]) == 2
+    assert "does not exist; give its new location" in capsys.readouterr().err
 
 
 def test_a_restored_copy_that_does_not_match_is_not_left(tmp_path, monkeypatch):
