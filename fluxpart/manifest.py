@@ -612,6 +612,18 @@ def result_files_without_manifest(directory: Path) -> list[str]:
     Such a folder is a result that lost its seal: "not a fluxpart result folder" (verify,
     report, export) and "holds other files ... it is not a fluxpart result folder" (run)
     hid that (round faults47).
+
+    Parameters
+    ----------
+    directory : path-like
+        The folder given as a result.
+
+    Returns
+    -------
+    list of str
+        The run log's and the Parquet tables' names in it, sorted; ``[]`` where it holds
+        a manifest.json, neither a run log nor both the time series and annual tables, or
+        cannot be listed.
     """
     directory = Path(directory)
     try:
@@ -626,10 +638,32 @@ def result_files_without_manifest(directory: Path) -> list[str]:
     return []
 
 
+def _same_place(recorded: str, directory: Path) -> bool:
+    """Whether the folder a run log `recorded` is `directory`, its links and ``..``
+    resolved (``verify r/../r`` named r itself as "the folder the run wrote")."""
+    try:
+        return os.path.realpath(recorded) == os.path.realpath(directory)
+    except (OSError, ValueError):
+        return Path(recorded) == Path(directory).absolute()
+
+
 def lost_manifest_remedy(directory: Path) -> str:
     """"put manifest.json back from a copy of the result", naming the folder the run
     wrote where the run log of `directory` names another one (where a copy may be), for a
-    result folder whose manifest is gone (:func:`result_files_without_manifest`)."""
+    result folder whose manifest is gone (:func:`result_files_without_manifest`).
+
+    Parameters
+    ----------
+    directory : path-like
+        The result folder whose manifest.json is gone.
+
+    Returns
+    -------
+    str
+        The remedy, to follow a colon in a message; the run log's folder is named only
+        where it is another folder, links and ``..`` resolved (an unreadable or damaged
+        run log names none).
+    """
     wrote = None
     try:
         log = json.loads((Path(directory) / RUN_LOG).read_text(encoding="utf-8"))
@@ -637,7 +671,7 @@ def lost_manifest_remedy(directory: Path) -> str:
     except (OSError, ValueError):
         pass
     where = (f" (its run log says the run wrote {wrote!r})"
-             if isinstance(wrote, str) and Path(wrote) != Path(directory).absolute() else "")
+             if isinstance(wrote, str) and not _same_place(wrote, directory) else "")
     return f"put {MANIFEST_FILE} back from a copy of the result{where}"
 
 

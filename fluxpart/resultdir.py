@@ -90,7 +90,7 @@ from .store import (
 
 __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "HeldLock", "check_folder",
            "clean_leftovers", "dangling_link_above", "folder_identity", "folder_lock", "interrupted_writes",
-           "lock_file", "lock_holder", "make_staging", "read_folder",
+           "flock_holder", "lock_file", "lock_holder", "make_staging", "read_folder",
            "recover_missing",
            "replace_refusal", "swapped_in", "write_folder"]
 
@@ -298,30 +298,83 @@ def _acquire(lock, directory, path: Path, timeout: float, notify) -> None:
 def lock_holder(path: Path) -> tuple[int, bool] | None:
     """The process holding the ``flock`` of the file `path` and whether it is stopped.
 
-    Read from Linux's ``/proc/locks`` (a ``FLOCK`` line naming the process id and the
-    file as ``MAJOR:MINOR:INODE``, the device numbers in hex) and ``/proc/PID/stat``
-    (state ``T`` or ``t``: stopped by a signal, as by Ctrl-Z, or traced); proc(5).
+    Read from Linux's ``/proc/locks`` (:func:`flock_holder`) and ``/proc/PID/stat``
+    (state ``T`` or ``t``: stopped by a signal, as by Ctrl-Z, or traced); proc(5). The
+    process named must have the file open (``/proc/PID/fd``): the device and inode
+    numbers of ``/proc/locks`` can name another file (a btrfs subvolume's inode numbers
+    repeat under one device number), and the holder may end, its process id reused,
+    between the reads.
 
     Returns
     -------
     tuple of (int, bool) or None
         (process id, stopped); None where there is no ``/proc`` (another system), no
-        such line, or the file is gone.
+        such line, the file is gone, or the process cannot be seen to hold it open
+        (ended, or another user's).
+
+    References
+    ----------
+    proc(5), Linux man-pages: ``/proc/locks`` and ``/proc/PID/stat``.
     """
     try:
         info = os.stat(path)
         lines = Path("/proc/locks").read_text().splitlines()
-    except OSError:
+        place = f"{os.major(info.st_dev):02x}:{os.minor(info.st_dev):02x}:{info.st_ino}"
+    except (OSError, AttributeError, UnicodeDecodeError):   # no /proc, no os.major
         return None
-    place = f"{os.major(info.st_dev):02x}:{os.minor(info.st_dev):02x}:{info.st_ino}"
+    pid = flock_holder(lines, place)
+    if pid is None or not _holds_open(pid, info):
+        return None
+    return pid, _stopped(pid)
+
+
+def _holds_open(pid: int, info: os.stat_result) -> bool:
+    """Whether process `pid` has the file of `info` (its ``os.stat``) open: one of its
+    ``/proc/PID/fd`` entries is that file (same device and inode; proc(5)). False where
+    they cannot be read (the process ended, or is another user's)."""
+    try:
+        with os.scandir(f"/proc/{pid}/fd") as entries:
+            for entry in entries:
+                try:
+                    opened = os.stat(entry.path)
+                except OSError:
+                    continue
+                if (opened.st_dev, opened.st_ino) == (info.st_dev, info.st_ino):
+                    return True
+    except OSError:
+        return False
+    return False
+
+
+def flock_holder(lines, place: str) -> int | None:
+    """The process id holding a ``flock`` of the file at `place` in the lines of
+    ``/proc/locks``, or None.
+
+    Parameters
+    ----------
+    lines : iterable of str
+        The lines of ``/proc/locks``, as ``1: FLOCK  ADVISORY  WRITE 17964
+        fe:00:2260995 0 EOF``; a blocked waiter's line reads ``1: -> FLOCK ...`` and is
+        not the holder.
+    place : str
+        The file as ``MAJOR:MINOR:INODE``, the device numbers in hex (two digits at
+        least), the inode in decimal.
+
+    Returns
+    -------
+    int or None
+        The holder's process id; None where no line holds it, or the line's process id
+        is 0 (a process this one cannot name).
+
+    References
+    ----------
+    proc(5), Linux man-pages: ``/proc/locks``.
+    """
     for line in lines:
-        # "1: FLOCK  ADVISORY  WRITE 17964 fe:00:2260995 0 EOF" (a blocked waiter's line
-        # reads "1: -> FLOCK ...": not the holder)
         fields = line.split()
         if len(fields) >= 6 and fields[1] == "FLOCK" and fields[5] == place \
-                and fields[4].isdigit():
-            pid = int(fields[4])
-            return pid, _stopped(pid)
+                and fields[4].isdigit() and int(fields[4]) > 0:
+            return int(fields[4])
     return None
 
 

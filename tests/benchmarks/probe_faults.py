@@ -5306,6 +5306,37 @@ def f47_input_compressed_and_changed():
            and "tower.csv" in done.stderr, f"exit {done.returncode}, {_stderr_tail(done)}")
 
 
+def f83_bomb_beside_input():
+    """The input gone and a decompression bomb under its name + .gz beside it (1 GiB of
+    zeros, 4.7 MB compressed): verify must not take it (exit 2, one error line) and
+    must not hold it in memory (it was unpacked whole and re-saved in memory several
+    times over: 2.0 GB for 300 MB of zeros; round review83). The peak memory of the
+    verify process is read by a wrapper process whose only child it is."""
+    import zlib
+
+    base = _own_copy("bomb83")
+    (base / "b" / "tower.csv").unlink()
+    packer = zlib.compressobj(1, zlib.DEFLATED, 31)      # 31: a gzip wrapper (zlib docs)
+    zeros = bytes(2**24)
+    with open(base / "b" / "tower.csv.gz", "wb") as out:
+        for _ in range(64):
+            out.write(packer.compress(zeros))
+        out.write(packer.flush())
+    wrapper = ("import resource, subprocess, sys\n"
+               "done = subprocess.run(sys.argv[1:], capture_output=True, text=True)\n"
+               "sys.stderr.write(done.stderr)\n"
+               "print(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss)\n"
+               "sys.exit(done.returncode)")
+    started = time.time()
+    done = subprocess.run([PY, "-c", wrapper, PY, "-m", "fluxpart", "verify", base / "r"],
+                          env=ENV, cwd=base / "b", capture_output=True, text=True,
+                          timeout=600)
+    peak_mb = int(done.stdout.split()[-1]) / 1024 if done.stdout.split() else float("nan")
+    record("a decompression bomb named as the gone input's .gz", one_line(done)
+           and peak_mb < 1024, f"exit {done.returncode}, peak {peak_mb:.0f} MB, "
+           f"{time.time() - started:.1f} s, {_stderr_tail(done)}")
+
+
 def _wait_for(check, seconds=120):
     deadline = time.time() + seconds
     while time.time() < deadline and not check():
@@ -5639,13 +5670,16 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f47_out_spelled_otherwise, f47_thread_env_garbage, f47_windows_zip,
           f47_manifest_utf16, f47_kill9_first_run_then_commands,
           f47_input_through_dropped_link, f47_network_through_tar, f47_manifest_deleted,
-          f47_verify_json_zone_locale, f47_diff_of_copies]
+          f47_verify_json_zone_locale, f47_diff_of_copies,
+          # round review83
+          f83_bomb_beside_input]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
-    wanted = [a for a in sys.argv[1:] if a.startswith(("f_", "f45_", "f46_", "f47_", "f56_"))]
+    wanted = [a for a in sys.argv[1:]
+              if a.startswith(("f_", "f45_", "f46_", "f47_", "f56_", "f83_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
