@@ -348,6 +348,15 @@ class Config:
         intervals by 21–31 % on average (several-fold on some) without changing their
         coverage; on a known-truth trial with soil and canopy parts it raised nighttime
         Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, round resp2temp50).
+    driver_share_spread : str
+        ``"off"`` (default): the temperature-driver part's weight is at least s², s the
+        other temperature's share in the night's best mixture of the two fits
+        (:func:`fluxpart.driver_mixture.mixture_share`); ``"bootstrap"``: at least
+        s² + v, v the share's sampling variance over resampled nights
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`). Changes the stated
+        uncertainty only, never a central value; measured and left off by default
+        (DEVELOPERS.md, round trace31: the share is biased low rather than uncertain
+        where a canopy part respires on air temperature).
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
@@ -638,6 +647,7 @@ class Config:
     respiration_driver: str = "auto"
     respiration_form: str = "average"
     driver_day_prior: str = "night"
+    driver_share_spread: str = "off"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
     e0_min_points: int = 6
@@ -927,10 +937,11 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 
 #: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
 #: only away from their default, with which a run is that of the release before them.
-_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend")
+_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal"),
+            "driver_share_spread": ("off", "bootstrap"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

@@ -105,6 +105,7 @@ __all__ = [
     "random_error_model",
     "record_inputs",
     "record_random_error",
+    "share_second_moment",
     "structural_sigma",
     "timeseries_random_error",
     "uncertainty_budget",
@@ -2264,7 +2265,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
                   fill_sides=None, daytime_result=None, light_shape=None,
-                  driver_day_prior="night") -> UncertaintyInputs:
+                  driver_day_prior="night", driver_share_spread="off") -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2332,6 +2333,11 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     driver_day_prior : str, optional
         ``"night"`` (default) or ``"equal"``: the weight of the daytime records' part
         of the respiration-temperature difference (:func:`driver_day_weight`).
+    driver_share_spread : str, optional
+        ``"off"`` (default): the weight is at least s², s the night's mixture share;
+        ``"bootstrap"``: at least s² + v, v the sampling variance of s over resampled
+        nights (:func:`fluxpart.driver_mixture.mixture_share_draws`), the second moment
+        of a share known only to its sampling error (Notes of :func:`driver_weight`).
 
     Returns
     -------
@@ -2371,6 +2377,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         driver_mixture.mixture_share(nee_measured, is_night,
                                      fluxes["reco_nighttime"].to_numpy(float),
                                      other_driver_reco) ** 2)
+    if other_driver_reco is not None and driver_share_spread == "bootstrap":
+        central = fluxes["reco_nighttime"].to_numpy(float)
+        weight = max(weight, share_second_moment(
+            driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
+            driver_mixture.mixture_share_draws(nee_measured, is_night, central,
+                                               other_driver_reco, index)))
     day_weight = None if other_driver_reco is None or driver_day_prior == "night" else \
         driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                           driver_day_prior)
@@ -2394,6 +2406,34 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=weight, driver_day_weight=day_weight)
+
+
+def share_second_moment(share: float, draws) -> float:
+    """The second moment of a mixture share known to its sampling error.
+
+    Parameters
+    ----------
+    share : float
+        The night's mixture share s (:func:`fluxpart.driver_mixture.mixture_share`) [1].
+    draws : array_like
+        The share on resampled nights
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`) [1]; empty: none.
+
+    Returns
+    -------
+    float
+        min(s² + v, 1), v the variance of `draws` (0 without draws) [1]: E[S²] = E[S]² +
+        Var S for a share S about s, the weight whose root times |ΣΔ| is the root mean
+        square error of the central Reco (as :func:`driver_weight`'s Notes).
+
+    References
+    ----------
+    Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman &
+    Hall, ch. 6 (the bootstrap estimate of a standard error) (m).
+    """
+    draws = np.asarray(draws, dtype=float)
+    spread = float(np.var(draws)) if draws.size else 0.0
+    return min(float(share) ** 2 + spread, 1.0)
 
 
 def _nan_to_zero(values) -> np.ndarray:

@@ -139,6 +139,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
     ({"driver_day_prior": "day"},
      r'driver_day_prior = "day" is not allowed: expected one of "night" or "equal"'),
+    ({"driver_share_spread": "jackknife"},
+     r'driver_share_spread = "jackknife" is not allowed: expected one of "off" or "bootstrap"'),
     ({"respiration_form": "q10"},
      r'respiration_form = "q10" is not allowed: expected one of "average" or "lloyd_taylor"'),
     ({"night_fit_records": "dark"},
