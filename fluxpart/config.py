@@ -940,7 +940,7 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 _WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
-            "driver_day_prior": ("night", "equal"),
+            "driver_day_prior": ("night", "equal", "mixture"),
             "driver_share_spread": ("off", "bootstrap"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),

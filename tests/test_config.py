@@ -138,7 +138,7 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"respiration_driver": "soil"},
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
     ({"driver_day_prior": "day"},
-     r'driver_day_prior = "day" is not allowed: expected one of "night" or "equal"'),
+     r'driver_day_prior = "day" is not allowed: expected one of "night", "equal" or "mixture"'),
     ({"driver_share_spread": "jackknife"},
      r'driver_share_spread = "jackknife" is not allowed: expected one of "off" or "bootstrap"'),
     ({"respiration_form": "q10"},

@@ -15,7 +15,13 @@ from scipy.optimize import minimize_scalar
 import fluxpart
 from fluxpart import demo
 from fluxpart.config import Config
-from fluxpart.driver_mixture import MIN_RECORDS, SHARE_DRAWS, mixture_share, mixture_share_draws
+from fluxpart.driver_mixture import (
+    MIN_RECORDS,
+    SHARE_DRAWS,
+    mixture_share,
+    mixture_share_draws,
+    mixture_shown,
+)
 
 
 def _eq11(temperature_celsius, rref, e0=308.56):
@@ -179,3 +185,32 @@ def test_the_spread_setting_weighs_the_shares_second_moment():
     assert Config().driver_share_spread == "off"
     assert Config(driver_share_spread="bootstrap").driver_share_spread == "bootstrap"
     assert uncertainty.record_inputs.__kwdefaults__["driver_share_spread"] == "off"
+
+
+@pytest.mark.parametrize("share, shown", [(0.0, False), (0.3, True)])
+def test_a_mixture_is_shown_only_where_one_was_planted(share, shown):
+    """Known truth: night NEE = (1 - s) Reco(soil) + s Reco(air) + Laplace noise; a share
+    of 0.3 of the air-temperature fit is shown (its 95 % interval, s ± 1.96 sd of the
+    resampled nights, excludes 0), a respiration on soil temperature alone is not
+    (Efron & Tibshirani 1993, ch. 13: the normal bootstrap interval (m))."""
+    rng, air, soil = _two_fits(seed=7, n=2000)
+    nee = (1 - share) * soil + share * air + rng.laplace(0, 1.0, air.size)
+    night = np.ones(air.size, bool)
+    found = mixture_share(nee, night, soil, air)
+    draws = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    assert mixture_shown(found, draws) is shown
+    assert mixture_shown(found, []) is False
+
+
+def test_the_mixture_prior_gives_the_day_records_half_the_weight_where_a_mixture_is_shown():
+    """``driver_day_prior = "mixture"``: the daytime records' weight is max(w, 1/2) where
+    the share is shown (the equal prior of model averaging, Burnham & Anderson 2002,
+    ch. 4 (m)); None (the night weight, as the default) where it is not."""
+    from fluxpart.uncertainty import mixture_day_weight
+    shown_draws = np.full(SHARE_DRAWS, 0.2) + np.linspace(-0.02, 0.02, SHARE_DRAWS)
+    wide_draws = np.linspace(0.0, 0.4, SHARE_DRAWS)
+    assert mixture_day_weight(0.04, 0.2, shown_draws) == 0.5
+    assert mixture_day_weight(0.7, 0.2, shown_draws) == 0.7
+    assert mixture_day_weight(0.04, 0.2, wide_draws) is None
+    assert mixture_day_weight(0.04, 0.0, np.zeros(SHARE_DRAWS)) is None
+    assert Config(driver_day_prior="mixture").driver_day_prior == "mixture"
