@@ -336,8 +336,22 @@ class Config:
     driver_day_prior : str
         Weight of the other respiration temperature in the part of the uncertainty
         that comes from DAYTIME records (where air and soil temperature part most):
-        ``"night"`` (default) the night data's weight, as for the night records;
-        ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
+        ``"mixture"`` (default since round trace31) at least 1/2 where the night
+        records show a mixture of the two temperatures (the other temperature's
+        mixture share, :func:`fluxpart.driver_mixture.mixture_share`, with a 95 %
+        interval from nights resampled with replacement that excludes 0,
+        :func:`fluxpart.driver_mixture.mixture_shown`), the night data's weight
+        elsewhere (:func:`fluxpart.uncertainty.mixture_day_weight`): the nights cannot
+        tell how a canopy part on air temperature carries into the day, and the
+        daytime records' own evidence, which compares two single-temperature models,
+        pointed to the soil temperature in use at half the trial site-years with 30–46 %
+        of Reco on air temperature. Measured (round trace31, DEVELOPERS.md): trial 31
+        nighttime GPP / Reco covered 7 / 8 → 8 / 9 of 11 (draw 0) and 5 / 5 → 11 / 11
+        (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime
+        9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature the
+        share was shown in 7, coverage unchanged, mean widths +1.2 to +6.6 % (one
+        site-year ×5.8). ``"night"`` the night data's weight, as for the night records
+        (the default before; the runs of 0.37.0); ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
         Anderson 2002, ch. 4 (m)), unless the daytime records favour the temperature in
         use significantly (:func:`fluxpart.partition.temperature_choice.daytime_evidence`
         above 1.96). The two nighttime fits are fitted to the same nights and agree
@@ -646,7 +660,7 @@ class Config:
     vpd_tolerance: float = 5.0
     respiration_driver: str = "auto"
     respiration_form: str = "average"
-    driver_day_prior: str = "night"
+    driver_day_prior: str = "mixture"
     driver_share_spread: str = "off"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
