@@ -336,7 +336,7 @@ class Config:
     driver_day_prior : str
         Weight of the other respiration temperature in the part of the uncertainty
         that comes from DAYTIME records (where air and soil temperature part most):
-        ``"mixture"`` (default since round trace31) at least 1/2 where the night
+        ``"mixture"`` (default) at least 1/2 where the night
         records show a mixture of the two temperatures (the other temperature's
         mixture share, :func:`fluxpart.driver_mixture.mixture_share`, with a 95 %
         interval from nights resampled with replacement that excludes 0,
@@ -344,7 +344,7 @@ class Config:
         elsewhere (:func:`fluxpart.uncertainty.mixture_day_weight`): the nights cannot
         tell how a canopy part on air temperature carries into the day, and the
         daytime records' own evidence, which compares two single-temperature models,
-        pointed to the soil temperature in use at half the trial site-years with 30–46 %
+        pointed to the soil temperature in use in 4 of 8 trial site-years with 28–47 %
         of Reco on air temperature. Measured (round trace31, DEVELOPERS.md): trial 31
         nighttime GPP / Reco covered 7 / 8 → 8 / 9 of 11 (draw 0) and 5 / 5 → 11 / 11
         (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime

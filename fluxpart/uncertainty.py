@@ -2157,7 +2157,7 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     how that part carries into the day is not identified by the nights (both fits agree
     there; :func:`driver_day_weight`), and the daytime records' evidence compares two
     single-temperature models, neither of them true: on a known-truth trial it favoured
-    the soil temperature in use significantly in 4 of 8 site-years with 30–46 % of the
+    the soil temperature in use significantly in 4 of 8 site-years with 28–47 % of the
     Reco on air temperature (round trace31). So the daytime records take the equal
     prior of model averaging (Burnham & Anderson 2002, ch. 4 (m)) whatever that
     evidence says; where the nights show no mixture, the night weight stands.
