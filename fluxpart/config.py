@@ -348,9 +348,9 @@ class Config:
         of Reco on air temperature. Measured (round trace31, DEVELOPERS.md): trial 31
         nighttime GPP / Reco covered 7 / 8 → 8 / 9 of 11 (draw 0) and 5 / 5 → 11 / 11
         (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime
-        9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature the
-        share was shown in 7, coverage unchanged, mean widths +1.2 to +6.6 % (one
-        site-year ×5.8). ``"night"`` the night data's weight, as for the night records
+        9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature it
+        widened 3 intervals (one ×5.8), coverage unchanged, mean widths +1.2 to
+        +6.6 %. ``"night"`` the night data's weight, as for the night records
         (the default before; the runs of 0.37.0); ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
         Anderson 2002, ch. 4 (m)), unless the daytime records favour the temperature in
         use significantly (:func:`fluxpart.partition.temperature_choice.daytime_evidence`
