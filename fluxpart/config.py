@@ -336,8 +336,22 @@ class Config:
     driver_day_prior : str
         Weight of the other respiration temperature in the part of the uncertainty
         that comes from DAYTIME records (where air and soil temperature part most):
-        ``"night"`` (default) the night data's weight, as for the night records;
-        ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
+        ``"mixture"`` (default) at least 1/2 where the night
+        records show a mixture of the two temperatures (the other temperature's
+        mixture share, :func:`fluxpart.driver_mixture.mixture_share`, with a 95 %
+        interval from nights resampled with replacement that excludes 0,
+        :func:`fluxpart.driver_mixture.mixture_shown`), the night data's weight
+        elsewhere (:func:`fluxpart.uncertainty.mixture_day_weight`): the nights cannot
+        tell how a canopy part on air temperature carries into the day, and the
+        daytime records' own evidence, which compares two single-temperature models,
+        pointed to the soil temperature in use in 4 of 8 trial site-years with 28–47 %
+        of Reco on air temperature. Measured (round trace31, DEVELOPERS.md): trial 31
+        nighttime GPP / Reco covered 7 / 8 → 8 / 9 of 11 (draw 0) and 5 / 5 → 11 / 11
+        (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime
+        9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature it
+        widened 3 intervals (one ×5.8), coverage unchanged, mean widths +1.2 to
+        +6.6 %. ``"night"`` the night data's weight, as for the night records
+        (the default before; the runs of 0.37.0); ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
         Anderson 2002, ch. 4 (m)), unless the daytime records favour the temperature in
         use significantly (:func:`fluxpart.partition.temperature_choice.daytime_evidence`
         above 1.96). The two nighttime fits are fitted to the same nights and agree
@@ -348,6 +362,15 @@ class Config:
         intervals by 21–31 % on average (several-fold on some) without changing their
         coverage; on a known-truth trial with soil and canopy parts it raised nighttime
         Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, round resp2temp50).
+    driver_share_spread : str
+        ``"off"`` (default): the temperature-driver part's weight is at least s², s the
+        other temperature's share in the night's best mixture of the two fits
+        (:func:`fluxpart.driver_mixture.mixture_share`); ``"bootstrap"``: at least
+        s² + v, v the share's sampling variance over resampled nights
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`). Changes the stated
+        uncertainty only, never a central value; measured and left off by default
+        (DEVELOPERS.md, round trace31: the share is biased low rather than uncertain
+        where a canopy part respires on air temperature).
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
@@ -637,7 +660,8 @@ class Config:
     vpd_tolerance: float = 5.0
     respiration_driver: str = "auto"
     respiration_form: str = "average"
-    driver_day_prior: str = "night"
+    driver_day_prior: str = "mixture"
+    driver_share_spread: str = "off"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
     e0_min_points: int = 6
@@ -927,10 +951,11 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 
 #: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
 #: only away from their default, with which a run is that of the release before them.
-_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend")
+_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
-            "driver_day_prior": ("night", "equal"),
+            "driver_day_prior": ("night", "equal", "mixture"),
+            "driver_share_spread": ("off", "bootstrap"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

@@ -105,6 +105,8 @@ __all__ = [
     "random_error_model",
     "record_inputs",
     "record_random_error",
+    "mixture_day_weight",
+    "share_second_moment",
     "structural_sigma",
     "timeseries_random_error",
     "uncertainty_budget",
@@ -2128,6 +2130,47 @@ def driver_day_weight(weight: float, day_statistic, critical: float, prior: str)
     return max(weight, 0.5)
 
 
+def mixture_day_weight(weight: float, share: float, draws) -> float | None:
+    """The other respiration temperature's weight in the daytime records' part, where
+    the nights show a mixture (``driver_day_prior = "mixture"``).
+
+    Parameters
+    ----------
+    weight : float
+        The weight of the night records' part (:func:`combined_driver_weight` with the
+        mixture floor) [1].
+    share : float
+        The night's mixture share (:func:`fluxpart.driver_mixture.mixture_share`) [1].
+    draws : array_like
+        The share on resampled nights
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`) [1].
+
+    Returns
+    -------
+    float or None
+        max(`weight`, 1/2) where the share's 95 % interval excludes 0
+        (:func:`fluxpart.driver_mixture.mixture_shown`); None elsewhere (the daytime
+        records take `weight`, as with ``"night"``).
+
+    Notes
+    -----
+    Where the nights show that part of the respiration follows the other temperature,
+    how that part carries into the day is not identified by the nights (both fits agree
+    there; :func:`driver_day_weight`), and the daytime records' evidence compares two
+    single-temperature models, neither of them true: on a known-truth trial it favoured
+    the soil temperature in use significantly in 4 of 8 site-years with 28–47 % of the
+    Reco on air temperature (round trace31). So the daytime records take the equal
+    prior of model averaging (Burnham & Anderson 2002, ch. 4 (m)) whatever that
+    evidence says; where the nights show no mixture, the night weight stands.
+
+    References
+    ----------
+    Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
+    2nd ed. Springer.
+    """
+    return max(weight, 0.5) if driver_mixture.mixture_shown(share, draws) else None
+
+
 def effective_records(residuals, use) -> float:
     """Records worth of independent evidence in autocorrelated residuals.
 
@@ -2265,7 +2308,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
                   fill_sides=None, daytime_result=None, light_shape=None,
-                  driver_day_prior="night") -> UncertaintyInputs:
+                  driver_day_prior="night", driver_share_spread="off") -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2332,7 +2375,14 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         (``daytime_curvature = "average"``); default None (not counted).
     driver_day_prior : str, optional
         ``"night"`` (default) or ``"equal"``: the weight of the daytime records' part
-        of the respiration-temperature difference (:func:`driver_day_weight`).
+        of the respiration-temperature difference (:func:`driver_day_weight`);
+        ``"mixture"``: at least 1/2 where the night's mixture share is shown above 0
+        (:func:`fluxpart.driver_mixture.mixture_shown`), the night weight elsewhere.
+    driver_share_spread : str, optional
+        ``"off"`` (default): the weight is at least s², s the night's mixture share;
+        ``"bootstrap"``: at least s² + v, v the sampling variance of s over resampled
+        nights (:func:`fluxpart.driver_mixture.mixture_share_draws`), the second moment
+        of a share known only to its sampling error (Notes of :func:`driver_weight`).
 
     Returns
     -------
@@ -2372,9 +2422,24 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         driver_mixture.mixture_share(nee_measured, is_night,
                                      fluxes["reco_nighttime"].to_numpy(float),
                                      other_driver_reco) ** 2)
-    day_weight = None if other_driver_reco is None or driver_day_prior == "night" else \
-        driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
-                          driver_day_prior)
+    if other_driver_reco is not None and driver_share_spread == "bootstrap":
+        central = fluxes["reco_nighttime"].to_numpy(float)
+        weight = max(weight, share_second_moment(
+            driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
+            driver_mixture.mixture_share_draws(nee_measured, is_night, central,
+                                               other_driver_reco, index)))
+    if other_driver_reco is None or driver_day_prior == "night":
+        day_weight = None
+    elif driver_day_prior == "mixture":
+        central = fluxes["reco_nighttime"].to_numpy(float)
+        day_weight = mixture_day_weight(
+            weight,
+            driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
+            driver_mixture.mixture_share_draws(nee_measured, is_night, central,
+                                               other_driver_reco, index))
+    else:
+        day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
+                                       driver_day_prior)
     return UncertaintyInputs(
         **day_sides, **shape,
         measured=np.asarray(measured, dtype=bool), noise_sigma=np.asarray(noise_sigma, float),
@@ -2395,6 +2460,34 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
         driver_weight=weight, driver_day_weight=day_weight)
+
+
+def share_second_moment(share: float, draws) -> float:
+    """The second moment of a mixture share known to its sampling error.
+
+    Parameters
+    ----------
+    share : float
+        The night's mixture share s (:func:`fluxpart.driver_mixture.mixture_share`) [1].
+    draws : array_like
+        The share on resampled nights
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`) [1]; empty: none.
+
+    Returns
+    -------
+    float
+        min(s² + v, 1), v the variance of `draws` (0 without draws) [1]: E[S²] = E[S]² +
+        Var S for a share S about s, the weight whose root times |ΣΔ| is the root mean
+        square error of the central Reco (as :func:`driver_weight`'s Notes).
+
+    References
+    ----------
+    Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman &
+    Hall, ch. 6 (the bootstrap estimate of a standard error) (m).
+    """
+    draws = np.asarray(draws, dtype=float)
+    spread = float(np.var(draws)) if draws.size else 0.0
+    return min(float(share) ** 2 + spread, 1.0)
 
 
 def _nan_to_zero(values) -> np.ndarray:

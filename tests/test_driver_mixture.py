@@ -15,7 +15,13 @@ from scipy.optimize import minimize_scalar
 import fluxpart
 from fluxpart import demo
 from fluxpart.config import Config
-from fluxpart.driver_mixture import MIN_RECORDS, mixture_share
+from fluxpart.driver_mixture import (
+    MIN_RECORDS,
+    SHARE_DRAWS,
+    mixture_share,
+    mixture_share_draws,
+    mixture_shown,
+)
 
 
 def _eq11(temperature_celsius, rref, e0=308.56):
@@ -119,3 +125,92 @@ def test_a_run_on_mixed_respiration_states_the_share_in_the_temperature_part():
     assert part >= 0.2 * difference
     again = fluxpart.process(frame, demo.site(), config)
     assert float(again.annual.loc[year, "reco_uncertainty_temperature_driver"]) == part
+
+
+def _index(n):
+    """Record times of the invented nights: 20 records a day (as in `_two_fits`)."""
+    return pd.Timestamp("2021-01-01") + pd.to_timedelta(np.arange(n) * 72, unit="min")
+
+
+def test_the_share_draws_are_reproducible_and_in_the_unit_interval():
+    """The same input and seed give the same draws; every draw is a share in [0, 1]."""
+    rng, air, soil = _two_fits(seed=4, n=1200)
+    nee = 0.3 * air + 0.7 * soil + rng.laplace(0, 0.6, air.size)
+    night = np.ones(air.size, bool)
+    first = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    again = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    assert first.shape == (SHARE_DRAWS,)
+    np.testing.assert_array_equal(first, again)
+    assert ((first >= 0) & (first <= 1)).all()
+    few = mixture_share_draws(nee[:MIN_RECORDS - 1], night[:MIN_RECORDS - 1],
+                              soil[:MIN_RECORDS - 1], air[:MIN_RECORDS - 1],
+                              _index(MIN_RECORDS - 1))
+    assert few.size == 0
+
+
+def test_the_share_draws_spread_as_the_share_over_independent_noise():
+    """Known truth: the standard deviation of the resampled shares of one record set is
+    within a factor 1.6 of the spread of the share over 40 independent Laplace noise draws
+    on the same nights (the bootstrap standard error estimates the sampling standard
+    deviation, Efron & Tibshirani 1993, ch. 6 (m); Laplace errors, Hollinger & Richardson
+    2005)."""
+    rng, air, soil = _two_fits(seed=5, n=1500)
+    night = np.ones(air.size, bool)
+    truth = 0.35 * air + 0.65 * soil
+    shares = [mixture_share(truth + rng.laplace(0, 1.5, air.size), night, soil, air)
+              for _ in range(40)]
+    spread = np.std(shares, ddof=1)
+    nee = truth + rng.laplace(0, 1.5, air.size)
+    draws = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    assert spread > 0.01
+    assert spread / 1.6 < draws.std() < spread * 1.6
+    assert draws.mean() == pytest.approx(0.35, abs=0.1)
+
+
+def test_the_spread_setting_weighs_the_shares_second_moment():
+    """``driver_share_spread = "bootstrap"``: the weight's floor is s² + v, the second
+    moment of a share about s with the resampled shares' variance v (E[S²] = E[S]² +
+    Var S), at most 1; without draws s²; the default ``"off"`` (unchanged runs)."""
+    from fluxpart import uncertainty
+    rng, air, soil = _two_fits(seed=6, n=1400)
+    nee = 0.25 * air + 0.75 * soil + rng.laplace(0, 1.0, air.size)
+    night = np.ones(air.size, bool)
+    share = mixture_share(nee, night, soil, air)
+    draws = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    moment = uncertainty.share_second_moment(share, draws)
+    assert moment == pytest.approx(share ** 2 + np.var(draws))
+    assert moment > share ** 2
+    assert uncertainty.share_second_moment(0.2, []) == pytest.approx(0.04)
+    assert uncertainty.share_second_moment(1.0, [0.0, 1.0]) == 1.0
+    assert Config().driver_share_spread == "off"
+    assert Config(driver_share_spread="bootstrap").driver_share_spread == "bootstrap"
+    assert uncertainty.record_inputs.__kwdefaults__["driver_share_spread"] == "off"
+
+
+@pytest.mark.parametrize("share, shown", [(0.0, False), (0.3, True)])
+def test_a_mixture_is_shown_only_where_one_was_planted(share, shown):
+    """Known truth: night NEE = (1 - s) Reco(soil) + s Reco(air) + Laplace noise; a share
+    of 0.3 of the air-temperature fit is shown (its 95 % interval, s ± 1.96 sd of the
+    resampled nights, excludes 0), a respiration on soil temperature alone is not
+    (Efron & Tibshirani 1993, ch. 13: the normal bootstrap interval (m))."""
+    rng, air, soil = _two_fits(seed=7, n=2000)
+    nee = (1 - share) * soil + share * air + rng.laplace(0, 1.0, air.size)
+    night = np.ones(air.size, bool)
+    found = mixture_share(nee, night, soil, air)
+    draws = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    assert mixture_shown(found, draws) is shown
+    assert mixture_shown(found, []) is False
+
+
+def test_the_mixture_prior_gives_the_day_records_half_the_weight_where_a_mixture_is_shown():
+    """``driver_day_prior = "mixture"``: the daytime records' weight is max(w, 1/2) where
+    the share is shown (the equal prior of model averaging, Burnham & Anderson 2002,
+    ch. 4 (m)); None (the night weight, as the default) where it is not."""
+    from fluxpart.uncertainty import mixture_day_weight
+    shown_draws = np.full(SHARE_DRAWS, 0.2) + np.linspace(-0.02, 0.02, SHARE_DRAWS)
+    wide_draws = np.linspace(0.0, 0.4, SHARE_DRAWS)
+    assert mixture_day_weight(0.04, 0.2, shown_draws) == 0.5
+    assert mixture_day_weight(0.7, 0.2, shown_draws) == 0.7
+    assert mixture_day_weight(0.04, 0.2, wide_draws) is None
+    assert mixture_day_weight(0.04, 0.0, np.zeros(SHARE_DRAWS)) is None
+    assert Config(driver_day_prior="mixture").driver_day_prior == "mixture"
