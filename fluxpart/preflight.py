@@ -289,6 +289,16 @@ _CURTAIN_JUMP = 5.0
 # and resumes with the difference as a jump; one stopped in a soil that moved less than
 # that wrote what it would have read within its resolution.
 _QUIET_STEPS = 2
+# ... and a soil that leaves a held value as a snow pack goes (round falsealarm58): its
+# first step out is the start of a ramp, the conducted warming of a newly bare surface
+# spreading over hours (the response at depth to a surface change builds over a time of
+# order z^2 / kappa, about an hour at 5 cm for kappa 0.5e-6 m2 s-1; Campbell & Norman
+# 1998, ch. 8 (m)), so the next records move on the same way by steps as large (the
+# first step no larger than the largest of them); a probe resuming after days stopped
+# writes the stop's whole change in one step, larger than the soil's changes after it
+# unless the soil moved by less than one such change over the stop (its held values then
+# off by less). The number of records after the first step that must continue it:
+_THAW_RAMP = 3
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -459,15 +469,39 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     # permafrost's active layer in autumn, crosses several steps in the day before a run
     # with no daily cycle; a probe stopped in a drifting soil resumes off by the drift
     # over the run (more than a step), one that held the soil's value resumes beside it
-    touching = (kept[0][-1], kept[1][0])
-    if any(abs(v - value) > 1.5 * resolution for v in touching):
+    drifting = [abs(present[-1 if side == 0 else 0] - value) <= 1.5 * resolution
+                and _on_a_line(window, limit)
+                for side, (window, present) in enumerate(zip(windows, kept))]
+    if all(drifting):
+        return True
+    # the snow leaves (round falsealarm58): a soil quiet in the day before (held or
+    # drifting, as above) that leaves the run as a ramp, its first step out followed by
+    # _THAW_RAMP changes the same way, one of them at least as large: conduction carries
+    # a surface's warming down over hours, while a probe resuming after a stop writes
+    # the whole stop's change in one step and then the soil's ordinary changes
+    quiet_before = drifting[0] or np.abs(kept[0] - value).max() <= limit
+    return quiet_before and _leaves_as_a_ramp(values[last:last + _THAW_RAMP + 2], resolution)
+
+
+def _on_a_line(window: np.ndarray, limit: float) -> bool:
+    """Whether every present value of `window` (consecutive records, NaN where missing)
+    lies within `limit` of the present values' least-squares straight line in time."""
+    at = np.flatnonzero(np.isfinite(window))
+    slope, intercept = np.polyfit(at, window[at], 1)
+    return bool(np.abs(window[at] - (slope * at + intercept)).max() <= limit)
+
+
+def _leaves_as_a_ramp(values: np.ndarray, resolution: float) -> bool:
+    """Whether a run's last value and the records after it (`values`, the run's last value
+    first) leave the run as a ramp: a first step of more than a step and a half of
+    `resolution`, then :data:`_THAW_RAMP` changes of its sign, the largest of them no
+    smaller than it (within half a step)."""
+    if values.size < _THAW_RAMP + 2 or not np.isfinite(values).all():
         return False
-    for window in windows:
-        at = np.flatnonzero(np.isfinite(window))
-        slope, intercept = np.polyfit(at, window[at], 1)
-        if np.abs(window[at] - (slope * at + intercept)).max() > limit:
-            return False
-    return True
+    changes = np.diff(values)
+    first, after = changes[0], changes[1:]
+    return bool(abs(first) > 1.5 * resolution and (np.sign(after) == np.sign(first)).all()
+                and np.abs(after).max() >= abs(first) - 0.5 * resolution)
 
 
 def _stuck(frame: pd.DataFrame, potential, interval_minutes: float) -> list:
