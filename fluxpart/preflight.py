@@ -471,7 +471,7 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     # over the run (more than a step), one that held the soil's value resumes beside it
     drifting = [abs(present[-1 if side == 0 else 0] - value) <= 1.5 * resolution
                 and _on_a_line(window, limit)
-                for side, (window, present) in enumerate(zip(windows, kept))]
+                for side, (window, present) in enumerate(zip(windows, kept, strict=True))]
     if all(drifting):
         return True
     # the snow leaves (round falsealarm58): a soil quiet in the day before (held or
