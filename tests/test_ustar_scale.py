@@ -42,3 +42,12 @@ def test_one_stormy_month_is_not_named_and_half_a_year_from_a_program_change_is(
     later = np.where(index.month >= 7, ustar * 3.6, ustar)
     text = ustar_scale.ustar_beyond_surface_layer(later, night, index, "short")
     assert text is not None and "6 months (2021-07 .. 2021-12)" in text
+
+
+def test_two_months_a_year_apart_are_named_by_name_not_as_a_span():
+    """Two months beyond the bounds, January and December, are listed as such: a span
+    "2021-01 .. 2021-12" would read as the whole year (falsealarm58)."""
+    ustar, night, index = _windy_grass_nights(2)
+    ends = np.where(np.isin(index.month, (1, 12)), ustar * 3.6, ustar)
+    text = ustar_scale.ustar_beyond_surface_layer(ends, night, index, "short")
+    assert text is not None and "2 months (2021-01, 2021-12)" in text
