@@ -290,11 +290,12 @@ _CURTAIN_JUMP = 5.0
 # that wrote what it would have read within its resolution.
 _QUIET_STEPS = 2
 # ... and a soil that leaves a held value as a snow pack goes (round falsealarm58): its
-# first step out is the start of a ramp, the conducted warming of a newly bare surface
-# spreading over hours (the response at depth to a surface change builds over a time of
-# order z^2 / kappa, about an hour at 5 cm for kappa 0.5e-6 m2 s-1; Campbell & Norman
-# 1998, ch. 8 (m)), so the next records move on the same way by steps as large (the
-# first step no larger than the largest of them); a probe resuming after days stopped
+# first step out is the start of a ramp, a newly bare surface warming over the hours of
+# a day and that warming arriving at depth smoothed (over a time of order z^2 / kappa,
+# about an hour at 5 cm for kappa 0.5e-6 m2 s-1; Campbell & Norman 1998, ch. 8 (m)), so
+# the next records move on the same way by steps as large (the first step no larger
+# than the largest of them; an abrupt change at the surface would give a first step
+# larger than the next, and stays named); a probe resuming after days stopped
 # writes the stop's whole change in one step, larger than the soil's changes after it
 # unless the soil moved by less than one such change over the stop (its held values then
 # off by less). The number of records after the first step that must continue it:
@@ -454,7 +455,9 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     in the day before it and the day after it (half of each day present at least) all
     lie within :data:`_QUIET_STEPS` steps of `resolution` of the run's value, or they
     drift without a daily cycle (each day within that many steps of its own straight
-    line) and meet the run by one step of the resolution at most on both sides."""
+    line) and meet the run by one step of the resolution at most on both sides, or the
+    day before is quiet so and the soil leaves the run as a ramp
+    (:func:`_leaves_as_a_ramp`, a snow pack going)."""
     first, last = int(positions[0]), int(positions[-1])
     length = int(per_day)
     value = values[first]
