@@ -289,6 +289,17 @@ _CURTAIN_JUMP = 5.0
 # and resumes with the difference as a jump; one stopped in a soil that moved less than
 # that wrote what it would have read within its resolution.
 _QUIET_STEPS = 2
+# ... and a soil that leaves a held value as a snow pack goes (round falsealarm58): its
+# first step out is the start of a ramp, a newly bare surface warming over the hours of
+# a day and that warming arriving at depth smoothed (over a time of order z^2 / kappa,
+# about an hour at 5 cm for kappa 0.5e-6 m2 s-1; Campbell & Norman 1998, ch. 8 (m)), so
+# the next records move on the same way by steps as large (the first step no larger
+# than the largest of them; an abrupt change at the surface would give a first step
+# larger than the next, and stays named); a probe resuming after days stopped
+# writes the stop's whole change in one step, larger than the soil's changes after it
+# unless the soil moved by less than one such change over the stop (its held values then
+# off by less). The number of records after the first step that must continue it:
+_THAW_RAMP = 3
 # Repeated records (our choice): a day or more of consecutive records whose NEE and
 # every driver read equal, value for value, the records a fixed lag of a day or more
 # earlier. Measured records never repeat so (the last digits of a flux and a
@@ -446,7 +457,8 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     drift without a daily cycle (each day within that many steps of its own straight
     line) and meet the run by one step of the resolution at most on both sides, not in
     opposite directions faster than a soil turning within one reading allows
-    (:func:`_turned_within`)."""
+    (:func:`_turned_within`), or the day before is quiet so and the soil leaves the run
+    as a ramp (:func:`_leaves_as_a_ramp`, a snow pack going)."""
     first, last = int(positions[0]), int(positions[-1])
     length = int(per_day)
     value = values[first]
@@ -461,17 +473,45 @@ def _quiet_beside(values: np.ndarray, positions: np.ndarray, resolution: float,
     # permafrost's active layer in autumn, crosses several steps in the day before a run
     # with no daily cycle; a probe stopped in a drifting soil resumes off by the drift
     # over the run (more than a step), one that held the soil's value resumes beside it
-    touching = (kept[0][-1], kept[1][0])
-    if any(abs(v - value) > 1.5 * resolution for v in touching):
+    slopes = [_line_slope(window, limit) for window in windows]
+    drifting = [abs(present[-1 if side == 0 else 0] - value) <= 1.5 * resolution
+                and slope is not None
+                for side, (slope, present) in enumerate(zip(slopes, kept, strict=True))]
+    if all(drifting):
+        # not across a turn faster than one reading allows (round review84)
+        return not _turned_within([slope * length for slope in slopes],
+                                  (last - first + 1) / length, resolution)
+    # the snow leaves (round falsealarm58): a soil quiet in the day before (held or
+    # drifting, as above) that leaves the run as a ramp, its first step out followed by
+    # _THAW_RAMP changes the same way, one of them at least as large: conduction carries
+    # a surface's warming down over hours, while a probe resuming after a stop writes
+    # the whole stop's change in one step and then the soil's ordinary changes
+    quiet_before = drifting[0] or np.abs(kept[0] - value).max() <= limit
+    return quiet_before and _leaves_as_a_ramp(values[last:last + _THAW_RAMP + 2], resolution)
+
+
+def _line_slope(window: np.ndarray, limit: float) -> float | None:
+    """The slope [per record] of the present values' least-squares straight line in time
+    where every present value of `window` (consecutive records, NaN where missing) lies
+    within `limit` of it; None where one does not."""
+    at = np.flatnonzero(np.isfinite(window))
+    slope, intercept = np.polyfit(at, window[at], 1)
+    if np.abs(window[at] - (slope * at + intercept)).max() > limit:
+        return None
+    return float(slope)
+
+
+def _leaves_as_a_ramp(values: np.ndarray, resolution: float) -> bool:
+    """Whether a run's last value and the records after it (`values`, the run's last value
+    first) leave the run as a ramp: a first step of more than a step and a half of
+    `resolution`, then :data:`_THAW_RAMP` changes of its sign, the largest of them no
+    smaller than it (within half a step)."""
+    if values.size < _THAW_RAMP + 2 or not np.isfinite(values).all():
         return False
-    drifts = []
-    for window in windows:
-        at = np.flatnonzero(np.isfinite(window))
-        slope, intercept = np.polyfit(at, window[at], 1)
-        if np.abs(window[at] - (slope * at + intercept)).max() > limit:
-            return False
-        drifts.append(slope * length)
-    return not _turned_within(drifts, (last - first + 1) / length, resolution)
+    changes = np.diff(values)
+    first, after = changes[0], changes[1:]
+    return bool(abs(first) > 1.5 * resolution and (np.sign(after) == np.sign(first)).all()
+                and np.abs(after).max() >= abs(first) - 0.5 * resolution)
 
 
 def _turned_within(drifts, days: float, resolution: float) -> bool:

@@ -139,7 +139,9 @@ def ustar_beyond_surface_layer(ustar, is_night, index: pd.DatetimeIndex,
     as_kmh = (f"; divided by {KMH_FACTOR:g} they read {median / KMH_FACTOR:.2f} and "
               f"{p95 / KMH_FACTOR:.2f} m s-1, as u* written in km h-1 reads"
               if low <= median / KMH_FACTOR <= high else "")
-    span = (f"{months.index[0]}" if len(months) == 1
+    # up to three months by name: two months a year apart written "first .. last" read
+    # as the whole year between them (falsealarm58: 2023-01 and 2023-12 of a windy coast)
+    span = (", ".join(str(month) for month in months.index) if len(months) <= 3
             else f"{months.index[0]} .. {months.index[-1]}")
     return (f"ustar (column {column!r}): in {len(months)} months ({span}) its nights' "
             f"median is {median:.2f} m s-1 and 95th percentile {p95:.2f} (the months' "

@@ -425,3 +425,33 @@ def test_a_probe_stopped_across_a_cold_spell_of_a_drifting_soil_is_named(year):
     window = (days >= 0) & (days < 8)
     smooth.loc[window, "tsoil"] = np.round(3.0 + 0.03 * (days[window] - 4) ** 2, 1)
     assert [f for f in _stuck(smooth, potential, 30) if f.stage == "input (tsoil)"] == []
+
+
+def test_a_soil_held_under_snow_that_leaves_as_a_ramp_when_the_snow_goes_is_not_stuck(year):
+    """A soil drifting 0.1 K a day under snow with no daily cycle, held at one reading of a
+    0.1 K logger for 4 days, that leaves it by 0.7 K an hour and rises on by 0.7, 0.6,
+    0.5 K an hour as the snow goes (the surface's warming conducted down over hours,
+    Campbell & Norman 1998, ch. 8 (m); falsealarm58, an invented moss site's soil at 1.0
+    for 4.2 days) is not named. A probe resuming after the stop with the stop's change in
+    one step larger than the soil's changes after it is named; so is a ramp out of a run
+    whose day before shows a daily cycle."""
+    frame, _, potential = year
+    soil = frame.assign(tsoil=frame["tsoil"].round(1))
+    before = (soil.index >= "2021-10-01") & (soil.index < "2021-10-05")
+    held = (soil.index >= "2021-10-05") & (soil.index < "2021-10-09")
+    after = (soil.index >= "2021-10-09") & (soil.index < "2021-10-12")
+    soil.loc[before, "tsoil"] = np.round(np.linspace(0.6, 0.95, int(before.sum())), 1)
+    soil.loc[held, "tsoil"] = 1.0
+    ramp = 1.0 + np.cumsum(np.r_[0.7, 0.7, 0.6, 0.5, np.full(int(after.sum()) - 4, 0.05)])
+    soil.loc[after, "tsoil"] = np.round(ramp, 1)
+    soil.loc[soil.index >= "2021-10-12", "tsoil"] = np.nan
+    assert [f for f in _stuck(soil, potential, 30) if f.stage == "input (tsoil)"] == []
+    resumed = soil.copy()
+    resumed.loc[after, "tsoil"] = np.round(ramp + 1.5, 1)  # first step 2.2 K, then <= 0.7
+    findings = [f for f in _stuck(resumed, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly 1 for 4.0 days" in findings[0].message
+    cycling = soil.copy()
+    hours = np.arange(int(before.sum())) / 2
+    cycling.loc[before, "tsoil"] = np.round(1.0 + 0.6 * np.sin(2 * np.pi * hours / 24), 1)
+    findings = [f for f in _stuck(cycling, potential, 30) if f.stage == "input (tsoil)"]
+    assert len(findings) == 1 and "exactly 1 for 4.0 days" in findings[0].message

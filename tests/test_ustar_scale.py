@@ -105,3 +105,11 @@ def test_a_dry_seasons_calm_giving_way_to_fronts_is_not_named():
     step = ustar_scale.ustar_step_up(kmh, night, index)
     assert step is not None
     assert abs(step["at"] - pd.Timestamp("2021-10-01")) <= pd.Timedelta(days=2)
+
+def test_two_months_a_year_apart_are_named_by_name_not_as_a_span():
+    """Two months beyond the bounds, January and December, are listed as such: a span
+    "2021-01 .. 2021-12" would read as the whole year (falsealarm58)."""
+    ustar, night, index = _windy_grass_nights(2)
+    ends = np.where(np.isin(index.month, (1, 12)), ustar * 3.6, ustar)
+    text = ustar_scale.ustar_beyond_surface_layer(ends, night, index, "short")
+    assert text is not None and "2 months (2021-01, 2021-12)" in text
