@@ -912,7 +912,7 @@ def _shifted_run(used: pd.DataFrame, threshold: float):
 
 
 def _drifting_clock(used: pd.DataFrame, threshold: float):
-    """Rate [min per month] and first and last month where the shifts follow a clock drift.
+    """Rate [min per month], first and last month and the shifts where they follow a drift.
 
     A logger clock that runs fast or slow at a steady rate moves sunrise, solar noon and
     sunset alike by minutes that grow in proportion to the time since it was last set:
@@ -926,6 +926,22 @@ def _drifting_clock(used: pd.DataFrame, threshold: float):
     edges' robust scatter about their lines stay within :data:`DRIFT_MAX_SCATTER`, the
     edges' line changes by the peak's within a quarter, and the day-length mismatch
     changes by less than half of it (a clock keeps the day's length). None otherwise.
+
+    Parameters
+    ----------
+    used : pandas.DataFrame
+        The usable months of :func:`monthly_shifts`, unwrapped (:func:`_unwrapped_shifts`):
+        ``shift_minutes``, ``edge_shift_minutes`` [min], ``sun_sets`` and the day lengths
+        :func:`_daylength_mismatch` reads, indexed by month start.
+    threshold : float
+        Smallest change over the record named [min] (:func:`shift_threshold_minutes`).
+
+    Returns
+    -------
+    tuple or None
+        ``(rate, first, last, start, end)``: the peak's rate [min per month, positive:
+        Rg comes later against the sun month by month], the first and last month judged
+        (pandas.Timestamp) and the line's shift in them [min]; None where no drift is seen.
 
     References
     ----------

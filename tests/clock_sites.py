@@ -59,7 +59,8 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
         Share of days whose afternoons (13-19 h) are darkened by convective cloud.
     shade_azimuths : tuple of (low, high), optional
         The direct beam is blocked while the sun stands in this azimuth range below
-        `shade_elevation` degrees (a tree line or a building).
+        `shade_elevation` degrees (a tree line or a building); `shade_elevation` may be a
+        function of the days elapsed since the record's start (a tree growing).
     summer_morning_fog : float
         Share of local-summer days (as for `wet_summer`) whose mornings stay foggy
         (clearness x 0.3) until a time drawn between 9 and 12 h (coastal fog).
@@ -79,6 +80,8 @@ def synthetic_rg(latitude, longitude, utc_offset, *, year=2021, days=365, interv
         dni, dhi = split["dni"].to_numpy(), split["dhi"].to_numpy()
         if shade_azimuths:
             low, high = shade_azimuths
+            if callable(shade_elevation):   # an obstruction growing: degrees at elapsed days
+                shade_elevation = shade_elevation(np.asarray((local - start) / pd.Timedelta(days=1)))
             blocked = ((sun["azimuth"].to_numpy() >= low) & (sun["azimuth"].to_numpy() <= high)
                        & (sun["elevation"].to_numpy() < shade_elevation))
             dni = np.where(blocked, 0.0, dni)
