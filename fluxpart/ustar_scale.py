@@ -192,6 +192,19 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     then m s-1 again) is found by its step up; a record in km h-1 from its start has no
     step (:func:`ustar_beyond_surface_layer` judges its level).
 
+    A unit multiplies the days' values too, while the nights' own changes do not reach
+    the days so (review85): a windy season's onset (a monsoon's overcast, windy,
+    near-neutral nights after a dry season's calm, stable ones) steps the nights' median
+    and calm tail about 4 times but the days' wind far less (convective days before, the
+    monsoon flow after), and the stable nights over snow step more at its melt than the
+    days do (u* = κU / (ln(z / z0) + β z / L), β = 5, Stull 1988, ch. 9 (m)). So where
+    the record holds daytime u* (:data:`_MIN_STEP_RECORDS` or more in each span), the
+    days' median must step 2.57 to 5.04 times over both spans as well; a record of night
+    u* alone is judged by its nights. The day named is located by a change point of the
+    nights' log u* near the largest step (Page 1954 (m)), and the step must read as
+    km h-1 at that day itself: a step of 6 times reads as 3-5 over spans that straddle it
+    a few days off.
+
     Parameters
     ----------
     ustar : array_like
@@ -207,9 +220,10 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     dict or None
         ``at`` (the first day of the higher values, a Timestamp), ``ratios`` (the step
         of each quantile of :data:`STEP_QUANTILES` over each span of
-        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after``
-        (the nights' median u* over the fortnights either side [m s-1]); None where no
-        day so steps.
+        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]), ``day_ratios`` (the days'
+        median's step over each span, NaN where too few daytime u* [-]) and
+        ``before``/``after`` (the nights' median u* over the fortnights either side
+        [m s-1]), all at the day named; None where no day so steps.
 
     References
     ----------
@@ -348,14 +362,18 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
         return None
     calm, short, calm_long, long = step["ratios"]
     days_short, days_long = STEP_SPANS_DAYS
+    day_short, day_long = step["day_ratios"]
+    days_too = ("" if not np.isfinite(day_short) else
+                f", and its days' median too ({day_short:.1f} and {day_long:.1f} times)")
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
             f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
             f"over the {days_short} days either side; {long:.1f} times over {days_long} "
             f"days), and its calm nights' too (the 10th percentile {calm:.1f} and "
-            f"{calm_long:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
-            "from that day reads; the nights' u* follows the wind and the surface's "
-            "roughness, which neither step so in a day and stay so for weeks (snowmelt "
-            "about doubles it, a harvest lowers it, a new weather regime changes how often "
-            "nights are windy, and its calm nights stay calm): the calm nights after that day would be judged at a "
-            "threshold of the other unit; convert the later values to m s-1 (km h-1 / "
+            f"{calm_long:.1f} times){days_too}, as u* written in km h-1 ({KMH_FACTOR:g} "
+            "times m s-1) from that day reads; the nights' u* follows the wind and the "
+            "surface's roughness, which neither step so in a day and stay so for weeks "
+            "(snowmelt about doubles it, a harvest lowers it, a new weather regime or a "
+            "windy season steps the nights more than the days): the calm nights "
+            "after that day would be judged at a threshold of the other unit; convert the "
+            "later values to m s-1 (km h-1 / "
             f"{KMH_FACTOR:g}) or check what changed at the tower that day")

@@ -148,6 +148,8 @@ def test_a_monsoons_onset_is_not_named_and_its_ustar_in_km_per_hour_is():
     step = ustar_scale.ustar_step_up(kmh, night, index)
     assert step is not None and step["at"] == pd.Timestamp("2021-10-01")
     assert all(3.6 / 1.4 <= r <= 3.6 * 1.4 for r in step["day_ratios"])
+    text = ustar_scale.ustar_stepped_to_kmh(kmh, night, index, "u_fric")
+    assert "from 2021-10-01" in text and "its days' median too" in text
 
 
 def test_a_step_larger_than_km_per_hours_is_not_named_from_the_days_beside_it():
