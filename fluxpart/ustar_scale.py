@@ -201,9 +201,8 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     the record holds daytime u* (:data:`_MIN_STEP_RECORDS` or more in each span), the
     days' median must step 2.57 to 5.04 times over both spans as well; a record of night
     u* alone is judged by its nights. The day named is located by a change point of the
-    nights' log u* near the largest step (Page 1954 (m)), and the step must read as
-    km h-1 at that day itself: a step of 6 times reads as 3-5 over spans that straddle it
-    a few days off.
+    nights' log u* near the largest step (Page 1954 (m)); the figures returned are that
+    day's where it steps so, else the largest step's.
 
     Parameters
     ----------
@@ -223,7 +222,8 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
         :data:`STEP_SPANS_DAYS`, quantiles within spans [-]), ``day_ratios`` (the days'
         median's step over each span, NaN where too few daytime u* [-]) and
         ``before``/``after`` (the nights' median u* over the fortnights either side
-        [m s-1]), all at the day named; None where no day so steps.
+        [m s-1]), at the day named where it steps so, else at the largest step; None
+        where no day so steps.
 
     References
     ----------
@@ -284,11 +284,11 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     logs = np.log(values[near[0]:near[1]])
     split = near[0] + int(np.argmin(np.cumsum(logs - logs.mean())[:-1])) + 1
     at = times[split].normalize()
-    # the step must read as km h-1 at the day located, not only at days beside it whose
-    # spans mix both sides (a step of 6 times reads as 4 a few days off it)
+    # the figures named are the located day's where it steps so, else the largest step's
+    # (a seasonal rise on top of the unit can take the day's own step beyond STEP_FIT)
     shown = int(days.searchsorted(at))
     if shown >= days.size or days[shown] != at or not stepped[shown]:
-        return None
+        shown = largest
     return {"at": at, "ratios": [float(r) for r in ratios[:, shown]],
             "day_ratios": [float(r) for r in day_ratios[:, shown]],
             "before": float(medians[0][shown]), "after": float(medians[1][shown])}
