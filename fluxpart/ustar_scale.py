@@ -194,6 +194,18 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     then m s-1 again) is found by its step up; a record in km h-1 from its start has no
     step (:func:`ustar_beyond_surface_layer` judges its level).
 
+    A unit multiplies the days' values too, while the nights' own changes do not reach
+    the days so (review85): a windy season's onset (a monsoon's overcast, windy,
+    near-neutral nights after a dry season's calm, stable ones) steps the nights' median
+    and calm tail about 4 times but the days' wind far less (convective days before, the
+    monsoon flow after), and the stable nights over snow step more at its melt than the
+    days do (u* = κU / (ln(z / z0) + β z / L), β = 5, Stull 1988, ch. 9 (m)). So where
+    the record holds daytime u* (:data:`_MIN_STEP_RECORDS` or more in each span), the
+    days' median must step 2.57 to 5.04 times over both spans as well; a record of night
+    u* alone is judged by its nights. The day named is located by a change point of the
+    nights' log u* near the largest step (Page 1954 (m)); the figures returned are that
+    day's where it steps so, else the largest step's.
+
     Parameters
     ----------
     ustar : array_like
@@ -209,9 +221,11 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     dict or None
         ``at`` (the first day of the higher values, a Timestamp), ``ratios`` (the step
         of each quantile of :data:`STEP_QUANTILES` over each span of
-        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]) and ``before``/``after``
-        (the nights' median u* over the fortnights either side [m s-1]); None where no
-        day so steps.
+        :data:`STEP_SPANS_DAYS`, quantiles within spans [-]), ``day_ratios`` (the days'
+        median's step over each span, NaN where too few daytime u* [-]) and
+        ``before``/``after`` (the nights' median u* over the fortnights either side
+        [m s-1]), at the day named where it steps so, else at the largest step; None
+        where no day so steps.
 
     References
     ----------
@@ -222,54 +236,106 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
     cumulative sum that locates a change) (m).
     """
     ustar = np.asarray(ustar, dtype=float)
+    is_night = np.asarray(is_night, dtype=bool)
     with np.errstate(invalid="ignore"):
-        kept = np.asarray(is_night, dtype=bool) & np.isfinite(ustar) & (ustar > 0)
-    times = pd.DatetimeIndex(index)[kept]
-    values = ustar[kept]
+        present = np.isfinite(ustar) & (ustar > 0)
+    index = pd.DatetimeIndex(index)
+    times, values = index[present & is_night], ustar[present & is_night]
     if values.size < 2 * _MIN_STEP_RECORDS:
         return None
-    series = pd.Series(values, index=times)
-    # the first night record of each day; the spans before and after it (running quantiles
-    # over time windows, the later span's on the record read backwards)
+    # the first night record of each day: the spans before and after it
     days = pd.DatetimeIndex(np.unique(times.normalize()))
-    first = times.searchsorted(days)
-    backwards = pd.Series(values[::-1], index=pd.DatetimeIndex(
-        (times[-1] - times[::-1]).to_numpy() + np.datetime64("2000-01-01")))
     ratios, medians = [], None
     for span in STEP_SPANS_DAYS:
-        window = f"{span}D"
-        before = series.rolling(window, closed="left")
-        after = backwards.rolling(window, closed="right")
-        # a span must lie within the record and hold enough nights
-        enough = ((days - pd.Timedelta(days=span) >= times[0].normalize())
-                  & (days + pd.Timedelta(days=span) <= times[-1])
-                  & (before.count().to_numpy()[first] >= _MIN_STEP_RECORDS)
-                  & (after.count().to_numpy()[::-1][first] >= _MIN_STEP_RECORDS))
-        for quantile in STEP_QUANTILES:
-            low_side = before.quantile(quantile).to_numpy()[first]
-            high_side = after.quantile(quantile).to_numpy()[::-1][first]
+        low_sides, high_sides = _span_quantiles(times, values, days, span, STEP_QUANTILES)
+        for low_side, high_side in zip(low_sides, high_sides, strict=True):
             with np.errstate(invalid="ignore", divide="ignore"):
-                ratios.append(np.where(enough, high_side / low_side, np.nan))
-            if medians is None and quantile == 0.5:
-                medians = (low_side, high_side)          # the fortnights' medians
+                ratios.append(high_side / low_side)
+        if medians is None:
+            middle = STEP_QUANTILES.index(0.5)
+            medians = (low_sides[middle], high_sides[middle])  # the fortnights'
+    # the days' median over the same spans, where the record holds daytime u*
+    day_ratios = []
+    for span in STEP_SPANS_DAYS:
+        (low_side,), (high_side,) = _span_quantiles(index[present & ~is_night],
+                                                    ustar[present & ~is_night], days, span,
+                                                    (0.5,))
+        with np.errstate(invalid="ignore", divide="ignore"):
+            day_ratios.append(high_side / low_side)
     ratios = np.array(ratios)
     low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
     converted = medians[1] / KMH_FACTOR
+    day_ratios = np.array(day_ratios)
+    judged_days = np.all(np.isfinite(day_ratios), axis=0)
     with np.errstate(invalid="ignore"):
         stepped = (np.all((ratios >= low) & (ratios <= high), axis=0)
-                   & (converted >= TOWER_NIGHT_MEDIAN[0]) & (converted <= TOWER_NIGHT_MEDIAN[1]))
+                   & (converted >= TOWER_NIGHT_MEDIAN[0]) & (converted <= TOWER_NIGHT_MEDIAN[1])
+                   & (~judged_days | np.all((day_ratios >= low) & (day_ratios <= high),
+                                            axis=0)))
     if not stepped.any():
         return None
     # the day of the largest step over every quantile and span together, then the record
     # the step starts at: the split of the log values within a fortnight either side
-    # that departs most from their mean (a CUSUM change point, Page 1954 (m))
-    at = int(np.flatnonzero(stepped)[np.argmax(np.log(ratios[:, stepped]).sum(axis=0))])
-    near = times.searchsorted([days[at] - pd.Timedelta(days=STEP_SPANS_DAYS[0]),
-                               days[at] + pd.Timedelta(days=STEP_SPANS_DAYS[0])])
+    # below which their cumulative departure from the mean is lowest (a CUSUM change
+    # point, Page 1954 (m), of a step up: the low values' sum falls until the step, the
+    # high values' raises it after; the lowest point, not the largest departure either
+    # way, so a step down nearby is not taken for it)
+    largest = int(np.flatnonzero(stepped)[np.argmax(np.log(ratios[:, stepped]).sum(axis=0))])
+    near = times.searchsorted([days[largest] - pd.Timedelta(days=STEP_SPANS_DAYS[0]),
+                               days[largest] + pd.Timedelta(days=STEP_SPANS_DAYS[0])])
     logs = np.log(values[near[0]:near[1]])
-    split = near[0] + int(np.argmax(np.abs(np.cumsum(logs - logs.mean()))[:-1])) + 1
-    return {"at": times[split].normalize(), "ratios": [float(r) for r in ratios[:, at]],
-            "before": float(medians[0][at]), "after": float(medians[1][at])}
+    split = near[0] + int(np.argmin(np.cumsum(logs - logs.mean())[:-1])) + 1
+    at = times[split].normalize()
+    # the figures named are the located day's where it steps so, else the largest step's
+    # (a seasonal rise on top of the unit can take the day's own step beyond STEP_FIT)
+    shown = int(days.searchsorted(at))
+    if shown >= days.size or days[shown] != at or not stepped[shown]:
+        shown = largest
+    return {"at": at, "ratios": [float(r) for r in ratios[:, shown]],
+            "day_ratios": [float(r) for r in day_ratios[:, shown]],
+            "before": float(medians[0][shown]), "after": float(medians[1][shown])}
+
+def _span_quantiles(times: pd.DatetimeIndex, values: np.ndarray, days: pd.DatetimeIndex,
+                    span: int, quantiles) -> tuple[list, list]:
+    """Quantiles of `values` over the `span` days before and after the start of each day.
+
+    Parameters
+    ----------
+    times : pandas.DatetimeIndex
+        Interval starts of the values, increasing.
+    values : numpy.ndarray
+        u* [m s-1], every one finite and positive.
+    days : pandas.DatetimeIndex
+        Midnights at which the record is split.
+    span : int
+        Days on either side [d].
+    quantiles : sequence of float
+        Quantiles [-].
+
+    Returns
+    -------
+    before, after : list of numpy.ndarray
+        Per quantile, its value over the span before each day's first record at or after
+        midnight and over the span from that record on [m s-1]; NaN where a span leaves the
+        record or holds fewer than :data:`_MIN_STEP_RECORDS` values.
+    """
+    empty = [np.full(days.size, np.nan) for _ in quantiles]
+    if values.size < 2 * _MIN_STEP_RECORDS:
+        return empty, [array.copy() for array in empty]
+    first = np.minimum(times.searchsorted(days), values.size - 1)
+    # running quantiles over time windows, the later span's on the record read backwards
+    before = pd.Series(values, index=times).rolling(f"{span}D", closed="left")
+    after = pd.Series(values[::-1], index=pd.DatetimeIndex(
+        (times[-1] - times[::-1]).to_numpy() + np.datetime64("2000-01-01"))
+    ).rolling(f"{span}D", closed="right")
+    enough = ((days - pd.Timedelta(days=span) >= times[0].normalize())
+              & (days + pd.Timedelta(days=span) <= times[-1])
+              & (before.count().to_numpy()[first] >= _MIN_STEP_RECORDS)
+              & (after.count().to_numpy()[::-1][first] >= _MIN_STEP_RECORDS))
+    lows = [np.where(enough, before.quantile(q).to_numpy()[first], np.nan) for q in quantiles]
+    highs = [np.where(enough, after.quantile(q).to_numpy()[::-1][first], np.nan)
+             for q in quantiles]
+    return lows, highs
 
 
 def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
@@ -298,14 +364,18 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
         return None
     calm, short, calm_long, long = step["ratios"]
     days_short, days_long = STEP_SPANS_DAYS
+    day_short, day_long = step["day_ratios"]
+    days_too = ("" if not np.isfinite(day_short) else
+                f", and its days' median too ({day_short:.1f} and {day_long:.1f} times)")
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
             f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
             f"over the {days_short} days either side; {long:.1f} times over {days_long} "
             f"days), and its calm nights' too (the 10th percentile {calm:.1f} and "
-            f"{calm_long:.1f} times), as u* written in km h-1 ({KMH_FACTOR:g} times m s-1) "
-            "from that day reads; the nights' u* follows the wind and the surface's "
-            "roughness, which neither step so in a day and stay so for weeks (snowmelt "
-            "about doubles it, a harvest lowers it, a new weather regime changes how often "
-            "nights are windy, and its calm nights stay calm): the calm nights after that day would be judged at a "
-            "threshold of the other unit; convert the later values to m s-1 (km h-1 / "
+            f"{calm_long:.1f} times){days_too}, as u* written in km h-1 ({KMH_FACTOR:g} "
+            "times m s-1) from that day reads; the nights' u* follows the wind and the "
+            "surface's roughness, which neither step so in a day and stay so for weeks "
+            "(snowmelt about doubles it, a harvest lowers it, a new weather regime or a "
+            "windy season steps the nights more than the days): the calm nights "
+            "after that day would be judged at a threshold of the other unit; convert the "
+            "later values to m s-1 (km h-1 / "
             f"{KMH_FACTOR:g}) or check what changed at the tower that day")

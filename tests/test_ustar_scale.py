@@ -113,3 +113,49 @@ def test_two_months_a_year_apart_are_named_by_name_not_as_a_span():
     ends = np.where(np.isin(index.month, (1, 12)), ustar * 3.6, ustar)
     text = ustar_scale.ustar_beyond_surface_layer(ends, night, index, "short")
     assert text is not None and "2 months (2021-01, 2021-12)" in text
+
+
+# round review85: a windy season's onset steps the nights' u* as km h-1 would, but not the
+# days'. Source: the log profile with the stable correction u* = κU / (ln(z/z0) + β z/L),
+# β = 5 (Businger-Dyer form, Stull 1988, ch. 9 (m)); a monsoon's onset bringing overcast,
+# windy, near-neutral nights after a dry season's calm, stable ones, while the days' wind
+# rises far less (convective days before, the monsoon flow after: common knowledge of
+# monsoon climates (m)). Sizes invented.
+def _monsoon_site(seed, onset="2021-06-10"):
+    """A year of 30-minute records, nights 18:00-06:00, at a 3-m mast over grass (z0 =
+    0.05 m): nights' wind 1.2 m s-1 at z/L 0.5 before the onset and 3.0 m s-1 at z/L 0.05
+    after, days' wind 3.0 and 5.0 m s-1 (neutral), each day's weather log-normal."""
+    rng = np.random.default_rng(seed)
+    index = pd.date_range("2021-01-01", periods=17520, freq="30min")
+    night = np.asarray((index.hour < 6) | (index.hour >= 18))
+    wet = np.asarray(index.normalize() >= pd.Timestamp(onset))
+    day_number = np.asarray((index.normalize() - index[0]).days)
+    weather = np.exp(rng.normal(0.0, 0.35, day_number.max() + 1))[day_number]
+    wind = (np.where(night, np.where(wet, 3.0, 1.2), np.where(wet, 5.0, 3.0)) * weather
+            * np.exp(rng.normal(0.0, 0.3, index.size)))
+    stability = np.where(night, np.where(wet, 0.05, 0.5), 0.0)
+    return 0.41 * wind / (np.log(3.0 / 0.05) + 5.0 * stability), night, index
+
+
+def test_a_monsoons_onset_is_not_named_and_its_ustar_in_km_per_hour_is():
+    ustar, night, index = _monsoon_site(4)
+    # the nights' step alone reads as km h-1: median and calm tail about 4-5 times
+    before = ustar[night & (index < pd.Timestamp("2021-06-10"))
+                   & (index >= pd.Timestamp("2021-05-27"))]
+    after = ustar[night & (index >= pd.Timestamp("2021-06-10"))
+                  & (index < pd.Timestamp("2021-06-24"))]
+    assert 3.6 / 1.4 < np.median(after) / np.median(before) < 3.6 * 1.4
+    assert 3.6 / 1.4 < np.quantile(after, 0.1) / np.quantile(before, 0.1) < 3.6 * 1.4
+    # the days' median steps less than 2 times (5.0 / 3.0): no unit's step
+    assert ustar_scale.ustar_step_up(ustar, night, index) is None
+    # the nights alone (a record without daytime u*) are still judged by the nights' rule
+    only_nights = np.where(night, ustar, np.nan)
+    assert ustar_scale.ustar_step_up(only_nights, night, index) is not None
+    # the same site written in km h-1 from 1 October: day and night step, and it is named
+    kmh = np.where(index >= pd.Timestamp("2021-10-01"), ustar * 3.6, ustar)
+    step = ustar_scale.ustar_step_up(kmh, night, index)
+    assert step is not None and step["at"] == pd.Timestamp("2021-10-01")
+    assert all(3.6 / 1.4 <= r <= 3.6 * 1.4 for r in step["day_ratios"])
+    text = ustar_scale.ustar_stepped_to_kmh(kmh, night, index, "u_fric")
+    assert "from 2021-10-01" in text and "its days' median too" in text
+
