@@ -1216,7 +1216,8 @@ def test_report_modules_import_no_pipeline_or_method_module():
                "respiration_facts",   # reads the manifest's provenance (review58)
                "absent_tables",       # a figure's sentence where its table is absent
                "plain_account",       # the summary's plain words (report52)
-               "renamed_tables"}      # resultdir's tables under a backup name (faults46)
+               "renamed_tables",      # resultdir's tables under a backup name (faults46)
+               "file_digest"}         # the store's file hashing, shared with the reader
     root = Path(fluxpart.__file__).parent
     for name in ("report.py", "figures.py"):
         tree = ast.parse((root / name).read_text(encoding="utf-8"))
