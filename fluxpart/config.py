@@ -345,7 +345,7 @@ class Config:
         tell how a canopy part on air temperature carries into the day, and the
         daytime records' own evidence, which compares two single-temperature models,
         pointed to the soil temperature in use in 4 of 8 trial site-years with 28–47 %
-        of Reco on air temperature. Measured (round trace31, DEVELOPERS.md): trial 31
+        of Reco on air temperature. Measured (DEVELOPERS.md, 0.38.0 changelog): trial 31
         nighttime GPP / Reco covered 7 / 8 → 8 / 9 of 11 (draw 0) and 5 / 5 → 11 / 11
         (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime
         9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature it
@@ -361,7 +361,7 @@ class Config:
         site-years with one respiration temperature it widened the partitioned fluxes'
         intervals by 21–31 % on average (several-fold on some) without changing their
         coverage; on a known-truth trial with soil and canopy parts it raised nighttime
-        Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, round resp2temp50).
+        Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, 0.33.0 changelog).
     driver_share_spread : str
         ``"off"`` (default): the temperature-driver part's weight is at least s², s the
         other temperature's share in the night's best mixture of the two fits
@@ -369,7 +369,7 @@ class Config:
         s² + v, v the share's sampling variance over resampled nights
         (:func:`fluxpart.driver_mixture.mixture_share_draws`). Changes the stated
         uncertainty only, never a central value; measured and left off by default
-        (DEVELOPERS.md, round trace31: the share is biased low rather than uncertain
+        (DEVELOPERS.md, 0.38.0 changelog: the share is biased low rather than uncertain
         where a canopy part respires on air temperature).
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,

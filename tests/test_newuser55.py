@@ -12,24 +12,33 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[1]
 
 
+# A round's name: lower-case letters, perhaps digits among them, ending in digits
+# ("auditor53", and "resp2temp50", which the letters-then-digits form missed).
+ROUND_NAME = r"\b[a-z][a-z0-9]*\d+\b"
+
+
 def _round_names() -> set[str]:
-    """Every round name the changelog's ``#### ... (round NAME)`` headings give."""
+    """Every round name a changelog heading gives after "round" or "rounds": at its end,
+    ``#### ... (round NAME)``, or within it, ``(issue 11, round NAME)`` or
+    ``#### Fresh-eyes review of round NAME``."""
     names = set()
     for line in (ROOT / "DEVELOPERS.md").read_text(encoding="utf-8").splitlines():
-        heading = re.match(r"#### .*\(rounds? ([^)]*)\)\s*$", line)
-        if heading:
-            names.update(re.findall(r"\b[a-z]+\d+\b", heading.group(1)))
+        if line.startswith("#### "):
+            for named in re.findall(r"\brounds? ([^)]*)", line):
+                names.update(re.findall(ROUND_NAME, named))
     return names
 
 
 def _named_rounds(text: str, names: set[str]) -> list[str]:
-    return sorted({word for word in re.findall(r"\b[a-z]+\d+\b", text) if word in names})
+    return sorted({word for word in re.findall(ROUND_NAME, text) if word in names})
 
 
 def test_the_changelog_names_rounds_to_guard_against():
     names = _round_names()
     assert len(names) > 100                     # the guard below reads a real list
     assert {"auditor53", "leftovers53", "layouts43", "mistakes55"} <= names
+    # named within a heading, or with digits inside the name
+    assert {"gapnoise54", "layouts51", "rgdim57", "resp2temp50"} <= names
 
 
 def test_user_docs_name_releases_not_rounds():
@@ -42,7 +51,8 @@ def test_user_docs_name_releases_not_rounds():
 def test_the_report_settings_text_names_no_round():
     """The report's "Settings and their sources" table prints each setting's paragraph
     of the Config docstring: it named rounds nightbias51, donormargin51, nightbias52,
-    darkfit51 and dayshape49."""
+    darkfit51 and dayshape49, and later trace31 and resp2temp50 (`driver_day_prior`,
+    `driver_share_spread`)."""
     from fluxpart.report import _config_notes
     notes = _config_notes()
     assert "night_donor_margin" in notes and "0.34.0 changelog" in notes["night_donor_margin"]
