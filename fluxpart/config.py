@@ -335,8 +335,12 @@ class Config:
         :func:`fluxpart.partition.respiration_form.average_forms`.
     driver_day_prior : str
         Weight of the other respiration temperature in the part of the uncertainty
-        that comes from DAYTIME records (where air and soil temperature part most):
-        ``"mixture"`` (default) at least 1/2 where the night
+        that comes from DAYTIME records (where air and soil temperature part most).
+        The two nighttime fits are fitted to the same nights and agree there, so the
+        night data say little about how a respiration split between soil and canopy
+        carries into the day (:func:`fluxpart.uncertainty.driver_day_weight`). Each
+        choice changes the stated uncertainty only, never a central value.
+        ``"mixture"`` (the default since 0.38.0): at least 1/2 where the night
         records show a mixture of the two temperatures (the other temperature's
         mixture share, :func:`fluxpart.driver_mixture.mixture_share`, with a 95 %
         interval from nights resampled with replacement that excludes 0,
@@ -350,24 +354,23 @@ class Config:
         (draw 1), daytime 6 / 3 → 7 / 7 and 3 / 3 → 8 / 6; trial 29 (draw 0) daytime
         9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature it
         widened 3 intervals (one ×5.8), coverage unchanged, mean widths +1.2 to
-        +6.6 %. ``"night"`` the night data's weight, as for the night records
-        (the default before; the runs of 0.37.0); ``"equal"`` at least 1/2, the equal prior of model averaging (Burnham &
-        Anderson 2002, ch. 4 (m)), unless the daytime records favour the temperature in
-        use significantly (:func:`fluxpart.partition.temperature_choice.daytime_evidence`
-        above 1.96). The two nighttime fits are fitted to the same nights and agree
-        there, so the night data say little about how a respiration split between soil
-        and canopy carries into the day (:func:`fluxpart.uncertainty.driver_day_weight`).
-        Changes the stated uncertainty only, never a central value: on 168 generated
-        site-years with one respiration temperature it widened the partitioned fluxes'
-        intervals by 21–31 % on average (several-fold on some) without changing their
-        coverage; on a known-truth trial with soil and canopy parts it raised nighttime
-        Reco coverage from 24 to 26 of 27 (DEVELOPERS.md, 0.33.0 changelog).
+        +6.6 %. ``"night"``: the night data's weight, as for the night records (the
+        default of 0.37.0 and before). ``"equal"`` (an option since 0.33.0): at least
+        1/2, the equal prior of model averaging (Burnham & Anderson 2002, ch. 4 (m)),
+        unless the daytime records favour the temperature in use significantly
+        (:func:`fluxpart.partition.temperature_choice.daytime_evidence` above 1.96): on
+        168 generated site-years with one respiration temperature it widened the
+        partitioned fluxes' intervals by 21–31 % on average (several-fold on some)
+        without changing their coverage; on a known-truth trial with soil and canopy
+        parts it raised nighttime Reco coverage from 24 to 26 of 27 (DEVELOPERS.md,
+        0.33.0 changelog).
     driver_share_spread : str
         ``"off"`` (default): the temperature-driver part's weight is at least s², s the
         other temperature's share in the night's best mixture of the two fits
         (:func:`fluxpart.driver_mixture.mixture_share`); ``"bootstrap"``: at least
         s² + v, v the share's sampling variance over resampled nights
-        (:func:`fluxpart.driver_mixture.mixture_share_draws`). Changes the stated
+        (:func:`fluxpart.driver_mixture.mixture_share_draws`; an option since 0.38.0,
+        written into a result's settings only where set). Changes the stated
         uncertainty only, never a central value; measured and left off by default
         (DEVELOPERS.md, 0.38.0 changelog: the share is biased low rather than uncertain
         where a canopy part respires on air temperature).
