@@ -89,6 +89,27 @@ def mixture_share(nee_measured, is_night, reco_central, reco_other) -> float:
     Breiman, L. (1996). Stacked regressions. Machine Learning 24, 49–64 (m).
     Koenker, R. & Bassett, G. (1978). Regression quantiles. Econometrica 46, 33–50 (m).
     """
+    ratios = _sorted_ratios(nee_measured, is_night, reco_central, reco_other)
+    if ratios is None:
+        return 0.0
+    _, _, ratio, weight = ratios
+    cumulative = np.cumsum(weight)
+    k = int(np.searchsorted(cumulative, 0.5 * cumulative[-1]))
+    return float(np.clip(ratio[min(k, ratio.size - 1)], 0.0, 1.0))
+
+
+def _sorted_ratios(nee_measured, is_night, reco_central, reco_other):
+    """The records and the ratios of :func:`mixture_share`'s weighted median, or None.
+
+    Returns
+    -------
+    tuple of (numpy.ndarray, numpy.ndarray, numpy.ndarray, numpy.ndarray) or None
+        ``(use, order, ratio, weight)``: the mask of the night records where NEE and both
+        fits are finite and the fits differ, the stable sort of their ratios
+        (NEE − Reco_central) / (Reco_other − Reco_central) [1], those ratios sorted, and
+        their weights |Reco_other − Reco_central| in the same order [µmol m-2 s-1];
+        None where fewer than :data:`MIN_RECORDS` records are used.
+    """
     nee = np.asarray(nee_measured, dtype=float)
     central = np.asarray(reco_central, dtype=float)
     other = np.asarray(reco_other, dtype=float)
@@ -96,14 +117,10 @@ def mixture_share(nee_measured, is_night, reco_central, reco_other) -> float:
     use = (np.asarray(is_night, dtype=bool) & np.isfinite(nee) & np.isfinite(central)
            & np.isfinite(other) & (difference != 0))
     if int(use.sum()) < MIN_RECORDS:
-        return 0.0
-    d = difference[use]
-    ratio = (nee[use] - central[use]) / d
-    weight = np.abs(d)
+        return None
+    ratio = (nee[use] - central[use]) / difference[use]
     order = np.argsort(ratio, kind="stable")
-    cumulative = np.cumsum(weight[order])
-    k = int(np.searchsorted(cumulative, 0.5 * cumulative[-1]))
-    return float(np.clip(ratio[order][min(k, ratio.size - 1)], 0.0, 1.0))
+    return use, order, ratio[order], np.abs(difference[use])[order]
 
 
 def _night_blocks(index) -> np.ndarray:
@@ -151,17 +168,10 @@ def mixture_share_draws(nee_measured, is_night, reco_central, reco_other, index,
     Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman &
     Hall (m).
     """
-    nee = np.asarray(nee_measured, dtype=float)
-    central = np.asarray(reco_central, dtype=float)
-    other = np.asarray(reco_other, dtype=float)
-    difference = other - central
-    use = (np.asarray(is_night, dtype=bool) & np.isfinite(nee) & np.isfinite(central)
-           & np.isfinite(other) & (difference != 0))
-    if int(use.sum()) < MIN_RECORDS:
+    ratios = _sorted_ratios(nee_measured, is_night, reco_central, reco_other)
+    if ratios is None:
         return np.empty(0)
-    ratio = (nee[use] - central[use]) / difference[use]
-    order = np.argsort(ratio, kind="stable")
-    ratio, weight = ratio[order], np.abs(difference[use])[order]
+    use, order, ratio, weight = ratios
     night = np.unique(_night_blocks(index)[use], return_inverse=True)[1][order]
     nights = int(night.max()) + 1
     rng = np.random.default_rng(seed)

@@ -2842,6 +2842,16 @@ def _tar_table(data: bytes, path: Path, compressed: str, joined: list | None = N
                          "point [input] path at the text file(s)")
 
 
+def _series_note(path: Path, archive: str, names: list) -> ReaderNote:
+    """The reader note of an `archive` ("zip" or "tar") whose tables `names`, one
+    series with the same first line, were read one after another."""
+    return ReaderNote(
+        f"input file {str(path)!r}: a {archive} archive of {len(names)} tables with the "
+        f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
+        "in the order of their names, digits as numbers (line numbers count the joined "
+        "text)")
+
+
 def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     """Return the file's text and the encoding used (detected if `encoding` is None).
 
@@ -2869,21 +2879,13 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
         # with "unpack it")
         data, names = joined
         if warnings is not None:
-            warnings.append(ReaderNote(
-                f"input file {str(path)!r}: a zip archive of {len(names)} tables with the "
-                f"same first line ({names[0]!r} to {names[-1]!r}), read one after another "
-                "in the order of their names, digits as numbers (line numbers count the joined "
-                "text)"))
+            warnings.append(_series_note(path, "zip", names))
     members = []
     data = _decompressed(data, path, members)
     if members and warnings is not None:
         # a tar of a day's or a month's file each, one header (layouts52; refused before
         # as "holding 12 file(s)")
-        warnings.append(ReaderNote(
-            f"input file {str(path)!r}: a tar archive of {len(members)} tables with the "
-            f"same first line ({members[0]!r} to {members[-1]!r}), read one after another "
-            "in the order of their names, digits as numbers (line numbers count the joined "
-            "text)"))
+        warnings.append(_series_note(path, "tar", members))
     typed = typed or {}
     kind = table_formats.binary_kind(data)
     if kind:

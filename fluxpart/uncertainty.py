@@ -2417,28 +2417,24 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         "shape_gpp_delta": light_shape.gpp_difference,
         "shape_reco_delta": light_shape.reco_difference,
         "shape_spread": light_shape.spread_factor}
-    weight = 0.0 if other_driver_reco is None else max(
-        combined_driver_weight(
-            driver_weight(nee_measured, is_night, fluxes["reco_nighttime"].to_numpy(float),
-                          other_driver_reco), day_driver_statistic, day_evidence_critical),
-        driver_mixture.mixture_share(nee_measured, is_night,
-                                     fluxes["reco_nighttime"].to_numpy(float),
-                                     other_driver_reco) ** 2)
-    if other_driver_reco is not None and driver_share_spread == "bootstrap":
+    weight, share, share_draws = 0.0, 0.0, None
+    if other_driver_reco is not None:
         central = fluxes["reco_nighttime"].to_numpy(float)
-        weight = max(weight, share_second_moment(
-            driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
-            driver_mixture.mixture_share_draws(nee_measured, is_night, central,
-                                               other_driver_reco, index)))
+        share = driver_mixture.mixture_share(nee_measured, is_night, central,
+                                             other_driver_reco)
+        weight = max(combined_driver_weight(
+            driver_weight(nee_measured, is_night, central, other_driver_reco),
+            day_driver_statistic, day_evidence_critical), share ** 2)
+        if driver_share_spread == "bootstrap" or driver_day_prior == "mixture":
+            # the share on resampled nights, drawn once for either use
+            share_draws = driver_mixture.mixture_share_draws(nee_measured, is_night, central,
+                                                             other_driver_reco, index)
+        if driver_share_spread == "bootstrap":
+            weight = max(weight, share_second_moment(share, share_draws))
     if other_driver_reco is None or driver_day_prior == "night":
         day_weight = None
     elif driver_day_prior == "mixture":
-        central = fluxes["reco_nighttime"].to_numpy(float)
-        day_weight = mixture_day_weight(
-            weight,
-            driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
-            driver_mixture.mixture_share_draws(nee_measured, is_night, central,
-                                               other_driver_reco, index))
+        day_weight = mixture_day_weight(weight, share, share_draws)
     else:
         day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                                        driver_day_prior)

@@ -295,6 +295,7 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
             "day_ratios": [float(r) for r in day_ratios[:, shown]],
             "before": float(medians[0][shown]), "after": float(medians[1][shown])}
 
+
 def _span_quantiles(times: pd.DatetimeIndex, values: np.ndarray, days: pd.DatetimeIndex,
                     span: int, quantiles) -> tuple[list, list]:
     """Quantiles of `values` over the `span` days before and after the start of each day.
@@ -365,7 +366,9 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
     calm, short, calm_long, long = step["ratios"]
     days_short, days_long = STEP_SPANS_DAYS
     day_short, day_long = step["day_ratios"]
-    days_too = ("" if not np.isfinite(day_short) else
+    # the days are judged only where both spans hold daytime u* (ustar_step_up): a
+    # 14-day ratio alone was said to step "too" whatever it was, beside "nan"
+    days_too = ("" if not np.isfinite(step["day_ratios"]).all() else
                 f", and its days' median too ({day_short:.1f} and {day_long:.1f} times)")
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
             f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "

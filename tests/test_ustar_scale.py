@@ -159,3 +159,18 @@ def test_a_monsoons_onset_is_not_named_and_its_ustar_in_km_per_hour_is():
     text = ustar_scale.ustar_stepped_to_kmh(kmh, night, index, "u_fric")
     assert "from 2021-10-01" in text and "its days' median too" in text
 
+
+
+def test_the_days_are_said_to_step_only_where_they_were_judged():
+    """The days' median is judged only where both spans either side hold daytime u*
+    (:func:`fluxpart.ustar_scale.ustar_step_up`); the warning said "and its days' median
+    too (1.7 and nan times)" where the 45 days before held none, though the days did not
+    step (the nights alone named it, as for a record of night u* only; review88)."""
+    ustar, night, index = _monsoon_site(4)
+    late_days = np.where(night | (index >= pd.Timestamp("2021-05-20")), ustar, np.nan)
+    step = ustar_scale.ustar_step_up(late_days, night, index)
+    assert step is not None and np.isnan(step["day_ratios"][1])
+    assert step["day_ratios"][0] < 3.6 / 1.4            # the days did not step as a unit
+    text = ustar_scale.ustar_stepped_to_kmh(late_days, night, index, "u_fric")
+    assert "from 2021-06-10" in text
+    assert "days' median" not in text and "nan" not in text
