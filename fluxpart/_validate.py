@@ -404,8 +404,25 @@ def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
 
 def tar_series_break(data: bytes) -> str | None:
     """The first table of a tar archive's series (:func:`joined_tar_tables`) whose first
-    line is not the first table's, named with both lines; None where they agree or are
-    no series."""
+    line is not the first table's, named with both lines.
+
+    Parameters
+    ----------
+    data : bytes
+        The bytes of a tar archive (decompressed).
+
+    Returns
+    -------
+    str or None
+        ``"'b.csv' opens with ... where 'a.csv' opens with ..."``, for the refusal of
+        :func:`fluxpart.io._tar_table`; None where every table opens with the same line,
+        or the archive is no series of tables (fewer than two, names that differ in more
+        than their digits) or cannot be read.
+
+    References
+    ----------
+    IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m).
+    """
     series = _tar_series(data)
     return None if series is None else series[2]
 

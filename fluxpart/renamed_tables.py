@@ -98,6 +98,13 @@ def copy_tool_temporary(name: str, files) -> str | None:
     files : iterable of str
         The file names a result folder holds (its tables', manifest.json, run-log.json).
 
+    Returns
+    -------
+    str or None
+        The file of `files` that `name` is rsync's temporary copy of
+        (``.annual.parquet.Xy12Ab`` → ``annual.parquet``); None where `name` is not of
+        that form or names no file of `files`.
+
     References
     ----------
     rsync(1) manual: a file is received into a temporary file in the destination folder

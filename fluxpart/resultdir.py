@@ -305,6 +305,11 @@ def lock_holder(path: Path) -> tuple[int, bool] | None:
     repeat under one device number), and the holder may end, its process id reused,
     between the reads.
 
+    Parameters
+    ----------
+    path : path-like
+        The lock file.
+
     Returns
     -------
     tuple of (int, bool) or None

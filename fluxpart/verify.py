@@ -1948,6 +1948,8 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     NIST (2015). FIPS 180-4: Secure Hash Standard (SHA-256: equal digests stand for
     equal bytes).
     Deutsch, P. (1996). RFC 1952: GZIP file format specification version 4.3.
+    Seward, J. bzip2 and libbzip2: the .bz2 file format (m); Tukaani (2009). The .xz file
+    format, version 1.0.4 (the magic bytes of :data:`PACKED_FORMS`).
     """
     unpacked = _unpacked(path)
     if unpacked is not None:
