@@ -344,10 +344,10 @@ def joined_zip_tables(data: bytes) -> tuple[bytes, list] | None:
     ZIP File Format Specification (PKWARE APPNOTE 6.3) (m): members are files named by
     their paths; their order in the archive is the writer's, so names order them.
     """
-    return _joined(_zip_series(data))
+    return _joined_series(_zip_series(data))
 
 
-def _joined(series: tuple[list, list, str | None] | None) -> tuple[bytes, list] | None:
+def _joined_series(series: tuple[list, list, str | None] | None) -> tuple[bytes, list] | None:
     """An archive's series (:func:`_series_parts`) as one text, each table ending with
     a line end, and the tables' names; None where it is no series or one breaks it."""
     if series is None or series[2] is not None:
@@ -399,7 +399,7 @@ def joined_tar_tables(data: bytes) -> tuple[bytes, list] | None:
     IEEE Std 1003.1 (POSIX), pax, "ustar Interchange Format" (m): members are files
     named by their paths, in the writer's order, so names order them.
     """
-    return _joined(_tar_series(data))
+    return _joined_series(_tar_series(data))
 
 
 def tar_series_break(data: bytes) -> str | None:

@@ -31,7 +31,7 @@ from .store import (
     unreadable,
 )
 
-__all__ = ["FAILURES_FILE", "RERUN", "SealMismatch", "failed_sites", "network_table", "read_network",
+__all__ = ["FAILURES_FILE", "RERUN_REMEDY", "SealMismatch", "failed_sites", "network_table", "read_network",
            "read_network_annual"]
 
 #: Index column of each budget table, the network dataset's sort key after ``site``.
@@ -44,7 +44,7 @@ NETWORK_SITE_DESCRIPTION = ("site key (the result folder's name); the partition 
 
 
 #: The remedy of a batch output folder whose network files do not match their seal.
-RERUN = ("run the batch again, which skips the sites up to date and rewrites the network "
+RERUN_REMEDY = ("run the batch again, which skips the sites up to date and rewrites the network "
          "tables whole")
 
 
@@ -62,7 +62,7 @@ class SealMismatch(InputFileError):
     problem : str
         What does not match the seal, naming the file or folder.
     remedy : str
-        What to do (:data:`RERUN`).
+        What to do (:data:`RERUN_REMEDY`).
     """
 
     def __init__(self, problem: str, remedy: str):
@@ -97,10 +97,10 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
         # it said "network.json says so: a batch was stopped", of a file cut short or edited
         raise SealMismatch(f"{str(path)!r} is damaged (not the JSON object a batch writes: "
                            f"cut short or edited), so the network tables in {str(out)!r} "
-                           "cannot be checked", RERUN)
+                           "cannot be checked", RERUN_REMEDY)
     if seal.get("complete") is not True:
         raise SealMismatch(f"the network tables in {str(out)!r} are incomplete ({NETWORK_SEAL} "
-                           "says so: a batch was stopped while writing them)", RERUN)
+                           "says so: a batch was stopped while writing them)", RERUN_REMEDY)
     _check_failures_seal(out, seal)
     recorded = (seal.get("files") or {}).get(folder) or {}
     found = {f.parent.name.removeprefix("site="): f for f in files}
@@ -109,7 +109,7 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
                 or file_sha256(found[key]) != recorded[key]:
             raise SealMismatch(f"{folder}/site={key} in {str(out)!r} is not the file the "
                                f"batch recorded in {NETWORK_SEAL} (a batch stopped while "
-                               "rewriting the network tables, or an edit)", RERUN)
+                               "rewriting the network tables, or an edit)", RERUN_REMEDY)
     for key, site in sorted((seal.get("sites") or {}).items()):
         site_folder = out / str(site.get("folder", key) if isinstance(site, dict) else key)
         edited, unread = False, None
@@ -130,7 +130,7 @@ def _check_network_seal(out: Path, folder: str, files: list[Path]) -> None:
                    "not hold)" if edited else "a batch stopped after writing some sites, or "
                    "a run into that folder")
             raise SealMismatch(f"the result folder {str(site_folder)!r} changed after the "
-                               f"network tables were written ({why})", RERUN)
+                               f"network tables were written ({why})", RERUN_REMEDY)
 
 
 def _check_failures_seal(out: Path, seal: dict) -> None:
@@ -156,7 +156,7 @@ def _check_failures_seal(out: Path, seal: dict) -> None:
                  f"in {str(out)!r} is not the file the batch recorded in {NETWORK_SEAL} (an "
                  "edit, or a copy from another batch)")
         raise SealMismatch(f"{FAILURES_FILE} {state}, so which sites the batch failed "
-                           "cannot be told", RERUN)
+                           "cannot be told", RERUN_REMEDY)
 
 
 def read_network_annual(out) -> pd.DataFrame:

@@ -363,17 +363,17 @@ def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
     step = ustar_step_up(ustar, is_night, index)
     if step is None:
         return None
-    calm, short, calm_long, long = step["ratios"]
-    days_short, days_long = STEP_SPANS_DAYS
-    day_short, day_long = step["day_ratios"]
+    calm_short, median_short, calm_long, median_long = step["ratios"]
+    span_short, span_long = STEP_SPANS_DAYS
+    daytime_short, daytime_long = step["day_ratios"]
     # the days are judged only where both spans hold daytime u* (ustar_step_up): a
     # 14-day ratio alone was said to step "too" whatever it was, beside "nan"
     days_too = ("" if not np.isfinite(step["day_ratios"]).all() else
-                f", and its days' median too ({day_short:.1f} and {day_long:.1f} times)")
+                f", and its days' median too ({daytime_short:.1f} and {daytime_long:.1f} times)")
     return (f"ustar (column {column!r}): from {step['at']:%Y-%m-%d} its nights' median "
-            f"steps up {short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
-            f"over the {days_short} days either side; {long:.1f} times over {days_long} "
-            f"days), and its calm nights' too (the 10th percentile {calm:.1f} and "
+            f"steps up {median_short:.1f} times ({step['before']:.2f} -> {step['after']:.2f} m s-1 "
+            f"over the {span_short} days either side; {median_long:.1f} times over {span_long} "
+            f"days), and its calm nights' too (the 10th percentile {calm_short:.1f} and "
             f"{calm_long:.1f} times){days_too}, as u* written in km h-1 ({KMH_FACTOR:g} "
             "times m s-1) from that day reads; the nights' u* follows the wind and the "
             "surface's roughness, which neither step so in a day and stay so for weeks "

@@ -273,8 +273,8 @@ def test_the_seal_problem_is_kept_apart_from_its_remedy(network, tmp_path, monke
     assert str(error) == f"{error.problem}; {error.remedy}"
     again = pickle.loads(pickle.dumps(error))          # as an error travels between processes
     assert (str(again), again.problem, again.remedy) == (str(error), error.problem, error.remedy)
-    assert error.remedy == network_tables.RERUN and "run the batch again" in error.remedy
-    monkeypatch.setattr(network_tables, "RERUN", "write the tables anew with a batch")
+    assert error.remedy == network_tables.RERUN_REMEDY and "run the batch again" in error.remedy
+    monkeypatch.setattr(network_tables, "RERUN_REMEDY", "write the tables anew with a batch")
     monkeypatch.setattr(module, "verify", lambda folder, exact=False: _Judged(0))
     report = verify_network(out)
     assert report.seal_problem == error.problem
