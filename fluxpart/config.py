@@ -808,6 +808,10 @@ class AddedSetting(NamedTuple):
 #: (``night_fit_records``, as ``events``: :meth:`Config.to_dict`) and needs no entry.
 ADDED_SETTINGS = (
     AddedSetting("night_donor_margin", "0.34.0", "none"),
+    # Added in 0.34.0 with the default "night" (written into every result since); its
+    # default became "mixture" in 0.38.0, so a folder that does not name it (0.33.0 or
+    # before) computed as "night" (review87).
+    AddedSetting("driver_day_prior", "0.34.0", "night"),
 )
 
 
