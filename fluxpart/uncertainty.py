@@ -2144,8 +2144,8 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     share : float
         The night's mixture share (:func:`fluxpart.driver_mixture.mixture_share`) [1].
     draws : array_like
-        The share on resampled nights
-        (:func:`fluxpart.driver_mixture.mixture_share_draws`) [1].
+        The share on resampled nights, unclipped
+        (:func:`fluxpart.driver_mixture.mixture_share_draws` with ``clip=False``) [1].
 
     Returns
     -------
@@ -2438,7 +2438,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             weight,
             driver_mixture.mixture_share(nee_measured, is_night, central, other_driver_reco),
             driver_mixture.mixture_share_draws(nee_measured, is_night, central,
-                                               other_driver_reco, index))
+                                               other_driver_reco, index, clip=False))
     else:
         day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                                        driver_day_prior)
