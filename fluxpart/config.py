@@ -355,7 +355,9 @@ class Config:
         9 / 8 → 10 / 9 of 10; on 168 generated site-years with one temperature it
         widened 3 intervals (one ×5.8), coverage unchanged, mean widths +1.2 to
         +6.6 %. ``"night"``: the night data's weight, as for the night records (the
-        default of 0.37.0 and before). ``"equal"`` (an option since 0.33.0): at least
+        default from 0.33.0, which added the setting, to 0.37.0; a result that does not
+        name the setting was computed so, :data:`ADDED_SETTINGS`). ``"equal"`` (an option
+        since 0.33.0): at least
         1/2, the equal prior of model averaging (Burnham & Anderson 2002, ch. 4 (m)),
         unless the daytime records favour the temperature in use significantly
         (:func:`fluxpart.partition.temperature_choice.daytime_evidence` above 1.96): on
@@ -811,6 +813,10 @@ class AddedSetting(NamedTuple):
 #: (``night_fit_records``, as ``events``: :meth:`Config.to_dict`) and needs no entry.
 ADDED_SETTINGS = (
     AddedSetting("night_donor_margin", "0.34.0", "none"),
+    # Added in 0.33.0 with the default "night" (written into every result since); its
+    # default became "mixture" in 0.38.0, so a folder that does not name it (0.32.0 or
+    # before) computed as "night" (review87).
+    AddedSetting("driver_day_prior", "0.33.0", "night"),
 )
 
 

@@ -2144,8 +2144,8 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     share : float
         The night's mixture share (:func:`fluxpart.driver_mixture.mixture_share`) [1].
     draws : array_like
-        The share on resampled nights
-        (:func:`fluxpart.driver_mixture.mixture_share_draws`) [1].
+        The share on resampled nights, unclipped
+        (:func:`fluxpart.driver_mixture.mixture_share_draws` with ``clip=False``) [1].
 
     Returns
     -------
@@ -2426,11 +2426,13 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             driver_weight(nee_measured, is_night, central, other_driver_reco),
             day_driver_statistic, day_evidence_critical), share ** 2)
         if driver_share_spread == "bootstrap" or driver_day_prior == "mixture":
-            # the share on resampled nights, drawn once for either use
-            share_draws = driver_mixture.mixture_share_draws(nee_measured, is_night, central,
-                                                             other_driver_reco, index)
+            # the share on resampled nights, drawn once for either use: unclipped for the
+            # mixture test (clipping shrinks the spread near 0 and 1, round review87),
+            # clipped to [0, 1] as the share itself for its second moment
+            share_draws = driver_mixture.mixture_share_draws(
+                nee_measured, is_night, central, other_driver_reco, index, clip=False)
         if driver_share_spread == "bootstrap":
-            weight = max(weight, share_second_moment(share, share_draws))
+            weight = max(weight, share_second_moment(share, np.clip(share_draws, 0.0, 1.0)))
     if other_driver_reco is None or driver_day_prior == "night":
         day_weight = None
     elif driver_day_prior == "mixture":

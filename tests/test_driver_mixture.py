@@ -197,7 +197,7 @@ def test_a_mixture_is_shown_only_where_one_was_planted(share, shown):
     nee = (1 - share) * soil + share * air + rng.laplace(0, 1.0, air.size)
     night = np.ones(air.size, bool)
     found = mixture_share(nee, night, soil, air)
-    draws = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    draws = mixture_share_draws(nee, night, soil, air, _index(air.size), clip=False)
     assert mixture_shown(found, draws) is shown
     assert mixture_shown(found, []) is False
 
@@ -214,3 +214,61 @@ def test_the_mixture_prior_gives_the_day_records_half_the_weight_where_a_mixture
     assert mixture_day_weight(0.04, 0.2, wide_draws) is None
     assert mixture_day_weight(0.04, 0.0, np.zeros(SHARE_DRAWS)) is None
     assert Config(driver_day_prior="mixture").driver_day_prior == "mixture"
+
+
+def test_a_result_without_the_day_prior_recorded_was_computed_with_the_night_weight():
+    """``driver_day_prior`` came in 0.33.0 with the default "night" and is written into
+    every result since; its default became "mixture" in 0.38.0. A folder that does not
+    name it (0.32.0 or before) computed as "night": ``verify`` and ``load`` must take
+    that, not the new default (a rerun with "mixture" widens the partitioned intervals
+    where the nights show a mixture, so the folder would be "NOT reproduced"). Audit
+    contract (DESIGN.md §4.1)."""
+    from fluxpart.config import Config, implied_settings
+
+    recorded = Config().to_dict()
+    assert recorded["driver_day_prior"] == "mixture"        # written, so never implied
+    assert "driver_day_prior" not in implied_settings(recorded)
+    del recorded["driver_day_prior"]
+    value, reason = implied_settings(recorded)["driver_day_prior"]
+    assert value == "night" and "0.33.0" in reason
+
+
+def test_a_one_temperature_respiration_is_judged_a_mixture_at_about_the_tests_level():
+    """Known truth: night NEE = Reco(soil) + Laplace noise (Hollinger & Richardson 2005),
+    200 independent noise draws on the same nights. The share is 0 and sits at the clip
+    of [0, 1], where a bootstrap is degenerate (Andrews 2000, Econometrica 68, 399–405
+    (m)); the one-sided test s − 1.96 sd > 0 must still wrongly show a mixture in about
+    2.5 % of draws (the normal bootstrap interval, Efron & Tibshirani 1993, ch. 13 (m)):
+    at most 12 of 200 (binomial: more than 12 has probability 0.002 at a rate of 2.5 %,
+    0.82 at 8 %). Measured in round review87 on 400 such draws: 9 (2.25 %)."""
+    rng, air, soil = _two_fits(seed=11, n=1000)
+    night = np.ones(air.size, bool)
+    index = _index(air.size)
+    shown = 0
+    for _ in range(200):
+        nee = soil + rng.laplace(0, 1.0, air.size)
+        shown += mixture_shown(mixture_share(nee, night, soil, air),
+                               mixture_share_draws(nee, night, soil, air, index, clip=False))
+    assert shown <= 12
+
+
+def test_the_mixture_test_takes_the_spread_of_the_unclipped_draws():
+    """The test is that of the unconstrained estimate (the weighted median of the ratios):
+    clipped draws spread less (a 1-Lipschitz map cannot raise a variance) and most near a
+    clip, where a bootstrap of an estimate held to a boundary is not consistent (Andrews
+    2000, Econometrica 68, 399–405 (m)). On one-temperature nights the unclipped draws
+    reach below 0 and the clipped ones are exactly their clip; draws of a share of 0.55
+    spread ± 0.3 and piled at 1 when clipped would show a mixture their own spread does
+    not (0.55 − 1.96 · 0.3 < 0; Efron & Tibshirani 1993, ch. 13 (m))."""
+    rng, air, soil = _two_fits(seed=12, n=1000)
+    nee = soil + rng.laplace(0, 1.0, air.size)
+    night = np.ones(air.size, bool)
+    raw = mixture_share_draws(nee, night, soil, air, _index(air.size), clip=False)
+    clipped = mixture_share_draws(nee, night, soil, air, _index(air.size))
+    assert (raw < 0).any() and (raw > 0).any()
+    np.testing.assert_array_equal(clipped, np.clip(raw, 0.0, 1.0))
+    assert clipped.std() < raw.std()
+    spread = 0.55 + 0.3 * np.random.default_rng(3).standard_normal(SHARE_DRAWS)
+    spread = 0.55 + 0.3 * (spread - spread.mean()) / spread.std()
+    assert mixture_shown(0.55, np.clip(spread, 0.0, 1.0))
+    assert not mixture_shown(0.55, spread)

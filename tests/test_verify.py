@@ -1473,7 +1473,8 @@ def earlier_and_current(tmp_path_factory):
     assert config.night_donor_margin == "threshold_spread"
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", FluxpartWarning)    # a partial year
-        process_site_config(path, dataclasses.replace(config, night_donor_margin="none")
+        process_site_config(path, dataclasses.replace(config, night_donor_margin="none",
+                                                      driver_day_prior="night")
                             ).write(root / "earlier")
         process_site_config(path).write(root / "current")
 
@@ -1527,6 +1528,10 @@ def test_a_loaded_folder_of_an_earlier_release_says_what_computed_it(earlier_and
     assert "night_donor_margin" not in json.loads((earlier / "manifest.json").read_text())[
         "config"]
     assert fluxpart.load(earlier).config.night_donor_margin == "none"
+    # driver_day_prior (0.33.0) has been written into every result since; its default
+    # became "mixture" in 0.38.0, so a folder without it computed as "night" (review87)
+    assert fluxpart.load(earlier).config.driver_day_prior == "night"
+    assert fluxpart.load(current).config.driver_day_prior == "mixture"
     assert fluxpart.load(current).config.night_donor_margin == "threshold_spread"
     assert Config().night_donor_margin == "threshold_spread"
 
