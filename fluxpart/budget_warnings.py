@@ -14,7 +14,29 @@ import pandas as pd
 
 from .measured_months import month_runs_text, unchecked_months
 
-__all__ = ["budget_year_warnings"]
+__all__ = ["budget_year_warnings", "held_span"]
+
+
+def held_span(records, expected, interval: float) -> str:
+    """How much of a budget year a partial year holds, as `run` and `check` say it.
+
+    Parameters
+    ----------
+    records : int
+        Records the budget year holds.
+    expected : int or float
+        Records of a whole budget year.
+    interval : float
+        Record length [min].
+
+    Returns
+    -------
+    str
+        ``"5.9 months"``; a few days, which read as 0.0 months, as ``"2.5 days"``.
+    """
+    months = 12.0 * records / expected
+    return (f"{months:.1f} months" if months >= 0.1
+            else f"{records * interval / 1440.0:.1f} days")
 
 
 def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_keys,
@@ -59,9 +81,7 @@ def budget_year_warnings(annual: pd.DataFrame, timeseries: pd.DataFrame, year_ke
             last = row["period_end"] - pd.Timedelta(days=1)
             year = f"budget year {key} ({row['period_start']:%Y-%m-%d} to {last:%Y-%m-%d})"
         if row["records"] < row["records_expected"]:
-            months = 12.0 * row["records"] / row["records_expected"]
-            held = (f"{months:.1f} months" if months >= 0.1   # a few days read as 0.0 months
-                    else f"{row['records'] * interval / 1440.0:.1f} days")
+            held = held_span(row["records"], row["records_expected"], interval)
             out.append(f"{year} is a partial year ({int(row['records'])} of "
                        f"{int(row['records_expected'])} records, {held}): "
                        "its sums are not annual totals and are not scaled up")

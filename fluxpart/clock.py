@@ -980,8 +980,9 @@ def _drifting_clock(used: pd.DataFrame, threshold: float):
         if abs(width_rate * span) >= 0.5 * abs(change):
             return None
     first, last = used.index[ok][0], used.index[ok][-1]
-    return float(rate), first, last, float(rate * months[0] + np.median(
-        peak - rate * months)), float(rate * months[-1] + np.median(peak - rate * months))
+    offset = float(np.median(peak - rate * months))
+    return (float(rate), first, last, float(rate * months[0] + offset),
+            float(rate * months[-1] + offset))
 
 
 def _short_shifted_run(used: pd.DataFrame, off: np.ndarray, peak: np.ndarray, months,
@@ -1212,6 +1213,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
     spread = scaled_mad(shifts, median)
     threshold = shift_threshold_minutes(interval)
     suggested = None
+    tilt_note = None    # a peak shift its rise and fall deny; dropped where a drift explains it
     status = "consistent"
     saving = _daylight_saving(used, latitude)
     if saving is not None:
@@ -1248,16 +1250,17 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
                 f"{spread:.0f} min over {len(used)} months; the rise and fall of Rg agree: "
                 f"{edge_median:+.0f} min); likely fix: {fix}")
         else:
-            notes.append(
+            tilt_note = (
                 f"clock: Rg peaks {median:+.0f} min (spread {spread:.0f} min) against the sun "
                 f"but its rise and fall say {edge_median:+.0f} min (spread {edge_spread:.0f} "
                 f"min) and {100 * agree:.0f} % of {len(used)} months agree: a tilted or partly "
                 "shaded Rg sensor rather than a clock error; not called a clock problem")
+            notes.append(tilt_note)
     if status == "consistent":
         drift = _drifting_clock(used, threshold)
         if drift is not None:
             rate, first, last, start, end = drift
-            notes = [n for n in notes if "tilted or partly shaded" not in n]
+            notes = [n for n in notes if n is not tilt_note]
             status = "shifted"
             direction = "later" if rate > 0 else "earlier"
             problems.append(
@@ -1273,7 +1276,7 @@ def check_clock(index, rg, latitude, longitude, utc_offset, interval_minutes, *,
             rest = used["shift_minutes"][(used.index < first) | (used.index > last)]
             rest_text = (f"against {float(np.median(rest)):+.0f} min in the rest of the record"
                          if len(rest) else "the whole record")
-            notes = [n for n in notes if "tilted or partly shaded" not in n]
+            notes = [n for n in notes if n is not tilt_note]
             status = "shifted"
             direction = "later" if size > 0 else "earlier"
             period = (f"in {first:%Y-%m}" if first == last

@@ -149,6 +149,7 @@ import numpy as np
 import pandas as pd
 
 from . import (
+    budget_warnings,
     damped_tair,
     day_sign,
     fixed_time_offsets,
@@ -1543,10 +1544,7 @@ def _partial_budget_years(index, interval_minutes: float, year_start: str) -> li
     texts = []
     for year, row in years[years["records"] < expected].iterrows():
         last = row["end"] - pd.Timedelta(days=1)
-        months = 12.0 * row["records"] / expected[year]
-        # a few days read as 0.0 months, as the run's warning says them (review82)
-        held = (f"{months:.1f} months" if months >= 0.1
-                else f"{row['records'] * interval_minutes / 1440.0:.1f} days")
+        held = budget_warnings.held_span(row["records"], expected[year], interval_minutes)
         texts.append(f"{label.format(year)} ({row['start']:%Y-%m-%d} to {last:%Y-%m-%d}) holds "
                      f"{int(row['records'])} of {int(expected[year])} records "
                      f"({held}): its sums are partial and are not annual totals "
