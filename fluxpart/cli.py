@@ -447,7 +447,9 @@ def _format_clock(verdict) -> str:
     lines = ["clock and site geometry (measured Rg against potential radiation)"]
     if verdict.months_used:
         # rounded to a whole minute first: -0.4 printed as "-0 min" (round newuser56)
-        lines.append(f"  shift of Rg      {round(verdict.shift_minutes):+d} min (spread "
+        shift = verdict.shift_minutes
+        shift = round(shift) if math.isfinite(shift) else shift
+        lines.append(f"  shift of Rg      {shift:+.0f} min (spread "
                      f"{verdict.spread_minutes:.0f} min over {verdict.months_used} months; "
                      "positive = Rg later than the sun)")
     clock = verdict.status.replace("_", " ")

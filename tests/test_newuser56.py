@@ -213,3 +213,20 @@ def test_the_light_response_caption_defines_its_symbols(written_demo):
     assert "β the light-saturated uptake β0 [µmol m-2 s-1]" in caption
     assert "α the initial slope [µmol J-1]" in caption and "k [hPa-1]" in caption
     assert "Rref the respiration at 10 °C [µmol m-2 s-1]" in caption
+
+
+def test_checks_clock_shift_has_no_negative_zero():
+    """`check` printed "shift of Rg -0 min" for a shift of -0.4 min: a whole minute is
+    rounded before its sign is written, and a shift that could not be judged stays NaN."""
+    from types import SimpleNamespace
+
+    from fluxpart.cli import _format_clock
+
+    def verdict(shift):
+        return SimpleNamespace(months_used=12, shift_minutes=shift, spread_minutes=5.0,
+                               status="consistent", hemisphere="consistent", notes=[])
+
+    assert "shift of Rg      +0 min (spread 5 min" in _format_clock(verdict(-0.4))
+    assert "shift of Rg      -1 min" in _format_clock(verdict(-0.6))
+    assert "shift of Rg      +29 min" in _format_clock(verdict(29.4))
+    assert "shift of Rg      +nan min" in _format_clock(verdict(float("nan")))
