@@ -48,8 +48,12 @@ def _format_annual(annual) -> str:
     """The annual budget, its uncertainty budget and the carbon-accounting units, as text."""
     columns = [c for c in ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime",
                            "reco_daytime", "share_measured", "complete") if c in annual.columns]
+    # "measured" counts the records kept after screening and the u* filter, which `check`'s
+    # coverage ("present") does not: a new user read 59 % present there against 0.51 here
+    # as a contradiction (round newuser56)
     lines = ["Annual budget [g C m-2; NEE < 0 is net uptake; share_measured: share of the "
-             "records with measured NEE; complete: every record present and NEE filled]:",
+             "records with measured NEE (kept after screening and the u* filter; the rest "
+             "gap-filled); complete: every record present and NEE filled]:",
              annual[columns].to_string(float_format=lambda v: f"{v:9.2f}")]
     if "period_start" in annual.columns and any(
             (start.month, start.day) != (1, 1) for start in annual["period_start"]):
@@ -442,7 +446,10 @@ def _format_clock(verdict) -> str:
         return "clock and site geometry: not checked ([processing] clock_check = \"off\")"
     lines = ["clock and site geometry (measured Rg against potential radiation)"]
     if verdict.months_used:
-        lines.append(f"  shift of Rg      {verdict.shift_minutes:+.0f} min (spread "
+        # rounded to a whole minute first: -0.4 printed as "-0 min" (round newuser56)
+        shift = verdict.shift_minutes
+        shift = round(shift) if math.isfinite(shift) else shift
+        lines.append(f"  shift of Rg      {shift:+.0f} min (spread "
                      f"{verdict.spread_minutes:.0f} min over {verdict.months_used} months; "
                      "positive = Rg later than the sun)")
     clock = verdict.status.replace("_", " ")
@@ -618,7 +625,8 @@ def _outside_range_lines(thresholds) -> list[str]:
         return []
     lines = []
     for row in thresholds.itertuples(index=False):
-        clause = outside_range_clause(row.threshold, row.threshold_p05, row.threshold_p95)
+        clause = outside_range_clause(row.threshold, row.threshold_p05, row.threshold_p95,
+                                      median=getattr(row, "threshold_p50", None))
         if clause:
             where = " ".join(str(getattr(row, name)) for name in ("year", "period")
                              if hasattr(row, name))

@@ -2101,7 +2101,11 @@ def figure_light_response(drawing, written) -> Figure:
                "in red shows a window that is not plainly accepted (at a bound or replaced), "
                "with the reason in its title; many flagged windows in the growing season "
                "make the daytime method's GPP less trustworthy there (model: Lasslop et al. "
-               f"2010, VPD limit above {LASSLOP_VPD0_HPA:g} hPa).")
+               f"2010, VPD limit above {LASSLOP_VPD0_HPA:g} hPa: GPP = α β Rg / (α Rg + β), "
+               "α the initial slope [µmol J-1], β the light-saturated uptake β0 "
+               f"[µmol m-2 s-1], lowered by exp(−k (VPD − {LASSLOP_VPD0_HPA:g})) above "
+               f"{LASSLOP_VPD0_HPA:g} hPa, k [hPa-1]; Rref the respiration at "
+               f"{LLOYD_TAYLOR_TREF_KELVIN - KELVIN_OFFSET:g} °C [µmol m-2 s-1]).")
     return Figure("light_response.png", drawing.png(figure), "Light-response windows", caption)
 
 

@@ -274,7 +274,8 @@ def _ustar_range(written: Written, year) -> str:
     if not (_finite(low) and _finite(high)):
         return ""
     # a threshold outside its own range, said with why (round ustar47's diagnosis)
-    outside = (outside_range_clause(rows.loc[year, "threshold"], low, high)
+    median = rows.loc[year, "threshold_p50"] if "threshold_p50" in rows.columns else None
+    outside = (outside_range_clause(rows.loc[year, "threshold"], low, high, median=median)
                if "threshold" in rows.columns else "")
     return (f" (bootstrap 5–95 %: {float(low):.3f}–{float(high):.3f} m s-1"
             f"{'; ' + outside if outside else ''})")
