@@ -691,6 +691,77 @@ def month_files_one_missing_the_next_one_starts_with_a_title(folder):
     return month_of(ends) == 5
 
 
+@case
+def offset_after_a_blank_without_colon(folder):
+    """"2021-01-01 00:30:00 +0100" (a blank before the offset, as the date command of
+    Unix writes it) under "%Y-%m-%d %H:%M:%S %z"."""
+    p38.restamped(folder, "%Y-%m-%d %H:%M:%S +0100", "%Y-%m-%d %H:%M:%S %z")
+
+
+@case
+def iso_comma_fraction_in_a_semicolon_file_of_decimal_commas(folder):
+    """"2021-01-01T00:30:00,000+01:00;0,329;..." (a European export, consistent in its
+    commas) under "ISO8601"."""
+    raw, ends = table()
+    raw.iloc[:, 1:] = raw.iloc[:, 1:].apply(lambda c: c.str.replace(".", ",", regex=False))
+    raw["stamp"] = stamps(ends, "%Y-%m-%dT%H:%M:%S,000+01:00")
+    write(folder / "t.csv", lines(raw, sep=";"))
+    toml(folder, "t.csv", delimiter=";", decimal=",", time_format="ISO8601")
+
+
+@case
+def last_record_as_day_366_of_a_common_year(folder):
+    """"2021 366 0000" for the record ending at 2022-01-01 00:00 (the day counted on
+    from 31 December, the year not yet turned): read as that instant."""
+    p38.restamped(folder, lambda ends: [
+        "2021 366 0000" if s == pd.Timestamp("2022-01-01") else s.strftime("%Y %j %H%M")
+        for s in ends], "%Y %j %H%M")
+
+
+@case
+def midnight_written_as_2400_and_again_as_0000_same_values(folder):
+    """Each day closed by "24:00" and the next day opened by "00:00" with the same values
+    (two programs' habits joined): the same instant twice, equal: read once."""
+    raw, ends = table()
+    start = ends - pd.Timedelta("30min")
+    midnight = ((ends.dt.hour == 0) & (ends.dt.minute == 0)).to_numpy()
+    raw.insert(0, "date", np.where(midnight, stamps(start, "%Y-%m-%d"), stamps(ends, "%Y-%m-%d")))
+    raw.insert(1, "clock", np.where(midnight, "24:00", stamps(ends, "%H:%M")))
+    text = lines(raw.drop(columns="stamp"))
+    out = [text[0]]
+    for i, line in enumerate(text[1:]):
+        out.append(line)
+        if midnight[i] and i + 1 < len(raw):
+            fields = line.split(",")
+            out.append(",".join([ends.iloc[i].strftime("%Y-%m-%d"), "00:00", *fields[2:]]))
+    write(folder / "t.csv", out)
+    toml(folder, "t.csv", time_column=["date", "clock"], time_format="%Y-%m-%d %H:%M")
+
+
+@case
+def four_line_block_quoted_crlf_trailing_comma_gzipped(folder):
+    """Title, names, units and statistics lines, every field quoted, each line closed by
+    a comma, CRLF, gzipped."""
+    raw, _ = table()
+    rows = ([["Program", "co2_half_hour_v3", "Signature", "40871"], list(raw.columns), UNITS,
+             STATISTICS.split(",")] + raw.values.tolist())
+    data = "".join('"' + '","'.join(row) + '",\r\n' for row in rows).encode()
+    (folder / "t.dat.gz").write_bytes(gzip.compress(data, mtime=0))
+    toml(folder, "t.dat.gz", rows_before_header=1, rows_after_header=2)
+
+
+@case
+def zip_compressed_by_deflate64(folder):
+    """A zip whose member is marked Deflate64 (method 9, Windows Explorer's for large
+    files): refused naming the method, which the standard library cannot expand."""
+    data = bytearray(zipped([("t.csv", p40.plain_bytes())], zipfile.ZIP_STORED))
+    for signature, offset in ((b"PK\x03\x04", 8), (b"PK\x01\x02", 10)):
+        data[data.find(signature) + offset] = 9
+    (folder / "t.zip").write_bytes(bytes(data))
+    toml(folder, "t.zip")
+    return "refused"
+
+
 def judge(name, folder, base_tables, cli):
     """As ``probe_layouts52.judge``; a case may return a boolean array of the example's
     records the files lack (read as missing)."""
