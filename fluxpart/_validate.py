@@ -276,6 +276,12 @@ def unreadable_zip_members(data: bytes) -> str | None:
             members = _user_files(archive)
     except (zipfile.BadZipFile, OSError, ValueError, EOFError):
         return None
+    # the methods the standard library expands: stored, deflate, bzip2, LZMA, and
+    # Zstandard from Python 3.14
+    readable = {zipfile.ZIP_STORED, zipfile.ZIP_DEFLATED, zipfile.ZIP_BZIP2, zipfile.ZIP_LZMA,
+                getattr(zipfile, "ZIP_ZSTANDARD", zipfile.ZIP_STORED)}
+    # the members that may hold the table: a read-me or a picture beside it is no cause
+    members = [info for info in members if not _document(info.filename)]
     encrypted = [info.filename for info in members if info.flag_bits & 0x1]
     if encrypted:
         return (f"its file(s) {', '.join(repr(name) for name in encrypted[:3])} are "
@@ -283,8 +289,7 @@ def unreadable_zip_members(data: bytes) -> str | None:
     unread = [(info.filename, _ZIP_METHODS_UNREAD.get(info.compress_type,
                                                       f"method {info.compress_type}"))
               for info in members
-              if info.compress_type not in (zipfile.ZIP_STORED, zipfile.ZIP_DEFLATED,
-                                            zipfile.ZIP_BZIP2, zipfile.ZIP_LZMA)]
+              if info.compress_type not in readable]
     if unread:
         name, method = unread[0]
         return (f"its file {name!r} is compressed by {method}, which this reader cannot "

@@ -110,3 +110,22 @@ def test_a_zip_packed_by_bzip2_or_lzma_is_read(tmp_path, method):
     text = _text([f"{e:%Y-%m-%d %H:%M}" for e in ends], values).encode()
     (tmp_path / "tower.zip").write_bytes(bytes(_zip(text, method)))
     pd.testing.assert_frame_equal(_read(tmp_path / "tower.zip")[0], expected)
+
+
+def test_an_encrypted_read_me_beside_the_table_is_no_cause(tmp_path):
+    """A read-me packed with a password beside a plain table: the table is read, as a
+    read-me beside it always was (documents are not counted)."""
+    ends, values, expected = _clean(tmp_path)
+    text = _text([f"{e:%Y-%m-%d %H:%M}" for e in ends], values).encode()
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as archive:
+        archive.writestr(zipfile.ZipInfo("README.txt", date_time=(2021, 6, 5, 0, 0, 0)),
+                         b"Quillmoor (fictional)")
+        archive.writestr(zipfile.ZipInfo("tower.csv", date_time=(2021, 6, 5, 0, 0, 0)), text)
+    data = bytearray(buffer.getvalue())
+    for signature, offset in ((b"PK\x03\x04", 6), (b"PK\x01\x02", 8)):
+        data[data.find(signature) + offset] |= 1          # the first member: README.txt
+    (tmp_path / "tower.zip").write_bytes(bytes(data))
+    with zipfile.ZipFile(tmp_path / "tower.zip") as archive:
+        assert [info.flag_bits & 1 for info in archive.infolist()] == [1, 0]
+    pd.testing.assert_frame_equal(_read(tmp_path / "tower.zip")[0], expected)
