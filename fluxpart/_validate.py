@@ -245,6 +245,58 @@ def _zip_members(data: bytes) -> list | None:
         return None
 
 
+#: Zip compression methods by number (APPNOTE.TXT, section 4.4.5 (m)) that the standard
+#: library cannot expand: Deflate64, which Windows Explorer uses for large files, and the
+#: methods of other archivers.
+_ZIP_METHODS_UNREAD = {6: "Implode", 9: "Deflate64", 10: "PKWARE DCL Implode", 18: "IBM TERSE",
+                       19: "IBM LZ77", 93: "Zstandard", 95: "XZ", 96: "JPEG", 97: "WavPack",
+                       98: "PPMd", 99: "AES encryption"}
+
+
+def unreadable_zip_members(data: bytes) -> str | None:
+    """Why the tables of a zip archive cannot be read, where its members are encrypted
+    (a password set when it was packed) or compressed by a method the standard library
+    lacks; None where every member can be read or it is no zip.
+
+    Such a zip was refused as "not a text table; unpack it" (layouts53), which names no
+    cause: the user unpacks it with its password, or with an archiver that knows the
+    method, and points ``[input] path`` at the text file.
+
+    References
+    ----------
+    PKWARE Inc. APPNOTE.TXT - .ZIP File Format Specification, version 6.3.10, sections
+    4.4.4 (general purpose bit 0: the file is encrypted) and 4.4.5 (compression method)
+    (m).
+    """
+    import io
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+            members = _user_files(archive)
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError):
+        return None
+    # the methods the standard library expands: stored, deflate, bzip2, LZMA, and
+    # Zstandard from Python 3.14
+    readable = {zipfile.ZIP_STORED, zipfile.ZIP_DEFLATED, zipfile.ZIP_BZIP2, zipfile.ZIP_LZMA,
+                getattr(zipfile, "ZIP_ZSTANDARD", zipfile.ZIP_STORED)}
+    # the members that may hold the table: a read-me or a picture beside it is no cause
+    members = [info for info in members if not _document(info.filename)]
+    encrypted = [info.filename for info in members if info.flag_bits & 0x1]
+    if encrypted:
+        return (f"its file(s) {', '.join(repr(name) for name in encrypted[:3])} are "
+                "encrypted (packed with a password): unpack it with its password")
+    unread = [(info.filename, _ZIP_METHODS_UNREAD.get(info.compress_type,
+                                                      f"method {info.compress_type}"))
+              for info in members
+              if info.compress_type not in readable]
+    if unread:
+        name, method = unread[0]
+        return (f"its file {name!r} is compressed by {method}, which this reader cannot "
+                "expand: unpack it with an archiver that can (7-Zip, Info-ZIP's unzip)")
+    return None
+
+
 #: Archive members that hold no file of the user's: the resource forks macOS writes
 #: beside each file it zips ("__MACOSX/._name", Apple's AppleDouble format (m)).
 _ZIP_EXTRAS = "__MACOSX/"
@@ -577,6 +629,11 @@ def refuse_binary(data: bytes, path) -> None:
     if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
         signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
     if data.startswith(b"PK\x03\x04"):
+        unreadable = unreadable_zip_members(data)
+        if unreadable:
+            raise InputFileError(f"[input] path: {str(path)!r} is a zip archive whose table "
+                                 f"cannot be read: {unreadable}, and point [input] path at "
+                                 "the text file")
         members = _zip_members(data)
         if members is not None and not {"[Content_Types].xml", "mimetype"} & set(members):
             # not a workbook (whose parts these are, ECMA-376 part 2 and OpenDocument
