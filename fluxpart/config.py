@@ -376,6 +376,18 @@ class Config:
         uncertainty only, never a central value; measured and left off by default
         (DEVELOPERS.md, 0.38.0 changelog: the share is biased low rather than uncertain
         where a canopy part respires on air temperature).
+    daytime_temperature : str
+        The temperature of the daytime method's Reco term
+        (:mod:`fluxpart.daytime_temperature`). ``"driver"`` (default, as 0.38.0 and
+        before): the run's respiration temperature. ``"air"``: air temperature where
+        the run drives Reco by soil temperature, as Lasslop et al. (2010) fit the
+        daytime method (a canopy part of Reco follows the air, which warms above the
+        soil by day; the night records cannot show it); ``"mixture"``: so only where
+        the nights also show a mixture of the two temperatures
+        (:func:`fluxpart.driver_mixture.mixture_shown`). The nighttime method never
+        changes. Changes the daytime GPP and Reco (central values and intervals) of
+        such runs; an option added after 0.38.0, written into a result's settings
+        only where set; measured in DEVELOPERS.md (round trace32).
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
@@ -667,6 +679,7 @@ class Config:
     respiration_form: str = "average"
     driver_day_prior: str = "mixture"
     driver_share_spread: str = "off"
+    daytime_temperature: str = "driver"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
     e0_min_points: int = 6
@@ -960,11 +973,13 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 
 #: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
 #: only away from their default, with which a run is that of the release before them.
-_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread")
+_WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread",
+                              "daytime_temperature")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal", "mixture"),
             "driver_share_spread": ("off", "bootstrap"),
+            "daytime_temperature": ("driver", "air", "mixture"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

@@ -1,0 +1,123 @@
+"""Tests of fluxpart.daytime_temperature (the daytime method's Reco on air temperature).
+
+External facts: Lasslop et al. (2010, Global Change Biology 16:187-208) drive the daytime
+method's Reco with air temperature; Lloyd & Taylor (1994) eq. 11 with Tref = 283.15 K and
+T0 = 227.13 K (E0 = 308.56 K), written out here; double-exponential (Laplace) flux errors
+(Hollinger & Richardson 2005, Tree Physiology 25:873-885); a canopy (leaf and stem) part of
+ecosystem respiration follows air temperature while the soil part follows the soil's, a
+fact of the trade. The known-truth recovery test uses the invented demo year (the only
+place invented data is used).
+"""
+import dataclasses
+
+import numpy as np
+import pytest
+
+import fluxpart
+from fluxpart import demo
+from fluxpart.config import Config, ConfigError
+from fluxpart.daytime_temperature import (
+    AIR,
+    CHOICES,
+    DRIVER,
+    MIXTURE,
+    shifted_day,
+    takes_air,
+)
+
+
+def _eq11(temperature_celsius, rref, e0=308.56):
+    """Lloyd & Taylor (1994) eq. 11, written out independently of fluxpart."""
+    kelvin = np.asarray(temperature_celsius, dtype=float) + 273.15
+    return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
+
+
+@pytest.mark.parametrize("setting, temperature, shown, expected", [
+    (DRIVER, "tsoil", True, False),
+    (AIR, "tsoil", None, True),
+    (AIR, "tsoil", False, True),
+    (AIR, "tair", True, False),          # a run on air temperature already is
+    (MIXTURE, "tsoil", True, True),
+    (MIXTURE, "tsoil", False, False),
+    (MIXTURE, "tsoil", None, False),     # not tested: the run's temperature
+    (MIXTURE, "tair", True, False),
+])
+def test_the_daytime_method_takes_air_only_where_the_run_reads_the_soil(
+        setting, temperature, shown, expected):
+    assert takes_air(setting, temperature, shown) is expected
+
+
+def test_an_unknown_setting_is_refused():
+    with pytest.raises(ValueError, match="daytime_temperature"):
+        takes_air("soil", "tsoil", True)
+    with pytest.raises(ConfigError, match='daytime_temperature = "soil" is not allowed'):
+        Config(daytime_temperature="soil")
+    assert set(CHOICES) == {"driver", "air", "mixture"}
+
+
+@dataclasses.dataclass
+class _Day:
+    """The fields of a daytime result that a shift moves."""
+
+    gpp: np.ndarray
+    reco: np.ndarray
+    gpp_before: np.ndarray | None = None
+    gpp_after: np.ndarray | None = None
+
+
+def test_every_ustar_run_takes_the_central_runs_shift():
+    """The central run becomes the air fit itself; another run moves by the central
+    difference record by record, so the runs' spread is the threshold's alone."""
+    central = _Day(np.array([5.0, 6.0, 0.0]), np.array([2.0, 2.5, 1.5]))
+    air = _Day(np.array([5.5, 7.0, 0.0]), np.array([2.5, 3.5, 1.5]))
+    other = _Day(np.array([4.0, 5.0, 0.0]), np.array([1.8, 2.2, 1.4]),
+                 np.array([4.1, 5.1, 0.1]), np.array([3.9, 4.9, -0.1]))
+    assert shifted_day(central, central, air) is air
+    moved = shifted_day(other, central, air)
+    np.testing.assert_allclose(moved.gpp, [4.5, 6.0, 0.0])
+    np.testing.assert_allclose(moved.reco, [2.3, 3.2, 1.4])
+    np.testing.assert_allclose(moved.gpp_before, [4.6, 6.1, 0.1])
+    np.testing.assert_allclose(moved.gpp_after, [4.4, 5.9, -0.1])
+    np.testing.assert_allclose(moved.reco - other.reco, air.reco - central.reco)
+
+
+def _canopy_and_soil_year():
+    """The invented demo year with its Reco replaced by a soil part on soil temperature
+    plus a canopy part on air temperature (Lloyd & Taylor eq. 11 each, Rref 1.5 and 1.0)
+    and Laplace noise: by day the air warms above the soil, and Reco with it."""
+    frame, truth = demo.site_year(seed=5)
+    rng = np.random.default_rng(5)
+    # the planted temperatures where a sensor's record is missing: linear between readings
+    tsoil, tair = (frame[c].interpolate(limit_direction="both") for c in ("tsoil", "tair"))
+    reco = _eq11(tsoil, 1.5) + _eq11(tair, 1.0)
+    nee = frame["nee"].to_numpy(dtype=float).copy()
+    measured = np.isfinite(nee)
+    nee[measured] = (reco[measured] - truth["gpp"].to_numpy(dtype=float)[measured]
+                     + rng.laplace(0, 0.5, int(measured.sum())))
+    frame = frame.copy()
+    frame["nee"] = nee
+    return frame, reco
+
+
+def test_the_daytime_reco_on_air_follows_a_canopy_part_the_soil_misses():
+    """Known truth through process(): with the run reading the soil, the daytime method
+    on soil temperature misses the canopy part's daytime rise; on air temperature
+    (``"air"``) its annual Reco lies nearer the planted one. The nighttime method and NEE
+    are unchanged, a run with the default is that of the release before (the setting is
+    not written), and the setting is written where set."""
+    frame, reco = _canopy_and_soil_year()
+    factor = 1800 * 12.011e-6                        # g C m-2 per record per µmol m-2 s-1
+    planted = float(reco.sum() * factor)
+    soil = fluxpart.process(frame, demo.site(), Config(
+        ustar_bootstrap_draws=0, respiration_driver="tsoil"))
+    air = fluxpart.process(frame, demo.site(), Config(
+        ustar_bootstrap_draws=0, respiration_driver="tsoil", daytime_temperature="air"))
+    year = soil.annual.index[0]
+    error_soil = float(soil.annual.loc[year, "reco_daytime"]) - planted
+    error_air = float(air.annual.loc[year, "reco_daytime"]) - planted
+    assert error_soil < 0                            # the soil misses the day's rise
+    assert abs(error_air) < abs(error_soil)
+    for column in ("nee", "gpp_nighttime", "reco_nighttime"):
+        assert float(air.annual.loc[year, column]) == float(soil.annual.loc[year, column])
+    assert "daytime_temperature" not in Config(respiration_driver="tsoil").to_dict()
+    assert Config(daytime_temperature="air").to_dict()["daytime_temperature"] == "air"
