@@ -31,7 +31,7 @@ import numpy as np
 from . import daytime_temperature, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
-from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
+from .partition import light_shape, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
@@ -204,54 +204,6 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     return statistic, other, other_day
 
 
-def daytime_on_air(inputs, outcomes, driver, form, config) -> bool:
-    """Whether the daytime method takes air temperature (``daytime_temperature``).
-
-    Parameters
-    ----------
-    inputs : fluxpart.ustar_runs.RunInputs
-        The record, screened, with its filled drivers.
-    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
-        The u* runs, the respiration form's shift added.
-    driver : fluxpart.respiration_driver.DriverDecision
-        The respiration temperature, its delay and the choice's nighttime fits.
-    form : fluxpart.partition.respiration_form.FormAverage
-        The respiration forms' average (its shift added to the air-driven night Reco,
-        as the central Reco carries it).
-    config : Config
-        Settings.
-
-    Returns
-    -------
-    bool
-        :func:`fluxpart.daytime_temperature.takes_air`; with ``"mixture"`` the nights'
-        test on the choice's air-temperature night fit applied to the central fill
-        (False where the choice did not fit air temperature, e.g. a driver set by hand).
-    """
-    setting = config.daytime_temperature
-    if setting == daytime_temperature.DRIVER or driver.temperature != "tsoil" or driver.delay:
-        return False
-    shown = None
-    if setting == daytime_temperature.MIXTURE:
-        central = outcomes["central"]
-        fit = driver.night_fits.get("tair")
-        if fit is None or method_failure.failed(central.night) \
-                or "tair_filled" not in inputs.filled_drivers.columns:
-            return False
-        try:
-            air_reco = nighttime.apply_fit(
-                fit, central.filled["value"].to_numpy(dtype=float),
-                inputs.filled_drivers["tair_filled"].to_numpy(dtype=float)).reco
-        except FluxpartError:
-            return False
-        if form is not None:
-            air_reco = air_reco + form.shift
-        shown = daytime_temperature.night_shown(
-            central.nee_measured, inputs.is_night, central.night.reco, air_reco,
-            inputs.frame.index)
-    return daytime_temperature.takes_air(setting, driver.temperature, shown)
-
-
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
     """The E0 the daytime windows without their own took, as a warning's words.
 
@@ -366,13 +318,15 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     # the evidence compares two fits of one shape: the rectangular central run's
     day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
-    if day_evidence is not None and daytime_on_air(inputs, outcomes, driver, form, config):
-        # the daytime method on air temperature (Lasslop et al. 2010): the evidence's own
-        # fit, every u* run shifted as the central one (module daytime_temperature)
+    weight = 0.0 if day_evidence is None or delay else daytime_temperature.air_weight(
+        config.daytime_temperature, temperature)
+    if weight:
+        # the daytime method on air temperature (Lasslop et al. 2010), or the average of
+        # both: the evidence's own fit, every u* run shifted as the central one
         central_day = outcomes["central"].day
         air_day = day_evidence[2] if shape is None else shape.shifted(day_evidence[2])
         outcomes = {name: outcome._replace(day=daytime_temperature.shifted_day(
-                        outcome.day, central_day, air_day))
+                        outcome.day, central_day, air_day, weight))
                     if not method_failure.failed(outcome.day) else outcome
                     for name, outcome in outcomes.items()}
         filled, night, day = (outcomes["central"].filled, outcomes["central"].night,

@@ -382,10 +382,10 @@ class Config:
         before): the run's respiration temperature. ``"air"``: air temperature where
         the run drives Reco by soil temperature, as Lasslop et al. (2010) fit the
         daytime method (a canopy part of Reco follows the air, which warms above the
-        soil by day; the night records cannot show it); ``"mixture"``: so only where
-        the nights also show a mixture of the two temperatures
-        (:func:`fluxpart.driver_mixture.mixture_shown`). The nighttime method never
-        changes. Changes the daytime GPP and Reco (central values and intervals) of
+        soil by day; the night records cannot show it); ``"average"``: there the
+        average of the daytime fits on soil and on air temperature with equal weights
+        (the equal prior of model averaging, as ``driver_day_prior`` takes for the
+        daytime records). The nighttime method never changes. Changes the daytime GPP and Reco (central values and intervals) of
         such runs; an option added after 0.38.0, written into a result's settings
         only where set; measured in DEVELOPERS.md (round trace32).
     e0_window_days : float
@@ -979,7 +979,7 @@ _WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_s
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal", "mixture"),
             "driver_share_spread": ("off", "bootstrap"),
-            "daytime_temperature": ("driver", "air", "mixture"),
+            "daytime_temperature": ("driver", "air", "average"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

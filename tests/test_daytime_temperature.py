@@ -16,14 +16,7 @@ import pytest
 import fluxpart
 from fluxpart import demo
 from fluxpart.config import Config, ConfigError
-from fluxpart.daytime_temperature import (
-    AIR,
-    CHOICES,
-    DRIVER,
-    MIXTURE,
-    shifted_day,
-    takes_air,
-)
+from fluxpart.daytime_temperature import AIR, AVERAGE, CHOICES, DRIVER, air_weight, shifted_day
 
 
 def _eq11(temperature_celsius, rref, e0=308.56):
@@ -32,27 +25,25 @@ def _eq11(temperature_celsius, rref, e0=308.56):
     return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
 
 
-@pytest.mark.parametrize("setting, temperature, shown, expected", [
-    (DRIVER, "tsoil", True, False),
-    (AIR, "tsoil", None, True),
-    (AIR, "tsoil", False, True),
-    (AIR, "tair", True, False),          # a run on air temperature already is
-    (MIXTURE, "tsoil", True, True),
-    (MIXTURE, "tsoil", False, False),
-    (MIXTURE, "tsoil", None, False),     # not tested: the run's temperature
-    (MIXTURE, "tair", True, False),
+@pytest.mark.parametrize("setting, temperature, expected", [
+    (DRIVER, "tsoil", 0.0),
+    (DRIVER, "tair", 0.0),
+    (AIR, "tsoil", 1.0),
+    (AIR, "tair", 0.0),                  # a run on air temperature already is
+    (AVERAGE, "tsoil", 0.5),             # the equal prior of model averaging
+    (AVERAGE, "tair", 0.0),
 ])
 def test_the_daytime_method_takes_air_only_where_the_run_reads_the_soil(
-        setting, temperature, shown, expected):
-    assert takes_air(setting, temperature, shown) is expected
+        setting, temperature, expected):
+    assert air_weight(setting, temperature) == expected
 
 
 def test_an_unknown_setting_is_refused():
     with pytest.raises(ValueError, match="daytime_temperature"):
-        takes_air("soil", "tsoil", True)
+        air_weight("soil", "tsoil")
     with pytest.raises(ConfigError, match='daytime_temperature = "soil" is not allowed'):
         Config(daytime_temperature="soil")
-    assert set(CHOICES) == {"driver", "air", "mixture"}
+    assert set(CHOICES) == {"driver", "air", "average"}
 
 
 @dataclasses.dataclass
@@ -66,19 +57,25 @@ class _Day:
 
 
 def test_every_ustar_run_takes_the_central_runs_shift():
-    """The central run becomes the air fit itself; another run moves by the central
-    difference record by record, so the runs' spread is the threshold's alone."""
+    """At weight 1 the central run becomes the air fit itself; another run moves by the
+    central difference record by record, so the runs' spread is the threshold's alone; at
+    weight 1/2 every run, the central one too, moves by half of it."""
     central = _Day(np.array([5.0, 6.0, 0.0]), np.array([2.0, 2.5, 1.5]))
     air = _Day(np.array([5.5, 7.0, 0.0]), np.array([2.5, 3.5, 1.5]))
     other = _Day(np.array([4.0, 5.0, 0.0]), np.array([1.8, 2.2, 1.4]),
                  np.array([4.1, 5.1, 0.1]), np.array([3.9, 4.9, -0.1]))
-    assert shifted_day(central, central, air) is air
-    moved = shifted_day(other, central, air)
+    assert shifted_day(central, central, air, 1.0) is air
+    moved = shifted_day(other, central, air, 1.0)
     np.testing.assert_allclose(moved.gpp, [4.5, 6.0, 0.0])
     np.testing.assert_allclose(moved.reco, [2.3, 3.2, 1.4])
     np.testing.assert_allclose(moved.gpp_before, [4.6, 6.1, 0.1])
     np.testing.assert_allclose(moved.gpp_after, [4.4, 5.9, -0.1])
     np.testing.assert_allclose(moved.reco - other.reco, air.reco - central.reco)
+    half = shifted_day(central, central, air, 0.5)
+    np.testing.assert_allclose(half.reco, 0.5 * (central.reco + air.reco))
+    np.testing.assert_allclose(half.gpp, 0.5 * (central.gpp + air.gpp))
+    np.testing.assert_allclose(shifted_day(other, central, air, 0.5).reco,
+                               [2.05, 2.7, 1.4])
 
 
 def _canopy_and_soil_year():
@@ -102,22 +99,26 @@ def _canopy_and_soil_year():
 def test_the_daytime_reco_on_air_follows_a_canopy_part_the_soil_misses():
     """Known truth through process(): with the run reading the soil, the daytime method
     on soil temperature misses the canopy part's daytime rise; on air temperature
-    (``"air"``) its annual Reco lies nearer the planted one. The nighttime method and NEE
+    (``"air"``), or halfway (``"average"``), its annual Reco lies nearer the planted one. The nighttime method and NEE
     are unchanged, a run with the default is that of the release before (the setting is
     not written), and the setting is written where set."""
     frame, reco = _canopy_and_soil_year()
     factor = 1800 * 12.011e-6                        # g C m-2 per record per µmol m-2 s-1
     planted = float(reco.sum() * factor)
-    soil = fluxpart.process(frame, demo.site(), Config(
-        ustar_bootstrap_draws=0, respiration_driver="tsoil"))
-    air = fluxpart.process(frame, demo.site(), Config(
-        ustar_bootstrap_draws=0, respiration_driver="tsoil", daytime_temperature="air"))
-    year = soil.annual.index[0]
-    error_soil = float(soil.annual.loc[year, "reco_daytime"]) - planted
-    error_air = float(air.annual.loc[year, "reco_daytime"]) - planted
-    assert error_soil < 0                            # the soil misses the day's rise
-    assert abs(error_air) < abs(error_soil)
+    runs = {setting: fluxpart.process(frame, demo.site(), Config(
+        ustar_bootstrap_draws=0, respiration_driver="tsoil", daytime_temperature=setting))
+        for setting in CHOICES}
+    year = runs[DRIVER].annual.index[0]
+    error = {setting: float(result.annual.loc[year, "reco_daytime"]) - planted
+             for setting, result in runs.items()}
+    assert error[DRIVER] < 0                         # the soil misses the day's rise
+    assert abs(error[AIR]) < abs(error[DRIVER])
+    assert abs(error[AVERAGE]) < abs(error[DRIVER])
+    # the average lies halfway, GPP moves with Reco (NEE of the daytime method kept)
+    reco = {s: float(r.annual.loc[year, "reco_daytime"]) for s, r in runs.items()}
+    assert reco[AVERAGE] == pytest.approx(0.5 * (reco[DRIVER] + reco[AIR]), abs=1e-6)
     for column in ("nee", "gpp_nighttime", "reco_nighttime"):
-        assert float(air.annual.loc[year, column]) == float(soil.annual.loc[year, column])
+        assert float(runs[AIR].annual.loc[year, column]) \
+            == float(runs[DRIVER].annual.loc[year, column])
     assert "daytime_temperature" not in Config(respiration_driver="tsoil").to_dict()
     assert Config(daytime_temperature="air").to_dict()["daytime_temperature"] == "air"
