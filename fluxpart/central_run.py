@@ -31,7 +31,7 @@ import numpy as np
 from . import daytime_temperature, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
-from .partition import light_shape, pieces, respiration_form, temperature_choice
+from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
@@ -204,6 +204,53 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     return statistic, other, other_day
 
 
+def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
+    """Whether the nights show a mixture of soil and air temperature, for
+    ``daytime_temperature = "mixture"``; None where not tested.
+
+    Parameters
+    ----------
+    inputs : fluxpart.ustar_runs.RunInputs
+        The record, screened, with its filled drivers.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        The u* runs, the respiration form's shift added.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature and the choice's nighttime fits.
+    form : fluxpart.partition.respiration_form.FormAverage
+        The respiration forms' average (its shift added to the air-driven night Reco, as
+        the central Reco carries it and as the uncertainty compares them).
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    bool or None
+        :func:`fluxpart.daytime_temperature.night_shown` on the choice's air-temperature
+        night fit applied to the central fill, as the temperature part of the
+        uncertainty tests it (:func:`fluxpart.uncertainty_assembly.budget_uncertainty`);
+        None for another setting, a run on air temperature, or where the choice fitted
+        no air temperature (a driver set by hand) or the nighttime method failed.
+    """
+    if config.daytime_temperature != daytime_temperature.MIXTURE \
+            or driver.temperature != "tsoil" or driver.delay:
+        return None
+    central = outcomes["central"]
+    fit = driver.night_fits.get("tair")
+    if fit is None or method_failure.failed(central.night) \
+            or "tair_filled" not in inputs.filled_drivers.columns:
+        return None
+    try:
+        air_reco = nighttime.apply_fit(
+            fit, central.filled["value"].to_numpy(dtype=float),
+            inputs.filled_drivers["tair_filled"].to_numpy(dtype=float)).reco
+    except FluxpartError:
+        return None
+    if form is not None:
+        air_reco = air_reco + form.shift
+    return daytime_temperature.night_shown(central.nee_measured, inputs.is_night,
+                                           central.night.reco, air_reco, inputs.frame.index)
+
+
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
     """The E0 the daytime windows without their own took, as a warning's words.
 
@@ -319,7 +366,8 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
     weight = 0.0 if day_evidence is None or delay else daytime_temperature.air_weight(
-        config.daytime_temperature, temperature)
+        config.daytime_temperature, temperature,
+        night_mixture(inputs, outcomes, driver, form, config))
     if weight:
         # the daytime method on air temperature (Lasslop et al. 2010), or the average of
         # both: the evidence's own fit, every u* run shifted as the central one

@@ -385,7 +385,9 @@ class Config:
         soil by day; the night records cannot show it); ``"average"``: there the
         average of the daytime fits on soil and on air temperature with equal weights
         (the equal prior of model averaging, as ``driver_day_prior`` takes for the
-        daytime records). The nighttime method never changes. Changes the daytime GPP and Reco (central values and intervals) of
+        daytime records); ``"mixture"``: that average only where the nights also show a
+        mixture of the two temperatures (the test of ``driver_day_prior = "mixture"``).
+        The nighttime method never changes. Changes the daytime GPP and Reco (central values and intervals) of
         such runs; an option added after 0.38.0, written into a result's settings
         only where set; measured in DEVELOPERS.md (round trace32).
     e0_window_days : float
@@ -979,7 +981,7 @@ _WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_s
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
             "driver_day_prior": ("night", "equal", "mixture"),
             "driver_share_spread": ("off", "bootstrap"),
-            "daytime_temperature": ("driver", "air", "average"),
+            "daytime_temperature": ("driver", "air", "average", "mixture"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

@@ -18,7 +18,9 @@ average of the fits on soil and on air temperature with equal weights, the equal
 model averaging (Burnham & Anderson 2002, ch. 4 (m)) that ``driver_day_prior`` gives the
 daytime records where the nights show a mixture: neither single-temperature fit is true
 where a soil part and a canopy part respire; ``"driver"`` (the default) keeps the run's
-temperature. The nighttime method is never changed. The air fit is the one the daytime
+temperature; ``"mixture"`` averages them only where the nights also show a mixture of
+the two temperatures (:func:`night_shown`, the test of ``driver_day_prior = "mixture"``).
+The nighttime method is never changed. The air fit is the one the daytime
 evidence already makes (:func:`fluxpart.central_run.daytime_driver_evidence`); every u*
 run takes the same per-record shift as the central run, as the light shape's average does
 (:mod:`fluxpart.partition.light_shape`), so the runs' spread stays the threshold's alone.
@@ -42,7 +44,10 @@ import dataclasses
 
 import numpy as np
 
-__all__ = ["CHOICES", "DRIVER", "AIR", "AVERAGE", "air_weight", "shifted_day"]
+from . import driver_mixture
+
+__all__ = ["CHOICES", "DRIVER", "AIR", "AVERAGE", "MIXTURE", "air_weight", "night_shown",
+           "shifted_day"]
 
 #: The run's respiration temperature (0.38.0 and before).
 DRIVER = "driver"
@@ -51,10 +56,12 @@ AIR = "air"
 #: The equal-weight average of the fits on soil and on air temperature wherever the run
 #: drives Reco by soil temperature.
 AVERAGE = "average"
-CHOICES = (DRIVER, AIR, AVERAGE)
+#: :data:`AVERAGE` only where the nights also show a mixture of the two temperatures.
+MIXTURE = "mixture"
+CHOICES = (DRIVER, AIR, AVERAGE, MIXTURE)
 
 
-def air_weight(setting: str, temperature: str) -> float:
+def air_weight(setting: str, temperature: str, shown: bool | None = None) -> float:
     """The weight of the daytime method's fit on air temperature.
 
     Parameters
@@ -63,18 +70,49 @@ def air_weight(setting: str, temperature: str) -> float:
         ``daytime_temperature``: one of :data:`CHOICES`.
     temperature : str
         The run's respiration temperature, ``"tair"`` or ``"tsoil"``.
+    shown : bool or None, optional
+        Whether the nights show a mixture (:func:`night_shown`); None: not tested.
 
     Returns
     -------
     float
         0 for :data:`DRIVER` or a run on air temperature; where the run reads the soil
-        1 for :data:`AIR` and 1/2 for :data:`AVERAGE` [1].
+        1 for :data:`AIR`, 1/2 for :data:`AVERAGE`, and 1/2 for :data:`MIXTURE` where
+        `shown` is True (0 elsewhere) [1].
     """
     if setting not in CHOICES:
         raise ValueError(f"daytime_temperature: expected one of {CHOICES}, got {setting!r}")
     if temperature != "tsoil" or setting == DRIVER:
         return 0.0
+    if setting == MIXTURE:
+        return 0.5 if shown else 0.0
     return 1.0 if setting == AIR else 0.5
+
+
+def night_shown(nee_measured, is_night, reco_central, reco_air, index) -> bool:
+    """Whether the nights show a mixture of the soil-driven and the air-driven Reco.
+
+    Parameters
+    ----------
+    nee_measured : array_like
+        Measured NEE kept by screening [µmol m-2 s-1]; NaN elsewhere.
+    is_night : array_like of bool
+    reco_central, reco_air : array_like
+        Nighttime Reco on the run's (soil) temperature and on air temperature
+        [µmol m-2 s-1].
+    index : array_like of datetime64
+        Record times (local).
+
+    Returns
+    -------
+    bool
+        :func:`fluxpart.driver_mixture.mixture_shown` of the air share and its unclipped
+        draws over resampled nights: the test of ``driver_day_prior = "mixture"``.
+    """
+    share = driver_mixture.mixture_share(nee_measured, is_night, reco_central, reco_air)
+    draws = driver_mixture.mixture_share_draws(nee_measured, is_night, reco_central, reco_air,
+                                               index, clip=False)
+    return driver_mixture.mixture_shown(share, draws)
 
 
 def shifted_day(day, central_day, air_day, weight: float):

@@ -16,7 +16,16 @@ import pytest
 import fluxpart
 from fluxpart import demo
 from fluxpart.config import Config, ConfigError
-from fluxpart.daytime_temperature import AIR, AVERAGE, CHOICES, DRIVER, air_weight, shifted_day
+from fluxpart.daytime_temperature import (
+    AIR,
+    AVERAGE,
+    CHOICES,
+    DRIVER,
+    MIXTURE,
+    air_weight,
+    night_shown,
+    shifted_day,
+)
 
 
 def _eq11(temperature_celsius, rref, e0=308.56):
@@ -25,17 +34,41 @@ def _eq11(temperature_celsius, rref, e0=308.56):
     return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
 
 
-@pytest.mark.parametrize("setting, temperature, expected", [
-    (DRIVER, "tsoil", 0.0),
-    (DRIVER, "tair", 0.0),
-    (AIR, "tsoil", 1.0),
-    (AIR, "tair", 0.0),                  # a run on air temperature already is
-    (AVERAGE, "tsoil", 0.5),             # the equal prior of model averaging
-    (AVERAGE, "tair", 0.0),
+@pytest.mark.parametrize("setting, temperature, shown, expected", [
+    (DRIVER, "tsoil", True, 0.0),
+    (DRIVER, "tair", None, 0.0),
+    (AIR, "tsoil", None, 1.0),
+    (AIR, "tair", None, 0.0),            # a run on air temperature already is
+    (AVERAGE, "tsoil", False, 0.5),      # the equal prior of model averaging
+    (AVERAGE, "tair", None, 0.0),
+    (MIXTURE, "tsoil", True, 0.5),       # only where the nights show a mixture
+    (MIXTURE, "tsoil", False, 0.0),
+    (MIXTURE, "tsoil", None, 0.0),
+    (MIXTURE, "tair", True, 0.0),
 ])
 def test_the_daytime_method_takes_air_only_where_the_run_reads_the_soil(
-        setting, temperature, expected):
-    assert air_weight(setting, temperature) == expected
+        setting, temperature, shown, expected):
+    assert air_weight(setting, temperature, shown) == expected
+
+
+def test_the_nights_show_a_planted_mixture_and_not_one_temperature():
+    """Known truth: night NEE of Lloyd & Taylor eq. 11 on soil temperature alone, or with
+    0.4 of it on air temperature, plus Laplace noise; the test of the mixture prior."""
+    import pandas as pd
+    rng = np.random.default_rng(3)
+    n = 4000
+    days = np.arange(n) / 20.0
+    tair = 12 + 8 * np.sin(2 * np.pi * days / 365) + 4 * np.sin(2 * np.pi * days)
+    tair = tair + pd.Series(rng.normal(0, 2.5, n)).rolling(20, min_periods=1).mean().to_numpy()
+    tsoil = 12 + 6 * np.sin(2 * np.pi * (days - 10) / 365) + 0.8 * np.sin(
+        2 * np.pi * (days - 0.2))
+    soil, air = _eq11(tsoil, 3.0), _eq11(tair, 3.0)
+    index = pd.Timestamp("2021-01-01") + pd.to_timedelta(np.arange(n) * 72, unit="min")
+    night = np.ones(n, bool)
+    one = soil + rng.laplace(0, 0.4, n)
+    mixed = 0.6 * soil + 0.4 * air + rng.laplace(0, 0.4, n)
+    assert night_shown(mixed, night, soil, air, index)
+    assert not night_shown(one, night, soil, air, index)
 
 
 def test_an_unknown_setting_is_refused():
@@ -43,7 +76,7 @@ def test_an_unknown_setting_is_refused():
         air_weight("soil", "tsoil")
     with pytest.raises(ConfigError, match='daytime_temperature = "soil" is not allowed'):
         Config(daytime_temperature="soil")
-    assert set(CHOICES) == {"driver", "air", "average"}
+    assert set(CHOICES) == {"driver", "air", "average", "mixture"}
 
 
 @dataclasses.dataclass
@@ -107,7 +140,7 @@ def test_the_daytime_reco_on_air_follows_a_canopy_part_the_soil_misses():
     planted = float(reco.sum() * factor)
     runs = {setting: fluxpart.process(frame, demo.site(), Config(
         ustar_bootstrap_draws=0, respiration_driver="tsoil", daytime_temperature=setting))
-        for setting in CHOICES}
+        for setting in (DRIVER, AIR, AVERAGE)}
     year = runs[DRIVER].annual.index[0]
     error = {setting: float(result.annual.loc[year, "reco_daytime"]) - planted
              for setting, result in runs.items()}
