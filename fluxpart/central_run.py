@@ -291,7 +291,8 @@ class CentralStage(NamedTuple):
     form : fluxpart.partition.respiration_form.FormAverage
         The two respiration forms' weights and the per-record shift [µmol m-2 s-1].
     day_evidence : tuple or None
-        (statistic, other temperature's name) of :func:`daytime_driver_evidence`.
+        (statistic, other temperature's name, the daytime partitioning on it) of
+        :func:`daytime_driver_evidence`.
     warnings : list of str
         Events a fill crossed, pieces without a window of their own, the daytime E0
         fallback, in this order.
