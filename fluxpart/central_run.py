@@ -28,10 +28,10 @@ from typing import NamedTuple
 
 import numpy as np
 
-from . import gapfill, method_failure, uncertainty
+from . import daytime_temperature, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
-from .partition import light_shape, pieces, respiration_form, temperature_choice
+from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
 
@@ -175,8 +175,9 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     Returns
     -------
     tuple or None
-        (:func:`temperature_choice.daytime_evidence`, the other temperature's name);
-        None where a method failed or the other temperature is missing.
+        (:func:`temperature_choice.daytime_evidence`, the other temperature's name, the
+        daytime partitioning on it); None where a method failed or the other temperature
+        is missing.
 
     References
     ----------
@@ -200,7 +201,54 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     statistic = temperature_choice.daytime_evidence(
         nee_measured, ~np.asarray(is_night, dtype=bool), day.reco - day.gpp,
         other_day.reco - other_day.gpp, frame.index.normalize())
-    return statistic, other
+    return statistic, other, other_day
+
+
+def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
+    """Whether the nights show a mixture of soil and air temperature, for
+    ``daytime_temperature = "mixture"``; None where not tested.
+
+    Parameters
+    ----------
+    inputs : fluxpart.ustar_runs.RunInputs
+        The record, screened, with its filled drivers.
+    outcomes : dict of str to fluxpart.ustar_runs.RunOutcome
+        The u* runs, the respiration form's shift added.
+    driver : fluxpart.respiration_driver.DriverDecision
+        The respiration temperature and the choice's nighttime fits.
+    form : fluxpart.partition.respiration_form.FormAverage
+        The respiration forms' average (its shift added to the air-driven night Reco, as
+        the central Reco carries it and as the uncertainty compares them).
+    config : Config
+        Settings.
+
+    Returns
+    -------
+    bool or None
+        :func:`fluxpart.daytime_temperature.night_shown` on the choice's air-temperature
+        night fit applied to the central fill, as the temperature part of the
+        uncertainty tests it (:func:`fluxpart.uncertainty_assembly.budget_uncertainty`);
+        None for another setting, a run on air temperature, or where the choice fitted
+        no air temperature (a driver set by hand) or the nighttime method failed.
+    """
+    if config.daytime_temperature != daytime_temperature.MIXTURE \
+            or driver.temperature != "tsoil" or driver.delay:
+        return None
+    central = outcomes["central"]
+    fit = driver.night_fits.get("tair")
+    if fit is None or method_failure.failed(central.night) \
+            or "tair_filled" not in inputs.filled_drivers.columns:
+        return None
+    try:
+        air_reco = nighttime.apply_fit(
+            fit, central.filled["value"].to_numpy(dtype=float),
+            inputs.filled_drivers["tair_filled"].to_numpy(dtype=float)).reco
+    except FluxpartError:
+        return None
+    if form is not None:
+        air_reco = air_reco + form.shift
+    return daytime_temperature.night_shown(central.nee_measured, inputs.is_night,
+                                           central.night.reco, air_reco, inputs.frame.index)
 
 
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
@@ -243,7 +291,8 @@ class CentralStage(NamedTuple):
     form : fluxpart.partition.respiration_form.FormAverage
         The two respiration forms' weights and the per-record shift [µmol m-2 s-1].
     day_evidence : tuple or None
-        (statistic, other temperature's name) of :func:`daytime_driver_evidence`.
+        (statistic, other temperature's name, the daytime partitioning on it) of
+        :func:`daytime_driver_evidence`.
     warnings : list of str
         Events a fill crossed, pieces without a window of their own, the daytime E0
         fallback, in this order.
@@ -317,6 +366,20 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     # the evidence compares two fits of one shape: the rectangular central run's
     day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
+    weight = 0.0 if day_evidence is None or delay else daytime_temperature.air_weight(
+        config.daytime_temperature, temperature,
+        night_mixture(inputs, outcomes, driver, form, config))
+    if weight:
+        # the daytime method on air temperature (Lasslop et al. 2010), or the average of
+        # both: the evidence's own fit, every u* run shifted as the central one
+        central_day = outcomes["central"].day
+        air_day = day_evidence[2] if shape is None else shape.shifted(day_evidence[2])
+        outcomes = {name: outcome._replace(day=daytime_temperature.shifted_day(
+                        outcome.day, central_day, air_day, weight))
+                    if not method_failure.failed(outcome.day) else outcome
+                    for name, outcome in outcomes.items()}
+        filled, night, day = (outcomes["central"].filled, outcomes["central"].night,
+                              outcomes["central"].day)
     fell_back = day.parameters["e0_source"] == "fallback"
     if config.e0_fallback is None and fell_back.any():
         warnings.append(
