@@ -727,8 +727,8 @@ def write_site(site: Site, data: pd.DataFrame, folder: Path, processing=""):
     extra = (f'path = "{path.name}"\n'
              + (f'delimiter = "{lay["delimiter"]}"\n'.replace("\t", "\\t")
                 if lay["delimiter"] != "," else "")
-             + (f"rows_before_header = 1\n" if lay.get("title") else "")
-             + (f"rows_after_header = 1\n" if lay.get("units_line") else "")
+             + ("rows_before_header = 1\n" if lay.get("title") else "")
+             + ("rows_after_header = 1\n" if lay.get("units_line") else "")
              + (f'time_column = "{cols[0]}"\n' if len(cols) == 1
                 else f"time_column = {cols!r}\n".replace("'", '"'))
              + f'time_format = "{lay["time_format"]}"\ntime_marks = "{lay["marks"]}"\n'
