@@ -17,7 +17,8 @@ runs of dropouts). One complication per site on top:
 
 - A  a wheat-then-maize ROTATION at 48.3 deg N, 30 min, 2021 (winter wheat, harvest) and
      2022 (C4 maize, sowing and harvest), every management date declared as ``events``;
-     ISO 8601 stamps with a UTC offset, NEE in mg CO2 m-2 s-1; an NEE-only outage of days;
+     ISO 8601 stamps with a UTC offset, NEE in mg CO2 m-2 s-1; an NEE-only outage of 14-21
+     days in the two years;
 - R  a silage ryegrass sward at 52.9 deg N, 30 min, 2024 (LEAP year), THREE CUTS (declared)
      with regrowth; tab-separated, PPFD instead of Rg, u* in cm s-1;
 - D  an oak-hornbeam forest at 47.5 deg N, HOURLY, 2022, a 14-21 day OUTAGE OF EVERY SENSOR;
