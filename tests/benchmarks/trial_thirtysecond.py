@@ -53,7 +53,8 @@ Run from the repository root (a few minutes a draw)::
 constant at its yearly mean), ``noleaf`` (no foliage respiration on air temperature: all
 respiration on the soil's), ``nowind`` (no wind term in the random error), ``nolong`` (no
 outage of days), ``norain`` (no rain gaps), ``nopower`` (no power cuts), ``novisit`` (no
-maintenance days)); ``--planted-ustar`` runs at the planted threshold; ``--processing``
+maintenance days), ``rectlight`` (the rectangular hyperbola instead of the non-rectangular
+one), ``flatgppt`` (no temperature term in the uptake but frozen soil)); ``--planted-ustar`` runs at the planted threshold; ``--processing``
 adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -141,7 +142,7 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (standard atomic weight of carbon (m))
 MG_CO2_PER_UMOL = 44.01e-3  # mg CO2 per umol (m)
 PPFD_PER_RG = 2.05        # umol photons per J of global radiation (m)
 VARIANTS = ("nogaps", "nonoise", "noloss", "noheating", "flatq10", "noleaf", "nowind",
-            "nolong", "norain", "nopower", "novisit")
+            "nolong", "norain", "nopower", "novisit", "rectlight", "flatgppt")
 WRITER = "trial_thirtysecond.py"
 
 
@@ -467,8 +468,11 @@ def leaf_area(site, met, rng):
 
 
 def hyperbola(ppfd, pmax, alpha, theta=0.7):
-    """The non-rectangular hyperbola [umol m-2 s-1] (Johnson and Thornley 1984 (m))."""
+    """The non-rectangular hyperbola [umol m-2 s-1] (Johnson and Thornley 1984 (m)); theta 0
+    is the rectangular one."""
     a = alpha * ppfd
+    if theta == 0:
+        return a * pmax / np.maximum(a + pmax, 1e-12)
     s = a + pmax
     return (s - np.sqrt(np.maximum(s * s - 4 * theta * a * pmax, 0.0))) / (2 * theta)
 
@@ -483,13 +487,17 @@ def fluxes(site, met, rng, variant):
     t_opt = np.where(c4, 32.0, {"miombo": 27.0, "tundra": 15.0}.get(site.pheno, 22.0))
     width = np.where(c4, 14.0, 16.0)
     f_t = np.exp(-((met["tair"] - t_opt) / width) ** 2)
+    if "flatgppt" in variant:
+        f_t = np.ones_like(f_t)
     if site.pheno in ("spruce", "pine", "miombo"):
         f_t = f_t * ramp(tsoil, -1.0, 1.0)           # no water to the crowns from frozen soil
     vpd_lim = 1 - 0.6 * ramp(met["vpd"], 10.0, 35.0)
     f_w = ramp(met["water"], 0.15, 0.5)[day]
     alpha = np.where(c4, 0.055, 0.045) * fapar
     pmax = np.where(c4, 60.0, 38.0) * fapar * f_t * vpd_lim * f_w
-    gpp = np.where(met["sin_h"] > 0, hyperbola(PPFD_PER_RG * met["rg"], pmax, alpha), 0.0)
+    gpp = np.where(met["sin_h"] > 0, hyperbola(PPFD_PER_RG * met["rg"], pmax, alpha,
+                                                        0.0 if "rectlight" in variant else 0.7),
+                   0.0)
     # respiration: soil part with a seasonal Q10, foliage part on air
     cold = -met["season"][day]                       # +1 in the coldest weeks
     q10 = site.q10 * np.exp((0.0 if "flatq10" in variant else site.q10_amp) * cold)
