@@ -1335,6 +1335,86 @@ CASES.update({
         _ustar_kmh_from(f, "2021-11-21"), _canopy(t, None)),
 })
 
+# Round mistakes58: the mistakes the closing note of 0.38.0 left silent, planted from a date
+# that is no month's first (a recalibration or a logger program change comes on any day).
+
+def _between(frame, column, start, end=None):
+    """Records of ``column`` holding a value from ``start`` (to before ``end``)."""
+    stamps = _stamps(frame)
+    inside = (stamps > pd.Timestamp(start)).to_numpy(copy=True)
+    if end is not None:
+        inside = inside & (stamps <= pd.Timestamp(end)).to_numpy()
+    return inside & (frame[column].to_numpy() != MISSING)
+
+
+def _nee_gain_from(frame, start, factor):
+    """NEE times ``factor`` from ``start`` on (an analyser recalibrated with a wrong span
+    gas, a logger multiplier or a unit changed in a new program)."""
+    nee = _nee(frame)
+    later = _between(frame, "co2_exchange", start)
+    return _with(frame, "co2_exchange", np.where(later, np.round(nee * factor, 4), nee))
+
+
+def _rg_gain_from(frame, start, factor):
+    """Rg times ``factor`` from ``start`` on (a dome soiled, a sensitivity entered wrong)."""
+    rg = frame["solar_down"].to_numpy()
+    later = _between(frame, "solar_down", start)
+    return _with(frame, "solar_down", np.where(later, np.round(rg * factor, 1), rg))
+
+
+def nee_sign_flipped_spring(frame, text):
+    """NEE with uptake positive from 10 April to 20 June (a program fixed in June)."""
+    nee = _nee(frame)
+    inside = _between(frame, "co2_exchange", "2021-04-10", "2021-06-20")
+    return _with(frame, "co2_exchange", np.where(inside, -nee, nee)), text
+
+
+def temperatures_swapped_summer(frame, text):
+    """tair and tsoil written into each other's columns from 12 May to 31 August (two
+    channels of the logger's wiring exchanged at a sensor swap, and put back)."""
+    tair, tsoil = frame["air_temp_c"].to_numpy(), frame["soil_temp_5cm"].to_numpy()
+    inside = (_between(frame, "air_temp_c", "2021-05-12", "2021-09-01")
+              & (tsoil != MISSING))
+    out = _with(frame, "air_temp_c", np.where(inside, tsoil, tair))
+    return _with(out, "soil_temp_5cm", np.where(inside, tair, tsoil)), text
+
+
+def sawtooth_clock(frame, text):
+    """A logger clock running 5 min a week fast, set back by a weekly sync: each record
+    holds the average of the true half-hour ``lag`` minutes earlier (the lag 0 to 5 min,
+    a saw-tooth), every column alike (one logger)."""
+    stamps = _stamps(frame)
+    week = 7 * 24 * 60
+    minutes = ((stamps - stamps.iloc[0]).dt.total_seconds() / 60).to_numpy()
+    lag_share = (5.0 * (minutes % week) / week) / 30.0    # of one record
+    out = frame.copy()
+    for column in [c for c in frame.columns if c not in ("stamp_end", "qc_co2")]:
+        values = frame[column].to_numpy().astype(float)
+        earlier = np.r_[values[:1], values[:-1]]
+        present = (values != MISSING) & (earlier != MISSING)
+        mixed = (1.0 - lag_share) * values + lag_share * earlier
+        out[column] = np.where(present, np.round(mixed, 4), values)
+    return out, text
+
+
+CASES.update({
+    "NEE x1.5 from 12 May (span gas)": lambda f, t: (_nee_gain_from(f, "2021-05-12", 1.5), t),
+    "NEE x0.5 from 12 May (gain halved)": lambda f, t: (_nee_gain_from(f, "2021-05-12", 0.5), t),
+    "NEE x44/12 from 12 May (g CO2 for g C)": lambda f, t: (
+        _nee_gain_from(f, "2021-05-12", 44.0 / 12.0), t),
+    "NEE x12/44 from 12 May": lambda f, t: (_nee_gain_from(f, "2021-05-12", 12.0 / 44.0), t),
+    "NEE x1.5 from 20 September": lambda f, t: (_nee_gain_from(f, "2021-09-20", 1.5), t),
+    "NEE x2 from 20 September": lambda f, t: (_nee_gain_from(f, "2021-09-20", 2.0), t),
+    "Rg x0.8 from 3 June (soiled dome)": lambda f, t: (_rg_gain_from(f, "2021-06-03", 0.8), t),
+    "saw-tooth clock (+5 min a week, synced back)": sawtooth_clock,
+    "NEE sign flipped 10 April to 20 June": nee_sign_flipped_spring,
+    "tair and tsoil swapped 12 May to August": temperatures_swapped_summer,
+    "VPD in hPa from 12 May (declared kPa)": lambda f, t: (
+        _with(f, "vpd_kpa", np.where(_between(f, "vpd_kpa", "2021-05-12"),
+                                     np.round(f["vpd_kpa"].to_numpy() * 10, 3),
+                                     f["vpd_kpa"].to_numpy())), t),
+})
+
 # Round mistakes55 on the maize example's logger export (two half-year files in civil time,
 # the turbulent flux and the storage term in separate columns): each case edits the files'
 # lines, ``{name: lines}`` of the header's three lines and the records.
