@@ -163,8 +163,10 @@ def _side(values: np.ndarray, upper: bool, band: float = BAND, far_width: float 
     Returns (level, band inside, values beyond, width beyond [µmol m-2 s-1]) or None
     where no level qualifies: the band of `band` (:data:`BAND`) beyond a level judged
     with :data:`_MIN_INSIDE` values inside, or the `far_width` (:data:`FAR`) beyond one
-    :data:`_LARGE_FLUX` or more from 0 with :data:`_MIN_INSIDE_LARGE` inside. The
-    bands' edge lies `offset` beyond the level (:func:`_widths`).
+    :data:`_LARGE_FLUX` or more from 0 with :data:`_MIN_INSIDE_LARGE` inside; either
+    with fewer values beyond than the steepest natural tail leaves
+    (:data:`_MIN_GAUSSIAN_ERROR`). The bands' edge lies `offset` beyond the level
+    (:func:`_widths`).
     """
     levels = np.unique(values)
     levels = levels[levels >= _AWAY_FROM_ZERO] if upper else levels[levels <= -_AWAY_FROM_ZERO]
@@ -299,8 +301,8 @@ def cut_nee(nee, stamps=None, columns=None, written=None) -> str | None:
         values or more and the :data:`FAR` beyond it no more than that share, and either
         way fewer values beyond than the steepest natural tail leaves
         (:data:`_MIN_GAUSSIAN_ERROR`: the band inside times its ratio to the next band in
-        times e^(-BAND^2 / 0.25^2)): values beyond a limit removed (on values coarser than a tenth of a band, bands of whole
-        steps of the values, :func:`_widths`). None otherwise, or where the values'
+        times e^(-BAND^2 / 0.25^2)): values beyond a limit removed (on values coarser
+        than a tenth of a band, bands of whole steps of the values, :func:`_widths`). None otherwise, or where the values'
         resolution is coarser than a quarter of a µmol m-2 s-1.
 
     Notes
