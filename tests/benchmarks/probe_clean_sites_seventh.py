@@ -13,7 +13,7 @@ at a half-hour zone and no sensor replaced mid-year. This one writes 24 site-yea
 towers, none with a mistake:
 
 - irrigated desert crops: alfalfa cut every month (declared), winter wheat after a bare,
-  hot summer fallow (the soil 15-20 K warmer than the air at midday);
+  hot summer fallow (a bare soil warmed by the sun beyond the air at midday);
 - a transplanted rice paddy flooded (respiration slowed, bubbles) and drained two weeks
   before harvest; a marsh with bursts of gas through its water (positive outliers);
 - a tropical paramo at 3800 m and a montane cloud forest (cloud building in the afternoon);
@@ -70,7 +70,7 @@ the other probes' physics is imported; only the first probe's runner):
   pooling; storage below a tall sensor piling up on calm nights and leaving after
   sunrise; noise: Gaussian and Laplace of scale a + b |NEE| (Richardson et al. 2006 (m));
 - gaps: QC rejections (more at night, more in low turbulence), rain and frost on open paths,
-  a daily zero record, an analyser's failure of days, power outages (rows absent at some
+  a daily calibration record, an analyser's failure of days, power outages (rows absent at some
   sites, empty cells at others).
 
 Run from the repository root (about 3 s a site-year with ``--no-run``)::
