@@ -151,6 +151,13 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
 #: changes [1] (round falsealarm59): the standard error of their correlation is about
 #: 1 / sqrt(n), 0.14 at 50, against -1/2 for separate errors and 0 for a running mean.
 _DAY_MIN_PAIRS = 50
+#: Correlation of the day-differenced night changes below which they clear the column
+#: [1]: 0.2 from a running mean's 0 (two standard errors at 100 pairs, 1.4 at 50) and 0.3
+#: from separate errors' -1/2; our choice. A bound at -0.1 cleared a three-record mean
+#: whose plain changes correlated at -0.09 and its day differences, by chance, at -0.18
+#: (133 pairs, `test_period_groups.py`); at -0.25 the sixth probe's urban tower stayed
+#: named at 2 of 4 seeds (its day differences at -0.21 to -0.24 in a winter part).
+_DAY_CORRELATION = -0.2
 
 
 class _DayDifferences:
@@ -183,13 +190,13 @@ class _DayDifferences:
 
     def smoothed(self, start, end):
         """False where the day-differenced night changes of records ``start .. end - 1``
-        correlate below :data:`SMOOTHED_CORRELATION` over :data:`_MIN_PAIRS` pairs or
+        correlate below :data:`_DAY_CORRELATION` over :data:`_DAY_MIN_PAIRS` pairs or
         more (independent errors beside a repeated course), True otherwise (no day
         difference or too few pairs to tell: the plain test stands)."""
         if not self._per_day:
             return True
         found = _pair_correlation(self._y[start:end], self._night[start:end], _DAY_MIN_PAIRS)
-        return found is None or found[0] >= SMOOTHED_CORRELATION
+        return found is None or found[0] >= _DAY_CORRELATION
 
 
 def _pair_correlation(x, night, minimum):
