@@ -21,6 +21,9 @@ distribution on one side and nothing on the other.
 
 References
 ----------
+Efron, B. (2011). Tweedie's formula and selection bias. Journal of the American
+Statistical Association 106:1602-1614 (m).
+
 Hollinger, D. Y., & Richardson, A. D. (2005). Uncertainty in eddy covariance
 measurements and its application to physiological models. Tree Physiology 25:873-885
 (m).
@@ -93,6 +96,20 @@ _MIN_INSIDE_LARGE = 25
 #: twofold over one band falls twentyfold over the next only in a tail far narrower
 #: than any flux's random error).
 _LEVEL_SHARE = 0.5
+#: Smallest Gaussian part of a record's random error [µmol m-2 s-1]: a record is the
+#: mean of many short samples, so its error holds a near-Gaussian part (the central
+#: limit), of some tenths of a µmol m-2 s-1 at small fluxes (Richardson et al. 2006 (m):
+#: about 0.35 and more for the half hours of the quietest short canopies, an hour's mean
+#: 1/sqrt(2) of that, 0.25). Any true flux convolved with a Gaussian error of sigma has a
+#: log density whose curvature is no less than -1/sigma^2 (Tweedie's formula: -1/sigma^2
+#: plus the true value's conditional variance over sigma^4; Efron 2011 (m)), so from one
+#: band to the next its log density steepens by no more than BAND^2 / sigma^2: a tail
+#: beyond a pile of values (a season's steady night release, the top of a seasonal wave)
+#: that thins to n1 / n2 over the band inside thins to no less than n1 / n2 e^(-BAND^2 /
+#: sigma^2) = 0.018 n1 / n2 over the band beyond (round falsealarm59). A cut in the body
+#: of the values leaves nothing beyond and stays named; a limit in a tail whose band
+#: beyond keeps 1.8-5 % of the band inside is no longer told from the tail.
+_MIN_GAUSSIAN_ERROR = 0.25
 #: Levels judged lie this far from 0 or more [µmol m-2 s-1]: values of one sign removed
 #: next to 0 are :func:`fluxpart.column_faults.censored_nee`'s.
 _AWAY_FROM_ZERO = 2.0
@@ -146,8 +163,10 @@ def _side(values: np.ndarray, upper: bool, band: float = BAND, far_width: float 
     Returns (level, band inside, values beyond, width beyond [µmol m-2 s-1]) or None
     where no level qualifies: the band of `band` (:data:`BAND`) beyond a level judged
     with :data:`_MIN_INSIDE` values inside, or the `far_width` (:data:`FAR`) beyond one
-    :data:`_LARGE_FLUX` or more from 0 with :data:`_MIN_INSIDE_LARGE` inside. The
-    bands' edge lies `offset` beyond the level (:func:`_widths`).
+    :data:`_LARGE_FLUX` or more from 0 with :data:`_MIN_INSIDE_LARGE` inside; either
+    with fewer values beyond than the steepest natural tail leaves
+    (:data:`_MIN_GAUSSIAN_ERROR`). The bands' edge lies `offset` beyond the level
+    (:func:`_widths`).
     """
     levels = np.unique(values)
     levels = levels[levels >= _AWAY_FROM_ZERO] if upper else levels[levels <= -_AWAY_FROM_ZERO]
@@ -167,9 +186,12 @@ def _side(values: np.ndarray, upper: bool, band: float = BAND, far_width: float 
         inside, next_in = count(levels, levels + band), count(levels + band, levels + 2 * band)
         beyond, far = count(levels - band, levels), count(levels - far_width, levels)
     level_or_rising = inside >= _LEVEL_SHARE * next_in
-    near = np.where(level_or_rising & (inside >= _MIN_INSIDE),
+    # the steepest a natural tail thins over the band beyond (_MIN_GAUSSIAN_ERROR)
+    steepest = inside / np.maximum(next_in, 1) * np.exp(-(band / _MIN_GAUSSIAN_ERROR) ** 2)
+    near = np.where(level_or_rising & (inside >= _MIN_INSIDE)
+                    & (beyond < steepest * inside),
                     beyond / np.maximum(inside, 1), np.inf)
-    wide = np.where(level_or_rising & (inside >= _MIN_INSIDE_LARGE)
+    wide = np.where(level_or_rising & (inside >= _MIN_INSIDE_LARGE) & (far < steepest * inside)
                     & (np.abs(found_levels) >= _LARGE_FLUX), far / np.maximum(inside, 1), np.inf)
     best_near, best_wide = int(np.argmin(near)), int(np.argmin(wide))
     if near[best_near] <= BEYOND_SHARE:
@@ -276,9 +298,11 @@ def cut_nee(nee, stamps=None, columns=None, written=None) -> str | None:
         :data:`BAND` inside a level holds 50 values or more, at least half as many as
         the band next to it, and the band beyond it no more than :data:`BEYOND_SHARE`
         of them, or where, 5 µmol m-2 s-1 or more from 0, the band inside holds 25
-        values or more and the :data:`FAR` beyond it no more than that share: values
-        beyond a limit removed (on values coarser than a tenth of a band, bands of whole
-        steps of the values, :func:`_widths`). None otherwise, or where the values'
+        values or more and the :data:`FAR` beyond it no more than that share, and either
+        way fewer values beyond than the steepest natural tail leaves
+        (:data:`_MIN_GAUSSIAN_ERROR`: the band inside times its ratio to the next band in
+        times e^(-BAND^2 / 0.25^2)): values beyond a limit removed (on values coarser
+        than a tenth of a band, bands of whole steps of the values, :func:`_widths`). None otherwise, or where the values'
         resolution is coarser than a quarter of a µmol m-2 s-1.
 
     Notes
