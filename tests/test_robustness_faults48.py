@@ -1,0 +1,78 @@
+"""Faults found by round faults48 (invented data only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+
+import fluxpart.resultdir as resultdir
+from fluxpart.errors import InputFileError
+from fluxpart.resultdir import lock_file, recover_missing
+
+#: Another process holding a folder's lock (argv[1]) until its standard input closes.
+_HOLDER = """
+import sys
+from fluxpart.resultdir import folder_lock
+with folder_lock(sys.argv[1], 0):
+    print("held", flush=True)
+    sys.stdin.read()
+"""
+
+
+@pytest.fixture
+def left_aside(tmp_path):
+    """What a writer stopped between the two renames of its swap leaves (a file system
+    without an atomic exchange): no folder, the earlier result in its retired copy. Only
+    its manifest file matters to the repair."""
+    retired = tmp_path / ".out.retired-0a1b2c3d"
+    retired.mkdir()
+    (retired / "manifest.json").write_text("{}\n")
+    return tmp_path / "out", retired
+
+
+@pytest.fixture
+def holder(left_aside):
+    """A second process holding the lock of the folder left aside."""
+    proc = subprocess.Popen([sys.executable, "-c", _HOLDER, str(left_aside[0])],
+                            stdin=subprocess.PIPE, stdout=subprocess.PIPE, text=True)
+    assert proc.stdout.readline().strip() == "held"
+    yield proc
+    proc.stdin.close()
+    proc.wait(timeout=30)
+
+
+def test_a_reader_waiting_to_put_a_result_back_says_for_whom(left_aside, holder, capsys,
+                                                               monkeypatch):
+    """verify, report, export and diff put back a result a writer left in its retired
+    copy; with the folder's lock held by another process they waited 30 s without a word
+    (also without --quiet), then said "could not be moved back (read-only place?)" and
+    advised renaming the copy, under a writer that may be between its two renames. Now
+    the wait is said on stderr naming the holder (common practice: a program that waits
+    on another says so), and the error names the holder and advises no rename."""
+    folder, retired = left_aside
+    monkeypatch.setattr(resultdir, "_REPAIR_WAIT", 0.5)
+    with pytest.raises(InputFileError) as caught:
+        recover_missing(folder)
+    waited = capsys.readouterr().err
+    assert "waiting up to 0.5 s" in waited and f"process {holder.pid}" in waited
+    message = str(caught.value)
+    assert f"process {holder.pid}" in message and "holds its lock" in message
+    assert "read-only" not in message and "rename it" not in message
+    assert retired.is_dir() and not folder.exists()         # nothing moved under the holder
+
+
+def test_a_reader_puts_the_result_back_once_the_holder_ends(left_aside, holder, capsys):
+    """The same wait ends when the holder does: the earlier result is put back and said."""
+    folder, retired = left_aside
+    import threading
+
+    threading.Timer(0.5, holder.stdin.close).start()
+    note = recover_missing(folder)
+    err = capsys.readouterr().err
+    assert "waiting" in err and note in err and "was missing" in note
+    assert (folder / "manifest.json").is_file() and not retired.exists()
+    assert not lock_file(folder).exists()
