@@ -124,10 +124,20 @@ def lock_file(directory) -> Path:
 
 
 def _leftovers(directory: Path, kind: str) -> list[Path]:
+    """The folders beside `directory` named as its writer names its staging or retired
+    folders (`kind`): ``.NAME.KIND`` and a random token without a dot (tempfile's eight
+    letters, digits and underscores; eight hex digits). Matched by prefix alone, the
+    staging and retired folders of a sibling whose name extends this one's (``r`` and
+    ``r.staging-1``, ``r.retired-2020``: ``.r.staging-1.staging-*``) were removed by a
+    run into ``r`` under that sibling's live writer, or, with ``r`` missing, the
+    sibling's retired result moved in as ``r`` (round faults48). With `kind` empty, every
+    folder whose name starts with ``.NAME.`` (:func:`_earlier_staging` filters them)."""
     prefix = f".{directory.name}.{kind}"
+    named = (re.compile(rf"^{re.escape(prefix)}[A-Za-z0-9_]+$").match if kind
+             else lambda name: name.startswith(prefix))
     try:
         return sorted(p for p in directory.parent.iterdir()
-                      if p.name.startswith(prefix) and p.is_dir() and not p.is_symlink())
+                      if named(p.name) and p.is_dir() and not p.is_symlink())
     except OSError:
         return []
 

@@ -76,3 +76,23 @@ def test_a_reader_puts_the_result_back_once_the_holder_ends(left_aside, holder, 
     assert "waiting" in err and note in err and "was missing" in note
     assert (folder / "manifest.json").is_file() and not retired.exists()
     assert not lock_file(folder).exists()
+
+
+def test_a_siblings_staging_and_retired_folders_are_not_this_folders(tmp_path):
+    """A run into ``r`` removed every folder beside it whose name began ``.r.staging-`` or
+    ``.r.retired-``: also those of a sibling named ``r.staging-1`` or ``r.retired-2020``
+    (a copy a user named so), under that sibling's live writer; and with ``r`` missing it
+    moved the sibling's retired result in as ``r``. Only names as the writer makes them
+    (a dot-free token after ``.r.staging-`` or ``.r.retired-``) are this folder's."""
+    from fluxpart.resultdir import clean_leftovers, interrupted_writes
+
+    own = [tmp_path / ".r.staging-k9x2m4qa", tmp_path / ".r.retired-0a1b2c3d"]
+    others = [tmp_path / ".r.staging-1.staging-abcd1234",
+              tmp_path / ".r.retired-2020.retired-0a1b2c3d"]
+    for folder in own + others:
+        folder.mkdir()
+    (others[1] / "manifest.json").write_text("{}\n")      # the sibling's earlier result
+    assert sorted(interrupted_writes(tmp_path / "r")) == sorted(p.name for p in own)
+    clean_leftovers(tmp_path / "r")
+    assert not (tmp_path / "r").exists()                  # not made from the sibling's copy
+    assert [p.exists() for p in own + others] == [False, False, True, True]
