@@ -2475,9 +2475,35 @@ def _read_stored(directory: Path):
                     "was rewritten by another program (e.g. pandas' to_parquet): fluxpart's "
                     "metadata (units, descriptions, site) is gone; its values are compared "
                     "with the rerun's where the result is recomputed (a note then says how)")))
+        trail = _run_log_note(directory, manifest)
+        if trail:
+            notes.append(trail)
         if folder_identity(directory) == before:
             break
     return manifest, differences, notes, stored_tables
+
+
+def _run_log_note(directory: Path, manifest: dict) -> str | None:
+    """A note where the run log the manifest lists is gone or no longer a JSON record.
+
+    The run log is never hashed (it is the one file two identical runs write
+    differently), so its loss changes no verdict; but it is the run's trail (who ran it,
+    when, on which host, in which folder, with which command line), and a verify that
+    passed without a word where it was deleted or left out of a copy let an auditor
+    believe the trail was there (round faults48)."""
+    unhashed = manifest.get("unhashed")
+    if not isinstance(unhashed, dict) or RUN_LOG not in unhashed:
+        return None
+    path = directory / RUN_LOG
+    if not path.exists() and not path.is_symlink():
+        state = "is missing (deleted, or left out of a copy?)"
+    elif _read_run_log(directory) is None:
+        state = "cannot be read as the run's JSON record (edited, damaged or not a file)"
+    else:
+        return None
+    return (f"{RUN_LOG} {state}: the numbers are judged without it, but the run's trail "
+            "(who ran it, when, on which host and with which command line) is lost; "
+            "restore it from a copy of the result where there is one")
 
 
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False

@@ -96,3 +96,20 @@ def test_a_siblings_staging_and_retired_folders_are_not_this_folders(tmp_path):
     clean_leftovers(tmp_path / "r")
     assert not (tmp_path / "r").exists()                  # not made from the sibling's copy
     assert [p.exists() for p in own + others] == [False, False, True, True]
+
+
+def test_a_lost_run_log_is_noted_by_verify(tmp_path):
+    """run-log.json (never hashed: who ran the result, when, where, how) deleted or left
+    out of a copy: verify passed without a word, so an auditor took the trail to be
+    there. Now a note says it is gone or unreadable; a present log gives none, and a
+    manifest that lists no run log (an earlier release's) none either."""
+    from fluxpart.verify import _run_log_note
+
+    manifest = {"unhashed": {"run-log.json": "who ran it"}}
+    assert "is missing" in _run_log_note(tmp_path, manifest)
+    (tmp_path / "run-log.json").write_text("[1")
+    assert "cannot be read" in _run_log_note(tmp_path, manifest)
+    (tmp_path / "run-log.json").write_text('{"user": "someone"}\n')
+    assert _run_log_note(tmp_path, manifest) is None
+    (tmp_path / "run-log.json").unlink()
+    assert _run_log_note(tmp_path, {"unhashed": {}}) is None
