@@ -6139,6 +6139,21 @@ def f48_reader_waits_for_repair():
            all(fine for _, _, fine, _ in seen), f"{seen}")
 
 
+def f48_run_log_lost():
+    """run-log.json (unhashed: who ran it, when, where) deleted, and cut to a broken
+    JSON, after the run: verify passes (the numbers are whole) with a note naming it."""
+    seen = []
+    for label, edit in (("deleted", lambda p: p.unlink()),
+                        ("cut", lambda p: p.write_bytes(p.read_bytes()[:40]))):
+        folder = fresh(f"runlog48_{label}")
+        edit(folder / "run-log.json")
+        done = fp("verify", folder)
+        noted = any(line.startswith("note: run-log.json") for line in done.stdout.splitlines())
+        seen.append((label, done.returncode, noted))
+    record("the run log deleted or cut after the run: verify notes it",
+           all(code == 0 and noted for _, code, noted in seen), f"{seen}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -6240,7 +6255,8 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f48_input_one_byte, f48_input_newline_edits, f48_input_bom_added,
           f48_input_header_renamed, f48_manifest_duplicate_key, f48_clock_back_between_runs,
           f48_sibling_prefix_names, f48_out_mount_point, f48_verify_read_only_copy_other_user,
-          f48_tables_swapped_names, f48_reader_waits_for_repair]
+          f48_tables_swapped_names, f48_reader_waits_for_repair,
+          f48_run_log_lost]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
