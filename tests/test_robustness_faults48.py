@@ -113,3 +113,27 @@ def test_a_lost_run_log_is_noted_by_verify(tmp_path):
     assert _run_log_note(tmp_path, manifest) is None
     (tmp_path / "run-log.json").unlink()
     assert _run_log_note(tmp_path, {"unhashed": {}}) is None
+
+
+def test_a_report_page_of_another_result_is_named(tmp_path):
+    """report/ is not hashed, so a page copied in from another result (``cp -r`` of one
+    result over another's) passed with only the general note that pages are not
+    verified. The page names the manifest seal it was drawn from (its provenance table);
+    verify now names a page whose seal is not the folder's. None for the folder's own
+    page, a page without a seal (edited, or an earlier release's) or no page."""
+    from fluxpart.verify import _page_of_other_result
+
+    own, other = "3b" * 32, "6e" * 32
+    manifest = {"seal": own}
+    assert _page_of_other_result(tmp_path, manifest) is None
+    (tmp_path / "report").mkdir()
+    page = tmp_path / "report" / "report.html"
+    row = ('<tr><th scope="row">manifest seal</th><td><span class="hash">SHA-256 {}</span> '
+           "(over manifest.json's content)</td></tr>")
+    page.write_text(row.format(own))
+    assert _page_of_other_result(tmp_path, manifest) is None
+    page.write_text(row.format(other))
+    note = _page_of_other_result(tmp_path, manifest)
+    assert note and "another result" in note and other[:12] in note and own[:12] in note
+    page.write_text("<html>edited</html>")
+    assert _page_of_other_result(tmp_path, manifest) is None

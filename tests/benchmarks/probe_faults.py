@@ -6154,6 +6154,25 @@ def f48_run_log_lost():
            all(code == 0 and noted for _, code, noted in seen), f"{seen}")
 
 
+def f48_report_of_other_result():
+    """The report/ folder of another result copied into a result (``cp -r r0/report
+    r1/``, as a merge of two copies does): verify notes that the page was drawn from
+    another result, naming report.html; the folder's own page gives no such note."""
+    folder = fresh("rpx48", "r1")
+    donor = fresh("rpx48_donor", "r0")
+    assert fp("report", "--quiet", donor).returncode == 0
+    assert fp("report", "--quiet", folder).returncode == 0
+    own = fp("verify", folder)
+    shutil.rmtree(folder / "report")
+    shutil.copytree(donor / "report", folder / "report")
+    other = fp("verify", folder)
+    said = [x for x in other.stdout.splitlines() if "drawn from another result" in x]
+    record("another result's report page copied into a result: verify names it",
+           own.returncode == 0 and "drawn from another result" not in own.stdout
+           and other.returncode == 0 and len(said) == 1 and "report.html" in said[0],
+           f"own {own.returncode}, other {other.returncode} {said[:1]!r:.200}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -6256,7 +6275,7 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f48_input_header_renamed, f48_manifest_duplicate_key, f48_clock_back_between_runs,
           f48_sibling_prefix_names, f48_out_mount_point, f48_verify_read_only_copy_other_user,
           f48_tables_swapped_names, f48_reader_waits_for_repair,
-          f48_run_log_lost]
+          f48_run_log_lost, f48_report_of_other_result]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
