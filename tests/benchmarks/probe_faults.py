@@ -120,6 +120,18 @@ and inputs; Ctrl-C to verify as its scratch appears; times rounded to 2 s; --out
 link loop; verify of a network with one site's input missing; diff of a zero annual part
 against a float residue.
 
+Round faults48 (faults named ``f48_*``): kill -9 of a lock holder while another run
+waits, and of the waiter; three runs at once into one folder; kill -9 at seeded moments of
+a first run, of report (then run), of a whole batch (then the batch again); another tool's
+manifest.json; EROFS, EDQUOT, ENOSPC and EIO injected at each step of writing; a result
+moved across file systems; a table linked to another seed's; a bundle and result tarred and
+verified elsewhere with relative paths and 2 threads; one CPU; the input edited by a digit,
+a newline, a BOM or a column name; a manifest key written twice; the clock a year back
+between runs; a sibling named r.staging-1 written at once; --out a mount point; a read-only
+copy verified by another user; tables swapped by name; run, report and export waiting on a
+lock under --quiet; a reader's repair under another's lock; the run log lost; another
+result's report page.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -5830,7 +5842,8 @@ def f48_errors_at_writing():
         # swap is the os.rename patched here
         new = name == "rename"
         folder = W / "inj48new" if new else fresh("inj48")
-        shutil.rmtree(folder, ignore_errors=True) if new else None
+        if new:
+            shutil.rmtree(folder, ignore_errors=True)
         before = {} if new else table_digests(folder)
         done = subprocess.run([PY, "-c", _INJECT_AT, str(TREE), str(code), name, match,
                                str(nth), "run", "seed1.toml", "--out", folder, "--quiet"],
