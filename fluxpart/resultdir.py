@@ -98,6 +98,10 @@ __all__ = ["DEFAULT_LOCK_TIMEOUT", "FolderProblem", "HeldLock", "check_folder",
 DEFAULT_LOCK_TIMEOUT = 600.0
 _STAGING = "staging-"
 _RETIRED = "retired-"
+#: Seconds a reader (verify, report, export, diff) waits for the lock of a folder it puts
+#: back from its retired copy (:func:`recover_missing`).
+_REPAIR_WAIT = 30.0
+
 #: Times a writer that locked a deleted lock file locks again before it gives up checking.
 _RELOCK_TRIES = 5
 
@@ -120,10 +124,20 @@ def lock_file(directory) -> Path:
 
 
 def _leftovers(directory: Path, kind: str) -> list[Path]:
+    """The folders beside `directory` named as its writer names its staging or retired
+    folders (`kind`): ``.NAME.KIND`` and a random token without a dot (tempfile's eight
+    letters, digits and underscores; eight hex digits). Matched by prefix alone, the
+    staging and retired folders of a sibling whose name extends this one's (``r`` and
+    ``r.staging-1``, ``r.retired-2020``: ``.r.staging-1.staging-*``) were removed by a
+    run into ``r`` under that sibling's live writer, or, with ``r`` missing, the
+    sibling's retired result moved in as ``r`` (round faults48). With `kind` empty, every
+    folder whose name starts with ``.NAME.`` (:func:`_earlier_staging` filters them)."""
     prefix = f".{directory.name}.{kind}"
+    named = (re.compile(rf"^{re.escape(prefix)}[A-Za-z0-9_]+$").match if kind
+             else lambda name: name.startswith(prefix))
     try:
         return sorted(p for p in directory.parent.iterdir()
-                      if p.name.startswith(prefix) and p.is_dir() and not p.is_symlink())
+                      if named(p.name) and p.is_dir() and not p.is_symlink())
     except OSError:
         return []
 
@@ -1477,15 +1491,25 @@ def recover_missing(directory: Path, notify=None) -> str | None:
     if directory.exists() or not _leftovers(directory, _RETIRED):
         return None
     try:
-        with folder_lock(directory, timeout=30.0, notify=lambda text: None, remove=True):
+        # the wait is said on stderr (also under --quiet), naming the holder: a reader
+        # waited up to 30 s without a word for a writer stopped between its two renames
+        # (Ctrl-Z, a debugger), then blamed a read-only place (round faults48)
+        with folder_lock(directory, timeout=_REPAIR_WAIT, remove=True):
             if directory.exists():          # another reader put it back while we waited
                 return None
             done = clean_leftovers(directory)
-    except OutputError:
+    except OutputError as error:
         retired = ", ".join(p.name for p in _leftovers(directory, _RETIRED))
+        # a writer holding the folder's lock may be the one between its renames: renaming
+        # the copy back under it would mix two results, so it is not advised then
+        held = _holder_words(lock_file(directory)) if lock_file(directory).exists() else ""
+        why = (f"another fluxpart process{held} holds its lock (lock file "
+               f"{str(lock_file(directory))!r}); let it finish or end it, then run this again"
+               if str(error).startswith("gave up after") else
+               f"{error}; rename it to the folder's name")
         raise InputFileError(f"{str(directory)!r} is missing and an interrupted write left the "
                              f"earlier result in {retired} beside it, which could not be moved "
-                             "back (read-only place?); rename it to the folder's name") from None
+                             f"back: {why}") from None
     restored = [line for line in done if line.startswith("restored")]
     if not restored:
         return None

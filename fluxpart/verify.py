@@ -2475,9 +2475,63 @@ def _read_stored(directory: Path):
                     "was rewritten by another program (e.g. pandas' to_parquet): fluxpart's "
                     "metadata (units, descriptions, site) is gone; its values are compared "
                     "with the rerun's where the result is recomputed (a note then says how)")))
+        trail = _run_log_note(directory, manifest)
+        if trail:
+            notes.append(trail)
         if folder_identity(directory) == before:
             break
     return manifest, differences, notes, stored_tables
+
+
+#: The manifest seal a report page names (:func:`fluxpart.report` writes it in its
+#: provenance table).
+_PAGE_SEAL = re.compile(r'manifest seal</th><td><span class="hash">SHA-256 ([0-9a-f]{64})<')
+
+
+def _page_of_other_result(directory: Path, manifest: dict) -> str | None:
+    """A note where ``report/report.html`` names another manifest seal than the folder's.
+
+    The page is not hashed, so a page copied in from another result (``cp -r`` of one
+    result's folder over another's, a report folder moved between results) sat beside
+    tables it was not drawn from while verify passed them, with only the general note
+    that the page is not verified (round faults48). The page names the seal of the
+    manifest it was drawn from; a different one is named here. Nothing where the page or
+    its seal cannot be read (an earlier release's page, a page edited)."""
+    seal = manifest.get("seal")
+    try:
+        page = (directory / "report" / "report.html").read_text(encoding="utf-8",
+                                                                errors="replace")
+    except OSError:
+        return None
+    found = _PAGE_SEAL.search(page)
+    if not isinstance(seal, str) or found is None or found.group(1) == seal:
+        return None
+    return (f"report/report.html was drawn from another result (manifest seal "
+            f"{found.group(1)[:12]}...), not from this folder's tables (seal {seal[:12]}...): "
+            "its numbers and figures are not this result's; redraw it with `fluxpart report`")
+
+
+def _run_log_note(directory: Path, manifest: dict) -> str | None:
+    """A note where the run log the manifest lists is gone or no longer a JSON record.
+
+    The run log is never hashed (it is the one file two identical runs write
+    differently), so its loss changes no verdict; but it is the run's trail (who ran it,
+    when, on which host, in which folder, with which command line), and a verify that
+    passed without a word where it was deleted or left out of a copy let an auditor
+    believe the trail was there (round faults48)."""
+    unhashed = manifest.get("unhashed")
+    if not isinstance(unhashed, dict) or RUN_LOG not in unhashed:
+        return None
+    path = directory / RUN_LOG
+    if not path.exists() and not path.is_symlink():
+        state = "is missing (deleted, or left out of a copy?)"
+    elif _read_run_log(directory) is None:
+        state = "cannot be read as the run's JSON record (edited, damaged or not a file)"
+    else:
+        return None
+    return (f"{RUN_LOG} {state}: the numbers are judged without it, but the run's trail "
+            "(who ran it, when, on which host and with which command line) is lost; "
+            "restore it from a copy of the result where there is one")
 
 
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False
@@ -2558,6 +2612,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                      "covered by the manifest's hashes, so they are not verified; redraw them "
                      "from the verified tables with `fluxpart report` rather than trusting a "
                      "received page")
+        other = _page_of_other_result(directory, manifest)
+        if other:
+            notes.append(other)
     try:
         # before the rerun is computed: its scratch folder would take this umask, and the
         # whole computation ended in "could not be written ... free space in the

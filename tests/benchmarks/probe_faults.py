@@ -120,6 +120,18 @@ and inputs; Ctrl-C to verify as its scratch appears; times rounded to 2 s; --out
 link loop; verify of a network with one site's input missing; diff of a zero annual part
 against a float residue.
 
+Round faults48 (faults named ``f48_*``): kill -9 of a lock holder while another run
+waits, and of the waiter; three runs at once into one folder; kill -9 at seeded moments of
+a first run, of report (then run), of a whole batch (then the batch again); another tool's
+manifest.json; EROFS, EDQUOT, ENOSPC and EIO injected at each step of writing; a result
+moved across file systems; a table linked to another seed's; a bundle and result tarred and
+verified elsewhere with relative paths and 2 threads; one CPU; the input edited by a digit,
+a newline, a BOM or a column name; a manifest key written twice; the clock a year back
+between runs; a sibling named r.staging-1 written at once; --out a mount point; a read-only
+copy verified by another user; tables swapped by name; run, report and export waiting on a
+lock under --quiet; a reader's repair under another's lock; the run log lost; another
+result's report page.
+
 Round faults38 (the machine's environment): verify looped while run replaces a folder;
 --out below a dangling link, below a file, a device node; standard streams closed, full
 or read by a reader that leaves at once; a non-ASCII site and paths under C, ASCII and
@@ -5581,6 +5593,599 @@ def f47_diff_of_copies():
            and all(code == 0 and same for code, same in seen), f"{seen}")
 
 
+# ------------------------------------------------------------------ round faults48
+#: Another fluxpart process holding a folder's lock (argv[1]) for argv[2] seconds.
+_HOLD_LOCK = """
+import sys, time
+from fluxpart.resultdir import folder_lock
+with folder_lock(sys.argv[1], 0):
+    print("held", flush=True)
+    time.sleep(float(sys.argv[2]))
+"""
+
+
+def _holding(folder, seconds=120):
+    """A process holding the lock of `folder`, once it has it."""
+    proc = subprocess.Popen([PY, "-c", _HOLD_LOCK, str(folder), str(seconds)], env=ENV,
+                            stdout=subprocess.PIPE, text=True)
+    assert proc.stdout.readline().strip() == "held"
+    return proc
+
+
+def _started_logged(args, log, cwd=None):
+    """`args` started with stderr into the file `log` (read while it runs)."""
+    handle = open(log, "w")
+    proc = subprocess.Popen([PY, "-m", "fluxpart", *map(str, args)], env=ENV,
+                            cwd=cwd or W / "b", stdout=subprocess.DEVNULL, stderr=handle,
+                            text=True)
+    handle.close()
+    return proc
+
+
+def f48_quiet_waiting_said():
+    """run --quiet, report --quiet, export --csv and export --netcdf waiting for another
+    process's lock: each says on stderr within 5 s that it waits and for whom (the
+    holder's process id), once; after the holder ends each finishes (exit 0)."""
+    seen = []
+    out = W / "quietwait48"
+    shutil.rmtree(out, ignore_errors=True)
+    cases = [("run --quiet", ["run", "site.toml", "--out", out / "r", "--quiet"], out / "r"),
+             ("report --quiet", ["report", "--quiet", out / "rep"], out / "rep"),
+             ("export --csv", ["export", "--csv", out / "csv", out / "exp"], out / "csv"),
+             ("export --netcdf", ["export", "--netcdf", out / "x.nc", out / "nc"],
+              out / "x.nc")]
+    out.mkdir()
+    for name in ("rep", "exp", "nc"):
+        shutil.copytree(W / "r0", out / name)
+    for label, args, locked in cases:
+        holder = _holding(locked)
+        log = out / f"{label.split()[0]}{len(seen)}.err"
+        proc = _started_logged(args, log)
+        time.sleep(5)
+        early = log.read_text()
+        holder.kill()
+        holder.wait()
+        code = proc.wait(timeout=300)
+        said = [x for x in log.read_text().splitlines() if "waiting" in x]
+        seen.append((label, code, str(holder.pid) in early, len(said)))
+    record("run/report/export waiting for another's lock say so and for whom, once",
+           all(code == 0 and named and count == 1 for _, code, named, count in seen),
+           f"(command, exit, holder named within 5 s, lines) {seen}")
+
+
+def f48_holder_killed_waiter_takes_over():
+    """kill -9 of a run holding a folder's lock while a second run (--quiet) waits for
+    it: the second takes the lock, writes its result whole, no staging or lock left."""
+    out = fresh("takeover48")
+    first = start("run", "seed1.toml", "--out", out, "--quiet")
+    _wait_for(lambda: _entries(W, ".takeover48.staging-"))
+    second = start("run", "site.toml", "--out", out, "--quiet")
+    time.sleep(2)
+    first.kill()
+    first.communicate(timeout=60)
+    _, err2 = second.communicate(timeout=300)
+    kind = _whole_kind(out, W / "r0", W / "r1")
+    record("the lock holder killed -9 while a second run waits",
+           second.returncode == 0 and kind == "r0" and verify(out).returncode == 0
+           and not leftovers(W) and not (W / ".takeover48.lock").exists(),
+           f"second {second.returncode}, holds {kind}, left {leftovers(W)}, "
+           f"{err2.strip()[-120:]!r}")
+
+
+def f48_waiter_killed():
+    """kill -9 of the run that waits for another's lock: the holder finishes, one whole
+    result, no lock file or staging left."""
+    out = fresh("waiterk48")
+    first = start("run", "seed1.toml", "--out", out, "--quiet")
+    _wait_for(lambda: (W / ".waiterk48.lock").exists())
+    second = start("run", "site.toml", "--out", out, "--quiet")
+    time.sleep(1.5)
+    second.kill()
+    second.communicate(timeout=60)
+    first.communicate(timeout=300)
+    kind = _whole_kind(out, W / "r0", W / "r1")
+    record("the waiting run killed -9; the holder finishes", first.returncode == 0
+           and kind == "r1" and verify(out).returncode == 0 and not leftovers(W)
+           and not (W / ".waiterk48.lock").exists(),
+           f"first {first.returncode}, holds {kind}, left {leftovers(W)}")
+
+
+def f48_three_runs_one_folder():
+    """Three runs of three seeds at once into one new folder: exits 0, one whole result
+    of one of them, verify 0, nothing left beside it."""
+    text = (W / "b" / "site.toml").read_text()
+    (W / "b" / "seed2.toml").write_text(text.replace("seed = 0", "seed = 2"))
+    r2 = W / "r2_48"
+    if not r2.exists():
+        assert fp("run", "seed2.toml", "--out", r2, "--quiet").returncode == 0
+    out = W / "three48"
+    shutil.rmtree(out, ignore_errors=True)
+    procs = [start("run", f"{n}.toml", "--out", out, "--quiet")
+             for n in ("site", "seed1", "seed2")]
+    codes = [p.communicate(timeout=600) and p.returncode for p in procs]
+    kind = _whole_kind(out, W / "r0", W / "r1", r2)
+    record("three runs of three seeds at once into one folder", codes == [0, 0, 0]
+           and kind != "mixed" and verify(out).returncode == 0 and not leftovers(W),
+           f"exits {codes}, holds {kind}, left {leftovers(W)}")
+
+
+def f48_kill9_new_folder_moments():
+    """kill -9 at 10 seeded moments of a first run into a new folder (5 over its writing):
+    the folder is absent or whole, never partial; a rerun then writes it whole, verify
+    0, nothing left beside it."""
+    import random
+    parent = W / "k9new48"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    staged, span = _writing_begins(parent, "run", "seed1.toml", "--out", parent / "r",
+                                   "--quiet")
+    draw = random.Random(48)
+    moments = [draw.uniform(0, span) for _ in range(5)] + [
+        draw.uniform(staged, span) for _ in range(5)]
+    seen, wrong = {}, []
+    for moment in moments:
+        shutil.rmtree(parent / "r", ignore_errors=True)
+        code = _killed_at(moment, "run", "seed1.toml", "--out", parent / "r", "--quiet")
+        kind = _whole_kind(parent / "r", W / "r1")
+        seen[kind] = seen.get(kind, 0) + 1
+        if kind == "mixed" or code not in (0, -9):
+            wrong.append((round(moment, 2), code, kind))
+        if kind == "missing" and (parent / "r").exists():
+            wrong.append((round(moment, 2), "partial folder"))
+        again = fp("run", "seed1.toml", "--out", parent / "r", "--quiet")
+        if again.returncode or _whole_kind(parent / "r", W / "r1") != "r1" or leftovers(parent):
+            wrong.append((round(moment, 2), "rerun", again.returncode, leftovers(parent)))
+    record("kill -9 at 10 moments of a first run into a new folder, then a rerun",
+           not wrong and verify(parent / "r").returncode == 0,
+           f"(kind: count) {seen}, wrong {wrong[:3]}")
+
+
+def f48_kill9_report_then_run():
+    """kill -9 at 6 seeded moments of report writing into a result, then a run into that
+    folder: the run replaces it (exit 0, whole), verify 0, nothing left."""
+    import random
+    draw = random.Random(4848)
+    wrong = []
+    for trial in range(6):
+        folder = fresh("k9rep48", "r1")
+        _killed_at(draw.uniform(0.5, 4.0), "report", "--quiet", folder)
+        run = fp("run", "site.toml", "--out", folder, "--quiet")
+        if (run.returncode or _whole_kind(folder, W / "r0") != "r0"
+                or verify(folder).returncode or leftovers(W) or leftovers(folder)):
+            wrong.append((trial, run.returncode, errlines(run)[:1], leftovers(folder)))
+    record("kill -9 of report at 6 moments, then run into the folder", not wrong,
+           f"wrong {wrong[:2]}")
+
+
+def f48_kill9_batch_then_rerun():
+    """kill -9 of a whole 4-site batch (1 worker) at 3 seeded moments of a first batch,
+    then the batch run again: exit 0, every site verifies, nothing left, byte-identical
+    sites."""
+    import random
+    draw = random.Random(480)
+    wrong = []
+    make_net()
+    assert fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET).returncode == 0
+    clean = {p.name: table_digests(p) for p in (NET / "out").iterdir() if p.is_dir()}
+    for trial in range(3):
+        make_net()
+        proc = subprocess.Popen([PY, "-m", "fluxpart", "batch", "sites.toml", "--quiet",
+                                 "--workers", "1"], env=ENV, cwd=NET, start_new_session=True,
+                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        try:
+            proc.wait(timeout=draw.uniform(3, 25))
+        except subprocess.TimeoutExpired:
+            os.killpg(proc.pid, signal.SIGKILL)
+        proc.wait()
+        time.sleep(0.5)
+        rerun = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
+        codes = sites_verify(NET / "out") if (NET / "out").is_dir() else []
+        same = {p.name: table_digests(p) for p in (NET / "out").iterdir() if p.is_dir()} == clean
+        if rerun.returncode or codes != [0] * 4 or leftovers(NET / "out") or not same:
+            wrong.append((trial, rerun.returncode, codes, leftovers(NET / "out")))
+    record("kill -9 of a first batch at 3 moments, then the batch again", not wrong,
+           f"wrong {wrong[:2]}")
+
+
+def f48_foreign_manifest():
+    """A folder of another tool holding its own ``manifest.json`` (a package manifest) and
+    data files: run --out it refuses in one line naming the folder, nothing changed;
+    verify fails in one line naming manifest.json."""
+    folder = W / "foreign48"
+    shutil.rmtree(folder, ignore_errors=True)
+    folder.mkdir()
+    (folder / "manifest.json").write_text('{"name": "tower-2021", "files": ["a.csv"]}\n')
+    (folder / "a.csv").write_text("x,y\n1,2\n")
+    before = sorted((p.name, p.read_bytes()) for p in folder.iterdir())
+    run = fp("run", "site.toml", "--out", folder, "--quiet")
+    ver = verify(folder)
+    kept = sorted((p.name, p.read_bytes()) for p in folder.iterdir()) == before
+    record("run into and verify of a folder with another tool's manifest.json",
+           one_line(run) and kept and not leftovers(W) and ver.returncode in (1, 2)
+           and "manifest.json" in ver.stdout + ver.stderr
+           and "Traceback" not in ver.stdout + ver.stderr,
+           f"run {run.returncode} {_stderr_tail(run)}, verify {ver.returncode} {_said(ver)}")
+
+
+_INJECT_AT = """
+import errno, os, sys
+sys.path.insert(0, sys.argv[1])
+code, name, match, nth = int(sys.argv[2]), sys.argv[3], sys.argv[4], int(sys.argv[5])
+real = getattr(os, name)
+seen = [0]
+def failing(*args, **kwargs):
+    text = " ".join(os.fsdecode(a) for a in args if isinstance(a, (str, bytes, os.PathLike)))
+    if name == "fsync" or match in text:
+        seen[0] += 1
+        if seen[0] == nth:
+            raise OSError(code, os.strerror(code), text or None)
+    return real(*args, **kwargs)
+setattr(os, name, failing)
+from fluxpart import cli
+sys.exit(cli.main(sys.argv[6:]))
+"""
+
+
+def f48_errors_at_writing():
+    """EROFS making the staging folder, EDQUOT at the 3rd fsync, ENOSPC renaming a table
+    into place, EIO renaming the manifest, EROFS at the swap's rename (injected in a
+    subprocess, each into an earlier result): one ``error:`` line, exit 2, the earlier
+    result intact and verified, nothing left beside it."""
+    import errno
+    cases = [("EROFS making the staging folder", errno.EROFS, "mkdir", ".staging-", 1),
+             ("EDQUOT flushing a table", errno.EDQUOT, "fsync", "", 3),
+             ("ENOSPC putting a table in place", errno.ENOSPC, "replace", ".parquet", 2),
+             ("EIO putting the manifest in place", errno.EIO, "replace", "manifest.json", 1),
+             ("EROFS at the swap", errno.EROFS, "rename", ".staging-", 1)]
+    for label, code, name, match, nth in cases:
+        # the swap into an existing folder is one renameat2 call (ctypes): a new folder's
+        # swap is the os.rename patched here
+        new = name == "rename"
+        folder = W / "inj48new" if new else fresh("inj48")
+        if new:
+            shutil.rmtree(folder, ignore_errors=True)
+        before = {} if new else table_digests(folder)
+        done = subprocess.run([PY, "-c", _INJECT_AT, str(TREE), str(code), name, match,
+                               str(nth), "run", "seed1.toml", "--out", folder, "--quiet"],
+                              env=ENV, cwd=W / "b", capture_output=True, text=True,
+                              timeout=300)
+        intact = (not folder.exists() if new else table_digests(folder) == before
+                  and verify(folder).returncode == 0)
+        record(f"{label} (injected)", one_line(done) and intact and not leftovers(W),
+               f"exit {done.returncode} {_stderr_tail(done)}, intact {intact}, "
+               f"left {leftovers(W)}")
+
+
+def f48_moved_across_file_systems():
+    """A result moved to another file system (``shutil.move``: copy, then delete; /dev/shm)
+    and renamed: verify and report pass there, its input left in place."""
+    target = Path("/dev/shm") / f"fluxpart48-{os.getpid()}" / "moved result"
+    shutil.rmtree(target.parent, ignore_errors=True)
+    target.parent.mkdir()
+    try:
+        shutil.move(str(fresh("tomove48")), str(target))
+        seen = (verify(target).returncode, fp("report", "--quiet", target).returncode,
+                verify(target).returncode)
+        record("a result moved to another file system and renamed: verify, report, verify",
+               seen == (0, 0, 0), f"{seen}")
+    finally:
+        shutil.rmtree(target.parent, ignore_errors=True)
+
+
+def f48_table_a_link_to_other_run():
+    """A table replaced by a symbolic link to another seed's same table (``ln -sf``):
+    verify fails naming the table."""
+    folder = fresh("tlink48")
+    (folder / "annual.parquet").unlink()      # the one table the seeds' results differ in
+    (folder / "annual.parquet").symlink_to(W / "r1" / "annual.parquet")
+    code, clean, done = _verified(folder)
+    record("a table a link to another run's table", code == 1 and clean
+           and "annual.parquet" in done.stdout, f"exit {code}, {_said(done, 200)}")
+
+
+def f48_result_and_input_tarred():
+    """The bundle (config, input) and its result tarred together with relative paths,
+    the originals deleted, extracted elsewhere: verify finds the input beside it
+    (relative to the result) and passes, from another working folder, with a relative
+    result path and 2 threads."""
+    base = _own_copy("pair48")
+    box = W / "pair48_box"
+    shutil.rmtree(box, ignore_errors=True)
+    box.mkdir()
+    subprocess.run(["tar", "-C", base, "-cf", box / "p.tar", "b", "r"], check=True)
+    shutil.rmtree(base)
+    (box / "x" / "y").mkdir(parents=True)
+    subprocess.run(["tar", "-xf", "../../p.tar"], cwd=box / "x" / "y", check=True)
+    env = dict(ENV, OMP_NUM_THREADS="2", OPENBLAS_NUM_THREADS="2")
+    done = fp("verify", "--quiet", "y/r", env=env, cwd=box / "x")
+    record("result and input tarred together, extracted elsewhere, verified from another folder",
+           done.returncode == 0, f"exit {done.returncode} {_said(done, 200)}")
+
+
+def f48_verify_relative_input_other_cwd():
+    """verify with a relative result path and a relative --input, from the scratch folder
+    (not the bundle's), with 1 and 2 threads: exit 0 both."""
+    codes = []
+    for threads in ("1", "2"):
+        env = dict(ENV, OMP_NUM_THREADS=threads, OPENBLAS_NUM_THREADS=threads,
+                   MKL_NUM_THREADS=threads)
+        done = fp("verify", "--quiet", "r0", "--input", "b/tower.csv", env=env, cwd=W)
+        codes.append(done.returncode)
+    record("verify with relative result and --input paths from another folder, 1 and 2 threads",
+           codes == [0, 0], f"exits {codes}")
+
+
+def f48_one_cpu():
+    """run under one CPU (sched_setaffinity, as ``taskset -c 0``) with 2 threads asked:
+    tables byte-identical to a run on all CPUs, verify 0 under one CPU."""
+    if not hasattr(os, "sched_setaffinity"):
+        record("run and verify under one CPU", False, "unprobed: no sched_setaffinity")
+        return
+    cpu = min(os.sched_getaffinity(0))
+    out = W / "onecpu48"
+    shutil.rmtree(out, ignore_errors=True)
+    env = dict(ENV, OMP_NUM_THREADS="2")
+    run = subprocess.run([PY, "-c", "import os,sys; os.sched_setaffinity(0, {%d}); "
+                          "from fluxpart import cli; sys.exit(cli.main(sys.argv[1:]))" % cpu,
+                          "run", "site.toml", "--out", out, "--quiet"], env=env, cwd=W / "b",
+                         capture_output=True, text=True)
+    ver = subprocess.run([PY, "-c", "import os,sys; os.sched_setaffinity(0, {%d}); "
+                          "from fluxpart import cli; sys.exit(cli.main(sys.argv[1:]))" % cpu,
+                          "verify", "--quiet", str(W / "r0")], env=env, cwd=W / "b",
+                         capture_output=True, text=True)
+    record("run and verify under one CPU", run.returncode == 0 and ver.returncode == 0
+           and table_digests(out) == table_digests(W / "r0"),
+           f"run {run.returncode}, verify {ver.returncode}, same "
+           f"{table_digests(out) == table_digests(W / 'r0')}")
+
+
+def _input_edited(label, edit):
+    """verify after `edit` of the input's bytes: exit status, whether the input file is
+    named by its path (a note or an error; the summary names the recorded file alone)."""
+    base = _own_copy(f"edit48_{label}")
+    path = base / "b" / "tower.csv"
+    path.write_bytes(edit(path.read_bytes()))
+    done = fp("verify", base / "r")
+    return done.returncode, str(path) in done.stdout + done.stderr, done
+
+
+def f48_input_one_byte():
+    """One digit of one data row of the input changed after the run: verify fails
+    (exit 1 or 2), naming the input file."""
+    def edit(data):
+        lines = data.split(b"\n")
+        row = lines[500]
+        at = next(i for i in range(len(row) - 1, 0, -1) if row[i:i + 1].isdigit())
+        lines[500] = row[:at] + (b"1" if row[at:at + 1] != b"1" else b"2") + row[at + 1:]
+        return b"\n".join(lines)
+    code, named, done = _input_edited("byte", edit)
+    record("one byte of the input changed after the run", code in (1, 2) and named,
+           f"exit {code}, named {named}, {_said(done, 200)}")
+
+
+def f48_input_newline_edits():
+    """The input's final line break removed, and a blank line added at its end, after the
+    run: verify names the input (passes with a note where it restores the recorded bytes,
+    or fails naming it)."""
+    seen = []
+    for label, edit in (("no final newline", lambda d: d.rstrip(b"\n")),
+                        ("blank line added", lambda d: d + b"\n")):
+        code, named, done = _input_edited(label.split()[0], edit)
+        seen.append((label, code, named))
+    record("the input's final newline removed or a blank line added after the run",
+           all(named and code in (0, 1, 2) for _, code, named in seen), f"{seen}")
+
+
+def f48_input_bom_added():
+    """A byte-order mark put before the input's first line (a Windows editor re-saving
+    it): verify names the input."""
+    code, named, done = _input_edited("bom", lambda d: b"\xef\xbb\xbf" + d)
+    record("a byte-order mark added to the input after the run", named and code in (0, 1, 2),
+           f"exit {code}, {_said(done, 200)}")
+
+
+def f48_input_header_renamed():
+    """The NEE column renamed in the input's header after the run (values kept): verify
+    fails, naming the input."""
+    def edit(data):
+        head, rest = data.split(b"\n", 1)
+        first = head.split(b",")
+        first[1] = first[1] + b"_x"
+        return b",".join(first) + b"\n" + rest
+    code, named, done = _input_edited("header", edit)
+    record("a column of the input renamed after the run", code in (1, 2) and named,
+           f"exit {code}, {_said(done, 200)}")
+
+
+def f48_manifest_duplicate_key():
+    """A second ``seal`` or ``tables`` key appended to manifest.json (parsers that take the
+    first and those that take the last read different manifests): verify fails naming
+    manifest.json."""
+    seen = []
+    for key in ("seal", "tables"):
+        folder = fresh(f"dupkey48_{key}")
+        text = (folder / "manifest.json").read_text()
+        import json
+        value = json.loads(text)[key]
+        other = json.dumps(value if key == "tables" else "0" * 64)
+        (folder / "manifest.json").write_text(text.rstrip().rstrip("}") + f', "{key}": {other}}}\n')
+        code, clean, done = _verified(folder)
+        seen.append((key, code, clean and "manifest.json" in done.stdout + done.stderr))
+    record("a key written twice in manifest.json", all(code in (1, 2) and named
+                                                       for _, code, named in seen), f"{seen}")
+
+
+def f48_clock_back_between_runs():
+    """A run, then a second run of another seed into the same folder with the clock a year
+    back (``time.time`` patched by a sitecustomize), then a third on the right clock:
+    each replaces the folder whole, verify 0 after each, nothing left."""
+    site = W / "clockback48"
+    site.mkdir(exist_ok=True)
+    (site / "sitecustomize.py").write_text(_CLOCK_STEP.format(step=-365 * 86400, after=0.0))
+    back = dict(ENV, PYTHONPATH=f"{site}{os.pathsep}{TREE}")
+    folder = fresh("clkback48", "r0")
+    steps = [fp("run", "seed1.toml", "--out", folder, "--quiet", env=back)]
+    kinds = [_whole_kind(folder, W / "r0", W / "r1")]
+    steps.append(verify(folder))
+    steps.append(fp("run", "site.toml", "--out", folder, "--quiet"))
+    kinds.append(_whole_kind(folder, W / "r0", W / "r1"))
+    steps.append(verify(folder, env=back))
+    record("the clock a year back between two runs into one folder",
+           [s.returncode for s in steps] == [0] * 4 and kinds == ["r1", "r0"]
+           and not leftovers(W), f"exits {[s.returncode for s in steps]}, kinds {kinds}, "
+           f"{[e for s in steps for e in errlines(s)][:1]!r:.150}")
+
+
+def f48_sibling_prefix_names():
+    """Two result folders whose names extend one another (``r`` and ``r.staging-1``,
+    as a user may name a copy): the run into the first, while the second's run is
+    suspended mid-write, leaves the second's staging alone; both end whole."""
+    parent = W / "prefix48"
+    shutil.rmtree(parent, ignore_errors=True)
+    parent.mkdir()
+    second = start("run", "seed1.toml", "--out", parent / "r.staging-1", "--quiet")
+    _wait_for(lambda: _entries(parent, ".r.staging-1.staging-"))
+    second.send_signal(signal.SIGSTOP)
+    staged = _entries(parent, ".r.staging-1.staging-")
+    first = fp("run", "site.toml", "--out", parent / "r", "--quiet")
+    kept = bool(staged) and all(p.is_dir() for p in staged)
+    second.send_signal(signal.SIGCONT)
+    _, err2 = second.communicate(timeout=300)
+    kinds = (_whole_kind(parent / "r", W / "r0"), _whole_kind(parent / "r.staging-1", W / "r1"))
+    record("a run into r while a run into r.staging-1 is suspended mid-write",
+           first.returncode == 0 and second.returncode == 0 and kinds == ("r0", "r1") and kept,
+           f"exits {first.returncode}, {second.returncode}, kinds {kinds}, staged {len(staged)}, the sibling's "
+           f"staging kept {kept} {err2.strip()[-150:]!r}")
+
+
+def f48_out_mount_point():
+    """--out a mount point (a tmpfs mounted there, as a container's output volume):
+    empty, then holding a result; run either writes the result or refuses in one line
+    naming what to do; a refused run changes nothing; verify of what is there passes."""
+    disk = _tmpfs("mnt48", "50m")
+    if disk is None:
+        record("--out a mount point", False, "unprobed: mount refused")
+        return
+    try:
+        first = fp("run", "site.toml", "--out", disk, "--quiet")
+        fine1 = (first.returncode == 0 and verify(disk).returncode == 0) or (
+            one_line(first) and not any(disk.iterdir()))
+        again = fp("run", "seed1.toml", "--out", disk, "--quiet")
+        fine2 = (again.returncode == 0 and verify(disk).returncode == 0) or one_line(again)
+        record("--out a mount point, empty then holding a result", fine1 and fine2
+               and not leftovers(W) and not leftovers(disk),
+               f"first {first.returncode} {_stderr_tail(first)}, second {again.returncode} "
+               f"{_stderr_tail(again)}")
+    finally:
+        subprocess.run(["umount", str(disk)])
+
+
+def f48_verify_read_only_copy_other_user():
+    """A result copied with ``cp -r`` (times now), made read-only (chmod -R a-w), then
+    verified and reported into another folder by an unprivileged user: exit 0 both."""
+    if shutil.which("setpriv") is None:
+        record("a read-only cp -r copy verified by another user", False, "unprobed: no setpriv")
+        return
+    copy = W / "rocopy48"
+    shutil.rmtree(copy, ignore_errors=True)
+    subprocess.run(["cp", "-r", W / "r0", copy], check=True)
+    subprocess.run(["chmod", "-R", "a-w,a+rX", copy], check=True)
+    _readable_by_all(W / "b" / "tower.csv")
+    _readable_by_all(copy)
+    page = Path(tempfile.mkdtemp(prefix="fp48rep-"))
+    os.chmod(page, 0o777)
+    try:
+        ver = _as_user("verify", "--quiet", copy, env=dict(ENV, HOME=str(page)))
+        rep = _as_user("report", "--quiet", copy, "--out", page / "rep",
+                       env=dict(ENV, HOME=str(page), MPLCONFIGDIR=str(page)))
+        record("a read-only cp -r copy verified and reported by another user",
+               ver.returncode == 0 and rep.returncode == 0,
+               f"verify {ver.returncode} {_said(ver)}, report {rep.returncode} {_said(rep)}")
+    finally:
+        subprocess.run(["chmod", "-R", "u+w", copy])
+        shutil.rmtree(page, ignore_errors=True)
+
+
+def f48_tables_swapped_names():
+    """Two tables of one result swapped by name (daily.parquet <-> monthly.parquet):
+    verify fails naming both."""
+    folder = fresh("swapnames48")
+    daily, monthly = folder / "daily.parquet", folder / "monthly.parquet"
+    daily.rename(folder / "t.tmp")
+    monthly.rename(daily)
+    (folder / "t.tmp").rename(monthly)
+    code, clean, done = _verified(folder)
+    record("two tables swapped by name", code == 1 and clean and "daily.parquet" in done.stdout
+           and "monthly.parquet" in done.stdout, f"exit {code}, {_said(done, 200)}")
+
+
+def f48_reader_waits_for_repair():
+    """A result left in its retired copy (a writer stopped between its two renames) while
+    another process holds the folder's lock: verify says within 5 s that it waits and for
+    whom, and puts the result back once the holder ends (exit 0); with the holder there
+    past the reader's wait, one error line naming the holder, the copy left alone."""
+    seen = []
+    for label, hold in (("holder ends", 6), ("holder stays", 120)):
+        folder = fresh("repair48")
+        retired = W / ".repair48.retired-0a1b2c3d"
+        shutil.rmtree(retired, ignore_errors=True)
+        folder.rename(retired)
+        holder = _holding(folder, hold)
+        log = W / "repair48.err"
+        proc = _started_logged(["verify", "--quiet", folder], log)
+        time.sleep(5)
+        early = log.read_text()
+        code = proc.wait(timeout=120)
+        holder.kill()
+        holder.wait()
+        text = log.read_text()
+        if hold < 30:
+            fine = (code == 0 and str(holder.pid) in early and "waiting" in early
+                    and folder.is_dir() and not retired.exists())
+        else:
+            errors = [x for x in text.splitlines() if x.startswith("error:")]
+            fine = (code == 2 and len(errors) == 1 and str(holder.pid) in errors[0]
+                    and retired.is_dir() and not folder.exists())
+        seen.append((label, code, fine, text.strip()[-160:]))
+        shutil.rmtree(retired, ignore_errors=True)
+    record("verify of a result in its retired copy while another process holds the lock",
+           all(fine for _, _, fine, _ in seen), f"{seen}")
+
+
+def f48_run_log_lost():
+    """run-log.json (unhashed: who ran it, when, where) deleted, and cut to a broken
+    JSON, after the run: verify passes (the numbers are whole) with a note naming it."""
+    seen = []
+    for label, edit in (("deleted", lambda p: p.unlink()),
+                        ("cut", lambda p: p.write_bytes(p.read_bytes()[:40]))):
+        folder = fresh(f"runlog48_{label}")
+        edit(folder / "run-log.json")
+        done = fp("verify", folder)
+        noted = any(line.startswith("note: run-log.json") for line in done.stdout.splitlines())
+        seen.append((label, done.returncode, noted))
+    record("the run log deleted or cut after the run: verify notes it",
+           all(code == 0 and noted for _, code, noted in seen), f"{seen}")
+
+
+def f48_report_of_other_result():
+    """The report/ folder of another result copied into a result (``cp -r r0/report
+    r1/``, as a merge of two copies does): verify notes that the page was drawn from
+    another result, naming report.html; the folder's own page gives no such note."""
+    folder = fresh("rpx48", "r1")
+    donor = fresh("rpx48_donor", "r0")
+    assert fp("report", "--quiet", donor).returncode == 0
+    assert fp("report", "--quiet", folder).returncode == 0
+    own = fp("verify", folder)
+    shutil.rmtree(folder / "report")
+    shutil.copytree(donor / "report", folder / "report")
+    other = fp("verify", folder)
+    said = [x for x in other.stdout.splitlines() if "drawn from another result" in x]
+    record("another result's report page copied into a result: verify names it",
+           own.returncode == 0 and "drawn from another result" not in own.stdout
+           and other.returncode == 0 and len(said) == 1 and "report.html" in said[0],
+           f"own {own.returncode}, other {other.returncode} {said[:1]!r:.200}")
+
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -5672,14 +6277,25 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f47_input_through_dropped_link, f47_network_through_tar, f47_manifest_deleted,
           f47_verify_json_zone_locale, f47_diff_of_copies,
           # round review83
-          f83_bomb_beside_input]
+          f83_bomb_beside_input,
+          # round faults48
+          f48_quiet_waiting_said, f48_holder_killed_waiter_takes_over, f48_waiter_killed,
+          f48_three_runs_one_folder, f48_kill9_new_folder_moments, f48_kill9_report_then_run,
+          f48_kill9_batch_then_rerun, f48_foreign_manifest, f48_errors_at_writing,
+          f48_moved_across_file_systems, f48_table_a_link_to_other_run,
+          f48_result_and_input_tarred, f48_verify_relative_input_other_cwd, f48_one_cpu,
+          f48_input_one_byte, f48_input_newline_edits, f48_input_bom_added,
+          f48_input_header_renamed, f48_manifest_duplicate_key, f48_clock_back_between_runs,
+          f48_sibling_prefix_names, f48_out_mount_point, f48_verify_read_only_copy_other_user,
+          f48_tables_swapped_names, f48_reader_waits_for_repair,
+          f48_run_log_lost, f48_report_of_other_result]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
     wanted = [a for a in sys.argv[1:]
-              if a.startswith(("f_", "f45_", "f46_", "f47_", "f56_", "f83_"))]
+              if a.startswith(("f_", "f45_", "f46_", "f47_", "f48_", "f56_", "f83_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
