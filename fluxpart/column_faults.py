@@ -901,12 +901,14 @@ def _best_shift(nee, rg, potential, interval_minutes: float, minimum: int):
     return _best_of(score, interval_minutes)
 
 
-def _best_of(score, interval_minutes: float):
+def _best_of(score, interval_minutes: float, scores=None):
     """:func:`_best_shift`'s rule on `score(k)` -> (correlation signed to be positive where
-    physical, pairs) of each shift k [records]."""
+    physical, pairs) of each shift k [records]; `scores`: ``{k: score(k)}`` of the shifts
+    within :data:`_MAX_SHIFT_HOURS`, where the caller has them."""
     most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
     per_day = _records_per_day(interval_minutes)
-    scores = {k: score(k) for k in range(-most, most + 1)}
+    if scores is None:
+        scores = {k: score(k) for k in range(-most, most + 1)}
     scores = {k: s for k, s in scores.items() if math.isfinite(s[0])}
     if 0 not in scores or len(scores) < 2:
         return None
@@ -957,7 +959,27 @@ def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
         scale = math.sqrt(max(sxx, 0.0) * max(syy, 0.0))
         return (-sxy / scale if scale > 0 else math.nan), count
 
-    return score
+    def month_scores(shifts):
+        """Per month m, ``{k: score(k, m)}`` of the shifts `shifts`: the same arithmetic
+        on every (shift, month) at once (element-wise float64, so the same bits as
+        Python's floats), not a Python call per pair (round speed61)."""
+        inside = [k for k in shifts if abs(k) < d_nee.size]
+        if not inside:
+            return [{k: (math.nan, 0) for k in shifts} for _ in range(firsts.size)]
+        n, sa, sb, saa, sbb, sab = np.stack([suffix_moments(k)[:, 1:]
+                                             for k in inside], axis=1)
+        count = np.rint(n).astype(np.int64)       # round half to even, as Python's round
+        with np.errstate(invalid="ignore", divide="ignore"):
+            sxx, syy, sxy = saa - sa * sa / n, sbb - sb * sb / n, sab - sa * sb / n
+            scale = np.sqrt(np.maximum(sxx, 0.0) * np.maximum(syy, 0.0))
+            r = np.where(scale > 0, -sxy / scale, np.nan)
+        r[count < minimum] = np.nan
+        row = {k: i for i, k in enumerate(inside)}
+        r, count = r.tolist(), count.tolist()
+        return [{k: (r[row[k]][m], count[row[k]][m]) if k in row else (math.nan, 0)
+                 for k in shifts} for m in range(firsts.size)]
+
+    return score, month_scores
 
 
 #: Sunlit pairs a stretch from a month on needs to be judged: a month's (``_MONTH_PAIRS``
@@ -1019,9 +1041,11 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
     chosen = None
     d_nee, d_rg = _sunlit_changes(nee, rg, potential)
-    stretch = _stretch_scores(d_nee, d_rg, firsts, _STRETCH_PAIRS)
+    stretch, month_scores = _stretch_scores(d_nee, d_rg, firsts, _STRETCH_PAIRS)
+    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
+    shifted = month_scores(range(-most, most + 1))
     for m, first in enumerate(firsts.tolist()):
-        after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes)
+        after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes, shifted[m])
         if after is None:
             continue
         k = after[0]
