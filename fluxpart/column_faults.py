@@ -933,17 +933,23 @@ def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
     ``firsts[m]`` to the end, from each month's sums of the pairs' moments (one pass per
     shift, not one per shift and month: a ten-year record has 120 stretches)."""
     cache = {}
+    # once for every shift: which changes are finite, and the month of each pair position
+    # (the same masks and numbers a shift's own pass took, round speed61)
+    finite_nee, finite_rg = np.isfinite(d_nee), np.isfinite(d_rg)
+    month_of = np.searchsorted(firsts, np.arange(d_nee.size), side="right")
 
     def suffix_moments(k):
         if k not in cache:
             a, b = _shift_pairs(d_nee, d_rg, k)
             # the finite pairs only (night changes are NaN): the others would add +0.0 to
             # each sum, which changes no bit of a sum that starts at +0.0
-            ok = np.flatnonzero(np.isfinite(a) & np.isfinite(b))
+            ok = np.flatnonzero(np.logical_and(*_shift_pairs(finite_nee, finite_rg, k)))
             a, b = a[ok], b[ok]
-            month = np.searchsorted(firsts, ok, side="right")
-            sums = np.stack([np.bincount(month, weights=w, minlength=firsts.size + 1)
-                             for w in (np.ones(ok.size), a, b, a * a, b * b, a * b)])
+            month = month_of[ok]
+            # the pair counts as integers (whole numbers: the float sums of ones, exactly)
+            sums = np.stack([np.bincount(month, minlength=firsts.size + 1),
+                             *(np.bincount(month, weights=w, minlength=firsts.size + 1)
+                               for w in (a, b, a * a, b * b, a * b))], dtype=float)
             # the sums over the pairs from each month's first record on
             cache[k] = np.cumsum(sums[:, ::-1], axis=1)[:, ::-1]
         return cache[k]
