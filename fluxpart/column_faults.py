@@ -901,12 +901,14 @@ def _best_shift(nee, rg, potential, interval_minutes: float, minimum: int):
     return _best_of(score, interval_minutes)
 
 
-def _best_of(score, interval_minutes: float):
+def _best_of(score, interval_minutes: float, scores=None):
     """:func:`_best_shift`'s rule on `score(k)` -> (correlation signed to be positive where
-    physical, pairs) of each shift k [records]."""
+    physical, pairs) of each shift k [records]; `scores`: ``{k: score(k)}`` of the shifts
+    within :data:`_MAX_SHIFT_HOURS`, where the caller has them."""
     most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
     per_day = _records_per_day(interval_minutes)
-    scores = {k: score(k) for k in range(-most, most + 1)}
+    if scores is None:
+        scores = {k: score(k) for k in range(-most, most + 1)}
     scores = {k: s for k, s in scores.items() if math.isfinite(s[0])}
     if 0 not in scores or len(scores) < 2:
         return None
@@ -931,17 +933,23 @@ def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
     ``firsts[m]`` to the end, from each month's sums of the pairs' moments (one pass per
     shift, not one per shift and month: a ten-year record has 120 stretches)."""
     cache = {}
+    # once for every shift: which changes are finite, and the month of each pair position
+    # (the same masks and numbers a shift's own pass took, round speed61)
+    finite_nee, finite_rg = np.isfinite(d_nee), np.isfinite(d_rg)
+    month_of = np.searchsorted(firsts, np.arange(d_nee.size), side="right")
 
     def suffix_moments(k):
         if k not in cache:
             a, b = _shift_pairs(d_nee, d_rg, k)
             # the finite pairs only (night changes are NaN): the others would add +0.0 to
             # each sum, which changes no bit of a sum that starts at +0.0
-            ok = np.flatnonzero(np.isfinite(a) & np.isfinite(b))
+            ok = np.flatnonzero(np.logical_and(*_shift_pairs(finite_nee, finite_rg, k)))
             a, b = a[ok], b[ok]
-            month = np.searchsorted(firsts, ok, side="right")
-            sums = np.stack([np.bincount(month, weights=w, minlength=firsts.size + 1)
-                             for w in (np.ones(ok.size), a, b, a * a, b * b, a * b)])
+            month = month_of[ok]
+            # the pair counts as integers (whole numbers: the float sums of ones, exactly)
+            sums = np.stack([np.bincount(month, minlength=firsts.size + 1),
+                             *(np.bincount(month, weights=w, minlength=firsts.size + 1)
+                               for w in (a, b, a * a, b * b, a * b))], dtype=float)
             # the sums over the pairs from each month's first record on
             cache[k] = np.cumsum(sums[:, ::-1], axis=1)[:, ::-1]
         return cache[k]
@@ -957,7 +965,27 @@ def _stretch_scores(d_nee, d_rg, firsts: np.ndarray, minimum: int):
         scale = math.sqrt(max(sxx, 0.0) * max(syy, 0.0))
         return (-sxy / scale if scale > 0 else math.nan), count
 
-    return score
+    def month_scores(shifts):
+        """Per month m, ``{k: score(k, m)}`` of the shifts `shifts`: the same arithmetic
+        on every (shift, month) at once (element-wise float64, so the same bits as
+        Python's floats), not a Python call per pair (round speed61)."""
+        inside = [k for k in shifts if abs(k) < d_nee.size]
+        if not inside:
+            return [{k: (math.nan, 0) for k in shifts} for _ in range(firsts.size)]
+        n, sa, sb, saa, sbb, sab = np.stack([suffix_moments(k)[:, 1:]
+                                             for k in inside], axis=1)
+        count = np.rint(n).astype(np.int64)       # round half to even, as Python's round
+        with np.errstate(invalid="ignore", divide="ignore"):
+            sxx, syy, sxy = saa - sa * sa / n, sbb - sb * sb / n, sab - sa * sb / n
+            scale = np.sqrt(np.maximum(sxx, 0.0) * np.maximum(syy, 0.0))
+            r = np.where(scale > 0, -sxy / scale, np.nan)
+        r[count < minimum] = np.nan
+        row = {k: i for i, k in enumerate(inside)}
+        r, count = r.tolist(), count.tolist()
+        return [{k: (r[row[k]][m], count[row[k]][m]) if k in row else (math.nan, 0)
+                 for k in shifts} for m in range(firsts.size)]
+
+    return score, month_scores
 
 
 #: Sunlit pairs a stretch from a month on needs to be judged: a month's (``_MONTH_PAIRS``
@@ -1019,9 +1047,11 @@ def nee_shift_from_month(nee, rg, potential, stamps, interval_minutes: float,
     firsts = np.flatnonzero(months[1:] != months[:-1]) + 1
     chosen = None
     d_nee, d_rg = _sunlit_changes(nee, rg, potential)
-    stretch = _stretch_scores(d_nee, d_rg, firsts, _STRETCH_PAIRS)
+    stretch, month_scores = _stretch_scores(d_nee, d_rg, firsts, _STRETCH_PAIRS)
+    most = int(_MAX_SHIFT_HOURS * 60 // interval_minutes)
+    shifted = month_scores(range(-most, most + 1))
     for m, first in enumerate(firsts.tolist()):
-        after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes)
+        after = _best_of(lambda k, m=m: stretch(k, m), interval_minutes, shifted[m])
         if after is None:
             continue
         k = after[0]

@@ -28,6 +28,8 @@ u* filter) (m).
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 import pandas as pd
 
@@ -119,16 +121,29 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
     counted = (np.ones(nee.size, dtype=bool) if excluded is None
                else ~np.asarray(excluded, dtype=bool))
     per_morning = max(1, int(round(MORNING_HOURS * 60 / int(interval_minutes))))
+    nights = _nights_and_mornings(ustar, threshold, night, per_morning, calm_share)
+    # each morning's measured records (finite residual); the nights with as many as one
+    # another's as the rows of one array, whose row means have the bits of each morning's
+    # own array's mean (round speed61: a Python pass per night before)
+    measured = nights.valid & np.isfinite(residual[nights.positions])
+    kept_counts = measured.sum(axis=1)
+    means = np.full(kept_counts.size, np.nan)
+    for count in np.unique(kept_counts[kept_counts >= MIN_MORNING_RECORDS]):
+        same = np.flatnonzero(kept_counts == count)
+        values = residual[nights.positions[same][measured[same]]].reshape(same.size, count)
+        means[same] = values.sum(axis=1) / count
+    enough = kept_counts >= MIN_MORNING_RECORDS
+    calm_records = (counted[nights.positions] & nights.valid).sum(axis=1)
+    night_years = years[nights.ends]
     rows = {}
-    for end, morning, calm in _nights_and_mornings(ustar, threshold, night, per_morning,
-                                                   calm_share):
-        kept = morning[np.isfinite(residual[morning])]
-        year = years[end]
-        entry = rows.setdefault(year, {"calm": [], "other": [], "calm_records": 0})
-        if calm:
-            entry["calm_records"] += int(counted[morning].sum())
-        if kept.size >= MIN_MORNING_RECORDS:
-            entry["calm" if calm else "other"].append(float(residual[kept].mean()))
+    # the years in the order their first night appears (a year with nights but no
+    # morning of each kind is skipped below)
+    _, first = np.unique(night_years, return_index=True)
+    for year in night_years[np.sort(first)]:
+        inside = night_years == year
+        rows[year] = {"calm": means[inside & nights.calm & enough].tolist(),
+                      "other": means[inside & ~nights.calm & enough].tolist(),
+                      "calm_records": int(calm_records[inside & nights.calm].sum())}
     out = []
     grams = float(units.flux_to_carbon(1.0, int(interval_minutes)))
     for year, entry in rows.items():
@@ -146,26 +161,46 @@ def morning_release(nee_measured, ustar, threshold, is_night, nee_model, year_ke
     return out
 
 
-def _nights_and_mornings(ustar, threshold, night, per_morning, calm_share=CALM_SHARE):
-    """Yield ``(end, morning, calm)`` for each night whose calm share is known.
+class _Nights(NamedTuple):
+    """:func:`_nights_and_mornings`' nights whose calm share is known, in order."""
 
-    `end` is the position of the first record after the night, `morning` the positions
-    of the day records among the following `per_morning` records, `calm` whether at
-    least `calm_share` of the night's records with u* lie below the threshold (0: any of
-    them). A night that runs to the end of the record has no morning and is left out.
+    ends: np.ndarray         # position of the first record after each night
+    positions: np.ndarray    # (nights x per_morning) the records after it (clipped)
+    valid: np.ndarray        # (nights x per_morning) those within the record and not night
+    calm: np.ndarray         # whether the night is calm
+
+
+def _nights_and_mornings(ustar, threshold, night, per_morning, calm_share=CALM_SHARE
+                         ) -> _Nights:
+    """The nights whose calm share is known, their mornings and whether they are calm.
+
+    A night's morning is the day records among the `per_morning` records after its end
+    (``positions`` where ``valid``); it is calm where at least `calm_share` of its
+    records with u* lie below the threshold (0: any of them). A night that runs to the
+    end of the record has no morning and is left out. All nights at once: the share is
+    the count below over the count known, as the mean of the night's own comparisons.
     """
     n = night.size
     starts, lengths = gap_runs(night)                 # night runs [start, start + length)
-    for start, end in zip(starts, starts + lengths, strict=True):
-        if end >= n:
-            continue
-        calm_known = np.isfinite(ustar[start:end]) & np.isfinite(threshold[start:end])
-        if not calm_known.any():
-            continue
-        share = np.mean(ustar[start:end][calm_known] < threshold[start:end][calm_known])
-        calm = share >= calm_share if calm_share > 0 else share > 0
-        morning = np.arange(end, min(n, end + per_morning))
-        yield end, morning[~night[morning]], bool(calm)
+    ends = starts + lengths
+    inside = ends < n
+    starts, ends = starts[inside], ends[inside]
+    known = np.isfinite(ustar) & np.isfinite(threshold)
+    with np.errstate(invalid="ignore"):
+        below = known & (ustar < threshold)
+    known_before = np.concatenate([[0], np.cumsum(known)])
+    below_before = np.concatenate([[0], np.cumsum(below)])
+    known_count = known_before[ends] - known_before[starts]
+    below_count = below_before[ends] - below_before[starts]
+    judged = known_count > 0
+    ends = ends[judged]
+    share = below_count[judged] / known_count[judged]
+    calm = share >= calm_share if calm_share > 0 else share > 0
+    positions = ends[:, None] + np.arange(per_morning)
+    valid = positions < n
+    positions = np.minimum(positions, n - 1)
+    valid &= ~night[positions]
+    return _Nights(ends, positions, valid, np.asarray(calm, dtype=bool))
 
 
 def release_mornings(ustar, threshold, is_night, year_keys, years, interval_minutes,
@@ -221,11 +256,12 @@ def release_mornings(ustar, threshold, is_night, year_keys, years, interval_minu
     chosen = set(years)
     per_morning = max(1, int(round(MORNING_HOURS * 60 / int(interval_minutes))))
     marked = np.zeros(night.size, dtype=bool)
-    for end, morning, calm in _nights_and_mornings(np.asarray(ustar, dtype=float),
-                                                   np.asarray(threshold, dtype=float),
-                                                   night, per_morning, calm_share):
-        if calm and keys[end] in chosen:
-            marked[morning] = True
+    nights = _nights_and_mornings(np.asarray(ustar, dtype=float),
+                                  np.asarray(threshold, dtype=float), night, per_morning,
+                                  calm_share)
+    chosen_night = nights.calm & np.array([key in chosen for key in keys[nights.ends]],
+                                          dtype=bool)
+    marked[nights.positions[chosen_night][nights.valid[chosen_night]]] = True
     return marked
 
 

@@ -1449,7 +1449,7 @@ def test_stretch_scores_are_the_correlations_of_the_finite_pairs():
     d_rg[rng.random(n) < 0.4] = np.nan
     d_nee[rng.random(n) < 0.2] = np.nan
     firsts = np.array([400, 1100, 2000, 2600])
-    score = _stretch_scores(d_nee, d_rg, firsts, 10)
+    score, _ = _stretch_scores(d_nee, d_rg, firsts, 10)
     for k in (-3, 0, 2, 5):
         a, b = _shift_pairs(d_nee, d_rg, k)
         for m, first in enumerate(firsts):
@@ -1458,6 +1458,40 @@ def test_stretch_scores_are_the_correlations_of_the_finite_pairs():
             assert count == ok.sum()
             expected = np.corrcoef(a[first:][ok], b[first:][ok])[0, 1]
             assert -r == pytest.approx(expected, rel=1e-9)
+
+
+def test_month_scores_are_the_stretch_scores_bit_for_bit():
+    """Round speed61: `_stretch_scores`' scores of every shift and month at once (the
+    month-from-shift check's 120 months x 57 shifts on ten site-years) are those of its
+    pair-by-pair `score`, to the bit: correlations, NaN where a stretch holds fewer pairs
+    than the minimum or a shift leaves the record, and the pair counts. The pair-by-pair
+    scores are checked against NumPy's ``np.corrcoef`` above."""
+    from fluxpart.column_faults import _stretch_scores
+
+    rng = np.random.default_rng(61)
+    n = 900
+    d_rg = rng.normal(0.0, 50.0, n)
+    d_nee = -0.02 * np.roll(d_rg, 1) + rng.normal(0.0, 1.0, n)
+    d_rg[rng.random(n) < 0.5] = np.nan
+    d_nee[rng.random(n) < 0.2] = np.nan
+    firsts = np.array([100, 300, 500, 700, 850, 890])
+    score, month_scores = _stretch_scores(d_nee, d_rg, firsts, 40)
+    shifts = range(-n - 2, n + 3, 7)
+    table = month_scores(shifts)
+    assert len(table) == firsts.size
+    seen_nan = seen_value = 0
+    for m in range(firsts.size):
+        assert list(table[m]) == list(shifts)
+        for k in shifts:
+            expected, got = score(k, m), table[m][k]
+            assert got[1] == expected[1]
+            if np.isnan(expected[0]):
+                assert np.isnan(got[0])
+                seen_nan += 1
+            else:
+                assert np.float64(got[0]).tobytes() == np.float64(expected[0]).tobytes()
+                seen_value += 1
+    assert seen_nan and seen_value
 
 
 def test_a_sun_at_noon_on_the_day_edge_is_no_shade_and_no_crash():

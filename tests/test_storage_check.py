@@ -8,6 +8,7 @@ term: Finnigan 2006, Agric. For. Meteorol. 136:108–113).
 
 import numpy as np
 import pandas as pd
+import pytest
 
 from fluxpart import storage_check
 from fluxpart.uncertainty import gap_runs
@@ -211,3 +212,68 @@ def test_a_year_without_a_daytime_fit_is_named_as_unchecked():
     assert message.startswith("2022: ") and "storage" in message
     assert storage_check.unchecked_years(nee, np.where(night, np.nan, model), night,
                                          years) == []      # night-only gaps in the fit
+
+
+def _night_by_night(nee, ustar, threshold, night, model, years, interval, share):
+    """The rule of `morning_release`'s docstring written night by night: each night's calm
+    share, its morning's day records within 3 h and their mean residual (NumPy's own
+    `mean` of the morning's array); a year's rows from the nights in order."""
+    residual = nee - model
+    per_morning = int(round(storage_check.MORNING_HOURS * 60 / interval))
+    rows = {}
+    starts, lengths = gap_runs(night)
+    for start, end in zip(starts, starts + lengths, strict=True):
+        known = np.isfinite(ustar[start:end]) & np.isfinite(threshold[start:end])
+        if end >= night.size or not known.any():
+            continue
+        below = np.mean(ustar[start:end][known] < threshold[start:end][known])
+        calm = below >= share if share > 0 else below > 0
+        morning = np.arange(end, min(night.size, end + per_morning))
+        morning = morning[~night[morning]]
+        kept = morning[np.isfinite(residual[morning])]
+        entry = rows.setdefault(years[end], {"calm": [], "other": [], "records": 0})
+        entry["records"] += int(morning.size) if calm else 0
+        if kept.size >= storage_check.MIN_MORNING_RECORDS:
+            entry["calm" if calm else "other"].append(float(residual[kept].mean()))
+    return rows
+
+
+def test_the_mornings_taken_at_once_are_those_of_a_night_by_night_pass():
+    """Round speed61 takes every night and morning at once; each year's calm and other
+    mornings, their counts, the excess (difference of the mean residuals) and the annual
+    excess must be a night-by-night pass's to the bit, with 10-minute records too (18
+    records a morning: a mean over 8 or more values is NumPy's pairwise sum, which a
+    running sum does not reproduce), NaN u* and thresholds and a night at the end."""
+    rng = np.random.default_rng(61)
+    for interval in (10, 30, 60):
+        per_day = 24 * 60 // interval
+        n = 40 * per_day + per_day // 3                 # ends within a night
+        hour = (np.arange(n) % per_day) * interval / 60.0
+        night = (hour >= 20) | (hour < 6)
+        # each night calm, partly calm or turbulent: a level per half day, scattered
+        level = rng.choice([0.08, 0.2, 0.7], size=n // (per_day // 2) + 1)
+        ustar = level[np.arange(n) // (per_day // 2)] * rng.lognormal(0.0, 0.2, n)
+        ustar[rng.random(n) < 0.2] = np.nan
+        threshold = np.where(rng.random(n) < 0.05, np.nan, 0.18)
+        model = rng.normal(0.0, 3.0, n)
+        nee = model + rng.normal(0.5, 2.0, n)
+        nee[rng.random(n) < 0.3] = np.nan
+        years = 2020 + np.arange(n) // (17 * per_day)
+        for share in (storage_check.CALM_SHARE, 0.0):
+            rows = storage_check.morning_release(nee, ustar, threshold, night, model, years,
+                                                 interval, share)
+            expected = _night_by_night(nee, ustar, threshold, night, model, years, interval,
+                                       share)
+            judged = [year for year, entry in expected.items()
+                      if len(entry["calm"]) >= 2 and len(entry["other"]) >= 2]
+            assert [row["year"] for row in rows] == judged and judged
+            for row in rows:
+                entry = expected[row["year"]]
+                calm, other = np.asarray(entry["calm"]), np.asarray(entry["other"])
+                assert (row["calm_mornings"], row["other_mornings"]) == (calm.size, other.size)
+                assert row["excess"] == float(calm.mean() - other.mean())
+                # µmol m-2 s-1 over an interval in g C m-2: 12.011 g mol-1 (IUPAC standard
+                # atomic weight of carbon, conventional value (m))
+                grams = 12.011e-6 * interval * 60
+                assert row["annual_excess"] == pytest.approx(
+                    row["excess"] * entry["records"] * grams, rel=1e-12)
