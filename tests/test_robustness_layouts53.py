@@ -34,8 +34,13 @@ def _clean(tmp_path):
     return ends, values, _read(path)[0]
 
 
-@pytest.mark.parametrize("written", ["%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%dT%H:%M:%S,0Z",
-                                     "%Y-%m-%dT%H:%M:%S,00"])
+@pytest.mark.parametrize("written", [
+    "%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%dT%H:%M:%S,0Z", "%Y-%m-%dT%H:%M:%S,00",
+    # read with a full stop, refused with a comma until review89: the basic format
+    # (ISO 8601-1:2019, section 5.3.1.2 (m)), a space before the offset, and RFC 9557's
+    # zone after the offset (read by the offset, as tests/test_robustness_layouts49.py)
+    "%Y%m%dT%H%M%S,000+0100", "%Y-%m-%dT%H:%M:%S,000 +01:00",
+    "%Y-%m-%dT%H:%M:%S,000+01:00[Etc/GMT-1]"])
 def test_iso_stamps_with_a_comma_before_the_fraction_read_as_with_a_point(tmp_path, written):
     """"2021-06-01T00:30:00,000+01:00" (ISO 8601's preferred decimal sign) under
     "ISO8601": refused before as not matching the format; now read as the same stamps
