@@ -134,3 +134,26 @@ def test_an_encrypted_read_me_beside_the_table_is_no_cause(tmp_path):
     with zipfile.ZipFile(tmp_path / "tower.zip") as archive:
         assert [info.flag_bits & 1 for info in archive.infolist()] == [1, 0]
     pd.testing.assert_frame_equal(_read(tmp_path / "tower.zip")[0], expected)
+
+
+@pytest.mark.parametrize(("entries", "named"), [
+    ([], r"is an empty zip archive \(it holds no file\)"),
+    ([("data/", b"")], r"is a zip archive holding folders only, no file"),
+])
+def test_a_zip_without_a_file_is_named_as_such(tmp_path, entries, named):
+    """An empty zip is its end-of-central-directory record alone, 22 bytes starting
+    "PK\\x05\\x06" (PKWARE APPNOTE.TXT, section 4.3.16 (m); Python's zipfile writes it):
+    it was named "empty; expected a header line and records", and a zip of a folder
+    alone "holding 0 file(s) ()" (review89)."""
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as archive:
+        for name, data in entries:
+            archive.writestr(zipfile.ZipInfo(name, date_time=(2021, 6, 5, 0, 0, 0)), data)
+    path = tmp_path / "tower.zip"
+    path.write_bytes(buffer.getvalue())
+    if not entries:
+        assert len(buffer.getvalue()) == 22 and buffer.getvalue()[:4] == b"PK\x05\x06"
+    with pytest.raises(FluxpartError, match=named) as caught:
+        _read(path)
+    assert "empty; expected a header" not in str(caught.value)
+    assert "0 file(s)" not in str(caught.value)
