@@ -13,6 +13,7 @@ import warnings
 
 import numpy as np
 import pytest
+from test_driver_mixture import _eq11  # Lloyd & Taylor (1994) eq. 11, written out
 
 import fluxpart
 from fluxpart import demo
@@ -28,12 +29,6 @@ from fluxpart.daytime_temperature import (
     shifted_day,
     unchanged_note,
 )
-
-
-def _eq11(temperature_celsius, rref, e0=308.56):
-    """Lloyd & Taylor (1994) eq. 11, written out independently of fluxpart."""
-    kelvin = np.asarray(temperature_celsius, dtype=float) + 273.15
-    return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
 
 
 @pytest.mark.parametrize("setting, temperature, shown, expected", [
