@@ -11,6 +11,7 @@ password and cannot expand Deflate64. Everything else is invented known truth: t
 records as written (``test_robustness_layouts26._records``, 1-4 June 2021).
 """
 import io
+import re
 import zipfile
 
 import pandas as pd
@@ -157,3 +158,35 @@ def test_a_zip_without_a_file_is_named_as_such(tmp_path, entries, named):
         _read(path)
     assert "empty; expected a header" not in str(caught.value)
     assert "0 file(s)" not in str(caught.value)
+
+
+@pytest.mark.parametrize("written", ["%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%d %H:%M:%S,5"])
+def test_an_unquoted_comma_fraction_in_a_comma_file_is_named(tmp_path, written):
+    """Unquoted in a comma-delimited file the stamp "2021-06-01T00:30:00,000+01:00" is two
+    fields (RFC 4180, section 2, rule 6 (m): a field holding the delimiter is quoted); the
+    refusal named only the count of fields (review89). It now names the stamp and the
+    fix; the same file with its stamps quoted is read (the test above)."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "unquoted.csv"
+    path.write_text(_text([f"{e:{written}}" for e in ends], values))
+    stamp = f"{ends[0]:{written}}"
+    with pytest.raises(FluxpartError, match=rf"line 2 has 7 fields where the header has 6, "
+                       rf"and its stamp '{re.escape(stamp)}' writes the seconds' fraction "
+                       r"after a comma \(ISO 8601's decimal comma\) that is not quoted"):
+        _read(path, time_format="ISO8601")
+
+
+def test_an_extra_field_beside_a_whole_stamp_keeps_its_message(tmp_path):
+    """A line of one field more after a whole stamp: where the extra field cannot be a
+    fraction (-7.5) the header's missing name is asked for, as before; where it can (7,
+    digits alone) both causes are named, as no reading can tell them apart."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "extra.csv"
+    path.write_text(_text([f"{e:%Y-%m-%dT%H:%M:%S},-7.5" for e in ends], values))
+    with pytest.raises(FluxpartError, match="Is a column name missing") as caught:
+        _read(path, time_format="ISO8601")
+    assert "decimal comma" not in str(caught.value)
+    path.write_text(_text([f"{e:%Y-%m-%dT%H:%M:%S},7" for e in ends], values))
+    with pytest.raises(FluxpartError, match=r"decimal comma\) that is not quoted.*or, if the "
+                       "stamps are whole, is a column name missing in the header"):
+        _read(path, time_format="ISO8601")
