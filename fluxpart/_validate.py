@@ -628,6 +628,13 @@ def refuse_binary(data: bytes, path) -> None:
     signatures = list(_BINARY_SIGNATURES)
     if data.startswith(b"BZh") and data[4:10] == b"1AY&SY":
         signatures.append((b"BZh", "bzip2-compressed", "decompress it (e.g. bunzip2)"))
+    if data.startswith(b"PK\x05\x06"):
+        # the end-of-central-directory record first: a zip holding nothing at all
+        # (APPNOTE.TXT, section 4.3.16 (m)); named "empty; expected a header line"
+        # before, though its 22 bytes are not empty (review89)
+        raise InputFileError(f"[input] path: {str(path)!r} is an empty zip archive (it "
+                             "holds no file); point [input] path at the text table, or at "
+                             "a zip that holds it")
     if data.startswith(b"PK\x03\x04"):
         unreadable = unreadable_zip_members(data)
         if unreadable:
@@ -662,6 +669,12 @@ def refuse_binary(data: bytes, path) -> None:
                     f"({shown}{more}: a read-me, a licence, a PDF or a picture by their "
                     "names), no table of records; point [input] path at the data file, or "
                     "at a zip that holds it")
+            if not members:
+                # folders alone: "holding 0 file(s) ()" before (review89)
+                raise InputFileError(
+                    f"[input] path: {str(path)!r} is a zip archive holding folders only, "
+                    "no file; point [input] path at the text table, or at a zip that "
+                    "holds it")
             raise InputFileError(f"[input] path: {str(path)!r} is a zip archive holding "
                                  f"{len(members)} file(s) ({shown}{more}), not a text table; "
                                  f"unpack it{inner} and point [input] path at the text "

@@ -294,8 +294,9 @@ class CentralStage(NamedTuple):
         (statistic, other temperature's name, the daytime partitioning on it) of
         :func:`daytime_driver_evidence`.
     warnings : list of str
-        Events a fill crossed, pieces without a window of their own, the daytime E0
-        fallback, in this order.
+        Events a fill crossed, pieces without a window of their own, a set
+        ``daytime_temperature`` that changed nothing, the daytime E0 fallback, in this
+        order.
     night_light : list of dict
         The central fill's yearly tests of night NEE on the preceding day's light
         (:func:`fluxpart.preceding_light.test_records`; empty where not tested).
@@ -366,9 +367,15 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     # the evidence compares two fits of one shape: the rectangular central run's
     day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
-    weight = 0.0 if day_evidence is None or delay else daytime_temperature.air_weight(
-        config.daytime_temperature, temperature,
-        night_mixture(inputs, outcomes, driver, form, config))
+    fitted = day_evidence is not None and not delay
+    shown = night_mixture(inputs, outcomes, driver, form, config) if fitted else None
+    weight = daytime_temperature.air_weight(config.daytime_temperature, temperature,
+                                            shown) if fitted else 0.0
+    # a set daytime_temperature that changed nothing says so (review89: it was silent)
+    unchanged = daytime_temperature.unchanged_note(config.daytime_temperature, temperature,
+                                                   fitted, shown)
+    if unchanged:
+        warnings.append(unchanged)
     if weight:
         # the daytime method on air temperature (Lasslop et al. 2010), or the average of
         # both: the evidence's own fit, every u* run shifted as the central one

@@ -5,7 +5,9 @@ every value holding a decimal comma is quoted (``"2,63"``), as CSV writers quote
 holding the delimiter. Unquoted, ``2,63`` is two fields: a line holds as many extra
 fields as its values hold decimal commas, and no reading can tell which comma separates
 and which marks the decimals. The reader refuses such a file; this module names that
-cause instead of a field count alone.
+cause instead of a field count alone. So it does for a date-time stamp whose seconds'
+fraction follows a comma, ISO 8601's preferred decimal sign, left unquoted
+(``2021-06-01T00:30:00,000+01:00``, :func:`unquoted_fraction_commas`).
 """
 
 from __future__ import annotations
@@ -15,6 +17,11 @@ import re
 
 #: a comma between two digits outside quotes, as an unquoted decimal comma writes it
 _DIGIT_COMMA_DIGIT = re.compile(r"\d,\d")
+#: a date-time stamp with a comma before its seconds' fraction (ISO 8601-1:2019, section
+#: 3.2.6 (m)), the fraction a field of its own (its offset or Z with it)
+_STAMP_COMMA_FRACTION = re.compile(
+    r"(?:^|,)\s*(\d{4}-?\d\d-?\d\d[Tt ]\d\d:?\d\d:?\d\d,\d{1,9}"
+    r"(?: ?(?:[Zz]|[+-]\d\d(?::?\d\d)?))?)\s*(?=,|$)")
 
 
 def field_count(line: str, delimiter: str) -> int:
@@ -87,4 +94,62 @@ def unquoted_decimal_commas(path: str, text_lines: list, header_index: int,
                     "and here it is not, so no reading can tell which comma separates values "
                     "and which marks decimals; export the file with another delimiter (\";\" "
                     "or a tab) and set [input] delimiter to it, or quote the values")
+    return None
+
+
+def unquoted_fraction_commas(path: str, text_lines: list, header_index: int,
+                             first_data_index: int) -> str | None:
+    """The refusal of a comma-delimited file whose stamps write their seconds' fraction
+    after an unquoted comma.
+
+    ``2021-06-01T00:30:00,000+01:00`` in a comma-delimited file is two fields unless it
+    is quoted: each record line holds one field more than the header, and the reader
+    named only the count (review89).
+
+    Parameters
+    ----------
+    path : str
+        The file, as named in the message.
+    text_lines : list of str
+        The file's lines.
+    header_index : int
+        0-based index of the header line.
+    first_data_index : int
+        0-based index of the first record line (after any units line).
+
+    Returns
+    -------
+    str or None
+        One line naming the first record line with more fields than the header whose
+        unquoted text holds such a stamp, the stamp, and the fix; None where the first
+        record line with more fields holds none.
+
+    References
+    ----------
+    .. [1] ISO 8601-1:2019, section 3.2.6: the decimal sign is a comma or a full stop,
+       the comma preferred (m).
+    .. [2] Shafranovich, Y. (2005). RFC 4180, section 2, rule 6: fields containing the
+       delimiter are enclosed in double quotes (m).
+    """
+    if header_index >= len(text_lines):
+        return None
+    width = field_count(text_lines[header_index], ",")
+    for index in range(first_data_index, len(text_lines)):
+        line = text_lines[index]
+        if not line.strip():
+            continue
+        fields = field_count(line, ",")
+        if fields <= width:
+            continue
+        stamp = _STAMP_COMMA_FRACTION.search(re.sub(r'"[^"]*"', '""', line))
+        if stamp is None:
+            return None
+        return (f"input file {path!r}: line {index + 1} has {fields} fields where the "
+                f"header has {width}, and its stamp {stamp.group(1)!r} writes the seconds' "
+                "fraction after a comma (ISO 8601's decimal comma) that is not quoted, so "
+                "the comma splits it in two fields: quote the stamps (\"...,000+01:00\") "
+                "or write them with a full stop (00:30:00.000) in a copy of the file, and "
+                "set [input] time_format = \"ISO8601\" (which reads the comma within "
+                "quotes); or, if the stamps are whole, is a column name missing in the "
+                "header?")
     return None

@@ -396,7 +396,8 @@ class Config:
         16 / 16 of 22, but on generated sites whose respiration follows the soil alone
         ``"average"`` and ``"air"`` raised the daytime errors (median 2.0 → 3.2 and
         4.6 % of Reco) and ``"mixture"`` the daytime errors of the two such sites it
-        changed, so all are off.
+        changed, so all are off. A value that changes nothing in a run (one on air temperature,
+        no daytime fit on air, no mixture shown) is named in a warning.
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).

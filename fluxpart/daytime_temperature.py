@@ -47,7 +47,7 @@ import numpy as np
 from . import driver_mixture
 
 __all__ = ["CHOICES", "DRIVER", "AIR", "AVERAGE", "MIXTURE", "air_weight", "night_shown",
-           "shifted_day"]
+           "shifted_day", "unchanged_note"]
 
 #: The run's respiration temperature (0.38.0 and before).
 DRIVER = "driver"
@@ -87,6 +87,48 @@ def air_weight(setting: str, temperature: str, shown: bool | None = None) -> flo
     if setting == MIXTURE:
         return 0.5 if shown else 0.0
     return 1.0 if setting == AIR else 0.5
+
+
+def unchanged_note(setting: str, temperature: str, fitted: bool,
+                   shown: bool | None = None) -> str:
+    """Why a set ``daytime_temperature`` left the daytime method on the run's
+    temperature, or '' where it acted (or is the default).
+
+    A result records the setting it was run with; without this note it could not tell
+    that the setting changed nothing (a run that drives Reco by air temperature, chosen
+    by ``respiration_driver = "auto"`` or forced, or with no soil temperature at all).
+
+    Parameters
+    ----------
+    setting : str
+        ``daytime_temperature``: one of :data:`CHOICES`.
+    temperature : str
+        The run's respiration temperature, ``"tair"`` or ``"tsoil"``.
+    fitted : bool
+        Whether the daytime method was fitted on air temperature too
+        (:func:`fluxpart.central_run.daytime_driver_evidence`).
+    shown : bool or None, optional
+        Whether the nights show a mixture (:func:`night_shown`); None: not tested.
+
+    Returns
+    -------
+    str
+        A warning naming the setting and why it changed nothing; '' otherwise.
+    """
+    if setting == DRIVER:
+        return ""
+    where = f'[processing] daytime_temperature = "{setting}" changed nothing in this run'
+    if temperature != "tsoil":
+        return (f"{where}: it acts only where Reco is driven by soil temperature, and this "
+                "run drives it by air temperature (provenance.respiration_driver), on which "
+                "the daytime method's Reco already rests")
+    if not fitted:
+        return (f"{where}: the daytime method could not be fitted on air temperature (a "
+                "method failed or air temperature is missing), so it keeps soil temperature")
+    if setting == MIXTURE and not shown:
+        return (f"{where}: the night records show no mixture of soil and air temperature, so "
+                'the daytime method keeps soil temperature, as with "driver"')
+    return ""
 
 
 def night_shown(nee_measured, is_night, reco_central, reco_air, index) -> bool:

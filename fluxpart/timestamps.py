@@ -1451,9 +1451,12 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
                 .str.replace(r"(?<=\d)z$", "Z", regex=True))
         # ISO 8601-1:2019, section 3.2.6: the decimal sign of a fraction is a comma or a
         # full stop, the comma preferred (m): "00:30:00,000+01:00" is the stamp
-        # "00:30:00.000+01:00" (layouts53; refused before as not matching the format)
-        text = text.str.replace(r"(?<=\d\d:\d\d:\d\d),(?=\d+(?:[Zz]|[+-]\d\d(?::?\d\d)?)?$)",
-                                ".", regex=True)
+        # "00:30:00.000+01:00" (layouts53; refused before as not matching the format);
+        # in every form the full stop is read in: the basic format "T003000,000", a
+        # space before the offset, RFC 9557's zone after it (review89)
+        text = text.str.replace(
+            r"(?:(?<=\d\d:\d\d:\d\d)|(?<=T\d{6})),"
+            r"(?=\d+ ?(?:[Zz]|[+-]\d\d(?::?\d\d)?)?(?:\[[^\]]*\])?$)", ".", regex=True)
     if time_format.upper() == "ISO8601" or time_format.endswith("%z"):
         # RFC 9557's zone after the offset, "+02:00[Europe/Berlin]": read by the offsets
         # where they are the zone's (layouts49; refused before as not matching the format)

@@ -9,9 +9,11 @@ fact of the trade. The known-truth recovery test uses the invented demo year (th
 place invented data is used).
 """
 import dataclasses
+import warnings
 
 import numpy as np
 import pytest
+from test_driver_mixture import _eq11  # Lloyd & Taylor (1994) eq. 11, written out
 
 import fluxpart
 from fluxpart import demo
@@ -25,13 +27,8 @@ from fluxpart.daytime_temperature import (
     air_weight,
     night_shown,
     shifted_day,
+    unchanged_note,
 )
-
-
-def _eq11(temperature_celsius, rref, e0=308.56):
-    """Lloyd & Taylor (1994) eq. 11, written out independently of fluxpart."""
-    kelvin = np.asarray(temperature_celsius, dtype=float) + 273.15
-    return rref * np.exp(e0 * (1.0 / (283.15 - 227.13) - 1.0 / (kelvin - 227.13)))
 
 
 @pytest.mark.parametrize("setting, temperature, shown, expected", [
@@ -69,6 +66,30 @@ def test_the_nights_show_a_planted_mixture_and_not_one_temperature():
     mixed = 0.6 * soil + 0.4 * air + rng.laplace(0, 0.4, n)
     assert night_shown(mixed, night, soil, air, index)
     assert not night_shown(one, night, soil, air, index)
+
+
+@pytest.mark.parametrize("setting, temperature, fitted, shown, named", [
+    (AIR, "tair", True, None, "this run drives it by air temperature"),
+    (AVERAGE, "tair", False, None, "this run drives it by air temperature"),
+    (AVERAGE, "tsoil", False, None, "could not be fitted on air temperature"),
+    (MIXTURE, "tsoil", True, False, "the night records show no mixture"),
+])
+def test_a_set_daytime_temperature_that_changed_nothing_says_why(setting, temperature,
+                                                                  fitted, shown, named):
+    """A result records daytime_temperature as set; where it changed nothing (a run on
+    air temperature, no air fit, no mixture shown) a warning says so and why (review89:
+    it was silent, so a result of "average" on air temperature read as averaged)."""
+    note = unchanged_note(setting, temperature, fitted, shown)
+    assert note.startswith(f'[processing] daytime_temperature = "{setting}" changed nothing')
+    assert named in note
+
+
+@pytest.mark.parametrize("setting, temperature, fitted, shown", [
+    (DRIVER, "tsoil", True, None), (DRIVER, "tair", False, None), (AIR, "tsoil", True, None),
+    (AVERAGE, "tsoil", True, None), (MIXTURE, "tsoil", True, True)])
+def test_no_note_where_the_setting_acted_or_is_the_default(setting, temperature, fitted,
+                                                          shown):
+    assert unchanged_note(setting, temperature, fitted, shown) == ""
 
 
 def test_an_unknown_setting_is_refused():
@@ -138,9 +159,13 @@ def test_the_daytime_reco_on_air_follows_a_canopy_part_the_soil_misses():
     frame, reco = _canopy_and_soil_year()
     factor = 1800 * 12.011e-6                        # g C m-2 per record per µmol m-2 s-1
     planted = float(reco.sum() * factor)
-    runs = {setting: fluxpart.process(frame, demo.site(), Config(
-        ustar_bootstrap_draws=0, respiration_driver="tsoil", daytime_temperature=setting))
-        for setting in (DRIVER, AIR, AVERAGE)}
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", fluxpart.FluxpartWarning)
+        runs = {setting: fluxpart.process(frame, demo.site(), Config(
+            ustar_bootstrap_draws=0, random_error_draws=50, respiration_driver="tsoil",
+            daytime_temperature=setting)) for setting in (DRIVER, AIR, AVERAGE)}
+    # the setting acted in each run: no warning that it changed nothing
+    assert not [w for w in caught if "changed nothing" in str(w.message)]
     year = runs[DRIVER].annual.index[0]
     error = {setting: float(result.annual.loc[year, "reco_daytime"]) - planted
              for setting, result in runs.items()}
@@ -155,3 +180,25 @@ def test_the_daytime_reco_on_air_follows_a_canopy_part_the_soil_misses():
             == float(runs[DRIVER].annual.loc[year, column])
     assert "daytime_temperature" not in Config(respiration_driver="tsoil").to_dict()
     assert Config(daytime_temperature="air").to_dict()["daytime_temperature"] == "air"
+
+
+def test_a_run_on_air_temperature_warns_that_the_setting_changed_nothing():
+    """Known truth: the invented demo year with its soil temperature dropped drives Reco
+    by air temperature; "average" there changes nothing, and the run says so, and its
+    daytime GPP is that of the default run (review89: the result recorded "average"
+    silently)."""
+    frame, _ = demo.site_year(seed=5)
+    frame = frame.drop(columns="tsoil")
+    quick = {"ustar_bootstrap_draws": 0, "random_error_draws": 50}
+    with pytest.warns(fluxpart.FluxpartWarning, match='daytime_temperature = "average" '
+                      "changed nothing in this run: it acts only where Reco is driven by "
+                      "soil temperature"):
+        set_run = fluxpart.process(frame, demo.site(), Config(daytime_temperature=AVERAGE,
+                                                              **quick))
+    assert any("changed nothing" in text for text in set_run.warnings)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", fluxpart.FluxpartWarning)
+        default = fluxpart.process(frame, demo.site(), Config(**quick))
+    assert not any("changed nothing" in text for text in default.warnings)
+    year = default.annual.index[0]
+    assert set_run.annual.loc[year, "gpp_daytime"] == default.annual.loc[year, "gpp_daytime"]

@@ -66,10 +66,20 @@ def _tower_csv(path: Path, config_text: str) -> None:
 @pytest.fixture(scope="module")
 def first_run(tmp_path_factory):
     """The README's site config saved as my-site.toml beside its tower.csv, and the
-    commands of "Your first run" run as written in that folder."""
+    commands of "Your first run" run as written in that folder.
+
+    Two settings are added at the end of its last table, ``[processing]``: few u*
+    bootstrap and Monte Carlo draws, as the shared ``written_demo`` takes them (the
+    commands and the Python block ran some 50 s at load with the default 100 and 500;
+    every line of the README's config is still read, every table still written)."""
+    import tomllib
+
     folder = tmp_path_factory.mktemp("newuser")
     config_text = _block(_section("## Your own site"), "toml")
-    (folder / "my-site.toml").write_text(config_text, encoding="utf-8")
+    quick = config_text + "ustar_bootstrap_draws = 20\nrandom_error_draws = 50\n"
+    assert tomllib.loads(quick)["processing"] == tomllib.loads(config_text)["processing"] | {
+        "ustar_bootstrap_draws": 20, "random_error_draws": 50}
+    (folder / "my-site.toml").write_text(quick, encoding="utf-8")
     _tower_csv(folder / "tower.csv", config_text)
     commands = [line.split("#", 1)[0].strip()
                 for line in _block(_section("### Your first run"), "sh").splitlines()]
@@ -170,22 +180,30 @@ def test_the_terms_table_states_the_units_and_constants_the_code_uses(written_de
     assert pd.read_parquet(folder / "daily.parquet").attrs["units"]["share_measured"] == "1"
 
 
-def test_the_modellers_glance_table_says_what_each_format_stamps(written_demo, tmp_path):
+@pytest.fixture(scope="module")
+def exported(written_demo, tmp_path_factory):
+    """The shared demo result exported as NetCDF and CSV once: (folder, NetCDF, CSV
+    folder)."""
+    pytest.importorskip("xarray")
+    _, folder = written_demo
+    where = tmp_path_factory.mktemp("exported")
+    assert main(["export", str(folder), "--netcdf", str(where / "site.nc"), "--csv",
+                 str(where / "csv")]) == 0
+    return folder, where / "site.nc", where / "csv"
+
+
+def test_the_modellers_glance_table_says_what_each_format_stamps(exported):
     """The at-a-glance table of "For modellers": Parquet stamps are interval starts in local
     standard time without a zone; the NetCDF's are interval middles in UTC (CF-1.10 cell
     bounds, section 7.1); the CSV's are starts with the ISO 8601 offset."""
-    pytest.importorskip("xarray")
     section = _section("## For modellers")
     glance = section[:section.index("The examples read a result folder")]
     assert "| a record's stamp | the **start** of its interval (`time`) | the **middle**" in glance
-    _, folder = written_demo
+    folder, nc, csv_folder = exported
     series = pd.read_parquet(folder / "timeseries.parquet")
     offset = pd.Timedelta(hours=series.attrs["site"]["utc_offset"])
     assert series["time"].dt.tz is None
     assert series["time"].iloc[0] == pd.Timestamp("2021-01-01 00:00")
-    nc = tmp_path / "site.nc"
-    assert main(["export", str(folder), "--netcdf", str(nc), "--csv",
-                 str(tmp_path / "csv")]) == 0
     import xarray as xr
 
     with xr.open_dataset(nc) as dataset:
@@ -193,9 +211,53 @@ def test_the_modellers_glance_table_says_what_each_format_stamps(written_demo, t
         bounds = pd.to_datetime(dataset["time_bounds"].values[0])
     assert first == pd.Timestamp("2021-01-01 00:15") - offset           # middle, in UTC
     assert list(bounds) == [first - pd.Timedelta(minutes=15), first + pd.Timedelta(minutes=15)]
-    csv = pd.read_csv(tmp_path / "csv" / "timeseries.csv", usecols=["time"], nrows=1)
+    csv = pd.read_csv(csv_folder / "timeseries.csv", usecols=["time"], nrows=1)
     assert csv["time"].iloc[0] == "2021-01-01T00:00:00+01:00"
     assert np.isclose(offset / pd.Timedelta(hours=1), 1.0)
+
+
+def test_the_modellers_glance_table_units_quality_and_signs_hold(exported):
+    """The glance table's other rows against the files (review89: only the stamps were
+    checked): record fluxes in µmol m-2 s-1 in Parquet and CSV and kg m-2 s-1 in the
+    NetCDF; sums in g m-2 and the NetCDF's means in kg m-2 s-1; the CSV's units in its
+    CSVW metadata (W3C, CSV on the Web, 2015 (m)); quality as text labels, in the NetCDF
+    as CF flag variables (CF-1.10, section 3.5); ``nep`` = −NEE there. 1 µmol CO2 m-2 s-1
+    is 12.011e-9 kg C m-2 s-1 (the standard atomic weight of carbon, IUPAC)."""
+    import json
+
+    import xarray as xr
+
+    section = _section("## For modellers")
+    glance = section[:section.index("The examples read a result folder")]
+    rows = {cells[1]: cells[2:5] for cells in
+            ([c.strip() for c in line.split("|")] for line in glance.splitlines()
+             if line.startswith("| ") and not line.startswith("| |"))}
+    assert rows["record fluxes"] == ["µmol CO2 m-2 s-1 (`umol m-2 s-1`), the interval's mean",
+                                     "kg C m-2 s-1 (`kg m-2 s-1`)", "as Parquet"]
+    folder, nc, csv_folder = exported
+    series = pd.read_parquet(folder / "timeseries.parquet")
+    assert series.attrs["units"]["nee_filled"] == "umol m-2 s-1"
+    assert pd.read_parquet(folder / "daily.parquet").attrs["units"]["nee"] == "g m-2"
+    with xr.open_dataset(nc) as dataset:
+        assert dataset["nee"].attrs["units"] == "kg m-2 s-1"
+        assert dataset["nee_daily_sum"].attrs["units"] == "g m-2"
+        assert dataset["nee_daily_mean"].attrs["units"] == "kg m-2 s-1"
+        np.testing.assert_allclose(dataset["nee"].values,
+                                   series["nee_filled"].to_numpy(float) * 12.011e-9,
+                                   rtol=1e-4)
+        np.testing.assert_array_equal(dataset["nep"].values, -dataset["nee"].values)
+        quality = dataset["nee_fill_quality"]
+        assert {"flag_values", "flag_meanings"} <= set(quality.attrs)
+        assert {"measured", "A", "B", "C", "unfilled"} <= set(
+            quality.attrs["flag_meanings"].split())
+    metadata = json.loads((csv_folder / "csv-metadata.json").read_text())
+    columns = {column["name"]: column for table in metadata["tables"]
+               if table["url"] == "timeseries.csv" for column in table["tableSchema"]["columns"]}
+    assert columns["nee_filled"]["schema:unitText"] == "umol m-2 s-1"
+    csv = pd.read_csv(csv_folder / "timeseries.csv", usecols=["nee_filled",
+                                                              "nee_fill_quality"])
+    np.testing.assert_allclose(csv["nee_filled"], series["nee_filled"], rtol=1e-12)
+    assert set(csv["nee_fill_quality"].dropna()) <= {"measured", "A", "B", "C", "unfilled"}
 
 
 def test_the_light_response_caption_defines_its_symbols(written_demo):

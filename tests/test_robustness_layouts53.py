@@ -11,6 +11,7 @@ password and cannot expand Deflate64. Everything else is invented known truth: t
 records as written (``test_robustness_layouts26._records``, 1-4 June 2021).
 """
 import io
+import re
 import zipfile
 
 import pandas as pd
@@ -34,8 +35,13 @@ def _clean(tmp_path):
     return ends, values, _read(path)[0]
 
 
-@pytest.mark.parametrize("written", ["%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%dT%H:%M:%S,0Z",
-                                     "%Y-%m-%dT%H:%M:%S,00"])
+@pytest.mark.parametrize("written", [
+    "%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%dT%H:%M:%S,0Z", "%Y-%m-%dT%H:%M:%S,00",
+    # read with a full stop, refused with a comma until review89: the basic format
+    # (ISO 8601-1:2019, section 5.3.1.2 (m)), a space before the offset, and RFC 9557's
+    # zone after the offset (read by the offset, as tests/test_robustness_layouts49.py)
+    "%Y%m%dT%H%M%S,000+0100", "%Y-%m-%dT%H:%M:%S,000 +01:00",
+    "%Y-%m-%dT%H:%M:%S,000+01:00[Etc/GMT-1]"])
 def test_iso_stamps_with_a_comma_before_the_fraction_read_as_with_a_point(tmp_path, written):
     """"2021-06-01T00:30:00,000+01:00" (ISO 8601's preferred decimal sign) under
     "ISO8601": refused before as not matching the format; now read as the same stamps
@@ -129,3 +135,58 @@ def test_an_encrypted_read_me_beside_the_table_is_no_cause(tmp_path):
     with zipfile.ZipFile(tmp_path / "tower.zip") as archive:
         assert [info.flag_bits & 1 for info in archive.infolist()] == [1, 0]
     pd.testing.assert_frame_equal(_read(tmp_path / "tower.zip")[0], expected)
+
+
+@pytest.mark.parametrize(("entries", "named"), [
+    ([], r"is an empty zip archive \(it holds no file\)"),
+    ([("data/", b"")], r"is a zip archive holding folders only, no file"),
+])
+def test_a_zip_without_a_file_is_named_as_such(tmp_path, entries, named):
+    """An empty zip is its end-of-central-directory record alone, 22 bytes starting
+    "PK\\x05\\x06" (PKWARE APPNOTE.TXT, section 4.3.16 (m); Python's zipfile writes it):
+    it was named "empty; expected a header line and records", and a zip of a folder
+    alone "holding 0 file(s) ()" (review89)."""
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as archive:
+        for name, data in entries:
+            archive.writestr(zipfile.ZipInfo(name, date_time=(2021, 6, 5, 0, 0, 0)), data)
+    path = tmp_path / "tower.zip"
+    path.write_bytes(buffer.getvalue())
+    if not entries:
+        assert len(buffer.getvalue()) == 22 and buffer.getvalue()[:4] == b"PK\x05\x06"
+    with pytest.raises(FluxpartError, match=named) as caught:
+        _read(path)
+    assert "empty; expected a header" not in str(caught.value)
+    assert "0 file(s)" not in str(caught.value)
+
+
+@pytest.mark.parametrize("written", ["%Y-%m-%dT%H:%M:%S,000+01:00", "%Y-%m-%d %H:%M:%S,5"])
+def test_an_unquoted_comma_fraction_in_a_comma_file_is_named(tmp_path, written):
+    """Unquoted in a comma-delimited file the stamp "2021-06-01T00:30:00,000+01:00" is two
+    fields (RFC 4180, section 2, rule 6 (m): a field holding the delimiter is quoted); the
+    refusal named only the count of fields (review89). It now names the stamp and the
+    fix; the same file with its stamps quoted is read (the test above)."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "unquoted.csv"
+    path.write_text(_text([f"{e:{written}}" for e in ends], values))
+    stamp = f"{ends[0]:{written}}"
+    with pytest.raises(FluxpartError, match=rf"line 2 has 7 fields where the header has 6, "
+                       rf"and its stamp '{re.escape(stamp)}' writes the seconds' fraction "
+                       r"after a comma \(ISO 8601's decimal comma\) that is not quoted"):
+        _read(path, time_format="ISO8601")
+
+
+def test_an_extra_field_beside_a_whole_stamp_keeps_its_message(tmp_path):
+    """A line of one field more after a whole stamp: where the extra field cannot be a
+    fraction (-7.5) the header's missing name is asked for, as before; where it can (7,
+    digits alone) both causes are named, as no reading can tell them apart."""
+    ends, values, _ = _clean(tmp_path)
+    path = tmp_path / "extra.csv"
+    path.write_text(_text([f"{e:%Y-%m-%dT%H:%M:%S},-7.5" for e in ends], values))
+    with pytest.raises(FluxpartError, match="Is a column name missing") as caught:
+        _read(path, time_format="ISO8601")
+    assert "decimal comma" not in str(caught.value)
+    path.write_text(_text([f"{e:%Y-%m-%dT%H:%M:%S},7" for e in ends], values))
+    with pytest.raises(FluxpartError, match=r"decimal comma\) that is not quoted.*or, if the "
+                       "stamps are whole, is a column name missing in the header"):
+        _read(path, time_format="ISO8601")

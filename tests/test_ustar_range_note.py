@@ -60,3 +60,20 @@ def test_check_names_the_draws_median_where_the_table_holds_it():
                           "threshold_p95": [0.308]})
     (line,) = _outside_range_lines(table)
     assert "60 % above the draws' median 0.197 m s-1" in line
+
+
+def test_the_reports_range_names_the_draws_median_too():
+    """The report's summary clause takes the year row's median as `check` does (round
+    newuser56 changed both; only `check`'s lines were tested, review89)."""
+    from types import SimpleNamespace
+
+    from fluxpart.report import _ustar_range
+
+    table = pd.DataFrame({"year": [2023, 2023], "period": ["year", "winter"],
+                          "threshold": [0.316, 0.2], "threshold_p05": [0.140, 0.1],
+                          "threshold_p50": [0.197, 0.15], "threshold_p95": [0.308, 0.3]})
+    written = SimpleNamespace(table=lambda name: table)
+    clause = _ustar_range(written, 2023)
+    assert clause.startswith(" (bootstrap 5–95 %: 0.140–0.308 m s-1; above its bootstrap "
+                             "range and 60 % above the draws' median 0.197 m s-1")
+    assert "poorly determined" in clause and "about 2 % low" not in clause
