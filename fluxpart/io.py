@@ -62,6 +62,7 @@ from . import (
     later_files,
     merged_dates,
     page_breaks,
+    program_parts,
     record_order,
     resaved_dates,
     table_formats,
@@ -978,7 +979,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     queue, deferred = list(paths), set()
     for path_ in queue:
         try:
-            part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
+            read = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
                               time_columns=time_columns, time_format=time_format,
                               missing=missing, delimiter=delimiter, decimal=decimal,
                               encoding=encoding, rows_before_header=rows_before_header,
@@ -1028,14 +1029,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
                               f"{layout.group(1)}: one [input] setting reads every file, so "
                               "give this file the others' layout in a copy") from None
-        found = (part["mapping"], part["flag_columns"])
-        if mapping is not None and found != (mapping, flag_columns):
-            raise InputFileError(f"{str(path_)!r} maps columns differently from "
-                                 f"{parts[0]['source']!r} ({_describe_mapping(*found)} vs "
-                                 f"{_describe_mapping(mapping, flag_columns)}); give every file "
-                                 "the same columns or map them explicitly in [input.columns]")
-        mapping, flag_columns = found
-        parts.append(part)
+        for part in read:                     # a file's parts (a program change) or itself
+            found = (part["mapping"], part["flag_columns"])
+            if mapping is not None and found != (mapping, flag_columns):
+                raise InputFileError(f"{part['source']!r} maps columns differently from "
+                                     f"{parts[0]['source']!r} ({_describe_mapping(*found)} "
+                                     f"vs {_describe_mapping(mapping, flag_columns)}); give "
+                                     "every file the same columns or map them explicitly in "
+                                     "[input.columns]")
+            mapping, flag_columns = found
+            parts.append(part)
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
@@ -1399,7 +1402,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         warnings=warnings_of(warnings),
         notes=notes_of(warnings),
         files=tuple(str(p) for p in paths),
-        encodings=tuple(part["encoding"] for part in parts),
+        encodings=tuple({part.get("file", part["source"]): part["encoding"]
+                         for part in parts}.values()),
         duplicate_rows=combined["duplicate_rows"],
         merged_rows=combined["merged_rows"],
         header_trailing_delimiter=combined["header_trailing_delimiter"],
@@ -4343,8 +4347,10 @@ def _flag_key(column: str) -> str:
 _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 
 
-def _read_file(path: Path, **settings) -> dict:
-    """Read one file: its stamps in local standard time and the numbers of each column.
+def _read_file(path: Path, **settings) -> list:
+    """Read one file: its stamps in local standard time and the numbers of each column,
+    as a list of one part, or of the parts a logger program change divides it into (each
+    read by its own header, :func:`_program_change_parts`).
 
     `settings` are those of :func:`_read_records` (the keyword arguments of
     :func:`read_table` as checked there, and the file's place among several).
@@ -4366,7 +4372,11 @@ def _read_file(path: Path, **settings) -> dict:
     text, used_encoding = _decode(path, settings["encoding"], warnings,
                                   typed={"wanted": wanted, "clock": clock})
     if not isinstance(text, table_formats.TableText):
-        return _read_records(path, text, used_encoding, **settings)
+        if not settings.get("column_widths"):
+            parts = _program_change_parts(path, text, used_encoding, settings)
+            if parts:
+                return parts
+        return [_read_records(path, text, used_encoding, **settings)]
     # a typed table's text: written as one comma-separated header line and records,
     # whatever the layout settings say, which are a text file's (table_formats)
     settings |= {"time_format": text.time_format or time_format, "delimiter": ",",
@@ -4387,7 +4397,94 @@ def _read_file(path: Path, **settings) -> dict:
                         for warning in warnings[start:]]
     part["lines"] = part["lines"] - 1          # record places, 1-based
     part["place_word"] = "record"              # named so once files are combined
-    return part
+    return [part]
+
+
+#: Characters other than CR and LF that ``str.splitlines`` counts as line breaks and the
+#: CSV parser does not: a text holding one is not divided (its line numbers would differ).
+_OTHER_BREAKS = re.compile("[\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _program_change_parts(path: Path, text: str, used_encoding: str, settings: dict) -> list:
+    """The parts of a file that a logger program change divides (its header block
+    written again with other columns, :mod:`fluxpart.program_parts`), each read by its
+    own header and the lines under it as a file of a series is, or [] where the file holds
+    no such block. Each part is read from a text whose lines outside it are blank, so that
+    every message names the line of the whole file; its source is the file and its lines
+    (``'t.csv' (lines 8693-17528)``), which the join names as it names files. Raises where a
+    block cannot be trusted, or where a mapped column's units line names another unit in a
+    later part (read as the first part's, its values would be wrong)."""
+    time_columns = settings["time_columns"]
+    rows_before_header = settings["rows_before_header"]
+    head = leading_lines(text, rows_before_header + 1)
+    if len(head) <= rows_before_header or not time_columns:
+        return []
+    folded = text.casefold()
+    start = folded.find(head[rows_before_header].casefold())
+    name = str(time_columns[0]).strip().casefold()
+    if not name or start < 0 or folded.find(name, start + len(head[rows_before_header])) < 0:
+        return []                               # one C pass each; most files stop here
+    if _OTHER_BREAKS.search(text):
+        return []
+    lines = text.splitlines()
+    delimiter = settings["delimiter"]
+    found, refusal, at = program_parts.program_parts(
+        lines, rows_before_header, settings["rows_after_header"], delimiter, time_columns)
+    if refusal:
+        raise InputFileError(
+            f"input file {str(path)!r}: line {at + 1} is a header line with other names or "
+            f"another order than the header of line {rows_before_header + 1} (a logger "
+            f"program changed and wrote its new header?), but {refusal}: split the file "
+            "there in a copy and list the parts in [input] path (each part is read by its "
+            "own header)")
+    if not found:
+        return []
+    kept = text.splitlines(keepends=True)
+    ending = next(iter(re.findall(r"\r\n|\r|\n", kept[0])), "\n")
+    parts = []
+    for number, piece in enumerate(found):
+        own = settings | {"may_lack": True}
+        if number:
+            own |= {"rows_before_header": piece.header, "rows_after_header": piece.units,
+                    "first_header": None}
+        part = _read_records(path, ending * piece.first + "".join(kept[piece.first:piece.end]),
+                             used_encoding, **own)
+        parts.append(part | {"source": f"{path} (lines {piece.first + 1}-{piece.end})",
+                             "file": str(path)})
+    _refuse_part_units(path, parts, [piece.header for piece in found])
+    warnings = settings["warnings"]
+    warnings.append(ReaderNote(
+        f"input file {str(path)!r}: the header block written again with other columns "
+        f"(a logger program changed) on line(s) "
+        f"{', '.join(str(piece.header + 1) for piece in found[1:])}: the {len(found)} parts "
+        "read each by its own header and joined as files are"))
+    return parts
+
+
+def _refuse_part_units(path: Path, parts: list, headers: list) -> None:
+    """Raise where a mapped column's cell in the lines under the header (its unit) names
+    another unit in a later part of the file than in the first: one [input.units] reads
+    every part, so the later part's values would be read in the first part's unit."""
+    first = parts[0]["header_rows"]
+    for part, header in zip(parts[1:], headers[1:], strict=True):
+        for name, (column, cells) in part["header_rows"].items():
+            if name not in first:
+                continue
+            before = first[name][1]
+            keys = [(same_unit_key(name.split(":")[0], a), same_unit_key(name.split(":")[0], b))
+                    for a, b in zip(before, cells, strict=False) if a and b]
+            changed = [(a, b) for a, b in keys if a[0] == "unit" and b[0] == "unit" and a != b]
+            if changed:
+                shown = next((a, b) for a, b in zip(before, cells, strict=False)
+                             if a and b and same_unit_key(name.split(":")[0], a)
+                             != same_unit_key(name.split(":")[0], b))
+                raise InputFileError(
+                    f"input file {str(path)!r}: column {column!r} ({name.split(':')[0]}) is "
+                    f"labelled {shown[0]!r} under the header of line "
+                    f"{headers[0] + 1} but {shown[1]!r} under the header written again on "
+                    f"line {header + 1} (a logger program changed its unit?): one [input.units] "
+                    "reads the whole file, so convert the records of one unit in a copy "
+                    "of the file, or split it there and list the parts in [input] path")
 
 
 def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
