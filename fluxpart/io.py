@@ -3707,21 +3707,25 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
 
 
 def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_header: int,
-                            rows_after_header: int, warnings: list, note_mark=None) -> str:
+                            rows_after_header: int, warnings: list, note_mark=None,
+                            titles_from: int = 0) -> str:
     """`text` with the header blocks written again after a logger restart and the note
     lines among the records emptied (line numbers kept), each named in `warnings`
-    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
+    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before). `titles_from`: the
+    first title line of a file's later part (:func:`_program_change_parts`)."""
     if not interleaved_lines.may_hold(text, rows_before_header, delimiter, note_mark):
         return text                           # one C pass each; most files stop here
     lines = text.splitlines()
     blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
-                                                      rows_after_header, delimiter)
+                                                      rows_after_header, delimiter,
+                                                      titles_from)
     skipped = {index for first, last in blocks for index in range(first, last + 1)}
     if blocks:
         what = ("header line" if not rows_before_header + rows_after_header
                 else "header line with its title and units lines")
         otherwise = [pair for block in blocks for pair in
-                     interleaved_lines.rewritten_lines(lines, block, rows_before_header)]
+                     interleaved_lines.rewritten_lines(lines, block, rows_before_header,
+                                                       titles_from)]
         same = "the same characters (a logger program restarted?)"
         if otherwise:
             # a title naming the program's new version, units in another notation
@@ -4446,7 +4450,7 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
         own = settings | {"may_lack": True}
         if number:
             own |= {"rows_before_header": piece.header, "rows_after_header": piece.units,
-                    "first_header": None}
+                    "first_header": None, "titles_from": piece.first}
         part = _read_records(path, ending * piece.first + "".join(kept[piece.first:piece.end]),
                              used_encoding, **own)
         parts.append(part | {"source": f"{path} (lines {piece.first + 1}-{piece.end})",
@@ -4493,8 +4497,10 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                   warnings, may_lack=False, flag_missing=None, time_marks=None, site=None,
                   missing_by_variable=None, code_cells=None, column_widths=(),
                   other_names=None, renamed_in=None, first_header=None, later_notes=None,
-                  note_mark=None, flag_words=None, flag_word_counts=None) -> dict:
-    """:func:`_read_file` of the file's decoded `text`."""
+                  note_mark=None, flag_words=None, flag_word_counts=None,
+                  titles_from=0) -> dict:
+    """:func:`_read_file` of the file's decoded `text` (`titles_from`: the first title line
+    of a later part of a file, :func:`_program_change_parts`)."""
     if not column_widths:
         # a large file of finer records refused from samples, not after a parse of
         # minutes and gigabytes (leftovers50; faults39: 5.3 million lines, 37-82 s)
@@ -4553,7 +4559,8 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         warnings.append(ReaderNote(f"input file {str(path)!r}: {blank_above} blank line(s) "
                                    f"above the header (line {rows_before_header + 1}) read past"))
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
-                                   rows_after_header, warnings, note_mark)
+                                   rows_after_header, warnings, note_mark,
+                                   min(titles_from, rows_before_header))
     if delimiter == _WHITESPACE:
         text = _bracketed_unit_names(path, text, rows_before_header, rows_after_header,
                                      warnings)
@@ -4803,6 +4810,26 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         table.insert(0, "__stamp__", parsed.stamps)
         duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
+    if not parsed.stamps[keep].is_unique:
+        # a restart that wrote the last record again with cells missing (sensors warming
+        # up; layouts54: refused before): completed from each other, as rows of
+        # overlapping files are
+        again = _restart_repeats(parsed.stamps, lines, values, keep)
+        if again.size:
+            for name, column in values.items():
+                column = np.array(column, dtype=float)
+                column[again - 1] = np.where(np.isnan(column[again - 1]), column[again],
+                                             column[again - 1])
+                values[name] = column
+            keep[again] = False
+            duplicate = duplicate.copy()
+            duplicate[again] = True
+            warnings.append(ReaderNote(
+                f"input file {source!r}: {again.size} record(s) written again right after "
+                "lines that are no records (a logger restart's header block?) with cells "
+                "missing where the record before has values, every other value equal (line "
+                f"{int(lines[again[0]])}, the record of line {int(lines[again[0] - 1])} "
+                "again): read once, each cell from the record that has it"))
     stamps = parsed.stamps[keep]
     try:
         check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
@@ -4841,6 +4868,27 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                         **({"decimal_fields": parsed.decimal_fields}
                            if parsed.decimal_fields else {})},
     }
+
+
+def _restart_repeats(stamps: pd.DatetimeIndex, lines: np.ndarray, values: dict,
+                     keep: np.ndarray) -> np.ndarray:
+    """Rows (0-based) that repeat the stamp of the row right before them, kept in `keep`
+    (no exact copy), with lines that are no records between the two (a restart's header
+    block, emptied, or blank lines), the two rows completing each other: every value equal
+    where both have one, and the repeat missing at least one value the row before has
+    (a copy with more values than the first is not what a restart writes). Called only
+    where a stamp repeats."""
+    stamp_values = stamps.to_numpy()
+    rows = np.flatnonzero(keep[1:] & keep[:-1] & (stamp_values[1:] == stamp_values[:-1])
+                          & (np.diff(lines) > 1)) + 1
+    if not rows.size or not values:
+        return rows[:0]
+    table = np.column_stack([np.asarray(column, dtype=float) for column in values.values()])
+    later, earlier = table[rows], table[rows - 1]
+    both = ~np.isnan(later) & ~np.isnan(earlier)
+    agree = np.all(~both | (later == earlier), axis=1)
+    fewer = np.all(~np.isnan(later) <= ~np.isnan(earlier), axis=1)
+    return rows[agree & fewer]
 
 
 def _later_file_layout(path: Path, text: str, first_header, delimiter: str,
