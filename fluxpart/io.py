@@ -108,7 +108,7 @@ from .errors import (
     read_fault_remedy,
 )
 from .file_digest import sha256_of_file
-from .fixed_width import delimited, fused_header_names, run_together_field
+from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -4506,6 +4506,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         # minutes and gigabytes (leftovers50; faults39: 5.3 million lines, 37-82 s)
         _refuse_finer_records(path, text, delimiter, rows_before_header, rows_after_header,
                               time_columns, time_format, utc_offset, time_zone)
+    written = text
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
     refuse_overlong_value(path, text, delimiter, _WHITESPACE)
@@ -4603,6 +4604,14 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
             may_lack)
     except MissingColumnError as error:
+        if column_widths:
+            # a width one character off named the cut name as a column not in the file
+            # (layouts53); the widths are the cause
+            head = leading_lines(written, rows_before_header + 2 + rows_after_header)
+            if len(head) > rows_before_header:
+                cut = cut_names_message(head[rows_before_header], head[-1], column_widths)
+                if cut:
+                    raise InputFileError(f"input file {str(path)!r}: {cut}") from None
         widths = (f"; the header cut at [input] column_widths = {list(column_widths)}: is a "
                   "width off (a name cut, or parts of two names in one cell)?"
                   if column_widths else "")
