@@ -4418,20 +4418,22 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
     (``'t.csv' (lines 8693-17528)``), which the join names as it names files. Raises where a
     block cannot be trusted, or where a mapped column's units line names another unit in a
     later part (read as the first part's, its values would be wrong)."""
-    time_columns = settings["time_columns"]
+    time_columns, delimiter = settings["time_columns"], settings["delimiter"]
     rows_before_header = settings["rows_before_header"]
     head = leading_lines(text, rows_before_header + 1)
     if len(head) <= rows_before_header or not time_columns:
         return []
-    folded = text.casefold()
-    start = folded.find(head[rows_before_header].casefold())
-    name = str(time_columns[0]).strip().casefold()
-    if not name or start < 0 or folded.find(name, start + len(head[rows_before_header])) < 0:
-        return []                               # one C pass each; most files stop here
+    # the time column's name again after the header, as the header writes it (one C
+    # pass; most files stop here): a block written again in other capitals is left to
+    # the reader's refusals
+    start = text.find(head[rows_before_header])
+    name = next((cell for cell in later_files.cells(head[rows_before_header], delimiter)
+                 if cell.casefold() == str(time_columns[0]).strip().casefold()), "")
+    if not name or start < 0 or text.find(name, start + len(head[rows_before_header])) < 0:
+        return []
     if _OTHER_BREAKS.search(text):
         return []
     lines = text.splitlines()
-    delimiter = settings["delimiter"]
     found, refusal, at = program_parts.program_parts(
         lines, rows_before_header, settings["rows_after_header"], delimiter, time_columns)
     if refusal:
