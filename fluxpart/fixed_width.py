@@ -21,7 +21,7 @@ import re
 
 from .errors import InputFileError
 
-__all__ = ["delimited", "fused_header_names", "run_together_field"]
+__all__ = ["cut_names_message", "delimited", "fused_header_names", "run_together_field"]
 
 #: One number followed at once by a signed one ("202101010200-9999.0", "0.516-7.46"),
 #: or a number with two decimal points ("0.5161013.2"): two numbers run together
@@ -138,3 +138,54 @@ def delimited(path, text: str, widths: tuple, rows_before_header: int) -> str:
         rest = body[edges[-1]:].strip()
         cut.append("\t".join([*cells, rest] if rest else cells) + line[len(body):])
     return "".join(cut)
+
+
+#: A run of two or more blanks between two non-blank characters: the padding between two
+#: names of a fixed-width header, which no cell of rightly declared widths holds
+_PADDING_INSIDE = re.compile(r"\S\s{2,}\S")
+
+
+def cut_names_message(header_line: str, data_line: str, widths: tuple) -> str:
+    """Where ``[input] column_widths`` cut the header inside its names, what the widths
+    look like and the widths the file's own layout gives, else "".
+
+    Parameters
+    ----------
+    header_line, data_line : str
+        The header and the first record line of the file, as written (not yet cut).
+    widths : tuple of int
+        ``[input] column_widths``.
+
+    Returns
+    -------
+    str
+        "" unless some header cell cut at `widths` holds a run of blanks between two
+        names' parts (the padding between columns inside one cell: a width off by a
+        character or more moves every cut after it). The message names those cells
+        and, where every name of the header and every field of the record end at the
+        same characters (right-aligned columns as many as `widths`), the widths those
+        ends give.
+
+    References
+    ----------
+    Common practice of fixed-width exports (module docstring): each column padded with
+    blanks to its width, names and values aligned alike.
+    """
+    edges = [0]
+    for width in widths:
+        edges.append(edges[-1] + width)
+    cells = [header_line[start:end] for start, end in zip(edges[:-1], edges[1:], strict=True)]
+    cut = [cell.strip() for cell in cells if _PADDING_INSIDE.search(cell.strip())]
+    if not cut:
+        return ""
+    shown = ", ".join(repr(cell) for cell in cut[:3])
+    message = (f"[input] column_widths = {list(widths)} cut the header inside its names "
+               f"({len(cut)} cell(s) hold the end of one name and the start of the next: "
+               f"{shown}): a width is off, which moves every cut after it")
+    ends = [m.end() for m in re.finditer(r"\S+", header_line)]
+    if (len(ends) == len(widths)
+            and ends == [m.end() for m in re.finditer(r"\S+", data_line)]):
+        own = [b - a for a, b in zip([0, *ends[:-1]], ends, strict=True)]
+        message += (f"; the header's names and the first record's fields end at the same "
+                    f"characters, which give column_widths = {own}")
+    return message

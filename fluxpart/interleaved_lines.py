@@ -101,9 +101,12 @@ def may_hold(text: str, rows_before_header: int, delimiter: str, note_mark=None)
 
 
 def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_header: int,
-                           delimiter: str) -> list:
+                           delimiter: str, titles_from: int = 0) -> list:
     """Blocks ``(first, last)`` (0-based line indices, inclusive) of the header written
     again among the records with its title and units lines, by the rules of the module.
+    `titles_from`: the index of the first title line (a later part of a file that a
+    program change divides is read with the lines above its own block blank,
+    :mod:`fluxpart.program_parts`).
 
     Returns [] where any repeat of the header line fails them (the reader then refuses,
     naming the line), so that a file is read whole or not at all.
@@ -114,7 +117,7 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
     header = lines[rows_before_header].strip()
     if not header:
         return []
-    titles = [line.strip() for line in lines[:rows_before_header]]
+    titles = [line.strip() for line in lines[titles_from:rows_before_header]]
     units = [line.strip() for line in
              lines[rows_before_header + 1:rows_before_header + 1 + rows_after_header]]
     first_data = rows_before_header + rows_after_header + 1
@@ -123,7 +126,7 @@ def repeated_header_blocks(lines: list, rows_before_header: int, rows_after_head
     for index in range(first_data, len(lines)):
         if lines[index].strip() != header:
             continue
-        first, last = index - rows_before_header, index + rows_after_header
+        first, last = index - len(titles), index + rows_after_header
         if (first < first_data or last >= len(lines)
                 or not all(_same_title(own, line, width, delimiter)
                            for own, line in zip(titles, lines[first:index], strict=True))
@@ -255,11 +258,13 @@ def _same_units(own: str, line: str, delimiter: str) -> bool:
                                             for a, b in zip(mine, theirs, strict=True))
 
 
-def rewritten_lines(lines: list, block: tuple, rows_before_header: int) -> list:
+def rewritten_lines(lines: list, block: tuple, rows_before_header: int,
+                    titles_from: int = 0) -> list:
     """``(own, again)`` line indices of a repeated block's title and units lines written
-    otherwise than the file's own (another title, units in another notation)."""
+    otherwise than the file's own (another title, units in another notation);
+    `titles_from` as for :func:`repeated_header_blocks`."""
     first, last = block
-    return [(own, again) for own, again in zip(range(last - first + 1),
+    return [(own, again) for own, again in zip(range(titles_from, titles_from + last - first + 1),
                                                 range(first, last + 1), strict=True)
             if own != rows_before_header and lines[own].strip() != lines[again].strip()]
 

@@ -62,6 +62,7 @@ from . import (
     later_files,
     merged_dates,
     page_breaks,
+    program_parts,
     record_order,
     resaved_dates,
     table_formats,
@@ -107,7 +108,7 @@ from .errors import (
     read_fault_remedy,
 )
 from .file_digest import sha256_of_file
-from .fixed_width import delimited, fused_header_names, run_together_field
+from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -978,7 +979,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
     queue, deferred = list(paths), set()
     for path_ in queue:
         try:
-            part = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
+            read = _read_file(path_, columns=columns, units=units, flag_columns=flag_columns,
                               time_columns=time_columns, time_format=time_format,
                               missing=missing, delimiter=delimiter, decimal=decimal,
                               encoding=encoding, rows_before_header=rows_before_header,
@@ -1028,14 +1029,16 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             raise type(error)(f"{error}; but {parts[0]['source']!r} was read with the present "
                               f"{layout.group(1)}: one [input] setting reads every file, so "
                               "give this file the others' layout in a copy") from None
-        found = (part["mapping"], part["flag_columns"])
-        if mapping is not None and found != (mapping, flag_columns):
-            raise InputFileError(f"{str(path_)!r} maps columns differently from "
-                                 f"{parts[0]['source']!r} ({_describe_mapping(*found)} vs "
-                                 f"{_describe_mapping(mapping, flag_columns)}); give every file "
-                                 "the same columns or map them explicitly in [input.columns]")
-        mapping, flag_columns = found
-        parts.append(part)
+        for part in read:                     # a file's parts (a program change) or itself
+            found = (part["mapping"], part["flag_columns"])
+            if mapping is not None and found != (mapping, flag_columns):
+                raise InputFileError(f"{part['source']!r} maps columns differently from "
+                                     f"{parts[0]['source']!r} ({_describe_mapping(*found)} "
+                                     f"vs {_describe_mapping(mapping, flag_columns)}); give "
+                                     "every file the same columns or map them explicitly in "
+                                     "[input.columns]")
+            mapping, flag_columns = found
+            parts.append(part)
     if not parts:
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
@@ -1399,7 +1402,8 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         warnings=warnings_of(warnings),
         notes=notes_of(warnings),
         files=tuple(str(p) for p in paths),
-        encodings=tuple(part["encoding"] for part in parts),
+        encodings=tuple({part.get("file", part["source"]): part["encoding"]
+                         for part in parts}.values()),
         duplicate_rows=combined["duplicate_rows"],
         merged_rows=combined["merged_rows"],
         header_trailing_delimiter=combined["header_trailing_delimiter"],
@@ -3703,21 +3707,25 @@ def _parser_message(path: Path, delimiter: str, error: str, header_line: str = "
 
 
 def _skip_interleaved_lines(path: Path, text: str, delimiter: str, rows_before_header: int,
-                            rows_after_header: int, warnings: list, note_mark=None) -> str:
+                            rows_after_header: int, warnings: list, note_mark=None,
+                            titles_from: int = 0) -> str:
     """`text` with the header blocks written again after a logger restart and the note
     lines among the records emptied (line numbers kept), each named in `warnings`
-    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before)."""
+    (:mod:`fluxpart.interleaved_lines`; layouts37: refused before). `titles_from`: the
+    first title line of a file's later part (:func:`_program_change_parts`)."""
     if not interleaved_lines.may_hold(text, rows_before_header, delimiter, note_mark):
         return text                           # one C pass each; most files stop here
     lines = text.splitlines()
     blocks = interleaved_lines.repeated_header_blocks(lines, rows_before_header,
-                                                      rows_after_header, delimiter)
+                                                      rows_after_header, delimiter,
+                                                      titles_from)
     skipped = {index for first, last in blocks for index in range(first, last + 1)}
     if blocks:
         what = ("header line" if not rows_before_header + rows_after_header
                 else "header line with its title and units lines")
         otherwise = [pair for block in blocks for pair in
-                     interleaved_lines.rewritten_lines(lines, block, rows_before_header)]
+                     interleaved_lines.rewritten_lines(lines, block, rows_before_header,
+                                                       titles_from)]
         same = "the same characters (a logger program restarted?)"
         if otherwise:
             # a title naming the program's new version, units in another notation
@@ -4343,8 +4351,10 @@ def _flag_key(column: str) -> str:
 _ISO_WITHOUT_OFFSETS = "%Y-%m-%dT%H:%M:%S"
 
 
-def _read_file(path: Path, **settings) -> dict:
-    """Read one file: its stamps in local standard time and the numbers of each column.
+def _read_file(path: Path, **settings) -> list:
+    """Read one file: its stamps in local standard time and the numbers of each column,
+    as a list of one part, or of the parts a logger program change divides it into (each
+    read by its own header, :func:`_program_change_parts`).
 
     `settings` are those of :func:`_read_records` (the keyword arguments of
     :func:`read_table` as checked there, and the file's place among several).
@@ -4366,7 +4376,11 @@ def _read_file(path: Path, **settings) -> dict:
     text, used_encoding = _decode(path, settings["encoding"], warnings,
                                   typed={"wanted": wanted, "clock": clock})
     if not isinstance(text, table_formats.TableText):
-        return _read_records(path, text, used_encoding, **settings)
+        if not settings.get("column_widths"):
+            parts = _program_change_parts(path, text, used_encoding, settings)
+            if parts:
+                return parts
+        return [_read_records(path, text, used_encoding, **settings)]
     # a typed table's text: written as one comma-separated header line and records,
     # whatever the layout settings say, which are a text file's (table_formats)
     settings |= {"time_format": text.time_format or time_format, "delimiter": ",",
@@ -4387,7 +4401,96 @@ def _read_file(path: Path, **settings) -> dict:
                         for warning in warnings[start:]]
     part["lines"] = part["lines"] - 1          # record places, 1-based
     part["place_word"] = "record"              # named so once files are combined
-    return part
+    return [part]
+
+
+#: Characters other than CR and LF that ``str.splitlines`` counts as line breaks and the
+#: CSV parser does not: a text holding one is not divided (its line numbers would differ).
+_OTHER_BREAKS = re.compile("[\x0b\x0c\x1c\x1d\x1e\x85\u2028\u2029]")
+
+
+def _program_change_parts(path: Path, text: str, used_encoding: str, settings: dict) -> list:
+    """The parts of a file that a logger program change divides (its header block
+    written again with other columns, :mod:`fluxpart.program_parts`), each read by its
+    own header and the lines under it as a file of a series is, or [] where the file holds
+    no such block. Each part is read from a text whose lines outside it are blank, so that
+    every message names the line of the whole file; its source is the file and its lines
+    (``'t.csv' (lines 8693-17528)``), which the join names as it names files. Raises where a
+    block cannot be trusted, or where a mapped column's units line names another unit in a
+    later part (read as the first part's, its values would be wrong)."""
+    time_columns, delimiter = settings["time_columns"], settings["delimiter"]
+    rows_before_header = settings["rows_before_header"]
+    head = leading_lines(text, rows_before_header + 1)
+    if len(head) <= rows_before_header or not time_columns:
+        return []
+    # the time column's name again after the header, as the header writes it (one C
+    # pass; most files stop here): a block written again in other capitals is left to
+    # the reader's refusals
+    start = text.find(head[rows_before_header])
+    name = next((cell for cell in later_files.cells(head[rows_before_header], delimiter)
+                 if cell.casefold() == str(time_columns[0]).strip().casefold()), "")
+    if not name or start < 0 or text.find(name, start + len(head[rows_before_header])) < 0:
+        return []
+    if _OTHER_BREAKS.search(text):
+        return []
+    lines = text.splitlines()
+    found, refusal, at = program_parts.program_parts(
+        lines, rows_before_header, settings["rows_after_header"], delimiter, time_columns)
+    if refusal:
+        raise InputFileError(
+            f"input file {str(path)!r}: line {at + 1} is a header line with other names or "
+            f"another order than the header of line {rows_before_header + 1} (a logger "
+            f"program changed and wrote its new header?), but {refusal}: split the file "
+            "there in a copy and list the parts in [input] path (each part is read by its "
+            "own header)")
+    if not found:
+        return []
+    kept = text.splitlines(keepends=True)
+    ending = next(iter(re.findall(r"\r\n|\r|\n", kept[0])), "\n")
+    parts = []
+    for number, piece in enumerate(found):
+        own = settings | {"may_lack": True}
+        if number:
+            own |= {"rows_before_header": piece.header, "rows_after_header": piece.units,
+                    "first_header": None, "titles_from": piece.first}
+        part = _read_records(path, ending * piece.first + "".join(kept[piece.first:piece.end]),
+                             used_encoding, **own)
+        parts.append(part | {"source": f"{path} (lines {piece.first + 1}-{piece.end})",
+                             "file": str(path)})
+    _refuse_part_units(path, parts, [piece.header for piece in found])
+    warnings = settings["warnings"]
+    warnings.append(ReaderNote(
+        f"input file {str(path)!r}: the header block written again with other columns "
+        f"(a logger program changed) on line(s) "
+        f"{', '.join(str(piece.header + 1) for piece in found[1:])}: the {len(found)} parts "
+        "read each by its own header and joined as files are"))
+    return parts
+
+
+def _refuse_part_units(path: Path, parts: list, headers: list) -> None:
+    """Raise where a mapped column's cell in the lines under the header (its unit) names
+    another unit in a later part of the file than in the first: one [input.units] reads
+    every part, so the later part's values would be read in the first part's unit."""
+    first = parts[0]["header_rows"]
+    for part, header in zip(parts[1:], headers[1:], strict=True):
+        for name, (column, cells) in part["header_rows"].items():
+            if name not in first:
+                continue
+            before = first[name][1]
+            keys = [(same_unit_key(name.split(":")[0], a), same_unit_key(name.split(":")[0], b))
+                    for a, b in zip(before, cells, strict=False) if a and b]
+            changed = [(a, b) for a, b in keys if a[0] == "unit" and b[0] == "unit" and a != b]
+            if changed:
+                shown = next((a, b) for a, b in zip(before, cells, strict=False)
+                             if a and b and same_unit_key(name.split(":")[0], a)
+                             != same_unit_key(name.split(":")[0], b))
+                raise InputFileError(
+                    f"input file {str(path)!r}: column {column!r} ({name.split(':')[0]}) is "
+                    f"labelled {shown[0]!r} under the header of line "
+                    f"{headers[0] + 1} but {shown[1]!r} under the header written again on "
+                    f"line {header + 1} (a logger program changed its unit?): one [input.units] "
+                    "reads the whole file, so convert the records of one unit in a copy "
+                    "of the file, or split it there and list the parts in [input] path")
 
 
 def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
@@ -4396,13 +4499,16 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                   warnings, may_lack=False, flag_missing=None, time_marks=None, site=None,
                   missing_by_variable=None, code_cells=None, column_widths=(),
                   other_names=None, renamed_in=None, first_header=None, later_notes=None,
-                  note_mark=None, flag_words=None, flag_word_counts=None) -> dict:
-    """:func:`_read_file` of the file's decoded `text`."""
+                  note_mark=None, flag_words=None, flag_word_counts=None,
+                  titles_from=0) -> dict:
+    """:func:`_read_file` of the file's decoded `text` (`titles_from`: the first title line
+    of a later part of a file, :func:`_program_change_parts`)."""
     if not column_widths:
         # a large file of finer records refused from samples, not after a parse of
         # minutes and gigabytes (leftovers50; faults39: 5.3 million lines, 37-82 s)
         _refuse_finer_records(path, text, delimiter, rows_before_header, rows_after_header,
                               time_columns, time_format, utc_offset, time_zone)
+    written = text
     if column_widths:                         # a fixed-width file (layouts35)
         text = delimited(path, text, column_widths, rows_before_header)
     refuse_overlong_value(path, text, delimiter, _WHITESPACE)
@@ -4456,7 +4562,8 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         warnings.append(ReaderNote(f"input file {str(path)!r}: {blank_above} blank line(s) "
                                    f"above the header (line {rows_before_header + 1}) read past"))
     text = _skip_interleaved_lines(path, text, delimiter, rows_before_header,
-                                   rows_after_header, warnings, note_mark)
+                                   rows_after_header, warnings, note_mark,
+                                   min(titles_from, rows_before_header))
     if delimiter == _WHITESPACE:
         text = _bracketed_unit_names(path, text, rows_before_header, rows_after_header,
                                      warnings)
@@ -4502,6 +4609,14 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
             columns, units, list(raw.columns), header, time_columns, flag_columns, path,
             may_lack)
     except MissingColumnError as error:
+        if column_widths:
+            # a width one character off named the cut name as a column not in the file
+            # (layouts53); the widths are the cause
+            head = leading_lines(written, rows_before_header + 2 + rows_after_header)
+            if len(head) > rows_before_header:
+                cut = cut_names_message(head[rows_before_header], head[-1], column_widths)
+                if cut:
+                    raise InputFileError(f"input file {str(path)!r}: {cut}") from None
         widths = (f"; the header cut at [input] column_widths = {list(column_widths)}: is a "
                   "width off (a name cut, or parts of two names in one cell)?"
                   if column_widths else "")
@@ -4709,6 +4824,26 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         table.insert(0, "__stamp__", parsed.stamps)
         duplicate = table.duplicated(keep="first").to_numpy()
     keep = ~duplicate
+    if not parsed.stamps[keep].is_unique:
+        # a restart that wrote the last record again with cells missing (sensors warming
+        # up; layouts54: refused before): completed from each other, as rows of
+        # overlapping files are
+        again = _restart_repeats(parsed.stamps, lines, values, keep)
+        if again.size:
+            for name, column in values.items():
+                column = np.array(column, dtype=float)
+                column[again - 1] = np.where(np.isnan(column[again - 1]), column[again],
+                                             column[again - 1])
+                values[name] = column
+            keep[again] = False
+            duplicate = duplicate.copy()
+            duplicate[again] = True
+            warnings.append(ReaderNote(
+                f"input file {source!r}: {again.size} record(s) written again right after "
+                "lines that are no records (a logger restart's header block?) with cells "
+                "missing where the record before has values, every other value equal (line "
+                f"{int(lines[again[0]])}, the record of line {int(lines[again[0] - 1])} "
+                "again): read once, each cell from the record that has it"))
     stamps = parsed.stamps[keep]
     try:
         check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
@@ -4747,6 +4882,27 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                         **({"decimal_fields": parsed.decimal_fields}
                            if parsed.decimal_fields else {})},
     }
+
+
+def _restart_repeats(stamps: pd.DatetimeIndex, lines: np.ndarray, values: dict,
+                     keep: np.ndarray) -> np.ndarray:
+    """Rows (0-based) that repeat the stamp of the row right before them, kept in `keep`
+    (no exact copy), with lines that are no records between the two (a restart's header
+    block, emptied, or blank lines), the two rows completing each other: every value equal
+    where both have one, and the repeat missing at least one value the row before has
+    (a copy with more values than the first is not what a restart writes). Called only
+    where a stamp repeats."""
+    stamp_values = stamps.to_numpy()
+    rows = np.flatnonzero(keep[1:] & keep[:-1] & (stamp_values[1:] == stamp_values[:-1])
+                          & (np.diff(lines) > 1)) + 1
+    if not rows.size or not values:
+        return rows[:0]
+    table = np.column_stack([np.asarray(column, dtype=float) for column in values.values()])
+    later, earlier = table[rows], table[rows - 1]
+    both = ~np.isnan(later) & ~np.isnan(earlier)
+    agree = np.all(~both | (later == earlier), axis=1)
+    fewer = np.all(~np.isnan(later) <= ~np.isnan(earlier), axis=1)
+    return rows[agree & fewer]
 
 
 def _later_file_layout(path: Path, text: str, first_header, delimiter: str,

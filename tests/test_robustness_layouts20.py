@@ -16,7 +16,12 @@ import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower as _tower_records
 
-from fluxpart.errors import ImplausibleValueError, InputFileError, TimestampError
+from fluxpart.errors import (
+    ImplausibleValueError,
+    InputFileError,
+    MissingColumnError,
+    TimestampError,
+)
 from fluxpart.io import read_table
 
 MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}
@@ -88,14 +93,22 @@ def test_a_header_written_again_in_capitals_or_quotes_is_a_repeated_header(tmp_p
 
 
 def test_a_header_of_other_names_is_still_named_as_changed(tmp_path):
-    """A header line with a column renamed mid-file keeps its own refusal."""
+    """A header line with a column renamed mid-file: refused as "a header line with other
+    names" until layouts54, which reads the two parts each by its own header (a logger
+    program change) and joins them as files; the mapped column renamed between them is
+    refused as between files, naming both parts' lines and its other name, which
+    [input.other_names] then reads (known truth: the records as written)."""
     _, records = _tower()
     header, *lines = records.to_csv(index=False).splitlines()
     text = "\n".join([header, *lines[:200], header.replace("vpd", "vpd_hpa"),
                       *lines[200:]]) + "\n"
     (tmp_path / "changed.csv").write_text(text)
-    with pytest.raises(InputFileError, match="line 202 is a header line with other names"):
+    (tmp_path / "clean.csv").write_text("\n".join([header, *lines]) + "\n")
+    with pytest.raises(MissingColumnError, match=r"changed.csv \(lines 1-201\)' but not in "
+                       r"'.*changed.csv \(lines 202-.*did you mean 'vpd_hpa'"):
         _read(tmp_path / "changed.csv")
+    frame, _ = _read(tmp_path / "changed.csv", other_names={"vpd": ["vpd_hpa"]})
+    pd.testing.assert_frame_equal(frame, _read(tmp_path / "clean.csv")[0])
 
 
 @pytest.mark.parametrize("where", ["end", "front"])

@@ -183,8 +183,12 @@ def test_column_widths_beside_a_delimiter_or_off_by_one_are_named(tmp_path):
     path, _, _ = _touching(tmp_path)
     with pytest.raises(ConfigError, match=r"column_widths and delimiter"):
         _read(path, column_widths=WIDTHS, delimiter="whitespace")
-    with pytest.raises(MissingColumnError, match=r"is a width off"):
+    # named through the cut column's name until layouts54; now as the widths, with the
+    # widths the header's and the first record's aligned ends give (the file's own)
+    with pytest.raises(InputFileError, match=r"column_widths = \[12, 6, 8, 7, 7, 7\] cut the "
+                       r"header inside its names .*give column_widths = \[12, 7, 7, 7, 7, 7\]"):
         _read(path, column_widths=[12, 6, 8, 7, 7, 7], missing=[-9999])
+    assert list(WIDTHS) == [12, 7, 7, 7, 7, 7]
 
 
 def test_a_soil_temperature_code_outside_its_range_is_no_measurement_in_the_refit():
