@@ -46,8 +46,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from probe_clean_sites import SITES, problems_of, write_site  # noqa: E402
 
 #: forest (N, 30 min), crop (N, 30 min), crop (N, 60 min), forest (S, 30 min),
-#: cut grassland (S, 60 min), cut grassland (N, 30 min)
-DEFAULT_SITES = ("a04", "a08", "a07", "a18", "a22", "a10")
+#: cut grassland (S, 60 min), cut grassland (N, 30 min), savanna (S, 30 min, UTC+9.5)
+DEFAULT_SITES = ("a04", "a08", "a07", "a18", "a22", "a10", "a14")
 SUMS = ("nee", "gpp_nighttime", "reco_nighttime", "gpp_daytime", "reco_daytime")
 MISSING = -9999.0
 
@@ -209,6 +209,14 @@ def wrong_interval(frame, text, info):
     return frame, set_key(text, "input", "interval_minutes", "60" if info["step"] == 30 else "30")
 
 
+def offset_whole_hours(frame, text, info):
+    """A half-hour zone's offset written as the whole hour below (UTC+9.5 as 9)."""
+    offset = float(get_key(text, "site", "utc_offset"))
+    if offset == round(offset):
+        return None
+    return frame, set_key(text, "site", "utc_offset", str(float(np.floor(offset))))
+
+
 def nee_sign(frame, text, info):
     frame = frame.copy()
     frame["co2_exch"] = scaled(frame["co2_exch"], -1.0)
@@ -253,9 +261,14 @@ CASES = {
     "utc_offset +1 h": site_number("utc_offset", lambda v: v + 1),
     "utc_offset -1 h": site_number("utc_offset", lambda v: v - 1),
     "utc_offset +0.5 h": site_number("utc_offset", lambda v: v + 0.5),
+    "utc_offset of a half-hour zone as the whole hour": offset_whole_hours,
     "latitude sign flipped": site_number("latitude", lambda v: -v),
     "longitude sign flipped": site_number("longitude", lambda v: -v),
     "canopy flipped (short/tall)": flipped_canopy,
+    "elevation 1000 m ([site] elevation, no such setting)": lambda f, t, i: (
+        f, set_key(t, "site", "elevation", "1000")),
+    "measurement_height 30 m ([site], no such setting)": lambda f, t, i: (
+        f, set_key(t, "site", "measurement_height", "30")),
     "nee sign reversed (uptake positive)": nee_sign,
     "missing code not declared (-9999 as a number)": missing_undeclared,
     "interval_minutes wrong (30/60)": wrong_interval,
