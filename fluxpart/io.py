@@ -6262,7 +6262,8 @@ def _storage_corrected_beside(raw, values, mapping, stamps, missing, decimal,
         others[column] = numbers(raw[column])
     if not others:
         return None
-    minutes = float(np.median(np.diff(stamps.to_numpy())) / np.timedelta64(1, "m"))
+    # the median step, whatever the stamps' resolution or zone
+    minutes = pd.DatetimeIndex(stamps).to_series().diff().median().total_seconds() / 60.0
     return storage_corrected_beside(nee, light, others, minutes, mapping["nee"])
 
 

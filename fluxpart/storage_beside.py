@@ -159,7 +159,8 @@ def storage_corrected_beside(nee, light, others: dict, interval_minutes: float,
                 and night_mean >= MIN_NIGHT_SHARE * night_flux):
             return (f"the unread column {column!r} holds the flux mapped as nee "
                     f"({nee_column!r}) plus a term that is positive through the nights "
-                    f"(mean {night_mean:+.3g}, {night_mean / night_se:.0f} standard errors, "
+                    f"(mean {night_mean:+.3g} in the file's unit, {night_mean / night_se:.0f} "
+                    "standard errors, "
                     f"over {nights.size} nights) and negative in the {MORNING_HOURS:g} h "
                     f"after them (mean {morning_mean:+.3g}): the course of the CO2 stored "
                     "below the sensor, pooled on calm nights and vented in the morning, so "
