@@ -4814,6 +4814,12 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                             f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
                             "more) read as missing, first on data line "
                             f"{int(lines[_first_in_file(lines, absurd)])} of its file")
+    if "nee" in values and "storage" not in mapping and parsed.stamps.is_monotonic_increasing:
+        # the storage-corrected NEE left unread beside a turbulent flux mapped (mistakes59)
+        stored = _storage_corrected_beside(raw, values, mapping, parsed.stamps, missing,
+                                           decimal, {*read.values(), *time_columns})
+        if stored:
+            warnings.append(f"storage: {stored}")
 
     # exact duplicate rows: same stamp and same value in every column read (none where
     # no stamp repeats, the usual file, which a hash of the stamps alone tells)
@@ -6379,6 +6385,45 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
         f"mark {decimal!r} ([input] decimal); {int(grouped.sum())} such cell(s). Write the "
         "numbers without digit grouping in a copy of the file (a spreadsheet's number format "
         "without the 1000 separator)")
+
+
+def _storage_corrected_beside(raw, values, mapping, stamps, missing, decimal,
+                              taken) -> str | None:
+    """:func:`fluxpart.storage_beside.storage_corrected_beside` on a file's unread columns.
+
+    Only the columns whose every 20th record already reads as the mapped flux
+    (:func:`fluxpart.storage_beside.same_flux`) are parsed whole, so a file of many
+    columns costs a sample of each.
+    """
+    from .storage_beside import same_flux, storage_corrected_beside
+
+    light = values.get("rg", values.get("ppfd"))
+    if light is None or len(stamps) < 200:
+        return None
+    nee = values["nee"]
+    codes = [code for code in _numeric_codes(missing, decimal) if math.isfinite(code)]
+
+    def numbers(cells):
+        text = cells.astype(str).str.strip()
+        text = text.str.replace(",", ".", regex=False) if decimal == "," else text
+        found = pd.to_numeric(text, errors="coerce").to_numpy(dtype=float, na_value=np.nan,
+                                                              copy=True)
+        for code in codes:
+            found[np.abs(found - code) <= 1e-6 * max(1.0, abs(code))] = np.nan
+        return found
+
+    others = {}
+    for column in raw.columns:
+        if column in taken or column in others:
+            continue
+        if not same_flux(nee[::20], numbers(raw[column].iloc[::20])):
+            continue
+        others[column] = numbers(raw[column])
+    if not others:
+        return None
+    # the median step, whatever the stamps' resolution or zone
+    minutes = pd.DatetimeIndex(stamps).to_series().diff().median().total_seconds() / 60.0
+    return storage_corrected_beside(nee, light, others, minutes, mapping["nee"])
 
 
 def _numeric_codes(missing: tuple, decimal: str) -> list:

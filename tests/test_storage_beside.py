@@ -1,0 +1,90 @@
+"""The storage-corrected NEE left unread beside a turbulent flux mapped as nee (round
+mistakes59, `fluxpart.storage_beside`).
+
+Source of every check: NEE is the turbulent flux plus the storage term (Finnigan 2006,
+Agric. For. Meteorol. 136:108-113; Aubinet et al. 2012, ch. 1 (m)); the storage term is
+positive while CO2 pools below the sensor in the stable night and negative as the
+morning's mixing vents it, about zero over a day (Finnigan 2006; a fact of the trade).
+Invented records only (known-truth recovery).
+"""
+import warnings
+
+import numpy as np
+import pytest
+from test_storage_mapping import _maize_copy
+
+from fluxpart.io import read_input, read_site_config
+from fluxpart.storage_beside import same_flux, storage_corrected_beside
+
+
+def _tower(days=60, per_hour=2, seed=0):
+    """Invented half-hourly records: light, NEE, and a storage term that pools half the
+    night's respiration and vents it in the 3 h after sunrise (sums to 0 each day)."""
+    rng = np.random.default_rng(seed)
+    per_day = 24 * per_hour
+    hours = (np.arange(days * per_day) % per_day) / per_hour
+    light = np.clip(800 * np.sin(np.pi * (hours - 6) / 12), 0, None)
+    light = light + rng.normal(0, 2, light.size)
+    respiration = 3.0 + rng.normal(0, 0.3, light.size)
+    nee = respiration - 20 * light / (light + 400) + rng.laplace(0, 0.4, light.size)
+    storage = np.zeros(light.size)
+    for day in range(days):
+        night = np.arange(day * per_day, day * per_day + 6 * per_hour)
+        storage[night] = 0.5 * respiration[night]
+        vent = np.arange(day * per_day + 6 * per_hour, day * per_day + 9 * per_hour)
+        storage[vent] = -storage[night].sum() / vent.size
+    turbulent = nee - storage
+    return light, nee, turbulent, storage
+
+
+def test_the_turbulent_flux_mapped_beside_unread_nee_is_named():
+    light, nee, turbulent, _ = _tower()
+    message = storage_corrected_beside(turbulent, light, {"co2_nee": nee}, 30, "co2_flux")
+    assert message is not None
+    assert "'co2_nee'" in message and "[input.columns] nee = 'co2_nee'" in message
+
+
+def test_nee_mapped_beside_the_unread_turbulent_flux_is_not_named():
+    """The opposite signs: the right column is mapped."""
+    light, nee, turbulent, _ = _tower()
+    assert storage_corrected_beside(nee, light, {"co2_flux": turbulent}, 30, "co2_nee") is None
+
+
+@pytest.mark.parametrize("other", ["offset", "copy", "mg", "noise"])
+def test_columns_that_are_no_storage_term_are_not_named(other):
+    """A constant offset (one sign all day), a gap-filled copy (identical where both are
+    measured), the flux in mg CO2 (a factor of 0.044: Mw of CO2 44.01 g mol-1) and a
+    second analyser's independent noise are not a storage course."""
+    light, nee, _, _ = _tower()
+    rng = np.random.default_rng(5)
+    column = {"offset": nee + 0.5, "copy": np.where(np.isnan(nee), 1.0, nee),
+              "mg": nee * 0.044, "noise": nee + rng.laplace(0, 0.4, nee.size)}[other]
+    assert storage_corrected_beside(nee, light, {"other": column}, 30, "co2_nee") is None
+
+
+def test_same_flux_asks_for_the_unit_and_a_close_course():
+    light, nee, turbulent, _ = _tower()
+    assert same_flux(turbulent, nee)
+    assert not same_flux(turbulent, nee * 0.044)
+    assert not same_flux(turbulent, light)
+
+
+def _reader_warnings(config):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, report = read_input(read_site_config(config))
+    return [text for text in report.warnings if "holds the flux mapped as nee" in text]
+
+
+def test_the_maize_examples_turbulent_flux_mapped_without_its_storage_is_named(tmp_path):
+    """The maize example (invented) with a column of NEE (flux plus its storage column)
+    added and the storage mapping dropped: the reader names the unread NEE column."""
+    config = _maize_copy(tmp_path, flux_as_storage=True)
+    text = config.read_text()
+    config.write_text("\n".join(line for line in text.splitlines()
+                                if not line.startswith("storage =")) + "\n")
+    named = _reader_warnings(config)
+    assert len(named) == 1 and "'co2_total'" in named[0]
+    # the same file with NEE mapped and the turbulent flux unread: nothing named
+    config.write_text(config.read_text().replace('nee = "co2_turb"', 'nee = "co2_total"'))
+    assert _reader_warnings(config) == []
