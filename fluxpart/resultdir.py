@@ -102,6 +102,12 @@ _RETIRED = "retired-"
 #: back from its retired copy (:func:`recover_missing`).
 _REPAIR_WAIT = 30.0
 
+#: The token after ``.NAME.staging-`` and ``.NAME.retired-``, as every release since the
+#: folder is swapped whole draws it: the eight characters of :func:`tempfile.mkdtemp`
+#: (lower-case letters, digits, underscore; Python's tempfile source (m)) or of
+#: ``secrets.token_hex(4)`` (eight hex digits, Python documentation).
+_TOKEN = "[a-z0-9_]{8}"
+
 #: Times a writer that locked a deleted lock file locks again before it gives up checking.
 _RELOCK_TRIES = 5
 
@@ -125,15 +131,16 @@ def lock_file(directory) -> Path:
 
 def _leftovers(directory: Path, kind: str) -> list[Path]:
     """The folders beside `directory` named as its writer names its staging or retired
-    folders (`kind`): ``.NAME.KIND`` and a random token without a dot (tempfile's eight
-    letters, digits and underscores; eight hex digits). Matched by prefix alone, the
-    staging and retired folders of a sibling whose name extends this one's (``r`` and
-    ``r.staging-1``, ``r.retired-2020``: ``.r.staging-1.staging-*``) were removed by a
-    run into ``r`` under that sibling's live writer, or, with ``r`` missing, the
-    sibling's retired result moved in as ``r`` (round faults48). With `kind` empty, every
-    folder whose name starts with ``.NAME.`` (:func:`_earlier_staging` filters them)."""
+    folders (`kind`): ``.NAME.KIND`` and the token the writer draws, whole
+    (:data:`_TOKEN`). Matched by prefix alone, the staging and retired folders of a
+    sibling whose name extends this one's (``r`` and ``r.staging-1``, ``r.retired-2020``:
+    ``.r.staging-1.staging-*``) were removed by a run into ``r`` under that sibling's live
+    writer, or, with ``r`` missing, the sibling's retired result moved in as ``r`` (round
+    faults48); matched as any dot-free token, a user's own hidden folder
+    ``.r.retired-2020`` was (round review91). With `kind` empty, every folder whose name
+    starts with ``.NAME.`` (:func:`_earlier_staging` filters them)."""
     prefix = f".{directory.name}.{kind}"
-    named = (re.compile(rf"^{re.escape(prefix)}[A-Za-z0-9_]+$").match if kind
+    named = (re.compile(re.escape(prefix) + _TOKEN).fullmatch if kind
              else lambda name: name.startswith(prefix))
     try:
         return sorted(p for p in directory.parent.iterdir()

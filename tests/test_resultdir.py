@@ -253,14 +253,14 @@ def test_crash_between_the_two_renames_is_repaired(short_result, tmp_path, monke
     monkeypatch.setattr(resultdir, "_exchange", lambda a, b: False)
     out = short_result.write(tmp_path / "out")
     before = read_folder(out)[0]
-    out.rename(out.parent / f".{out.name}.retired-dead")            # the first rename
-    (out.parent / f".{out.name}.staging-dead").mkdir()               # a half-written new one
+    out.rename(out.parent / f".{out.name}.retired-deadbeef")            # the first rename
+    (out.parent / f".{out.name}.staging-deadbeef").mkdir()               # a half-written new one
     from fluxpart.verify import verify
 
     with pytest.raises(InputFileError):       # a tool that does not repair finds nothing ...
         resultdir.read_manifest(out)
     assert verify(out).identical                                     # ... verify repairs it
-    out.rename(out.parent / f".{out.name}.retired-dead")
+    out.rename(out.parent / f".{out.name}.retired-deadbeef")
     assert fluxpart.load(out).site == short_result.site              # so does load
     assert read_folder(out)[0] == before and _leftovers(out) == []
     short_result.write(out)                                          # the fallback swap works

@@ -2395,7 +2395,7 @@ def f_batch_resumed_half_staged():
     first = fp("batch", "sites.toml", "--quiet", "--workers", "1", cwd=NET)
     out = NET / "out"
     site = sorted(p for p in out.iterdir() if (p / "manifest.json").is_file())[0]
-    staging = out / f".{site.name}.staging-k1ll3d"
+    staging = out / f".{site.name}.staging-k1ll3d00"
     staging.mkdir()
     for table in sorted(site.glob("*.parquet"))[:5]:
         shutil.copy2(table, staging / table.name)
@@ -6186,6 +6186,43 @@ def f48_report_of_other_result():
            f"own {own.returncode}, other {other.returncode} {said[:1]!r:.200}")
 
 
+
+# ------------------------------------------------------------------ round review91
+def f91_kill9_dotted_names():
+    """SIGKILL at five points of ``run`` replacing a result whose folder name holds dots
+    (``site.2023``, ``r.v2``), a sibling ``site`` (whose name the first one extends) kept
+    beside: the folder holds the old result or the new one whole (a reader puts a result
+    left in its retired copy back), the next run writes the new one whole, verify 0,
+    nothing left beside, and the sibling untouched."""
+    old, new = table_digests(W / "r1"), table_digests(W / "r0")
+    parent = W / "dots91"
+    for name in ("site.2023", "r.v2"):
+        for point in ("table 5", "manifest", "swap", "after the exchange",
+                      "between two renames"):
+            shutil.rmtree(parent, ignore_errors=True)
+            parent.mkdir()
+            shutil.copytree(W / "r1", parent / name)
+            shutil.copytree(W / "r1", parent / name.split(".")[0])
+            folder = parent / name
+            done = stopped_at(point, signal.SIGKILL, "run", "site.toml", "--out", folder,
+                              "--quiet")
+            left = leftovers(parent)
+            check = fp("verify", "--quiet", folder)
+            now = table_digests(folder) if folder.is_dir() else None
+            again = fp("run", "site.toml", "--out", folder, "--quiet")
+            sibling = table_digests(parent / name.split(".")[0]) == old
+            held = (done.returncode == -9 and now in (old, new) and check.returncode == 0
+                    and again.returncode == 0 and table_digests(folder) == new
+                    and not leftovers(parent) and verify(folder).returncode == 0 and sibling
+                    and sorted(p.name for p in parent.iterdir()) == sorted(
+                        [name, name.split(".")[0]]))
+            record(f"SIGKILL at {point} of run into {name!r} (sibling beside)", held,
+                   f"exit {done.returncode}, left {left}, folder "
+                   f"{'old' if now == old else 'new' if now == new else 'MIXED/none'}, "
+                   f"verify {check.returncode} {_stderr_tail(check, 80)}, next run "
+                   f"{again.returncode} {_stderr_tail(again, 80)}, now "
+                   f"{sorted(p.name for p in parent.iterdir())}, sibling whole {sibling}")
+
 FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f_whole_other_run_with_own_log, f_odd_path, f_symlinked_result, f_kill_verify,
           f_kill_report, f_clock_set_back_staging, f_environment_bytes,
@@ -6288,14 +6325,16 @@ FAULTS = [f_signals, f_table_of_other_run, f_manifest_of_other_run,
           f48_input_header_renamed, f48_manifest_duplicate_key, f48_clock_back_between_runs,
           f48_sibling_prefix_names, f48_out_mount_point, f48_verify_read_only_copy_other_user,
           f48_tables_swapped_names, f48_reader_waits_for_repair,
-          f48_run_log_lost, f48_report_of_other_result]
+          f48_run_log_lost, f48_report_of_other_result,
+          # round review91
+          f91_kill9_dotted_names]
 
 if __name__ == "__main__":
     # a probe started in the background by a non-interactive shell inherits SIGINT ignored,
     # and so would every command it starts (Ctrl-C faults then probe nothing)
     signal.signal(signal.SIGINT, signal.default_int_handler)
     wanted = [a for a in sys.argv[1:]
-              if a.startswith(("f_", "f45_", "f46_", "f47_", "f48_", "f56_", "f83_"))]
+              if a.startswith(("f_", "f45_", "f46_", "f47_", "f48_", "f56_", "f83_", "f91_"))]
     if not (W / "r1").exists():
         setup()
     for fault in FAULTS:
