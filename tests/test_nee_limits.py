@@ -130,6 +130,34 @@ def test_the_tail_of_a_steady_release_with_a_gaussian_error_is_not_a_cut():
     assert removed == 20
 
 
+def _three_bands(inside, next_in, beyond, level=-3.0):
+    """Invented values: `beyond`, `inside` and `next_in` of them spread evenly over the
+    bands of BAND below, above and next above `level`, and a body of 200 values a band
+    from -2 to 1.5 µmol m-2 s-1 (no level of 2 or more: one side judged)."""
+    def spread(count, low):
+        return low + BAND * (np.arange(count) + 0.5) / count
+    return np.concatenate([level - BAND + 0.05 + np.zeros(beyond), level + BAND
+                           * np.arange(inside) / inside, spread(next_in, level + BAND),
+                           np.linspace(-2.0, 1.5, 1400)])
+
+
+def test_the_natural_tail_bound_takes_the_band_inside_over_the_next_one_in():
+    """The bound of round falsealarm59 on counts made by hand (review90): n0 beyond,
+    n1 inside, n2 next in; a natural tail leaves n0 >= n1 (n1 / n2) e^(-BAND^2 /
+    sigma^2) (Tweedie's formula, Efron 2011 (m)). Density rising to the level (n1 = 2
+    n2, 200 and 100): bound 7.3, so 5 beyond (2.5 %) is named; falling (n1 = 0.55 n2,
+    110 and 200): bound 1.1, so 3 beyond (2.7 %, under BEYOND_SHARE) is a tail. The
+    ratio taken the other way round gives 1.8 and 3.7 and both verdicts turn."""
+    factor = np.exp(-(BAND / nee_limits._MIN_GAUSSIAN_ERROR) ** 2)
+    assert 5 < 200 * (200 / 100) * factor < BEYOND_SHARE * 200
+    assert 110 * (110 / 200) * factor < 3 < BEYOND_SHARE * 110
+    named = cut_nee(_three_bands(200, 100, 5))
+    assert named is not None and "below -3 (200 values within 0.5" in named
+    assert cut_nee(_three_bands(110, 200, 3)) is None
+    # the same bands with nothing beyond: a cut either way
+    assert cut_nee(_three_bands(110, 200, 0)) is not None
+
+
 def test_a_natural_edge_with_the_random_error_and_coarse_values_are_quiet(demo_nee):
     """An invented flux whose true values stop at a level (uniform on [-12, 0]) measured
     with a Laplace error of 0.3 µmol m-2 s-1 (Richardson et al. 2006 (m)) is quiet, the
