@@ -376,7 +376,7 @@ def cut_before_storage(turbulent, storage, stamps=None, columns=None) -> str | N
     column as written. On invented site-years (``scenarios.generate(0..20)``) cut at
     levels from -50 to +30 µmol m-2 s-1 (140 cuts removing 0.2-30 % of the values) and
     a storage spread of 0.3 µmol m-2 s-1 added, the sum was named at 6 (29 before round
-    falsealarm59), the turbulent flux here at 118; their clean records with that storage
+    falsealarm59), the sum or the turbulent flux here at 118; their clean records with that storage
     (0..69) and the clean probes' towers with a storage column (sixth and seventh, seeds
     0-3, 20 site-years) were not named.
 
