@@ -119,6 +119,7 @@ from .flag_words import shown as flag_shown
 from .joined_clocks import span_shift_minutes
 from .key_hints import table_meaning_hint
 from .nee_limits import WRITTEN_WORDS as _WRITTEN_WORDS
+from .nee_limits import cut_before_storage
 from .overlong_values import refuse_overlong_value
 from .plain_numbers import plain_floats
 from .quoted_lines import (
@@ -1227,6 +1228,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 "accept_units)", accept_units, warnings, preflight))
         elif counted_twice:
             warnings.append(f"storage: {counted_twice}")
+        else:
+            # a logger's window on the turbulent flux, blurred in NEE by the storage term
+            # added to it (review90)
+            window = cut_before_storage(turbulent, storage, starts, mapping)
+            if window:
+                warnings.append(f"storage: {window}")
         if storage_missing:
             warnings.append(f"storage: {storage_missing} record(s) have a turbulent flux in "
                             f"{mapping['nee']!r} but no storage value in {mapping['storage']!r};"

@@ -95,7 +95,11 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
         counted), where more than :data:`_MAX_ZERO_SHARE` of the changes are exactly 0,
         or where their correlation lies below :data:`SMOOTHED_CORRELATION`
         (and, with `stamps`, that of every part of :data:`_PART_MIN_PAIRS` pairs or more
-        before or after a month's first record below :data:`_PART_CORRELATION`).
+        before or after a month's first record below :data:`_PART_CORRELATION`); with
+        `stamps`, also where the night changes of NEE less NEE a day before, over the
+        same records, correlate below :data:`_DAY_CORRELATION` over
+        :data:`_DAY_MIN_PAIRS` pairs or more (a course repeated every night,
+        :class:`_DayDifferences`).
 
     Notes
     -----
@@ -150,6 +154,9 @@ def smoothed_nee(nee, is_night, columns=None, stamps=None) -> str | None:
 #: Pairs of day-differenced night changes that can clear a column named by its plain
 #: changes [1] (round falsealarm59): the standard error of their correlation is about
 #: 1 / sqrt(n), 0.14 at 50, against -1/2 for separate errors and 0 for a running mean.
+#: Our choice: at 50 pairs a running mean's day differences fall below
+#: :data:`_DAY_CORRELATION` by chance about once in 13 (1.4 standard errors); at the
+#: plain test's 100 pairs and more, under once in 40 (review90).
 _DAY_MIN_PAIRS = 50
 #: Correlation of the day-differenced night changes below which they clear the column
 #: [1]: 0.2 from a running mean's 0 (two standard errors at 100 pairs, 1.4 at 50) and 0.3

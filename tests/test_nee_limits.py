@@ -130,6 +130,34 @@ def test_the_tail_of_a_steady_release_with_a_gaussian_error_is_not_a_cut():
     assert removed == 20
 
 
+def _three_bands(inside, next_in, beyond, level=-3.0):
+    """Invented values: `beyond`, `inside` and `next_in` of them spread evenly over the
+    bands of BAND below, above and next above `level`, and a body of 200 values a band
+    from -2 to 1.5 µmol m-2 s-1 (no level of 2 or more: one side judged)."""
+    def spread(count, low):
+        return low + BAND * (np.arange(count) + 0.5) / count
+    return np.concatenate([level - BAND + 0.05 + np.zeros(beyond), level + BAND
+                           * np.arange(inside) / inside, spread(next_in, level + BAND),
+                           np.linspace(-2.0, 1.5, 1400)])
+
+
+def test_the_natural_tail_bound_takes_the_band_inside_over_the_next_one_in():
+    """The bound of round falsealarm59 on counts made by hand (review90): n0 beyond,
+    n1 inside, n2 next in; a natural tail leaves n0 >= n1 (n1 / n2) e^(-BAND^2 /
+    sigma^2) (Tweedie's formula, Efron 2011 (m)). Density rising to the level (n1 = 2
+    n2, 200 and 100): bound 7.3, so 5 beyond (2.5 %) is named; falling (n1 = 0.55 n2,
+    110 and 200): bound 1.1, so 3 beyond (2.7 %, under BEYOND_SHARE) is a tail. The
+    ratio taken the other way round gives 1.8 and 3.7 and both verdicts turn."""
+    factor = np.exp(-(BAND / nee_limits._MIN_GAUSSIAN_ERROR) ** 2)
+    assert 5 < 200 * (200 / 100) * factor < BEYOND_SHARE * 200
+    assert 110 * (110 / 200) * factor < 3 < BEYOND_SHARE * 110
+    named = cut_nee(_three_bands(200, 100, 5))
+    assert named is not None and "below -3 (200 values within 0.5" in named
+    assert cut_nee(_three_bands(110, 200, 3)) is None
+    # the same bands with nothing beyond: a cut either way
+    assert cut_nee(_three_bands(110, 200, 0)) is not None
+
+
 def test_a_natural_edge_with_the_random_error_and_coarse_values_are_quiet(demo_nee):
     """An invented flux whose true values stop at a level (uniform on [-12, 0]) measured
     with a Laplace error of 0.3 µmol m-2 s-1 (Richardson et al. 2006 (m)) is quiet, the
@@ -259,3 +287,60 @@ def _env():
     import os
     return {**os.environ, "PYTHONPATH": str(Path(__file__).resolve().parents[1]),
             "OMP_NUM_THREADS": "1"}
+
+
+def test_a_window_on_the_turbulent_flux_blurred_by_the_storage_is_named_as_written():
+    """Known-truth recovery on invented data (review90): a flux whose true values run
+    evenly from -12 to 0 µmol m-2 s-1 with a Laplace random error of 0.3 (Richardson et
+    al. 2006 (m)), values below -8 removed by the logger's window, then a storage term
+    of spread 0.3 added. The sum's edge is a step blurred by a Gaussian of 0.3, which
+    the natural-tail bound (sigma 0.25, Tweedie's formula, Efron 2011 (m)) cannot tell
+    from a tail: NEE is not named, the turbulent flux as written is; the same flux
+    uncut is not."""
+    rng = np.random.default_rng(4)
+    flux = rng.uniform(-12.0, 0.0, 8000) + rng.laplace(0.0, 0.3, 8000)
+    store = rng.normal(0.0, 0.3, flux.size)
+    cut = np.where(flux < -8.0, np.nan, flux)
+    assert cut_nee(cut + store) is None
+    text = nee_limits.cut_before_storage(cut, store, columns={"nee": "co2_turb",
+                                                              "storage": "co2_store"})
+    assert text is not None and text.startswith("the turbulent flux (column 'co2_turb') "
+                                                 "ends abruptly below -7.99")
+    assert "'co2_store'" in text
+    assert nee_limits.cut_before_storage(flux, store) is None
+
+
+def test_the_maize_example_turbulent_flux_cut_by_a_window_through_the_reader(tmp_path):
+    """Through the reader (review90): the maize example (invented site) holds the
+    turbulent flux `co2_turb` and the storage `co2_store`; its turbulent values below
+    -10 µmol m-2 s-1 written as the file's missing code (a logger's window, 12 % of the
+    values) leave no edge in NEE for the preflight, and the reader names the column as
+    written; the example as it is gets no such warning."""
+    import shutil
+
+    from fluxpart.io import read_input, read_site_config
+
+    examples = Path(__file__).resolve().parents[1] / "examples"
+    folder = tmp_path / "quillmoor_maize_logger"
+    shutil.copytree(examples / "quillmoor_maize_logger", folder)
+    shutil.copy(examples / "quillmoor_maize_logger.toml", tmp_path)
+    config = tmp_path / "quillmoor_maize_logger.toml"
+    words = "the turbulent flux (column 'co2_turb') ends abruptly below -9.9"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        _, report = read_input(read_site_config(config))
+    assert not any("turbulent flux (column" in text for text in report.warnings)
+    for path in folder.glob("*.dat"):
+        lines = path.read_text(encoding="latin-1").splitlines(keepends=True)
+        column = lines[1].rstrip("\r\n").split(";").index("co2_turb")
+        for number, line in enumerate(lines[3:], start=3):
+            cells = line.rstrip("\r\n").split(";")
+            if float(cells[column].replace(",", ".")) < -10.0:
+                cells[column] = "-9999"
+            lines[number] = ";".join(cells) + line[len(line.rstrip("\r\n")):]
+        path.write_text("".join(lines), encoding="latin-1")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        frame, report = read_input(read_site_config(config))
+    assert any(text.startswith(f"storage: {words}") for text in report.warnings)
+    assert cut_nee(frame["nee"].to_numpy(dtype=float), frame.index) is None
