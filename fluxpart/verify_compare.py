@@ -332,6 +332,14 @@ def within_rounding(column, first: pd.DataFrame, second: pd.DataFrame,
 def compare_tables(name: str, stored: pd.DataFrame, recomputed: pd.DataFrame) -> list:
     """Compare two versions of a table value by value.
 
+    Parameters
+    ----------
+    name : str
+        The table's name in the manifest (``"annual"``, ``"parameters_daytime"``, ...): a
+        ``parameters_*`` table's standard errors take :data:`STANDARD_ERROR_TOLERANCE`.
+    stored, recomputed : pandas.DataFrame
+        The table as the folder holds it and as the rerun wrote it.
+
     Returns
     -------
     list of Difference
@@ -403,6 +411,19 @@ def field_differences(stored, recomputed, prefix: str) -> list[tuple[str, object
 
     Dictionaries are walked key by key (a key on one side only is a difference);
     lists and other values are compared whole.
+
+    Parameters
+    ----------
+    stored, recomputed : object
+        Two JSON values (a manifest or a part of one, a schema record).
+    prefix : str
+        The dotted name of the two values ("" at the top).
+
+    Returns
+    -------
+    list of (str, object, object)
+        ``(dotted name, stored, recomputed)`` per differing leaf, ``"(absent)"`` for a
+        key on one side only; empty where the two are equal.
     """
     if isinstance(stored, dict) and isinstance(recomputed, dict):
         out = []

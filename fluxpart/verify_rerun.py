@@ -174,7 +174,18 @@ def remove_dead_scratch(root=None) -> list[str]:
 
     A folder is removed only where its name carries the id of a process that no longer
     exists and it belongs to the current user: a verify running now, or another user's,
-    keeps its folder. Returns the names removed.
+    keeps its folder.
+
+    Parameters
+    ----------
+    root : path-like, optional
+        The folder that holds the scratch folders (default: the system's temporary
+        folder, :func:`tempfile.gettempdir`).
+
+    Returns
+    -------
+    list of str
+        The names of the folders removed.
     """
     root = Path(tempfile.gettempdir() if root is None else root)
     removed = []
