@@ -16,7 +16,7 @@ METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "c
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
                   "saturated_gaps", "scenarios", "screening", "shared_records", "solar",
                   "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_prefilter",
-                  "ustar_seasonal", "vpd_zero", "demo"}
+                  "ustar_seasonal", "vpd_zero", "demo", "record_shifts"}
 #: the parts of ``fluxpart verify`` apart from its entry, verify.py (round verifysplit)
 VERIFY_PARTS = ("verify_folder", "verify_inputs", "verify_restore", "verify_rerun",
                 "verify_fields", "verify_compare", "verify_report")
