@@ -123,7 +123,15 @@ from .verify_report import (
 from .verify_rerun import _recompute, remove_dead_scratch, scratch_folder
 from .verify_restore import PACKED_FORMS
 
-__all__ = ["CONFIG_EDITED", "Difference", "EMPTY_SHA256", "JSON_FORMAT", "NEAR_ZERO_SHARE", "PACKED_FORMS", "ROUNDING_TOLERANCE", "STANDARD_ERROR_TOLERANCE", "VERIFY_CAUTION", "VerifyReport", "command_verify", "compare_tables", "cut_where_they_differ", "earlier_wording_notes", "earlier_wordings", "field_differences", "metadata_differences", "metadata_summary", "recorded_facts", "remove_dead_scratch", "replaced_manifest", "respelled_inputs", "result_identity", "scratch_folder", "verify", "within_rounding"]
+#: the entry and the names other modules and tests import from here, defined in its parts
+__all__ = ["CONFIG_EDITED", "Difference", "EMPTY_SHA256", "JSON_FORMAT", "NEAR_ZERO_SHARE",
+           "PACKED_FORMS", "ROUNDING_TOLERANCE", "STANDARD_ERROR_TOLERANCE",
+           "VERIFY_CAUTION", "VerifyReport", "command_verify", "compare_tables",
+           "cut_where_they_differ", "earlier_wording_notes", "earlier_wordings",
+           "field_differences", "metadata_differences", "metadata_summary",
+           "recorded_facts", "remove_dead_scratch", "replaced_manifest",
+           "respelled_inputs", "result_identity", "scratch_folder", "verify",
+           "within_rounding"]
 
 
 def verify(directory, *, input_path=None, config_path=None, exact: bool = False
