@@ -74,34 +74,29 @@ from __future__ import annotations
 import dataclasses
 from pathlib import Path
 
-from .config import absent_added_settings
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import escaped_paths, read_manifest, shown_name
-from .reader_notes import MOVED_FIELDS, notes_moved
+from .reader_notes import notes_moved
 from .resultdir import interrupted_writes
-from .store import read_table, require_owner_access
+from .store import require_owner_access
 from .verify_compare import (
     EMPTY_SHA256,
     NEAR_ZERO_SHARE,
     ROUNDING_TOLERANCE,
     STANDARD_ERROR_TOLERANCE,
     Difference,
-    _file_changed,
-    _lacks_pandas_copy,
     compare_tables,
     earlier_wording_notes,
     earlier_wordings,
     field_differences,
     metadata_differences,
+    rerun_table_findings,
     within_rounding,
 )
 from .verify_fields import (
-    _NAME_FIELDS,
-    _RELEASE_FIELDS,
-    _compare_manifests,
     _messages_beside,
-    _text,
     cut_where_they_differ,
+    rerun_field_findings,
     respelled_inputs,
 )
 from .verify_folder import (
@@ -225,8 +220,6 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                           "(its rerun is written to a scratch folder, which takes the umask)"
                           ) from None
     remove_dead_scratch()
-    same_values: dict = {}      # cause -> tables whose values and metadata equal the rerun's
-    worded: dict = {}           # release -> table -> columns worded as before it
     with scratch_folder() as scratch:
         try:
             source, result, input_differences = _recompute(
@@ -295,87 +288,17 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                          "told its notes (a layout understood, every value read as the file "
                          "means it) from its warnings; its warnings hold the notes this code "
                          "records apart, and differ by nothing else")
-        # a setting added after the writing release, rerun at its earlier value (a note)
-        as_written = {f"config.{added.name}": _text(added.earlier)
-                      for added in absent_added_settings(manifest.get("config"))}
-        for found in _compare_manifests(manifest, new_manifest):
-            if moved and found.column in MOVED_FIELDS:
-                continue
-            if found.stored == "(absent)" and as_written.get(found.column) == found.recomputed:
-                continue
-            if found.column in _NAME_FIELDS:
-                # a renamed copy of the input: its content is checked by SHA-256
-                notes.append(f"{found.column}: the file names differ (stored {found.stored}, "
-                             f"now {found.recomputed}); their content is the recorded one")
-            elif found.column in _RELEASE_FIELDS:
-                notes.append(f"{found.column}: the writing release's statement of how its "
-                             "intervals were checked differs from this code's (each release "
-                             "states its own benchmarks; it is no number of this result): "
-                             f"stored {found.stored}")
-            elif found.kind == "rounding":
-                rounding.append(found)
-            else:
-                differences.append(found)
-        names = sorted(set(manifest["tables"]) | set(new_manifest["tables"]))
-        for name in names:
-            if name not in new_manifest["tables"]:
-                differences.append(Difference(name, "table", stored="present",
-                                              recomputed="not produced"))
-                continue
-            if name not in manifest["tables"]:
-                differences.append(Difference(name, "table", stored="absent",
-                                              recomputed="produced"))
-                continue
-            if name not in stored_tables:
-                continue
-            recomputed = read_table(again / new_manifest["tables"][name]["file"])
-            found = compare_tables(name, stored_tables[name], recomputed)
-            rounding += [d for d in found if d.kind == "rounding"]
-            differences += [d for d in found if d.kind != "rounding"]
-            if stored_tables[name].attrs.get("rewritten"):
-                notes.append(f"{name}: the rewritten file's values are "
-                             + ("bit-identical to the rerun's: only the file and its metadata "
-                                "changed" if not found else "not the rerun's where listed"))
-                continue
-            # metadata are compared beside any value difference and after an edit of the
-            # file: an edited unit, or a description edited with a value, was reported only
-            # as "changed after it was written" without what changed (review57)
-            # a column added, dropped or of another type is named by compare_tables: its
-            # schema entries would only repeat it
-            described = [] if any(d.kind in ("columns", "dtype") for d in found) else \
-                metadata_differences(directory / manifest["tables"][name]["file"],
-                                     again / new_manifest["tables"][name]["file"])
-            # a description as an earlier release worded it (schema.REWORDED_DESCRIPTIONS)
-            # is a note: 0.34.0's folders were NOT reproduced over reworded words alone
-            known, described = earlier_wordings(name, described)
-            for release, column in known:
-                worded.setdefault(release, {}).setdefault(name, []).append(column)
-            values = ("" if not found else "values within rounding"
-                      if all(d.kind == "rounding" for d in found) else "values differ too")
-            differences += [Difference(name, "metadata", column=key, stored=old,
-                                       recomputed=new, cause=values)
-                            for key, old, new in described]
-            if known:
-                continue
-            if not found and not described and _file_changed(name, differences):
-                # a table re-compressed or rewritten by another Parquet writer with its
-                # values and metadata: "changed after it was written" alone left an auditor
-                # unable to tell whether a number had changed (round faults42)
-                notes.append(f"{name}: the changed file's values and metadata are "
-                             "bit-identical to the rerun's: only its bytes differ from the "
-                             "recorded ones (rewritten with another compression or Parquet "
-                             "writer?); the folder still fails, as its file is not the one "
-                             "written")
-            elif not found and (new_manifest["tables"][name]["sha256"]
-                                != manifest["tables"][name].get("sha256")):
-                if not described:
-                    cause = ("written before tables carried the copy of their metadata that "
-                             "pandas.read_parquet reads (PANDAS_ATTRS)"
-                             if _lacks_pandas_copy(directory / manifest["tables"][name]["file"])
-                             else "library versions differ" if environment else
-                             "the recorded library versions and platform match; a compression "
-                             "library outside the record may differ")
-                    same_values.setdefault(cause, []).append(name)
+        changed, within, field_notes = rerun_field_findings(manifest, new_manifest, moved)
+        differences += changed
+        rounding += within
+        notes += field_notes
+        tables = rerun_table_findings(directory, manifest, new_manifest, again, stored_tables,
+                                      differences, environment)
+        names = tables.names
+        differences += tables.differences
+        rounding += tables.rounding
+        notes += tables.notes
+        worded, same_values = tables.worded, tables.same_values
     notes += earlier_wording_notes(worded, manifest, others=bool(differences or rounding))
     # one note per cause, naming its tables (a result of 0.22.0 gave 14 such lines)
     notes += [f"{', '.join(tables)}: values and metadata bit-identical, file bytes differ from "

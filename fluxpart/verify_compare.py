@@ -29,6 +29,7 @@ import numpy as np
 import pandas as pd
 
 from .schema import reworded
+from .store import read_table
 
 #: SHA-256 of no bytes (FIPS 180-4; ``hashlib.sha256(b"").hexdigest()``): an input or site
 #: config with this digest is a file cut to nothing (a copy or sync cut short), which verify
@@ -605,3 +606,125 @@ def _file_changed(table: str, differences) -> bool:
     """Whether the folder check found `table`'s file other than the recorded one (its
     SHA-256)."""
     return any(d.table == table and d.kind == "hash" for d in differences)
+
+
+@dataclass(frozen=True)
+class TableFindings:
+    """What :func:`rerun_table_findings` found, table by table.
+
+    Attributes
+    ----------
+    names : list of str
+        Every table of the stored or the rerun's manifest, sorted.
+    differences, rounding : list of Difference
+        What differs, and what differs within rounding, in the order of the tables.
+    notes : list of str
+        A rewritten file's or a re-compressed file's values said to equal the rerun's.
+    worded : dict
+        Release -> table -> columns described as the releases before it worded them
+        (:func:`earlier_wordings`; for :func:`earlier_wording_notes`).
+    same_values : dict
+        Cause -> tables whose values and metadata equal the rerun's while their file
+        bytes differ from the recorded ones.
+    """
+
+    names: list
+    differences: list
+    rounding: list
+    notes: list
+    worded: dict
+    same_values: dict
+
+
+def rerun_table_findings(directory: Path, manifest: dict, new_manifest: dict, again: Path,
+                         stored_tables: dict, earlier: list, environment) -> TableFindings:
+    """Compare every table of a result folder with its rerun's, value by value
+    (:func:`compare_tables`) and by its metadata (:func:`metadata_differences`).
+
+    Parameters
+    ----------
+    directory : pathlib.Path
+        The verified result folder.
+    manifest, new_manifest : dict
+        Its manifest and the rerun's.
+    again : pathlib.Path
+        The folder the rerun was written to.
+    stored_tables : dict
+        Table name -> the stored table as read (a table rewritten by another program
+        carries ``attrs["rewritten"]``; :func:`fluxpart.verify_folder._read_stored`).
+    earlier : list of Difference
+        The differences found before (the folder's ``"hash"`` entries name the files
+        changed after they were written).
+    environment : sequence of str
+        The environment differences (:func:`fluxpart.verify_folder._environment`): where
+        there are some, they are named as the likely cause of file bytes that differ.
+
+    Returns
+    -------
+    TableFindings
+    """
+    differences, rounding, notes = [], [], []
+    same_values: dict = {}      # cause -> tables whose values and metadata equal the rerun's
+    worded: dict = {}           # release -> table -> columns worded as before it
+    names = sorted(set(manifest["tables"]) | set(new_manifest["tables"]))
+    for name in names:
+        if name not in new_manifest["tables"]:
+            differences.append(Difference(name, "table", stored="present",
+                                          recomputed="not produced"))
+            continue
+        if name not in manifest["tables"]:
+            differences.append(Difference(name, "table", stored="absent",
+                                          recomputed="produced"))
+            continue
+        if name not in stored_tables:
+            continue
+        recomputed = read_table(again / new_manifest["tables"][name]["file"])
+        found = compare_tables(name, stored_tables[name], recomputed)
+        rounding += [d for d in found if d.kind == "rounding"]
+        differences += [d for d in found if d.kind != "rounding"]
+        if stored_tables[name].attrs.get("rewritten"):
+            notes.append(f"{name}: the rewritten file's values are "
+                         + ("bit-identical to the rerun's: only the file and its metadata "
+                            "changed" if not found else "not the rerun's where listed"))
+            continue
+        # metadata are compared beside any value difference and after an edit of the
+        # file: an edited unit, or a description edited with a value, was reported only
+        # as "changed after it was written" without what changed (review57)
+        # a column added, dropped or of another type is named by compare_tables: its
+        # schema entries would only repeat it
+        described = [] if any(d.kind in ("columns", "dtype") for d in found) else \
+            metadata_differences(directory / manifest["tables"][name]["file"],
+                                 again / new_manifest["tables"][name]["file"])
+        # a description as an earlier release worded it (schema.REWORDED_DESCRIPTIONS)
+        # is a note: 0.34.0's folders were NOT reproduced over reworded words alone
+        known, described = earlier_wordings(name, described)
+        for release, column in known:
+            worded.setdefault(release, {}).setdefault(name, []).append(column)
+        values = ("" if not found else "values within rounding"
+                  if all(d.kind == "rounding" for d in found) else "values differ too")
+        differences += [Difference(name, "metadata", column=key, stored=old,
+                                   recomputed=new, cause=values)
+                        for key, old, new in described]
+        if known:
+            continue
+        if not found and not described and _file_changed(name, [*earlier, *differences]):
+            # a table re-compressed or rewritten by another Parquet writer with its
+            # values and metadata: "changed after it was written" alone left an auditor
+            # unable to tell whether a number had changed (round faults42)
+            notes.append(f"{name}: the changed file's values and metadata are "
+                         "bit-identical to the rerun's: only its bytes differ from the "
+                         "recorded ones (rewritten with another compression or Parquet "
+                         "writer?); the folder still fails, as its file is not the one "
+                         "written")
+        elif not found and (new_manifest["tables"][name]["sha256"]
+                            != manifest["tables"][name].get("sha256")):
+            if not described:
+                cause = ("written before tables carried the copy of their metadata that "
+                         "pandas.read_parquet reads (PANDAS_ATTRS)"
+                         if _lacks_pandas_copy(directory / manifest["tables"][name]["file"])
+                         else "library versions differ" if environment else
+                         "the recorded library versions and platform match; a compression "
+                         "library outside the record may differ")
+                same_values.setdefault(cause, []).append(name)
+    return TableFindings(names=names, differences=differences, rounding=rounding, notes=notes,
+                         worded=worded, same_values=same_values)

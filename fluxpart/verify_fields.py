@@ -18,6 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .config import absent_added_settings
 from .manifest import (
     QUOTED_TEXT,
     escaped_paths,
@@ -25,6 +26,7 @@ from .manifest import (
     portable_messages,
     without_paths,
 )
+from .reader_notes import MOVED_FIELDS
 from .verify_compare import ROUNDING_TOLERANCE, Difference, field_differences
 
 #: Differing manifest fields listed before the rest are summarised.
@@ -231,3 +233,53 @@ def _compare_manifests(stored: dict, recomputed: dict) -> list:
         rest = [name for name, _, _ in pairs[_MAX_FIELDS_LISTED:]]
         out.append(Difference("manifest", "more", stored=", ".join(rest), count=len(rest)))
     return out
+
+
+def rerun_field_findings(manifest: dict, new_manifest: dict, moved: bool) -> tuple[list, list, list]:
+    """Every manifest field of a rerun against the stored one, sorted into what differs,
+    what differs within rounding and what is only a note.
+
+    A field the writing release's reader notes moved (:data:`fluxpart.reader_notes.
+    MOVED_FIELDS`, where `moved`) or a setting added after the writing release and rerun
+    at its earlier value (:func:`fluxpart.config.absent_added_settings`) is passed over;
+    the input files' names (:data:`_NAME_FIELDS`: their content is checked by SHA-256) and
+    the writing release's statement of its benchmarks (:data:`_RELEASE_FIELDS`) are notes.
+
+    Parameters
+    ----------
+    manifest, new_manifest : dict
+        The folder's manifest and its rerun's (messages as the folder's writer recorded
+        them: :func:`_messages_beside`, :func:`respelled_inputs`).
+    moved : bool
+        Whether the stored warnings hold the reader's notes the rerun records apart
+        (:func:`fluxpart.reader_notes.notes_moved`).
+
+    Returns
+    -------
+    (list, list, list)
+        The differences, the rounding differences (each a :class:`Difference`) and the
+        notes (str), each in the order of :func:`_compare_manifests`.
+    """
+    differences, rounding, notes = [], [], []
+    # a setting added after the writing release, rerun at its earlier value (a note)
+    as_written = {f"config.{added.name}": _text(added.earlier)
+                  for added in absent_added_settings(manifest.get("config"))}
+    for found in _compare_manifests(manifest, new_manifest):
+        if moved and found.column in MOVED_FIELDS:
+            continue
+        if found.stored == "(absent)" and as_written.get(found.column) == found.recomputed:
+            continue
+        if found.column in _NAME_FIELDS:
+            # a renamed copy of the input: its content is checked by SHA-256
+            notes.append(f"{found.column}: the file names differ (stored {found.stored}, "
+                         f"now {found.recomputed}); their content is the recorded one")
+        elif found.column in _RELEASE_FIELDS:
+            notes.append(f"{found.column}: the writing release's statement of how its "
+                         "intervals were checked differs from this code's (each release "
+                         "states its own benchmarks; it is no number of this result): "
+                         f"stored {found.stored}")
+        elif found.kind == "rounding":
+            rounding.append(found)
+        else:
+            differences.append(found)
+    return differences, rounding, notes
