@@ -16,8 +16,11 @@ METHOD_MODULES = {"agreement", "audit", "budget", "budget_warnings", "clock", "c
                   "nee_smoothing", "preflight", "responses", "rg_dim", "rg_zeros", "tair_days",
                   "saturated_gaps", "scenarios", "screening", "shared_records", "solar",
                   "storage_check", "uncertainty", "unit_checks", "ustar", "ustar_prefilter",
-                  "ustar_seasonal", "vpd_zero", "demo"}
-ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report"}
+                  "ustar_seasonal", "vpd_zero", "demo", "record_shifts"}
+#: the parts of ``fluxpart verify`` apart from its entry, verify.py (round verifysplit)
+VERIFY_PARTS = ("verify_folder", "verify_inputs", "verify_restore", "verify_rerun",
+                "verify_fields", "verify_compare", "verify_report")
+ORCHESTRATORS = {"pipeline", "batch", "cli", "verify", "diff", "report", *VERIFY_PARTS}
 #: the stage modules `pipeline.process` calls in order, each handing the next a small record
 STAGE_MODULES = ("canonical_frame", "screening_stage", "ustar_stage", "respiration_driver",
                  "ustar_runs", "central_run", "result_tables", "uncertainty_assembly",
@@ -330,3 +333,57 @@ def test_the_stage_modules_read_no_fluxpart_module_through_a_fallback():
                     and node.args and getattr(node.args[0], "id", "") in modules):
                 found.append(f"{name}.py:{node.lineno}")
     assert not found, found
+
+
+def test_the_parts_of_verify_are_mapped_import_no_entry_and_only_the_rerun_runs_the_pipeline():
+    """The house rule "one concern per module" on ``fluxpart verify`` (round verifysplit:
+    verify.py, 2,828 lines, split into its parts, verify.py the entry the command line
+    calls). Each part is in the module table; no part imports the entry (it imports them:
+    no cycle) or the command line; only the rerun imports the pipeline, so that reading,
+    comparing and wording a verdict load no method (the modules an import loads, in a
+    fresh interpreter); the public names other modules import from the entry stay
+    importable from it."""
+    import importlib
+
+    table = (ROOT.parent / "DEVELOPERS.md").read_text(encoding="utf-8").split(
+        "## Architecture map", 1)[1].split("## Rules of the house", 1)[0]
+    unmapped = [name for name in ("verify", *VERIFY_PARTS) if f"| `{name}.py` |" not in table]
+    assert not unmapped, unmapped
+    for name in VERIFY_PARTS:
+        imported = _relative_imports(f"{name}.py")
+        assert not imported & {"verify", "verify_network", "cli", "batch", "diff", "report"}, (
+            name, imported)
+        assert ("pipeline" in imported) == (name == "verify_rerun"), (name, imported)
+    parts = [name for name in VERIFY_PARTS if name != "verify_rerun"]
+    loaded = _loaded_by("import " + ", ".join(f"fluxpart.{name}" for name in parts))
+    assert not loaded & {"pipeline", "verify", "verify_rerun", "batch", "cli"}, loaded
+    entry = importlib.import_module("fluxpart.verify")
+    for name in ("ROUNDING_TOLERANCE", "STANDARD_ERROR_TOLERANCE", "NEAR_ZERO_SHARE",
+                 "EMPTY_SHA256", "CONFIG_EDITED", "JSON_FORMAT", "VERIFY_CAUTION",
+                 "Difference", "VerifyReport", "compare_tables", "within_rounding",
+                 "field_differences", "cut_where_they_differ", "respelled_inputs",
+                 "metadata_differences", "result_identity", "remove_dead_scratch",
+                 "scratch_folder", "PACKED_FORMS", "verify", "command_verify"):
+        assert name in entry.__all__ and hasattr(entry, name), name
+
+
+def test_the_public_functions_of_the_parts_of_verify_have_numpy_docstrings():
+    """The house rule (numpydoc's docstring standard, common practice) on every public
+    function the parts of ``fluxpart verify`` define (round verifysplit): Parameters where
+    it takes any, and Returns or Yields."""
+    import importlib
+    import inspect
+
+    lacking = []
+    for name in VERIFY_PARTS:
+        module = importlib.import_module(f"fluxpart.{name}")
+        for public, member in vars(module).items():
+            if (public.startswith("_") or not inspect.isfunction(member)
+                    or member.__module__ != module.__name__):
+                continue
+            text = inspect.getdoc(member) or ""
+            if inspect.signature(member).parameters and "Parameters\n----------" not in text:
+                lacking.append(f"{name}.{public}: Parameters")
+            if not any(f"{s}\n{'-' * len(s)}" in text for s in ("Returns", "Yields")):
+                lacking.append(f"{name}.{public}: Returns")
+    assert not lacking, lacking

@@ -19,9 +19,10 @@ import pytest
 from bundles import make_bundle
 
 from fluxpart import store
+from fluxpart._validate import printable_line
 from fluxpart.cli import main
 from fluxpart.errors import OutputError
-from fluxpart.verify import printable_line, result_identity
+from fluxpart.verify import result_identity
 
 
 def _one_error_line(capsys) -> str:

@@ -17,7 +17,7 @@ import pytest
 
 from fluxpart import store
 from fluxpart.errors import InputFileError, ResourceShortage
-from fluxpart.verify import _rewritten_elsewhere
+from fluxpart.verify_folder import _rewritten_elsewhere
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -25,7 +25,7 @@ _THREADS_OF_EVERY_READER = """
 import os, sys
 from pathlib import Path
 import numpy as np, pandas as pd, pyarrow as pa, pyarrow.parquet as pq
-from fluxpart import batch, store, verify
+from fluxpart import batch, store, verify_folder
 def threads():  # pyarrow's and Python's; not jemalloc's background purger
     names = [open(f"/proc/self/task/{t}/comm").read().strip()
              for t in os.listdir("/proc/self/task")]
@@ -42,7 +42,7 @@ before = threads()
 counts = []
 back = store.read_table(out / "known.parquet")
 counts.append(threads() - before)
-plain = verify._rewritten_elsewhere(out / "by_pandas.parquet")
+plain = verify_folder._rewritten_elsewhere(out / "by_pandas.parquet")
 counts.append(threads() - before)
 network = batch.read_network(out / "net")
 counts.append(threads() - before)

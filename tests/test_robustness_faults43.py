@@ -65,7 +65,7 @@ def test_several_inputs_found_where_the_run_read_them_are_each_named():
     """A result of two logger files moved on its machine: the note named the first file
     alone, "(the first) (the folder was moved ...)", so an auditor could not tell where
     the second was found (review66). Now every file and each folder is named."""
-    from fluxpart.verify import _found_where_run_read
+    from fluxpart.verify_inputs import _found_where_run_read
 
     moved = [(Path("/a/arch/logs/m_1.dat"), Path("/a/logs/m_1.dat")),
              (Path("/a/arch/logs/m_2.dat"), Path("/a/more/m_2.dat"))]

@@ -103,7 +103,7 @@ def test_a_lost_run_log_is_noted_by_verify(tmp_path):
     out of a copy: verify passed without a word, so an auditor took the trail to be
     there. Now a note says it is gone or unreadable; a present log gives none, and a
     manifest that lists no run log (an earlier release's) none either."""
-    from fluxpart.verify import _run_log_note
+    from fluxpart.verify_folder import _run_log_note
 
     manifest = {"unhashed": {"run-log.json": "who ran it"}}
     assert "is missing" in _run_log_note(tmp_path, manifest)
@@ -121,7 +121,7 @@ def test_a_report_page_of_another_result_is_named(tmp_path):
     verified. The page names the manifest seal it was drawn from (its provenance table);
     verify now names a page whose seal is not the folder's. None for the folder's own
     page, a page without a seal (edited, or an earlier release's) or no page."""
-    from fluxpart.verify import _page_of_other_result
+    from fluxpart.verify_folder import _page_of_other_result
 
     own, other = "3b" * 32, "6e" * 32
     manifest = {"seal": own}

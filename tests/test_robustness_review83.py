@@ -9,13 +9,15 @@ documents.
 from __future__ import annotations
 
 import gzip
+import hashlib
+import json
 import lzma
 import os
 import shutil
 
 import pytest
 
-from fluxpart import verify
+from fluxpart import verify_restore
 from fluxpart.cli import main
 from fluxpart.manifest import lost_manifest_remedy
 from fluxpart.resultdir import flock_holder
@@ -27,7 +29,7 @@ def test_a_decompression_bomb_beside_the_input_is_given_up_early(copy, capsys, m
     of 300 MB of zeros: 2 GB of memory, 42 s). Now it is unpacked a chunk at a time and
     given up past the limit (lowered here to 1 MiB, the bomb unpacking to 4 MiB): the
     verdict is that the input cannot be found, and no chunk past the limit is read."""
-    monkeypatch.setattr(verify, "MOST_UNPACKED_BYTES", 2**20)
+    monkeypatch.setattr(verify_restore, "MOST_UNPACKED_BYTES", 2**20)
     read = []
     opener = gzip.open
 
@@ -37,7 +39,7 @@ def test_a_decompression_bomb_beside_the_input_is_given_up_early(copy, capsys, m
         stream.read = lambda size=-1: read.append(size) or original(size)
         return stream
 
-    monkeypatch.setattr(verify, "_packed_opener", lambda suffix: counting)
+    monkeypatch.setattr(verify_restore, "_packed_opener", lambda suffix: counting)
     (copy / "tower.csv").unlink()
     (copy / "tower.csv.gz").write_bytes(gzip.compress(bytes(4 * 2**20)))
     assert main(["verify", "--quiet", str(copy / "out")]) == 2
@@ -54,7 +56,7 @@ def test_an_input_too_large_to_hold_is_unpacked_to_a_file_and_checked(copy, caps
     bytes inside an xz file are still found by their SHA-256 and unpacked to the scratch
     folder a chunk at a time; another file's bytes so compressed are not taken."""
     data = (copy / "tower.csv").read_bytes()
-    monkeypatch.setattr(verify, "MOST_RESAVED_BYTES", len(data) // 4)
+    monkeypatch.setattr(verify_restore, "MOST_RESAVED_BYTES", len(data) // 4)
     (copy / "tower.csv").unlink()
     (copy / "tower.csv.xz").write_bytes(lzma.compress(data))
     assert main(["verify", str(copy / "out")]) == 0
@@ -75,11 +77,11 @@ def test_a_restored_copy_that_does_not_match_is_not_left(tmp_path, monkeypatch):
     packed = tmp_path / "tower.csv.gz"
     packed.write_bytes(gzip.compress(b"a,b\n1,2\n"))
     scratch = tmp_path / "scratch"
-    recorded = verify.hashlib.sha256(b"a,b\n1,2\n").hexdigest()
-    restored = verify._unpacked_copy(packed, ".gz", recorded, "tower.csv", scratch, 0)
+    recorded = hashlib.sha256(b"a,b\n1,2\n").hexdigest()
+    restored = verify_restore._unpacked_copy(packed, ".gz", recorded, "tower.csv", scratch, 0)
     assert restored is not None and restored.read_bytes() == b"a,b\n1,2\n"
     packed.write_bytes(gzip.compress(b"a,b\n1,3\n"))
-    assert verify._unpacked_copy(packed, ".gz", recorded, "tower.csv", scratch, 1) is None
+    assert verify_restore._unpacked_copy(packed, ".gz", recorded, "tower.csv", scratch, 1) is None
     assert list((scratch / "restored-input-1").iterdir()) == []
 
 
@@ -104,11 +106,11 @@ def test_the_folder_the_run_wrote_is_not_named_as_another(copy):
     out = copy / "out"
     (out / "manifest.json").unlink()
     log = (out / "run-log.json").read_text(encoding="utf-8")
-    wrote = verify.json.loads(log)["result_folder"]
+    wrote = json.loads(log)["result_folder"]
     shutil.copytree(out, copy / "moved")
     (copy / "moved" / "run-log.json").write_text(
-        log.replace(verify.json.dumps(wrote)[1:-1],
-                    verify.json.dumps(str(copy / "moved"))[1:-1]), encoding="utf-8")
+        log.replace(json.dumps(wrote)[1:-1],
+                    json.dumps(str(copy / "moved"))[1:-1]), encoding="utf-8")
     assert "run log says" not in lost_manifest_remedy(copy / "moved" / ".." / "moved")
     try:
         os.symlink(copy / "moved", copy / "link")
@@ -125,13 +127,13 @@ def test_a_python_without_an_optional_compression_module_is_not_broken(tmp_path,
                                                                         missing):
     """bz2 and lzma are optional in a Python build: verify imported them where it met a
     compressed file and failed with ImportError; now such a file is only not unpacked."""
-    monkeypatch.setattr(verify, missing, None)
+    monkeypatch.setattr(verify_restore, missing, None)
     suffix = {"bz2": ".bz2", "lzma": ".xz"}[missing]
-    head = dict((s, m) for m, s in verify.PACKED_FORMS)[suffix]
+    head = dict((s, m) for m, s in verify_restore.PACKED_FORMS)[suffix]
     path = tmp_path / f"tower.csv{suffix}"
     path.write_bytes(head + b"not a stream")
-    assert verify._unpacked(path) is None
-    assert verify._restored_text(path, "0" * 64, tmp_path, 0) is None
+    assert verify_restore._unpacked(path) is None
+    assert verify_restore._restored_text(path, "0" * 64, tmp_path, 0) is None
 
 
 @pytest.mark.skipif(not os.path.isdir("/proc/self/fd"), reason="Linux /proc only")

@@ -386,7 +386,7 @@ def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
     names the changed code as the likely cause. The environment line no longer says so of
     "any difference" (review49), and the cause line had left metadata out: no cause at
     all was given."""
-    import fluxpart.verify as module
+    import fluxpart.verify_folder as module
 
     real = module.code_fingerprint()
     monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
@@ -440,7 +440,7 @@ def test_newer_code_that_states_other_intervals_says_the_central_values_hold(
     with the writing release, or run again into a new folder). A changed central value
     under the same code change is not called an uncertainty; nor is a file edited after
     it was written (no code explains it). Fact of the audit contract (DESIGN.md §4.1)."""
-    import fluxpart.verify as module
+    import fluxpart.verify_folder as module
 
     real = module.code_fingerprint()
     monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
@@ -638,7 +638,7 @@ def test_change_beyond_the_tolerance_is_not_rounding(copy):
 
 def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, capsys):
     """Other code: reported as environment; with a differing value, named as likely cause."""
-    import fluxpart.verify as module
+    import fluxpart.verify_folder as module
 
     real = module.code_fingerprint()
     monkeypatch.setattr(module, "code_fingerprint",
@@ -665,7 +665,7 @@ def test_changed_code_is_not_named_as_the_cause_of_an_edited_input(copy, monkeyp
     install): nothing is recomputed, so no code explains the difference, yet the
     environment line said "changed code is the likely cause of any difference" (review49).
     The fingerprint is still named as a fact; the cause stays the verdict's own."""
-    import fluxpart.verify as module
+    import fluxpart.verify_folder as module
 
     real = module.code_fingerprint()
     monkeypatch.setattr(module, "code_fingerprint", lambda: {**real, "sha256": "f" * 64})
@@ -1061,7 +1061,8 @@ def test_a_computed_manifest_number_rounds_like_a_table_cell():
     adjacent double, numpy.nextafter); the demo site's rerun with AVX-512 switched off
     said NOT reproduced for 1 ulp there. It is rounding now; a larger change, or any
     change of a setting (read, not computed), is still a difference."""
-    from fluxpart.verify import VerifyReport, _compare_manifests
+    from fluxpart.verify import VerifyReport
+    from fluxpart.verify_fields import _compare_manifests
 
     criterion = 1536.041710628546
     stored = {"config": {"despike_z": 4.0},
@@ -1087,7 +1088,7 @@ def test_a_long_manifest_field_shows_where_the_two_values_part():
     characters was shown as two identical 197-character beginnings, so the verdict named
     the field but not the difference. Both values now start shortly before the first
     character where they differ; short values are shown whole as before."""
-    from fluxpart.verify import _compare_manifests
+    from fluxpart.verify_fields import _compare_manifests
 
     head = "daytime partitioning: " + "x" * 300
     stored = {"warnings": [head + "; the nighttime method's E0 (236 K) was used there"]}
