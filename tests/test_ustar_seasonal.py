@@ -111,6 +111,23 @@ def test_a_constant_planted_threshold_read_apart_by_noise_is_not_a_seasonal_chan
     assert found[["season", "lowest_season"]].values.tolist() == [["autumn", "winter"]]
 
 
+def test_a_season_whose_bootstrap_often_fails_is_not_compared():
+    # Known truth, invented: the tussock tundra (site T) of trial_thirtysecond.py, draw 2,
+    # planted 0.12 m s-1 all year. Its midnight-sun summer (865 night records) gave a
+    # threshold in 60 of 100 draws; the others could lie anywhere, so its 5-95 % range
+    # over the 60 is no range of the season's threshold.
+    seasons = {"summer": (0.069, 0.038, 0.041, 0.066, 0.071, 0.078),
+               "autumn": (0.166, 0.116, 0.117, 0.133, 0.167, 0.170)}
+    table = _bootstrap_table(0.117, seasons, year=2021)
+    table["draws_valid"] = [100, 60, 100]
+    assert ustar_seasonal.seasonal_contrast(table).empty
+    # the same percentiles from every draw would be a change (z 3.3 > 2.58, one pair)
+    table["draws_valid"] = 100
+    found = ustar_seasonal.seasonal_contrast(table)
+    assert found[["season", "lowest_season"]].values.tolist() == [["autumn", "summer"]]
+    assert found["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 2))
+
+
 def test_the_critical_separation_is_a_bonferroni_normal_quantile():
     # two-sided normal quantile at level / pairs (Dunn 1961 (m)); scipy.stats.norm as reference
     for pairs, level in [(1, 0.05), (6, 0.01), (12, 0.01), (3, 0.05)]:
