@@ -31,14 +31,15 @@ one, judged the same way, and its threshold above the year's at all (``far_apart
 Each season's bootstrap draws give its centre (their median) and its standard
 error (the 5–95 % range over 2 x 1.645, a normal distribution's); a pair's
 difference of centres over the root sum of squares of the two errors is a z
-statistic (Efron and Tibshirani 1993, ch. 12 and 16 (m): a test from bootstrap
+statistic (Efron and Tibshirani 1993, ch. 6 and 16 (m): a test from bootstrap
 standard errors of two independent estimates; the seasons' records are resampled
 independently). With k seasons a year has k(k - 1)/2 pairs, and the rule takes
 the pair most apart, so the level is shared by every pair of every year of the
 record (Bonferroni, m pairs in all): a pair counts where its z exceeds the
 normal quantile 1 - level / (2 m) (two-sided: which season is higher is read from
-the data), 3.14 for one year of four seasons, 3.39 for two. Noise alone then
-raises the warning in at most one record in a hundred whatever its length. A
+the data), 3.14 for one year of four seasons, 3.39 for two. Where the bootstrap
+spreads are honest, noise alone then raises the warning in at most one record in a
+hundred whatever its length. A
 season whose bootstrap found no threshold in more than 5 % of its draws is not
 compared: its percentiles are those of the draws that found one, and the draws
 that did not could lie beyond either end of its range (the thirty-second trial's
