@@ -203,14 +203,17 @@ def seasonal_contrast(table: pd.DataFrame, margin: float = SEASONAL_MARGIN,
         centre = (seasons["threshold_p50"].to_numpy(dtype=float)
                   if "threshold_p50" in seasons.columns else (low_end + high_end) / 2)
         centre = np.where(np.isfinite(centre), centre, (low_end + high_end) / 2)
-        error = (high_end - low_end) / (2 * _Z95)
+        # each side's standard error from its own half of the range: the higher season's
+        # draws below its median, the lower season's above (bootstrap draws are skewed)
+        below = (centre - low_end) / _Z95
+        above_centre = (high_end - centre) / _Z95
         high, low = np.meshgrid(np.arange(len(seasons)), np.arange(len(seasons)),
                                 indexing="ij")
         with np.errstate(divide="ignore", invalid="ignore"):
             # the plain difference, and the difference beyond the margin factor
-            apart = (centre[high] - centre[low]) / np.hypot(error[high], error[low])
+            apart = (centre[high] - centre[low]) / np.hypot(below[high], above_centre[low])
             beyond = ((centre[high] - margin * centre[low])
-                      / np.hypot(error[high], margin * error[low]))
+                      / np.hypot(below[high], margin * above_centre[low]))
         year_threshold = float(whole.iloc[0])
         above = threshold[high] / year_threshold
         # resolved and well above the year's, or resolved well apart and above the year's
