@@ -96,10 +96,13 @@ class Config:
         (up to +21 % on generated site-years); the median assumes one threshold per
         year, which is what the pipeline applies.
     ustar_distinct_seasons : str
-        What a year whose seasons' u* thresholds clearly differ (two seasons'
-        bootstrap 5–95 % ranges apart and the higher more than 20 % above the year's,
-        or the ranges more than 20 % apart and the higher above the year's at all,
-        :mod:`fluxpart.ustar_seasonal`) is filtered with. ``"own_threshold"``
+        What a year whose seasons' u* thresholds clearly differ is filtered with:
+        two seasons' bootstrap medians apart by more than their bootstrap standard
+        errors allow at 1 % over every pair of seasons of the record (Bonferroni;
+        since 0.39.0, before: their 5–95 % ranges apart) and the higher season more
+        than 20 % above the year's, or the higher more than 20 % above the lower,
+        judged alike, and above the year's at all (:mod:`fluxpart.ustar_seasonal`,
+        whose docstring gives the level's reason). ``"own_threshold"``
         (default since 0.11.0): each season at the larger of its own threshold and
         the year's, the run with the year's threshold on every night joining the u*
         part of the uncertainty. ``"uncertainty_only"`` (0.8.1–0.10.0): the year's

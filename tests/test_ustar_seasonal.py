@@ -1,9 +1,12 @@
 """Seasons whose u* threshold clearly differs from the year's (fluxpart.ustar_seasonal).
 
 Thresholds per season are those of Papale et al. (2006) (m); the rule for "clearly
-differs" (non-overlapping bootstrap 5–95 % ranges and more than 20 % above the
-year's threshold, or ranges more than 20 % apart and above the year's) and the floor at the year's threshold are ours. The known-truth
-test uses the invented demo site.
+differs" (two seasons' bootstrap medians apart by more than their bootstrap standard
+errors allow at 1 %, Bonferroni over the pairs of seasons compared, and the higher more
+than 20 % above the year's threshold, or more than 20 % above the lower and above the
+year's) and the floor at the year's threshold are ours; the normal quantiles are checked
+against scipy.stats.norm (a reference library). The known-truth tests use the invented
+demo site and u* tables of invented known-truth trials.
 """
 
 from statistics import NormalDist
@@ -11,6 +14,7 @@ from statistics import NormalDist
 import numpy as np
 import pandas as pd
 import pytest
+from scipy import stats
 
 import fluxpart
 from fluxpart import demo, ustar_seasonal
@@ -58,7 +62,9 @@ def test_seasons_resolved_well_apart_count_though_the_year_lies_near_the_higher(
             "summer": (0.2662, 0.2353, 0.2850), "autumn": (0.2706, 0.2360, 0.3006)}
     table = _table(0.2367, rows)
     found = ustar_seasonal.seasonal_contrast(table)
-    assert found[["season", "lowest_season"]].values.tolist() == [["autumn", "spring"]]
+    # the pair most apart judged by the bootstrap spreads (summer's is narrower than autumn's)
+    assert found[["season", "lowest_season"]].values.tolist() == [["summer", "spring"]]
+    assert found["separation"].iloc[0] > found["critical"].iloc[0]
     index = pd.date_range("2021-01-01", periods=365 * 24, freq="60min")
     central = np.full(len(index), 0.2367)
     applied = ustar_seasonal.seasonal_thresholds(index, 51.4, table, central, found["year"])
@@ -68,6 +74,128 @@ def test_seasons_resolved_well_apart_count_though_the_year_lies_near_the_higher(
     assert applied[~later] == pytest.approx(0.2367)         # never below the year's
     # the same seasons, but the higher ones below the year's threshold: nothing to raise
     assert ustar_seasonal.seasonal_contrast(_table(0.30, rows)).empty
+
+
+def _bootstrap_table(year_threshold, seasons, year=2024):
+    """A u* table from (threshold, p05, p16, p50, p84, p95) per season."""
+    names = ["threshold", "threshold_p05", "threshold_p16", "threshold_p50",
+             "threshold_p84", "threshold_p95"]
+    rows = [{"year": year, "period": "year", "threshold": year_threshold,
+             **dict(zip(names[1:], [year_threshold] * 5, strict=True))}]
+    rows += [{"year": year, "period": name, **dict(zip(names, values, strict=True))}
+             for name, values in seasons.items()]
+    return pd.DataFrame(rows)
+
+
+# Known truth, invented: the u* table of the silage sward (site R) of
+# tests/benchmarks/trial_thirtysecond.py, draw 1, whose planted threshold is 0.14 m s-1 ALL
+# YEAR. Autumn's point threshold lies 31 % above the year's and its 5th percentile above
+# winter's 95th, which the rule before 0.39.0 read as a seasonal change; its draws' median
+# lies 2.97 standard errors above winter's, less than noise reaches among six pairs.
+SWARD_CONSTANT = {"winter": (0.1340, 0.1190, 0.1240, 0.1310, 0.1360, 0.1380),
+                  "spring": (0.1330, 0.1220, 0.1250, 0.1320, 0.1400, 0.1470),
+                  "summer": (0.1430, 0.1360, 0.1390, 0.1460, 0.1550, 0.1620),
+                  "autumn": (0.1870, 0.1500, 0.1560, 0.1710, 0.1830, 0.1970)}
+
+
+def test_a_constant_planted_threshold_read_apart_by_noise_is_not_a_seasonal_change():
+    table = _bootstrap_table(0.1430, SWARD_CONSTANT)
+    autumn, winter = SWARD_CONSTANT["autumn"], SWARD_CONSTANT["winter"]
+    assert autumn[1] > winter[5] and autumn[0] > 1.2 * 0.1430     # the old rule's reading
+    assert ustar_seasonal.seasonal_contrast(table).empty
+    # the same seasons resolved by a year with four times the nights (spreads halved
+    # about each draws' median) are a change: the rule tests, it does not refuse
+    halved = {name: (t, *(m + (p - m) / 2 for p in (p05, p16, m, p84, p95)))
+              for name, (t, p05, p16, m, p84, p95) in SWARD_CONSTANT.items()}
+    found = ustar_seasonal.seasonal_contrast(_bootstrap_table(0.1430, halved))
+    assert found[["season", "lowest_season"]].values.tolist() == [["autumn", "winter"]]
+
+
+def test_each_season_is_judged_by_the_half_of_its_draws_facing_the_other():
+    # Known truth, invented: the spruce-lichen woodland (site N) of trial_thirtieth.py,
+    # draw 0, planted 0.22 m s-1 all year. Spring's draws are skewed upward (median 0.157,
+    # 95th percentile 0.212): whether spring lies below winter is a question of its upper
+    # half and of winter's lower half; the whole ranges read a z of 3.6 (named), the
+    # facing halves 2.9 (not named; Efron and Tibshirani 1993, percentile intervals (m)).
+    seasons = {"winter": (0.2753, 0.2357, 0.2590, 0.2779, 0.2955, 0.3200),
+               "spring": (0.1603, 0.1403, 0.1469, 0.1570, 0.1994, 0.2119),
+               "summer": (0.2263, 0.2037, 0.2119, 0.2249, 0.2445, 0.2590),
+               "autumn": (0.2230, 0.1995, 0.2064, 0.2182, 0.2295, 0.2410)}
+    assert ustar_seasonal.seasonal_contrast(_bootstrap_table(0.2262, seasons, 2022)).empty
+    # the same spring with its draws symmetric about the median would be a change
+    symmetric = {**seasons, "spring": (0.1603, 0.1403, 0.1469, 0.1570, 0.1671, 0.1737)}
+    found = ustar_seasonal.seasonal_contrast(_bootstrap_table(0.2262, symmetric, 2022))
+    assert found[["season", "lowest_season"]].values.tolist() == [["winter", "spring"]]
+
+
+def test_a_season_whose_bootstrap_often_fails_is_not_compared():
+    # Known truth, invented: the tussock tundra (site T) of trial_thirtysecond.py, draw 2,
+    # planted 0.12 m s-1 all year. Its midnight-sun summer (865 night records) gave a
+    # threshold in 60 of 100 draws; the others could lie anywhere, so its 5-95 % range
+    # over the 60 is no range of the season's threshold.
+    seasons = {"summer": (0.069, 0.038, 0.041, 0.066, 0.071, 0.078),
+               "autumn": (0.166, 0.116, 0.117, 0.133, 0.167, 0.170)}
+    table = _bootstrap_table(0.117, seasons, year=2021)
+    table["draws_valid"] = [100, 60, 100]
+    assert ustar_seasonal.seasonal_contrast(table).empty
+    # the same percentiles from every draw would be a change (z 3.3 > 2.58, one pair)
+    table["draws_valid"] = 100
+    found = ustar_seasonal.seasonal_contrast(table)
+    assert found[["season", "lowest_season"]].values.tolist() == [["autumn", "summer"]]
+    assert found["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 2))
+
+
+def test_the_critical_separation_is_a_bonferroni_normal_quantile():
+    # two-sided normal quantile at level / pairs (Dunn 1961 (m)); scipy.stats.norm as reference
+    for pairs, level in [(1, 0.05), (6, 0.01), (12, 0.01), (3, 0.05)]:
+        assert ustar_seasonal.critical_separation(pairs, level) == pytest.approx(
+            stats.norm.isf(level / (2 * pairs)), rel=1e-9)
+    assert ustar_seasonal.critical_separation(6) == pytest.approx(3.144, abs=1e-3)
+    assert ustar_seasonal.critical_separation(0) == np.inf
+    # two years of four seasons share the level: twelve pairs
+    one = _bootstrap_table(0.1430, SWARD_CONSTANT)
+    two = pd.concat([one, _bootstrap_table(0.1430, SWARD_CONSTANT, year=2025)])
+    halved = {name: (t, *(m + (p - m) / 2.2 for p in (p05, p16, m, p84, p95)))
+              for name, (t, p05, p16, m, p84, p95) in SWARD_CONSTANT.items()}
+    separated = _bootstrap_table(0.1430, halved)
+    found_one = ustar_seasonal.seasonal_contrast(separated)
+    found_two = ustar_seasonal.seasonal_contrast(pd.concat(
+        [separated, _bootstrap_table(0.1430, halved, year=2025)]))
+    assert found_one["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 12))
+    assert found_two["critical"].tolist() == pytest.approx([stats.norm.isf(0.01 / 24)] * 2)
+    assert ustar_seasonal.seasonal_contrast(two).empty
+
+
+def _null_tables(rng, count, spread_range=(0.005, 0.04), shift=1.0):
+    """`count` one-year tables of four seasons whose true thresholds are equal (0.2 m s-1,
+    `shift` times it in summer), each season's draws normal about a centre that scatters by
+    its own standard error (an honest bootstrap)."""
+    tables = []
+    for _ in range(count):
+        error = rng.uniform(*spread_range, size=4)
+        truth = np.array([0.2, 0.2, 0.2 * shift, 0.2])
+        centre = truth + error * rng.standard_normal(4)
+        seasons = {name: (c, c - 1.645 * e, c - e, c, c + e, c + 1.645 * e)
+                   for name, c, e in zip(("winter", "spring", "summer", "autumn"), centre,
+                                         error, strict=True)}
+        tables.append(_bootstrap_table(0.15, seasons))
+    return tables
+
+
+def test_noise_alone_qualifies_about_the_stated_share_of_years_and_a_real_change_most():
+    # The level's claim on simulated bootstrap tables (normal draws, equal true thresholds):
+    # with the margin set to 1 only the test decides; the Bonferroni bound holds the share
+    # of qualifying years at or under 1 % (expected 0.6-1 % for six correlated pairs).
+    rng = np.random.default_rng(60)
+    null = _null_tables(rng, 500)
+    fired = sum(not ustar_seasonal.seasonal_contrast(t, margin=1.0).empty for t in null)
+    assert fired / 500 < 0.02
+    assert fired > 0                                    # a test, not a refusal
+    # a summer threshold 40 % above the others, resolved as a year of nights resolves
+    # the seasons (standard errors 3-8 % of the threshold), is found nearly always
+    planted = _null_tables(rng, 60, spread_range=(0.006, 0.016), shift=1.4)
+    found = sum(not ustar_seasonal.seasonal_contrast(t).empty for t in planted)
+    assert found / 60 > 0.9
 
 
 def test_table_without_bootstrap_percentiles_gives_nothing():
