@@ -2351,7 +2351,14 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
                         starts[found[-1][0]] + pd.Timedelta(days=31))
     first_unit = (next((first for cut, first, _ in found if starts[cut] >= jump[1]),
                        found[-1][1]) if jump is not None else None)
-    if jump is not None:
+    zero = np.array([0.0])
+    if jump is not None and any(
+            to_canonical(zero, name, unit, interval_minutes=interval_minutes)[0] != 0.0
+            for unit in (declared, other)):
+        # a unit with an offset (°F against °C) is no factor on the values: the day alone
+        head += (f" (the values change from {jump[1]:%Y-%m-%d} on, the day that best splits "
+                 "the days' scales into two steady parts)")
+    elif jump is not None:
         measured = jump[0] if first_unit == declared else 1.0 / jump[0]
         factors = _unit_factors(name, declared, interval_minutes)
         fitted = unit_of_factor(measured, factors)

@@ -155,9 +155,9 @@ def test_dormant_months_are_no_unit_but_a_unit_steps():
     assert stepped_months(written, starts, [], factor) == []
 
 
-def _vpd_hpa_from(tmp_path, date: str) -> str:
-    """The refusal of the invented grassland example with VPD written in hPa from `date`
-    under its kPa declaration (1 kPa = 10 hPa, SI)."""
+def _refusal_with(tmp_path, column: str, date: str, edit) -> str:
+    """The refusal of the invented grassland example with `column` written as `edit`
+    makes it from `date` on."""
     from fluxpart.errors import FluxpartError
     from fluxpart.io import read_config
 
@@ -167,8 +167,8 @@ def _vpd_hpa_from(tmp_path, date: str) -> str:
     frame = pd.read_csv(example.with_suffix(".csv"), dtype={"stamp_end": str})
     later = (pd.to_datetime(frame["stamp_end"], format="%Y%m%d%H%M")
              > pd.Timestamp(date)).to_numpy()
-    vpd = frame["vpd_kpa"].to_numpy()
-    frame["vpd_kpa"] = np.where(later & (vpd != -9999), np.round(vpd * 10, 3), vpd)
+    values = frame[column].to_numpy()
+    frame[column] = np.where(later & (values != -9999), edit(values), values)
     frame.to_csv(tmp_path / "quillmoor_grassland.csv", index=False)
     with pytest.raises(FluxpartError) as raised:
         read_config(config)
@@ -181,12 +181,23 @@ def test_a_change_mid_month_is_dated_and_its_unit_named(tmp_path, date):
     refusal had stated a factor 0.0455 from 1 May (two fortnights' 99th percentiles, the
     later holding three changed days), which fit no unit; now the day of the change and
     the factor of hPa against kPa, 0.1 (1 kPa = 10 hPa, SI)."""
-    text = _vpd_hpa_from(tmp_path, date)
+    text = _refusal_with(tmp_path, "vpd_kpa", date, lambda kpa: np.round(kpa * 10, 3))
     found = re.search(r"jump by a factor ([0-9.e+-]+) from (\d{4}-\d{2}-\d{2}) on", text)
     assert found is not None, text
     assert found.group(2) == date, text
     assert float(found.group(1)) == pytest.approx(0.1, rel=UNIT_FIT - 1.0), text
     assert "fits 'hPa'" in text, text
+
+
+def test_a_unit_with_an_offset_is_dated_without_a_factor(tmp_path):
+    """tair in °F from 20 September (°F = 1.8 °C + 32, NIST SP 811 (m)): the refusal
+    had stated "a factor 0.334 ... fits no unit", with negative factors for K and °F; a
+    unit with an offset is no factor on the values, so the day alone is stated."""
+    text = _refusal_with(tmp_path, "air_temp_c", "2021-09-20",
+                         lambda celsius: np.round(celsius * 1.8 + 32.0, 2))
+    assert "values change from 2021-09-20 on" in text, text
+    assert "factor" not in text.split("values change from")[1].split(")")[0], text
+    assert "jump by a factor" not in text, text
 
 
 @pytest.mark.parametrize("unit", ["mg CO2 m-2 s-1", "g C m-2"])

@@ -30,28 +30,33 @@ CO2_MG = 44.009e-3                   # µmol m-2 s-1 -> mg CO2 m-2 s-1
 C_PER_RECORD = 1800 * 12.011e-6      # µmol m-2 s-1 -> g C m-2 per 30-min record
 
 #: (label, column, multiplier from the declared unit to the planted one, the unit's name,
-#: decimals written)
+#: decimals written, offset added after the multiplier)
 UNITS = [
-    ("NEE in mg CO2 m-2 s-1", "co2_exchange", CO2_MG, "mg CO2 m-2 s-1", 5),
-    ("NEE in g C m-2 per record", "co2_exchange", C_PER_RECORD, "g C m-2", 6),
-    ("VPD in hPa (declared kPa)", "vpd_kpa", 10.0, "hPa", 3),
-    ("VPD in Pa (declared kPa)", "vpd_kpa", 1000.0, "Pa", 1),
-    ("u* in cm s-1", "friction_velocity", 100.0, "cm s-1", 1),
-    ("Rg in kW m-2", "solar_down", 1e-3, "kW m-2", 5),
-    ("Rg in MJ m-2 per record", "solar_down", 1800e-6, "MJ m-2", 6),
+    ("NEE in mg CO2 m-2 s-1", "co2_exchange", CO2_MG, "mg CO2 m-2 s-1", 5, 0.0),
+    ("NEE in g C m-2 per record", "co2_exchange", C_PER_RECORD, "g C m-2", 6, 0.0),
+    ("VPD in hPa (declared kPa)", "vpd_kpa", 10.0, "hPa", 3, 0.0),
+    ("VPD in Pa (declared kPa)", "vpd_kpa", 1000.0, "Pa", 1, 0.0),
+    ("u* in cm s-1", "friction_velocity", 100.0, "cm s-1", 1, 0.0),
+    ("u* in km h-1", "friction_velocity", 3.6, "km h-1", 3, 0.0),
+    ("Rg in kW m-2", "solar_down", 1e-3, "kW m-2", 5, 0.0),
+    ("Rg in MJ m-2 per record", "solar_down", 1800e-6, "MJ m-2", 6, 0.0),
+    ("RH as a fraction", "rel_humidity", 0.01, "fraction", 4, 0.0),
+    ("tair in °F", "air_temp_c", 1.8, "°F", 2, 32.0),
+    ("tsoil in K", "soil_temp_5cm", 1.0, "K", 2, 273.15),
 ]
 DATES = ["2021-03-17", "2021-05-12", "2021-07-09", "2021-09-20", "2021-11-05"]
 
 
-def planted(frame: pd.DataFrame, column: str, factor: float, decimals: int, date: str,
-            later: bool) -> pd.DataFrame:
-    """`frame` with `column` times `factor` from `date` on (`later`) or before it."""
+def planted(frame: pd.DataFrame, column: str, factor: float, decimals: int, offset: float,
+            date: str, later: bool) -> pd.DataFrame:
+    """`frame` with `column` times `factor` plus `offset` from `date` on (`later`) or
+    before it."""
     stamps = pd.to_datetime(frame["stamp_end"].astype(str), format="%Y%m%d%H%M")
     inside = (stamps > pd.Timestamp(date)).to_numpy()
     inside = (inside if later else ~inside) & (frame[column].to_numpy() != MISSING)
     values = frame[column].to_numpy(dtype=float)
     out = frame.copy()
-    out[column] = np.where(inside, np.round(values * factor, decimals), values)
+    out[column] = np.where(inside, np.round(values * factor + offset, decimals), values)
     return out
 
 
@@ -73,6 +78,11 @@ def judged(message: str, date: str, factor: float, unit: str) -> str:
     split = "changed within the record" in message
     jump = re.search(r"jump by a factor ([0-9.e+-]+)\D*?(\d{4}-\d{2}-\d{2})", message)
     fits = re.search(r"which (fits [^)]*\)?)", message)
+    change = re.search(r"values change from (\d{4}-\d{2}-\d{2}) on", message)
+    if jump is None and change is not None:        # a unit with an offset: the day alone
+        days = (pd.Timestamp(change.group(1)) - pd.Timestamp(date)).days
+        return (f"refused, {'split named' if split else 'no split'}; date {change.group(1)} "
+                f"({days:+d} d), no factor stated (a unit with an offset)")
     if jump is None:
         return f"refused, {'split named' if split else 'no split'}, no jump stated: {message[:90]}"
     found, at = float(jump.group(1)), pd.Timestamp(jump.group(2))
@@ -93,13 +103,13 @@ def main(argv=None) -> int:
     tally = {"cases": 0, "day": 0, "week": 0, "unit": 0, "read": 0}
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
-        for label, column, factor, unit, decimals in UNITS:
+        for label, column, factor, unit, decimals, offset in UNITS:
             for date in DATES:
                 for later in (True, False):
                     name = f"{label} {'from' if later else 'until'} {date}"
                     if args.only and not any(o in name for o in args.only):
                         continue
-                    line = judged(outcome(planted(clean, column, factor, decimals, date, later),
+                    line = judged(outcome(planted(clean, column, factor, decimals, offset, date, later),
                                           text, folder), date, factor, unit)
                     print(f"{name:48s} {line}", flush=True)
                     tally["cases"] += 1
