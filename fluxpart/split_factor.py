@@ -144,7 +144,7 @@ def change_point(values, starts: pd.DatetimeIndex, first: pd.Timestamp, last: pd
     (:func:`daily_magnitudes`) within :data:`SIDE_DAYS` either side of it are fitted by
     least absolute deviations as a line (the season's course) plus a step at it, and as
     the line alone. The day whose step lowers the absolute deviation most, per day
-    fitted, is the change; the step there is the log of the factor. A unit is a factor
+    fitted, is the change. A unit is a factor
     on every value, so the days after the change stand apart from those before by the
     same step whatever their weather, while a season moves the scale gradually; a window
     holding only a few changed days at its edge gains little from a step (the 99th
