@@ -9,6 +9,10 @@ units' own (SI prefixes; 1 kPa = 10 hPa; mg CO2 m-2 s-1 = 1000 / 44.009 µmol m-
 m-2 per 30 min = 1e6 / 12.011 / 1800 µmol m-2 s-1: IUPAC standard atomic weights (m)).
 
     PYTHONPATH=$PWD python tests/benchmarks/bench_split_units.py [--only TEXT ...]
+        [--seed N --variant c3|c4 --interval 30|60]
+
+With ``--seed``, another invented Quillmoor year (``fluxpart.demo.write_example``: grassland
+c3 or maize c4, 30- or 60-min records) stands in for the example.
 """
 
 from __future__ import annotations
@@ -97,12 +101,21 @@ def judged(message: str, date: str, factor: float, unit: str) -> str:
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--only", nargs="*", default=None)
+    parser.add_argument("--seed", type=int, default=None)
+    parser.add_argument("--variant", default="c3")
+    parser.add_argument("--interval", type=int, default=30)
     args = parser.parse_args(argv)
-    text = EXAMPLE.read_text()
-    clean = pd.read_csv(EXAMPLE.with_suffix(".csv"), dtype={"stamp_end": str})
     tally = {"cases": 0, "day": 0, "week": 0, "unit": 0, "read": 0}
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
+        example = EXAMPLE
+        if args.seed is not None:
+            from fluxpart.demo import write_example
+            example = write_example(folder / "demo", seed=args.seed, variant=args.variant,
+                                    interval_minutes=args.interval)
+        text = example.read_text().replace(f'path = "{example.stem}.csv"',
+                                           f'path = "{EXAMPLE.stem}.csv"')
+        clean = pd.read_csv(example.with_suffix(".csv"), dtype={"stamp_end": str})
         for label, column, factor, unit, decimals, offset in UNITS:
             for date in DATES:
                 for later in (True, False):
