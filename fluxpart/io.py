@@ -131,7 +131,7 @@ from .quoted_lines import (
 from .reader_notes import ReaderNote, notes_of, warnings_of
 from .shifted_fields import shifted_records
 from .site import Site
-from .split_factor import UNIT_FIT, jump_factor, unit_of_factor
+from .split_factor import UNIT_FIT, change_point, unit_of_factor
 from .stamp_places import (
     half_interval_message,
     name_conflict_message,
@@ -2351,14 +2351,25 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
     # the jump of the values at the change measures the unit's factor (round mistakes41:
     # g C m-2 per record, 46 times smaller, was named as mg CO2, 22.7)
     head = message.split("; ")[0]
-    # the cut whose jump is largest: where several month starts split the record into
-    # parts that each pass, the first may lie months before the change (round
-    # mistakes50: VPD in hPa from July measured around March, 0.7, "fits no unit")
-    jumps = [(jump_factor(values, starts, cut), first) for cut, first, _ in found]
-    jumps = [(jump, first) for jump, first in jumps if jump is not None]
-    jump, first_unit = (max(jumps, key=lambda pair: abs(np.log(pair[0][0]))) if jumps
-                        else (None, None))
-    if jump is not None:
+    # the day of the change, searched over every day from a month before the first cut
+    # that splits to a month after the last (round mistakes50: the first cut may lie months
+    # before the change; a cut a month before the change splits too, its later part mostly
+    # in one unit): the day whose step best splits the days' scales about the
+    # season's course (round splitfactor: the largest jump of two fortnights' 99th
+    # percentiles took a fortnight holding three changed days for the change, VPD in hPa
+    # from 12 May measured as 0.0455 from 1 May, "fits no unit")
+    jump = change_point(values, starts, starts[found[0][0]] - pd.Timedelta(days=31),
+                        starts[found[-1][0]] + pd.Timedelta(days=31))
+    first_unit = (next((first for cut, first, _ in found if starts[cut] >= jump[1]),
+                       found[-1][1]) if jump is not None else None)
+    zero = np.array([0.0])
+    if jump is not None and any(
+            to_canonical(zero, name, unit, interval_minutes=interval_minutes)[0] != 0.0
+            for unit in (declared, other)):
+        # a unit with an offset (°F against °C) is no factor on the values: the day alone
+        head += (f" (the values change from {jump[1]:%Y-%m-%d} on, the day that best splits "
+                 "the days' scales into two steady parts)")
+    elif jump is not None:
         measured = jump[0] if first_unit == declared else 1.0 / jump[0]
         factors = _unit_factors(name, declared, interval_minutes)
         fitted = unit_of_factor(measured, factors)
@@ -2372,8 +2383,9 @@ def _unit_changed_within(name: str, message: str, values, converted: dict, units
                    "fits no unit within a factor "
                    f"{UNIT_FIT:g}: " + " or ".join(f"{unit!r} ({factor:.3g} times)"
                                                      for unit, factor in factors.items()))
-            head += (f" (the values jump by a factor {measured:.3g} in the fortnights "
-                     f"either side of {jump[1]:%Y-%m-%d}, which {fit})")
+            head += (f" (the values jump by a factor {measured:.3g} from {jump[1]:%Y-%m-%d} on, "
+                     "the day that best splits the days' scales into two steady parts, the "
+                     f"factor from the same hours of the fortnights either side; which {fit})")
     cut, first, second = found[0]
     last = found[-1][0]
     canonical = VARIABLES[name].unit if name in VARIABLES else "its canonical unit"

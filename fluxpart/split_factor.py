@@ -29,7 +29,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["FORTNIGHT_DAYS", "UNIT_FIT", "jump_factor", "stepped_months", "unit_of_factor"]
+__all__ = ["FORTNIGHT_DAYS", "SIDE_DAYS", "UNIT_FIT", "change_point", "daily_magnitudes",
+           "hour_matched_factor", "jump_factor", "stepped_months", "unit_of_factor"]
 
 #: Days either side of a candidate change whose magnitudes are compared.
 FORTNIGHT_DAYS = 14
@@ -37,6 +38,19 @@ FORTNIGHT_DAYS = 14
 #: named as the one the values fit: half the log distance between 22.7 and 46.3
 #: (sqrt(46.3 / 22.7) = 1.43) keeps the two units apart.
 UNIT_FIT = 1.4
+#: Days either side of a candidate change day over which :func:`change_point` fits the
+#: season's course and the step: four weeks, enough days that a few days of weather move
+#: the fit little, few enough that the season's course within them is close to a line in
+#: log magnitude (our choice).
+SIDE_DAYS = 28
+#: Percentile of a day's magnitudes taken as its scale: its high values (a flux's
+#: midday uptake, the afternoon's VPD), which a unit scales as it scales every value and
+#: which do not sit near zero as a day's median may (our choice).
+DAY_PERCENTILE = 90
+#: Fewest values of a day for its scale to count, and fewest such days each side of a
+#: candidate change for the change to be fitted (our choice: a quarter of a half-hourly
+#: day; ten days of the four weeks).
+DAY_VALUES, SIDE_VALID_DAYS = 12, 10
 
 
 def jump_factor(values, starts: pd.DatetimeIndex, cut: int, search_days: int = 31
@@ -82,6 +96,163 @@ def jump_factor(values, starts: pd.DatetimeIndex, cut: int, search_days: int = 3
         if best is None or abs(np.log(ratio)) > abs(np.log(best[0])):
             best = (ratio, day)
     return best
+
+
+def daily_magnitudes(values, starts: pd.DatetimeIndex) -> tuple[np.ndarray, np.ndarray]:
+    """Each day's scale: the log of the :data:`DAY_PERCENTILE` th percentile of |values|.
+
+    Parameters
+    ----------
+    values : array_like
+        The column as written (NaN = missing), one value per record.
+    starts : pandas.DatetimeIndex
+        Interval start of each record, increasing.
+
+    Returns
+    -------
+    (days, scale) : numpy.ndarray, numpy.ndarray
+        Day numbers (days since 1970-01-01, int) of the days with :data:`DAY_VALUES`
+        finite values or more and a positive percentile, and the natural log of that
+        percentile [log of the column's unit].
+    """
+    magnitude = pd.Series(np.abs(np.asarray(values, dtype=float)),
+                          index=pd.DatetimeIndex(starts).normalize()).dropna()
+    grouped = magnitude.groupby(level=0)
+    scale = grouped.quantile(DAY_PERCENTILE / 100.0)
+    keep = (grouped.size() >= DAY_VALUES) & (scale > 0.0)
+    days = (scale.index[keep] - pd.Timestamp("1970-01-01")).days.to_numpy()
+    return days.astype(int), np.log(scale[keep].to_numpy())
+
+
+def _least_absolute(design: np.ndarray, target: np.ndarray) -> tuple[np.ndarray, float]:
+    """Least-absolute-deviation coefficients of `target` on `design` and their summed
+    absolute residual (iteratively reweighted least squares, Schlossmacher 1973)."""
+    weights = np.ones(target.size)
+    for _ in range(20):
+        root = np.sqrt(weights)
+        coef = np.linalg.lstsq(design * root[:, None], target * root, rcond=None)[0]
+        residual = np.abs(target - design @ coef)
+        weights = 1.0 / np.maximum(residual, 1e-3)
+    return coef, float(residual.sum())
+
+
+def change_point(values, starts: pd.DatetimeIndex, first: pd.Timestamp, last: pd.Timestamp
+                 ) -> tuple[float, pd.Timestamp] | None:
+    """The day from which a column's scale changed, and by what factor.
+
+    Every day boundary from `first` to `last` is tried: the days' scales
+    (:func:`daily_magnitudes`) within :data:`SIDE_DAYS` either side of it are fitted by
+    least absolute deviations as a line (the season's course) plus a step at it, and as
+    the line alone. The day whose step lowers the absolute deviation most, per day
+    fitted, is the change. A unit is a factor
+    on every value, so the days after the change stand apart from those before by the
+    same step whatever their weather, while a season moves the scale gradually; a window
+    holding only a few changed days at its edge gains little from a step (the 99th
+    percentile of a fortnight, :func:`jump_factor`, is set by those few days alone:
+    round splitfactor). The factor is then measured hour by hour over the fortnights
+    either side of that day (:func:`hour_matched_factor`); where the fitted line grows
+    by :data:`UNIT_FIT` or more between the two fortnights' centres (green-up, a
+    harvest), that growth is taken out.
+
+    Parameters
+    ----------
+    values : array_like
+        The column as written (NaN = missing), one value per record.
+    starts : pandas.DatetimeIndex
+        Interval start of each record, increasing.
+    first, last : pandas.Timestamp
+        The earliest and latest day searched (the day of the first record after the
+        change).
+
+    Returns
+    -------
+    (factor, at) or None
+        `factor` = the scale of the values before `at` over that after [-] (above 1 where
+        the later values are smaller), the season's course taken out; `at` the first
+        day of the later scale (midnight of the records' clock). None where no day in
+        the range has :data:`SIDE_VALID_DAYS` days with a scale either side.
+
+    References
+    ----------
+    Schlossmacher, E. J. (1973). An iterative technique for absolute deviations curve
+    fitting. Journal of the American Statistical Association, 68(344), 857-859.
+    A step in a series fitted by maximum likelihood over every candidate point (here
+    with Laplace errors, the least absolute deviation): Hinkley, D. V. (1970).
+    Inference about the change-point in a sequence of random variables. Biometrika,
+    57(1), 1-17 (m).
+    """
+    days, scale = daily_magnitudes(values, starts)
+    epoch = pd.Timestamp("1970-01-01")
+    best = None
+    for day in range((pd.Timestamp(first).normalize() - epoch).days,
+                     (pd.Timestamp(last).normalize() - epoch).days + 1):
+        inside = np.abs(days - day + 0.5) < SIDE_DAYS
+        later = days[inside] >= day
+        if later.sum() < SIDE_VALID_DAYS or (~later).sum() < SIDE_VALID_DAYS:
+            continue
+        line = np.column_stack([np.ones(later.size), (days[inside] - day) / SIDE_DAYS])
+        _, without = _least_absolute(line, scale[inside])
+        coef, with_step = _least_absolute(np.column_stack([line, later]), scale[inside])
+        gain = (without - with_step) / later.size
+        if best is None or gain > best[0]:
+            best = (gain, epoch + pd.Timedelta(days=day), float(coef[1]))
+    if best is None:
+        return None
+    factor = hour_matched_factor(values, starts, best[1])
+    if factor is None:
+        return None
+    # the season's growth between the two fortnights' centres, from the fitted line,
+    # taken out where it reaches the unit tolerance; a smaller one is within the
+    # fortnights' own noise, which its estimate would add to
+    season = float(np.exp(best[2] * FORTNIGHT_DAYS / SIDE_DAYS))
+    if abs(np.log(season)) >= np.log(UNIT_FIT):
+        factor *= season
+    return factor, best[1]
+
+
+def hour_matched_factor(values, starts: pd.DatetimeIndex, at: pd.Timestamp) -> float | None:
+    """The ratio of a column's scale in the fortnight before `at` to that after, hour by hour.
+
+    For each hour of the day, the :data:`DAY_PERCENTILE` th percentile of |values| of
+    that hour in the :data:`FORTNIGHT_DAYS` days before `at` over that in the days from
+    `at`; the factor is the median of these ratios (in log). The same hours of the same
+    season are compared: a unit scales each of them alike, while the day's course
+    (night against day) and the weather of single days weigh little. On the invented
+    grassland year's clean columns, tried every third day, the factor departed from 1
+    by a median 1.19 and a 95th percentile 1.6 for NEE (1.22 and 1.63 for VPD, 1.08 and
+    1.21 for u*, 1.13 and 1.25 for Rg), against 1.22 and 1.99 for NEE's fortnight 99th
+    percentile taken whole (round splitfactor): the weather's own change between
+    fortnights, which no estimate from them removes.
+
+    Parameters
+    ----------
+    values : array_like
+        The column as written (NaN = missing), one value per record.
+    starts : pandas.DatetimeIndex
+        Interval start of each record, increasing.
+    at : pandas.Timestamp
+        The first record time of the later scale.
+
+    Returns
+    -------
+    float or None
+        Scale before over scale after [-]; None where no hour has five values with a
+        positive percentile on each side.
+    """
+    values = np.abs(np.asarray(values, dtype=float))
+    starts = pd.DatetimeIndex(starts)
+    span = pd.Timedelta(days=FORTNIGHT_DAYS)
+    lo, mid, hi = starts.searchsorted([at - span, at, at + span])
+    ratios = []
+    for rows in (slice(lo, mid), slice(mid, hi)):
+        part = pd.Series(values[rows], index=starts.hour[rows]).dropna()
+        grouped = part.groupby(level=0)
+        scale = grouped.quantile(DAY_PERCENTILE / 100.0)
+        ratios.append(scale[(grouped.size() >= 5) & (scale > 0.0)])
+    before, after = ratios[0].align(ratios[1], join="inner")
+    if before.empty:
+        return None
+    return float(np.exp(np.median(np.log(before.to_numpy() / after.to_numpy()))))
 
 
 def unit_of_factor(factor: float, factors: dict) -> str | None:

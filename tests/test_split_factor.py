@@ -12,7 +12,14 @@ import pandas as pd
 import pytest
 
 from fluxpart.io import _unit_factors
-from fluxpart.split_factor import jump_factor, stepped_months, unit_of_factor
+from fluxpart.split_factor import (
+    UNIT_FIT,
+    change_point,
+    hour_matched_factor,
+    jump_factor,
+    stepped_months,
+    unit_of_factor,
+)
 
 
 def _flux(days=120, seed=0):
@@ -76,9 +83,11 @@ def test_the_jump_is_measured_at_the_change_not_at_the_first_split(tmp_path):
     with pytest.raises(FluxpartError) as raised:
         read_config(config)
     text = str(raised.value)
-    at = re.search(r"either side of (\d{4}-\d{2}-\d{2})", text)
+    at = re.search(r"from (\d{4}-\d{2}-\d{2}) on", text)
     assert at is not None, text
-    assert pd.Timestamp(at.group(1)) >= pd.Timestamp("2021-06-20"), text
+    # the first July record ends at 00:30 on 1 July; the stamps mark ends, so the
+    # records from 30 June 23:30 are in hPa
+    assert abs((pd.Timestamp(at.group(1)) - pd.Timestamp("2021-07-01")).days) <= 1, text
 
 
 def test_soil_water_as_tsoil_is_named_not_a_unit_changed_within(tmp_path):
@@ -144,3 +153,82 @@ def test_dormant_months_are_no_unit_but_a_unit_steps():
     written[august] /= factor
     assert stepped_months(written, starts, ["2022-08", "2022-12"], factor) == ["2022-08"]
     assert stepped_months(written, starts, [], factor) == []
+
+
+def _refusal_with(tmp_path, column: str, date: str, edit) -> str:
+    """The refusal of the invented grassland example with `column` written as `edit`
+    makes it from `date` on."""
+    from fluxpart.errors import FluxpartError
+    from fluxpart.io import read_config
+
+    example = Path(__file__).resolve().parents[1] / "examples" / "quillmoor_grassland.toml"
+    config = tmp_path / example.name
+    config.write_text(example.read_text())
+    frame = pd.read_csv(example.with_suffix(".csv"), dtype={"stamp_end": str})
+    later = (pd.to_datetime(frame["stamp_end"], format="%Y%m%d%H%M")
+             > pd.Timestamp(date)).to_numpy()
+    values = frame[column].to_numpy()
+    frame[column] = np.where(later & (values != -9999), edit(values), values)
+    frame.to_csv(tmp_path / "quillmoor_grassland.csv", index=False)
+    with pytest.raises(FluxpartError) as raised:
+        read_config(config)
+    return str(raised.value)
+
+
+@pytest.mark.parametrize("date", ["2021-05-12", "2021-07-09"])
+def test_a_change_mid_month_is_dated_and_its_unit_named(tmp_path, date):
+    """VPD in hPa from a day that is no month's first (round mistakes58's case): the
+    refusal had stated a factor 0.0455 from 1 May (two fortnights' 99th percentiles, the
+    later holding three changed days), which fit no unit; now the day of the change and
+    the factor of hPa against kPa, 0.1 (1 kPa = 10 hPa, SI)."""
+    text = _refusal_with(tmp_path, "vpd_kpa", date, lambda kpa: np.round(kpa * 10, 3))
+    found = re.search(r"jump by a factor ([0-9.e+-]+) from (\d{4}-\d{2}-\d{2}) on", text)
+    assert found is not None, text
+    assert found.group(2) == date, text
+    assert float(found.group(1)) == pytest.approx(0.1, rel=UNIT_FIT - 1.0), text
+    assert "fits 'hPa'" in text, text
+
+
+def test_a_unit_with_an_offset_is_dated_without_a_factor(tmp_path):
+    """tair in °F from 20 September (°F = 1.8 °C + 32, NIST SP 811 (m)): the refusal
+    had stated "a factor 0.334 ... fits no unit", with negative factors for K and °F; a
+    unit with an offset is no factor on the values, so the day alone is stated."""
+    text = _refusal_with(tmp_path, "air_temp_c", "2021-09-20",
+                         lambda celsius: np.round(celsius * 1.8 + 32.0, 2))
+    assert "values change from 2021-09-20 on" in text, text
+    assert "factor" not in text.split("values change from")[1].split(")")[0], text
+    assert "jump by a factor" not in text, text
+
+
+@pytest.mark.parametrize("unit", ["mg CO2 m-2 s-1", "g C m-2"])
+@pytest.mark.parametrize("date", ["2022-04-23", "2022-05-12", "2022-09-27"])
+def test_change_point_finds_the_day_through_the_season(unit, date):
+    """A flux growing out of winter and back (invented, known truth) written in another
+    unit from a day in green-up or senescence: every day boundary of two months is
+    tried, the day of the change is found to the day, and the factor, from the same
+    hours either side, names the unit (molar masses: IUPAC standard atomic weights (m))."""
+    starts, flux = _seasonal_flux()
+    factors = _unit_factors("nee", None, 30)
+    written = flux.copy()
+    later = np.asarray(starts >= pd.Timestamp(date))
+    written[later] /= factors[unit]
+    found = change_point(written, starts, pd.Timestamp(date) - pd.Timedelta(days=31),
+                         pd.Timestamp(date) + pd.Timedelta(days=31))
+    assert found is not None
+    factor, at = found
+    assert at == pd.Timestamp(date)
+    assert unit_of_factor(factor, factors) == unit
+
+
+def test_hour_matched_factor_is_the_units_own_on_a_steady_course():
+    """A steady day's course written ten times larger from a day on (hPa for kPa: 1 kPa
+    = 10 hPa, SI): every hour's percentile steps by exactly 10."""
+    starts = pd.date_range("2021-05-01", periods=60 * 48, freq="30min")
+    hour = np.asarray(starts.hour + starts.minute / 60.0)
+    course = 0.2 + np.clip(np.sin((hour - 6.0) / 12.0 * np.pi), 0.0, None)
+    at = pd.Timestamp("2021-06-05")
+    written = np.where(np.asarray(starts >= at), course * 10.0, course)
+    assert hour_matched_factor(written, starts, at) == pytest.approx(0.1, rel=1e-9)
+    assert change_point(written, starts, at - pd.Timedelta(days=20),
+                        at + pd.Timedelta(days=20))[1] == at
+    assert hour_matched_factor(written[:48], starts[:48], at) is None
