@@ -88,3 +88,32 @@ def test_the_maize_examples_turbulent_flux_mapped_without_its_storage_is_named(t
     # the same file with NEE mapped and the turbulent flux unread: nothing named
     config.write_text(config.read_text().replace('nee = "co2_turb"', 'nee = "co2_total"'))
     assert _reader_warnings(config) == []
+
+
+@pytest.mark.parametrize("share", [0.08, 0.12, 0.16])
+def test_the_flux_before_its_density_correction_is_not_named(share):
+    """The same flux before its density correction (a share of the open-path term: an
+    enclosed-path analyser's damped temperature term) beside NEE mapped rightly: the term
+    is rho_c (1 + mu sigma) H / (rho cp T) + mu rho_c E / rho_d (Webb et al. 1980, QJRMS
+    106:85-100 (m)), negative by night with H and largest at midday, where a store is
+    empty (Finnigan 2006): not a storage course, so not named. Constants: CO2 density
+    16.5 mmol m-3 at 400 ppm (a fact of the trade), rho cp 1200 J m-3 K-1 (handbook value
+    for air near 20 °C), mu = 1.6 (Mw air / Mw water: 28.96 / 18.02), latent heat of
+    vaporisation 2.45 MJ kg-1 (handbook value at 20 °C)."""
+    light, nee, _, _ = _tower()
+    sensible = 0.4 * light - 50.0 * (light < 5)          # W m-2: H by day, the stable night
+    latent = 0.3 * light                                 # W m-2
+    density_term = share * (16500.0 * sensible / (1200.0 * 293.15)
+                            + 16500.0 * 1.6 * (latent / 2.45e6) / 1.2)
+    before = nee - density_term
+    assert same_flux(nee, before)      # the same flux in the same unit: the case is live
+    assert storage_corrected_beside(nee, light, {"co2_raw": before}, 30, "co2_nee") is None
+
+
+def test_a_store_vented_through_the_whole_day_is_not_confused_with_a_density_term():
+    """The turbulent flux mapped beside NEE stays named when its store vents in the
+    morning and the rest of the day is about zero (Finnigan 2006): the new test does not
+    lose the mistake it was made for."""
+    light, nee, turbulent, _ = _tower(seed=3)
+    assert storage_corrected_beside(turbulent, light, {"co2_nee": nee}, 30,
+                                    "co2_flux") is not None
