@@ -117,3 +117,48 @@ def test_a_store_vented_through_the_whole_day_is_not_confused_with_a_density_ter
     light, nee, turbulent, _ = _tower(seed=3)
     assert storage_corrected_beside(turbulent, light, {"co2_nee": nee}, 30,
                                     "co2_flux") is not None
+
+
+def _series(tmp_path, files, program_change=False):
+    """The invented tower of :func:`_tower` (90 days, half-hourly) written as `files`
+    files of a series (each under :data:`MIN_NIGHTS` nights where `files` is 4), the
+    turbulent flux mapped as nee beside the unread NEE; or as one file whose header is
+    written again halfway with one more column (a logger program change)."""
+    import pandas as pd
+
+    light, nee, turbulent, _ = _tower(days=90, seed=2)
+    stamps = pd.date_range("2021-05-01 00:30", periods=light.size, freq="30min")
+    table = pd.DataFrame({"stamp": stamps.strftime("%Y-%m-%d %H:%M"),
+                          "fc": turbulent.round(3), "sw": light.round(1),
+                          "ta": 15.0, "vpd": 0.8, "ust": 0.3, "nee_total": nee.round(3)})
+    if program_change:
+        half = len(table) // 2
+        first = table.iloc[:half].to_csv(index=False)
+        second = table.iloc[half:].assign(extra=1.0).to_csv(index=False)
+        (tmp_path / "tower_1.csv").write_text(first + second)
+    else:
+        for number, rows in enumerate(np.array_split(np.arange(len(table)), files)):
+            table.iloc[rows].to_csv(tmp_path / f"tower_{number + 1}.csv", index=False)
+    config = tmp_path / "site.toml"
+    config.write_text('[site]\nname = "Fictional test tower"\nlatitude = 10.0\n'
+                      'longitude = 0.0\nutc_offset = 0.0\ncanopy = "tall"\n\n'
+                      '[input]\npath = "tower_*.csv"\ntime_column = "stamp"\n'
+                      'time_format = "%Y-%m-%d %H:%M"\ntime_marks = "end"\n\n'
+                      '[input.columns]\nnee = "fc"\nrg = "sw"\ntair = "ta"\nvpd = "vpd"\n'
+                      'ustar = "ust"\n\n[input.units]\nvpd = "kPa"\n')
+    return config
+
+
+@pytest.mark.parametrize("files", [1, 4])
+def test_a_series_of_short_files_is_judged_joined(tmp_path, files):
+    """Four files of about 22 nights each (under MIN_NIGHTS alone): the mistake is named
+    once on the joined records, as in the one file of the same records."""
+    named = _reader_warnings(_series(tmp_path, files))
+    assert len(named) == 1 and "'nee_total'" in named[0]
+
+
+def test_a_program_change_names_the_column_once(tmp_path):
+    """A file whose logger program changed halfway is read as two parts: one warning for
+    the file, not one per part."""
+    named = _reader_warnings(_series(tmp_path, 1, program_change=True))
+    assert len(named) == 1 and "'nee_total'" in named[0]
