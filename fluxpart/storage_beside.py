@@ -40,22 +40,29 @@ __all__ = ["SAME_FLUX_CORRELATION", "SLOPE_RANGE", "MIN_NIGHTS", "NIGHT_Z", "MOR
 
 #: The unread column follows the mapped flux this closely (Pearson r over the records
 #: both hold) to be the same flux at all: the storage term is a small part of the
-#: variance of a half-hourly CO2 flux, whose daytime uptake dominates it (our choice).
+#: variance of a half-hourly CO2 flux, whose daytime uptake dominates it (our choice,
+#: not fitted to any probe: 81 % of the variance shared).
 SAME_FLUX_CORRELATION = 0.9
 #: ... with a least-squares slope within this range: the same unit (mg CO2 against µmol
-#: is a factor of 0.044, a storage term of a few per cent changes the slope little).
+#: is a factor of 0.044, g C against g CO2 0.27, mmol against µmol 1000; a storage term of
+#: a few per cent changes the slope little). Symmetric in ratio (1/1.25 = 0.8), it admits
+#: no unit factor of the trade (argued from the units, not fitted).
 SLOPE_RANGE = (0.8, 1.25)
-#: Nights (and their mornings) the difference must be judged on: a month of them.
+#: Nights (and their mornings) the difference must be judged on: a month of them (our
+#: choice: the standard errors below rest on that many independent nights; the files of
+#: a series are judged joined, so a file a day or a month is judged too).
 MIN_NIGHTS = 30
 #: The nights' mean difference above 0 by this many standard errors (one-sided p below
 #: 3e-7: a column differing by noise alone is not named across thousands of files) ...
 NIGHT_Z = 5.0
 #: ... and the mornings' (the first 3 h after each night) below 0 by this many: the vent
 #: of the night's store; a constant offset or a second analyser's bias has one sign all
-#: day and is not named.
+#: day and is not named. A confirming test after the nights' (one-sided p 1.3e-3, joint
+#: with the nights' far below it), so the usual 3 standard errors (our choice).
 MORNING_Z = 3.0
 #: The nights' mean difference at least this share of the median magnitude of the
-#: mapped night flux: a store too small to move a budget is not named (our choice).
+#: mapped night flux: a store too small to move a budget is not named (our choice, not
+#: fitted to any probe).
 MIN_NIGHT_SHARE = 0.05
 #: Hours after the end of a night that count as its morning (the vent of the store takes
 #: the first hours of daytime mixing; common practice (m)), as
