@@ -1044,6 +1044,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         raise InputFileError(f"every input file is empty ({len(empty)} files, e.g. "
                              f"{empty[0]!r}); check [input] path")
     _refuse_ordinary_code_of_files(code_cells, parts)
+    stored = _storage_corrected_beside(parts, mapping) if "storage" not in mapping else None
+    if stored:
+        warnings.append(f"storage: {stored}")
     warnings.extend(_later_files_warnings(later_notes, parts[0], rows_before_header,
                                           delimiter))
     header_rows = _header_rows_warning(parts)
@@ -4833,12 +4836,12 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                             f"infinite or absurd value(s) (magnitude {ABSURD_MAGNITUDE:g} or "
                             "more) read as missing, first on data line "
                             f"{int(lines[_first_in_file(lines, absurd)])} of its file")
-    if "nee" in values and "storage" not in mapping and parsed.stamps.is_monotonic_increasing:
-        # the storage-corrected NEE left unread beside a turbulent flux mapped (mistakes59)
-        stored = _storage_corrected_beside(raw, values, mapping, parsed.stamps, missing,
-                                           decimal, {*read.values(), *time_columns})
-        if stored:
-            warnings.append(f"storage: {stored}")
+    # the unread columns that may be the storage-corrected NEE beside a turbulent flux
+    # mapped (mistakes59), judged once on the records of every file and part joined
+    # (review93: a series of monthly files each held too few nights to be judged)
+    beside = (_storage_candidates(raw, values, missing, decimal,
+                                  {*read.values(), *time_columns})
+              if "nee" in values and "storage" not in mapping else {})
 
     # exact duplicate rows: same stamp and same value in every column read (none where
     # no stamp repeats, the usual file, which a hash of the stamps alone tells)
@@ -4892,6 +4895,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         "flag_columns": flag_columns, "lacking": lacking, "file_columns": list(raw.columns),
         "stamps": stamps, "lines": lines[keep],
         "values": {name: column[keep] for name, column in values.items()},
+        "storage_candidates": {column: found[keep] for column, found in beside.items()},
         "records_read": len(raw), "duplicate_rows": int(duplicate.sum()),
         "newest_first": newest_first, "header_trailing_delimiter": bool(unnamed_surplus),
         "missing_cells": missing_cells, "nonfinite_cells": nonfinite,
@@ -6406,20 +6410,20 @@ def _refuse_digit_grouping(cleaned: pd.Series, column: str, name: str, decimal: 
         "without the 1000 separator)")
 
 
-def _storage_corrected_beside(raw, values, mapping, stamps, missing, decimal,
-                              taken) -> str | None:
-    """:func:`fluxpart.storage_beside.storage_corrected_beside` on a file's unread columns.
+def _storage_candidates(raw, values, missing, decimal, taken) -> dict:
+    """The file's unread columns that read as the flux mapped as ``nee``, parsed whole.
 
-    Only the columns whose every 20th record already reads as the mapped flux
-    (:func:`fluxpart.storage_beside.same_flux`) are parsed whole, so a file of many
-    columns costs a sample of each.
+    Only the columns whose sample of at most 1000 records (every 20th or closer) already
+    reads as the mapped flux (:func:`fluxpart.storage_beside.same_flux`) are parsed whole,
+    so a file of many columns costs a sample of each; a short file of a series is sampled
+    closely enough to be judged. Empty where the file maps no Rg or PPFD.
     """
-    from .storage_beside import same_flux, storage_corrected_beside
+    from .storage_beside import same_flux
 
-    light = values.get("rg", values.get("ppfd"))
-    if light is None or len(stamps) < 200:
-        return None
+    if values.get("rg", values.get("ppfd")) is None:
+        return {}
     nee = values["nee"]
+    step = int(min(20, max(1, len(nee) // 1000)))
     codes = [code for code in _numeric_codes(missing, decimal) if math.isfinite(code)]
 
     def numbers(cells):
@@ -6435,13 +6439,41 @@ def _storage_corrected_beside(raw, values, mapping, stamps, missing, decimal,
     for column in raw.columns:
         if column in taken or column in others:
             continue
-        if not same_flux(nee[::20], numbers(raw[column].iloc[::20])):
+        if not same_flux(nee[::step], numbers(raw[column].iloc[::step])):
             continue
         others[column] = numbers(raw[column])
-    if not others:
+    return others
+
+
+def _storage_corrected_beside(parts: list, mapping: dict) -> str | None:
+    """:func:`fluxpart.storage_beside.storage_corrected_beside` on the unread columns of
+    every file and part joined in time order (a column a part lacks, or whose sample did
+    not read as the flux there, is missing in that part's records)."""
+    from .storage_beside import storage_corrected_beside
+
+    names = list(dict.fromkeys(column for part in parts
+                               for column in part.get("storage_candidates", {})))
+    light_name = "rg" if "rg" in mapping else "ppfd"
+    if not names or light_name not in mapping:
         return None
-    # the median step, whatever the stamps' resolution or zone
-    minutes = pd.DatetimeIndex(stamps).to_series().diff().median().total_seconds() / 60.0
+    # nanoseconds of each record (of UTC where the stamps carry a zone), in time order
+    moments = np.concatenate([pd.DatetimeIndex(part["stamps"]).as_unit("ns").asi8
+                              for part in parts])
+    if moments.size < 200:
+        return None
+    order = np.argsort(moments, kind="stable")
+
+    def joined(take):
+        return np.concatenate([
+            np.asarray(take(part), dtype=float) if take(part) is not None
+            else np.full(len(part["stamps"]), np.nan) for part in parts])[order]
+
+    nee = joined(lambda part: part["values"].get("nee"))
+    light = joined(lambda part: part["values"].get(light_name))
+    others = {column: joined(lambda part, column=column: part.get(
+        "storage_candidates", {}).get(column)) for column in names}
+    # the median step [min], whatever the stamps' resolution
+    minutes = float(np.median(np.diff(moments[order]))) / 6e10
     return storage_corrected_beside(nee, light, others, minutes, mapping["nee"])
 
 
