@@ -343,8 +343,16 @@ def contrast_warnings(contrast: pd.DataFrame, rule: str = "own_threshold") -> li
             f"{row.season_threshold:.3f} m s-1 (bootstrap 5th percentile "
             f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f}, while "
             f"{row.lowest_season} lies at most {row.lowest_p95:.3f}; judged by their "
-            f"bootstrap spreads the two differ at z = {row.separation:.1f}, beyond "
+            f"bootstrap spreads the two differ {_separation_text(row.separation)}, beyond "
             f"the {row.critical:.2f} that noise alone exceeds in 1 record in "
             f"{1 / SEASONAL_TEST_LEVEL:.0f}. {what}"
             for row in contrast.itertuples()]
 
+
+def _separation_text(separation: float) -> str:
+    """A pair's z as the warning states it; an infinite one (neither season's draws spread
+    between its median and the facing percentile, as where half of them sit at one value)
+    said in words, not as ``z = inf``."""
+    if np.isfinite(separation):
+        return f"at z = {separation:.1f}"
+    return "with no spread between either median and its facing percentile (z unbounded)"

@@ -344,3 +344,15 @@ def test_the_level_is_shared_only_by_the_years_compared():
         [compared, _bootstrap_table(0.2, four, year=2021)]))
     assert shared["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 14))
 
+
+def test_seasons_whose_facing_draws_do_not_spread_are_named_without_an_infinite_z():
+    # Invented: half of each season's draws at one value (a detector's draws can tie), so
+    # the facing halves have no width and the z has no bound; the old rule (5th above
+    # 95th percentile) names the pair as well, and the warning says so in words.
+    seasons = {"winter": (0.30, 0.30, 0.30, 0.30, 0.32, 0.33),
+               "summer": (0.20, 0.18, 0.19, 0.20, 0.20, 0.20)}
+    found = ustar_seasonal.seasonal_contrast(_bootstrap_table(0.2, seasons))
+    assert found["separation"].iloc[0] == np.inf
+    (text,) = ustar_seasonal.contrast_warnings(found)
+    assert "inf" not in text.replace("in 1 record", "")
+    assert "no spread between either median and its facing percentile" in text
