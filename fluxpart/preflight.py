@@ -75,7 +75,7 @@ Warnings (the run goes on):
 - ``input (spliced records)``: two or more joints where soil and air temperature step
   together far beyond the record's own changes (another file's records pasted in).
 - ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted; also
-  where :func:`.column_faults.nee_day_shift` finds a record's shift beating every day's).
+  where :func:`.record_shifts.nee_day_shift` finds a record's shift beating every day's).
 - ``input (nee days)``: NEE changing with Rg whole days earlier or later (files of other
   dates joined).
 - ``input (nee sign)``: months whose NEE rises with light beside months whose NEE falls with
