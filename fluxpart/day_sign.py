@@ -33,7 +33,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .column_faults import _clear_responses
+from .record_shifts import _clear_responses
 from .unit_checks import _MIN_ACTIVE_RECORDS, _SIGN_MIN_RELEASE, _SIGN_TAIL_RATIO
 
 __all__ = ["DAY_RELEASE_RATIO", "STAGE", "day_sign_reversed"]

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .column_faults import _MAX_SHIFT_DAYS, _correlation, _decide
+from .record_shifts import _MAX_SHIFT_DAYS, _correlation, _decide
 from .variables import saturation_vapour_pressure
 
 __all__ = ["MIN_CORRELATION", "tair_day_shift"]

@@ -761,7 +761,7 @@ def _shifted_not_reversed(converted: dict, columns: dict, interval_minutes: int,
     that the file is not negated (round mistakes23: 12 h late on the example site was
     refused as NEP).
     """
-    from .column_faults import nee_hour_shift
+    from .record_shifts import nee_hour_shift
 
     nee, rg = converted.get("nee"), converted.get("rg")
     if nee is None or rg is None or potential is None:
