@@ -2,7 +2,7 @@
 
 The reader refuses NEE whose night median is an uptake *and* whose warm, bright records
 reach further into release than into uptake: the whole column of the opposite sign
-(``unit_checks._nee_sign_message``). And :func:`fluxpart.column_faults.months_rising_with_light`
+(``unit_checks._nee_sign_message``). And :func:`fluxpart.record_shifts.months_rising_with_light`
 names months whose NEE rises with light where other months' falls. A column negated by
 day only (a user's sign convention applied where Rg > 0, an uptake-positive daytime
 product joined to a night file of the right sign) passes both: its nights are a release,
@@ -33,7 +33,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from .column_faults import _clear_responses
+from .record_shifts import _clear_responses
 from .unit_checks import _MIN_ACTIVE_RECORDS, _SIGN_MIN_RELEASE, _SIGN_TAIL_RATIO
 
 __all__ = ["DAY_RELEASE_RATIO", "STAGE", "day_sign_reversed"]
@@ -110,7 +110,7 @@ def day_sign_reversed(nee, rg, tair, potential, stamps, columns=None) -> str | N
     -----
     A whole column of the opposite sign has an uptake at night and is the reader's
     refusal; a sign changed in some months leaves months falling with light and is
-    :func:`fluxpart.column_faults.months_rising_with_light`'s. Between them lies the
+    :func:`fluxpart.record_shifts.months_rising_with_light`'s. Between them lies the
     column negated by day only, which this names.
 
     References

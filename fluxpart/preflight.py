@@ -75,7 +75,7 @@ Warnings (the run goes on):
 - ``input (spliced records)``: two or more joints where soil and air temperature step
   together far beyond the record's own changes (another file's records pasted in).
 - ``input (nee)``: NEE changing with Rg whole records earlier or later (column shifted; also
-  where :func:`.column_faults.nee_day_shift` finds a record's shift beating every day's).
+  where :func:`.record_shifts.nee_day_shift` finds a record's shift beating every day's).
 - ``input (nee days)``: NEE changing with Rg whole days earlier or later (files of other
   dates joined).
 - ``input (nee sign)``: months whose NEE rises with light beside months whose NEE falls with
@@ -173,7 +173,6 @@ from . import (
 )
 from .column_faults import (
     PLACEHOLDER_VARIABLES,
-    RECORD_SHIFT_WORDS,
     censored_nee,
     delayed_tair,
     delayed_tair_in_a_year,
@@ -182,11 +181,6 @@ from .column_faults import (
     flat_air_temperature,
     gapless_nee,
     interpolated_nee,
-    months_rising_with_light,
-    nee_day_shift,
-    nee_hour_shift,
-    nee_lag,
-    nee_shift_from_month,
     placeholder_value,
     rg_blank_in_the_dark,
     same_temperature_columns,
@@ -194,7 +188,6 @@ from .column_faults import (
     sun_heated_tair,
     swapped_temperatures,
     swapped_temperatures_in_months,
-    tair_lag,
     values_written_twice,
     vapour_pressure_as_vpd,
     zero_coded_temperature,
@@ -202,6 +195,15 @@ from .column_faults import (
 from .gapfill import QUALITY_A_WINDOW_DAYS, event_breaks
 from .night_threshold import dark_as_day, twilight_as_night
 from .partition.nighttime import fit_e0_joint
+from .record_shifts import (
+    RECORD_SHIFT_WORDS,
+    months_rising_with_light,
+    nee_day_shift,
+    nee_hour_shift,
+    nee_lag,
+    nee_shift_from_month,
+    tair_lag,
+)
 from .screening import site_flag
 from .uncertainty import gap_runs
 from .ustar import assign_seasons

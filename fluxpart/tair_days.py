@@ -3,7 +3,7 @@
 A shift of the air-temperature column by whole days (a second logger's file joined by a
 day of year counted from 0 instead of 1, or by the wrong year's leap day) keeps its
 diurnal course in step with the sun and with the humidity probe's, so the clock check
-and the shift of up to two hours (:func:`.column_faults.tair_lag`) see nothing. The
+and the shift of up to two hours (:func:`.record_shifts.tair_lag`) see nothing. The
 weather of one day, though, is not the next day's: VPD = e_s(T) (1 - RH / 100) holds at
 one moment (Campbell & Norman 1998, ch. 3 (m)), and the changes from record to record of
 the VPD column then follow e_s(T) (1 - RH / 100) computed with the air temperature of
@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .column_faults import _MAX_SHIFT_DAYS, _correlation, _decide
+from .record_shifts import _MAX_SHIFT_DAYS, _correlation, _decide
 from .variables import saturation_vapour_pressure
 
 __all__ = ["MIN_CORRELATION", "tair_day_shift"]
@@ -59,10 +59,10 @@ def tair_day_shift(tair, rh, vpd, interval_minutes: float, columns=None) -> str 
     Notes
     -----
     For each shift of ``k`` whole days (1 to 31 either way, as the NEE's day-shift check,
-    :func:`.column_faults.nee_day_shift`) the record-to-record changes of the VPD column
+    :func:`.record_shifts.nee_day_shift`) the record-to-record changes of the VPD column
     are correlated with those of e_s(T) (1 - RH / 100), T the air temperature ``k`` days
     later. Where a shift other than 0 correlates more strongly than the same day's by 3
-    standard errors of Fisher's z (sqrt(2 / (n - 3)), :func:`.column_faults._decide`) and
+    standard errors of Fisher's z (sqrt(2 / (n - 3)), :func:`.record_shifts._decide`) and
     to :data:`MIN_CORRELATION` or more, tair is named as whole days away. Correctly
     aligned columns cannot do so: the clouds, fronts and showers that change the air's
     temperature and humidity within a day are that day's alone.

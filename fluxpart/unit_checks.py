@@ -755,13 +755,13 @@ def _shifted_not_reversed(converted: dict, columns: dict, interval_minutes: int,
 
     Half a day off its light, a correct NEE column has its daytime uptake at night and
     its night release by day, so :func:`_nee_sign_message` reads it as NEP. Where
-    :func:`.column_faults.nee_hour_shift` finds the column's changes following Rg's
+    :func:`.record_shifts.nee_hour_shift` finds the column's changes following Rg's
     clearly best hours away (a passing cloud's changes: a column of the opposite sign
     follows the light in the same record), the refusal names the shift instead, so
     that the file is not negated (round mistakes23: 12 h late on the example site was
     refused as NEP).
     """
-    from .column_faults import nee_hour_shift
+    from .record_shifts import nee_hour_shift
 
     nee, rg = converted.get("nee"), converted.get("rg")
     if nee is None or rg is None or potential is None:

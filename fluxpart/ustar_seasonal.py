@@ -194,15 +194,18 @@ def seasonal_contrast(table: pd.DataFrame, margin: float = SEASONAL_MARGIN,
     # the draws of the bootstrap: the most that gave a threshold in any period
     draws = (float(table["draws_valid"].max()) if "draws_valid" in table.columns
              else float("nan"))
-    years = [(int(year), _season_rows(group, draws), group)
-             for year, group in table.groupby("year", sort=True)]
+    years = []
+    for year, group in table.groupby("year", sort=True):
+        whole = group.loc[group["period"] == "year", "threshold"].astype(float)
+        seasons = _season_rows(group, draws)
+        # only a year with a threshold of its own and two seasons is compared
+        if not whole.empty and np.isfinite(whole.iloc[0]) and len(seasons) >= 2:
+            years.append((int(year), seasons, float(whole.iloc[0])))
+    # the pairs compared: the level is shared by these, not by years never compared
     pairs = sum(len(seasons) * (len(seasons) - 1) // 2 for _, seasons, _ in years)
     critical = critical_separation(pairs, level)
     rows = []
-    for year, seasons, group in years:
-        whole = group.loc[group["period"] == "year", "threshold"].astype(float)
-        if whole.empty or not np.isfinite(whole.iloc[0]) or len(seasons) < 2:
-            continue
+    for year, seasons, year_threshold in years:
         threshold = seasons["threshold"].to_numpy(dtype=float)
         low_end = seasons["threshold_p05"].to_numpy(dtype=float)
         high_end = seasons["threshold_p95"].to_numpy(dtype=float)
@@ -220,7 +223,6 @@ def seasonal_contrast(table: pd.DataFrame, margin: float = SEASONAL_MARGIN,
             apart = (centre[high] - centre[low]) / np.hypot(below[high], above_centre[low])
             beyond = ((centre[high] - margin * centre[low])
                       / np.hypot(below[high], margin * above_centre[low]))
-        year_threshold = float(whole.iloc[0])
         above = threshold[high] / year_threshold
         # resolved and well above the year's, or resolved well apart and above the year's
         separated = (apart > critical) & (above > margin)
@@ -341,7 +343,16 @@ def contrast_warnings(contrast: pd.DataFrame, rule: str = "own_threshold") -> li
             f"{row.season_threshold:.3f} m s-1 (bootstrap 5th percentile "
             f"{row.season_p05:.3f}) against the year's {row.year_threshold:.3f}, while "
             f"{row.lowest_season} lies at most {row.lowest_p95:.3f}; judged by their "
-            f"bootstrap spreads the two differ at z = {row.separation:.1f}, beyond the "
-            f"{row.critical:.2f} that noise alone exceeds in 1 record in "
+            f"bootstrap spreads the two differ {_separation_text(row.separation)}, beyond "
+            f"the {row.critical:.2f} that noise alone exceeds in 1 record in "
             f"{1 / SEASONAL_TEST_LEVEL:.0f}. {what}"
             for row in contrast.itertuples()]
+
+
+def _separation_text(separation: float) -> str:
+    """A pair's z as the warning states it; an infinite one (neither season's draws spread
+    between its median and the facing percentile, as where half of them sit at one value)
+    said in words, not as ``z = inf``."""
+    if np.isfinite(separation):
+        return f"at z = {separation:.1f}"
+    return "with no spread between either median and its facing percentile (z unbounded)"

@@ -20,8 +20,8 @@ import numpy as np
 import pandas as pd
 
 from ._groups import group_positions
-from .column_faults import _correlation as _paired_correlation
 from .measured_months import month_runs_text
+from .record_shifts import _correlation as _paired_correlation
 from .variables import vpd_from_rh
 
 __all__ = ["MAPPED_SHARE", "vpd_exchanged_in_months", "vpd_mapped_to_another"]

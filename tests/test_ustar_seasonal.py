@@ -320,3 +320,39 @@ def test_no_seasonal_run_where_one_threshold_holds(written_demo):
     assert "nee_ustar_seasonal" not in result.annual.columns
     assert "nee_ustar_year" not in result.annual.columns
     assert not any("changes with the season" in w for w in result.warnings)
+
+
+def test_the_level_is_shared_only_by_the_years_compared():
+    # Bonferroni over the pairs compared (Dunn 1961 (m); scipy.stats.norm as reference): a
+    # year without a threshold of its own, or with fewer than two seasons that have a range,
+    # is not compared and so takes no share of the level. Invented tables.
+    seasons = {"winter": (0.30, 0.27, 0.28, 0.30, 0.32, 0.33),
+               "summer": (0.20, 0.18, 0.19, 0.20, 0.21, 0.22)}
+    compared = _bootstrap_table(0.2, seasons, year=2020)
+    alone = ustar_seasonal.seasonal_contrast(compared)
+    assert alone["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 2))
+    four = {name: (0.2, 0.18, 0.19, 0.2, 0.21, 0.22)
+            for name in ("winter", "spring", "summer", "autumn")}
+    no_year_threshold = _bootstrap_table(np.nan, four, year=2021)
+    one_season = _bootstrap_table(0.2, {"winter": four["winter"]}, year=2022)
+    found = ustar_seasonal.seasonal_contrast(pd.concat([compared, no_year_threshold,
+                                                        one_season]))
+    assert found["year"].tolist() == [2020]
+    assert found["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 2))
+    # a second compared year of four seasons does share it: 1 + 6 pairs
+    shared = ustar_seasonal.seasonal_contrast(pd.concat(
+        [compared, _bootstrap_table(0.2, four, year=2021)]))
+    assert shared["critical"].iloc[0] == pytest.approx(stats.norm.isf(0.01 / 14))
+
+
+def test_seasons_whose_facing_draws_do_not_spread_are_named_without_an_infinite_z():
+    # Invented: half of each season's draws at one value (a detector's draws can tie), so
+    # the facing halves have no width and the z has no bound; the old rule (5th above
+    # 95th percentile) names the pair as well, and the warning says so in words.
+    seasons = {"winter": (0.30, 0.30, 0.30, 0.30, 0.32, 0.33),
+               "summer": (0.20, 0.18, 0.19, 0.20, 0.20, 0.20)}
+    found = ustar_seasonal.seasonal_contrast(_bootstrap_table(0.2, seasons))
+    assert found["separation"].iloc[0] == np.inf
+    (text,) = ustar_seasonal.contrast_warnings(found)
+    assert "inf" not in text.replace("in 1 record", "")
+    assert "no spread between either median and its facing percentile" in text
