@@ -113,13 +113,16 @@ def program_parts(lines: list, rows_before_header: int, rows_after_header: int,
     if not parts:
         return [], "", -1
     parts.append(Part(first, header, units, len(lines)))
-    for part in parts:
+    for number, part in enumerate(parts):
         held = sum(is_record(line, lines[part.header], delimiter)
                    for line in lines[part.header + part.units + 1:part.end])
         if held < MIN_PART_RECORDS:
-            return [], (f"the part it opens holds {held} record(s) (lines {part.first + 1}-"
+            # the first part is named by the block that ends it: its own header is the
+            # file's, no header written again
+            which = "it opens" if number else "above it"
+            return [], (f"the part {which} holds {held} record(s) (lines {part.first + 1}-"
                         f"{part.end}), fewer than {MIN_PART_RECORDS}: too few to judge its "
-                        "columns by their values"), part.header
+                        "columns by their values"), parts[max(number, 1)].header
     return parts, "", -1
 
 
