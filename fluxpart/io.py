@@ -4458,6 +4458,7 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
         parts.append(part | {"source": f"{path} (lines {piece.first + 1}-{piece.end})",
                              "file": str(path)})
     _refuse_part_units(path, parts, [piece.header for piece in found])
+    _refuse_parts_going_back(path, parts, [piece.header for piece in found])
     warnings = settings["warnings"]
     warnings.append(ReaderNote(
         f"input file {str(path)!r}: the header block written again with other columns "
@@ -4465,6 +4466,34 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
         f"{', '.join(str(piece.header + 1) for piece in found[1:])}: the {len(found)} parts "
         "read each by its own header and joined as files are"))
     return parts
+
+
+def _refuse_parts_going_back(path: Path, parts: list, headers: list) -> None:
+    """Raise where a later part of the file opens with a stamp earlier than a record of
+    the parts before it and not one of theirs (a copy of an overlap is left to the
+    join's check of overlapping files): one logger appends its parts in the order of its
+    clock, as it writes the records of one part, whose stamps going back are refused
+    (:func:`fluxpart.timestamps.check_order`); joined as files are, sorted, a part dated
+    by a clock reset at the program change would be read at another period."""
+    if any(part["newest_first"] for part in parts):
+        return
+    for number in range(1, len(parts)):
+        stamps = parts[number]["stamps"]
+        before = pd.DatetimeIndex(np.concatenate(
+            [np.asarray(part["stamps"]) for part in parts[:number]]))
+        if not len(stamps) or not len(before):
+            continue
+        if stamps[0] < before.max() and stamps[0] not in before:
+            last = int(np.argmax(before.asi8))
+            line = int(np.concatenate([part["lines"] for part in parts[:number]])[last])
+            raise NonMonotonicTimestampError(
+                f"input file {str(path)!r}: the records under the header written again on "
+                f"line {headers[number] + 1} (a logger program changed) start at "
+                f"{stamps[0]} (line {int(parts[number]['lines'][0])}), before the "
+                f"record of {before[last]} on line {line} above it: one logger writes its "
+                "records in the order of its clock (a clock reset at the program change, or "
+                "files of other periods joined?); correct the stamps in a copy of the file, "
+                "or split it there and list the parts in [input] path")
 
 
 def _refuse_part_units(path: Path, parts: list, headers: list) -> None:
