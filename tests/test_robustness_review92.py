@@ -66,3 +66,26 @@ def test_a_short_first_part_is_named_by_the_block_that_ends_it(tmp_path):
     with pytest.raises(InputFileError, match=rf"line {header} is a header line .*the part "
                        r"above it holds 47 record\(s\) \(lines 1-50\)"):
         _read(path, **_settings())
+
+
+@pytest.mark.parametrize("block", ["names", "title_and_names", "names_and_units"])
+def test_a_names_line_without_the_whole_block_is_refused(tmp_path, block):
+    """A line of the names with air and soil temperature exchanged among the records of
+    a file whose block has a title and a units line (a status line, a header pasted in),
+    the records under it unchanged: read as a program change, air temperature was read
+    from the soil column for five days without a word (a file read wrong); a logger writes
+    its whole block again, so now one error naming the line."""
+    frame = _frame()
+    frame["t_soil"] = (pd.to_numeric(frame["t_air"]) * 0.5 + 6).map(lambda v: f"{v:g}")
+    lines = _block(frame)
+    names = "stamp,co2_flux,us,sw,t_soil,vpd,t_air"
+    inserted = {"names": [names], "title_and_names": ["Logger,quill_v3,Signature,40871", names],
+                "names_and_units": [names, "TS,umol m-2 s-1,m s-1,W m-2,degC,hPa,degC"]}[block]
+    lines[300:300] = inserted
+    path = _write(tmp_path / "one.csv", lines)
+    columns = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd",
+               "tsoil": "t_soil"}
+    at = lines.index(names) + 1
+    with pytest.raises(InputFileError, match=rf"line {at} is a header line .*whole header "
+                       "block again"):
+        _read(path, **_settings(), columns=columns)
