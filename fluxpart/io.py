@@ -3794,9 +3794,9 @@ def _emptied_lines(text: str, numbers: set) -> str:
     """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
     if not numbers:
         return text
-    pieces, start = [], 0
-    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):
-        if index > max(numbers):
+    pieces, start, last = [], 0, max(numbers)    # once: a later part of a file empties
+    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):  # every line above it
+        if index > last:
             break
         pieces += ["" if index in numbers else text[start:end.start()], end.group()]
         start = end.end()
@@ -5036,7 +5036,8 @@ def _refuse_stated_otherwise(text: str, header: list, time_columns: tuple, delim
     if not rows_before_header and not rows_after_header:
         return
     statements = [(f"line {number} of {source!r}", line) for number, line in
-                  enumerate(text.splitlines()[:rows_before_header], start=1)]
+                  enumerate(text.splitlines()[:rows_before_header], start=1)
+                  if line.strip()]   # a blank line states nothing (a later part's: thousands)
     cells = _header_rows(text, header, {column: column for column in time_columns},
                          delimiter, rows_before_header, rows_after_header)
     for column, found in cells.values():

@@ -39,6 +39,7 @@ appended to across program changes).
 """
 
 from dataclasses import dataclass
+from itertools import islice
 
 from .later_files import cells, is_record, no_record
 
@@ -117,8 +118,9 @@ def program_parts(lines: list, rows_before_header: int, rows_after_header: int,
         return [], "", -1
     parts.append(Part(first, header, units, len(lines)))
     for number, part in enumerate(parts):
-        held = sum(is_record(line, lines[part.header], delimiter)
-                   for line in lines[part.header + part.units + 1:part.end])
+        records = (line for line in lines[part.header + part.units + 1:part.end]
+                   if is_record(line, lines[part.header], delimiter))
+        held = sum(1 for _ in islice(records, MIN_PART_RECORDS))   # enough once there
         if held < MIN_PART_RECORDS:
             # the first part is named by the block that ends it: its own header is the
             # file's, no header written again
