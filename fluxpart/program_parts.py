@@ -4,10 +4,10 @@ among the records with other columns.
 A logger whose program is changed mid-file (a sensor added or removed, the columns
 reordered by a new program) goes on appending to the same file: it writes its header block
 again (its title line, the names, its units and statistics lines: the whole block the
-file opens with) and the records after it follow the new names. Each such part is read as a file of a series is
-(by its own header and its own lines under it), and the parts are joined as files are
-(:func:`fluxpart.io.read_table`). A header block is taken for the start of a part only
-where every rule holds:
+file opens with) and the records after it follow the new names. Each such part is read as
+a file of a series is (by its own header and its own lines under it), and the parts are
+joined as files are (:func:`fluxpart.io.read_table`). A header block is taken for the
+start of a part only where every rule holds:
 
 - its names line names every time column of the settings and at least half of the names of
   the file's own header, every cell a name (no number), and differs from the header of the
