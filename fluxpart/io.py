@@ -3816,9 +3816,9 @@ def _emptied_lines(text: str, numbers: set) -> str:
     """`text` with the lines of the given 0-based `numbers` emptied, line ends kept."""
     if not numbers:
         return text
-    pieces, start = [], 0
-    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):
-        if index > max(numbers):
+    pieces, start, last = [], 0, max(numbers)    # once: a later part of a file empties
+    for index, end in enumerate(re.finditer(r"\r\n|\r|\n", text)):  # every line above it
+        if index > last:
             break
         pieces += ["" if index in numbers else text[start:end.start()], end.group()]
         start = end.end()
@@ -4480,6 +4480,7 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
         parts.append(part | {"source": f"{path} (lines {piece.first + 1}-{piece.end})",
                              "file": str(path)})
     _refuse_part_units(path, parts, [piece.header for piece in found])
+    _refuse_parts_going_back(path, parts, [piece.header for piece in found])
     warnings = settings["warnings"]
     warnings.append(ReaderNote(
         f"input file {str(path)!r}: the header block written again with other columns "
@@ -4487,6 +4488,34 @@ def _program_change_parts(path: Path, text: str, used_encoding: str, settings: d
         f"{', '.join(str(piece.header + 1) for piece in found[1:])}: the {len(found)} parts "
         "read each by its own header and joined as files are"))
     return parts
+
+
+def _refuse_parts_going_back(path: Path, parts: list, headers: list) -> None:
+    """Raise where a later part of the file opens with a stamp earlier than a record of
+    the parts before it and not one of theirs (a copy of an overlap is left to the
+    join's check of overlapping files): one logger appends its parts in the order of its
+    clock, as it writes the records of one part, whose stamps going back are refused
+    (:func:`fluxpart.timestamps.check_order`); joined as files are, sorted, a part dated
+    by a clock reset at the program change would be read at another period."""
+    if any(part["newest_first"] for part in parts):
+        return
+    for number in range(1, len(parts)):
+        stamps = parts[number]["stamps"]
+        before = pd.DatetimeIndex(np.concatenate(
+            [np.asarray(part["stamps"]) for part in parts[:number]]))
+        if not len(stamps) or not len(before):
+            continue
+        if stamps[0] < before.max() and stamps[0] not in before:
+            last = int(np.argmax(before.asi8))
+            line = int(np.concatenate([part["lines"] for part in parts[:number]])[last])
+            raise NonMonotonicTimestampError(
+                f"input file {str(path)!r}: the records under the header written again on "
+                f"line {headers[number] + 1} (a logger program changed) start at "
+                f"{stamps[0]} (line {int(parts[number]['lines'][0])}), before the "
+                f"record of {before[last]} on line {line} above it: one logger writes its "
+                "records in the order of its clock (a clock reset at the program change, or "
+                "files of other periods joined?); correct the stamps in a copy of the file, "
+                "or split it there and list the parts in [input] path")
 
 
 def _refuse_part_units(path: Path, parts: list, headers: list) -> None:
@@ -5036,7 +5065,8 @@ def _refuse_stated_otherwise(text: str, header: list, time_columns: tuple, delim
     if not rows_before_header and not rows_after_header:
         return
     statements = [(f"line {number} of {source!r}", line) for number, line in
-                  enumerate(text.splitlines()[:rows_before_header], start=1)]
+                  enumerate(text.splitlines()[:rows_before_header], start=1)
+                  if line.strip()]   # a blank line states nothing (a later part's: thousands)
     cells = _header_rows(text, header, {column: column for column in time_columns},
                          delimiter, rows_before_header, rows_after_header)
     for column, found in cells.values():

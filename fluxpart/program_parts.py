@@ -3,11 +3,11 @@ among the records with other columns.
 
 A logger whose program is changed mid-file (a sensor added or removed, the columns
 reordered by a new program) goes on appending to the same file: it writes its header block
-again (its title line, the names, its units and statistics lines, or the names alone) and
-the records after it follow the new names. Each such part is read as a file of a series is
-(by its own header and its own lines under it), and the parts are joined as files are
-(:func:`fluxpart.io.read_table`). A header block is taken for the start of a part only
-where every rule holds:
+again (its title line, the names, its units and statistics lines: the whole block the
+file opens with) and the records after it follow the new names. Each such part is read as
+a file of a series is (by its own header and its own lines under it), and the parts are
+joined as files are (:func:`fluxpart.io.read_table`). A header block is taken for the
+start of a part only where every rule holds:
 
 - its names line names every time column of the settings and at least half of the names of
   the file's own header, every cell a name (no number), and differs from the header of the
@@ -16,12 +16,15 @@ where every rule holds:
 - the lines directly above it that are no record of the part before (not a line of at
   least half numbers as wide as that part's header, :func:`fluxpart.later_files.is_record`,
   and not opening with a digit, as a stamp and a record cut short do) are its title lines:
-  at most ``rows_before_header`` of them, and only in a file that has title lines, the top
-  one of the same kind as the file's own (the same first cell and as many cells: the same
-  logger's file format, another program's name or signature);
+  as many as the file's own (not blank; none in a file that has none), the top one of the
+  same kind as the file's own (the same first cell and as many cells: the same logger's
+  file format, another program's name or signature);
 - the lines directly under it that are no record (as wide as it, no digit in a time
-  column's cell, :func:`fluxpart.later_files.no_record`) are its units lines: at most
-  ``rows_after_header`` of them, and a record of its layout follows them;
+  column's cell, :func:`fluxpart.later_files.no_record`) are its units lines: exactly
+  ``rows_after_header`` of them, and a record of its layout follows them (a logger writes
+  its whole block again: a names line alone among the records of a file whose block has
+  title or units lines is a status line or a header pasted in, and its names need not be
+  those of the records under it);
 - every part holds at least :data:`MIN_PART_RECORDS` records: a part of a few lines is too
   short to judge its columns by their values (a header line of another table pasted in?).
 
@@ -36,6 +39,7 @@ appended to across program changes).
 """
 
 from dataclasses import dataclass
+from itertools import islice
 
 from .later_files import cells, is_record, no_record
 
@@ -113,13 +117,17 @@ def program_parts(lines: list, rows_before_header: int, rows_after_header: int,
     if not parts:
         return [], "", -1
     parts.append(Part(first, header, units, len(lines)))
-    for part in parts:
-        held = sum(is_record(line, lines[part.header], delimiter)
-                   for line in lines[part.header + part.units + 1:part.end])
+    for number, part in enumerate(parts):
+        records = (line for line in lines[part.header + part.units + 1:part.end]
+                   if is_record(line, lines[part.header], delimiter))
+        held = sum(1 for _ in islice(records, MIN_PART_RECORDS))   # enough once there
         if held < MIN_PART_RECORDS:
-            return [], (f"the part it opens holds {held} record(s) (lines {part.first + 1}-"
+            # the first part is named by the block that ends it: its own header is the
+            # file's, no header written again
+            which = "it opens" if number else "above it"
+            return [], (f"the part {which} holds {held} record(s) (lines {part.first + 1}-"
                         f"{part.end}), fewer than {MIN_PART_RECORDS}: too few to judge its "
-                        "columns by their values"), part.header
+                        "columns by their values"), parts[max(number, 1)].header
     return parts, "", -1
 
 
@@ -137,6 +145,13 @@ def _block(lines: list, index: int, before: int, delimiter: str, time_columns,
                 else f"a line that is no record stands above it (line {top + 1}: "
                 f"{lines[top].strip()[:60]!r}) in a file of no title lines")
         return (f"{what} where [input] rows_before_header = {rows_before_header}"), top, 0
+    if titles and above != len(titles):
+        # a logger writes its whole header block again; a names line alone among the
+        # records of a file with title lines is a status line or a header pasted in,
+        # whose names need not be those of the records under it
+        return (f"{above} line(s) that are no record stand above it where the file's own "
+                f"header has {len(titles)} title line(s) (a logger writes its whole header "
+                "block again: a status line or a header pasted among the records?)"), top, 0
     if above and titles:
         mine, theirs = cells(titles[0], delimiter), cells(lines[top], delimiter)
         if mine[0].casefold() != theirs[0].casefold() or len(mine) != len(theirs):
@@ -150,6 +165,13 @@ def _block(lines: list, index: int, before: int, delimiter: str, time_columns,
     if under > rows_after_header:
         return (f"more lines under it than [input] rows_after_header = {rows_after_header} "
                 f"are no record (lines {index + 2}-{index + 1 + under})"), top, under
+    if under < rows_after_header:
+        # the same: its units lines, as many as the file's own (lines of a program's
+        # records are all the text says of their units)
+        return (f"{under} line(s) that are no record stand under it where [input] "
+                f"rows_after_header = {rows_after_header} (a logger writes its whole header "
+                "block again, its units lines too: a status line or a header pasted among "
+                "the records?)"), top, under
     after = index + 1 + under
     if after >= len(lines) or not is_record(lines[after], lines[index], delimiter):
         shown = lines[after].strip()[:60] if after < len(lines) else "the end of the file"

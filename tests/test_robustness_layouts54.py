@@ -145,11 +145,11 @@ def test_program_parts_gives_each_block(tmp_path):
     frame = _frame()
     lines = (_block(frame.iloc[:200]) + _block(_later(frame.iloc[200:400], REORDERED),
                                                "Logger,quill_v4,S,1")
-             + _block(frame.iloc[400:], "Logger,quill_v5,S,2", with_units=False))
+             + _block(frame.iloc[400:], "Logger,quill_v5,S,2"))
     parts, refusal, _ = program_parts.program_parts(lines, 1, 1, ",", ("stamp",))
     assert refusal == ""
     assert [(p.first, p.header, p.units, p.end) for p in parts] == [
-        (0, 1, 1, 203), (203, 204, 1, 406), (406, 407, 0, len(lines))]
+        (0, 1, 1, 203), (203, 204, 1, 406), (406, 407, 1, len(lines))]
 
 
 @pytest.mark.parametrize("other", [False, True])

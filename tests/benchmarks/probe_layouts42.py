@@ -391,7 +391,8 @@ def arrow_feather_file(folder):
 
     feather.write_feather(pa.Table.from_pandas(table()[0]), folder / "t.feather")
     toml(folder, "t.feather")
-    return "refused"
+    # read since the typed tables of a later round (fluxpart.table_formats): the truth
+    # is the example's frame, no longer "refused"
 
 
 @case
@@ -401,7 +402,7 @@ def parquet_with_typed_columns(folder):
     frame.insert(0, "stamp", ends)
     frame.to_parquet(folder / "t.parquet")
     toml(folder, "t.parquet")
-    return "refused"
+    # read since the typed tables of a later round (fluxpart.table_formats)
 
 
 @case
@@ -454,7 +455,8 @@ def a_file_a_variable_weather_in_another_stamp_form(folder):
     weather["stamp"] = stamps(ends, "%Y-%m-%d %H:%M")
     write(folder / "weather.csv", lines(weather))
     toml(folder, ["co2.csv", "weather.csv"])
-    return "refused"      # one time_format: the weather file's stamps do not match it
+    # read since a later round read a later file's stamps in the one other layout that
+    # reads every one of them (named in a note): the truth is the example's frame
 
 
 @case
