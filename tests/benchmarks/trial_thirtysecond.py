@@ -668,7 +668,7 @@ LAYOUTS = {
               units={}),
     "W": dict(delimiter=",", time=[("unix_time", None)], writer=None,
               time_format="seconds since 1970-01-01 UTC", marks="end", code="-9999",
-              names={"nee": "Fc", "rg": "Fsd", "tair": "Ta", "vpd": "VPD_kpa",
+              names={"nee": "Fc", "rg": "solar_in", "tair": "Ta", "vpd": "VPD_kpa",
                      "ustar": "ustar", "tsoil": "Ts"}, units={"vpd": "kPa"}),
     "N": dict(delimiter=",", time=[("start_time", "%m/%d/%Y %H:%M")],
               time_format="%m/%d/%Y %H:%M", marks="start", code="",
