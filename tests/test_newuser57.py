@@ -260,3 +260,42 @@ def test_the_readmes_rerun_for_diff_works_as_written(copy, capsys, monkeypatch):
     assert main(shlex.split(diff.split("#", 1)[0])[1:]) == 0
     out = capsys.readouterr().out
     assert "same result" in out and "only the site config's bytes differ" in out
+
+
+def test_the_glance_tables_driver_units_hold_in_parquet_csv_and_netcdf(written_demo, tmp_path):
+    """The modeller compared the Parquet `vpd_filled` with the NetCDF `vpd` and found them
+    100 times apart: the NetCDF writes VPD in Pa (the canonical unit of the CF standard
+    name water_vapor_saturation_deficit_in_air (m)), the Parquet tables in hPa, and the
+    README's table at a glance did not say so. Its drivers row is checked against the
+    three formats, the values converted with UDUNITS-2 (cf_units) from each file's own
+    unit attribute."""
+    cf_units = pytest.importorskip("cf_units")
+    xr = pytest.importorskip("xarray")
+
+    glance = README[README.index("## For modellers"):README.index("The examples read a result")]
+    row = next(line for line in glance.splitlines() if line.startswith("| drivers"))
+    parquet_cell, netcdf_cell, csv_cell = [c.strip() for c in row.split("|")[2:5]]
+    _, folder = written_demo
+    series = pd.read_parquet(folder / "timeseries.parquet")
+    units = series.attrs["units"]
+    stated = {"rg_filled": "W m-2", "tair_filled": "°C (`degC`)", "tsoil_filled": "°C (`degC`)",
+              "vpd_filled": "**hPa**", "ustar": "m s-1"}
+    for column, unit in stated.items():
+        assert re.search(rf"`{column}`[^|]*?{re.escape(unit)}", parquet_cell), column
+        assert cf_units.Unit(units[column]) == cf_units.Unit(
+            unit.split("`")[1] if "`" in unit else unit.strip("*"))
+    assert "`vpd` in **Pa**" in netcdf_cell and csv_cell == "as Parquet"
+    assert main(["export", str(folder), "--netcdf", str(tmp_path / "site.nc"),
+                 "--csv", str(tmp_path / "csv")]) == 0
+    with xr.open_dataset(tmp_path / "site.nc") as dataset:
+        assert dataset["vpd"].attrs["units"] == "Pa"
+        assert dataset["vpd"].attrs["standard_name"] == "water_vapor_saturation_deficit_in_air"
+        for name in ("rg", "tair", "tsoil", "vpd"):
+            column = f"{name}_filled"
+            converted = cf_units.Unit(units[column]).convert(
+                series[column].to_numpy(float), cf_units.Unit(dataset[name].attrs["units"]))
+            np.testing.assert_allclose(dataset[name].values, converted, rtol=1e-6)
+    metadata = json.loads((tmp_path / "csv" / "csv-metadata.json").read_text())
+    csv_units = {c["name"]: c.get("schema:unitText") for t in metadata["tables"]
+                 if t["url"] == "timeseries.csv" for c in t["tableSchema"]["columns"]}
+    assert {c: csv_units[c] for c in stated} == {c: units[c] for c in stated}
