@@ -299,3 +299,35 @@ def test_the_glance_tables_driver_units_hold_in_parquet_csv_and_netcdf(written_d
     csv_units = {c["name"]: c.get("schema:unitText") for t in metadata["tables"]
                  if t["url"] == "timeseries.csv" for c in t["tableSchema"]["columns"]}
     assert {c: csv_units[c] for c in stated} == {c: units[c] for c in stated}
+
+
+def test_the_u_star_figures_count_axis_is_labelled_in_whole_draws(written_demo):
+    """The report's bootstrap histogram labelled its axis "Bootstrap draws [count]" at 2.5,
+    7.5, ...: half a draw. Its tick labels are whole numbers now (the ticks as the
+    drawing places them, each axis' plan just before the figure is drawn)."""
+    from fluxpart import figures
+    from fluxpart.report import read_written
+
+    _, folder = written_demo
+    drawing = figures.Drawing()
+    plans = []
+    plan = drawing._tick_plan
+    drawing._tick_plan = lambda axis: (plans.append((axis, plan(axis))), plans[-1][1])[1]
+    written = read_written(folder)
+    # the default 100 draws, ten at each of ten thresholds: the tallest bar holds 10
+    # draws, as on the page that showed 2.5 and 7.5 (the shared result's 20 draws give
+    # bars too low for a half step)
+    draws = written.tables["parameters_ustar_bootstrap"]
+    year = int(draws["year"].iloc[0])
+    written.tables["parameters_ustar_bootstrap"] = pd.DataFrame({
+        "row": range(100), "draw": range(100), "year": year, "period": "year",
+        "threshold": np.repeat(np.linspace(0.15, 0.19, 10), 10)})
+    with drawing.mpl.rc_context():
+        figures.figure_ustar(drawing, written)
+    counts = [(axis, found) for axis, found in plans
+              if axis.get_label_text() == "Bootstrap draws [count]"]
+    assert len(counts) == 1
+    axis, (locations, labels, _) = counts[0]
+    low, high = sorted(axis.get_view_interval())
+    shown = [label for where, label in zip(locations, labels, strict=True) if low <= where <= high]
+    assert len(shown) >= 2 and all(re.fullmatch(r"\d+", label) for label in shown), shown
