@@ -331,3 +331,36 @@ def test_the_u_star_figures_count_axis_is_labelled_in_whole_draws(written_demo):
     low, high = sorted(axis.get_view_interval())
     shown = [label for where, label in zip(locations, labels, strict=True) if low <= where <= high]
     assert len(shown) >= 2 and all(re.fullmatch(r"\d+", label) for label in shown), shown
+
+
+def test_a_record_number_mapped_as_the_flag_is_named_so(tmp_path, capsys):
+    """The newcomer mapped the logger's record number ("rec", 0, 1, 2, ...) as nee_flag:
+    the refusal listed "the flags hold ['0', '1', ..., '9']" as if the column held ten
+    codes. It names the count of values and the counter now (common practice: a logger
+    numbers its records beside the stamp)."""
+    from fluxpart.flag_counter import many_values_text
+
+    config = _logger_file(tmp_path)
+    text = config.read_text().replace('"%Y%m%d%H%M"', '"%Y-%m-%d %H:%M:%S"')
+    table = (tmp_path / "flux30.dat").read_text().splitlines()
+    table[1] = table[1].replace('"stamp",', '"stamp","rec",')
+    table[2:4] = [line.replace('"local",', '"local","n",').replace('"",', '"","",', 1)
+                  for line in table[2:4]]
+    records = table[4:]
+    config.write_text(text + 'nee_flag = "rec"\n')
+    # counted from 1 every record is rejected; from 0 all but the first (another message)
+    for first, opening in ((1, "error: nee_flag: every record"),
+                           (0, "error: nee_flag: 143 of 144 records")):
+        table[4:] = [line.replace(",", f",{first + number},", 1)
+                     for number, line in enumerate(records)]
+        (tmp_path / "flux30.dat").write_text("\n".join(table) + "\n")
+        assert main(["check", str(config)]) == 2
+        error = capsys.readouterr().err
+        assert error.startswith(opening) and error.count("\n") == 1, error
+        assert ("144 different values, growing from record to record: a record number, "
+                "not a quality flag") in error
+    # a quality flag of a few classes gets no such clause, nor many values that do not grow
+    flags = np.tile([0.0, 1.0, 2.0], 48)
+    assert many_values_text([flags]) == ""
+    noise = np.random.default_rng(1).permutation(144).astype(float)
+    assert many_values_text([noise]) == "144 different values"
