@@ -286,7 +286,8 @@ _NOT_NETCDF_SUFFIXES = (".csv", ".tsv", ".txt", ".dat", ".json", ".toml", ".parq
 
 def _refuse_other_format(netcdf, csv) -> None:
     """Refuse a ``--netcdf`` file named as another format and a ``--csv`` folder named as one
-    CSV file: each would be written as asked, but not as its name says (round newuser57).
+    CSV file, where no such file or folder exists yet: each would be written as asked, but
+    not as its name says (round newuser57).
 
     References
     ----------
@@ -295,13 +296,17 @@ def _refuse_other_format(netcdf, csv) -> None:
     """
     from .errors import OutputError
 
-    if netcdf is not None and Path(netcdf).suffix.lower() in _NOT_NETCDF_SUFFIXES:
+    # an existing file or folder keeps its own refusals (an input file or the site
+    # config named as the target is named as such; a file fluxpart did not write is kept)
+    if (netcdf is not None and Path(netcdf).suffix.lower() in _NOT_NETCDF_SUFFIXES
+            and not os.path.lexists(netcdf)):
         raise OutputError(
             f"--netcdf {str(netcdf)!r} is named as a {Path(netcdf).suffix} file, but --netcdf "
             "writes one binary NetCDF file (read by xarray or ncdump): name it .nc (e.g. "
             f"{str(Path(netcdf).with_suffix('.nc'))!r}); for tables a spreadsheet opens give "
             "--csv FOLDER")
-    if csv is not None and Path(csv).suffix.lower() in (".csv", ".tsv", ".txt"):
+    if (csv is not None and Path(csv).suffix.lower() in (".csv", ".tsv", ".txt")
+            and not os.path.lexists(csv)):
         raise OutputError(
             f"--csv {str(csv)!r} is named as one {Path(csv).suffix} file, but --csv writes a "
             "folder holding every table as its own CSV file (timeseries.csv, daily.csv, "

@@ -174,7 +174,7 @@ def test_export_names_that_say_another_format_are_refused_before_writing(written
     assert list(tmp_path.iterdir()) == []
     # the README says so where it describes the export
     csv_text = _paragraph("**CSV for R and spreadsheets.**")
-    assert "a name ending in `.csv` is refused" in csv_text
+    assert "a new name ending in `.csv` is refused" in csv_text
     assert "named as another format" in csv_text
 
 
