@@ -119,6 +119,9 @@ def _offset_text_hint(text: str) -> str:
     if found:
         hours = float(found[2]) + (float(found[3]) / 60.0 if found[3] else 0.0)
         hours = -hours if found[1] in "-\u2212" and found[1] else hours
+        if not any(abs(hours - used) < 1e-9 for used in _UTC_OFFSETS):
+            return (f"; it reads as {_hours_text(hours)} h, which no time zone uses as its "
+                    "standard time")
         return f"; write it as hours: utc_offset = {_hours_text(hours)}"
     if "/" not in text:
         return ""

@@ -145,6 +145,20 @@ def test_a_time_zone_name_as_utc_offset_names_its_standard_offset(zone):
     assert (f'[input] time_zone = "{zone}"' in message) == summer
 
 
+def test_a_clock_text_of_no_zones_offset_is_not_offered_as_the_fix():
+    """"-05:30" reads as -5.5 h, which no zone uses (the IANA tz database's standard
+    offsets, `site.FRACTIONAL_UTC_OFFSETS` (m)): offering `utc_offset = -5.5` led to the
+    next refusal, so the hint says it is no zone's offset instead."""
+    from fluxpart import Site
+    from fluxpart.errors import ConfigError
+
+    with pytest.raises(ConfigError) as raised:
+        Site("Brackenholt Moss", 49.31, 10.18, utc_offset="-05:30")
+    message = str(raised.value)
+    assert message.endswith("it reads as -5.5 h, which no time zone uses as its standard time")
+    assert "utc_offset = -5.5" not in message
+
+
 def test_text_that_names_no_offset_gets_no_guess():
     from fluxpart import Site
     from fluxpart.errors import ConfigError
