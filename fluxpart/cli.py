@@ -251,6 +251,7 @@ def _command_export(args) -> int:
     if args.netcdf is None and args.csv is None:
         raise OutputError("fluxpart export: give --netcdf FILE, --csv FOLDER or both (see "
                           "fluxpart export --help)")
+    _refuse_other_format(args.netcdf, args.csv)
     if args.netcdf is not None:
         target = Path(args.netcdf).absolute().resolve()
         _refuse_network_dataset("--netcdf", args.netcdf, target)
@@ -274,6 +275,43 @@ def _command_export(args) -> int:
                               "write the CSV folder outside it")
         check_target(Path(args.csv))
     return command_export(args)
+
+
+#: Name endings of files that are no NetCDF: a ``--netcdf`` name ending so (``site.csv``:
+#: a spreadsheet user after a CSV) wrote a binary NetCDF file under it without a word
+#: (round newuser57)
+_NOT_NETCDF_SUFFIXES = (".csv", ".tsv", ".txt", ".dat", ".json", ".toml", ".parquet",
+                        ".feather", ".arrow", ".xlsx", ".xls", ".ods", ".zip", ".gz")
+
+
+def _refuse_other_format(netcdf, csv) -> None:
+    """Refuse a ``--netcdf`` file named as another format and a ``--csv`` folder named as one
+    CSV file, where no such file or folder exists yet: each would be written as asked, but
+    not as its name says (round newuser57).
+
+    References
+    ----------
+    Unidata's NetCDF User's Guide names ``.nc`` as the conventional file name extension
+    of NetCDF files (m).
+    """
+    from .errors import OutputError
+
+    # an existing file or folder keeps its own refusals (an input file or the site
+    # config named as the target is named as such; a file fluxpart did not write is kept)
+    if (netcdf is not None and Path(netcdf).suffix.lower() in _NOT_NETCDF_SUFFIXES
+            and not os.path.lexists(netcdf)):
+        raise OutputError(
+            f"--netcdf {str(netcdf)!r} is named as a {Path(netcdf).suffix} file, but --netcdf "
+            "writes one binary NetCDF file (read by xarray or ncdump): name it .nc (e.g. "
+            f"{str(Path(netcdf).with_suffix('.nc'))!r}); for tables a spreadsheet opens give "
+            "--csv FOLDER")
+    if (csv is not None and Path(csv).suffix.lower() in (".csv", ".tsv", ".txt")
+            and not os.path.lexists(csv)):
+        raise OutputError(
+            f"--csv {str(csv)!r} is named as one {Path(csv).suffix} file, but --csv writes a "
+            "folder holding every table as its own CSV file (timeseries.csv, daily.csv, "
+            "annual.csv, ...) and csv-metadata.json: give a folder name such as "
+            f"{str(Path(csv).with_suffix('')) + '_csv'!r}")
 
 
 def _check_output_folder(out: Path, site_name=None) -> None:
@@ -839,9 +877,11 @@ def _parser() -> argparse.ArgumentParser:
     export.add_argument("directory", type=_path,
                         help="result folder written by run, demo or batch")
     export.add_argument("--netcdf", type=_path, metavar="FILE",
-                        help="NetCDF file to write (record, daily, monthly and annual series)")
+                        help="NetCDF file to write, named .nc (record, daily, monthly and annual "
+                             "series)")
     export.add_argument("--csv", type=_path, metavar="FOLDER",
-                        help="new (or empty) folder for the CSV tables and csv-metadata.json")
+                        help="new (or empty) folder for the CSV tables (one file per table) and "
+                             "csv-metadata.json")
     export.set_defaults(handler=_command_export)
     return parser
 

@@ -1826,7 +1826,9 @@ def figure_ustar(drawing, written) -> Figure:
                               color=colours[label], linestyle="--", linewidth=1.4)
         right.set_xlabel("u* threshold [m s-1]")
         right.set_ylabel("Bootstrap draws [count]")
-        drawing.few_ticks(right, x=5, y=5)
+        drawing.few_ticks(right, x=5, y=0)
+        # whole draws only: the automatic steps labelled the count axis 2.5, 7.5 (newuser57)
+        right.yaxis.set_major_locator(drawing.ticker.MaxNLocator(nbins=5, integer=True))
         right.legend(loc="upper right")
     else:
         _no_data(right, "no bootstrap distribution\n(fixed threshold or no draws)")

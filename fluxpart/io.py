@@ -109,6 +109,7 @@ from .errors import (
 )
 from .file_digest import sha256_of_file
 from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
+from .flag_counter import many_values_text
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -1308,8 +1309,9 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             "rejected by "
                             f"{' + '.join(flag_columns)} with [input] flag_accept = "
                             f"{list(flag_accept)}; the flags hold "
-                            f"{[flag_shown(v, words, word_counts) for v in flag_values]}: "
-                            "check which values mean a good record")
+                            f"{[flag_shown(v, words, word_counts) for v in flag_values]}"
+                            f"{_in_brackets(many_values_text(flags))}: check which values mean a good "
+                            "record")
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")
@@ -1322,13 +1324,14 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         measured = np.isfinite(converted["nee"])
         if measured.any() and not (measured & (converted["nee_flag"] != 1.0)).any():
             # no NEE record left: every stage would fail, and run named only the partitioning
+            read_flags = [combined["values"][_flag_key(c)] for c in flag_columns]
             flag_values = np.unique(np.concatenate(
-                [f[np.isfinite(f)] for f in (combined["values"][_flag_key(c)]
-                                             for c in flag_columns)]))[:10]
+                [f[np.isfinite(f)] for f in read_flags]))[:10]
             raise ImplausibleValueError(
                 f"nee_flag: every record with a value in {source_of['nee']!r} is rejected by "
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
-                f"the flags hold {[flag_shown(v, words, word_counts) for v in flag_values]}: set [input] "
+                f"the flags hold {[flag_shown(v, words, word_counts) for v in flag_values]}"
+                f"{_in_brackets(many_values_text(read_flags))}: set [input] "
                 "flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
         # judged over the records with an NEE value (review41: a flag that marks every
@@ -5742,11 +5745,18 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
     return (f"nee_flag: {rejected} of {judged} records with an NEE value "
             f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with "
             f"[input] flag_accept = {list(flag_accept)} "
-            f"(the flags hold {shown} records): either flag_accept names the values of bad "
+            f"(the flags hold {shown} records"
+            f"{'; ' + counted if (counted := many_values_text(flags)) else ''}): either "
+            "flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "
             "keep about 65 % of their records); set [input] flag_accept to the values that "
             "mean a good record")
+
+
+def _in_brackets(text: str) -> str:
+    """`text` as " (text)", or '' where it is empty."""
+    return f" ({text})" if text else ""
 
 
 def _boundary_marks(parts: list, stamp: pd.Timestamp) -> str:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import asdict, dataclass
 
 from .errors import ConfigError
@@ -77,7 +78,9 @@ class Site:
                 raise ConfigError(f"[site] {key} = {shown} is not a number: expected a number "
                                   f"from {low:g} to {high:g}, in {units[key]}"
                                   + (", written without quotes" if isinstance(value, str)
-                                     else ""))
+                                     else "")
+                                  + (_offset_text_hint(value) if key == "utc_offset"
+                                     and isinstance(value, str) else ""))
             if not math.isfinite(value) or not low <= value <= high:
                 raise ConfigError(f"[site] {key} = {shown} is out of range: expected a value "
                                   f"from {low:g} to {high:g}, in {units[key]}")
@@ -93,6 +96,62 @@ class Site:
     def to_dict(self) -> dict:
         """Return the site as a plain dict (for the manifest)."""
         return asdict(self)
+
+
+#: An offset written as text: "+01:00", "-0530", "UTC+1", "GMT-5", "+5.5"
+_OFFSET_TEXT = re.compile(r"\s*(?:UTC|GMT)?\s*([+\-\u2212]?)\s*(\d{1,2}(?:\.\d+)?)"
+                          r"(?::?(\d{2}))?\s*", re.IGNORECASE)
+
+
+def _offset_text_hint(text: str) -> str:
+    """The number meant by a ``[site] utc_offset`` written as text, as a hint, else ''.
+
+    A newcomer writes the offset as a clock shows it ("+01:00", "UTC+1") or gives the
+    zone's name ("Europe/Berlin"); both name one number (round newuser57). A zone's
+    standard offset is its offset where it keeps no daylight saving time, in January or
+    July of the current year (the IANA tz database through Python's ``zoneinfo``).
+
+    References
+    ----------
+    ISO 8601-1:2019, section 4.3.13: a UTC offset written as ±hh:mm or ±hhmm (m).
+    """
+    found = _OFFSET_TEXT.fullmatch(text)
+    if found:
+        hours = float(found[2]) + (float(found[3]) / 60.0 if found[3] else 0.0)
+        hours = -hours if found[1] in "-\u2212" and found[1] else hours
+        if not any(abs(hours - used) < 1e-9 for used in _UTC_OFFSETS):
+            return (f"; it reads as {_hours_text(hours)} h, which no time zone uses as its "
+                    "standard time")
+        return f"; write it as hours: utc_offset = {_hours_text(hours)}"
+    if "/" not in text:
+        return ""
+    import datetime
+    import zoneinfo
+
+    try:
+        zone = zoneinfo.ZoneInfo(text.strip())
+    except (ValueError, zoneinfo.ZoneInfoNotFoundError):
+        return ""
+    from .config import setting_text
+
+    year = datetime.date.today().year
+    moments = [datetime.datetime(year, month, 15, 12, tzinfo=zone) for month in (1, 7)]
+    standard = [moment.utcoffset() for moment in moments if not moment.dst()]
+    if not standard:
+        return ""
+    hours = min(standard).total_seconds() / 3600.0
+    summer = ""
+    if any(moment.dst() for moment in moments):
+        summer = (" (and where the file's stamps follow its summer time, also [input] "
+                  f"time_zone = {setting_text(text.strip())})")
+    return (f"; {setting_text(text.strip())} is a time zone, whose standard time is "
+            f"UTC{hours:+g} h: utc_offset = {_hours_text(hours)}{summer}")
+
+
+def _hours_text(hours: float) -> str:
+    """Hours as a TOML float: 1.0, -5.5, 5.75."""
+    text = f"{hours:g}"
+    return text if "." in text else text + ".0"
 
 
 def _check_utc_offset(offset: float) -> None:

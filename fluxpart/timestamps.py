@@ -1417,6 +1417,9 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
     text, time_format, decimal_fields = decimal_stamps(text, time_format, first_day)
     # seconds or milliseconds of zero beyond the format's last field ("13:30:00.000"
     # under "%H:%M:%S"): read past (layouts40; refused before, naming the format)
+    # the stamps as the file writes them, quoted where they fail (newuser57: an error
+    # quoted '2021-01-01 00:30' for the file's '2021-01-01 00:30:00')
+    untailed = text
     text, _ = zero_tails(text, time_format)
     # German, French and Spanish month words under %b/%B ("05-Mär-2023", "05-déc.-2023"),
     # read as the English names (layouts44; refused before, naming months as numbers)
@@ -1639,11 +1642,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
-        elif failed.all() and (found := _common_format(text, time_format)):
+        elif failed.all() and (found := _common_format(untailed, time_format)):
             hint = "; " + found
         hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
                             source, lines)
-        stamp = f"{text.iloc[first]!r}, which does not match"
+        stamp = f"{untailed.iloc[first]!r}, which does not match"
         if decimal_fields:
             # named as written, and as read from its decimal field
             stamp = (f"{as_written.iloc[first]!r}, which read as {text.iloc[first]!r} "

@@ -1428,10 +1428,14 @@ def _too_dark_message(name: str, converted: dict, units: dict, columns: dict,
         net = (f"net radiation (with the sun down its median is {night:.0f} W m-2, below a "
                "pyranometer's thermal offset of a few W m-2), " if night < _NIGHT_NET_HINT
                else "")
+        # newuser57: the reflected (outgoing) short-wave channel of a four-component
+        # radiometer mapped as rg (the surface's albedo, about 0.1 to 0.3 of the
+        # incoming: Oke 1987, Boundary Layer Climates, table 1.1 (m)) went unnamed
         text = (f"column {columns['rg']!r} (rg): {found}; the values look like {net}PAR in "
-                "W m-2 (about 0.46 of global radiation) or a shaded or soiled sensor: map "
-                "global (incoming short-wave) radiation as rg, or PPFD as ppfd (or list rg "
-                "in [input] accept_units)")
+                "W m-2 (about 0.46 of global radiation), the reflected (outgoing) "
+                "short-wave radiation (the surface's albedo, about 0.1 to 0.3 of global "
+                "radiation) or a shaded or soiled sensor: map global (incoming short-wave) "
+                "radiation as rg, or PPFD as ppfd (or list rg in [input] accept_units)")
     if int(np.isfinite(values).sum()) * interval_minutes >= _TOO_DARK_MIN_DAYS * 24 * 60:
         return text, None
     return None, (text + f"; over less than {_TOO_DARK_MIN_DAYS} days a sky overcast or "
