@@ -369,7 +369,7 @@ def _window_quantiles(values: np.ndarray, low: np.ndarray, high: np.ndarray,
     (n - 1)``: ``v[h]`` where h is whole, else ``v[j] + (v[j + 1] - v[j]) (h - j)``, j the
     whole part of h (linear interpolation between the order statistics, Hyndman & Fan
     1996, definition 7 (m)), in the operations and order of pandas' rolling quantile, so
-    that the values are its own to the bit (``tests/test_ustar_scale.py``). Windows of
+    that the values are its own to the bit (``tests/test_ustar_step_windows.py``). Windows of
     at least one value; the windows are sorted a few at a time, their values padded with
     +inf to the widest.
 
