@@ -245,26 +245,38 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
         return None
     # the first night record of each day: the spans before and after it
     days = pd.DatetimeIndex(np.unique(times.normalize()))
-    ratios, medians = [], None
+    low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
+    # the fortnights' night medians at every day first: a day whose median does not step
+    # so, or whose later median in m s-1 is no tower's, cannot step, so the other figures
+    # are taken at the other days alone (`wanted`), each day's the same values as at every
+    # day (round speed62)
+    (median_before,), (median_after,) = _span_quantiles(times, values, days,
+                                                        STEP_SPANS_DAYS[0], (0.5,))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        median_step = median_after / median_before
+        converted = median_after / KMH_FACTOR
+        wanted = np.flatnonzero((median_step >= low) & (median_step <= high)
+                                & (converted >= TOWER_NIGHT_MEDIAN[0])
+                                & (converted <= TOWER_NIGHT_MEDIAN[1]))
+    if wanted.size == 0:
+        return None
+    ratios, medians = [], (median_before[wanted], median_after[wanted])
     for span in STEP_SPANS_DAYS:
-        low_sides, high_sides = _span_quantiles(times, values, days, span, STEP_QUANTILES)
+        low_sides, high_sides = _span_quantiles(times, values, days[wanted], span,
+                                                STEP_QUANTILES)
         for low_side, high_side in zip(low_sides, high_sides, strict=True):
             with np.errstate(invalid="ignore", divide="ignore"):
                 ratios.append(high_side / low_side)
-        if medians is None:
-            middle = STEP_QUANTILES.index(0.5)
-            medians = (low_sides[middle], high_sides[middle])  # the fortnights'
     # the days' median over the same spans, where the record holds daytime u*
     day_ratios = []
     for span in STEP_SPANS_DAYS:
         (low_side,), (high_side,) = _span_quantiles(index[present & ~is_night],
-                                                    ustar[present & ~is_night], days, span,
-                                                    (0.5,))
+                                                    ustar[present & ~is_night], days[wanted],
+                                                    span, (0.5,))
         with np.errstate(invalid="ignore", divide="ignore"):
             day_ratios.append(high_side / low_side)
     ratios = np.array(ratios)
-    low, high = KMH_FACTOR / STEP_FIT, KMH_FACTOR * STEP_FIT
-    converted = medians[1] / KMH_FACTOR
+    converted = converted[wanted]
     day_ratios = np.array(day_ratios)
     judged_days = np.all(np.isfinite(day_ratios), axis=0)
     with np.errstate(invalid="ignore"):
@@ -274,6 +286,7 @@ def ustar_step_up(ustar, is_night, index: pd.DatetimeIndex) -> dict | None:
                                             axis=0)))
     if not stepped.any():
         return None
+    days = days[wanted]
     # the day of the largest step over every quantile and span together, then the record
     # the step starts at: the split of the log values within a fortnight either side
     # below which their cumulative departure from the mean is lowest (a CUSUM change
@@ -324,19 +337,68 @@ def _span_quantiles(times: pd.DatetimeIndex, values: np.ndarray, days: pd.Dateti
     if values.size < 2 * _MIN_STEP_RECORDS:
         return empty, [array.copy() for array in empty]
     first = np.minimum(times.searchsorted(days), values.size - 1)
-    # running quantiles over time windows, the later span's on the record read backwards
-    before = pd.Series(values, index=times).rolling(f"{span}D", closed="left")
-    after = pd.Series(values[::-1], index=pd.DatetimeIndex(
-        (times[-1] - times[::-1]).to_numpy() + np.datetime64("2000-01-01"))
-    ).rolling(f"{span}D", closed="right")
-    enough = ((days - pd.Timedelta(days=span) >= times[0].normalize())
-              & (days + pd.Timedelta(days=span) <= times[-1])
-              & (before.count().to_numpy()[first] >= _MIN_STEP_RECORDS)
-              & (after.count().to_numpy()[::-1][first] >= _MIN_STEP_RECORDS))
-    lows = [np.where(enough, before.quantile(q).to_numpy()[first], np.nan) for q in quantiles]
-    highs = [np.where(enough, after.quantile(q).to_numpy()[::-1][first], np.nan)
-             for q in quantiles]
-    return lows, highs
+    # the spans as positions: before, the values stamped in [t - span, t); after, those in
+    # [t, t + span), t the day's first record (pandas' time windows closed "left" and,
+    # on the record read backwards, "right")
+    at, reach = times[first], pd.Timedelta(days=span)
+    start = times.searchsorted(at, side="left")
+    before = (times.searchsorted(at - reach, side="left"), start)
+    after = (start, times.searchsorted(at + reach, side="left"))
+    enough = np.flatnonzero((days - reach >= times[0].normalize()) & (days + reach <= times[-1])
+                            & (before[1] - before[0] >= _MIN_STEP_RECORDS)
+                            & (after[1] - after[0] >= _MIN_STEP_RECORDS))
+    sides = []
+    for low, high in (before, after):
+        side = [np.full(days.size, np.nan) for _ in quantiles]
+        for array, found in zip(side, _window_quantiles(values, low[enough], high[enough],
+                                                        quantiles), strict=True):
+            array[enough] = found
+        sides.append(side)
+    return sides[0], sides[1]
+
+
+#: Values sorted at a time by :func:`_window_quantiles` (windows x their width), 16 MiB.
+_SORTED_VALUES = 2**21
+
+
+def _window_quantiles(values: np.ndarray, low: np.ndarray, high: np.ndarray,
+                      quantiles) -> list[np.ndarray]:
+    """Per quantile, its value over ``values[low[i]:high[i]]`` for each window i.
+
+    The quantile of n values sorted ``v[0] <= ... <= v[n - 1]`` at the position ``h = q
+    (n - 1)``: ``v[h]`` where h is whole, else ``v[j] + (v[j + 1] - v[j]) (h - j)``, j the
+    whole part of h (linear interpolation between the order statistics, Hyndman & Fan
+    1996, definition 7 (m)), in the operations and order of pandas' rolling quantile, so
+    that the values are its own to the bit (``tests/test_ustar_step_windows.py``). Windows of
+    at least one value; the windows are sorted a few at a time, their values padded with
+    +inf to the widest.
+
+    References
+    ----------
+    Hyndman, R. J., Fan, Y. (1996). Sample quantiles in statistical packages. The
+    American Statistician 50(4):361-365 (m).
+    """
+    counts = high - low
+    found = [np.full(counts.size, np.nan) for _ in quantiles]
+    width = int(counts.max()) if counts.size else 0
+    step = max(1, _SORTED_VALUES // max(width, 1))
+    for start in range(0, counts.size, step):
+        rows = slice(start, start + step)
+        positions = low[rows, None] + np.arange(width)
+        block = np.where(positions < high[rows, None],
+                         values[np.minimum(positions, values.size - 1)], np.inf)
+        block.sort(axis=1)
+        row = np.arange(block.shape[0])
+        for array, quantile in zip(found, quantiles, strict=True):
+            place = quantile * (counts[rows] - 1).astype(float)
+            whole = place.astype(np.int64)
+            below = block[row, whole]
+            # the value above the last is padding (+inf), taken only where h is whole
+            above = block[row, np.minimum(whole + 1, width - 1)]
+            with np.errstate(invalid="ignore"):
+                between = below + (above - below) * (place - whole)
+            array[rows] = np.where(place == whole, below, between)
+    return found
 
 
 def ustar_stepped_to_kmh(ustar, is_night, index: pd.DatetimeIndex,
