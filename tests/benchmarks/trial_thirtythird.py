@@ -53,7 +53,10 @@ Run from the repository root (a few minutes a draw)::
 ``--variant`` switches planted parts off on the same random numbers (``VARIANTS``:
 ``nogaps``, ``nonoise``, ``noloss``, ``nopulse`` (no rain pulses of respiration),
 ``nowater`` (no water-table or soil-water term in respiration), ``shallow`` (respiration
-on the logged soil temperature instead of the deep one)); ``--planted-ustar`` runs at the
+on the logged soil temperature instead of the deep one), ``nosubstrate`` (no growth
+respiration on the last days' GPP), ``nodiffuse`` (no diffuse-light gain of the quantum
+efficiency), ``flatpmax`` (the capacity's temperature term on the day's mean air
+temperature, no diurnal course)); ``--planted-ustar`` runs at the
 planted threshold; ``--processing`` adds lines to every site's ``[processing]``.
 
 Models (textbook forms with their source; "(m)" = recalled from memory; "invented" = a
@@ -138,7 +141,8 @@ GC_PER_UMOL = 12.011e-6   # g C per umol (m)
 S0 = 1361.0               # W m-2, solar constant (Kopp and Lean 2011 (m))
 KAPPA = 0.40              # von Karman constant (m)
 PPFD_PER_RG = 2.1         # umol photons per J of global radiation (m)
-VARIANTS = ("nogaps", "nonoise", "noloss", "nopulse", "nowater", "shallow")
+VARIANTS = ("nogaps", "nonoise", "noloss", "nopulse", "nowater", "shallow", "nosubstrate",
+            "nodiffuse", "flatpmax")
 WRITER = "trial_thirtythird.py"
 
 
@@ -362,6 +366,7 @@ def weather(site, idx, rng):
     beam = toa * site.tau_atm ** airmass
     diffuse = 0.3 * (1 - site.tau_atm ** airmass) * toa
     rg = np.clip((beam + diffuse) * np.clip(k_day[day] * within / 0.75, 0.08, 1.15), 0, None)
+    rg = rg * (1 + 0.01 * rng.standard_normal(n))   # the pyranometer's own scatter
     # air temperature
     peak = 200 if site.lat >= 0 else 20
     anomaly = 2.5 * ar1(rng, n_days, 0.75) if abs(site.lat) > 15 else 1.0 * ar1(
@@ -500,10 +505,14 @@ def fluxes(site, met, rng, variant):
     lai, events = leaf_area(site, met, rng, t5)
     fapar = 1 - np.exp(-0.5 * lai[day])
     ppfd = PPFD_PER_RG * met["rg"]
-    alpha = site.alpha * fapar * (1 + 0.3 * (1 - met["k_day"][day]))
+    diffuse = 0.0 if "nodiffuse" in variant else 0.3
+    alpha = site.alpha * fapar * (1 + diffuse * (1 - met["k_day"][day]))
     cover = fapar / (1 - np.exp(-0.5 * site.lai_max))
-    pmax = (site.pmax * cover * beta_temperature(met["tair"], site.t_opt - 22, site.t_opt,
-                                                 site.t_opt + 14)
+    heat = beta_temperature(met["tair"], site.t_opt - 22, site.t_opt, site.t_opt + 14)
+    if "flatpmax" in variant:   # the capacity on the day's mean temperature only
+        heat = beta_temperature(met["t_day"][day], site.t_opt - 22, site.t_opt,
+                                site.t_opt + 14)
+    pmax = (site.pmax * cover * heat
             * np.exp(-0.04 * np.clip(met["vpd"] - 10, 0, None))
             * ramp(met["w"][day], 0.10, 0.50) * ramp(t5, -1, 2))
     gpp = np.where(ppfd > 0, alpha * ppfd * pmax / np.clip(alpha * ppfd + pmax, 1e-9, None),
@@ -522,7 +531,8 @@ def fluxes(site, met, rng, variant):
     gpp_day = np.bincount(day, gpp, met["n_days"]) / np.bincount(day, None, met["n_days"])
     substrate = pd.Series(gpp_day).rolling(3, min_periods=1).mean().shift(1).fillna(
         gpp_day[0]).to_numpy()
-    auto = 0.04 * lai[day] * 2 ** ((met["tair"] - 10) / 10) + 0.2 * substrate[day]
+    growth = 0.0 if "nosubstrate" in variant else 0.2
+    auto = 0.04 * lai[day] * 2 ** ((met["tair"] - 10) / 10) + growth * substrate[day]
     pulse = np.zeros(met["n_days"])
     if site.pulse and "nopulse" not in variant:
         dry_before = np.concatenate([[1.0], met["w"][:-1]]) < 0.3
