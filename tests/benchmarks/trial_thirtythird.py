@@ -11,17 +11,18 @@ verification, whatever a known-truth score says.
 Written from the physics and the published models named below, without reading
 ``fluxpart/demo.py``, ``fluxpart/scenarios.py``, the bench generators or the other trials'
 physics (only ``trial_scoring.py`` for the scoring and the writer of a logger file, and
-``trial_thirtysecond.py``'s command line). Sites (one or two budget years each, 29 in all):
+``trial_thirtysecond.py``'s command line). Sites (one or two budget years each, 28 in all; outages placed in the middle 30-70 % of
+the record, their lengths drawn):
 
 - A  a raised bog at 57.8 deg N, 30 min, 2023-2024 (LEAP): peat respiration on the peat's
      temperature at 30 cm (a lag of weeks) and its aerated depth (the water table); the
-     logger's soil probe at 5 cm;
+     logger's soil probe at 5 cm; an NEE-only outage of 1-4 weeks;
 - B  a sedge fen at 51.9 deg N, HOURLY, 2022-2023: the same, a summer water table drawdown,
      no soil probe at all;
 - C  a holm-oak savanna at 38.5 deg N, 30 min, 2022-2023: summer drought stops uptake, the
      first autumn rains bring pulses of respiration (the Birch effect);
 - D  a jarrah woodland at 32.6 deg S, HOURLY, budget years from JULY (2022-07 to 2024-06):
-     winter rain, summer drought, rain pulses; a 3-week outage of every sensor;
+     winter rain, summer drought, rain pulses; an outage of every sensor of 1-4 weeks;
 - E  a lowland evergreen rain forest at 2.6 deg S, 30 min, 2021-2022: almost no temperature
      season (1 K), a weak dry season, a tall canopy;
 - F  a Scots pine forest at 64.2 deg N, 30 min, 2021-2022: a snow season of six months,
@@ -29,21 +30,21 @@ physics (only ``trial_scoring.py`` for the scoring and the writer of a logger fi
 - G  a shrub tundra at 69.5 deg N, HOURLY, 2022: polar day and polar night, a snow season of
      eight months;
 - H  a maize-soybean rotation at 41.2 deg N, 30 min, 2023-2024 (LEAP): sowing and harvest
-     declared, the soil probe lost for a month in the second summer;
+     declared, the soil probe lost for 25-35 days about the middle of the record;
 - I  a grazed pasture at 37.8 deg S, 30 min, 2021-2022: green in winter, dry in summer;
-- J  a beech forest at 50.9 deg N, HOURLY, 2022-2023: a 4-week NEE-only outage at the
-     peak of the season;
+- J  a beech forest at 50.9 deg N, HOURLY, 2022-2023: an NEE-only outage of 1-4 weeks
+     about the middle of the record;
 - K  a subtropical evergreen broadleaf forest at 23.2 deg N, 30 min, 2022-2023: a monsoon
      season of clouds;
 - L  an alpine meadow at 46.6 deg N (2100 m), 30 min, 2023: snow half the year, a clear,
      thin atmosphere;
 - M  a semi-arid shrubland at 31.7 deg N, 30 min, 2021-2022: small fluxes, rain pulses;
-- N  a temperate conifer plantation at 45.8 deg S, HOURLY, 2020 (LEAP): a 12-day outage of
-     the humidity sensor and a 4-day outage of the radiation sensor;
+- N  a temperate conifer plantation at 45.8 deg S, HOURLY, 2020 (LEAP): an outage of 10-15
+     days of the humidity sensor and one of 3-5 days of the radiation sensor;
 - O  a boreal black spruce peatland forest at 55.9 deg N, 30 min, 2022-2023: a deep soil
      temperature and a water table, snow;
-- P  a temperate deciduous forest at 35.9 deg N, 30 min, 2024 (LEAP): a 10-day outage of
-     every sensor in spring.
+- P  a temperate deciduous forest at 35.9 deg N, 30 min, 2024 (LEAP): an outage of every
+     sensor of 1-4 weeks in summer.
 
 Run from the repository root (a few minutes a draw)::
 
@@ -109,7 +110,7 @@ fluxpart's output):
   per site 1-3).
 - random error: a double exponential (Laplace) with standard deviation a + b |NEE|
   (Richardson et al. 2006 (m)), 1.3 times wider by night (invented), and a few spikes
-  (0.2 % of the records, 8-20 umol m-2 s-1, invented).
+  (0.2 % of the records, 8-20 umol m-2 s-1, invented); a pyranometer scatter of 1 %.
 - gaps: rain and the record after; quality rejections in runs of 1-6 records, more by calm
   night (invented rates); power cuts of hours to two days; outages of 1-4 weeks of NEE only
   or of every sensor; outages of a single driver.
