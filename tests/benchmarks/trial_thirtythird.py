@@ -11,8 +11,10 @@ verification, whatever a known-truth score says.
 Written from the physics and the published models named below, without reading
 ``fluxpart/demo.py``, ``fluxpart/scenarios.py``, the bench generators or the other trials'
 physics (only ``trial_scoring.py`` for the scoring and the writer of a logger file, and
-``trial_thirtysecond.py``'s command line). Sites (one or two budget years each, 28 in all; outages placed in the middle 30-70 % of
-the record, their lengths drawn):
+``trial_thirtysecond.py``'s command line, site table and file writer; its docstring names
+its models, and this trial takes other published forms where it could). Sites (one or two
+budget years each, 28 in all; outages placed in the middle 30-70 % of the record, their
+lengths drawn):
 
 - A  a raised bog at 57.8 deg N, 30 min, 2023-2024 (LEAP): peat respiration on the peat's
      temperature at 30 cm (a lag of weeks) and its aerated depth (the water table); the
