@@ -4400,6 +4400,12 @@ def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:
     return missing_code_hint(*found, missing, f" in the {column} column" if column else "")
 
 
+#: Undeclared codes read as missing in one column at most (our choice: files of two or
+#: three loggers joined, each writing its own code; the next one found after them is
+#: left to the range warning and screening).
+_MAX_UNDECLARED_CODES = 3
+
+
 def _blank_undeclared_codes(values, converted, mapping, missing, warnings) -> None:
     """Read as missing, named, the cells of each column that hold an undeclared
     missing-data code (:func:`fluxpart.unit_checks.undeclared_code_cells`).
@@ -4411,16 +4417,17 @@ def _blank_undeclared_codes(values, converted, mapping, missing, warnings) -> No
     flag, and entered as measured a VPD derived from it (round layouts55).
     """
     for name in list(converted):
-        found = undeclared_code_cells(name, values[name], converted[name])
-        if found is None:
-            continue
-        cells, code, count = found
-        converted[name] = np.where(cells, np.nan, converted[name])
-        warnings.append(
-            f"{name}: the value {code:g} alone occurs {count} times in column "
-            f"{mapping[name]!r}, beyond the plausible range of {name}: read as missing, an "
-            f"undeclared missing-data code (add it to [input] missing, now {list(missing)}, "
-            "to say so, or correct the file if it is a reading)")
+        for _ in range(_MAX_UNDECLARED_CODES):
+            found = undeclared_code_cells(name, values[name], converted[name])
+            if found is None:
+                break
+            cells, code, count = found
+            converted[name] = np.where(cells, np.nan, converted[name])
+            warnings.append(
+                f"{name}: the value {code:g} alone occurs {count} times in column "
+                f"{mapping[name]!r}, beyond the plausible range of {name}: read as missing, "
+                f"an undeclared missing-data code (add it to [input] missing, now "
+                f"{list(missing)}, to say so, or correct the file if it is a reading)")
 
 
 def _flag_key(column: str) -> str:

@@ -56,6 +56,20 @@ def test_a_second_code_in_a_few_weather_cells_is_read_as_missing_named(tmp_path)
     assert not any("outside the plausible range" in w for w in report.warnings)
 
 
+def test_two_codes_in_one_column_are_each_read_as_missing(tmp_path):
+    """-6999 in 8 cells and -7999 in 6 of the air temperature (files of three loggers
+    joined): each code read as missing, named; before the second was kept as a value
+    (the first was only named)."""
+    _, values = _records()
+    values[20:28, 3] = -6999
+    values[100:106, 3] = -7999
+    (tmp_path / "t.csv").write_text(_text(values))
+    frame, report = _read(tmp_path / "t.csv", missing=(-9999,))
+    assert frame["tair"].iloc[list(range(20, 28)) + list(range(100, 106))].isna().all()
+    assert frame["tair"].notna().sum() == len(frame) - 14
+    assert sum(w.startswith("tair: the value -") for w in report.warnings) == 2
+
+
 def test_a_code_filling_much_of_a_column_is_still_refused(tmp_path):
     """Kept behaviour: -6999 in a quarter of the air temperatures is refused, the hint
     asking for it in [input] missing (too much of the record to pass on a warning)."""

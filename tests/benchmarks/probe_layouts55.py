@@ -291,6 +291,19 @@ def minus_6999_in_the_weather_minus_9999_in_the_flux_one_declared(folder):
     no_value(folder, "-6999", columns=["sun_in", "air_c", "dryness", "soil_c", "humid"])
 
 
+@case
+def two_undeclared_codes_in_the_weather_columns(folder):
+    """-6999 and -7999 (two loggers' codes) in turn where the weather is missing, only
+    -9999 declared (the flux's code)."""
+    raw, _ = table()
+    for column in ["sun_in", "air_c", "dryness", "soil_c", "humid"]:
+        at = np.flatnonzero(raw[column].to_numpy() == "-9999")
+        raw.iloc[at, raw.columns.get_loc(column)] = np.where(np.arange(at.size) % 3 == 0,
+                                                              "-7999", "-6999")
+    write(folder / "t.csv", lines(raw))
+    toml(folder, "t.csv")
+
+
 # --------------------------------------------------------------------------- stamps
 @case
 def iso_stamps_in_lower_case_t_and_z(folder):
@@ -576,6 +589,13 @@ def utf8_bom_but_latin1_degree_in_the_units_row(folder):
     data = ("\n".join(text) + "\n").encode("latin-1")
     (folder / "t.csv").write_bytes(b"\xef\xbb\xbf" + data)
     toml(folder, "t.csv", rows_after_header=1)
+
+
+@case
+def utf8_bom_but_latin1_degree_in_the_units_row_declared(folder):
+    """As the case before, with encoding = "latin-1" (the refusal's own advice)."""
+    utf8_bom_but_latin1_degree_in_the_units_row(folder)
+    toml(folder, "t.csv", rows_after_header=1, encoding="latin-1")
 
 
 @case
