@@ -2940,8 +2940,7 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     try:
         text = data.decode(encoding)
     except UnicodeDecodeError as error:
-        if encoding == "utf-8-sig" and declared and codecs.lookup(declared).name not in (
-                "utf-8", "utf-8-sig"):
+        if encoding == "utf-8-sig" and _single_byte(declared):
             # a UTF-8 mark on a file of the declared single-byte encoding (a tool put it
             # before a Latin-1 file; layouts55: the advice to declare the encoding was
             # refused again, the mark ruling over it)
@@ -3014,6 +3013,14 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     if kind:
         text = table_formats.table_text(text, path, kind, **typed)
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+def _single_byte(encoding) -> bool:
+    """Whether `encoding` names a codec other than a UTF one (Latin-1, cp1252, ...)."""
+    try:
+        return bool(encoding) and not codecs.lookup(encoding).name.startswith("utf")
+    except LookupError:
+        return False
 
 
 def _decoded_after_a_false_mark(data: bytes, declared: str, path: Path, warnings) -> str:
