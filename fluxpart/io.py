@@ -163,6 +163,7 @@ from .unit_checks import (
     mixup_messages,
     most_repeated,
     undeclared_code,
+    undeclared_code_cells,
 )
 from .unit_labels import relabelled_files, relabelled_months_message, relabelled_range_clause
 from .variables import (
@@ -1140,6 +1141,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 message += relabelled_range_clause(_relabelled(name, parts, units),
                                                    units.get(name) or units_for(name)[0])
             accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
+    _blank_undeclared_codes(values, converted, mapping, missing, warnings)
 
     derived: list[str] = []
     source_of = dict(mapping)
@@ -2923,6 +2925,7 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     # a byte-order mark names the encoding, also over [input] encoding: a file saved with
     # one among files of a declared single-byte encoding (read as such, its header would
     # begin with "ï»¿")
+    declared = encoding
     if data.startswith(codecs.BOM_UTF8):
         encoding = "utf-8-sig"
     elif data.startswith((codecs.BOM_UTF32_LE, codecs.BOM_UTF32_BE)):
@@ -2940,11 +2943,20 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     try:
         text = data.decode(encoding)
     except UnicodeDecodeError as error:
-        # CR alone ends a line too (layouts36: a CR-only file's byte was "on line 1")
-        line = len(re.findall(rb"\r\n|\r|\n", data[:error.start])) + 1
-        raise InputFileError(
-            f"input file {str(path)!r} is not {encoding} text (byte 0x{data[error.start]:02x} "
-            f"on line {line}); {_single_byte_advice(data, error.start)}") from None
+        if encoding == "utf-8-sig" and _single_byte(declared):
+            # a UTF-8 mark on a file of the declared single-byte encoding (a tool put it
+            # before a Latin-1 file; layouts55: the advice to declare the encoding was
+            # refused again, the mark ruling over it)
+            text, encoding = _decoded_after_a_false_mark(data, declared, path, warnings), declared
+        else:
+            # the error's place is in its own bytes, past a UTF-8 mark (layouts55: the
+            # byte named was the one three bytes before it); CR alone ends a line too
+            # (layouts36: a CR-only file's byte was "on line 1")
+            body, at = error.object, error.start
+            line = len(re.findall(rb"\r\n|\r|\n", body[:at])) + 1
+            raise InputFileError(
+                f"input file {str(path)!r} is not {encoding} text (byte 0x{body[at]:02x} "
+                f"on line {line}); {_single_byte_advice(body, at)}") from None
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
@@ -3004,6 +3016,37 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     if kind:
         text = table_formats.table_text(text, path, kind, **typed)
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+def _single_byte(encoding) -> bool:
+    """Whether `encoding` names a codec other than a UTF one (Latin-1, cp1252, ...)."""
+    try:
+        return bool(encoding) and not codecs.lookup(encoding).name.startswith("utf")
+    except LookupError:
+        return False
+
+
+def _decoded_after_a_false_mark(data: bytes, declared: str, path: Path, warnings) -> str:
+    """The text of `data` after its UTF-8 byte-order mark, read as the `declared`
+    [input] encoding, where the bytes after the mark are no UTF-8 (noted in
+    `warnings`); refused naming the byte where the declared encoding cannot read them
+    either."""
+    body = data[len(codecs.BOM_UTF8):]
+    try:
+        text = body.decode(declared)
+    except UnicodeDecodeError as error:
+        line = len(re.findall(rb"\r\n|\r|\n", body[:error.start])) + 1
+        raise InputFileError(
+            f"input file {str(path)!r} begins with a UTF-8 byte-order mark but is not UTF-8 "
+            f"text, nor {declared} text as [input] encoding says (byte "
+            f"0x{body[error.start]:02x} on line {line}); save it again in one encoding "
+            "and set [input] encoding to it") from None
+    if warnings is not None:
+        warnings.append(ReaderNote(
+            f"input file {str(path)!r} begins with a UTF-8 byte-order mark, but its bytes "
+            f"are no UTF-8 text: read as {declared}, as [input] encoding says, without "
+            "the mark"))
+    return text
 
 
 #: Single-byte encodings a logger's or a PC program's text file is written in: ISO
@@ -4367,6 +4410,36 @@ def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:
     return missing_code_hint(*found, missing, f" in the {column} column" if column else "")
 
 
+#: Undeclared codes read as missing in one column at most (our choice: files of two or
+#: three loggers joined, each writing its own code; the next one found after them is
+#: left to the range warning and screening).
+_MAX_UNDECLARED_CODES = 3
+
+
+def _blank_undeclared_codes(values, converted, mapping, missing, warnings) -> None:
+    """Read as missing, named, the cells of each column that hold an undeclared
+    missing-data code (:func:`fluxpart.unit_checks.undeclared_code_cells`).
+
+    A column whose code fills more than a few percent of it was refused before (its
+    hint asks for the code in ``[input] missing``); a code in fewer cells (-6999 in the
+    weather columns of a file joined from two loggers, -9999 declared) was kept as a
+    value, warned, and its records held -6999 W m-2 in the tables beside an out-of-range
+    flag, and entered as measured a VPD derived from it (round layouts55).
+    """
+    for name in list(converted):
+        for _ in range(_MAX_UNDECLARED_CODES):
+            found = undeclared_code_cells(name, values[name], converted[name])
+            if found is None:
+                break
+            cells, code, count = found
+            converted[name] = np.where(cells, np.nan, converted[name])
+            warnings.append(
+                f"{name}: the value {code:g} alone occurs {count} times in column "
+                f"{mapping[name]!r}, beyond the plausible range of {name}: read as missing, "
+                f"an undeclared missing-data code (add it to [input] missing, now "
+                f"{list(missing)}, to say so, or correct the file if it is a reading)")
+
+
 def _flag_key(column: str) -> str:
     return f"nee_flag:{column}"
 
@@ -4904,6 +4977,20 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                 "missing where the record before has values, every other value equal (line "
                 f"{int(lines[again[0]])}, the record of line {int(lines[again[0] - 1])} "
                 "again): read once, each cell from the record that has it"))
+    if not parsed.stamps[keep].is_unique:
+        # a record of no values at a stamp another record of the file has (a logger that
+        # writes a placeholder at a restart, then the record; layouts55: refused before as
+        # a stamp with different values)
+        empty = _placeholder_rows(parsed.stamps, values, keep)
+        if empty.size:
+            keep[empty] = False
+            duplicate = duplicate.copy()
+            duplicate[empty] = True
+            warnings.append(ReaderNote(
+                f"input file {source!r}: {empty.size} record(s) holding no value (every "
+                "column read missing, a flag aside) at a stamp that another record of the "
+                f"file has, with values (line {int(lines[empty[0]])}, stamp "
+                f"{stamp_text.iloc[empty[0]]!r}): a placeholder, dropped"))
     stamps = parsed.stamps[keep]
     try:
         check_order(stamps, stamp_text[keep].reset_index(drop=True), source, lines[keep],
@@ -4964,6 +5051,33 @@ def _restart_repeats(stamps: pd.DatetimeIndex, lines: np.ndarray, values: dict,
     agree = np.all(~both | (later == earlier), axis=1)
     fewer = np.all(~np.isnan(later) <= ~np.isnan(earlier), axis=1)
     return rows[agree & fewer]
+
+
+def _placeholder_rows(stamps: pd.DatetimeIndex, values: dict, keep: np.ndarray) -> np.ndarray:
+    """Rows (0-based) kept in `keep` that hold no value in any column read but flags, at a
+    stamp that a kept row with a value has, every flag the two hold equal. Called only
+    where a stamp repeats."""
+    if not values:
+        return np.zeros(0, dtype=int)
+    names = list(values)
+    table = np.column_stack([np.asarray(values[n], dtype=float) for n in names])
+    flags = np.array([n.startswith("nee_flag") for n in names])
+    present = ~np.isnan(table)
+    empty = keep & ~present[:, ~flags].any(axis=1)
+    stamp_values = stamps.to_numpy()
+    repeated = keep & pd.Index(stamp_values).duplicated(keep=False) & ~empty
+    if not (empty & pd.Index(stamp_values).duplicated(keep=False)).any():
+        return np.zeros(0, dtype=int)
+    first_full = pd.Series(np.flatnonzero(repeated),
+                           index=stamp_values[repeated]).groupby(level=0).first()
+    rows = [row for row in np.flatnonzero(empty) if stamp_values[row] in first_full.index]
+    found = []
+    for row in rows:
+        other = table[first_full[stamp_values[row]]]
+        both = present[row] & ~np.isnan(other)
+        if np.all(table[row][both] == other[both]):
+            found.append(row)
+    return np.asarray(found, dtype=int)
 
 
 def _later_file_layout(path: Path, text: str, first_header, delimiter: str,

@@ -60,6 +60,7 @@ __all__ = [
     "frame_refusal",
     "implausible_message",
     "mixup_messages",
+    "undeclared_code_cells",
 ]
 
 #: A variable stops the reader when more than this share of its present values lies
@@ -178,6 +179,49 @@ def undeclared_code(outside_values) -> tuple[float, int] | None:
     if count < 3 or count < 0.5 * len(outside_values):
         return None
     return code, count
+
+
+def undeclared_code_cells(name: str, file_values, canonical
+                          ) -> tuple[np.ndarray, float, int] | None:
+    """The cells of a column that hold an undeclared missing-data code, the code and its
+    count; None where the column holds none.
+
+    Parameters
+    ----------
+    name : str
+        Canonical variable (a key of :data:`fluxpart.variables.READER_VARIABLES`).
+    file_values : numpy.ndarray
+        The column's values as written in the file (NaN = missing).
+    canonical : numpy.ndarray
+        The same values converted to the canonical unit.
+
+    Returns
+    -------
+    tuple or None
+        ``(cells, code, count)``: a boolean array of the cells holding the code, the code
+        as written, how often it occurs. The code is the value beyond the variable's
+        plausible range that makes up half or more of the values beyond it, 3 times or
+        more (:func:`undeclared_code`, the reader's hint): a logger repeats its code
+        exactly, a spike or a faulty sensor spreads over many values.
+
+    References
+    ----------
+    Plausible ranges: :data:`fluxpart.variables.READER_VARIABLES` (their sources there).
+    Missing-data codes such as -9999 and -6999 written into every gap are common practice
+    of loggers and data centres.
+    """
+    variable = READER_VARIABLES.get(name)
+    if variable is None or not (math.isfinite(variable.minimum)
+                                or math.isfinite(variable.maximum)):
+        return None
+    file_values = np.asarray(file_values, dtype=float)
+    with np.errstate(invalid="ignore"):
+        outside = _outside(name, np.asarray(canonical, dtype=float))
+    found = undeclared_code(file_values[outside])
+    if found is None:
+        return None
+    code, count = found
+    return outside & (file_values == code), code, count
 
 
 def missing_code_hint(code: float, count: int, missing, place: str = "") -> str:
