@@ -395,7 +395,8 @@ def f49_zipped_elsewhere_renamed():
 def f49_tables_resaved():
     """Tables re-saved by other Parquet writers (pyarrow zstd, no dictionary, format 2.6
     pages v2; pandas.to_parquet): verify exits 1 naming each file and saying its values
-    equal the rerun's (pandas: fluxpart's metadata gone), report and export still run."""
+    equal the rerun's (pandas: fluxpart's metadata gone); report and export refuse the
+    folder in one line naming the file (they draw only what was written)."""
     seen = []
     for label, code in (("zstd", "pq.write_table(pq.read_table(p), p, compression='zstd')"),
                         ("no dictionary", "pq.write_table(pq.read_table(p), p, "
@@ -411,13 +412,49 @@ def f49_tables_resaved():
         named = "daily" in done.stdout and ("bit-identical to the rerun" in done.stdout
                                             or "rewritten by another program"
                                             in done.stdout)
-        other = (fp("report", "--quiet", folder).returncode,
-                 fp("export", "--csv", W / "resave49_csv", folder).returncode)
-        shutil.rmtree(W / "resave49_csv", ignore_errors=True)
-        seen.append((label, done.returncode, named, other))
+        others = [fp("report", "--quiet", folder),
+                  fp("export", "--csv", W / "resave49_csv", folder)]
+        refused = all(one_line(o) and "daily.parquet" in o.stderr for o in others)
+        seen.append((label, done.returncode, named, refused))
     record("tables re-saved by other Parquet writers (expected: verify 1 naming the file "
-           "and its equal values; report, export 0)",
-           all(c == 1 and n and o == (0, 0) for _, c, n, o in seen), f"{seen}")
+           "and its equal values; report, export one line naming it)",
+           all(c == 1 and n and r for _, c, n, r in seen), f"{seen}")
+
+
+def f49_report_stop_as_staging_appears():
+    """SIGHUP, SIGTERM and SIGINT, two each, sent to report the moment its staging folder
+    appears (a stop inside ``mkdtemp``, after the folder was made): exit 128 + the signal,
+    the earlier page whole, no staging folder left in the result."""
+    wrong = []
+    for signum in (signal.SIGHUP, signal.SIGTERM, signal.SIGINT) * 2:
+        folder = fresh("race49")
+        fp("report", "--quiet", folder)
+        page = (folder / "report" / "report.html").read_bytes()
+        done = pf.stop_when(["report", "--quiet", folder], signum,
+                            lambda folder=folder: any(".report.staging-" in p.name
+                                                      for p in folder.iterdir()))
+        left = leftovers(folder)
+        if (done.returncode != 128 + signum or left
+                or (folder / "report" / "report.html").read_bytes() != page):
+            wrong.append((signal.Signals(signum).name, done.returncode, left))
+    record("report stopped the moment its staging folder appears, 6 times (expected: "
+           "128 + signal, page whole, nothing left)", not wrong, f"wrong {wrong}")
+
+
+def f49_threads_one_and_two():
+    """run with every thread pool at 2 (OMP, OpenBLAS, MKL, NumExpr) and at 1, and
+    verify of the 1-thread result under 2 threads: tables byte-identical, verify 0."""
+    two = dict(ENV, OMP_NUM_THREADS="2", OPENBLAS_NUM_THREADS="2", MKL_NUM_THREADS="2",
+               NUMEXPR_NUM_THREADS="2")
+    out = W / "threads49"
+    shutil.rmtree(out, ignore_errors=True)
+    run = fp("run", "site.toml", "--out", out, "--quiet", env=two)
+    check = verify(W / "r0", env=two)
+    record("run and verify with thread pools at 2 against 1 (expected: same bytes, "
+           "verify 0)", run.returncode == 0 and check.returncode == 0
+           and table_digests(out) == table_digests(W / "r0"),
+           f"run {run.returncode}, verify {check.returncode}, same "
+           f"{table_digests(out) == table_digests(W / 'r0')}")
 
 
 # ------------------------------------------------------------------ the input after the run
@@ -493,32 +530,41 @@ def f49_input_edited_report_export():
 
 
 def f49_symlinked_input():
-    """The input a symbolic link into a data folder: the link retargeted to another
-    file (one value changed) makes verify name the input; replaced by a copy of the
-    original it passes."""
+    """The input a symbolic link into a data folder (the manifest records the file the
+    link led to): that file edited in place makes verify name it (exit 1); put back and
+    moved, with the link following it, verify either passes or names it missing in one
+    line; restored at its place it passes."""
     base = W / "slink49"
     shutil.rmtree(base, ignore_errors=True)
     (base / "data").mkdir(parents=True)
     (base / "b").mkdir()
-    shutil.copy2(W / "b" / "tower.csv", base / "data" / "tower_v1.csv")
+    target = base / "data" / "tower_v1.csv"
+    shutil.copy2(W / "b" / "tower.csv", target)
     shutil.copy2(W / "b" / "site.toml", base / "b" / "site.toml")
-    (base / "b" / "tower.csv").symlink_to(base / "data" / "tower_v1.csv")
+    (base / "b" / "tower.csv").symlink_to(target)
     assert fp("run", "site.toml", "--out", base / "r", "--quiet", cwd=base / "b").returncode == 0
-    text = (base / "data" / "tower_v1.csv").read_text().splitlines(keepends=True)
+    original = target.read_bytes()
+    text = original.decode().splitlines(keepends=True)
     cells = text[300].split(",")
     cells[1] = "7" + cells[1]
     text[300] = ",".join(cells)
-    (base / "data" / "tower_v2.csv").write_text("".join(text))
+    target.write_text("".join(text))
+    edited = fp("verify", "--quiet", base / "r", cwd=W)
+    target.write_bytes(original)
+    (base / "archive").mkdir()
+    target.rename(base / "archive" / "tower_v1.csv")
     (base / "b" / "tower.csv").unlink()
-    (base / "b" / "tower.csv").symlink_to(base / "data" / "tower_v2.csv")
-    changed = fp("verify", "--quiet", base / "r", cwd=W)
-    (base / "b" / "tower.csv").unlink()
-    shutil.copy2(base / "data" / "tower_v1.csv", base / "b" / "tower.csv")
-    copied = fp("verify", "--quiet", base / "r", cwd=W)
-    record("a symlinked input retargeted, then replaced by a copy (expected: names "
-           "tower.csv; then 0)", changed.returncode in (1, 2)
-           and "tower.csv" in changed.stdout + changed.stderr and copied.returncode == 0,
-           f"retargeted {changed.returncode} {_said(changed, 120)}, copy {copied.returncode}")
+    (base / "b" / "tower.csv").symlink_to(base / "archive" / "tower_v1.csv")
+    moved = fp("verify", "--quiet", base / "r", cwd=W)
+    (base / "archive" / "tower_v1.csv").rename(target)
+    back = fp("verify", "--quiet", base / "r", cwd=W)
+    record("a symlinked input's file edited, moved with the link, put back (expected: 1 "
+           "naming it; 0 or one line; 0)", edited.returncode == 1
+           and "tower_v1.csv" in edited.stdout + edited.stderr
+           and (moved.returncode == 0 or one_line(moved) and "tower_v1.csv" in moved.stderr)
+           and back.returncode == 0,
+           f"edited {edited.returncode} {_said(edited, 120)}, moved {moved.returncode} "
+           f"{_said(moved, 120)}, back {back.returncode}")
 
 
 # ------------------------------------------------------------------ tampering
@@ -640,6 +686,7 @@ FAULTS = [f49_scancel_grace, f49_sighup, f49_kill9_report_export_points,
           f49_two_runs_linked_parent, f49_odd_paths_moved, f49_read_only_result,
           f49_full_disk_export_report_out, f49_enospc_report_netcdf,
           f49_mtimes_1970_and_before, f49_zipped_elsewhere_renamed, f49_tables_resaved,
+          f49_report_stop_as_staging_appears, f49_threads_one_and_two,
           f49_input_renamed, f49_input_zipped_after_run,
           f49_input_windows_compressed_folder, f49_input_zstd_after_run,
           f49_input_edited_report_export, f49_symlinked_input, f49_tampered_value,
