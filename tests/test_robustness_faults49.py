@@ -139,3 +139,26 @@ def test_verify_of_a_result_whose_input_was_zipped(copy, capsys):
     assert main(["verify", "--quiet", str(copy / "out")]) == 2
     err = capsys.readouterr().err
     assert len(err.splitlines()) == 1 and "'tower.csv.zip' beside it does not hold" in err
+
+
+def test_a_stop_as_a_csv_exports_staging_is_made_leaves_nothing(copy, tmp_path, monkeypatch):
+    """The CSV export's staging folder ``.csv.xxxxxxxx.tmp`` made inside ``mkdtemp`` was
+    left by a stop the moment it existed (until the next export swept it); now it is
+    removed and no CSV folder is written. (The first ``.tmp`` folder is the export's
+    probe of the place, removed at once.)"""
+    from fluxpart.export_csv import write_csv
+
+    parent = tmp_path / "exports"
+    parent.mkdir()
+    real, calls = os.mkdir, []
+
+    def stopping(path, *args, **kwargs):
+        real(path, *args, **kwargs)
+        if os.fsdecode(path).endswith(".tmp"):
+            calls.append(path)
+            if len(calls) == 2:
+                raise KeyboardInterrupt
+    monkeypatch.setattr(os, "mkdir", stopping)
+    with pytest.raises(KeyboardInterrupt):
+        write_csv(copy / "out", parent / "csv")
+    assert len(calls) == 2 and list(parent.iterdir()) == []
