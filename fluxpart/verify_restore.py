@@ -89,6 +89,10 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     Seward, J. bzip2 and libbzip2: the .bz2 file format (m); Tukaani (2009). The .xz file
     format, version 1.0.4 (the magic bytes of :data:`PACKED_FORMS`).
     """
+    member = _zip_member(path)
+    if member is not None:
+        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49)
+        return _zip_restored(path, member, sha, scratch, number)
     unpacked = _unpacked(path)
     if unpacked is not None:
         # compressed for the archive; the recorded file may be the text inside, as it is
@@ -232,49 +236,71 @@ def _zip_names(path: Path) -> list[Path]:
                                path.with_name(path.stem + ".zip"))))
 
 
+def _zip_member(archive: Path) -> str | None:
+    """The name of the one file the zip archive `archive` holds (macOS's ``__MACOSX/``
+    forks not counted), or None (no zip, damaged, or another number of files)."""
+    import zipfile
+
+    try:
+        with archive.open("rb") as handle:
+            if handle.read(4) != b"PK\x03\x04":
+                return None
+        with zipfile.ZipFile(archive) as packed:
+            members = [info.filename for info in packed.infolist() if not info.is_dir()
+                       and not info.filename.startswith("__MACOSX/")]
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
+        return None
+    return members[0] if len(members) == 1 else None
+
+
+def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -> Path | None:
+    """The recorded input restored from the one file `member` of the zip `archive`: its
+    bytes unpacked a chunk at a time into `scratch` (given up past `MOST_UNPACKED_BYTES`)
+    and taken where they, as they are or re-saved (:func:`_restored_text`), have the
+    recorded SHA-256 `sha`; else None, nothing left."""
+    import zipfile
+
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target, digest, size = folder / Path(member).name, hashlib.sha256(), 0
+    try:
+        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream, \
+                target.open("wb") as out:
+            while chunk := stream.read(_CHUNK_BYTES):
+                size += len(chunk)
+                if size > MOST_UNPACKED_BYTES:
+                    raise ValueError(f"unpacks to more than {MOST_UNPACKED_BYTES} bytes")
+                digest.update(chunk)
+                out.write(chunk)
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
+            NotImplementedError, zlib.error):
+        target.unlink(missing_ok=True)
+        return None
+    if digest.hexdigest() == sha:
+        return target
+    restored = _restored_text(target, sha, scratch, number + 1000)
+    target.unlink(missing_ok=True)
+    return restored
+
+
 def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     """(the zip archive, the recorded bytes restored from it) where the recorded input
     `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file of its
-    name whose bytes, as they are or re-saved (:func:`_restored_text`), have the recorded
-    SHA-256; else None. Unpacked a chunk at a time into `scratch`, given up past
-    `MOST_UNPACKED_BYTES` (round faults49: ``zip -m`` of the input after the run had been
-    "does not exist; give --input", though ``run`` reads such a zip).
+    name whose bytes, as they are or re-saved, have the recorded SHA-256
+    (:func:`_zip_restored`); else None (round faults49: ``zip -m`` of the input after the
+    run had been "does not exist; give --input", though ``run`` reads such a zip).
 
     References
     ----------
     PKWARE. APPNOTE.TXT: .ZIP File Format Specification (m); Python documentation,
     ``zipfile``.
     """
-    import zipfile
-
     for archive in _zip_names(path):
-        if not archive.is_file():
-            continue
-        try:
-            with zipfile.ZipFile(archive) as packed:
-                members = [info for info in packed.infolist() if not info.is_dir()
-                           and not info.filename.startswith("__MACOSX/")]
-                if len(members) != 1 or Path(members[0].filename).name != path.name:
-                    continue
-                folder = scratch / f"restored-input-{number}"
-                folder.mkdir(parents=True, exist_ok=True)
-                target, digest, size = folder / path.name, hashlib.sha256(), 0
-                with packed.open(members[0]) as stream, target.open("wb") as out:
-                    while chunk := stream.read(_CHUNK_BYTES):
-                        size += len(chunk)
-                        if size > MOST_UNPACKED_BYTES:
-                            raise ValueError("unpacks to too many bytes")
-                        digest.update(chunk)
-                        out.write(chunk)
-        except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
-                NotImplementedError, zlib.error):
-            continue
-        if digest.hexdigest() == sha:
-            return archive, target
-        restored = _restored_text(target, sha, scratch, number + 1000)
-        target.unlink(missing_ok=True)
-        if restored is not None:
-            return archive, restored
+        member = _zip_member(archive) if archive.is_file() else None
+        if member is not None and Path(member).name == path.name:
+            restored = _zip_restored(archive, member, sha, scratch, number)
+            if restored is not None:
+                return archive, restored
     return None
 
 

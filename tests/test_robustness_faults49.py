@@ -127,13 +127,21 @@ def test_an_input_packed_by_an_unread_tool_is_named_with_its_command(tmp_path):
 
 def test_verify_of_a_result_whose_input_was_zipped(copy, capsys):
     """End to end: the input zipped after the run; verify exit 0 with a note naming the
-    archive; the archive of a changed input is one ``error:`` line, exit 2."""
+    archive, also with the archive given as --input; the archive of a changed input is
+    one ``error:`` line, exit 2."""
     data = (copy / "tower.csv").read_bytes()
     (copy / "tower.csv").unlink()
     with zipfile.ZipFile(copy / "tower.csv.zip", "w", zipfile.ZIP_DEFLATED) as packed:
         packed.writestr("tower.csv", data)
     assert main(["verify", str(copy / "out")]) == 0
     assert "'tower.csv.zip' beside it holds its recorded bytes" in capsys.readouterr().out
+    # given with --input, as `--input tower.csv.gz` is (it was "NOT reproduced": another
+    # SHA-256)
+    (copy / "tower.csv.zip").rename(copy / "archive.zip")
+    assert main(["verify", "--quiet", str(copy / "out"), "--input",
+                 str(copy / "archive.zip")]) == 0
+    (copy / "archive.zip").rename(copy / "tower.csv.zip")
+    capsys.readouterr()
     with zipfile.ZipFile(copy / "tower.csv.zip", "w") as packed:
         packed.writestr("tower.csv", data[:-300])
     assert main(["verify", "--quiet", str(copy / "out")]) == 2

@@ -681,6 +681,31 @@ def f49_run_under_clock_back_then_verify():
            f"exits {codes}, written {written}")
 
 
+def f49_readers_while_runs_swap():
+    """export --csv, export --netcdf and diff, each looped while runs of two seeds replace
+    the folder in turn: every reader ends 0 or with one ``error:`` line, never a
+    traceback; nothing is left beside the folder or the exports."""
+    folder = fresh("swap49")
+    runs = [start("run", f"{name}.toml", "--out", folder, "--quiet")
+            for name in ("seed1", "site", "seed1")]
+    seen, bad = [], []
+    for k in range(4):
+        for label, args in (("csv", ["export", "--csv", W / f"swap49_csv{k}", folder]),
+                            ("netcdf", ["export", "--netcdf", W / f"swap49_{k}.nc", folder]),
+                            ("diff", ["diff", folder, W / "r0"])):
+            done = fp(*args)
+            seen.append(done.returncode)
+            if "Traceback" in done.stderr or done.returncode not in (0, 1) and not one_line(
+                    done):
+                bad.append((label, done.returncode, _tail(done, 100)))
+    codes = [p.communicate(timeout=600) and p.returncode for p in runs]
+    left = leftovers(W) + sorted(p.name for p in W.glob(".swap49*"))
+    record("export --csv/--netcdf and diff looped while runs replace the folder (expected: "
+           "0 or one line each, nothing left)", not bad and codes == [0, 0, 0] and not left
+           and pf._whole_kind(folder, W / "r1") == "r1",
+           f"reader exits {seen}, bad {bad[:2]}, runs {codes}, left {left}")
+
+
 FAULTS = [f49_scancel_grace, f49_sighup, f49_kill9_report_export_points,
           f49_kill9_netcdf_over_earlier, f49_batch_worker_sigterm,
           f49_two_runs_linked_parent, f49_odd_paths_moved, f49_read_only_result,
@@ -692,7 +717,7 @@ FAULTS = [f49_scancel_grace, f49_sighup, f49_kill9_report_export_points,
           f49_input_edited_report_export, f49_symlinked_input, f49_tampered_value,
           f49_tampered_value_resealed, f49_warning_deleted_resealed,
           f49_input_changed_hash_resealed, f49_future_lock_and_leftovers,
-          f49_run_under_clock_back_then_verify]
+          f49_run_under_clock_back_then_verify, f49_readers_while_runs_swap]
 
 if __name__ == "__main__":
     signal.signal(signal.SIGINT, signal.default_int_handler)
