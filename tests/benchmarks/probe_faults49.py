@@ -693,6 +693,8 @@ def f49_readers_while_runs_swap():
             for name in ("seed1", "site", "seed1")]
     seen, bad = [], []
     for k in range(4):
+        shutil.rmtree(W / f"swap49_csv{k}", ignore_errors=True)   # an earlier pass's
+        (W / f"swap49_{k}.nc").unlink(missing_ok=True)
         for label, args in (("csv", ["export", "--csv", W / f"swap49_csv{k}", folder]),
                             ("netcdf", ["export", "--netcdf", W / f"swap49_{k}.nc", folder]),
                             ("diff", ["diff", folder, W / "r0"])):
