@@ -91,6 +91,7 @@ from .store import (
     file_mode,
     folder_mode,
     full_disk_remedy,
+    made_folder,
     remove_folder,
     remove_stale,
     require_owner_access,
@@ -489,12 +490,14 @@ def _write_locked(files: dict, target: Path, parent: Path, stem: str,
     """
     from .resultdir import DEFAULT_LOCK_TIMEOUT, folder_lock
 
-    staging = None
+    staging, made = None, []
     try:
         # the staging stem: the target's name, or its hash where a name near the limit
         # leaves no room for '.NAME.lock'
         held.enter_context(folder_lock(parent / stem, DEFAULT_LOCK_TIMEOUT, remove=True))
-        staging = Path(tempfile.mkdtemp(prefix=f".{stem}.", suffix=".tmp", dir=parent))
+        # named in `made` before it exists: a stop the moment it was made is removed below
+        # (inside mkdtemp it was left until the next export, round faults49)
+        staging = made_folder(parent, f".{stem}.", ".tmp", made)
         remove_stale(parent, re.compile(rf"^\.{re.escape(stem)}\.[a-z0-9_]{{8}}\.tmp$"),
                      keep=staging)
         for name, data in files.items():
@@ -510,8 +513,8 @@ def _write_locked(files: dict, target: Path, parent: Path, stem: str,
             target.rmdir()                       # empty: replaced by the rename
         os.rename(staging, target)
     except OSError as error:
-        if staging is not None:
-            _remove(staging)
+        for path in made:
+            _remove(path)
         reason = os.strerror(error.errno) if error.errno else str(error)
         if error.errno in (errno.ENOTEMPTY, errno.EEXIST) and target.exists():
             # another export (or a user) filled the folder between the check and the rename
@@ -524,8 +527,8 @@ def _write_locked(files: dict, target: Path, parent: Path, stem: str,
         raise OutputError(f"--csv {str(target)!r}: writing failed ({reason}); nothing was "
                           f"written: {remedy}") from None
     except BaseException:
-        if staging is not None:
-            _remove(staging)
+        for path in made:
+            _remove(path)
         raise
 
 

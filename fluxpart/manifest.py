@@ -599,7 +599,8 @@ def result_links(manifest: dict) -> dict:
 
 
 #: The name of a writer's staging folder beside its output NAME (``.NAME.staging-`` and
-#: the 8 characters of :func:`tempfile.mkdtemp`: :func:`fluxpart.resultdir.make_staging`).
+#: 8 characters: :func:`tempfile.mkdtemp`'s before round faults49, eight hex digits since,
+#: :func:`fluxpart.resultdir.make_staging`).
 _STAGING_NAME = re.compile(r"^\.(.+)\.staging-[a-z0-9_]{8}$")
 
 

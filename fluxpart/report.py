@@ -75,11 +75,10 @@ from .resultdir import (
     folder_identity,
     folder_lock,
     lock_file,
-    make_staging,
     read_folder,
     recover_missing,
     replace_refusal,
-    swapped_in,
+    staged,
 )
 from .store import atomic_write_bytes, full_disk_remedy, require_owner_access
 from .uncertainty_parts import PART_LABELS, uncertainty_parts
@@ -1541,7 +1540,7 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     data-year="2021" data-value="...">``. PNG files are written without
     timestamps, so the same folder and library versions give the same bytes.
     The figures and the page are written into a staging folder beside `out`
-    that then replaces `out` whole (:func:`fluxpart.resultdir.swapped_in`): a
+    that then replaces `out` whole (:func:`fluxpart.resultdir.staged`): a
     failure (a full disk) leaves the earlier report, or none, never a mix.
     """
     from .figures import _matplotlib
@@ -1571,8 +1570,7 @@ def build_report(directory, out=None, *, progress=None) -> Path:
     _require_same_folder(directory, read_from, out)
     try:
         out.parent.mkdir(parents=True, exist_ok=True)
-        staging = make_staging(out)
-        with swapped_in(staging, out):
+        with staged(out) as staging:
             for figure in figures:
                 atomic_write_bytes(staging / figure.name, figure.png)
             atomic_write_bytes(staging / "report.html", page)

@@ -38,7 +38,6 @@ import errno
 import hashlib
 import json
 import os
-import tempfile
 from contextlib import nullcontext
 from pathlib import Path
 
@@ -50,7 +49,7 @@ from .errors import InputFileError, OutputError, ResourceShortage, read_fault_re
 from .file_digest import sha256_of_file
 
 __all__ = ["PANDAS_ATTRS_KEY", "arrow_table", "atomic_write_bytes", "column_units", "file_mode", "file_sha256",
-           "folder_mode", "full_disk_remedy", "parquet_source", "read_table", "reader_attrs",
+           "folder_mode", "full_disk_remedy", "made_folder", "parquet_source", "read_table", "reader_attrs",
            "remove_stale", "set_mode", "shortage", "special_kind", "table_shape", "unreadable",
            "write_table"]
 
@@ -272,6 +271,63 @@ def remove_folder(path) -> None:
             continue
 
 
+#: Names a writer draws for a folder of its own before it gives up (each name's eight
+#: characters are random: a clash is another writer's folder of that very name).
+_FOLDER_NAME_TRIES = 100
+
+
+def made_folder(parent, prefix: str, suffix: str = "", made: list | None = None) -> Path:
+    """Make a new private folder ``PREFIX`` + eight random characters + ``SUFFIX`` in
+    `parent`, as :func:`tempfile.mkdtemp` does, its path put in `made` before it exists.
+
+    A stop (Ctrl-C, SIGTERM, SIGHUP: an exception the command line's handler raises)
+    that came after ``mkdtemp`` made the folder and before it returned left the folder
+    with no name to remove it by: a report's staging folder stayed inside the result
+    (one SIGHUP in three sent as the staging folder appeared, round faults49). Here the
+    caller's `made` holds the path before the folder is made, so that its clean-up
+    (``except BaseException``) removes it wherever the stop comes; a folder of that name
+    made by another writer is not put there.
+
+    Parameters
+    ----------
+    parent : path-like
+        The folder to make it in.
+    prefix, suffix : str
+        Its name around the random part (eight lower-case hex digits, as
+        ``secrets.token_hex(4)``: the characters of ``mkdtemp``'s names).
+    made : list, optional
+        The caller's list the new path is appended to before the folder is made.
+
+    Returns
+    -------
+    pathlib.Path
+        The folder (mode 700).
+
+    Raises
+    ------
+    OSError
+        If no folder can be made in `parent`.
+
+    References
+    ----------
+    Python documentation, ``tempfile.mkdtemp`` and ``signal`` (a handler's exception is
+    raised between two bytecode instructions of the main thread) (m).
+    """
+    import secrets
+
+    made = [] if made is None else made
+    for _ in range(_FOLDER_NAME_TRIES):
+        path = Path(parent) / f"{prefix}{secrets.token_hex(4)}{suffix}"
+        made.append(path)
+        try:
+            os.mkdir(path, 0o700)
+        except FileExistsError:
+            made.remove(path)       # another writer's: never the caller's to remove
+            continue
+        return path
+    raise FileExistsError(errno.EEXIST, "no unused folder name", str(Path(parent) / prefix))
+
+
 def remove_stale(folder, pattern, *, keep=None) -> list[str]:
     """Remove the entries of `folder` a killed writer left: names matching `pattern`.
 
@@ -429,8 +485,9 @@ def atomic_write_bytes(path, data: bytes) -> None:
     """Write `data` to `path` through a temporary file in the same folder, then rename."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    made: list = []
     try:
+        handle, temporary = _made_file(path.parent, f".{path.name}.", ".tmp", made)
         with os.fdopen(handle, "wb") as stream:
             stream.write(data)
             stream.flush()
@@ -438,8 +495,27 @@ def atomic_write_bytes(path, data: bytes) -> None:
         set_mode(temporary, file_mode())
         os.replace(temporary, path)
     except BaseException:
-        Path(temporary).unlink(missing_ok=True)
+        for temporary in made:
+            Path(temporary).unlink(missing_ok=True)
         raise
+
+
+def _made_file(parent: Path, prefix: str, suffix: str, made: list) -> tuple[int, str]:
+    """(descriptor, path) of a new private file ``PREFIX`` + eight random characters +
+    ``SUFFIX`` in `parent`, as :func:`tempfile.mkstemp` makes one, its path put in `made`
+    before it exists: a stop raised inside ``mkstemp`` after the file was made left it
+    with no name to remove it by (:func:`made_folder`, round faults49)."""
+    import secrets
+
+    for _ in range(_FOLDER_NAME_TRIES):
+        temporary = os.path.join(parent, f"{prefix}{secrets.token_hex(4)}{suffix}")
+        made.append(temporary)
+        try:
+            return os.open(temporary, os.O_RDWR | os.O_CREAT | os.O_EXCL
+                           | getattr(os, "O_CLOEXEC", 0), 0o600), temporary
+        except FileExistsError:
+            made.remove(temporary)  # another writer's: never the caller's to remove
+    raise FileExistsError(errno.EEXIST, "no unused file name", os.path.join(parent, prefix))
 
 
 def _stored_index(frame: pd.DataFrame) -> str | None:

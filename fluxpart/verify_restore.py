@@ -89,6 +89,10 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     Seward, J. bzip2 and libbzip2: the .bz2 file format (m); Tukaani (2009). The .xz file
     format, version 1.0.4 (the magic bytes of :data:`PACKED_FORMS`).
     """
+    member = _zip_member(path)
+    if member is not None:
+        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49)
+        return _zip_restored(path, member, sha, scratch, number)
     unpacked = _unpacked(path)
     if unpacked is not None:
         # compressed for the archive; the recorded file may be the text inside, as it is
@@ -220,7 +224,107 @@ def _packed_beside(path: Path, sha, scratch: Path, number: int):
             restored = _restored_text(packed, sha, scratch, number)
             if restored is not None:
                 return packed, restored
+    return _zipped_beside(path, sha, scratch, number)
+
+
+#: The one file a zip archive beside a gone input may hold to stand for it: ``NAME.zip``
+#: (``zip -m tower.csv.zip tower.csv``) and ``STEM.zip`` (a Windows "compressed (zipped)
+#: folder" of the file, named after it without its suffix (m)). ``run`` reads a zip of
+#: one table as that table (:func:`fluxpart._validate.single_zip_member`).
+def _zip_names(path: Path) -> list[Path]:
+    return list(dict.fromkeys((path.with_name(path.name + ".zip"),
+                               path.with_name(path.stem + ".zip"))))
+
+
+def _zip_member(archive: Path) -> str | None:
+    """The name of the one file the zip archive `archive` holds (macOS's ``__MACOSX/``
+    forks not counted), or None (no zip, damaged, or another number of files)."""
+    import zipfile
+
+    try:
+        with archive.open("rb") as handle:
+            if handle.read(4) != b"PK\x03\x04":
+                return None
+        with zipfile.ZipFile(archive) as packed:
+            members = [info.filename for info in packed.infolist() if not info.is_dir()
+                       and not info.filename.startswith("__MACOSX/")]
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
+        return None
+    return members[0] if len(members) == 1 else None
+
+
+def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -> Path | None:
+    """The recorded input restored from the one file `member` of the zip `archive`: its
+    bytes unpacked a chunk at a time into `scratch` (given up past `MOST_UNPACKED_BYTES`)
+    and taken where they, as they are or re-saved (:func:`_restored_text`), have the
+    recorded SHA-256 `sha`; else None, nothing left."""
+    import zipfile
+
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target, digest, size = folder / Path(member).name, hashlib.sha256(), 0
+    try:
+        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream, \
+                target.open("wb") as out:
+            while chunk := stream.read(_CHUNK_BYTES):
+                size += len(chunk)
+                if size > MOST_UNPACKED_BYTES:
+                    raise ValueError(f"unpacks to more than {MOST_UNPACKED_BYTES} bytes")
+                digest.update(chunk)
+                out.write(chunk)
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
+            NotImplementedError, zlib.error):
+        target.unlink(missing_ok=True)
+        return None
+    if digest.hexdigest() == sha:
+        return target
+    restored = _restored_text(target, sha, scratch, number + 1000)
+    target.unlink(missing_ok=True)
+    return restored
+
+
+def _zipped_beside(path: Path, sha, scratch: Path, number: int):
+    """(the zip archive, the recorded bytes restored from it) where the recorded input
+    `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file of its
+    name whose bytes, as they are or re-saved, have the recorded SHA-256
+    (:func:`_zip_restored`); else None (round faults49: ``zip -m`` of the input after the
+    run had been "does not exist; give --input", though ``run`` reads such a zip).
+
+    References
+    ----------
+    PKWARE. APPNOTE.TXT: .ZIP File Format Specification (m); Python documentation,
+    ``zipfile``.
+    """
+    for archive in _zip_names(path):
+        member = _zip_member(archive) if archive.is_file() else None
+        if member is not None and Path(member).name == path.name:
+            restored = _zip_restored(archive, member, sha, scratch, number)
+            if restored is not None:
+                return archive, restored
     return None
+
+
+#: Compressions a user may apply to an input after the run that neither ``run`` nor
+#: ``verify`` unpacks, by their tool's suffix: the tool named and its command to unpack
+#: (zstd, lz4, 7-Zip, RAR, Unix compress; their manual pages (m)).
+UNREAD_PACKINGS = {".zst": ("zstd", "zstd -d"), ".lz4": ("lz4", "lz4 -d"),
+                   ".7z": ("7-Zip", "7z x"), ".rar": ("RAR", "unrar x"),
+                   ".Z": ("compress", "uncompress")}
+
+
+def _packed_unread(path: Path) -> str:
+    """"; NAME.zst beside it is compressed with zstd, which ..." for the files beside the
+    gone input `path` packed in a format verify does not unpack (:data:`UNREAD_PACKINGS`),
+    or "" (round faults49: "does not exist" alone, the packed file in sight)."""
+    said = []
+    for suffix, (tool, command) in UNREAD_PACKINGS.items():
+        for packed in dict.fromkeys((path.with_name(path.name + suffix),
+                                     path.with_name(path.stem + suffix))):
+            if packed.is_file():
+                said.append(f"{packed.name!r} beside it is compressed with {tool}, which "
+                            f"fluxpart does not unpack: unpack it ({command} "
+                            f"{packed.name}) and verify again")
+    return "".join(f"; {line}" for line in said)
 
 
 def _packed_not_taken(path) -> str:
@@ -232,9 +336,11 @@ def _packed_not_taken(path) -> str:
         return ""
     beside = [path.name + suffix for _, suffix in PACKED_FORMS
               if path.with_name(path.name + suffix).is_file()]
+    beside += [archive.name for archive in _zip_names(path) if archive.is_file()]
     if not beside:
-        return ""
-    return (f"; {', '.join(map(repr, beside))} beside it does not hold its recorded bytes "
+        return _packed_unread(path)
+    return _packed_unread(path) + (
+            f"; {', '.join(map(repr, beside))} beside it does not hold its recorded bytes "
             f"(its unpacked bytes, re-saved or not, do not have the recorded SHA-256, or it "
             f"is damaged or unpacks to more than {MOST_UNPACKED_BYTES >> 30} GiB)")
 
