@@ -952,6 +952,22 @@ def _common_format(text: pd.Series, time_format: str) -> str:
     return f"every stamp reads as time_format = {setting_text(fitting[0])}"
 
 
+def _untailed_common_format(untailed: pd.Series, text: pd.Series, time_format: str) -> str:
+    """:func:`_common_format` of the stamps as written, else without a zero fraction of a
+    second ("00:30:00.000" as "00:30:00"), else as read past a zero tail (`text`).
+
+    The stamps as written are tried first, so that the format named is the file's own
+    (newuser57); a fraction of zeros, which no common layout writes, was then left with
+    no hint where it had one before (review95: "2021-06-01 00:30:00.000" under
+    "%Y%m%d%H%M"), so the stamp without it, then the text read past its zero tail, are
+    tried next: each format so named reads every stamp (:func:`zero_tails`).
+    """
+    seconds = untailed.astype(str).str.replace(r"(:\d\d)[.,]0+(\s*)$", r"\1\2",
+                                                regex=True).where(untailed.notna())
+    return (_common_format(untailed, time_format) or _common_format(seconds, time_format)
+            or _common_format(text, time_format))
+
+
 def common_formats(text: pd.Series, time_format: str) -> list:
     """The layouts of :data:`_COMMON_FORMATS` but `time_format` under which every stamp
     of `text` (blank cells aside) parses; none where there is no stamp."""
@@ -1642,7 +1658,7 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
         elif "%" not in time_format and time_format.upper() != "ISO8601":
             hint = ("; time_format holds no strptime code: write it with codes such as "
                     "%Y %m %d %H %M (e.g. \"%Y-%m-%d %H:%M\" for 2021-06-01 13:30)")
-        elif failed.all() and (found := _common_format(untailed, time_format)):
+        elif failed.all() and (found := _untailed_common_format(untailed, text, time_format)):
             hint = "; " + found
         hint = _mixed_forms(hint, text, failed, failed | is_24 | date_only, time_format,
                             source, lines)
