@@ -19,7 +19,6 @@ from fluxpart.cli import _refuse_other_format, main
 from fluxpart.errors import ConfigError, OutputError
 from fluxpart.flag_counter import many_values_text
 
-
 # --- a stamp written with a zero fraction of a second ---------------------------------
 
 def _logger_file(folder: Path, stamp_format: str, time_format: str) -> Path:
