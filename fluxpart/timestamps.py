@@ -938,6 +938,10 @@ _COMMON_FORMATS = (
 )
 
 
+#: Stamps :func:`common_formats` tries each layout on before the whole column.
+_HEAD_STAMPS = 200
+
+
 def _common_format(text: pd.Series, time_format: str) -> str:
     """A hint naming the one common layout every stamp reads under, else ''.
 
@@ -962,10 +966,16 @@ def _untailed_common_format(untailed: pd.Series, text: pd.Series, time_format: s
     "%Y%m%d%H%M"), so the stamp without it, then the text read past its zero tail, are
     tried next: each format so named reads every stamp (:func:`zero_tails`).
     """
+    found = _common_format(untailed, time_format)
+    if found:
+        return found
     seconds = untailed.astype(str).str.replace(r"(:\d\d)[.,]0+(\s*)$", r"\1\2",
                                                 regex=True).where(untailed.notna())
-    return (_common_format(untailed, time_format) or _common_format(seconds, time_format)
-            or _common_format(text, time_format))
+    if not seconds.equals(untailed):
+        found = _common_format(seconds, time_format)
+    if not found and not text.equals(untailed):
+        found = _common_format(text, time_format)
+    return found
 
 
 def common_formats(text: pd.Series, time_format: str) -> list:
@@ -976,10 +986,16 @@ def common_formats(text: pd.Series, time_format: str) -> list:
     if not len(stamps):
         return []
     fitting = []
+    # a layout that fails one of the first stamps fails the column: tried on them first,
+    # the whole column is parsed only under the layouts they fit (review95: 13 s for a
+    # ten-year 10-minute file under a format of another file, now under 1 s)
+    head = stamps.iloc[:_HEAD_STAMPS]
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         for candidate in _COMMON_FORMATS:
             if candidate == time_format:
+                continue
+            if pd.to_datetime(head, format=candidate, errors="coerce").isna().any():
                 continue
             read = pd.to_datetime(stamps, format=candidate, errors="coerce")
             if read.notna().all():
