@@ -287,7 +287,8 @@ _NOT_NETCDF_SUFFIXES = (".csv", ".tsv", ".txt", ".dat", ".json", ".toml", ".parq
 def _refuse_other_format(netcdf, csv) -> None:
     """Refuse a ``--netcdf`` file named as another format and a ``--csv`` folder named as one
     CSV file, where no such file or folder exists yet: each would be written as asked, but
-    not as its name says (round newuser57).
+    not as its name says (round newuser57). A ``--csv`` name written with a closing
+    separator (``tables.csv/``) names a folder and is kept (review95).
 
     References
     ----------
@@ -305,8 +306,9 @@ def _refuse_other_format(netcdf, csv) -> None:
             "writes one binary NetCDF file (read by xarray or ncdump): name it .nc (e.g. "
             f"{str(Path(netcdf).with_suffix('.nc'))!r}); for tables a spreadsheet opens give "
             "--csv FOLDER")
+    # a name written with a closing separator ("tables.csv/") names a folder (review95)
     if (csv is not None and Path(csv).suffix.lower() in (".csv", ".tsv", ".txt")
-            and not os.path.lexists(csv)):
+            and not os.path.lexists(csv) and not str(csv).endswith(("/", os.sep))):
         raise OutputError(
             f"--csv {str(csv)!r} is named as one {Path(csv).suffix} file, but --csv writes a "
             "folder holding every table as its own CSV file (timeseries.csv, daily.csv, "

@@ -23,7 +23,7 @@ _SHOWN = 10
 _COUNTING_SHARE = 0.9
 
 
-def many_values_text(flags: list) -> str:
+def many_values_text(flags: list, names: list | None = None) -> str:
     """A clause on flag columns holding more values than a message shows, else ''.
 
     Parameters
@@ -31,6 +31,11 @@ def many_values_text(flags: list) -> str:
     flags : list of numpy.ndarray
         Each mapped flag column's values per record, as numbers (NaN where missing or a
         word).
+    names : list of str, optional
+        The columns' names in the file: where more than one column is mapped, the
+        counting one is named, and the fix is to leave it out of ``nee_flag`` (review95:
+        with a quality column beside it, the clause named no column and said to map the
+        quality flag, which was mapped).
 
     Returns
     -------
@@ -48,11 +53,15 @@ def many_values_text(flags: list) -> str:
     if distinct <= _SHOWN:
         return ""
     text = f"{distinct} different values"
-    for flag in values:
+    for position, flag in enumerate(values):
         held = flag[np.isfinite(flag)]
         steps = np.diff(held)
         if (steps.size >= 2 * _SHOWN and np.all(held == np.round(held))
                 and np.mean(steps > 0) >= _COUNTING_SHARE):
+            if names is not None and len(names) > 1:
+                return (f"column {names[position]!r} holds {np.unique(held).size} "
+                        "different values, growing from record to record: a record number, "
+                        "not a quality flag; leave it out of nee_flag")
             return (f"{distinct} different values, growing from record to record: a "
                     "record number, not a quality flag; map the site's quality flag column "
                     "as nee_flag, or none")

@@ -1312,7 +1312,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             f"{' + '.join(flag_columns)} with [input] flag_accept = "
                             f"{list(flag_accept)}; the flags hold "
                             f"{[flag_shown(v, words, word_counts) for v in flag_values]}"
-                            f"{_in_brackets(many_values_text(flags))}: check which values mean a good "
+                            f"{_in_brackets(many_values_text(flags, flag_columns))}: check which values mean a good "
                             "record")
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
@@ -1333,7 +1333,7 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                 f"nee_flag: every record with a value in {source_of['nee']!r} is rejected by "
                 f"{' + '.join(flag_columns)} with [input] flag_accept = {list(flag_accept)}; "
                 f"the flags hold {[flag_shown(v, words, word_counts) for v in flag_values]}"
-                f"{_in_brackets(many_values_text(read_flags))}: set [input] "
+                f"{_in_brackets(many_values_text(read_flags, flag_columns))}: set [input] "
                 "flag_accept to "
                 "the values that mean a good record (or remove nee_flag from [input.columns])")
         # judged over the records with an NEE value (review41: a flag that marks every
@@ -5860,7 +5860,7 @@ def _flag_scale_message(flags: list, flag_columns: list, flag_accept, rejected: 
             f"({100 * (rejected / judged):.1f} %) are rejected by {' + '.join(flag_columns)} with "
             f"[input] flag_accept = {list(flag_accept)} "
             f"(the flags hold {shown} records"
-            f"{'; ' + counted if (counted := many_values_text(flags)) else ''}): either "
+            f"{'; ' + counted if (counted := many_values_text(flags, flag_columns)) else ''}): either "
             "flag_accept names the values of bad "
             "records (a flag of the other scale, a higher value for a better record), or the "
             "site's own checks reject nearly every record, which leaves no budget (towers "

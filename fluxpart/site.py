@@ -98,6 +98,8 @@ class Site:
         return asdict(self)
 
 
+#: Names of the offset 0 written for utc_offset: UTC, GMT, UT and ISO 8601's "Z" (m).
+_UTC_NAMES = ("UTC", "GMT", "UT", "Z")
 #: An offset written as text: "+01:00", "-0530", "UTC+1", "GMT-5", "+5.5"
 _OFFSET_TEXT = re.compile(r"\s*(?:UTC|GMT)?\s*([+\-\u2212]?)\s*(\d{1,2}(?:\.\d+)?)"
                           r"(?::?(\d{2}))?\s*", re.IGNORECASE)
@@ -108,13 +110,17 @@ def _offset_text_hint(text: str) -> str:
 
     A newcomer writes the offset as a clock shows it ("+01:00", "UTC+1") or gives the
     zone's name ("Europe/Berlin"); both name one number (round newuser57). A zone's
-    standard offset is its offset where it keeps no daylight saving time, in January or
-    July of the current year (the IANA tz database through Python's ``zoneinfo``).
+    standard offset is the smaller of its clock's offsets in January and July of the
+    current year (the IANA tz database through Python's ``zoneinfo``): summer time
+    advances the clock. "UTC", "GMT", "UT" and "Z" name 0 (review95).
 
     References
     ----------
     ISO 8601-1:2019, section 4.3.13: a UTC offset written as ±hh:mm or ±hhmm (m).
     """
+    if text.strip().upper() in _UTC_NAMES:
+        # review95: "UTC", "GMT" and ISO 8601's "Z" name the offset 0, and got no hint
+        return "; write it as hours: utc_offset = 0.0"
     found = _OFFSET_TEXT.fullmatch(text)
     if found:
         hours = float(found[2]) + (float(found[3]) / 60.0 if found[3] else 0.0)
@@ -135,13 +141,15 @@ def _offset_text_hint(text: str) -> str:
     from .config import setting_text
 
     year = datetime.date.today().year
-    moments = [datetime.datetime(year, month, 15, 12, tzinfo=zone) for month in (1, 7)]
-    standard = [moment.utcoffset() for moment in moments if not moment.dst()]
-    if not standard:
-        return ""
-    hours = min(standard).total_seconds() / 3600.0
+    offsets = [datetime.datetime(year, month, 15, 12, tzinfo=zone).utcoffset()
+               for month in (1, 7)]
+    # the smaller of the clock's two offsets: summer time advances the clock, so the
+    # logger's clock without it is the smaller; the offset where the zone's "dst" is 0
+    # named Ireland's summer clock (+1), whose tz rules write its winter GMT as a daylight
+    # saving of -1 h (review95)
+    hours = min(offsets).total_seconds() / 3600.0
     summer = ""
-    if any(moment.dst() for moment in moments):
+    if offsets[0] != offsets[1]:
         summer = (" (and where the file's stamps follow its summer time, also [input] "
                   f"time_zone = {setting_text(text.strip())})")
     return (f"; {setting_text(text.strip())} is a time zone, whose standard time is "
@@ -149,8 +157,8 @@ def _offset_text_hint(text: str) -> str:
 
 
 def _hours_text(hours: float) -> str:
-    """Hours as a TOML float: 1.0, -5.5, 5.75."""
-    text = f"{hours:g}"
+    """Hours as a TOML float: 1.0, -5.5, 5.75 (0.0 for "-00:00", review95)."""
+    text = f"{hours + 0.0:g}"
     return text if "." in text else text + ".0"
 
 
