@@ -2136,7 +2136,8 @@ def driver_day_weight(weight: float, day_statistic, critical: float, prior: str)
     return max(weight, 0.5)
 
 
-def mixture_day_weight(weight: float, share: float, draws) -> float | None:
+def mixture_day_weight(weight: float, share: float, draws,
+                       z: float = driver_mixture.SHOWN_Z) -> float | None:
     """The other respiration temperature's weight in the daytime records' part, where
     the nights show a mixture (``driver_day_prior = "mixture"``).
 
@@ -2150,6 +2151,9 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     draws : array_like
         The share on resampled nights, unclipped
         (:func:`fluxpart.driver_mixture.mixture_share_draws` with ``clip=False``) [1].
+    z : float, optional
+        The test's critical value (:func:`fluxpart.driver_mixture.critical_value`; default the
+        two-sided 95 % interval) [1].
 
     Returns
     -------
@@ -2174,7 +2178,7 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
     2nd ed. Springer.
     """
-    return max(weight, 0.5) if driver_mixture.mixture_shown(share, draws) else None
+    return max(weight, 0.5) if driver_mixture.mixture_shown(share, draws, z) else None
 
 
 def effective_records(residuals, use) -> float:
@@ -2314,7 +2318,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
                   fill_sides=None, daytime_result=None, light_shape=None,
-                  driver_day_prior="night", driver_share_spread="off") -> UncertaintyInputs:
+                  driver_day_prior="night", driver_share_spread="off",
+                  mixture_test="two_sided") -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2389,6 +2394,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         ``"bootstrap"``: at least s² + v, v the sampling variance of s over resampled
         nights (:func:`fluxpart.driver_mixture.mixture_share_draws`), the second moment
         of a share known only to its sampling error (Notes of :func:`driver_weight`).
+    mixture_test : str, optional
+        ``"two_sided"`` (default) or ``"one_sided"``: the test of ``"mixture"``
+        (:func:`fluxpart.driver_mixture.critical_value`).
 
     Returns
     -------
@@ -2440,7 +2448,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
     if other_driver_reco is None or driver_day_prior == "night":
         day_weight = None
     elif driver_day_prior == "mixture":
-        day_weight = mixture_day_weight(weight, share, share_draws)
+        day_weight = mixture_day_weight(weight, share, share_draws,
+                                        driver_mixture.critical_value(mixture_test))
     else:
         day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                                        driver_day_prior)
