@@ -16,10 +16,10 @@ from fluxpart import driver_mixture, uncertainty
 from fluxpart.config import Config
 from fluxpart.driver_mixture import (
     SHARE_DRAWS,
+    critical_value,
     mixture_share,
     mixture_share_draws,
     mixture_shown,
-    critical_value,
 )
 from fluxpart.uncertainty import mixture_day_weight
 
