@@ -368,7 +368,13 @@ class Config:
         partitioned fluxes' intervals by 21–31 % on average (several-fold on some)
         without changing their coverage; on a known-truth trial with soil and canopy
         parts it raised nighttime Reco coverage from 24 to 26 of 27 (DEVELOPERS.md,
-        0.33.0 changelog).
+        0.33.0 changelog). ``"share"`` (an option added after release 0.39.0): as
+        ``"mixture"``, and at least the other temperature's mixture share s itself, so
+        the daytime part is at least √s of the daytime difference (the share as the
+        weight of a two-point model average, :func:`fluxpart.driver_mixture.
+        share_day_weight`); measured (DEVELOPERS.md, the changelog after 0.39.0) on two
+        known-truth trials with a canopy part on air temperature and on generated sites
+        with one temperature, and left off.
     driver_share_spread : str
         ``"off"`` (default): the temperature-driver part's weight is at least s², s the
         other temperature's share in the night's best mixture of the two fits
@@ -1003,7 +1009,7 @@ _WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_s
                               "daytime_temperature", "mixture_test")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
-            "driver_day_prior": ("night", "equal", "mixture"),
+            "driver_day_prior": ("night", "equal", "mixture", "share"),
             "driver_share_spread": ("off", "bootstrap"),
             "daytime_temperature": ("driver", "air", "average", "mixture"),
             "mixture_test": ("two_sided", "one_sided"),

@@ -34,7 +34,7 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = ["MIN_RECORDS", "ONE_SIDED_Z", "SHARE_DRAWS", "SHOWN_Z", "TESTS", "critical_value",
-           "mixture_share", "mixture_share_draws", "mixture_shown"]
+           "mixture_share", "mixture_share_draws", "mixture_shown", "share_day_weight"]
 
 #: Fewer shared night records than this leave the share 0 (as in
 #: :func:`fluxpart.uncertainty.driver_weight`).
@@ -279,3 +279,46 @@ def mixture_shown(share: float, draws, z: float = SHOWN_Z) -> bool:
     """
     draws = np.asarray(draws, dtype=float)
     return bool(draws.size) and float(share) - float(z) * float(np.std(draws)) > 0.0
+
+
+def share_day_weight(weight: float, share: float) -> float:
+    """The other temperature's weight in the daytime records' part, at least the share
+    (``driver_day_prior = "share"``).
+
+    Parameters
+    ----------
+    weight : float
+        The daytime records' weight of ``driver_day_prior = "mixture"``
+        (:func:`fluxpart.uncertainty.mixture_day_weight`, or the night weight where no
+        mixture is shown) [1].
+    share : float
+        The night's mixture share s (:func:`mixture_share`) [1].
+
+    Returns
+    -------
+    float
+        max(`weight`, s) [1]: the daytime part of the temperature difference is then at
+        least √s · |Σ_day Δ|.
+
+    Notes
+    -----
+    On the night records the share is identified: the truth lies s of the way from the
+    central fit to the other, an error s · Δ (the weight s², :func:`fluxpart.uncertainty.
+    record_inputs`). How the part on the other temperature carries into the day is not
+    identified by the nights (both fits agree there, :func:`mixture_shown`'s Notes):
+    the day records take the stacking weight s as the probability of the other
+    temperature's fit in a two-point predictive mixture (stacking weights as the weights
+    of an average of predictive distributions, Yao et al. 2018 (m)), whose second moment
+    about the central fit is s · (Σ_day Δ)², as a model weight's is
+    (:func:`fluxpart.uncertainty.driver_weight`'s Notes). Under one temperature the
+    share stays near 0 and so does the weight; on known-truth trials with 20–43 % of the
+    night Reco on air temperature the share was attenuated to 0.0–0.4 and the nights'
+    test showed only some of them (DEVELOPERS.md, round partbias).
+
+    References
+    ----------
+    Yao, Y., Vehtari, A., Simpson, D. & Gelman, A. (2018). Using stacking to average
+    Bayesian predictive distributions. Bayesian Analysis 13, 917–1007 (m).
+    Breiman, L. (1996). Stacked regressions. Machine Learning 24, 49–64 (m).
+    """
+    return max(float(weight), float(share))

@@ -2388,7 +2388,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         ``"night"`` (default) or ``"equal"``: the weight of the daytime records' part
         of the respiration-temperature difference (:func:`driver_day_weight`);
         ``"mixture"``: at least 1/2 where the night's mixture share is shown above 0
-        (:func:`fluxpart.driver_mixture.mixture_shown`), the night weight elsewhere.
+        (:func:`fluxpart.driver_mixture.mixture_shown`), the night weight elsewhere;
+        ``"share"``: as ``"mixture"`` and at least the share itself
+        (:func:`fluxpart.driver_mixture.share_day_weight`).
     driver_share_spread : str, optional
         ``"off"`` (default): the weight is at least s², s the night's mixture share;
         ``"bootstrap"``: at least s² + v, v the sampling variance of s over resampled
@@ -2437,7 +2439,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         weight = max(combined_driver_weight(
             driver_weight(nee_measured, is_night, central, other_driver_reco),
             day_driver_statistic, day_evidence_critical), share ** 2)
-        if driver_share_spread == "bootstrap" or driver_day_prior == "mixture":
+        if driver_share_spread == "bootstrap" or driver_day_prior in ("mixture", "share"):
             # the share on resampled nights, drawn once for either use: unclipped for the
             # mixture test (clipping shrinks the spread near 0 and 1, round review87),
             # clipped to [0, 1] as the share itself for its second moment
@@ -2447,9 +2449,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             weight = max(weight, share_second_moment(share, np.clip(share_draws, 0.0, 1.0)))
     if other_driver_reco is None or driver_day_prior == "night":
         day_weight = None
-    elif driver_day_prior == "mixture":
+    elif driver_day_prior in ("mixture", "share"):
         day_weight = mixture_day_weight(weight, share, share_draws,
                                         driver_mixture.critical_value(mixture_test))
+        if driver_day_prior == "share":
+            day_weight = driver_mixture.share_day_weight(
+                weight if day_weight is None else day_weight, share)
     else:
         day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                                        driver_day_prior)

@@ -138,7 +138,8 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"respiration_driver": "soil"},
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
     ({"driver_day_prior": "day"},
-     r'driver_day_prior = "day" is not allowed: expected one of "night", "equal" or "mixture"'),
+     r'driver_day_prior = "day" is not allowed: expected one of "night", "equal", "mixture" '
+     r'or "share"'),
     ({"mixture_test": "two-sided"},
      r'mixture_test = "two-sided" is not allowed: expected one of "two_sided" or "one_sided"'),
     ({"driver_share_spread": "jackknife"},

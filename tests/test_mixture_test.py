@@ -102,3 +102,27 @@ def test_the_setting_is_off_by_default_and_refused_when_misspelt():
     assert Config(mixture_test="one_sided").to_dict()["mixture_test"] == "one_sided"
     with pytest.raises(ConfigError, match=r'mixture_test = "one" is not allowed'):
         Config(mixture_test="one")
+
+
+def test_the_share_prior_gives_the_day_records_at_least_the_share():
+    """``driver_day_prior = "share"``: the daytime records' weight is at least the night's
+    mixture share s, so their part is at least the root mean square error of the central
+    fit under a two-point predictive mixture that takes the other temperature's fit with
+    probability s (Yao et al. 2018, Bayesian Analysis 13, 917–1007 (m)), written out here
+    from the two outcomes; where a mixture is shown, 1/2 stands if larger."""
+    from fluxpart.driver_mixture import share_day_weight
+
+    assert share_day_weight(0.04, 0.2) == 0.2
+    assert share_day_weight(0.5, 0.2) == 0.5
+    assert share_day_weight(0.0, 0.0) == 0.0
+    day_difference = 40.0                    # Σ_day (Reco other − Reco central) [g C m-2]
+    outcomes = np.array([0.0, day_difference])
+    probabilities = np.array([0.8, 0.2])
+    rms = np.sqrt(probabilities @ outcomes ** 2)
+    assert np.sqrt(share_day_weight(0.0, 0.2)) * day_difference == pytest.approx(rms)
+    draws = np.random.default_rng(5).standard_normal(SHARE_DRAWS)
+    shown = 0.2 + 0.05 * (draws - draws.mean()) / draws.std()
+    unshown = 0.2 + 0.15 * (draws - draws.mean()) / draws.std()
+    assert share_day_weight(mixture_day_weight(0.04, 0.2, shown), 0.2) == 0.5
+    assert mixture_day_weight(0.04, 0.2, unshown) is None
+    assert Config(driver_day_prior="share").driver_day_prior == "share"
