@@ -28,7 +28,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from . import daytime_temperature, driver_mixture, gapfill, method_failure, uncertainty
+from . import daytime_temperature, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
 from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
@@ -249,7 +249,7 @@ def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
         air_reco = air_reco + form.shift
     return daytime_temperature.night_shown(central.nee_measured, inputs.is_night,
                                            central.night.reco, air_reco, inputs.frame.index,
-                                           driver_mixture.critical_value(config.mixture_test))
+                                           config.mixture_test)
 
 
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:

@@ -132,7 +132,7 @@ def unchanged_note(setting: str, temperature: str, fitted: bool,
 
 
 def night_shown(nee_measured, is_night, reco_central, reco_air, index,
-                z: float = driver_mixture.SHOWN_Z) -> bool:
+                test: str = "two_sided") -> bool:
     """Whether the nights show a mixture of the soil-driven and the air-driven Reco.
 
     Parameters
@@ -145,8 +145,9 @@ def night_shown(nee_measured, is_night, reco_central, reco_air, index,
         [µmol m-2 s-1].
     index : array_like of datetime64
         Record times (local).
-    z : float, optional
-        The test's critical value (:func:`fluxpart.driver_mixture.critical_value`) [1].
+    test : str, optional
+        ``"two_sided"`` (default) or ``"one_sided"``, the ``mixture_test`` setting
+        (:func:`fluxpart.driver_mixture.critical_value`).
 
     Returns
     -------
@@ -157,7 +158,7 @@ def night_shown(nee_measured, is_night, reco_central, reco_air, index,
     share = driver_mixture.mixture_share(nee_measured, is_night, reco_central, reco_air)
     draws = driver_mixture.mixture_share_draws(nee_measured, is_night, reco_central, reco_air,
                                                index, clip=False)
-    return driver_mixture.mixture_shown(share, draws, z)
+    return driver_mixture.mixture_shown(share, draws, driver_mixture.critical_value(test))
 
 
 def shifted_day(day, central_day, air_day, weight: float):
