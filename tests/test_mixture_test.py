@@ -126,3 +126,23 @@ def test_the_share_prior_gives_the_day_records_at_least_the_share():
     assert share_day_weight(mixture_day_weight(0.04, 0.2, shown), 0.2) == 0.5
     assert mixture_day_weight(0.04, 0.2, unshown) is None
     assert Config(driver_day_prior="share").driver_day_prior == "share"
+
+
+def test_the_daytime_temperature_test_takes_the_setting():
+    """``daytime_temperature = "mixture"`` asks :func:`fluxpart.daytime_temperature.
+    night_shown` with the ``mixture_test`` setting: invented nights with 5 % of the Reco on
+    air temperature and Laplace noise (a draw whose share lies 1.90 sd above 0) show a
+    mixture to the one-sided test at 5 % (1.645) and not to the two-sided interval (1.96;
+    the normal quantiles as above)."""
+    from fluxpart.daytime_temperature import night_shown
+
+    rng, air, soil = _two_fits(seed=37, n=1000)
+    nee = 0.95 * soil + 0.05 * air + rng.laplace(0, 1.0, air.size)
+    night = np.ones(air.size, bool)
+    index = _index(air.size)
+    share = mixture_share(nee, night, soil, air)
+    spread = np.std(mixture_share_draws(nee, night, soil, air, index, clip=False))
+    assert norm.ppf(0.95) < share / spread < norm.ppf(0.975)
+    assert not night_shown(nee, night, soil, air, index)
+    assert not night_shown(nee, night, soil, air, index, "two_sided")
+    assert night_shown(nee, night, soil, air, index, "one_sided")
