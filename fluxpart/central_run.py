@@ -248,7 +248,8 @@ def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
     if form is not None:
         air_reco = air_reco + form.shift
     return daytime_temperature.night_shown(central.nee_measured, inputs.is_night,
-                                           central.night.reco, air_reco, inputs.frame.index)
+                                           central.night.reco, air_reco, inputs.frame.index,
+                                           config.mixture_test)
 
 
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:

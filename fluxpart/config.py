@@ -368,7 +368,13 @@ class Config:
         partitioned fluxes' intervals by 21–31 % on average (several-fold on some)
         without changing their coverage; on a known-truth trial with soil and canopy
         parts it raised nighttime Reco coverage from 24 to 26 of 27 (DEVELOPERS.md,
-        0.33.0 changelog).
+        0.33.0 changelog). ``"share"`` (an option added after release 0.39.0): as
+        ``"mixture"``, and at least the other temperature's mixture share s itself, so
+        the daytime part is at least √s of the daytime difference (the share as the
+        weight of a two-point model average, :func:`fluxpart.driver_mixture.
+        share_day_weight`); measured (DEVELOPERS.md, the changelog after 0.39.0) on two
+        known-truth trials with a canopy part on air temperature and on generated sites
+        with one temperature, and left off.
     driver_share_spread : str
         ``"off"`` (default): the temperature-driver part's weight is at least s², s the
         other temperature's share in the night's best mixture of the two fits
@@ -401,6 +407,18 @@ class Config:
         4.6 % of Reco) and ``"mixture"`` the daytime errors of the two such sites it
         changed, so all are off. A value that changes nothing in a run (one on air temperature,
         no daytime fit on air, no mixture shown) is named in a warning.
+    mixture_test : str
+        The test by which the nights show a mixture of air and soil temperature
+        (``driver_day_prior = "mixture"``, ``daytime_temperature = "mixture"``;
+        :func:`fluxpart.driver_mixture.critical_value`). ``"two_sided"`` (default, as 0.38.0):
+        the other temperature's share has a two-sided 95 % interval above 0;
+        ``"one_sided"``: the share exceeds 0 at the one-sided 5 % level (1.645 standard
+        errors; a share lies in [0, 1], so the alternative to "no mixture" is one-sided).
+        An option added after release 0.39.0, written into a result's settings only
+        where set. Measured (DEVELOPERS.md, the changelog after 0.39.0): on two known-truth
+        trials with a canopy part on air temperature it raised the daytime coverage a
+        little (far from 95 %); on generated sites with one temperature it widened few
+        intervals; off by default.
     e0_window_days : float
         Length of the short windows in which E0 is fitted [days]; 15 days,
         Reichstein et al. (2005) (m).
@@ -693,6 +711,7 @@ class Config:
     driver_day_prior: str = "mixture"
     driver_share_spread: str = "off"
     daytime_temperature: str = "driver"
+    mixture_test: str = "two_sided"
     e0_window_days: float = 15.0
     e0_window_step_days: float = 5.0
     e0_min_points: int = 6
@@ -987,12 +1006,13 @@ def suggest_key(key: str, valid, what: str = "settings") -> str:
 #: Settings added after 0.33.0, written into a result's settings (:meth:`Config.to_dict`)
 #: only away from their default, with which a run is that of the release before them.
 _WRITTEN_AWAY_FROM_DEFAULT = ("night_fit_records", "ustar_kept_trend", "driver_share_spread",
-                              "daytime_temperature")
+                              "daytime_temperature", "mixture_test")
 
 _CHOICES = {"respiration_driver": ("tair", "tsoil", "auto"),
-            "driver_day_prior": ("night", "equal", "mixture"),
+            "driver_day_prior": ("night", "equal", "mixture", "share"),
             "driver_share_spread": ("off", "bootstrap"),
             "daytime_temperature": ("driver", "air", "average", "mixture"),
+            "mixture_test": ("two_sided", "one_sided"),
             "respiration_form": ("average", "lloyd_taylor"),
             "e0_method": ("joint", "best_windows"),
             "night_fit_records": ("all_night", "sun_down"),

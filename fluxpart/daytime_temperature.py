@@ -131,7 +131,8 @@ def unchanged_note(setting: str, temperature: str, fitted: bool,
     return ""
 
 
-def night_shown(nee_measured, is_night, reco_central, reco_air, index) -> bool:
+def night_shown(nee_measured, is_night, reco_central, reco_air, index,
+                test: str = "two_sided") -> bool:
     """Whether the nights show a mixture of the soil-driven and the air-driven Reco.
 
     Parameters
@@ -144,6 +145,9 @@ def night_shown(nee_measured, is_night, reco_central, reco_air, index) -> bool:
         [µmol m-2 s-1].
     index : array_like of datetime64
         Record times (local).
+    test : str, optional
+        ``"two_sided"`` (default) or ``"one_sided"``, the ``mixture_test`` setting
+        (:func:`fluxpart.driver_mixture.critical_value`).
 
     Returns
     -------
@@ -154,7 +158,7 @@ def night_shown(nee_measured, is_night, reco_central, reco_air, index) -> bool:
     share = driver_mixture.mixture_share(nee_measured, is_night, reco_central, reco_air)
     draws = driver_mixture.mixture_share_draws(nee_measured, is_night, reco_central, reco_air,
                                                index, clip=False)
-    return driver_mixture.mixture_shown(share, draws)
+    return driver_mixture.mixture_shown(share, draws, driver_mixture.critical_value(test))
 
 
 def shifted_day(day, central_day, air_day, weight: float):

@@ -33,8 +33,8 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["MIN_RECORDS", "SHARE_DRAWS", "SHOWN_Z", "mixture_share", "mixture_share_draws",
-           "mixture_shown"]
+__all__ = ["MIN_RECORDS", "ONE_SIDED_Z", "SHARE_DRAWS", "SHOWN_Z", "TESTS", "critical_value",
+           "mixture_share", "mixture_share_draws", "mixture_shown", "share_day_weight"]
 
 #: Fewer shared night records than this leave the share 0 (as in
 #: :func:`fluxpart.uncertainty.driver_weight`).
@@ -48,6 +48,13 @@ SHARE_DRAWS = 200
 #: The standard normal's 97.5 % quantile: a share whose two-sided 95 % interval excludes 0
 #: is shown (:func:`mixture_shown`).
 SHOWN_Z = 1.959964
+
+#: The standard normal's 95 % quantile: the one-sided test at the 5 % level of a share
+#: above 0 (``mixture_test = "one_sided"``, :func:`critical_value`).
+ONE_SIDED_Z = 1.644854
+
+#: The ``mixture_test`` settings and their critical values (:func:`critical_value`).
+TESTS = {"two_sided": SHOWN_Z, "one_sided": ONE_SIDED_Z}
 
 
 def mixture_share(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -189,7 +196,41 @@ def mixture_share_draws(nee_measured, is_night, reco_central, reco_other, index,
     return np.clip(out, 0.0, 1.0) if clip else out
 
 
-def mixture_shown(share: float, draws) -> bool:
+def critical_value(test: str) -> float:
+    """The critical value of the mixture test named by the ``mixture_test`` setting.
+
+    Parameters
+    ----------
+    test : str
+        ``"two_sided"``: the share's two-sided 95 % interval excludes 0
+        (:data:`SHOWN_Z`, the default); ``"one_sided"``: the share exceeds 0 at the
+        one-sided 5 % level (:data:`ONE_SIDED_Z`).
+
+    Returns
+    -------
+    float
+        z of :func:`mixture_shown` [1].
+
+    Notes
+    -----
+    The share of the other temperature is a weight in [0, 1]: the question the test
+    answers is whether it lies above 0, so the alternative is one-sided and the test of
+    H0: share = 0 against share > 0 at the 5 % level rejects where the estimate exceeds
+    1.645 standard errors (Lehmann & Romano 2005, ch. 3 (m)); the two-sided interval of
+    0.38.0 tests at 2.5 % on that side. Measured (DEVELOPERS.md, round partbias): on
+    the two latest known-truth trials the one-sided test showed the mixture in more of
+    the site-years that plant one, on generated site-years with one temperature it
+    changed few intervals; left off by default.
+
+    References
+    ----------
+    Lehmann, E. L. & Romano, J. P. (2005). Testing Statistical Hypotheses, 3rd ed.
+    Springer (m).
+    """
+    return TESTS[test]
+
+
+def mixture_shown(share: float, draws, z: float = SHOWN_Z) -> bool:
     """Whether the nights show a mixture: the share's 95 % interval excludes 0.
 
     Parameters
@@ -199,13 +240,15 @@ def mixture_shown(share: float, draws) -> bool:
     draws : array_like
         :func:`mixture_share_draws` of the same records with ``clip=False`` [1]; empty:
         not shown.
+    z : float, optional
+        The critical value [1]: :data:`SHOWN_Z` (default, the two-sided 95 % interval)
+        or :data:`ONE_SIDED_Z` (the one-sided test at 5 %, :func:`critical_value`).
 
     Returns
     -------
     bool
-        s − z·sd > 0, sd the standard deviation of the draws and z = :data:`SHOWN_Z` (the
-        normal interval of a bootstrap standard error, Efron & Tibshirani 1993, ch. 13
-        (m)).
+        s − z·sd > 0, sd the standard deviation of the draws (the normal interval of a
+        bootstrap standard error, Efron & Tibshirani 1993, ch. 13 (m)).
 
     Notes
     -----
@@ -235,4 +278,47 @@ def mixture_shown(share: float, draws) -> bool:
     boundary of the parameter space. Econometrica 68, 399–405 (m).
     """
     draws = np.asarray(draws, dtype=float)
-    return bool(draws.size) and float(share) - SHOWN_Z * float(np.std(draws)) > 0.0
+    return bool(draws.size) and float(share) - float(z) * float(np.std(draws)) > 0.0
+
+
+def share_day_weight(weight: float, share: float) -> float:
+    """The other temperature's weight in the daytime records' part, at least the share
+    (``driver_day_prior = "share"``).
+
+    Parameters
+    ----------
+    weight : float
+        The daytime records' weight of ``driver_day_prior = "mixture"``
+        (:func:`fluxpart.uncertainty.mixture_day_weight`, or the night weight where no
+        mixture is shown) [1].
+    share : float
+        The night's mixture share s (:func:`mixture_share`) [1].
+
+    Returns
+    -------
+    float
+        max(`weight`, s) [1]: the daytime part of the temperature difference is then at
+        least √s · |Σ_day Δ|.
+
+    Notes
+    -----
+    On the night records the share is identified: the truth lies s of the way from the
+    central fit to the other, an error s · Δ (the weight s², :func:`fluxpart.uncertainty.
+    record_inputs`). How the part on the other temperature carries into the day is not
+    identified by the nights (both fits agree there, :func:`mixture_shown`'s Notes):
+    the day records take the stacking weight s as the probability of the other
+    temperature's fit in a two-point predictive mixture (stacking weights as the weights
+    of an average of predictive distributions, Yao et al. 2018 (m)), whose second moment
+    about the central fit is s · (Σ_day Δ)², as a model weight's is
+    (:func:`fluxpart.uncertainty.driver_weight`'s Notes). Under one temperature the
+    share stays near 0 and so does the weight; on known-truth trials with 20–43 % of the
+    night Reco on air temperature the share was attenuated to 0.0–0.4 and the nights'
+    test showed only some of them (DEVELOPERS.md, round partbias).
+
+    References
+    ----------
+    Yao, Y., Vehtari, A., Simpson, D. & Gelman, A. (2018). Using stacking to average
+    Bayesian predictive distributions. Bayesian Analysis 13, 917–1007 (m).
+    Breiman, L. (1996). Stacked regressions. Machine Learning 24, 49–64 (m).
+    """
+    return max(float(weight), float(share))

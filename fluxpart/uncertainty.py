@@ -2136,7 +2136,8 @@ def driver_day_weight(weight: float, day_statistic, critical: float, prior: str)
     return max(weight, 0.5)
 
 
-def mixture_day_weight(weight: float, share: float, draws) -> float | None:
+def mixture_day_weight(weight: float, share: float, draws,
+                       z: float = driver_mixture.SHOWN_Z) -> float | None:
     """The other respiration temperature's weight in the daytime records' part, where
     the nights show a mixture (``driver_day_prior = "mixture"``).
 
@@ -2150,6 +2151,9 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     draws : array_like
         The share on resampled nights, unclipped
         (:func:`fluxpart.driver_mixture.mixture_share_draws` with ``clip=False``) [1].
+    z : float, optional
+        The test's critical value (:func:`fluxpart.driver_mixture.critical_value`; default the
+        two-sided 95 % interval) [1].
 
     Returns
     -------
@@ -2174,7 +2178,7 @@ def mixture_day_weight(weight: float, share: float, draws) -> float | None:
     Burnham, K. P. & Anderson, D. R. (2002). Model Selection and Multimodel Inference,
     2nd ed. Springer.
     """
-    return max(weight, 0.5) if driver_mixture.mixture_shown(share, draws) else None
+    return max(weight, 0.5) if driver_mixture.mixture_shown(share, draws, z) else None
 
 
 def effective_records(residuals, use) -> float:
@@ -2314,7 +2318,8 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
                   fill_noise_sigma=None, respiration_form=None, day_driver_statistic=None,
                   day_evidence_critical=1.96, breaks=None,
                   fill_sides=None, daytime_result=None, light_shape=None,
-                  driver_day_prior="night", driver_share_spread="off") -> UncertaintyInputs:
+                  driver_day_prior="night", driver_share_spread="off",
+                  mixture_test="two_sided") -> UncertaintyInputs:
     """Gather the per-record inputs of :func:`period_uncertainty` from the stage results.
 
     Parameters
@@ -2383,12 +2388,17 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         ``"night"`` (default) or ``"equal"``: the weight of the daytime records' part
         of the respiration-temperature difference (:func:`driver_day_weight`);
         ``"mixture"``: at least 1/2 where the night's mixture share is shown above 0
-        (:func:`fluxpart.driver_mixture.mixture_shown`), the night weight elsewhere.
+        (:func:`fluxpart.driver_mixture.mixture_shown`), the night weight elsewhere;
+        ``"share"``: as ``"mixture"`` and at least the share itself
+        (:func:`fluxpart.driver_mixture.share_day_weight`).
     driver_share_spread : str, optional
         ``"off"`` (default): the weight is at least s², s the night's mixture share;
         ``"bootstrap"``: at least s² + v, v the sampling variance of s over resampled
         nights (:func:`fluxpart.driver_mixture.mixture_share_draws`), the second moment
         of a share known only to its sampling error (Notes of :func:`driver_weight`).
+    mixture_test : str, optional
+        ``"two_sided"`` (default) or ``"one_sided"``: the test of ``"mixture"``
+        (:func:`fluxpart.driver_mixture.critical_value`).
 
     Returns
     -------
@@ -2429,7 +2439,7 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         weight = max(combined_driver_weight(
             driver_weight(nee_measured, is_night, central, other_driver_reco),
             day_driver_statistic, day_evidence_critical), share ** 2)
-        if driver_share_spread == "bootstrap" or driver_day_prior == "mixture":
+        if driver_share_spread == "bootstrap" or driver_day_prior in ("mixture", "share"):
             # the share on resampled nights, drawn once for either use: unclipped for the
             # mixture test (clipping shrinks the spread near 0 and 1, round review87),
             # clipped to [0, 1] as the share itself for its second moment
@@ -2439,8 +2449,12 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
             weight = max(weight, share_second_moment(share, np.clip(share_draws, 0.0, 1.0)))
     if other_driver_reco is None or driver_day_prior == "night":
         day_weight = None
-    elif driver_day_prior == "mixture":
-        day_weight = mixture_day_weight(weight, share, share_draws)
+    elif driver_day_prior in ("mixture", "share"):
+        day_weight = mixture_day_weight(weight, share, share_draws,
+                                        driver_mixture.critical_value(mixture_test))
+        if driver_day_prior == "share":
+            day_weight = driver_mixture.share_day_weight(
+                weight if day_weight is None else day_weight, share)
     else:
         day_weight = driver_day_weight(weight, day_driver_statistic, day_evidence_critical,
                                        driver_day_prior)

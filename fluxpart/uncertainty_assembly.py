@@ -225,7 +225,8 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         day_evidence_critical=temperature_choice.DAYTIME_EVIDENCE_Z,
         fill_sides=sides, daytime_result=day, light_shape=shape,
         driver_day_prior=config.driver_day_prior,
-        driver_share_spread=config.driver_share_spread, **event_cut(index, config))
+        driver_share_spread=config.driver_share_spread, mixture_test=config.mixture_test,
+        **event_cut(index, config))
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
             and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):

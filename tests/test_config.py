@@ -138,7 +138,10 @@ def test_from_toml_missing_and_invalid(tmp_path):
     ({"respiration_driver": "soil"},
      r'respiration_driver = "soil" is not allowed: expected one of "tair", "tsoil" or "auto"'),
     ({"driver_day_prior": "day"},
-     r'driver_day_prior = "day" is not allowed: expected one of "night", "equal" or "mixture"'),
+     r'driver_day_prior = "day" is not allowed: expected one of "night", "equal", "mixture" '
+     r'or "share"'),
+    ({"mixture_test": "two-sided"},
+     r'mixture_test = "two-sided" is not allowed: expected one of "two_sided" or "one_sided"'),
     ({"driver_share_spread": "jackknife"},
      r'driver_share_spread = "jackknife" is not allowed: expected one of "off" or "bootstrap"'),
     ({"respiration_form": "q10"},
@@ -200,13 +203,13 @@ def test_to_dict_round_trips_through_json():
     # events (0.22.0) only where declared, so a 0.21.0 result's settings stay its rerun's;
     # night_fit_records (after 0.33.0) and ustar_kept_trend (after 0.34.0) only away from
     # their defaults, likewise for those releases; driver_share_spread (after 0.37.0) and
-    # daytime_temperature (after 0.38.0) too
+    # daytime_temperature (after 0.38.0) and mixture_test (after 0.39.0) too
     assert set(config.to_dict()) == set(Config.field_names()) - {
         "events", "night_fit_records", "ustar_kept_trend", "driver_share_spread",
-        "daytime_temperature"}
+        "daytime_temperature", "mixture_test"}
     declared = Config(events=("2021-07-20",), night_fit_records="sun_down",
                       ustar_kept_trend="raise", driver_share_spread="bootstrap",
-                      daytime_temperature="air")
+                      daytime_temperature="air", mixture_test="one_sided")
     assert set(declared.to_dict()) == set(Config.field_names())
     assert Config.from_mapping(json.loads(json.dumps(declared.to_dict()))) == declared
 
