@@ -19,7 +19,8 @@ annual NEE, GPP and Reco (both partitionings) moved in units of the clean run's 
     OMP_NUM_THREADS=1 PYTHONPATH=$PWD nice -n 10 python tests/benchmarks/probe_mistakes60.py \
         [--sites a04,s05] [--only NAME ...] [--csv FILE]
 
-About 5-10 s per run on one core; 36 mistakes on 6 site-years run some 30 min.
+About 5-10 s per run on one core; 38 mistakes on 7 site-years run some 30 min. Results of
+round mistakes60: DEVELOPERS.md's changelog.
 """
 from __future__ import annotations
 
