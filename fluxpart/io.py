@@ -1253,6 +1253,15 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
             [*mapping.values(), *flag_columns, *time_columns])
         if left_out:
             warnings.append(f"storage: {left_out}")
+    if "nee" in mapping and not flag_columns:
+        # the flux's quality flag column of the file left unmapped (round mistakes60)
+        from .flag_labels import unmapped_flag_column
+
+        unflagged = unmapped_flag_column(
+            mapping["nee"], [column for part in parts for column in part["file_columns"]],
+            [*mapping.values(), *time_columns])
+        if unflagged:
+            warnings.append(f"nee_flag: {unflagged}")
     if "nee" in mapping:
         # a flux column labelled gap-filled (mistakes40)
         from .fill_labels import filled_nee_label

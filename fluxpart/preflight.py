@@ -160,6 +160,7 @@ from . import (
     night_uptake,
     rg_dim,
     rg_zeros,
+    soil_depth,
     solar,
     spliced_records,
     sunlit_uptake,
@@ -598,6 +599,13 @@ def _column_faults(screened: pd.DataFrame, potential, interval_minutes: float,
                                                   index, interval_minutes, names)
         if text:
             findings.append(Finding("input (tair, tsoil)", text, False))
+        else:
+            # a deep probe's soil without a daily cycle mapped as tsoil (round mistakes60)
+            text = soil_depth.deep_soil_probe(screened["tair"].to_numpy(dtype=float),
+                                              screened["tsoil"].to_numpy(dtype=float),
+                                              index, names)
+            if text:
+                findings.append(Finding(soil_depth.STAGE, text, False))
         # one sensor written under both headers (round mistakes24)
         text = same_temperature_columns(screened["tair"].to_numpy(dtype=float),
                                         screened["tsoil"].to_numpy(dtype=float),

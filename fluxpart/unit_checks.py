@@ -1044,6 +1044,11 @@ def _vpd_messages(converted: dict, units: dict, columns: dict, interval_minutes:
     if not larger:
         return None, None
     rh = converted.get("rh")
+    if rh is not None and not np.nanmax(rh, initial=-np.inf) > 1.0:
+        # RH written as a fraction (at most 1 %, which no surface air stays below) gives
+        # no deficit to compare with: its own check names it (round mistakes60: RH as a
+        # fraction beside a right VPD in kPa was refused naming the VPD as psi)
+        rh = None
     if rh is not None:
         expected = saturation * (1.0 - np.clip(rh[both], 0.0, 100.0) / 100.0)
         usable = np.isfinite(expected) & (expected > 2.0)
