@@ -272,9 +272,12 @@ def test_a_run_without_soil_temperature_follows_respiration_that_lags_the_air():
     true_reco = float(np.sum(flux_to_carbon(lagged, 30)))
     errors = {}
     for driver in ("auto", "tair"):
-        config = Config(respiration_driver=driver, ustar_bootstrap_draws=20,
+        # no u* bootstrap (round suitetrim): the same errors (0.1 / 6.6 against 236.8 /
+        # 197.7 g C m-2), delay and BIC as with 20 draws; the runs a third cheaper
+        config = Config(respiration_driver=driver, ustar_bootstrap_draws=0,
                         random_error_draws=50)
-        result = fluxpart.process(frame, demo.site(), config)
+        with pytest.warns(fluxpart.FluxpartWarning, match="leave out the ustar part"):
+            result = fluxpart.process(frame, demo.site(), config)
         annual = result.annual.iloc[0]
         errors[driver] = {flux: abs(float(annual[flux]) - true_reco)
                           for flux in ("reco_nighttime", "reco_daytime")}
