@@ -28,7 +28,9 @@ probes' physics is imported; only the first probe's runner):
 - weather: a two-state Markov chain of the days, fair or overcast, whose persistence and
   overcast share follow the season (a Gilbert-Richardson weather generator, Richardson 1981
   (m)); a fair day's cloud is thin and broken (transmitted 0.75-1.0), an overcast one's 0.2-0.5,
-  a within-day AR(1) of the clouds' passage; an afternoon build-up at convective sites;
+  a within-day AR(1) of the clouds' passage; an afternoon build-up at convective sites
+  whose strength each day draws from the day's instability (uniform up to 0.3-0.8 of the
+  light, more in the rains: some afternoons stay fair);
 - air temperature: the day's mean from the season and the weather, the within-day course
   the record's absorbed sunshine through a first-order lag of 2-3 h (the surface layer's
   heat capacity) less a night's steady long-wave cooling stronger under a clear sky (a
@@ -320,8 +322,9 @@ def generate(spec, seed):
     over_t = rng.uniform(0.2, 0.5, nd)
     trans_day = np.where(overcast, over_t, fair_t) * (1 - base)
     passing = np.exp(_ar1(rng, n, 0.85, 0.12))
-    if habits.get("convective"):            # clouds building after noon in the rains
-        build = np.clip((solar % 24 - 11.5) / 3, 0, 1) * (0.25 + 0.35 * wet[d])
+    if habits.get("convective"):            # clouds building after noon, strongly on some days
+        storms = rng.random(nd) * (0.3 + 0.5 * wet)          # the day's instability
+        build = np.clip((solar % 24 - 11.5) / 3, 0, 1) * storms[d]
         trans = trans_day[d] * (1 - build) * passing
     else:
         trans = trans_day[d] * passing
@@ -412,7 +415,7 @@ def generate(spec, seed):
         reco = reco * np.clip(rng.uniform(0.7, 0.95) * gpp.sum() / reco.sum(), 0.3, 3)
     if habits.get("urban"):                 # traffic's and people's CO2 on the footprint
         rush = np.exp(-((hours - 8.0) / 1.2) ** 2) + np.exp(-((hours - 17.5) / 1.5) ** 2)
-        weekday = np.asarray(starts.dayofweek < 5)
+        weekday = np.asarray(starts.day_of_week < 5)
         reco = reco + habits["urban"] * rush * np.where(weekday, 1.0, 0.4)
     nee_true = reco - gpp
 
