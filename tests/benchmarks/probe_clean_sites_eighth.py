@@ -120,9 +120,9 @@ SITES = [
     ("h19", 5.2, -74.2, -5, 2700, 30, "cloud_forest", 14.5, 0.7, "2023-01-01", 12,
      {"rains": ((110, 80), (290, 80)), "convective": 1, "cloud_base": 0.55}),
     ("h20", 53.4, -9.9, 0, 15, 30, "windy_heath", 10.0, 4.5, "2023-01-01", 12,
-     {"wind": 6.5, "windy_winter": 1, "rains": ((15, 365),)}),
+     {"wind": 5.0, "windy_winter": 1, "rains": ((15, 365),)}),
     ("h21", -46.5, 168.0, 12, 20, 30, "windy_heath", 10.0, 4.0, "2022-01-01", 12,
-     {"wind": 6.0, "windy_winter": 1, "rains": ((180, 365),)}),
+     {"wind": 4.5, "windy_winter": 1, "rains": ((180, 365),)}),
     ("h22", 62.0, 129.6, 9, 220, 30, "larch", -9.5, 24, "2023-01-01", 12,
      {"snow": 1, "rains": ((200, 110),)}),
     ("h23", 4.6, 101.4, 8, 1500, 60, "tea_highland", 18.5, 0.8, "2024-01-01", 12,
@@ -203,7 +203,7 @@ def _rain_season(doy, rains):
 def _markov_weather(rng, wet):
     """Each day fair (False) or overcast (True): a two-state chain whose stationary overcast
     share is 0.25 + 0.5 wet and whose persistence is 0.55 (Richardson 1981 (m))."""
-    share = 0.25 + 0.5 * wet
+    share = np.minimum(0.25 + 0.5 * wet, 0.9)
     keep = 0.55
     overcast = np.zeros(len(wet), bool)
     state = rng.random() < share[0]
@@ -316,11 +316,10 @@ def generate(spec, seed):
 
     # weather: fair or overcast days, clouds passing within the day
     wet = _rain_season(doy, habits.get("rains", ()))
-    overcast = _markov_weather(rng, wet)
-    base = habits.get("cloud_base", 0.0)
+    overcast = _markov_weather(rng, np.clip(wet + habits.get("cloud_base", 0.0), 0, 1.3))
     fair_t = rng.uniform(0.75, 1.0, nd)
     over_t = rng.uniform(0.2, 0.5, nd)
-    trans_day = np.where(overcast, over_t, fair_t) * (1 - base)
+    trans_day = np.where(overcast, over_t, fair_t)
     passing = np.exp(_ar1(rng, n, 0.85, 0.12))
     if habits.get("convective"):            # clouds building after noon, strongly on some days
         storms = rng.random(nd) * (0.3 + 0.5 * wet)          # the day's instability
