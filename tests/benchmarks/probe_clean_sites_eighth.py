@@ -54,7 +54,9 @@ probes' physics is imported; only the first probe's runner):
 - u*: the log law over a roughness of a tenth of the canopy, a night's stability from the
   bulk Richardson number's dependence on the wind (calm clear nights strongly stable);
   the flux lost below a threshold by a logistic in u* (a gradual loss, the trade's
-  experience); noise: a Laplace error of scale 0.15 + 0.1 |NEE| (Richardson et al. 2006 (m));
+  experience); noise: a Laplace error of standard deviation 0.15 + 0.1 |NEE| over short
+  canopies and 0.35 + 0.1 |NEE| over tall ones (larger at zero flux over forests,
+  Richardson et al. 2006 (m));
 - gaps: QC rejections (more at night and in low turbulence), rain on the open path, spikes
   removed, a week of analyser service, power cuts (rows absent at some sites).
 
@@ -436,7 +438,8 @@ def generate(spec, seed):
     threshold = rng.uniform(0.2, 0.35) if h_can > 5 else rng.uniform(0.07, 0.15)
     loss = 1 / (1 + np.exp(-(ustar / threshold - 0.8) / 0.12))   # the gradual loss
     measured = np.where(~day & (nee_true > 0), nee_true * np.maximum(loss, 0.3), nee_true)
-    noise = rng.laplace(0, (0.15 + 0.1 * np.abs(nee_true)) / np.sqrt(2), n)
+    floor = 0.35 if h_can > 5 else 0.15      # a tall canopy's error at zero flux is larger
+    noise = rng.laplace(0, (floor + 0.1 * np.abs(nee_true)) / np.sqrt(2), n)
     flux = measured + noise
 
     # readings: the sensors, their swaps for recalibrated ones, snow on the dome
