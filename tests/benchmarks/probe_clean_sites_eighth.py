@@ -498,7 +498,7 @@ def write_site(spec, seed, folder: Path) -> Path:
     """Write a site's file and config in one of three layouts; return the config."""
     name = spec[0]
     frame, facts = generate(spec, seed)
-    names = {"nee": "co2_net", "rg": "swin", "tair": "t_air", "rh": "rel_hum",
+    names = {"nee": "co2_net", "rg": "global_rad", "tair": "t_air", "rh": "rel_hum",
              "ustar": "u_fric", "tsoil": "t_ground"}
     out = frame.rename(columns=names)
     layout = int(name[1:]) % 3
