@@ -1750,6 +1750,19 @@ _SHADE_PERCENTILES = (90.0, 75.0)
 #: alone is 10-20 % of a clear sky's global radiation; Campbell & Norman 1998, ch. 11
 #: (m)).
 _SHADE_RATIO = 0.6
+#: Ratio of the dimmer half's brightest record to the brighter half's clear-sky clearness
+#: at or below which a cell counts as shaded [1] (round falsealarm61). An obstacle blocks
+#: the direct beam at that height and bearing of the sun on every day, so the sensor
+#: sees the diffuse light alone, whose clearness (Rg over potential radiation) the diffuse
+#: fraction of Erbs et al. (1982) (m) bounds at about 0.34 under any sky (its product with
+#: the clearness index peaks there, near an index of 0.45), about half of a clear sky's
+#: 0.65-0.8; an afternoon's cloud that builds on most days breaks on some, and its
+#: brightest afternoon record reaches the clear sky's beam. Our choice: 0.7, the diffuse
+#: bound's half with a margin for noise, for light scattered by cloud edges and for an
+#: hourly record at a shade's edge that holds part of its hour in the beam (a tree line
+#: blocking the sun below 25 deg at 34.5 deg S, `tests/test_preflight.py`, is lost at
+#: 0.6 on hourly records).
+_SHADE_BRIGHTEST_RATIO = 0.7
 #: Months in which the same time from solar noon, of one half of the day, is shaded, for
 #: the column to be named; our choice: an obstacle shades the same hours for months,
 #: while the clear records of a cloudy month fall in one half by chance at scattered
@@ -1789,7 +1802,12 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
     so that the few clear records of a cloudy month do not decide). A tree, a mast or the tower
     shading the sensor for some hours dims that half's clear sky by half or more there;
     named where one time from noon falls to 0.6 or less of the other half's, at both
-    percentiles, in at least four months. The daytime light response then reads the shaded hours' uptake at
+    percentiles, in at least four months, and the dim cell's brightest record too stays
+    at 0.7 or less of the other half's clear sky: behind an obstacle the sensor sees
+    the diffuse light alone on every day (a clearness of about 0.34 at most, Erbs et al.
+    1982 (m)), while clouds that build on most afternoons (a cloud forest's, a tropical
+    wet season's convection) break on some and let the beam through (round
+    falsealarm61). The daytime light response then reads the shaded hours' uptake at
     too little light (on the invented grassland example, Rg a quarter from 15 to 18 h
     local: daytime GPP +44 g C m-2, silent before). A clock hours off makes the halves
     differ too; the clock check names that. A horizon (a mountain) shades the canopy as
@@ -1799,6 +1817,10 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
     ----------
     Campbell, G. S., & Norman, J. M. (1998). An Introduction to Environmental
     Biophysics, 2nd ed., Springer, ch. 11.
+
+    Erbs, D. G., Klein, S. A., & Duffie, J. A. (1982). Estimation of the diffuse
+    radiation fraction for hourly, daily and monthly-average global radiation. Solar
+    Energy, 28(4), 293-302.
 
     Iqbal, M. (1983). An Introduction to Solar Radiation. Academic Press.
     """
@@ -1826,7 +1848,8 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
                           "afternoon": offset[usable] > 0, "clearness": clearness[usable]})
     grouped = cells.groupby(["month", "distance", "afternoon"])["clearness"]
     upper, lower = (grouped.quantile(share / 100.0) for share in _SHADE_PERCENTILES)
-    table = pd.DataFrame({"count": grouped.size(), "clear": upper, "lower": lower}).unstack()
+    table = pd.DataFrame({"count": grouped.size(), "clear": upper, "lower": lower,
+                          "brightest": grouped.max()}).unstack()
     if not {False, True} <= set(table["count"].columns):
         # one half of the day only: the potential radiation peaks at the first or last
         # record of every day (stamps or utc_offset about 12 h off; the clock check names
@@ -1842,14 +1865,16 @@ def shaded_rg(rg, potential, stamps, columns=None) -> str | None:
     strata = table.index[kept]
     shaded = {}
     for name, dim_half in (("morning", False), ("afternoon", True)):
-        clear, lower = (column[(measure, dim_half)][kept] for measure in ("clear", "lower"))
+        clear, lower, brightest = (column[(measure, dim_half)][kept]
+                                   for measure in ("clear", "lower", "brightest"))
         other_clear, other_lower = (column[(measure, not dim_half)][kept]
                                     for measure in ("clear", "lower"))
         with np.errstate(divide="ignore", invalid="ignore"):
             ratio = clear / other_clear
             lower_ratio = lower / other_lower
             hit = ((other_clear > 0.0) & (other_lower > 0.0) & (ratio <= _SHADE_RATIO)
-                   & (lower_ratio <= _SHADE_RATIO))
+                   & (lower_ratio <= _SHADE_RATIO)
+                   & (brightest / other_clear <= _SHADE_BRIGHTEST_RATIO))
         shaded[name] = pd.Series(ratio[hit], index=strata[hit])
     def recurring(hit):
         """Months shaded at the distance from noon shaded in the most months."""

@@ -1238,13 +1238,14 @@ def test_a_noisy_storage_column_beside_its_turbulent_flux_is_quiet(seed):
     assert message is not None and "already holds" in message
 
 
-def _sky(seed, clear_share, shaded_hours=None):
+def _sky(seed, clear_share, shaded_hours=None, storm_share=0.0):
     """An invented year of half-hourly Rg at 47 N under a two-state sky: clear records at
     a transmittance of 0.75 (Campbell & Norman 1998, ch. 11 (m)), overcast ones at 0.3,
     each day clear with probability `clear_share` and its records switching state at
     random (clouds without a time of day). Where `shaded_hours` (local start hours) are
     given, the sensor sees only the diffuse part there: the diffuse fraction of Erbs et
-    al. (1982) (m) of the clearness index."""
+    al. (1982) (m) of the clearness index. Where `storm_share` is given, that share of the
+    days is overcast from 13 h on (clouds building every afternoon but some)."""
     from fluxpart.solar import potential_radiation
 
     rng = np.random.default_rng(seed)
@@ -1252,6 +1253,9 @@ def _sky(seed, clear_share, shaded_hours=None):
     potential = potential_radiation(index, 47.0, 8.0, 1.0, 30)
     day_clear = np.repeat(rng.random(365) < clear_share, 48)
     clear = np.where(rng.random(index.size) < 0.85, day_clear, ~day_clear)
+    if storm_share:
+        storm = np.repeat(rng.random(365) < storm_share, 48) & (index.hour >= 13)
+        clear = clear & ~storm
     rg = potential * np.where(clear, 0.75, 0.3) * rng.uniform(0.95, 1.05, index.size)
     if shaded_hours is not None:
         k = rg / np.where(potential > 0, potential, np.nan)
@@ -1285,6 +1289,22 @@ def test_an_unshaded_sensor_is_not_named(seed, clear_share):
     quiet."""
     rg, potential, index = _sky(seed, clear_share)
     assert shaded_rg(rg, potential, index) is None
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_clouds_building_on_most_afternoons_are_no_shade_and_a_shade_under_them_is(seed):
+    """A cloud forest's or a wet season's convection: 80 % of the afternoons overcast from
+    13 h (the seventh clean probe's g24, the eighth's h09, h10 and h23 were named as a
+    shaded sensor: every month's 90th and 75th percentile of the afternoon overcast). A
+    shadow blocks the direct beam on every day, so behind it the sensor sees diffuse light
+    alone (at most about 0.34 of the potential radiation, Erbs et al. 1982 (m)); the few
+    fair afternoons let the beam through: quiet (named on 0.39.0). The same sky shaded
+    from 14.5 to 17.5 h: still named."""
+    rg, potential, index = _sky(seed, 0.5, storm_share=0.8)
+    assert shaded_rg(rg, potential, index) is None
+    rg, potential, index = _sky(seed, 0.5, (14.5, 17.5), storm_share=0.8)
+    text = shaded_rg(rg, potential, index)
+    assert text is not None and "the afternoon reaches" in text
 
 
 def test_a_shaded_rg_is_a_preflight_warning():
