@@ -119,8 +119,9 @@ def deep_soil_probe(tair, tsoil, stamps, columns=None) -> str | None:
     Returns
     -------
     str or None
-        The warning text; None where the soil swings as a shallow probe's does or the
-        record cannot tell (see :func:`daily_range_ratio`).
+        The warning text (a column holding one value through most days named as daily
+        means, not as a depth); None where the soil swings as a shallow probe's does or
+        the record cannot tell (see :func:`daily_range_ratio`).
 
     Notes
     -----
@@ -140,9 +141,19 @@ def deep_soil_probe(tair, tsoil, stamps, columns=None) -> str | None:
     ratio, days, soil_range, air_range = found
     if not ratio < DEEP_RATIO:
         return None
-    depth = -DAMPING_DEPTH_M * np.log(max(ratio, 1e-6))
     names = columns or {}
     soil_column, air_column = names.get("tsoil", "tsoil"), names.get("tair", "tair")
+    if soil_range == 0.0:
+        # one value through most days: no depth damps a wave to nothing, a column of daily
+        # means does (round review97: it was called "a probe some 138 cm deep")
+        return (f"soil temperature (column {soil_column!r}) holds one value through the day "
+                f"on most of {days} warm days (soil 5 °C or more, the air temperature, "
+                f"column {air_column!r}, swinging a median {air_range:.1f} K): a column of "
+                "daily means (or a value the logger held) written on every record, where "
+                "the respiration fits need each record's temperature: map the column of the "
+                "probe's own records as tsoil, or set [processing] respiration_driver = "
+                "\"tair\"")
+    depth = -DAMPING_DEPTH_M * np.log(max(ratio, 1e-6))
     return (f"soil temperature (column {soil_column!r}) has no daily cycle: over {days} warm "
             f"days (soil 5 °C or more, the air swinging 5 K or more) it swings a median "
             f"{soil_range:.2f} K a day, the air temperature (column {air_column!r}) "
