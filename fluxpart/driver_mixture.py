@@ -354,7 +354,7 @@ def unchanged_note(test: str, judged, used: bool) -> str:
         A warning naming the setting and why it changed nothing: no setting asks for
         the test, no test was made (one temperature, or no fit on the other), or every
         test made gives the same verdict at the setting's critical value and at the
-        default's (so every table equals the default run's); '' for the default or
+        default's (so every table equals that of the default test); '' for the default or
         where a verdict differs.
 
     References
@@ -384,4 +384,5 @@ def unchanged_note(test: str, judged, used: bool) -> str:
     return (f"{where}: the nights' share of the other temperature, {share:.2f} "
             f"(standard error {spread:.2f} over resampled nights, {above}), is judged "
             f"alike at the critical value {TESTS[test]:.3f} and at the default's "
-            f"{TESTS[DEFAULT_TEST]:.3f}, so every table equals the default run's")
+            f"{TESTS[DEFAULT_TEST]:.3f}, so every table equals that of mixture_test = "
+            f'"{DEFAULT_TEST}"')
