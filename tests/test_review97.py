@@ -145,3 +145,30 @@ def test_damped_soils_that_are_real_are_not_named_and_daily_means_are_named_as_s
     text = soil_depth.deep_soil_probe(tair, daily.to_numpy(), stamps, {"tsoil": "TS_day"})
     assert text is not None and "'TS_day'" in text and "daily means" in text
     assert "deep" not in text
+
+
+def test_a_deep_probe_that_follows_the_weather_is_named():
+    """Invented half-hourly year with day-to-day weather (an AR(1) of the daily mean, 2 K
+    a day) and a probe at 50 cm of moist mineral soil (kappa 0.6e-6 m2 s-1, Campbell &
+    Norman 1998, table 8.2 (m)): the daily wave keeps exp(-0.5 / 0.128) = 0.02 of the
+    surface's, but the weather of several days, damped far less (the damping depth grows
+    with the root of the period, eq. 8.6 (m)), added a drift to each day's range and hid
+    the probe (ratio above 0.03); with each day's drift taken out it is named."""
+    stamps = pd.date_range("2022-01-01", periods=365 * 48, freq="30min")
+    days = (stamps - stamps[0]).total_seconds().to_numpy() / 86400.0
+    rng = np.random.default_rng(0)
+    weather = np.zeros(367)
+    for k in range(1, 367):
+        weather[k] = 0.75 * weather[k - 1] + rng.normal(0.0, 2.0)
+    slow = 9.0 + 11.0 * np.sin(2 * np.pi * (days - 110) / 365) + np.interp(
+        days, np.arange(367), weather)
+    wave = np.interp(days, np.arange(367) + 0.5, rng.uniform(1.0, 8.0, 367)) \
+        * np.sin(2 * np.pi * (days % 1.0 - 0.375))
+    tair = np.round(slow + wave, 2)
+    tsoil = np.round(_conducted(slow + wave, 1800.0, [(0.5, 0.6e-6)]), 2)
+    ratio, judged = soil_depth.daily_range_ratio(tair, tsoil, stamps)[:2]
+    assert judged >= 100 and ratio < 0.026, ratio
+    text = soil_depth.deep_soil_probe(tair, tsoil, stamps)
+    assert text is not None and "drift with the weather taken out" in text
+    shallow = np.round(_conducted(slow + wave, 1800.0, [(0.05, 0.6e-6)]), 2)
+    assert soil_depth.deep_soil_probe(tair, shallow, stamps) is None
