@@ -28,7 +28,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from . import daytime_temperature, gapfill, method_failure, uncertainty
+from . import daytime_temperature, driver_mixture, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
 from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
@@ -204,8 +204,8 @@ def daytime_driver_evidence(frame, screened, filled_drivers, central, is_night, 
     return statistic, other, other_day
 
 
-def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
-    """Whether the nights show a mixture of soil and air temperature, for
+def night_mixture(inputs, outcomes, driver, form, config) -> tuple | None:
+    """The air share of the nights' mixture of soil and air temperature and its draws, for
     ``daytime_temperature = "mixture"``; None where not tested.
 
     Parameters
@@ -224,9 +224,11 @@ def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
 
     Returns
     -------
-    bool or None
-        :func:`fluxpart.daytime_temperature.night_shown` on the choice's air-temperature
-        night fit applied to the central fill, as the temperature part of the
+    tuple or None
+        (share, unclipped draws) of :func:`fluxpart.daytime_temperature.night_share` on
+        the choice's air-temperature night fit applied to the central fill, which
+        :func:`fluxpart.driver_mixture.mixture_shown` tests at the ``mixture_test``
+        setting's critical value, as the temperature part of the
         uncertainty tests it (:func:`fluxpart.uncertainty_assembly.budget_uncertainty`);
         None for another setting, a run on air temperature, or where the choice fitted
         no air temperature (a driver set by hand) or the nighttime method failed.
@@ -247,9 +249,8 @@ def night_mixture(inputs, outcomes, driver, form, config) -> bool | None:
         return None
     if form is not None:
         air_reco = air_reco + form.shift
-    return daytime_temperature.night_shown(central.nee_measured, inputs.is_night,
-                                           central.night.reco, air_reco, inputs.frame.index,
-                                           config.mixture_test)
+    return daytime_temperature.night_share(central.nee_measured, inputs.is_night,
+                                           central.night.reco, air_reco, inputs.frame.index)
 
 
 def fallback_e0_text(parameters, fell_back, e0_annual) -> str:
@@ -304,6 +305,9 @@ class CentralStage(NamedTuple):
     shape : fluxpart.partition.light_shape.ShapeAverage or None
         The daytime light-response shapes' average and spread
         (``daytime_curvature = "average"``); None otherwise.
+    mixture : tuple or None
+        (share, unclipped draws) of the nights' test for ``daytime_temperature =
+        "mixture"`` (:func:`night_mixture`); None where not tested.
     """
 
     outcomes: dict
@@ -312,6 +316,7 @@ class CentralStage(NamedTuple):
     warnings: list
     night_light: list = []
     shape: object = None
+    mixture: object = None
 
 
 def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
@@ -369,7 +374,9 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
     day_evidence = daytime_driver_evidence(frame, screened, filled_drivers, rectangular,
                                            is_night, temperature, delay, config)
     fitted = day_evidence is not None and not delay
-    shown = night_mixture(inputs, outcomes, driver, form, config) if fitted else None
+    mixture = night_mixture(inputs, outcomes, driver, form, config) if fitted else None
+    shown = None if mixture is None else driver_mixture.mixture_shown(
+        *mixture, driver_mixture.critical_value(config.mixture_test))
     weight = daytime_temperature.air_weight(config.daytime_temperature, temperature,
                                             shown) if fitted else 0.0
     # a set daytime_temperature that changed nothing says so (review89: it was silent)
@@ -400,4 +407,4 @@ def follow_ups(inputs, outcomes, driver, config) -> CentralStage:
             "flagged 'fallback' in the daytime parameter table, so the two methods are not "
             "independent in their E0")
     return CentralStage(outcomes, form, day_evidence, warnings,
-                        filled.attrs.pop("night_light_tests", []), shape)
+                        filled.attrs.pop("night_light_tests", []), shape, mixture)

@@ -47,7 +47,7 @@ import numpy as np
 from . import driver_mixture
 
 __all__ = ["CHOICES", "DRIVER", "AIR", "AVERAGE", "MIXTURE", "air_weight", "night_shown",
-           "shifted_day", "unchanged_note"]
+           "night_share", "shifted_day", "unchanged_note"]
 
 #: The run's respiration temperature (0.38.0 and before).
 DRIVER = "driver"
@@ -155,10 +155,31 @@ def night_shown(nee_measured, is_night, reco_central, reco_air, index,
         :func:`fluxpart.driver_mixture.mixture_shown` of the air share and its unclipped
         draws over resampled nights: the test of ``driver_day_prior = "mixture"``.
     """
+    return driver_mixture.mixture_shown(
+        *night_share(nee_measured, is_night, reco_central, reco_air, index),
+        driver_mixture.critical_value(test))
+
+
+def night_share(nee_measured, is_night, reco_central, reco_air, index) -> tuple:
+    """The air share in the night's best mixture and its draws over resampled nights.
+
+    Parameters
+    ----------
+    nee_measured, is_night, reco_central, reco_air, index
+        As for :func:`night_shown`.
+
+    Returns
+    -------
+    share : float
+        :func:`fluxpart.driver_mixture.mixture_share` [1].
+    draws : numpy.ndarray
+        :func:`fluxpart.driver_mixture.mixture_share_draws`, unclipped [1]: with the share,
+        what :func:`fluxpart.driver_mixture.mixture_shown` tests.
+    """
     share = driver_mixture.mixture_share(nee_measured, is_night, reco_central, reco_air)
     draws = driver_mixture.mixture_share_draws(nee_measured, is_night, reco_central, reco_air,
                                                index, clip=False)
-    return driver_mixture.mixture_shown(share, draws, driver_mixture.critical_value(test))
+    return share, draws
 
 
 def shifted_day(day, central_day, air_day, weight: float):

@@ -33,8 +33,9 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["MIN_RECORDS", "ONE_SIDED_Z", "SHARE_DRAWS", "SHOWN_Z", "TESTS", "critical_value",
-           "mixture_share", "mixture_share_draws", "mixture_shown", "share_day_weight"]
+__all__ = ["DEFAULT_TEST", "MIN_RECORDS", "ONE_SIDED_Z", "SHARE_DRAWS", "SHOWN_Z", "TESTS",
+           "critical_value", "mixture_share", "mixture_share_draws", "mixture_shown",
+           "share_day_weight", "unchanged_note"]
 
 #: Fewer shared night records than this leave the share 0 (as in
 #: :func:`fluxpart.uncertainty.driver_weight`).
@@ -55,6 +56,9 @@ ONE_SIDED_Z = 1.644854
 
 #: The ``mixture_test`` settings and their critical values (:func:`critical_value`).
 TESTS = {"two_sided": SHOWN_Z, "one_sided": ONE_SIDED_Z}
+
+#: The ``mixture_test`` default, with which a run is that of release 0.39.0.
+DEFAULT_TEST = "two_sided"
 
 
 def mixture_share(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -322,3 +326,63 @@ def share_day_weight(weight: float, share: float) -> float:
     Breiman, L. (1996). Stacked regressions. Machine Learning 24, 49–64 (m).
     """
     return max(float(weight), float(share))
+
+
+def unchanged_note(test: str, judged, used: bool) -> str:
+    """Why a set ``mixture_test`` changed nothing in a run, or '' where it may have acted.
+
+    A result records the setting (written only away from its default); without this
+    note it could not tell that the setting changed nothing, as
+    :func:`fluxpart.daytime_temperature.unchanged_note` tells of ``daytime_temperature``
+    (round review97).
+
+    Parameters
+    ----------
+    test : str
+        The ``mixture_test`` setting, a key of :data:`TESTS`.
+    judged : sequence of tuple
+        (share, unclipped draws) of every mixture test the run made
+        (:func:`mixture_shown`'s arguments): that of ``driver_day_prior = "mixture"`` or
+        ``"share"`` and that of ``daytime_temperature = "mixture"``; empty: none made.
+    used : bool
+        Whether the settings ask for the test at all (``driver_day_prior`` ``"mixture"``
+        or ``"share"``, or ``daytime_temperature = "mixture"``).
+
+    Returns
+    -------
+    str
+        A warning naming the setting and why it changed nothing: no setting asks for
+        the test, no test was made (one temperature, or no fit on the other), or every
+        test made gives the same verdict at the setting's critical value and at the
+        default's (so every table equals that of the default test); '' for the default or
+        where a verdict differs.
+
+    References
+    ----------
+    Efron, B. & Tibshirani, R. J. (1993). An Introduction to the Bootstrap. Chapman &
+    Hall, ch. 13 (the bootstrap standard error of the share) (m).
+    """
+    if test == DEFAULT_TEST:
+        return ""
+    where = f'[processing] mixture_test = "{test}" changed nothing in this run'
+    if not used:
+        return (f"{where}: it sets the nights' test of a mixture of air and soil temperature "
+                'for driver_day_prior = "mixture" or "share" and daytime_temperature = '
+                '"mixture", and these settings ask for neither')
+    if not judged:
+        return (f"{where}: the nights' test of a mixture of air and soil temperature needs "
+                "nighttime fits on both temperatures (for daytime_temperature = \"mixture\" "
+                "a run on soil temperature), and this run made none (one temperature, or "
+                "no fit on the other)")
+    if any(mixture_shown(share, draws, TESTS[test]) != mixture_shown(share, draws,
+                                                                      TESTS[DEFAULT_TEST])
+           for share, draws in judged):
+        return ""
+    share, draws = judged[0]
+    spread = float(np.std(np.asarray(draws, dtype=float))) if len(draws) else float("nan")
+    above = f"{share / spread:.2f} standard errors above 0" if spread > 0 else "no spread"
+    return (f"{where}: the nights' share of the other temperature, {share:.2f} "
+            f"(standard error {spread:.2f} over resampled nights, {above}), is judged "
+            f"alike at the critical value {TESTS[test]:.3f} and at the default's "
+            f"{TESTS[DEFAULT_TEST]:.3f}, so every table equals that of mixture_test = "
+            f'"{DEFAULT_TEST}"')

@@ -38,12 +38,17 @@ FLAG_WORDS = frozenset({"qc", "qa", "flag", "flags", "quality", "qcflag", "qflag
 CO2_FLAG_WORDS = frozenset({"co", "carbon", "nee", "nep", "fco"})
 #: Words of another quantity or instrument part, whose flag is not the CO2 flux's (our
 #: choice: latent and sensible heat, water vapour, methane, momentum, radiation,
-#: temperatures, humidity, wind, storage, the gas analyser's signal).
+#: temperatures, humidity, wind, storage, the gas analyser's signal; and, round review97,
+#: the CO2 concentration itself as a gas analyser reports it, its statistics and the
+#: storage's abbreviation: a flag of the CO2 mole fraction or density ("qc_co2_conc") was
+#: named as the flux's).
 OTHER_QUANTITY_WORDS = frozenset({
     "h", "le", "et", "h2o", "o", "ch", "tau", "ustar", "u", "v", "w", "ws", "wind", "rg",
     "sw", "lw", "par", "ppfd", "rad", "rn", "ta", "tair", "ts", "tsoil", "soil", "air",
-    "temp", "t", "rh", "vpd", "storage", "store", "stor", "signal", "agc", "rssi", "met",
-    "heat", "latent", "sensible", "water", "methane", "momentum"})
+    "temp", "t", "rh", "vpd", "storage", "store", "stor", "strg", "signal", "sig", "agc",
+    "rssi", "met", "heat", "latent", "sensible", "water", "methane", "momentum",
+    "conc", "concentration", "mole", "molar", "fraction", "mixing", "ratio", "density",
+    "dens", "ppm", "ppmv", "dry", "var", "variance", "std", "sd"})
 
 
 def unmapped_flag_column(nee_column, file_columns, taken) -> str | None:
@@ -62,7 +67,8 @@ def unmapped_flag_column(nee_column, file_columns, taken) -> str | None:
     -------
     str or None
         The warning text, or None where no unused column's name holds a word of
-        :data:`FLAG_WORDS`, none of :data:`OTHER_QUANTITY_WORDS`, and either a word of
+        :data:`FLAG_WORDS`, none of :data:`OTHER_QUANTITY_WORDS` beyond the words of
+        `nee_column`, and either a word of
         :data:`CO2_FLAG_WORDS` or no other word than those of `nee_column`.
 
     References
@@ -77,7 +83,8 @@ def unmapped_flag_column(nee_column, file_columns, taken) -> str | None:
         if str(column) in used or str(column) in found:
             continue
         words = label_words(column)
-        if not words & FLAG_WORDS or words & OTHER_QUANTITY_WORDS:
+        # a word the flux column's own name holds names no other quantity (review97)
+        if not words & FLAG_WORDS or (words - own) & OTHER_QUANTITY_WORDS:
             continue
         if words & CO2_FLAG_WORDS or not (words - FLAG_WORDS - own):
             found.append(str(column))

@@ -9,6 +9,7 @@ site-geometry verdict (:mod:`fluxpart.clock`) and the preflight of every stage
 
 from __future__ import annotations
 
+from contextlib import contextmanager
 from typing import NamedTuple
 
 import numpy as np
@@ -194,7 +195,7 @@ NEE_SHORTAGE_STAGES = ("nighttime partitioning (E0)", "nighttime partitioning (R
                        "daytime partitioning (light response)")
 
 
-def flag_cause(frame) -> str | None:
+def flag_cause(frame, why: str = "these stages lack measured NEE") -> str | None:
     """The site flag named as the cause of a shortage of measured NEE, or None.
 
     Parameters
@@ -202,6 +203,8 @@ def flag_cause(frame) -> str | None:
     frame : pandas.DataFrame or None
         The record, with ``nee`` [µmol m-2 s-1] and, where mapped, ``nee_flag`` [1]
         (non-zero = rejected by the site's own checks).
+    why : str, optional
+        What the flag likely explains, in the clause's words.
 
     Returns
     -------
@@ -224,9 +227,49 @@ def flag_cause(frame) -> str | None:
         return None
     return (f"the site flag (nee_flag) rejects {int(rejected.sum())} of the "
             f"{int(present.sum())} records with an NEE value "
-            f"({100 * (rejected.sum() / present.sum()):.1f} %), likely why these stages lack "
-            "measured NEE: check [input] flag_accept, the flag values that mean a good "
+            f"({100 * (rejected.sum() / present.sum()):.1f} %), likely why {why}: "
+            "check [input] flag_accept, the flag values that mean a good "
             "record (a flag of the opposite meaning?)")
+
+
+@contextmanager
+def flag_named_in_failure(frame):
+    """Name the site flag in a fit's refusal raised within, where it rejects most records.
+
+    The preflight names the flag beside a want of measured NEE it finds before any fit
+    (:func:`refuse`); a fit can still fail on the records the flag leaves (a flag of the
+    opposite meaning keeps the few records the site's checks rejected, too few or too
+    noisy for an E0: round mistakes60's inverted flag at 94.9 % stopped at the E0 fit
+    with an error line that named the E0 windows alone, round review97).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame or None
+        The record, as for :func:`flag_cause`.
+
+    Yields
+    ------
+    None
+        The block runs unchanged; only an error it raises is reworded.
+
+    Raises
+    ------
+    InsufficientDataError
+        The error raised within, followed by :func:`flag_cause` where the flag rejects
+        more than :data:`FLAG_CAUSE_SHARE` of the records with an NEE value (the same
+        error class, chained to the original).
+
+    References
+    ----------
+    Papale, D. et al. (2006), as in :func:`flag_cause` (m).
+    """
+    try:
+        yield
+    except InsufficientDataError as error:
+        cause = flag_cause(frame, "the fit found too few good records")
+        if cause is None:
+            raise
+        raise type(error)(f"{error} {cause[0].upper()}{cause[1:]}") from error
 
 
 def refuse(verdict, findings, config, frame=None) -> None:

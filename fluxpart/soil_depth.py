@@ -65,8 +65,9 @@ _MIN_DAYS = 30
 _MIN_SHARE = 2 / 3
 
 
-def daily_range_ratio(tair, tsoil, stamps) -> tuple[float, int, float, float] | None:
-    """The soil's median daily range over the air's, on the days that can show it.
+def daily_range_ratio(tair, tsoil, stamps) -> tuple[float, int, float, float, float] | None:
+    """The soil's median daily range over the air's, on the days that can show it, each
+    day's drift with the weather taken out.
 
     Parameters
     ----------
@@ -78,30 +79,59 @@ def daily_range_ratio(tair, tsoil, stamps) -> tuple[float, int, float, float] | 
     Returns
     -------
     tuple or None
-        (ratio [1], days judged [d], soil's and air's median daily range [K]); None
+        (ratio [1], days judged [d], soil's and air's median daily range [K] after the
+        drift, share of the judged days on which the soil holds one value [1]); None
         where fewer than :data:`_MIN_DAYS` days can be judged.
+
+    Notes
+    -----
+    A deep probe still follows the weather of several days, which heat conduction damps
+    far less than the daily wave (the damping depth grows with the root of the period,
+    Campbell & Norman 1998, eq. 8.6 (m)): a day's drift of a few tenths of a kelvin
+    added to its range hid a 50 cm probe in a generated year with day-to-day weather
+    (ratio 0.030-0.035, named in 1 of 9; round review97,
+    ``tests/benchmarks/probe_soil_depth97.py``). Each temperature's drift is taken out
+    as the line through the day with the slope of the neighbouring days' means,
+    (m[d+1] - m[d-1]) / 2 per day, which a daily wave leaves at 0 whatever its phase;
+    the days are judged on their ranges as recorded.
     """
     tair = np.asarray(tair, dtype=float)
     tsoil = np.asarray(tsoil, dtype=float)
     if tair.size != tsoil.size or tair.size == 0:
         return None
     both = np.isfinite(tair) & np.isfinite(tsoil)
-    day = pd.DatetimeIndex(stamps).normalize()
-    frame = pd.DataFrame({"air": np.where(both, tair, np.nan),
-                          "soil": np.where(both, tsoil, np.nan), "n": both}, index=day)
-    groups = frame.groupby(level=0)
-    stats = groups.agg(air_max=("air", "max"), air_min=("air", "min"),
-                       soil_max=("soil", "max"), soil_min=("soil", "min"),
-                       soil_mean=("soil", "mean"), n=("n", "sum"), size=("n", "size"))
+    stamps = pd.DatetimeIndex(stamps)
+    day = stamps.normalize()
+    air, soil = np.where(both, tair, np.nan), np.where(both, tsoil, np.nan)
+    frame = pd.DataFrame({"air": air, "soil": soil, "n": both}, index=day)
+    stats = frame.groupby(level=0).agg(
+        air_max=("air", "max"), air_min=("air", "min"), air_mean=("air", "mean"),
+        soil_max=("soil", "max"), soil_min=("soil", "min"), soil_mean=("soil", "mean"),
+        n=("n", "sum"), size=("n", "size"))
     per_day = float(stats["size"].median())
     air_range = stats["air_max"] - stats["air_min"]
     judged = ((stats["n"] >= _MIN_SHARE * per_day) & (stats["soil_min"] >= _MIN_SOIL)
               & (air_range >= _MIN_AIR_RANGE))
     if int(judged.sum()) < _MIN_DAYS:
         return None
-    soil_range = float((stats["soil_max"] - stats["soil_min"])[judged].median())
-    air_median = float(air_range[judged].median())
-    return soil_range / air_median, int(judged.sum()), soil_range, air_median
+    # each day's drift: the slope of the neighbouring days' means [K d-1] (0 where a
+    # neighbour is missing), about the day's middle
+    calendar = pd.date_range(stats.index[0], stats.index[-1], freq="D")
+    at = calendar.get_indexer(day)
+    hours = ((stamps - day) / pd.Timedelta(days=1)).to_numpy(dtype=float) - 0.5
+    steady = {}
+    for name, values in (("air", air), ("soil", soil)):
+        means = stats[f"{name}_mean"].reindex(calendar).to_numpy(dtype=float)
+        slope = np.zeros(means.size)
+        if means.size > 2:
+            slope[1:-1] = np.nan_to_num((means[2:] - means[:-2]) / 2.0)
+        steady[name] = values - slope[at] * hours
+    steady = pd.DataFrame(steady, index=day).groupby(level=0).agg(["max", "min"])
+    soil_steady = (steady[("soil", "max")] - steady[("soil", "min")])[judged]
+    air_steady = (steady[("air", "max")] - steady[("air", "min")])[judged]
+    soil_range, air_median = float(soil_steady.median()), float(air_steady.median())
+    held = float(((stats["soil_max"] - stats["soil_min"])[judged] == 0.0).mean())
+    return soil_range / air_median, int(judged.sum()), soil_range, air_median, held
 
 
 def deep_soil_probe(tair, tsoil, stamps, columns=None) -> str | None:
@@ -119,8 +149,9 @@ def deep_soil_probe(tair, tsoil, stamps, columns=None) -> str | None:
     Returns
     -------
     str or None
-        The warning text; None where the soil swings as a shallow probe's does or the
-        record cannot tell (see :func:`daily_range_ratio`).
+        The warning text (a column holding one value through most days named as daily
+        means, not as a depth); None where the soil swings as a shallow probe's does or
+        the record cannot tell (see :func:`daily_range_ratio`).
 
     Notes
     -----
@@ -137,16 +168,27 @@ def deep_soil_probe(tair, tsoil, stamps, columns=None) -> str | None:
     found = daily_range_ratio(tair, tsoil, stamps)
     if found is None:
         return None
-    ratio, days, soil_range, air_range = found
+    ratio, days, soil_range, air_range, held = found
+    names = columns or {}
+    soil_column, air_column = names.get("tsoil", "tsoil"), names.get("tair", "tair")
+    if held > 0.5:
+        # one value through most days: no depth damps a wave to nothing, a column of daily
+        # means does (round review97: it was called "a probe some 138 cm deep")
+        return (f"soil temperature (column {soil_column!r}) holds one value through the day "
+                f"on most of {days} warm days (soil 5 °C or more, the air temperature, "
+                f"column {air_column!r}, swinging a median {air_range:.1f} K): a column of "
+                "daily means (or a value the logger held) written on every record, where "
+                "the respiration fits need each record's temperature: map the column of the "
+                "probe's own records as tsoil, or set [processing] respiration_driver = "
+                "\"tair\"")
     if not ratio < DEEP_RATIO:
         return None
     depth = -DAMPING_DEPTH_M * np.log(max(ratio, 1e-6))
-    names = columns or {}
-    soil_column, air_column = names.get("tsoil", "tsoil"), names.get("tair", "tair")
     return (f"soil temperature (column {soil_column!r}) has no daily cycle: over {days} warm "
             f"days (soil 5 °C or more, the air swinging 5 K or more) it swings a median "
             f"{soil_range:.2f} K a day, the air temperature (column {air_column!r}) "
-            f"{air_range:.1f} K ({ratio:.3f} of it); heat conduction damps the daily wave "
+            f"{air_range:.1f} K ({ratio:.3f} of it; each day's drift with the weather taken "
+            "out); heat conduction damps the daily wave "
             f"with depth z as exp(-z / {DAMPING_DEPTH_M:g} m), so this is a probe some "
             f"{100 * depth:.0f} cm deep or more, not the topsoil's 2-10 cm, and its seasons "
             "lag the respiring layer's by weeks: map a shallower probe as tsoil (a logger's "

@@ -1958,6 +1958,11 @@ class UncertaintyInputs:
     shape_spread : float
         Standard deviation of the two shapes about the central estimate per |ΣΔ|
         (:attr:`fluxpart.partition.light_shape.ShapeAverage.spread_factor`) [1].
+    mixture_judged : tuple or None
+        (share, unclipped draws) the nights' mixture test of ``driver_day_prior =
+        "mixture"`` or ``"share"`` judged (:func:`mixture_day_weight`); None where it
+        judged none. Enters no sum: it tells whether ``mixture_test`` changed the run
+        (:func:`fluxpart.driver_mixture.unchanged_note`).
     """
 
     measured: np.ndarray
@@ -1991,6 +1996,7 @@ class UncertaintyInputs:
     shape_gpp_delta: np.ndarray | None = None
     shape_reco_delta: np.ndarray | None = None
     shape_spread: float = 0.0
+    mixture_judged: tuple | None = None
 
 
 def driver_weight(nee_measured, is_night, reco_central, reco_other) -> float:
@@ -2477,7 +2483,9 @@ def record_inputs(index, fluxes: pd.DataFrame, runs: dict, measured, noise_sigma
         fill_after=None if fill_sides is None else np.asarray(fill_sides[1], dtype=float),
         driver_delta=None if other_driver_reco is None else
         np.asarray(other_driver_reco, dtype=float) - fluxes["reco_nighttime"].to_numpy(float),
-        driver_weight=weight, driver_day_weight=day_weight)
+        driver_weight=weight, driver_day_weight=day_weight,
+        mixture_judged=(share, share_draws) if other_driver_reco is not None
+        and driver_day_prior in ("mixture", "share") else None)
 
 
 def share_second_moment(share: float, draws) -> float:

@@ -21,7 +21,16 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import budget, gap_sides, gapfill, method_failure, night_donors, preceding_light, uncertainty
+from . import (
+    budget,
+    driver_mixture,
+    gap_sides,
+    gapfill,
+    method_failure,
+    night_donors,
+    preceding_light,
+    uncertainty,
+)
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import (
     OTHER_TEMPERATURE,
@@ -70,7 +79,7 @@ def with_hidden(conditions, hidden):
 def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, conditions,
                        is_night, night, day, temperature, interval, config, year_keys,
                        night_fits, error_model=None, form=None, delay=0, day_evidence=None,
-                       sun_up=None, shape=None):
+                       sun_up=None, shape=None, day_mixture=None):
     """1-sigma columns of the daily and monthly tables, the annual budget and 95 % intervals.
 
     Parameters
@@ -116,6 +125,10 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     shape : fluxpart.partition.light_shape.ShapeAverage, optional
         The daytime light-response shapes' average and spread
         (``daytime_curvature = "average"``).
+    day_mixture : tuple, optional
+        (share, unclipped draws) of the nights' mixture test of ``daytime_temperature =
+        "mixture"`` (:func:`fluxpart.central_run.night_mixture`), for the note of a
+        ``mixture_test`` that changed nothing.
 
     Returns
     -------
@@ -127,8 +140,10 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     gapfill_model : pandas.DataFrame
         The gap-filling error model's parameters.
     notes : list of str
-        Warnings: a temperature choice the daytime records contradict, a long gap whose
-        change of state weighs on its year.
+        Warnings: a temperature choice the daytime records contradict, a set
+        ``mixture_test`` that changed nothing
+        (:func:`fluxpart.driver_mixture.unchanged_note`), a long gap whose change of
+        state weighs on its year.
 
     References
     ----------
@@ -233,6 +248,14 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         central = f"{temperature} delayed by {delay * interval / 60:g} h" if delay else temperature
         notes.append(temperature_choice.conflict_note(central, day_evidence[1],
                                                       day_evidence[0]))
+    # a set mixture_test that changed nothing says so, as daytime_temperature's (review97)
+    unchanged = driver_mixture.unchanged_note(
+        config.mixture_test, [judged for judged in (inputs.mixture_judged, day_mixture)
+                              if judged is not None],
+        config.driver_day_prior in ("mixture", "share")
+        or config.daytime_temperature == "mixture")
+    if unchanged:
+        notes.append(unchanged)
     percentiles = config.ustar_scenarios
     tables = []
     for table, keys in ((daily, index.normalize()),
@@ -406,7 +429,7 @@ def uncertainty_stage(timeseries, budgets, central, inputs, driver, interval, co
         budgets.daily, budgets.monthly, budgets.annual, timeseries, central.outcomes, sigma,
         inputs.conditions, inputs.is_night, night, day, driver.temperature, interval, config,
         year_keys, driver.night_fits, error_model, central.form, driver.delay,
-        central.day_evidence, inputs.sun_up, central.shape)
+        central.day_evidence, inputs.sun_up, central.shape, central.mixture)
     warnings.extend(driver_notes)
     parameters["gapfill_error_model"] = gapfill_model
     # a method that could not fit has no sums, so no uncertainty of them either

@@ -31,6 +31,7 @@ from . import (
     night_uptake,
     preceding_light,
     screening,
+    screening_stage,
     storage_check,
     uncertainty,
 )
@@ -612,8 +613,10 @@ def runs_with_release(inputs: RunInputs, runs, driver, config, year_keys, interv
                               config, driver.night_fits.get(driver.temperature), driver.delay,
                               notes, report, year_keys), notes
 
-    # a partitioning error names the uptake in the dark preflight found (night_uptake)
-    with night_uptake.named_in_failure(findings):
+    # a partitioning error names the uptake in the dark preflight found (night_uptake),
+    # and a site flag that rejects most records with NEE (round review97)
+    with screening_stage.flag_named_in_failure(inputs.frame), \
+            night_uptake.named_in_failure(findings):
         outcomes, run_warnings = all_runs(inputs.screened, step)
         # the release of CO2 stored on calm nights, seen in the mornings after them
         # (storage_check); where it shows, those mornings are excluded and the runs redone
