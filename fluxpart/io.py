@@ -158,6 +158,7 @@ from .timestamps import (
 from .unit_checks import (
     _FLAG_REFUSE,
     IMPLAUSIBLE_SHARE,
+    apart_from_readings,
     implausible_message,
     missing_code_hint,
     mixup_messages,
@@ -4403,7 +4404,8 @@ def _undeclared_code(raw, canonical, variable, missing, column=None) -> str:
     if raw is None or len(raw) != len(canonical):
         return ""
     with np.errstate(invalid="ignore"):
-        outside = (canonical < variable.minimum) | (canonical > variable.maximum)
+        outside = ((canonical < variable.minimum) | (canonical > variable.maximum)) \
+            & apart_from_readings(canonical, variable)
     found = undeclared_code(np.asarray(raw, dtype=float)[outside])
     if found is None:
         return ""

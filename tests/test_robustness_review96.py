@@ -1,0 +1,69 @@
+"""Fresh-eyes review of rounds layouts55 and faults49 (round review96): what a user's files
+and stops did to the new reader rules and guards.
+
+Outside facts, each named beside its check: -6999, -999.9 and 9999 are loggers' and data
+centres' missing-data codes (common practice); air temperatures below -60 °C are measured
+on the polar plateaus (-89.2 °C at Vostok, 1983; WMO archive (m)) and reached through the
+readings above them; global radiation above the plausible 1500 W m-2 occurs for minutes at
+the edges of clouds (cloud enhancement, common practice); a sonic's u* written a little
+below 0 and a VPD a little below 0 in fog are readings (common practice). The zip format is
+read and written by Python's ``zipfile`` (the general-purpose reference; PKWARE APPNOTE
+(m)). Everything else is invented known truth: the records as written
+(``test_robustness_layouts26._records``, 1-4 June 2021).
+"""
+import numpy as np
+import pytest
+from test_robustness_layouts26 import _read, _records  # invented records
+from test_robustness_layouts55 import _text
+
+from fluxpart.unit_checks import undeclared_code_cells
+
+# column of each variable in _records: nee, ustar, rg, tair, vpd
+_COLUMN = {"ustar": 1, "rg": 2, "tair": 3, "vpd": 4}
+
+
+@pytest.mark.parametrize(("name", "written"), [
+    ("tair", [-59.8, -60.1, -60.1, -60.1, -60.2, -59.9]),   # a cold snap, 0.1 K steps
+    ("rg", [1490, 1503, 1503, 1503, 1506, 1495]),          # a cloud's edge, whole W m-2
+    ("ustar", [-0.01, -0.01, -0.01, -0.01, 0.01, 0.02]),   # a sonic's floor
+    ("vpd", [-1.1, -1.1, -1.1, -1.1, 0.1, 0.2]),           # fog over a humid sensor
+])
+def test_a_real_extreme_repeated_just_beyond_the_range_is_kept_as_a_reading(tmp_path, name,
+                                                                            written):
+    """A value beyond the plausible range written three or four times among neighbours
+    just inside it is a reading, not a code: before (layouts55), -60.1 °C written three
+    times was read as missing, "an undeclared missing-data code"; now it is kept and
+    range-warned (screening rejects it), and no hint calls it a code."""
+    _, values = _records()
+    cells = list(range(100, 106))
+    values[cells, _COLUMN[name]] = written
+    (tmp_path / "t.csv").write_text(_text(values))
+    frame, report = _read(tmp_path / "t.csv", missing=(-9999,))
+    np.testing.assert_allclose(frame[name].iloc[cells], written)
+    assert not any("read as missing" in w or "alone occurs" in w for w in report.warnings)
+    assert any(w.startswith(f"{name}: ") and "outside the plausible range" in w
+               for w in report.warnings)
+
+
+@pytest.mark.parametrize(("name", "code"), [("tair", -999.9), ("rg", -999.9), ("rg", 9999),
+                                            ("tair", 6999), ("vpd", -99.9)])
+def test_a_code_far_from_every_reading_is_still_read_as_missing(tmp_path, name, code):
+    """Kept behaviour of layouts55: a code written in six cells, -9999 declared, read as
+    missing and named with its count, even beside a real extreme kept as a reading."""
+    _, values = _records()
+    values[100:106, _COLUMN[name]] = code
+    (tmp_path / "t.csv").write_text(_text(values))
+    frame, report = _read(tmp_path / "t.csv", missing=(-9999,))
+    assert frame[name].iloc[100:106].isna().all()
+    assert frame[name].notna().sum() == len(frame) - 6
+    assert any(w.startswith(f"{name}: the value {code:g} alone occurs 6 times")
+               for w in report.warnings)
+
+
+def test_a_code_beside_a_more_repeated_real_extreme_is_found():
+    """The code is looked for among values standing apart from every reading: -60.1 °C
+    four times (a cold snap) does not hide -6999 written three times."""
+    readings = np.r_[np.linspace(-59.0, 20.0, 200), [-60.1] * 4, [-6999.0] * 3]
+    cells, code, count = undeclared_code_cells("tair", readings, readings)
+    assert (code, count) == (-6999.0, 3)
+    assert cells.sum() == 3 and (readings[cells] == -6999).all()
