@@ -67,3 +67,54 @@ def test_a_code_beside_a_more_repeated_real_extreme_is_found():
     cells, code, count = undeclared_code_cells("tair", readings, readings)
     assert (code, count) == (-6999.0, 3)
     assert cells.sum() == 3 and (readings[cells] == -6999).all()
+
+
+def _flagged_lines(stamps, values, flags):
+    head = "stamp,co2_flux,us,sw,t_air,vpd,qc"
+    return [head] + [",".join([s] + ([f"{v:.12g}" for v in row] if row is not None
+                                     else [""] * 5) + [str(flag)])
+                     for s, row, flag in zip(stamps, values, flags, strict=True)]
+
+
+def _read_flagged(paths):
+    from test_robustness_layouts26 import MAPPING
+    return _read(paths, columns=MAPPING | {"nee_flag": "qc"}, missing=(-9999,))
+
+
+def test_a_placeholder_flagged_otherwise_than_its_record_is_dropped(tmp_path):
+    """A logger's placeholder of no value flagged 2 ("no data") before the record of its
+    stamp flagged 0: before (layouts55: flags had to agree) refused as a stamp with
+    different values, the message naming a change of stamping convention; now dropped,
+    noted with the differing flag, the record's own flag kept."""
+    ends, values = _records()
+    stamps = [f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    rows, flags = list(values), [0] * len(values)
+    (tmp_path / "clean.csv").write_text("\n".join(_flagged_lines(stamps, rows, flags)) + "\n")
+    lines = _flagged_lines(stamps, rows, flags)
+    lines.insert(51, _flagged_lines([stamps[50]], [None], [2])[1])
+    (tmp_path / "t.csv").write_text("\n".join(lines) + "\n")
+    frame, report = _read_flagged(tmp_path / "t.csv")
+    assert frame.equals(_read_flagged(tmp_path / "clean.csv")[0])
+    assert any("a placeholder, dropped" in n and "1 of them flagged otherwise than the "
+               "record (line 52)" in n for n in report.notes)
+
+
+def test_a_placeholder_closing_one_file_of_a_series_flagged_otherwise_is_dropped(tmp_path):
+    """The first file of a series ends with a placeholder of no value flagged 2 at the
+    stamp the second file begins with, flagged 0: before, refused as overlapping files
+    that disagree in nee_flag (the message offering a change of time marks at midnight);
+    now read as the one clean file, noted."""
+    ends, values = _records()
+    stamps = [f"{e:%Y-%m-%d %H:%M}" for e in ends]
+    flags = [0] * len(values)
+    (tmp_path / "clean.csv").write_text(
+        "\n".join(_flagged_lines(stamps, list(values), flags)) + "\n")
+    first = _flagged_lines(stamps[:191] + [stamps[191]], list(values[:191]) + [None],
+                           [0] * 191 + [2])
+    second = _flagged_lines(stamps[191:], list(values[191:]), flags[191:])
+    (tmp_path / "a.csv").write_text("\n".join(first) + "\n")
+    (tmp_path / "b.csv").write_text("\n".join(second) + "\n")
+    frame, report = _read_flagged([tmp_path / "a.csv", tmp_path / "b.csv"])
+    assert frame.equals(_read_flagged(tmp_path / "clean.csv")[0])
+    assert any(n.startswith("1 record(s) holding no value") and "line 193 of" in n
+               for n in report.notes)
