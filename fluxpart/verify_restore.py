@@ -255,38 +255,93 @@ def _zip_member(archive: Path) -> str | None:
 
 def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -> Path | None:
     """The recorded input restored from the one file `member` of the zip `archive`: its
-    bytes unpacked a chunk at a time into `scratch` (given up past `MOST_UNPACKED_BYTES`)
-    and taken where they, as they are or re-saved (:func:`_restored_text`), have the
-    recorded SHA-256 `sha`; else None, nothing left."""
+    bytes hashed a chunk at a time (given up past `MOST_UNPACKED_BYTES`) and written to
+    `scratch` where they, as they are or re-saved (:func:`_text_variants`), have the
+    recorded SHA-256 `sha`; else None, nothing written.
+
+    Nothing is written before the bytes are known to be the input's (round review96: a
+    small zip unpacking to gigabytes of zeros was written whole to the scratch folder
+    before its SHA-256 was compared, and a zip holding itself, a zip quine, was opened
+    again and again until Python's recursion limit stopped verify with a traceback)."""
+    name = _member_file_name(member)
+    digest, held, size = hashlib.sha256(), [], 0
+    try:
+        for chunk in _zip_chunks(archive, member):
+            digest.update(chunk)
+            size += len(chunk)
+            if held is not None and size <= MOST_RESAVED_BYTES:
+                held.append(chunk)
+            else:
+                held = None
+    except _ZIP_ERRORS:
+        return None
+    data = b"".join(held) if held is not None else None
+    if digest.hexdigest() == sha:
+        if data is not None:
+            return _restored_copy(data, name, scratch, number)
+        return _zip_copy(archive, member, sha, name, scratch, number)
+    for converted in _text_variants(data) if data is not None else ():
+        if converted != data and hashlib.sha256(converted).hexdigest() == sha:
+            return _restored_copy(converted, name, scratch, number)
+    return None
+
+
+#: What reading a damaged, encrypted or unsupported zip member raises.
+_ZIP_ERRORS = (OSError, ValueError, EOFError, RuntimeError, NotImplementedError, zlib.error)
+
+
+def _zip_chunks(archive: Path, member: str):
+    """Yield the bytes of the file `member` of the zip `archive` a chunk at a time; raise
+    ValueError past `MOST_UNPACKED_BYTES` and for a damaged archive (``zipfile``'s
+    BadZipFile re-raised as one), or another of `_ZIP_ERRORS`."""
     import zipfile
 
-    folder = scratch / f"restored-input-{number}"
-    folder.mkdir(parents=True, exist_ok=True)
-    target, digest, size = folder / Path(member).name, hashlib.sha256(), 0
+    size = 0
     try:
-        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream, \
-                target.open("wb") as out:
+        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream:
             while chunk := stream.read(_CHUNK_BYTES):
                 size += len(chunk)
                 if size > MOST_UNPACKED_BYTES:
                     raise ValueError(f"unpacks to more than {MOST_UNPACKED_BYTES} bytes")
+                yield chunk
+    except zipfile.BadZipFile as error:
+        raise ValueError(str(error)) from None
+
+
+def _zip_copy(archive: Path, member: str, sha, name: str, scratch: Path,
+              number: int) -> Path | None:
+    """The file `member` of the zip `archive` (too large to hold) unpacked as `name` in a
+    folder of its own in `scratch`; None (and nothing left) where the bytes written do not
+    have the SHA-256 `sha` (the archive changed since it was hashed)."""
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target, digest = folder / name, hashlib.sha256()
+    try:
+        with target.open("wb") as out:
+            for chunk in _zip_chunks(archive, member):
                 digest.update(chunk)
                 out.write(chunk)
-    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
-            NotImplementedError, zlib.error):
+    except _ZIP_ERRORS:
         target.unlink(missing_ok=True)
         return None
-    if digest.hexdigest() == sha:
-        return target
-    restored = _restored_text(target, sha, scratch, number + 1000)
-    target.unlink(missing_ok=True)
-    return restored
+    if digest.hexdigest() != sha:
+        target.unlink(missing_ok=True)
+        return None
+    return target
+
+
+def _member_file_name(member: str) -> str:
+    """The file name of the zip member `member` without its folders, a Windows tool's
+    backslashes read as separators too; "input" where no name is left ("." or "..", a
+    damaged or crafted archive: round review96, verify stopped with a traceback)."""
+    name = member.replace("\\", "/").rstrip("/").rsplit("/", 1)[-1]
+    return name if name not in ("", ".", "..") else "input"
 
 
 def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     """(the zip archive, the recorded bytes restored from it) where the recorded input
-    `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file of its
-    name whose bytes, as they are or re-saved, have the recorded SHA-256
+    `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file, of any
+    name, whose bytes, as they are or re-saved, have the recorded SHA-256
     (:func:`_zip_restored`); else None (round faults49: ``zip -m`` of the input after the
     run had been "does not exist; give --input", though ``run`` reads such a zip).
 
@@ -296,8 +351,11 @@ def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     ``zipfile``.
     """
     for archive in _zip_names(path):
+        # the recorded SHA-256 decides, not the member's name (round review96: a zip
+        # holding "tower_2021.csv" or a Windows tool's "data\\tower.csv" for the gone
+        # "tower.csv" was not opened, and then said not to hold its bytes)
         member = _zip_member(archive) if archive.is_file() else None
-        if member is not None and Path(member).name == path.name:
+        if member is not None:
             restored = _zip_restored(archive, member, sha, scratch, number)
             if restored is not None:
                 return archive, restored
