@@ -236,9 +236,9 @@ def _zip_names(path: Path) -> list[Path]:
                                path.with_name(path.stem + ".zip"))))
 
 
-def _zip_member(archive: Path) -> str | None:
-    """The name of the one file the zip archive `archive` holds (macOS's ``__MACOSX/``
-    forks not counted), or None (no zip, damaged, or another number of files)."""
+def _zip_files(archive: Path) -> list[str] | None:
+    """The names of the files the zip archive `archive` holds (folders and macOS's
+    ``__MACOSX/`` forks not counted), or None (no zip, damaged or unreadable)."""
     import zipfile
 
     try:
@@ -246,11 +246,28 @@ def _zip_member(archive: Path) -> str | None:
             if handle.read(4) != b"PK\x03\x04":
                 return None
         with zipfile.ZipFile(archive) as packed:
-            members = [info.filename for info in packed.infolist() if not info.is_dir()
-                       and not info.filename.startswith("__MACOSX/")]
+            return [info.filename for info in packed.infolist() if not info.is_dir()
+                    and not info.filename.startswith("__MACOSX/")]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
         return None
-    return members[0] if len(members) == 1 else None
+
+
+def _zip_member(archive: Path) -> str | None:
+    """The name of the one file the zip archive `archive` holds (:func:`_zip_files`), or
+    None (no zip, damaged, or another number of files)."""
+    members = _zip_files(archive)
+    return members[0] if members is not None and len(members) == 1 else None
+
+
+def _zip_candidates(archive: Path, name: str) -> list[str]:
+    """The files of the zip `archive` that may hold the gone input named `name`: its one
+    file (of any name: the SHA-256 decides), else those of that name in any of its
+    folders (a zip of the input with its config, or of the folder holding it: round
+    review96, refused before as holding two files). [] where none or no zip."""
+    members = _zip_files(archive) or []
+    if len(members) == 1:
+        return members
+    return [member for member in members if _member_file_name(member) == name]
 
 
 def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -> Path | None:
@@ -341,7 +358,8 @@ def _member_file_name(member: str) -> str:
 def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     """(the zip archive, the recorded bytes restored from it) where the recorded input
     `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file, of any
-    name, whose bytes, as they are or re-saved, have the recorded SHA-256
+    name, or a file of its name among others (:func:`_zip_candidates`), whose bytes, as
+    they are or re-saved, have the recorded SHA-256
     (:func:`_zip_restored`); else None (round faults49: ``zip -m`` of the input after the
     run had been "does not exist; give --input", though ``run`` reads such a zip).
 
@@ -354,8 +372,7 @@ def _zipped_beside(path: Path, sha, scratch: Path, number: int):
         # the recorded SHA-256 decides, not the member's name (round review96: a zip
         # holding "tower_2021.csv" or a Windows tool's "data\\tower.csv" for the gone
         # "tower.csv" was not opened, and then said not to hold its bytes)
-        member = _zip_member(archive) if archive.is_file() else None
-        if member is not None:
+        for member in _zip_candidates(archive, path.name) if archive.is_file() else ():
             restored = _zip_restored(archive, member, sha, scratch, number)
             if restored is not None:
                 return archive, restored
@@ -394,10 +411,16 @@ def _packed_not_taken(path) -> str:
         return ""
     beside = [path.name + suffix for _, suffix in PACKED_FORMS
               if path.with_name(path.name + suffix).is_file()]
-    beside += [archive.name for archive in _zip_names(path) if archive.is_file()]
+    beside += [archive.name for archive in _zip_names(path) if archive.is_file()
+               and (_zip_files(archive) is None or _zip_candidates(archive, path.name))]
+    others = "".join(
+        f"; {archive.name!r} beside it holds {len(files)} files, none named {path.name!r}"
+        for archive in _zip_names(path) if archive.is_file()
+        and (files := _zip_files(archive)) is not None
+        and not _zip_candidates(archive, path.name))
     if not beside:
-        return _packed_unread(path)
-    return _packed_unread(path) + (
+        return _packed_unread(path) + others
+    return _packed_unread(path) + others + (
             f"; {', '.join(map(repr, beside))} beside it does not hold its recorded bytes "
             f"(its unpacked bytes, re-saved or not, do not have the recorded SHA-256, or it "
             f"is damaged or unpacks to more than {MOST_UNPACKED_BYTES >> 30} GiB)")

@@ -157,3 +157,28 @@ def test_a_zip_of_other_bytes_writes_nothing(tmp_path):
     scratch.mkdir()
     assert _packed_beside(tmp_path / "tower.csv", sha, scratch, 0) is None
     assert list(scratch.iterdir()) == []
+
+
+def test_a_zip_of_the_input_among_other_files_is_taken_else_named(tmp_path):
+    """``tower.zip`` holding the input with its config, or the folder holding both: the
+    file of the input's name is taken by its SHA-256 (before: not opened, "does not hold
+    its recorded bytes"); a zip of several files none of that name is named as such, not
+    said to hold other bytes."""
+    from fluxpart.verify_restore import _packed_beside, _packed_not_taken
+
+    sha = hashlib.sha256(_TEXT).hexdigest()
+    for folder in ("", "tower/"):
+        with zipfile.ZipFile(tmp_path / "tower.zip", "w") as packed:
+            packed.writestr(folder + "tower.toml", b"[site]\n")
+            packed.writestr(folder + "tower.csv", _TEXT)
+        archive, restored = _packed_beside(tmp_path / "tower.csv", sha, tmp_path / "s", 0)
+        assert archive.name == "tower.zip" and restored.read_bytes() == _TEXT
+    with zipfile.ZipFile(tmp_path / "tower.zip", "w") as packed:
+        packed.writestr("a.csv", _TEXT)
+        packed.writestr("b.csv", _TEXT)
+    assert _packed_beside(tmp_path / "tower.csv", sha, tmp_path / "s2", 0) is None
+    said = _packed_not_taken(tmp_path / "tower.csv")
+    assert said == "; 'tower.zip' beside it holds 2 files, none named 'tower.csv'"
+    (tmp_path / "tower.zip").write_bytes(b"PK\x03\x04 damaged")
+    assert "'tower.zip' beside it does not hold its recorded bytes" in _packed_not_taken(
+        tmp_path / "tower.csv")
