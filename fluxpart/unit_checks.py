@@ -222,7 +222,10 @@ def undeclared_code_cells(name: str, file_values, canonical
     file_values = np.asarray(file_values, dtype=float)
     canonical = np.asarray(canonical, dtype=float)
     with np.errstate(invalid="ignore"):
-        outside = _outside(name, canonical) & apart_from_readings(canonical, variable)
+        outside = _outside(name, canonical)
+    if outside.sum() < 3:        # no code (undeclared_code), the common case: no sort
+        return None
+    outside &= apart_from_readings(canonical, variable)
     found = undeclared_code(file_values[outside])
     if found is None:
         return None
