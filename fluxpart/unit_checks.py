@@ -238,12 +238,13 @@ def undeclared_code_cells(name: str, file_values, canonical
 #: physically argued: a reading beyond the range is reached through readings near its
 #: bound (a half-hour's mean of air temperature, radiation or u* moves by a small part of
 #: its range from one record to the next), so a real extreme (a cold snap at -60.1 °C
-#: written to 0.1 K, Rg of 1503 W m-2 under a cloud's edge, a u* of -0.01 m s-1) has
-#: neighbours within a few units; a code (-6999, -999.9, 9999) lies hundreds of units from
-#: the nearest reading. A tenth of the range (12 K of air temperature, 155 W m-2 of Rg,
-#: 0.5 m s-1 of u*) is far beyond the first and far short of the second (round review96:
-#: a cold snap's -60.1 °C written three times was read as missing, "an undeclared code").
-_CODE_APART = 0.1
+#: written to 0.1 K, Rg of 1503 W m-2 at a cloud's edge, a u* of -0.01 m s-1) has
+#: neighbours within a few units; a code (-6999, -999.9, 9999, -99 in Rg) lies about a
+#: hundred units or more from the nearest reading. A twentieth of the range (6 K of air
+#: temperature, 77.5 W m-2 of Rg, 0.25 m s-1 of u*, 10 hPa of VPD) is far beyond the first
+#: and short of the second (round review96: a cold snap's -60.1 °C written three times was
+#: read as missing, "an undeclared code").
+_CODE_APART = 0.05
 
 
 def apart_from_readings(canonical, variable) -> np.ndarray:

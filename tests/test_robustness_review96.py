@@ -49,7 +49,8 @@ def test_a_real_extreme_repeated_just_beyond_the_range_is_kept_as_a_reading(tmp_
 
 
 @pytest.mark.parametrize(("name", "code"), [("tair", -999.9), ("rg", -999.9), ("rg", 9999),
-                                            ("tair", 6999), ("vpd", -99.9)])
+                                            ("tair", 6999), ("vpd", -99.9),
+                                            ("rg", -99)])
 def test_a_code_far_from_every_reading_is_still_read_as_missing(tmp_path, name, code):
     """Kept behaviour of layouts55: a code written in six cells, -9999 declared, read as
     missing and named with its count, even beside a real extreme kept as a reading."""
