@@ -2963,8 +2963,8 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
             body, at = error.object, error.start
             line = len(re.findall(rb"\r\n|\r|\n", body[:at])) + 1
             raise InputFileError(
-                f"input file {str(path)!r} is not {encoding} text (byte 0x{body[at]:02x} "
-                f"on line {line}); {_single_byte_advice(body, at)}") from None
+                f"input file {str(path)!r} {_not_text(encoding)} (byte 0x{body[at]:02x} on "
+                f"line {line}); {_single_byte_advice(body, at)}") from None
     # the byte-order mark, also where files saved with one were joined end to end (a
     # header line starting with U+FEFF then is not the header line it repeats)
     text = text.replace("\ufeff", "")
@@ -3024,6 +3024,15 @@ def _decode(path: Path, encoding, warnings=None, typed=None) -> tuple[str, str]:
     if kind:
         text = table_formats.table_text(text, path, kind, **typed)
     return text, ("utf-8" if encoding == "utf-8-sig" else encoding)
+
+
+def _not_text(encoding: str) -> str:
+    """"is not ENCODING text", Python's "utf-8-sig" (the codec of a file that begins with a
+    UTF-8 byte-order mark) said in words (round review96: "is not utf-8-sig text", the
+    codec's name the message's only word for the mark)."""
+    if encoding == "utf-8-sig":
+        return "begins with a UTF-8 byte-order mark but is not UTF-8 text"
+    return f"is not {encoding} text"
 
 
 def _single_byte(encoding) -> bool:

@@ -183,3 +183,27 @@ def test_a_zip_of_the_input_among_other_files_is_taken_else_named(tmp_path):
     (tmp_path / "tower.zip").write_bytes(b"PK\x03\x04 damaged")
     assert "'tower.zip' beside it does not hold its recorded bytes" in _packed_not_taken(
         tmp_path / "tower.csv")
+
+
+@pytest.mark.parametrize("declared", [None, "utf-16"])
+def test_a_false_utf8_mark_under_no_single_byte_encoding_is_named_in_words(tmp_path,
+                                                                          declared):
+    """A UTF-8 byte-order mark (EF BB BF, Unicode Standard section 23.8 (m)) before
+    Latin-1 bytes ("°" as B0, ISO/IEC 8859-1 (m)), no single-byte encoding declared: still
+    refused with the encoding to set, but said in words; before, "is not utf-8-sig text",
+    Python's codec name."""
+    import codecs
+
+    from test_robustness_layouts26 import MAPPING
+
+    from fluxpart.errors import FluxpartError
+
+    _, values = _records()
+    text = _text(values).replace("t_air", "t_air_°C")
+    (tmp_path / "t.csv").write_bytes(codecs.BOM_UTF8 + text.encode("latin-1"))
+    options = {"encoding": declared} if declared else {}
+    with pytest.raises(FluxpartError) as refused:
+        _read(tmp_path / "t.csv", columns=MAPPING | {"tair": "t_air_°C"}, **options)
+    message = str(refused.value)
+    assert "begins with a UTF-8 byte-order mark but is not UTF-8 text (byte 0xb0" in message
+    assert "utf-8-sig" not in message and 'set [input] encoding = "latin-1"' in message
