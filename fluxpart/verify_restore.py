@@ -89,10 +89,17 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     Seward, J. bzip2 and libbzip2: the .bz2 file format (m); Tukaani (2009). The .xz file
     format, version 1.0.4 (the magic bytes of :data:`PACKED_FORMS`).
     """
-    member = _zip_member(path)
-    if member is not None:
-        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49)
-        return _zip_restored(path, member, sha, scratch, number)
+    members = _zip_files(path)
+    if members:
+        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49),
+        # or of the input among other files (its config, its folder: round review96, "NOT
+        # reproduced ... not the input file" though it held it), each tried by its
+        # SHA-256 within one unpacking budget
+        for member in _within_budget(path, members):
+            restored = _zip_restored(path, member, sha, scratch, number)
+            if restored is not None:
+                return restored
+        return None
     unpacked = _unpacked(path)
     if unpacked is not None:
         # compressed for the archive; the recorded file may be the text inside, as it is
@@ -252,11 +259,24 @@ def _zip_files(archive: Path) -> list[str] | None:
         return None
 
 
-def _zip_member(archive: Path) -> str | None:
-    """The name of the one file the zip archive `archive` holds (:func:`_zip_files`), or
-    None (no zip, damaged, or another number of files)."""
-    members = _zip_files(archive)
-    return members[0] if members is not None and len(members) == 1 else None
+def _within_budget(archive: Path, members: list[str]) -> list[str]:
+    """The files `members` of the zip `archive` whose sizes, as its directory states them
+    (``zipfile`` reads no byte past a stated size), add up to `MOST_UNPACKED_BYTES` at
+    most, in the archive's order: a zip of many large files is not unpacked whole."""
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(archive) as packed:
+            sizes = {info.filename: info.file_size for info in packed.infolist()}
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
+        return []
+    taken, total = [], 0
+    for member in members:
+        total += sizes.get(member, 0)
+        if total > MOST_UNPACKED_BYTES:
+            break
+        taken.append(member)
+    return taken
 
 
 def _zip_candidates(archive: Path, name: str) -> list[str]:

@@ -207,3 +207,22 @@ def test_a_false_utf8_mark_under_no_single_byte_encoding_is_named_in_words(tmp_p
     message = str(refused.value)
     assert "begins with a UTF-8 byte-order mark but is not UTF-8 text (byte 0xb0" in message
     assert "utf-8-sig" not in message and 'set [input] encoding = "latin-1"' in message
+
+
+def test_verify_input_given_as_a_zip_of_several_files_is_tried_by_each(tmp_path):
+    """``verify --input tower.zip`` where the zip holds the input with its config: the
+    file with the recorded SHA-256 is taken (before: "NOT reproduced ... it is not the
+    input file the result was computed from", a false claim); a zip of other files is
+    still no copy."""
+    from fluxpart.verify_restore import _restored_text
+
+    sha = hashlib.sha256(_TEXT).hexdigest()
+    with zipfile.ZipFile(tmp_path / "tower.zip", "w") as packed:
+        packed.writestr("site/tower.toml", b"[site]\n")
+        packed.writestr("site/tower.csv", _TEXT.replace(b"\n", b"\r\n"))   # re-saved too
+    restored = _restored_text(tmp_path / "tower.zip", sha, tmp_path / "s", 0)
+    assert restored is not None and restored.read_bytes() == _TEXT
+    with zipfile.ZipFile(tmp_path / "other.zip", "w") as packed:
+        packed.writestr("a.toml", b"[site]\n")
+        packed.writestr("b.csv", _TEXT + b"202101010130,0.5\n")
+    assert _restored_text(tmp_path / "other.zip", sha, tmp_path / "s2", 0) is None
