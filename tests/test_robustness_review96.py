@@ -226,3 +226,15 @@ def test_verify_input_given_as_a_zip_of_several_files_is_tried_by_each(tmp_path)
         packed.writestr("a.toml", b"[site]\n")
         packed.writestr("b.csv", _TEXT + b"202101010130,0.5\n")
     assert _restored_text(tmp_path / "other.zip", sha, tmp_path / "s2", 0) is None
+
+
+def test_a_frozen_soil_held_at_its_melting_point_is_no_code():
+    """A tundra soil held at 0 °C through a long winter (the zero curtain: the latent heat
+    of its water holds it at the melting point, common practice), written in kelvin and
+    kept as declared "°C" through [input] accept_units: every value lies beyond the range
+    and 273.15 makes up over half of them. Before, it was taken for a code and blanked;
+    now it stands among readings 0.01 K apart and stays."""
+    rng = np.random.default_rng(96)
+    thawed = 273.15 + rng.uniform(0.01, 12.0, 4000).round(2)
+    soil = np.r_[np.full(6000, 273.15), thawed]
+    assert undeclared_code_cells("tsoil", soil, soil) is None
