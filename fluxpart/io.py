@@ -6079,6 +6079,7 @@ def _combine(parts: list) -> dict:
                 keep = np.ones(len(stamps), dtype=bool)
                 keep[empty] = False
                 placeholders = int(empty.size)
+                merged += placeholders      # "rows dropped" adds up to the records read
                 stamps, lines, sources = stamps[keep], lines[keep], sources[keep]
                 values = {name: column[keep] for name, column in values.items()}
         (stamps, lines, sources, values, completed_rows, completed,
