@@ -122,6 +122,7 @@ def test_a_placeholder_closing_one_file_of_a_series_flagged_otherwise_is_dropped
     assert frame.equals(_read_flagged(tmp_path / "clean.csv")[0])
     assert any(n.startswith("1 record(s) holding no value") and "line 193 of" in n
                for n in report.notes)
+    assert report.records_read == report.records + report.merged_rows  # 385 = 384 + 1
 
 
 _TEXT = b"stamp,nee\n202101010030,1.5\n202101010100,-2.25\n"
