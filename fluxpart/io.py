@@ -5094,12 +5094,16 @@ def _placeholder_rows(stamps: pd.DatetimeIndex, values: dict, keep: np.ndarray
     present = ~np.isnan(table)
     empty = keep & ~present[:, ~flags].any(axis=1)
     stamp_values = stamps.to_numpy()
-    repeated = keep & pd.Index(stamp_values).duplicated(keep=False) & ~empty
-    if not (empty & pd.Index(stamp_values).duplicated(keep=False)).any():
+    shared = pd.Index(stamp_values).duplicated(keep=False)
+    repeated = keep & shared & ~empty
+    if not (empty & shared).any():
         return nothing, nothing
     first_full = pd.Series(np.flatnonzero(repeated),
                            index=stamp_values[repeated]).groupby(level=0).first()
-    rows = [row for row in np.flatnonzero(empty) if stamp_values[row] in first_full.index]
+    # only the empty rows at a repeated stamp are looked up (review96: every empty row of
+    # a ten-year record with outages was, 0.66 s)
+    rows = [row for row in np.flatnonzero(empty & shared)
+            if stamp_values[row] in first_full.index]
     differing = []
     for row in rows:
         other = table[first_full[stamp_values[row]]]
