@@ -60,6 +60,7 @@ __all__ = [
     "frame_refusal",
     "implausible_message",
     "mixup_messages",
+    "apart_from_readings",
     "undeclared_code_cells",
 ]
 
@@ -202,7 +203,11 @@ def undeclared_code_cells(name: str, file_values, canonical
         as written, how often it occurs. The code is the value beyond the variable's
         plausible range that makes up half or more of the values beyond it, 3 times or
         more (:func:`undeclared_code`, the reader's hint): a logger repeats its code
-        exactly, a spike or a faulty sensor spreads over many values.
+        exactly, a spike or a faulty sensor spreads over many values. Only values that
+        stand apart from every other value of the column by more than
+        :data:`_CODE_APART` of the plausible range count: a real extreme just beyond the
+        range (a cold snap, a sensor's ceiling, a u* or VPD a little below 0) has
+        neighbours near it and stays a reading (range-flagged, screened).
 
     References
     ----------
@@ -215,13 +220,46 @@ def undeclared_code_cells(name: str, file_values, canonical
                                 or math.isfinite(variable.maximum)):
         return None
     file_values = np.asarray(file_values, dtype=float)
+    canonical = np.asarray(canonical, dtype=float)
     with np.errstate(invalid="ignore"):
-        outside = _outside(name, np.asarray(canonical, dtype=float))
+        outside = _outside(name, canonical)
+    if outside.sum() < 3:        # no code (undeclared_code), the common case: no sort
+        return None
+    outside &= apart_from_readings(canonical, variable)
     found = undeclared_code(file_values[outside])
     if found is None:
         return None
     code, count = found
     return outside & (file_values == code), code, count
+
+
+#: Share of a variable's plausible range [1] by which a value beyond it must stand apart
+#: from every other value of its column to be taken for a missing-data code. Our choice,
+#: physically argued: a reading beyond the range is reached through readings near its
+#: bound (a half-hour's mean of air temperature, radiation or u* moves by a small part of
+#: its range from one record to the next), so a real extreme (a cold snap at -60.1 °C
+#: written to 0.1 K, Rg of 1503 W m-2 at a cloud's edge, a u* of -0.01 m s-1) has
+#: neighbours within a few units; a code (-6999, -999.9, 9999, -99 in Rg) lies about a
+#: hundred units or more from the nearest reading. A twentieth of the range (6 K of air
+#: temperature, 77.5 W m-2 of Rg, 0.25 m s-1 of u*, 10 hPa of VPD) is far beyond the first
+#: and short of the second (round review96: a cold snap's -60.1 °C written three times was
+#: read as missing, "an undeclared code").
+_CODE_APART = 0.05
+
+
+def apart_from_readings(canonical, variable) -> np.ndarray:
+    """Whether each value of `canonical` lies more than :data:`_CODE_APART` of the plausible
+    range of `variable` from the nearest other value of the column (NaN: False): where
+    a value beyond the range may be a missing-data code rather than a reading."""
+    canonical = np.asarray(canonical, dtype=float)
+    distinct = np.unique(canonical[np.isfinite(canonical)])
+    if distinct.size == 0:
+        return np.zeros(canonical.shape, dtype=bool)
+    steps = np.diff(distinct)
+    nearest = np.minimum(np.concatenate([[np.inf], steps]), np.concatenate([steps, [np.inf]]))
+    apart = nearest > _CODE_APART * (variable.maximum - variable.minimum)
+    where = np.clip(np.searchsorted(distinct, canonical), 0, distinct.size - 1)
+    return np.isfinite(canonical) & apart[where]
 
 
 def missing_code_hint(code: float, count: int, missing, place: str = "") -> str:

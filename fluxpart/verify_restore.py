@@ -89,10 +89,17 @@ def _restored_text(path: Path, sha, scratch: Path, number: int) -> Path | None:
     Seward, J. bzip2 and libbzip2: the .bz2 file format (m); Tukaani (2009). The .xz file
     format, version 1.0.4 (the magic bytes of :data:`PACKED_FORMS`).
     """
-    member = _zip_member(path)
-    if member is not None:
-        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49)
-        return _zip_restored(path, member, sha, scratch, number)
+    members = _zip_files(path)
+    if members:
+        # a zip of one file, as run reads it (``--input tower.csv.zip``, round faults49),
+        # or of the input among other files (its config, its folder: round review96, "NOT
+        # reproduced ... not the input file" though it held it), each tried by its
+        # SHA-256 within one unpacking budget
+        for member in _within_budget(path, members):
+            restored = _zip_restored(path, member, sha, scratch, number)
+            if restored is not None:
+                return restored
+        return None
     unpacked = _unpacked(path)
     if unpacked is not None:
         # compressed for the archive; the recorded file may be the text inside, as it is
@@ -236,9 +243,9 @@ def _zip_names(path: Path) -> list[Path]:
                                path.with_name(path.stem + ".zip"))))
 
 
-def _zip_member(archive: Path) -> str | None:
-    """The name of the one file the zip archive `archive` holds (macOS's ``__MACOSX/``
-    forks not counted), or None (no zip, damaged, or another number of files)."""
+def _zip_files(archive: Path) -> list[str] | None:
+    """The names of the files the zip archive `archive` holds (folders and macOS's
+    ``__MACOSX/`` forks not counted), or None (no zip, damaged or unreadable)."""
     import zipfile
 
     try:
@@ -246,47 +253,133 @@ def _zip_member(archive: Path) -> str | None:
             if handle.read(4) != b"PK\x03\x04":
                 return None
         with zipfile.ZipFile(archive) as packed:
-            members = [info.filename for info in packed.infolist() if not info.is_dir()
-                       and not info.filename.startswith("__MACOSX/")]
+            return [info.filename for info in packed.infolist() if not info.is_dir()
+                    and not info.filename.startswith("__MACOSX/")]
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
         return None
-    return members[0] if len(members) == 1 else None
+
+
+def _within_budget(archive: Path, members: list[str]) -> list[str]:
+    """The files `members` of the zip `archive` whose sizes, as its directory states them
+    (``zipfile`` reads no byte past a stated size), add up to `MOST_UNPACKED_BYTES` at
+    most, in the archive's order: a zip of many large files is not unpacked whole."""
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(archive) as packed:
+            sizes = {info.filename: info.file_size for info in packed.infolist()}
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError):
+        return []
+    taken, total = [], 0
+    for member in members:
+        total += sizes.get(member, 0)
+        if total > MOST_UNPACKED_BYTES:
+            break
+        taken.append(member)
+    return taken
+
+
+def _zip_candidates(archive: Path, name: str) -> list[str]:
+    """The files of the zip `archive` that may hold the gone input named `name`: its one
+    file (of any name: the SHA-256 decides), else those of that name in any of its
+    folders (a zip of the input with its config, or of the folder holding it: round
+    review96, refused before as holding two files). [] where none or no zip."""
+    members = _zip_files(archive) or []
+    if len(members) == 1:
+        return members
+    return [member for member in members if _member_file_name(member) == name]
 
 
 def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -> Path | None:
     """The recorded input restored from the one file `member` of the zip `archive`: its
-    bytes unpacked a chunk at a time into `scratch` (given up past `MOST_UNPACKED_BYTES`)
-    and taken where they, as they are or re-saved (:func:`_restored_text`), have the
-    recorded SHA-256 `sha`; else None, nothing left."""
+    bytes hashed a chunk at a time (given up past `MOST_UNPACKED_BYTES`) and written to
+    `scratch` where they, as they are or re-saved (:func:`_text_variants`), have the
+    recorded SHA-256 `sha`; else None, nothing written.
+
+    Nothing is written before the bytes are known to be the input's (round review96: a
+    small zip unpacking to gigabytes of zeros was written whole to the scratch folder
+    before its SHA-256 was compared, and a zip holding itself, a zip quine, was opened
+    again and again until Python's recursion limit stopped verify with a traceback)."""
+    name = _member_file_name(member)
+    digest, held, size = hashlib.sha256(), [], 0
+    try:
+        for chunk in _zip_chunks(archive, member):
+            digest.update(chunk)
+            size += len(chunk)
+            if held is not None and size <= MOST_RESAVED_BYTES:
+                held.append(chunk)
+            else:
+                held = None
+    except _ZIP_ERRORS:
+        return None
+    data = b"".join(held) if held is not None else None
+    if digest.hexdigest() == sha:
+        if data is not None:
+            return _restored_copy(data, name, scratch, number)
+        return _zip_copy(archive, member, sha, name, scratch, number)
+    for converted in _text_variants(data) if data is not None else ():
+        if converted != data and hashlib.sha256(converted).hexdigest() == sha:
+            return _restored_copy(converted, name, scratch, number)
+    return None
+
+
+#: What reading a damaged, encrypted or unsupported zip member raises.
+_ZIP_ERRORS = (OSError, ValueError, EOFError, RuntimeError, NotImplementedError, zlib.error)
+
+
+def _zip_chunks(archive: Path, member: str):
+    """Yield the bytes of the file `member` of the zip `archive` a chunk at a time; raise
+    ValueError past `MOST_UNPACKED_BYTES` and for a damaged archive (``zipfile``'s
+    BadZipFile re-raised as one), or another of `_ZIP_ERRORS`."""
     import zipfile
 
-    folder = scratch / f"restored-input-{number}"
-    folder.mkdir(parents=True, exist_ok=True)
-    target, digest, size = folder / Path(member).name, hashlib.sha256(), 0
+    size = 0
     try:
-        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream, \
-                target.open("wb") as out:
+        with zipfile.ZipFile(archive) as packed, packed.open(member) as stream:
             while chunk := stream.read(_CHUNK_BYTES):
                 size += len(chunk)
                 if size > MOST_UNPACKED_BYTES:
                     raise ValueError(f"unpacks to more than {MOST_UNPACKED_BYTES} bytes")
+                yield chunk
+    except zipfile.BadZipFile as error:
+        raise ValueError(str(error)) from None
+
+
+def _zip_copy(archive: Path, member: str, sha, name: str, scratch: Path,
+              number: int) -> Path | None:
+    """The file `member` of the zip `archive` (too large to hold) unpacked as `name` in a
+    folder of its own in `scratch`; None (and nothing left) where the bytes written do not
+    have the SHA-256 `sha` (the archive changed since it was hashed)."""
+    folder = scratch / f"restored-input-{number}"
+    folder.mkdir(parents=True, exist_ok=True)
+    target, digest = folder / name, hashlib.sha256()
+    try:
+        with target.open("wb") as out:
+            for chunk in _zip_chunks(archive, member):
                 digest.update(chunk)
                 out.write(chunk)
-    except (zipfile.BadZipFile, OSError, ValueError, EOFError, RuntimeError,
-            NotImplementedError, zlib.error):
+    except _ZIP_ERRORS:
         target.unlink(missing_ok=True)
         return None
-    if digest.hexdigest() == sha:
-        return target
-    restored = _restored_text(target, sha, scratch, number + 1000)
-    target.unlink(missing_ok=True)
-    return restored
+    if digest.hexdigest() != sha:
+        target.unlink(missing_ok=True)
+        return None
+    return target
+
+
+def _member_file_name(member: str) -> str:
+    """The file name of the zip member `member` without its folders, a Windows tool's
+    backslashes read as separators too; "input" where no name is left ("." or "..", a
+    damaged or crafted archive: round review96, verify stopped with a traceback)."""
+    name = member.replace("\\", "/").rstrip("/").rsplit("/", 1)[-1]
+    return name if name not in ("", ".", "..") else "input"
 
 
 def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     """(the zip archive, the recorded bytes restored from it) where the recorded input
-    `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file of its
-    name whose bytes, as they are or re-saved, have the recorded SHA-256
+    `path` is gone and a zip archive beside it (:func:`_zip_names`) holds one file, of any
+    name, or a file of its name among others (:func:`_zip_candidates`), whose bytes, as
+    they are or re-saved, have the recorded SHA-256
     (:func:`_zip_restored`); else None (round faults49: ``zip -m`` of the input after the
     run had been "does not exist; give --input", though ``run`` reads such a zip).
 
@@ -296,8 +389,10 @@ def _zipped_beside(path: Path, sha, scratch: Path, number: int):
     ``zipfile``.
     """
     for archive in _zip_names(path):
-        member = _zip_member(archive) if archive.is_file() else None
-        if member is not None and Path(member).name == path.name:
+        # the recorded SHA-256 decides, not the member's name (round review96: a zip
+        # holding "tower_2021.csv" or a Windows tool's "data\\tower.csv" for the gone
+        # "tower.csv" was not opened, and then said not to hold its bytes)
+        for member in _zip_candidates(archive, path.name) if archive.is_file() else ():
             restored = _zip_restored(archive, member, sha, scratch, number)
             if restored is not None:
                 return archive, restored
@@ -336,10 +431,16 @@ def _packed_not_taken(path) -> str:
         return ""
     beside = [path.name + suffix for _, suffix in PACKED_FORMS
               if path.with_name(path.name + suffix).is_file()]
-    beside += [archive.name for archive in _zip_names(path) if archive.is_file()]
+    beside += [archive.name for archive in _zip_names(path) if archive.is_file()
+               and (_zip_files(archive) is None or _zip_candidates(archive, path.name))]
+    others = "".join(
+        f"; {archive.name!r} beside it holds {len(files)} files, none named {path.name!r}"
+        for archive in _zip_names(path) if archive.is_file()
+        and (files := _zip_files(archive)) is not None
+        and not _zip_candidates(archive, path.name))
     if not beside:
-        return _packed_unread(path)
-    return _packed_unread(path) + (
+        return _packed_unread(path) + others
+    return _packed_unread(path) + others + (
             f"; {', '.join(map(repr, beside))} beside it does not hold its recorded bytes "
             f"(its unpacked bytes, re-saved or not, do not have the recorded SHA-256, or it "
             f"is damaged or unpacks to more than {MOST_UNPACKED_BYTES >> 30} GiB)")

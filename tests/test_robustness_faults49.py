@@ -104,14 +104,15 @@ def test_an_input_zipped_after_the_run_is_restored(tmp_path, archive_name):
 
 
 def test_a_zip_of_another_file_or_of_two_is_not_taken(tmp_path):
-    """A zip beside the input whose one file has another name, or which holds two files,
-    is no copy of the input."""
+    """A zip beside the input whose one file has other bytes, or which holds two files
+    none of the input's name, is no copy of the input (one of another name with the recorded bytes is: round
+    review96, the SHA-256 decides; tests/test_robustness_review96.py)."""
     sha = hashlib.sha256(TEXT).hexdigest()
     with zipfile.ZipFile(tmp_path / "tower.csv.zip", "w") as packed:
-        packed.writestr("other.csv", TEXT)
+        packed.writestr("other.csv", TEXT + b"202101010130,0.5\n")
     assert _packed_beside(tmp_path / "tower.csv", sha, tmp_path / "s", 0) is None
     with zipfile.ZipFile(tmp_path / "tower.csv.zip", "w") as packed:
-        packed.writestr("tower.csv", TEXT)
+        packed.writestr("tower_a.csv", TEXT)     # none of the input's name (review96)
         packed.writestr("notes.csv", TEXT)
     assert _packed_beside(tmp_path / "tower.csv", sha, tmp_path / "s", 0) is None
 
