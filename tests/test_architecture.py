@@ -79,7 +79,7 @@ def test_the_data_flow_map_names_every_stage_module_the_pipeline_calls():
     source = "\n".join((ROOT / name).read_text(encoding="utf-8") for name in files)
     imported = set().union(*map(_relative_imports, files)) | {
         "daytime", "nighttime", "respiration_form", "temperature_choice"}
-    stages = METHOD_MODULES | {"schema", "timestamps", "daytime", "nighttime",
+    stages = METHOD_MODULES | {"schema", "budget_calendar", "daytime", "nighttime",
                                "respiration_form", "temperature_choice"}
     called = {name for name in imported & stages if re.search(rf"\b{name}\.\w+\(", source)}
     assert {"clock", "preflight", "budget", "gapfill"} <= called
