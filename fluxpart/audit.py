@@ -73,7 +73,7 @@ def audit_trail(timeseries: pd.DataFrame, *, year_keys=None) -> pd.DataFrame:
         ``"A"``, ``"B"``, ``"C"``, ``"unfilled"``) and ``nee_filled`` [µmol m-2 s-1].
     year_keys : array_like of int, optional
         Budget year of each record (``year`` of
-        :func:`fluxpart.timestamps.budget_years`); default the calendar year.
+        :func:`fluxpart.budget_calendar.budget_years`); default the calendar year.
 
     Returns
     -------

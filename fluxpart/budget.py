@@ -18,6 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from .budget_calendar import budget_year_numbers
 from .errors import (
     FluxpartError,
     ImplausibleValueError,
@@ -27,7 +28,6 @@ from .errors import (
 )
 
 # The unit conversions live in fluxpart.units; re-exported here for existing callers.
-from .timestamps import budget_year_numbers
 from .units import GRAMS_CARBON_PER_UMOL, flux_to_carbon
 from .units import interval_seconds as _interval_seconds
 
@@ -137,7 +137,7 @@ def aggregate(timeseries: pd.DataFrame, interval_minutes, *, fluxes=None,
         Name of the NEE fill-quality column; default ``"nee_fill_quality"``.
     year_start : str, optional
         First day of the budget year as ``"MM-DD"``; default ``"01-01"`` (calendar
-        years). See :func:`fluxpart.timestamps.budget_years`.
+        years). See :func:`fluxpart.budget_calendar.budget_years`.
 
     Returns
     -------

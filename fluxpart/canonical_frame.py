@@ -5,7 +5,7 @@ and :func:`~fluxpart.pipeline.screening_summary`) do first: the settings or the 
 defaults, a tz-aware index converted to local standard time, columns that are not canonical
 variables left out, numbers as float64 (infinities missing), the required columns and the
 regular 30- or 60-minute spacing checked, and the record fitted to its budget years
-(:func:`fluxpart.timestamps.budget_year_edges`). Pure functions over DataFrames; each
+(:func:`fluxpart.budget_calendar.budget_year_edges`). Pure functions over DataFrames; each
 refusal names the column, row or setting.
 """
 
@@ -17,7 +17,7 @@ from typing import NamedTuple
 import numpy as np
 import pandas as pd
 
-from . import frame_stamps, gapfill, timestamps
+from . import budget_calendar, frame_stamps, gapfill
 from ._validate import unique_columns
 from .config import Config
 from .errors import ConfigError, FluxpartError, MissingColumnError, SpacingError
@@ -210,7 +210,7 @@ def prepare(frame, site: Site) -> tuple:
 
 
 def budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
-    """The frame on its budget years (:func:`fluxpart.timestamps.budget_year_edges`).
+    """The frame on its budget years (:func:`fluxpart.budget_calendar.budget_year_edges`).
 
     Parameters
     ----------
@@ -230,7 +230,7 @@ def budget_record(frame: pd.DataFrame, config: Config, interval: int) -> tuple:
     notes : list of str
         Warnings saying so.
     """
-    index, notes = timestamps.budget_year_edges(frame.index, interval, config.year_start)
+    index, notes = budget_calendar.budget_year_edges(frame.index, interval, config.year_start)
     return (frame.reindex(index) if notes else frame), notes
 
 

@@ -1040,7 +1040,7 @@ def _zone_fix(hours: float, time_zone: str, utc_offset: float) -> str:
     shift is the zone's error, whatever utc_offset says (it sets the output's clock
     only): the stamps are in the zone's standard offset plus the shift.
     """
-    from .timestamps import zone_standard_hours
+    from .time_zones import zone_standard_hours
 
     zone_hours = zone_standard_hours(time_zone)
     stamps = zone_hours + hours

@@ -1306,7 +1306,7 @@ def _check(config: Config) -> None:
     seed = config.seed
     if not isinstance(seed, int) or isinstance(seed, bool) or seed < 0:
         _refuse("seed", seed, "a whole number >= 0; the seed of every random draw")
-    from .timestamps import _month_day
+    from .budget_calendar import _month_day
     _month_day(config.year_start)  # ConfigError naming [processing] year_start
     object.__setattr__(config, "events", _events(config.events))
     for name, choices in _CHOICES.items():

@@ -290,7 +290,7 @@ def state_change_notes(index, fill, before, after, interval_minutes: int,
         The gap-filling part of each year's NEE uncertainty, 1 sigma [g C m-2], by
         budget year (the annual ``nee_uncertainty_gapfill``).
     year_keys : array_like of int, optional
-        Budget year of each record (:func:`fluxpart.timestamps.budget_year_numbers`,
+        Budget year of each record (:func:`fluxpart.budget_calendar.budget_year_numbers`,
         the labels of `gapfill_sigma`); default the calendar year of `index`.
 
     Returns

@@ -16,7 +16,8 @@ before the header and between header and data (a units line), a decimal comma,
 other delimiters and encodings, stamps carrying a UTC offset, civil time with
 daylight saving, hour ``24:00``, exact duplicate rows, a site flag whose accepted
 values are listed, a CO2 storage term and PPFD instead of global radiation. Stamp
-handling lives in :mod:`fluxpart.timestamps`, unit checks in
+handling lives in :mod:`fluxpart.timestamps` (with :mod:`fluxpart.stamp_hints`,
+:mod:`fluxpart.time_zones` and :mod:`fluxpart.stamp_sequence`), unit checks in
 :mod:`fluxpart.unit_checks`.
 
 Every problem with the config or the files raises a subclass of
@@ -141,20 +142,18 @@ from .stamp_places import (
     text_conflict_message,
     zone_column_message,
 )
-from .timestamps import (
+from .stamp_sequence import (
     INTERVALS_MINUTES,
     check_isolated_stretch,
     check_order,
-    check_time_zone,
     clock_alignment_warning,
     infer_interval,
     inserted_runs,
     interval_change_warning,
-    join_time_columns,
-    offsets_in_stamps,
-    parse_stamps,
     written_newest_first,
 )
+from .time_zones import check_time_zone
+from .timestamps import join_time_columns, offsets_in_stamps, parse_stamps
 from .unit_checks import (
     _FLAG_REFUSE,
     IMPLAUSIBLE_SHARE,
@@ -4598,7 +4597,7 @@ def _refuse_parts_going_back(path: Path, parts: list, headers: list) -> None:
     the parts before it and not one of theirs (a copy of an overlap is left to the
     join's check of overlapping files): one logger appends its parts in the order of its
     clock, as it writes the records of one part, whose stamps going back are refused
-    (:func:`fluxpart.timestamps.check_order`); joined as files are, sorted, a part dated
+    (:func:`fluxpart.stamp_sequence.check_order`); joined as files are, sorted, a part dated
     by a clock reset at the program change would be read at another period."""
     if any(part["newest_first"] for part in parts):
         return

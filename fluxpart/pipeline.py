@@ -3,7 +3,7 @@
 Stages (each a pure function of its own module):
 
 0. the record fitted to its budget years: a fragment of less than a day left out, up to a
-   day absent at a year's edges added as gaps (:func:`fluxpart.timestamps.budget_year_edges`);
+   day absent at a year's edges added as gaps (:func:`fluxpart.budget_calendar.budget_year_edges`);
 1. solar geometry and the night mask (:mod:`fluxpart.solar`);
 2. screening: plausible ranges, the site's flag, despiking (:mod:`fluxpart.screening`);
    then, before any fit, the clock and site-geometry check (:mod:`fluxpart.clock`) and
@@ -37,6 +37,7 @@ import pandas as pd
 
 from . import (
     audit,
+    budget_calendar,
     budget_warnings,
     canonical_frame,
     central_run,
@@ -47,7 +48,6 @@ from . import (
     result_tables,
     saturated_gaps,
     screening_stage,
-    timestamps,
     uncertainty_assembly,
     ustar_runs,
     ustar_stage,
@@ -186,7 +186,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
         as float64, so the tables' column types do not depend on them, and infinite
         values as missing (with a warning). A budget year at either end holding less than a day of records is
         left out, and up to a day absent at a year's edges is added as gaps
-        (:func:`fluxpart.timestamps.budget_year_edges`; each with a warning).
+        (:func:`fluxpart.budget_calendar.budget_year_edges`; each with a warning).
     site : Site
         Location of the tower.
     config : Config, optional
@@ -240,7 +240,7 @@ def process(frame: pd.DataFrame, site: Site, config: Config | None = None, *,
                                         inputs.is_night, thresholds.runs["central"], config,
                                         inputs.sun_up)
     warnings.extend(driver.warnings)
-    year_keys = timestamps.budget_year_numbers(frame.index, config.year_start)
+    year_keys = budget_calendar.budget_year_numbers(frame.index, config.year_start)
     # 4-6. gap filling and both partitionings at each u* run's thresholds (storage checked)
     done = ustar_runs.runs_with_release(inputs, thresholds.runs, driver, config, year_keys,
                                         interval, checked.findings, step)

@@ -149,6 +149,7 @@ import numpy as np
 import pandas as pd
 
 from . import (
+    budget_calendar,
     budget_warnings,
     damped_tair,
     day_sign,
@@ -165,7 +166,6 @@ from . import (
     spliced_records,
     sunlit_uptake,
     tair_days,
-    timestamps,
     ustar_pairing,
     ustar_prefilter,
     vpd_soil,
@@ -1529,7 +1529,7 @@ def _partial_budget_years(index, interval_minutes: float, year_start: str) -> li
     under ``year_start = "07-01"``, is two partial budget years of about six months each
     (an invented southern site-year: 8688 of 17,520 and 8832 of 17,568 records), and
     ``check`` found "none". The count is the run's: records of the record (after
-    :func:`fluxpart.timestamps.budget_year_edges`) against the budget year's length.
+    :func:`fluxpart.budget_calendar.budget_year_edges`) against the budget year's length.
 
     Parameters
     ----------
@@ -1545,7 +1545,7 @@ def _partial_budget_years(index, interval_minutes: float, year_start: str) -> li
     list of str
         The texts, in the order of the years; empty where every budget year is whole.
     """
-    table = timestamps.budget_years(index, year_start)
+    table = budget_calendar.budget_years(index, year_start)
     years = table.groupby("year").agg(records=("year", "size"),
                                       start=("period_start", "first"),
                                       end=("period_end", "first"))

@@ -7,7 +7,7 @@ a file of them. Both are read in time order, with a reader note, only where sort
 cannot misplace a record: every stamp unique and on the records' grid, and the file's
 order explained by one of the two (:func:`time_order`). A clock reset, whose records
 carry a wrong time, fails these tests (its stamps jump into another period or repeat,
-and no column orders the file) and keeps its refusal (``timestamps.check_order``).
+and no column orders the file) and keeps its refusal (``stamp_sequence.check_order``).
 """
 from __future__ import annotations
 

@@ -6,7 +6,7 @@ other files of the year keep the logger's. One ``[input] time_format`` cannot re
 and no setting reads the year. The file's own layout is read where it is provable:
 
 - no stamp of the file reads under `time_format`;
-- exactly one of the common layouts (:func:`fluxpart.timestamps.common_formats`) reads
+- exactly one of the common layouts (:func:`fluxpart.stamp_hints.common_formats`) reads
   every stamp of it: a file whose days are all 12 or less reads day first and month first
   alike and stays refused;
 - that layout and `time_format` both write the year, month, day, hour and minute.
@@ -23,7 +23,7 @@ regional date layout of the computer on saving as CSV.
 
 import pandas as pd
 
-from .timestamps import common_formats
+from .stamp_hints import common_formats
 
 #: The fields both layouts must write.
 _FIELDS = ("%Y", "%m", "%d", "%H", "%M")

@@ -2,7 +2,7 @@
 
 A logger reprogrammed from 30- to 60-minute records, or a file resampled to hours in part,
 writes a stretch of stamps two intervals apart (named by
-``timestamps.interval_change_warning``). NEE is a rate [µmol m-2 s-1]: the hour's value is
+``stamp_sequence.interval_change_warning``). NEE is a rate [µmol m-2 s-1]: the hour's value is
 the mean of its two half-hours. A spreadsheet's or a script's sum adds the rates and doubles
 every value of the stretch, and with it every sum drawn from it (on the invented grassland
 example, NEE summed from July moved GPP by +743 g C m-2, 50 sigma), while the stamps alone
@@ -28,7 +28,7 @@ __all__ = ["SUM_FACTOR", "season_trend", "summed_stretch"]
 #: Factor of a sum of two records' rates against their mean [1]: 2, by definition.
 SUM_FACTOR = 2.0
 #: Fewest steps of twice the interval in a row that make a stretch of longer records [1]
-#: per day: one day of the longer records, as ``timestamps.interval_change_warning``.
+#: per day: one day of the longer records, as ``stamp_sequence.interval_change_warning``.
 _MIN_DAYS = 1
 
 

@@ -713,7 +713,7 @@ def monte_carlo_sums(sigma, index, interval_minutes, *, draws=_DRAWS, seed=0,
     seed : int, optional
         Seed of :func:`numpy.random.default_rng`; default 0.
     year_keys : array_like of int, optional
-        Budget year of each record (:func:`fluxpart.timestamps.budget_years`),
+        Budget year of each record (:func:`fluxpart.budget_calendar.budget_years`),
         non-decreasing in time; default the calendar year of `index`.
 
     Returns

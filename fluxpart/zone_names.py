@@ -11,7 +11,7 @@ that follows daylight saving (or stamps kept in UTC).
 
 :func:`zone_shorthand_hint` says which of the two the name is, what it may stand for
 against ``[site] utc_offset``, and what to write instead; the refusal itself stays that
-of :func:`fluxpart.timestamps.check_time_zone`.
+of :func:`fluxpart.time_zones.check_time_zone`.
 
 References
 ----------

@@ -79,7 +79,7 @@ def test_the_data_flow_map_names_every_stage_module_the_pipeline_calls():
     source = "\n".join((ROOT / name).read_text(encoding="utf-8") for name in files)
     imported = set().union(*map(_relative_imports, files)) | {
         "daytime", "nighttime", "respiration_form", "temperature_choice"}
-    stages = METHOD_MODULES | {"schema", "timestamps", "daytime", "nighttime",
+    stages = METHOD_MODULES | {"schema", "budget_calendar", "daytime", "nighttime",
                                "respiration_form", "temperature_choice"}
     called = {name for name in imported & stages if re.search(rf"\b{name}\.\w+\(", source)}
     assert {"clock", "preflight", "budget", "gapfill"} <= called
@@ -387,3 +387,19 @@ def test_the_public_functions_of_the_parts_of_verify_have_numpy_docstrings():
             if not any(f"{s}\n{'-' * len(s)}" in text for s in ("Returns", "Yields")):
                 lacking.append(f"{name}.{public}: Returns")
     assert not lacking, lacking
+
+
+def test_the_stamp_modules_import_only_the_layers_below_them():
+    """timestamps.py split by concern (round stampsplit): what a time_format lays out
+    (stamp_formats), the hints of a refusal (stamp_hints), time zones (time_zones),
+    parsing (timestamps) and the order and spacing of the stamps read (stamp_sequence)
+    import only modules listed before them (ast, the standard library's parser), so they
+    form no import cycle; budget years (budget_calendar) import none of them, and
+    importing them loads none (budget, canonical_frame, preflight and pipeline use budget
+    years without the reader's modules)."""
+    layers = ["stamp_formats", "stamp_hints", "time_zones", "timestamps", "stamp_sequence"]
+    upward = {name: sorted(_relative_imports(f"{name}.py") & set(layers[index:]))
+              for index, name in enumerate(layers)}
+    assert not any(upward.values()), upward
+    assert not _relative_imports("budget_calendar.py") & set(layers)
+    assert not _loaded_by("import fluxpart.budget_calendar") & set(layers)

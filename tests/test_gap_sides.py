@@ -202,13 +202,13 @@ def test_state_change_notes_name_a_gap_that_dominates_the_gapfill_part():
 
 
 def test_state_change_notes_compare_each_budget_years_part_with_that_year():
-    """With budget years from 1 July (timestamps.budget_year_numbers) a June gap belongs
+    """With budget years from 1 July (budget_calendar.budget_year_numbers) a June gap belongs
     to the budget year that started the July before (DESIGN.md §4.1: an interval
     belongs to the budget year in which it starts): its term is compared with that
     year's gap-filling part, not the calendar year's. A gap across the budget years'
     boundary names the year whose interval its part weighs most in, with the part's
     own 1 sigma as that year counts it (state_change_variance by year)."""
-    from fluxpart.timestamps import budget_year_numbers
+    from fluxpart.budget_calendar import budget_year_numbers
 
     index = pd.date_range("2022-05-01", periods=90 * 48, freq="30min")
     n = len(index)
@@ -295,11 +295,11 @@ def test_period_uncertainty_adds_the_light_response_change_to_daytime_gpp():
 
 def test_the_run_compares_gaps_with_the_budget_years_of_year_start(monkeypatch):
     """The run hands the notes each record's budget year of `year_start` (DESIGN.md §4.1,
-    timestamps.budget_year_numbers), the labels of the annual table it compares with;
+    budget_calendar.budget_year_numbers), the labels of the annual table it compares with;
     before review29 the notes took the calendar year, so a June gap of a July-to-June
     budget was compared with the next budget year's gap-filling part."""
     from fluxpart import Config, demo, gap_sides, pipeline
-    from fluxpart.timestamps import budget_year_numbers
+    from fluxpart.budget_calendar import budget_year_numbers
 
     seen = {}
 

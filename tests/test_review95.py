@@ -173,7 +173,7 @@ def test_a_layout_that_fits_the_first_stamps_only_is_not_named():
     """The common layouts are tried on the first stamps before the whole column (a
     ten-year file's error took 13 s): one that fits only them is still left out. Stamps
     of 1-12 June read day-first and month-first; the later days only day-first."""
-    from fluxpart.timestamps import common_formats
+    from fluxpart.stamp_hints import common_formats
 
     stamps = pd.Series(pd.date_range("2021-06-01", periods=48 * 30, freq="30min")
                        .strftime("%d/%m/%Y %H:%M"))

@@ -24,7 +24,8 @@ from fluxpart.errors import (
     TimestampError,
 )
 from fluxpart.io import read_table
-from fluxpart.timestamps import check_isolated_stretch, infer_interval, parse_stamps
+from fluxpart.stamp_sequence import check_isolated_stretch, infer_interval
+from fluxpart.timestamps import parse_stamps
 
 MAPPING = {"nee": "co2_flux", "rg": "sw_down", "tair": "t_air", "vpd": "vpd_air",
            "ustar": "u_fric"}

@@ -22,6 +22,7 @@ import pandas as pd
 import pytest
 from test_robustness_layouts18 import _tower
 
+from fluxpart.budget_calendar import budget_year_edges
 from fluxpart.errors import ConfigError, DuplicateTimestampError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
@@ -32,7 +33,6 @@ from fluxpart.stamp_places import (
     stated_offset,
     stated_place,
 )
-from fluxpart.timestamps import budget_year_edges
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}

@@ -23,7 +23,7 @@ from test_robustness_layouts18 import _tower
 from fluxpart.errors import DuplicateTimestampError, ImplausibleValueError, TimestampError
 from fluxpart.io import read_table
 from fluxpart.site import Site
-from fluxpart.timestamps import _other_separators, _seconds_of_day
+from fluxpart.stamp_hints import _other_separators, _seconds_of_day
 
 SITE = Site(name="invented", latitude=49.3, longitude=10.2, utc_offset=1.0)
 MAPPING = {"nee": "co2_flux", "ustar": "us", "rg": "sw", "tair": "t_air", "vpd": "vpd"}

@@ -24,7 +24,7 @@ from test_robustness_layouts36 import MAPPING, SITE
 from fluxpart.counted_time import rounded_counts
 from fluxpart.errors import InputFileError, TimestampError
 from fluxpart.io import read_table
-from fluxpart.timestamps import _period_stamps
+from fluxpart.stamp_hints import _period_stamps
 
 
 def _read(path, time_format="%Y%m%d%H%M"):

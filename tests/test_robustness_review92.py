@@ -3,7 +3,7 @@
 Outside fact, named beside its checks: a logger writes its records in the order of its
 clock, appending to its file (common practice of logger data systems), so a later part of
 one file holds later records than the parts above it, as the records of one file do
-(:func:`fluxpart.timestamps.check_order` refuses stamps going back within a file).
+(:func:`fluxpart.stamp_sequence.check_order` refuses stamps going back within a file).
 Everything else is invented known truth: the records of ``test_robustness_layouts26``
 written as a logger's table blocks (``test_robustness_layouts54``).
 """

@@ -72,7 +72,7 @@ def test_clock_reset_not_blamed_on_sorting():
     import pytest
 
     from fluxpart.errors import NonMonotonicTimestampError
-    from fluxpart.timestamps import check_order
+    from fluxpart.stamp_sequence import check_order
 
     stamps = pd.DatetimeIndex(["2021-04-15 03:30", "2021-04-15 04:00", "2000-01-01 00:30",
                                "2000-01-01 01:00", "2021-04-15 05:30"])
@@ -338,7 +338,7 @@ def test_off_grid_warning_names_time_marks_only_where_they_explain_the_offset():
     interval (time_marks); starts one minute off (end stamps written at 00:29, 00:59) are
     not, and the warning says so instead of sending the user to time_marks. Outside fact:
     the clock arithmetic of Python's ``datetime``."""
-    from fluxpart.timestamps import clock_alignment_warning
+    from fluxpart.stamp_sequence import clock_alignment_warning
 
     on_grid = [datetime(2021, 6, 1) + timedelta(minutes=30 * k) for k in range(96)]
     half = pd.DatetimeIndex([t + timedelta(minutes=15) for t in on_grid])

@@ -1,4 +1,6 @@
-"""Tests of fluxpart.timestamps (stamp parsing helpers and budget years).
+"""Tests of the stamp modules: parsing (fluxpart.timestamps), time zones
+(fluxpart.time_zones), intervals
+(fluxpart.stamp_sequence) and budget years (fluxpart.budget_calendar).
 
 The reader's layouts are tested end to end in tests/test_io.py; these pin the pure
 helpers against outside facts: the calendar (Python's datetime) and the IANA zone
@@ -12,16 +14,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from fluxpart.budget_calendar import budget_year_edges, budget_year_numbers, budget_years
 from fluxpart.errors import ConfigError, SpacingError, TimestampError
-from fluxpart.timestamps import (
-    budget_year_edges,
-    budget_year_numbers,
-    budget_years,
-    check_time_zone,
-    infer_interval,
-    interval_change_warning,
-    parse_stamps,
-)
+from fluxpart.stamp_sequence import infer_interval, interval_change_warning
+from fluxpart.time_zones import check_time_zone
+from fluxpart.timestamps import parse_stamps
 
 
 def test_budget_year_edges_of_a_file_cut_by_end_stamp_dates():

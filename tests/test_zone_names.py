@@ -7,7 +7,7 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import pytest
 
 from fluxpart.errors import ConfigError
-from fluxpart.timestamps import check_time_zone
+from fluxpart.time_zones import check_time_zone
 from fluxpart.zone_names import ABBREVIATIONS, zone_shorthand_hint
 
 
