@@ -136,6 +136,8 @@ Warnings (the run goes on):
   imply (a sonic's temperature, a sensor in shade, hourly means; round mistakes50).
 - ``input (vpd zeros)``: VPD 0 in most sunlit, warm records of a month (a rain gauge, a lost
   sensor).
+- ``input (tsoil depth)``: a soil temperature without a daily cycle on warm days whose air
+  swings (a deep probe, or daily means, mapped as the topsoil's; round mistakes60).
 
 (1) Where it is the only fatal finding, the run goes on with the other partitioning
 method alone (:mod:`fluxpart.method_failure`), and the finding is not fatal.
