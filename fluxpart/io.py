@@ -1139,11 +1139,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         message = _unit_changed_within(name, message, values[name], converted, units,
                                        mapping, interval_minutes, potential, missing, starts,
                                        combined["sources"]) or message
+        message += row_units.read_clause(name, stated)
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
                                       mapping[name], missing, interval_minutes)
         if message and name not in refusals:
+            message += row_units.read_clause(name, stated)
             if len(parts) > 1:
                 message += relabelled_range_clause(_relabelled(name, parts, units),
                                                    units.get(name) or units_for(name)[0])

@@ -190,8 +190,10 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
         unit.
     refusals : dict
         Variable -> message, where a units row writes a unit the reader does not know for
-        it, one of another quantity, or units that differ between files; the message
-        names the cell, the file and the ``[input.units]`` key to set.
+        it or one of another quantity; the message names the cell, the file and the
+        ``[input.units]`` key to set. Where files' rows write two known units, neither is
+        read (:func:`fluxpart.io._header_rows_warning` and the relabelled-file rules
+        judge them, as before).
 
     References
     ----------
@@ -233,12 +235,8 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
         if name in refusals:
             continue
         if len(read) > 1:
-            (unit, cell, source), (_, other_cell, other_source) = list(read.values())[:2]
-            refusals[name] = (
-                f"column {str(column)!r} ({name}): the units row of {source!r} writes "
-                f"{cell!r} but that of {other_source!r} writes {other_cell!r}, and no "
-                f"{key_text} is given: one unit reads every file, so convert the column "
-                f"of one unit in a copy of those files, then set {key_text}")
+            # files (or parts) whose rows write two units: none is read for every file;
+            # the reader's rules for a unit changed between files judge them, as before
             continue
         unit, cell, source = next(iter(read.values()))
         if same_unit_key(name, unit) == same_unit_key(name, VARIABLES[name].unit
@@ -253,3 +251,13 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
             f"(no {key_text} given): converted to {canonical} ({_factor_text(name, unit)}); "
             f"the plausibility checks judge the converted values")
     return adopted, notes, refusals
+
+
+def read_clause(name: str, adopted: dict) -> str:
+    """" (read in 'kPa' as the file's units row writes; no [input.units] vpd given)" for
+    a refusal of a variable read in a unit its units row stated, else "": the reader's
+    message says "read as 'kPa'" of a unit the user never set."""
+    if name not in adopted:
+        return ""
+    return (f" (read in {adopted[name]!r} as the file's units row writes; no [input.units] "
+            f"{name} given)")
