@@ -1,7 +1,7 @@
 """Units a logger file's own units row states, read where ``[input.units]`` says nothing.
 
 Loggers, tower programs and data portals write a line under the column names giving each
-column's unit ("W/m2", "µmol m⁻² s⁻¹", "deg C", "kPa"). Before release 0.40.0 the reader
+column's unit ("W/m2", "µmol m⁻² s⁻¹", "deg C", "kPa"). Until round unitsrow the reader
 took units from ``[input.units]`` alone and only compared that row with them, so a file
 whose row says "kW m-2" over Rg in kW m-2 was refused by the value checks although the
 file states its unit. Now, for a mapped column the config gives no unit, a unit the row
