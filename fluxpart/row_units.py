@@ -100,8 +100,30 @@ def row_unit(name: str, cell: str) -> str | None:
     squeezed = _squeezed(_cleaned(cell))
     same = [unit for unit in accepted if _squeezed(unit) == squeezed]
     if not same:
+        factors = _factors(_cleaned(cell))
+        same = [unit for unit in accepted if factors and _factors(unit) == factors]
+    if not same:
         same = [unit for unit in accepted if _squeezed(unit).casefold() == squeezed.casefold()]
     return same[0] if len({same_unit_key(name, unit) for unit in same}) == 1 else None
+
+
+#: One symbol and its exponent in a product written without blanks, the exponent also
+#: written "+1" ("µmol+1s-1m-2", "m+1s-1": a processing program's units row).
+_FACTOR = re.compile(r"([^\d+\-\s]+)([+-]?\d+)?")
+
+
+def _factors(unit: str) -> tuple:
+    """The unit's symbols and exponents in a fixed order, "+1" and no exponent alike:
+    "µmol+1s-1m-2" and "µmol m-2 s-1" give one key (a product's factors in any order,
+    BIPM 2019, 5.4.6 (m)); () where a symbol holds no letter."""
+    from .variables import _folded, _notation
+
+    text = _notation(_folded(unit))
+    found = [(symbol, int(power) if power else 1) for chunk in text.split()
+             for symbol, power in _FACTOR.findall(chunk)]
+    if not found or not all(any(c.isalpha() for c in symbol) for symbol, _ in found):
+        return ()
+    return tuple(sorted(found))
 
 
 def _is_number(cell: str) -> bool:

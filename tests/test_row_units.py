@@ -101,7 +101,9 @@ def test_a_row_of_the_canonical_units_changes_nothing(tmp_path):
     ("tair", "°C", "°C"), ("tair", "C", "C"), ("tair", "ºF", "°F"), ("tsoil", "Deg C", "°C"),
     ("vpd", "KPA", "kPa"), ("vpd", "hPa", "hPa"), ("ustar", "m·s⁻¹", "m s-1"),
     ("rh", "%", "%"), ("rh", "1", "1"), ("rh", "fraction", "fraction"),
-    ("nee", "C", None), ("vpd", "%", None), ("rg", "mV", None), ("nee", "mg/m2/s", None),
+    ("nee", "µmol+1s-1m-2", "µmol m-2 s-1"), ("ustar", "m+1s-1", "m s-1"),
+    ("ustar", "km/h", "km h-1"), ("vpd", "mbar", "mbar"),
+    ("nee", "C", None), ("vpd", "%", None), ("tair", "deg", None), ("rg", "mV", None), ("nee", "mg/m2/s", None),
 ])
 def test_notations_of_one_unit_are_read(name, cell, spelling):
     """Notations of logger units rows (BIPM 2019, 5.4.6 (m); common practice) read as the
@@ -187,3 +189,16 @@ def test_files_whose_rows_write_two_units_are_judged_as_before(tmp_path):
     assert not [n for n in report.notes if "units row" in n]
     assert any("differ between input files" in w and "'kPa'" in w for w in report.warnings)
     np.testing.assert_allclose(frame["vpd"].iloc[:half], first[:, 4], rtol=1e-11)  # as written
+
+
+def test_a_units_row_above_a_statistics_row_is_read(tmp_path):
+    """A logger's two lines under the names, units then statistics ("Avg"): the units
+    line is read (kW m-2 for Rg, 1 kW = 1000 W, SI prefix), the statistics line is not."""
+    _, values = _records()
+    values = values.copy()
+    values[:, 2] = values[:, 2] / 1000
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"sw": "kW/m^2"},
+          extra_rows=[["", *["Avg"] * len(NAMES)]])
+    frame, report = _read(tmp_path / "t.csv", units={}, rows_after_header=2)
+    np.testing.assert_allclose(frame["rg"], _clean(tmp_path)["rg"], rtol=1e-9, atol=1e-9)
+    assert sum("read in 'kW/m^2'" in n for n in report.notes) == 1
