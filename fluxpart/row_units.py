@@ -64,6 +64,18 @@ def _cleaned(cell: str) -> str:
     return " ".join(text.split())
 
 
+def _undecoded(cell: str) -> str:
+    """`cell` with UTF-8 text decoded as a single-byte encoding undone ("Âµmol" for
+    "µmol", "Â°C" for "°C": each non-ASCII character read as two bytes), as
+    :func:`fluxpart.variables.same_unit_key` does; else as written."""
+    for single_byte in ("cp1252", "latin-1"):
+        try:
+            return cell.encode(single_byte).decode("utf-8")
+        except (UnicodeEncodeError, UnicodeDecodeError):
+            continue
+    return cell
+
+
 def _squeezed(unit: str) -> str:
     """`unit` as :func:`fluxpart.variables.unit_spelling` would compare it, without
     blanks: "Wm-2" and "W m-2" write one unit (a logger's narrow cell)."""
@@ -92,6 +104,7 @@ def row_unit(name: str, cell: str) -> str | None:
     """
     if not isinstance(cell, str):
         return None
+    cell = _undecoded(cell)
     accepted = units_for(name)
     for text in (cell.strip(), _cleaned(cell)):
         spelled = unit_spelling(name, text)
