@@ -39,6 +39,12 @@ _NOT_READ = frozenset({"nee_flag"})
 #: A chemical species glued to its amount ("umolCO2", "gC", "mgCO2"): SI brochure
 #: section 5.4.7 asks for the species apart from the unit symbol (BIPM 2019 (m)).
 _GLUED_SPECIES = re.compile(r"([mµμun]?mol|\b[mµμuk]?g)(CO2|C)\b")
+#: A statistic written after the unit in the same cell ("W/m^2 (Avg)", "degC [mean]"): a
+#: logger program's label of the value, no part of the unit (common practice).
+_TRAILING_STATISTIC = re.compile(r"\s*[(\[]\s*(?:avg|average|mean|smp|sample|tot|total|max|"
+                                 r"min|std|median)\s*[)\]]$", re.IGNORECASE)
+#: A percent sign with the quantity's name beside it ("%RH", "% RH", "RH %"): percent.
+_PERCENT_OF_RH = re.compile(r"^(?:%\s*RH|RH\s*%)$", re.IGNORECASE)
 #: A divisor of several symbols in parentheses ("umol/(m2 s)", "W/(m^2)").
 _PARENTHESISED_DIVISOR = re.compile(r"/\s*\(([^()]*)\)")
 #: One symbol with an optional exponent inside such a divisor ("m2", "m^2", "s").
@@ -53,6 +59,8 @@ def _cleaned(cell: str) -> str:
     asterisk as the caret ("m**-2"). Notations of the SI brochure (BIPM 2019, section
     5.4.6 (m)) and of logger units lines (common practice)."""
     text = unicodedata.normalize("NFKC", cell).replace("\u2212", "-").replace("_", " ")
+    text = _TRAILING_STATISTIC.sub("", text.strip())
+    text = "%" if _PERCENT_OF_RH.match(text) else text
     text = text.replace("**", "^")
     text = _GLUED_SPECIES.sub(lambda match: f"{match.group(1)} {match.group(2)}", text)
 

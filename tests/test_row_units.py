@@ -103,6 +103,7 @@ def test_a_row_of_the_canonical_units_changes_nothing(tmp_path):
     ("rh", "%", "%"), ("rh", "1", "1"), ("rh", "fraction", "fraction"),
     ("nee", "µmol+1s-1m-2", "µmol m-2 s-1"), ("ustar", "m+1s-1", "m s-1"),
     ("ustar", "km/h", "km h-1"), ("vpd", "mbar", "mbar"), ("nee", "Âµmol m-2 s-1", "µmol m-2 s-1"),
+    ("rh", "%RH", "%"), ("rg", "W/m^2 (Avg)", "W m-2"),
     ("nee", "C", None), ("vpd", "%", None), ("tair", "deg", None), ("rg", "mV", None), ("nee", "mg/m2/s", None),
 ])
 def test_notations_of_one_unit_are_read(name, cell, spelling):
