@@ -108,7 +108,7 @@ def row_unit(name: str, cell: str) -> str | None:
     >>> row_unit("nee", "µmol m⁻² s⁻¹"), row_unit("ustar", "km/h"), row_unit("nee", "C")
     ('µmol m-2 s-1', 'km h-1', None)
     >>> row_unit("tair", "deg F"), row_unit("vpd", "KPA"), row_unit("rg", "W/m²")
-    ('°F', 'kPa', 'W m-2')
+    ('°F', 'kPa', 'W/m2')
     """
     if not isinstance(cell, str):
         return None
