@@ -147,6 +147,21 @@ def _factors(unit: str) -> tuple:
     return tuple(sorted(found))
 
 
+def _unread_flux(name: str, cell: str) -> str:
+    """For a CO2 flux, the words naming a rate the reader does not convert with the factor
+    to µmol m-2 s-1 (:func:`fluxpart.flux_rate_labels.rate_factor`: molar mass and
+    seconds), else ""."""
+    if name not in ("nee", "storage"):
+        return ""
+    from .flux_rate_labels import rate_factor
+
+    factor = rate_factor(cell)
+    if factor is None:
+        return ""
+    return (f"a CO2 flux unit fluxpart does not convert (multiply the values by "
+            f"{factor:.6g} in a copy of the file to write them in µmol m-2 s-1)")
+
+
 def _is_number(cell: str) -> bool:
     try:
         float(cell)
@@ -267,7 +282,7 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
             if unit is None:
                 others = _other_quantities(name, cell)
                 what = (f"a unit of {' or '.join(others)}, not of {name}" if others
-                        else f"no unit fluxpart reads for {name}")
+                        else _unread_flux(name, cell) or f"no unit fluxpart reads for {name}")
                 refusals[name] = (
                     f"column {str(column)!r} ({name}): the units row of {source!r} writes "
                     f"{cell!r}, {what}, and no {key_text} is given: set {key_text} to "

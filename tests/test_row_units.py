@@ -203,3 +203,16 @@ def test_a_units_row_above_a_statistics_row_is_read(tmp_path):
     frame, report = _read(tmp_path / "t.csv", units={}, rows_after_header=2)
     np.testing.assert_allclose(frame["rg"], _clean(tmp_path)["rg"], rtol=1e-9, atol=1e-9)
     assert sum("read in 'kW/m^2'" in n for n in report.notes) == 1
+
+
+def test_a_co2_rate_the_reader_does_not_convert_is_refused_with_its_factor(tmp_path):
+    """A flux row in g CO2 m-2 d-1, the config silent: refused naming the factor to
+    µmol m-2 s-1, 1e6 / 44.0095 µmol g-1 / 86400 s d-1 = 0.26299 (IUPAC molar mass (m);
+    1 d = 86400 s, SI); before, read as µmol m-2 s-1 with a warning."""
+    _, values = _records()
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"co2_flux": "g CO2 m-2 d-1"})
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(tmp_path / "t.csv", units={}, rows_after_header=1)
+    factor = float(str(caught.value).split("multiply the values by ")[1].split()[0])
+    assert factor == pytest.approx(1e6 / CO2_GRAMS_PER_MOLE / 86400, rel=1e-4)
+    assert "set [input.units] nee" in str(caught.value)
