@@ -99,8 +99,9 @@ def row_unit(name: str, cell: str) -> str | None:
 
     Tried in turn: the cell as :func:`fluxpart.variables.unit_spelling` reads it (look-alike
     characters, "m^-2", "/m2", "deg C"), the cell cleaned by :func:`_cleaned`, then the
-    cleaned cell without blanks ("Wm-2"), and last the same ignoring letter case where one
-    accepted unit alone matches ("kpa", "KPA"; "mW" and "MW" are no units of any variable
+    cleaned cell without blanks ("Wm-2"), then its factors in any order with "+1"
+    exponents ("µmol+1s-1m-2", :func:`_factors`), and last the cell without blanks
+    ignoring letter case where one accepted unit alone matches ("kpa", "KPA"; "mW" and "MW" are no units of any variable
     here, so no prefix is misread).
 
     Examples
