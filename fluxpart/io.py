@@ -66,6 +66,7 @@ from . import (
     program_parts,
     record_order,
     resaved_dates,
+    row_units,
     table_formats,
     unicode_names,
     zero_runs,
@@ -1061,6 +1062,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
              f"{len(newest)} of {len(parts)} input files ({_file_list(newest)}) are")
             + " written newest first (the stamps go back in time from line to line): read "
             "oldest first"))
+    # a unit the file's units row states where [input.units] says none (unitsrow)
+    stated, stated_notes, stated_refusals = row_units.stated_units(parts, mapping, units)
+    for name, message in stated_refusals.items():
+        _refuse_or_warn(name, message, accept_units, warnings, preflight)
+    units = {**units, **stated}
+    warnings.extend(ReaderNote(note) for note in stated_notes)
     warnings.extend(_labelled_unit_warnings(parts, mapping, units))
     parts, absent, joined = _fill_lacking(parts, mapping, time_columns, warnings)
     if time_zone is not None:
@@ -1139,11 +1146,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         message = _unit_changed_within(name, message, values[name], converted, units,
                                        mapping, interval_minutes, potential, missing, starts,
                                        combined["sources"]) or message
+        message += row_units.read_clause(name, stated)
         accepted.append(_refuse_or_warn(name, message, accept_units, warnings, preflight))
     for name in converted:
         message = implausible_message(name, converted[name], values[name], units.get(name),
                                       mapping[name], missing, interval_minutes)
         if message and name not in refusals:
+            message += row_units.read_clause(name, stated)
             if len(parts) > 1:
                 message += relabelled_range_clause(_relabelled(name, parts, units),
                                                    units.get(name) or units_for(name)[0])

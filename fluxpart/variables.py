@@ -159,7 +159,10 @@ _CONVERSIONS: dict[str, dict[str, tuple[float, float]]] = {
             "psi": (HPA_PER_PSI, 0.0), "inHg": (HPA_PER_INHG, 0.0)},
     # centimetres per second: some sonic programs and older records write u* so
     # (1 cm s-1 = 0.01 m s-1, SI; layouts34: refused with no unit to declare)
-    "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0), "cm s-1": (0.01, 0.0)},
+    # kilometres per hour, the wind unit of some weather-station loggers' units rows:
+    # 1 km h-1 = 1000 m / 3600 s = 1/3.6 m s-1 (SI brochure, BIPM 2019, table 8 (m))
+    "ustar": {"m s-1": (1.0, 0.0), "m/s": (1.0, 0.0), "cm s-1": (0.01, 0.0),
+              "km h-1": (1.0 / 3.6, 0.0)},
     # "percent": the UDUNITS-2 and CF name of %, which fluxpart's own NetCDF and CSVW
     # metadata write (review63: refused as "not a known unit for rh")
     "rh": {"%": (1.0, 0.0), "percent": (1.0, 0.0), "fraction": (100.0, 0.0),
@@ -177,7 +180,7 @@ _CONVERSIONS["storage"] = dict(_CONVERSIONS["nee"])
 #: Units of whole numbers counting a tenth or hundredth of the canonical unit (a logger's
 #: integer storage; round layouts32) -> the divisor applied
 DIVIDED_UNITS = {"0.1 °C": 10.0, "0.1 degC": 10.0, "0.01 °C": 100.0, "0.01 degC": 100.0,
-                 "0.1 %": 10.0, "cm s-1": 100.0}
+                 "0.1 %": 10.0, "cm s-1": 100.0, "km h-1": 3.6}
 
 #: Units of an amount per record interval rather than a rate: (variable, unit) whose
 #: scale is divided by the interval in seconds (``"MJ m-2"`` of Rg = energy received

@@ -282,13 +282,19 @@ def test_a_unit_the_file_writes_against_the_unit_read_is_warned(tmp_path):
     frame, report = _example(tmp_path, units_line=UNITS, toml_edit=agreeing)
     pd.testing.assert_frame_equal(frame, plain)
     assert report.warnings == ()
+    # since round unitsrow a unit the units line writes is read where [input.units] names
+    # none: °C values under "degF" then give away the wrong label (the soil check)
+    with pytest.raises(ImplausibleValueError, match=r"the values look like °C: set \[input"
+                       r"\.units\] tair = \"°C\".*read in 'degF' as the file's units row"):
+        _example(tmp_path, units_line={**UNITS, "air_temp_c": "degF"}, toml_edit=agreeing)
+    # declared, the label against it is warned as before
     frame, report = _example(tmp_path, units_line={**UNITS, "air_temp_c": "degF"},
-                             toml_edit=agreeing)
+                             toml_edit=lambda text: agreeing(text).replace(
+                                 "[input.units]\n", '[input.units]\ntair = "degC"\n'))
     pd.testing.assert_frame_equal(frame, plain)
     assert len(report.warnings) == 1
     assert ("column 'air_temp_c' (tair) is labelled 'degF' by the units line of"
             in report.warnings[0])
-    assert "(no [input.units] tair: its default)" in report.warnings[0]
     assert 'set [input.units] tair = "degF"' in report.warnings[0]
     named = lambda text: text.replace('vpd = "vpd_kpa"', 'vpd = "VPD [hPa]"')  # noqa: E731
     frame, report = _example(

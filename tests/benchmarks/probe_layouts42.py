@@ -37,6 +37,8 @@ import probe_layouts40 as p40  # noqa: E402
 import probe_layouts41 as p41  # noqa: E402
 from probe_layouts38 import MAP, UNITS, lines, stamps, table, toml, write  # noqa: E402
 
+from fluxpart.io import read_site_config  # noqa: E402
+
 CASES = {}
 
 
@@ -83,8 +85,11 @@ def converted(cells, form):
     return [c if c == "-9999" else form(float(c)) for c in cells]
 
 
-def in_other_unit(folder, column, form, unit):
-    """The example with `column` written `form(value)` and `unit` on a units line."""
+def in_other_unit(folder, column, form, unit, declared=None):
+    """The example with `column` written `form(value)` and `unit` on a units line; with
+    `declared` (variable -> unit), the truth: a folder beside `folder` holding the same
+    file read with that unit declared (round unitsrow: a units line's unit is read where
+    the config names none)."""
     def edit(text, raw):
         raw[column] = converted(raw[column], form)
         out = lines(raw)
@@ -93,6 +98,12 @@ def in_other_unit(folder, column, form, unit):
         return out
 
     p40.edited(folder, edit, rows_after_header=1)
+    if declared is None:
+        return None
+    clean = folder.parent / (folder.name + "_truth")
+    clean.mkdir(exist_ok=True)
+    p40.edited(clean, edit, rows_after_header=1, units={"vpd": "kPa"} | declared)
+    return clean
 
 
 def split_by_variable(folder, groups, pattern="{}.csv"):
@@ -306,8 +317,8 @@ def units_line_says_hpa_config_kpa_values_hpa(folder):
 
 @case
 def units_line_says_kelvin_config_silent_values_kelvin(folder):
-    in_other_unit(folder, "air_c", lambda v: f"{v + 273.15:.2f}", "K")
-    return "refused"
+    # refused before round unitsrow; now read in the unit the units line writes
+    return in_other_unit(folder, "air_c", lambda v: f"{v + 273.15:.2f}", "K", {"tair": "K"})
 
 
 def two_heights(folder, **inputs):
@@ -549,8 +560,9 @@ def units_line_with_carets_and_slashes(folder):
 
 @case
 def units_line_says_fahrenheit_config_silent_values_fahrenheit(folder):
-    in_other_unit(folder, "air_c", lambda v: f"{v * 1.8 + 32:.2f}", "degF")
-    return "refused"
+    # refused before round unitsrow; now read in the unit the units line writes
+    return in_other_unit(folder, "air_c", lambda v: f"{v * 1.8 + 32:.2f}", "degF",
+                         {"tair": "degF"})
 
 
 @case
@@ -585,7 +597,15 @@ def spreadsheet_day_numbers_with_three_decimals(folder):
 def judge(name, folder, base_tables, cli):
     """The case's state as ``probe_layouts41.judge`` finds it (``probe_layouts40``'s
     where the case returns the records it leaves out)."""
-    if isinstance(CASES[name](folder), np.ndarray):
+    expected = CASES[name](folder)
+    if isinstance(expected, Path):        # the same file read with its unit declared
+        state = p38.reading_state(
+            folder, lambda: read_site_config(expected / "site.toml").read()[0],
+            lambda report: f"{len(report.notes)} note(s): "
+            + "; ".join(n[-90:] for n in report.notes))
+        return state if not cli or state[0] == "CRASH" else p38.commands_agree(state, folder,
+                                                                               {})
+    if isinstance(expected, np.ndarray):
         p40.CASES[name] = CASES[name]
         return p40.judge(name, folder, base_tables, cli)
     p41.CASES[name] = CASES[name]

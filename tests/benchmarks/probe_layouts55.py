@@ -64,6 +64,15 @@ def with_units_row(folder, row, raw=None, sep=",", name="t.csv", ending="\n",
     toml(folder, name, rows_after_header=1, **inputs)
 
 
+def declared_truth(folder, row, raw, units):
+    """A folder beside `folder` holding the same file read with `units` declared: the
+    truth of a file whose units row states its units (round unitsrow)."""
+    clean = folder.parent / (folder.name + "_truth")
+    clean.mkdir(exist_ok=True)
+    with_units_row(clean, row, raw, units=units)
+    return clean
+
+
 def scaled(column, factor, digits):
     """`column`'s values times `factor` written with `digits` decimals (-9999 kept)."""
     return [v if v == "-9999" else f"{float(v) * factor:.{digits}f}" for v in column]
@@ -118,13 +127,15 @@ def units_row_kelvin_config_says_degc_values_kelvin(folder):
 @case
 def units_row_says_energy_per_half_hour_for_rg(folder):
     """Rg written as MJ m-2 per half hour (a weather station's sum), units row "MJ m-2":
-    read as W m-2 it is 1800/1e6 of the truth: refused (or converted)."""
+    read as W m-2 it is 1800/1e6 of the truth: converted (refused before round unitsrow)."""
     raw, _ = table()
     raw["sun_in"] = scaled(raw["sun_in"], 1800 / 1e6, 6)
     units = list(UNITS)
     units[2] = "MJ m-2"
     with_units_row(folder, units, raw)
-    return "refused"
+    # read as the units row writes since round unitsrow: the truth is the file read with
+    # the unit declared (the values carry the 6 decimals written, not the example's)
+    return declared_truth(folder, units, raw, {"vpd": "kPa", "rg": "MJ m-2"})
 
 
 @case
@@ -141,13 +152,14 @@ def units_row_of_unmapped_columns_in_hpa_and_kelvin(folder):
 
 @case
 def humidity_as_a_fraction_units_row_says_1(folder):
-    """RH written 0-1 under a units row "1": refused, or read converted to percent."""
+    """RH written 0-1 under a units row "1": read converted to percent (refused before
+    round unitsrow)."""
     raw, _ = table()
     raw["humid"] = scaled(raw["humid"], 0.01, 4)
     units = list(UNITS)
     units[7] = "1"
     with_units_row(folder, units, raw)
-    return "refused"
+    return declared_truth(folder, units, raw, {"vpd": "kPa", "rh": "fraction"})
 
 
 @case
