@@ -186,8 +186,19 @@ def event_cut(index, config) -> dict:
 
 
 def damped_delay(config) -> bool:
-    """Whether a delayed respiration temperature is damped as conduction damps it
-    (``config.air_delay_damping == "conduction"``; :func:`respiration_temperature`)."""
+    """Whether a delayed respiration temperature is damped as conduction damps it.
+
+    Parameters
+    ----------
+    config : Config
+        Settings; ``air_delay_damping``.
+
+    Returns
+    -------
+    bool
+        ``config.air_delay_damping == "conduction"`` (:func:`respiration_temperature`,
+        :func:`fluxpart.partition.temperature_choice.damped_delayed`).
+    """
     return config.air_delay_damping == "conduction"
 
 
