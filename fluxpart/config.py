@@ -338,7 +338,15 @@ class Config:
         same BIC on the damped series, which every run, the u* scenarios and the
         uncertainty then use; ``provenance["respiration_driver"]`` records
         ``delay_damping`` and ``delay_daily_amplitude``. Inputs with soil temperature
-        are unaffected. DAMPING_FIGURES
+        are unaffected. Off by default, measured (round dampdelay) on the 28 budget years
+        without a soil column of ``tests/benchmarks/trial_thirtythird.py`` (its fen) and
+        ``trial_thirtythird_no_probe.py`` (six sites, each probe removed), draws 0 and 1:
+        the errors fall (median |error| of daytime Reco 7.8 → 5.4 %, of nighttime Reco
+        3.2 → 2.7 %; worst daytime GPP 9.8 → 5.8 %), but the 95 % intervals of the four
+        partitioned sums cover the truth in 72 of 112 against 92: with the delayed series
+        damped the daytime records stop contradicting it, the temperature-driver part of
+        the interval falls to 0, and the remaining error of a stand-in for the soil is in
+        no part of the interval.
     respiration_form : str
         Form of the nighttime method's central Reco: ``"average"`` (default, since
         0.10.0) weights the Lloyd–Taylor fit and a refit with a constant Q10 by the
