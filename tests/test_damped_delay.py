@@ -261,3 +261,18 @@ def test_a_run_without_soil_temperature_on_respiration_of_a_conducted_soil():
     assert "delay_damping" not in records["off"]
     for flux in ("reco_nighttime", "reco_daytime"):
         assert errors["conduction"][flux] < 0.5 * errors["off"][flux], flux
+
+
+def test_diff_names_a_damped_delay():
+    """Two results alike but for the damping of their delayed temperature: ``diff`` names
+    the amplitude under "model"; two undamped records name nothing there."""
+    from fluxpart.diff import _recorded_items
+
+    plain = {"provenance": {"respiration_driver": {"chosen": "tair", "delay_hours": 6.0}}}
+    damped = {"provenance": {"respiration_driver": {
+        "chosen": "tair", "delay_hours": 6.0, "delay_damping": "conduction",
+        "delay_daily_amplitude": float(conduction_damping(6.0))}}}
+    assert not any(section == "model" for section, *_ in _recorded_items(plain, plain))
+    model = {name: (x, y) for section, name, x, y in _recorded_items(plain, damped)
+             if section == "model"}
+    assert list(model) == ["respiration_driver delay_daily_amplitude"]
