@@ -30,7 +30,12 @@ import numpy as np
 
 from . import daytime_temperature, driver_mixture, gapfill, method_failure, uncertainty
 from .errors import FluxpartError, InsufficientDataError
-from .method_settings import OTHER_TEMPERATURE, nighttime_settings, respiration_temperature
+from .method_settings import (
+    OTHER_TEMPERATURE,
+    damped_delay,
+    nighttime_settings,
+    respiration_temperature,
+)
 from .partition import light_shape, nighttime, pieces, respiration_form, temperature_choice
 from .ustar_runs import fit_daytime
 
@@ -73,8 +78,9 @@ def averaged_form(frame, filled_drivers, central, is_night, temperature, config,
             raise InsufficientDataError("the nighttime method could not fit")
         exponential = respiration_form.exponential_reco(
             frame.index, nee_measured, filled["value"].to_numpy(dtype=float),
-            respiration_temperature(frame, temperature, delay),
-            respiration_temperature(filled_drivers, temperature, delay, True), is_night,
+            respiration_temperature(frame, temperature, delay, damped=damped_delay(config)),
+            respiration_temperature(filled_drivers, temperature, delay, True,
+                                    damped=damped_delay(config)), is_night,
             respiration_driver=temperature,
             **nighttime_settings(config, frame["rg"].to_numpy(dtype=float), frame.index,
                                  method_failure.borrowed_e0(night), sun_up))
@@ -120,7 +126,8 @@ def averaged_shape(frame, screened, filled_drivers, central, is_night, temperatu
         return None, ""
     try:
         profiled = fit_daytime(frame, nee_measured, screened, filled_drivers,
-                               respiration_temperature(filled_drivers, temperature, delay, True),
+                               respiration_temperature(filled_drivers, temperature, delay, True,
+                                                       damped=damped_delay(config)),
                                is_night, config, "fit", night)
     except FluxpartError as error:
         return None, light_shape.not_averaged(error)

@@ -48,7 +48,7 @@ __all__ = ["DiffReport", "command_diff", "diff_folders", "table_difference"]
 _SECTIONS = (("site", "site"), ("config", "setting"), ("seed", "seed"),
              ("warnings", "warnings"), ("caution", "caution"), ("format", "format"))
 # provenance records of the choices the night data make, and the fields compared
-_MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours")),
+_MODEL_CHOICES = (("respiration_driver", ("chosen", "delay_hours", "delay_daily_amplitude")),
                   ("respiration_form", ("exponential_weight", "share_applied")),
                   ("light_shape", ("profiled_curvature",)))
 #: Sections of :attr:`DiffReport.items` that are facts of the run, not of the result:

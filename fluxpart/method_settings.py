@@ -185,7 +185,24 @@ def event_cut(index, config) -> dict:
     return {"breaks": gapfill.event_breaks(index, config.events)} if config.events else {}
 
 
-def respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
+def damped_delay(config) -> bool:
+    """Whether a delayed respiration temperature is damped as conduction damps it.
+
+    Parameters
+    ----------
+    config : Config
+        Settings; ``air_delay_damping``.
+
+    Returns
+    -------
+    bool
+        ``config.air_delay_damping == "conduction"`` (:func:`respiration_temperature`,
+        :func:`fluxpart.partition.temperature_choice.damped_delayed`).
+    """
+    return config.air_delay_damping == "conduction"
+
+
+def respiration_temperature(table, name, delay, filled=False, damped=False) -> np.ndarray:
     """The respiration driver `name` from `table`, delayed by `delay` records.
 
     Parameters
@@ -200,6 +217,10 @@ def respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
     filled : bool, optional
         The gap-filled column (evaluated at every record; the first records take the
         first value), else the measured one (NaN-padded for fits).
+    damped : bool, optional
+        Damp the daily course before the delay as heat conduction damps it
+        (:func:`fluxpart.partition.temperature_choice.damped_delayed`;
+        ``air_delay_damping = "conduction"``); no effect without a delay.
 
     Returns
     -------
@@ -207,4 +228,8 @@ def respiration_temperature(table, name, delay, filled=False) -> np.ndarray:
         The temperature of each record [°C].
     """
     values = table[f"{name}_filled" if filled else name].to_numpy(dtype=float)
-    return temperature_choice.delayed(values, delay, pad="first" if filled else "nan")
+    pad = "first" if filled else "nan"
+    if damped and delay:
+        return temperature_choice.damped_delayed(
+            values, delay, temperature_choice.records_per_day(table.index), pad=pad)
+    return temperature_choice.delayed(values, delay, pad=pad)

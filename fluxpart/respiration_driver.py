@@ -14,7 +14,7 @@ import numpy as np
 
 from . import method_failure, screening
 from .errors import FluxpartError, InsufficientDataError
-from .method_settings import nighttime_settings
+from .method_settings import damped_delay, nighttime_settings
 from .partition import temperature_choice
 
 
@@ -66,7 +66,8 @@ def chosen_temperature(driver, index, screened, is_night, threshold, config, sun
                 index, np.where(too_calm, np.nan, screened["nee"].to_numpy()),
                 screened["tair"].to_numpy(),
                 screened["tsoil"].to_numpy() if "tsoil" in screened.columns else None,
-                is_night, **nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
+                is_night, damped_delay=damped_delay(config),
+                **nighttime_settings(config, screened["rg"].to_numpy(dtype=float),
                                                index, nearest_year, sun_up)))
     except InsufficientDataError as error:
         # the nighttime method cannot fit on air temperature: the run's own fit says why

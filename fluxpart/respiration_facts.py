@@ -18,6 +18,7 @@ __all__ = ["FACT_UNITS", "respiration_comment", "respiration_facts"]
 
 #: UDUNITS-2 unit of each numeric fact of :func:`respiration_facts`.
 FACT_UNITS = {"respiration_temperature_delay_hours": "h",
+              "respiration_temperature_daily_amplitude": "1",
               "respiration_form_share_constant_q10": "1"}
 _TEMPERATURES = {"tair": "air temperature", "tsoil": "soil temperature"}
 
@@ -40,6 +41,9 @@ def respiration_facts(provenance) -> dict:
           temperature in the result's tables and in the NetCDF export);
         - ``respiration_temperature_delay_hours`` [h]: the delay of that temperature
           (0 where none, or where the temperature was set);
+        - ``respiration_temperature_daily_amplitude`` [1]: the share of the air
+          temperature's daily range the delayed temperature keeps, only where the run
+          damped it (``air_delay_damping = "conduction"``);
         - ``respiration_temperature_basis``: ``"chosen on the night data: <reason>"`` or
           ``"as set in [processing] respiration_driver"``;
         - ``respiration_form_share_constant_q10`` [1]: the weight of the constant-Q10
@@ -63,6 +67,9 @@ def respiration_facts(provenance) -> dict:
             facts["respiration_temperature"] = str(chosen)
             delay = driver.get("delay_hours")
             facts["respiration_temperature_delay_hours"] = float(delay) if delay else 0.0
+            if driver.get("delay_daily_amplitude") is not None:
+                facts["respiration_temperature_daily_amplitude"] = float(
+                    driver["delay_daily_amplitude"])
             facts["respiration_temperature_basis"] = (
                 f"chosen on the night data: {driver['reason']}" if driver.get("chosen")
                 and driver.get("reason") else "as set in [processing] respiration_driver")
@@ -91,8 +98,11 @@ def respiration_comment(facts: dict) -> str:
     name = facts.get("respiration_temperature")
     if name:
         delay = facts.get("respiration_temperature_delay_hours", 0.0)
+        amplitude = facts.get("respiration_temperature_daily_amplitude")
         parts.append(f"respiration temperature of both methods: {name} "
-                     f"({_TEMPERATURES[name]}), delayed {delay:g} h")
+                     f"({_TEMPERATURES[name]}), delayed {delay:g} h"
+                     + (f", its daily course damped to {amplitude:.2f} of the range"
+                        if amplitude is not None and delay else ""))
     share = facts.get("respiration_form_share_constant_q10")
     if share is not None:
         parts.append(f"nighttime method's Reco: weight {share:g} of the constant-Q10 form, "

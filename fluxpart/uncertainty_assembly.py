@@ -34,6 +34,7 @@ from . import (
 from .errors import FluxpartError, InsufficientDataError
 from .method_settings import (
     OTHER_TEMPERATURE,
+    damped_delay,
     event_cut,
     fill_nee,
     nighttime_settings,
@@ -230,7 +231,8 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
         other_reco = other_reco + form.shift
     inputs = uncertainty.record_inputs(
         index, runs["central"], runs if len(runs) > 1 else {}, measured, noise, is_night,
-        respiration_temperature(timeseries, temperature, delay, True), night, day.parameters,
+        respiration_temperature(timeseries, temperature, delay, True,
+                                damped=damped_delay(config)), night, day.parameters,
         gapfill_model, rref_window_days=config.rref_window_days, other_driver_reco=other_reco,
         nee_measured=nee_measured,
         fill_window_days=timeseries["nee_fill_window_days"].to_numpy(dtype=float),
@@ -245,7 +247,9 @@ def budget_uncertainty(daily, monthly, annual, timeseries, outcomes, sigma, cond
     notes = []
     if (other_reco is not None and day_evidence is not None and inputs.driver_weight == 0.5
             and abs(day_evidence[0]) > temperature_choice.DAYTIME_EVIDENCE_Z):
-        central = f"{temperature} delayed by {delay * interval / 60:g} h" if delay else temperature
+        central = (f"{temperature} delayed by {delay * interval / 60:g} h"
+                   + (" (its daily course damped)" if damped_delay(config) else "")
+                   if delay else temperature)
         notes.append(temperature_choice.conflict_note(central, day_evidence[1],
                                                       day_evidence[0]))
     # a set mixture_test that changed nothing says so, as daytime_temperature's (review97)

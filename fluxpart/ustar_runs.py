@@ -37,6 +37,7 @@ from . import (
 )
 from .errors import InsufficientDataError
 from .method_settings import (
+    damped_delay,
     event_cut,
     fill_nee,
     night_light_tested,
@@ -225,14 +226,16 @@ def fill_and_partition(frame, screened, filled_drivers, conditions, is_night, th
         filled = fill_nee(donors, conditions, frame.index, is_night, config,
                           gaps=missing, sun_up=sun_up)
     filled = night_donors.as_measured(filled, nee_measured, withheld)
-    temperature_filled = respiration_temperature(filled_drivers, temperature, delay, True)
+    temperature_filled = respiration_temperature(filled_drivers, temperature, delay, True,
+                                                 damped=damped_delay(config))
 
     def fit_nighttime(borrow):
         if night_fit is not None:
             return nighttime.apply_fit(night_fit, filled["value"].to_numpy(), temperature_filled)
         return nighttime.partition_nighttime(
             frame.index, nee_measured, filled["value"].to_numpy(),
-            respiration_temperature(screened, temperature, delay), temperature_filled,
+            respiration_temperature(screened, temperature, delay, damped=damped_delay(config)),
+            temperature_filled,
             is_night, respiration_driver=temperature,
             **nighttime_settings(config, screened["rg"].to_numpy(dtype=float), frame.index,
                                  borrow, sun_up))

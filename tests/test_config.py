@@ -203,13 +203,15 @@ def test_to_dict_round_trips_through_json():
     # events (0.22.0) only where declared, so a 0.21.0 result's settings stay its rerun's;
     # night_fit_records (after 0.33.0) and ustar_kept_trend (after 0.34.0) only away from
     # their defaults, likewise for those releases; driver_share_spread (after 0.37.0) and
-    # daytime_temperature (after 0.38.0) and mixture_test (after 0.39.0) too
+    # daytime_temperature (after 0.38.0) and mixture_test and air_delay_damping (after
+    # 0.39.0) too
     assert set(config.to_dict()) == set(Config.field_names()) - {
         "events", "night_fit_records", "ustar_kept_trend", "driver_share_spread",
-        "daytime_temperature", "mixture_test"}
+        "daytime_temperature", "mixture_test", "air_delay_damping"}
     declared = Config(events=("2021-07-20",), night_fit_records="sun_down",
                       ustar_kept_trend="raise", driver_share_spread="bootstrap",
-                      daytime_temperature="air", mixture_test="one_sided")
+                      daytime_temperature="air", mixture_test="one_sided",
+                      air_delay_damping="conduction")
     assert set(declared.to_dict()) == set(Config.field_names())
     assert Config.from_mapping(json.loads(json.dumps(declared.to_dict()))) == declared
 

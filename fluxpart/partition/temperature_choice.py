@@ -51,6 +51,23 @@ temperature when its BIC, with one parameter more (2n ln(SAD_delay / SAD_0) +
 ln n), is lower by more than :data:`STRONG_EVIDENCE_BIC`: the delay is picked from
 several, so positive evidence alone is not enough. n is again the effective number of
 records of the delayed fit's residuals (since 0.23.0).
+
+**A delay damped as conduction damps it** (``air_delay_damping = "conduction"``, off by
+default): heat conduction into a uniform soil delays the daily temperature wave AND damps
+it. Under a surface temperature ``A sin(ωt)`` the temperature at depth z is
+``A exp(−z/D) sin(ωt − z/D)``, D = √(2κ/ω) the damping depth (the damped-wave solution of
+the heat equation; Campbell & Norman 1998, ch. 8; Carslaw & Jaeger 1959, §2.6 (m)): a
+phase lag of φ = z/D radians comes with the amplitude factor exp(−φ), so a lag of h hours
+of the daily cycle keeps exp(−2π h / 24 h) of the daily range (0.21 at 6 h), while the
+plain delayed air temperature carries all of it into the day records. With the setting,
+each delayed candidate is :func:`damped_delayed`: the air temperature's slow part (its
+centred 24-h running mean) plus its daily anomaly times :func:`conduction_damping`, the
+sum delayed by the lag; the candidates are fitted and judged (the same BIC) on that series
+as it is then used everywhere. The undelayed candidate stays the air temperature itself.
+The daily factor is applied to the whole anomaly, whose faster parts a soil damps more
+(the damping depth falls as 1/√frequency), and the slow part is delayed as the daily wave
+is, which a soil delays more: an approximation for the daily course, which dominates the
+anomaly of air temperature.
 """
 
 from __future__ import annotations
@@ -59,6 +76,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..daily_anomaly import daily_anomaly
 from ..errors import InsufficientDataError
 from ..uncertainty import bic_weight, effective_records, laplace_delta_bic
 from .nighttime import partition_nighttime, without_no_e0_advice
@@ -106,6 +124,82 @@ def delayed(values, records: int, pad: str = "first"):
     return np.concatenate([head, values[:len(values) - len(head)]])
 
 
+def conduction_damping(lag_hours, period_hours: float = 24.0):
+    """Amplitude factor of a temperature wave that heat conduction delays by `lag_hours`.
+
+    Parameters
+    ----------
+    lag_hours : float or array_like
+        Phase lag of the wave [h].
+    period_hours : float, optional
+        Period of the wave [h]; 24 h, the daily cycle.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``exp(−2π lag / period)`` [1]: 1 without lag, exp(−π/2) ≈ 0.21 at a quarter period.
+
+    Notes
+    -----
+    Under a surface temperature ``T0 + A sin(ωt)`` the heat equation in a uniform
+    semi-infinite soil gives ``T0 + A exp(−z/D) sin(ωt − z/D)`` at depth z, with damping
+    depth ``D = √(2κ/ω)`` (κ the thermal diffusivity): lag φ = z/D [rad] and amplitude
+    factor exp(−z/D) = exp(−φ), whatever κ is.
+
+    References
+    ----------
+    Campbell, G. S. & Norman, J. M. (1998). An Introduction to Environmental Biophysics,
+    2nd ed. Springer, ch. 8 (soil heat flux and temperature).
+    Carslaw, H. S. & Jaeger, J. C. (1959). Conduction of Heat in Solids, 2nd ed. Oxford,
+    section 2.6 (periodic surface temperature) (m).
+    """
+    return np.exp(-2.0 * np.pi * np.asarray(lag_hours, dtype=float) / period_hours)
+
+
+def damped_delayed(values, records: int, per_day: int, pad: str = "first"):
+    """`values` with their daily course damped as conduction damps it, then delayed.
+
+    Parameters
+    ----------
+    values : array_like
+        Temperature of evenly spaced records [°C] (NaN where missing).
+    records : int
+        The delay [records].
+    per_day : int
+        Records per day (48 for half-hourly records).
+    pad : str, optional
+        As for :func:`delayed`.
+
+    Returns
+    -------
+    numpy.ndarray
+        ``delayed(slow + f (values − slow), records)`` [°C], slow the centred 24-h
+        running mean (:func:`fluxpart.daily_anomaly.daily_anomaly`) and f
+        :func:`conduction_damping` of the delay. A value whose running mean is
+        undefined (fewer than half a day of its window measured) is kept undamped;
+        no delay returns `values` unchanged.
+
+    References
+    ----------
+    Campbell, G. S. & Norman, J. M. (1998). An Introduction to Environmental Biophysics,
+    2nd ed. Springer, ch. 8.
+    """
+    values = np.asarray(values, dtype=float)
+    if records <= 0:
+        return values.copy()
+    anomaly = daily_anomaly(values, per_day)
+    factor = conduction_damping(records * 24.0 / per_day)
+    damped = np.where(np.isfinite(anomaly), values - (1.0 - factor) * anomaly, values)
+    return delayed(damped, records, pad)
+
+
+def records_per_day(index) -> int:
+    """Records per day of an evenly spaced `index` (48 where it has fewer than 2)."""
+    if len(index) < 2:
+        return 48
+    return max(int(round(24.0 / ((index[1] - index[0]) / np.timedelta64(1, "h")))), 1)
+
+
 @dataclass(frozen=True)
 class TemperatureChoice:
     """Outcome of :func:`choose_respiration_temperature`.
@@ -147,6 +241,9 @@ class TemperatureChoice:
     effective_records : float
         The independent records the ΔBIC that decided was scaled to
         (:func:`fluxpart.uncertainty.effective_records`); NaN when not compared.
+    delay_damped : bool
+        The delayed candidates were damped as conduction damps the daily wave
+        (``air_delay_damping = "conduction"``; :func:`damped_delayed`).
     """
 
     driver: str
@@ -161,9 +258,20 @@ class TemperatureChoice:
     delay_delta_bic: float = np.nan
     delay_weight: float = np.nan
     effective_records: float = np.nan
+    delay_damped: bool = False
+
+    @property
+    def delay_daily_amplitude(self) -> float:
+        """Share of the air temperature's daily range the chosen temperature keeps [1]:
+        :func:`conduction_damping` of the delay where damped, else 1."""
+        return float(conduction_damping(self.delay_hours)) if self.delay_damped else 1.0
 
     def to_dict(self) -> dict:
-        """Plain values for the provenance record."""
+        """Plain values for the provenance record (the damping's keys only where damped,
+        so a run without it records what the releases before it did)."""
+        damping = ({"delay_damping": "conduction",
+                    "delay_daily_amplitude": self.delay_daily_amplitude}
+                   if self.delay_damped else {})
         return {"setting": "auto", "chosen": self.driver, "reason": self.reason,
                 "criterion": ("BIC of the nighttime Lloyd–Taylor fit to measured night NEE "
                               "under Laplace errors"),
@@ -173,14 +281,15 @@ class TemperatureChoice:
                 "delay_hours": float(self.delay_hours),
                 "delay_delta_bic": _plain(self.delay_delta_bic),
                 "delay_weight": _plain(self.delay_weight),
-                "records_effective": _plain(self.effective_records)}
+                "records_effective": _plain(self.effective_records), **damping}
 
 
 def _plain(value: float):
     return None if not np.isfinite(value) else float(value)
 
 
-def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
+def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night, *,
+                                   damped_delay: bool = False,
                                    **nighttime_settings) -> TemperatureChoice:
     """Pick air or soil temperature as the respiration driver by the night fit.
 
@@ -198,6 +307,10 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
         without a single finite value is taken as none).
     is_night : array_like of bool
         Night records.
+    damped_delay : bool, optional
+        Without soil temperature, damp each delayed air temperature's daily course as
+        conduction damps it (:func:`damped_delayed`; ``air_delay_damping =
+        "conduction"``); False: the air temperature delayed as measured.
     **nighttime_settings
         Keyword settings of :func:`fluxpart.partition.nighttime.partition_nighttime`
         (window lengths, minimum counts, E0 bounds and fall-back).
@@ -236,7 +349,7 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
     if tsoil is None or not np.isfinite(np.asarray(tsoil, dtype=float)).any():
         # a soil column without a single value (a probe lost all along) is no soil record:
         # air temperature, tested for a delay as where the column is absent
-        return _air_delay(index, nee, tair, night, nighttime_settings)
+        return _air_delay(index, nee, tair, night, nighttime_settings, damped_delay)
     fits = {"tair": _night_fit(index, nee, tair, night, "tair", nighttime_settings)}
     try:
         fits["tsoil"] = _night_fit(index, nee, tsoil, night, "tsoil", nighttime_settings)
@@ -289,8 +402,9 @@ def choose_respiration_temperature(index, nee_measured, tair, tsoil, is_night,
                              effective_records=effective)
 
 
-def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
-    """Air temperature, delayed where the night data favour it (module docstring)."""
+def _air_delay(index, nee, tair, night, settings, damped=False) -> TemperatureChoice:
+    """Air temperature, delayed (and damped, with `damped`) where the night data favour it
+    (module docstring)."""
     tair = np.asarray(tair, dtype=float)
     try:
         fits = {"tair_undelayed": _night_fit(index, nee, tair, night, "tair", settings)}
@@ -299,11 +413,13 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
         return _plain_air({"tair": np.nan, "tsoil": np.nan}, 0, {})
     step_hours = (index[1] - index[0]) / np.timedelta64(1, "h") if len(index) > 1 else 0.5
     delays = sorted({int(round(hours / step_hours)) for hours in AIR_DELAYS_HOURS} - {0})
+    per_day = records_per_day(index)
     reco = {0: fits["tair_undelayed"].reco}
     for records in delays:
+        candidate = (damped_delayed(tair, records, per_day, pad="nan") if damped
+                     else delayed(tair, records, pad="nan"))
         try:
-            fit = _night_fit(index, nee, delayed(tair, records, pad="nan"), night, "tair",
-                             settings)
+            fit = _night_fit(index, nee, candidate, night, "tair", settings)
         except InsufficientDataError:
             continue
         fits[records] = fit
@@ -323,24 +439,26 @@ def _air_delay(index, nee, tair, night, settings) -> TemperatureChoice:
     delta_bic = laplace_delta_bic(sad[best], sad[0], effective, extra_parameters=1)
     weight = bic_weight(delta_bic)
     hours = best * step_hours
+    damping = (f", its daily course damped to {conduction_damping(hours):.2f} as heat "
+               "conduction damps it," if damped else "")
     if delta_bic < -STRONG_EVIDENCE_BIC:
-        reason = (f"the input has no soil temperature; air temperature delayed by {hours:g} h "
-                  f"explains the measured night NEE better (ΔBIC delayed - undelayed = "
-                  f"{delta_bic:.1f} over {_records_text(count, effective)}, one parameter more), as soil "
-                  "respiration lags the air")
+        reason = (f"the input has no soil temperature; air temperature delayed by {hours:g} h"
+                  f"{damping or ''} explains the measured night NEE better (ΔBIC delayed - "
+                  f"undelayed = {delta_bic:.1f} over {_records_text(count, effective)}, one "
+                  "parameter more), as soil respiration lags the air")
         return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
                                  np.nan, np.nan, {"tair": fits[best],
                                                   "tair_undelayed": undelayed},
                                  delay_records=best, delay_hours=hours,
                                  delay_delta_bic=delta_bic, delay_weight=weight,
-                                 effective_records=effective)
+                                 effective_records=effective, delay_damped=damped)
     reason = (f"the input has no soil temperature; air temperature kept undelayed (best "
-              f"delay {hours:g} h: ΔBIC {delta_bic:.1f} over {_records_text(count, effective)}, not beyond "
-              f"{-STRONG_EVIDENCE_BIC:g})")
+              f"delay {hours:g} h{damping.rstrip(',')}: ΔBIC {delta_bic:.1f} over "
+              f"{_records_text(count, effective)}, not beyond {-STRONG_EVIDENCE_BIC:g})")
     return TemperatureChoice("tair", reason, {**none, "tair_delayed": sad[best]}, count,
                              np.nan, np.nan, {"tair": undelayed}, delay_hours=0.0,
                              delay_delta_bic=delta_bic, delay_weight=weight,
-                             effective_records=effective)
+                             effective_records=effective, delay_damped=damped)
 
 
 def _records_text(count: int, effective: float) -> str:
