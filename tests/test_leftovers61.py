@@ -1,0 +1,75 @@
+"""Small things users met in round leftovers61 (invented data only).
+
+Each test fails on the code before the fix it names.
+"""
+from __future__ import annotations
+
+import shutil
+
+from fluxpart.cli import main
+
+
+def _killed_between_two_renames(folder):
+    """What a run killed between the two renames of its swap leaves (no atomic exchange:
+    NFS, SMB, FUSE): no folder, the earlier result in its retired copy, the new one in a
+    staging folder (as tests/test_robustness_faults40.py builds it)."""
+    parent = folder.parent
+    shutil.copytree(folder, parent / f".{folder.name}.staging-k1ll3d00")
+    folder.rename(parent / f".{folder.name}.retired-k1ll3d00")
+
+
+def test_quiet_verify_says_that_it_repaired_the_folder(copy, capsys):
+    """`verify --quiet` of a folder an interrupted swap left aside: the earlier result is
+    put back, and the one-line verdict said nothing of it (the note was among those
+    --quiet hides). Common practice: a repair of a user's folder is reported; an
+    auditor must know the folder verified is not the one found. Exit code unchanged."""
+    folder = copy / "out"
+    _killed_between_two_renames(folder)
+    assert main(["verify", str(folder), "--quiet"]) == 0
+    out = capsys.readouterr().out.splitlines()
+    repaired = [line for line in out if line.startswith("note: ") and "was missing" in line]
+    assert len(repaired) == 1 and ".out.retired-k1ll3d00" in repaired[0], out
+    assert out[0].startswith("bit-identical") and out[-1].startswith("Caution:")
+    # the second verify finds nothing to repair: the note is not said again
+    assert main(["verify", str(folder), "--quiet"]) == 0
+    again = capsys.readouterr().out
+    assert "note:" not in again and again.count("\n") == 3
+
+
+def test_quiet_verify_keeps_a_run_stopped_beside_the_folder_and_hides_other_notes(
+        copy, capsys):
+    """A staging folder beside the result (a run into it running or stopped): the
+    verdict may be of the earlier result, which the full output's note says; --quiet
+    now says it too. The report page's note (present in every folder with a report/)
+    stays quiet: it does not change what the verdict covers."""
+    folder = copy / "out"
+    (copy / ".out.staging-0000stop").mkdir()
+    (folder / "report").mkdir()
+    assert main(["verify", str(folder)]) == 0
+    full = capsys.readouterr().out
+    assert "report/: the page" in full and "running now or was stopped" in full
+    assert main(["verify", str(folder), "--quiet"]) == 0
+    quiet = capsys.readouterr().out
+    assert "running now or was stopped" in quiet
+    assert "report/: the page" not in quiet
+
+
+def test_verify_names_the_folder_resolved(copy, capsys):
+    """`verify auditor/../out` printed the folder as typed; the verdict line and its notes
+    now name it as on disk (pathlib.Path.resolve, Python documentation (m)). Nothing of
+    the folder changes: a second verify is bit-identical too."""
+    folder = copy / "out"
+    (copy / "auditor").mkdir()
+    winding = copy / "auditor" / ".." / "out"
+    _killed_between_two_renames(folder)
+    assert main(["verify", str(winding)]) == 0
+    out = capsys.readouterr().out
+    head, notes = out.splitlines()[0], [line for line in out.splitlines()
+                                       if line.startswith("note: ")]
+    resolved = str(folder.resolve())
+    assert f"of {resolved} " in head and ".." not in head, head
+    assert any(repr(resolved) in note for note in notes) and ".." not in " ".join(notes)
+    assert main(["verify", "--json", str(winding)]) == 0
+    import json
+
+    assert json.loads(capsys.readouterr().out)["directory"] == resolved
