@@ -73,3 +73,52 @@ def test_verify_names_the_folder_resolved(copy, capsys):
     import json
 
     assert json.loads(capsys.readouterr().out)["directory"] == resolved
+
+
+def _fill_figure(codes, index):
+    """The fill-quality figure of a written time series holding only fill codes, and the
+    matplotlib axes it drew (as tests/test_report.py's `_painted`)."""
+    import pandas as pd
+
+    from fluxpart import figures
+
+    written = figures.Written(manifest={}, tables={"timeseries": pd.DataFrame(
+        {"nee_fill_quality": codes}, index=index)})
+    drawing = figures.Drawing()
+    made = []
+    draw = drawing.figure
+    drawing.figure = lambda *a, **k: made.append(draw(*a, **k)) or made[-1]
+    with drawing.mpl.rc_context():
+        figures.figure_fill_quality(drawing, written, 30)
+    return made[0].axes
+
+
+def test_fill_quality_figure_names_its_hatch_apart_from_measured():
+    """The title spoke of a "grey hatch" for records missing from the file while the
+    "measured" class was light grey (#e8e8e8) too. Now "measured" has a hue (not grey:
+    its red, green and blue differ) and the hatch has a legend entry drawn as the top
+    panel draws it; a file without missing records names no hatch. Colour-blind-safe
+    hues: Okabe & Ito (2008), "Color Universal Design" (m)."""
+    import numpy as np
+    import pandas as pd
+    from matplotlib.colors import to_rgb
+
+    index = pd.date_range("2021-01-01 00:00", periods=48 * 20, freq="30min")
+    codes = np.tile([0, 0, 1, 2, 0, 3], len(index) // 6).astype(float)
+    kept = np.ones(len(index), bool)
+    kept[48 * 5:48 * 8] = False                       # three days absent from the file
+    top, bottom = _fill_figure(codes[kept], index[kept])
+    assert "grey hatch: no record in the file" in top.get_title(loc="left")
+    legend = bottom.get_legend()
+    labels = [t.get_text() for t in legend.get_texts()]
+    assert "measured" in labels and any("no record in the file" in t for t in labels)
+    patches = dict(zip(labels, legend.get_patches(), strict=True))
+    measured = to_rgb(patches["measured"].get_facecolor())
+    hatch = patches[next(t for t in labels if "no record" in t)]
+    assert max(measured) - min(measured) > 0.05, measured          # not a grey
+    face = to_rgb(hatch.get_facecolor())
+    assert hatch.get_hatch() and max(face) - min(face) < 0.01       # the grey hatch
+    # the same records without a gap: no hatch named anywhere
+    top, bottom = _fill_figure(codes, index)
+    assert "hatch" not in top.get_title(loc="left")
+    assert not any("no record" in t.get_text() for t in bottom.get_legend().get_texts())
