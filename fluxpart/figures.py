@@ -1859,6 +1859,30 @@ def figure_ustar(drawing, written) -> Figure:
                   caption)
 
 
+#: The daytime method's phrases for its reasons about a window's respiration
+#: (``parameters_daytime``'s ``reason`` and ``status``, which keep them: a table the run
+#: wrote is not reworded) and the words a reader is shown instead, in the light-response
+#: panels' titles and the page's window table. "rref differs from night rref" was shown
+#: as written, a variable's name and no meaning (round leftovers61). Rref is the
+#: respiration at the reference temperature of 10 °C (Lloyd & Taylor 1994 (m)); "the
+#: night's" is the one the night records give for that window (Lasslop et al. 2010, who
+#: fix it there where the day fit is not trusted (m)).
+PLAIN_REASONS = (
+    ("rref differs from night rref", "day respiration unlike the night's"),
+    ("refit with night rref", "refitted with night respiration"),
+    ("rref not resolved by the daytime data", "day records do not fix respiration"),
+    ("rref at zero", "day respiration fitted at zero"),
+)
+
+
+def plain_reason(text: str) -> str:
+    """A window's reason with the daytime method's phrases about Rref in plain words
+    (:data:`PLAIN_REASONS`); any other text as it is."""
+    for phrase, words in PLAIN_REASONS:
+        text = text.replace(phrase, words)
+    return text
+
+
 def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
     """Per light-response window: ``state`` (accepted, at bound, replaced, rejected), ``why``.
 
@@ -1884,6 +1908,7 @@ def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
         why = reason.where(reason.str.lower() != "ok", "")
     at_bound = why.str.contains("bound", case=False, na=False) & (state == "accepted")
     state = state.where(~at_bound, "at bound")
+    why = why.map(plain_reason, na_action="ignore")
     return pd.DataFrame({"state": state.astype(object), "why": why.astype(object)},
                         index=parameters.index)
 
@@ -2084,9 +2109,11 @@ def figure_light_response(drawing, written) -> Figure:
         end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
         state, why = states.loc[position, "state"], states.loc[position, "why"]
         flagged = state != "accepted"
-        why = textwrap.shorten(str(why), width=36, placeholder=" …")
+        # the reason on a line of its own: in plain words it no longer fits beside the
+        # dates (round leftovers61)
+        why = textwrap.shorten(str(why), width=72, placeholder=" …")
         axis.set_title(f"{day_text(start, year=False)} – {day_text(end)}: {state}"
-                       + (f" ({why})" if why else ""),
+                       + (f"\n{why}" if why else ""),
                        loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
         if flagged:
             for spine in axis.spines.values():

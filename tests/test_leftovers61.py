@@ -122,3 +122,37 @@ def test_fill_quality_figure_names_its_hatch_apart_from_measured():
     top, bottom = _fill_figure(codes, index)
     assert "hatch" not in top.get_title(loc="left")
     assert not any("no record" in t.get_text() for t in bottom.get_legend().get_texts())
+
+
+def test_a_window_replaced_for_its_respiration_is_worded_for_a_reader():
+    """A light-response panel's title and the page's window table showed the daytime
+    method's phrase "rref differs from night rref; refit with night rref". Now they say
+    what it means: the respiration fitted by day (Rref, at 10 °C: Lloyd & Taylor 1994
+    (m)) is unlike the night's, and the window was refitted with the night's (Lasslop et
+    al. 2010 fix it so (m)). The written table keeps the method's phrase."""
+    import pandas as pd
+
+    from fluxpart import figures
+    from fluxpart.report import _windows_html
+
+    parameters = pd.DataFrame({
+        "status": ["accepted", "replaced", "replaced", "rejected"],
+        "reason": ["ok", "rref differs from night rref; refit with night rref",
+                   "rref not resolved by the daytime data; refit with night rref",
+                   "too few daytime records"],
+        "window_start": pd.to_datetime(["2021-06-01", "2021-06-05", "2021-06-09",
+                                        "2021-06-13"]),
+        "window_end": pd.to_datetime(["2021-06-05", "2021-06-09", "2021-06-13",
+                                      "2021-06-17"]),
+        "beta0": [30.0, 25.0, 20.0, float("nan")]})
+    why = figures.window_status(parameters)["why"].tolist()
+    assert why[1] == "day respiration unlike the night's; refitted with night respiration"
+    assert why[2] == "day records do not fix respiration; refitted with night respiration"
+    assert why[3] == "too few daytime records"            # other reasons as written
+    assert not any("rref" in text for text in why)
+    page = _windows_html(figures.Written(manifest={}, tables={"parameters_daytime":
+                                                               parameters}), {})
+    assert "day respiration unlike the night&#x27;s" in page or \
+        "day respiration unlike the night's" in page
+    assert "rref differs" not in page and "night rref" not in page
+    assert parameters["reason"][1] == "rref differs from night rref; refit with night rref"
