@@ -110,6 +110,7 @@ from .errors import (
 from .file_digest import sha256_of_file
 from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
 from .flag_counter import many_values_text
+from .flag_grades import middle_grade_warning
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -1323,6 +1324,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             f"{[flag_shown(v, words, word_counts) for v in flag_values]}"
                             f"{_in_brackets(many_values_text(flags, flag_columns))}: check which values mean a good "
                             "record")
+        elif not words:
+            # a third rejected, a middle grade among them (0-1-2 under flag_accept = [0]):
+            # `check` named no problem (round leftovers61)
+            middle = middle_grade_warning(flags, flag_columns, flag_accept,
+                                          converted["nee"], converted["nee_flag"])
+            if middle:
+                warnings.append(middle)
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")

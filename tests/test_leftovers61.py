@@ -156,3 +156,54 @@ def test_a_window_replaced_for_its_respiration_is_worded_for_a_reader():
         "day respiration unlike the night's" in page
     assert "rref differs" not in page and "night rref" not in page
     assert parameters["reason"][1] == "rref differs from night rref; refit with night rref"
+
+
+def test_a_middle_grade_rejected_under_the_default_flag_accept_is_named(tmp_path, capsys):
+    """A graded flag (0 best, 1 usable for budgets, 2 discard: the 0-1-2 scheme of Mauder
+    & Foken 2004 (m)) under the default flag_accept = [0] rejected 40 % of the records
+    holding an NEE value and `check` listed no problem (the reader warned from half on).
+    Now `check` names the column, the kept codes, the share and the setting that keeps
+    grade 1; with flag_accept = [0, 1] it is silent. A flag of two codes (0 kept, 2
+    rejected) rejecting as many is not named: nothing to widen."""
+    import numpy as np
+    import pandas as pd
+    from bundles import make_bundle
+
+    from fluxpart.flag_grades import middle_grade_warning, middle_grades
+
+    # the pure rule: which codes lie between the one kept grade and the worst
+    assert middle_grades(np.array([0.0, 1, 2, np.nan]), (0,)) == [1.0]
+    assert middle_grades(np.array([0.0, 1, 2]), (2,)) == [1.0]         # reversed scale
+    assert middle_grades(np.array([0.0, 1, 2]), (0, 1)) == []          # usable kept
+    assert middle_grades(np.array([0.0, 2]), (0,)) == []               # two codes
+    assert middle_grades(np.arange(1.0, 10), (1, 2, 3, 4, 5, 6)) == []  # 1-9, 1-6 kept
+    nee = np.ones(9)
+    codes = np.array([0.0, 0, 0, 0, 0, 1, 1, 1, 2])                     # 4 of 9 rejected
+    rejected = (codes != 0).astype(float)
+    text = middle_grade_warning([codes], ["qc"], (0,), nee, rejected)
+    assert "4 of 9 records" in text and "1 (3 records)" in text
+    assert "flag_accept = [0, 1]" in text
+    codes = np.array([0.0, 0, 0, 0, 0, 0, 1, 1, 2])                     # 3 of 9: a third
+    assert middle_grade_warning([codes], ["qc"], (0,), nee, (codes != 0).astype(float)) == ""
+
+    config = make_bundle(tmp_path / "site")
+    table = pd.read_csv(tmp_path / "site" / "tower.csv", dtype=str)
+    grade = np.where(np.arange(len(table)) % 5 < 2, "1", "0")
+    grade[::97] = "2"
+    table["qc_co2"] = grade
+    table.to_csv(tmp_path / "site" / "tower.csv", index=False)
+    main(["check", str(config)])
+    out = capsys.readouterr().out
+    named = [line for line in out.splitlines() if "flag_accept = [0, 1]" in line]
+    assert len(named) == 1 and "qc_co2" in named[0] and "flag_accept = [0]" in named[0], out
+    assert "more than a third" in named[0]
+    text = config.read_text().replace("missing = [-9999]\n",
+                                      "missing = [-9999]\nflag_accept = [0, 1]\n")
+    config.write_text(text)
+    main(["check", str(config)])
+    assert "more than a third" not in capsys.readouterr().out
+    table["qc_co2"] = np.where(grade == "1", "2", grade)               # two codes: 0, 2
+    table.to_csv(tmp_path / "site" / "tower.csv", index=False)
+    config.write_text(text.replace("flag_accept = [0, 1]\n", ""))
+    main(["check", str(config)])
+    assert "more than a third" not in capsys.readouterr().out
