@@ -207,3 +207,42 @@ def test_a_middle_grade_rejected_under_the_default_flag_accept_is_named(tmp_path
     config.write_text(text.replace("flag_accept = [0, 1]\n", ""))
     main(["check", str(config)])
     assert "more than a third" not in capsys.readouterr().out
+
+
+def _calls(code: str, name: str):
+    """Each call `name(...)` in `code` with its balanced arguments."""
+    import re
+
+    for found in re.finditer(rf"(?<![\w.-]){re.escape(name)}\(", code):
+        depth, position = 0, found.end() - 1
+        for position in range(found.end() - 1, len(code)):
+            depth += {"(": 1, ")": -1}.get(code[position], 0)
+            if depth == 0:
+                break
+        yield code[found.start():position + 1]
+
+
+def test_every_documented_block_that_opens_text_names_its_encoding():
+    """The README's audit block opened the manifest with `open()` in the platform's
+    default encoding (a Windows code page misreads a non-ASCII site config; Python
+    documentation, `open`: "the default encoding is platform dependent" (m), PEP 597).
+    Every code block of README.md, docs/ and examples/README.md that opens a file as
+    text (open, Path.read_text, Path.write_text) now passes encoding="utf-8"; the README
+    block is also run by tests/test_newuser57.py."""
+    import re
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    pages = [root / "README.md", root / "examples" / "README.md",
+             *sorted((root / "docs").glob("*.md"))]
+    seen = []
+    for page in pages:
+        text = page.read_text(encoding="utf-8")
+        for block in re.findall(r"```[a-z]*\n(.*?)```", text, flags=re.S):
+            for name in ("open", ".read_text", ".write_text"):
+                for call in _calls(block, name):
+                    if re.search(r"""['"][rwax+]*b[rwax+]*['"]""", call):
+                        continue                             # binary: no encoding
+                    seen.append(call)
+                    assert re.search(r"encoding\s*=\s*['\"]utf-8['\"]", call), (page.name, call)
+    assert len(seen) >= 2            # the audit block reads the manifest, writes the config
