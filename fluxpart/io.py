@@ -90,7 +90,12 @@ from ._validate import (
 )
 from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
-from .comma_fields import field_count, unquoted_decimal_commas, unquoted_fraction_commas
+from .comma_fields import (
+    field_count,
+    split_decimal_comma,
+    unquoted_decimal_commas,
+    unquoted_fraction_commas,
+)
 from .config import Config, refuse_misplaced_processing, setting_text, suggest_key
 from .double_byte_text import double_byte_readings
 from .errors import (
@@ -4724,6 +4729,11 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         if delimiter == "," and not named:
             named = unquoted_fraction_commas(str(path), text.splitlines(), rows_before_header,
                                              rows_before_header + rows_after_header + 1)
+        if delimiter == "," and decimal != "," and not named:
+            # '1,0' in single quotes (no CSV quotes) or unquoted: named with its column
+            # (round leftovers61; "a delimiter inside a value" before)
+            named = split_decimal_comma(str(path), text.splitlines(), rows_before_header,
+                                        rows_before_header + rows_after_header + 1)
         if named:
             raise InputFileError(named) from None
         if borrowed:

@@ -246,3 +246,40 @@ def test_every_documented_block_that_opens_text_names_its_encoding():
                     seen.append(call)
                     assert re.search(r"encoding\s*=\s*['\"]utf-8['\"]", call), (page.name, call)
     assert len(seen) >= 2            # the audit block reads the manifest, writes the config
+
+
+def test_a_decimal_comma_split_by_the_delimiter_is_named_with_its_column(tmp_path, capsys):
+    """'1,0' in single quotes (no CSV quotes: RFC 4180 quotes with the double quote
+    (m)) or unquoted in a comma-delimited file is two fields; the reader named only the
+    field count and "a delimiter inside a value". Now the one error line names the
+    column, the value and both remedies the reader supports (a full stop, or double
+    quotes with decimal = ","). A whole-number column with one field too many stays
+    unnamed (it may be a column the line has in excess)."""
+    import pandas as pd
+    from bundles import make_bundle
+
+    from fluxpart.comma_fields import split_decimal_comma
+
+    lines = ["stamp,nee,tair,qc", "202101010030,0.5,-7.46,0", "202101010100,0.4,'1,0',0"]
+    text = split_decimal_comma("t.csv", lines, 0, 1)
+    assert "line 3 has 5 fields" in text and "column 'tair'" in text
+    assert "(1.0)" in text and 'decimal = ","' in text and '("1,0")' in text
+    assert "column 'tair'" in split_decimal_comma(
+        "t.csv", [*lines[:2], "202101010100,0.4,\u201c1,0\u201d,0"], 0, 1)
+    assert "column 'tair'" in split_decimal_comma(
+        "t.csv", [*lines[:2], "202101010100,0.4,1,0,0"], 0, 1)       # unquoted, fractions
+    assert split_decimal_comma("t.csv", [*lines[:2], "202101010100,0.4,-7.5,0,5"],
+                               0, 1) is None                           # qc holds integers
+    assert split_decimal_comma("t.csv", lines[:2], 0, 1) is None       # nothing split
+
+    config = make_bundle(tmp_path / "site")
+    table = pd.read_csv(tmp_path / "site" / "tower.csv", dtype=str)
+    rows = table.to_csv(index=False).splitlines()
+    fields = rows[5].split(",")
+    fields[3] = "'1,0'"                                                # air_temp_c
+    rows[5] = ",".join(fields)
+    (tmp_path / "site" / "tower.csv").write_text("\n".join(rows) + "\n")
+    assert main(["check", str(config)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and err[0].startswith("error: "), err
+    assert "column 'air_temp_c'" in err[0] and 'decimal = ","' in err[0]
