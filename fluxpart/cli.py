@@ -801,9 +801,11 @@ def _parser() -> argparse.ArgumentParser:
                         help="print only the verdict (naming a changed, missing or "
                         "unlisted file, and an input or site config that is another "
                         "file), the result: line naming which result the folder holds, and "
-                        "the caution (same exit status); and a note where the site config at "
-                        "its recorded place was edited since the run (the verdict used the "
-                        "manifest's copy)")
+                        "the caution (same exit status); and the notes that change the folder "
+                        "or what the verdict means: the folder repaired after an interrupted "
+                        "write, a run into it running or stopped, nothing recomputed, the "
+                        "site config at its recorded place edited since the run (the verdict "
+                        "used the manifest's copy)")
     verify.add_argument("--detail", action="store_true",
                         help="print each differing metadata entry (a column's description or "
                         "unit, each copy) with both texts in full; by default a table's "

@@ -90,8 +90,11 @@ _MISSING_FACE = "#bdbdbd"
 _MISSING_HATCH = "#7a7a7a"
 
 #: Fill-quality categories in drawing order with their colours (Okabe & Ito 2008).
+#: "measured" is a pale bluish green (Okabe & Ito's #009E73 at a fifth on white), not the
+#: light grey it was: grey is what no value maps to (a record missing from the file, the
+#: grey hatch), and the two greys read as one (round leftovers61).
 FILL_CATEGORIES = (
-    ("measured", "#e8e8e8"),
+    ("measured", "#ccebe3"),
     ("A", _SKY),
     ("B", _ORANGE),
     ("C", _VERMILLION),
@@ -102,6 +105,8 @@ _QUALITY_CODES = {0: "measured", 1: "A", 2: "B", 3: "C", -1: "unfilled", 4: "int
 #: The fill classes as the legend names them: a bare "A", "B", "C" said nothing without
 #: the caption (review54)
 _FILL_LEGEND = {"A": "A: filled, most reliable", "B": "B: filled", "C": "C: filled, least reliable"}
+#: The legend entry of the grey hatch of the fill-quality figure (records absent from the file).
+_NO_RECORD_LEGEND = "no record in the file (top panel)"
 
 _RC = {
     "font.family": "DejaVu Sans",
@@ -1152,8 +1157,9 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     bottom.set_xlim(start, start + n_days)
     top.set_ylabel("Time of day [h]")
     drawing.fixed_ticks(top.yaxis, [0, 6, 12, 18, 24])
-    top.set_title("NEE fill quality of every record (grey hatch: no record in the file)",
-                  loc="left")
+    absent = bool(np.isnan(grid).any())
+    top.set_title("NEE fill quality of every record" + (
+        " (grey hatch: no record in the file)" if absent else ""), loc="left")
     # records per day and category: one bincount over (day, category) cells
     day_number = ((series.index.normalize() - first) / pd.Timedelta(days=1)).to_numpy()
     day_number = day_number.astype(np.int64)
@@ -1168,10 +1174,20 @@ def figure_fill_quality(drawing, written, interval) -> Figure:
     bottom.set_ylim(0, 1)
     drawing.fixed_ticks(bottom.yaxis, [0.0, 0.5, 1.0])
     bottom.set_ylabel("Share of the day")
-    bottom.set_title("Daily share by fill quality", loc="left")
-    # one row up to four classes; five or six (named, review54) take two rows of three
-    bottom.legend(loc="upper center", bbox_to_anchor=(0.5, -0.22),
-                  ncols=len(present) if len(present) <= 4 else 3)
+    bottom.set_title("Daily share by fill quality (of the records in the file)", loc="left")
+    handles, labels = bottom.get_legend_handles_labels()
+    if absent:
+        # the hatch named beside the classes, drawn as the top panel draws it (round
+        # leftovers61: the title's "grey hatch" and a light grey "measured" read as one)
+        from matplotlib.patches import Patch
+
+        handles.append(Patch(
+            facecolor=_MISSING_FACE, edgecolor=_MISSING_HATCH, hatch="////",
+            label=_NO_RECORD_LEGEND))
+        labels.append(_NO_RECORD_LEGEND)
+    # one row up to four entries; five or more (named, review54) take rows of three
+    bottom.legend(handles, labels, loc="upper center", bbox_to_anchor=(0.5, -0.22),
+                  ncols=len(labels) if len(labels) <= 4 else 3)
     drawing.date_axis(bottom, ticks=13)
     top.set_xlim(start, start + n_days)
     top.set_xticks([])
@@ -1843,6 +1859,30 @@ def figure_ustar(drawing, written) -> Figure:
                   caption)
 
 
+#: The daytime method's phrases for its reasons about a window's respiration
+#: (``parameters_daytime``'s ``reason`` and ``status``, which keep them: a table the run
+#: wrote is not reworded) and the words a reader is shown instead, in the light-response
+#: panels' titles and the page's window table. "rref differs from night rref" was shown
+#: as written, a variable's name and no meaning (round leftovers61). Rref is the
+#: respiration at the reference temperature of 10 °C (Lloyd & Taylor 1994 (m)); "the
+#: night's" is the one the night records give for that window (Lasslop et al. 2010, who
+#: fix it there where the day fit is not trusted (m)).
+PLAIN_REASONS = (
+    ("rref differs from night rref", "day respiration unlike the night's"),
+    ("refit with night rref", "refitted with night respiration"),
+    ("rref not resolved by the daytime data", "day records do not fix respiration"),
+    ("rref at zero", "day respiration fitted at zero"),
+)
+
+
+def plain_reason(text: str) -> str:
+    """A window's reason with the daytime method's phrases about Rref in plain words
+    (:data:`PLAIN_REASONS`); any other text as it is."""
+    for phrase, words in PLAIN_REASONS:
+        text = text.replace(phrase, words)
+    return text
+
+
 def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
     """Per light-response window: ``state`` (accepted, at bound, replaced, rejected), ``why``.
 
@@ -1868,6 +1908,7 @@ def window_status(parameters: pd.DataFrame) -> pd.DataFrame:
         why = reason.where(reason.str.lower() != "ok", "")
     at_bound = why.str.contains("bound", case=False, na=False) & (state == "accepted")
     state = state.where(~at_bound, "at bound")
+    why = why.map(plain_reason, na_action="ignore")
     return pd.DataFrame({"state": state.astype(object), "why": why.astype(object)},
                         index=parameters.index)
 
@@ -2068,9 +2109,11 @@ def figure_light_response(drawing, written) -> Figure:
         end = pd.Timestamp(window["window_end"]) - pd.Timedelta(minutes=1)
         state, why = states.loc[position, "state"], states.loc[position, "why"]
         flagged = state != "accepted"
-        why = textwrap.shorten(str(why), width=36, placeholder=" …")
+        # the reason on a line of its own: in plain words it no longer fits beside the
+        # dates (round leftovers61)
+        why = textwrap.shorten(str(why), width=72, placeholder=" …")
         axis.set_title(f"{day_text(start, year=False)} – {day_text(end)}: {state}"
-                       + (f" ({why})" if why else ""),
+                       + (f"\n{why}" if why else ""),
                        loc="left", color=_VERMILLION if flagged else _BLACK, fontsize=8.5)
         if flagged:
             for spine in axis.spines.values():

@@ -92,7 +92,12 @@ from ._validate import (
 )
 from .civil_splits import second_pass_head
 from .code_values import JUDGED_MAGNITUDE, NIGHT_POTENTIAL, ordinary_code_message
-from .comma_fields import field_count, unquoted_decimal_commas, unquoted_fraction_commas
+from .comma_fields import (
+    field_count,
+    split_decimal_comma,
+    unquoted_decimal_commas,
+    unquoted_fraction_commas,
+)
 from .config import Config, refuse_misplaced_processing, setting_text, suggest_key
 from .double_byte_text import double_byte_readings
 from .errors import (
@@ -112,6 +117,7 @@ from .errors import (
 from .file_digest import sha256_of_file
 from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
 from .flag_counter import many_values_text
+from .flag_grades import middle_grade_warning
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -1339,6 +1345,13 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
                             f"{[flag_shown(v, words, word_counts) for v in flag_values]}"
                             f"{_in_brackets(many_values_text(flags, flag_columns))}: check which values mean a good "
                             "record")
+        elif not words:
+            # a third rejected, a middle grade among them (0-1-2 under flag_accept = [0]):
+            # `check` named no problem (round leftovers61)
+            middle = middle_grade_warning(flags, flag_columns, flag_accept,
+                                          converted["nee"], converted["nee_flag"])
+            if middle:
+                warnings.append(middle)
     if "vpd" not in converted:
         converted["vpd"] = vpd_from_rh(converted["rh"], converted["tair"])
         derived.append("vpd")
@@ -4742,6 +4755,11 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
         if delimiter == "," and not named:
             named = unquoted_fraction_commas(str(path), text.splitlines(), rows_before_header,
                                              rows_before_header + rows_after_header + 1)
+        if delimiter == "," and decimal != "," and not named:
+            # '1,0' in single quotes (no CSV quotes) or unquoted: named with its column
+            # (round leftovers61; "a delimiter inside a value" before)
+            named = split_decimal_comma(str(path), text.splitlines(), rows_before_header,
+                                        rows_before_header + rows_after_header + 1)
         if named:
             raise InputFileError(named) from None
         if borrowed:

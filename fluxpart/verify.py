@@ -72,7 +72,6 @@ its wording) and :mod:`fluxpart.verify_network` (a batch output folder).
 from __future__ import annotations
 
 import dataclasses
-from pathlib import Path
 
 from .errors import FluxpartError, InputFileError, OutputError
 from .manifest import escaped_paths, read_manifest, shown_name
@@ -106,11 +105,14 @@ from .verify_folder import (
     _read_stored,
     recorded_facts,
     replaced_manifest,
+    resolved_folder,
     result_identity,
 )
 from .verify_report import (
     CONFIG_EDITED,
     JSON_FORMAT,
+    NOT_RECOMPUTED,
+    RUN_BESIDE,
     VERIFY_CAUTION,
     VerifyReport,
     metadata_summary,
@@ -164,7 +166,9 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
     """
     from .resultdir import recover_missing
 
-    directory = Path(directory).absolute()
+    # resolved, so that the verdict and notes name the folder itself, not the way to it
+    # (`auditor/../usb/out`, round leftovers61); the folder's name kept where it is a link
+    directory = resolved_folder(directory)
     # a write interrupted between its two renames: the earlier result put back, and said
     restored = recover_missing(directory, notify=lambda text: None)
     manifest, differences, folder_notes, stored_tables = _read_stored(directory)
@@ -197,8 +201,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
         # a killed `fluxpart run` into this folder leaves the earlier result whole, or, killed
         # between its swap and removing the old result (then in the staging folder), its own
         # result: without this note the verdict read as if the folder surely held that run's
-        notes.append(f"{', '.join(stopped)} beside the folder: a fluxpart run into it is "
-                     "running now or was stopped before it finished; the folder holds the "
+        notes.append(f"{', '.join(stopped)} beside the folder: {RUN_BESIDE}; the folder holds the "
                      "complete result named on the result: line, the earlier one or, if "
                      "that run was stopped just after swapping its result in, its own (the "
                      "next run removes what a stopped one left)")
@@ -244,7 +247,7 @@ def verify(directory, *, input_path=None, config_path=None, exact: bool = False
                                 tables=tuple(sorted(stored_tables)),
                                 differences=tuple(differences),
                                 environment=tuple(environment), code_changed=code_changed,
-                                exact=exact, notes=(*notes, "not recomputed: "
+                                exact=exact, notes=(*notes, NOT_RECOMPUTED
                                                      + str(error).removeprefix("verify: ")),
                                 replaced_manifest=replaced_manifest(differences, manifest,
                                                                     run_log=run_log))

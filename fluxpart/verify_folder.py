@@ -8,7 +8,8 @@ input named (:func:`_recorded_file_inside`). What the manifest records is stated
 code and platform set against this one's (:func:`_environment`), and the folder's trail
 checked: a run log gone (:func:`_run_log_note`), a report page drawn from another result
 (:func:`_page_of_other_result`), another run's manifest copied in
-(:func:`replaced_manifest`).
+(:func:`replaced_manifest`). The folder is named as it is on disk, not by the way a user
+reached it (:func:`resolved_folder`).
 """
 
 from __future__ import annotations
@@ -33,6 +34,37 @@ from .store import file_sha256, read_table
 from .verify_compare import Difference
 from .verify_fields import _ENVIRONMENT_KEYS
 from .verify_report import _MAY_DIFFER
+
+
+def resolved_folder(directory) -> Path:
+    """The result folder as verify names it: absolute, ``..`` and links of the folders
+    above it resolved (`Path.resolve`), so that ``auditor/../usb/out`` is shown as
+    ``/.../usb/out`` in the verdict and its notes.
+
+    A folder that is itself a symbolic link keeps its own name (its parent resolved):
+    an interrupted write leaves its retired and staging copies beside the name it was
+    written to, and verify looks for them there. Nothing recorded in the folder is
+    changed; recorded paths relative to the folder name the same files, since the
+    operating system resolves ``..`` after the links before it (POSIX.1-2017, 4.13
+    Pathname Resolution (m)).
+
+    Parameters
+    ----------
+    directory : path-like
+        The folder as given on the command line (it may be missing: a repair puts it
+        back).
+
+    Returns
+    -------
+    pathlib.Path
+        The resolved path.
+
+    References
+    ----------
+    Python documentation, ``pathlib.Path.resolve`` (non-strict) (m).
+    """
+    path = Path(directory).absolute()
+    return path.parent.resolve() / path.name if path.is_symlink() else path.resolve()
 
 
 def _read_run_log(directory: Path) -> dict | None:

@@ -29,6 +29,7 @@ from .manifest import manifest_text, shown_path
 from .network_layout import NETWORK_DATASETS, NETWORK_SEAL
 from .network_tables import SealMismatch, failed_sites, network_table
 from .verify import JSON_FORMAT, VERIFY_CAUTION, verify
+from .verify_folder import resolved_folder
 
 __all__ = ["NetworkReport", "is_network_folder", "verify_network"]
 
@@ -215,7 +216,7 @@ def verify_network(directory, *, exact: bool = False) -> NetworkReport:
     Common practice of reproducible computation: a result is checked by recomputing
     it from its recorded input and settings, here one site at a time.
     """
-    out = Path(directory).absolute()
+    out = resolved_folder(directory)      # named as on disk (round leftovers61)
     sealed = _listed_sites(out)
     listed = sealed or []
     # a site folder gone is named with the sites that could not be verified, and the walk

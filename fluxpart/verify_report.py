@@ -33,6 +33,17 @@ from .verify_compare import (
 #: run's (its recorded copy was used): the note ``--quiet`` keeps (:attr:`VerifyReport.kept_notes`).
 CONFIG_EDITED = "is another version"
 
+#: The notes that change the folder or what its verdict means, kept by ``--quiet`` too
+#: (:attr:`VerifyReport.kept_notes`), each told by a phrase of its own: verify put the
+#: earlier result back from the retired copy an interrupted swap left
+#: (:func:`fluxpart.resultdir.recover_missing`), a run into the folder is running or
+#: was stopped (the verdict may be of the earlier result), nothing was recomputed (the
+#: verdict is of the folder against its manifest alone). ``--quiet`` had hidden them
+#: all, so an auditor did not learn that a folder was repaired (round leftovers61).
+FOLDER_REPAIRED = "was missing: a fluxpart run into it was stopped"
+RUN_BESIDE = "a fluxpart run into it is running now or was stopped before it finished"
+NOT_RECOMPUTED = "not recomputed: "
+
 
 #: Tables that hold only error models, and the column names that state an uncertainty
 #: (a sigma, a part of one, an interval's bound): where newer code changed only these,
@@ -209,10 +220,15 @@ class VerifyReport:
     def kept_notes(self) -> list[str]:
         """The notes the one-line verdicts keep (``--quiet``, a network's site): the site
         config at its recorded place edited since the run, whose recorded copy the verdict
-        used. Without it a reader of that file took its settings for the verified ones
-        (review75)."""
+        used (without it a reader of that file took its settings for the verified ones,
+        review75); the folder repaired by this verify, a run into it running or stopped,
+        nothing recomputed (:data:`FOLDER_REPAIRED`, :data:`RUN_BESIDE`,
+        :data:`NOT_RECOMPUTED`: an auditor must know a folder was repaired, round
+        leftovers61). Other notes stay quiet."""
         return [note for note in self.notes
-                if note.startswith("site config: ") and CONFIG_EDITED in note]
+                if (note.startswith("site config: ") and CONFIG_EDITED in note)
+                or FOLDER_REPAIRED in note or RUN_BESIDE in note
+                or note.startswith(NOT_RECOMPUTED)]
 
     @property
     def changes(self) -> list[str]:
