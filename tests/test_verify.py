@@ -164,20 +164,38 @@ def reports_of_verify(monkeypatch):
 
 
 @pytest.fixture(scope="module")
-def genuine_verdicts(bundle):
+def _reruns_of_bundle():
+    """The reruns of the module's untouched `bundle` (:func:`_remember_reruns`)."""
+    return {}
+
+
+@pytest.fixture(scope="module")
+def genuine_verdicts(bundle, _reruns_of_bundle):
     """``fluxpart verify DIR`` and ``fluxpart verify DIR --quiet`` of the module's
     untouched bundle, each a real CLI run: {argv suffix: (exit code, stdout)}. Shared by
-    the tests that read the verdict of the genuine result (each reran it before)."""
+    the tests that read the verdict of the genuine result (each reran it before); the
+    first computes the rerun, the second compares with it (the same genuine folder)."""
     import contextlib
     import io
 
     verdicts = {}
-    for extra in ((), ("--quiet",)):
-        printed = io.StringIO()
-        with contextlib.redirect_stdout(printed):
-            status = main(["verify", str(bundle / "out"), *extra])
-        verdicts[extra] = status, printed.getvalue()
+    with pytest.MonkeyPatch.context() as patch:
+        _remember_reruns(patch, _reruns_of_bundle)
+        for extra in ((), ("--quiet",)):
+            printed = io.StringIO()
+            with contextlib.redirect_stdout(printed):
+                status = main(["verify", str(bundle / "out"), *extra])
+            verdicts[extra] = status, printed.getvalue()
+    assert len(_reruns_of_bundle) == 1
     return verdicts
+
+
+@pytest.fixture
+def bundle_rerun_kept(genuine_verdicts, _reruns_of_bundle, monkeypatch):
+    """The module's untouched `bundle`, its rerun the one :func:`genuine_verdicts`
+    computed: for a test that reaches that genuine folder otherwise (a link) and checks
+    how verify finds its input, which the rerun does not decide."""
+    _remember_reruns(monkeypatch, _reruns_of_bundle)
 
 
 def test_untouched_result_is_bit_identical(genuine_verdicts):
@@ -1303,12 +1321,14 @@ def test_a_manifest_with_a_repeated_key_is_refused_not_passed(copy, capsys):
 
 
 @pytest.mark.parametrize("reseal", [False, True])
-def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(copy, reseal, capsys):
+def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(reseal, request, capsys):
     """A setting edited in the manifest to a value Config refuses (despike_z = 50, beyond
     the 2..20 its check allows; the 4 of Papale et al. 2006 (m) written) was a ConfigError,
     exit 2, naming "[processing]" of a site config that holds no such value (review round
     thirteen). The folder fails its seal, or (resealed) the rerun from the site config gives
-    another value: NOT reproduced, exit 1, the field named where the rerun ran."""
+    another value: NOT reproduced, exit 1, the field named where the rerun ran. (Not
+    resealed, the seal decides: the rerun of `folder_check_copy` serves.)"""
+    copy = request.getfixturevalue("copy" if reseal else "folder_check_copy")
     _edit_manifest(copy / "out", lambda m: m["config"].update(despike_z=50.0), reseal=reseal)
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
@@ -1471,7 +1491,8 @@ def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, rerun
     assert "daily: the rewritten file's values are not the rerun's where listed" in out
 
 
-def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, tmp_path, capsys):
+def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, bundle_rerun_kept,
+                                                                  tmp_path, capsys):
     """`latest -> /runs/2021/out` from another folder: the input recorded as
     `../tower.csv` was looked for beside the link (the path's `..` taken by name), said
     missing, exit 2; `..` of the real folder leads to its real parent (POSIX path
