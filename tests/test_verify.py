@@ -244,10 +244,12 @@ def test_verify_names_which_result_the_folder_holds(bundle, genuine_verdicts):
     assert line.startswith("result: seed 0;") and "written by fluxpart " in line
 
 
-def test_moved_bundle_verifies_without_options(bundle, tmp_path):
-    """Result, input and config moved together: found through the recorded relative paths."""
-    moved = tmp_path / "elsewhere" / "deeper"
-    shutil.copytree(bundle, moved)
+def test_moved_bundle_verifies_without_options(folder_check_copy):
+    """Result, input and config moved together: found through the recorded relative paths.
+
+    (The copy is at another place than the module's bundle it was copied from; finding
+    the input decides, before the rerun: see `folder_check_copy`.)"""
+    moved = folder_check_copy           # a copy of the bundle put elsewhere
     manifest = json.loads((moved / "out" / "manifest.json").read_text())
     assert manifest["provenance"]["input"]["path"] == "../tower.csv"
     assert not Path(manifest["provenance"]["site_config"]["path"]).is_absolute()
