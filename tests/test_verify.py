@@ -190,14 +190,6 @@ def genuine_verdicts(bundle, _reruns_of_bundle):
     return verdicts
 
 
-@pytest.fixture
-def bundle_rerun_kept(genuine_verdicts, _reruns_of_bundle, monkeypatch):
-    """The module's untouched `bundle`, its rerun the one :func:`genuine_verdicts`
-    computed: for a test that reaches that genuine folder otherwise (a link) and checks
-    how verify finds its input, which the rerun does not decide."""
-    _remember_reruns(monkeypatch, _reruns_of_bundle)
-
-
 def test_untouched_result_is_bit_identical(genuine_verdicts):
     """`fluxpart verify DIR` on an untouched folder says 'bit-identical' and exits 0."""
     status, out = genuine_verdicts[()]
@@ -1493,12 +1485,21 @@ def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, rerun
     assert "daily: the rewritten file's values are not the rerun's where listed" in out
 
 
-def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, bundle_rerun_kept,
-                                                                  tmp_path, capsys):
+def test_a_result_reached_through_a_symbolic_link_finds_its_input(folder_check_copy, tmp_path,
+                                                                  capsys):
     """`latest -> /runs/2021/out` from another folder: the input recorded as
     `../tower.csv` was looked for beside the link (the path's `..` taken by name), said
     missing, exit 2; `..` of the real folder leads to its real parent (POSIX path
-    resolution), where the input is."""
+    resolution), where the input is. The run log (not hashed) is made to name another
+    place of the run, so the input is not found where the run read it instead
+    (`verify_inputs._places_at_run`): the link's real parent decides (round verifytrim:
+    with the log naming the folder, the test passed without that step)."""
+    bundle = folder_check_copy           # finding the input decides, before the rerun
+    log_path = bundle / "out" / "run-log.json"
+    log = json.loads(log_path.read_text(encoding="utf-8"))
+    log["result_folder"], log["working_directory"] = (str(tmp_path / "gone" / "out"),
+                                                      str(tmp_path / "gone"))
+    log_path.write_text(json.dumps(log, indent=2), encoding="utf-8")
     elsewhere = tmp_path / "shortcuts"
     elsewhere.mkdir()
     link = elsewhere / "latest"
