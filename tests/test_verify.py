@@ -20,6 +20,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
 from bundles import SHORT_RECORDS, make_bundle
+from conftest import _run_here
 
 from fluxpart import __version__, demo, schema
 from fluxpart.cli import main
@@ -62,19 +63,146 @@ def _set_value(folder, table, column, change, reseal=True):
     return values[0]
 
 
-def test_untouched_result_is_bit_identical(bundle, capsys):
+def _remember_reruns(monkeypatch, kept: dict) -> dict:
+    """Make verify's rerun (``fluxpart.pipeline.process_site_config``, which
+    ``verify_rerun._recompute`` looks up when it runs) compute each distinct rerun once and
+    give it again from `kept` (the computed ``Result``, which verify only reads: it writes
+    a replaced copy to its scratch folder and compares that).
+
+    Distinct means anything the pipeline reads differs: the key is the site config's path
+    and bytes, the settings (``repr`` of the ``Config``), the input path(s) given and their
+    bytes, the bytes of every file beside the site config (where its ``[input] path``
+    points) and the working folder. The pipeline is deterministic (the audit contract,
+    DESIGN.md §4.1: same input, config and seed give byte-identical tables, which the
+    bit-identical tests here check with a computed rerun), so a kept rerun is what the
+    same call computes again. Verify's own steps (the folder's check against its
+    manifest, the input's SHA-256, writing the rerun and comparing every table and
+    field) still run in full each time. Returns `kept`."""
+    import hashlib
+
+    import fluxpart.pipeline as pipeline
+
+    computed = pipeline.process_site_config
+
+    def digest(path) -> str:
+        path = Path(path)
+        return hashlib.sha256(path.read_bytes()).hexdigest() if path.is_file() else "-"
+
+    def remembered(site_config, config=None, *args, input_path=None, **kwargs):
+        given = [] if input_path is None else (
+            [input_path] if isinstance(input_path, (str, os.PathLike)) else list(input_path))
+        beside = sorted(item for item in Path(site_config).parent.iterdir() if item.is_file())
+        key = (str(site_config), digest(site_config), repr(config), repr(args),
+               repr(sorted(kwargs.items())), tuple((str(p), digest(p)) for p in given),
+               tuple((item.name, digest(item)) for item in beside), os.getcwd())
+        if key not in kept:
+            kept[key] = computed(site_config, config, *args, input_path=input_path, **kwargs)
+        return kept[key]
+
+    monkeypatch.setattr(pipeline, "process_site_config", remembered)
+    return kept
+
+
+@pytest.fixture
+def rerun_kept_in_test(monkeypatch):
+    """Within one test, a rerun of the same input and settings computed once (the first
+    verify of the test's folder reruns; a later verify of the same input and settings,
+    after the test changed only the stored result, compares with that rerun): the
+    recomputation does not read the stored tables, so it is the same (see
+    :func:`_remember_reruns`). Returns the kept reruns (a dict)."""
+    return _remember_reruns(monkeypatch, {})
+
+
+@pytest.fixture(scope="module")
+def _reruns_at_one_place():
+    """The reruns of :func:`folder_check_copy`'s folder, kept for the module."""
+    return {}
+
+
+@pytest.fixture(scope="module")
+def _one_place(tmp_path_factory):
+    """One folder of the module where :func:`folder_check_copy` puts its copy each time."""
+    return tmp_path_factory.mktemp("one_place") / "bundle"
+
+
+@pytest.fixture
+def folder_check_copy(bundle, _one_place, _reruns_at_one_place, monkeypatch):
+    """A fresh copy of the module's genuine `bundle`, always at one place, whose rerun is
+    computed once for the module (:func:`_remember_reruns`).
+
+    For the tests whose check the rerun does not decide: what they check is found by the
+    folder's own check against its manifest (its seal, every table's SHA-256, a file
+    missing or not listed, a file's bytes through a link), by what verify finds beside or
+    inside the folder (a staging folder, a report, the input put inside), or by the
+    recorded environment; each tampers only the stored result, never the input or the
+    site config the rerun reads, so the rerun of every such copy is the genuine bundle's,
+    computed for real by the first of them. The same place keeps the recorded paths (and
+    so the rerun's provenance) the same. A test of a difference only the rerun can find
+    uses `copy` and reruns."""
+    if _one_place.exists():
+        shutil.rmtree(_one_place)
+    shutil.copytree(bundle, _one_place)
+    _remember_reruns(monkeypatch, _reruns_at_one_place)
+    return _run_here(_one_place)
+
+
+@pytest.fixture
+def reports_of_verify(monkeypatch):
+    """The reports ``fluxpart verify`` made in this test (``fluxpart.verify.verify``, which
+    ``command_verify`` calls, wrapped to keep each report it returns): a test that checks
+    both the printed verdict and the report's fields reads them from one CLI run."""
+    import fluxpart.verify as module
+
+    made, real = [], module.verify
+
+    def kept(*args, **kwargs):
+        made.append(real(*args, **kwargs))
+        return made[-1]
+
+    monkeypatch.setattr(module, "verify", kept)
+    return made
+
+
+@pytest.fixture(scope="module")
+def _reruns_of_bundle():
+    """The reruns of the module's untouched `bundle` (:func:`_remember_reruns`)."""
+    return {}
+
+
+@pytest.fixture(scope="module")
+def genuine_verdicts(bundle, _reruns_of_bundle):
+    """``fluxpart verify DIR`` and ``fluxpart verify DIR --quiet`` of the module's
+    untouched bundle, each a real CLI run: {argv suffix: (exit code, stdout)}. Shared by
+    the tests that read the verdict of the genuine result (each reran it before); the
+    first computes the rerun, the second compares with it (the same genuine folder)."""
+    import contextlib
+    import io
+
+    verdicts = {}
+    with pytest.MonkeyPatch.context() as patch:
+        _remember_reruns(patch, _reruns_of_bundle)
+        for extra in ((), ("--quiet",)):
+            printed = io.StringIO()
+            with contextlib.redirect_stdout(printed):
+                status = main(["verify", str(bundle / "out"), *extra])
+            verdicts[extra] = status, printed.getvalue()
+    assert len(_reruns_of_bundle) == 1
+    return verdicts
+
+
+def test_untouched_result_is_bit_identical(genuine_verdicts):
     """`fluxpart verify DIR` on an untouched folder says 'bit-identical' and exits 0."""
-    assert main(["verify", str(bundle / "out")]) == 0
-    out = capsys.readouterr().out
+    status, out = genuine_verdicts[()]
+    assert status == 0
     assert out.startswith("bit-identical")
     assert "not a certified credit" in out           # the caution of the manifest
 
 
-def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys):
+def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(genuine_verdicts, capsys):
     """`fluxpart verify DIR --quiet` prints the verdict, which result it is and the caution
     only, same exit."""
-    assert main(["verify", str(bundle / "out"), "--quiet"]) == 0
-    out = capsys.readouterr().out
+    status, out = genuine_verdicts[("--quiet",)]
+    assert status == 0
     assert out.startswith("bit-identical") and out.count("\n") == 3
     assert out.splitlines()[1].startswith("result: seed 0; input tower.csv (sha256 ")
     assert out.splitlines()[2].startswith("Caution:") and "not a certified credit" in out
@@ -82,8 +210,10 @@ def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys)
     # said "only the verdict and the caution" before review25)
     import re
 
-    shown = subprocess.run([sys.executable, "-m", "fluxpart", "verify", "--help"],
-                           capture_output=True, text=True, check=True).stdout
+    with pytest.raises(SystemExit) as stop:                 # argparse's --help
+        main(["verify", "--help"])
+    assert stop.value.code == 0
+    shown = capsys.readouterr().out
     help_text = " ".join(shown[shown.index("--quiet "):].split())
     assert "verdict" in help_text and "result: line" in help_text and "caution" in help_text
     readme = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
@@ -92,23 +222,26 @@ def test_quiet_verify_prints_only_the_verdict_with_the_same_exit(bundle, capsys)
     assert "--quiet: verdict" in entry and "result: line and caution only" in entry
 
 
-def test_verify_names_which_result_the_folder_holds(bundle, tmp_path, capsys):
+def test_verify_names_which_result_the_folder_holds(bundle, genuine_verdicts):
     """After an interrupted run a folder holds the earlier or the new result, never a mix;
     verify names which from the manifest: seed, input and config with their SHA-256, and
     the release (review, 0.12.0). The SHA-256 prefixes equal hashlib's of the files."""
     import hashlib
 
-    assert main(["verify", str(bundle / "out")]) == 0
-    line = next(x for x in capsys.readouterr().out.splitlines() if x.startswith("result: "))
+    status, out = genuine_verdicts[()]
+    assert status == 0
+    line = next(x for x in out.splitlines() if x.startswith("result: "))
     digest = hashlib.sha256((bundle / "tower.csv").read_bytes()).hexdigest()
     assert f"input tower.csv (sha256 {digest[:12]}...)" in line
     assert line.startswith("result: seed 0;") and "written by fluxpart " in line
 
 
-def test_moved_bundle_verifies_without_options(bundle, tmp_path):
-    """Result, input and config moved together: found through the recorded relative paths."""
-    moved = tmp_path / "elsewhere" / "deeper"
-    shutil.copytree(bundle, moved)
+def test_moved_bundle_verifies_without_options(folder_check_copy):
+    """Result, input and config moved together: found through the recorded relative paths.
+
+    (The copy is at another place than the module's bundle it was copied from; finding
+    the input decides, before the rerun: see `folder_check_copy`.)"""
+    moved = folder_check_copy           # a copy of the bundle put elsewhere
     manifest = json.loads((moved / "out" / "manifest.json").read_text())
     assert manifest["provenance"]["input"]["path"] == "../tower.csv"
     assert not Path(manifest["provenance"]["site_config"]["path"]).is_absolute()
@@ -218,11 +351,13 @@ def test_another_runs_manifest_copied_in_is_named_as_the_replaced_file(copy, cap
 
 
 @pytest.mark.parametrize("key", ["versions", "code", "platform"])
-def test_environment_entry_edited_to_another_type_is_tampering_not_a_crash(copy, key, capsys):
+def test_environment_entry_edited_to_another_type_is_tampering_not_a_crash(folder_check_copy, key,
+                                                                           capsys):
     """A manifest whose versions, code or platform entry is no JSON object: exit 1, named.
 
     It raised AttributeError / TypeError (a traceback) before.
     """
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     _edit_manifest(copy / "out", lambda m: m.update({key: 5}))
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
@@ -232,10 +367,11 @@ def test_environment_entry_edited_to_another_type_is_tampering_not_a_crash(copy,
     assert named in out
 
 
-def test_a_folder_of_another_result_format_is_named_in_one_readable_line(copy, capsys):
+def test_a_folder_of_another_result_format_is_named_in_one_readable_line(folder_check_copy, capsys):
     """A manifest of another format (a folder an older or newer release wrote): exit 1 and
     the format line reads as the folder check words it; it printed "column 'manifest.json'
     format differ: stored has format ..., recomputed " (review, round five)."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     _edit_manifest(copy / "out", lambda m: m.update(format="fluxpart-result/1"), reseal=True)
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
@@ -244,8 +380,9 @@ def test_a_folder_of_another_result_format_is_named_in_one_readable_line(copy, c
     assert "format differ" not in out
 
 
-def test_extra_and_missing_files_are_named(copy, capsys):
+def test_extra_and_missing_files_are_named(folder_check_copy, capsys):
     """A stale table left in the folder and a deleted one: exit 1, both named; load refuses."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     shutil.copy(copy / "out" / "daily.parquet", copy / "out" / "parameters_old.parquet")
     (copy / "out" / "audit.parquet").unlink()
     assert main(["verify", str(copy / "out")]) == 1
@@ -380,7 +517,7 @@ def test_descriptions_as_an_earlier_release_wrote_them_verify_with_a_note(copy, 
 
 
 def test_a_description_reworded_by_other_code_names_the_code_as_likely_cause(
-        copy, monkeypatch, capsys):
+        copy, rerun_kept_in_test, monkeypatch, capsys):
     """An auditor's newer install rewords a column's description (values equal, as the
     ``ustar_threshold`` text after 0.30.0): NOT reproduced on the metadata, and the verdict
     names the changed code as the likely cause. The environment line no longer says so of
@@ -524,7 +661,7 @@ def test_the_copies_of_a_reworded_description_are_one_item_per_column(monkeypatc
 
 
 def test_an_edited_file_names_its_edited_unit_and_a_description_edited_with_a_value(
-        copy, capsys):
+        copy, rerun_kept_in_test, capsys):
     """A table edited after it was written (its SHA-256 not forged): its metadata were
     compared only where the rerun's file differed from the recorded one and every value
     was equal, so an edited unit, or a description edited beside a value, printed only
@@ -608,17 +745,19 @@ def test_an_edited_unit_in_the_pandas_copy_is_not_reproduced(copy, capsys):
            "'g m-2')" in out
 
 
-def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, capsys):
+def test_last_bit_change_is_rounding_and_exact_refuses_it(copy, rerun_kept_in_test,
+                                                          reports_of_verify, capsys):
     """A one-ulp change in a consistent folder (as another CPU gives) is rounding: exit 0.
 
     ``numpy.nextafter`` moves the value to the adjacent double (IEEE 754), a relative
     change of at most 2.2e-16, far under the tolerance; `--exact` demands bit identity.
     """
     _set_value(copy / "out", "daily", "nee", lambda v: float(np.nextafter(v, np.inf)))
-    report = verify(copy / "out")
+    assert main(["verify", str(copy / "out")]) == 0
+    (report,) = reports_of_verify                   # the report that CLI run printed
     assert report.reproduced and not report.identical
     assert 0 < report.largest_relative_difference <= 2.3e-16
-    assert main(["verify", str(copy / "out")]) == 0
+    assert len(rerun_kept_in_test) == 1             # computed; --exact below compares anew
     out = capsys.readouterr().out
     assert out.startswith("reproduced within floating-point rounding (largest relative "
                           "difference")
@@ -636,7 +775,8 @@ def test_change_beyond_the_tolerance_is_not_rounding(copy):
         ("daily", "nee", "value")]
 
 
-def test_changed_code_fingerprint_is_named_as_likely_cause(copy, monkeypatch, capsys):
+def test_changed_code_fingerprint_is_named_as_likely_cause(copy, rerun_kept_in_test,
+                                                           monkeypatch, capsys):
     """Other code: reported as environment; with a differing value, named as likely cause."""
     import fluxpart.verify_folder as module
 
@@ -857,15 +997,14 @@ def test_code_fingerprint_is_taken_before_the_run(tmp_path, monkeypatch):
     assert manifest["code"]["sha256"] == real(calls[0])[0]
 
 
-def test_verify_says_the_report_folder_is_not_verified(bundle, tmp_path, capsys):
+def test_verify_says_the_report_folder_is_not_verified(folder_check_copy, capsys):
     """A report/ folder is outside the manifest's hashes (it is drawn from the tables):
     verify says so instead of letting "bit-identical" cover an edited page (review,
     0.12.0)."""
-    copy = tmp_path / "copy"
-    shutil.copytree(bundle, copy)
-    (copy / "out" / "report").mkdir()
-    (copy / "out" / "report" / "report.html").write_text("<p>edited</p>", encoding="utf-8")
-    assert main(["verify", str(copy / "out")]) == 0
+    out_dir = folder_check_copy / "out"
+    (out_dir / "report").mkdir()
+    (out_dir / "report" / "report.html").write_text("<p>edited</p>", encoding="utf-8")
+    assert main(["verify", str(out_dir)]) == 0
     out = capsys.readouterr().out
     assert "note: report/: the page and its figures" in out and "not verified" in out
 
@@ -920,10 +1059,11 @@ def test_another_seed_given_with_config_is_named_with_both_values(copy, capsys):
             "run: [processing] seed 0 -> 7, so nothing was recomputed") in out
 
 
-def test_one_flipped_byte_is_named_by_its_file_even_quiet(copy, capsys):
+def test_one_flipped_byte_is_named_by_its_file_even_quiet(folder_check_copy, capsys):
     """One byte of a Parquet file flipped (bit rot, a hand edit): exit 1, and the file is
     named by its name on disk, also in the one-line verdict of --quiet, which named no file
     before (review, round six)."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     path = copy / "out" / "daily.parquet"
     data = bytearray(path.read_bytes())
     data[len(data) // 2] ^= 0x01
@@ -935,10 +1075,12 @@ def test_one_flipped_byte_is_named_by_its_file_even_quiet(copy, capsys):
     assert "(daily.parquet was changed after it was written)" in capsys.readouterr().out
 
 
-def test_quiet_verdict_names_a_missing_an_unlisted_file_and_an_edited_manifest(copy, capsys):
+def test_quiet_verdict_names_a_missing_an_unlisted_file_and_an_edited_manifest(folder_check_copy,
+                                                                               capsys):
     """--quiet named only tables whose bytes changed: a table deleted, a file added by a
     file manager (.DS_Store) or an edited manifest gave 'NOT reproduced: 1 difference(s)'
     and no name (review round seven)."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     out = copy / "out"
     # a file manager's .DS_Store is a note since round faults21 (a Finder copy of a
     # genuine result verifies); a file a user added is still a difference
@@ -1103,12 +1245,13 @@ def test_a_long_manifest_field_shows_where_the_two_values_part():
     assert (short.stored, short.recomputed) == ("0", "7")
 
 
-def test_verify_names_what_a_stopped_run_left_beside_the_folder(copy, capsys):
+def test_verify_names_what_a_stopped_run_left_beside_the_folder(folder_check_copy, capsys):
     """A run killed (kill -9) into an earlier result leaves that result whole and its
     staging folder beside it; verify said 'bit-identical' for the earlier result without
     a word of the stopped run, which a user who started that run reads as its result.
     The staging folder is made by the writer's own make_staging; the contract (README,
     'Output files') is that the folder is the earlier complete result."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     from fluxpart.resultdir import make_staging
 
     staging = make_staging(copy / "out")
@@ -1172,12 +1315,14 @@ def test_a_manifest_with_a_repeated_key_is_refused_not_passed(copy, capsys):
 
 
 @pytest.mark.parametrize("reseal", [False, True])
-def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(copy, reseal, capsys):
+def test_a_manifest_setting_edited_out_of_range_is_not_reproduced(reseal, request, capsys):
     """A setting edited in the manifest to a value Config refuses (despike_z = 50, beyond
     the 2..20 its check allows; the 4 of Papale et al. 2006 (m) written) was a ConfigError,
     exit 2, naming "[processing]" of a site config that holds no such value (review round
     thirteen). The folder fails its seal, or (resealed) the rerun from the site config gives
-    another value: NOT reproduced, exit 1, the field named where the rerun ran."""
+    another value: NOT reproduced, exit 1, the field named where the rerun ran. (Not
+    resealed, the seal decides: the rerun of `folder_check_copy` serves.)"""
+    copy = request.getfixturevalue("copy" if reseal else "folder_check_copy")
     _edit_manifest(copy / "out", lambda m: m["config"].update(despike_z=50.0), reseal=reseal)
     assert main(["verify", str(copy / "out")]) == 1
     out = capsys.readouterr().out
@@ -1212,7 +1357,8 @@ def test_a_rerun_that_cannot_be_written_is_named_as_verify_s_own(bundle, tmp_pat
     assert list(scratch_root.iterdir()) == []
 
 
-def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, capsys):
+def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, rerun_kept_in_test,
+                                                                  capsys):
     """A byte-order mark (U+FEFF encoded as EF BB BF, the Unicode Standard's UTF-8 BOM) that
     an editor adds on saving, with CR LF line ends and another indent, changes no content:
     the seal covers the parsed manifest. The BOM alone made verify, diff and report exit 2
@@ -1230,12 +1376,13 @@ def test_a_manifest_resaved_with_a_byte_order_mark_still_verifies(copy, capsys):
     assert "manifest.json was edited after it was written" in capsys.readouterr().out
 
 
-def test_a_killed_reports_staging_is_a_note_not_a_difference(copy, capsys):
+def test_a_killed_reports_staging_is_a_note_not_a_difference(folder_check_copy, capsys):
     """A report stopped outright (``kill -9``, a closed terminal) leaves its staging folder
     ``.report.staging-*`` inside the result folder. The report is not covered by the
     manifest's hashes (report/ may hold anything), so that leftover is no change of the
     result: verify named a genuine result "NOT reproduced" (exit 1) for it; now a note,
     exit 0. Any other unlisted entry is still a difference (DESIGN.md §4.1: exit 1)."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     killed = copy / "out" / ".report.staging-k1ll3d00"
     killed.mkdir()
     (killed / "daily_fluxes.png").write_bytes(b"half a figure")
@@ -1276,12 +1423,13 @@ def test_a_run_replacing_the_folder_while_verify_reads_it_is_read_again(copy, mo
     assert manifest["config"]["random_error_draws"] == 21      # the result now there
 
 
-def test_tables_kept_as_links_into_a_content_store_verify(copy, capsys):
+def test_tables_kept_as_links_into_a_content_store_verify(folder_check_copy, capsys):
     """git-annex and DVC keep each file of a tracked folder as a symbolic link into their
     content store (git-annex walkthrough, "adding files" (m); DVC's `cache.type = symlink`
     (m)). A genuine result checked out so was "NOT reproduced", every table and the
     manifest named as "not a plain file"; the hashes read through the links match, so it
     is reproduced. A link whose content was not fetched is named once, as such."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     store = copy / "store"
     store.mkdir()
     folder = copy / "out"
@@ -1314,7 +1462,8 @@ def test_a_folder_given_as_input_or_config_is_named_as_a_folder(bundle, capsys):
     assert "does not exist" in capsys.readouterr().err
 
 
-def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, capsys):
+def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, rerun_kept_in_test,
+                                                                     capsys):
     """A table read and written back with pandas (`read_parquet` then `to_parquet`,
     pandas' own default RangeIndex) loses fluxpart's metadata: verify said only that it
     was unreadable, not whether the numbers changed. Now it compares the values pandas
@@ -1336,11 +1485,21 @@ def test_a_table_rewritten_by_pandas_says_whether_its_values_changed(copy, capsy
     assert "daily: the rewritten file's values are not the rerun's where listed" in out
 
 
-def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, tmp_path, capsys):
+def test_a_result_reached_through_a_symbolic_link_finds_its_input(folder_check_copy, tmp_path,
+                                                                  capsys):
     """`latest -> /runs/2021/out` from another folder: the input recorded as
     `../tower.csv` was looked for beside the link (the path's `..` taken by name), said
     missing, exit 2; `..` of the real folder leads to its real parent (POSIX path
-    resolution), where the input is."""
+    resolution), where the input is. The run log (not hashed) is made to name another
+    place of the run, so the input is not found where the run read it instead
+    (`verify_inputs._places_at_run`): the link's real parent decides (round verifytrim:
+    with the log naming the folder, the test passed without that step)."""
+    bundle = folder_check_copy           # finding the input decides, before the rerun
+    log_path = bundle / "out" / "run-log.json"
+    log = json.loads(log_path.read_text(encoding="utf-8"))
+    log["result_folder"], log["working_directory"] = (str(tmp_path / "gone" / "out"),
+                                                      str(tmp_path / "gone"))
+    log_path.write_text(json.dumps(log, indent=2), encoding="utf-8")
     elsewhere = tmp_path / "shortcuts"
     elsewhere.mkdir()
     link = elsewhere / "latest"
@@ -1350,11 +1509,13 @@ def test_a_result_reached_through_a_symbolic_link_finds_its_input(bundle, tmp_pa
     assert capsys.readouterr().out.startswith("bit-identical")
 
 
-def test_a_staging_folder_beside_the_result_is_noted_without_claiming_whose(copy, capsys):
+def test_a_staging_folder_beside_the_result_is_noted_without_claiming_whose(folder_check_copy,
+                                                                            capsys):
     """A run killed after swapping its result in but before removing the old one (the
     swap exchanges the two folders: the staging name then holds the earlier result) leaves
     the new result in the folder; the note said the folder held "not that run's" result,
     wrong in that case. It now names both possibilities; the verdict is the folder's."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     staging = copy / ".out.staging-k1ll3d00"
     staging.mkdir()
     (staging / "annual.parquet").write_bytes(b"half of the earlier result")
@@ -1383,12 +1544,13 @@ def test_an_input_name_decomposed_by_a_mac_copy_is_found(tmp_path, capsys):
     assert capsys.readouterr().out.startswith("bit-identical")
 
 
-def test_the_input_put_into_the_result_folder_is_named_as_the_input(copy, capsys):
+def test_the_input_put_into_the_result_folder_is_named_as_the_input(folder_check_copy, capsys):
     """A result folder sent with its input file inside it: verify called it "not listed in
     the manifest", like any stray file, without saying it is the genuine input (SHA-256
     from hashlib equal to the recorded one) or that moving it to its recorded place is the
     fix. The verdict is unchanged (exit 1): the folder is not the one written; a file
     that is not the input is still only "not listed"."""
+    copy = folder_check_copy      # the rerun it compares with: see that fixture
     shutil.copy(copy / "tower.csv", copy / "out" / "tower.csv")
     (copy / "out" / "notes.txt").write_text("mine\n")
     assert main(["verify", str(copy / "out")]) == 1
