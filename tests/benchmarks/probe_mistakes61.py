@@ -423,14 +423,14 @@ def network_cases(pair, only) -> list[dict]:
         (root / "network.toml").write_text('[batch]\nsites = ["towers/*/*.toml"]\n'
                                            'out = "out"\n')
         cfgs = []
-        for (frame, cfg, _), name in zip(sites, names):
+        for (_, cfg, _), name in zip(sites, names, strict=True):
             cfg = copy.deepcopy(cfg)
             cfg["site"]["name"] = f'"Mistakes61 {name} (fictional)"'
             cfg["input"]["path"] = f'"{name}.csv"'
             cfgs.append(cfg)
         if edit:
             edit(cfgs)
-        for (frame, _, _), cfg, name in zip(sites, cfgs, names):
+        for (frame, _, _), cfg, name in zip(sites, cfgs, names, strict=True):
             folder = root / "towers" / name
             folder.mkdir(parents=True)
             write({f"{name}.csv": frame}, cfg, folder, f"{name}.toml")
