@@ -175,17 +175,49 @@ def second_year_restamped(frame, cfg, info):
 
 
 def _other_site_spec(info):
-    """Another site of the same generator at a similar latitude (within 8 degrees) and
-    the same record interval, or the nearest one."""
+    """Another site of the same generator and record interval, the nearest in degrees
+    of latitude plus half those of longitude (its stamps are moved to this site's clock
+    by :func:`_other_tower`)."""
     own = info["spec"]
     others = [s for s in info["module"].SITES if s[0] != own[0] and int(s[5]) == int(own[5])]
-    others.sort(key=lambda s: abs(s[1] - own[1]) + 0.01 * abs(s[2] - own[2]))
+    others.sort(key=lambda s: abs(s[1] - own[1]) + abs(s[2] - own[2]) / 2)
     return others[0]
+
+
+def _as_columns(other, columns):
+    """`other` with this site's columns: Rg from PPFD (/ 2.1 µmol J-1, common practice
+    (m)) or back where the towers measure different ones, absent ones missing."""
+    out = pd.DataFrame(index=other.index)
+    for column in columns:
+        if column in other:
+            out[column] = other[column]
+        elif column == "ppfd" and "rg" in other:
+            out[column] = other["rg"] * 2.1
+        elif column == "rg" and "ppfd" in other:
+            out[column] = other["ppfd"] / 2.1
+        else:
+            out[column] = np.nan
+    return out
+
+
+def _other_tower(info, seed, year):
+    """The other tower's site-year (:func:`_other_site_spec`) stamped in this site's
+    standard time and moved to `year` (its generator may write another year)."""
+    spec = _other_site_spec(info)
+    other, _ = info["module"].generate(spec, seed)
+    other = other[[c for c in ("nee", "rg", "ppfd", "tair", "rh", "vpd", "ustar", "tsoil")
+                   if c in other]]
+    step = int(spec[5])
+    hours = info["utc"] - float(spec[3])
+    stamps = _stamps(other) + pd.Timedelta(minutes=round(hours * 60 / step) * step)
+    other.index = stamps + pd.DateOffset(years=year - stamps[len(stamps) // 2].year)
+    return _with_flag(other[~other.index.duplicated()])
 
 
 def second_year_other_site(frame, cfg, info):
     """The second year's file is another tower's (the generator's nearest other site)."""
-    other = next_year(info, spec=_other_site_spec(info))
+    other = _other_tower(info, info["seed"] + 1, _stamps(frame)[len(frame) // 2].year + 1)
+    other = _as_columns(other.reindex(_stamps(next_year(info))), frame.columns)
     return _year_files(frame, other), _glob_cfg(cfg), "two"
 
 
@@ -196,11 +228,12 @@ def monthly(frame, cfg, info):
 def month_of_other_site(frame, cfg, info):
     """Monthly files; June's is another tower's (same generator, its June)."""
     files = _monthly(frame)
-    other, _ = info["module"].generate(_other_site_spec(info), info["seed"])
-    other = _with_flag(other[[c for c in frame.columns if c in other and c != "qc"]])
     key = next(k for k in files if k.endswith("-06.csv"))
     stamps = _stamps(files[key])
-    files[key] = other.reindex(stamps)
+    other = _other_tower(info, info["seed"], stamps[0].year)
+    files[key] = _as_columns(other.reindex(stamps), files[key].columns)
+    if files[key]["nee"].notna().sum() < 0.5 * files[key]["qc"].size:
+        raise RuntimeError("the other tower's June holds no NEE at these stamps")
     return files, _glob_cfg(cfg), "one"
 
 
