@@ -413,6 +413,10 @@ MISTAKES = {
     # reruns
     "rerun with another seed (1 for 0)": _setting("processing", "seed", 1),
     "settings of 0.32.0 (driver_day_prior absent)": old_release_settings,
+    # the one [processing] key the project ever removed (structural_error, added and
+    # reverted on the development line): an older settings file that holds it
+    "settings key removed since (structural_error)": _setting("processing",
+                                                              "structural_error", '"shared"'),
 }
 
 
