@@ -527,6 +527,41 @@ def network_cases(pair, only) -> list[dict]:
     return rows
 
 
+def flag_scan(seeds) -> None:
+    """False alarms of :func:`fluxpart.flag_reach.keeps_every_value` on every site-year of
+    the seven clean generators (``probe_mistakes60.GENERATORS``): each given the flag of
+    :func:`probe_mistakes60.clean_site` (0 good, 2 on 5 % of the measured records) read
+    with ``flag_accept = [0]``, and a 0/1/2 flag (1 on a further 10 %) read with
+    ``[0, 1]``, both right; then the power: the 0/2 flag read with ``[0, 2]``."""
+    import importlib
+
+    from probe_mistakes60 import GENERATORS
+
+    from fluxpart.flag_reach import keeps_every_value
+    counts = {"site-years": 0, "named [0] on 0/2": 0, "named [0, 1] on 0/1/2": 0,
+              "named [0, 2] on 0/2": 0}
+    for module_name in GENERATORS:
+        module = importlib.import_module(module_name)
+        for spec in module.SITES:
+            for seed in seeds:
+                frame, _ = module.generate(spec, seed)
+                nee = frame["nee"].to_numpy()
+                rng = np.random.default_rng([seed, 61, counts["site-years"]])
+                draw = rng.random(len(nee))
+                measured = np.isfinite(nee)
+                two = np.where(measured, np.where(draw < 0.05, 2.0, 0.0), np.nan)
+                three = np.where(measured & (draw >= 0.05) & (draw < 0.15), 1.0, two)
+                counts["site-years"] += 1
+                for flag, accept, key in ((two, (0,), "named [0] on 0/2"),
+                                          (three, (0, 1), "named [0, 1] on 0/1/2"),
+                                          (two, (0, 2), "named [0, 2] on 0/2")):
+                    rejected = np.where(np.isfinite(flag), ~np.isin(flag, accept), np.nan)
+                    named = keeps_every_value([flag], ["qc"], nee, rejected.astype(float),
+                                              accept) is not None
+                    counts[key] += named
+    print(", ".join(f"{k} {v}" for k, v in counts.items()))
+
+
 # --------------------------------------------------------------------------- main
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
@@ -534,7 +569,12 @@ def main(argv=None) -> int:
     parser.add_argument("--only", nargs="*", default=None, help="mistakes whose name holds")
     parser.add_argument("--network", action="store_true", help="the network cases only")
     parser.add_argument("--csv", default="")
+    parser.add_argument("--flag-scan", default="", help="seeds, comma separated: the flag "
+                        "check's false alarms on the clean generators, nothing else")
     args = parser.parse_args(argv)
+    if args.flag_scan:
+        flag_scan([int(seed) for seed in args.flag_scan.split(",")])
+        return 0
     rows = []
     if args.network:
         rows += network_cases([("probe_clean_sites", "a04"),
