@@ -118,6 +118,7 @@ from .file_digest import sha256_of_file
 from .fixed_width import cut_names_message, delimited, fused_header_names, run_together_field
 from .flag_counter import many_values_text
 from .flag_grades import middle_grade_warning
+from .flag_reach import keeps_every_value
 from .flag_words import accept_codes as flag_accept_codes
 from .flag_words import are_words as flag_are_words
 from .flag_words import coded as flag_word_codes
@@ -1328,6 +1329,12 @@ def read_table(path, *, columns, units=None, time_column, time_format, time_mark
         flag_rejected_with_nee = int(np.sum((converted["nee_flag"] == 1)
                                             & np.isfinite(converted["nee"])))
         source_of["nee_flag"] = " + ".join(flag_columns)
+        # a flag_accept that keeps every value the flag holds (round mistakes61)
+        keeps_all = keeps_every_value(flags, flag_columns, converted["nee"],
+                                      converted["nee_flag"], flag_accept,
+                                      lambda value: flag_shown(value, words, word_counts))
+        if keeps_all:
+            warnings.append(keeps_all)
         # a flag that rejects most records is more likely a wrong flag_accept than a site
         # whose own checks discard most of its data (our choice: half), judged over the
         # records with an NEE value as the refusal is (review41): a flag written bad
