@@ -19,7 +19,7 @@ from importlib import import_module
 logging.getLogger("fluxpart").addHandler(logging.NullHandler())
 
 # The one place the version is written; pyproject.toml reads it from here.
-__version__ = "0.39.0"
+__version__ = "0.40.0"
 
 #: Public name -> (module, attribute); attribute None means the module itself.
 _LAZY = {
