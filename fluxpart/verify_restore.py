@@ -196,26 +196,35 @@ def _unpacked(path: Path) -> tuple[str, bytes | None, str] | None:
     return digest.hexdigest(), (b"".join(held) if held is not None else None), suffix
 
 
-def _unpacked_copy(path: Path, suffix: str, sha, name: str, scratch: Path,
-                   number: int) -> Path | None:
-    """Unpack the compressed file `path` (too large to hold) as `name` in a folder of
-    its own in `scratch`, a chunk at a time; None (and nothing left) where the bytes
-    written do not have the SHA-256 `sha` (the file changed since it was hashed)."""
+def _checked_copy(chunks, errors, sha, name: str, scratch: Path,
+                  number: int) -> Path | None:
+    """The byte `chunks` written as `name` in a folder of its own in `scratch`, a chunk at
+    a time; None (and nothing left) where reading them raises one of `errors` or the bytes
+    written do not have the SHA-256 `sha` (the source changed since it was hashed)."""
     folder = scratch / f"restored-input-{number}"
     folder.mkdir(parents=True, exist_ok=True)
     target, digest = folder / name, hashlib.sha256()
     try:
         with target.open("wb") as out:
-            for chunk in _packed_chunks(path, suffix):
+            for chunk in chunks:
                 digest.update(chunk)
                 out.write(chunk)
-    except _UNPACK_ERRORS:
+    except errors:
         target.unlink(missing_ok=True)
         return None
     if digest.hexdigest() != sha:
         target.unlink(missing_ok=True)
         return None
     return target
+
+
+def _unpacked_copy(path: Path, suffix: str, sha, name: str, scratch: Path,
+                   number: int) -> Path | None:
+    """Unpack the compressed file `path` (too large to hold) as `name` in a folder of
+    its own in `scratch`, a chunk at a time; None (and nothing left) where the bytes
+    written do not have the SHA-256 `sha` (the file changed since it was hashed)."""
+    return _checked_copy(_packed_chunks(path, suffix), _UNPACK_ERRORS, sha, name, scratch,
+                         number)
 
 
 def _packed_beside(path: Path, sha, scratch: Path, number: int):
@@ -350,21 +359,8 @@ def _zip_copy(archive: Path, member: str, sha, name: str, scratch: Path,
     """The file `member` of the zip `archive` (too large to hold) unpacked as `name` in a
     folder of its own in `scratch`; None (and nothing left) where the bytes written do not
     have the SHA-256 `sha` (the archive changed since it was hashed)."""
-    folder = scratch / f"restored-input-{number}"
-    folder.mkdir(parents=True, exist_ok=True)
-    target, digest = folder / name, hashlib.sha256()
-    try:
-        with target.open("wb") as out:
-            for chunk in _zip_chunks(archive, member):
-                digest.update(chunk)
-                out.write(chunk)
-    except _ZIP_ERRORS:
-        target.unlink(missing_ok=True)
-        return None
-    if digest.hexdigest() != sha:
-        target.unlink(missing_ok=True)
-        return None
-    return target
+    return _checked_copy(_zip_chunks(archive, member), _ZIP_ERRORS, sha, name, scratch,
+                         number)
 
 
 def _member_file_name(member: str) -> str:
