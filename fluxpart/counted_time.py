@@ -18,6 +18,7 @@ from __future__ import annotations
 import os
 import re
 import time
+from datetime import datetime
 
 import numpy as np
 import pandas as pd
@@ -426,6 +427,11 @@ FUTURE_MARGIN = pd.Timedelta(days=3653)
 EARLIEST_RECORD = pd.Timestamp("1970-01-01")
 
 
+#: whole days within pandas' ``Timestamp.min`` and ``Timestamp.max`` (nanosecond stamps)
+_FIRST_STAMP = datetime(1677, 9, 22)
+_LAST_STAMP = datetime(2262, 4, 11)
+
+
 def dated(numbers: np.ndarray, seconds: float, reference: pd.Timestamp) -> np.ndarray:
     """Whether each count of `seconds` from `reference` dates a stamp pandas can hold.
 
@@ -433,8 +439,9 @@ def dated(numbers: np.ndarray, seconds: float, reference: pd.Timestamp) -> np.nd
     and ``.max``); a count beyond them (day numbers counted from year 0 read as days
     since 1970) is no stamp (round layouts56: a crash before).
     """
-    low = (pd.Timestamp.min - reference).total_seconds()
-    high = (pd.Timestamp.max - reference).total_seconds()
+    # in Python's datetimes: the span from a reference to either end may exceed a Timedelta
+    low = (_FIRST_STAMP - reference.to_pydatetime()).total_seconds()
+    high = (_LAST_STAMP - reference.to_pydatetime()).total_seconds()
     with np.errstate(invalid="ignore"):
         return np.isfinite(numbers) & (numbers * seconds > low + 1) & (numbers * seconds < high - 1)
 
