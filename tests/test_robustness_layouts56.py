@@ -129,3 +129,21 @@ def test_a_stated_count_judges_unit_reference_and_a_stated_clock_only():
         [("line 1 of 'a.csv'", "seconds since 1990-01-01 UTC")], "seconds since 1990-01-01")
     assert stated_count_message([("line 1 of 'a.csv'", "Station Oakmere, since 2019")],
                                 "seconds since 1990-01-01") is None
+
+
+def test_a_format_without_a_year_is_named_as_written(tmp_path):
+    """A fractional day of the year ("64.60417") under time_format = "%j": refused, as
+    strptime puts stamps without a year in 1900 (Python's documentation of
+    ``datetime.strptime`` (m)), naming "%j" as written, not the reader's rewriting of the
+    decimal day ("%j %H:%M:%S", named before)."""
+    assert datetime.strptime("64", "%j").year == 1900
+    starts, records = _tower()
+    ends = starts + pd.Timedelta("30min")
+    written = records.copy()
+    written["stamp"] = [f"{(e - pd.Timestamp('2021-01-01')) / pd.Timedelta('1D') + 1:.5f}"
+                        for e in ends]
+    (tmp_path / "doy.csv").write_text(written.to_csv(index=False))
+    with pytest.raises(FluxpartError, match=r'time_format = "%j" cannot be used: it has no '
+                                            r'year') as refusal:
+        _read_counts(tmp_path / "doy.csv", "%j")
+    assert "%H" not in str(refusal.value).split("cannot be used")[0]
