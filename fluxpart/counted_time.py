@@ -18,6 +18,7 @@ from __future__ import annotations
 import os
 import re
 import time
+from datetime import datetime
 
 import numpy as np
 import pandas as pd
@@ -185,6 +186,7 @@ def counted_stamps(text: pd.Series, time_format: str) -> tuple[pd.Series, str, n
     seconds, reference, clock = counted_form(time_format)
     numbers = counts(text)
     good = np.isfinite(numbers) & (np.abs(numbers * seconds) < 1e11)  # within ~3000 years
+    good &= dated(numbers, seconds, reference)
     whole = np.zeros(len(numbers), dtype="int64")
     whole[good] = np.round(numbers[good] * seconds).astype("int64")
     stamps = pd.Series(reference + pd.to_timedelta(whole, unit="s"), index=text.index)
@@ -425,6 +427,32 @@ FUTURE_MARGIN = pd.Timedelta(days=3653)
 EARLIEST_RECORD = pd.Timestamp("1970-01-01")
 
 
+#: whole days within pandas' ``Timestamp.min`` and ``Timestamp.max`` (nanosecond stamps)
+_FIRST_STAMP = datetime(1677, 9, 22)
+_LAST_STAMP = datetime(2262, 4, 11)
+
+
+def dated(numbers: np.ndarray, seconds: float, reference: pd.Timestamp) -> np.ndarray:
+    """Whether each count of `seconds` from `reference` dates a stamp pandas can hold.
+
+    Stamps of nanoseconds run from 1677-09-21 to 2262-04-11 (pandas' ``Timestamp.min``
+    and ``.max``); a count beyond them (day numbers counted from year 0 read as days
+    since 1970) is no stamp (round layouts56: a crash before).
+    """
+    # in Python's datetimes: the span from a reference to either end may exceed a Timedelta
+    low = (_FIRST_STAMP - reference.to_pydatetime()).total_seconds()
+    high = (_LAST_STAMP - reference.to_pydatetime()).total_seconds()
+    with np.errstate(invalid="ignore"):
+        return np.isfinite(numbers) & (numbers * seconds > low + 1) & (numbers * seconds < high - 1)
+
+
+def _date_or_year(reference: pd.Timestamp, seconds: float) -> pd.Timestamp | str:
+    """`reference` plus `seconds`, or the year it falls in (text) beyond the stamps' range."""
+    if dated(np.array([seconds]), 1.0, reference)[0]:
+        return reference + pd.Timedelta(seconds=seconds)
+    return f"{reference.year + seconds / 31_556_952:.0f}"   # mean Gregorian year [s]
+
+
 def latest_record(now: float | None = None) -> pd.Timestamp:
     """The latest date a record's median may carry once counted: a tower records no
     future.
@@ -496,8 +524,20 @@ def reference_mismatch(text: pd.Series, time_format: str,
     if not numbers.size:
         return ""
     latest = latest_record() if latest is None else latest
-    first, middle, last = (reference + pd.Timedelta(seconds=float(v) * seconds)
+    # a count dating its records past 2262 (the last date a stamp of nanoseconds holds:
+    # day numbers counted from year 0 read from 1970) is named by its year, as a count
+    # beyond the stamps' range was a crash before (round layouts56)
+    first, middle, last = (_date_or_year(reference, float(v) * seconds)
                            for v in (numbers.min(), np.median(numbers), numbers.max()))
+    if isinstance(middle, str):
+        beyond = f"the year {middle}"
+        why = (f"after {latest:%Y-%m-%d}, ten years past this run's date: a tower records "
+               "no future" if float(np.median(numbers)) > 0 else f"before {EARLIEST_RECORD:%Y}: "
+               "no eddy-covariance tower measured then")
+        return (f"counted from {reference:%Y-%m-%d} the records fall in {beyond}, {why}, so "
+                "the count has another reference date or unit: check [input] time_format")
+    first = first if isinstance(first, str) else f"{first:%Y-%m-%d}"
+    last = last if isinstance(last, str) else f"{last:%Y-%m-%d}"
     if EARLIEST_RECORD <= middle < latest:
         # a few counts beyond them (a typo, a line of column numbers) are left to the
         # stamp checks, which name their lines
@@ -505,16 +545,18 @@ def reference_mismatch(text: pd.Series, time_format: str,
     why = (f"after {latest:%Y-%m-%d}, ten years past this run's date: a tower records "
            "no future" if middle >= latest else f"before {EARLIEST_RECORD:%Y}: no "
            "eddy-covariance tower measured then")
-    said = (f"counted from {reference:%Y-%m-%d} the records run from {first:%Y-%m-%d} to "
-            f"{last:%Y-%m-%d}, {why}, so the count has another reference date")
+    said = (f"counted from {reference:%Y-%m-%d} the records run from {first} to "
+            f"{last}, {why}, so the count has another reference date")
     written = _FORM.fullmatch(time_format)
     others = []
     for other in _KNOWN_REFERENCES.get(seconds, ()):
         start = pd.Timestamp(other)
         if start == reference:
             continue
-        begin = start + pd.Timedelta(seconds=float(numbers.min()) * seconds)
-        end = start + pd.Timedelta(seconds=float(numbers.max()) * seconds)
+        begin = _date_or_year(start, float(numbers.min()) * seconds)
+        end = _date_or_year(start, float(numbers.max()) * seconds)
+        if isinstance(begin, str) or isinstance(end, str):
+            continue
         if EARLIEST_RECORD <= begin and end < latest:
             setting = (time_format[:written.start("date")] + other
                        + time_format[written.end("date"):])

@@ -4974,7 +4974,7 @@ def _read_records(path: Path, text: str, used_encoding: str, *, columns, units,
                 f"{written.iloc[first_grouped].strip()!r} on line {int(lines[first_grouped])} "
                 "of its file): read without them")
         cells = raw[column]
-        raw[column], fortran, lettered = fortran_numbers.e_exponents(cells)
+        raw[column], fortran, lettered = fortran_numbers.e_exponents(cells, decimal)
         if fortran:
             first_fortran = _first_in_file(lines, lettered)
             warnings.append(

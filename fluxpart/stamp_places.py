@@ -829,6 +829,9 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                     f"{_apart(place, time_marks)} apart; set time_marks = "
                     f"{setting_text(place)} if the file is right, or correct that line in "
                     "a copy of the file if the setting is")
+    counted = stated_count_message(statements, time_format)
+    if counted:
+        return counted
     if _labelled(time_format) or utc_offset is None:
         return None
     for where, text in statements:
@@ -853,6 +856,69 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
                         "records an hour apart; set time_zone to the site's zone "
                         "(\"Area/City\") if the file is right, or correct that line in a copy "
                         "of the file if the stamps are in local standard time")
+    return None
+
+
+#: a count of time since a date stated in a line or cell ("Logger time: seconds since
+#: 1990-01-01 00:00:00"), in the CF conventions' form that ``time_format`` reads
+_STATED_COUNT = re.compile(
+    r"(?<![A-Za-z])(?:days?|hours?|minutes?|seconds?|milliseconds?)\s+since\s+"
+    r"\d{4}-\d{1,2}-\d{1,2}(?:[ T]\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?"
+    r"(?:\s*(?:UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)(?![A-Za-z]))?", re.IGNORECASE)
+
+
+def stated_count_message(statements: list, time_format: str) -> str | None:
+    """The refusal where a line states another count of time than ``time_format`` reads.
+
+    Parameters
+    ----------
+    statements : list of (str, str)
+        ``(where, text)`` as in :func:`text_conflict_message`.
+    time_format : str
+        ``[input] time_format``: a "<unit> since <date>" count (others are not judged).
+
+    Returns
+    -------
+    str or None
+        Where `time_format` counts time since a date and a line states a count in the
+        same form with another unit, reference or clock ("seconds since 1990-01-01", a
+        logger's epoch, above counts read as Unix time: every record 20 years early, in
+        2001, a year no check of the stamps refuses): one line naming the line, both
+        counts and the setting that reads the stated one. None where they agree, the
+        format counts nothing, or no line states a count (round layouts56).
+
+    References
+    ----------
+    Eaton, B. et al. NetCDF Climate and Forecast (CF) Metadata Conventions, section 4.4:
+    "<unit> since <date>" names a count's unit and reference (m).
+    """
+    setting = counted_form(time_format)
+    if setting is None:
+        return None
+    for where, text in statements:
+        found = _STATED_COUNT.search(text)
+        if found is None:
+            continue
+        try:
+            stated = counted_form(found.group(0))
+        except ValueError:          # a date that names no day: the line states nothing
+            continue
+        # a line silent on the clock leaves the setting's (UTC a user knows) unjudged
+        if stated is None or stated[:2] == setting[:2] and stated[2] in (None, setting[2]):
+            continue
+        if stated[0] != setting[0]:
+            apart = (f"count in units {stated[0] / setting[0]:g} times the setting's, dating "
+                     "the records years apart")
+        else:
+            days = abs((stated[1] - setting[1]) / pd.Timedelta(days=1))
+            apart = (f"date every record {days / 365.2425:.1f} years apart" if days >= 365
+                     else f"date every record {days:g} days apart" if days >= 1 else
+                     "place every record the two clocks' offset apart")
+        return (f"{where} ({text.strip()[:80]!r}) states stamps counted as "
+                f"{found.group(0)!r}, but time_format = {setting_text(time_format)} reads "
+                f"them otherwise: the two readings {apart}; set time_format"
+                f" = {setting_text(found.group(0))} if the file is right, or correct that "
+                "line in a copy of the file if the setting is")
     return None
 
 

@@ -537,9 +537,11 @@ def parse_stamps(text: pd.Series, time_format: str, *, time_columns: tuple, sour
             f"write time_format = {setting_text(time_format.replace('%H', '%I'))}")
     if "%" in time_format and not re.search(r"%[YyGs]", time_format):
         # strptime fills an absent year with 1900: a file's stamps would be read in 1900
-        # (day 366 of a leap year as 1901-01-01), files of several years on each other
+        # (day 366 of a leap year as 1901-01-01), files of several years on each other;
+        # named as the user wrote it, not as a decimal day was rewritten ("%j" named as
+        # "%j %H:%M:%S" before, layouts56)
         raise TimestampError(
-            f"[input] time_format = {setting_text(time_format)} cannot be used: it has no "
+            f"[input] time_format = {setting_text(format_written)} cannot be used: it has no "
             "year (%Y or %y), so every stamp would be read in the year 1900; add the "
             "column holding the year to [input] time_column (several columns are joined "
             "with one space, e.g. time_format = \"%Y %j %H%M\"), or write the year into "
