@@ -14,7 +14,7 @@ from fluxpart.flag_labels import unmapped_flag_column
 
 
 def test_flag_columns_of_the_co2_flux_are_named():
-    for name in ("qc_co2_flux", "co2_flux_qc", "FLAG_NEE", "qc_col", "quality_flag"):
+    for name in ("qc_flux_co2", "co2_flux_qc", "FLAG_NEE", "qc_col", "quality_flag"):
         text = unmapped_flag_column("co2_flux" if name != "qc_col" else "nee_col",
                                     ["stamp", "co2_flux", "nee_col", name], ["stamp"])
         assert text is not None and repr(name) in text, name
@@ -34,12 +34,12 @@ def test_the_reader_warns_where_the_flag_is_not_mapped(tmp_path):
     path = tmp_path / "flux.csv"
     _write(path, [f"{e:%Y-%m-%d %H:%M}" for e in ends], values)
     lines = path.read_text().splitlines()
-    path.write_text("\n".join([lines[0] + ",qc_co2_flux"]
+    path.write_text("\n".join([lines[0] + ",qc_flux_co2"]
                               + [line + f",{k % 3}" for k, line in enumerate(lines[1:])])
                     + "\n")
     _, report = _read(path)
-    assert any(w.startswith("nee_flag: the file holds a quality flag column ('qc_co2_flux')")
+    assert any(w.startswith("nee_flag: the file holds a quality flag column ('qc_flux_co2')")
                for w in report.warnings), report.warnings
-    _, mapped = _read(path, columns=MAPPING | {"nee_flag": "qc_co2_flux"},
+    _, mapped = _read(path, columns=MAPPING | {"nee_flag": "qc_flux_co2"},
                       flag_accept=[0, 1])
     assert not any("no mapping reads" in w for w in mapped.warnings), mapped.warnings

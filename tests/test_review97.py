@@ -65,7 +65,7 @@ def test_flags_of_the_co2_concentration_are_not_the_fluxs():
                  "qc_co2_dry", "flag_co2_sig", "flag_rain", "sonic_flag", "qc_H", "LE_QC"):
         assert unmapped_flag_column("co2_flux", ["co2_flux", name], []) is None, name
         assert unmapped_flag_column("NEE", ["NEE", name], []) is None, name
-    for name in ("co2_flux_qc", "qc_co2_flux", "NEE_qc"):
+    for name in ("co2_flux_qc", "qc_flux_co2", "NEE_qc"):
         assert unmapped_flag_column("co2_flux", ["co2_flux", name], []) is not None, name
     own = unmapped_flag_column("NEE_ustar_filtered", ["NEE_ustar_filtered",
                                                       "NEE_ustar_filtered_qc"], [])
