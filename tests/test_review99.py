@@ -29,3 +29,27 @@ def test_a_middle_grade_that_another_flag_column_rejects_is_not_offered():
     flags = [grade, 2 * sector]
     text = middle_grade_warning(flags, ["qc", "sector"], (0,), nee, _combined(flags, [0]))
     assert "flag_accept = [0, 1]" in text and "qc + sector" in text
+
+
+def test_a_stated_count_reads_a_named_clock_with_its_offset_and_skips_a_span_in_prose():
+    """CF conventions write a count as "<unit> since <date> [<clock>]" (section 4.4 (m)).
+    "UTC+1" above the header was read as UTC: a file whose setting says +01:00 was
+    refused, with advice to set UTC (an hour off). "4 days since 2023-04-28" in a
+    processing note (a span, a number before the unit) refused a good file."""
+    from fluxpart.stamp_places import stated_count_message
+
+    def line(text):
+        return [("line 1 of 'a.csv'", text)]
+
+    setting = "seconds since 1990-01-01 00:00:00 +01:00"
+    for text in ("Time: seconds since 1990-01-01 00:00:00 UTC+1",
+                 "Time: seconds since 1990-01-01 00:00:00 GMT+01:00"):
+        assert stated_count_message(line(text), setting) is None
+    refused = stated_count_message(line("Time: seconds since 1990-01-01 00:00:00 UTC-5"),
+                                   setting)
+    assert "clocks' offset apart" in refused
+    assert 'set time_format = "seconds since 1990-01-01 00:00:00 -5"' in refused
+    note = "Processed 2023-05-02; logger uptime 4 days since 2023-04-28 restart"
+    assert stated_count_message(line(note), "days since 2000-01-01") is None
+    assert "23.3 years apart" in stated_count_message(
+        line("Time: days since 2023-04-28"), "days since 2000-01-01")
