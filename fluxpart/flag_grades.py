@@ -103,17 +103,28 @@ def middle_grade_warning(flags: list, columns: list, accept, nee: np.ndarray,
         ``nee_flag: ...`` naming the columns, the kept codes, the share rejected, the
         middle codes with their counts, and the setting that keeps them; '' where the
         share is at most :data:`MIDDLE_GRADE_SHARE` or above half (the reader's own
-        warning), or no middle grade is rejected.
+        warning), or no middle grade is rejected that no other flag column holds as a
+        rejected code (widening ``flag_accept``, one list for every column, would keep
+        that column's rejected records too).
     """
     judged = np.isfinite(nee) & np.isfinite(rejected)
     count = int(judged.sum())
     dropped = int((judged & (rejected == 1)).sum())
     if not count or not MIDDLE_GRADE_SHARE * count < dropped <= _MOST * count:
         return ""
-    middle = {}
+    middle, rejecting = {}, set()
     for codes in flags:
-        for code in middle_grades(codes[judged], accept):
+        grades = middle_grades(codes[judged], accept)
+        for code in grades:
             middle[code] = middle.get(code, 0) + int((codes[judged] == code).sum())
+        # a code another column holds as a rejected code but no middle grade (the 1 of a
+        # sector flag 0 kept / 1 rejected beside a 0-1-2 grade): flag_accept is one list
+        # for every column, so widening it to that code would keep that column's rejected
+        # records too, and no warning would name it after (round review99)
+        present = np.unique(codes[judged][np.isfinite(codes[judged])])
+        rejecting.update(float(c) for c in present
+                         if c not in grades and c not in np.asarray(accept, dtype=float))
+    middle = {code: number for code, number in middle.items() if code not in rejecting}
     if not middle:
         return ""
     accepted = [float(a) for a in accept]

@@ -862,9 +862,14 @@ def text_conflict_message(statements: list, time_marks: str, time_format: str,
 #: a count of time since a date stated in a line or cell ("Logger time: seconds since
 #: 1990-01-01 00:00:00"), in the CF conventions' form that ``time_format`` reads
 _STATED_COUNT = re.compile(
-    r"(?<![A-Za-z])(?:days?|hours?|minutes?|seconds?|milliseconds?)\s+since\s+"
-    r"\d{4}-\d{1,2}-\d{1,2}(?:[ T]\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?"
-    r"(?:\s*(?:UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)(?![A-Za-z]))?", re.IGNORECASE)
+    # not after a number: "4 days since 2023-04-28" is a span in prose, no unit of the
+    # stamps (round review99)
+    r"(?<![A-Za-z])(?<!\d)(?<!\d\s)(?:days?|hours?|minutes?|seconds?|milliseconds?)\s+"
+    r"since\s+\d{4}-\d{1,2}-\d{1,2}(?:[ T]\d{1,2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?"
+    r"(?:\s*(?:(?:UTC|GMT)\s*[+-]\d{1,2}(?::?\d{2})?|UTC|GMT|Z|[+-]\d{1,2}(?::?\d{2})?)"
+    r"(?![A-Za-z\d]))?", re.IGNORECASE)
+#: "UTC+1", "GMT-05:00": the offset after the name of the clock, as the setting writes it
+_NAMED_OFFSET = re.compile(r"(?:UTC|GMT)\s*(?=[+-]\d)", re.IGNORECASE)
 
 
 def stated_count_message(statements: list, time_format: str) -> str | None:
@@ -899,8 +904,10 @@ def stated_count_message(statements: list, time_format: str) -> str | None:
         found = _STATED_COUNT.search(text)
         if found is None:
             continue
+        # "UTC+1" is the offset +1, not UTC (round review99: refused with advice to set UTC)
+        written = _NAMED_OFFSET.sub("", found.group(0))
         try:
-            stated = counted_form(found.group(0))
+            stated = counted_form(written)
         except ValueError:          # a date that names no day: the line states nothing
             continue
         # a line silent on the clock leaves the setting's (UTC a user knows) unjudged
@@ -917,7 +924,7 @@ def stated_count_message(statements: list, time_format: str) -> str | None:
         return (f"{where} ({text.strip()[:80]!r}) states stamps counted as "
                 f"{found.group(0)!r}, but time_format = {setting_text(time_format)} reads "
                 f"them otherwise: the two readings {apart}; set time_format"
-                f" = {setting_text(found.group(0))} if the file is right, or correct that "
+                f" = {setting_text(written)} if the file is right, or correct that "
                 "line in a copy of the file if the setting is")
     return None
 
