@@ -169,27 +169,57 @@ def test_a_statistics_row_alone_is_no_units_row(tmp_path):
     assert not [n for n in report.notes if "units row" in n]
 
 
-def test_files_whose_rows_write_two_units_are_judged_as_before(tmp_path):
-    """Two files, one row saying kPa (values in kPa) and the other hPa for VPD, the config
-    silent: neither unit reads every file, so none is read from the rows; the reader's
-    rules for a unit changed between files judge them as before (here warned: four days
-    are too few for the month-by-month rule)."""
+def _two_files(tmp_path, first_vpd, second_vpd):
+    """Two files of two days each, VPD in kPa in the first (its row writing
+    `first_vpd`), in hPa in the second (its row writing `second_vpd`); 1 kPa = 10 hPa
+    (SI prefixes)."""
     ends, values = _records()
     half = len(ends) // 2
     first, second = values[:half].copy(), values[half:].copy()
     first[:, 4] /= 10
-    for path, part, vpd, rows in (("a.csv", first, "kPa", slice(0, half)),
-                                  ("b.csv", second, "hPa", slice(half, None))):
+    for path, part, vpd, rows in (("a.csv", first, first_vpd, slice(0, half)),
+                                  ("b.csv", second, second_vpd, slice(half, None))):
         lines = [",".join(["stamp", *NAMES]),
                  ",".join(["TS", *[(UNSTATED_ROW | {"vpd": vpd})[n] for n in NAMES]])]
         lines += [",".join([f"{e:%Y-%m-%d %H:%M}"] + [f"{v:.12g}" for v in r])
                   for e, r in zip(ends[rows], part, strict=True)]
         (tmp_path / path).write_text("\n".join(lines) + "\n")
-    frame, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"], units={},
-                          rows_after_header=1)
-    assert not [n for n in report.notes if "units row" in n]
-    assert any("differ between input files" in w and "'kPa'" in w for w in report.warnings)
-    np.testing.assert_allclose(frame["vpd"].iloc[:half], first[:, 4], rtol=1e-11)  # as written
+    return [tmp_path / "a.csv", tmp_path / "b.csv"]
+
+
+@pytest.mark.parametrize("second_vpd", ["hPa", "-", ""])
+def test_files_whose_rows_write_two_units_are_refused(tmp_path, second_vpd):
+    """Two files, one row saying kPa (values in kPa) and the other hPa (or no unit) for
+    VPD, the config silent: no one unit reads every file. Refused naming both files
+    (review98); before, the kPa file was read as hPa, its VPD a tenth of the truth, with
+    a warning only (four days are too few for the month-by-month rule), or, where the
+    other row wrote no unit, the hPa file read as kPa."""
+    paths = _two_files(tmp_path, "kPa", second_vpd)
+    with pytest.raises(ImplausibleValueError) as caught:
+        _read(paths, units={}, rows_after_header=1)
+    message = str(caught.value)
+    assert "'vpd' (vpd)" in message and "'kPa'" in message and "a.csv" in message
+    assert "b.csv" in message and "set [input.units] vpd" in message
+
+
+def test_files_whose_rows_write_one_unit_or_none_are_read(tmp_path):
+    """One row writing the canonical hPa and the other none: every file read in hPa,
+    as before."""
+    ends, values = _records()
+    paths = _two_files(tmp_path, "hPa", "-")
+    frame, _ = _read(paths, units={}, rows_after_header=1)
+    np.testing.assert_allclose(frame["vpd"].iloc[len(ends) // 2:],
+                               values[len(ends) // 2:, 4], rtol=1e-11)
+
+
+def test_a_units_row_of_numbers_over_a_column_is_read_as_before(tmp_path):
+    """A row writing "1" over the flux and u* (a count or a multiplier, no unit) beside
+    units over the others: read as written; before, the reader stopped with a bare
+    StopIteration (review98)."""
+    _, values = _records()
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"co2_flux": "1", "us": "1"})
+    frame, _ = _read(tmp_path / "t.csv", units={}, rows_after_header=1)
+    np.testing.assert_array_equal(frame.to_numpy(), _clean(tmp_path).to_numpy())
 
 
 def test_a_units_row_above_a_statistics_row_is_read(tmp_path):
