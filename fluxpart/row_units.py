@@ -300,12 +300,11 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
             continue                                       # refused, or numbers alone
         canonical_key = same_unit_key(name, VARIABLES[name].unit if name in VARIABLES
                                       else units_for(name)[0])
-        if len(read) > 1 or (silent and canonical_key not in read):
-            # files whose rows write two units, or a unit and none (review98): one
-            # [input.units] cannot read them all, and reading one file's values in the
-            # other's unit is a value silently off where the value checks cannot tell
-            refusals[name] = _changed_between_files(name, column, list(read.values()),
-                                                    silent, key_text)
+        if len(read) > 1 or silent:
+            # files (or parts) whose rows write two units, or a unit and none (review98:
+            # the unit was read for the file whose row writes none too): none is read for
+            # every file; the reader's rules for a unit changed between files judge them,
+            # as before
             continue
         unit, cell, source = next(iter(read.values()))
         if same_unit_key(name, unit) == canonical_key:
@@ -318,20 +317,6 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
             f"(no {key_text} given): converted to {canonical} ({_factor_text(name, unit)}); "
             f"the plausibility checks judge the converted values")
     return adopted, notes, refusals
-
-
-def _changed_between_files(name: str, column, read: list, silent: list,
-                           key_text: str) -> str:
-    """The refusal of a column whose units rows write two units in two input files (or a
-    unit in one file and none in another), ``[input.units]`` silent: which file writes
-    which, and the fixes."""
-    said = [f"{cell!r} in {source!r}" for _, cell, source in read]
-    said += [f"no unit in {source!r}" for source in silent[:2]]
-    return (f"column {str(column)!r} ({name}): the units rows of the input files write "
-            f"{' but '.join(said[:3])}, and no {key_text} is given: a unit changed "
-            "between the files, which one setting cannot read for every file; convert "
-            "the column of the files in the other unit in a copy of them, or set "
-            f"{key_text} where every file's values are in one unit")
 
 
 def read_clause(name: str, adopted: dict) -> str:
