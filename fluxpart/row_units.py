@@ -250,8 +250,8 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
     refusals : dict
         Variable -> message, where a units row writes a unit the reader does not know for
         it or one of another quantity; the message names the cell, the file and the
-        ``[input.units]`` key to set. Where files' rows write two known units, neither is
-        read (:func:`fluxpart.io._header_rows_warning` and the relabelled-file rules
+        ``[input.units]`` key to set. Where files' rows write two known units, or one file's
+        row a unit and another's none (blank, "-", a number), none is read (:func:`fluxpart.io._header_rows_warning` and the relabelled-file rules
         judge them, as before).
 
     References
@@ -273,7 +273,8 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
             stated = [(_unenclosed(cells[i]), part["source"]) for i in sorted(rows)
                       if i < len(cells) and not _states_no_unit(_unenclosed(cells[i]))]
             written += stated
-            if not [cell for cell, _ in stated if not _is_number(cell.strip())]:
+            if all(_is_number(cell.strip()) and row_unit(name, cell) is None
+                   for cell, _ in stated):
                 silent.append(part["source"])              # no unit in this file's row
         if not written:
             continue

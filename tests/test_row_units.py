@@ -251,3 +251,19 @@ def test_a_co2_rate_the_reader_does_not_convert_is_refused_with_its_factor(tmp_p
     factor = float(str(caught.value).split("multiply the values by ")[1].split()[0])
     assert factor == pytest.approx(1e6 / CO2_GRAMS_PER_MOLE / 86400, rel=1e-4)
     assert "set [input.units] nee" in str(caught.value)
+
+
+def test_one_over_rh_as_a_fraction_is_read_beside_the_file_check(tmp_path):
+    """"1" over RH written as a fraction is the SI unit one (BIPM 2019, section 5.4.7
+    (m)), not a number that states no unit: read x 100 (1 = 100 %, definition of per
+    cent), noted, as round unitsrow reads it (guards review98's test for a row writing
+    no unit)."""
+    from test_robustness_layouts26 import MAPPING
+    _, values = _records()
+    values = values.copy()
+    values[:, 4] = np.round(0.6 + 0.2 * np.sin(np.arange(len(values)) / 10), 4)
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"vpd": "1"})
+    columns = {k: v for k, v in MAPPING.items() if k != "vpd"} | {"rh": "vpd"}
+    frame, report = _read(tmp_path / "t.csv", units={}, rows_after_header=1, columns=columns)
+    np.testing.assert_allclose(frame["rh"], values[:, 4] * 100, rtol=1e-12)
+    assert any("read in '1'" in n for n in report.notes)
