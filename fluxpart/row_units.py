@@ -250,8 +250,8 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
     refusals : dict
         Variable -> message, where a units row writes a unit the reader does not know for
         it or one of another quantity; the message names the cell, the file and the
-        ``[input.units]`` key to set. Where files' rows write two known units, neither is
-        read (:func:`fluxpart.io._header_rows_warning` and the relabelled-file rules
+        ``[input.units]`` key to set. Where files' rows write two known units, or one file's
+        row a unit and another's none (blank, "-", a number), none is read (:func:`fluxpart.io._header_rows_warning` and the relabelled-file rules
         judge them, as before).
 
     References
@@ -265,11 +265,17 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
     if not rows:
         return adopted, notes, refusals
     for name in names:
-        written = []                                       # (cell, source)
+        written, silent = [], []                           # (cell, source); sources
         for part in parts:
-            column, cells = part["header_rows"].get(name, (None, ()))
-            written += [(_unenclosed(cells[i]), part["source"]) for i in sorted(rows)
-                        if i < len(cells) and not _states_no_unit(_unenclosed(cells[i]))]
+            if name not in part["header_rows"]:
+                continue                                   # the column lacks in this file
+            column, cells = part["header_rows"][name]
+            stated = [(_unenclosed(cells[i]), part["source"]) for i in sorted(rows)
+                      if i < len(cells) and not _states_no_unit(_unenclosed(cells[i]))]
+            written += stated
+            if all(_is_number(cell.strip()) and row_unit(name, cell) is None
+                   for cell, _ in stated):
+                silent.append(part["source"])              # no unit in this file's row
         if not written:
             continue
         column = mapping[name]
@@ -291,16 +297,18 @@ def stated_units(parts: list, mapping: dict, units: dict) -> tuple[dict, list, d
                     "in a copy of the file")
                 break
             read.setdefault(same_unit_key(name, unit), (unit, cell, source))
-        if name in refusals:
-            continue
-        if len(read) > 1:
-            # files (or parts) whose rows write two units: none is read for every file;
-            # the reader's rules for a unit changed between files judge them, as before
+        if name in refusals or not read:
+            continue                                       # refused, or numbers alone
+        canonical_key = same_unit_key(name, VARIABLES[name].unit if name in VARIABLES
+                                      else units_for(name)[0])
+        if len(read) > 1 or silent:
+            # files (or parts) whose rows write two units, or a unit and none (review98:
+            # the unit was read for the file whose row writes none too): none is read for
+            # every file; the reader's rules for a unit changed between files judge them,
+            # as before
             continue
         unit, cell, source = next(iter(read.values()))
-        if same_unit_key(name, unit) == same_unit_key(name, VARIABLES[name].unit
-                                                      if name in VARIABLES
-                                                      else units_for(name)[0]):
+        if same_unit_key(name, unit) == canonical_key:
             continue                                       # the canonical unit
         adopted[name] = unit
         canonical = VARIABLES[name].unit if name in VARIABLES else units_for(name)[0]

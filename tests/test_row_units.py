@@ -169,27 +169,62 @@ def test_a_statistics_row_alone_is_no_units_row(tmp_path):
     assert not [n for n in report.notes if "units row" in n]
 
 
-def test_files_whose_rows_write_two_units_are_judged_as_before(tmp_path):
-    """Two files, one row saying kPa (values in kPa) and the other hPa for VPD, the config
-    silent: neither unit reads every file, so none is read from the rows; the reader's
-    rules for a unit changed between files judge them as before (here warned: four days
-    are too few for the month-by-month rule)."""
+def _two_files(tmp_path, first_vpd, second_vpd):
+    """Two files of two days each, VPD in kPa in the first (its row writing
+    `first_vpd`), in hPa in the second (its row writing `second_vpd`); 1 kPa = 10 hPa
+    (SI prefixes)."""
     ends, values = _records()
     half = len(ends) // 2
     first, second = values[:half].copy(), values[half:].copy()
     first[:, 4] /= 10
-    for path, part, vpd, rows in (("a.csv", first, "kPa", slice(0, half)),
-                                  ("b.csv", second, "hPa", slice(half, None))):
+    for path, part, vpd, rows in (("a.csv", first, first_vpd, slice(0, half)),
+                                  ("b.csv", second, second_vpd, slice(half, None))):
         lines = [",".join(["stamp", *NAMES]),
                  ",".join(["TS", *[(UNSTATED_ROW | {"vpd": vpd})[n] for n in NAMES]])]
         lines += [",".join([f"{e:%Y-%m-%d %H:%M}"] + [f"{v:.12g}" for v in r])
                   for e, r in zip(ends[rows], part, strict=True)]
         (tmp_path / path).write_text("\n".join(lines) + "\n")
-    frame, report = _read([tmp_path / "a.csv", tmp_path / "b.csv"], units={},
-                          rows_after_header=1)
+    return [tmp_path / "a.csv", tmp_path / "b.csv"]
+
+
+@pytest.mark.parametrize("second_vpd", ["hPa", "-", ""])
+def test_files_whose_rows_write_two_units_or_one_and_none_are_judged_as_before(
+        tmp_path, second_vpd):
+    """Two files, one row saying kPa (values in kPa) and the other hPa or no unit ("-",
+    blank; values in hPa) for VPD, the config silent: no one unit reads every file, so
+    none is read from the rows; the reader's rules for a unit changed between files judge
+    them as before (here warned: four days are too few for the month-by-month rule).
+    Before review98, a row writing no unit took the other file's kPa: the hPa file was
+    read as kPa, ten times the truth, and refused only because that VPD exceeds the
+    saturation vapour pressure."""
+    paths = _two_files(tmp_path, "kPa", second_vpd)
+    frame, report = _read(paths, units={}, rows_after_header=1)
+    _, values = _records()
+    half = len(values) // 2
     assert not [n for n in report.notes if "units row" in n]
     assert any("differ between input files" in w and "'kPa'" in w for w in report.warnings)
-    np.testing.assert_allclose(frame["vpd"].iloc[:half], first[:, 4], rtol=1e-11)  # as written
+    np.testing.assert_allclose(frame["vpd"].iloc[:half], values[:half, 4] / 10, rtol=1e-11)
+    np.testing.assert_allclose(frame["vpd"].iloc[half:], values[half:, 4], rtol=1e-11)
+
+
+def test_files_whose_rows_write_one_unit_or_none_are_read(tmp_path):
+    """One row writing the canonical hPa and the other none: every file read in hPa,
+    as before."""
+    ends, values = _records()
+    paths = _two_files(tmp_path, "hPa", "-")
+    frame, _ = _read(paths, units={}, rows_after_header=1)
+    np.testing.assert_allclose(frame["vpd"].iloc[len(ends) // 2:],
+                               values[len(ends) // 2:, 4], rtol=1e-11)
+
+
+def test_a_units_row_of_numbers_over_a_column_is_read_as_before(tmp_path):
+    """A row writing "1" over the flux and u* (a count or a multiplier, no unit) beside
+    units over the others: read as written; before, the reader stopped with a bare
+    StopIteration (review98)."""
+    _, values = _records()
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"co2_flux": "1", "us": "1"})
+    frame, _ = _read(tmp_path / "t.csv", units={}, rows_after_header=1)
+    np.testing.assert_array_equal(frame.to_numpy(), _clean(tmp_path).to_numpy())
 
 
 def test_a_units_row_above_a_statistics_row_is_read(tmp_path):
@@ -216,3 +251,19 @@ def test_a_co2_rate_the_reader_does_not_convert_is_refused_with_its_factor(tmp_p
     factor = float(str(caught.value).split("multiply the values by ")[1].split()[0])
     assert factor == pytest.approx(1e6 / CO2_GRAMS_PER_MOLE / 86400, rel=1e-4)
     assert "set [input.units] nee" in str(caught.value)
+
+
+def test_one_over_rh_as_a_fraction_is_read_beside_the_file_check(tmp_path):
+    """"1" over RH written as a fraction is the SI unit one (BIPM 2019, section 5.4.7
+    (m)), not a number that states no unit: read x 100 (1 = 100 %, definition of per
+    cent), noted, as round unitsrow reads it (guards review98's test for a row writing
+    no unit)."""
+    from test_robustness_layouts26 import MAPPING
+    _, values = _records()
+    values = values.copy()
+    values[:, 4] = np.round(0.6 + 0.2 * np.sin(np.arange(len(values)) / 10), 4)
+    _file(tmp_path / "t.csv", values, UNSTATED_ROW | {"vpd": "1"})
+    columns = {k: v for k, v in MAPPING.items() if k != "vpd"} | {"rh": "vpd"}
+    frame, report = _read(tmp_path / "t.csv", units={}, rows_after_header=1, columns=columns)
+    np.testing.assert_allclose(frame["rh"], values[:, 4] * 100, rtol=1e-12)
+    assert any("read in '1'" in n for n in report.notes)
