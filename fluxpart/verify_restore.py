@@ -168,6 +168,24 @@ _UNPACK_ERRORS = (OSError, EOFError, ValueError, zlib.error) + (
     (lzma.LZMAError,) if lzma is not None else ())
 
 
+def _hashed_chunks(chunks, errors) -> tuple[str, bytes | None] | None:
+    """(the SHA-256 of the byte `chunks`, their bytes or None where more than
+    `MOST_RESAVED_BYTES`), read a chunk at a time; None where reading them raises one of
+    `errors`."""
+    digest, held, size = hashlib.sha256(), [], 0
+    try:
+        for chunk in chunks:
+            digest.update(chunk)
+            size += len(chunk)
+            if held is not None and size <= MOST_RESAVED_BYTES:
+                held.append(chunk)
+            else:
+                held = None
+    except errors:
+        return None
+    return digest.hexdigest(), (b"".join(held) if held is not None else None)
+
+
 def _unpacked(path: Path) -> tuple[str, bytes | None, str] | None:
     """(the SHA-256 of the bytes inside, those bytes or None where more than
     `MOST_RESAVED_BYTES`, the tool's suffix) where the file `path` is one of
@@ -182,18 +200,8 @@ def _unpacked(path: Path) -> tuple[str, bytes | None, str] | None:
     suffix = next((tail for magic, tail in PACKED_FORMS if head.startswith(magic)), None)
     if suffix is None or _packed_opener(suffix) is None:
         return None
-    digest, held, size = hashlib.sha256(), [], 0
-    try:
-        for chunk in _packed_chunks(path, suffix):
-            digest.update(chunk)
-            size += len(chunk)
-            if held is not None and size <= MOST_RESAVED_BYTES:
-                held.append(chunk)
-            else:
-                held = None
-    except _UNPACK_ERRORS:
-        return None
-    return digest.hexdigest(), (b"".join(held) if held is not None else None), suffix
+    hashed = _hashed_chunks(_packed_chunks(path, suffix), _UNPACK_ERRORS)
+    return None if hashed is None else (*hashed, suffix)
 
 
 def _checked_copy(chunks, errors, sha, name: str, scratch: Path,
@@ -310,19 +318,11 @@ def _zip_restored(archive: Path, member: str, sha, scratch: Path, number: int) -
     before its SHA-256 was compared, and a zip holding itself, a zip quine, was opened
     again and again until Python's recursion limit stopped verify with a traceback)."""
     name = _member_file_name(member)
-    digest, held, size = hashlib.sha256(), [], 0
-    try:
-        for chunk in _zip_chunks(archive, member):
-            digest.update(chunk)
-            size += len(chunk)
-            if held is not None and size <= MOST_RESAVED_BYTES:
-                held.append(chunk)
-            else:
-                held = None
-    except _ZIP_ERRORS:
+    hashed = _hashed_chunks(_zip_chunks(archive, member), _ZIP_ERRORS)
+    if hashed is None:
         return None
-    data = b"".join(held) if held is not None else None
-    if digest.hexdigest() == sha:
+    hexdigest, data = hashed
+    if hexdigest == sha:
         if data is not None:
             return _restored_copy(data, name, scratch, number)
         return _zip_copy(archive, member, sha, name, scratch, number)
