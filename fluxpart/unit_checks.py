@@ -406,11 +406,20 @@ def _rh_fraction(rh: np.ndarray) -> bool:
 #: 0.2-0.7 m s-1 (m); our choice: 0.1 m s-1, about the geometric mean of 0.06 and 0.2.
 _LEAST_MEDIAN = {"ustar": 0.1}
 
+#: Greatest median [canonical unit] of a record read in another unit for that unit to be
+#: named (release 0.40.0, after km h-1 became a unit of u*): a wind speed mapped as
+#: ustar (median 4.6 m s-1) read in km h-1 is a median u* of 1.3 m s-1, above towers'
+#: 0.2-0.7 m s-1 (m) and above the nights' bound of a tall canopy in
+#: :data:`fluxpart.ustar_scale.NIGHT_BOUNDS` (1.0 m s-1); our choice: 1.0 m s-1. A u*
+#: written in km h-1 (median 0.2-0.7 m s-1 once converted) is still named.
+_MOST_MEDIAN = {"ustar": 1.0}
+
 
 def _better_units(name: str, raw_present: np.ndarray, declared,
                   interval_minutes: int = 30) -> list:
     """Accepted units (other than `declared`) under which the values are plausible, best
-    first; none under which the median falls below :data:`_LEAST_MEDIAN`."""
+    first; none under which the median falls below :data:`_LEAST_MEDIAN` or rises above
+    :data:`_MOST_MEDIAN`."""
     probe = np.array([1.0, 2.0])
     declared_probe = to_canonical(probe, name, declared, interval_minutes=interval_minutes)
     candidates, seen = [], []
@@ -424,6 +433,8 @@ def _better_units(name: str, raw_present: np.ndarray, declared,
         seen.append(converted_probe)
         values = to_canonical(raw_present, name, unit, interval_minutes=interval_minutes)
         if name in _LEAST_MEDIAN and np.median(values) < _LEAST_MEDIAN[name]:
+            continue
+        if name in _MOST_MEDIAN and np.median(values) > _MOST_MEDIAN[name]:
             continue
         if _outside(name, values).mean() <= 0.01 and not _outside(
                 name, np.array([np.median(values)]))[0]:

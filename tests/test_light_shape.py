@@ -128,7 +128,7 @@ def test_average_that_cannot_profile_says_so(monkeypatch):
         raise InsufficientDataError("no light-response window with a profiled curvature")
 
     monkeypatch.setattr(central_run, "fit_daytime", no_profile)
-    monkeypatch.setattr(central_run, "respiration_temperature", lambda *args: None)
+    monkeypatch.setattr(central_run, "respiration_temperature", lambda *args, **kwargs: None)
     night = dataclasses.replace(nan_nighttime(2, "tair"), e0_annual=pd.DataFrame({"e0": [200.0]}))
     central = RunOutcome(None, np.zeros(2), None, night, _day([1.0, 2.0], [1.0, 1.0]), None)
     arguments = (None, None, None, central, np.zeros(2, dtype=bool), "tair", 0)
